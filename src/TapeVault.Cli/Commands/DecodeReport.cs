@@ -1,0 +1,111 @@
+using System.Globalization;
+using System.Text.Json;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Decoding;
+
+namespace TapeVault.Cli.Commands;
+
+/// <summary>The table and the JSON document of a decode.</summary>
+public static class DecodeReport
+{
+    public static void WriteTable(TextWriter output, DecodeResult result)
+    {
+        ArgumentNullException.ThrowIfNull(output);
+        ArgumentNullException.ThrowIfNull(result);
+        var c = result.Capture;
+        output.WriteLine($"Capture  {c.Sha256[..16]}…  {c.SampleRate} Hz, {c.Channels} ch, {c.DurationSeconds:0.0} s");
+        output.WriteLine($"Profile  {result.Profile.Id} ({result.Profile.Name}); bank of {result.Settings.Count} settings");
+        output.WriteLine();
+        output.WriteLine($"{"pos",4}  {"block",-16} {"status",-9} {"confidence",10}  {"bytes",5}  {"margin",6}  {"speed",6}  {"won by",-12} {"agree",5}");
+        foreach (var best in result.Best)
+        {
+            int agreeing = 0;
+            int readers = 0;
+            foreach (var candidate in result.Candidates)
+            {
+                if (candidate.Position != best.Position)
+                {
+                    continue;
+                }
+
+                readers++;
+                if (candidate.Status == best.Status && candidate.Payload.AsSpan().SequenceEqual(best.Payload.AsSpan()))
+                {
+                    agreeing++;
+                }
+            }
+
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"{best.Position,4}  {Truncate(best.Identity.Key, 16),-16} {Status(best.Status),-9} {best.Confidence,10:0.0000}  {best.Payload.Length,5}  {best.MinimumMargin,6:0.00}  {best.Speed,6:0.000}  {best.SettingName,-12} {agreeing,2}/{readers,-2}"));
+        }
+
+        int clean = result.Best.Count(b => b.Status == BlockStatus.Clean);
+        int failed = result.Best.Count(b => b.Status == BlockStatus.Failed);
+        int unchecked_ = result.Best.Count(b => b.Status == BlockStatus.Unchecked);
+        output.WriteLine();
+        output.WriteLine($"{result.Best.Count} positions: {clean} clean, {failed} failed, {unchecked_} unchecked.");
+    }
+
+    public static string Status(BlockStatus status) => status switch
+    {
+        BlockStatus.Clean => "clean",
+        BlockStatus.Failed => "failed",
+        _ => "unchecked",
+    };
+
+    public static void WriteJson(Stream stream, DecodeResult result)
+    {
+        ArgumentNullException.ThrowIfNull(result);
+        using var json = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true });
+        json.WriteStartObject();
+        json.WriteStartObject("capture");
+        json.WriteString("sha256", result.Capture.Sha256);
+        json.WriteNumber("sampleRate", result.Capture.SampleRate);
+        json.WriteNumber("channels", result.Capture.Channels);
+        json.WriteNumber("durationSeconds", result.Capture.DurationSeconds);
+        json.WriteEndObject();
+        json.WriteString("profile", result.Profile.Id);
+        json.WriteString("codeVersion", result.CodeVersion);
+        json.WriteStartArray("settings");
+        foreach (var s in result.Settings)
+        {
+            json.WriteStringValue(s.Describe());
+        }
+
+        json.WriteEndArray();
+        WriteBlocks(json, "blocks", result.Candidates);
+        WriteBlocks(json, "best", result.Best);
+        json.WriteEndObject();
+    }
+
+    private static void WriteBlocks(Utf8JsonWriter json, string name, IReadOnlyList<BlockCandidate> blocks)
+    {
+        json.WriteStartArray(name);
+        foreach (var b in blocks)
+        {
+            json.WriteStartObject();
+            json.WriteNumber("position", b.Position);
+            json.WriteString("setting", b.SettingName);
+            json.WriteString("status", Status(b.Status));
+            json.WriteNumber("confidence", Math.Round(b.Confidence, 6));
+            json.WriteString("payloadHex", b.PayloadHex);
+            json.WriteString("block", b.Identity.Key);
+            json.WriteNumber("startSeconds", Math.Round(b.StartSeconds, 6));
+            json.WriteNumber("endSeconds", Math.Round(b.EndSeconds, 6));
+            json.WriteNumber("minimumMargin", Math.Round(b.MinimumMargin, 4));
+            json.WriteNumber("meanMargin", Math.Round(b.MeanMargin, 4));
+            json.WriteNumber("ambiguousDecisions", b.AmbiguousDecisions);
+            json.WriteNumber("decisions", b.Decisions);
+            json.WriteNumber("framingErrors", b.FramingErrors);
+            json.WriteNumber("levelDbfs", Math.Round(b.LevelDbfs, 2));
+            json.WriteNumber("snrDb", Math.Round(b.SnrDb, 2));
+            json.WriteNumber("speed", Math.Round(b.Speed, 5));
+            json.WriteBoolean("truncated", b.Truncated);
+            json.WriteEndObject();
+        }
+
+        json.WriteEndArray();
+    }
+
+    private static string Truncate(string text, int width) => text.Length <= width ? text : text[..(width - 1)] + "…";
+}

@@ -1,0 +1,56 @@
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Synthesis;
+
+namespace TapeVault.Cli.Commands;
+
+/// <summary>
+/// tapevault demo [--out DIR]: synthesises the demo club's tapes with their damaged passes and decodes every pass
+/// with the default bank, so a new user sees the whole read path on embedded defaults.
+/// </summary>
+public static class DemoCommand
+{
+    public static int Run(CommandLine args, TextWriter output)
+    {
+        ArgumentNullException.ThrowIfNull(args);
+        ArgumentNullException.ThrowIfNull(output);
+        string folder = args.Value("out") ?? Path.Combine(Path.GetTempPath(), "tapevault-demo");
+        args.RejectUnknown();
+        Directory.CreateDirectory(folder);
+
+        output.WriteLine($"TapeVault demo: the {DemoTapes.Club} (a fictional club) digitises its tapes.");
+        output.WriteLine("Handle real tapes with care: see docs/capturing.md before playing old or mouldy cassettes.");
+        output.WriteLine();
+        foreach (var tape in DemoTapes.All)
+        {
+            var profile = ProfileCatalog.BuiltIn.Get(tape.ProfileId);
+            output.WriteLine($"== {tape.Accession}  {tape.Title}  [{profile.Id}]");
+            output.WriteLine($"   label: {tape.LabelText}");
+            for (int p = 0; p < tape.Passes.Count; p++)
+            {
+                var pass = tape.Passes[p];
+                string path = Path.Combine(folder, $"{tape.Accession.ToLowerInvariant()}-pass{p + 1}.wav");
+                CaptureSynthesizer.Write(path, profile, tape.Files, pass.Damage);
+                output.WriteLine();
+                output.WriteLine($"-- pass {p + 1}: {pass.Deck}. {pass.Description}");
+                output.WriteLine($"   {path}");
+                DecodeResult result;
+                using (var bar = new ProgressBar("decoding"))
+                {
+                    result = CaptureDecoder.Decode(path, profile, options: new DecodeOptions
+                    {
+                        Progress = new Progress<DecodeProgress>(x => bar.Report(x.Fraction)),
+                    });
+                }
+
+                DecodeReport.WriteTable(output, result);
+            }
+
+            output.WriteLine();
+        }
+
+        output.WriteLine($"Captures are in {folder}. Decode one yourself with:");
+        output.WriteLine($"  dotnet run --project src/TapeVault.Cli -- decode {Path.Combine(folder, "bhcc-0017-pass1.wav")} --profile orrin-80 --json out.json");
+        return 0;
+    }
+}

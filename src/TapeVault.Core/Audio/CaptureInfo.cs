@@ -1,0 +1,22 @@
+namespace TapeVault.Core.Audio;
+
+/// <summary>
+/// What TapeVault records about one WAV capture once it has been read to the end.
+/// </summary>
+/// <param name="Sha256">Lower-case hex SHA-256 of every byte of the file (equal to <c>sha256sum</c>).</param>
+/// <param name="FileBytes">Size of the file in bytes.</param>
+/// <param name="SampleRate">Sample frames per second.</param>
+/// <param name="Channels">Channels stored in the file (1 to 8).</param>
+/// <param name="BitsPerSample">Container bits per sample: 8, 16, 24, 32 or 64.</param>
+/// <param name="Encoding"><c>"pcm"</c> or <c>"float"</c>.</param>
+/// <param name="FrameCount">Whole sample frames actually present in the file.</param>
+/// <param name="DurationSeconds"><paramref name="FrameCount"/> divided by <paramref name="SampleRate"/>.</param>
+public sealed record CaptureInfo(
+    string Sha256,
+    long FileBytes,
+    int SampleRate,
+    int Channels,
+    int BitsPerSample,
+    string Encoding,
+    long FrameCount,
+    double DurationSeconds);

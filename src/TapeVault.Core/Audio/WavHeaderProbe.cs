@@ -1,0 +1,344 @@
+using System.Buffers.Binary;
+using System.Globalization;
+using System.Text;
+
+namespace TapeVault.Core.Audio;
+
+/// <summary>What the header probe found: the format fields and where the audio lies.</summary>
+/// <param name="Encoding"><c>"pcm"</c> or <c>"float"</c> (WAVE_FORMAT_EXTENSIBLE resolved to its sub-format).</param>
+/// <param name="Channels">Channels declared by the fmt chunk.</param>
+/// <param name="SampleRate">Sample rate declared by the fmt chunk.</param>
+/// <param name="BlockAlign">Bytes per sample frame.</param>
+/// <param name="BitsPerSample">Container bits per sample.</param>
+/// <param name="DataOffset">File offset of the first audio byte.</param>
+/// <param name="DeclaredDataBytes">Size of the data chunk as its header states it.</param>
+/// <param name="AvailableDataBytes">Audio bytes actually present in the file (the declared size, cut at the end of the file).</param>
+internal sealed record WavLayout(
+    string Encoding,
+    int Channels,
+    int SampleRate,
+    int BlockAlign,
+    int BitsPerSample,
+    long DataOffset,
+    long DeclaredDataBytes,
+    long AvailableDataBytes)
+{
+    /// <summary>Whole sample frames present in the file.</summary>
+    public long FrameCount => AvailableDataBytes / BlockAlign;
+
+    /// <summary>True when the header claims more audio than the file holds.</summary>
+    public bool Truncated => DeclaredDataBytes > AvailableDataBytes;
+}
+
+/// <summary>
+/// Walks the RIFF chunks of a WAV file the way NAudio's WaveFileReader does, so that everything the reader
+/// would reject, or would accept but TapeVault cannot decode, is reported in one plain sentence before NAudio
+/// opens the file. Reads only chunk headers and the fmt chunk.
+/// </summary>
+internal static class WavHeaderProbe
+{
+    /// <summary>Most channels a capture may have.</summary>
+    public const int MaxChannels = 8;
+
+    private const string Supported = "TapeVault reads PCM 8/16/24/32-bit and IEEE float";
+
+    private const ushort FormatPcm = 0x0001;
+    private const ushort FormatIeeeFloat = 0x0003;
+    private const ushort FormatExtensible = 0xFFFE;
+
+    // The tail that every KSDATAFORMAT_SUBTYPE GUID built from a format code shares:
+    // {XXXXXXXX-0000-0010-8000-00AA00389B71}, bytes 4..15 as stored in the file.
+    private static ReadOnlySpan<byte> SubFormatTail => [0x00, 0x00, 0x10, 0x00, 0x80, 0x00, 0x00, 0xAA, 0x00, 0x38, 0x9B, 0x71];
+
+    /// <summary>Reads the header from position 0 of <paramref name="stream"/> and validates it.</summary>
+    /// <exception cref="CaptureFormatException">The file is not a WAV file TapeVault can decode.</exception>
+    public static WavLayout Probe(Stream stream)
+    {
+        long fileLength = stream.Length;
+        if (fileLength == 0)
+        {
+            throw new CaptureFormatException("The file is empty (0 bytes), so it is not a WAV file.");
+        }
+
+        stream.Position = 0;
+        Span<byte> head = stackalloc byte[12];
+        int got = ReadFully(stream, head);
+        bool riff = got >= 4 && head[..4].SequenceEqual("RIFF"u8);
+        bool rf64 = got >= 4 && head[..4].SequenceEqual("RF64"u8);
+        if (!riff && !rf64)
+        {
+            throw new CaptureFormatException("The file is not a WAV file (no RIFF header).");
+        }
+
+        if (got < 12)
+        {
+            throw new CaptureFormatException($"The file is too short to be a WAV file ({fileLength} bytes; it ends inside the RIFF header).");
+        }
+
+        if (!head[8..12].SequenceEqual("WAVE"u8))
+        {
+            throw new CaptureFormatException($"The file is a RIFF file but not a WAV file (its form type is '{Printable(head[8..12])}', not 'WAVE').");
+        }
+
+        long riffSize = BinaryPrimitives.ReadUInt32LittleEndian(head[4..8]);
+        long rf64DataBytes = -1;
+        Span<byte> chunkHeader = stackalloc byte[8];
+        if (rf64)
+        {
+            Span<byte> ds64 = stackalloc byte[32];
+            if (ReadFully(stream, ds64) < 32 || !ds64[..4].SequenceEqual("ds64"u8))
+            {
+                throw new CaptureFormatException("The RF64 file has no valid ds64 chunk, so its size is unknown.");
+            }
+
+            int ds64Size = BinaryPrimitives.ReadInt32LittleEndian(ds64[4..8]);
+            riffSize = BinaryPrimitives.ReadInt64LittleEndian(ds64[8..16]);
+            rf64DataBytes = BinaryPrimitives.ReadInt64LittleEndian(ds64[16..24]);
+            if (ds64Size < 24 || riffSize < 0 || rf64DataBytes < 0)
+            {
+                throw new CaptureFormatException("The RF64 file has a damaged ds64 chunk, so its size is unknown.");
+            }
+
+            stream.Position = 8L + 12L + ds64Size;
+        }
+
+        FmtFields? fmt = null;
+        long dataOffset = -1;
+        long declaredData = 0;
+        long availableData = 0;
+
+        // Same walk as NAudio: stop at the RIFF end or the file end, whichever comes first, and need 8 bytes for a header.
+        long stop = Math.Min(riffSize + 8, fileLength);
+        long position = stream.Position;
+        while (position <= stop - 8)
+        {
+            stream.Position = position;
+            if (ReadFully(stream, chunkHeader) < 8)
+            {
+                break;
+            }
+
+            ReadOnlySpan<byte> id = chunkHeader[..4];
+            long size = BinaryPrimitives.ReadUInt32LittleEndian(chunkHeader[4..8]);
+            long body = position + 8;
+            long next;
+            if (id.SequenceEqual("data"u8))
+            {
+                dataOffset = body;
+                declaredData = rf64 ? rf64DataBytes : size;
+                availableData = Math.Min(declaredData, fileLength - body);
+                next = body + (rf64 ? declaredData : availableData);
+            }
+            else if (id.SequenceEqual("fmt "u8))
+            {
+                fmt = ReadFmt(stream, size, fileLength - body);
+                next = body + size;
+            }
+            else
+            {
+                if (size > fileLength - body)
+                {
+                    // NAudio stops here too: a damaged chunk at the end is tolerated if fmt and data came before it.
+                    break;
+                }
+
+                next = body + size;
+            }
+
+            if (size % 2 != 0 && next < fileLength)
+            {
+                stream.Position = next;
+                if (stream.ReadByte() == 0)
+                {
+                    next++;
+                }
+            }
+
+            if (next <= position)
+            {
+                break;
+            }
+
+            position = next;
+        }
+
+        if (fmt is null)
+        {
+            throw new CaptureFormatException("The WAV file has no format (fmt) chunk, so its encoding is unknown.");
+        }
+
+        FmtFields f = fmt.Value;
+        string encoding = ResolveEncoding(f);
+        if (f.Channels == 0)
+        {
+            throw new CaptureFormatException("The WAV file declares 0 audio channels.");
+        }
+
+        if (f.Channels > MaxChannels)
+        {
+            throw new CaptureFormatException($"The WAV file declares {f.Channels} audio channels; TapeVault reads at most {MaxChannels}.");
+        }
+
+        if (f.SampleRate == 0)
+        {
+            throw new CaptureFormatException("The WAV file declares a sample rate of 0 Hz.");
+        }
+
+        if (f.SampleRate > int.MaxValue)
+        {
+            throw new CaptureFormatException($"The WAV file declares an impossible sample rate of {f.SampleRate} Hz.");
+        }
+
+        int frameBytes = f.Channels * (f.BitsPerSample / 8);
+        if (f.BlockAlign != frameBytes)
+        {
+            throw new CaptureFormatException(
+                $"The WAV file's block alignment ({f.BlockAlign} bytes) does not match its {f.Channels} channel(s) of {f.BitsPerSample}-bit samples ({frameBytes} bytes).");
+        }
+
+        if (dataOffset < 0)
+        {
+            throw new CaptureFormatException("The WAV file has no data chunk, so it holds no audio samples.");
+        }
+
+        var layout = new WavLayout(encoding, f.Channels, (int)f.SampleRate, f.BlockAlign, f.BitsPerSample, dataOffset, declaredData, availableData);
+        if (layout.FrameCount == 0)
+        {
+            throw new CaptureFormatException(declaredData == 0
+                ? "The WAV file holds no audio samples."
+                : "The WAV file holds no audio samples (its data chunk is cut off before the first sample frame).");
+        }
+
+        return layout;
+    }
+
+    private static FmtFields ReadFmt(Stream stream, long size, long bytesLeft)
+    {
+        if (size < 16)
+        {
+            throw new CaptureFormatException($"The WAV file's format chunk is too short ({size} bytes; at least 16 are needed).");
+        }
+
+        if (size > bytesLeft)
+        {
+            throw new CaptureFormatException("The WAV file ends inside its format chunk.");
+        }
+
+        Span<byte> b = stackalloc byte[40];
+        int got = ReadFully(stream, b[..(int)Math.Min(size, 40)]);
+        ReadOnlySpan<byte> fmt = b[..got];
+        var fields = new FmtFields
+        {
+            FormatTag = BinaryPrimitives.ReadUInt16LittleEndian(fmt[0..2]),
+            Channels = BinaryPrimitives.ReadUInt16LittleEndian(fmt[2..4]),
+            SampleRate = BinaryPrimitives.ReadUInt32LittleEndian(fmt[4..8]),
+            BlockAlign = BinaryPrimitives.ReadUInt16LittleEndian(fmt[12..14]),
+            BitsPerSample = BinaryPrimitives.ReadUInt16LittleEndian(fmt[14..16]),
+            SubFormatKnown = false,
+        };
+
+        if (fields.FormatTag == FormatExtensible && got >= 40 && BinaryPrimitives.ReadUInt16LittleEndian(fmt[16..18]) >= 22)
+        {
+            fields.SubFormatKnown = true;
+            fields.SubFormat = new Guid(fmt[24..40]);
+            fields.SubFormatCode = fmt[28..40].SequenceEqual(SubFormatTail)
+                ? BinaryPrimitives.ReadUInt32LittleEndian(fmt[24..28])
+                : uint.MaxValue;
+        }
+
+        return fields;
+    }
+
+    private static string ResolveEncoding(FmtFields f)
+    {
+        long code = f.FormatTag;
+        string described = string.Create(CultureInfo.InvariantCulture, $"format code 0x{f.FormatTag:X4}{KnownName(f.FormatTag)}");
+        if (f.FormatTag == FormatExtensible)
+        {
+            if (!f.SubFormatKnown)
+            {
+                throw new CaptureFormatException(
+                    "The WAV file uses WAVE_FORMAT_EXTENSIBLE but its format chunk is too short to name the sub-format.");
+            }
+
+            code = f.SubFormatCode;
+            described = code <= ushort.MaxValue
+                ? string.Create(CultureInfo.InvariantCulture, $"WAVE_FORMAT_EXTENSIBLE with sub-format 0x{code:X4}{KnownName((ushort)code)}")
+                : $"WAVE_FORMAT_EXTENSIBLE with sub-format {{{f.SubFormat}}}";
+        }
+
+        if (code == FormatPcm)
+        {
+            if (f.BitsPerSample is 8 or 16 or 24 or 32)
+            {
+                return "pcm";
+            }
+
+            throw new CaptureFormatException($"The WAV file uses {f.BitsPerSample}-bit PCM, which is not supported; {Supported}.");
+        }
+
+        if (code == FormatIeeeFloat)
+        {
+            if (f.BitsPerSample is 32 or 64)
+            {
+                return "float";
+            }
+
+            throw new CaptureFormatException($"The WAV file uses {f.BitsPerSample}-bit IEEE float, which is not supported; {Supported} 32/64-bit.");
+        }
+
+        throw new CaptureFormatException($"The WAV file uses an unsupported encoding ({described}); {Supported}.");
+    }
+
+    private static string KnownName(ushort code) => code switch
+    {
+        0x0002 => ", Microsoft ADPCM",
+        0x0006 => ", A-law",
+        0x0007 => ", µ-law",
+        0x0011 => ", IMA ADPCM",
+        0x0031 => ", GSM 6.10",
+        0x0050 => ", MPEG",
+        0x0055 => ", MPEG Layer-3",
+        _ => string.Empty,
+    };
+
+    private static string Printable(ReadOnlySpan<byte> fourCc)
+    {
+        var text = new StringBuilder(fourCc.Length);
+        foreach (byte b in fourCc)
+        {
+            text.Append(b is >= 0x20 and < 0x7F ? (char)b : '?');
+        }
+
+        return text.ToString();
+    }
+
+    private static int ReadFully(Stream stream, Span<byte> buffer)
+    {
+        int total = 0;
+        while (total < buffer.Length)
+        {
+            int n = stream.Read(buffer[total..]);
+            if (n == 0)
+            {
+                break;
+            }
+
+            total += n;
+        }
+
+        return total;
+    }
+
+    private struct FmtFields
+    {
+        public ushort FormatTag;
+        public ushort Channels;
+        public uint SampleRate;
+        public ushort BlockAlign;
+        public ushort BitsPerSample;
+        public bool SubFormatKnown;
+        public Guid SubFormat;
+        public uint SubFormatCode;
+    }
+}

@@ -1,0 +1,106 @@
+namespace TapeVault.Core.Blocks;
+
+/// <summary>
+/// Gives every candidate of one capture its position on the tape. Settings read the same capture, so their blocks
+/// line up in time: a candidate whose header may be damaged takes the identity of a clean candidate that overlaps
+/// it, and candidates with one identity share a position. Copies of a block written k times share it too.
+/// </summary>
+public static class BlockPositioner
+{
+    public static List<BlockCandidate> Place(IReadOnlyList<BlockCandidate> candidates)
+    {
+        ArgumentNullException.ThrowIfNull(candidates);
+        var trusted = new List<BlockCandidate>();
+        foreach (var c in candidates)
+        {
+            if (c.Status == BlockStatus.Clean)
+            {
+                trusted.Add(c);
+            }
+        }
+
+        // Streams have no identity but their order: a stream block's key is the order of its start among all streams
+        // found, merged across settings by overlap in time.
+        var keyed = new List<(BlockCandidate Candidate, string Key)>(candidates.Count);
+        var streamAnchors = new List<(double Start, double End, string Key)>();
+        foreach (var c in candidates.OrderBy(c => c.StartSeconds))
+        {
+            string key;
+            bool hasHeader = c.Identity.FileName is not null || c.Identity.FileId is not null || c.Identity.BlockNumber is not null;
+            if (!hasHeader)
+            {
+                int anchor = streamAnchors.FindIndex(a => Overlaps(a.Start, a.End, c.StartSeconds, c.EndSeconds));
+                if (anchor < 0)
+                {
+                    streamAnchors.Add((c.StartSeconds, c.EndSeconds, $"#{streamAnchors.Count}"));
+                    anchor = streamAnchors.Count - 1;
+                }
+
+                key = streamAnchors[anchor].Key;
+            }
+            else if (c.Status == BlockStatus.Clean)
+            {
+                key = c.Identity.Key;
+            }
+            else
+            {
+                var overlapping = trusted.Find(t => Overlaps(t.StartSeconds, t.EndSeconds, c.StartSeconds, c.EndSeconds));
+                key = overlapping?.Identity.Key ?? c.Identity.Key;
+            }
+
+            keyed.Add((c, key));
+        }
+
+        // Positions in order of first appearance on the tape.
+        var order = new Dictionary<string, int>(StringComparer.Ordinal);
+        foreach (var (candidate, key) in keyed.OrderBy(k => k.Candidate.StartSeconds))
+        {
+            order.TryAdd(key, order.Count);
+        }
+
+        var placed = new List<BlockCandidate>(keyed.Count);
+        foreach (var (candidate, key) in keyed)
+        {
+            placed.Add(candidate with { Position = order[key] });
+        }
+
+        placed.Sort((a, b) => a.Position != b.Position ? a.Position.CompareTo(b.Position) : a.StartSeconds.CompareTo(b.StartSeconds));
+        return placed;
+    }
+
+    /// <summary>Per position: a clean candidate of highest confidence, else the most confident of any status.</summary>
+    public static List<BlockCandidate> BestPerPosition(IReadOnlyList<BlockCandidate> placed)
+    {
+        ArgumentNullException.ThrowIfNull(placed);
+        var best = new SortedDictionary<int, BlockCandidate>();
+        foreach (var c in placed)
+        {
+            if (!best.TryGetValue(c.Position, out var current) || Better(c, current))
+            {
+                best[c.Position] = c;
+            }
+        }
+
+        return [.. best.Values];
+    }
+
+    private static bool Better(BlockCandidate a, BlockCandidate b)
+    {
+        int rank(BlockCandidate c) => c.Status switch
+        {
+            BlockStatus.Clean => 2,
+            BlockStatus.Unchecked => 1,
+            _ => 0,
+        };
+
+        if (rank(a) != rank(b))
+        {
+            return rank(a) > rank(b);
+        }
+
+        return a.Confidence > b.Confidence || (a.Confidence == b.Confidence && a.Payload.Length > b.Payload.Length);
+    }
+
+    private static bool Overlaps(double aStart, double aEnd, double bStart, double bEnd) =>
+        aStart < bEnd && bStart < aEnd;
+}

@@ -1,0 +1,77 @@
+namespace TapeVault.Core.Blocks;
+
+/// <summary>
+/// The decisions (pulse class, bit, tone) that built one block. Each has a distance to its decision boundary and a
+/// residual from its nominal value, in the same units, and the distance from nominal to the boundary (its scale).
+/// The block's noise is estimated from all the residuals at once, which turns distances into error odds.
+/// </summary>
+public sealed class DecisionLog
+{
+    /// <summary>A decision closer to its boundary than this fraction of the nominal distance counts as ambiguous.</summary>
+    public const float AmbiguousMargin = 0.25f;
+
+    private float[] _distance = new float[1024];
+    private float[] _residual = new float[1024];
+    private float[] _scale = new float[1024];
+
+    public int Count { get; private set; }
+
+    public void Clear() => Count = 0;
+
+    public void Add(float distance, float residual, float scale)
+    {
+        if (Count == _distance.Length)
+        {
+            Array.Resize(ref _distance, Count * 2);
+            Array.Resize(ref _residual, Count * 2);
+            Array.Resize(ref _scale, Count * 2);
+        }
+
+        _distance[Count] = Math.Max(0f, distance);
+        _residual[Count] = Math.Abs(residual);
+        _scale[Count] = scale;
+        Count++;
+    }
+
+    /// <summary>Margin of decision i: 0 on the boundary, 1 at the nominal value or beyond.</summary>
+    public float Margin(int i) => _scale[i] > 0 ? Math.Min(1f, _distance[i] / _scale[i]) : 0f;
+
+    /// <summary>
+    /// The spread of the decisions: 1.4826 × the median absolute residual (a robust standard deviation), but never
+    /// below 2 % of the typical scale, so that a perfect synthetic block does not claim certainty it cannot have.
+    /// </summary>
+    public (double Sigma, double TypicalScale) NoiseEstimate()
+    {
+        if (Count == 0)
+        {
+            return (1, 1);
+        }
+
+        var residuals = new float[Count];
+        var scales = new float[Count];
+        Array.Copy(_residual, residuals, Count);
+        Array.Copy(_scale, scales, Count);
+        Array.Sort(residuals);
+        Array.Sort(scales);
+        double typicalScale = scales[Count / 2];
+        double sigma = 1.4826 * residuals[Count / 2];
+        return (Math.Max(sigma, 0.02 * typicalScale), typicalScale);
+    }
+
+    /// <summary>The probability that decision i is wrong, for Gaussian spread <paramref name="sigma"/>.</summary>
+    public double ErrorOdds(int i, double sigma) => GaussianTail(_distance[i] / sigma);
+
+    /// <summary>Q(x), the upper tail of the standard normal distribution (Abramowitz and Stegun 7.1.26 via erfc).</summary>
+    public static double GaussianTail(double x)
+    {
+        if (x < 0)
+        {
+            return 1 - GaussianTail(-x);
+        }
+
+        double z = x / Math.Sqrt(2);
+        double t = 1 / (1 + 0.3275911 * z);
+        double poly = t * (0.254829592 + t * (-0.284496736 + t * (1.421413741 + t * (-1.453152027 + t * 1.061405429))));
+        return 0.5 * poly * Math.Exp(-z * z);
+    }
+}

@@ -1,0 +1,283 @@
+using System.Numerics;
+using System.Runtime.Intrinsics;
+using TapeVault.Core.Dsp;
+using TapeVault.Core.Edges;
+
+namespace TapeVault.Core.Detection;
+
+/// <summary>
+/// Runs every detector setting over each chunk of samples in one pass. Eight settings share one
+/// <see cref="Vector256{T}"/>: lane i of every state vector belongs to setting i of the group, so one trip through
+/// the sample loop advances all eight. Only a switch of the Schmitt trigger (rare next to samples) leaves the
+/// vector path, to append an edge.
+/// </summary>
+public sealed class DetectorBank
+{
+    public const int LanesPerGroup = 8;
+
+    private readonly LaneGroup[] _groups;
+    private long _samplesSeen;
+
+    public DetectorBank(IReadOnlyList<DetectorSetting> settings, int sampleRate)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        if (settings.Count == 0)
+        {
+            throw new ArgumentException("A detector bank needs at least one setting.", nameof(settings));
+        }
+
+        if (sampleRate <= 0)
+        {
+            throw new ArgumentOutOfRangeException(nameof(sampleRate), sampleRate, "The sample rate must be positive.");
+        }
+
+        Settings = settings;
+        SampleRate = sampleRate;
+        int groupCount = (settings.Count + LanesPerGroup - 1) / LanesPerGroup;
+        _groups = new LaneGroup[groupCount];
+        for (int g = 0; g < groupCount; g++)
+        {
+            _groups[g] = LaneGroup.Create(settings, g * LanesPerGroup, sampleRate);
+        }
+    }
+
+    public IReadOnlyList<DetectorSetting> Settings { get; }
+
+    public int SampleRate { get; }
+
+    /// <summary>Samples processed so far; the index of the next sample.</summary>
+    public long SamplesSeen => _samplesSeen;
+
+    /// <summary>
+    /// Advances every setting over <paramref name="samples"/>. Edges are appended to <paramref name="edges"/>[setting]
+    /// (the caller clears them between chunks). When <paramref name="conditioned"/> is given, the conditioned
+    /// signal of each setting is written to it too (tone detectors read it).
+    /// </summary>
+    public void Process(ReadOnlySpan<float> samples, EdgeBuffer[] edges, float[][]? conditioned = null)
+    {
+        ArgumentNullException.ThrowIfNull(edges);
+        if (edges.Length < Settings.Count)
+        {
+            throw new ArgumentException("One edge buffer is needed per setting.", nameof(edges));
+        }
+
+        for (int g = 0; g < _groups.Length; g++)
+        {
+            _groups[g].Process(samples, _samplesSeen, edges, conditioned);
+        }
+
+        _samplesSeen += samples.Length;
+    }
+
+    /// <summary>Per-lane coefficients and state of eight settings.</summary>
+    private struct LaneGroup
+    {
+        private int _firstSetting;
+        private int _laneCount;
+
+        // Coefficients.
+        private Vector256<float> _hpA;
+        private Vector256<float> _b0, _b1, _b2, _a1, _a2;
+        private Vector256<float> _gainNow, _gainPrev;
+        private Vector256<float> _decay, _bandFixed, _bandRelative;
+        private int _countRising, _countFalling;
+
+        // State.
+        private float _previousSample;
+        private Vector256<float> _hpY, _z1, _z2, _previousFiltered, _previousConditioned, _envelope, _state, _lastCrossing;
+
+        public static LaneGroup Create(IReadOnlyList<DetectorSetting> settings, int first, int sampleRate)
+        {
+            int lanes = Math.Min(LanesPerGroup, settings.Count - first);
+            Span<float> hpA = stackalloc float[LanesPerGroup];
+            Span<float> b0 = stackalloc float[LanesPerGroup];
+            Span<float> b1 = stackalloc float[LanesPerGroup];
+            Span<float> b2 = stackalloc float[LanesPerGroup];
+            Span<float> a1 = stackalloc float[LanesPerGroup];
+            Span<float> a2 = stackalloc float[LanesPerGroup];
+            Span<float> gainNow = stackalloc float[LanesPerGroup];
+            Span<float> gainPrev = stackalloc float[LanesPerGroup];
+            Span<float> bandFixed = stackalloc float[LanesPerGroup];
+            Span<float> bandRelative = stackalloc float[LanesPerGroup];
+            int rising = 0, falling = 0;
+
+            // Unused lanes repeat the first setting and are never read.
+            for (int lane = 0; lane < LanesPerGroup; lane++)
+            {
+                var s = settings[first + Math.Min(lane, lanes - 1)];
+                double dt = 1.0 / sampleRate;
+                double rc = 1.0 / (2 * Math.PI * s.HighPassHz);
+                hpA[lane] = (float)(rc / (rc + dt));
+
+                var lowPass = s.LowPassHz is { } lp ? BiquadCoefficients.ButterworthLowPass(lp, sampleRate) : BiquadCoefficients.PassThrough;
+                (b0[lane], b1[lane], b2[lane], a1[lane], a2[lane]) = (lowPass.B0, lowPass.B1, lowPass.B2, lowPass.A1, lowPass.A2);
+
+                // Differentiation is scaled so that a 1 kHz tone keeps its amplitude, which keeps fixed thresholds meaningful.
+                float sign = s.Invert ? -1f : 1f;
+                if (s.Differentiate)
+                {
+                    float k = (float)(sampleRate / (2 * Math.PI * 1000.0));
+                    gainNow[lane] = sign * k;
+                    gainPrev[lane] = -sign * k;
+                }
+                else
+                {
+                    gainNow[lane] = sign;
+                    gainPrev[lane] = 0f;
+                }
+
+                if (s.ThresholdMode == ThresholdMode.Fixed)
+                {
+                    bandFixed[lane] = (float)s.Hysteresis;
+                    bandRelative[lane] = 0f;
+                }
+                else
+                {
+                    // A small floor keeps digital silence from toggling the trigger.
+                    bandFixed[lane] = 1e-4f;
+                    bandRelative[lane] = (float)s.Hysteresis;
+                }
+
+                if (lane < lanes)
+                {
+                    if (s.Edges != EdgeSelection.Falling)
+                    {
+                        rising |= 1 << lane;
+                    }
+
+                    if (s.Edges != EdgeSelection.Rising)
+                    {
+                        falling |= 1 << lane;
+                    }
+                }
+            }
+
+            // The envelope falls by 1/e in 20 ms: slow next to any bit cell, quick next to a level change between blocks.
+            float decay = (float)Math.Exp(-1.0 / (0.020 * sampleRate));
+            return new LaneGroup
+            {
+                _firstSetting = first,
+                _laneCount = lanes,
+                _hpA = Vector256.Create(hpA),
+                _b0 = Vector256.Create(b0),
+                _b1 = Vector256.Create(b1),
+                _b2 = Vector256.Create(b2),
+                _a1 = Vector256.Create(a1),
+                _a2 = Vector256.Create(a2),
+                _gainNow = Vector256.Create(gainNow),
+                _gainPrev = Vector256.Create(gainPrev),
+                _decay = Vector256.Create(decay),
+                _bandFixed = Vector256.Create(bandFixed),
+                _bandRelative = Vector256.Create(bandRelative),
+                _countRising = rising,
+                _countFalling = falling,
+                _state = Vector256.Create(-1f),
+                _lastCrossing = Vector256<float>.Zero,
+            };
+        }
+
+        public void Process(ReadOnlySpan<float> samples, long chunkStart, EdgeBuffer[] edges, float[][]? conditioned)
+        {
+            // State into locals so the JIT keeps it in registers for the loop.
+            float previousSample = _previousSample;
+            var hpY = _hpY;
+            var z1 = _z1;
+            var z2 = _z2;
+            var previousConditioned = _previousConditioned;
+            var previousFiltered = _previousFiltered;
+            var envelope = _envelope;
+            var state = _state;
+            var lastCrossing = _lastCrossing;
+            var hpA = _hpA;
+            var b0 = _b0;
+            var b1 = _b1;
+            var b2 = _b2;
+            var a1 = _a1;
+            var a2 = _a2;
+            var gainNow = _gainNow;
+            var gainPrev = _gainPrev;
+            var decay = _decay;
+            var bandFixed = _bandFixed;
+            var bandRelative = _bandRelative;
+            var zero = Vector256<float>.Zero;
+            var one = Vector256<float>.One;
+            var minusOne = Vector256.Create(-1f);
+            int lanes = _laneCount;
+            Span<float> crossingLanes = stackalloc float[LanesPerGroup];
+            Span<float> envelopeLanes = stackalloc float[LanesPerGroup];
+
+            for (int n = 0; n < samples.Length; n++)
+            {
+                float x = samples[n];
+
+                // One-pole DC block: y[n] = a·(y[n−1] + x[n] − x[n−1]).
+                hpY = hpA * (hpY + Vector256.Create(x - previousSample));
+                previousSample = x;
+
+                // Biquad low-pass, transposed direct form II.
+                var filtered = b0 * hpY + z1;
+                z1 = b1 * hpY - a1 * filtered + z2;
+                z2 = b2 * hpY - a2 * filtered;
+
+                // Optional derivative and polarity, folded into two gains per lane.
+                var c = gainNow * filtered + gainPrev * previousFiltered;
+                previousFiltered = filtered;
+
+                envelope = Vector256.Max(Vector256.Abs(c), envelope * decay);
+                var band = bandFixed + bandRelative * envelope;
+
+                // Remember where the signal last crossed zero, interpolated between samples.
+                var crossed = Vector256.Xor(Vector256.LessThan(previousConditioned, zero), Vector256.LessThan(c, zero));
+                var crossingTime = Vector256.Create((float)(n - 1)) + previousConditioned / (previousConditioned - c);
+                lastCrossing = Vector256.ConditionalSelect(crossed, crossingTime, lastCrossing);
+                previousConditioned = c;
+
+                if (conditioned is not null)
+                {
+                    for (int lane = 0; lane < lanes; lane++)
+                    {
+                        conditioned[_firstSetting + lane][n] = c.GetElement(lane);
+                    }
+                }
+
+                // Schmitt trigger: low goes high above +band, high goes low below −band.
+                var goUp = Vector256.BitwiseAnd(Vector256.LessThan(state, zero), Vector256.GreaterThan(c, band));
+                var goDown = Vector256.BitwiseAnd(Vector256.GreaterThan(state, zero), Vector256.LessThan(c, -band));
+                uint upBits = goUp.ExtractMostSignificantBits();
+                uint downBits = goDown.ExtractMostSignificantBits();
+                if ((upBits | downBits) == 0)
+                {
+                    continue;
+                }
+
+                state = Vector256.ConditionalSelect(goUp, one, Vector256.ConditionalSelect(goDown, minusOne, state));
+                lastCrossing.CopyTo(crossingLanes);
+                envelope.CopyTo(envelopeLanes);
+                uint counted = (upBits & (uint)_countRising) | (downBits & (uint)_countFalling);
+                counted &= (1u << lanes) - 1;
+                while (counted != 0)
+                {
+                    int lane = BitOperations.TrailingZeroCount(counted);
+                    counted &= counted - 1;
+                    edges[_firstSetting + lane].Add(new Edge(
+                        chunkStart + crossingLanes[lane],
+                        (upBits & (1u << lane)) != 0,
+                        envelopeLanes[lane]));
+                }
+            }
+
+            // Crossing times are kept relative to the chunk start; move them to the next chunk's frame.
+            lastCrossing -= Vector256.Create((float)samples.Length);
+
+            _previousSample = previousSample;
+            _hpY = hpY;
+            _z1 = z1;
+            _z2 = z2;
+            _previousConditioned = previousConditioned;
+            _previousFiltered = previousFiltered;
+            _envelope = envelope;
+            _state = state;
+            _lastCrossing = lastCrossing;
+        }
+    }
+}

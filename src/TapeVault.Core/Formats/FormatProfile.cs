@@ -1,0 +1,134 @@
+namespace TapeVault.Core.Formats;
+
+public enum FormatFamily
+{
+    /// <summary>Bits are coded as lengths of whole cycles (pulse classes).</summary>
+    PulseWidth,
+
+    /// <summary>Bits are coded as tones (frequency-shift keying), framed like a serial line.</summary>
+    Fsk,
+
+    /// <summary>Every bit cell has a mid-cell transition whose direction gives the bit (Manchester).</summary>
+    Biphase,
+}
+
+public enum BitOrder
+{
+    LsbFirst,
+    MsbFirst,
+}
+
+public enum Parity
+{
+    None,
+    Even,
+    Odd,
+}
+
+public enum FieldRole
+{
+    /// <summary>Carried but not interpreted.</summary>
+    Other,
+
+    /// <summary>The name of the file the block belongs to (ASCII, padded with spaces or zeros).</summary>
+    FileName,
+
+    /// <summary>A number identifying the file.</summary>
+    FileId,
+
+    /// <summary>The block's number within its file.</summary>
+    BlockNumber,
+
+    /// <summary>The length of the payload in bytes.</summary>
+    PayloadLength,
+}
+
+public enum ChecksumCoverage
+{
+    HeaderAndPayload,
+    Payload,
+}
+
+/// <summary>A named pulse class: a whole cycle of a nominal duration.</summary>
+public sealed record PulseClass(string Name, double Seconds);
+
+public sealed record PulseWidthEncoding(
+    IReadOnlyList<PulseClass> Classes,
+    IReadOnlyList<string> Zero,
+    IReadOnlyList<string> One,
+    string LeadInClass,
+    int LeadInMinimum,
+    IReadOnlyList<string> Sync);
+
+public sealed record FskEncoding(double MarkHz, double SpaceHz, double Baud, double LeadInMinimumSeconds)
+{
+    public double BitSeconds => 1.0 / Baud;
+}
+
+public sealed record BiphaseEncoding(double CellSeconds, bool OneIsFalling, int LeadInMinimumBits, string SyncBits);
+
+public sealed record ByteFraming(int DataBits, BitOrder BitOrder, string StartBits, string StopBits, Parity Parity)
+{
+    public int BitsPerByte => StartBits.Length + DataBits + (Parity == Parity.None ? 0 : 1) + StopBits.Length;
+}
+
+public sealed record HeaderField(string Name, int Bytes, FieldRole Role, bool BigEndian);
+
+public sealed record ChecksumSpec(string Algorithm, ChecksumCoverage Covers, bool BigEndian);
+
+/// <summary>
+/// How bytes make blocks. A layout without header, fixed payload length or checksum is a stream: everything
+/// between two lead-ins is one unchecked block.
+/// </summary>
+public sealed record BlockLayout(
+    IReadOnlyList<HeaderField> Header,
+    int? PayloadBytes,
+    int MaximumPayloadBytes,
+    ChecksumSpec? Checksum,
+    int Copies)
+{
+    public bool IsStream => Header.Count == 0 && PayloadBytes is null && Checksum is null;
+
+    public int HeaderBytes
+    {
+        get
+        {
+            int total = 0;
+            foreach (var headerField in Header)
+            {
+                total += headerField.Bytes;
+            }
+
+            return total;
+        }
+    }
+
+    public HeaderField? FieldWithRole(FieldRole role)
+    {
+        foreach (var headerField in Header)
+        {
+            if (headerField.Role == role)
+            {
+                return headerField;
+            }
+        }
+
+        return null;
+    }
+}
+
+/// <summary>How a writer lays the format down on tape; the synthesiser follows it.</summary>
+public sealed record RecordingLayout(double LeadInSeconds, double BlockGapSeconds, double TrailerSeconds);
+
+/// <summary>A complete, validated format profile. Build one with <see cref="ProfileLoader"/>.</summary>
+public sealed record FormatProfile(
+    string Id,
+    string Name,
+    string Description,
+    FormatFamily Family,
+    PulseWidthEncoding? PulseWidth,
+    FskEncoding? Fsk,
+    BiphaseEncoding? Biphase,
+    ByteFraming Framing,
+    BlockLayout Layout,
+    RecordingLayout Recording);

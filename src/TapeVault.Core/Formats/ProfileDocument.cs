@@ -1,0 +1,105 @@
+using System.Text.Json.Serialization;
+
+namespace TapeVault.Core.Formats;
+
+// The JSON shape of a profile file, as written by people. Every property is nullable so that the loader can say
+// which field is missing instead of failing inside the serializer. See docs/profiles.md.
+internal sealed class ProfileDocument
+{
+    public string? Id { get; set; }
+    public string? Name { get; set; }
+    public string? Description { get; set; }
+    public string? Family { get; set; }
+    public PulseWidthDocument? PulseWidth { get; set; }
+    public FskDocument? Fsk { get; set; }
+    public BiphaseDocument? Biphase { get; set; }
+    public FramingDocument? Framing { get; set; }
+    public LayoutDocument? Layout { get; set; }
+    public RecordingDocument? Recording { get; set; }
+}
+
+internal sealed class PulseClassDocument
+{
+    public string? Name { get; set; }
+    public double? Microseconds { get; set; }
+}
+
+internal sealed class LeadInDocument
+{
+    public string? Class { get; set; }
+    public int? MinimumCount { get; set; }
+}
+
+internal sealed class PulseWidthDocument
+{
+    public List<PulseClassDocument?>? Classes { get; set; }
+    public List<string?>? Zero { get; set; }
+    public List<string?>? One { get; set; }
+    public LeadInDocument? LeadIn { get; set; }
+    public List<string?>? Sync { get; set; }
+}
+
+internal sealed class FskDocument
+{
+    public double? MarkHz { get; set; }
+    public double? SpaceHz { get; set; }
+    public double? Baud { get; set; }
+    public double? LeadInMinimumSeconds { get; set; }
+}
+
+internal sealed class BiphaseDocument
+{
+    public double? CellMicroseconds { get; set; }
+    public string? OneIs { get; set; }
+    public int? LeadInMinimumBits { get; set; }
+    public string? SyncBits { get; set; }
+}
+
+internal sealed class FramingDocument
+{
+    public int? DataBits { get; set; }
+    public string? BitOrder { get; set; }
+    public string? StartBits { get; set; }
+    public string? StopBits { get; set; }
+    public string? Parity { get; set; }
+}
+
+internal sealed class HeaderFieldDocument
+{
+    public string? Name { get; set; }
+    public int? Bytes { get; set; }
+    public string? Role { get; set; }
+    public string? Endian { get; set; }
+}
+
+internal sealed class ChecksumDocument
+{
+    public string? Algorithm { get; set; }
+    public string? Covers { get; set; }
+    public string? Endian { get; set; }
+}
+
+internal sealed class LayoutDocument
+{
+    public List<HeaderFieldDocument?>? Header { get; set; }
+    public int? PayloadBytes { get; set; }
+    public int? MaximumPayloadBytes { get; set; }
+    public ChecksumDocument? Checksum { get; set; }
+    public int? Copies { get; set; }
+}
+
+internal sealed class RecordingDocument
+{
+    public double? LeadInSeconds { get; set; }
+    public double? BlockGapSeconds { get; set; }
+    public double? TrailerSeconds { get; set; }
+}
+
+[JsonSourceGenerationOptions(
+    PropertyNamingPolicy = JsonKnownNamingPolicy.CamelCase,
+    UnmappedMemberHandling = JsonUnmappedMemberHandling.Disallow,
+    ReadCommentHandling = System.Text.Json.JsonCommentHandling.Skip,
+    AllowTrailingCommas = true,
+    MaxDepth = 16)]
+[JsonSerializable(typeof(ProfileDocument))]
+internal sealed partial class ProfileJsonContext : JsonSerializerContext;

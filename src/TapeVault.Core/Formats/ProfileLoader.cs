@@ -1,0 +1,466 @@
+using System.Text.Json;
+using TapeVault.Core.Checksums;
+
+namespace TapeVault.Core.Formats;
+
+/// <summary>Reads a profile from JSON and validates it; a profile that cannot work is never built.</summary>
+public static class ProfileLoader
+{
+    /// <summary>Profile files larger than this are refused before parsing.</summary>
+    public const int MaximumFileBytes = 256 * 1024;
+
+    /// <summary>No block of any format we know needs more; larger values are typing mistakes.</summary>
+    public const int MaximumPayloadLimit = 1 << 20;
+
+    public static FormatProfile Load(string path)
+    {
+        var info = new FileInfo(path);
+        if (!info.Exists)
+        {
+            throw new ProfileException($"The profile file does not exist: {path}.");
+        }
+
+        if (info.Length > MaximumFileBytes)
+        {
+            throw new ProfileException($"The profile file {path} is {info.Length} bytes; profiles are at most {MaximumFileBytes} bytes.");
+        }
+
+        return Parse(File.ReadAllText(path), Path.GetFileName(path));
+    }
+
+    public static FormatProfile Parse(string json, string source)
+    {
+        ArgumentNullException.ThrowIfNull(json);
+        if (json.Length > MaximumFileBytes)
+        {
+            throw new ProfileException($"Profile {source}: the text is longer than {MaximumFileBytes} characters.");
+        }
+
+        ProfileDocument? document;
+        try
+        {
+            document = JsonSerializer.Deserialize(json, ProfileJsonContext.Default.ProfileDocument);
+        }
+        catch (JsonException e)
+        {
+            string where = e.Path is { Length: > 1 } p ? $" at {p.TrimStart('$', '.')}" : string.Empty;
+            string line = e.LineNumber is { } l ? $" (line {l + 1})" : string.Empty;
+            string reason = e.Message.Contains("could not be mapped", StringComparison.Ordinal)
+                ? "an unknown field"
+                : "invalid JSON or a value of the wrong type";
+            throw new ProfileException($"Profile {source}: {reason}{where}{line}.", e);
+        }
+
+        if (document is null)
+        {
+            throw new ProfileException($"Profile {source}: the file holds no profile object.");
+        }
+
+        return new Validator(source).Build(document);
+    }
+
+    private sealed class Validator(string source)
+    {
+        private string _label = source;
+
+        public FormatProfile Build(ProfileDocument d)
+        {
+            string id = Required(d.Id, "id");
+            if (id.Length > 64 || !IsIdentifier(id))
+            {
+                Fail("id", "must be 1 to 64 lower-case letters, digits and hyphens");
+            }
+
+            _label = $"'{id}'";
+            string name = Required(d.Name, "name");
+            string family = Required(d.Family, "family");
+            var framing = Framing(d.Framing);
+            var layout = Layout(d.Layout);
+            var recording = Recording(d.Recording);
+
+            switch (family)
+            {
+                case "pulse-width":
+                    return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.PulseWidth,
+                        PulseWidth(d.PulseWidth), null, null, framing, layout, recording);
+                case "fsk":
+                    return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Fsk,
+                        null, Fsk(d.Fsk), null, framing, layout, recording);
+                case "biphase":
+                    return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Biphase,
+                        null, null, Biphase(d.Biphase), framing, layout, recording);
+                default:
+                    Fail("family", $"must be pulse-width, fsk or biphase, not '{family}'");
+                    return null!;
+            }
+        }
+
+        private PulseWidthEncoding PulseWidth(PulseWidthDocument? d)
+        {
+            if (d is null)
+            {
+                Fail("pulseWidth", "is required for the pulse-width family");
+            }
+
+            if (d!.Classes is not { Count: > 0 } classDocs)
+            {
+                Fail("pulseWidth.classes", "must list at least two pulse classes");
+                return null!;
+            }
+
+            var classes = new List<PulseClass>();
+            for (int i = 0; i < classDocs.Count; i++)
+            {
+                string path = $"pulseWidth.classes[{i}]";
+                var c = classDocs[i] ?? throw Error(path, "must be an object");
+                string className = Required(c.Name, path + ".name");
+                double us = Required(c.Microseconds, path + ".microseconds");
+                if (!(us > 0) || us > 1_000_000)
+                {
+                    Fail(path + ".microseconds", $"must be above 0 and at most 1 000 000, not {us}");
+                }
+
+                foreach (var other in classes)
+                {
+                    if (other.Name == className)
+                    {
+                        Fail(path + ".name", $"repeats the class name '{className}'");
+                    }
+                }
+
+                classes.Add(new PulseClass(className, us * 1e-6));
+            }
+
+            if (classes.Count < 2)
+            {
+                Fail("pulseWidth.classes", "must list at least two pulse classes");
+            }
+
+            classes.Sort((a, b) => a.Seconds.CompareTo(b.Seconds));
+            for (int i = 1; i < classes.Count; i++)
+            {
+                // Boundaries sit at the geometric mean; closer than 25 % apart, ordinary wow and jitter would mix them up.
+                if (classes[i].Seconds < classes[i - 1].Seconds * 1.25)
+                {
+                    Fail("pulseWidth.classes", $"'{classes[i - 1].Name}' and '{classes[i].Name}' overlap: neighbouring classes must differ by at least 25 %");
+                }
+            }
+
+            var zero = ClassSequence(d.Zero, "pulseWidth.zero", classes);
+            var one = ClassSequence(d.One, "pulseWidth.one", classes);
+            if (zero.SequenceEqual(one) || IsPrefix(zero, one) || IsPrefix(one, zero))
+            {
+                Fail("pulseWidth.one", "must differ from pulseWidth.zero, and neither may begin the other");
+            }
+
+            var leadIn = d.LeadIn ?? throw Error("pulseWidth.leadIn", "is required");
+            string leadClass = Required(leadIn.Class, "pulseWidth.leadIn.class");
+            if (!classes.Exists(c => c.Name == leadClass))
+            {
+                Fail("pulseWidth.leadIn.class", $"names an unknown pulse class '{leadClass}'");
+            }
+
+            int minimum = Required(leadIn.MinimumCount, "pulseWidth.leadIn.minimumCount");
+            if (minimum < 8 || minimum > 100_000)
+            {
+                Fail("pulseWidth.leadIn.minimumCount", $"must be between 8 and 100 000, not {minimum}");
+            }
+
+            var sync = ClassSequence(d.Sync, "pulseWidth.sync", classes);
+            return new PulseWidthEncoding(classes, zero, one, leadClass, minimum, sync);
+        }
+
+        private static bool IsPrefix(IReadOnlyList<string> a, IReadOnlyList<string> b)
+        {
+            if (a.Count > b.Count)
+            {
+                return false;
+            }
+
+            for (int i = 0; i < a.Count; i++)
+            {
+                if (a[i] != b[i])
+                {
+                    return false;
+                }
+            }
+
+            return true;
+        }
+
+        private List<string> ClassSequence(List<string?>? items, string path, List<PulseClass> classes)
+        {
+            if (items is not { Count: > 0 })
+            {
+                Fail(path, "must list one or more pulse class names");
+                return null!;
+            }
+
+            if (items.Count > 64)
+            {
+                Fail(path, "may list at most 64 classes");
+            }
+
+            var result = new List<string>();
+            for (int i = 0; i < items.Count; i++)
+            {
+                string item = items[i] ?? throw Error($"{path}[{i}]", "must be a class name");
+                if (!classes.Exists(c => c.Name == item))
+                {
+                    Fail($"{path}[{i}]", $"names an unknown pulse class '{item}'");
+                }
+
+                result.Add(item);
+            }
+
+            return result;
+        }
+
+        private FskEncoding Fsk(FskDocument? d)
+        {
+            if (d is null)
+            {
+                Fail("fsk", "is required for the fsk family");
+            }
+
+            double mark = Required(d!.MarkHz, "fsk.markHz");
+            double space = Required(d.SpaceHz, "fsk.spaceHz");
+            double baud = Required(d.Baud, "fsk.baud");
+            Positive(mark, "fsk.markHz", 20_000);
+            Positive(space, "fsk.spaceHz", 20_000);
+            Positive(baud, "fsk.baud", 20_000);
+            if (Math.Abs(mark - space) < baud)
+            {
+                Fail("fsk.spaceHz", "must be at least one baud away from fsk.markHz, or the tones cannot be told apart within a bit");
+            }
+
+            if (Math.Min(mark, space) < baud)
+            {
+                Fail("fsk.baud", "must not exceed the lower tone's frequency: a bit needs at least one whole cycle");
+            }
+
+            double leadIn = d.LeadInMinimumSeconds ?? 0.1;
+            if (!(leadIn >= 0) || leadIn > 60)
+            {
+                Fail("fsk.leadInMinimumSeconds", $"must be between 0 and 60, not {leadIn}");
+            }
+
+            return new FskEncoding(mark, space, baud, leadIn);
+        }
+
+        private BiphaseEncoding Biphase(BiphaseDocument? d)
+        {
+            if (d is null)
+            {
+                Fail("biphase", "is required for the biphase family");
+            }
+
+            double cell = Required(d!.CellMicroseconds, "biphase.cellMicroseconds");
+            Positive(cell, "biphase.cellMicroseconds", 1_000_000);
+            string oneIs = Required(d.OneIs, "biphase.oneIs");
+            if (oneIs is not ("falling" or "rising"))
+            {
+                Fail("biphase.oneIs", $"must be 'falling' or 'rising' (the mid-cell transition that means 1), not '{oneIs}'");
+            }
+
+            int leadIn = Required(d.LeadInMinimumBits, "biphase.leadInMinimumBits");
+            if (leadIn < 8 || leadIn > 100_000)
+            {
+                Fail("biphase.leadInMinimumBits", $"must be between 8 and 100 000, not {leadIn}");
+            }
+
+            string sync = Required(d.SyncBits, "biphase.syncBits");
+            if (sync.Length is 0 or > 64 || sync.Any(ch => ch is not ('0' or '1')) || !sync.Contains('1', StringComparison.Ordinal))
+            {
+                Fail("biphase.syncBits", "must be 1 to 64 characters of 0 and 1 with at least one 1 (the lead-in is zeros)");
+            }
+
+            return new BiphaseEncoding(cell * 1e-6, oneIs == "falling", leadIn, sync);
+        }
+
+        private ByteFraming Framing(FramingDocument? d)
+        {
+            if (d is null)
+            {
+                Fail("framing", "is required");
+            }
+
+            int bits = Required(d!.DataBits, "framing.dataBits");
+            if (bits is < 5 or > 8)
+            {
+                Fail("framing.dataBits", $"must be between 5 and 8, not {bits}");
+            }
+
+            var order = (d.BitOrder ?? "lsb-first") switch
+            {
+                "lsb-first" => BitOrder.LsbFirst,
+                "msb-first" => BitOrder.MsbFirst,
+                var other => throw Error("framing.bitOrder", $"must be lsb-first or msb-first, not '{other}'"),
+            };
+            string start = BitString(d.StartBits ?? string.Empty, "framing.startBits");
+            string stop = BitString(d.StopBits ?? string.Empty, "framing.stopBits");
+            var parity = (d.Parity ?? "none") switch
+            {
+                "none" => Parity.None,
+                "even" => Parity.Even,
+                "odd" => Parity.Odd,
+                var other => throw Error("framing.parity", $"must be none, even or odd, not '{other}'"),
+            };
+            return new ByteFraming(bits, order, start, stop, parity);
+        }
+
+        private string BitString(string bits, string path)
+        {
+            if (bits.Length > 4 || bits.Any(ch => ch is not ('0' or '1')))
+            {
+                Fail(path, $"must be up to four characters of 0 and 1, not '{bits}'");
+            }
+
+            return bits;
+        }
+
+        private BlockLayout Layout(LayoutDocument? d)
+        {
+            if (d is null)
+            {
+                Fail("layout", "is required (an empty object {} means a stream with no blocks)");
+            }
+
+            var header = new List<HeaderField>();
+            var fields = d!.Header ?? [];
+            if (fields.Count > 32)
+            {
+                Fail("layout.header", "may have at most 32 fields");
+            }
+
+            for (int i = 0; i < fields.Count; i++)
+            {
+                string path = $"layout.header[{i}]";
+                var f = fields[i] ?? throw Error(path, "must be an object");
+                string fieldName = Required(f.Name, path + ".name");
+                int bytes = Required(f.Bytes, path + ".bytes");
+                var role = (f.Role ?? "other") switch
+                {
+                    "other" => FieldRole.Other,
+                    "file-name" => FieldRole.FileName,
+                    "file-id" => FieldRole.FileId,
+                    "block-number" => FieldRole.BlockNumber,
+                    "payload-length" => FieldRole.PayloadLength,
+                    var other => throw Error(path + ".role", $"must be other, file-name, file-id, block-number or payload-length, not '{other}'"),
+                };
+                int maxBytes = role is FieldRole.FileName or FieldRole.Other ? 64 : 4;
+                if (bytes < 1 || bytes > maxBytes)
+                {
+                    Fail(path + ".bytes", $"must be between 1 and {maxBytes} for role {f.Role ?? "other"}, not {bytes}");
+                }
+
+                if (role != FieldRole.Other && header.Exists(h => h.Role == role))
+                {
+                    Fail(path + ".role", $"repeats the role '{f.Role}'");
+                }
+
+                bool big = (f.Endian ?? "little") switch
+                {
+                    "little" => false,
+                    "big" => true,
+                    var other => throw Error(path + ".endian", $"must be little or big, not '{other}'"),
+                };
+                header.Add(new HeaderField(fieldName, bytes, role, big));
+            }
+
+            int? payload = d.PayloadBytes;
+            bool hasLengthField = header.Exists(h => h.Role == FieldRole.PayloadLength);
+            if (payload is { } p && (p < 1 || p > MaximumPayloadLimit))
+            {
+                Fail("layout.payloadBytes", $"must be between 1 and {MaximumPayloadLimit}, not {p}");
+            }
+
+            if (payload is not null && hasLengthField)
+            {
+                Fail("layout.payloadBytes", "must not be given when a header field has the role payload-length");
+            }
+
+            int maximum = d.MaximumPayloadBytes ?? (hasLengthField ? 65535 : payload ?? 65535);
+            if (maximum < 1 || maximum > MaximumPayloadLimit)
+            {
+                Fail("layout.maximumPayloadBytes", $"must be between 1 and {MaximumPayloadLimit}, not {maximum}");
+            }
+
+            ChecksumSpec? checksum = null;
+            if (d.Checksum is { } c)
+            {
+                string algorithm = Required(c.Algorithm, "layout.checksum.algorithm");
+                if (!ChecksumCatalog.TryGet(algorithm, out _))
+                {
+                    Fail("layout.checksum.algorithm", $"names an unknown checksum '{algorithm}' (known: {string.Join(", ", ChecksumCatalog.Names)})");
+                }
+
+                var covers = (c.Covers ?? "header-and-payload") switch
+                {
+                    "header-and-payload" => ChecksumCoverage.HeaderAndPayload,
+                    "payload" => ChecksumCoverage.Payload,
+                    var other => throw Error("layout.checksum.covers", $"must be header-and-payload or payload, not '{other}'"),
+                };
+                bool big = (c.Endian ?? "big") switch
+                {
+                    "little" => false,
+                    "big" => true,
+                    var other => throw Error("layout.checksum.endian", $"must be little or big, not '{other}'"),
+                };
+                checksum = new ChecksumSpec(algorithm, covers, big);
+            }
+
+            if (header.Count > 0 && payload is null && !hasLengthField)
+            {
+                Fail("layout.payloadBytes", "is required when the header has no payload-length field");
+            }
+
+            if (header.Count == 0 && checksum is not null && payload is null)
+            {
+                Fail("layout.payloadBytes", "is required when blocks have a checksum but no header");
+            }
+
+            int copies = d.Copies ?? 1;
+            if (copies is < 1 or > 8)
+            {
+                Fail("layout.copies", $"must be between 1 and 8, not {copies}");
+            }
+
+            return new BlockLayout(header, payload, maximum, checksum, copies);
+        }
+
+        private RecordingLayout Recording(RecordingDocument? d)
+        {
+            double leadIn = d?.LeadInSeconds ?? 2.0;
+            double gap = d?.BlockGapSeconds ?? 0.5;
+            double trailer = d?.TrailerSeconds ?? 0.5;
+            Positive(leadIn, "recording.leadInSeconds", 600);
+            Positive(gap, "recording.blockGapSeconds", 600);
+            Positive(trailer, "recording.trailerSeconds", 600);
+            return new RecordingLayout(leadIn, gap, trailer);
+        }
+
+        private void Positive(double value, string path, double maximum)
+        {
+            if (!(value > 0) || value > maximum)
+            {
+                Fail(path, $"must be above 0 and at most {maximum}, not {value}");
+            }
+        }
+
+        private T Required<T>(T? value, string path)
+            where T : struct =>
+            value ?? throw Error(path, "is required");
+
+        private string Required(string? value, string path) =>
+            string.IsNullOrWhiteSpace(value) ? throw Error(path, "is required") : value;
+
+        private static bool IsIdentifier(string id) =>
+            id.Length > 0 && id.All(ch => ch is (>= 'a' and <= 'z') or (>= '0' and <= '9') or '-');
+
+        private ProfileException Error(string path, string message) => new($"Profile {_label}: {path} {message}.");
+
+        [System.Diagnostics.CodeAnalysis.DoesNotReturn]
+        private void Fail(string path, string message) => throw Error(path, message);
+    }
+}

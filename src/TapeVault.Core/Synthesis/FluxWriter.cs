@@ -1,0 +1,210 @@
+using TapeVault.Core.Formats;
+
+namespace TapeVault.Core.Synthesis;
+
+/// <summary>
+/// Writes blocks to "tape" as a machine would: the flux reversal times, in seconds of tape at nominal speed, for a
+/// square-wave recording. Lazily enumerated, so an hour of tape never sits in memory.
+/// </summary>
+public static class FluxWriter
+{
+    public static IEnumerable<double> Reversals(FormatProfile profile, IReadOnlyList<byte[]> blocks)
+    {
+        ArgumentNullException.ThrowIfNull(profile);
+        ArgumentNullException.ThrowIfNull(blocks);
+        return profile.Family switch
+        {
+            FormatFamily.PulseWidth => PulseWidth(profile, blocks),
+            FormatFamily.Fsk => Fsk(profile, blocks),
+            FormatFamily.Biphase => Biphase(profile, blocks),
+            _ => throw new ArgumentOutOfRangeException(nameof(profile)),
+        };
+    }
+
+    /// <summary>The bits of one byte framed by the profile: start bits, data bits in order, parity, stop bits.</summary>
+    public static IEnumerable<bool> FramedBits(ByteFraming framing, byte value)
+    {
+        ArgumentNullException.ThrowIfNull(framing);
+        foreach (char c in framing.StartBits)
+        {
+            yield return c == '1';
+        }
+
+        int ones = 0;
+        for (int i = 0; i < framing.DataBits; i++)
+        {
+            int shift = framing.BitOrder == BitOrder.LsbFirst ? i : framing.DataBits - 1 - i;
+            bool bit = ((value >> shift) & 1) != 0;
+            ones += bit ? 1 : 0;
+            yield return bit;
+        }
+
+        if (framing.Parity != Parity.None)
+        {
+            bool even = (ones & 1) == 0;
+            yield return framing.Parity == Parity.Even ? !even : even;
+        }
+
+        foreach (char c in framing.StopBits)
+        {
+            yield return c == '1';
+        }
+    }
+
+    private static IEnumerable<double> PulseWidth(FormatProfile profile, IReadOnlyList<byte[]> blocks)
+    {
+        var encoding = profile.PulseWidth!;
+        var byName = encoding.Classes.ToDictionary(c => c.Name, c => c.Seconds, StringComparer.Ordinal);
+        double leadIn = byName[encoding.LeadInClass];
+        double t = 0;
+        int leadInCycles = Math.Max(encoding.LeadInMinimum * 2, (int)(profile.Recording.LeadInSeconds / leadIn));
+        int gapCycles = Math.Max(encoding.LeadInMinimum * 2, (int)(profile.Recording.BlockGapSeconds / leadIn));
+        bool first = true;
+        foreach (var block in blocks)
+        {
+            for (int copy = 0; copy < profile.Layout.Copies; copy++)
+            {
+                for (int i = 0, n = first ? leadInCycles : gapCycles; i < n; i++)
+                {
+                    foreach (double r in Cycle(t, leadIn)) yield return r;
+                    t += leadIn;
+                }
+
+                first = false;
+                foreach (string name in encoding.Sync)
+                {
+                    foreach (double r in Cycle(t, byName[name])) yield return r;
+                    t += byName[name];
+                }
+
+                foreach (byte value in block)
+                {
+                    foreach (bool bit in FramedBits(profile.Framing, value))
+                    {
+                        foreach (string name in bit ? encoding.One : encoding.Zero)
+                        {
+                            foreach (double r in Cycle(t, byName[name])) yield return r;
+                            t += byName[name];
+                        }
+                    }
+                }
+            }
+        }
+
+        int trailer = Math.Max(16, (int)(profile.Recording.TrailerSeconds / leadIn));
+        for (int i = 0; i < trailer; i++)
+        {
+            foreach (double r in Cycle(t, leadIn)) yield return r;
+            t += leadIn;
+        }
+
+        yield return t;
+    }
+
+    private static IEnumerable<double> Fsk(FormatProfile profile, IReadOnlyList<byte[]> blocks)
+    {
+        var fsk = profile.Fsk!;
+        double bit = fsk.BitSeconds;
+        double t = 0;
+        bool first = true;
+
+        // A bit cell of a tone: whole half-cycles, continuous phase (the tones are integer multiples of the baud).
+        IEnumerable<double> Cell(double frequency)
+        {
+            int halves = Math.Max(1, (int)Math.Round(2 * frequency * bit));
+            double half = bit / halves;
+            for (int i = 0; i < halves; i++)
+            {
+                yield return t + i * half;
+            }
+        }
+
+        IEnumerable<double> Idle(double seconds)
+        {
+            int cells = (int)Math.Ceiling(seconds / bit);
+            for (int i = 0; i < cells; i++)
+            {
+                foreach (double r in Cell(fsk.MarkHz)) yield return r;
+                t += bit;
+            }
+        }
+
+        foreach (var block in blocks)
+        {
+            foreach (double r in Idle(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds)) yield return r;
+            first = false;
+            foreach (byte value in block)
+            {
+                foreach (bool b in FramedBits(profile.Framing, value))
+                {
+                    foreach (double r in Cell(b ? fsk.MarkHz : fsk.SpaceHz)) yield return r;
+                    t += bit;
+                }
+            }
+        }
+
+        foreach (double r in Idle(profile.Recording.TrailerSeconds)) yield return r;
+        yield return t;
+    }
+
+    private static IEnumerable<double> Biphase(FormatProfile profile, IReadOnlyList<byte[]> blocks)
+    {
+        var biphase = profile.Biphase!;
+        double cell = biphase.CellSeconds;
+        double t = 0;
+        bool level = false;
+        bool first = true;
+
+        // Manchester: each cell is two half-cells of opposite level; a reversal wherever the level changes.
+        IEnumerable<double> Bit(bool one)
+        {
+            // The second half is low for a falling mid-cell transition.
+            bool secondHigh = one != biphase.OneIsFalling;
+            bool firstHigh = !secondHigh;
+            if (firstHigh != level)
+            {
+                yield return t;
+            }
+
+            yield return t + cell / 2;
+            level = secondHigh;
+            t += cell;
+        }
+
+        IEnumerable<double> Zeros(double seconds, int minimum)
+        {
+            int count = Math.Max(minimum, (int)(seconds / cell));
+            for (int i = 0; i < count; i++)
+            {
+                foreach (double r in Bit(false)) yield return r;
+            }
+        }
+
+        foreach (var block in blocks)
+        {
+            foreach (double r in Zeros(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds, biphase.LeadInMinimumBits * 2)) yield return r;
+            first = false;
+            foreach (char c in biphase.SyncBits)
+            {
+                foreach (double r in Bit(c == '1')) yield return r;
+            }
+
+            foreach (byte value in block)
+            {
+                foreach (bool b in FramedBits(profile.Framing, value))
+                {
+                    foreach (double r in Bit(b)) yield return r;
+                }
+            }
+        }
+
+        foreach (double r in Zeros(profile.Recording.TrailerSeconds, 16)) yield return r;
+        yield return t;
+    }
+
+    private static IEnumerable<double> Cycle(double start, double period)
+    {
+        yield return start;
+        yield return start + period / 2;
+    }
+}
