@@ -12,8 +12,8 @@ namespace TapeVault.Core.Audio;
 /// with 1 to 8 channels; several channels become one by <see cref="ChannelChoice"/>.
 /// </para>
 /// <para>
-/// The file is opened once and read once: NAudio's <see cref="WaveFileReader"/> reads through a hashing stream, and
-/// whatever it skipped (chunks after the audio) is hashed when the audio ends. <see cref="Sha256"/> is therefore
+/// The file is opened once and read once: NAudio's <see cref="WaveFileReader"/> reads through a hashing stream; the
+/// chunks before the audio are hashed on opening, the audio as it is read, and the chunks after it when it ends. <see cref="Sha256"/> is therefore
 /// <c>null</c> until <see cref="Read"/> has returned 0 or <see cref="Complete"/> has run, and <see cref="Info"/>
 /// throws <see cref="InvalidOperationException"/> until then.
 /// </para>
@@ -142,6 +142,10 @@ public sealed class CaptureReader : IDisposable
             {
                 throw new CaptureFormatException("The WAV file's chunks could not be read consistently; the file may be damaged.");
             }
+
+            // The parsers stepped over chunk bodies before the audio (LIST, JUNK, ...); hash them now, once,
+            // so that the audio read that follows continues the hash in file order.
+            file.HashUpTo(layout.DataOffset);
 
             ISampleProvider samples;
             try

@@ -11,22 +11,18 @@ namespace TapeVault.Core.Audio;
 /// The hash only ever takes bytes in file order. The stream remembers <see cref="HashedBytes"/>, the length
 /// of the prefix <c>[0, HashedBytes)</c> already fed to the hash. A read that covers the byte at
 /// <see cref="HashedBytes"/> feeds the part of it past that point and moves the mark on; bytes read again
-/// after a backward seek are never hashed twice, and bytes read after a forward seek are not hashed yet.
+/// after a backward seek are never hashed twice, and bytes read after a forward seek are not hashed (yet).
 /// </para>
 /// <para>
-/// Forward seeks: a read that starts at most <see cref="GapFillLimit"/> bytes past the mark first reads and
-/// hashes the skipped gap (a small chunk the WAV parser stepped over, such as LIST). A longer gap (the data
-/// chunk, which NAudio steps over to look for chunks after it) is left alone: the audio is read in order
-/// later and fills it. <see cref="Finish"/> reads and hashes whatever lies between the mark and the end of the
-/// file (trailing chunks, junk after the RIFF end), so the hash covers every byte exactly once, and every
-/// byte of audio is read from disk once.
+/// So the owner closes the gaps: once the WAV parsers have walked the header (stepping over chunk bodies such as
+/// LIST, and over the audio to look for chunks after it), <see cref="HashUpTo"/> reads and hashes the bytes it
+/// skipped before the audio; the audio is then read in order and moves the mark; and <see cref="Finish"/> reads
+/// and hashes whatever lies after it (trailing chunks, junk after the RIFF end). Every byte is hashed exactly
+/// once and every byte of audio is read from the source once; only chunk headers are read twice.
 /// </para>
 /// </remarks>
 internal sealed class HashingReadStream : Stream
 {
-    /// <summary>Largest forward gap that a read fills in (reads and hashes) before it goes on.</summary>
-    internal const int GapFillLimit = 256 * 1024;
-
     private const int ScratchBytes = 64 * 1024;
 
     private readonly Stream source;
@@ -100,12 +96,6 @@ internal sealed class HashingReadStream : Stream
     {
         ObjectDisposedException.ThrowIf(disposed, this);
         long start = source.Position;
-        if (sha256 is null && start > HashedBytes && start - HashedBytes <= GapFillLimit)
-        {
-            HashFrom(HashedBytes, start);
-            source.Position = start;
-        }
-
         int total = 0;
         while (total < buffer.Length)
         {
@@ -128,6 +118,21 @@ internal sealed class HashingReadStream : Stream
         }
 
         return total;
+    }
+
+    /// <summary>
+    /// Reads and hashes the bytes from <see cref="HashedBytes"/> up to <paramref name="position"/> (or the end of the
+    /// file) that no read has covered yet. Does nothing if they are already hashed. Keeps the current position.
+    /// </summary>
+    public void HashUpTo(long position)
+    {
+        ObjectDisposedException.ThrowIf(disposed, this);
+        if (sha256 is null && position > HashedBytes)
+        {
+            long keep = source.Position;
+            HashFrom(HashedBytes, position);
+            source.Position = keep;
+        }
     }
 
     /// <summary>

@@ -116,7 +116,8 @@ public sealed class FskDecoder : ISymbolDecoder
                     _nextBitTime = crossing + 0.5 * BitSamples;
                 }
 
-                _markRun = d > 0.3f ? _markRun + 1 : 0;
+                // The run survives the slope down to zero, so it is still whole when the crossing comes.
+                _markRun = d > 0.3f ? _markRun + 1 : d < 0 ? 0 : _markRun;
                 if (_inBlock && n - _lastCharEnd > _blockEndIdleSamples)
                 {
                     _assembler.End(_lastCharEnd);
