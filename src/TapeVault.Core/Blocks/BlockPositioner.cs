@@ -51,17 +51,33 @@ public static class BlockPositioner
             keyed.Add((c, key));
         }
 
-        // Positions in order of first appearance on the tape.
-        var order = new Dictionary<string, int>(StringComparer.Ordinal);
-        foreach (var (candidate, key) in keyed.OrderBy(k => k.Candidate.StartSeconds))
+        // A position is one identity over one stretch of tape: copies and other settings' readings overlap or follow
+        // closely; the same identity much later (a block number reused by the next file) is a new position.
+        var stretches = new List<(string Key, double Start, double End)>();
+        var positionOf = new int[keyed.Count];
+        var byStart = Enumerable.Range(0, keyed.Count).OrderBy(i => keyed[i].Candidate.StartSeconds).ToList();
+        foreach (int i in byStart)
         {
-            order.TryAdd(key, order.Count);
+            var (candidate, key) = keyed[i];
+            double reach = Math.Max(1.0, 1.5 * (candidate.EndSeconds - candidate.StartSeconds));
+            int found = stretches.FindLastIndex(s => s.Key == key && candidate.StartSeconds < s.End + reach);
+            if (found < 0)
+            {
+                stretches.Add((key, candidate.StartSeconds, candidate.EndSeconds));
+                found = stretches.Count - 1;
+            }
+            else
+            {
+                stretches[found] = (key, stretches[found].Start, Math.Max(stretches[found].End, candidate.EndSeconds));
+            }
+
+            positionOf[i] = found;
         }
 
         var placed = new List<BlockCandidate>(keyed.Count);
-        foreach (var (candidate, key) in keyed)
+        for (int i = 0; i < keyed.Count; i++)
         {
-            placed.Add(candidate with { Position = order[key] });
+            placed.Add(keyed[i].Candidate with { Position = positionOf[i] });
         }
 
         placed.Sort((a, b) => a.Position != b.Position ? a.Position.CompareTo(b.Position) : a.StartSeconds.CompareTo(b.StartSeconds));

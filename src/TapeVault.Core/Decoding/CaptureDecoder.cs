@@ -46,22 +46,29 @@ public static class CaptureDecoder
     }
 
     /// <summary>
-    /// Tone detectors ignore polarity and which edges count, so for FSK only settings that condition the signal
-    /// differently are worth running; the first of each kind stands for the rest.
+    /// The settings worth running for a profile's family. Tone detectors ignore polarity and which edges count, so for
+    /// FSK the first setting of each kind of conditioning stands for the rest. Biphase needs every transition, so its
+    /// settings count both edges, and settings that then coincide are run once.
     /// </summary>
     public static IReadOnlyList<DetectorSetting> BankFor(FormatProfile profile, IReadOnlyList<DetectorSetting> settings)
     {
         ArgumentNullException.ThrowIfNull(profile);
         ArgumentNullException.ThrowIfNull(settings);
-        if (profile.Family != FormatFamily.Fsk)
+        if (profile.Family == FormatFamily.PulseWidth)
         {
             return settings;
         }
 
         var distinct = new List<DetectorSetting>();
-        foreach (var s in settings)
+        foreach (var setting in settings)
         {
-            if (!distinct.Exists(d => d.HighPassHz == s.HighPassHz && d.LowPassHz == s.LowPassHz && d.Differentiate == s.Differentiate))
+            var s = profile.Family == FormatFamily.Biphase && setting.Edges != EdgeSelection.Both
+                ? new DetectorSetting(setting.Name, setting.HighPassHz, setting.LowPassHz, setting.Differentiate, setting.Invert, setting.ThresholdMode, setting.Hysteresis, EdgeSelection.Both)
+                : setting;
+            bool same(DetectorSetting d) =>
+                d.HighPassHz == s.HighPassHz && d.LowPassHz == s.LowPassHz && d.Differentiate == s.Differentiate &&
+                (profile.Family == FormatFamily.Fsk || (d.Invert == s.Invert && d.ThresholdMode == s.ThresholdMode && d.Hysteresis == s.Hysteresis));
+            if (!distinct.Exists(same))
             {
                 distinct.Add(s);
             }

@@ -25,12 +25,19 @@ public struct SpeedTracker
         _calibrationCount = 0;
     }
 
-    /// <summary>Adds one lead-in pulse: <paramref name="measuredSeconds"/> of a class whose nominal is <paramref name="nominalSeconds"/>.</summary>
-    public void Calibrate(double measuredSeconds, double nominalSeconds)
+    /// <summary>
+    /// Adds one lead-in pulse: <paramref name="measuredSeconds"/> of a class whose nominal is <paramref name="nominalSeconds"/>.
+    /// The speed in use changes only once <paramref name="commit"/> says the run is long enough to be a lead-in, so a
+    /// short run of look-alike pulses in noise cannot mislead the classification of the real lead-in.
+    /// </summary>
+    public void Calibrate(double measuredSeconds, double nominalSeconds, bool commit)
     {
         _calibrationSum += measuredSeconds / nominalSeconds;
         _calibrationCount++;
-        Speed = _calibrationCount / _calibrationSum;
+        if (commit)
+        {
+            Speed = _calibrationCount / _calibrationSum;
+        }
     }
 
     /// <summary>Follows the speed from a pulse classified with a margin well clear of its boundary.</summary>

@@ -124,7 +124,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         }
 
         _run++;
-        _speed.Calibrate(seconds, _encoding.CellSeconds / 2);
+        _speed.Calibrate(seconds, _encoding.CellSeconds / 2, commit: _run >= 2 * _encoding.LeadInMinimumBits);
 
         // In a run of zeros the transitions alternate: boundary, mid-cell (zero direction), boundary...
         if (_run >= 2 * _encoding.LeadInMinimumBits && !bit)

@@ -156,7 +156,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                     }
 
                     _run++;
-                    _speed.Calibrate(seconds, _classifier.NominalSeconds(_leadInClass));
+                    _speed.Calibrate(seconds, _classifier.NominalSeconds(_leadInClass), commit: _run >= _encoding.LeadInMinimum);
                     if (_run >= _encoding.LeadInMinimum)
                     {
                         _mode = Mode.LeadIn;

@@ -1,0 +1,32 @@
+using System.Diagnostics;
+using System.Globalization;
+using TapeVault.Bench;
+
+// The benchmark prints figures; it asserts nothing. See docs/performance.md for the goals and the measured results.
+CultureInfo.DefaultThreadCurrentCulture = CultureInfo.InvariantCulture;
+CultureInfo.CurrentCulture = CultureInfo.InvariantCulture;
+
+if (args.Length >= 2 && args[0] == "--child")
+{
+    // Each throughput measurement runs in a fresh process so that its peak memory is its own.
+    return Throughput.RunChild(args[1..]);
+}
+
+string section = args.Length > 0 ? args[0] : "all";
+string work = Path.Combine(Path.GetTempPath(), "tapevault-bench");
+Directory.CreateDirectory(work);
+var total = Stopwatch.StartNew();
+Console.WriteLine($"TapeVault benchmark — {Environment.ProcessorCount} cores, .NET {Environment.Version}, {DateTime.UtcNow:yyyy-MM-dd}");
+Console.WriteLine();
+if (section is "all" or "throughput")
+{
+    Throughput.Run(work, [30, 60]);
+}
+
+if (section is "all" or "ber")
+{
+    FskErrorRate.Run();
+}
+
+Console.WriteLine($"Total benchmark time {total.Elapsed.TotalSeconds:0} s.");
+return 0;
