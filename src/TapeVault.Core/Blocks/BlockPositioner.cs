@@ -19,6 +19,8 @@ public static class BlockPositioner
             }
         }
 
+        trusted.Sort((a, b) => a.StartSeconds.CompareTo(b.StartSeconds));
+
         // Streams have no identity but their order: a stream block's key is the order of its start among all streams
         // found, merged across settings by overlap in time.
         var keyed = new List<(BlockCandidate Candidate, string Key)>(candidates.Count);
@@ -29,7 +31,7 @@ public static class BlockPositioner
             bool hasHeader = c.Identity.FileName is not null || c.Identity.FileId is not null || c.Identity.BlockNumber is not null;
             if (!hasHeader)
             {
-                int anchor = streamAnchors.FindIndex(a => Overlaps(a.Start, a.End, c.StartSeconds, c.EndSeconds));
+                int anchor = streamAnchors.FindLastIndex(a => Overlaps(a.Start, a.End, c.StartSeconds, c.EndSeconds));
                 if (anchor < 0)
                 {
                     streamAnchors.Add((c.StartSeconds, c.EndSeconds, $"#{streamAnchors.Count}"));
@@ -44,8 +46,7 @@ public static class BlockPositioner
             }
             else
             {
-                var overlapping = trusted.Find(t => Overlaps(t.StartSeconds, t.EndSeconds, c.StartSeconds, c.EndSeconds));
-                key = overlapping?.Identity.Key ?? c.Identity.Key;
+                key = FindOverlapping(trusted, c)?.Identity.Key ?? c.Identity.Key;
             }
 
             keyed.Add((c, key));
@@ -54,17 +55,25 @@ public static class BlockPositioner
         // A position is one identity over one stretch of tape: copies and other settings' readings overlap or follow
         // closely; the same identity much later (a block number reused by the next file) is a new position.
         var stretches = new List<(string Key, double Start, double End)>();
+        var stretchesByKey = new Dictionary<string, List<int>>(StringComparer.Ordinal);
         var positionOf = new int[keyed.Count];
         var byStart = Enumerable.Range(0, keyed.Count).OrderBy(i => keyed[i].Candidate.StartSeconds).ToList();
         foreach (int i in byStart)
         {
             var (candidate, key) = keyed[i];
             double reach = Math.Max(1.0, 1.5 * (candidate.EndSeconds - candidate.StartSeconds));
-            int found = stretches.FindLastIndex(s => s.Key == key && candidate.StartSeconds < s.End + reach);
+            if (!stretchesByKey.TryGetValue(key, out var ofKey))
+            {
+                ofKey = [];
+                stretchesByKey.Add(key, ofKey);
+            }
+
+            int found = ofKey.Count > 0 && candidate.StartSeconds < stretches[ofKey[^1]].End + reach ? ofKey[^1] : -1;
             if (found < 0)
             {
                 stretches.Add((key, candidate.StartSeconds, candidate.EndSeconds));
                 found = stretches.Count - 1;
+                ofKey.Add(found);
             }
             else
             {
@@ -115,6 +124,35 @@ public static class BlockPositioner
         }
 
         return a.Confidence > b.Confidence || (a.Confidence == b.Confidence && a.Payload.Length > b.Payload.Length);
+    }
+
+    /// <summary>A trusted candidate (sorted by start) overlapping <paramref name="c"/> in time, by binary search.</summary>
+    private static BlockCandidate? FindOverlapping(List<BlockCandidate> trusted, BlockCandidate c)
+    {
+        int lo = 0, hi = trusted.Count;
+        while (lo < hi)
+        {
+            int mid = (lo + hi) / 2;
+            if (trusted[mid].StartSeconds < c.EndSeconds)
+            {
+                lo = mid + 1;
+            }
+            else
+            {
+                hi = mid;
+            }
+        }
+
+        // Candidates before lo start before c ends; blocks are short, so only the last few can still overlap it.
+        for (int i = lo - 1; i >= 0 && i >= lo - 64; i--)
+        {
+            if (Overlaps(trusted[i].StartSeconds, trusted[i].EndSeconds, c.StartSeconds, c.EndSeconds))
+            {
+                return trusted[i];
+            }
+        }
+
+        return null;
     }
 
     private static bool Overlaps(double aStart, double aEnd, double bStart, double bEnd) =>

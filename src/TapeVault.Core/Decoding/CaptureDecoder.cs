@@ -1,3 +1,4 @@
+using System.Collections.Concurrent;
 using TapeVault.Core.Audio;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Detection;
@@ -30,14 +31,53 @@ public static class CaptureDecoder
         options ??= new DecodeOptions();
         var bank = BankFor(profile, settings ?? DetectorBanks.Default);
         var session = new DecodeSession(profile, bank, reader.SampleRate);
-        var chunk = new float[options.ChunkSamples];
         long total = reader.FrameCount;
-        int read;
-        while ((read = reader.Read(chunk)) > 0)
+
+        // Two stages on two cores: this thread reads (and hashes) the capture and runs the bank; a worker runs the
+        // symbol decoders on the previous chunk's edges. Three chunk buffers bound the memory whatever the length.
+        using var free = new BlockingCollection<ChunkWork>(boundedCapacity: 3);
+        using var full = new BlockingCollection<ChunkWork>(boundedCapacity: 3);
+        for (int i = 0; i < 3; i++)
         {
-            options.Cancellation.ThrowIfCancellationRequested();
-            session.Process(chunk.AsSpan(0, read));
-            options.Progress?.Report(new DecodeProgress(session.SamplesSeen, total));
+            free.Add(session.NewChunk(options.ChunkSamples));
+        }
+
+        var worker = Task.Run(() =>
+        {
+            foreach (var work in full.GetConsumingEnumerable())
+            {
+                session.Decode(work);
+                free.Add(work);
+            }
+        });
+        try
+        {
+            while (!worker.IsCompleted)
+            {
+                options.Cancellation.ThrowIfCancellationRequested();
+                var work = free.Take(options.Cancellation);
+                work.Length = reader.Read(work.Samples);
+                if (work.Length == 0)
+                {
+                    break;
+                }
+
+                session.Detect(work);
+                full.Add(work, options.Cancellation);
+                options.Progress?.Report(new DecodeProgress(session.SamplesSeen, total));
+            }
+        }
+        finally
+        {
+            full.CompleteAdding();
+            try
+            {
+                worker.Wait(CancellationToken.None);
+            }
+            catch (AggregateException e) when (e.InnerException is not null)
+            {
+                System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(e.InnerException).Throw();
+            }
         }
 
         var capture = reader.Complete();
@@ -82,9 +122,8 @@ public static class CaptureDecoder
     {
         private readonly DetectorBank _bank;
         private readonly ISymbolDecoder[] _decoders;
-        private readonly EdgeBuffer[] _edges;
         private readonly List<BlockCandidate> _candidates = [];
-        private float[][]? _conditioned;
+        private ChunkWork? _single;
 
         public DecodeSession(FormatProfile profile, IReadOnlyList<DetectorSetting> settings, int sampleRate)
         {
@@ -92,10 +131,8 @@ public static class CaptureDecoder
             ArgumentNullException.ThrowIfNull(settings);
             _bank = new DetectorBank(settings, sampleRate);
             _decoders = new ISymbolDecoder[settings.Count];
-            _edges = new EdgeBuffer[settings.Count];
             for (int i = 0; i < settings.Count; i++)
             {
-                _edges[i] = new EdgeBuffer();
                 var assembler = new BlockAssembler(profile, i, settings[i].Name, sampleRate, _candidates);
                 bool both = settings[i].Edges == EdgeSelection.Both;
                 _decoders[i] = profile.Family switch
@@ -110,33 +147,68 @@ public static class CaptureDecoder
 
         public long SamplesSeen => _bank.SamplesSeen;
 
-        public void Process(ReadOnlySpan<float> samples)
+        private bool NeedsConditioned => Array.Exists(_decoders, d => d.NeedsConditionedSignal);
+
+        public ChunkWork NewChunk(int samples)
         {
-            long chunkStart = _bank.SamplesSeen;
-            bool conditioned = Array.Exists(_decoders, d => d.NeedsConditionedSignal);
-            if (conditioned && (_conditioned is null || _conditioned[0].Length < samples.Length))
+            var edges = new EdgeBuffer[_decoders.Length];
+            for (int i = 0; i < edges.Length; i++)
             {
-                _conditioned = new float[_decoders.Length][];
-                for (int i = 0; i < _conditioned.Length; i++)
+                edges[i] = new EdgeBuffer();
+            }
+
+            float[][]? conditioned = null;
+            if (NeedsConditioned)
+            {
+                conditioned = new float[_decoders.Length][];
+                for (int i = 0; i < conditioned.Length; i++)
                 {
-                    _conditioned[i] = new float[samples.Length];
+                    conditioned[i] = new float[samples];
                 }
             }
 
-            foreach (var buffer in _edges)
+            return new ChunkWork(new float[samples], edges, conditioned);
+        }
+
+        /// <summary>The bank's half of a chunk: edges (and the conditioned signal) of every setting.</summary>
+        public void Detect(ChunkWork work)
+        {
+            ArgumentNullException.ThrowIfNull(work);
+            work.Start = _bank.SamplesSeen;
+            foreach (var buffer in work.Edges)
             {
                 buffer.Clear();
             }
 
-            _bank.Process(samples, _edges, conditioned ? _conditioned : null);
+            _bank.Process(work.Samples.AsSpan(0, work.Length), work.Edges, work.Conditioned);
+        }
+
+        /// <summary>The decoders' half of a chunk; chunks must arrive in order.</summary>
+        public void Decode(ChunkWork work)
+        {
+            ArgumentNullException.ThrowIfNull(work);
             for (int i = 0; i < _decoders.Length; i++)
             {
-                _decoders[i].OnEdges(_edges[i].Items);
+                _decoders[i].OnEdges(work.Edges[i].Items);
                 if (_decoders[i].NeedsConditionedSignal)
                 {
-                    _decoders[i].OnConditioned(_conditioned![i].AsSpan(0, samples.Length), chunkStart);
+                    _decoders[i].OnConditioned(work.Conditioned![i].AsSpan(0, work.Length), work.Start);
                 }
             }
+        }
+
+        /// <summary>Both halves on the calling thread.</summary>
+        public void Process(ReadOnlySpan<float> samples)
+        {
+            if (_single is null || _single.Samples.Length < samples.Length)
+            {
+                _single = NewChunk(samples.Length);
+            }
+
+            samples.CopyTo(_single.Samples);
+            _single.Length = samples.Length;
+            Detect(_single);
+            Decode(_single);
         }
 
         public List<BlockCandidate> Finish()
@@ -149,4 +221,18 @@ public static class CaptureDecoder
             return BlockPositioner.Place(_candidates);
         }
     }
+}
+
+/// <summary>One chunk on its way from the bank to the decoders.</summary>
+public sealed class ChunkWork(float[] samples, EdgeBuffer[] edges, float[][]? conditioned)
+{
+    public float[] Samples { get; } = samples;
+
+    public int Length { get; set; }
+
+    public long Start { get; set; }
+
+    public EdgeBuffer[] Edges { get; } = edges;
+
+    public float[][]? Conditioned { get; } = conditioned;
 }

@@ -260,7 +260,7 @@ public sealed class DetectorBank
                     int lane = BitOperations.TrailingZeroCount(counted);
                     counted &= counted - 1;
                     edges[_firstSetting + lane].Add(new Edge(
-                        chunkStart + crossingLanes[lane],
+                        chunkStart + (double)crossingLanes[lane],
                         (upBits & (1u << lane)) != 0,
                         envelopeLanes[lane]));
                 }

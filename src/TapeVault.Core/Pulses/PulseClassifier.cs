@@ -17,6 +17,9 @@ public sealed class PulseClassifier
     private readonly double[] _logBoundary;
     private readonly double _logLowest;
     private readonly double _logHighest;
+    private readonly double[] _boundary;
+    private readonly double _lowest;
+    private readonly double _highest;
 
     /// <param name="nominalSeconds">Nominal durations, ascending.</param>
     /// <param name="outerRatio">How far beyond the shortest and longest class a pulse may lie and still count.</param>
@@ -42,6 +45,27 @@ public sealed class PulseClassifier
         double outer = Math.Log(outerRatio);
         _logLowest = _logNominal[0] - outer;
         _logHighest = _logNominal[^1] + outer;
+        _boundary = Array.ConvertAll(_logBoundary, Math.Exp);
+        _lowest = Math.Exp(_logLowest);
+        _highest = Math.Exp(_logHighest);
+    }
+
+    /// <summary>Only the class of a pulse (−1 for none): no logarithm, for the hot path that needs no distances.</summary>
+    public int ClassOf(double seconds, double speed)
+    {
+        double x = seconds * speed;
+        if (!(x >= _lowest && x <= _highest))
+        {
+            return -1;
+        }
+
+        int c = 0;
+        while (c < _boundary.Length && x > _boundary[c])
+        {
+            c++;
+        }
+
+        return c;
     }
 
     public int Count => _logNominal.Length;

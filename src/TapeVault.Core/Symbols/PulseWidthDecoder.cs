@@ -111,9 +111,9 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                     continue;
                 }
 
-                var first = _classifier.Classify(2 * _pendingHalf, _speed.Speed);
-                var second = _classifier.Classify(2 * seconds, _speed.Speed);
-                if (first.Class != second.Class || !first.IsValid)
+                int first = _classifier.ClassOf(2 * _pendingHalf, _speed.Speed);
+                int second = _classifier.ClassOf(2 * seconds, _speed.Speed);
+                if (first != second || first < 0)
                 {
                     // Out of phase with the cycles (or a glitch): start the pairing again from this half.
                     _pendingHalf = seconds;
