@@ -30,6 +30,20 @@ public static class DecodeCommand
         string? payloadPath = args.Value("payload");
         args.RejectUnknown();
 
+        // Bad output paths are bad input too: refuse them before the decode, so that nothing is printed or written.
+        var outputs = new List<Files.Output>(2);
+        if (jsonPath is not null)
+        {
+            outputs.Add(new Files.Output("json", jsonPath));
+        }
+
+        if (payloadPath is not null)
+        {
+            outputs.Add(new Files.Output("payload", payloadPath));
+        }
+
+        Files.CheckOutputs(capture, outputs);
+
         DecodeResult result;
         using (var bar = new ProgressBar("decoding"))
         {
@@ -42,25 +56,26 @@ public static class DecodeCommand
             bar.Report(1);
         }
 
-        DecodeReport.WriteTable(output, result);
-
-        // Outputs are written only after the decode succeeded, each to a temporary file first.
+        // Outputs are written only after the decode succeeded: all to temporary files first, then moved into place.
+        var writers = new List<(string Path, Action<Stream> Write)>(2);
         if (jsonPath is not null)
         {
-            Files.WriteAtomically(jsonPath, stream => DecodeReport.WriteJson(stream, result));
+            writers.Add((jsonPath, stream => DecodeReport.WriteJson(stream, result)));
         }
 
         if (payloadPath is not null)
         {
-            Files.WriteAtomically(payloadPath, stream =>
+            writers.Add((payloadPath, stream =>
             {
                 foreach (var best in result.Best)
                 {
                     stream.Write(best.Payload.AsSpan());
                 }
-            });
+            }));
         }
 
+        Files.WriteAtomically(writers);
+        DecodeReport.WriteTable(output, result);
         return 0;
     }
 
@@ -88,30 +103,77 @@ internal static class Catalogs
 
 internal static class Files
 {
-    public static void WriteAtomically(string path, Action<Stream> write)
-    {
-        string full = Path.GetFullPath(path);
-        string? folder = Path.GetDirectoryName(full);
-        if (folder is null || !Directory.Exists(folder))
-        {
-            throw new UsageException($"The folder for {path} does not exist.");
-        }
+    /// <summary>An output file named by an option.</summary>
+    public sealed record Output(string Option, string Path);
 
-        string temporary = Path.Combine(folder, $".{Path.GetFileName(full)}.{Environment.ProcessId}.tmp");
+    /// <summary>
+    /// Refuses outputs that cannot be written or must not be: a missing folder, a path that is a folder, the capture
+    /// itself (an original is never written over), or two options naming one file.
+    /// </summary>
+    public static void CheckOutputs(string capture, IReadOnlyList<Output> outputs)
+    {
+        string captureFull = Path.GetFullPath(capture);
+        var seen = new Dictionary<string, string>(StringComparer.Ordinal);
+        foreach (var output in outputs)
+        {
+            string full = Path.GetFullPath(output.Path);
+            string? folder = Path.GetDirectoryName(full);
+            if (folder is null || !Directory.Exists(folder))
+            {
+                throw new UsageException($"The folder for {output.Path} (--{output.Option}) does not exist.");
+            }
+
+            if (Directory.Exists(full))
+            {
+                throw new UsageException($"The output {output.Path} (--{output.Option}) is a folder, not a file.");
+            }
+
+            if (string.Equals(full, captureFull, StringComparison.Ordinal))
+            {
+                throw new UsageException($"The output {output.Path} (--{output.Option}) is the capture itself, which is never written over.");
+            }
+
+            if (!seen.TryAdd(full, output.Option))
+            {
+                throw new UsageException($"--{seen[full]} and --{output.Option} name the same file, {output.Path}.");
+            }
+        }
+    }
+
+    /// <summary>Writes every file to a temporary file beside it, and only when all are written moves them into place.</summary>
+    public static void WriteAtomically(IReadOnlyList<(string Path, Action<Stream> Write)> files)
+    {
+        var temporaries = new List<(string Temporary, string Full)>(files.Count);
         try
         {
-            using (var stream = new FileStream(temporary, FileMode.CreateNew, FileAccess.Write))
+            foreach (var (path, write) in files)
             {
+                string full = Path.GetFullPath(path);
+                string? folder = Path.GetDirectoryName(full);
+                if (folder is null || !Directory.Exists(folder))
+                {
+                    throw new UsageException($"The folder for {path} does not exist.");
+                }
+
+                string temporary = Path.Combine(folder, $".{Path.GetFileName(full)}.{Environment.ProcessId}.tmp");
+                temporaries.Add((temporary, full));
+                using var stream = new FileStream(temporary, FileMode.CreateNew, FileAccess.Write);
                 write(stream);
             }
 
-            File.Move(temporary, full, overwrite: true);
+            foreach (var (temporary, full) in temporaries)
+            {
+                File.Move(temporary, full, overwrite: true);
+            }
         }
         finally
         {
-            if (File.Exists(temporary))
+            foreach (var (temporary, _) in temporaries)
             {
-                File.Delete(temporary);
+                if (File.Exists(temporary))
+                {
+                    File.Delete(temporary);
+                }
             }
         }
     }

@@ -175,7 +175,7 @@ public sealed class BlockAssembler
             float minMargin = 1;
             for (int i = first; i < last; i++)
             {
-                logOk += Math.Log(Math.Max(1e-300, 1 - Decisions.ErrorOdds(i, sigma)));
+                logOk += Decisions.LogRightOdds(i, sigma);
                 minMargin = Math.Min(minMargin, Decisions.Margin(i));
             }
 

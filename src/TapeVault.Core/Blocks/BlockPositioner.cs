@@ -53,9 +53,12 @@ public static class BlockPositioner
         }
 
         // A position is one identity over one stretch of tape: copies and other settings' readings overlap or follow
-        // closely; the same identity much later (a block number reused by the next file) is a new position.
+        // closely; the same identity much later (a block number reused by the next file) is a new position. Copies
+        // are written back to back, so the same identity after a block read in between is a new position too, however
+        // close: two short files whose headers carry only a block number both start at block 0.
         var stretches = new List<(string Key, double Start, double End)>();
         var stretchesByKey = new Dictionary<string, List<int>>(StringComparer.Ordinal);
+        var readings = new List<(double Start, double End, int Stretch)>();
         var positionOf = new int[keyed.Count];
         var byStart = Enumerable.Range(0, keyed.Count).OrderBy(i => keyed[i].Candidate.StartSeconds).ToList();
         foreach (int i in byStart)
@@ -68,7 +71,9 @@ public static class BlockPositioner
                 stretchesByKey.Add(key, ofKey);
             }
 
-            int found = ofKey.Count > 0 && candidate.StartSeconds < stretches[ofKey[^1]].End + reach ? ofKey[^1] : -1;
+            int found = ofKey.Count > 0 && candidate.StartSeconds < stretches[ofKey[^1]].End + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds)
+                ? ofKey[^1]
+                : -1;
             if (found < 0)
             {
                 stretches.Add((key, candidate.StartSeconds, candidate.EndSeconds));
@@ -77,10 +82,28 @@ public static class BlockPositioner
             }
             else
             {
-                stretches[found] = (key, stretches[found].Start, Math.Max(stretches[found].End, candidate.EndSeconds));
+                var s = stretches[found];
+                stretches[found] = s with { End = Math.Max(s.End, candidate.EndSeconds) };
             }
 
+            // Candidates arrive in order of start, so these starts ascend.
+            readings.Add((candidate.StartSeconds, candidate.EndSeconds, found));
             positionOf[i] = found;
+        }
+
+        // Whether a block of another stretch was read wholly after stretch s ended and before `start` (only the last
+        // few readings can have begun after s ended).
+        bool ReadInBetween(int s, double start)
+        {
+            for (int r = readings.Count - 1; r >= 0 && readings[r].Start > stretches[s].End; r--)
+            {
+                if (readings[r].Stretch != s && readings[r].End <= start)
+                {
+                    return true;
+                }
+            }
+
+            return false;
         }
 
         var placed = new List<BlockCandidate>(keyed.Count);

@@ -61,13 +61,22 @@ public sealed class DetectorBank
             throw new ArgumentException("One edge buffer is needed per setting.", nameof(edges));
         }
 
-        for (int g = 0; g < _groups.Length; g++)
+        // Crossing times are interpolated in single precision relative to the start of what a group is given; slices
+        // of at most SliceSamples keep them within a thousandth of a sample however long the caller's chunk is.
+        for (int offset = 0; offset < samples.Length; offset += SliceSamples)
         {
-            _groups[g].Process(samples, _samplesSeen, edges, conditioned);
-        }
+            var slice = samples.Slice(offset, Math.Min(SliceSamples, samples.Length - offset));
+            for (int g = 0; g < _groups.Length; g++)
+            {
+                _groups[g].Process(slice, _samplesSeen, edges, conditioned, offset);
+            }
 
-        _samplesSeen += samples.Length;
+            _samplesSeen += slice.Length;
+        }
     }
+
+    /// <summary>The longest run of samples a lane group processes at once (float spacing at 4096 is 1/2048 sample).</summary>
+    private const int SliceSamples = 4096;
 
     /// <summary>Per-lane coefficients and state of eight settings.</summary>
     private struct LaneGroup
@@ -176,7 +185,7 @@ public sealed class DetectorBank
             };
         }
 
-        public void Process(ReadOnlySpan<float> samples, long chunkStart, EdgeBuffer[] edges, float[][]? conditioned)
+        public void Process(ReadOnlySpan<float> samples, long chunkStart, EdgeBuffer[] edges, float[][]? conditioned, int conditionedOffset)
         {
             // State into locals so the JIT keeps it in registers for the loop.
             float previousSample = _previousSample;
@@ -206,6 +215,9 @@ public sealed class DetectorBank
             Span<float> crossingLanes = stackalloc float[LanesPerGroup];
             Span<float> envelopeLanes = stackalloc float[LanesPerGroup];
 
+            // The index of the previous sample, kept as a vector so the loop converts no integer per sample.
+            var sampleBefore = Vector256.Create(-1f);
+
             for (int n = 0; n < samples.Length; n++)
             {
                 float x = samples[n];
@@ -228,7 +240,8 @@ public sealed class DetectorBank
 
                 // Remember where the signal last crossed zero, interpolated between samples.
                 var crossed = Vector256.Xor(Vector256.LessThan(previousConditioned, zero), Vector256.LessThan(c, zero));
-                var crossingTime = Vector256.Create((float)(n - 1)) + previousConditioned / (previousConditioned - c);
+                var crossingTime = sampleBefore + previousConditioned / (previousConditioned - c);
+                sampleBefore += one;
                 lastCrossing = Vector256.ConditionalSelect(crossed, crossingTime, lastCrossing);
                 previousConditioned = c;
 
@@ -236,19 +249,21 @@ public sealed class DetectorBank
                 {
                     for (int lane = 0; lane < lanes; lane++)
                     {
-                        conditioned[_firstSetting + lane][n] = c.GetElement(lane);
+                        conditioned[_firstSetting + lane][conditionedOffset + n] = c.GetElement(lane);
                     }
                 }
 
                 // Schmitt trigger: low goes high above +band, high goes low below −band.
+                // A lane switches when state·c > band with the opposite sign: low (−1) and c > band, or high (+1) and c < −band.
                 var goUp = Vector256.BitwiseAnd(Vector256.LessThan(state, zero), Vector256.GreaterThan(c, band));
                 var goDown = Vector256.BitwiseAnd(Vector256.GreaterThan(state, zero), Vector256.LessThan(c, -band));
-                uint upBits = goUp.ExtractMostSignificantBits();
-                uint downBits = goDown.ExtractMostSignificantBits();
-                if ((upBits | downBits) == 0)
+                if ((goUp | goDown) == zero)
                 {
                     continue;
                 }
+
+                uint upBits = goUp.ExtractMostSignificantBits();
+                uint downBits = goDown.ExtractMostSignificantBits();
 
                 state = Vector256.ConditionalSelect(goUp, one, Vector256.ConditionalSelect(goDown, minusOne, state));
                 lastCrossing.CopyTo(crossingLanes);

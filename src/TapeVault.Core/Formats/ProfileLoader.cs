@@ -167,6 +167,14 @@ public static class ProfileLoader
             }
 
             var sync = ClassSequence(d.Sync, "pulseWidth.sync", classes);
+
+            // The decoder leaves the lead-in on the first pulse of another class and takes it as the sync's first;
+            // a sync that began with the lead-in class would be swallowed by the lead-in and never be seen.
+            if (sync[0] == leadClass)
+            {
+                Fail("pulseWidth.sync[0]", $"must not be the lead-in class '{leadClass}': the lead-in ends on the first pulse of another class, which is where the sync begins");
+            }
+
             return new PulseWidthEncoding(classes, zero, one, leadClass, minimum, sync);
         }
 

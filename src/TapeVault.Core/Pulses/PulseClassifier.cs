@@ -50,6 +50,18 @@ public sealed class PulseClassifier
         _highest = Math.Exp(_logHighest);
     }
 
+    /// <summary>
+    /// The durations (at nominal speed) within <paramref name="fraction"/> of the way from class <paramref name="index"/>'s
+    /// nominal to its nearer boundary, in ratio terms: the pulses that are clearly of that class.
+    /// </summary>
+    public (double Low, double High) AcceptanceWindow(int index, double fraction)
+    {
+        double below = index > 0 ? _logBoundary[index - 1] : _logLowest;
+        double above = index < _logBoundary.Length ? _logBoundary[index] : _logHighest;
+        double halfWidth = fraction * Math.Min(_logNominal[index] - below, above - _logNominal[index]);
+        return (Math.Exp(_logNominal[index] - halfWidth), Math.Exp(_logNominal[index] + halfWidth));
+    }
+
     /// <summary>Only the class of a pulse (−1 for none): no logarithm, for the hot path that needs no distances.</summary>
     public int ClassOf(double seconds, double speed)
     {

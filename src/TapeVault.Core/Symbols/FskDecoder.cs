@@ -10,10 +10,50 @@ namespace TapeVault.Core.Symbols;
 /// (the non-coherent binary FSK detector of the textbooks, e.g. Proakis, Digital Communications). A fall of D through
 /// zero after enough mark tone is a start bit; the other bits are read one bit period apart from it, where each
 /// correlator window covers exactly one bit.
+/// <para>
+/// Em and Es are each divided by that tone's own level, learnt from the windows that hold one tone alone, so that a
+/// capture with high-frequency loss (the mark tone weaker than the space tone) still has D cross zero half a window
+/// after each change of tone, where the bit timing expects it.
+/// </para>
+/// <para>
+/// The playback speed comes from the mark tone: the time between two detector edges is one mark period at nominal
+/// speed. An interval counts only when it lies inside a stretch of mark tone: it and the intervals on either side of
+/// it look like mark periods, and the correlators, looking at a window centred on it, see mark tone. The periods next
+/// to a change of tone are left out, because the detector's filters shift their zero crossings (the two tones have
+/// different phase delays), and at 1200 baud, where a mark bit is only two cycles, they would bias the estimate.
+/// </para>
+/// <para>
+/// A character is read only while there is a carrier: when the tone vanishes for half a bit or more (a dropout, a
+/// click at the end of the recording, the deck stopping) the character in progress is void and the block ends at its
+/// last whole character, as a stream block ends at the loss of signal. A stream that resumes soon after such a loss
+/// needs no new lead-in; it makes a new block, so the bytes lost in the gap are never silently closed up inside one
+/// block.
+/// </para>
+/// <para>
+/// The start and stop bits have known values. Their logged decision distance is signed toward that value, so a stop
+/// bit read as space is a decision on the wrong side of its boundary (error odds one half), not a confident one: a
+/// byte whose frame is broken cannot be reported as near-certain.
+/// </para>
 /// </summary>
 public sealed class FskDecoder : ISymbolDecoder
 {
     private const double PhaseLoopGain = 0.5;
+
+    /// <summary>Gain of the speed estimate per accepted mark period (about a hundred periods of memory).</summary>
+    private const double SpeedLoopGain = 0.01;
+
+    /// <summary>
+    /// Largest step one interval may pull the speed estimate by before the gain: an interval distorted by a nearby
+    /// change of tone that slips past <see cref="PureMark"/> moves the estimate no more than a good one (a Huber-type
+    /// robust update).
+    /// </summary>
+    private const double SpeedStepLimit = 0.02;
+
+    /// <summary>D above this: the correlator window holds (almost) only mark tone.</summary>
+    private const float PureMark = 0.9f;
+
+    /// <summary>|raw D| above this: the correlator window holds (almost) only one tone, whose level it then shows.</summary>
+    private const double PureTone = 0.9;
 
     private readonly FskEncoding _fsk;
     private readonly ByteFraming _framing;
@@ -26,13 +66,22 @@ public sealed class FskDecoder : ISymbolDecoder
     private readonly double _leadInSamples;
     private readonly double _blockEndIdleSamples;
     private readonly int _frameBits;
-    private readonly float[] _charDistance = new float[16];
+    private readonly float[] _charD = new float[16];
     private readonly bool[] _charBits = new bool[16];
     private int _ring;
     private double _markCos = 1, _markSin, _spaceCos = 1, _spaceSin;
     private double _sumMarkI, _sumMarkQ, _sumSpaceI, _sumSpaceQ;
     private double _carrierReference;
+    private double _markLevel;
+    private double _spaceLevel;
+    private double _markLevelSamples;
+    private double _spaceLevelSamples;
+    private readonly double _levelGain;
     private float _previousD;
+    private bool _carrier;
+    private double _noCarrierRun;
+    private bool _resuming;
+    private double _lossSample;
     private double _markRun;
     private bool _inChar;
     private bool _inBlock;
@@ -43,6 +92,13 @@ public sealed class FskDecoder : ISymbolDecoder
     private double _speed = 1;
     private double _lastEdge = double.NaN;
     private float _level;
+    private readonly double _markPeriodSamples;
+    private double _lastLength;
+    private bool _lastLooksLikeMark;
+    private bool _beforeLastLooksLikeMark;
+    private MarkInterval[] _pending = new MarkInterval[64];
+    private int _pendingHead;
+    private int _pendingCount;
 
     public FskDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, BlockAssembler assembler)
     {
@@ -64,26 +120,45 @@ public sealed class FskDecoder : ISymbolDecoder
         // Half a second with no start bit ends a stream block (common practice for serial tape streams).
         _blockEndIdleSamples = Math.Max(0.5 * sampleRate, 30.0 * _window);
         _frameBits = 1 + _framing.DataBits + (_framing.Parity == Parity.None ? 0 : 1) + 1;
+        _markPeriodSamples = sampleRate / _fsk.MarkHz * (_countsHalfCycles ? 0.5 : 1);
+
+        // The tone levels follow about two bits' worth of windows that hold one tone alone.
+        _levelGain = 1.0 / (2.0 * _window);
     }
 
     public bool NeedsConditionedSignal => true;
 
     private double BitSamples => _sampleRate / (_fsk.Baud * _speed);
 
-    /// <summary>Edges only calibrate the speed, from the mark tone between characters.</summary>
+    /// <summary>
+    /// Edges only calibrate the speed, from the mark tone. An interval whose neighbours both look like mark periods
+    /// too waits until the correlator window is centred on it (see <see cref="CheckMarkIntervals"/>), because only
+    /// then can the tone detector vouch for it.
+    /// </summary>
     public void OnEdges(ReadOnlySpan<Edge> edges)
     {
-        double expected = _sampleRate / _fsk.MarkHz * (_countsHalfCycles ? 0.5 : 1);
         foreach (var edge in edges)
         {
             _level = edge.Level;
-            if (!double.IsNaN(_lastEdge) && !_inChar)
+            if (!double.IsNaN(_lastEdge))
             {
-                double ratio = expected / (edge.Sample - _lastEdge);
-                if (ratio is > 0.85 and < 1.15)
+                double length = edge.Sample - _lastEdge;
+                bool looksLikeMark = _markPeriodSamples / length is > 0.85 and < 1.15;
+                if (looksLikeMark && _lastLooksLikeMark && _beforeLastLooksLikeMark)
                 {
-                    _speed += 0.01 * (ratio - _speed);
+                    if (_pendingCount == _pending.Length)
+                    {
+                        Array.Resize(ref _pending, _pending.Length * 2);
+                    }
+
+                    // The middle interval ends at the previous edge. The causal window [n − W, n] is centred on it
+                    // when n = end + (W − length) / 2.
+                    _pending[_pendingCount++] = new MarkInterval(_markPeriodSamples / _lastLength, _lastEdge + 0.5 * (_window - _lastLength));
                 }
+
+                _beforeLastLooksLikeMark = _lastLooksLikeMark;
+                _lastLooksLikeMark = looksLikeMark;
+                _lastLength = length;
             }
 
             _lastEdge = edge.Sample;
@@ -96,7 +171,16 @@ public sealed class FskDecoder : ISymbolDecoder
         {
             float d = Correlate(signal[i]);
             double n = chunkStart + i;
-            if (_inChar)
+            CheckMarkIntervals(d, n);
+
+            // Half a bit without carrier is a loss of signal; a shorter fade (deep noise can null a one-bit window for
+            // a moment) is not.
+            _noCarrierRun = _carrier ? 0 : _noCarrierRun + 1;
+            if (_noCarrierRun >= 0.5 * BitSamples && (_inChar || _inBlock))
+            {
+                LoseSignal(n);
+            }
+            else if (_inChar)
             {
                 TrackPhase(d, n);
                 if (n >= _nextBitTime)
@@ -106,10 +190,17 @@ public sealed class FskDecoder : ISymbolDecoder
             }
             else
             {
-                if (d < 0 && _previousD >= 0 && _markRun >= (_inBlock ? 0.25 * BitSamples : _leadInSamples))
+                if (d < 0 && _previousD >= 0 && _markRun >= (_inBlock || _resuming ? 0.25 * BitSamples : _leadInSamples))
                 {
                     // Start bit: D crosses zero half a window after the mark-to-space boundary.
                     double crossing = n - 1 + _previousD / (_previousD - d);
+                    if (!_inBlock && !_resuming)
+                    {
+                        // A new block after a lead-in learns its own tone balance, from this start bit on.
+                        _spaceLevel = 0;
+                        _spaceLevelSamples = 0;
+                    }
+
                     _inChar = true;
                     _bitIndex = 0;
                     _charStart = crossing;
@@ -123,9 +214,22 @@ public sealed class FskDecoder : ISymbolDecoder
                     _assembler.End(_lastCharEnd);
                     _inBlock = false;
                 }
+
+                if (_resuming && n - _lossSample > _blockEndIdleSamples)
+                {
+                    _resuming = false;
+                }
             }
 
             _previousD = d;
+        }
+
+        // Intervals still waiting for their window move to the front for the next chunk.
+        if (_pendingHead > 0)
+        {
+            Array.Copy(_pending, _pendingHead, _pending, 0, _pendingCount - _pendingHead);
+            _pendingCount -= _pendingHead;
+            _pendingHead = 0;
         }
 
         // Rounding makes a rotated phasor drift off the unit circle: pull it back once a chunk.
@@ -137,12 +241,40 @@ public sealed class FskDecoder : ISymbolDecoder
         _spaceSin *= spaceNorm;
     }
 
+    /// <summary>No carrier: the character in progress is void, and a block in progress ends at its last whole character.</summary>
+    private void LoseSignal(double n)
+    {
+        _inChar = false;
+        _markRun = 0;
+        if (_inBlock)
+        {
+            _assembler.End(_lastCharEnd);
+            _inBlock = false;
+            _resuming = true;
+            _lossSample = n;
+        }
+    }
+
     public void Finish(double endSample)
     {
         if (_inBlock)
         {
             _assembler.End(_lastCharEnd);
             _inBlock = false;
+        }
+    }
+
+    /// <summary>Feeds the speed estimate with the edge intervals whose centred window the correlators call pure mark.</summary>
+    private void CheckMarkIntervals(float d, double n)
+    {
+        while (_pendingHead < _pendingCount && _pending[_pendingHead].CheckAt <= n)
+        {
+            if (d > PureMark)
+            {
+                _speed += SpeedLoopGain * Math.Clamp(_pending[_pendingHead].Ratio - _speed, -SpeedStepLimit, SpeedStepLimit);
+            }
+
+            _pendingHead++;
         }
     }
 
@@ -171,7 +303,8 @@ public sealed class FskDecoder : ISymbolDecoder
         double total = mark + space;
 
         // Below 2 % of the usual carrier energy there is no signal to decide on: a dropout, or silence.
-        if (total <= 0.02 * _carrierReference || total <= 1e-12)
+        _carrier = total > 0.02 * _carrierReference && total > 1e-12;
+        if (!_carrier)
         {
             return 0;
         }
@@ -182,7 +315,35 @@ public sealed class FskDecoder : ISymbolDecoder
             _carrierReference = total * 0.05;
         }
 
-        return (float)((mark - space) / total);
+        // Each tone is measured against its own level, learnt where the window holds that tone alone (there the
+        // raw D is near ±1, whatever the balance). High-frequency loss (azimuth, worn heads, a deck's low-pass)
+        // makes the mark tone weaker than the space tone; unweighted, D would then cross zero early at every fall to
+        // space and late at every rise to mark, and the bit timing, which hangs on those crossings, would slip.
+        // Only windows of the recording teach a level: mark from a lead-in or inside a block, space from the bits of
+        // a character being read (noise before a lead-in can look like either tone). A level starts as the plain
+        // mean of what has been seen (the first windows that pass the test are the least pure ones, at the edge of
+        // a lone bit) and becomes a running average once it has enough behind it.
+        double raw = (mark - space) / total;
+        if (raw > PureTone && (_inChar || _inBlock || _markRun >= _leadInSamples))
+        {
+            _markLevelSamples++;
+            _markLevel += (mark - _markLevel) * Math.Max(_levelGain, 1.0 / _markLevelSamples);
+        }
+        else if (raw < -PureTone && _inChar)
+        {
+            _spaceLevelSamples++;
+            _spaceLevel += (space - _spaceLevel) * Math.Max(_levelGain, 1.0 / _spaceLevelSamples);
+        }
+
+        if (_markLevel <= 0 || _spaceLevel <= 0)
+        {
+            // Until both tones have been heard alone, assume they are balanced.
+            return (float)raw;
+        }
+
+        double m = mark / _markLevel;
+        double s = space / _spaceLevel;
+        return (float)((m - s) / (m + s));
     }
 
     private void TrackPhase(float d, double n)
@@ -207,7 +368,7 @@ public sealed class FskDecoder : ISymbolDecoder
     {
         bool bit = d >= 0;
         _charBits[_bitIndex] = bit;
-        _charDistance[_bitIndex] = Math.Abs(d);
+        _charD[_bitIndex] = d;
         if (_bitIndex == 0 && bit)
         {
             // Not a start bit after all: a glitch in the mark tone.
@@ -237,7 +398,10 @@ public sealed class FskDecoder : ISymbolDecoder
         int ones = 0;
         for (int b = 0; b < _frameBits; b++)
         {
-            _assembler.Decisions.Add(_charDistance[b], 1 - _charDistance[b], 1);
+            // Data and parity bits may be either value: the distance is |D|. The start bit must be space and the
+            // stop bit mark: the distance is signed toward that value and a wrong one lands on 0 (odds one half).
+            float distance = b == 0 ? -_charD[b] : b == _frameBits - 1 ? _charD[b] : Math.Abs(_charD[b]);
+            _assembler.Decisions.Add(distance, 1 - distance, 1);
         }
 
         for (int b = 0; b < _framing.DataBits; b++)
@@ -250,7 +414,8 @@ public sealed class FskDecoder : ISymbolDecoder
             }
         }
 
-        bool framingOk = _charBits[_frameBits - 1];
+        // A stop bit needs mark tone: D = 0 (no carrier at all) is not a mark.
+        bool framingOk = _charD[_frameBits - 1] > 0;
         if (_framing.Parity != Parity.None)
         {
             bool even = ((ones + (_charBits[1 + _framing.DataBits] ? 1 : 0)) & 1) == 0;
@@ -264,4 +429,7 @@ public sealed class FskDecoder : ISymbolDecoder
             _inBlock = false;
         }
     }
+
+    /// <summary>An edge interval that looked like a mark period: its speed ratio, and when its window is centred on it.</summary>
+    private readonly record struct MarkInterval(double Ratio, double CheckAt);
 }

@@ -36,6 +36,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private double _lastEdge = double.NaN;
     private double _glitchCarry;
     private double _pendingHalf = double.NaN;
+    private readonly (double Low, double High) _leadInBounds;
 
     public PulseWidthDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, BlockAssembler assembler)
     {
@@ -54,6 +55,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _assembler = assembler;
         _framer = new SyncByteFramer(profile.Framing, assembler);
         _leadInClass = IndexOf(_encoding.LeadInClass);
+        _leadInBounds = _classifier.AcceptanceWindow(_leadInClass, 0.5);
         _sync = Indices(_encoding.Sync);
         _zero = Indices(_encoding.Zero);
         _one = Indices(_encoding.One);
@@ -143,12 +145,15 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
     private void OnCycle(double seconds, double endSample, float level)
     {
-        var decision = _classifier.Classify(seconds, _speed.Speed);
+        // Hunting and sync need only the class; distances (a logarithm each) are worked out for data pulses alone.
+        var decision = _mode == Mode.Data
+            ? _classifier.Classify(seconds, _speed.Speed)
+            : new PulseDecision(_classifier.ClassOf(seconds, _speed.Speed), 0, 0, 1);
         switch (_mode)
         {
             case Mode.Hunting:
             case Mode.LeadIn:
-                if (decision.Class == _leadInClass && Math.Abs(decision.Residual) < 0.5 * decision.Scale)
+                if (decision.Class == _leadInClass && seconds * _speed.Speed >= _leadInBounds.Low && seconds * _speed.Speed <= _leadInBounds.High)
                 {
                     if (_run == 0)
                     {

@@ -21,8 +21,23 @@ public static class CaptureSynthesizer
         ChannelDamage damage,
         CaptureEncoding encoding = CaptureEncoding.Pcm16)
     {
+        return WriteBlocks(path, profile, BlockWriter.Blocks(profile, files), damage, encoding);
+    }
+
+    /// <summary>
+    /// Writes ready-made blocks (header + payload + checksum, copies not repeated) as they stand, without laying
+    /// files out: for captures of blocks that are not what <see cref="BlockWriter"/> would make, such as a block
+    /// altered after its checksum was computed.
+    /// </summary>
+    public static SynthesizedCapture WriteBlocks(
+        string path,
+        FormatProfile profile,
+        IReadOnlyList<byte[]> blocks,
+        ChannelDamage damage,
+        CaptureEncoding encoding = CaptureEncoding.Pcm16)
+    {
         ArgumentNullException.ThrowIfNull(damage);
-        var blocks = BlockWriter.Blocks(profile, files);
+        ArgumentNullException.ThrowIfNull(blocks);
         using var writer = new CaptureWriterStream(path, damage.SampleRate, encoding);
         var model = Model(profile, blocks, damage, out double tapeSeconds);
         var chunk = new float[16_384];

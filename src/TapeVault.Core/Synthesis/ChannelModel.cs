@@ -62,7 +62,8 @@ public sealed class ChannelModel
 
         // Azimuth: the gap sees the track a time w·tanθ/v apart from one edge to the other; averaging over that time is the loss.
         _boxcarLength = AzimuthSmearSeconds(damage) * damage.SampleRate / damage.Speed;
-        _boxcar = new float[Math.Max(1, (int)Math.Ceiling(_boxcarLength) + 1)];
+        // The newest floor(L) samples at full weight and the one before them at the leftover fraction: weights sum to L.
+        _boxcar = new float[Math.Max(1, (int)Math.Floor(_boxcarLength) + 1)];
 
         double rms = signalRms ?? (damage.Chain == ReadChain.LineOutput ? 0.75 : 0.4) * damage.Level;
         _noiseSigma = damage.SnrDb is { } snr ? rms * Math.Pow(10, -snr / 20) : 0;
@@ -166,12 +167,13 @@ public sealed class ChannelModel
             return value;
         }
 
-        // A moving average of fractional length: whole samples plus a weighted oldest one.
+        // A moving average of fractional length L: floor(L) whole samples plus the next older one weighted by the
+        // fraction left over, so that the weights sum to L and a steady level passes unchanged.
         _boxcarSum += value - _boxcar[_boxcarPosition];
         _boxcar[_boxcarPosition] = (float)value;
         _boxcarPosition = (_boxcarPosition + 1) % _boxcar.Length;
         int whole = _boxcar.Length - 1;
-        double fraction = _boxcarLength - (whole - 1);
+        double fraction = _boxcarLength - whole;
         double oldest = _boxcar[_boxcarPosition];
         return (_boxcarSum - oldest + fraction * oldest) / _boxcarLength;
     }

@@ -1,0 +1,121 @@
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Checksums;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Synthesis;
+using Xunit;
+
+namespace TapeVault.Core.Tests.RoundTrip;
+
+/// <summary>
+/// A block altered on tape after its checksum was computed must not pass as Clean: the decoder reads the altered
+/// bytes faithfully and the checksum says they are not the bytes that were written.
+/// </summary>
+public sealed class TamperedBlockTests(RoundTripFolder folder) : IClassFixture<RoundTripFolder>
+{
+    public static TheoryData<string, string> Cases()
+    {
+        var data = new TheoryData<string, string>();
+        foreach (string id in RoundTrips.CheckedProfileIds)
+        {
+            foreach (string how in new[] { "payload byte", "single payload bit", "last payload byte", "header byte", "checksum byte" })
+            {
+                data.Add(id, how);
+            }
+        }
+
+        return data;
+    }
+
+    [Theory]
+    [MemberData(nameof(Cases))]
+    public void A_block_altered_after_its_checksum_never_decodes_clean(string profileId, string how)
+    {
+        var profile = RoundTrips.Profile(profileId);
+        var blocks = BlockWriter.Blocks(profile, RoundTrips.Files(profile));
+        var truth = RoundTrips.Truth(profile, blocks);
+        int header = profile.Layout.HeaderBytes;
+        int check = ChecksumCatalog.Get(profile.Layout.Checksum!.Algorithm).Width;
+        const int target = 1;
+        var tampered = blocks.Select(b => (byte[])b.Clone()).ToList();
+        var block = tampered[target];
+        switch (how)
+        {
+            case "payload byte":
+                block[header + 10] ^= 0x5A;
+                break;
+            case "single payload bit":
+                block[header + 3] ^= 0x10;
+                break;
+            case "last payload byte":
+                block[block.Length - check - 1] ^= 0xFF;
+                break;
+            case "header byte":
+                // The block-number field: the identity changes, the length does not.
+                block[HeaderOffset(profile.Layout, FieldRole.BlockNumber)] ^= 0x04;
+                break;
+            default:
+                block[^1] ^= 0x01;
+                break;
+        }
+
+        // The same blocks untampered give the tape time of the target: altering bytes moves nothing.
+        var window = RoundTrips.WriteAndDecode(folder, profile, blocks, new ChannelDamage()).Best[target];
+        var result = RoundTrips.WriteAndDecode(folder, profile, tampered, new ChannelDamage());
+
+        var atTarget = result.Candidates.Where(c => c.StartSeconds < window.EndSeconds && window.StartSeconds < c.EndSeconds).ToList();
+        Assert.NotEmpty(atTarget);
+
+        // A CRC of degree n detects every error burst of n bits or fewer (Peterson and Brown, "Cyclic Codes for Error
+        // Detection", Proc. IRE, 1961); each alteration here lies within one byte.
+        Assert.All(atTarget, c => Assert.Equal(BlockStatus.Failed, c.Status));
+        if (how != "checksum byte")
+        {
+            var tamperedTruth = RoundTrips.Truth(profile, [block])[0];
+            Assert.DoesNotContain(result.Candidates, c => c.Status == BlockStatus.Clean && tamperedTruth.Matches(c));
+        }
+
+        // The other blocks still come back clean and right.
+        for (int i = 0; i < truth.Count; i++)
+        {
+            if (i != target)
+            {
+                Assert.Contains(result.Candidates, c => c.Status == BlockStatus.Clean && truth[i].Matches(c));
+            }
+        }
+    }
+
+    [Theory]
+    [MemberData(nameof(CheckedProfiles))]
+    public void The_failed_block_keeps_the_bytes_that_were_on_tape_and_says_it_is_doubtful(string profileId)
+    {
+        var profile = RoundTrips.Profile(profileId);
+        var blocks = BlockWriter.Blocks(profile, RoundTrips.Files(profile));
+        var tampered = blocks.Select(b => (byte[])b.Clone()).ToList();
+        tampered[0][profile.Layout.HeaderBytes + 5] ^= 0x81;
+
+        var result = RoundTrips.WriteAndDecode(folder, profile, tampered, new ChannelDamage());
+
+        var first = result.Best[0];
+        Assert.Equal(BlockStatus.Failed, first.Status);
+        Assert.Equal(RoundTrips.Truth(profile, tampered)[0].Payload, first.Payload.ToArray());
+        Assert.True(first.Confidence < 0.5, $"a block that fails its checksum claims confidence {first.Confidence}");
+    }
+
+    public static TheoryData<string> CheckedProfiles() => [.. RoundTrips.CheckedProfileIds];
+
+    private static int HeaderOffset(BlockLayout layout, FieldRole role)
+    {
+        int offset = 0;
+        foreach (var field in layout.Header)
+        {
+            if (field.Role == role)
+            {
+                return offset + (field.BigEndian ? field.Bytes - 1 : 0);
+            }
+
+            offset += field.Bytes;
+        }
+
+        throw new InvalidOperationException($"The layout has no {role} field.");
+    }
+}
