@@ -10,6 +10,9 @@ public sealed class DecisionLog
     /// <summary>A decision closer to its boundary than this fraction of the nominal distance counts as ambiguous.</summary>
     public const float AmbiguousMargin = 0.25f;
 
+    /// <summary>How many decisions the prior on the noise is worth.</summary>
+    public const int PriorDecisions = 40;
+
     private float[] _distance = new float[1024];
     private float[] _residual = new float[1024];
     private float[] _scale = new float[1024];
@@ -57,8 +60,13 @@ public sealed class DecisionLog
         _scale.AsSpan(0, Count).CopyTo(scratch);
         double typicalScale = Median(scratch);
         _residual.AsSpan(0, Count).CopyTo(scratch);
-        double sigma = 1.4826 * Median(scratch);
-        return (Math.Max(sigma, 0.02 * typicalScale), typicalScale);
+        double observed = Math.Max(1.4826 * Median(scratch), 0.02 * typicalScale);
+
+        // A handful of decisions says little about the noise: shrink towards a pessimistic prior (half the scale),
+        // weighted as if it were PriorDecisions observations, so a block of a few bytes cannot claim near certainty.
+        double prior = 0.5 * typicalScale;
+        double sigma = Math.Sqrt((Count * observed * observed + PriorDecisions * prior * prior) / (Count + PriorDecisions));
+        return (sigma, typicalScale);
     }
 
     /// <summary>The upper median by Hoare's selection: linear time on average, and it reorders <paramref name="values"/>.</summary>

@@ -39,6 +39,9 @@ public sealed class FskDecoder : ISymbolDecoder
 {
     private const double PhaseLoopGain = 0.5;
 
+    /// <summary>The largest energy ratio between the tones that is rebalanced: 16, i.e. 12 dB.</summary>
+    private const double MaximumToneImbalance = 16;
+
     /// <summary>Gain of the speed estimate per accepted mark period (about a hundred periods of memory).</summary>
     private const double SpeedLoopGain = 0.01;
 
@@ -64,6 +67,7 @@ public sealed class FskDecoder : ISymbolDecoder
     private readonly float[] _markI, _markQ, _spaceI, _spaceQ;
     private readonly double _markStepCos, _markStepSin, _spaceStepCos, _spaceStepSin;
     private readonly double _leadInSamples;
+    private readonly double _evidenceGain;
     private readonly double _blockEndIdleSamples;
     private readonly int _frameBits;
     private readonly float[] _charD = new float[16];
@@ -83,6 +87,9 @@ public sealed class FskDecoder : ISymbolDecoder
     private bool _resuming;
     private double _lossSample;
     private double _markRun;
+    private double _markRunBeforeStart;
+    private int _negativeRun;
+    private double _markEvidence;
     private bool _inChar;
     private bool _inBlock;
     private double _charStart;
@@ -116,6 +123,7 @@ public sealed class FskDecoder : ISymbolDecoder
         (_markStepSin, _markStepCos) = Math.SinCos(2 * Math.PI * _fsk.MarkHz / sampleRate);
         (_spaceStepSin, _spaceStepCos) = Math.SinCos(2 * Math.PI * _fsk.SpaceHz / sampleRate);
         _leadInSamples = Math.Max(_fsk.LeadInMinimumSeconds * sampleRate, 2.0 * _window);
+        _evidenceGain = 2.0 / _leadInSamples;
 
         // Half a second with no start bit ends a stream block (common practice for serial tape streams).
         _blockEndIdleSamples = Math.Max(0.5 * sampleRate, 30.0 * _window);
@@ -127,6 +135,13 @@ public sealed class FskDecoder : ISymbolDecoder
     }
 
     public bool NeedsConditionedSignal => true;
+
+    /// <summary>
+    /// Mostly clear mark tone (D above 0.5) over about the lead-in's length: a running mean, with a time constant
+    /// of half the minimum lead-in, above 0.6. A fraction rather than an unbroken run, so that the noise of a poor
+    /// capture, which breaks any run of mark now and then, does not hide a lead-in.
+    /// </summary>
+    private bool HeardLeadIn => _markEvidence > 0.6;
 
     private double BitSamples => _sampleRate / (_fsk.Baud * _speed);
 
@@ -190,7 +205,7 @@ public sealed class FskDecoder : ISymbolDecoder
             }
             else
             {
-                if (d < 0 && _previousD >= 0 && _markRun >= (_inBlock || _resuming ? 0.25 * BitSamples : _leadInSamples))
+                if (d < 0 && _previousD >= 0 && _markRun >= 0.25 * BitSamples && (_inBlock || _resuming || HeardLeadIn))
                 {
                     // Start bit: D crosses zero half a window after the mark-to-space boundary.
                     double crossing = n - 1 + _previousD / (_previousD - d);
@@ -203,12 +218,17 @@ public sealed class FskDecoder : ISymbolDecoder
 
                     _inChar = true;
                     _bitIndex = 0;
+                    _markRunBeforeStart = _markRun;
                     _charStart = crossing;
                     _nextBitTime = crossing + 0.5 * BitSamples;
                 }
 
-                // The run survives the slope down to zero, so it is still whole when the crossing comes.
-                _markRun = d > 0.3f ? _markRun + 1 : d < 0 ? 0 : _markRun;
+                // The run survives the slope down to zero, so it is still whole when the crossing comes, and it survives
+                // dips below zero shorter than a quarter bit: noise makes those in any lead-in heard at low SNR, and a
+                // real space lasts a whole bit.
+                _negativeRun = d < 0 ? _negativeRun + 1 : 0;
+                _markEvidence += ((d > 0.5f ? 1 : -1) - _markEvidence) * _evidenceGain;
+                _markRun = d > 0.3f ? _markRun + 1 : _negativeRun > 0.25 * BitSamples ? 0 : _markRun;
                 if (_inBlock && n - _lastCharEnd > _blockEndIdleSamples)
                 {
                     _assembler.End(_lastCharEnd);
@@ -324,7 +344,7 @@ public sealed class FskDecoder : ISymbolDecoder
         // mean of what has been seen (the first windows that pass the test are the least pure ones, at the edge of
         // a lone bit) and becomes a running average once it has enough behind it.
         double raw = (mark - space) / total;
-        if (raw > PureTone && (_inChar || _inBlock || _markRun >= _leadInSamples))
+        if (raw > PureTone && (_inChar || _inBlock || HeardLeadIn))
         {
             _markLevelSamples++;
             _markLevel += (mark - _markLevel) * Math.Max(_levelGain, 1.0 / _markLevelSamples);
@@ -341,8 +361,11 @@ public sealed class FskDecoder : ISymbolDecoder
             return (float)raw;
         }
 
-        double m = mark / _markLevel;
-        double s = space / _spaceLevel;
+        // Rebalancing is bounded: past 12 dB between the tones (more than any deck's high-frequency loss, common
+        // practice) the weaker tone is mostly gone, and lifting it further would lift noise into confident decisions.
+        double balance = Math.Clamp(_markLevel / _spaceLevel, 1.0 / MaximumToneImbalance, MaximumToneImbalance);
+        double m = mark / balance;
+        double s = space;
         return (float)((m - s) / (m + s));
     }
 
@@ -371,9 +394,10 @@ public sealed class FskDecoder : ISymbolDecoder
         _charD[_bitIndex] = d;
         if (_bitIndex == 0 && bit)
         {
-            // Not a start bit after all: a glitch in the mark tone.
+            // Not a start bit after all: a glitch in the mark tone. Noise dips like this are common in a noisy lead-in,
+            // so the run of mark seen before it stands, as if the dip had not happened.
             _inChar = false;
-            _markRun = 0;
+            _markRun = _markRunBeforeStart + (n - _charStart);
             return;
         }
 
