@@ -17,7 +17,6 @@ public sealed class ChannelModel
     private readonly IEnumerator<double> _reversals;
     private readonly double _pw50;
     private readonly double _halfPw50Inverse;
-    private readonly double _lineScale;
     private readonly double _leak;
     private readonly List<Dropout> _dropouts;
     private readonly Random _noiseRandom;
@@ -26,16 +25,20 @@ public sealed class ChannelModel
     private readonly double _noiseSigma;
     private Biquad _deckLowPass;
     private readonly List<double> _window = new(64);
-    private int _firstSign = 1;
+    private readonly List<double> _windowWeight = new(64);
+    private double _nextWeight = -1;
+    private long _reversalCount;
     private double _nextReversal;
     private bool _reversalsDone;
     private long _sampleIndex;
-    private double _line = -1;
-    private double _previousTape;
+    private readonly List<double> _windowArctan = new(64);
+
+    // The erased tape before the recording reads as nothing; the first reversal steps the line output up from there.
+    private double _line;
     private int _boxcarPosition;
     private double _boxcarSum;
 
-    /// <param name="reversals">Reversal times in seconds of tape at nominal speed, ascending; the last one marks the end.</param>
+    /// <param name="reversals">Reversal times in seconds of tape at nominal speed, ascending.</param>
     /// <param name="signalRms">RMS of the clean signal, for setting the noise from <see cref="ChannelDamage.SnrDb"/>; null to measure it from the reversals' density.</param>
     public ChannelModel(IEnumerable<double> reversals, ChannelDamage damage, double tapeSeconds, double? signalRms = null)
     {
@@ -44,7 +47,6 @@ public sealed class ChannelModel
         _reversals = reversals.GetEnumerator();
         _pw50 = damage.Pw50Microseconds * 1e-6;
         _halfPw50Inverse = 2 / _pw50;
-        _lineScale = 4 / (Math.PI * _pw50);
         _leak = Math.Exp(-2 * Math.PI * 10.0 / damage.SampleRate);
         _deckLowPass = new Biquad(damage.DeckLowPassHz is { } lp ? BiquadCoefficients.ButterworthLowPass(lp, damage.SampleRate) : BiquadCoefficients.PassThrough);
         _noiseRandom = new Random(damage.Seed);
@@ -112,28 +114,35 @@ public sealed class ChannelModel
             while (!_reversalsDone && _nextReversal < tape + reach)
             {
                 _window.Add(_nextReversal);
+                _windowWeight.Add(_nextWeight);
+                _windowArctan.Add(Math.Atan((tape - _nextReversal) * _halfPw50Inverse));
                 Advance();
             }
 
             while (_window.Count > 0 && _window[0] < tape - reach)
             {
                 _window.RemoveAt(0);
-                _firstSign = -_firstSign;
+                _windowArctan.RemoveAt(0);
+                _windowWeight.RemoveAt(0);
             }
 
-            // Head voltage: alternating Lorentzian pulses, one per reversal.
+            // Head voltage: alternating Lorentzian pulses, one per reversal. The deck's equalisation integrates it
+            // (leakily, as real playback amplifiers roll off below a few tens of hertz); the integral of a Lorentzian
+            // over one sample step is exact in closed form, (PW50/2)·Δarctan(2t/PW50), so the line output stays right
+            // even when a sample step is as long as the pulse.
             double head = 0;
-            int sign = _firstSign;
+            double step = 0;
             for (int k = 0; k < _window.Count; k++)
             {
                 double x = (tape - _window[k]) * _halfPw50Inverse;
-                head += sign / (1 + x * x);
-                sign = -sign;
+                double weight = _windowWeight[k];
+                head += weight / (1 + x * x);
+                double arctan = Math.Atan(x);
+                step += weight * (arctan - _windowArctan[k]);
+                _windowArctan[k] = arctan;
             }
 
-            // The deck's equalisation integrates (leakily, as real playback amplifiers roll off below a few tens of hertz).
-            _line = _line * _leak + head * (tape - _previousTape) * _lineScale;
-            _previousTape = tape;
+            _line = _line * _leak + step * (2 / Math.PI);
             double value = d.Chain == ReadChain.LineOutput ? _line : head;
             output[i] = (float)AzimuthAverage(value);
         }
@@ -205,9 +214,11 @@ public sealed class ChannelModel
 
     private void Advance()
     {
+        _nextWeight = _reversalCount == 0 ? 1 : -_nextWeight;
         if (_reversals.MoveNext())
         {
             _nextReversal = _reversals.Current;
+            _reversalCount++;
         }
         else
         {

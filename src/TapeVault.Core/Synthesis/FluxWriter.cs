@@ -97,8 +97,6 @@ public static class FluxWriter
             foreach (double r in Cycle(t, leadIn)) yield return r;
             t += leadIn;
         }
-
-        yield return t;
     }
 
     private static IEnumerable<double> Fsk(FormatProfile profile, IReadOnlyList<byte[]> blocks)
@@ -199,7 +197,6 @@ public static class FluxWriter
         }
 
         foreach (double r in Zeros(profile.Recording.TrailerSeconds, 16)) yield return r;
-        yield return t;
     }
 
     private static IEnumerable<double> Cycle(double start, double period)

@@ -58,6 +58,8 @@ public sealed class ProfilesAndSynthCommandTests : IClassFixture<OutsideTempFold
     [InlineData("kcs-300", 48_000, "pcm16")]
     [InlineData("kcs-1200", 48_000, "pcm8")]
     [InlineData("kcs-1200", 44_100, "float32")]
+    [InlineData("kcs-1200", 22_050, "pcm16")]
+    [InlineData("kcs-300", 22_050, "pcm24")]
     public void Synth_WritesTheRateAndEncodingAskedFor_AndDecodeReadsTheText(string profile, int sampleRate, string encoding)
     {
         string text = temp.File($"text-{profile}-{sampleRate}-{encoding}.txt");
@@ -75,10 +77,19 @@ public sealed class ProfilesAndSynthCommandTests : IClassFixture<OutsideTempFold
         {
             "pcm8" => ("8", "Unsigned Integer PCM"),
             "pcm16" => ("16", "Signed Integer PCM"),
+            "pcm24" => ("24", "Signed Integer PCM"),
             _ => ("32", "Floating Point PCM"),
         };
         Assert.Equal(bits, OutsideTool.SoxInfo("-b", wav));
         Assert.Equal(soxEncoding, OutsideTool.SoxInfo("-e", wav));
+
+        // Outside reference: at 22.05 kHz a sample step is longer than a read-back pulse, and the channel model must
+        // still write tones that minimodem reads back exactly.
+        if (sampleRate == 22_050)
+        {
+            int baud = profile == "kcs-300" ? 300 : 1200;
+            Assert.Equal(KcsCaptures.Hex(KcsCaptures.Text), KcsCaptures.Hex(OutsideTool.MinimodemReceive(wav, baud)));
+        }
 
         string payload = temp.File($"synth-{profile}-{sampleRate}-{encoding}.bin");
         var decode = CliRun.Run("decode", wav, "--profile", profile, "--payload", payload);
