@@ -16,10 +16,16 @@ namespace TapeVault.Cli
         {
             ArgumentNullException.ThrowIfNull(args);
             ArgumentNullException.ThrowIfNull(error);
-            if (args.Length == 0 || args[0] is "help" or "--help" or "-h")
+            if (args.Length == 0)
+            {
+                error.WriteLine("tapevault: no command given; run 'tapevault help' for the list.");
+                return BadInput;
+            }
+
+            if (args[0] is "help" or "--help" or "-h")
             {
                 WriteHelp(output);
-                return args.Length == 0 ? BadInput : 0;
+                return 0;
             }
 
             try

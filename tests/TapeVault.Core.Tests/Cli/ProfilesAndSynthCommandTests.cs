@@ -29,6 +29,20 @@ public sealed class ProfilesAndSynthCommandTests : IClassFixture<OutsideTempFold
     }
 
     [Theory]
+    [InlineData]
+    [InlineData("transmogrify")]
+    [InlineData("decode")]
+    [InlineData("profiles", "--colour", "blue")]
+    public void Command_ExitsTwoWithOneLineOnStandardError_ForAMissingOrWrongCommand(params string[] args)
+    {
+        var run = CliRun.Run(args);
+
+        Assert.Equal(2, run.ExitCode);
+        Assert.Single(run.ErrorLines);
+        Assert.Equal(string.Empty, run.Output);
+    }
+
+    [Theory]
     [InlineData("kcs-300", 300)]
     [InlineData("kcs-1200", 1200)]
     public void Synth_WritesAKansasCityWavThatMinimodemAndDecodeBothRead(string profile, int baud)
