@@ -46,7 +46,7 @@ public static class CaptureDecoder
         {
             foreach (var work in full.GetConsumingEnumerable())
             {
-                session.Decode(work);
+                session.Decode(work, session.InlineDecoders, session.SettingCount);
                 free.Add(work);
             }
         });
@@ -63,6 +63,9 @@ public static class CaptureDecoder
                 }
 
                 session.Detect(work);
+
+                // The bank is the lighter stage, so this thread also runs the first decoder(s), which balances the two cores.
+                session.Decode(work, 0, session.InlineDecoders);
                 full.Add(work, options.Cancellation);
                 options.Progress?.Report(new DecodeProgress(session.SamplesSeen, total));
             }
@@ -122,7 +125,7 @@ public static class CaptureDecoder
     {
         private readonly DetectorBank _bank;
         private readonly ISymbolDecoder[] _decoders;
-        private readonly List<BlockCandidate> _candidates = [];
+        private readonly List<BlockCandidate>[] _candidates;
         private ChunkWork? _single;
 
         public DecodeSession(FormatProfile profile, IReadOnlyList<DetectorSetting> settings, int sampleRate)
@@ -131,9 +134,11 @@ public static class CaptureDecoder
             ArgumentNullException.ThrowIfNull(settings);
             _bank = new DetectorBank(settings, sampleRate);
             _decoders = new ISymbolDecoder[settings.Count];
+            _candidates = new List<BlockCandidate>[settings.Count];
             for (int i = 0; i < settings.Count; i++)
             {
-                var assembler = new BlockAssembler(profile, i, settings[i].Name, sampleRate, _candidates);
+                _candidates[i] = [];
+                var assembler = new BlockAssembler(profile, i, settings[i].Name, sampleRate, _candidates[i]);
                 bool both = settings[i].Edges == EdgeSelection.Both;
                 _decoders[i] = profile.Family switch
                 {
@@ -146,6 +151,11 @@ public static class CaptureDecoder
         }
 
         public long SamplesSeen => _bank.SamplesSeen;
+
+        public int SettingCount => _decoders.Length;
+
+        /// <summary>Decoders run on the reading thread: one in eight (the bank costs about as much as the other seven share less one).</summary>
+        public int InlineDecoders => _decoders.Length / 8;
 
         private bool NeedsConditioned => Array.Exists(_decoders, d => d.NeedsConditionedSignal);
 
@@ -184,10 +194,13 @@ public static class CaptureDecoder
         }
 
         /// <summary>The decoders' half of a chunk; chunks must arrive in order.</summary>
-        public void Decode(ChunkWork work)
+        public void Decode(ChunkWork work) => Decode(work, 0, _decoders.Length);
+
+        /// <summary>Settings <paramref name="from"/> to <paramref name="to"/> (exclusive) of a chunk; each setting's chunks must arrive in order, on one thread at a time.</summary>
+        public void Decode(ChunkWork work, int from, int to)
         {
             ArgumentNullException.ThrowIfNull(work);
-            for (int i = 0; i < _decoders.Length; i++)
+            for (int i = from; i < to; i++)
             {
                 _decoders[i].OnEdges(work.Edges[i].Items);
                 if (_decoders[i].NeedsConditionedSignal)
@@ -218,7 +231,13 @@ public static class CaptureDecoder
                 decoder.Finish(_bank.SamplesSeen);
             }
 
-            return BlockPositioner.Place(_candidates);
+            var all = new List<BlockCandidate>();
+            foreach (var list in _candidates)
+            {
+                all.AddRange(list);
+            }
+
+            return BlockPositioner.Place(all);
         }
     }
 }
