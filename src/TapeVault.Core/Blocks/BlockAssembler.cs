@@ -176,22 +176,18 @@ public sealed class BlockAssembler
             for (int i = first; i < last; i++)
             {
                 logOk += Decisions.LogRightOdds(i, sigma);
-                minMargin = Math.Min(minMargin, Decisions.Margin(i));
+                float m = Decisions.Margin(i);
+                minMargin = Math.Min(minMargin, m);
+                marginSum += m;
+                if (m < DecisionLog.AmbiguousMargin)
+                {
+                    ambiguous++;
+                }
             }
 
             byteLogOk[b] = logOk;
             byteMargin[b] = minMargin;
-        }
-
-        for (int i = 0; i < Decisions.Count; i++)
-        {
-            float m = Decisions.Margin(i);
-            marginSum += m;
-            minimumMargin = Math.Min(minimumMargin, m);
-            if (m < DecisionLog.AmbiguousMargin)
-            {
-                ambiguous++;
-            }
+            minimumMargin = Math.Min(minimumMargin, minMargin);
         }
 
         double logPayloadOk = 0;
