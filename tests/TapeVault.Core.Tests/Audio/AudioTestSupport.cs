@@ -59,36 +59,9 @@ internal static class ExternalTools
         return hex;
     }
 
-    private static string Run(string program, params string[] arguments)
-    {
-        var start = new ProcessStartInfo(program)
-        {
-            RedirectStandardOutput = true,
-            RedirectStandardError = true,
-            UseShellExecute = false,
-        };
-        foreach (string argument in arguments)
-        {
-            start.ArgumentList.Add(argument);
-        }
-
-        using Process process = Process.Start(start) ?? throw new InvalidOperationException($"Could not start {program}.");
-        Task<string> stdout = process.StandardOutput.ReadToEndAsync();
-        Task<string> stderr = process.StandardError.ReadToEndAsync();
-        if (!process.WaitForExit(60_000))
-        {
-            process.Kill(entireProcessTree: true);
-            throw new TimeoutException($"{program} did not finish within 60 s.");
-        }
-
-        process.WaitForExit();
-        if (process.ExitCode != 0)
-        {
-            throw new InvalidOperationException($"{program} {string.Join(' ', arguments)} exited with {process.ExitCode}: {stderr.Result}");
-        }
-
-        return stdout.Result;
-    }
+    // One process runner for every outside tool the tests call.
+    private static string Run(string program, params string[] arguments) =>
+        TapeVault.Core.Tests.OutsideChecks.OutsideTool.Run(program, arguments).StandardOutput;
 }
 
 /// <summary>Builds WAV files byte by byte, for headers no well-behaved writer would produce.</summary>
