@@ -18,6 +18,7 @@ public sealed class PulseClassifier
     private readonly double _logLowest;
     private readonly double _logHighest;
     private readonly double[] _boundary;
+    private readonly double[] _nominal;
     private readonly double _lowest;
     private readonly double _highest;
 
@@ -46,6 +47,7 @@ public sealed class PulseClassifier
         _logLowest = _logNominal[0] - outer;
         _logHighest = _logNominal[^1] + outer;
         _boundary = Array.ConvertAll(_logBoundary, Math.Exp);
+        _nominal = [.. nominalSeconds];
         _lowest = Math.Exp(_logLowest);
         _highest = Math.Exp(_logHighest);
     }
@@ -82,12 +84,12 @@ public sealed class PulseClassifier
 
     public int Count => _logNominal.Length;
 
-    public double NominalSeconds(int index) => Math.Exp(_logNominal[index]);
+    public double NominalSeconds(int index) => _nominal[index];
 
     /// <summary>Shortest duration (at nominal speed) that still counts as a pulse rather than a glitch.</summary>
-    public double ShortestAcceptedSeconds => Math.Exp(_logLowest);
+    public double ShortestAcceptedSeconds => _lowest;
 
-    public double LongestAcceptedSeconds => Math.Exp(_logHighest);
+    public double LongestAcceptedSeconds => _highest;
 
     /// <summary>Classifies <paramref name="seconds"/> measured at playback <paramref name="speed"/> (1 = nominal).</summary>
     public PulseDecision Classify(double seconds, double speed)
