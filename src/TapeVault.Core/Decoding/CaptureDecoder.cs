@@ -46,7 +46,7 @@ public static class CaptureDecoder
         {
             foreach (var work in full.GetConsumingEnumerable())
             {
-                session.Decode(work, session.InlineDecoders, session.SettingCount);
+                session.Decode(work);
                 free.Add(work);
             }
         });
@@ -63,9 +63,6 @@ public static class CaptureDecoder
                 }
 
                 session.Detect(work);
-
-                // The bank is the lighter stage, so this thread also runs the first decoder(s), which balances the two cores.
-                session.Decode(work, 0, session.InlineDecoders);
                 full.Add(work, options.Cancellation);
                 options.Progress?.Report(new DecodeProgress(session.SamplesSeen, total));
             }
@@ -152,10 +149,6 @@ public static class CaptureDecoder
 
         public long SamplesSeen => _bank.SamplesSeen;
 
-        public int SettingCount => _decoders.Length;
-
-        /// <summary>Decoders run on the reading thread: one in eight (the bank costs about as much as the other seven share less one).</summary>
-        public int InlineDecoders => _decoders.Length / 8;
 
         private bool NeedsConditioned => Array.Exists(_decoders, d => d.NeedsConditionedSignal);
 
@@ -194,13 +187,10 @@ public static class CaptureDecoder
         }
 
         /// <summary>The decoders' half of a chunk; chunks must arrive in order.</summary>
-        public void Decode(ChunkWork work) => Decode(work, 0, _decoders.Length);
-
-        /// <summary>Settings <paramref name="from"/> to <paramref name="to"/> (exclusive) of a chunk; each setting's chunks must arrive in order, on one thread at a time.</summary>
-        public void Decode(ChunkWork work, int from, int to)
+        public void Decode(ChunkWork work)
         {
             ArgumentNullException.ThrowIfNull(work);
-            for (int i = from; i < to; i++)
+            for (int i = 0; i < _decoders.Length; i++)
             {
                 _decoders[i].OnEdges(work.Edges[i].Items);
                 if (_decoders[i].NeedsConditionedSignal)
