@@ -25,7 +25,8 @@ public static class DecodeCommand
             throw new UsageException($"Unknown profile '{profileId}'; run 'tapevault profiles' to list them.");
         }
 
-        var channel = Channel(args.Value("channel"));
+        var settings = CliSettings.Load();
+        var channel = Channel(args.Value("channel") ?? settings.Decode.Channel);
         string? jsonPath = args.Value("json");
         string? payloadPath = args.Value("payload");
         args.RejectUnknown();
@@ -50,6 +51,7 @@ public static class DecodeCommand
             var options = new DecodeOptions
             {
                 Channel = channel,
+                ChunkSamples = settings.Decode.ChunkSamples,
                 Progress = new Progress<DecodeProgress>(p => bar.Report(p.Fraction)),
             };
             result = CaptureDecoder.Decode(capture, profile, options: options);
@@ -90,6 +92,7 @@ public static class DecodeCommand
 
 internal static class Catalogs
 {
+    /// <summary>The built-ins plus the folder named on the command line, else the settings' folder when it exists.</summary>
     public static ProfileCatalog Load(string? folder)
     {
         if (folder is not null && !Directory.Exists(folder))
@@ -97,7 +100,7 @@ internal static class Catalogs
             throw new UsageException($"The profiles folder does not exist: {folder}.");
         }
 
-        return ProfileCatalog.WithUserFolder(folder);
+        return ProfileCatalog.WithUserFolder(folder ?? CliSettings.Load().ProfilesFolder);
     }
 }
 
