@@ -7,7 +7,8 @@ namespace TapeVault.Core.Blocks;
 /// </summary>
 public static class BlockPositioner
 {
-    public static List<BlockCandidate> Place(IReadOnlyList<BlockCandidate> candidates)
+    /// <param name="copies">How many times the format writes each block in a row (the layout's copies).</param>
+    public static List<BlockCandidate> Place(IReadOnlyList<BlockCandidate> candidates, int copies = 1)
     {
         ArgumentNullException.ThrowIfNull(candidates);
         var trusted = new List<BlockCandidate>();
@@ -28,7 +29,8 @@ public static class BlockPositioner
         foreach (var c in candidates.OrderBy(c => c.StartSeconds))
         {
             string key;
-            bool hasHeader = c.Identity.FileName is not null || c.Identity.FileId is not null || c.Identity.BlockNumber is not null;
+            // A block cut short inside its header still belongs to a format with headers, even if no field was read whole.
+            bool hasHeader = !c.Header.IsEmpty || c.Identity.FileName is not null || c.Identity.FileId is not null || c.Identity.BlockNumber is not null;
             if (!hasHeader)
             {
                 int anchor = streamAnchors.FindLastIndex(a => Overlaps(a.Start, a.End, c.StartSeconds, c.EndSeconds));
@@ -46,7 +48,10 @@ public static class BlockPositioner
             }
             else
             {
-                key = FindOverlapping(trusted, c)?.Identity.Key ?? c.Identity.Key;
+                key = FindOverlapping(trusted, c)?.Identity.Key
+                    ?? (copies > 1 ? FindNeighbouringCopy(trusted, c)?.Identity.Key : null)
+                    ?? (c.Truncated && c.Payload.IsEmpty ? FindNearest(trusted, c)?.Identity.Key : null)
+                    ?? c.Identity.Key;
             }
 
             keyed.Add((c, key));
@@ -176,6 +181,72 @@ public static class BlockPositioner
         }
 
         return null;
+    }
+
+    /// <summary>
+    /// A clean copy of the same block next to a failed candidate: within two block lengths of it on the tape, with a
+    /// header that differs from the candidate's in at most two of the bytes both have. Only formats that write each block more than
+    /// once have such neighbours; elsewhere the block next door is a different block.
+    /// </summary>
+    private static BlockCandidate? FindNeighbouringCopy(List<BlockCandidate> trusted, BlockCandidate c)
+    {
+        double length = Math.Max(c.EndSeconds - c.StartSeconds, 0.1);
+        BlockCandidate? best = null;
+        int bestDifference = 3;
+        foreach (var t in trusted)
+        {
+            double reach = 2 * Math.Max(length, t.EndSeconds - t.StartSeconds) + 0.5;
+            if (t.StartSeconds > c.EndSeconds + reach)
+            {
+                break;
+            }
+
+            if (t.EndSeconds < c.StartSeconds - reach || c.Header.IsEmpty)
+            {
+                continue;
+            }
+
+            // A header cut short is compared over the bytes it has.
+            int shared = Math.Min(t.Header.Length, c.Header.Length);
+            int difference = 0;
+            for (int i = 0; i < shared && difference < bestDifference; i++)
+            {
+                if (t.Header[i] != c.Header[i])
+                {
+                    difference++;
+                }
+            }
+
+            if (difference < bestDifference)
+            {
+                best = t;
+                bestDifference = difference;
+            }
+        }
+
+        return best;
+    }
+
+    /// <summary>
+    /// For a reading cut off inside its header (so it has no identity to go by, and no payload to offer): the clean
+    /// block nearest to it in time, within two block lengths.
+    /// </summary>
+    private static BlockCandidate? FindNearest(List<BlockCandidate> trusted, BlockCandidate c)
+    {
+        BlockCandidate? best = null;
+        double bestGap = double.PositiveInfinity;
+        foreach (var t in trusted)
+        {
+            double gap = Math.Max(t.StartSeconds - c.EndSeconds, c.StartSeconds - t.EndSeconds);
+            double reach = 2 * (t.EndSeconds - t.StartSeconds) + 0.5;
+            if (gap <= reach && gap < bestGap)
+            {
+                best = t;
+                bestGap = gap;
+            }
+        }
+
+        return best;
     }
 
     private static bool Overlaps(double aStart, double aEnd, double bStart, double bEnd) =>

@@ -123,6 +123,7 @@ public static class CaptureDecoder
         private readonly DetectorBank _bank;
         private readonly ISymbolDecoder[] _decoders;
         private readonly List<BlockCandidate>[] _candidates;
+        private readonly int _copies;
         private ChunkWork? _single;
 
         public DecodeSession(FormatProfile profile, IReadOnlyList<DetectorSetting> settings, int sampleRate)
@@ -132,6 +133,7 @@ public static class CaptureDecoder
             _bank = new DetectorBank(settings, sampleRate);
             _decoders = new ISymbolDecoder[settings.Count];
             _candidates = new List<BlockCandidate>[settings.Count];
+            _copies = profile.Layout.Copies;
             for (int i = 0; i < settings.Count; i++)
             {
                 _candidates[i] = [];
@@ -227,7 +229,7 @@ public static class CaptureDecoder
                 all.AddRange(list);
             }
 
-            return BlockPositioner.Place(all);
+            return BlockPositioner.Place(all, _copies);
         }
     }
 }

@@ -52,6 +52,31 @@ public sealed class DeepDropoutTests(RoundTripFolder folder) : IClassFixture<Rou
         Assert.All(inDropout, c => Assert.NotEqual(BlockStatus.Clean, c.Status));
     }
 
+    [Theory]
+    [InlineData(0.005)]
+    [InlineData(0.02)]
+    [InlineData(0.04)]
+    public void A_dropout_in_a_first_copys_header_adds_no_position_when_the_second_copy_is_clean(double offsetSeconds)
+    {
+        // The demo format writes every block twice (its profile's layout.copies), so the readings of a damaged first
+        // copy belong with the clean second one, not at a position of their own.
+        var profile = RoundTrips.Profile("orrin-80");
+        var files = RoundTrips.Files(profile);
+        var truth = RoundTrips.Truth(profile, BlockWriter.Blocks(profile, files));
+        var (_, clean) = RoundTrips.SynthAndDecode(folder, profile, files, new ChannelDamage());
+        var hit = FirstReading(clean, Target);
+
+        var damage = new ChannelDamage { Dropouts = [new Dropout(hit.StartSeconds + offsetSeconds, 0.03, 1.0)] };
+        var (_, result) = RoundTrips.SynthAndDecode(folder, profile, files, damage);
+        string got = RoundTrips.Describe(result);
+
+        Assert.True(result.Best.Count == truth.Count, $"{result.Best.Count} positions for {truth.Count} blocks: {got}");
+        for (int i = 0; i < truth.Count; i++)
+        {
+            Assert.True(result.Best.Any(b => b.Position == i && b.Status == BlockStatus.Clean && truth[i].Matches(b)), $"block {i} is not clean at position {i}: {got}");
+        }
+    }
+
     private static BlockCandidate FirstReading(Decoding.DecodeResult result, int position) =>
         result.Candidates.Where(c => c.Position == position).MinBy(c => c.StartSeconds)
         ?? throw new InvalidOperationException($"No candidate at position {position}.");
