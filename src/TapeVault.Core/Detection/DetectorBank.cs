@@ -235,7 +235,8 @@ public sealed class DetectorBank
                 var c = gainNow * filtered + gainPrev * previousFiltered;
                 previousFiltered = filtered;
 
-                envelope = Vector256.Max(Vector256.Abs(c), envelope * decay);
+                // MaxNative: one vmaxps; the IEEE NaN and signed-zero care of Max is not needed for an envelope.
+                envelope = Vector256.MaxNative(Vector256.Abs(c), envelope * decay);
                 var band = bandFixed + bandRelative * envelope;
 
                 // Remember where the signal last crossed zero, interpolated between samples.
