@@ -44,6 +44,8 @@ public static class DecodeReport
         int unchecked_ = result.Best.Count(b => b.Status == BlockStatus.Unchecked);
         output.WriteLine();
         output.WriteLine($"{result.Best.Count} positions: {clean} clean, {failed} failed, {unchecked_} unchecked.");
+        output.WriteLine("confidence: the estimated chance that the block's payload is right. margin: how far its least certain");
+        output.WriteLine("decision was from a wrong one (0 to 1). agree: readings of the position with the same status and bytes, of all.");
     }
 
     public static string Status(BlockStatus status) => status switch
