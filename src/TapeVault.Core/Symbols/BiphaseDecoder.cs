@@ -58,12 +58,6 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         Data,
     }
 
-    public bool NeedsConditionedSignal => false;
-
-    public void OnConditioned(ReadOnlySpan<float> signal, long chunkStart)
-    {
-    }
-
     public void OnEdges(ReadOnlySpan<Edge> edges)
     {
         foreach (var edge in edges)

@@ -8,12 +8,15 @@ namespace TapeVault.Core.Symbols;
 /// </summary>
 public interface ISymbolDecoder
 {
-    /// <summary>True when the decoder reads the conditioned signal as well as the edges.</summary>
-    bool NeedsConditionedSignal { get; }
+    /// <summary>True when the decoder reads the conditioned signal as well as the edges; edge decoders need not say.</summary>
+    bool NeedsConditionedSignal => false;
 
     void OnEdges(ReadOnlySpan<Edge> edges);
 
-    void OnConditioned(ReadOnlySpan<float> signal, long chunkStart);
+    /// <summary>The conditioned signal of the chunk whose first sample is <paramref name="chunkStart"/>; only tone decoders read it.</summary>
+    void OnConditioned(ReadOnlySpan<float> signal, long chunkStart)
+    {
+    }
 
     /// <summary>The capture ended at <paramref name="endSample"/>: close any block in progress.</summary>
     void Finish(double endSample);

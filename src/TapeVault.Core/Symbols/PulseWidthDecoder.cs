@@ -69,12 +69,6 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         Data,
     }
 
-    public bool NeedsConditionedSignal => false;
-
-    public void OnConditioned(ReadOnlySpan<float> signal, long chunkStart)
-    {
-    }
-
     public void OnEdges(ReadOnlySpan<Edge> edges)
     {
         foreach (var edge in edges)
