@@ -91,6 +91,10 @@ public sealed class DetectorBank
         private Vector256<float> _decay, _bandFixed, _bandRelative;
         private int _countRising, _countFalling;
 
+        // Per slice: the state at each counted switch, turned into edges after the sample loop.
+        private Vector256<float>[] _eventCrossing, _eventEnvelope;
+        private uint[] _eventUp, _eventDown;
+
         // State.
         private float _previousSample;
         private Vector256<float> _hpY, _z1, _z2, _previousFiltered, _previousConditioned, _envelope, _state, _lastCrossing;
@@ -182,6 +186,10 @@ public sealed class DetectorBank
                 _countFalling = falling,
                 _state = Vector256.Create(-1f),
                 _lastCrossing = Vector256<float>.Zero,
+                _eventCrossing = new Vector256<float>[SliceSamples],
+                _eventEnvelope = new Vector256<float>[SliceSamples],
+                _eventUp = new uint[SliceSamples],
+                _eventDown = new uint[SliceSamples],
             };
         }
 
@@ -214,6 +222,19 @@ public sealed class DetectorBank
             int lanes = _laneCount;
             Span<float> crossingLanes = stackalloc float[LanesPerGroup];
             Span<float> envelopeLanes = stackalloc float[LanesPerGroup];
+
+            var eventCrossing = _eventCrossing;
+            var eventEnvelope = _eventEnvelope;
+            var eventUp = _eventUp;
+            var eventDown = _eventDown;
+            uint laneMask = (1u << lanes) - 1;
+            uint countRising = (uint)_countRising & laneMask;
+            uint countFalling = (uint)_countFalling & laneMask;
+            int events = 0;
+            if (samples.Length > eventUp.Length)
+            {
+                throw new ArgumentException($"A lane group takes at most {eventUp.Length} samples at a time.", nameof(samples));
+            }
 
             // The index of the previous sample, kept as a vector so the loop converts no integer per sample.
             var sampleBefore = Vector256.Create(-1f);
@@ -255,29 +276,35 @@ public sealed class DetectorBank
                 }
 
                 // Schmitt trigger: low goes high above +band, high goes low below −band.
-                // A lane switches when state·c > band with the opposite sign: low (−1) and c > band, or high (+1) and c < −band.
                 var goUp = Vector256.BitwiseAnd(Vector256.LessThan(state, zero), Vector256.GreaterThan(c, band));
                 var goDown = Vector256.BitwiseAnd(Vector256.GreaterThan(state, zero), Vector256.LessThan(c, -band));
-                if ((goUp | goDown) == zero)
-                {
-                    continue;
-                }
+                state = Vector256.ConditionalSelect(goUp, one, Vector256.ConditionalSelect(goDown, minusOne, state));
 
+                // Some lane switches on most samples, so a branch here would be a coin toss and a call would make the
+                // JIT spill every state vector: each sample writes an event, and only a counted switch keeps it.
                 uint upBits = goUp.ExtractMostSignificantBits();
                 uint downBits = goDown.ExtractMostSignificantBits();
+                eventCrossing[events] = lastCrossing;
+                eventEnvelope[events] = envelope;
+                eventUp[events] = upBits;
+                eventDown[events] = downBits;
+                events += ((upBits & countRising) | (downBits & countFalling)) != 0 ? 1 : 0;
+            }
 
-                state = Vector256.ConditionalSelect(goUp, one, Vector256.ConditionalSelect(goDown, minusOne, state));
-                lastCrossing.CopyTo(crossingLanes);
-                envelope.CopyTo(envelopeLanes);
-                uint counted = (upBits & (uint)_countRising) | (downBits & (uint)_countFalling);
-                counted &= (1u << lanes) - 1;
+            // The slice's counted switches become edges, outside the sample loop.
+            for (int e = 0; e < events; e++)
+            {
+                eventCrossing[e].CopyTo(crossingLanes);
+                eventEnvelope[e].CopyTo(envelopeLanes);
+                uint up = eventUp[e];
+                uint counted = (up & countRising) | (eventDown[e] & countFalling);
                 while (counted != 0)
                 {
                     int lane = BitOperations.TrailingZeroCount(counted);
                     counted &= counted - 1;
                     edges[_firstSetting + lane].Add(new Edge(
                         chunkStart + (double)crossingLanes[lane],
-                        (upBits & (1u << lane)) != 0,
+                        (up & (1u << lane)) != 0,
                         envelopeLanes[lane]));
                 }
             }
