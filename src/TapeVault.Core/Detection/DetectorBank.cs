@@ -92,7 +92,7 @@ public sealed class DetectorBank
         private int _countRising, _countFalling;
 
         // Per slice: the state at each counted switch, turned into edges after the sample loop.
-        private Vector256<float>[] _eventCrossing, _eventEnvelope;
+        private Vector256<float>[] _eventCrossing, _eventEnvelope, _eventConditioned;
         private uint[] _eventUp, _eventDown;
 
         // State.
@@ -188,6 +188,7 @@ public sealed class DetectorBank
                 _lastCrossing = Vector256<float>.Zero,
                 _eventCrossing = new Vector256<float>[SliceSamples],
                 _eventEnvelope = new Vector256<float>[SliceSamples],
+                _eventConditioned = new Vector256<float>[SliceSamples],
                 _eventUp = new uint[SliceSamples],
                 _eventDown = new uint[SliceSamples],
             };
@@ -227,6 +228,7 @@ public sealed class DetectorBank
             var eventEnvelope = _eventEnvelope;
             var eventUp = _eventUp;
             var eventDown = _eventDown;
+            var eventConditioned = _eventConditioned;
             uint laneMask = (1u << lanes) - 1;
             uint countRising = (uint)_countRising & laneMask;
             uint countFalling = (uint)_countFalling & laneMask;
@@ -239,56 +241,67 @@ public sealed class DetectorBank
             // The index of the previous sample, kept as a vector so the loop converts no integer per sample.
             var sampleBefore = Vector256.Create(-1f);
 
-            for (int n = 0; n < samples.Length; n++)
+            // Counters here cannot overflow (both stay below the slice length); unchecked keeps the loop free of overflow tests.
+            unchecked
             {
-                float x = samples[n];
-
-                // One-pole DC block: y[n] = a·(y[n−1] + x[n] − x[n−1]).
-                hpY = hpA * (hpY + Vector256.Create(x - previousSample));
-                previousSample = x;
-
-                // Biquad low-pass, transposed direct form II.
-                var filtered = b0 * hpY + z1;
-                z1 = b1 * hpY - a1 * filtered + z2;
-                z2 = b2 * hpY - a2 * filtered;
-
-                // Optional derivative and polarity, folded into two gains per lane.
-                var c = gainNow * filtered + gainPrev * previousFiltered;
-                previousFiltered = filtered;
-
-                // MaxNative: one vmaxps; the IEEE NaN and signed-zero care of Max is not needed for an envelope.
-                envelope = Vector256.MaxNative(Vector256.Abs(c), envelope * decay);
-                var band = bandFixed + bandRelative * envelope;
-
-                // Remember where the signal last crossed zero, interpolated between samples.
-                var crossed = Vector256.Xor(Vector256.LessThan(previousConditioned, zero), Vector256.LessThan(c, zero));
-                var crossingTime = sampleBefore + previousConditioned / (previousConditioned - c);
-                sampleBefore += one;
-                lastCrossing = Vector256.ConditionalSelect(crossed, crossingTime, lastCrossing);
-                previousConditioned = c;
-
-                if (conditioned is not null)
+                for (int n = 0; n < samples.Length; n++)
                 {
-                    for (int lane = 0; lane < lanes; lane++)
+                    float x = samples[n];
+
+                    // One-pole DC block: y[n] = a·(y[n−1] + x[n] − x[n−1]).
+                    hpY = hpA * (hpY + Vector256.Create(x - previousSample));
+                    previousSample = x;
+
+                    // Biquad low-pass, transposed direct form II.
+                    var filtered = b0 * hpY + z1;
+                    z1 = b1 * hpY - a1 * filtered + z2;
+                    z2 = b2 * hpY - a2 * filtered;
+
+                    // Optional derivative and polarity, folded into two gains per lane.
+                    var c = gainNow * filtered + gainPrev * previousFiltered;
+                    previousFiltered = filtered;
+
+                    // MaxNative: one vmaxps; the IEEE NaN and signed-zero care of Max is not needed for an envelope.
+                    envelope = Vector256.MaxNative(Vector256.Abs(c), envelope * decay);
+                    var band = bandFixed + bandRelative * envelope;
+
+                    // Remember where the signal last crossed zero, interpolated between samples.
+                    var crossed = Vector256.Xor(Vector256.LessThan(previousConditioned, zero), Vector256.LessThan(c, zero));
+                    var crossingTime = sampleBefore + previousConditioned / (previousConditioned - c);
+                    sampleBefore += one;
+                    lastCrossing = Vector256.ConditionalSelect(crossed, crossingTime, lastCrossing);
+                    previousConditioned = c;
+
+                    // Kept for tone detectors; one store, transposed after the loop only when they ask for it.
+                    eventConditioned[n] = c;
+
+                    // Schmitt trigger: low goes high above +band, high goes low below −band.
+                    var goUp = Vector256.BitwiseAnd(Vector256.LessThan(state, zero), Vector256.GreaterThan(c, band));
+                    var goDown = Vector256.BitwiseAnd(Vector256.GreaterThan(state, zero), Vector256.LessThan(c, -band));
+                    state = Vector256.ConditionalSelect(goUp, one, Vector256.ConditionalSelect(goDown, minusOne, state));
+
+                    // Some lane switches on most samples, so a branch here would be a coin toss and a call would make the
+                    // JIT spill every state vector: each sample writes an event, and only a counted switch keeps it.
+                    uint upBits = goUp.ExtractMostSignificantBits();
+                    uint downBits = goDown.ExtractMostSignificantBits();
+                    eventCrossing[events] = lastCrossing;
+                    eventEnvelope[events] = envelope;
+                    eventUp[events] = upBits;
+                    eventDown[events] = downBits;
+                    events += ((upBits & countRising) | (downBits & countFalling)) != 0 ? 1 : 0;
+                }
+            }
+
+            if (conditioned is not null)
+            {
+                for (int lane = 0; lane < lanes; lane++)
+                {
+                    var target = conditioned[_firstSetting + lane].AsSpan(conditionedOffset, samples.Length);
+                    for (int n = 0; n < target.Length; n++)
                     {
-                        conditioned[_firstSetting + lane][conditionedOffset + n] = c.GetElement(lane);
+                        target[n] = eventConditioned[n].GetElement(lane);
                     }
                 }
-
-                // Schmitt trigger: low goes high above +band, high goes low below −band.
-                var goUp = Vector256.BitwiseAnd(Vector256.LessThan(state, zero), Vector256.GreaterThan(c, band));
-                var goDown = Vector256.BitwiseAnd(Vector256.GreaterThan(state, zero), Vector256.LessThan(c, -band));
-                state = Vector256.ConditionalSelect(goUp, one, Vector256.ConditionalSelect(goDown, minusOne, state));
-
-                // Some lane switches on most samples, so a branch here would be a coin toss and a call would make the
-                // JIT spill every state vector: each sample writes an event, and only a counted switch keeps it.
-                uint upBits = goUp.ExtractMostSignificantBits();
-                uint downBits = goDown.ExtractMostSignificantBits();
-                eventCrossing[events] = lastCrossing;
-                eventEnvelope[events] = envelope;
-                eventUp[events] = upBits;
-                eventDown[events] = downBits;
-                events += ((upBits & countRising) | (downBits & countFalling)) != 0 ? 1 : 0;
             }
 
             // The slice's counted switches become edges, outside the sample loop.
