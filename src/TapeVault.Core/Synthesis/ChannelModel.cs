@@ -27,7 +27,6 @@ public sealed class ChannelModel
     private readonly List<double> _window = new(64);
     private readonly List<double> _windowWeight = new(64);
     private double _nextWeight = -1;
-    private long _reversalCount;
     private double _nextReversal;
     private bool _reversalsDone;
     private long _sampleIndex;
@@ -214,11 +213,11 @@ public sealed class ChannelModel
 
     private void Advance()
     {
-        _nextWeight = _reversalCount == 0 ? 1 : -_nextWeight;
+        // Reversals alternate in sign; the first one (weight +1 after the initial −1) steps up.
+        _nextWeight = -_nextWeight;
         if (_reversals.MoveNext())
         {
             _nextReversal = _reversals.Current;
-            _reversalCount++;
         }
         else
         {
