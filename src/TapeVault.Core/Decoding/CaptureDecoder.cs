@@ -42,20 +42,29 @@ public static class CaptureDecoder
             free.Add(session.NewChunk(options.ChunkSamples));
         }
 
+        // A decoder that throws stops the worker, which then returns no buffers: the token frees this thread too.
+        using var stop = CancellationTokenSource.CreateLinkedTokenSource(options.Cancellation);
         var worker = Task.Run(() =>
         {
-            foreach (var work in full.GetConsumingEnumerable())
+            try
             {
-                session.Decode(work);
-                free.Add(work);
+                foreach (var work in full.GetConsumingEnumerable(stop.Token))
+                {
+                    session.Decode(work);
+                    free.Add(work, stop.Token);
+                }
+            }
+            catch (Exception) when (!stop.IsCancellationRequested)
+            {
+                stop.Cancel();
+                throw;
             }
         });
         try
         {
-            while (!worker.IsCompleted)
+            while (true)
             {
-                options.Cancellation.ThrowIfCancellationRequested();
-                var work = free.Take(options.Cancellation);
+                var work = free.Take(stop.Token);
                 work.Length = reader.Read(work.Samples);
                 if (work.Length == 0)
                 {
@@ -63,9 +72,13 @@ public static class CaptureDecoder
                 }
 
                 session.Detect(work);
-                full.Add(work, options.Cancellation);
+                full.Add(work, stop.Token);
                 options.Progress?.Report(new DecodeProgress(session.SamplesSeen, total));
             }
+        }
+        catch (OperationCanceledException) when (!options.Cancellation.IsCancellationRequested)
+        {
+            // The worker failed; its exception is the one to report, below.
         }
         finally
         {
@@ -74,12 +87,17 @@ public static class CaptureDecoder
             {
                 worker.Wait(CancellationToken.None);
             }
-            catch (AggregateException e) when (e.InnerException is not null)
+            catch (AggregateException e) when (e.InnerException is not null and not OperationCanceledException)
             {
                 System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(e.InnerException).Throw();
             }
+            catch (AggregateException) when (options.Cancellation.IsCancellationRequested)
+            {
+                // Cancelled by the caller: the cancellation below says so.
+            }
         }
 
+        options.Cancellation.ThrowIfCancellationRequested();
         var capture = reader.Complete();
         var candidates = session.Finish();
         return new DecodeResult(capture, profile, bank, candidates, BlockPositioner.BestPerPosition(candidates), CodeVersion);
@@ -150,7 +168,6 @@ public static class CaptureDecoder
         }
 
         public long SamplesSeen => _bank.SamplesSeen;
-
 
         private bool NeedsConditioned => Array.Exists(_decoders, d => d.NeedsConditionedSignal);
 

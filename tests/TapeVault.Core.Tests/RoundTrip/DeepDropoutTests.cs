@@ -77,7 +77,7 @@ public sealed class DeepDropoutTests(RoundTripFolder folder) : IClassFixture<Rou
         }
     }
 
-    private static BlockCandidate FirstReading(Decoding.DecodeResult result, int position) =>
+    private static BlockCandidate FirstReading(TapeVault.Core.Decoding.DecodeResult result, int position) =>
         result.Candidates.Where(c => c.Position == position).MinBy(c => c.StartSeconds)
         ?? throw new InvalidOperationException($"No candidate at position {position}.");
 }
