@@ -44,8 +44,6 @@ public sealed class BlockAssembler
 
     public bool InBlock { get; private set; }
 
-    public int ByteCount => _bytes.Count;
-
     public void Begin(double sample)
     {
         InBlock = true;
@@ -225,7 +223,7 @@ public sealed class BlockAssembler
             uint computed = _checksum.Compute(covered) & WidthMask(checksumBytes);
             status = computed == stored ? BlockStatus.Clean : BlockStatus.Failed;
             confidence = status == BlockStatus.Clean
-                ? PosteriorGivenMatch(logPayloadOk + logRestOk, Math.Pow(2, -8 * _checksum.Width))
+                ? PosteriorGivenMatch(logPayloadOk + logRestOk, _checksum.FalseMatchProbability)
                 : PayloadRightGivenMismatch(logPayloadOk, logRestOk);
         }
 

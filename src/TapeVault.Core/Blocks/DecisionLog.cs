@@ -123,9 +123,6 @@ public sealed class DecisionLog
         return values[k];
     }
 
-    /// <summary>The probability that decision i is wrong, for Gaussian spread <paramref name="sigma"/>.</summary>
-    public double ErrorOdds(int i, double sigma) => GaussianTail(_distance[i] / sigma);
-
     /// <summary>
     /// log(1 − odds) of decision i. Beyond nine standard deviations the odds are below 1e-19, which vanish next to
     /// 1 in double precision, so the common case costs no exponential.

@@ -57,15 +57,13 @@ public sealed class SyncByteFramer
             if (bit)
             {
                 _ones++;
-                int shift = _framing.BitOrder == BitOrder.LsbFirst ? position : _framing.DataBits - 1 - position;
-                _data |= 1 << shift;
+                _data |= 1 << _framing.DataBitShift(position);
             }
         }
         else if (i < parityEnd)
         {
             int total = _ones + (bit ? 1 : 0);
-            bool even = (total & 1) == 0;
-            _framingOk &= _framing.Parity == Parity.Even ? even : !even;
+            _framingOk &= _framing.ParityHolds(total);
         }
         else
         {

@@ -89,7 +89,8 @@ public sealed class DetectorBank
         private Vector256<float> _b0, _b1, _b2, _a1, _a2;
         private Vector256<float> _gainNow, _gainPrev;
         private Vector256<float> _decay, _bandFixed, _bandRelative;
-        private int _countRising, _countFalling;
+        // Lanes whose rising (falling) switches count as edges; unused lanes count none.
+        private uint _countRising, _countFalling;
 
         // Per slice: the state at each counted switch, turned into edges after the sample loop.
         private Vector256<float>[] _eventCrossing, _eventEnvelope, _eventConditioned;
@@ -112,7 +113,7 @@ public sealed class DetectorBank
             Span<float> gainPrev = stackalloc float[LanesPerGroup];
             Span<float> bandFixed = stackalloc float[LanesPerGroup];
             Span<float> bandRelative = stackalloc float[LanesPerGroup];
-            int rising = 0, falling = 0;
+            uint rising = 0, falling = 0;
 
             // Unused lanes repeat the first setting and are never read.
             for (int lane = 0; lane < LanesPerGroup; lane++)
@@ -155,12 +156,12 @@ public sealed class DetectorBank
                 {
                     if (s.Edges != EdgeSelection.Falling)
                     {
-                        rising |= 1 << lane;
+                        rising |= 1u << lane;
                     }
 
                     if (s.Edges != EdgeSelection.Rising)
                     {
-                        falling |= 1 << lane;
+                        falling |= 1u << lane;
                     }
                 }
             }
@@ -229,9 +230,8 @@ public sealed class DetectorBank
             var eventUp = _eventUp;
             var eventDown = _eventDown;
             var eventConditioned = _eventConditioned;
-            uint laneMask = (1u << lanes) - 1;
-            uint countRising = (uint)_countRising & laneMask;
-            uint countFalling = (uint)_countFalling & laneMask;
+            uint countRising = _countRising;
+            uint countFalling = _countFalling;
             int events = 0;
             if (samples.Length > eventUp.Length)
             {

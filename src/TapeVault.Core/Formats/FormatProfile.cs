@@ -70,6 +70,20 @@ public sealed record BiphaseEncoding(double CellSeconds, bool OneIsFalling, int 
 public sealed record ByteFraming(int DataBits, BitOrder BitOrder, string StartBits, string StopBits, Parity Parity)
 {
     public int BitsPerByte => StartBits.Length + DataBits + (Parity == Parity.None ? 0 : 1) + StopBits.Length;
+
+    /// <summary>Where the <paramref name="index"/>-th data bit on tape goes in the byte (a left shift).</summary>
+    public int DataBitShift(int index) => BitOrder == BitOrder.LsbFirst ? index : DataBits - 1 - index;
+
+    /// <summary>The parity bit a writer adds after data bits holding <paramref name="dataOnes"/> ones.</summary>
+    public bool ParityBit(int dataOnes) => Parity == Parity.Even ? (dataOnes & 1) == 1 : (dataOnes & 1) == 0;
+
+    /// <summary>Whether data and parity bits holding <paramref name="ones"/> ones between them satisfy the parity.</summary>
+    public bool ParityHolds(int ones) => Parity switch
+    {
+        Parity.Even => (ones & 1) == 0,
+        Parity.Odd => (ones & 1) == 1,
+        _ => true,
+    };
 }
 
 public sealed record HeaderField(string Name, int Bytes, FieldRole Role, bool BigEndian);

@@ -82,8 +82,6 @@ public sealed class PulseClassifier
         return c;
     }
 
-    public int Count => _logNominal.Length;
-
     public double NominalSeconds(int index) => _nominal[index];
 
     /// <summary>Shortest duration (at nominal speed) that still counts as a pulse rather than a glitch.</summary>

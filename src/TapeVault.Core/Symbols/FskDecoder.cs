@@ -434,8 +434,7 @@ public sealed class FskDecoder : ISymbolDecoder
             if (_charBits[1 + b])
             {
                 ones++;
-                int shift = _framing.BitOrder == BitOrder.LsbFirst ? b : _framing.DataBits - 1 - b;
-                value |= 1 << shift;
+                value |= 1 << _framing.DataBitShift(b);
             }
         }
 
@@ -443,8 +442,7 @@ public sealed class FskDecoder : ISymbolDecoder
         bool framingOk = _charD[_frameBits - 1] > 0;
         if (_framing.Parity != Parity.None)
         {
-            bool even = ((ones + (_charBits[1 + _framing.DataBits] ? 1 : 0)) & 1) == 0;
-            framingOk &= _framing.Parity == Parity.Even ? even : !even;
+            framingOk &= _framing.ParityHolds(ones + (_charBits[1 + _framing.DataBits] ? 1 : 0));
         }
 
         _assembler.NoteLevel(_level);

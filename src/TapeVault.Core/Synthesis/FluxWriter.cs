@@ -33,16 +33,14 @@ public static class FluxWriter
         int ones = 0;
         for (int i = 0; i < framing.DataBits; i++)
         {
-            int shift = framing.BitOrder == BitOrder.LsbFirst ? i : framing.DataBits - 1 - i;
-            bool bit = ((value >> shift) & 1) != 0;
+            bool bit = ((value >> framing.DataBitShift(i)) & 1) != 0;
             ones += bit ? 1 : 0;
             yield return bit;
         }
 
         if (framing.Parity != Parity.None)
         {
-            bool even = (ones & 1) == 0;
-            yield return framing.Parity == Parity.Even ? !even : even;
+            yield return framing.ParityBit(ones);
         }
 
         foreach (char c in framing.StopBits)
