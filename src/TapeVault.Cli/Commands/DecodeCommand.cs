@@ -18,14 +18,8 @@ public static class DecodeCommand
         }
 
         string capture = args.Positional[0];
-        var catalog = Catalogs.Load(args.Value("profiles"));
-        string profileId = args.Required("profile");
-        if (!catalog.TryGet(profileId, out var profile))
-        {
-            throw new UsageException($"Unknown profile '{profileId}'; run 'tapevault profiles' to list them.");
-        }
-
         var settings = CliSettings.Load();
+        var profile = Catalogs.Profile(args, settings);
         var channel = Channel(args.Value("channel") ?? settings.Decode.Channel);
         string? jsonPath = args.Value("json");
         string? payloadPath = args.Value("payload");
@@ -52,7 +46,7 @@ public static class DecodeCommand
             {
                 Channel = channel,
                 ChunkSamples = settings.Decode.ChunkSamples,
-                Progress = new Progress<DecodeProgress>(p => bar.Report(p.Fraction)),
+                Progress = bar.ForDecode(),
             };
             result = CaptureDecoder.Decode(capture, profile, options: options);
             bar.Report(1);
@@ -92,15 +86,26 @@ public static class DecodeCommand
 
 internal static class Catalogs
 {
-    /// <summary>The built-ins plus the folder named on the command line, else the settings' folder when it exists.</summary>
-    public static ProfileCatalog Load(string? folder)
+    /// <summary>The built-ins plus the folder named by --profiles, else the settings' folder when it exists.</summary>
+    public static ProfileCatalog Load(CommandLine args, CliSettings settings)
     {
+        string? folder = args.Value("profiles");
         if (folder is not null && !Directory.Exists(folder))
         {
             throw new UsageException($"The profiles folder does not exist: {folder}.");
         }
 
-        return ProfileCatalog.WithUserFolder(folder ?? CliSettings.Load().ProfilesFolder);
+        return ProfileCatalog.WithUserFolder(folder ?? settings.ProfilesFolder);
+    }
+
+    /// <summary>The profile that --profile names.</summary>
+    public static FormatProfile Profile(CommandLine args, CliSettings settings)
+    {
+        var catalog = Load(args, settings);
+        string id = args.Required("profile");
+        return catalog.TryGet(id, out var profile)
+            ? profile
+            : throw new UsageException($"Unknown profile '{id}'; run 'tapevault profiles' to list them.");
     }
 }
 

@@ -39,7 +39,7 @@ public static class DemoCommand
                 {
                     result = CaptureDecoder.Decode(path, profile, options: new DecodeOptions
                     {
-                        Progress = new Progress<DecodeProgress>(x => bar.Report(x.Fraction)),
+                        Progress = bar.ForDecode(),
                     });
                 }
 

@@ -9,7 +9,7 @@ public static class ProfilesCommand
     {
         ArgumentNullException.ThrowIfNull(args);
         ArgumentNullException.ThrowIfNull(output);
-        var catalog = Catalogs.Load(args.Value("profiles"));
+        var catalog = Catalogs.Load(args, CliSettings.Load());
         args.RejectUnknown();
         output.WriteLine($"{"id",-14} {"family",-12} name");
         foreach (var profile in catalog.All)

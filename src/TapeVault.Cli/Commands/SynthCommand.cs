@@ -21,12 +21,7 @@ public static class SynthCommand
             throw new UsageException($"Usage: tapevault {Usage}");
         }
 
-        var catalog = Catalogs.Load(args.Value("profiles"));
-        string id = args.Required("profile");
-        if (!catalog.TryGet(id, out var profile))
-        {
-            throw new UsageException($"Unknown profile '{id}'; run 'tapevault profiles' to list them.");
-        }
+        var profile = Catalogs.Profile(args, CliSettings.Load());
 
         string? text = args.Value("text");
         string? file = args.Value("file");
