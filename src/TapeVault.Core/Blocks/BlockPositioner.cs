@@ -61,12 +61,12 @@ public static class BlockPositioner
         // closely; the same identity much later (a block number reused by the next file) is a new position. Copies
         // are written back to back, so the same identity after a block read in between is a new position too, however
         // close: two short files whose headers carry only a block number both start at block 0.
-        var stretches = new List<(string Key, double Start, double End)>();
+        // Stretches are numbered in order of their first reading, which makes them the positions in tape order.
+        var stretchEnd = new List<double>();
         var stretchesByKey = new Dictionary<string, List<int>>(StringComparer.Ordinal);
         var readings = new List<(double Start, double End, int Stretch)>();
         var positionOf = new int[keyed.Count];
-        var byStart = Enumerable.Range(0, keyed.Count).OrderBy(i => keyed[i].Candidate.StartSeconds).ToList();
-        foreach (int i in byStart)
+        for (int i = 0; i < keyed.Count; i++)
         {
             var (candidate, key) = keyed[i];
             double reach = Math.Max(1.0, 1.5 * (candidate.EndSeconds - candidate.StartSeconds));
@@ -76,22 +76,21 @@ public static class BlockPositioner
                 stretchesByKey.Add(key, ofKey);
             }
 
-            int found = ofKey.Count > 0 && candidate.StartSeconds < stretches[ofKey[^1]].End + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds)
+            int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnd[ofKey[^1]] + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds)
                 ? ofKey[^1]
                 : -1;
             if (found < 0)
             {
-                stretches.Add((key, candidate.StartSeconds, candidate.EndSeconds));
-                found = stretches.Count - 1;
+                stretchEnd.Add(candidate.EndSeconds);
+                found = stretchEnd.Count - 1;
                 ofKey.Add(found);
             }
             else
             {
-                var s = stretches[found];
-                stretches[found] = s with { End = Math.Max(s.End, candidate.EndSeconds) };
+                stretchEnd[found] = Math.Max(stretchEnd[found], candidate.EndSeconds);
             }
 
-            // Candidates arrive in order of start, so these starts ascend.
+            // Candidates arrive in order of start (keyed was built so), so these starts ascend.
             readings.Add((candidate.StartSeconds, candidate.EndSeconds, found));
             positionOf[i] = found;
         }
@@ -100,7 +99,7 @@ public static class BlockPositioner
         // few readings can have begun after s ended).
         bool ReadInBetween(int s, double start)
         {
-            for (int r = readings.Count - 1; r >= 0 && readings[r].Start > stretches[s].End; r--)
+            for (int r = readings.Count - 1; r >= 0 && readings[r].Start > stretchEnd[s]; r--)
             {
                 if (readings[r].Stretch != s && readings[r].End <= start)
                 {
