@@ -18,10 +18,10 @@ public sealed class ArchiveOptions
     public long MaxUploadBytes { get; set; } = 2L * 1024 * 1024 * 1024;
 
     /// <summary>File name extensions accepted for captures.</summary>
-    public List<string> AllowedExtensions { get; set; } = [".wav", ".wave"];
+    public string[] AllowedExtensions { get; set; } = [".wav", ".wave"];
 
     /// <summary>Content types accepted for captures (what browsers and tools send for WAV, or a plain byte stream).</summary>
-    public List<string> AllowedContentTypes { get; set; } = ["audio/wav", "audio/x-wav", "audio/wave", "audio/vnd.wave", "application/octet-stream"];
+    public string[] AllowedContentTypes { get; set; } = ["audio/wav", "audio/x-wav", "audio/wave", "audio/vnd.wave", "application/octet-stream"];
 
     /// <summary>How many jobs run at once.</summary>
     public int Workers { get; set; } = 2;
@@ -32,4 +32,21 @@ public sealed class ArchiveOptions
     public string FullDatabasePath => Path.GetFullPath(DatabasePath, BaseFolder);
 
     public string FullStorePath => Path.GetFullPath(StorePath, BaseFolder);
+
+    /// <summary>The clone the program runs from (the folder holding TapeVault.sln and web/), or null for an installed copy.</summary>
+    public static string? FindRepositoryRoot()
+    {
+        foreach (var start in new[] { Directory.GetCurrentDirectory(), AppContext.BaseDirectory })
+        {
+            for (var folder = new DirectoryInfo(start); folder is not null; folder = folder.Parent)
+            {
+                if (File.Exists(Path.Combine(folder.FullName, "TapeVault.sln")) && Directory.Exists(Path.Combine(folder.FullName, "web")))
+                {
+                    return folder.FullName;
+                }
+            }
+        }
+
+        return null;
+    }
 }

@@ -33,8 +33,12 @@ public static class ArchiveServices
     public static void ConfigureIdentity(IdentityOptions identity)
     {
         ArgumentNullException.ThrowIfNull(identity);
+        // Length over character classes, after NIST SP 800-63B's advice on memorised secrets.
         identity.Password.RequiredLength = 12;
         identity.Password.RequireNonAlphanumeric = false;
+        identity.Password.RequireUppercase = false;
+        identity.Password.RequireLowercase = false;
+        identity.Password.RequireDigit = false;
         identity.Lockout.MaxFailedAccessAttempts = 5;
         identity.Lockout.DefaultLockoutTimeSpan = TimeSpan.FromMinutes(10);
         identity.Lockout.AllowedForNewUsers = true;

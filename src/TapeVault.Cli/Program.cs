@@ -38,6 +38,7 @@ namespace TapeVault.Cli
                     "profiles" => ProfilesCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
                     "demo" => DemoCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
                     "image" => ImageCommand.Run(new CommandLine(rest, ImageCommand.Flags), output, error),
+                    "users" => UsersCommand.Run(new CommandLine(rest, UsersCommand.Flags), output, Console.In, CliSettings.Load()),
                     _ => throw new UsageException($"Unknown command '{args[0]}'; run 'tapevault help'."),
                 };
             }
@@ -66,6 +67,7 @@ namespace TapeVault.Cli
             output.WriteLine($"  tapevault {SynthCommand.Usage}");
             output.WriteLine("  tapevault profiles [--profiles DIR]");
             output.WriteLine("  tapevault demo [--out DIR]");
+            output.WriteLine($"  tapevault {UsersCommand.Usage}");
             output.WriteLine($"  tapevault {ImageCommand.Usage}");
         }
     }

@@ -24,7 +24,7 @@ public static class WebApp
         var builder = WebApplication.CreateBuilder(new WebApplicationOptions
         {
             Args = args,
-            WebRootPath = RepositoryRoot() is { } root ? Path.Combine(root, "web") : Path.Combine(AppContext.BaseDirectory, "web"),
+            WebRootPath = ArchiveOptions.FindRepositoryRoot() is { } root ? Path.Combine(root, "web") : Path.Combine(AppContext.BaseDirectory, "web"),
         });
 
         // The settings file lives at the top of the repository; the copy beside the program, then the one in the current folder.
@@ -34,7 +34,7 @@ public static class WebApp
             Optional = true,
             FileProvider = new PhysicalFileProvider(AppContext.BaseDirectory),
         });
-        builder.Configuration.AddJsonFile(Path.Combine(RepositoryRoot() ?? Directory.GetCurrentDirectory(), "appsettings.json"), optional: true);
+        builder.Configuration.AddJsonFile(Path.Combine(ArchiveOptions.FindRepositoryRoot() ?? Directory.GetCurrentDirectory(), "appsettings.json"), optional: true);
         builder.Configuration.AddEnvironmentVariables();
         builder.Configuration.AddCommandLine(args);
         if (string.IsNullOrEmpty(builder.Configuration["urls"]))
@@ -43,7 +43,7 @@ public static class WebApp
         }
 
         var archive = builder.Configuration.GetSection(ArchiveOptions.Section).Get<ArchiveOptions>() ?? new ArchiveOptions();
-        archive.BaseFolder = RepositoryRoot() ?? Directory.GetCurrentDirectory();
+        archive.BaseFolder = ArchiveOptions.FindRepositoryRoot() ?? Directory.GetCurrentDirectory();
         var profiles = ProfileCatalog.WithUserFolder(builder.Configuration["TapeVault:ProfilesFolder"] is { Length: > 0 } folder ? Path.GetFullPath(folder, archive.BaseFolder) : null);
         var web = builder.Configuration.GetSection(WebOptions.Section).Get<WebOptions>() ?? new WebOptions();
         builder.Services.AddSingleton(web);
@@ -122,23 +122,6 @@ public static class WebApp
 
         context.Response.Redirect(redirectUri);
         return Task.CompletedTask;
-    }
-
-    /// <summary>The clone the app runs from (the folder holding TapeVault.sln and web/), or null for an installed copy.</summary>
-    public static string? RepositoryRoot()
-    {
-        foreach (var start in new[] { Directory.GetCurrentDirectory(), AppContext.BaseDirectory })
-        {
-            for (var folder = new DirectoryInfo(start); folder is not null; folder = folder.Parent)
-            {
-                if (File.Exists(Path.Combine(folder.FullName, "TapeVault.sln")) && Directory.Exists(Path.Combine(folder.FullName, "web")))
-                {
-                    return folder.FullName;
-                }
-            }
-        }
-
-        return null;
     }
 }
 
