@@ -233,7 +233,7 @@ public sealed class BlockAssembler
             confidence *= 0.5;
         }
 
-        var identity = Identity(header);
+        var identity = ReadIdentity(_layout, header, _ordinal);
         var payloadMargins = byteMargin.AsSpan(headerBytes, payloadEnd - headerBytes).ToArray();
         var payloadOdds = new float[payloadEnd - headerBytes];
         var payloadSeconds = new double[payloadEnd - headerBytes];
@@ -272,13 +272,15 @@ public sealed class BlockAssembler
         _ordinal++;
     }
 
-    private BlockIdentity Identity(ReadOnlySpan<byte> header)
+    /// <summary>The identity the header's fields give, as far as <paramref name="header"/> holds them whole.</summary>
+    public static BlockIdentity ReadIdentity(BlockLayout layout, ReadOnlySpan<byte> header, int ordinal)
     {
+        ArgumentNullException.ThrowIfNull(layout);
         string? fileName = null;
         long? fileId = null;
         long? blockNumber = null;
         int offset = 0;
-        foreach (var field in _layout.Header)
+        foreach (var field in layout.Header)
         {
             if (offset + field.Bytes > header.Length)
             {
@@ -302,7 +304,7 @@ public sealed class BlockAssembler
             offset += field.Bytes;
         }
 
-        return new BlockIdentity(fileName, fileId, blockNumber, _ordinal);
+        return new BlockIdentity(fileName, fileId, blockNumber, ordinal);
     }
 
     /// <summary>A file name as printable ASCII with trailing spaces and zeros removed; other bytes become '?'.</summary>

@@ -1,0 +1,517 @@
+using System.Collections.Immutable;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Checksums;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Image;
+
+namespace TapeVault.Core.Merge;
+
+/// <summary>
+/// The merge of a format with block headers: the readings of every pass are grouped into tape positions by identity
+/// and by time, and each position is resolved from its valid readings, else by vote and repair, else left missing.
+/// </summary>
+internal sealed class BlockMerge
+{
+    /// <summary>Slack when comparing stretches of tape from different passes, in nominal seconds.</summary>
+    private const double OverlapSlack = 0.1;
+
+    /// <summary>The error odds given to the bytes of a reading after the point where it was more likely wrong than right.</summary>
+    private const float SlippedByteError = 0.3f;
+
+    private readonly FormatProfile _profile;
+    private readonly IReadOnlyList<MergePass> _passes;
+    private readonly PassTimeline[] _timelines;
+    private readonly MergeOptions _options;
+    private readonly IBlockChecksum? _checksum;
+
+    public BlockMerge(FormatProfile profile, IReadOnlyList<MergePass> passes, PassTimeline[] timelines, MergeOptions options)
+    {
+        _profile = profile;
+        _passes = passes;
+        _timelines = timelines;
+        _options = options;
+        _checksum = profile.Layout.Checksum is { } spec ? ChecksumCatalog.Get(spec.Algorithm) : null;
+    }
+
+    private BlockLayout Layout => _profile.Layout;
+
+    /// <summary>
+    /// Anchors for aligning passes: each clean block's bytes at its start, in nominal tape seconds. The bytes, not
+    /// only the identity: headers that carry just a block number repeat it in every file.
+    /// </summary>
+    public static List<(long Feature, double Time)> Anchors(MergePass pass, double speed)
+    {
+        // One anchor per copy on tape: the settings that read one copy agree on its start; a format that writes each
+        // block twice has two anchors per block, and the pairs of first with first and second with second outvote
+        // the crossed ones.
+        var anchors = new List<(long Feature, double Time)>();
+        foreach (var c in pass.Candidates)
+        {
+            if (c.Status != BlockStatus.Clean)
+            {
+                continue;
+            }
+
+            long feature = StableHash(Convert.ToHexString(c.Header.AsSpan()) + c.PayloadHex);
+            double time = speed * c.StartSeconds;
+            if (!anchors.Exists(a => a.Feature == feature && Math.Abs(a.Time - time) < 0.05))
+            {
+                anchors.Add((feature, time));
+            }
+        }
+
+        return anchors;
+    }
+
+    public List<ImageBlock> Resolve()
+    {
+        var groups = GroupEntries();
+        var blocks = new List<ImageBlock>(groups.Count);
+        foreach (var group in groups)
+        {
+            if (ResolvePosition(group) is { } block)
+            {
+                blocks.Add(block);
+            }
+        }
+
+        return FillNumberGaps(blocks);
+    }
+
+    private sealed class Entry(int pass, List<BlockCandidate> readings, double start, double end)
+    {
+        public int Pass { get; } = pass;
+
+        public List<BlockCandidate> Readings { get; } = readings;
+
+        public double Start { get; } = start;
+
+        public double End { get; } = end;
+
+        /// <summary>The identity of the entry's most confident clean reading, if it has one.</summary>
+        public string? TrustedKey { get; init; }
+
+        /// <summary>The identity most of its readings carry (which may be damaged when none is clean).</summary>
+        public required string Key { get; init; }
+    }
+
+    private sealed class Group(Entry first)
+    {
+        public List<Entry> Entries { get; } = [first];
+
+        public double Start { get; set; } = first.Start;
+
+        public double End { get; set; } = first.End;
+
+        public string? TrustedKey { get; } = first.TrustedKey;
+
+        public bool Has(int pass) => Entries.Exists(e => e.Pass == pass);
+
+        public void Add(Entry entry)
+        {
+            Entries.Add(entry);
+            Start = Math.Min(Start, entry.Start);
+            End = Math.Max(End, entry.End);
+        }
+
+        public double Overlap(Entry e) => Math.Min(End, e.End) - Math.Max(Start, e.Start);
+    }
+
+    /// <summary>
+    /// Positions across passes. Entries with a clean reading go first: they join a group of the same identity whose
+    /// stretch of tape they overlap; the rest join the group they overlap most (an equal identity counting for more),
+    /// or start a group of their own, which will be resolved by vote or left missing.
+    /// </summary>
+    private List<Group> GroupEntries()
+    {
+        var entries = new List<Entry>();
+        for (int p = 0; p < _passes.Count; p++)
+        {
+            var timeline = _timelines[p];
+            foreach (var position in _passes[p].Candidates.GroupBy(c => c.Position))
+            {
+                var readings = position.ToList();
+                var trusted = readings.Where(c => c.Status == BlockStatus.Clean).MaxBy(c => c.Confidence);
+                string key = readings.Where(c => !c.Header.IsEmpty).GroupBy(c => c.Identity.Key).MaxBy(g => g.Count())?.Key
+                    ?? readings[0].Identity.Key;
+                entries.Add(new Entry(p, readings, timeline.Map(readings.Min(c => c.StartSeconds)), timeline.Map(readings.Max(c => c.EndSeconds)))
+                {
+                    TrustedKey = trusted?.Identity.Key,
+                    Key = trusted?.Identity.Key ?? key,
+                });
+            }
+        }
+
+        var groups = new List<Group>();
+        foreach (var entry in entries.Where(e => e.TrustedKey is not null).OrderBy(e => e.Start))
+        {
+            // The same identity close by is the same position, also from one pass (whose copies of a block may
+            // have been placed apart), unless another position lies between them: then it is the next file's block.
+            var match = groups.LastOrDefault(g => g.TrustedKey == entry.TrustedKey);
+            double reach = Math.Max(1.0, 1.5 * (entry.End - entry.Start));
+            if (match is not null && (entry.Start > match.End + reach || (match.Has(entry.Pass) && match.Overlap(entry) <= -OverlapSlack && groups.Exists(g => g != match && g.Start > match.End - OverlapSlack && g.End < entry.Start + OverlapSlack))))
+            {
+                match = null;
+            }
+
+            if (match is null)
+            {
+                groups.Add(new Group(entry));
+            }
+            else
+            {
+                match.Add(entry);
+            }
+        }
+
+        foreach (var entry in entries.Where(e => e.TrustedKey is null).OrderBy(e => e.Start))
+        {
+            Group? best = null;
+            double bestScore = double.NegativeInfinity;
+            foreach (var g in groups)
+            {
+                double overlap = g.Overlap(entry);
+                if (overlap <= -OverlapSlack)
+                {
+                    continue;
+                }
+
+                double score = overlap + (g.Entries[0].Key == entry.Key ? 10 : 0);
+                if (score > bestScore)
+                {
+                    best = g;
+                    bestScore = score;
+                }
+            }
+
+            if (best is null)
+            {
+                groups.Add(new Group(entry));
+            }
+            else
+            {
+                best.Add(entry);
+            }
+        }
+
+        groups.Sort((a, b) => a.Start.CompareTo(b.Start));
+        return groups;
+    }
+
+    private ImageBlock? ResolvePosition(Group group)
+    {
+        var readings = new List<(BlockCandidate Candidate, int Pass)>();
+        foreach (var e in group.Entries)
+        {
+            foreach (var c in e.Readings)
+            {
+                readings.Add((c, e.Pass));
+            }
+        }
+
+        var valid = readings.Where(r => r.Candidate.Status == BlockStatus.Clean).ToList();
+        return valid.Count > 0 ? ResolveClean(valid) : ResolveByVote(readings);
+    }
+
+    /// <summary>
+    /// Valid readings grouped by their bytes. Each capture's most confident reading of a content is one independent
+    /// witness; a content's odds are the product of its witnesses' odds, and the contents share the probability with
+    /// the chance that none of them is right. The winner has the most captures, then the highest probability.
+    /// </summary>
+    private ImageBlock ResolveClean(List<(BlockCandidate Candidate, int Pass)> valid)
+    {
+        var contents = valid
+            .GroupBy(r => Convert.ToHexString(r.Candidate.Header.AsSpan()) + ":" + r.Candidate.PayloadHex)
+            .Select(g =>
+            {
+                var witnesses = g.GroupBy(r => _passes[r.Pass].Capture.CaptureSha256)
+                    .Select(w => w.MaxBy(r => r.Candidate.Confidence))
+                    .OrderByDescending(r => r.Candidate.Confidence)
+                    .ToList();
+                double logOdds = witnesses.Sum(w => LogOdds(w.Candidate.Confidence));
+                return (Witnesses: witnesses, LogOdds: logOdds);
+            })
+            .OrderByDescending(c => c.Witnesses.Count)
+            .ThenByDescending(c => c.LogOdds)
+            .ToList();
+
+        // P(content) = odds / (1 + Σ odds), in logs so that many near-certain witnesses do not overflow.
+        double maxLog = Math.Max(0, contents.Max(c => c.LogOdds));
+        double denominator = Math.Exp(-maxLog) + contents.Sum(c => Math.Exp(c.LogOdds - maxLog));
+        var winner = contents[0];
+        double confidence = Math.Exp(winner.LogOdds - maxLog) / denominator;
+
+        var top = winner.Witnesses[0].Candidate;
+        var conflicts = contents.Skip(1)
+            .Select(c => new ConflictingReading(c.Witnesses[0].Candidate.Payload, Provenance(c.Witnesses[0].Candidate, c.Witnesses[0].Pass), c.Witnesses.Count))
+            .ToImmutableArray();
+        return Block(
+            top.Header,
+            top.Payload,
+            RecoveryStatus.Clean,
+            confidence,
+            [.. winner.Witnesses.Select(w => Provenance(w.Candidate, w.Pass))],
+            winner.Witnesses.Count,
+            top.Identity) with
+        {
+            ConflictingPayloads = conflicts,
+        };
+    }
+
+    /// <summary>
+    /// No valid reading: the payload length most complete readings agree on, a bit vote over the readings of that
+    /// length (and the prefixes of readings cut short), then the repair search. Nothing that holds: missing.
+    /// </summary>
+    private ImageBlock? ResolveByVote(List<(BlockCandidate Candidate, int Pass)> readings)
+    {
+        var fallbackIdentity = readings.Select(r => r.Candidate).Where(c => !c.Header.IsEmpty).GroupBy(c => c.Identity.Key).MaxBy(g => g.Count())?.First().Identity
+            ?? readings[0].Candidate.Identity;
+        var allSources = readings.OrderByDescending(r => r.Candidate.Confidence).Select(r => Provenance(r.Candidate, r.Pass)).ToImmutableArray();
+        var whole = readings.Where(r => !r.Candidate.Truncated && r.Candidate.StoredChecksum is not null && r.Candidate.Header.Length == Layout.HeaderBytes).ToList();
+        if (_checksum is null || whole.Count == 0)
+        {
+            bool evidence = readings.Select(r => r.Pass).Distinct().Count() >= 2 || whole.Count > 0;
+            return evidence ? Missing(fallbackIdentity, allSources) : null;
+        }
+
+        int payloadLength = whole.GroupBy(r => r.Candidate.Payload.Length).MaxBy(g => g.Sum(r => 1 - MeanError(r.Candidate)))!.Key;
+        int width = _checksum.Width;
+        int length = Layout.HeaderBytes + payloadLength + width;
+
+        // Independent readings: each capture, and within it each copy of the block the format writes (copies lie a
+        // block apart on the tape; the settings reading one copy saw the same signal).
+        var voters = new List<VoteReading>();
+        var used = new List<(BlockCandidate Candidate, int Pass)>();
+        foreach (var (candidate, pass) in readings)
+        {
+            bool complete = !candidate.Truncated && candidate.Payload.Length == payloadLength && candidate.StoredChecksum is not null;
+            if (!complete && !(candidate.Truncated && candidate.Payload.Length <= payloadLength))
+            {
+                continue;
+            }
+
+            var bytes = FullBytes(candidate, complete);
+            var errors = new float[bytes.Length];
+            float rest = (float)MeanError(candidate);
+            bool lostStep = false;
+            for (int i = 0; i < bytes.Length; i++)
+            {
+                int payloadIndex = i - candidate.Header.Length;
+                errors[i] = payloadIndex >= 0 && payloadIndex < candidate.ByteErrorOdds.Length ? candidate.ByteErrorOdds[payloadIndex] : rest;
+
+                // A byte more likely wrong than right is where a dropout broke the reading: a decoder that reads on
+                // through it may have slipped a bit, so the bytes after it can be confidently wrong. They keep a
+                // weak vote.
+                if (lostStep)
+                {
+                    errors[i] = Math.Max(errors[i], SlippedByteError);
+                }
+
+                lostStep |= errors[i] >= 0.5f;
+            }
+
+            voters.Add(new VoteReading(bytes, errors, (pass * 64) + CopyIndex(candidate, readings, pass)));
+            used.Add((candidate, pass));
+        }
+
+        var best = whole.MaxBy(r => r.Candidate.Confidence + (1 - MeanError(r.Candidate)));
+        var outcome = BitVote.Search(voters, length, FullBytes(best.Candidate, complete: true), Holds, _checksum.FalseMatchProbability, _options.RepairBits, _options.MaximumTrials);
+        var sources = used.OrderByDescending(r => r.Candidate.Confidence).Select(r => Provenance(r.Candidate, r.Pass)).ToImmutableArray();
+        if (outcome is null)
+        {
+            // Noise before a lead-in or a click can pass for the start of a block: a failed reading that only one
+            // capture saw, cut short, next to no other position, is no evidence of a block. (Blocks that no pass
+            // read at all are found by their numbers instead.)
+            bool evidence = used.Select(r => r.Pass).Distinct().Count() >= 2 || used.Exists(r => !r.Candidate.Truncated);
+            return evidence ? Missing(fallbackIdentity, sources) : null;
+        }
+
+        var header = outcome.Bytes.AsSpan(0, Layout.HeaderBytes).ToArray();
+        var payload = outcome.Bytes.AsSpan(Layout.HeaderBytes, payloadLength).ToArray();
+        var identity = BlockAssembler.ReadIdentity(Layout, header, fallbackIdentity.Ordinal);
+        var status = outcome.Trials == 1 ? RecoveryStatus.Voted : RecoveryStatus.Repaired;
+        return Block([.. header], [.. payload], status, outcome.Confidence, sources, 0, identity);
+
+        bool Holds(byte[] block)
+        {
+            var spec = Layout.Checksum!;
+            var covered = spec.Covers == ChecksumCoverage.Payload
+                ? block.AsSpan(Layout.HeaderBytes, payloadLength)
+                : block.AsSpan(0, Layout.HeaderBytes + payloadLength);
+            uint stored = ReadUnsigned(block.AsSpan(Layout.HeaderBytes + payloadLength, width), spec.BigEndian);
+            uint mask = width >= 4 ? uint.MaxValue : (1u << (8 * width)) - 1;
+            if ((_checksum!.Compute(covered) & mask) != stored)
+            {
+                return false;
+            }
+
+            // A length field that disagrees with the payload would make the block a different one.
+            return Layout.FieldWithRole(FieldRole.PayloadLength) is not { } lengthField || FieldValue(block, lengthField) == payloadLength;
+        }
+    }
+
+    /// <summary>Which copy of the block a reading is, numbered by start within its pass (a new copy starts after half a block).</summary>
+    private static int CopyIndex(BlockCandidate candidate, List<(BlockCandidate Candidate, int Pass)> readings, int pass)
+    {
+        var starts = readings.Where(r => r.Pass == pass).Select(r => r.Candidate).OrderBy(c => c.StartSeconds).ToList();
+        int copy = 0;
+        var first = starts[0];
+        foreach (var c in starts)
+        {
+            if (c.StartSeconds > first.StartSeconds + (0.5 * Math.Max(0.05, first.EndSeconds - first.StartSeconds)))
+            {
+                copy++;
+                first = c;
+            }
+
+            if (ReferenceEquals(c, candidate))
+            {
+                return copy;
+            }
+        }
+
+        return copy;
+    }
+
+    /// <summary>Header, payload and (for a whole reading) the check value as it lies on tape.</summary>
+    private byte[] FullBytes(BlockCandidate c, bool complete)
+    {
+        int width = complete ? _checksum!.Width : 0;
+        var bytes = new byte[c.Header.Length + c.Payload.Length + width];
+        c.Header.AsSpan().CopyTo(bytes);
+        c.Payload.AsSpan().CopyTo(bytes.AsSpan(c.Header.Length));
+        if (complete)
+        {
+            uint value = c.StoredChecksum ?? 0;
+            var target = bytes.AsSpan(c.Header.Length + c.Payload.Length, width);
+            for (int i = 0; i < width; i++)
+            {
+                target[Layout.Checksum!.BigEndian ? width - 1 - i : i] = unchecked((byte)(value >> (8 * i)));
+            }
+        }
+
+        return bytes;
+    }
+
+    private long FieldValue(byte[] block, HeaderField field)
+    {
+        int offset = 0;
+        foreach (var f in Layout.Header)
+        {
+            if (ReferenceEquals(f, field))
+            {
+                break;
+            }
+
+            offset += f.Bytes;
+        }
+
+        return ReadUnsigned(block.AsSpan(offset, field.Bytes), field.BigEndian);
+    }
+
+    private static uint ReadUnsigned(ReadOnlySpan<byte> bytes, bool bigEndian)
+    {
+        uint value = 0;
+        for (int i = 0; i < bytes.Length; i++)
+        {
+            value = unchecked((value << 8) | bytes[bigEndian ? i : bytes.Length - 1 - i]);
+        }
+
+        return value;
+    }
+
+    /// <summary>A reading's typical byte error: the mean of its payload's, standing in for its header and check bytes, which carry none of their own.</summary>
+    private static double MeanError(BlockCandidate c)
+    {
+        if (c.ByteErrorOdds.IsEmpty)
+        {
+            return 0.5;
+        }
+
+        double sum = 0;
+        foreach (float e in c.ByteErrorOdds)
+        {
+            sum += e;
+        }
+
+        return Math.Clamp(sum / c.ByteErrorOdds.Length, 1e-4, 0.5);
+    }
+
+    /// <summary>
+    /// Block numbers that a file's positions skip (and the first blocks of a file whose start was not read) are
+    /// positions no pass saw at all: they are listed as missing, never closed up.
+    /// </summary>
+    private List<ImageBlock> FillNumberGaps(List<ImageBlock> blocks)
+    {
+        if (Layout.FieldWithRole(FieldRole.BlockNumber) is null)
+        {
+            return blocks;
+        }
+
+        const int MaximumGap = 64;
+        var filled = new List<ImageBlock>(blocks.Count);
+        ImageBlock? previous = null;
+        foreach (var block in blocks)
+        {
+            if (block.BlockNumber is long number)
+            {
+                bool sameFile = previous is not null && previous.FileName == block.FileName && previous.FileId == block.FileId && previous.BlockNumber is long p && number > p;
+                long from = sameFile ? previous!.BlockNumber!.Value + 1 : 0;
+                if (number - from is > 0 and <= MaximumGap)
+                {
+                    for (long n = from; n < number; n++)
+                    {
+                        var identity = new BlockIdentity(block.FileName, block.FileId, n, 0);
+                        filled.Add(Missing(identity, []));
+                    }
+                }
+
+                previous = block;
+            }
+
+            filled.Add(block);
+        }
+
+        return filled;
+    }
+
+    private ImageBlock Missing(BlockIdentity identity, ImmutableArray<BlockProvenance> sources) =>
+        Block([], [], RecoveryStatus.Missing, 0, sources, 0, identity);
+
+    private static ImageBlock Block(ImmutableArray<byte> header, ImmutableArray<byte> payload, RecoveryStatus status, double confidence, ImmutableArray<BlockProvenance> sources, int agreeing, BlockIdentity identity) => new()
+    {
+        Position = -1,
+        Key = identity.Key,
+        FileName = identity.FileName,
+        FileId = identity.FileId,
+        BlockNumber = identity.BlockNumber,
+        Status = status,
+        Confidence = Math.Clamp(confidence, 0, 1),
+        Header = header,
+        Payload = payload,
+        Sources = sources,
+        AgreeingCaptures = agreeing,
+    };
+
+    private BlockProvenance Provenance(BlockCandidate c, int pass) =>
+        new(_passes[pass].Capture.CaptureSha256, c.SettingName, _passes[pass].CodeVersion, c.StartSeconds, c.Confidence);
+
+    private static double LogOdds(double p)
+    {
+        double q = Math.Clamp(p, 1e-15, 1 - 1e-15);
+        return Math.Log(q / (1 - q));
+    }
+
+    /// <summary>A hash of a string that is the same in every run (string.GetHashCode is not).</summary>
+    internal static long StableHash(string text)
+    {
+        // FNV-1a, 64-bit (common practice).
+        ulong hash = 14695981039346656037UL;
+        foreach (char ch in text)
+        {
+            hash = unchecked((hash ^ ch) * 1099511628211UL);
+        }
+
+        return unchecked((long)hash);
+    }
+}

@@ -1,0 +1,357 @@
+using System.Collections.Immutable;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Image;
+
+namespace TapeVault.Core.Merge;
+
+/// <summary>
+/// The merge of a stream format (no headers, no checksum): every byte of every reading is put on the common tape
+/// timeline, bytes within half a character of each other form one slot, and each slot is voted by the readers'
+/// byte error odds. A capture's settings saw one signal and count as one witness; captures are independent.
+/// A slot survives only where its vote is more likely right than not, and clearly so where a capture that read
+/// that stretch of tape did not see it: a byte that framing invented inside one pass's dropout is neither.
+/// Where no capture kept a byte the stream is split and the gap listed as missing, never closed up.
+/// </summary>
+internal sealed class StreamMerge
+{
+    /// <summary>How many characters after a broken one are trusted less, and how little.</summary>
+    private const int FramesAfterBreak = 2;
+
+    private const float AfterBreakError = 0.3f;
+
+    /// <summary>The vote a byte needs when some capture read that stretch of tape and did not see it.</summary>
+    private const double LoneByteProbability = 0.9;
+
+    private readonly IReadOnlyList<MergePass> _passes;
+    private readonly PassTimeline[] _timelines;
+
+    private readonly int _bitsPerCharacter;
+
+    public StreamMerge(IReadOnlyList<MergePass> passes, PassTimeline[] timelines, int bitsPerCharacter)
+    {
+        _passes = passes;
+        _timelines = timelines;
+        _bitsPerCharacter = Math.Max(1, bitsPerCharacter);
+    }
+
+    private readonly record struct StreamByte(double Time, byte Value, float Error, int Pass, int Reader, int Candidate, int Index);
+
+    private sealed class Slot
+    {
+        public List<StreamByte> Bytes { get; } = [];
+
+        public double Centre { get; set; }
+
+        public byte Value { get; set; }
+
+        public double Probability { get; set; }
+
+        public bool Unanimous { get; set; }
+    }
+
+    /// <summary>The time of one character on tape, in nominal seconds: the median spacing of consecutive bytes.</summary>
+    public static double CharacterSeconds(IReadOnlyList<MergePass> passes)
+    {
+        var spacings = new List<double>();
+        foreach (var pass in passes)
+        {
+            foreach (var c in pass.Candidates)
+            {
+                for (int i = 1; i < c.ByteSeconds.Length && spacings.Count < 100_000; i += Math.Max(1, c.ByteSeconds.Length / 200))
+                {
+                    spacings.Add((c.ByteSeconds[i] - c.ByteSeconds[i - 1]) * c.Speed);
+                }
+            }
+        }
+
+        if (spacings.Count == 0)
+        {
+            return 0.01;
+        }
+
+        spacings.Sort();
+        return spacings[spacings.Count / 2];
+    }
+
+    /// <summary>Anchors for aligning passes: runs of four confident bytes, each at the time of its first, in nominal tape seconds.</summary>
+    public static List<(long Feature, double Time)> Anchors(MergePass pass, double speed, double character)
+    {
+        var anchors = new List<(long, double)>();
+        foreach (var c in pass.Candidates)
+        {
+            for (int i = 0; i + 3 < c.Payload.Length; i++)
+            {
+                bool confident = true;
+                for (int k = 0; k < 4 && confident; k++)
+                {
+                    confident = c.ByteErrorOdds[i + k] < 0.05 && (k == 0 || (c.ByteSeconds[i + k] - c.ByteSeconds[i + k - 1]) * speed < 1.5 * character);
+                }
+
+                if (confident)
+                {
+                    long feature = (uint)c.Payload[i] | ((uint)c.Payload[i + 1] << 8) | ((uint)c.Payload[i + 2] << 16) | ((uint)c.Payload[i + 3] << 24);
+                    anchors.Add((feature, speed * c.ByteSeconds[i]));
+                }
+            }
+        }
+
+        return anchors;
+    }
+
+    public List<ImageBlock> Resolve()
+    {
+        double character = CharacterSeconds(_passes);
+        var bytes = new List<StreamByte>();
+        var spans = new List<(double Start, double End, int Pass)>();
+        int reader = 0;
+        for (int p = 0; p < _passes.Count; p++)
+        {
+            var candidates = _passes[p].Candidates;
+            var readerOf = new Dictionary<int, int>();
+            for (int ci = 0; ci < candidates.Count; ci++)
+            {
+                var c = candidates[ci];
+                if (c.Payload.IsEmpty)
+                {
+                    continue;
+                }
+
+                if (!readerOf.TryGetValue(c.SettingIndex, out int r))
+                {
+                    r = reader++;
+                    readerOf.Add(c.SettingIndex, r);
+                }
+
+                // A reading's first characters may have been framed on a false start bit too (a reading that begins
+                // after a loss of signal needs no lead-in).
+                int sinceBroken = 0;
+                for (int i = 0; i < c.Payload.Length; i++)
+                {
+                    float error = Math.Clamp(c.ByteErrorOdds[i], 1e-6f, 0.999f);
+
+                    // The characters just after a broken one may have been framed on a false start bit.
+                    if (sinceBroken < FramesAfterBreak)
+                    {
+                        error = Math.Max(error, AfterBreakError);
+                    }
+
+                    sinceBroken = c.ByteErrorOdds[i] >= 0.5f ? 0 : sinceBroken == int.MaxValue ? int.MaxValue : sinceBroken + 1;
+                    bytes.Add(new StreamByte(_timelines[p].Map(c.ByteSeconds[i]), c.Payload[i], error, p, r, ci, i));
+                }
+
+                // A capture counts as reading the tape a little beyond its first and last characters: a byte just past
+                // the end of what the others read (the tone dying away at the end of a stretch) is a lone one.
+                spans.Add((_timelines[p].Map(c.ByteSeconds[0]) - (2 * character), _timelines[p].Map(c.ByteSeconds[^1]) + (2 * character), p));
+            }
+        }
+
+        // Slots are narrower than a character: a reading framed on a false start bit lies whole bits off the true
+        // characters and makes slots of its own, which then compete with the true ones. Bounded below so that wow
+        // and what the line fit leaves do not split one character's readings.
+        double slotWidth = Math.Clamp(0.5 * character / _bitsPerCharacter, 0.0015, 0.5 * character);
+        bytes.Sort((a, b) => a.Time.CompareTo(b.Time));
+        var slots = new List<Slot>();
+        Slot? current = null;
+        foreach (var b in bytes)
+        {
+            if (current is null || b.Time - current.Centre >= slotWidth || current.Bytes.Exists(x => x.Reader == b.Reader))
+            {
+                current = new Slot { Centre = b.Time };
+                slots.Add(current);
+            }
+
+            current.Bytes.Add(b);
+            current.Centre += (b.Time - current.Centre) / current.Bytes.Count;
+        }
+
+        var voted = new List<Slot>(slots.Count);
+        foreach (var slot in slots)
+        {
+            int covering = spans.Where(s => s.Start <= slot.Centre && slot.Centre <= s.End).Select(s => s.Pass).Distinct().Count();
+            int supporting = slot.Bytes.Select(x => x.Pass).Distinct().Count();
+            Vote(slot);
+
+            // A byte that other captures reading this stretch did not see must be a confident one.
+            if (slot.Probability > (supporting < covering ? LoneByteProbability : 0.5))
+            {
+                voted.Add(slot);
+            }
+        }
+
+        // Slots closer than a character cannot both be characters: the one with the stronger support stays (the
+        // expected number of captures that read it right).
+        var kept = new List<Slot>(voted.Count);
+        foreach (var slot in voted.OrderByDescending(Support))
+        {
+            int at = kept.BinarySearch(slot, CentreOrder.Instance);
+            int index = at >= 0 ? at : ~at;
+            bool clash = (index < kept.Count && kept[index].Centre - slot.Centre < 0.75 * character)
+                || (index > 0 && slot.Centre - kept[index - 1].Centre < 0.75 * character);
+            if (!clash)
+            {
+                kept.Insert(index, slot);
+            }
+        }
+
+        return Segments(kept, character);
+    }
+
+    private static double Support(Slot slot) =>
+        slot.Bytes.Where(b => b.Value == slot.Value).GroupBy(b => b.Pass).Sum(g => 1 - g.Average(b => b.Error)) * slot.Probability;
+
+    private sealed class CentreOrder : IComparer<Slot>
+    {
+        public static CentreOrder Instance { get; } = new();
+
+        public int Compare(Slot? x, Slot? y) => x!.Centre.CompareTo(y!.Centre);
+    }
+
+    /// <summary>
+    /// P(value | readings) with a uniform prior over the 256 values: each capture's likelihood of a value is the mean
+    /// over its settings of (1 − e) where the setting read that value and e / 255 where it read another.
+    /// </summary>
+    private static void Vote(Slot slot)
+    {
+        var values = slot.Bytes.Select(b => b.Value).Distinct().ToArray();
+        var logLikelihood = new double[values.Length + 1];
+        foreach (var capture in slot.Bytes.GroupBy(b => b.Pass))
+        {
+            var readings = capture.ToList();
+            for (int v = 0; v <= values.Length; v++)
+            {
+                double sum = 0;
+                foreach (var r in readings)
+                {
+                    sum += v < values.Length && r.Value == values[v] ? 1 - r.Error : r.Error / 255.0;
+                }
+
+                logLikelihood[v] += Math.Log(sum / readings.Count);
+            }
+        }
+
+        // The last entry stands for each value nobody read, of which there are 256 − values.Length.
+        double max = logLikelihood.Max();
+        double total = 0;
+        for (int v = 0; v <= values.Length; v++)
+        {
+            total += Math.Exp(logLikelihood[v] - max) * (v < values.Length ? 1 : 256 - values.Length);
+        }
+
+        int best = 0;
+        for (int v = 1; v < values.Length; v++)
+        {
+            if (logLikelihood[v] > logLikelihood[best])
+            {
+                best = v;
+            }
+        }
+
+        slot.Value = values[best];
+        slot.Probability = Math.Exp(logLikelihood[best] - max) / total;
+        slot.Unanimous = values.Length == 1;
+    }
+
+    private List<ImageBlock> Segments(List<Slot> slots, double character)
+    {
+        var blocks = new List<ImageBlock>();
+        double stretchGap = Math.Max(12 * character, 0.5);
+        int stretch = -1;
+        int offset = 0;
+        var segment = new List<Slot>();
+        int segmentOffset = 0;
+        bool split = false;
+        var stretchBlocks = new List<ImageBlock>();
+        for (int k = 0; k <= slots.Count; k++)
+        {
+            double gap = k == 0 || k == slots.Count ? double.PositiveInfinity : slots[k].Centre - slots[k - 1].Centre;
+            int lost = gap > stretchGap ? -1 : Math.Max(0, (int)Math.Round(gap / character) - 1);
+            if (k > 0 && lost != 0)
+            {
+                stretchBlocks.Add(Segment(segment, stretch, segmentOffset));
+                segment.Clear();
+                if (lost > 0)
+                {
+                    split = true;
+                    stretchBlocks.Add(MissingBytes(stretch, offset));
+                    offset += lost;
+                }
+            }
+
+            if (lost < 0)
+            {
+                // A new stretch of tone (the next file): the finished stretch keeps plain keys if nothing split it.
+                foreach (var b in stretchBlocks)
+                {
+                    blocks.Add(split ? b : b with { Key = $"#{stretch}" });
+                }
+
+                stretchBlocks.Clear();
+                split = false;
+                stretch++;
+                offset = 0;
+            }
+
+            if (k == slots.Count)
+            {
+                break;
+            }
+
+            if (segment.Count == 0)
+            {
+                segmentOffset = offset;
+            }
+
+            segment.Add(slots[k]);
+            offset++;
+        }
+
+        return blocks;
+    }
+
+    private ImageBlock Segment(List<Slot> slots, int stretch, int offset)
+    {
+        var payload = slots.Select(s => s.Value).ToImmutableArray();
+        int agreeing = slots.Count == 0 ? 0 : slots.Min(s => s.Bytes.Where(b => b.Value == s.Value).Select(b => b.Pass).Distinct().Count());
+        double logConfidence = slots.Sum(s => Math.Log(s.Probability));
+
+        // Provenance: per capture, the reading that gave most of the winning bytes; the capture that gave most first.
+        var winning = slots.SelectMany(s => s.Bytes.Where(b => b.Value == s.Value)).ToList();
+        var sources = winning
+            .GroupBy(b => b.Pass)
+            .Select(g =>
+            {
+                var reading = g.GroupBy(b => b.Candidate).MaxBy(r => r.Count())!;
+                var candidate = _passes[g.Key].Candidates[reading.Key];
+                int first = reading.Min(b => b.Index);
+                return (Count: g.Select(b => b.Time).Distinct().Count(), Source: new BlockProvenance(
+                    _passes[g.Key].Capture.CaptureSha256, candidate.SettingName, _passes[g.Key].CodeVersion, candidate.ByteSeconds[first], candidate.Confidence));
+            })
+            .OrderByDescending(x => x.Count)
+            .Select(x => x.Source)
+            .ToImmutableArray();
+        return new ImageBlock
+        {
+            Position = -1,
+            Key = $"#{stretch}+{offset}",
+            // Without a checksum, clean means what two captures or more read alike, with no reading against it.
+            Status = agreeing >= 2 && slots.TrueForAll(s => s.Unanimous) ? RecoveryStatus.Clean : RecoveryStatus.Voted,
+            Confidence = Math.Exp(logConfidence),
+            Header = [],
+            Payload = payload,
+            Sources = sources,
+            AgreeingCaptures = agreeing,
+        };
+    }
+
+    private static ImageBlock MissingBytes(int stretch, int offset) => new()
+    {
+        Position = -1,
+        Key = $"#{stretch}+{offset}",
+        Status = RecoveryStatus.Missing,
+        Confidence = 0,
+        Header = [],
+        Payload = [],
+        Sources = [],
+        AgreeingCaptures = 0,
+    };
+}

@@ -1,0 +1,257 @@
+using System.Text;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Checksums;
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Image;
+using TapeVault.Core.Merge;
+using TapeVault.Core.Synthesis;
+
+namespace TapeVault.Bench;
+
+/// <summary>A named damage level: what every pass of a tape suffers, varied by the pass's seed.</summary>
+public sealed record DamageLevel(string Name, Func<int, ChannelDamage> Damage);
+
+/// <summary>One tape of the corpus: its passes decoded, merged, and scored against the bytes that were synthesised.</summary>
+public sealed record ScoredTape(
+    string ProfileId,
+    string Level,
+    int Seed,
+    int Units,
+    IReadOnlyList<HashSet<int>> RightPerPass,
+    HashSet<int> RightMerged,
+    IReadOnlyList<(double Confidence, bool Right, RecoveryStatus Status)> MergedBlocks,
+    IReadOnlyList<(double Confidence, bool Right)> SingleCandidates,
+    int WrongClean,
+    int Missing);
+
+/// <summary>
+/// The synthetic corpus of the recovery and calibration benchmarks. Ground truth is our own channel model's input:
+/// the bytes we synthesised. For a format with headers a unit is a block, right when its header and payload equal a
+/// written block's; for a stream a unit is a byte of the written files, right when a merged segment (or one pass's
+/// reading) holds it where the segment lines up best with the written file.
+/// </summary>
+public static class RecoveryCorpus
+{
+    public const int PassesPerTape = 3;
+
+    public static IReadOnlyList<DamageLevel> Levels { get; } =
+    [
+        new("dropouts", seed => new ChannelDamage
+        {
+            SnrDb = 18,
+            RandomDropoutsPerMinute = 50,
+            WowPercent = 0.2,
+            Speed = 1 + (((seed % 5) - 2) * 0.01),
+            Seed = seed,
+        }),
+        new("noise+dropouts", seed => new ChannelDamage
+        {
+            SnrDb = 8 + (seed % 3),
+            RandomDropoutsPerMinute = 30,
+            WowPercent = 0.3,
+            FlutterPercent = 0.1,
+            Speed = 1 + (((seed % 5) - 2) * 0.01),
+            Seed = seed,
+        }),
+    ];
+
+    /// <summary>Files of random bytes and text for one tape, sized so that a pass takes a few seconds of capture.</summary>
+    public static List<TapeFile> Files(FormatProfile profile, int seed)
+    {
+        var random = new Random(seed);
+        int scale = profile.Layout.IsStream ? (profile.Fsk is { Baud: < 600 } ? 1 : 4) : 6;
+        var binary = new byte[(60 + random.Next(40)) * scale];
+        random.NextBytes(binary);
+        var text = new StringBuilder();
+        string[] words = ["cassette", "archive", "block", "lead-in", "club", "moor", "raven", "tape", "0123", "reel"];
+        while (text.Length < 50 * scale)
+        {
+            text.Append(words[random.Next(words.Length)]).Append(' ');
+        }
+
+        return [new($"BIN{seed % 100:D2}", binary), new($"TXT{seed % 100:D2}", Encoding.ASCII.GetBytes(text.ToString()))];
+    }
+
+    public static ScoredTape Run(string work, FormatProfile profile, DamageLevel level, int seed)
+    {
+        var files = Files(profile, seed);
+        var written = BlockWriter.Blocks(profile, files);
+        var results = new List<DecodeResult>();
+        var names = new List<string>();
+        for (int p = 0; p < PassesPerTape; p++)
+        {
+            string path = Path.Combine(work, $"recovery-{profile.Id}-{level.Name}-{seed}-{p}.wav");
+            CaptureSynthesizer.Write(path, profile, files, level.Damage((seed * 10) + p));
+            results.Add(CaptureDecoder.Decode(path, profile));
+            names.Add(Path.GetFileName(path));
+            File.Delete(path);
+        }
+
+        var image = TapeMerger.Merge(results, names, new MergeOptions { CreatedUtc = DateTimeOffset.UnixEpoch });
+        return profile.Layout.IsStream
+            ? ScoreStream(profile, level, seed, files, results, image)
+            : ScoreBlocks(profile, level, seed, written, results, image);
+    }
+
+    private static ScoredTape ScoreBlocks(FormatProfile profile, DamageLevel level, int seed, List<byte[]> written, List<DecodeResult> results, TapeImage image)
+    {
+        int header = profile.Layout.HeaderBytes;
+        int check = ChecksumCatalog.Get(profile.Layout.Checksum!.Algorithm).Width;
+        var truth = written.Select(b => (Header: b[..header], Payload: b[header..^check])).ToList();
+        int Find(ReadOnlySpan<byte> h, ReadOnlySpan<byte> p)
+        {
+            for (int i = 0; i < truth.Count; i++)
+            {
+                if (h.SequenceEqual(truth[i].Header) && p.SequenceEqual(truth[i].Payload))
+                {
+                    return i;
+                }
+            }
+
+            return -1;
+        }
+
+        var perPass = new List<HashSet<int>>();
+        var singles = new List<(double, bool)>();
+        foreach (var result in results)
+        {
+            var right = new HashSet<int>();
+            foreach (var best in result.Best)
+            {
+                int t = Find(best.Header.AsSpan(), best.Payload.AsSpan());
+                if (best.Status == BlockStatus.Clean && t >= 0)
+                {
+                    right.Add(t);
+                }
+
+                singles.Add((best.Confidence, t >= 0));
+            }
+
+            perPass.Add(right);
+        }
+
+        var merged = new HashSet<int>();
+        var blocks = new List<(double, bool, RecoveryStatus)>();
+        int wrongClean = 0, missing = 0;
+        foreach (var block in image.Blocks)
+        {
+            if (block.Status == RecoveryStatus.Missing)
+            {
+                missing++;
+                continue;
+            }
+
+            int t = Find(block.Header.AsSpan(), block.Payload.AsSpan());
+            if (t >= 0)
+            {
+                merged.Add(t);
+            }
+            else if (block.Status == RecoveryStatus.Clean)
+            {
+                wrongClean++;
+            }
+
+            blocks.Add((block.Confidence, t >= 0, block.Status));
+        }
+
+        return new ScoredTape(profile.Id, level.Name, seed, truth.Count, perPass, merged, blocks, singles, wrongClean, missing);
+    }
+
+    private static ScoredTape ScoreStream(FormatProfile profile, DamageLevel level, int seed, List<TapeFile> files, List<DecodeResult> results, TapeImage image)
+    {
+        // Every written byte gets one number: file f's byte i is base[f] + i.
+        var bases = new int[files.Count];
+        for (int f = 1; f < files.Count; f++)
+        {
+            bases[f] = bases[f - 1] + files[f - 1].Content.Length;
+        }
+
+        int units = bases[^1] + files[^1].Content.Length;
+        var perPass = new List<HashSet<int>>();
+        var singles = new List<(double, bool)>();
+        foreach (var result in results)
+        {
+            var right = new HashSet<int>();
+            foreach (var best in result.Best)
+            {
+                bool all = Place(best.Payload.AsSpan(), files, bases, right);
+                singles.Add((best.Confidence, all));
+            }
+
+            perPass.Add(right);
+        }
+
+        var merged = new HashSet<int>();
+        var blocks = new List<(double, bool, RecoveryStatus)>();
+        int wrongClean = 0, missing = 0;
+        foreach (var block in image.Blocks)
+        {
+            if (block.Status == RecoveryStatus.Missing)
+            {
+                missing++;
+                continue;
+            }
+
+            bool all = Place(block.Payload.AsSpan(), files, bases, merged);
+            if (!all && block.Status == RecoveryStatus.Clean)
+            {
+                wrongClean++;
+            }
+
+            blocks.Add((block.Confidence, all, block.Status));
+        }
+
+        return new ScoredTape(profile.Id, level.Name, seed, units, perPass, merged, blocks, singles, wrongClean, missing);
+    }
+
+    /// <summary>
+    /// Lines a run of bytes up with the written file and offset where most of its bytes agree, adds the agreeing ones
+    /// to <paramref name="right"/> and says whether all agree. A run shorter than four bytes lines up anywhere, so it
+    /// counts as right only where it is exactly the written bytes and adds nothing.
+    /// </summary>
+    private static bool Place(ReadOnlySpan<byte> run, List<TapeFile> files, int[] bases, HashSet<int> right)
+    {
+        if (run.IsEmpty)
+        {
+            return false;
+        }
+
+        int bestFile = -1, bestOffset = 0, bestCount = -1;
+        for (int f = 0; f < files.Count; f++)
+        {
+            var content = files[f].Content;
+            for (int o = -run.Length + 1; o < content.Length; o++)
+            {
+                int count = 0;
+                for (int i = Math.Max(0, -o); i < run.Length && o + i < content.Length; i++)
+                {
+                    if (run[i] == content[o + i])
+                    {
+                        count++;
+                    }
+                }
+
+                if (count > bestCount)
+                {
+                    (bestFile, bestOffset, bestCount) = (f, o, count);
+                }
+            }
+        }
+
+        var best = files[bestFile].Content;
+        bool all = bestOffset >= 0 && bestOffset + run.Length <= best.Length && bestCount == run.Length;
+        if (run.Length >= 4)
+        {
+            for (int i = Math.Max(0, -bestOffset); i < run.Length && bestOffset + i < best.Length; i++)
+            {
+                if (run[i] == best[bestOffset + i])
+                {
+                    right.Add(bases[bestFile] + bestOffset + i);
+                }
+            }
+        }
+
+        return all;
+    }
+}
