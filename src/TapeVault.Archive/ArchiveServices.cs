@@ -26,6 +26,7 @@ public static class ArchiveServices
         services.AddScoped<Curation.CuratorActions>();
         services.AddSingleton<JobQueue>();
         services.AddSingleton<IJobHandler, DecodeJob>();
+        services.AddSingleton<IJobHandler, MergeJob>();
         return services;
     }
 

@@ -98,6 +98,24 @@ public sealed class CuratorActions(ArchiveDbContext db, ProfileCatalog profiles)
         return job;
     }
 
+    /// <summary>Queues a merge of the item's newest decode run of each capture into a new image version.</summary>
+    public async Task<JobRecord> QueueMergeAsync(int itemId, string agent, CancellationToken cancellation = default)
+    {
+        if (!await db.Items.AnyAsync(i => i.Id == itemId, cancellation).ConfigureAwait(false))
+        {
+            throw new ArchiveNotFoundException($"There is no item {itemId}.");
+        }
+
+        if ((await MergeJob.RunsToMergeAsync(db, itemId, cancellation).ConfigureAwait(false)).Count == 0)
+        {
+            throw new ArchiveInputException("This item has no decode runs yet; decode its captures before merging.");
+        }
+
+        var job = JobQueue.Enqueue(db, JobKinds.Merge, new MergeJobParameters(itemId).ToJson(), agent, itemId);
+        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+        return job;
+    }
+
     private static string Required(string? value, string what, int maxLength)
     {
         if (string.IsNullOrWhiteSpace(value))

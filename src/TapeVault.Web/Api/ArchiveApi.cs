@@ -42,6 +42,10 @@ public static class ArchiveApi
         read.MapGet("/runs/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.RunAsync(id, c));
         read.MapGet("/jobs", (ArchiveQueries q, CancellationToken c, int? take) => q.JobsAsync(take ?? 100, c));
         read.MapGet("/jobs/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.JobAsync(id, c));
+        read.MapGet("/items/{id:int}/images", (int id, ArchiveQueries q, CancellationToken c) => q.ImagesAsync(id, c));
+        read.MapGet("/items/{id:int}/block-map", (int id, ArchiveQueries q, CancellationToken c) => q.BlockMapAsync(id, c));
+        read.MapGet("/images/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.ImageAsync(id, c));
+        read.MapGet("/images/{id:int}/download", DownloadImageAsync);
         read.MapGet("/profiles", (ArchiveQueries q) => q.Profiles());
         read.MapGet("/detector-settings", () => ArchiveQueries.DefaultSettings());
 
@@ -61,6 +65,12 @@ public static class ArchiveApi
         write.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueDecodeAsync(id, body.Profile, body.Settings, body.Channel, Agent(http), c).ConfigureAwait(false);
+            runner.Nudge();
+            return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
+        });
+        write.MapPost("/items/{id:int}/merge", async (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+        {
+            var job = await actions.QueueMergeAsync(id, Agent(http), c).ConfigureAwait(false);
             runner.Nudge();
             return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
         });
@@ -136,6 +146,22 @@ public static class ArchiveApi
 
         return Results.File(store.OpenRead(capture.Sha256), "audio/wav", capture.OriginalFileName, enableRangeProcessing: true);
     }
+
+    private static async Task<IResult> DownloadImageAsync(int id, ArchiveDbContext db, ContentStore store, CancellationToken c)
+    {
+        var image = await db.Images.AsNoTracking().Include(i => i.Item).FirstOrDefaultAsync(x => x.Id == id, c).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no tape image {id}.");
+        if (!store.Exists(image.Sha256))
+        {
+            return Results.Problem(statusCode: StatusCodes.Status410Gone, title: "The tape image's file is missing from the content store; run a fixity audit.");
+        }
+
+        var name = $"{SafeDownloadName(image.Item!.AccessionNumber)}-v{image.Version}{Core.Image.TapeImageContainer.Extension}";
+        return Results.File(store.OpenRead(image.Sha256), "application/octet-stream", name, enableRangeProcessing: true);
+    }
+
+    private static string SafeDownloadName(string accession) =>
+        new([.. accession.Select(ch => char.IsAsciiLetterOrDigit(ch) || ch is '-' or '_' or '.' ? ch : '_')]);
 
     /// <summary>Streams the body into the store (never buffered whole), then records the capture; bad input leaves nothing behind.</summary>
     private static async Task<IResult> UploadAsync(

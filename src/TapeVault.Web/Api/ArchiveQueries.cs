@@ -2,14 +2,17 @@ using Microsoft.AspNetCore.Identity;
 using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive;
 using TapeVault.Archive.Entities;
+using TapeVault.Archive.Jobs;
 using TapeVault.Archive.Runs;
+using TapeVault.Archive.Storage;
+using TapeVault.Core.Image;
 using TapeVault.Core.Detection;
 using TapeVault.Core.Formats;
 
 namespace TapeVault.Web.Api;
 
 /// <summary>The reads behind both the pages and the API, so both show the same thing.</summary>
-public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles, UserManager<IdentityUser> users)
+public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles, UserManager<IdentityUser> users, ContentStore store)
 {
     public async Task<IReadOnlyList<CollectionSummary>> CollectionsAsync(CancellationToken cancellation = default) =>
         await db.Collections.AsNoTracking().OrderBy(c => c.Name)
@@ -88,6 +91,125 @@ public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles,
         return await db.Events.AsNoTracking().Where(e => e.ItemId == itemId).OrderBy(e => e.Id)
             .Select(e => new EventView(e.Id, e.EventType, e.OccurredUtc, e.Agent, e.ObjectType, e.ObjectId, e.Outcome, e.Detail))
             .ToListAsync(cancellation).ConfigureAwait(false);
+    }
+
+    public async Task<IReadOnlyList<ImageSummary>> ImagesAsync(int itemId, CancellationToken cancellation = default)
+    {
+        if (!await db.Items.AnyAsync(i => i.Id == itemId, cancellation).ConfigureAwait(false))
+        {
+            throw new ArchiveNotFoundException($"There is no item {itemId}.");
+        }
+
+        var images = await db.Images.AsNoTracking().Include(i => i.StoredFile).Where(i => i.ItemId == itemId).OrderByDescending(i => i.Version)
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        return [.. images.Select(ToSummary)];
+    }
+
+    public async Task<ImageDetail> ImageAsync(int id, CancellationToken cancellation = default)
+    {
+        var record = await db.Images.AsNoTracking().Include(i => i.StoredFile).FirstOrDefaultAsync(i => i.Id == id, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no tape image {id}.");
+        var image = await ReadImageAsync(record.Sha256, cancellation).ConfigureAwait(false);
+        var files = image.Captures.ToDictionary(c => c.CaptureSha256, c => c.FileName, StringComparer.Ordinal);
+        var blocks = image.Blocks.Select(b =>
+        {
+            var winner = b.Sources.IsDefaultOrEmpty ? null : b.Sources[0];
+            return new ImageBlockView(
+                b.Position,
+                b.Key,
+                b.Status.ToString().ToLowerInvariant(),
+                b.Confidence,
+                b.AgreeingCaptures,
+                b.Conflict,
+                b.Payload.Length,
+                Convert.ToHexStringLower(System.Security.Cryptography.SHA256.HashData(b.Payload.AsSpan())),
+                winner?.CaptureSha256,
+                winner is null ? null : files.GetValueOrDefault(winner.CaptureSha256),
+                winner?.SettingName,
+                [.. b.ConflictingPayloads.Select(c => new ConflictView(
+                    c.Source.CaptureSha256, c.Source.SettingName, c.AgreeingCaptures, Convert.ToHexStringLower(System.Security.Cryptography.SHA256.HashData(c.Payload.AsSpan()))))]);
+        }).ToList();
+        return new ImageDetail(
+            ToSummary(record),
+            blocks,
+            [.. image.Files.Select(f => new ImageFileView(f.Name, f.Length, f.FirstPosition, f.BlockCount, f.Complete))],
+            [.. image.Captures.Select(c => new ImageCaptureView(c.CaptureSha256, c.FileName, c.SampleRate, c.Channels, c.DurationSeconds))]);
+    }
+
+    /// <summary>Each capture × setting's best reading of each position of the newest image (or of every block seen, before a merge).</summary>
+    public async Task<BlockMap> BlockMapAsync(int itemId, CancellationToken cancellation = default)
+    {
+        if (!await db.Items.AnyAsync(i => i.Id == itemId, cancellation).ConfigureAwait(false))
+        {
+            throw new ArchiveNotFoundException($"There is no item {itemId}.");
+        }
+
+        var runs = await MergeJob.RunsToMergeAsync(db, itemId, cancellation).ConfigureAwait(false);
+        var runIds = runs.Select(r => r.Id).ToList();
+        var candidates = await db.Candidates.AsNoTracking().Where(c => runIds.Contains(c.RunId))
+            .Select(c => new { c.RunId, c.SettingIndex, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds })
+            .ToListAsync(cancellation).ConfigureAwait(false);
+
+        var newest = await db.Images.AsNoTracking().Where(i => i.ItemId == itemId).OrderByDescending(i => i.Version).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        List<BlockMapColumn> columns;
+        Dictionary<string, (string Capture, string Setting)> chosen = new(StringComparer.Ordinal);
+        if (newest is not null && store.Exists(newest.Sha256))
+        {
+            var image = await ReadImageAsync(newest.Sha256, cancellation).ConfigureAwait(false);
+            columns = [.. image.Blocks.Select(b => new BlockMapColumn(b.Position, b.Key, b.Status.ToString().ToLowerInvariant(), b.Confidence))];
+            foreach (var b in image.Blocks.Where(b => !b.Sources.IsDefaultOrEmpty))
+            {
+                chosen.TryAdd(b.Key, (b.Sources[0].CaptureSha256, b.Sources[0].SettingName));
+            }
+        }
+        else
+        {
+            columns = [.. candidates.GroupBy(c => c.IdentityKey).OrderBy(g => g.Min(c => c.StartSeconds))
+                .Select((g, i) => new BlockMapColumn(i, g.Key, "unmerged", 0))];
+        }
+
+        var rows = new List<BlockMapRow>();
+        foreach (var run in runs)
+        {
+            foreach (var setting in candidates.Where(c => c.RunId == run.Id).GroupBy(c => (c.SettingIndex, c.SettingName)).OrderBy(g => g.Key.SettingIndex))
+            {
+                var byKey = setting.GroupBy(c => c.IdentityKey, StringComparer.Ordinal)
+                    .ToDictionary(g => g.Key, g => g.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First(), StringComparer.Ordinal);
+                var cells = columns.Select(col => byKey.TryGetValue(col.Key, out var best)
+                    ? new BlockMapCell(best.Status, best.Confidence,
+                        chosen.TryGetValue(col.Key, out var win) && win.Capture == run.Capture!.Sha256 && win.Setting == setting.Key.SettingName)
+                    : new BlockMapCell("none", 0, false)).ToList();
+                rows.Add(new BlockMapRow(run.CaptureId, run.Capture!.OriginalFileName, run.Id, setting.Key.SettingName, cells));
+            }
+        }
+
+        return new BlockMap(newest?.Id, columns, rows);
+    }
+
+    private async Task<TapeImage> ReadImageAsync(string sha256, CancellationToken cancellation)
+    {
+        if (!store.Exists(sha256))
+        {
+            throw new ArchiveNotFoundException("The tape image's file is missing from the content store; run a fixity audit.");
+        }
+
+        await using var stream = store.OpenRead(sha256);
+        try
+        {
+            return TapeImageContainer.Read(stream);
+        }
+        catch (ImageFormatException e)
+        {
+            throw new ArchiveConflictException($"The stored tape image is damaged: {e.Message}");
+        }
+    }
+
+    public static ImageSummary ToSummary(TapeImageRecord i)
+    {
+        ArgumentNullException.ThrowIfNull(i);
+        return new(i.Id, i.ItemId, i.Version, i.Sha256, i.StoredFile?.Size ?? 0, i.ProfileId, i.CodeVersion, i.CreatedUtc, i.CreatedBy,
+            i.CleanBlocks, i.VotedBlocks, i.RepairedBlocks, i.MissingBlocks, i.Conflicts, i.OverallConfidence,
+            [.. i.SourceRunIds.Split(',', StringSplitOptions.RemoveEmptyEntries).Select(int.Parse)]);
     }
 
     public IReadOnlyList<ProfileView> Profiles() =>

@@ -119,3 +119,53 @@ public sealed record SignInRequest(string UserName, string Password);
 public sealed record UploadResult(CaptureSummary Capture, bool Duplicate, bool LinkedExistingObject, string Message, JobView? DecodeJob);
 
 public sealed record AntiforgeryToken(string HeaderName, string Token);
+
+public sealed record ImageSummary(
+    int Id,
+    int ItemId,
+    int Version,
+    string Sha256,
+    long Size,
+    string ProfileId,
+    string CodeVersion,
+    DateTimeOffset CreatedUtc,
+    string CreatedBy,
+    int CleanBlocks,
+    int VotedBlocks,
+    int RepairedBlocks,
+    int MissingBlocks,
+    int Conflicts,
+    double OverallConfidence,
+    IReadOnlyList<int> SourceRunIds);
+
+public sealed record ImageDetail(ImageSummary Image, IReadOnlyList<ImageBlockView> Blocks, IReadOnlyList<ImageFileView> Files, IReadOnlyList<ImageCaptureView> Captures);
+
+public sealed record ImageBlockView(
+    int Position,
+    string Key,
+    string Status,
+    double Confidence,
+    int AgreeingCaptures,
+    bool Conflict,
+    int PayloadLength,
+    string PayloadSha256,
+    string? WinningCaptureSha256,
+    string? WinningCaptureFile,
+    string? WinningSetting,
+    IReadOnlyList<ConflictView> Conflicts);
+
+public sealed record ConflictView(string CaptureSha256, string Setting, int AgreeingCaptures, string PayloadSha256);
+
+public sealed record ImageFileView(string Name, long Length, int FirstPosition, int BlockCount, bool Complete);
+
+public sealed record ImageCaptureView(string Sha256, string FileName, int SampleRate, int Channels, double DurationSeconds);
+
+/// <summary>The block map: one row per capture × detector setting, one column per position of the newest image.</summary>
+public sealed record BlockMap(int? ImageId, IReadOnlyList<BlockMapColumn> Columns, IReadOnlyList<BlockMapRow> Rows);
+
+public sealed record BlockMapColumn(int Position, string Key, string Status, double Confidence);
+
+public sealed record BlockMapRow(int CaptureId, string CaptureFile, int RunId, string Setting, IReadOnlyList<BlockMapCell> Cells);
+
+/// <summary>One setting's best reading of one position; status "none" when the setting read nothing there.</summary>
+public sealed record BlockMapCell(string Status, double Confidence, bool Chosen);
