@@ -212,6 +212,13 @@ public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles,
             [.. i.SourceRunIds.Split(',', StringSplitOptions.RemoveEmptyEntries).Select(int.Parse)]);
     }
 
+    public async Task<IReadOnlyList<ExportView>> ExportsAsync(int? collectionId, int? itemId, CancellationToken cancellation = default) =>
+        await db.Exports.AsNoTracking()
+            .Where(e => (collectionId == null || e.CollectionId == collectionId) && (itemId == null || e.ItemId == itemId))
+            .OrderByDescending(e => e.Id).Take(100)
+            .Select(e => new ExportView(e.Id, e.Kind, e.CollectionId, e.ItemId, e.FileName, e.Sha256, e.StoredFile!.Size, e.CreatedUtc, e.CreatedBy))
+            .ToListAsync(cancellation).ConfigureAwait(false);
+
     public IReadOnlyList<ProfileView> Profiles() =>
         [.. profiles.All.Select(p => new ProfileView(p.Id, p.Name, p.Description, p.Family.ToString().ToLowerInvariant()))];
 
