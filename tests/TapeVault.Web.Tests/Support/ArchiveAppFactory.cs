@@ -4,7 +4,6 @@ using Microsoft.AspNetCore.Identity;
 using Microsoft.AspNetCore.Mvc.Testing;
 using Microsoft.Data.Sqlite;
 using Microsoft.Extensions.DependencyInjection;
-using Microsoft.Extensions.Logging;
 using TapeVault.Archive;
 using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Storage;
@@ -75,6 +74,11 @@ public sealed class ArchiveAppFactory : WebApplicationFactory<Program>
             ["TapeVault:Archive:StorePath"] = folder.StorePath,
             ["TapeVault:Web:SeedDemo"] = "false",
             ["TapeVault:Web:InitialCurator"] = string.Empty,
+
+            // Quiet logs: the settings file's per-category levels would otherwise win over a filter set in code.
+            ["Logging:LogLevel:Default"] = "Warning",
+            ["Logging:LogLevel:Microsoft.AspNetCore"] = "Error",
+            ["Logging:LogLevel:Microsoft.EntityFrameworkCore"] = "Error",
         };
         foreach (var (key, value) in overrides ?? new Dictionary<string, string?>())
         {
@@ -130,8 +134,6 @@ public sealed class ArchiveAppFactory : WebApplicationFactory<Program>
         {
             builder.UseSetting(key, value);
         }
-
-        builder.ConfigureLogging(logging => logging.SetMinimumLevel(LogLevel.Warning).AddFilter("Microsoft", LogLevel.Error));
     }
 
     public static string Invariant(long value) => value.ToString(CultureInfo.InvariantCulture);
