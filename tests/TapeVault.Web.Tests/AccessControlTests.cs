@@ -14,6 +14,7 @@ using TapeVault.Archive;
 using TapeVault.Web.Api;
 using TapeVault.Web.Tests.Support;
 using Xunit;
+using Xunit.Abstractions;
 
 namespace TapeVault.Web.Tests;
 
@@ -60,7 +61,7 @@ public sealed record EndpointRequest(string Method, string Path, string Route, b
     public override string ToString() => $"{Method} {Path}";
 }
 
-public sealed partial class AccessControlTests(AccessControlArchive archive) : IClassFixture<AccessControlArchive>
+public sealed partial class AccessControlTests(AccessControlArchive archive, ITestOutputHelper output) : IClassFixture<AccessControlArchive>
 {
     /// <summary>
     /// Writes open to people who are not curators, each on purpose: signing in and out, fetching the antiforgery
@@ -120,6 +121,7 @@ public sealed partial class AccessControlTests(AccessControlArchive archive) : I
             }
         }
 
+        output.WriteLine($"{writes.Count} write requests, {writes.Count(w => OpenWriteRoutes.Contains(w.Route))} of them open on purpose; each other one sent as anonymous and as viewer.");
         Assert.Empty(failures);
         Assert.Equal(before, await CollectionCountAsync());
     }
@@ -182,6 +184,7 @@ public sealed partial class AccessControlTests(AccessControlArchive archive) : I
             }
         }
 
+        output.WriteLine($"{reads.Count} read requests, each sent as viewer and as anonymous.");
         Assert.Empty(failures);
     }
 
