@@ -28,5 +28,11 @@ if (section is "all" or "ber")
     FskErrorRate.Run();
 }
 
+if (section is "load")
+{
+    // Not part of "all": it starts the web app and needs a few minutes of synthesis the first time.
+    await LoadTest.RunAsync(work);
+}
+
 Console.WriteLine($"Total benchmark time {total.Elapsed.TotalSeconds:0} s.");
 return 0;

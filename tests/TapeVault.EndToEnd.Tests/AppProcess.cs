@@ -16,11 +16,14 @@ public sealed partial class AppProcess : IAsyncDisposable
     private readonly Process process;
     private readonly StringBuilder output = new();
 
-    private AppProcess(Process process, string root, Uri address)
+    private readonly bool ownsRoot;
+
+    private AppProcess(Process process, string root, Uri address, bool ownsRoot)
     {
         this.process = process;
         Root = root;
         Address = address;
+        this.ownsRoot = ownsRoot;
     }
 
     public Uri Address { get; }
@@ -53,7 +56,8 @@ public sealed partial class AppProcess : IAsyncDisposable
         throw new InvalidOperationException("The tests must run from inside the repository.");
     }
 
-    public static async Task<AppProcess> StartAsync()
+    /// <summary>Starts the app; with <paramref name="root"/> on an existing archive folder (a restart), else on a new one it deletes afterwards.</summary>
+    public static async Task<AppProcess> StartAsync(string? root = null)
     {
         var repo = RepositoryRoot();
         var configuration = AppContext.BaseDirectory.Contains($"{Path.DirectorySeparatorChar}Debug{Path.DirectorySeparatorChar}", StringComparison.Ordinal) ? "Debug" : "Release";
@@ -63,7 +67,8 @@ public sealed partial class AppProcess : IAsyncDisposable
             throw new InvalidOperationException($"The web app is not built at {app}; run the tests with scripts/test.");
         }
 
-        var root = Directory.CreateTempSubdirectory("tapevault-browser-").FullName;
+        bool owns = root is null;
+        root ??= Directory.CreateTempSubdirectory("tapevault-e2e-").FullName;
         int port = FreePort();
         var address = new Uri($"http://127.0.0.1:{port}");
         var start = new ProcessStartInfo("dotnet")
@@ -83,7 +88,7 @@ public sealed partial class AppProcess : IAsyncDisposable
         start.Environment["DOTNET_ENVIRONMENT"] = "Production";
 
         var process = Process.Start(start) ?? throw new InvalidOperationException("Could not start the web app.");
-        var running = new AppProcess(process, root, address);
+        var running = new AppProcess(process, root, address, owns);
         process.OutputDataReceived += (_, e) => running.Append(e.Data);
         process.ErrorDataReceived += (_, e) => running.Append(e.Data);
         process.BeginOutputReadLine();
@@ -120,19 +125,34 @@ public sealed partial class AppProcess : IAsyncDisposable
         }
 
         var match = PasswordLine().Match(running.Output);
-        running.CuratorPassword = match.Success ? match.Groups[1].Value : throw new InvalidOperationException($"The app printed no curator password:\n{running.Output}");
+        if (owns && !match.Success)
+        {
+            throw new InvalidOperationException($"The app printed no curator password:\n{running.Output}");
+        }
+
+        running.CuratorPassword = match.Success ? match.Groups[1].Value : string.Empty;
         return running;
     }
 
-    public async ValueTask DisposeAsync()
+    /// <summary>Ends the app at once with SIGKILL, as a power cut or the OOM killer would: no shutdown code runs.</summary>
+    public async Task KillAsync()
     {
         if (!process.HasExited)
         {
             process.Kill(entireProcessTree: true);
             await process.WaitForExitAsync();
         }
+    }
 
+    public async ValueTask DisposeAsync()
+    {
+        await KillAsync();
         process.Dispose();
+        if (!ownsRoot)
+        {
+            return;
+        }
+
         try
         {
             Directory.Delete(Root, recursive: true);

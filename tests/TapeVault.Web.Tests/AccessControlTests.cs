@@ -43,6 +43,16 @@ public sealed class AccessControlArchive : IAsyncLifetime
         Ids["captures"] = Invariant(uploaded.Capture.Id);
         Ids["runs"] = Invariant(job.ResultId!.Value);
         Ids["jobs"] = Invariant(job.Id);
+
+        // An image and an export, so that their endpoints are reached with ids that exist.
+        var merge = await curator.PostAsync<JobView>($"/api/items/{itemId}/merge", new { }, HttpStatusCode.Accepted);
+        var merged = await curator.WaitForJobAsync(merge.Id, TimeSpan.FromSeconds(30));
+        Assert.True(merged.State == "done", merged.Error);
+        Ids["images"] = Invariant(merged.ResultId!.Value);
+        var bag = await curator.PostAsync<JobView>($"/api/items/{itemId}/bag", new { }, HttpStatusCode.Accepted);
+        var bagged = await curator.WaitForJobAsync(bag.Id, TimeSpan.FromSeconds(30));
+        Assert.True(bagged.State == "done", bagged.Error);
+        Ids["exports"] = Invariant(bagged.ResultId!.Value);
     }
 
     public async Task DisposeAsync()

@@ -1,4 +1,5 @@
 using Microsoft.AspNetCore.Identity;
+using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive;
 using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Seeding;
@@ -21,6 +22,13 @@ public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions
         if (swept > 0)
         {
             LogSwept(logger, swept);
+        }
+
+        var known = (await db.Objects.AsNoTracking().Select(o => o.Sha256).ToListAsync(cancellationToken).ConfigureAwait(false)).ToHashSet(StringComparer.Ordinal);
+        int orphans = store.QuarantineOrphans(known);
+        if (orphans > 0)
+        {
+            LogOrphans(logger, orphans);
         }
 
         var admin = scope.ServiceProvider.GetRequiredService<UserAdmin>();
@@ -54,6 +62,9 @@ public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions
 
     [LoggerMessage(Level = LogLevel.Information, Message = "Removed {Count} temporary file(s) left by interrupted uploads.")]
     private static partial void LogSwept(ILogger logger, int count);
+
+    [LoggerMessage(Level = LogLevel.Warning, Message = "Moved {Count} stored file(s) that no record names (left by a step cut off before it was recorded) into the store's orphans folder.")]
+    private static partial void LogOrphans(ILogger logger, int count);
 
     [LoggerMessage(Level = LogLevel.Information, Message = "The archive was empty: the demo collection was made and its captures queued for decoding.")]
     private static partial void LogSeeded(ILogger logger);

@@ -52,13 +52,10 @@ public sealed class FixityScheduler(IDbContextFactory<ArchiveDbContext> contexts
             return false;
         }
 
-        var last = await fixity.Where(j => j.FinishedUtc != null).OrderByDescending(j => j.FinishedUtc).Select(j => j.FinishedUtc).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
-        if (last is { } finished && DateTimeOffset.UtcNow - finished < interval)
-        {
-            return false;
-        }
-
-        if (!await db.Objects.AnyAsync(cancellation).ConfigureAwait(false))
+        // Due one interval after the last audit, or, before the first, one interval after the oldest stored file.
+        var last = await fixity.Where(j => j.FinishedUtc != null).OrderByDescending(j => j.FinishedUtc).Select(j => j.FinishedUtc).FirstOrDefaultAsync(cancellation).ConfigureAwait(false)
+            ?? await db.Objects.OrderBy(o => o.StoredUtc).Select(o => (DateTimeOffset?)o.StoredUtc).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        if (last is not { } since || DateTimeOffset.UtcNow - since < interval)
         {
             return false;
         }

@@ -1,0 +1,67 @@
+using System.Net;
+using TapeVault.Web;
+using TapeVault.Web.Tests.Support;
+using Xunit;
+
+namespace TapeVault.Web.Tests;
+
+public sealed class WebSafetyTests
+{
+    [Fact]
+    public async Task EveryResponseCarriesTheSecurityHeaders()
+    {
+        using var folder = new ArchiveFolder();
+        await using var app = new ArchiveAppFactory(folder);
+        using var client = app.NewClient();
+        foreach (var path in new[] { "/signin", "/css/site.css", "/api/antiforgery", "/" })
+        {
+            using var response = await client.GetAsync(path);
+            // OWASP secure headers project (common practice): no MIME sniffing, no framing, scripts only from the app.
+            Assert.Equal("nosniff", response.Headers.GetValues("X-Content-Type-Options").Single());
+            Assert.Equal("DENY", response.Headers.GetValues("X-Frame-Options").Single());
+            var csp = response.Headers.GetValues("Content-Security-Policy").Single();
+            Assert.Contains("script-src 'self'", csp, StringComparison.Ordinal);
+            Assert.Contains("frame-ancestors 'none'", csp, StringComparison.Ordinal);
+            Assert.DoesNotContain("unsafe-inline", csp, StringComparison.Ordinal);
+        }
+    }
+
+    [Fact]
+    public async Task SignInCookieIsHttpOnlyAndSameSiteStrict()
+    {
+        using var folder = new ArchiveFolder();
+        await using var app = new ArchiveAppFactory(folder);
+        await app.AddCuratorAndViewerAsync();
+        using var client = app.NewClient();
+        var api = new ApiClient(client);
+        await api.RefreshAntiforgeryAsync();
+        using var response = await client.PostAsync("/api/signin", System.Net.Http.Json.JsonContent.Create(new { userName = ArchiveAppFactory.CuratorName, password = ArchiveAppFactory.Password }));
+        Assert.Equal(HttpStatusCode.NoContent, response.StatusCode);
+        var cookie = response.Headers.GetValues("Set-Cookie").Single(c => c.StartsWith("tapevault.session=", StringComparison.Ordinal));
+        Assert.Contains("httponly", cookie, StringComparison.OrdinalIgnoreCase);
+        Assert.Contains("samesite=strict", cookie, StringComparison.OrdinalIgnoreCase);
+    }
+
+    [Fact]
+    public async Task FiveWrongPasswordsLockTheAccountEvenForTheRightOne()
+    {
+        using var folder = new ArchiveFolder();
+        await using var app = new ArchiveAppFactory(folder);
+        await app.AddCuratorAndViewerAsync();
+        using var client = app.NewClient();
+        var api = new ApiClient(client);
+        await api.RefreshAntiforgeryAsync();
+        for (int i = 0; i < 5; i++)
+        {
+            using var wrong = await client.PostAsync("/api/signin", System.Net.Http.Json.JsonContent.Create(new { userName = ArchiveAppFactory.ViewerName, password = "not the password" }));
+            Assert.NotEqual(HttpStatusCode.NoContent, wrong.StatusCode);
+        }
+
+        using var right = await client.PostAsync("/api/signin", System.Net.Http.Json.JsonContent.Create(new { userName = ArchiveAppFactory.ViewerName, password = ArchiveAppFactory.Password }));
+        Assert.Equal((HttpStatusCode)423, right.StatusCode);
+    }
+
+    [Fact]
+    public void ContentSecurityPolicyAllowsNothingFromOutside() =>
+        Assert.DoesNotContain("http", SecurityHeaders.ContentSecurityPolicy, StringComparison.Ordinal);
+}
