@@ -194,8 +194,9 @@ internal sealed class BlockMerge
             }
         }
 
-        groups.Sort((a, b) => a.Start.CompareTo(b.Start));
-        return groups;
+        // Tape order by the median start of a group's entries: one entry that spans two blocks (a pass whose
+        // readings ran together) must not pull its group ahead of the block before it.
+        return [.. groups.OrderBy(g => Median(g.Entries.Select(e => e.Start)))];
     }
 
     private ImageBlock? ResolvePosition(Group group)
@@ -270,8 +271,7 @@ internal sealed class BlockMerge
         var whole = readings.Where(r => !r.Candidate.Truncated && r.Candidate.StoredChecksum is not null && r.Candidate.Header.Length == Layout.HeaderBytes).ToList();
         if (_checksum is null || whole.Count == 0)
         {
-            bool evidence = readings.Select(r => r.Pass).Distinct().Count() >= 2 || whole.Count > 0;
-            return evidence ? Missing(fallbackIdentity, allSources) : null;
+            return IsEvidence(readings) ? Missing(fallbackIdentity, allSources) : null;
         }
 
         int payloadLength = whole.GroupBy(r => r.Candidate.Payload.Length).MaxBy(g => g.Sum(r => 1 - MeanError(r.Candidate)))!.Key;
@@ -319,11 +319,7 @@ internal sealed class BlockMerge
         var sources = used.OrderByDescending(r => r.Candidate.Confidence).Select(r => Provenance(r.Candidate, r.Pass)).ToImmutableArray();
         if (outcome is null)
         {
-            // Noise before a lead-in or a click can pass for the start of a block: a failed reading that only one
-            // capture saw, cut short, next to no other position, is no evidence of a block. (Blocks that no pass
-            // read at all are found by their numbers instead.)
-            bool evidence = used.Select(r => r.Pass).Distinct().Count() >= 2 || used.Exists(r => !r.Candidate.Truncated);
-            return evidence ? Missing(fallbackIdentity, sources) : null;
+            return IsEvidence(used) ? Missing(fallbackIdentity, sources) : null;
         }
 
         var header = outcome.Bytes.AsSpan(0, Layout.HeaderBytes).ToArray();
@@ -348,6 +344,17 @@ internal sealed class BlockMerge
             // A length field that disagrees with the payload would make the block a different one.
             return Layout.FieldWithRole(FieldRole.PayloadLength) is not { } lengthField || FieldValue(block, lengthField) == payloadLength;
         }
+    }
+
+    /// <summary>
+    /// Whether failed readings that no position claims show a block: noise before a lead-in or a click can pass for
+    /// the start of one. Readings cut off in their header show nothing; the rest must come from two captures or
+    /// include one read to its end. (Blocks that no pass read at all are found by their numbers instead.)
+    /// </summary>
+    private static bool IsEvidence(List<(BlockCandidate Candidate, int Pass)> readings)
+    {
+        var withPayload = readings.Where(r => !r.Candidate.Payload.IsEmpty).ToList();
+        return withPayload.Select(r => r.Pass).Distinct().Count() >= 2 || withPayload.Exists(r => !r.Candidate.Truncated);
     }
 
     /// <summary>Which copy of the block a reading is, numbered by start within its pass (a new copy starts after half a block).</summary>
@@ -495,6 +502,12 @@ internal sealed class BlockMerge
 
     private BlockProvenance Provenance(BlockCandidate c, int pass) =>
         new(_passes[pass].Capture.CaptureSha256, c.SettingName, _passes[pass].CodeVersion, c.StartSeconds, c.Confidence);
+
+    private static double Median(IEnumerable<double> values)
+    {
+        var sorted = values.Order().ToList();
+        return sorted[sorted.Count / 2];
+    }
 
     private static double LogOdds(double p)
     {
