@@ -13,6 +13,9 @@ public sealed class CliSettings
 
     public DecodeSettings Decode { get; set; } = new();
 
+    /// <summary>Where the web app's archive lives (the same section the web app reads), for <c>users</c>.</summary>
+    public TapeVault.Archive.ArchiveOptions Archive { get; set; } = new();
+
     public sealed class DecodeSettings
     {
         public string Channel { get; set; } = "mix";

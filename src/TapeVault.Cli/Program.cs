@@ -37,6 +37,8 @@ namespace TapeVault.Cli
                     "synth" => SynthCommand.Run(new CommandLine(rest, SynthCommand.Flags), output),
                     "profiles" => ProfilesCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
                     "demo" => DemoCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
+                    "image" => ImageCommand.Run(new CommandLine(rest, ImageCommand.Flags), output, error),
+                    "users" => UsersCommand.Run(new CommandLine(rest, UsersCommand.Flags), output, Console.In, CliSettings.Load()),
                     _ => throw new UsageException($"Unknown command '{args[0]}'; run 'tapevault help'."),
                 };
             }
@@ -65,6 +67,8 @@ namespace TapeVault.Cli
             output.WriteLine($"  tapevault {SynthCommand.Usage}");
             output.WriteLine("  tapevault profiles [--profiles DIR]");
             output.WriteLine("  tapevault demo [--out DIR]");
+            output.WriteLine($"  tapevault {UsersCommand.Usage}");
+            output.WriteLine($"  tapevault {ImageCommand.Usage}");
         }
     }
 }

@@ -1,0 +1,125 @@
+using Microsoft.AspNetCore.Identity;
+using Microsoft.AspNetCore.Identity.EntityFrameworkCore;
+using Microsoft.EntityFrameworkCore;
+using Microsoft.EntityFrameworkCore.Storage.ValueConversion;
+using TapeVault.Archive.Entities;
+
+namespace TapeVault.Archive;
+
+/// <summary>The archive's database: collections down to block candidates, the object store's index, jobs, events and accounts.</summary>
+public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options) : IdentityDbContext<IdentityUser>(options)
+{
+    public DbSet<Collection> Collections => Set<Collection>();
+
+    public DbSet<TapeItem> Items => Set<TapeItem>();
+
+    public DbSet<StoredObject> Objects => Set<StoredObject>();
+
+    public DbSet<Capture> Captures => Set<Capture>();
+
+    public DbSet<DecodeRun> Runs => Set<DecodeRun>();
+
+    public DbSet<CandidateRecord> Candidates => Set<CandidateRecord>();
+
+    public DbSet<TapeImageRecord> Images => Set<TapeImageRecord>();
+
+    public DbSet<ArchiveEvent> Events => Set<ArchiveEvent>();
+
+    public DbSet<JobRecord> Jobs => Set<JobRecord>();
+
+    public override int SaveChanges(bool acceptAllChangesOnSuccess)
+    {
+        RefuseEventChanges();
+        return base.SaveChanges(acceptAllChangesOnSuccess);
+    }
+
+    public override Task<int> SaveChangesAsync(bool acceptAllChangesOnSuccess, CancellationToken cancellationToken = default)
+    {
+        RefuseEventChanges();
+        return base.SaveChangesAsync(acceptAllChangesOnSuccess, cancellationToken);
+    }
+
+    protected override void ConfigureConventions(ModelConfigurationBuilder configurationBuilder)
+    {
+        ArgumentNullException.ThrowIfNull(configurationBuilder);
+
+        // SQLite has no date-time-with-offset type; as ticks the values sort and compare correctly in SQL.
+        configurationBuilder.Properties<DateTimeOffset>().HaveConversion<DateTimeOffsetToBinaryConverter>();
+        configurationBuilder.Properties<DateTimeOffset?>().HaveConversion<DateTimeOffsetToBinaryConverter>();
+    }
+
+    protected override void OnModelCreating(ModelBuilder builder)
+    {
+        ArgumentNullException.ThrowIfNull(builder);
+        base.OnModelCreating(builder);
+
+        builder.Entity<Collection>(e =>
+        {
+            e.Property(c => c.Name).HasMaxLength(200);
+            e.Property(c => c.Description).HasMaxLength(20_000);
+        });
+
+        builder.Entity<TapeItem>(e =>
+        {
+            e.HasIndex(i => i.AccessionNumber).IsUnique();
+            e.Property(i => i.AccessionNumber).HasMaxLength(64);
+            e.Property(i => i.Title).HasMaxLength(300);
+            e.HasOne(i => i.Collection).WithMany(c => c.Items).HasForeignKey(i => i.CollectionId).OnDelete(DeleteBehavior.Restrict);
+        });
+
+        builder.Entity<StoredObject>(e =>
+        {
+            e.HasKey(o => o.Sha256);
+            e.Property(o => o.Sha256).HasMaxLength(64);
+            e.Property(o => o.Kind).HasConversion<string>().HasMaxLength(16);
+        });
+
+        builder.Entity<Capture>(e =>
+        {
+            e.HasIndex(c => new { c.ItemId, c.Sha256 }).IsUnique();
+            e.HasOne(c => c.Item).WithMany(i => i.Captures).HasForeignKey(c => c.ItemId).OnDelete(DeleteBehavior.Restrict);
+            e.HasOne(c => c.StoredFile).WithMany().HasForeignKey(c => c.Sha256).OnDelete(DeleteBehavior.Restrict);
+        });
+
+        builder.Entity<DecodeRun>(e =>
+        {
+            e.HasOne(r => r.Capture).WithMany(c => c.Runs).HasForeignKey(r => r.CaptureId).OnDelete(DeleteBehavior.Restrict);
+        });
+
+        builder.Entity<CandidateRecord>(e =>
+        {
+            e.HasIndex(c => new { c.RunId, c.Position });
+            e.HasOne(c => c.Run).WithMany(r => r.Candidates).HasForeignKey(c => c.RunId).OnDelete(DeleteBehavior.Cascade);
+        });
+
+        builder.Entity<TapeImageRecord>(e =>
+        {
+            e.HasIndex(i => new { i.ItemId, i.Version }).IsUnique();
+            e.HasOne(i => i.Item).WithMany(t => t.Images).HasForeignKey(i => i.ItemId).OnDelete(DeleteBehavior.Restrict);
+            e.HasOne(i => i.StoredFile).WithMany().HasForeignKey(i => i.Sha256).OnDelete(DeleteBehavior.Restrict);
+        });
+
+        builder.Entity<ArchiveEvent>(e =>
+        {
+            e.HasIndex(v => v.ItemId);
+            e.HasIndex(v => new { v.ObjectType, v.ObjectId });
+        });
+
+        builder.Entity<JobRecord>(e =>
+        {
+            e.HasIndex(j => j.State);
+            e.Property(j => j.State).HasConversion<string>().HasMaxLength(16);
+        });
+    }
+
+    private void RefuseEventChanges()
+    {
+        foreach (var entry in ChangeTracker.Entries<ArchiveEvent>())
+        {
+            if (entry.State is EntityState.Modified or EntityState.Deleted)
+            {
+                throw new InvalidOperationException("The event log is append-only: an event cannot be changed or removed.");
+            }
+        }
+    }
+}

@@ -1,0 +1,117 @@
+using System.Text.Json;
+using Microsoft.EntityFrameworkCore;
+using TapeVault.Archive.Entities;
+using TapeVault.Archive.Events;
+using TapeVault.Archive.Runs;
+using TapeVault.Archive.Storage;
+using TapeVault.Core.Audio;
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Detection;
+using TapeVault.Core.Formats;
+
+namespace TapeVault.Archive.Jobs;
+
+/// <summary>What a decode job decodes: one capture, one profile, and the bank (null: the default bank).</summary>
+public sealed record DecodeJobParameters(int CaptureId, string ProfileId, IReadOnlyList<DetectorSetting>? Settings, string Channel = "mix")
+{
+    public string ToJson() => JsonSerializer.Serialize(this, SettingsJson.Options);
+
+    public static DecodeJobParameters FromJson(string json) =>
+        JsonSerializer.Deserialize<DecodeJobParameters>(json, SettingsJson.Options)
+        ?? throw new JobFailedException("The job's parameters are empty.");
+}
+
+/// <summary>Decodes a stored capture with a bank and stores the run and every candidate in one transaction.</summary>
+public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, ContentStore store, ProfileCatalog profiles) : IJobHandler
+{
+    private static readonly TimeSpan ReportEvery = TimeSpan.FromMilliseconds(400);
+
+    public string Kind => JobKinds.Decode;
+
+    public async Task<JobOutcome> RunAsync(JobRecord job, JobProgress progress, CancellationToken cancellation)
+    {
+        ArgumentNullException.ThrowIfNull(job);
+        ArgumentNullException.ThrowIfNull(progress);
+        var parameters = DecodeJobParameters.FromJson(job.Parameters);
+        Capture capture;
+        await using (var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false))
+        {
+            capture = await db.Captures.AsNoTracking().FirstOrDefaultAsync(c => c.Id == parameters.CaptureId, cancellation).ConfigureAwait(false)
+                ?? throw new JobFailedException($"Capture {parameters.CaptureId} no longer exists.");
+        }
+
+        if (!profiles.TryGet(parameters.ProfileId, out var profile))
+        {
+            throw new JobFailedException($"There is no format profile '{parameters.ProfileId}'.");
+        }
+
+        var path = store.PathOf(capture.Sha256);
+        if (!File.Exists(path))
+        {
+            throw new JobFailedException($"The stored original of capture {capture.Id} is missing from the content store; run a fixity audit.");
+        }
+
+        var channel = parameters.Channel switch
+        {
+            "left" => ChannelChoice.Left,
+            "right" => ChannelChoice.Right,
+            _ => ChannelChoice.Mix,
+        };
+
+        // The decoder reports from its reading thread; forward at most a few times a second, never blocking it.
+        var lastReport = DateTime.MinValue;
+        Task pending = Task.CompletedTask;
+        var forward = new InlineProgress(p =>
+        {
+            var now = DateTime.UtcNow;
+            if (now - lastReport < ReportEvery || !pending.IsCompleted)
+            {
+                return;
+            }
+
+            lastReport = now;
+            pending = progress(p.Fraction * 0.97, $"Decoded {p.SamplesDone:N0} of {p.SamplesTotal:N0} samples.");
+        });
+
+        var started = DateTimeOffset.UtcNow;
+        DecodeResult result;
+        try
+        {
+            result = await Task.Factory.StartNew(
+                () => CaptureDecoder.Decode(path, profile, parameters.Settings, new DecodeOptions { Channel = channel, Progress = forward, Cancellation = cancellation }),
+                cancellation,
+                TaskCreationOptions.LongRunning,
+                TaskScheduler.Default).ConfigureAwait(false);
+        }
+        catch (CaptureFormatException e)
+        {
+            throw new JobFailedException($"The stored capture could not be read: {e.Message}");
+        }
+
+        await pending.ConfigureAwait(false);
+        cancellation.ThrowIfCancellationRequested();
+        if (!string.Equals(result.Capture.Sha256, capture.Sha256, StringComparison.Ordinal))
+        {
+            throw new JobFailedException(
+                $"The stored original of capture {capture.Id} no longer matches its SHA-256 (read {result.Capture.Sha256[..12]}…, recorded {capture.Sha256[..12]}…); nothing was decoded. Run a fixity audit.");
+        }
+
+        await progress(0.98, "Storing the blocks.").ConfigureAwait(false);
+        await using var write = await contexts.CreateDbContextAsync(CancellationToken.None).ConfigureAwait(false);
+        await using var transaction = await write.Database.BeginTransactionAsync(CancellationToken.None).ConfigureAwait(false);
+        var run = RunStore.ToRun(capture.Id, result, started, DateTimeOffset.UtcNow);
+        write.Runs.Add(run);
+        await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
+        EventLog.Add(write, EventTypes.Decode, job.CreatedBy, "run", run.Id.ToString(), "success",
+            $"Capture {capture.Id} with profile {profile.Id} and {result.Settings.Count} detector setting(s), code {result.CodeVersion}: {run.Outcome}", capture.ItemId);
+        await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
+        await transaction.CommitAsync(CancellationToken.None).ConfigureAwait(false);
+        return new JobOutcome(run.Id, $"Decode run {run.Id}: {run.Outcome}");
+    }
+
+    /// <summary>Calls back on the reporting thread itself (Progress&lt;T&gt; would post to the pool and reorder reports).</summary>
+    private sealed class InlineProgress(Action<DecodeProgress> report) : IProgress<DecodeProgress>
+    {
+        public void Report(DecodeProgress value) => report(value);
+    }
+}

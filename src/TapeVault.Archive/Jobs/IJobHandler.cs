@@ -1,0 +1,20 @@
+using TapeVault.Archive.Entities;
+
+namespace TapeVault.Archive.Jobs;
+
+/// <summary>Reports a job's progress; returns true when a cancel was asked for.</summary>
+public delegate Task<bool> JobProgress(double fraction, string text);
+
+/// <summary>Does the work of one kind of job. Work must be committed in one transaction at the end, so a cut-off job can start over.</summary>
+public interface IJobHandler
+{
+    string Kind { get; }
+
+    /// <returns>The id of what the job made (a decode run, an image).</returns>
+    Task<JobOutcome> RunAsync(JobRecord job, JobProgress progress, CancellationToken cancellation);
+}
+
+public sealed record JobOutcome(int? ResultId, string Summary);
+
+/// <summary>A failure whose message is fit to show the user as the job's error.</summary>
+public sealed class JobFailedException(string message) : Exception(message);

@@ -1,0 +1,141 @@
+using System.Text.Json;
+using Microsoft.EntityFrameworkCore;
+using TapeVault.Archive.Entities;
+using TapeVault.Archive.Events;
+using TapeVault.Archive.Runs;
+using TapeVault.Archive.Storage;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Image;
+using TapeVault.Core.Merge;
+
+namespace TapeVault.Archive.Jobs;
+
+public sealed record MergeJobParameters(int ItemId)
+{
+    public string ToJson() => JsonSerializer.Serialize(this, SettingsJson.Options);
+
+    public static MergeJobParameters FromJson(string json) =>
+        JsonSerializer.Deserialize<MergeJobParameters>(json, SettingsJson.Options)
+        ?? throw new JobFailedException("The job's parameters are empty.");
+}
+
+/// <summary>
+/// Merges an item's decode runs (the newest run of each capture, with the profile of the newest run of all) into a
+/// tape image, stores the container in the content store and records a new image version; older versions stay.
+/// </summary>
+public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, ContentStore store, ProfileCatalog profiles) : IJobHandler
+{
+    public string Kind => JobKinds.Merge;
+
+    /// <summary>The runs a merge of the item takes: per capture the newest run with the newest run's profile.</summary>
+    public static async Task<List<DecodeRun>> RunsToMergeAsync(ArchiveDbContext db, int itemId, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        var runs = await db.Runs.AsNoTracking().Include(r => r.Capture)
+            .Where(r => r.Capture!.ItemId == itemId).OrderByDescending(r => r.Id)
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        if (runs.Count == 0)
+        {
+            return [];
+        }
+
+        string profileId = runs[0].ProfileId;
+        return [.. runs.Where(r => r.ProfileId == profileId).GroupBy(r => r.CaptureId).Select(g => g.First()).OrderBy(r => r.CaptureId)];
+    }
+
+    public async Task<JobOutcome> RunAsync(JobRecord job, JobProgress progress, CancellationToken cancellation)
+    {
+        ArgumentNullException.ThrowIfNull(job);
+        ArgumentNullException.ThrowIfNull(progress);
+        var parameters = MergeJobParameters.FromJson(job.Parameters);
+        List<DecodeRun> runs;
+        var passes = new List<MergePass>();
+        await using (var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false))
+        {
+            if (!await db.Items.AnyAsync(i => i.Id == parameters.ItemId, cancellation).ConfigureAwait(false))
+            {
+                throw new JobFailedException($"Item {parameters.ItemId} no longer exists.");
+            }
+
+            runs = await RunsToMergeAsync(db, parameters.ItemId, cancellation).ConfigureAwait(false);
+            if (runs.Count == 0)
+            {
+                throw new JobFailedException("The item has no decode runs to merge; decode its captures first.");
+            }
+
+            foreach (var run in runs)
+            {
+                var records = await db.Candidates.AsNoTracking().Where(c => c.RunId == run.Id).OrderBy(c => c.Id).ToListAsync(cancellation).ConfigureAwait(false);
+                var capture = run.Capture!;
+                passes.Add(new MergePass(
+                    new ImageSource(capture.Sha256, capture.OriginalFileName, capture.SampleRate, capture.Channels, capture.DurationSeconds),
+                    [.. records.Select(RunStore.ToCandidate)],
+                    run.CodeVersion));
+            }
+        }
+
+        if (!profiles.TryGet(runs[0].ProfileId, out var profile))
+        {
+            throw new JobFailedException($"There is no format profile '{runs[0].ProfileId}' any more.");
+        }
+
+        await progress(0.1, $"Merging {passes.Count} pass(es) with profile {profile.Id}.").ConfigureAwait(false);
+        var image = await Task.Factory.StartNew(() => TapeMerger.Merge(passes, profile), cancellation, TaskCreationOptions.LongRunning, TaskScheduler.Default).ConfigureAwait(false);
+        cancellation.ThrowIfCancellationRequested();
+        await progress(0.8, "Writing the tape image.").ConfigureAwait(false);
+
+        using var staged = await store.StageAsync(stream =>
+        {
+            TapeImageContainer.Write(stream, image);
+            return Task.CompletedTask;
+        }, cancellation).ConfigureAwait(false);
+
+        await using var write = await contexts.CreateDbContextAsync(CancellationToken.None).ConfigureAwait(false);
+        await using var transaction = await write.Database.BeginTransactionAsync(CancellationToken.None).ConfigureAwait(false);
+        bool known = await write.Objects.AnyAsync(o => o.Sha256 == staged.Sha256, CancellationToken.None).ConfigureAwait(false);
+        if (!known)
+        {
+            write.Objects.Add(new StoredObject { Sha256 = staged.Sha256, Size = staged.Size, Kind = ObjectKind.Image, StoredUtc = DateTimeOffset.UtcNow });
+        }
+
+        int version = 1 + (await write.Images.Where(i => i.ItemId == parameters.ItemId).MaxAsync(i => (int?)i.Version, CancellationToken.None).ConfigureAwait(false) ?? 0);
+        var record = new TapeImageRecord
+        {
+            ItemId = parameters.ItemId,
+            Version = version,
+            Sha256 = staged.Sha256,
+            ProfileId = image.ProfileId,
+            CodeVersion = image.CodeVersion,
+            CreatedUtc = image.CreatedUtc,
+            CreatedBy = job.CreatedBy,
+            CleanBlocks = image.Count(RecoveryStatus.Clean),
+            VotedBlocks = image.Count(RecoveryStatus.Voted),
+            RepairedBlocks = image.Count(RecoveryStatus.Repaired),
+            MissingBlocks = image.Count(RecoveryStatus.Missing),
+            Conflicts = image.Blocks.Count(b => b.Conflict),
+            OverallConfidence = image.OverallConfidence,
+            SourceRunIds = string.Join(",", runs.Select(r => r.Id)),
+        };
+        write.Images.Add(record);
+        staged.Commit();
+        try
+        {
+            await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
+            string summary = $"Image version {version}: {image.Blocks.Length} position(s): {record.CleanBlocks} clean, {record.VotedBlocks} voted, "
+                + $"{record.RepairedBlocks} repaired, {record.MissingBlocks} missing, {record.Conflicts} conflict(s), from runs {record.SourceRunIds}.";
+            EventLog.Add(write, EventTypes.Merge, job.CreatedBy, "image", record.Id.ToString(), "success", $"{summary} SHA-256 {staged.Sha256}.", parameters.ItemId);
+            await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
+            await transaction.CommitAsync(CancellationToken.None).ConfigureAwait(false);
+            return new JobOutcome(record.Id, summary);
+        }
+        catch
+        {
+            if (!known)
+            {
+                staged.Rollback();
+            }
+
+            throw;
+        }
+    }
+}

@@ -1,0 +1,119 @@
+using System.Collections.Immutable;
+using System.Runtime.InteropServices;
+using System.Security.Cryptography;
+using TapeVault.Archive.Entities;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Decoding;
+
+namespace TapeVault.Archive.Runs;
+
+/// <summary>Turns a decode result into rows and stored candidates back into the core's block candidates (for a merge).</summary>
+public static class RunStore
+{
+    public static DecodeRun ToRun(int captureId, DecodeResult result, DateTimeOffset started, DateTimeOffset finished)
+    {
+        ArgumentNullException.ThrowIfNull(result);
+        int positions = result.Best.Count;
+        int clean = result.Best.Count(b => b.Status == BlockStatus.Clean);
+        int failed = result.Best.Count(b => b.Status == BlockStatus.Failed);
+        int unchecked_ = positions - clean - failed;
+        var run = new DecodeRun
+        {
+            CaptureId = captureId,
+            ProfileId = result.Profile.Id,
+            SettingsJson = SettingsJson.Write(result.Settings),
+            CodeVersion = result.CodeVersion,
+            StartedUtc = started,
+            FinishedUtc = finished,
+            Positions = positions,
+            CleanPositions = clean,
+            Outcome = positions == 0
+                ? "No blocks found."
+                : $"{positions} position(s): {clean} clean, {failed} failed{(unchecked_ > 0 ? $", {unchecked_} without checksum" : string.Empty)}.",
+        };
+
+        foreach (var c in result.Candidates)
+        {
+            run.Candidates.Add(ToRecord(c));
+        }
+
+        return run;
+    }
+
+    public static CandidateRecord ToRecord(BlockCandidate c)
+    {
+        ArgumentNullException.ThrowIfNull(c);
+        return new CandidateRecord
+        {
+            Position = c.Position,
+            SettingIndex = c.SettingIndex,
+            SettingName = c.SettingName,
+            IdentityKey = c.Identity.Key,
+            FileName = c.Identity.FileName,
+            FileId = c.Identity.FileId,
+            BlockNumber = c.Identity.BlockNumber,
+            Ordinal = c.Identity.Ordinal,
+            Status = c.Status.ToString().ToLowerInvariant(),
+            Confidence = c.Confidence,
+            MinimumMargin = c.MinimumMargin,
+            MeanMargin = c.MeanMargin,
+            Decisions = c.Decisions,
+            AmbiguousDecisions = c.AmbiguousDecisions,
+            FramingErrors = c.FramingErrors,
+            LevelDbfs = Finite(c.LevelDbfs),
+            SnrDb = Finite(c.SnrDb),
+            Speed = c.Speed,
+            StartSeconds = c.StartSeconds,
+            EndSeconds = c.EndSeconds,
+            Truncated = c.Truncated,
+            StoredChecksum = c.StoredChecksum,
+            PayloadLength = c.Payload.Length,
+            PayloadSha256 = Convert.ToHexStringLower(SHA256.HashData(c.Payload.AsSpan())),
+            Header = [.. c.Header],
+            Payload = [.. c.Payload],
+            ByteMargins = MemoryMarshal.AsBytes(c.ByteMargins.AsSpan()).ToArray(),
+            ByteErrorOdds = MemoryMarshal.AsBytes(c.ByteErrorOdds.AsSpan()).ToArray(),
+            ByteSeconds = MemoryMarshal.AsBytes(c.ByteSeconds.AsSpan()).ToArray(),
+        };
+    }
+
+    /// <summary>The stored candidate as the core's record, equal to the one that was stored.</summary>
+    public static BlockCandidate ToCandidate(CandidateRecord r)
+    {
+        ArgumentNullException.ThrowIfNull(r);
+        if (!BitConverter.IsLittleEndian)
+        {
+            throw new PlatformNotSupportedException("Stored per-byte arrays are little-endian.");
+        }
+
+        return new BlockCandidate
+        {
+            SettingIndex = r.SettingIndex,
+            SettingName = r.SettingName,
+            Position = r.Position,
+            Identity = new BlockIdentity(r.FileName, r.FileId, r.BlockNumber, r.Ordinal),
+            Header = [.. r.Header],
+            Payload = [.. r.Payload],
+            StoredChecksum = r.StoredChecksum is { } s ? (uint)s : null,
+            Status = Enum.Parse<BlockStatus>(r.Status, ignoreCase: true),
+            Confidence = r.Confidence,
+            ByteMargins = ImmutableArray.Create(MemoryMarshal.Cast<byte, float>(r.ByteMargins).ToArray()),
+            ByteErrorOdds = ImmutableArray.Create(MemoryMarshal.Cast<byte, float>(r.ByteErrorOdds).ToArray()),
+            ByteSeconds = ImmutableArray.Create(MemoryMarshal.Cast<byte, double>(r.ByteSeconds).ToArray()),
+            Decisions = r.Decisions,
+            AmbiguousDecisions = r.AmbiguousDecisions,
+            MinimumMargin = r.MinimumMargin,
+            MeanMargin = r.MeanMargin,
+            FramingErrors = r.FramingErrors,
+            LevelDbfs = r.LevelDbfs,
+            SnrDb = r.SnrDb,
+            Speed = r.Speed,
+            StartSeconds = r.StartSeconds,
+            EndSeconds = r.EndSeconds,
+            Truncated = r.Truncated,
+        };
+    }
+
+    // SQLite stores REAL; infinities from a silent stretch would not survive a round trip as numbers everywhere.
+    private static double Finite(double value) => double.IsFinite(value) ? value : value > 0 ? 999 : -999;
+}

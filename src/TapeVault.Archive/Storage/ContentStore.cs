@@ -1,0 +1,254 @@
+using System.Security.Cryptography;
+
+namespace TapeVault.Archive.Storage;
+
+/// <summary>
+/// Files named by their SHA-256 under <c>objects/ab/cd/&lt;hash&gt;</c>. A new object is streamed into <c>tmp/</c>
+/// while it is hashed, then moved into place in one rename; stored objects are made read-only and never rewritten.
+/// </summary>
+public sealed class ContentStore
+{
+    private const int BufferBytes = 81_920;
+
+    public ContentStore(string root)
+    {
+        ArgumentException.ThrowIfNullOrEmpty(root);
+        Root = Path.GetFullPath(root);
+        TempFolder = Path.Combine(Root, "tmp");
+        Directory.CreateDirectory(TempFolder);
+        Directory.CreateDirectory(Path.Combine(Root, "objects"));
+    }
+
+    public string Root { get; }
+
+    public string TempFolder { get; }
+
+    public static bool IsHash(string? sha256) =>
+        sha256 is { Length: 64 } && sha256.All(c => c is (>= '0' and <= '9') or (>= 'a' and <= 'f'));
+
+    public string PathOf(string sha256)
+    {
+        if (!IsHash(sha256))
+        {
+            throw new ArgumentException("Not a lower-case hex SHA-256.", nameof(sha256));
+        }
+
+        return Path.Combine(Root, "objects", sha256[..2], sha256[2..4], sha256);
+    }
+
+    public bool Exists(string sha256) => File.Exists(PathOf(sha256));
+
+    public FileStream OpenRead(string sha256) =>
+        new(PathOf(sha256), FileMode.Open, FileAccess.Read, FileShare.Read, BufferBytes, FileOptions.Asynchronous | FileOptions.SequentialScan);
+
+    /// <summary>Streams <paramref name="source"/> into a temporary file, hashing as it goes; never holds the whole in memory.</summary>
+    /// <exception cref="ObjectTooLargeException">The stream is longer than <paramref name="maxBytes"/>; nothing is left behind.</exception>
+    public async Task<StagedObject> StageAsync(Stream source, long maxBytes, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(source);
+        var tempPath = Path.Combine(TempFolder, $"{Guid.NewGuid():N}.part");
+        var staged = new StagedObject(this, tempPath);
+        try
+        {
+            using var hash = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
+            long size = 0;
+            var buffer = new byte[BufferBytes];
+            await using (var file = new FileStream(tempPath, FileMode.CreateNew, FileAccess.Write, FileShare.None, BufferBytes, FileOptions.Asynchronous))
+            {
+                int read;
+                while ((read = await source.ReadAsync(buffer, cancellation).ConfigureAwait(false)) > 0)
+                {
+                    size += read;
+                    if (size > maxBytes)
+                    {
+                        throw new ObjectTooLargeException(maxBytes);
+                    }
+
+                    hash.AppendData(buffer, 0, read);
+                    await file.WriteAsync(buffer.AsMemory(0, read), cancellation).ConfigureAwait(false);
+                }
+
+                await file.FlushAsync(cancellation).ConfigureAwait(false);
+                file.Flush(flushToDisk: true);
+            }
+
+            staged.Complete(Convert.ToHexStringLower(hash.GetHashAndReset()), size);
+            return staged;
+        }
+        catch
+        {
+            staged.Dispose();
+            throw;
+        }
+    }
+
+    /// <summary>Stores a file made elsewhere in the store's temporary folder (a tape image, an export).</summary>
+    public async Task<StagedObject> StageAsync(Func<Stream, Task> write, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(write);
+        var tempPath = Path.Combine(TempFolder, $"{Guid.NewGuid():N}.part");
+        try
+        {
+            await using (var file = new FileStream(tempPath, FileMode.CreateNew, FileAccess.Write, FileShare.None, BufferBytes, FileOptions.Asynchronous))
+            {
+                await write(file).ConfigureAwait(false);
+                await file.FlushAsync(cancellation).ConfigureAwait(false);
+                file.Flush(flushToDisk: true);
+            }
+
+            await using var read = File.OpenRead(tempPath);
+            var staged = new StagedObject(this, tempPath);
+            staged.Complete(Convert.ToHexStringLower(await SHA256.HashDataAsync(read, cancellation).ConfigureAwait(false)), read.Length);
+            return staged;
+        }
+        catch
+        {
+            File.Delete(tempPath);
+            throw;
+        }
+    }
+
+    /// <summary>Re-hashes a stored object; null when the object's file is gone.</summary>
+    public async Task<string?> HashStoredAsync(string sha256, CancellationToken cancellation = default)
+    {
+        var path = PathOf(sha256);
+        if (!File.Exists(path))
+        {
+            return null;
+        }
+
+        await using var stream = OpenRead(sha256);
+        return Convert.ToHexStringLower(await SHA256.HashDataAsync(stream, cancellation).ConfigureAwait(false));
+    }
+
+    /// <summary>Removes temporary files left by an ingest that was interrupted (a crash, a kill); returns how many.</summary>
+    public int SweepTemporaryFiles()
+    {
+        int removed = 0;
+        foreach (var file in Directory.EnumerateFiles(TempFolder, "*.part"))
+        {
+            File.Delete(file);
+            removed++;
+        }
+
+        return removed;
+    }
+
+    /// <summary>Every object file in the store, by hash (for audits and orphan checks).</summary>
+    public IEnumerable<string> EnumerateHashes() =>
+        Directory.EnumerateFiles(Path.Combine(Root, "objects"), "*", SearchOption.AllDirectories)
+            .Select(Path.GetFileName)
+            .Where(IsHash)!;
+
+    internal bool Place(string tempPath, string sha256)
+    {
+        var target = PathOf(sha256);
+        if (File.Exists(target))
+        {
+            File.Delete(tempPath);
+            return false;
+        }
+
+        Directory.CreateDirectory(Path.GetDirectoryName(target)!);
+        try
+        {
+            File.Move(tempPath, target, overwrite: false);
+        }
+        catch (IOException) when (File.Exists(target))
+        {
+            // Another ingest of the same bytes won the race; its copy is identical.
+            File.Delete(tempPath);
+            return false;
+        }
+
+        if (!OperatingSystem.IsWindows())
+        {
+            File.SetUnixFileMode(target, UnixFileMode.UserRead | UnixFileMode.GroupRead | UnixFileMode.OtherRead);
+        }
+        else
+        {
+            File.SetAttributes(target, FileAttributes.ReadOnly);
+        }
+
+        return true;
+    }
+
+    /// <summary>Takes back an object placed by a step whose database write then failed, so no orphan stays.</summary>
+    internal void Withdraw(string sha256)
+    {
+        var target = PathOf(sha256);
+        if (File.Exists(target))
+        {
+            File.SetAttributes(target, FileAttributes.Normal);
+            File.Delete(target);
+        }
+    }
+}
+
+/// <summary>A file hashed into the store's temporary folder; disposing it without <see cref="Commit"/> deletes it.</summary>
+public sealed class StagedObject : IDisposable
+{
+    private readonly ContentStore store;
+    private bool placed;
+
+    internal StagedObject(ContentStore store, string tempPath)
+    {
+        this.store = store;
+        TempPath = tempPath;
+    }
+
+    public string TempPath { get; }
+
+    public string Sha256 { get; private set; } = string.Empty;
+
+    public long Size { get; private set; }
+
+    /// <summary>True when this commit added the object; false when the store already held the same bytes.</summary>
+    public bool AddedToStore { get; private set; }
+
+    /// <summary>Moves the file into place (or drops it when the store already has the same bytes).</summary>
+    public bool Commit()
+    {
+        AddedToStore = store.Place(TempPath, Sha256);
+        placed = true;
+        return AddedToStore;
+    }
+
+    /// <summary>Undoes <see cref="Commit"/> when the database refused the object's row.</summary>
+    public void Rollback()
+    {
+        if (placed && AddedToStore)
+        {
+            store.Withdraw(Sha256);
+            AddedToStore = false;
+        }
+    }
+
+    public void Dispose()
+    {
+        if (!placed && File.Exists(TempPath))
+        {
+            File.Delete(TempPath);
+        }
+    }
+
+    internal void Complete(string sha256, long size)
+    {
+        Sha256 = sha256;
+        Size = size;
+    }
+}
+
+public sealed class ObjectTooLargeException(long maxBytes)
+    : Exception($"The upload is larger than the limit of {FormatBytes(maxBytes)}.")
+{
+    public long MaxBytes { get; } = maxBytes;
+
+    public static string FormatBytes(long bytes) => bytes switch
+    {
+        >= 1L << 30 => $"{bytes / (double)(1L << 30):0.##} GiB",
+        >= 1L << 20 => $"{bytes / (double)(1L << 20):0.##} MiB",
+        >= 1L << 10 => $"{bytes / 1024.0:0.##} KiB",
+        _ => $"{bytes} bytes",
+    };
+}

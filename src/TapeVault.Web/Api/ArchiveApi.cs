@@ -1,0 +1,260 @@
+using System.Globalization;
+using System.Security.Claims;
+using Microsoft.AspNetCore.Antiforgery;
+using Microsoft.AspNetCore.Http.Features;
+using Microsoft.AspNetCore.Identity;
+using Microsoft.AspNetCore.WebUtilities;
+using Microsoft.EntityFrameworkCore;
+using Microsoft.Net.Http.Headers;
+using TapeVault.Archive;
+using TapeVault.Archive.Accounts;
+using TapeVault.Archive.Curation;
+using TapeVault.Archive.Ingest;
+using TapeVault.Archive.Jobs;
+using TapeVault.Archive.Storage;
+
+namespace TapeVault.Web.Api;
+
+/// <summary>The JSON API: everything the pages do. Reads need a signed-in viewer or curator; writes need a curator and an antiforgery header.</summary>
+public static class ArchiveApi
+{
+    public static void MapTapeVaultApi(this IEndpointRouteBuilder app)
+    {
+        var api = app.MapGroup("/api").AddEndpointFilter(Errors).AddEndpointFilter(ApiAntiforgery.Validate).WithTags("archive");
+        var read = api.MapGroup(string.Empty).RequireAuthorization(Roles.ReaderPolicy);
+        var write = api.MapGroup(string.Empty).RequireAuthorization(Roles.CuratorPolicy);
+
+        api.MapGet("/antiforgery", (HttpContext http, IAntiforgery antiforgery) =>
+            new AntiforgeryToken(ApiAntiforgery.HeaderName, antiforgery.GetAndStoreTokens(http).RequestToken!)).AllowAnonymous();
+        api.MapPost("/signin", SignInAsync).AllowAnonymous();
+        api.MapPost("/signout", async (SignInManager<IdentityUser> signIn) =>
+        {
+            await signIn.SignOutAsync().ConfigureAwait(false);
+            return Results.NoContent();
+        }).RequireAuthorization(Roles.ReaderPolicy);
+
+        read.MapGet("/collections", (ArchiveQueries q, CancellationToken c) => q.CollectionsAsync(c));
+        read.MapGet("/collections/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.CollectionAsync(id, c));
+        read.MapGet("/items/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.ItemAsync(id, c));
+        read.MapGet("/items/{id:int}/events", (int id, ArchiveQueries q, CancellationToken c) => q.ItemEventsAsync(id, c));
+        read.MapGet("/captures/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.CaptureAsync(id, c));
+        read.MapGet("/captures/{id:int}/original", DownloadOriginalAsync);
+        read.MapGet("/runs/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.RunAsync(id, c));
+        read.MapGet("/jobs", (ArchiveQueries q, CancellationToken c, int? take) => q.JobsAsync(take ?? 100, c));
+        read.MapGet("/jobs/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.JobAsync(id, c));
+        read.MapGet("/items/{id:int}/images", (int id, ArchiveQueries q, CancellationToken c) => q.ImagesAsync(id, c));
+        read.MapGet("/items/{id:int}/block-map", (int id, ArchiveQueries q, CancellationToken c) => q.BlockMapAsync(id, c));
+        read.MapGet("/images/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.ImageAsync(id, c));
+        read.MapGet("/images/{id:int}/download", DownloadImageAsync);
+        read.MapGet("/profiles", (ArchiveQueries q) => q.Profiles());
+        read.MapGet("/detector-settings", () => ArchiveQueries.DefaultSettings());
+
+        write.MapPost("/collections", async (NewCollection body, CuratorActions actions, ArchiveQueries q, HttpContext http, CancellationToken c) =>
+        {
+            var created = await actions.CreateCollectionAsync(body.Name, body.Description, Agent(http), c).ConfigureAwait(false);
+            return Results.Created($"/api/collections/{created.Id}", await q.CollectionAsync(created.Id, c).ConfigureAwait(false));
+        });
+        write.MapPost("/collections/{id:int}/items", async (int id, NewItem body, CuratorActions actions, ArchiveQueries q, HttpContext http, CancellationToken c) =>
+        {
+            var item = await actions.CreateItemAsync(id, body.AccessionNumber, body.Title, body.LabelText, body.ConditionNotes, body.Side, Agent(http), c).ConfigureAwait(false);
+            return Results.Created($"/api/items/{item.Id}", await q.ItemAsync(item.Id, c).ConfigureAwait(false));
+        });
+        write.MapPost("/items/{id:int}/captures", UploadAsync)
+            .Accepts<IFormFile>("audio/wav", "application/octet-stream", "multipart/form-data")
+            .WithDescription("Upload a capture as the raw request body (audio/wav) or as the first file of a multipart form. Query: fileName (raw body), deck, operator, capturedOn (yyyy-mm-dd), notes, decodeProfile (queue a decode with the default bank).");
+        write.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+        {
+            var job = await actions.QueueDecodeAsync(id, body.Profile, body.Settings, body.Channel, Agent(http), c).ConfigureAwait(false);
+            runner.Nudge();
+            return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
+        });
+        write.MapPost("/items/{id:int}/merge", async (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+        {
+            var job = await actions.QueueMergeAsync(id, Agent(http), c).ConfigureAwait(false);
+            runner.Nudge();
+            return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
+        });
+        write.MapPost("/jobs/{id:int}/cancel", async (int id, JobQueue queue, CancellationToken c) =>
+        {
+            var job = await queue.CancelAsync(id, c).ConfigureAwait(false) ?? throw new ArchiveNotFoundException($"There is no job {id}.");
+            return Results.Ok(ArchiveQueries.ToView(job));
+        });
+        write.MapGet("/users", (ArchiveQueries q) => q.UsersAsync());
+        write.MapPost("/users", async (NewUser body, UserAdmin admin, HttpContext http) =>
+        {
+            var (user, generated) = await admin.AddAsync(body.UserName, body.Role, body.Password, Agent(http)).ConfigureAwait(false);
+            return Results.Created($"/api/users/{user.UserName}", new NewUserCreated(user.UserName!, body.Role, generated));
+        });
+    }
+
+    public static string Agent(HttpContext http)
+    {
+        ArgumentNullException.ThrowIfNull(http);
+        return http.User.Identity?.Name ?? "anonymous";
+    }
+
+    private static async ValueTask<object?> Errors(EndpointFilterInvocationContext context, EndpointFilterDelegate next)
+    {
+        try
+        {
+            return await next(context).ConfigureAwait(false);
+        }
+        catch (ArchiveInputException e)
+        {
+            return Results.Problem(statusCode: StatusCodes.Status400BadRequest, title: e.Message);
+        }
+        catch (ArchiveNotFoundException e)
+        {
+            return Results.Problem(statusCode: StatusCodes.Status404NotFound, title: e.Message);
+        }
+        catch (ArchiveConflictException e)
+        {
+            return Results.Problem(statusCode: StatusCodes.Status409Conflict, title: e.Message);
+        }
+        catch (BadHttpRequestException e)
+        {
+            return Results.Problem(statusCode: e.StatusCode, title: e.Message);
+        }
+    }
+
+    private static async Task<IResult> SignInAsync(SignInRequest body, SignInManager<IdentityUser> signIn)
+    {
+        var result = await signIn.PasswordSignInAsync(body.UserName ?? string.Empty, body.Password ?? string.Empty, isPersistent: false, lockoutOnFailure: true).ConfigureAwait(false);
+        if (result.IsLockedOut)
+        {
+            return Results.Problem(statusCode: StatusCodes.Status423Locked, title: "The account is locked after too many failed sign-ins; try again later.");
+        }
+
+        return result.Succeeded
+            ? Results.NoContent()
+            : Results.Problem(statusCode: StatusCodes.Status401Unauthorized, title: "The user name or password is wrong.");
+    }
+
+    private static async Task<IResult> DownloadOriginalAsync(int id, ArchiveDbContext db, ContentStore store, WebOptions web, ClaimsPrincipal user, CancellationToken c)
+    {
+        if (!web.ViewersMayDownloadOriginals && !user.IsInRole(Roles.Curator))
+        {
+            return Results.Problem(statusCode: StatusCodes.Status403Forbidden, title: "Only curators may download original captures here.");
+        }
+
+        var capture = await db.Captures.AsNoTracking().FirstOrDefaultAsync(x => x.Id == id, c).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no capture {id}.");
+        if (!store.Exists(capture.Sha256))
+        {
+            return Results.Problem(statusCode: StatusCodes.Status410Gone, title: "The stored original is missing from the content store; run a fixity audit.");
+        }
+
+        return Results.File(store.OpenRead(capture.Sha256), "audio/wav", capture.OriginalFileName, enableRangeProcessing: true);
+    }
+
+    private static async Task<IResult> DownloadImageAsync(int id, ArchiveDbContext db, ContentStore store, CancellationToken c)
+    {
+        var image = await db.Images.AsNoTracking().Include(i => i.Item).FirstOrDefaultAsync(x => x.Id == id, c).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no tape image {id}.");
+        if (!store.Exists(image.Sha256))
+        {
+            return Results.Problem(statusCode: StatusCodes.Status410Gone, title: "The tape image's file is missing from the content store; run a fixity audit.");
+        }
+
+        var name = $"{SafeDownloadName(image.Item!.AccessionNumber)}-v{image.Version}{Core.Image.TapeImageContainer.Extension}";
+        return Results.File(store.OpenRead(image.Sha256), "application/octet-stream", name, enableRangeProcessing: true);
+    }
+
+    private static string SafeDownloadName(string accession) =>
+        new([.. accession.Select(ch => char.IsAsciiLetterOrDigit(ch) || ch is '-' or '_' or '.' ? ch : '_')]);
+
+    /// <summary>Streams the body into the store (never buffered whole), then records the capture; bad input leaves nothing behind.</summary>
+    private static async Task<IResult> UploadAsync(
+        int id,
+        HttpRequest request,
+        CaptureIngest ingest,
+        CuratorActions actions,
+        ArchiveOptions options,
+        JobRunner runner,
+        ArchiveQueries queries,
+        CancellationToken cancellation)
+    {
+        if (request.ContentLength is { } declared && declared > options.MaxUploadBytes)
+        {
+            throw new ArchiveInputException($"The upload is larger than the limit of {ObjectTooLargeException.FormatBytes(options.MaxUploadBytes)}.");
+        }
+
+        // The store counts the bytes against the limit itself; the server's small default limit is for other requests.
+        if (request.HttpContext.Features.Get<IHttpMaxRequestBodySizeFeature>() is { IsReadOnly: false } limit)
+        {
+            limit.MaxRequestBodySize = null;
+        }
+
+        var query = request.Query;
+        DateOnly? capturedOn = null;
+        if (!string.IsNullOrEmpty(query["capturedOn"]))
+        {
+            if (!DateOnly.TryParseExact(query["capturedOn"], "yyyy-MM-dd", CultureInfo.InvariantCulture, DateTimeStyles.None, out var date))
+            {
+                throw new ArchiveInputException("capturedOn must be a date written yyyy-mm-dd.");
+            }
+
+            capturedOn = date;
+        }
+
+        string agent = Agent(request.HttpContext);
+        IngestResult result;
+        if (MediaTypeHeaderValue.TryParse(request.ContentType, out var media) && media.MediaType.Equals("multipart/form-data", StringComparison.OrdinalIgnoreCase))
+        {
+            result = await IngestMultipartAsync(request, media, ingest, id, query, capturedOn, agent, cancellation).ConfigureAwait(false);
+        }
+        else
+        {
+            result = await ingest.IngestAsync(request.Body, Request(id, query["fileName"], request.ContentType ?? "application/octet-stream", query, capturedOn, agent), cancellation).ConfigureAwait(false);
+        }
+
+        JobView? job = null;
+        if (!result.Duplicate && !string.IsNullOrWhiteSpace(query["decodeProfile"]))
+        {
+            var queued = await actions.QueueDecodeAsync(result.Capture.Id, query["decodeProfile"]!, null, null, agent, cancellation).ConfigureAwait(false);
+            runner.Nudge();
+            job = ArchiveQueries.ToView(queued);
+        }
+
+        var summary = await queries.CaptureAsync(result.Capture.Id, cancellation).ConfigureAwait(false);
+        var body = new UploadResult(summary, result.Duplicate, result.LinkedExistingObject, result.Message, job);
+        return result.Duplicate ? Results.Ok(body) : Results.Created($"/api/captures/{summary.Id}", body);
+    }
+
+    private static async Task<IngestResult> IngestMultipartAsync(
+        HttpRequest request, MediaTypeHeaderValue media, CaptureIngest ingest, int id, IQueryCollection query, DateOnly? capturedOn, string agent, CancellationToken cancellation)
+    {
+        var boundary = HeaderUtilities.RemoveQuotes(media.Boundary).Value;
+        if (string.IsNullOrEmpty(boundary) || boundary.Length > 200)
+        {
+            throw new ArchiveInputException("The multipart upload has no valid boundary.");
+        }
+
+        var reader = new MultipartReader(boundary, request.Body) { HeadersLengthLimit = 16 * 1024 };
+        while (await reader.ReadNextSectionAsync(cancellation).ConfigureAwait(false) is { } section)
+        {
+            if (ContentDispositionHeaderValue.TryParse(section.ContentDisposition, out var disposition) && disposition.IsFileDisposition())
+            {
+                var name = HeaderUtilities.RemoveQuotes(disposition.FileNameStar.HasValue ? disposition.FileNameStar : disposition.FileName).Value;
+                return await ingest.IngestAsync(section.Body, Request(id, name, section.ContentType, query, capturedOn, agent), cancellation).ConfigureAwait(false);
+            }
+        }
+
+        throw new ArchiveInputException("The multipart upload holds no file.");
+    }
+
+    private static IngestRequest Request(int id, string? fileName, string? contentType, IQueryCollection query, DateOnly? capturedOn, string agent) => new()
+    {
+        ItemId = id,
+        FileName = fileName ?? string.Empty,
+        ContentType = contentType,
+        Deck = Limit(query["deck"], "deck"),
+        Operator = Limit(query["operator"], "operator"),
+        Notes = Limit(query["notes"], "notes"),
+        CapturedOn = capturedOn,
+        Agent = agent,
+    };
+
+    private static string Limit(string? value, string what) =>
+        (value?.Length ?? 0) > 2000 ? throw new ArchiveInputException($"The {what} is longer than 2000 characters.") : value?.Trim() ?? string.Empty;
+}

@@ -1,0 +1,288 @@
+using Microsoft.AspNetCore.Identity;
+using Microsoft.EntityFrameworkCore;
+using TapeVault.Archive;
+using TapeVault.Archive.Entities;
+using TapeVault.Archive.Jobs;
+using TapeVault.Archive.Runs;
+using TapeVault.Archive.Storage;
+using TapeVault.Core.Image;
+using TapeVault.Core.Detection;
+using TapeVault.Core.Formats;
+
+namespace TapeVault.Web.Api;
+
+/// <summary>The reads behind both the pages and the API, so both show the same thing.</summary>
+public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles, UserManager<IdentityUser> users, ContentStore store)
+{
+    public async Task<IReadOnlyList<CollectionSummary>> CollectionsAsync(CancellationToken cancellation = default) =>
+        await db.Collections.AsNoTracking().OrderBy(c => c.Name)
+            .Select(c => new CollectionSummary(c.Id, c.Name, c.Description, c.Items.Count, c.CreatedUtc))
+            .ToListAsync(cancellation).ConfigureAwait(false);
+
+    public async Task<CollectionDetail> CollectionAsync(int id, CancellationToken cancellation = default)
+    {
+        var c = await db.Collections.AsNoTracking().FirstOrDefaultAsync(c => c.Id == id, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no collection {id}.");
+        var items = await db.Items.AsNoTracking().Where(i => i.CollectionId == id).OrderBy(i => i.AccessionNumber)
+            .Select(i => new ItemSummary(i.Id, i.AccessionNumber, i.Title, i.Side, i.Captures.Count, i.Captures.SelectMany(x => x.Runs).Count()))
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        return new CollectionDetail(c.Id, c.Name, c.Description, c.CreatedUtc, items);
+    }
+
+    public async Task<ItemDetail> ItemAsync(int id, CancellationToken cancellation = default)
+    {
+        var item = await db.Items.AsNoTracking().Include(i => i.Collection).FirstOrDefaultAsync(i => i.Id == id, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no item {id}.");
+        var captures = await db.Captures.AsNoTracking().Where(c => c.ItemId == id).Include(c => c.Runs).OrderBy(c => c.Id)
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        var jobs = await db.Jobs.AsNoTracking().Where(j => j.ItemId == id && (j.State == JobState.Queued || j.State == JobState.Running))
+            .OrderBy(j => j.Id).ToListAsync(cancellation).ConfigureAwait(false);
+        return new ItemDetail(
+            item.Id,
+            item.CollectionId,
+            item.Collection!.Name,
+            item.AccessionNumber,
+            item.Title,
+            item.LabelText,
+            item.ConditionNotes,
+            item.Side,
+            [.. captures.Select(ToSummary)],
+            [.. jobs.Select(ToView)]);
+    }
+
+    public async Task<CaptureSummary> CaptureAsync(int id, CancellationToken cancellation = default)
+    {
+        var capture = await db.Captures.AsNoTracking().Include(c => c.Runs).FirstOrDefaultAsync(c => c.Id == id, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no capture {id}.");
+        return ToSummary(capture);
+    }
+
+    public async Task<RunDetail> RunAsync(int id, CancellationToken cancellation = default)
+    {
+        var run = await db.Runs.AsNoTracking().Include(r => r.Capture).ThenInclude(c => c!.Item).FirstOrDefaultAsync(r => r.Id == id, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no decode run {id}.");
+        var candidates = await db.Candidates.AsNoTracking().Where(c => c.RunId == id)
+            .OrderBy(c => c.Position).ThenBy(c => c.SettingIndex).ThenBy(c => c.StartSeconds)
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        var positions = candidates.GroupBy(c => c.Position).Select(g =>
+        {
+            var readings = g.Select(ToView).ToList();
+            var best = g.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First();
+            return new PositionView(g.Key, best.IdentityKey, ToView(best), readings);
+        }).ToList();
+        return new RunDetail(ToSummary(run), run.Capture!.OriginalFileName, run.Capture.ItemId, run.Capture.Item!.AccessionNumber, positions);
+    }
+
+    public async Task<IReadOnlyList<JobView>> JobsAsync(int take = 100, CancellationToken cancellation = default) =>
+        (await db.Jobs.AsNoTracking().OrderByDescending(j => j.Id).Take(Math.Clamp(take, 1, 1000)).ToListAsync(cancellation).ConfigureAwait(false))
+            .Select(ToView).ToList();
+
+    public async Task<JobView> JobAsync(int id, CancellationToken cancellation = default) =>
+        ToView(await db.Jobs.AsNoTracking().FirstOrDefaultAsync(j => j.Id == id, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no job {id}."));
+
+    public async Task<IReadOnlyList<EventView>> ItemEventsAsync(int itemId, CancellationToken cancellation = default)
+    {
+        if (!await db.Items.AnyAsync(i => i.Id == itemId, cancellation).ConfigureAwait(false))
+        {
+            throw new ArchiveNotFoundException($"There is no item {itemId}.");
+        }
+
+        return await db.Events.AsNoTracking().Where(e => e.ItemId == itemId).OrderBy(e => e.Id)
+            .Select(e => new EventView(e.Id, e.EventType, e.OccurredUtc, e.Agent, e.ObjectType, e.ObjectId, e.Outcome, e.Detail))
+            .ToListAsync(cancellation).ConfigureAwait(false);
+    }
+
+    public async Task<IReadOnlyList<ImageSummary>> ImagesAsync(int itemId, CancellationToken cancellation = default)
+    {
+        if (!await db.Items.AnyAsync(i => i.Id == itemId, cancellation).ConfigureAwait(false))
+        {
+            throw new ArchiveNotFoundException($"There is no item {itemId}.");
+        }
+
+        var images = await db.Images.AsNoTracking().Include(i => i.StoredFile).Where(i => i.ItemId == itemId).OrderByDescending(i => i.Version)
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        return [.. images.Select(ToSummary)];
+    }
+
+    public async Task<ImageDetail> ImageAsync(int id, CancellationToken cancellation = default)
+    {
+        var record = await db.Images.AsNoTracking().Include(i => i.StoredFile).FirstOrDefaultAsync(i => i.Id == id, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no tape image {id}.");
+        var image = await ReadImageAsync(record.Sha256, cancellation).ConfigureAwait(false);
+        var files = image.Captures.ToDictionary(c => c.CaptureSha256, c => c.FileName, StringComparer.Ordinal);
+        var blocks = image.Blocks.Select(b =>
+        {
+            var winner = b.Sources.IsDefaultOrEmpty ? null : b.Sources[0];
+            return new ImageBlockView(
+                b.Position,
+                b.Key,
+                b.Status.ToString().ToLowerInvariant(),
+                b.Confidence,
+                b.AgreeingCaptures,
+                b.Conflict,
+                b.Payload.Length,
+                Convert.ToHexStringLower(System.Security.Cryptography.SHA256.HashData(b.Payload.AsSpan())),
+                winner?.CaptureSha256,
+                winner is null ? null : files.GetValueOrDefault(winner.CaptureSha256),
+                winner?.SettingName,
+                [.. b.ConflictingPayloads.Select(c => new ConflictView(
+                    c.Source.CaptureSha256, c.Source.SettingName, c.AgreeingCaptures, Convert.ToHexStringLower(System.Security.Cryptography.SHA256.HashData(c.Payload.AsSpan()))))]);
+        }).ToList();
+        return new ImageDetail(
+            ToSummary(record),
+            blocks,
+            [.. image.Files.Select(f => new ImageFileView(f.Name, f.Length, f.FirstPosition, f.BlockCount, f.Complete))],
+            [.. image.Captures.Select(c => new ImageCaptureView(c.CaptureSha256, c.FileName, c.SampleRate, c.Channels, c.DurationSeconds))]);
+    }
+
+    /// <summary>Each capture × setting's best reading of each position of the newest image (or of every block seen, before a merge).</summary>
+    public async Task<BlockMap> BlockMapAsync(int itemId, CancellationToken cancellation = default)
+    {
+        if (!await db.Items.AnyAsync(i => i.Id == itemId, cancellation).ConfigureAwait(false))
+        {
+            throw new ArchiveNotFoundException($"There is no item {itemId}.");
+        }
+
+        var runs = await MergeJob.RunsToMergeAsync(db, itemId, cancellation).ConfigureAwait(false);
+        var runIds = runs.Select(r => r.Id).ToList();
+        var candidates = await db.Candidates.AsNoTracking().Where(c => runIds.Contains(c.RunId))
+            .Select(c => new { c.RunId, c.SettingIndex, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds })
+            .ToListAsync(cancellation).ConfigureAwait(false);
+
+        var newest = await db.Images.AsNoTracking().Where(i => i.ItemId == itemId).OrderByDescending(i => i.Version).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        List<BlockMapColumn> columns;
+        Dictionary<string, (string Capture, string Setting)> chosen = new(StringComparer.Ordinal);
+        if (newest is not null && store.Exists(newest.Sha256))
+        {
+            var image = await ReadImageAsync(newest.Sha256, cancellation).ConfigureAwait(false);
+            columns = [.. image.Blocks.Select(b => new BlockMapColumn(b.Position, b.Key, b.Status.ToString().ToLowerInvariant(), b.Confidence))];
+            foreach (var b in image.Blocks.Where(b => !b.Sources.IsDefaultOrEmpty))
+            {
+                chosen.TryAdd(b.Key, (b.Sources[0].CaptureSha256, b.Sources[0].SettingName));
+            }
+        }
+        else
+        {
+            columns = [.. candidates.GroupBy(c => c.IdentityKey).OrderBy(g => g.Min(c => c.StartSeconds))
+                .Select((g, i) => new BlockMapColumn(i, g.Key, "unmerged", 0))];
+        }
+
+        var rows = new List<BlockMapRow>();
+        foreach (var run in runs)
+        {
+            foreach (var setting in candidates.Where(c => c.RunId == run.Id).GroupBy(c => (c.SettingIndex, c.SettingName)).OrderBy(g => g.Key.SettingIndex))
+            {
+                var byKey = setting.GroupBy(c => c.IdentityKey, StringComparer.Ordinal)
+                    .ToDictionary(g => g.Key, g => g.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First(), StringComparer.Ordinal);
+                var cells = columns.Select(col => byKey.TryGetValue(col.Key, out var best)
+                    ? new BlockMapCell(best.Status, best.Confidence,
+                        chosen.TryGetValue(col.Key, out var win) && win.Capture == run.Capture!.Sha256 && win.Setting == setting.Key.SettingName)
+                    : new BlockMapCell("none", 0, false)).ToList();
+                rows.Add(new BlockMapRow(run.CaptureId, run.Capture!.OriginalFileName, run.Id, setting.Key.SettingName, cells));
+            }
+        }
+
+        return new BlockMap(newest?.Id, columns, rows);
+    }
+
+    private async Task<TapeImage> ReadImageAsync(string sha256, CancellationToken cancellation)
+    {
+        if (!store.Exists(sha256))
+        {
+            throw new ArchiveNotFoundException("The tape image's file is missing from the content store; run a fixity audit.");
+        }
+
+        await using var stream = store.OpenRead(sha256);
+        try
+        {
+            return TapeImageContainer.Read(stream);
+        }
+        catch (ImageFormatException e)
+        {
+            throw new ArchiveConflictException($"The stored tape image is damaged: {e.Message}");
+        }
+    }
+
+    public static ImageSummary ToSummary(TapeImageRecord i)
+    {
+        ArgumentNullException.ThrowIfNull(i);
+        return new(i.Id, i.ItemId, i.Version, i.Sha256, i.StoredFile?.Size ?? 0, i.ProfileId, i.CodeVersion, i.CreatedUtc, i.CreatedBy,
+            i.CleanBlocks, i.VotedBlocks, i.RepairedBlocks, i.MissingBlocks, i.Conflicts, i.OverallConfidence,
+            [.. i.SourceRunIds.Split(',', StringSplitOptions.RemoveEmptyEntries).Select(int.Parse)]);
+    }
+
+    public IReadOnlyList<ProfileView> Profiles() =>
+        [.. profiles.All.Select(p => new ProfileView(p.Id, p.Name, p.Description, p.Family.ToString().ToLowerInvariant()))];
+
+    public static IReadOnlyList<SettingView> DefaultSettings() => [.. DetectorBanks.Default.Select(ToView)];
+
+    public async Task<IReadOnlyList<UserView>> UsersAsync()
+    {
+        var list = new List<UserView>();
+        foreach (var user in await users.Users.AsNoTracking().OrderBy(u => u.UserName).ToListAsync().ConfigureAwait(false))
+        {
+            var roles = await users.GetRolesAsync(user).ConfigureAwait(false);
+            list.Add(new UserView(user.UserName ?? string.Empty, [.. roles], await users.IsLockedOutAsync(user).ConfigureAwait(false)));
+        }
+
+        return list;
+    }
+
+    public static JobView ToView(JobRecord j)
+    {
+        ArgumentNullException.ThrowIfNull(j);
+        return new(j.Id, j.Kind, j.State.ToString().ToLowerInvariant(), j.Progress, j.ProgressText, j.Error, j.ItemId, j.CaptureId, j.ResultId,
+            j.CreatedBy, j.CreatedUtc, j.StartedUtc, j.FinishedUtc, j.Attempts);
+    }
+
+    public static CaptureSummary ToSummary(Capture c)
+    {
+        ArgumentNullException.ThrowIfNull(c);
+        return new(c.Id, c.ItemId, c.OriginalFileName, c.Sha256, c.Size, c.SampleRate, c.Channels, c.BitsPerSample, c.Encoding,
+            c.DurationSeconds, c.Deck, c.Operator, c.CapturedOn, c.Notes, c.IngestedUtc, c.IngestedBy,
+            [.. c.Runs.OrderBy(r => r.Id).Select(ToSummary)]);
+    }
+
+    public static RunSummary ToSummary(DecodeRun r)
+    {
+        ArgumentNullException.ThrowIfNull(r);
+        return new(r.Id, r.CaptureId, r.ProfileId, [.. SettingsJson.Read(r.SettingsJson).Select(s => s.Name)], r.CodeVersion,
+            r.StartedUtc, r.FinishedUtc, r.Outcome, r.Positions, r.CleanPositions);
+    }
+
+    public static CandidateView ToView(CandidateRecord c)
+    {
+        ArgumentNullException.ThrowIfNull(c);
+        return new(c.SettingName, c.Status, c.Confidence, c.MinimumMargin, c.MeanMargin, c.AmbiguousDecisions, c.Decisions, c.SnrDb,
+            c.Speed, c.StartSeconds, c.EndSeconds, c.Truncated, c.PayloadLength, c.PayloadSha256);
+    }
+
+    public static SettingView ToView(DetectorSetting s)
+    {
+        ArgumentNullException.ThrowIfNull(s);
+        return new(s.Name, s.HighPassHz, s.LowPassHz, s.Differentiate, s.Invert, s.ThresholdMode.ToString().ToLowerInvariant(), s.Hysteresis,
+            s.Edges.ToString().ToLowerInvariant(), Explain(s));
+    }
+
+    /// <summary>One sentence a volunteer can read: what the setting listens for.</summary>
+    public static string Explain(DetectorSetting s)
+    {
+        ArgumentNullException.ThrowIfNull(s);
+        string source = s.Differentiate
+            ? "Made for captures taken straight off the tape head (the signal is differentiated first)"
+            : "Made for captures from a deck's line or earphone output";
+        string filter = s.LowPassHz is { } lp ? $", smoothed above {lp:0} Hz" : string.Empty;
+        string threshold = s.ThresholdMode == ThresholdMode.Relative
+            ? $"a switching band of ±{s.Hysteresis:P0} of the recent signal level, so it follows quiet and loud passages"
+            : $"a fixed switching band of ±{s.Hysteresis:0.###} of full scale";
+        string edges = s.Edges switch
+        {
+            EdgeSelection.Rising => "times the signal's upward swings",
+            EdgeSelection.Falling => "times the signal's downward swings",
+            _ => "times both upward and downward swings",
+        };
+        string invert = s.Invert ? " The signal is turned upside down first, for decks wired the other way round." : string.Empty;
+        return $"{source}{filter}; uses {threshold} and {edges}.{invert}";
+    }
+}

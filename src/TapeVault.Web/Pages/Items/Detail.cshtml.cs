@@ -1,0 +1,105 @@
+using Microsoft.AspNetCore.Mvc;
+using TapeVault.Archive.Curation;
+using TapeVault.Archive.Jobs;
+using TapeVault.Web.Api;
+
+namespace TapeVault.Web.Pages.Items;
+
+public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, JobRunner runner) : ArchivePage
+{
+    public ItemDetail? Item { get; private set; }
+
+    public IReadOnlyList<EventView> Events { get; private set; } = [];
+
+    public IReadOnlyList<ProfileView> Profiles { get; private set; } = [];
+
+    public IReadOnlyList<SettingView> Settings { get; } = ArchiveQueries.DefaultSettings();
+
+    public IReadOnlyList<ImageSummary> Images { get; private set; } = [];
+
+    public ImageDetail? Latest { get; private set; }
+
+    public BlockMap? Map { get; private set; }
+
+    [TempData]
+    public string? Message { get; set; }
+
+    [BindProperty]
+    public DecodeForm Decode { get; set; } = new();
+
+    public Task<IActionResult> OnGetAsync(int id) => LoadOrNotFoundAsync(() => LoadAsync(id));
+
+    public Task<IActionResult> OnPostDecodeAsync(int id) => TryAsync(
+        async () =>
+        {
+            var capture = await queries.CaptureAsync(Decode.CaptureId).ConfigureAwait(false);
+            if (capture.ItemId != id)
+            {
+                return NotFound();
+            }
+
+            if (Decode.Settings.Count == 0)
+            {
+                throw new TapeVault.Archive.ArchiveInputException("Tick at least one detector setting.");
+            }
+
+            var job = await actions.QueueDecodeAsync(Decode.CaptureId, Decode.Profile, Decode.Settings, null, Agent).ConfigureAwait(false);
+            runner.Nudge();
+            Message = $"Decode of capture {Decode.CaptureId} queued as job {job.Id}.";
+            return Redirect($"/items/{id}");
+        },
+        () => LoadAsync(id));
+
+    public Task<IActionResult> OnPostMergeAsync(int id) => TryAsync(
+        async () =>
+        {
+            var job = await actions.QueueMergeAsync(id, Agent).ConfigureAwait(false);
+            runner.Nudge();
+            Message = $"Merge queued as job {job.Id}; the new image version appears here when it is done.";
+            return Redirect($"/items/{id}");
+        },
+        () => LoadAsync(id));
+
+    private async Task LoadAsync(int id)
+    {
+        Item = await queries.ItemAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
+        Events = await queries.ItemEventsAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
+        Profiles = queries.Profiles();
+        Images = await queries.ImagesAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
+        if (Images.Count > 0)
+        {
+            try
+            {
+                Latest = await queries.ImageAsync(Images[0].Id, HttpContext.RequestAborted).ConfigureAwait(false);
+            }
+            catch (Exception e) when (e is TapeVault.Archive.ArchiveNotFoundException or TapeVault.Archive.ArchiveConflictException)
+            {
+                ModelState.AddModelError(string.Empty, e.Message);
+            }
+        }
+
+        Map = await queries.BlockMapAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
+    }
+
+    /// <summary>The symbol and word for a status, so that no cell says it by colour alone.</summary>
+    public static (string Symbol, string Word) Symbol(string status) => status switch
+    {
+        "clean" => ("✓", "clean"),
+        "failed" => ("✗", "failed"),
+        "unchecked" => ("○", "no checksum"),
+        "voted" => ("≈", "voted"),
+        "repaired" => ("⚒", "repaired"),
+        "missing" => ("–", "missing"),
+        "none" => ("·", "not read"),
+        _ => ("?", status),
+    };
+
+    public sealed class DecodeForm
+    {
+        public int CaptureId { get; set; }
+
+        public string Profile { get; set; } = string.Empty;
+
+        public List<string> Settings { get; set; } = [];
+    }
+}

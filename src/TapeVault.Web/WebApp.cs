@@ -1,0 +1,141 @@
+using Microsoft.AspNetCore.Antiforgery;
+using Microsoft.AspNetCore.Authorization;
+using Microsoft.AspNetCore.DataProtection;
+using Microsoft.AspNetCore.Identity;
+using Microsoft.AspNetCore.Server.Kestrel.Core;
+using Microsoft.Extensions.FileProviders;
+using TapeVault.Archive;
+using TapeVault.Archive.Accounts;
+using TapeVault.Archive.Jobs;
+using TapeVault.Core.Formats;
+using TapeVault.Web.Api;
+using TapeVault.Web.Startup;
+
+namespace TapeVault.Web;
+
+/// <summary>Builds the web app: the archive's services, accounts, pages, the JSON API and the job workers.</summary>
+public static class WebApp
+{
+    /// <summary>Request bodies other than capture uploads are small JSON or forms.</summary>
+    public const long MaxFormBytes = 1024 * 1024;
+
+    public static WebApplication Build(string[] args)
+    {
+        var builder = WebApplication.CreateBuilder(new WebApplicationOptions
+        {
+            Args = args,
+            WebRootPath = ArchiveOptions.FindRepositoryRoot() is { } root ? Path.Combine(root, "web") : Path.Combine(AppContext.BaseDirectory, "web"),
+        });
+
+        // The settings file lives at the top of the repository; the copy beside the program, then the one in the current folder.
+        builder.Configuration.Sources.Insert(0, new Microsoft.Extensions.Configuration.Json.JsonConfigurationSource
+        {
+            Path = "appsettings.json",
+            Optional = true,
+            FileProvider = new PhysicalFileProvider(AppContext.BaseDirectory),
+        });
+        builder.Configuration.AddJsonFile(Path.Combine(ArchiveOptions.FindRepositoryRoot() ?? Directory.GetCurrentDirectory(), "appsettings.json"), optional: true);
+        builder.Configuration.AddEnvironmentVariables();
+        builder.Configuration.AddCommandLine(args);
+        if (string.IsNullOrEmpty(builder.Configuration["urls"]))
+        {
+            builder.WebHost.UseUrls("http://127.0.0.1:5080");
+        }
+
+        var archive = builder.Configuration.GetSection(ArchiveOptions.Section).Get<ArchiveOptions>() ?? new ArchiveOptions();
+        archive.BaseFolder = ArchiveOptions.FindRepositoryRoot() ?? Directory.GetCurrentDirectory();
+        var profiles = ProfileCatalog.WithUserFolder(builder.Configuration["TapeVault:ProfilesFolder"] is { Length: > 0 } folder ? Path.GetFullPath(folder, archive.BaseFolder) : null);
+        var web = builder.Configuration.GetSection(WebOptions.Section).Get<WebOptions>() ?? new WebOptions();
+        builder.Services.AddSingleton(web);
+        builder.Services.AddTapeVaultArchive(archive, profiles);
+
+        // Sign-in cookies must survive a restart: the keys live beside the database, not in memory.
+        builder.Services.AddDataProtection()
+            .SetApplicationName("TapeVault")
+            .PersistKeysToFileSystem(new DirectoryInfo(Path.Combine(Path.GetDirectoryName(archive.FullDatabasePath)!, "keys")));
+
+        builder.Services.AddIdentity<IdentityUser, IdentityRole>(ArchiveServices.ConfigureIdentity)
+            .AddEntityFrameworkStores<ArchiveDbContext>()
+            .AddDefaultTokenProviders();
+        builder.Services.ConfigureApplicationCookie(cookie =>
+        {
+            cookie.LoginPath = "/signin";
+            cookie.LogoutPath = "/signout";
+            cookie.AccessDeniedPath = "/denied";
+            cookie.Cookie.Name = "tapevault.session";
+            cookie.Cookie.HttpOnly = true;
+            cookie.Cookie.SameSite = SameSiteMode.Strict;
+            cookie.SlidingExpiration = true;
+            cookie.ExpireTimeSpan = TimeSpan.FromHours(8);
+
+            // The API answers with status codes; only pages redirect to the sign-in form.
+            cookie.Events.OnRedirectToLogin = context => ApiOrRedirect(context.HttpContext, context.RedirectUri, StatusCodes.Status401Unauthorized);
+            cookie.Events.OnRedirectToAccessDenied = context => ApiOrRedirect(context.HttpContext, context.RedirectUri, StatusCodes.Status403Forbidden);
+        });
+        builder.Services.AddAuthorizationBuilder()
+            .AddPolicy(Roles.CuratorPolicy, p => p.RequireAuthenticatedUser().RequireRole(Roles.Curator))
+            .AddPolicy(Roles.ReaderPolicy, p => p.RequireAuthenticatedUser().RequireRole(Roles.Curator, Roles.Viewer))
+            .SetFallbackPolicy(new AuthorizationPolicyBuilder().RequireAuthenticatedUser().RequireRole(Roles.Curator, Roles.Viewer).Build());
+        builder.Services.AddAntiforgery(a =>
+        {
+            a.HeaderName = ApiAntiforgery.HeaderName;
+            a.Cookie.Name = "tapevault.antiforgery";
+            a.Cookie.SameSite = SameSiteMode.Strict;
+            a.Cookie.HttpOnly = true;
+        });
+        builder.Services.Configure<KestrelServerOptions>(k => k.Limits.MaxRequestBodySize = MaxFormBytes);
+        builder.Services.AddRazorPages(pages =>
+        {
+            pages.Conventions.AllowAnonymousToPage("/Account/SignIn");
+            pages.Conventions.AllowAnonymousToPage("/Account/Denied");
+            pages.Conventions.AllowAnonymousToPage("/Error");
+        }).AddMvcOptions(mvc => mvc.Filters.Add(new CuratorWritesFilter()));
+        builder.Services.AddOpenApi();
+        builder.Services.AddProblemDetails();
+        builder.Services.AddSingleton<JobRunner>();
+        builder.Services.AddScoped<ArchiveQueries>();
+        builder.Services.AddHostedService<ArchiveStartup>();
+        builder.Services.AddHostedService(s => s.GetRequiredService<JobRunner>());
+
+        var app = builder.Build();
+        app.UseExceptionHandler("/Error");
+        app.UseStatusCodePages();
+        app.Use(SecurityHeaders.Add);
+        app.UseStaticFiles();
+        app.UseRouting();
+        app.UseAuthentication();
+        app.UseAuthorization();
+        app.UseAntiforgery();
+        app.MapOpenApi().AllowAnonymous();
+        app.MapRazorPages();
+        app.MapTapeVaultApi();
+        return app;
+    }
+
+    private static Task ApiOrRedirect(HttpContext context, string redirectUri, int status)
+    {
+        if (context.Request.Path.StartsWithSegments("/api", StringComparison.Ordinal))
+        {
+            context.Response.StatusCode = status;
+            return Task.CompletedTask;
+        }
+
+        context.Response.Redirect(redirectUri);
+        return Task.CompletedTask;
+    }
+}
+
+/// <summary>The "TapeVault:Web" section of appsettings.json.</summary>
+public sealed class WebOptions
+{
+    public const string Section = "TapeVault:Web";
+
+    /// <summary>Fill an empty archive with the demo collection at first start.</summary>
+    public bool SeedDemo { get; set; } = true;
+
+    /// <summary>At first start with no accounts, create this curator and print its one-time password once; empty for none.</summary>
+    public string InitialCurator { get; set; } = "curator";
+
+    /// <summary>Whether viewers may download original captures.</summary>
+    public bool ViewersMayDownloadOriginals { get; set; } = true;
+}
