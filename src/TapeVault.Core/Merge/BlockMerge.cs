@@ -18,6 +18,9 @@ internal sealed class BlockMerge
     /// <summary>The error odds given to the bytes of a reading after the point where it was more likely wrong than right.</summary>
     private const float SlippedByteError = 0.3f;
 
+    /// <summary>A voted or repaired block less likely right than this is listed as missing.</summary>
+    private const double MinimumRepairConfidence = 0.5;
+
     private readonly FormatProfile _profile;
     private readonly IReadOnlyList<MergePass> _passes;
     private readonly PassTimeline[] _timelines;
@@ -320,6 +323,12 @@ internal sealed class BlockMerge
         if (outcome is null)
         {
             return IsEvidence(used) ? Missing(fallbackIdentity, sources) : null;
+        }
+
+        // A pattern that holds is still more likely a false match than the block: keeping it would be filling in.
+        if (outcome.Confidence < MinimumRepairConfidence)
+        {
+            return Missing(fallbackIdentity, sources);
         }
 
         var header = outcome.Bytes.AsSpan(0, Layout.HeaderBytes).ToArray();
