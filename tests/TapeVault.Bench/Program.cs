@@ -28,5 +28,15 @@ if (section is "all" or "ber")
     FskErrorRate.Run();
 }
 
+if (section is "all" or "recovery")
+{
+    Recovery.Run(work, seeds: 4);
+}
+
+if (section is "all" or "calibration")
+{
+    Calibration.Run(work, seeds: 4);
+}
+
 Console.WriteLine($"Total benchmark time {total.Elapsed.TotalSeconds:0} s.");
 return 0;

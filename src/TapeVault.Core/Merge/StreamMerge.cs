@@ -338,8 +338,10 @@ internal sealed class StreamMerge
         {
             Position = -1,
             Key = $"#{stretch}+{offset}",
-            // Without a checksum, clean means what two captures or more read alike, with no reading against it.
-            Status = agreeing >= 2 && slots.TrueForAll(s => s.Unanimous) ? RecoveryStatus.Clean : RecoveryStatus.Voted,
+            // Without a checksum nothing verifies the bytes, however many captures agree (two captures can frame the
+            // same characters on the same false start bit): a stream is voted, never clean; its confidence and
+            // agreeing captures say how far to trust it.
+            Status = RecoveryStatus.Voted,
             Confidence = Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1),
             Header = [],
             Payload = payload,

@@ -58,8 +58,8 @@ public sealed class StreamMergeTests
         Assert.Equal(Hex(text[50..]), Hex(image.Blocks[2].Payload));
         Assert.Equal(["#0+0", "#0+40", "#0+50"], image.Blocks.Select(b => b.Key));
 
-        // Two captures read every kept byte alike: clean, as far as a stream without checksum can be.
-        Assert.Equal(RecoveryStatus.Clean, image.Blocks[0].Status);
+        // Two captures read every kept byte alike, but without a checksum nothing verifies them: voted, not clean.
+        Assert.Equal(RecoveryStatus.Voted, image.Blocks[0].Status);
         Assert.Equal(2, image.Blocks[0].AgreeingCaptures);
     }
 
