@@ -34,6 +34,7 @@ namespace TapeVault.Cli
                 return args[0] switch
                 {
                     "decode" => DecodeCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
+                    "merge" => MergeCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
                     "synth" => SynthCommand.Run(new CommandLine(rest, SynthCommand.Flags), output),
                     "profiles" => ProfilesCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
                     "demo" => DemoCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
@@ -67,6 +68,7 @@ namespace TapeVault.Cli
             output.WriteLine("tapevault: decode, score and archive captures of data cassettes.");
             output.WriteLine();
             output.WriteLine($"  tapevault {DecodeCommand.Usage}");
+            output.WriteLine($"  tapevault {MergeCommand.Usage}");
             output.WriteLine($"  tapevault {SynthCommand.Usage}");
             output.WriteLine("  tapevault profiles [--profiles DIR]");
             output.WriteLine("  tapevault demo [--out DIR]");

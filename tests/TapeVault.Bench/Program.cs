@@ -28,6 +28,16 @@ if (section is "all" or "ber")
     FskErrorRate.Run();
 }
 
+if (section is "all" or "recovery")
+{
+    Recovery.Run(work, seeds: 4);
+}
+
+if (section is "all" or "calibration")
+{
+    Calibration.Run(work, seeds: 4);
+}
+
 if (section is "load")
 {
     // Not part of "all": it starts the web app and needs a few minutes of synthesis the first time.

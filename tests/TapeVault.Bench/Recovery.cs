@@ -12,9 +12,11 @@ namespace TapeVault.Bench;
 public static class Recovery
 {
     /// <summary>Tapes <paramref name="first"/> onwards; a format with headers has fewer units per tape, so it gets twice as many tapes.</summary>
-    public static List<ScoredTape> Corpus(string work, int first, int count)
+    public static List<ScoredTape> Corpus(string work, int first, int count) => [.. Decoded(work, first, count).Select(t => RecoveryCorpus.Score(t))];
+
+    public static List<RecoveryCorpus.DecodedTape> Decoded(string work, int first, int count)
     {
-        var tapes = new List<ScoredTape>();
+        var tapes = new List<RecoveryCorpus.DecodedTape>();
         foreach (var profile in ProfileCatalog.BuiltIn.All)
         {
             int n = profile.Layout.IsStream ? count : 2 * count;
@@ -22,7 +24,7 @@ public static class Recovery
             {
                 for (int seed = first; seed < first + n; seed++)
                 {
-                    tapes.Add(RecoveryCorpus.Run(work, profile, level, seed));
+                    tapes.Add(RecoveryCorpus.Decode(work, profile, level, seed));
                 }
             }
         }

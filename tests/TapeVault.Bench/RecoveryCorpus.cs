@@ -73,10 +73,12 @@ public static class RecoveryCorpus
         return [new($"BIN{seed % 100:D2}", binary), new($"TXT{seed % 100:D2}", Encoding.ASCII.GetBytes(text.ToString()))];
     }
 
-    public static ScoredTape Run(string work, FormatProfile profile, DamageLevel level, int seed)
+    /// <summary>A tape's passes, synthesised and decoded, kept so that it can be merged again with other options.</summary>
+    public sealed record DecodedTape(FormatProfile Profile, DamageLevel Level, int Seed, List<TapeFile> Files, List<DecodeResult> Results, List<string> Names);
+
+    public static DecodedTape Decode(string work, FormatProfile profile, DamageLevel level, int seed)
     {
         var files = Files(profile, seed);
-        var written = BlockWriter.Blocks(profile, files);
         var results = new List<DecodeResult>();
         var names = new List<string>();
         for (int p = 0; p < PassesPerTape; p++)
@@ -88,10 +90,15 @@ public static class RecoveryCorpus
             File.Delete(path);
         }
 
-        var image = TapeMerger.Merge(results, names, new MergeOptions { CreatedUtc = DateTimeOffset.UnixEpoch });
-        return profile.Layout.IsStream
-            ? ScoreStream(profile, level, seed, files, results, image)
-            : ScoreBlocks(profile, level, seed, written, results, image);
+        return new DecodedTape(profile, level, seed, files, results, names);
+    }
+
+    public static ScoredTape Score(DecodedTape tape, MergeOptions? options = null)
+    {
+        var image = TapeMerger.Merge(tape.Results, tape.Names, (options ?? new MergeOptions()) with { CreatedUtc = DateTimeOffset.UnixEpoch });
+        return tape.Profile.Layout.IsStream
+            ? ScoreStream(tape.Profile, tape.Level, tape.Seed, tape.Files, tape.Results, image)
+            : ScoreBlocks(tape.Profile, tape.Level, tape.Seed, BlockWriter.Blocks(tape.Profile, tape.Files), tape.Results, image);
     }
 
     private static ScoredTape ScoreBlocks(FormatProfile profile, DamageLevel level, int seed, List<byte[]> written, List<DecodeResult> results, TapeImage image)

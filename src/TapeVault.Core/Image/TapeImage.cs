@@ -5,10 +5,10 @@ namespace TapeVault.Core.Image;
 /// <summary>How a position of the tape image was recovered.</summary>
 public enum RecoveryStatus
 {
-    /// <summary>A candidate whose checksum holds (or, for a format without checksum, bytes the passes agree on).</summary>
+    /// <summary>A candidate whose checksum holds. A format without checksum has no clean positions: nothing verifies them.</summary>
     Clean,
 
-    /// <summary>No candidate was valid; a margin-weighted vote across candidates gave bytes the checksum accepts (or, without checksum, the vote's bytes).</summary>
+    /// <summary>No candidate was valid; a margin-weighted vote across candidates gave bytes the checksum accepts (or, without checksum, the vote's bytes, however many passes agree).</summary>
     Voted,
 
     /// <summary>The vote did not satisfy the checksum; flipping the least certain bits did.</summary>

@@ -18,6 +18,9 @@ internal sealed class BlockMerge
     /// <summary>The error odds given to the bytes of a reading after the point where it was more likely wrong than right.</summary>
     private const float SlippedByteError = 0.3f;
 
+    /// <summary>A voted or repaired block less likely right than this is listed as missing.</summary>
+    private const double MinimumRepairConfidence = 0.5;
+
     private readonly FormatProfile _profile;
     private readonly IReadOnlyList<MergePass> _passes;
     private readonly PassTimeline[] _timelines;
@@ -91,6 +94,9 @@ internal sealed class BlockMerge
         /// <summary>The identity of the entry's most confident clean reading, if it has one.</summary>
         public string? TrustedKey { get; init; }
 
+        /// <summary>The header and payload of that reading, in hex.</summary>
+        public string? TrustedContent { get; init; }
+
         /// <summary>The identity most of its readings carry (which may be damaged when none is clean).</summary>
         public required string Key { get; init; }
     }
@@ -107,9 +113,16 @@ internal sealed class BlockMerge
 
         public bool Has(int pass) => Entries.Exists(e => e.Pass == pass);
 
+        public HashSet<string> Contents { get; } = first.TrustedContent is null ? [] : [first.TrustedContent];
+
         public void Add(Entry entry)
         {
             Entries.Add(entry);
+            if (entry.TrustedContent is not null)
+            {
+                Contents.Add(entry.TrustedContent);
+            }
+
             Start = Math.Min(Start, entry.Start);
             End = Math.Max(End, entry.End);
         }
@@ -137,6 +150,7 @@ internal sealed class BlockMerge
                 entries.Add(new Entry(p, readings, timeline.Map(readings.Min(c => c.StartSeconds)), timeline.Map(readings.Max(c => c.EndSeconds)))
                 {
                     TrustedKey = trusted?.Identity.Key,
+                    TrustedContent = trusted is null ? null : Convert.ToHexString(trusted.Header.AsSpan()) + trusted.PayloadHex,
                     Key = trusted?.Identity.Key ?? key,
                 });
             }
@@ -145,11 +159,12 @@ internal sealed class BlockMerge
         var groups = new List<Group>();
         foreach (var entry in entries.Where(e => e.TrustedKey is not null).OrderBy(e => e.Start))
         {
-            // The same identity close by is the same position, also from one pass (whose copies of a block may
-            // have been placed apart), unless another position lies between them: then it is the next file's block.
+            // The same identity over the same stretch of tape is the same position. Close by but apart, it is the
+            // same position only with the same bytes (the copies of a block written twice, which one pass may have
+            // placed apart): headers that carry only a block number repeat it in the next file, with other bytes.
             var match = groups.LastOrDefault(g => g.TrustedKey == entry.TrustedKey);
             double reach = Math.Max(1.0, 1.5 * (entry.End - entry.Start));
-            if (match is not null && (entry.Start > match.End + reach || (match.Has(entry.Pass) && match.Overlap(entry) <= -OverlapSlack && groups.Exists(g => g != match && g.Start > match.End - OverlapSlack && g.End < entry.Start + OverlapSlack))))
+            if (match is not null && match.Overlap(entry) <= -OverlapSlack && (entry.Start > match.End + reach || !match.Contents.Contains(entry.TrustedContent!)))
             {
                 match = null;
             }
@@ -170,8 +185,10 @@ internal sealed class BlockMerge
             double bestScore = double.NegativeInfinity;
             foreach (var g in groups)
             {
+                // Readings of one block in different passes share most of its stretch of tape; the gap to the next
+                // block can be shorter than the slack that identities are allowed.
                 double overlap = g.Overlap(entry);
-                if (overlap <= -OverlapSlack)
+                if (overlap <= 0.25 * Math.Min(entry.End - entry.Start, g.End - g.Start))
                 {
                     continue;
                 }
@@ -184,6 +201,16 @@ internal sealed class BlockMerge
                 }
             }
 
+            // A format that writes each block more than once: a reading of one copy may lie beside a position
+            // whose readings are of the other copy; it joins it when it carries the same identity.
+            if (best is null && Layout.Copies > 1)
+            {
+                double reach = (entry.End - entry.Start) + 0.5;
+                best = groups
+                    .Where(g => (g.TrustedKey ?? g.Entries[0].Key) == entry.Key && g.Overlap(entry) > -reach)
+                    .MaxBy(g => g.Overlap(entry));
+            }
+
             if (best is null)
             {
                 groups.Add(new Group(entry));
@@ -194,8 +221,9 @@ internal sealed class BlockMerge
             }
         }
 
-        groups.Sort((a, b) => a.Start.CompareTo(b.Start));
-        return groups;
+        // Tape order by the median start of a group's entries: one entry that spans two blocks (a pass whose
+        // readings ran together) must not pull its group ahead of the block before it.
+        return [.. groups.OrderBy(g => Median(g.Entries.Select(e => e.Start)))];
     }
 
     private ImageBlock? ResolvePosition(Group group)
@@ -270,8 +298,7 @@ internal sealed class BlockMerge
         var whole = readings.Where(r => !r.Candidate.Truncated && r.Candidate.StoredChecksum is not null && r.Candidate.Header.Length == Layout.HeaderBytes).ToList();
         if (_checksum is null || whole.Count == 0)
         {
-            bool evidence = readings.Select(r => r.Pass).Distinct().Count() >= 2 || whole.Count > 0;
-            return evidence ? Missing(fallbackIdentity, allSources) : null;
+            return IsEvidence(readings) ? Missing(fallbackIdentity, allSources) : null;
         }
 
         int payloadLength = whole.GroupBy(r => r.Candidate.Payload.Length).MaxBy(g => g.Sum(r => 1 - MeanError(r.Candidate)))!.Key;
@@ -319,11 +346,13 @@ internal sealed class BlockMerge
         var sources = used.OrderByDescending(r => r.Candidate.Confidence).Select(r => Provenance(r.Candidate, r.Pass)).ToImmutableArray();
         if (outcome is null)
         {
-            // Noise before a lead-in or a click can pass for the start of a block: a failed reading that only one
-            // capture saw, cut short, next to no other position, is no evidence of a block. (Blocks that no pass
-            // read at all are found by their numbers instead.)
-            bool evidence = used.Select(r => r.Pass).Distinct().Count() >= 2 || used.Exists(r => !r.Candidate.Truncated);
-            return evidence ? Missing(fallbackIdentity, sources) : null;
+            return IsEvidence(used) ? Missing(fallbackIdentity, sources) : null;
+        }
+
+        // A pattern that holds is still more likely a false match than the block: keeping it would be filling in.
+        if (outcome.Confidence < MinimumRepairConfidence)
+        {
+            return Missing(fallbackIdentity, sources);
         }
 
         var header = outcome.Bytes.AsSpan(0, Layout.HeaderBytes).ToArray();
@@ -349,6 +378,15 @@ internal sealed class BlockMerge
             return Layout.FieldWithRole(FieldRole.PayloadLength) is not { } lengthField || FieldValue(block, lengthField) == payloadLength;
         }
     }
+
+    /// <summary>
+    /// Whether failed readings that no position claims show a block: noise before a lead-in or a click can pass for
+    /// the start of one, even read to a length its garbled header names. Readings cut off in their header show
+    /// nothing; the rest must come from two captures, whose noise is not the same. (A block that only one pass saw
+    /// at all is still found by its number, between its file's neighbours.)
+    /// </summary>
+    private static bool IsEvidence(List<(BlockCandidate Candidate, int Pass)> readings) =>
+        readings.Where(r => !r.Candidate.Payload.IsEmpty).Select(r => r.Pass).Distinct().Count() >= 2;
 
     /// <summary>Which copy of the block a reading is, numbered by start within its pass (a new copy starts after half a block).</summary>
     private static int CopyIndex(BlockCandidate candidate, List<(BlockCandidate Candidate, int Pass)> readings, int pass)
@@ -495,6 +533,12 @@ internal sealed class BlockMerge
 
     private BlockProvenance Provenance(BlockCandidate c, int pass) =>
         new(_passes[pass].Capture.CaptureSha256, c.SettingName, _passes[pass].CodeVersion, c.StartSeconds, c.Confidence);
+
+    private static double Median(IEnumerable<double> values)
+    {
+        var sorted = values.Order().ToList();
+        return sorted[sorted.Count / 2];
+    }
 
     private static double LogOdds(double p)
     {

@@ -29,6 +29,26 @@ public sealed record MergeOptions
     /// <summary>The most checksum trials the repair search makes for one position, the plain vote included.</summary>
     public int MaximumTrials { get; init; } = 4096;
 
+    /// <summary>
+    /// The least chance that a stream byte read by one capture is wrong, whatever its decision margins say; and the
+    /// least chance for a byte that two captures or more read alike. A decoder's per-byte odds do not see a
+    /// character framed on a false start bit after a dropout (its bits are then read cleanly, one bit off), so
+    /// without a floor a long stream claims more certainty than it has. The defaults were fitted on synthetic tapes
+    /// (seeds 1–4 of the benchmark's recovery corpus, `dotnet run --project tests/TapeVault.Bench -- calibration`)
+    /// by the smallest expected calibration error; the benchmark reports the error on tapes of seeds 101 onwards.
+    /// </summary>
+    public double StreamByteErrorFloor { get; init; } = 2e-4;
+
+    /// <inheritdoc cref="StreamByteErrorFloor"/>
+    public double StreamAgreedByteErrorFloor { get; init; } = 2e-4;
+
+    /// <summary>
+    /// The factor on the confidence of a stream segment that resumes after bytes no capture kept: the readings that
+    /// resume after a dropout are framed on a false start bit more often than their margins show. Fitted with the
+    /// floors above.
+    /// </summary>
+    public double StreamAfterGapFactor { get; init; } = 0.1;
+
     /// <summary>The time the image records as its making; null for now.</summary>
     public DateTimeOffset? CreatedUtc { get; init; }
 }

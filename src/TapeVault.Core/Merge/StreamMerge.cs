@@ -26,9 +26,11 @@ internal sealed class StreamMerge
     private readonly PassTimeline[] _timelines;
 
     private readonly int _bitsPerCharacter;
+    private readonly MergeOptions _options;
 
-    public StreamMerge(IReadOnlyList<MergePass> passes, PassTimeline[] timelines, int bitsPerCharacter)
+    public StreamMerge(IReadOnlyList<MergePass> passes, PassTimeline[] timelines, int bitsPerCharacter, MergeOptions options)
     {
+        _options = options;
         _passes = passes;
         _timelines = timelines;
         _bitsPerCharacter = Math.Max(1, bitsPerCharacter);
@@ -170,6 +172,9 @@ internal sealed class StreamMerge
             int covering = spans.Where(s => s.Start <= slot.Centre && slot.Centre <= s.End).Select(s => s.Pass).Distinct().Count();
             int supporting = slot.Bytes.Select(x => x.Pass).Distinct().Count();
             Vote(slot);
+            int alike = slot.Bytes.Where(x => x.Value == slot.Value).Select(x => x.Pass).Distinct().Count();
+            double floor = alike >= 2 ? _options.StreamAgreedByteErrorFloor : _options.StreamByteErrorFloor;
+            slot.Probability = Math.Min(slot.Probability, 1 - floor);
 
             // A byte that other captures reading this stretch did not see must be a confident one.
             if (slot.Probability > (supporting < covering ? LoneByteProbability : 0.5))
@@ -333,9 +338,11 @@ internal sealed class StreamMerge
         {
             Position = -1,
             Key = $"#{stretch}+{offset}",
-            // Without a checksum, clean means what two captures or more read alike, with no reading against it.
-            Status = agreeing >= 2 && slots.TrueForAll(s => s.Unanimous) ? RecoveryStatus.Clean : RecoveryStatus.Voted,
-            Confidence = Math.Exp(logConfidence),
+            // Without a checksum nothing verifies the bytes, however many captures agree (two captures can frame the
+            // same characters on the same false start bit): a stream is voted, never clean; its confidence and
+            // agreeing captures say how far to trust it.
+            Status = RecoveryStatus.Voted,
+            Confidence = Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1),
             Header = [],
             Payload = payload,
             Sources = sources,

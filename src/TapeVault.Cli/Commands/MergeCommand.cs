@@ -1,0 +1,243 @@
+using System.Globalization;
+using System.Text.Json;
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Image;
+using TapeVault.Core.Merge;
+
+namespace TapeVault.Cli.Commands;
+
+/// <summary>tapevault merge CAPTURE1.wav CAPTURE2.wav … --profile ID --image OUT [--json OUT.json] [--payload OUT.bin]</summary>
+public static class MergeCommand
+{
+    public const string Usage = "merge CAPTURE1.wav CAPTURE2.wav ... --profile ID --image OUT [--json OUT.json] [--payload OUT.bin] [--channel left|right|mix] [--profiles DIR]";
+
+    public static int Run(CommandLine args, TextWriter output)
+    {
+        ArgumentNullException.ThrowIfNull(args);
+        ArgumentNullException.ThrowIfNull(output);
+        if (args.Positional.Count == 0)
+        {
+            throw new UsageException($"Usage: tapevault {Usage}");
+        }
+
+        var captures = args.Positional;
+        var settings = CliSettings.Load();
+        var profile = Catalogs.Profile(args, settings);
+        var channel = DecodeCommand.Channel(args.Value("channel") ?? settings.Decode.Channel);
+        string imagePath = args.Required("image");
+        string? jsonPath = args.Value("json");
+        string? payloadPath = args.Value("payload");
+        args.RejectUnknown();
+
+        if (captures.Distinct(StringComparer.Ordinal).Count() != captures.Count)
+        {
+            throw new UsageException("A capture is named twice; each pass is merged once.");
+        }
+
+        var outputs = new List<Files.Output> { new("image", imagePath) };
+        if (jsonPath is not null)
+        {
+            outputs.Add(new Files.Output("json", jsonPath));
+        }
+
+        if (payloadPath is not null)
+        {
+            outputs.Add(new Files.Output("payload", payloadPath));
+        }
+
+        foreach (string capture in captures)
+        {
+            Files.CheckOutputs(capture, outputs);
+        }
+
+        // Every capture is decoded with the default bank; one bar runs over all of them.
+        var results = new List<DecodeResult>(captures.Count);
+        using (var bar = new ProgressBar($"decoding {captures.Count} captures"))
+        {
+            for (int i = 0; i < captures.Count; i++)
+            {
+                int done = i;
+                var options = new DecodeOptions
+                {
+                    Channel = channel,
+                    ChunkSamples = settings.Decode.ChunkSamples,
+                    Progress = new Progress(bar, done, captures.Count),
+                };
+                results.Add(CaptureDecoder.Decode(captures[i], profile, options: options));
+            }
+
+            bar.Report(1);
+        }
+
+        var image = TapeMerger.Merge(results, [.. captures.Select(Path.GetFileName).Select(n => n ?? string.Empty)]);
+
+        // Outputs are written only after every decode and the merge succeeded: to temporary files, then into place.
+        var writers = new List<(string Path, Action<Stream> Write)> { (imagePath, stream => TapeImageContainer.Write(stream, image)) };
+        if (jsonPath is not null)
+        {
+            writers.Add((jsonPath, stream => WriteJson(stream, image)));
+        }
+
+        if (payloadPath is not null)
+        {
+            writers.Add((payloadPath, stream =>
+            {
+                foreach (var block in image.Blocks)
+                {
+                    stream.Write(block.Payload.AsSpan());
+                }
+            }));
+        }
+
+        Files.WriteAtomically(writers);
+        WriteTable(output, image);
+        return 0;
+    }
+
+    public static string Status(RecoveryStatus status) => status switch
+    {
+        RecoveryStatus.Clean => "clean",
+        RecoveryStatus.Voted => "voted",
+        RecoveryStatus.Repaired => "repaired",
+        _ => "missing",
+    };
+
+    /// <summary>The pass (1-based, in the order the captures were given) that a reading came from.</summary>
+    private static int PassOf(TapeImage image, BlockProvenance source)
+    {
+        for (int i = 0; i < image.Captures.Length; i++)
+        {
+            if (image.Captures[i].CaptureSha256 == source.CaptureSha256)
+            {
+                return i + 1;
+            }
+        }
+
+        return 0;
+    }
+
+    public static void WriteTable(TextWriter output, TapeImage image)
+    {
+        ArgumentNullException.ThrowIfNull(output);
+        ArgumentNullException.ThrowIfNull(image);
+        for (int i = 0; i < image.Captures.Length; i++)
+        {
+            var c = image.Captures[i];
+            output.WriteLine($"Pass {i + 1}  {c.CaptureSha256[..16]}…  {c.FileName}, {c.SampleRate} Hz, {c.DurationSeconds:0.0} s");
+        }
+
+        output.WriteLine($"Profile {image.ProfileId}");
+        output.WriteLine();
+        output.WriteLine($"{"pos",4}  {"block",-16} {"status",-9} {"confidence",10}  {"bytes",5}  {"won by",-18} {"agree",5}  conflict");
+        foreach (var block in image.Blocks)
+        {
+            string winner = block.Sources.IsDefaultOrEmpty || block.Status == RecoveryStatus.Missing
+                ? "-"
+                : $"pass {PassOf(image, block.Sources[0])} {block.Sources[0].SettingName}";
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"{block.Position,4}  {Truncate(block.Key, 16),-16} {Status(block.Status),-9} {block.Confidence,10:0.0000}  {block.Payload.Length,5}  {Truncate(winner, 18),-18} {block.AgreeingCaptures,5}  {(block.Conflict ? "yes" : "no")}"));
+        }
+
+        output.WriteLine();
+        output.WriteLine($"{image.Blocks.Length} positions: {image.Count(RecoveryStatus.Clean)} clean, {image.Count(RecoveryStatus.Voted)} voted, {image.Count(RecoveryStatus.Repaired)} repaired, {image.Count(RecoveryStatus.Missing)} missing; {image.Blocks.Count(b => b.Conflict)} with conflicting readings.");
+        foreach (var file in image.Files)
+        {
+            output.WriteLine($"File {file.Name}: {file.Length} bytes in {file.BlockCount} blocks from position {file.FirstPosition}, {(file.Complete ? "complete" : "incomplete")}.");
+        }
+
+        output.WriteLine("confidence: the estimated chance that the position's payload is right (0 for missing). won by: the pass and");
+        output.WriteLine("detector setting of the chosen reading. agree: captures whose valid readings hold the same bytes.");
+    }
+
+    public static void WriteJson(Stream stream, TapeImage image)
+    {
+        ArgumentNullException.ThrowIfNull(image);
+        using var json = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true });
+        json.WriteStartObject();
+        json.WriteString("profile", image.ProfileId);
+        json.WriteString("codeVersion", image.CodeVersion);
+        json.WriteString("createdUtc", image.CreatedUtc);
+        json.WriteStartArray("captures");
+        foreach (var c in image.Captures)
+        {
+            json.WriteStartObject();
+            json.WriteString("file", c.FileName);
+            json.WriteString("sha256", c.CaptureSha256);
+            json.WriteNumber("sampleRate", c.SampleRate);
+            json.WriteNumber("channels", c.Channels);
+            json.WriteNumber("durationSeconds", c.DurationSeconds);
+            json.WriteEndObject();
+        }
+
+        json.WriteEndArray();
+        json.WriteStartArray("positions");
+        foreach (var block in image.Blocks)
+        {
+            json.WriteStartObject();
+            json.WriteNumber("position", block.Position);
+            json.WriteString("key", block.Key);
+            json.WriteString("status", Status(block.Status));
+            json.WriteNumber("confidence", block.Confidence);
+            json.WriteString("headerHex", Convert.ToHexStringLower(block.Header.AsSpan()));
+            json.WriteString("payloadHex", block.PayloadHex);
+            json.WriteNumber("agreeingCaptures", block.AgreeingCaptures);
+            json.WriteBoolean("conflict", block.Conflict);
+            json.WriteStartArray("provenance");
+            foreach (var source in block.Sources)
+            {
+                WriteSource(json, image, source);
+            }
+
+            json.WriteEndArray();
+            json.WriteStartArray("conflictingReadings");
+            foreach (var loser in block.ConflictingPayloads)
+            {
+                json.WriteStartObject();
+                json.WriteString("payloadHex", Convert.ToHexStringLower(loser.Payload.AsSpan()));
+                json.WriteNumber("agreeingCaptures", loser.AgreeingCaptures);
+                json.WritePropertyName("source");
+                WriteSource(json, image, loser.Source);
+                json.WriteEndObject();
+            }
+
+            json.WriteEndArray();
+            json.WriteEndObject();
+        }
+
+        json.WriteEndArray();
+        json.WriteStartArray("files");
+        foreach (var file in image.Files)
+        {
+            json.WriteStartObject();
+            json.WriteString("name", file.Name);
+            json.WriteNumber("length", file.Length);
+            json.WriteNumber("firstPosition", file.FirstPosition);
+            json.WriteNumber("blockCount", file.BlockCount);
+            json.WriteBoolean("complete", file.Complete);
+            json.WriteEndObject();
+        }
+
+        json.WriteEndArray();
+        json.WriteEndObject();
+    }
+
+    private static void WriteSource(Utf8JsonWriter json, TapeImage image, BlockProvenance source)
+    {
+        json.WriteStartObject();
+        json.WriteNumber("pass", PassOf(image, source));
+        json.WriteString("captureSha256", source.CaptureSha256);
+        json.WriteString("setting", source.SettingName);
+        json.WriteString("codeVersion", source.CodeVersion);
+        json.WriteNumber("startSeconds", source.StartSeconds);
+        json.WriteNumber("confidence", source.Confidence);
+        json.WriteEndObject();
+    }
+
+    private static string Truncate(string text, int length) => text.Length <= length ? text : string.Concat(text.AsSpan(0, length - 1), "…");
+
+    /// <summary>One capture's decode progress as its share of the whole bar.</summary>
+    private sealed class Progress(ProgressBar bar, int index, int count) : IProgress<DecodeProgress>
+    {
+        public void Report(DecodeProgress value) => bar.Report((index + value.Fraction) / count);
+    }
+}

@@ -1,0 +1,87 @@
+using System.Diagnostics;
+
+namespace TapeVault.Bench;
+
+/// <summary>
+/// Reliability of the merged confidence: every recovered (not missing) position of the recovery corpus, binned by
+/// its confidence, beside the observed rate of right ones (ground truth: the bytes we synthesised). Expected
+/// calibration error = Σ over bins (count / total) × |mean confidence − observed rate|. The tapes here (seeds 101
+/// onwards) are disjoint from those the stream byte error floors were fitted on (seeds 1 onwards, fewer than 100).
+/// </summary>
+public static class Calibration
+{
+    private static readonly double[] Edges = [0, 0.5, 0.8, 0.9, 0.95, 0.99, 0.999, 1.0000001];
+
+    public static void Run(string work, int seeds)
+    {
+        var stopwatch = Stopwatch.StartNew();
+
+        // The fit: the stream byte error floors of MergeOptions, by the smallest calibration error on seeds 1 onwards.
+        var fitTapes = Recovery.Decoded(work, 1, seeds).Where(t => t.Profile.Layout.IsStream).ToList();
+        double[] grid = [2e-4, 5e-4, 1e-3, 2e-3, 5e-3, 1e-2, 2e-2, 5e-2];
+        double[] factors = [0.1, 0.2, 0.3, 0.5, 0.7, 1];
+        var fits = new List<(double Single, double Agreed, double Factor, double Ece)>();
+        foreach (double single in grid)
+        {
+            foreach (double agreed in grid.Where(a => a <= single))
+            {
+                foreach (double factor in factors)
+                {
+                    var options = new TapeVault.Core.Merge.MergeOptions { StreamByteErrorFloor = single, StreamAgreedByteErrorFloor = agreed, StreamAfterGapFactor = factor };
+                    var items = fitTapes.Select(t => RecoveryCorpus.Score(t, options)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right))).ToList();
+                    fits.Add((single, agreed, factor, Ece(items)));
+                }
+            }
+        }
+
+        var best = fits.MinBy(f => f.Ece);
+        var defaults = new TapeVault.Core.Merge.MergeOptions();
+        var atDefaults = fits.Find(f => f.Single == defaults.StreamByteErrorFloor && f.Agreed == defaults.StreamAgreedByteErrorFloor && f.Factor == defaults.StreamAfterGapFactor);
+        Console.WriteLine($"Fit on the stream tapes of seeds 1 to {seeds} (streams only): byte error floors {best.Single:0e0} (one capture), {best.Agreed:0e0} (captures agreeing), after-gap factor {best.Factor}: ECE {best.Ece:0.0000} there.");
+        Console.WriteLine($"Defaults in use: {defaults.StreamByteErrorFloor:0e0}, {defaults.StreamAgreedByteErrorFloor:0e0}, {defaults.StreamAfterGapFactor}: ECE {atDefaults.Ece:0.0000} on the fit tapes.");
+        var tapes = Recovery.Corpus(work, 101, seeds);
+        Console.WriteLine($"Calibration of merged confidence (tapes from seed 101, {seeds} per stream profile and level, {2 * seeds} per block profile and level)");
+        Print("merged positions", tapes.SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right))).ToList());
+        Print("single readings (each pass's best per position, for comparison)", tapes.SelectMany(t => t.SingleCandidates).ToList());
+        Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s.");
+        Console.WriteLine();
+    }
+
+    private static double Ece(List<(double Confidence, bool Right)> items)
+    {
+        double ece = 0;
+        for (int b = 0; b + 1 < Edges.Length; b++)
+        {
+            var bin = items.Where(i => i.Confidence >= Edges[b] && i.Confidence < Edges[b + 1]).ToList();
+            if (bin.Count > 0)
+            {
+                ece += bin.Count / (double)items.Count * Math.Abs(bin.Average(i => i.Confidence) - (bin.Count(i => i.Right) / (double)bin.Count));
+            }
+        }
+
+        return ece;
+    }
+
+    public static double Print(string title, List<(double Confidence, bool Right)> items)
+    {
+        Console.WriteLine(title);
+        Console.WriteLine($"{"bin",-14} {"count",6} {"mean conf",10} {"right",8} {"gap",7}");
+        double ece = 0;
+        for (int b = 0; b + 1 < Edges.Length; b++)
+        {
+            var bin = items.Where(i => i.Confidence >= Edges[b] && i.Confidence < Edges[b + 1]).ToList();
+            if (bin.Count == 0)
+            {
+                continue;
+            }
+
+            double mean = bin.Average(i => i.Confidence);
+            double right = bin.Count(i => i.Right) / (double)bin.Count;
+            ece += bin.Count / (double)items.Count * Math.Abs(mean - right);
+            Console.WriteLine($"{$"[{Edges[b]:0.###}, {Math.Min(1, Edges[b + 1]):0.###}{(b + 2 == Edges.Length ? "]" : ")")}",-14} {bin.Count,6} {mean,10:0.0000} {right,8:0.0000} {mean - right,7:+0.000;-0.000}");
+        }
+
+        Console.WriteLine($"{items.Count} items, expected calibration error {ece:0.0000} (goal <= 0.05)");
+        return ece;
+    }
+}

@@ -1,0 +1,88 @@
+using TapeVault.Core.Formats;
+using TapeVault.Core.Image;
+using TapeVault.Core.Merge;
+using Xunit;
+
+namespace TapeVault.Core.Tests.Merge;
+
+/// <summary>
+/// The byte-by-byte merge of a stream without headers or checksum, on readings built by hand: one character every
+/// 11 bits at 1200 baud (the Kansas City Standard's framing at its 1200-baud rate, BYTE, February 1976).
+/// </summary>
+public sealed class StreamMergeTests
+{
+    private const double Character = 11.0 / 1200;
+    private static readonly FormatProfile Kcs = ProfileCatalog.BuiltIn.Get("kcs-1200");
+
+    private static byte[] Text()
+    {
+        var text = new byte[120];
+        new Random(7).NextBytes(text);
+        return text;
+    }
+
+    [Fact]
+    public void Stream_ADropoutInOnePass_IsFilledFromTheOther_AndBytesInventedInsideItDoNotSurvive()
+    {
+        var text = Text();
+
+        // Pass 0 lost characters 40 to 49; inside the gap its framing invented characters half a character off the
+        // true ones, at low margins. Pass 1 read everything. The two captures started 0.3 s apart.
+        var invented = Readings.Stream(Enumerable.Range(0, 120).Select(i => unchecked((byte)(i * 37))).ToArray(), 41, 48, 1.0 + (Character / 2), Character, "s1",
+            errors: Enumerable.Range(41, 7).ToDictionary(i => i, _ => 0.7f));
+        var pass0 = Readings.Pass(0, Readings.Stream(text, 0, 40, 1.0, Character), Readings.Stream(text, 50, 120, 1.0, Character, position: 1), invented);
+        var pass1 = Readings.Pass(1, Readings.Stream(text, 0, 120, 1.3, Character));
+
+        var image = TapeMerger.Merge([pass0, pass1], Kcs);
+
+        var block = Assert.Single(image.Blocks);
+        Assert.Equal(Hex(text), Hex(block.Payload));
+        Assert.Equal("#0", block.Key);
+        Assert.NotEqual(RecoveryStatus.Missing, block.Status);
+        Assert.InRange(block.Confidence, 0.5, 1);
+    }
+
+    [Fact]
+    public void Stream_ADropoutInEveryPass_LeavesAMissingGap_NeverClosedUp()
+    {
+        var text = Text();
+        MergePass Lossy(int capture, double start) =>
+            Readings.Pass(capture, Readings.Stream(text, 0, 40, start, Character), Readings.Stream(text, 50, 120, start, Character, position: 1));
+
+        var image = TapeMerger.Merge([Lossy(0, 1.0), Lossy(1, 2.0)], Kcs);
+
+        Assert.Equal(3, image.Blocks.Length);
+        Assert.Equal(Hex(text[..40]), Hex(image.Blocks[0].Payload));
+        Assert.Equal(RecoveryStatus.Missing, image.Blocks[1].Status);
+        Assert.True(image.Blocks[1].Payload.IsEmpty);
+        Assert.Equal(Hex(text[50..]), Hex(image.Blocks[2].Payload));
+        Assert.Equal(["#0+0", "#0+40", "#0+50"], image.Blocks.Select(b => b.Key));
+
+        // Two captures read every kept byte alike, but without a checksum nothing verifies them: voted, not clean.
+        Assert.Equal(RecoveryStatus.Voted, image.Blocks[0].Status);
+        Assert.Equal(2, image.Blocks[0].AgreeingCaptures);
+    }
+
+    [Fact]
+    public void Stream_ByteReadDifferently_IsVotedByMargin()
+    {
+        var text = Text();
+        var wrong = (byte[])text.Clone();
+        wrong[60] ^= 0x08;
+
+        // Capture 0 misread character 60 at a low margin; captures 1 and 2 read it right with confidence.
+        var image = TapeMerger.Merge(
+        [
+            Readings.Pass(0, Readings.Stream(wrong, 0, 120, 1.0, Character, errors: new Dictionary<int, float> { [60] = 0.4f })),
+            Readings.Pass(1, Readings.Stream(text, 0, 120, 1.0, Character)),
+        ], Kcs);
+
+        var block = Assert.Single(image.Blocks);
+        Assert.Equal(Hex(text), Hex(block.Payload));
+        Assert.Equal(RecoveryStatus.Voted, block.Status);
+    }
+
+    private static string Hex(System.Collections.Immutable.ImmutableArray<byte> bytes) => Convert.ToHexStringLower(bytes.AsSpan());
+
+    private static string Hex(byte[] bytes) => Convert.ToHexStringLower(bytes);
+}
