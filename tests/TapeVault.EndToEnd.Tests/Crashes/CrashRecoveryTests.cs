@@ -125,7 +125,7 @@ public sealed class CrashRecoveryTests
         }
 
         var files = Directory.EnumerateFiles(Path.Combine(root, "store", "objects"), "*", SearchOption.AllDirectories).ToList();
-        Assert.Equal(rows, files.Select(Path.GetFileName).ToHashSet(StringComparer.Ordinal));
+        Assert.Equal(rows, files.Select(f => Path.GetFileName(f)!).ToHashSet(StringComparer.Ordinal));
         foreach (var file in files)
         {
             Assert.Equal(Path.GetFileName(file), Convert.ToHexStringLower(SHA256.HashData(File.ReadAllBytes(file))));
