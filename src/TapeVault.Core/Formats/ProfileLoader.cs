@@ -47,7 +47,9 @@ public static class ProfileLoader
             string line = e.LineNumber is { } l ? $" (line {l + 1})" : string.Empty;
             string reason = e.Message.Contains("could not be mapped", StringComparison.Ordinal)
                 ? "an unknown field"
-                : "invalid JSON or a value of the wrong type";
+                : e.Message.Contains("Duplicate", StringComparison.OrdinalIgnoreCase)
+                    ? "a field given twice"
+                    : "invalid JSON or a value of the wrong type";
             throw new ProfileException($"Profile {source}: {reason}{where}{line}.", e);
         }
 
