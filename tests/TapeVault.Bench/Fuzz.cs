@@ -4,9 +4,9 @@ using TapeVault.Core.Tests.Hardening.Fuzzing;
 namespace TapeVault.Bench;
 
 /// <summary>
-/// <c>fuzz [COUNT] [SEED]</c>: the random-mutation run of the hardening tests (tests/TapeVault.Core.Tests/Hardening),
+/// <c>fuzz [COUNT] [SEED] [all]</c>: the random-mutation run of the hardening tests (tests/TapeVault.Core.Tests/Hardening),
 /// longer. COUNT mutations per reader (WAV, profile, image container), each under a one-second limit. Prints the
-/// counts by outcome, the slowest input, the most any input allocated and the commonest refusals; writes every failing
+/// counts by outcome, the slowest input, the most any input allocated and the commonest refusals (every kind of refusal with <c>all</c>); writes every failing
 /// input to the work folder; exits 1 when any input failed.
 /// </summary>
 public static class Fuzz
@@ -16,6 +16,7 @@ public static class Fuzz
         ArgumentNullException.ThrowIfNull(args);
         int count = args.Length > 0 ? int.Parse(args[0], CultureInfo.InvariantCulture) : 20_000;
         int seed = args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 20_261_202;
+        int reasonsShown = args.Length > 2 && args[2] == "all" ? int.MaxValue : 8;
         string folder = Path.Combine(work, "fuzz");
         string inputs = Path.Combine(folder, "inputs");
         Directory.CreateDirectory(inputs);
@@ -26,7 +27,7 @@ public static class Fuzz
             var report = FuzzRun.Run(target, count, seed, TimeSpan.FromSeconds(1));
             Console.WriteLine(report.Summary);
             Console.WriteLine($"         slowest input: {report.SlowestMutations}");
-            foreach (var (reason, times) in report.RefusalReasons.OrderByDescending(r => r.Value).ThenBy(r => r.Key, StringComparer.Ordinal).Take(8))
+            foreach (var (reason, times) in report.RefusalReasons.OrderByDescending(r => r.Value).ThenBy(r => r.Key, StringComparer.Ordinal).Take(reasonsShown))
             {
                 Console.WriteLine($"         {times,6} × {reason}");
             }
