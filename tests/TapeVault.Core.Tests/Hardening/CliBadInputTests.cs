@@ -76,6 +76,27 @@ public sealed class CliBadInputTests : IDisposable
         Assert.Equal(before, Snapshot(folder));
     }
 
+    [Theory]
+    [InlineData(true)]
+    [InlineData(false)]
+    public void Decode_ExitsZero_AndSaysSo_WhenTheCaptureIsCutOffBeforeTheAudioItsHeaderDeclares(bool cutOff)
+    {
+        // A cut-off capture is not refused: what is there is decoded, and the table and the JSON say it is cut off.
+        string folder = temp.NewFolder($"cut-off-{cutOff}");
+        string capture = Path.Combine(folder, "capture.wav");
+        File.WriteAllBytes(capture, WavBytes.Pcm16(8000, 1, new short[800], declaredDataSize: cutOff ? 1_000_000u : null));
+        string json = Path.Combine(folder, "out.json");
+
+        var run = CliRun.Run("decode", capture, "--profile", "kcs-300", "--json", json);
+
+        Assert.True(run.ExitCode == 0, run.ToString());
+        Assert.Equal(string.Empty, run.Error);
+        Assert.Equal(cutOff, run.Output.Contains("cut off: the file ends before the audio its header declares", StringComparison.Ordinal));
+        using var document = System.Text.Json.JsonDocument.Parse(File.ReadAllBytes(json));
+        Assert.Equal(cutOff, document.RootElement.GetProperty("capture").GetProperty("truncated").GetBoolean());
+        Assert.Equal(800, document.RootElement.GetProperty("capture").GetProperty("durationSeconds").GetDouble() * 8000, 6);
+    }
+
     private static void AssertBadInput(CliResult run, int exitCode, string[] expected)
     {
         Assert.True(run.ExitCode == exitCode, run.ToString());
