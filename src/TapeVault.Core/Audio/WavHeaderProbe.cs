@@ -249,7 +249,7 @@ internal static class WavHeaderProbe
         }
 
         // PCM and float format chunks are 16, 18 or 40 bytes. An odd size is read differently by different readers
-        // (NAudio takes the pad byte as part of the chunk, SoX does not), and NAudio misreads one above 32 KB.
+        // (NAudio takes the pad byte as part of the chunk, SoX does not), and NAudio misreads a very large one (65 016 bytes, say).
         if (size % 2 != 0)
         {
             throw new CaptureFormatException($"The WAV file's format chunk has an odd size ({size} bytes), which no PCM or float format chunk has, so the header is damaged.");

@@ -60,7 +60,7 @@ public sealed class FskDecoder : ISymbolDecoder
 
     /// <summary>
     /// Tone amplitude (full scale 1) below which a window holds no carrier, whatever the recent level: 1e-4, about
-    /// −80 dBFS, the detector bank's own floor against digital silence. A converter's dither or idle noise (±1 LSB of
+    /// −80 dBFS, the same as the detector bank's hysteresis floor against digital silence. A converter's dither or idle noise (±1 LSB of
     /// 16 bits is 3e-5) would otherwise become carrier once the running level has fallen to it, and ten minutes of an
     /// idle input were read as one long block of noise.
     /// </summary>
@@ -127,11 +127,11 @@ public sealed class FskDecoder : ISymbolDecoder
         _window = Math.Max(2, (int)Math.Round(sampleRate / _fsk.Baud));
         _markI = new float[_window];
         _markQ = new float[_window];
+        _spaceI = new float[_window];
+        _spaceQ = new float[_window];
 
         // A tone of amplitude A gives a correlator sum of about A·W/2 over a window of W samples.
         _silenceEnergy = Math.Pow(0.5 * SilenceAmplitude * _window, 2);
-        _spaceI = new float[_window];
-        _spaceQ = new float[_window];
         (_markStepSin, _markStepCos) = Math.SinCos(2 * Math.PI * _fsk.MarkHz / sampleRate);
         (_spaceStepSin, _spaceStepCos) = Math.SinCos(2 * Math.PI * _fsk.SpaceHz / sampleRate);
         _leadInSamples = Math.Max(_fsk.LeadInMinimumSeconds * sampleRate, 2.0 * _window);
