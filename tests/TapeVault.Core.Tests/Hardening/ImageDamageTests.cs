@@ -30,6 +30,7 @@ public sealed class ImageDamageTests
         ["a capture with a negative duration"] = (() => EditManifest(m => ReplaceFirst(m, "\"durationSeconds\": 93.25", "\"durationSeconds\": -93.25")), ["captures[0].durationSeconds is negative"]),
         ["a creation time that is not a date"] = (() => EditManifest(m => ReplaceFirst(m, "\"createdUtc\": \"2026-11-30T21:04:05.123+00:00\"", "\"createdUtc\": \"last Tuesday\"")), ["manifest is not valid JSON", "createdUtc"]),
         ["a missing block marked missing but holding bytes"] = (() => EditManifest(m => ReplaceFirst(m, "\"status\": \"repaired\"", "\"status\": \"missing\"")), ["blocks[7] is missing yet holds"]),
+        ["a line break escaped into a status"] = (() => EditManifest(m => ReplaceFirst(m, "\"status\": \"clean\"", "\"status\": \"cl\\nean\"")), [@"blocks[0].status is 'cl\u000aean', not clean"]),
         ["a WAV file given as an image"] = (() => [.. "RIFF"u8, .. new byte[60]], ["not a TapeVault image", "magic bytes"]),
     };
 

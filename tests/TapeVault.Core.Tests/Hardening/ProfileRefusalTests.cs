@@ -10,8 +10,10 @@ namespace TapeVault.Core.Tests.Hardening;
 /// one sentence names the field (or the place in the text) and what is wrong with it. The cases start from the
 /// valid profiles of <see cref="ProfileJson"/> and break one thing; docs/reliability.md lists them by name.
 /// </summary>
-public sealed class ProfileRefusalTests
+public sealed class ProfileRefusalTests : IDisposable
 {
+    private readonly string folder = Directory.CreateTempSubdirectory("tapevault-profile-").FullName;
+
     internal static readonly Dictionary<string, (Func<string> Text, string[] Expected)> Cases = new()
     {
         ["empty text"] = (() => string.Empty, ["broken.json", "invalid JSON"]),
@@ -23,6 +25,8 @@ public sealed class ProfileRefusalTests
         ["a number where text belongs"] = (() => Edit(ProfileJson.PulseWidth(), "name", 42), ["invalid JSON or a value of the wrong type", "at name"]),
         ["text where a number belongs"] = (() => Edit(ProfileJson.Fsk(), "fsk.baud", "fast"), ["wrong type", "at fsk.baud"]),
         ["a number too large for a double"] = (() => ProfileJson.FskText.Replace("\"baud\": 500", "\"baud\": 1e400", StringComparison.Ordinal), ["fsk.baud"]),
+        ["a line break escaped into a field name"] = (() => ProfileJson.FskText.Replace("\"baud\": 500", "\"ba\\nud\": 500", StringComparison.Ordinal), ["an unknown field", @"ba\u000aud"]),
+        ["a line break escaped into a value"] = (() => Edit(ProfileJson.PulseWidth(), "family", "pulse-\nwidth"), [@"family must be pulse-width, fsk or biphase, not 'pulse-\u000awidth'"]),
         ["an unknown field"] = (() => Edit(ProfileJson.PulseWidth(), "pulseWidth.tolerance", 0.1), ["an unknown field", "tolerance"]),
         ["missing id"] = (() => Without(ProfileJson.PulseWidth(), "id"), ["id is required"]),
         ["missing family"] = (() => Without(ProfileJson.PulseWidth(), "family"), ["family is required"]),
@@ -82,26 +86,26 @@ public sealed class ProfileRefusalTests
     [Fact]
     public void Load_RefusesAFileOverTheSizeLimit_BeforeReadingIt()
     {
-        string path = Path.Combine(Directory.CreateTempSubdirectory("tapevault-profile-").FullName, "huge.json");
+        string path = Path.Combine(folder, "huge.json");
         File.WriteAllBytes(path, new byte[ProfileLoader.MaximumFileBytes + 1]);
 
         var error = Assert.Throws<ProfileException>(() => ProfileLoader.Load(path));
 
         Refusal.AssertOneSentence(error, "huge.json", "262145 bytes", "at most 262144 bytes");
-        Directory.Delete(Path.GetDirectoryName(path)!, recursive: true);
     }
 
     [Fact]
     public void Load_RefusesBytesThatAreNotUtf8Text()
     {
-        string path = Path.Combine(Directory.CreateTempSubdirectory("tapevault-profile-").FullName, "binary.json");
+        string path = Path.Combine(folder, "binary.json");
         File.WriteAllBytes(path, [0xFF, 0xFE, 0x00, 0x7B, 0xC3, 0x28, 0x80, 0x81]);
 
         var error = Assert.Throws<ProfileException>(() => ProfileLoader.Load(path));
 
         Refusal.AssertOneSentence(error, "binary.json", "invalid JSON");
-        Directory.Delete(Path.GetDirectoryName(path)!, recursive: true);
     }
+
+    public void Dispose() => Directory.Delete(folder, recursive: true);
 
     private static string Edit(JsonObject root, string path, JsonNode? value) => ProfileJson.With(root, path, value).ToJsonString();
 

@@ -21,7 +21,6 @@ namespace TapeVault.Core.Tests.Hardening;
 public sealed class SignalEdgeCaseTests(AudioTempFolder temp) : IClassFixture<AudioTempFolder>
 {
     private static readonly FormatProfile Demo = RoundTrips.Profile("orrin-80");
-    private static readonly Lock SilenceLock = new();
 
     public static TheoryData<string> ProfileIds() => [.. RoundTrips.ProfileIds];
 
@@ -37,14 +36,12 @@ public sealed class SignalEdgeCaseTests(AudioTempFolder temp) : IClassFixture<Au
     public void TenMinutesOfSilence_DecodeToNoBlock_InBoundedTime(string silence, string id)
     {
         string path = temp.File($"ten-minutes-of-{WavRefusalTests.Safe(silence)}.wav");
-        lock (SilenceLock)
+        // Written once for the class (the cases of one class run one after another) and kept in its temporary folder.
+        if (!File.Exists(path))
         {
-            if (!File.Exists(path))
-            {
-                string[] dither = silence == "digital zeros" ? ["-D"] : [];
-                OutsideTool.Sox(["-n", .. dither, "-r", "22050", "-b", "16", "-c", "1", path, "trim", "0", "600"]);
-                Assert.Equal("13230000", OutsideTool.SoxInfo("-s", path));
-            }
+            string[] dither = silence == "digital zeros" ? ["-D"] : [];
+            OutsideTool.Sox(["-n", .. dither, "-r", "22050", "-b", "16", "-c", "1", path, "trim", "0", "600"]);
+            Assert.Equal("13230000", OutsideTool.SoxInfo("-s", path));
         }
 
         var clock = Stopwatch.StartNew();
