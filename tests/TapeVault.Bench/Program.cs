@@ -15,6 +15,11 @@ if (args.Length >= 2 && args[0] == "--child")
 string section = args.Length > 0 ? args[0] : "all";
 string work = Path.Combine(Path.GetTempPath(), "tapevault-bench");
 Directory.CreateDirectory(work);
+if (section == "fuzz")
+{
+    return Fuzz.Run(work, args[1..]);
+}
+
 var total = Stopwatch.StartNew();
 Console.WriteLine($"TapeVault benchmark — {Environment.ProcessorCount} cores, .NET {Environment.Version}, {DateTime.UtcNow:yyyy-MM-dd}");
 Console.WriteLine();

@@ -14,6 +14,11 @@ public static class DecodeReport
         ArgumentNullException.ThrowIfNull(result);
         var c = result.Capture;
         output.WriteLine($"Capture  {c.Sha256[..16]}…  {c.SampleRate} Hz, {c.Channels} ch, {c.DurationSeconds:0.0} s");
+        if (c.Truncated)
+        {
+            output.WriteLine("         cut off: the file ends before the audio its header declares; what is there was decoded");
+        }
+
         output.WriteLine($"Profile  {result.Profile.Id} ({result.Profile.Name}); bank of {result.Settings.Count} settings");
         output.WriteLine();
         output.WriteLine($"{"pos",4}  {"block",-16} {"status",-9} {"confidence",10}  {"bytes",5}  {"margin",6}  {"speed",6}  {"won by",-12} {"agree",5}");
@@ -65,6 +70,7 @@ public static class DecodeReport
         json.WriteNumber("sampleRate", result.Capture.SampleRate);
         json.WriteNumber("channels", result.Capture.Channels);
         json.WriteNumber("durationSeconds", result.Capture.DurationSeconds);
+        json.WriteBoolean("truncated", result.Capture.Truncated);
         json.WriteEndObject();
         json.WriteString("profile", result.Profile.Id);
         json.WriteString("codeVersion", result.CodeVersion);

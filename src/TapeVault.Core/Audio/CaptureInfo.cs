@@ -19,4 +19,11 @@ public sealed record CaptureInfo(
     int BitsPerSample,
     string Encoding,
     long FrameCount,
-    double DurationSeconds);
+    double DurationSeconds)
+{
+    /// <summary>
+    /// True when the data chunk's header claims more audio than the file holds: the capture is cut off (a copy that
+    /// stopped early, a recorder that never closed the file), and only the audio that is there was read.
+    /// </summary>
+    public bool Truncated { get; init; }
+}

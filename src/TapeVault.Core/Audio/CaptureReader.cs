@@ -283,7 +283,7 @@ public sealed class CaptureReader : IDisposable
         sourceEnded = true;
         bufferCount = 0;
         string sha256 = file.Finish();
-        info = new CaptureInfo(sha256, file.HashedBytes, SampleRate, Channels, BitsPerSample, Encoding, FrameCount, DurationSeconds);
+        info = new CaptureInfo(sha256, file.HashedBytes, SampleRate, Channels, BitsPerSample, Encoding, FrameCount, DurationSeconds) { Truncated = Truncated };
         return false;
     }
 

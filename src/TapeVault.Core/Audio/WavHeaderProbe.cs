@@ -40,6 +40,15 @@ internal static class WavHeaderProbe
     /// <summary>Most channels a capture may have.</summary>
     public const int MaxChannels = 8;
 
+    /// <summary>
+    /// Highest sample rate a capture may have: 768 kHz is the ceiling of common audio interfaces (common practice).
+    /// A higher figure is a damaged header, and the decoders size their windows by it.
+    /// </summary>
+    public const int MaxSampleRate = 768_000;
+
+    /// <summary>Largest format chunk accepted: 40 bytes are needed, and a writer's extra bytes are tolerated up to this.</summary>
+    private const long MaxFmtBytes = 1024;
+
     private const string Supported = "TapeVault reads PCM 8/16/24/32-bit and IEEE float";
 
     private const ushort FormatPcm = 0x0001;
@@ -124,6 +133,12 @@ internal static class WavHeaderProbe
             long next;
             if (id.SequenceEqual("data"u8))
             {
+                // Readers disagree on which of two data chunks holds the audio (NAudio takes the last, SoX the first).
+                if (dataOffset >= 0)
+                {
+                    throw new CaptureFormatException("The WAV file has two data chunks, so which one holds the audio is ambiguous.");
+                }
+
                 dataOffset = body;
                 declaredData = rf64 ? rf64DataBytes : size;
                 availableData = Math.Min(declaredData, fileLength - body);
@@ -131,6 +146,11 @@ internal static class WavHeaderProbe
             }
             else if (id.SequenceEqual("fmt "u8))
             {
+                if (fmt is not null)
+                {
+                    throw new CaptureFormatException("The WAV file has two format (fmt) chunks, so its encoding is ambiguous.");
+                }
+
                 fmt = ReadFmt(stream, size, fileLength - body);
                 next = body + size;
             }
@@ -162,9 +182,13 @@ internal static class WavHeaderProbe
             position = next;
         }
 
+        // NAudio, like this walk, stops at the end the RIFF header declares; say so when that is short of the file's end.
+        string withinRiff = riffSize + 8 < fileLength
+            ? string.Create(CultureInfo.InvariantCulture, $" within the {riffSize + 8} bytes its RIFF header declares (the file has {fileLength})")
+            : string.Empty;
         if (fmt is null)
         {
-            throw new CaptureFormatException("The WAV file has no format (fmt) chunk, so its encoding is unknown.");
+            throw new CaptureFormatException($"The WAV file has no format (fmt) chunk{withinRiff}, so its encoding is unknown.");
         }
 
         FmtFields f = fmt.Value;
@@ -184,9 +208,9 @@ internal static class WavHeaderProbe
             throw new CaptureFormatException("The WAV file declares a sample rate of 0 Hz.");
         }
 
-        if (f.SampleRate > int.MaxValue)
+        if (f.SampleRate > MaxSampleRate)
         {
-            throw new CaptureFormatException($"The WAV file declares an impossible sample rate of {f.SampleRate} Hz.");
+            throw new CaptureFormatException($"The WAV file declares an impossible sample rate of {f.SampleRate} Hz; TapeVault reads at most {MaxSampleRate} Hz.");
         }
 
         int frameBytes = f.Channels * (f.BitsPerSample / 8);
@@ -198,7 +222,7 @@ internal static class WavHeaderProbe
 
         if (dataOffset < 0)
         {
-            throw new CaptureFormatException("The WAV file has no data chunk, so it holds no audio samples.");
+            throw new CaptureFormatException($"The WAV file has no data chunk{withinRiff}, so it holds no audio samples.");
         }
 
         var layout = new WavLayout(encoding, f.Channels, (int)f.SampleRate, f.BlockAlign, f.BitsPerSample, dataOffset, declaredData, availableData);
@@ -221,7 +245,19 @@ internal static class WavHeaderProbe
 
         if (size > bytesLeft)
         {
-            throw new CaptureFormatException("The WAV file ends inside its format chunk.");
+            throw new CaptureFormatException($"The WAV file ends inside its format chunk (the chunk claims {size} bytes; {Math.Max(bytesLeft, 0)} are left).");
+        }
+
+        // PCM and float format chunks are 16, 18 or 40 bytes. An odd size is read differently by different readers
+        // (NAudio takes the pad byte as part of the chunk, SoX does not), and NAudio misreads a very large one (65 016 bytes, say).
+        if (size % 2 != 0)
+        {
+            throw new CaptureFormatException($"The WAV file's format chunk has an odd size ({size} bytes), which no PCM or float format chunk has, so the header is damaged.");
+        }
+
+        if (size > MaxFmtBytes)
+        {
+            throw new CaptureFormatException($"The WAV file's format chunk is {size} bytes, far more than the 16 to 40 bytes of a PCM or float format chunk, so the header is damaged.");
         }
 
         Span<byte> b = stackalloc byte[40];

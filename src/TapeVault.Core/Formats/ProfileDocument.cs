@@ -100,6 +100,9 @@ internal sealed class RecordingDocument
     UnmappedMemberHandling = JsonUnmappedMemberHandling.Disallow,
     ReadCommentHandling = System.Text.Json.JsonCommentHandling.Skip,
     AllowTrailingCommas = true,
+
+    // A field written twice is a typing mistake; taking the last value silently would hide it.
+    AllowDuplicateProperties = false,
     MaxDepth = 16)]
 [JsonSerializable(typeof(ProfileDocument))]
 internal sealed partial class ProfileJsonContext : JsonSerializerContext;

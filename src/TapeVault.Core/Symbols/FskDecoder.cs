@@ -58,6 +58,14 @@ public sealed class FskDecoder : ISymbolDecoder
     /// <summary>|raw D| above this: the correlator window holds (almost) only one tone, whose level it then shows.</summary>
     private const double PureTone = 0.9;
 
+    /// <summary>
+    /// Tone amplitude (full scale 1) below which a window holds no carrier, whatever the recent level: 1e-4, about
+    /// −80 dBFS, the same as the detector bank's hysteresis floor against digital silence. A converter's dither or idle noise (±1 LSB of
+    /// 16 bits is 3e-5) would otherwise become carrier once the running level has fallen to it, and ten minutes of an
+    /// idle input were read as one long block of noise.
+    /// </summary>
+    private const double SilenceAmplitude = 1e-4;
+
     private readonly FskEncoding _fsk;
     private readonly ByteFraming _framing;
     private readonly BlockAssembler _assembler;
@@ -67,6 +75,7 @@ public sealed class FskDecoder : ISymbolDecoder
     private readonly float[] _markI, _markQ, _spaceI, _spaceQ;
     private readonly double _markStepCos, _markStepSin, _spaceStepCos, _spaceStepSin;
     private readonly double _leadInSamples;
+    private readonly double _silenceEnergy;
     private readonly double _evidenceGain;
     private readonly double _blockEndIdleSamples;
     private readonly int _frameBits;
@@ -120,6 +129,9 @@ public sealed class FskDecoder : ISymbolDecoder
         _markQ = new float[_window];
         _spaceI = new float[_window];
         _spaceQ = new float[_window];
+
+        // A tone of amplitude A gives a correlator sum of about A·W/2 over a window of W samples.
+        _silenceEnergy = Math.Pow(0.5 * SilenceAmplitude * _window, 2);
         (_markStepSin, _markStepCos) = Math.SinCos(2 * Math.PI * _fsk.MarkHz / sampleRate);
         (_spaceStepSin, _spaceStepCos) = Math.SinCos(2 * Math.PI * _fsk.SpaceHz / sampleRate);
         _leadInSamples = Math.Max(_fsk.LeadInMinimumSeconds * sampleRate, 2.0 * _window);
@@ -324,7 +336,7 @@ public sealed class FskDecoder : ISymbolDecoder
         double total = mark + space;
 
         // Below 2 % of the usual carrier energy there is no signal to decide on: a dropout, or silence.
-        _carrier = total > 0.02 * _carrierReference && total > 1e-12;
+        _carrier = total > 0.02 * _carrierReference && total > _silenceEnergy;
         if (!_carrier)
         {
             return 0;
