@@ -94,7 +94,24 @@ public static class WebApp
             pages.Conventions.AllowAnonymousToPage("/Error");
         }).AddMvcOptions(mvc => mvc.Filters.Add(new CuratorWritesFilter()));
         builder.Services.AddOpenApi();
-        builder.Services.AddProblemDetails();
+        builder.Services.AddProblemDetails(problems => problems.CustomizeProblemDetails = context =>
+        {
+            // Refusals the framework makes before our code runs (a body that is not JSON, too big, an unknown address)
+            // get a sentence that says what to do, not just the status's name (ours always end with a full stop).
+            var details = context.ProblemDetails;
+            if (details.Title is null || !details.Title.EndsWith('.'))
+            {
+                details.Title = details.Status switch
+                {
+                    StatusCodes.Status400BadRequest => "The request could not be read: send a JSON body of the documented shape (see /openapi/v1.json).",
+                    StatusCodes.Status404NotFound => "There is nothing at this address.",
+                    StatusCodes.Status405MethodNotAllowed => "This address does not accept that method.",
+                    StatusCodes.Status413PayloadTooLarge => $"The request body is larger than the {MaxFormBytes / 1024} KiB allowed for anything but a capture upload.",
+                    StatusCodes.Status415UnsupportedMediaType => "The request's content type is not accepted here; send JSON.",
+                    _ => details.Title,
+                };
+            }
+        });
         builder.Services.AddSingleton<JobRunner>();
         builder.Services.AddScoped<ArchiveQueries>();
         builder.Services.AddHostedService<ArchiveStartup>();
