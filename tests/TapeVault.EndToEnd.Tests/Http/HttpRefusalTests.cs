@@ -40,7 +40,7 @@ public sealed class HttpRefusalTests : IAsyncLifetime
         { "unknown collection", "/api/collections/999/items", "{\"accessionNumber\":\"X-1\",\"title\":\"x\"}", "application/json", HttpStatusCode.NotFound },
         { "unknown capture", "/api/captures/999/decode", "{\"profile\":\"orrin-80\"}", "application/json", HttpStatusCode.NotFound },
         { "unknown item for merge", "/api/items/999/merge", "{}", "application/json", HttpStatusCode.NotFound },
-        { "unknown profile", "/api/collections/1/items", "{\"accessionNumber\":\"\",\"title\":\"x\"}", "application/json", HttpStatusCode.BadRequest },
+        { "empty accession number", "/api/collections/1/items", "{\"accessionNumber\":\"\",\"title\":\"x\"}", "application/json", HttpStatusCode.BadRequest },
     };
 
     [Theory]
