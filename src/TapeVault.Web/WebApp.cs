@@ -109,6 +109,7 @@ public static class WebApp
         app.MapOpenApi().AllowAnonymous();
         app.MapRazorPages();
         app.MapTapeVaultApi();
+        app.MapCaptureApi();
         return app;
     }
 

@@ -1,0 +1,157 @@
+using System.Globalization;
+using Microsoft.AspNetCore.Mvc;
+using TapeVault.Archive;
+using TapeVault.Archive.Storage;
+using TapeVault.Core.Formats;
+using TapeVault.Web.Api;
+
+namespace TapeVault.Web.Pages.Captures;
+
+/// <summary>
+/// One capture: its facts, the whole waveform, the blocks of a decode run, a zoom into any block with one detector
+/// setting's threshold and decisions, the pulse-length histogram and the playback speed over time. Every choice is a
+/// query parameter, so every view is a plain link that works without script, mouse or a second request.
+/// </summary>
+public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, ProfileCatalog profiles) : ArchivePage
+{
+    /// <summary>The default zoom: the first 40 ms of a block, where the sync and the first bytes are.</summary>
+    public const double DefaultZoomSeconds = 0.04;
+
+    private readonly CapturePlots plots = new(db, store, profiles);
+
+    [FromQuery(Name = "run")]
+    public int? RunId { get; set; }
+
+    [FromQuery(Name = "setting")]
+    public string? Setting { get; set; }
+
+    [FromQuery(Name = "block")]
+    public int? Block { get; set; }
+
+    [FromQuery(Name = "from")]
+    public double? From { get; set; }
+
+    [FromQuery(Name = "seconds")]
+    public double? Seconds { get; set; }
+
+    [FromQuery(Name = "scope")]
+    public string? Scope { get; set; }
+
+    public int CaptureId { get; private set; }
+
+    public CaptureFacts? Facts { get; private set; }
+
+    public WaveformView? Overview { get; private set; }
+
+    public BlockListView? Blocks { get; private set; }
+
+    public BlockPositionView? Selected { get; private set; }
+
+    public ZoomView? Zoom { get; private set; }
+
+    public HistogramView? Histogram { get; private set; }
+
+    public SpeedView? Speed { get; private set; }
+
+    /// <summary>Why a plot is missing (the capture not decoded yet, its original unreadable), in words for the page.</summary>
+    public List<string> Problems { get; } = [];
+
+    public Task<IActionResult> OnGetAsync(int id) => LoadOrNotFoundAsync(() => LoadAsync(id));
+
+    /// <summary>A link to this page with the current choices, some replaced.</summary>
+    public string Link(int? block = null, double? from = null, double? seconds = null, string? scope = null, string anchor = "", bool keepZoom = true)
+    {
+        var query = new List<string>();
+        void add(string name, string? value)
+        {
+            if (!string.IsNullOrEmpty(value))
+            {
+                query.Add($"{name}={Uri.EscapeDataString(value)}");
+            }
+        }
+
+        add("run", Blocks?.Choice.RunId.ToString(CultureInfo.InvariantCulture));
+        add("setting", Blocks?.Choice.Setting);
+        add("block", (block ?? Selected?.Position)?.ToString(CultureInfo.InvariantCulture));
+        if (from is not null || keepZoom)
+        {
+            add("from", (from ?? Zoom?.Signal.FromSeconds)?.ToString("0.######", CultureInfo.InvariantCulture));
+            add("seconds", (seconds ?? Zoom?.Signal.DurationSeconds)?.ToString("0.######", CultureInfo.InvariantCulture));
+        }
+
+        add("scope", scope ?? Histogram?.Scope);
+        return $"/captures/{CaptureId}" + (query.Count > 0 ? "?" + string.Join("&", query) : string.Empty) + anchor;
+    }
+
+    /// <summary>The link that zooms to the start of <paramref name="block"/>.</summary>
+    public string ZoomLink(BlockPositionView block)
+    {
+        ArgumentNullException.ThrowIfNull(block);
+        return Link(block.Position, Math.Max(0, block.StartSeconds - 0.005), DefaultZoomSeconds, anchor: "#zoom");
+    }
+
+    /// <summary>The link that shows the whole of <paramref name="block"/> (cut to the longest zoom).</summary>
+    public string WholeBlockLink(BlockPositionView block)
+    {
+        ArgumentNullException.ThrowIfNull(block);
+        double from = Math.Max(0, block.StartSeconds - 0.02);
+        return Link(block.Position, from, Math.Min(CapturePlots.MaximumZoomSeconds, block.EndSeconds - from + 0.02), anchor: "#zoom");
+    }
+
+    private async Task LoadAsync(int id)
+    {
+        CaptureId = id;
+        var cancellation = HttpContext.RequestAborted;
+        Facts = await plots.FactsAsync(id, cancellation).ConfigureAwait(false);
+        try
+        {
+            Overview = await plots.OverviewAsync(id, CapturePlots.DefaultColumns, cancellation).ConfigureAwait(false);
+        }
+        catch (ArchiveConflictException e)
+        {
+            Problems.Add(e.Message);
+        }
+
+        if (Facts.Capture.Runs.Count == 0)
+        {
+            return;
+        }
+
+        try
+        {
+            Blocks = await plots.BlocksAsync(id, RunId, Setting, cancellation).ConfigureAwait(false);
+        }
+        catch (Exception e) when (e is ArchiveInputException or ArchiveNotFoundException or ArchiveConflictException)
+        {
+            // A bad run or setting in the link: say so, and show the defaults instead.
+            Problems.Add(e.Message);
+            Blocks = await plots.BlocksAsync(id, null, null, cancellation).ConfigureAwait(false);
+        }
+
+        var choice = Blocks.Choice;
+        Selected = Block is { } b ? Blocks.Blocks.FirstOrDefault(x => x.Position == b) : null;
+        Selected ??= Blocks.Blocks.Count > 0 ? Blocks.Blocks[0] : null;
+        double from = From ?? (Selected is { } s ? Math.Max(0, s.StartSeconds - 0.005) : 0);
+        double seconds = Seconds ?? DefaultZoomSeconds;
+        try
+        {
+            Zoom = await plots.ZoomAsync(id, choice.RunId, choice.Setting, from, seconds, CapturePlots.DefaultColumns, cancellation).ConfigureAwait(false);
+        }
+        catch (Exception e) when (e is ArchiveInputException or ArchiveConflictException)
+        {
+            Problems.Add(e.Message);
+        }
+
+        try
+        {
+            string scope = Scope == "whole" || Selected is null ? "whole" : "block";
+            Histogram = await plots.HistogramAsync(id, choice.RunId, choice.Setting, scope, Selected?.Position, cancellation).ConfigureAwait(false);
+        }
+        catch (Exception e) when (e is ArchiveInputException or ArchiveNotFoundException or ArchiveConflictException)
+        {
+            Problems.Add(e.Message);
+        }
+
+        Speed = await plots.SpeedAsync(id, choice.RunId, choice.Setting, cancellation).ConfigureAwait(false);
+    }
+}
