@@ -60,6 +60,20 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
         return new BlockListView(run.Choice, Blocks(run));
     }
 
+    /// <summary>The run's block positions in tape order, each as the chosen setting read it (or the best reading where it missed).</summary>
+    public static IReadOnlyList<BlockPositionView> Blocks(ChosenRun run)
+    {
+        ArgumentNullException.ThrowIfNull(run);
+        return [.. run.Candidates.GroupBy(c => c.Position).Select(g =>
+        {
+            static CandidatePoint best(IEnumerable<CandidatePoint> readings) =>
+                readings.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First();
+            var own = g.Where(c => c.SettingName == run.Setting.Name).ToList();
+            var pick = best(own.Count > 0 ? own : g);
+            return new BlockPositionView(g.Key, pick.IdentityKey, pick.Status, pick.Confidence, pick.StartSeconds, pick.EndSeconds, pick.SettingName, pick.Speed);
+        }).OrderBy(b => b.StartSeconds)];
+    }
+
     /// <summary>
     /// The stretch [<paramref name="fromSeconds"/>, + <paramref name="seconds"/>) of the capture and what the chosen
     /// setting made of it, worked out afresh by running that one setting over the stretch.
@@ -67,6 +81,12 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
     public async Task<ZoomView> ZoomAsync(int captureId, int? runId, string? setting, double fromSeconds, double seconds, int columns = DefaultColumns, CancellationToken cancellation = default)
     {
         var run = await ChooseAsync(captureId, runId, setting, cancellation).ConfigureAwait(false);
+        return await ZoomAsync(run, fromSeconds, seconds, columns, cancellation).ConfigureAwait(false);
+    }
+
+    public async Task<ZoomView> ZoomAsync(ChosenRun run, double fromSeconds, double seconds, int columns = DefaultColumns, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(run);
         var capture = run.Capture;
         if (!double.IsFinite(fromSeconds) || !double.IsFinite(seconds))
         {
@@ -129,6 +149,12 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
     public async Task<HistogramView> HistogramAsync(int captureId, int? runId, string? setting, string? scope, int? position, CancellationToken cancellation = default)
     {
         var run = await ChooseAsync(captureId, runId, setting, cancellation).ConfigureAwait(false);
+        return await HistogramAsync(run, scope, position, cancellation).ConfigureAwait(false);
+    }
+
+    public async Task<HistogramView> HistogramAsync(ChosenRun run, string? scope, int? position, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(run);
         bool whole = scope switch
         {
             null or "" or "block" => false,
@@ -216,6 +242,12 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
     public async Task<SpeedView> SpeedAsync(int captureId, int? runId, string? setting, CancellationToken cancellation = default)
     {
         var run = await ChooseAsync(captureId, runId, setting, cancellation).ConfigureAwait(false);
+        return Speed(run);
+    }
+
+    public static SpeedView Speed(ChosenRun run)
+    {
+        ArgumentNullException.ThrowIfNull(run);
         var points = run.Candidates.Where(c => c.SettingName == run.Setting.Name)
             .GroupBy(c => c.Position)
             .Select(g => g.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First())
@@ -270,16 +302,6 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
             [.. settings.Select(s => s.Name)], [.. runs.Select(r => r.Id)]);
         return new ChosenRun(capture, profile, chosen, choice, candidates);
     }
-
-    private static List<BlockPositionView> Blocks(ChosenRun run) =>
-        [.. run.Candidates.GroupBy(c => c.Position).Select(g =>
-        {
-            static CandidatePoint best(IEnumerable<CandidatePoint> readings) =>
-                readings.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First();
-            var own = g.Where(c => c.SettingName == run.Setting.Name).ToList();
-            var pick = best(own.Count > 0 ? own : g);
-            return new BlockPositionView(g.Key, pick.IdentityKey, pick.Status, pick.Confidence, pick.StartSeconds, pick.EndSeconds, pick.SettingName, pick.Speed);
-        }).OrderBy(b => b.StartSeconds)];
 
     private async Task<Capture> CaptureAsync(int captureId, CancellationToken cancellation) =>
         await db.Captures.AsNoTracking().FirstOrDefaultAsync(c => c.Id == captureId, cancellation).ConfigureAwait(false)

@@ -17,6 +17,12 @@ public static class CapturePlotSvg
     private const double Right = 16;
     private const double PlotWidth = Width - Left - Right;
 
+    /// <summary>Up to this many blocks, each is drawn as its own link; beyond, they would be slivers under a pixel wide.</summary>
+    public const int BlocksLinked = 150;
+
+    /// <summary>Up to this many speed points, the table lists every one; beyond, it summarises.</summary>
+    public const int SpeedRowsListed = 200;
+
     /// <summary>The whole capture, with each block of the run shaded and linked to its zoom.</summary>
     public static IHtmlContent Overview(string id, WaveformView wave, IReadOnlyList<BlockPositionView> blocks, int? selected, Func<BlockPositionView, string> link)
     {
@@ -27,21 +33,78 @@ public static class CapturePlotSvg
         double duration = Math.Max(wave.DurationSeconds, 1e-3);
         var frame = new SvgFrame(Left, 28, PlotWidth, height - 28 - 46, 0, duration, -1, 1);
         var svg = Open(id, height, "Waveform of the whole capture",
-            $"The signal's lowest and highest level in each of {wave.Minimum.Count} columns across {duration:0.0} seconds, full scale ±1; {blocks.Count} block(s) marked, each a link to its zoom.",
-            holdsLinks: true);
+            $"The signal's lowest and highest level in each of {wave.Minimum.Count} columns across {duration:0.0} seconds, full scale ±1; {blocks.Count} block(s) marked" +
+            (blocks.Count <= BlocksLinked ? ", each a link to its zoom." : "; a bar above the plot marks stretches with a failed block. Choose blocks from the list below."),
+            holdsLinks: blocks.Count <= BlocksLinked);
         var (xTicks, xTitle) = TimeTicks(0, duration);
         frame.Axes(svg, xTicks, [.. new[] { -1.0, -0.5, 0, 0.5, 1 }.Select(v => (v, v.ToString("0.#", CultureInfo.InvariantCulture)))], xTitle, "level (full scale)");
-        foreach (var b in blocks)
+        if (blocks.Count <= BlocksLinked)
         {
-            double x0 = frame.X(b.StartSeconds);
-            double x1 = Math.Max(frame.X(b.EndSeconds), x0 + 2);
-            string chosen = b.Position == selected ? " plot-block-selected" : string.Empty;
-            string word = StatusWord(b.Status);
-            svg.Append($"<a href=\"{Escape(link(b))}\" class=\"plot-block-link\">");
-            svg.Append($"<title>Block position {b.Position} ({Escape(b.Identity)}): {word}, {b.StartSeconds:0.00}–{b.EndSeconds:0.00} s. Select to zoom.</title>");
-            svg.Append($"<rect class=\"plot-block plot-block-{Escape(b.Status)}{chosen}\" x=\"{N(x0)}\" y=\"{N(frame.Top)}\" width=\"{N(x1 - x0)}\" height=\"{N(frame.Height)}\"/>");
-            svg.Append($"<text class=\"plot-block-label\" x=\"{N((x0 + x1) / 2)}\" y=\"{N(frame.Top - 6)}\" text-anchor=\"middle\">{StatusSymbol(b.Status)}</text>");
-            svg.Append("</a>");
+            foreach (var b in blocks)
+            {
+                double x0 = frame.X(b.StartSeconds);
+                double x1 = Math.Max(frame.X(b.EndSeconds), x0 + 2);
+                string chosen = b.Position == selected ? " plot-block-selected" : string.Empty;
+                svg.Append($"<a href=\"{Escape(link(b))}\" class=\"plot-block-link\">");
+                svg.Append($"<title>Block position {b.Position} ({Escape(b.Identity)}): {StatusWord(b.Status)}, {b.StartSeconds:0.00}–{b.EndSeconds:0.00} s. Select to zoom.</title>");
+                svg.Append($"<rect class=\"plot-block plot-block-{Escape(b.Status)}{chosen}\" x=\"{N(x0)}\" y=\"{N(frame.Top)}\" width=\"{N(x1 - x0)}\" height=\"{N(frame.Height)}\"/>");
+                if (blocks.Count <= 60)
+                {
+                    svg.Append($"<text class=\"plot-block-label\" x=\"{N((x0 + x1) / 2)}\" y=\"{N(frame.Top - 6)}\" text-anchor=\"middle\">{StatusSymbol(b.Status)}</text>");
+                }
+
+                svg.Append("</a>");
+            }
+        }
+        else
+        {
+            // Too many blocks to tell apart: one strip per pixel, showing the worst status of the blocks under it, and a
+            // tick row above marking the pixels that hold a failed block (by position, not colour alone).
+            int pixels = (int)Math.Ceiling(PlotWidth);
+            var worst = new int[pixels];
+            foreach (var b in blocks)
+            {
+                int p0 = Math.Clamp((int)(frame.X(b.StartSeconds) - frame.Left), 0, pixels - 1);
+                int p1 = Math.Clamp((int)(frame.X(b.EndSeconds) - frame.Left), p0, pixels - 1);
+                int rank = b.Status switch { "clean" => 1, "unchecked" => 2, _ => 3 };
+                for (int p = p0; p <= p1; p++)
+                {
+                    worst[p] = Math.Max(worst[p], rank);
+                }
+            }
+
+            var failedTicks = new StringBuilder();
+            for (int p = 0; p < pixels;)
+            {
+                int q = p;
+                while (q < pixels && worst[q] == worst[p])
+                {
+                    q++;
+                }
+
+                if (worst[p] > 0)
+                {
+                    string status = worst[p] switch { 1 => "clean", 2 => "unchecked", _ => "failed" };
+                    svg.Append($"<rect class=\"plot-block plot-block-{status}\" x=\"{N(frame.Left + p)}\" y=\"{N(frame.Top)}\" width=\"{q - p}\" height=\"{N(frame.Height)}\"/>");
+                    if (worst[p] == 3)
+                    {
+                        failedTicks.Append($"M{N(frame.Left + p)} {N(frame.Top - 10)}h{Math.Max(2, q - p)}");
+                    }
+                }
+
+                p = q;
+            }
+
+            if (failedTicks.Length > 0)
+            {
+                svg.Append($"<path class=\"plot-failed-ticks\" d=\"{failedTicks}\"/>");
+            }
+
+            if (blocks.FirstOrDefault(b => b.Position == selected) is { } shown)
+            {
+                double x0 = frame.X(shown.StartSeconds);
+                svg.Append($"<rect class=\"plot-block-outline\" x=\"{N(x0 - 1)}\" y=\"{N(frame.Top)}\" width=\"{N(Math.Max(frame.X(shown.EndSeconds), x0 + 2) - x0 + 2)}\" height=\"{N(frame.Height)}\"/>");
+            }
         }
 
         svg.Append($"<path class=\"plot-wave\" d=\"{frame.MinMaxPath(wave.Minimum, wave.Maximum, 0, wave.SecondsPerColumn)}\"/>");
@@ -176,7 +239,8 @@ public static class CapturePlotSvg
         var (xTicks, xTitle) = TimeTicks(0, duration);
         frame.Axes(svg, xTicks, [.. NiceTicks(-span, span, 4).Select(t => (t, t.ToString("+0.#;-0.#;0", CultureInfo.InvariantCulture)))], xTitle, "speed vs nominal (%)");
         svg.Append($"<line class=\"plot-nominal\" x1=\"{N(frame.Left)}\" x2=\"{N(frame.Right)}\" y1=\"{N(frame.Y(0))}\" y2=\"{N(frame.Y(0))}\"/>");
-        if (speed.Points.Count > 1)
+        // The line joining the points helps the eye follow a drift; across hundreds of blocks it is only clutter.
+        if (speed.Points.Count > 1 && speed.Points.Count <= SpeedRowsListed)
         {
             var d = new StringBuilder();
             for (int i = 0; i < speed.Points.Count; i++)
@@ -188,15 +252,37 @@ public static class CapturePlotSvg
             svg.Append($"<path class=\"plot-speed-line\" d=\"{d}\"/>");
         }
 
-        // Clean readings are dots, all others crosses: the shape carries the status.
+        // Clean readings are dots, all others crosses: the shape carries the status. Many points share two paths and no tips.
+        bool many = speed.Points.Count > SpeedRowsListed;
+        var dots = new StringBuilder();
+        var crosses = new StringBuilder();
         foreach (var p in speed.Points)
         {
             double x = frame.X(p.StartSeconds);
             double y = frame.Y((p.Speed - 1) * 100);
+            double r = many ? 2 : 4;
+            if (many)
+            {
+                (p.Status == "clean" ? dots : crosses).Append(p.Status == "clean"
+                    ? $"M{N(x - r)} {N(y)}a{N(r)} {N(r)} 0 1 0 {N(2 * r)} 0a{N(r)} {N(r)} 0 1 0 {N(-2 * r)} 0"
+                    : $"M{N(x - 4)} {N(y - 4)}L{N(x + 4)} {N(y + 4)}M{N(x - 4)} {N(y + 4)}L{N(x + 4)} {N(y - 4)}");
+                continue;
+            }
+
             string tip = $"<title>Position {p.Position} ({Escape(p.Identity)}) at {p.StartSeconds:0.00} s: {(p.Speed - 1) * 100:+0.00;-0.00;0.00} %, {StatusWord(p.Status)}</title>";
             svg.Append(p.Status == "clean"
-                ? $"<circle class=\"plot-point plot-point-clean\" cx=\"{N(x)}\" cy=\"{N(y)}\" r=\"4\">{tip}</circle>"
+                ? $"<circle class=\"plot-point plot-point-clean\" cx=\"{N(x)}\" cy=\"{N(y)}\" r=\"{N(r)}\">{tip}</circle>"
                 : $"<path class=\"plot-point plot-point-other\" d=\"M{N(x - 4)} {N(y - 4)}L{N(x + 4)} {N(y + 4)}M{N(x - 4)} {N(y + 4)}L{N(x + 4)} {N(y - 4)}\">{tip}</path>");
+        }
+
+        if (dots.Length > 0)
+        {
+            svg.Append($"<path class=\"plot-point plot-point-clean\" d=\"{dots}\"/>");
+        }
+
+        if (crosses.Length > 0)
+        {
+            svg.Append($"<path class=\"plot-point plot-point-other\" d=\"{crosses}\"/>");
         }
 
         return Close(svg);

@@ -37,6 +37,17 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
     [FromQuery(Name = "scope")]
     public string? Scope { get; set; }
 
+    /// <summary>The index of the first block in the list (default: the list centred on the block shown).</summary>
+    [FromQuery(Name = "list")]
+    public int? List { get; set; }
+
+    /// <summary>How many blocks the list shows at once; a long capture has thousands.</summary>
+    public const int ListedCount = 21;
+
+    public int ListStart { get; private set; }
+
+    public IReadOnlyList<BlockPositionView> Listed { get; private set; } = [];
+
     public int CaptureId { get; private set; }
 
     public CaptureFacts? Facts { get; private set; }
@@ -59,7 +70,7 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
     public Task<IActionResult> OnGetAsync(int id) => LoadOrNotFoundAsync(() => LoadAsync(id));
 
     /// <summary>A link to this page with the current choices, some replaced.</summary>
-    public string Link(int? block = null, double? from = null, double? seconds = null, string? scope = null, string anchor = "", bool keepZoom = true)
+    public string Link(int? block = null, double? from = null, double? seconds = null, string? scope = null, string anchor = "", bool keepZoom = true, int? list = null)
     {
         var query = new List<string>();
         void add(string name, string? value)
@@ -80,6 +91,7 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
         }
 
         add("scope", scope ?? Histogram?.Scope);
+        add("list", list?.ToString(CultureInfo.InvariantCulture));
         return $"/captures/{CaptureId}" + (query.Count > 0 ? "?" + string.Join("&", query) : string.Empty) + anchor;
     }
 
@@ -117,25 +129,26 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
             return;
         }
 
+        CapturePlots.ChosenRun run;
         try
         {
-            Blocks = await plots.BlocksAsync(id, RunId, Setting, cancellation).ConfigureAwait(false);
+            run = await plots.ChooseAsync(id, RunId, Setting, cancellation).ConfigureAwait(false);
         }
-        catch (Exception e) when (e is ArchiveInputException or ArchiveNotFoundException or ArchiveConflictException)
+        catch (Exception e) when (e is ArchiveInputException or ArchiveNotFoundException)
         {
             // A bad run or setting in the link: say so, and show the defaults instead.
             Problems.Add(e.Message);
-            Blocks = await plots.BlocksAsync(id, null, null, cancellation).ConfigureAwait(false);
+            run = await plots.ChooseAsync(id, null, null, cancellation).ConfigureAwait(false);
         }
 
-        var choice = Blocks.Choice;
+        Blocks = new BlockListView(run.Choice, CapturePlots.Blocks(run));
         Selected = Block is { } b ? Blocks.Blocks.FirstOrDefault(x => x.Position == b) : null;
         Selected ??= Blocks.Blocks.Count > 0 ? Blocks.Blocks[0] : null;
         double from = From ?? (Selected is { } s ? Math.Max(0, s.StartSeconds - 0.005) : 0);
         double seconds = Seconds ?? DefaultZoomSeconds;
         try
         {
-            Zoom = await plots.ZoomAsync(id, choice.RunId, choice.Setting, from, seconds, CapturePlots.DefaultColumns, cancellation).ConfigureAwait(false);
+            Zoom = await plots.ZoomAsync(run, from, seconds, CapturePlots.DefaultColumns, cancellation).ConfigureAwait(false);
         }
         catch (Exception e) when (e is ArchiveInputException or ArchiveConflictException)
         {
@@ -145,13 +158,17 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
         try
         {
             string scope = Scope == "whole" || Selected is null ? "whole" : "block";
-            Histogram = await plots.HistogramAsync(id, choice.RunId, choice.Setting, scope, Selected?.Position, cancellation).ConfigureAwait(false);
+            Histogram = await plots.HistogramAsync(run, scope, Selected?.Position, cancellation).ConfigureAwait(false);
         }
         catch (Exception e) when (e is ArchiveInputException or ArchiveNotFoundException or ArchiveConflictException)
         {
             Problems.Add(e.Message);
         }
 
-        Speed = await plots.SpeedAsync(id, choice.RunId, choice.Setting, cancellation).ConfigureAwait(false);
+        Speed = CapturePlots.Speed(run);
+        int selectedIndex = Selected is null ? 0 : Blocks.Blocks.ToList().IndexOf(Selected);
+        int first = List ?? (selectedIndex - (ListedCount / 2));
+        ListStart = Math.Clamp(first, 0, Math.Max(0, Blocks.Blocks.Count - ListedCount));
+        Listed = [.. Blocks.Blocks.Skip(ListStart).Take(ListedCount)];
     }
 }
