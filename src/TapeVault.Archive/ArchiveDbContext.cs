@@ -27,6 +27,8 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
 
     public DbSet<JobRecord> Jobs => Set<JobRecord>();
 
+    public DbSet<ExportRecord> Exports => Set<ExportRecord>();
+
     public override int SaveChanges(bool acceptAllChangesOnSuccess)
     {
         RefuseEventChanges();
@@ -103,6 +105,13 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
         {
             e.HasIndex(v => v.ItemId);
             e.HasIndex(v => new { v.ObjectType, v.ObjectId });
+        });
+
+        builder.Entity<ExportRecord>(e =>
+        {
+            e.HasOne(x => x.StoredFile).WithMany().HasForeignKey(x => x.Sha256).OnDelete(DeleteBehavior.Restrict);
+            e.HasIndex(x => x.CollectionId);
+            e.HasIndex(x => x.ItemId);
         });
 
         builder.Entity<JobRecord>(e =>

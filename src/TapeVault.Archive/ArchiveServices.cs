@@ -2,6 +2,8 @@ using Microsoft.AspNetCore.Identity;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
 using TapeVault.Archive.Accounts;
+using TapeVault.Archive.Export;
+using TapeVault.Archive.Fixity;
 using TapeVault.Archive.Ingest;
 using TapeVault.Archive.Jobs;
 using TapeVault.Archive.Seeding;
@@ -13,10 +15,15 @@ namespace TapeVault.Archive;
 public static class ArchiveServices
 {
     /// <summary>The database, the content store, ingest, jobs and the Identity stores; the host adds its own sign-in scheme.</summary>
-    public static IServiceCollection AddTapeVaultArchive(this IServiceCollection services, ArchiveOptions options, ProfileCatalog profiles)
+    public static IServiceCollection AddTapeVaultArchive(this IServiceCollection services, ArchiveOptions options, ProfileCatalog profiles, ExportOptions? export = null)
     {
         ArgumentNullException.ThrowIfNull(options);
         services.AddSingleton(options);
+        services.AddSingleton(export ?? new ExportOptions());
+        services.AddScoped<FixityAudit>();
+        services.AddScoped<BagExport>();
+        services.AddScoped<CataloguePublisher>();
+        services.AddScoped<ExportStore>();
         services.AddSingleton(profiles);
         services.AddSingleton(new ContentStore(options.FullStorePath));
         services.AddDbContextFactory<ArchiveDbContext>(db => ArchiveDatabase.Configure(db, options.FullDatabasePath));
@@ -27,6 +34,9 @@ public static class ArchiveServices
         services.AddSingleton<JobQueue>();
         services.AddSingleton<IJobHandler, DecodeJob>();
         services.AddSingleton<IJobHandler, MergeJob>();
+        services.AddSingleton<IJobHandler, FixityJob>();
+        services.AddSingleton<IJobHandler, BagJob>();
+        services.AddSingleton<IJobHandler, PublishJob>();
         return services;
     }
 

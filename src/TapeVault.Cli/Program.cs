@@ -38,6 +38,9 @@ namespace TapeVault.Cli
                     "profiles" => ProfilesCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
                     "demo" => DemoCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
                     "image" => ImageCommand.Run(new CommandLine(rest, ImageCommand.Flags), output, error),
+                    "verify" => ArchiveCommands.Verify(new CommandLine(rest, new HashSet<string>()), output, error, CliSettings.Load()),
+                    "export" => ArchiveCommands.Export(new CommandLine(rest, ArchiveCommands.ExportFlags), output, CliSettings.Load()),
+                    "publish" => ArchiveCommands.Publish(new CommandLine(rest, new HashSet<string>()), output, CliSettings.Load()),
                     "users" => UsersCommand.Run(new CommandLine(rest, UsersCommand.Flags), output, Console.In, CliSettings.Load()),
                     _ => throw new UsageException($"Unknown command '{args[0]}'; run 'tapevault help'."),
                 };
@@ -68,6 +71,9 @@ namespace TapeVault.Cli
             output.WriteLine("  tapevault profiles [--profiles DIR]");
             output.WriteLine("  tapevault demo [--out DIR]");
             output.WriteLine($"  tapevault {UsersCommand.Usage}");
+            output.WriteLine($"  tapevault {ArchiveCommands.VerifyUsage}");
+            output.WriteLine($"  tapevault {ArchiveCommands.ExportUsage}");
+            output.WriteLine($"  tapevault {ArchiveCommands.PublishUsage}");
             output.WriteLine($"  tapevault {ImageCommand.Usage}");
         }
     }

@@ -6,6 +6,7 @@ using Microsoft.AspNetCore.Server.Kestrel.Core;
 using Microsoft.Extensions.FileProviders;
 using TapeVault.Archive;
 using TapeVault.Archive.Accounts;
+using TapeVault.Archive.Export;
 using TapeVault.Archive.Jobs;
 using TapeVault.Core.Formats;
 using TapeVault.Web.Api;
@@ -47,7 +48,9 @@ public static class WebApp
         var profiles = ProfileCatalog.WithUserFolder(builder.Configuration["TapeVault:ProfilesFolder"] is { Length: > 0 } folder ? Path.GetFullPath(folder, archive.BaseFolder) : null);
         var web = builder.Configuration.GetSection(WebOptions.Section).Get<WebOptions>() ?? new WebOptions();
         builder.Services.AddSingleton(web);
-        builder.Services.AddTapeVaultArchive(archive, profiles);
+        var export = builder.Configuration.GetSection(ExportOptions.Section).Get<ExportOptions>() ?? new ExportOptions();
+        builder.Services.AddSingleton(builder.Configuration.GetSection(FixityOptions.Section).Get<FixityOptions>() ?? new FixityOptions());
+        builder.Services.AddTapeVaultArchive(archive, profiles, export);
 
         // Sign-in cookies must survive a restart: the keys live beside the database, not in memory.
         builder.Services.AddDataProtection()
@@ -96,6 +99,8 @@ public static class WebApp
         builder.Services.AddScoped<ArchiveQueries>();
         builder.Services.AddHostedService<ArchiveStartup>();
         builder.Services.AddHostedService(s => s.GetRequiredService<JobRunner>());
+        builder.Services.AddSingleton<FixityScheduler>();
+        builder.Services.AddHostedService(s => s.GetRequiredService<FixityScheduler>());
 
         var app = builder.Build();
         app.UseExceptionHandler("/Error");

@@ -9,6 +9,7 @@
     var active = false;
     jobs.forEach(function (job) {
       document.querySelectorAll('[data-job="' + job.id + '"]').forEach(function (row) {
+        row.dataset.state = job.state;
         var bar = row.querySelector("progress");
         if (bar) { bar.value = job.progress; bar.textContent = Math.round(job.progress * 100) + "%"; }
         var text = row.querySelector(".job-text");
@@ -32,6 +33,8 @@
       .catch(function () { window.setTimeout(poll, 3000); });
   }
 
-  sawActive = document.querySelectorAll("[data-job]").length > 0;
+  // Reload once when the jobs that were running on arrival have finished (to show their results), never in a loop.
+  sawActive = document.querySelector('[data-job][data-state="queued"], [data-job][data-state="running"]') !== null;
+  if (!sawActive) { return; }
   poll();
 })();

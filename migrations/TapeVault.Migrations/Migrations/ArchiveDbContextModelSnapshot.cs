@@ -502,6 +502,48 @@ namespace TapeVault.Migrations.Migrations
                     b.ToTable("Runs");
                 });
 
+            modelBuilder.Entity("TapeVault.Archive.Entities.ExportRecord", b =>
+                {
+                    b.Property<int>("Id")
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("INTEGER");
+
+                    b.Property<int?>("CollectionId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("CreatedBy")
+                        .IsRequired()
+                        .HasColumnType("TEXT");
+
+                    b.Property<long>("CreatedUtc")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("FileName")
+                        .IsRequired()
+                        .HasColumnType("TEXT");
+
+                    b.Property<int?>("ItemId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<string>("Kind")
+                        .IsRequired()
+                        .HasColumnType("TEXT");
+
+                    b.Property<string>("Sha256")
+                        .IsRequired()
+                        .HasColumnType("TEXT");
+
+                    b.HasKey("Id");
+
+                    b.HasIndex("CollectionId");
+
+                    b.HasIndex("ItemId");
+
+                    b.HasIndex("Sha256");
+
+                    b.ToTable("Exports");
+                });
+
             modelBuilder.Entity("TapeVault.Archive.Entities.JobRecord", b =>
                 {
                     b.Property<int>("Id")
@@ -785,6 +827,17 @@ namespace TapeVault.Migrations.Migrations
                         .IsRequired();
 
                     b.Navigation("Capture");
+                });
+
+            modelBuilder.Entity("TapeVault.Archive.Entities.ExportRecord", b =>
+                {
+                    b.HasOne("TapeVault.Archive.Entities.StoredObject", "StoredFile")
+                        .WithMany()
+                        .HasForeignKey("Sha256")
+                        .OnDelete(DeleteBehavior.Restrict)
+                        .IsRequired();
+
+                    b.Navigation("StoredFile");
                 });
 
             modelBuilder.Entity("TapeVault.Archive.Entities.TapeImageRecord", b =>

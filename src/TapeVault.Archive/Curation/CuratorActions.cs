@@ -116,6 +116,24 @@ public sealed class CuratorActions(ArchiveDbContext db, ProfileCatalog profiles)
         return job;
     }
 
+    /// <summary>Queues a fixity audit, a bag or a catalogue (kind from <see cref="JobKinds"/>) for a collection, an item, or (fixity) everything.</summary>
+    public async Task<JobRecord> QueueScopedAsync(string kind, int? collectionId, int? itemId, string agent, CancellationToken cancellation = default)
+    {
+        if (collectionId is { } c && !await db.Collections.AnyAsync(x => x.Id == c, cancellation).ConfigureAwait(false))
+        {
+            throw new ArchiveNotFoundException($"There is no collection {c}.");
+        }
+
+        if (itemId is { } i && !await db.Items.AnyAsync(x => x.Id == i, cancellation).ConfigureAwait(false))
+        {
+            throw new ArchiveNotFoundException($"There is no item {i}.");
+        }
+
+        var job = JobQueue.Enqueue(db, kind, new ScopeParameters(collectionId, itemId).ToJson(), agent, itemId);
+        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+        return job;
+    }
+
     private static string Required(string? value, string what, int maxLength)
     {
         if (string.IsNullOrWhiteSpace(value))

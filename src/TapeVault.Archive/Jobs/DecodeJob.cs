@@ -61,7 +61,7 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
         // The decoder reports from its reading thread; forward at most a few times a second, never blocking it.
         var lastReport = DateTime.MinValue;
         Task pending = Task.CompletedTask;
-        var forward = new InlineProgress(p =>
+        var forward = new InlineProgress<DecodeProgress>(p =>
         {
             var now = DateTime.UtcNow;
             if (now - lastReport < ReportEvery || !pending.IsCompleted)
@@ -109,9 +109,4 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
         return new JobOutcome(run.Id, $"Decode run {run.Id}: {run.Outcome}");
     }
 
-    /// <summary>Calls back on the reporting thread itself (Progress&lt;T&gt; would post to the pool and reorder reports).</summary>
-    private sealed class InlineProgress(Action<DecodeProgress> report) : IProgress<DecodeProgress>
-    {
-        public void Report(DecodeProgress value) => report(value);
-    }
 }

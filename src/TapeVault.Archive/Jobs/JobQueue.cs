@@ -7,6 +7,9 @@ public static class JobKinds
 {
     public const string Decode = "decode";
     public const string Merge = "merge";
+    public const string Fixity = "fixity";
+    public const string Bag = "bag";
+    public const string Publish = "publish";
 }
 
 /// <summary>The persisted job table's operations. Claiming is one conditional UPDATE, so two workers never take the same job.</summary>

@@ -20,22 +20,15 @@ public static class UsersCommand
         ArgumentNullException.ThrowIfNull(input);
         ArgumentNullException.ThrowIfNull(settings);
         string verb = args.Positional.Count > 0 ? args.Positional[0] : throw new UsageException($"Say what to do: tapevault {Usage}.");
-        var options = settings.Archive;
-        options.BaseFolder = ArchiveOptions.FindRepositoryRoot() ?? Directory.GetCurrentDirectory();
-        if (args.Value("database") is { } database)
-        {
-            options.DatabasePath = Path.GetFullPath(database);
-        }
-
         return verb switch
         {
-            "add" => Add(args, output, input, options),
-            "list" => List(args, output, options),
+            "add" => Add(args, output, input, settings),
+            "list" => List(args, output, settings),
             _ => throw new UsageException($"Unknown users command '{verb}'; use add or list."),
         };
     }
 
-    private static int Add(CommandLine args, TextWriter output, TextReader input, ArchiveOptions options)
+    private static int Add(CommandLine args, TextWriter output, TextReader input, CliSettings settings)
     {
         if (args.Positional.Count != 2)
         {
@@ -45,17 +38,16 @@ public static class UsersCommand
         string name = args.Positional[1];
         string role = args.Required("role");
         bool fromStdin = args.Flag("password-stdin");
+        ArchiveSession.DeclareOptions(args);
         args.RejectUnknown();
         string? password = fromStdin ? input.ReadLine() ?? throw new UsageException("--password-stdin was given but standard input is empty.") : null;
 
-        using var services = Services(options);
-        Migrate(services);
-        using var scope = services.CreateScope();
-        var admin = scope.ServiceProvider.GetRequiredService<UserAdmin>();
+        using var session = ArchiveSession.Open(args, settings);
+        var admin = session.Get<UserAdmin>();
         try
         {
-            var (user, generated) = admin.AddAsync(name, role, password, $"cli:{Environment.UserName}").GetAwaiter().GetResult();
-            output.WriteLine($"Account '{user.UserName}' made with the {role} role in {options.FullDatabasePath}.");
+            var (user, generated) = admin.AddAsync(name, role, password, ArchiveSession.Agent).GetAwaiter().GetResult();
+            output.WriteLine($"Account '{user.UserName}' made with the {role} role in {session.Options.FullDatabasePath}.");
             if (generated is not null)
             {
                 output.WriteLine($"Password (shown only now): {generated}");
@@ -69,13 +61,12 @@ public static class UsersCommand
         return 0;
     }
 
-    private static int List(CommandLine args, TextWriter output, ArchiveOptions options)
+    private static int List(CommandLine args, TextWriter output, CliSettings settings)
     {
+        ArchiveSession.DeclareOptions(args);
         args.RejectUnknown();
-        using var services = Services(options);
-        Migrate(services);
-        using var scope = services.CreateScope();
-        var users = scope.ServiceProvider.GetRequiredService<UserManager<IdentityUser>>();
+        using var session = ArchiveSession.Open(args, settings);
+        var users = session.Get<UserManager<IdentityUser>>();
         foreach (var user in users.Users.OrderBy(u => u.UserName).ToList())
         {
             var roles = users.GetRolesAsync(user).GetAwaiter().GetResult();
@@ -83,23 +74,5 @@ public static class UsersCommand
         }
 
         return 0;
-    }
-
-    private static ServiceProvider Services(ArchiveOptions options)
-    {
-        var services = new ServiceCollection();
-        services.AddLogging();
-        services.AddDbContext<ArchiveDbContext>(db => ArchiveDatabase.Configure(db, options.FullDatabasePath));
-        services.AddIdentityCore<IdentityUser>(ArchiveServices.ConfigureIdentity)
-            .AddRoles<IdentityRole>()
-            .AddEntityFrameworkStores<ArchiveDbContext>();
-        services.AddScoped<UserAdmin>();
-        return services.BuildServiceProvider();
-    }
-
-    private static void Migrate(ServiceProvider services)
-    {
-        using var scope = services.CreateScope();
-        ArchiveDatabase.MigrateAsync(scope.ServiceProvider.GetRequiredService<ArchiveDbContext>()).GetAwaiter().GetResult();
     }
 }

@@ -222,9 +222,11 @@ public sealed class BlockAssembler
             var covered = _layout.Checksum.Covers == ChecksumCoverage.Payload ? payload : all.AsSpan(0, payloadEnd);
             uint computed = _checksum.Compute(covered) & WidthMask(checksumBytes);
             status = computed == stored ? BlockStatus.Clean : BlockStatus.Failed;
+            // A failed block whose (damaged) header claims no payload has nothing that could be right: trusting its empty
+            // payload would mark a misread as certain.
             confidence = status == BlockStatus.Clean
                 ? PosteriorGivenMatch(logPayloadOk + logRestOk, _checksum.FalseMatchProbability)
-                : PayloadRightGivenMismatch(logPayloadOk, logRestOk);
+                : payloadEnd == headerBytes ? 0 : PayloadRightGivenMismatch(logPayloadOk, logRestOk);
         }
 
         if (_framingErrors > 0 && status == BlockStatus.Clean)

@@ -46,6 +46,8 @@ public static class ArchiveApi
         read.MapGet("/items/{id:int}/block-map", (int id, ArchiveQueries q, CancellationToken c) => q.BlockMapAsync(id, c));
         read.MapGet("/images/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.ImageAsync(id, c));
         read.MapGet("/images/{id:int}/download", DownloadImageAsync);
+        read.MapGet("/exports", (ArchiveQueries q, int? collectionId, int? itemId, CancellationToken c) => q.ExportsAsync(collectionId, itemId, c));
+        read.MapGet("/exports/{id:int}/download", DownloadExportAsync);
         read.MapGet("/profiles", (ArchiveQueries q) => q.Profiles());
         read.MapGet("/detector-settings", () => ArchiveQueries.DefaultSettings());
 
@@ -74,6 +76,15 @@ public static class ArchiveApi
             runner.Nudge();
             return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
         });
+        write.MapPost("/fixity", (int? collectionId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Fixity, collectionId, null, actions, runner, http, c))
+            .WithDescription("Queue a fixity audit of the whole store, or of one collection (?collectionId=).");
+        write.MapPost("/items/{id:int}/bag", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Bag, null, id, actions, runner, http, c));
+        write.MapPost("/collections/{id:int}/bag", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Bag, id, null, actions, runner, http, c));
+        write.MapPost("/collections/{id:int}/publish", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Publish, id, null, actions, runner, http, c));
         write.MapPost("/jobs/{id:int}/cancel", async (int id, JobQueue queue, CancellationToken c) =>
         {
             var job = await queue.CancelAsync(id, c).ConfigureAwait(false) ?? throw new ArchiveNotFoundException($"There is no job {id}.");
@@ -145,6 +156,25 @@ public static class ArchiveApi
         }
 
         return Results.File(store.OpenRead(capture.Sha256), "audio/wav", capture.OriginalFileName, enableRangeProcessing: true);
+    }
+
+    private static async Task<IResult> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c)
+    {
+        var job = await actions.QueueScopedAsync(kind, collectionId, itemId, Agent(http), c).ConfigureAwait(false);
+        runner.Nudge();
+        return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
+    }
+
+    private static async Task<IResult> DownloadExportAsync(int id, ArchiveDbContext db, ContentStore store, CancellationToken c)
+    {
+        var export = await db.Exports.AsNoTracking().FirstOrDefaultAsync(x => x.Id == id, c).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no export {id}.");
+        if (!store.Exists(export.Sha256))
+        {
+            return Results.Problem(statusCode: StatusCodes.Status410Gone, title: "The export's file is missing from the content store; run a fixity audit.");
+        }
+
+        return Results.File(store.OpenRead(export.Sha256), "application/zip", export.FileName, enableRangeProcessing: true);
     }
 
     private static async Task<IResult> DownloadImageAsync(int id, ArchiveDbContext db, ContentStore store, CancellationToken c)

@@ -171,15 +171,17 @@ public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles,
         var rows = new List<BlockMapRow>();
         foreach (var run in runs)
         {
-            foreach (var setting in candidates.Where(c => c.RunId == run.Id).GroupBy(c => (c.SettingIndex, c.SettingName)).OrderBy(g => g.Key.SettingIndex))
+            // Every setting of the run has its row, also one that read nothing: that it found no block is worth seeing.
+            var ofRun = candidates.Where(c => c.RunId == run.Id).ToList();
+            foreach (var settingName in SettingsJson.Read(run.SettingsJson).Select(s => s.Name))
             {
-                var byKey = setting.GroupBy(c => c.IdentityKey, StringComparer.Ordinal)
+                var byKey = ofRun.Where(c => c.SettingName == settingName).GroupBy(c => c.IdentityKey, StringComparer.Ordinal)
                     .ToDictionary(g => g.Key, g => g.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First(), StringComparer.Ordinal);
                 var cells = columns.Select(col => byKey.TryGetValue(col.Key, out var best)
                     ? new BlockMapCell(best.Status, best.Confidence,
-                        chosen.TryGetValue(col.Key, out var win) && win.Capture == run.Capture!.Sha256 && win.Setting == setting.Key.SettingName)
+                        chosen.TryGetValue(col.Key, out var win) && win.Capture == run.Capture!.Sha256 && win.Setting == settingName)
                     : new BlockMapCell("none", 0, false)).ToList();
-                rows.Add(new BlockMapRow(run.CaptureId, run.Capture!.OriginalFileName, run.Id, setting.Key.SettingName, cells));
+                rows.Add(new BlockMapRow(run.CaptureId, run.Capture!.OriginalFileName, run.Id, settingName, cells));
             }
         }
 
@@ -211,6 +213,13 @@ public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles,
             i.CleanBlocks, i.VotedBlocks, i.RepairedBlocks, i.MissingBlocks, i.Conflicts, i.OverallConfidence,
             [.. i.SourceRunIds.Split(',', StringSplitOptions.RemoveEmptyEntries).Select(int.Parse)]);
     }
+
+    public async Task<IReadOnlyList<ExportView>> ExportsAsync(int? collectionId, int? itemId, CancellationToken cancellation = default) =>
+        await db.Exports.AsNoTracking()
+            .Where(e => (collectionId == null || e.CollectionId == collectionId) && (itemId == null || e.ItemId == itemId))
+            .OrderByDescending(e => e.Id).Take(100)
+            .Select(e => new ExportView(e.Id, e.Kind, e.CollectionId, e.ItemId, e.FileName, e.Sha256, e.StoredFile!.Size, e.CreatedUtc, e.CreatedBy))
+            .ToListAsync(cancellation).ConfigureAwait(false);
 
     public IReadOnlyList<ProfileView> Profiles() =>
         [.. profiles.All.Select(p => new ProfileView(p.Id, p.Name, p.Description, p.Family.ToString().ToLowerInvariant()))];

@@ -169,3 +169,5 @@ public sealed record BlockMapRow(int CaptureId, string CaptureFile, int RunId, s
 
 /// <summary>One setting's best reading of one position; status "none" when the setting read nothing there.</summary>
 public sealed record BlockMapCell(string Status, double Confidence, bool Chosen);
+
+public sealed record ExportView(int Id, string Kind, int? CollectionId, int? ItemId, string FileName, string Sha256, long Size, DateTimeOffset CreatedUtc, string CreatedBy);

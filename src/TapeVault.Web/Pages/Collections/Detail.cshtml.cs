@@ -1,15 +1,27 @@
 using Microsoft.AspNetCore.Mvc;
 using TapeVault.Archive.Curation;
+using TapeVault.Archive.Jobs;
 using TapeVault.Web.Api;
 
 namespace TapeVault.Web.Pages.Collections;
 
-public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actions) : ArchivePage
+public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actions, JobRunner runner) : ArchivePage
 {
     public CollectionDetail? Collection { get; private set; }
 
     [BindProperty]
     public NewItemForm Form { get; set; } = new();
+
+    public IReadOnlyList<ExportView> Exports { get; private set; } = [];
+
+    [TempData]
+    public string? Message { get; set; }
+
+    public Task<IActionResult> OnPostPublishAsync(int id) => QueueAsync(id, JobKinds.Publish, "Publishing the catalogue");
+
+    public Task<IActionResult> OnPostBagAsync(int id) => QueueAsync(id, JobKinds.Bag, "Making a bag of the whole collection");
+
+    public Task<IActionResult> OnPostFixityAsync(int id) => QueueAsync(id, JobKinds.Fixity, "Auditing the fixity of every stored file of the collection");
 
     public Task<IActionResult> OnGetAsync(int id) => LoadOrNotFoundAsync(() => LoadAsync(id));
 
@@ -21,7 +33,21 @@ public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actio
         },
         () => LoadAsync(id));
 
-    private async Task LoadAsync(int id) => Collection = await queries.CollectionAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
+    private async Task LoadAsync(int id)
+    {
+        Collection = await queries.CollectionAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
+        Exports = await queries.ExportsAsync(id, null, HttpContext.RequestAborted).ConfigureAwait(false);
+    }
+
+    private Task<IActionResult> QueueAsync(int id, string kind, string what) => TryAsync(
+        async () =>
+        {
+            var job = await actions.QueueScopedAsync(kind, id, null, Agent).ConfigureAwait(false);
+            runner.Nudge();
+            Message = $"{what}: job {job.Id}. Follow it on the Jobs page; the download appears here when it is done.";
+            return Redirect($"/collections/{id}");
+        },
+        () => LoadAsync(id));
 
     public sealed class NewItemForm
     {

@@ -50,6 +50,18 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
         },
         () => LoadAsync(id));
 
+    public IReadOnlyList<ExportView> Exports { get; private set; } = [];
+
+    public Task<IActionResult> OnPostBagAsync(int id) => TryAsync(
+        async () =>
+        {
+            var job = await actions.QueueScopedAsync(JobKinds.Bag, null, id, Agent).ConfigureAwait(false);
+            runner.Nudge();
+            Message = $"Making a bag of this tape: job {job.Id}; the download appears below when it is done.";
+            return Redirect($"/items/{id}");
+        },
+        () => LoadAsync(id));
+
     public Task<IActionResult> OnPostMergeAsync(int id) => TryAsync(
         async () =>
         {
@@ -79,6 +91,7 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
         }
 
         Map = await queries.BlockMapAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
+        Exports = await queries.ExportsAsync(null, id, HttpContext.RequestAborted).ConfigureAwait(false);
     }
 
     /// <summary>The symbol and word for a status, so that no cell says it by colour alone.</summary>

@@ -1,0 +1,181 @@
+using System.Globalization;
+using System.Text;
+using System.Text.Json;
+using Microsoft.EntityFrameworkCore;
+using TapeVault.Archive.Events;
+using TapeVault.Archive.Ingest;
+using TapeVault.Archive.Storage;
+using TapeVault.Core.Image;
+
+namespace TapeVault.Archive.Export;
+
+/// <summary>What a bag holds: one item, or every item of a collection.</summary>
+public sealed record BagScope(int? ItemId, int? CollectionId)
+{
+    public static BagScope Item(int id) => new(id, null);
+
+    public static BagScope OfCollection(int id) => new(null, id);
+}
+
+public sealed record BagResult(string Name, int PayloadFiles, long PayloadBytes, IReadOnlyList<string> ExternalIdentifiers);
+
+/// <summary>
+/// Writes a bag after RFC 8493 (BagIt 1.0): bagit.txt, bag-info.txt, the payload under data/ (per item: the originals,
+/// the tape images, the item's metadata and event history as JSON), manifest-sha256.txt and tagmanifest-sha256.txt.
+/// Manifest lines are "hash, two spaces, path", which RFC 8493 allows and GNU sha256sum -c reads as they are.
+/// </summary>
+public sealed class BagExport(ArchiveDbContext db, ContentStore store, ExportOptions options)
+{
+    private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web) { WriteIndented = true };
+
+    public async Task<BagResult> WriteAsync(BagScope scope, BagSink sink, string agent, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(scope);
+        ArgumentNullException.ThrowIfNull(sink);
+        var itemIds = await ItemIdsAsync(scope, cancellation).ConfigureAwait(false);
+        var manifest = new List<(string Hash, string Path)>();
+        long bytes = 0;
+        var identifiers = new List<string>();
+        var folders = new HashSet<string>(StringComparer.Ordinal);
+        foreach (var itemId in itemIds)
+        {
+            var dossier = await ItemDossier.LoadAsync(db, store, itemId, cancellation).ConfigureAwait(false);
+            string folder = $"data/{PathPart(dossier.Item.AccessionNumber)}";
+            if (!folders.Add(folder))
+            {
+                // Two accession numbers that differ only in characters a path cannot hold.
+                folder = $"{folder}-item{dossier.Item.Id}";
+                folders.Add(folder);
+            }
+
+            identifiers.Add(dossier.Item.AccessionNumber);
+            foreach (var capture in dossier.Captures)
+            {
+                if (!store.Exists(capture.Sha256))
+                {
+                    throw new ArchiveConflictException($"Item {dossier.Item.AccessionNumber}: the original of capture {capture.Id} is missing from the store; run a fixity audit before exporting.");
+                }
+
+                var path = $"{folder}/originals/capture-{capture.Id}-{PathPart(capture.OriginalFileName)}";
+                var (hash, length) = await sink.WriteAsync(path, async s =>
+                {
+                    await using var source = store.OpenRead(capture.Sha256);
+                    await source.CopyToAsync(s, cancellation).ConfigureAwait(false);
+                }, cancellation).ConfigureAwait(false);
+                if (hash != capture.Sha256)
+                {
+                    throw new ArchiveConflictException($"Item {dossier.Item.AccessionNumber}: the original of capture {capture.Id} no longer matches its SHA-256; run a fixity audit before exporting.");
+                }
+
+                manifest.Add((hash, path));
+                bytes += length;
+            }
+
+            foreach (var image in dossier.Images)
+            {
+                if (!store.Exists(image.Sha256))
+                {
+                    throw new ArchiveConflictException($"Item {dossier.Item.AccessionNumber}: tape image version {image.Version} is missing from the store; run a fixity audit before exporting.");
+                }
+
+                var path = $"{folder}/images/{PathPart(dossier.Item.AccessionNumber)}-v{image.Version}{TapeImageContainer.Extension}";
+                var (hash, length) = await sink.WriteAsync(path, async s =>
+                {
+                    await using var source = store.OpenRead(image.Sha256);
+                    await source.CopyToAsync(s, cancellation).ConfigureAwait(false);
+                }, cancellation).ConfigureAwait(false);
+                if (hash != image.Sha256)
+                {
+                    throw new ArchiveConflictException($"Item {dossier.Item.AccessionNumber}: tape image version {image.Version} no longer matches its SHA-256; run a fixity audit before exporting.");
+                }
+
+                manifest.Add((hash, path));
+                bytes += length;
+            }
+
+            foreach (var (fileName, value) in new[] { ("item.json", dossier.ToMetadata()), ("events.json", dossier.ToEventHistory()) })
+            {
+                var path = $"{folder}/{fileName}";
+                var (hash, length) = await sink.WriteAsync(path, s => JsonSerializer.SerializeAsync(s, value, Json, cancellation), cancellation).ConfigureAwait(false);
+                manifest.Add((hash, path));
+                bytes += length;
+            }
+        }
+
+        var tags = new List<(string Hash, string Path)>();
+        tags.Add((await WriteTextAsync(sink, "bagit.txt", "BagIt-Version: 1.0\nTag-File-Character-Encoding: UTF-8\n", cancellation).ConfigureAwait(false), "bagit.txt"));
+        var info = new StringBuilder()
+            .Append(CultureInfo.InvariantCulture, $"Source-Organization: {OneLine(options.SourceOrganization)}\n")
+            .Append(CultureInfo.InvariantCulture, $"Bagging-Date: {DateTime.UtcNow:yyyy-MM-dd}\n")
+            .Append(CultureInfo.InvariantCulture, $"Payload-Oxum: {bytes}.{manifest.Count}\n")
+            .Append(CultureInfo.InvariantCulture, $"Bag-Software-Agent: TapeVault {Core.Decoding.CaptureDecoder.CodeVersion}\n");
+        foreach (var id in identifiers)
+        {
+            info.Append(CultureInfo.InvariantCulture, $"External-Identifier: {OneLine(id)}\n");
+        }
+
+        tags.Add((await WriteTextAsync(sink, "bag-info.txt", info.ToString(), cancellation).ConfigureAwait(false), "bag-info.txt"));
+        var manifestText = string.Concat(manifest.OrderBy(m => m.Path, StringComparer.Ordinal).Select(m => $"{m.Hash}  {m.Path}\n"));
+        tags.Add((await WriteTextAsync(sink, "manifest-sha256.txt", manifestText, cancellation).ConfigureAwait(false), "manifest-sha256.txt"));
+        await WriteTextAsync(sink, "tagmanifest-sha256.txt", string.Concat(tags.Select(t => $"{t.Hash}  {t.Path}\n")), cancellation).ConfigureAwait(false);
+
+        string name = scope.ItemId is not null ? $"bag-{PathPart(identifiers[0])}" : $"bag-collection-{scope.CollectionId}";
+        foreach (var itemId in itemIds)
+        {
+            EventLog.Add(db, EventTypes.Export, agent, "item", itemId.ToString(CultureInfo.InvariantCulture), "success",
+                $"Exported in bag '{name}': {manifest.Count} payload file(s), {bytes} bytes.", itemId);
+        }
+
+        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+        return new BagResult(name, manifest.Count, bytes, identifiers);
+    }
+
+    /// <summary>A file or folder name made safe for a bag path and for manifest lines (no separators, no control characters, no %).</summary>
+    public static string PathPart(string name)
+    {
+        ArgumentNullException.ThrowIfNull(name);
+        var chars = name.Select(c => char.IsControl(c) || c is '/' or '\\' or '%' or ':' or '*' or '?' or '"' or '<' or '>' or '|' ? '_' : c).ToArray();
+        var cleaned = new string(chars).Trim().Trim('.');
+        cleaned = cleaned.Replace("..", "_", StringComparison.Ordinal);
+        return cleaned.Length == 0 ? "_" : cleaned.Length > 120 ? cleaned[..120] : cleaned;
+    }
+
+    private async Task<List<int>> ItemIdsAsync(BagScope scope, CancellationToken cancellation)
+    {
+        if (scope.ItemId is { } itemId)
+        {
+            if (!await db.Items.AnyAsync(i => i.Id == itemId, cancellation).ConfigureAwait(false))
+            {
+                throw new ArchiveNotFoundException($"There is no item {itemId}.");
+            }
+
+            return [itemId];
+        }
+
+        if (scope.CollectionId is not { } collectionId || !await db.Collections.AnyAsync(c => c.Id == collectionId, cancellation).ConfigureAwait(false))
+        {
+            throw new ArchiveNotFoundException($"There is no collection {scope.CollectionId}.");
+        }
+
+        var ids = await db.Items.AsNoTracking().Where(i => i.CollectionId == collectionId).OrderBy(i => i.AccessionNumber).Select(i => i.Id).ToListAsync(cancellation).ConfigureAwait(false);
+        return ids.Count == 0 ? throw new ArchiveInputException("The collection has no items to export.") : ids;
+    }
+
+    private static async Task<string> WriteTextAsync(BagSink sink, string path, string text, CancellationToken cancellation)
+    {
+        var bytes = new UTF8Encoding(encoderShouldEmitUTF8Identifier: false).GetBytes(text);
+        var (hash, _) = await sink.WriteAsync(path, s => s.WriteAsync(bytes, cancellation).AsTask(), cancellation).ConfigureAwait(false);
+        return hash;
+    }
+
+    private static string OneLine(string value) => string.Join(' ', value.Split(['\r', '\n'], StringSplitOptions.RemoveEmptyEntries)).Trim();
+}
+
+/// <summary>The "TapeVault:Export" section of appsettings.json.</summary>
+public sealed class ExportOptions
+{
+    public const string Section = "TapeVault:Export";
+
+    /// <summary>Written as Source-Organization in every bag and shown in the catalogue.</summary>
+    public string SourceOrganization { get; set; } = "Brackenfield Home Computer Club (demo)";
+}

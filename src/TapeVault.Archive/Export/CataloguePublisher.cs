@@ -1,0 +1,109 @@
+using System.Globalization;
+using System.IO.Compression;
+using Microsoft.EntityFrameworkCore;
+using TapeVault.Archive.Events;
+using TapeVault.Archive.Storage;
+using TapeVault.Core.Catalogue;
+
+namespace TapeVault.Archive.Export;
+
+/// <summary>Gathers a collection's items from the archive into the catalogue model and writes the static site.</summary>
+public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, ExportOptions options)
+{
+    public async Task<CatalogueSite> SiteAsync(int collectionId, CancellationToken cancellation = default)
+    {
+        var collection = await db.Collections.AsNoTracking().FirstOrDefaultAsync(c => c.Id == collectionId, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no collection {collectionId}.");
+        var ids = await db.Items.AsNoTracking().Where(i => i.CollectionId == collectionId).OrderBy(i => i.AccessionNumber).Select(i => i.Id)
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        var items = new List<CatalogueItem>();
+        foreach (var id in ids)
+        {
+            var d = await ItemDossier.LoadAsync(db, store, id, cancellation).ConfigureAwait(false);
+            var description = string.Join("\n\n", new[]
+            {
+                d.Item.ConditionNotes.Length > 0 ? $"**Condition when received:** {d.Item.ConditionNotes}" : null,
+            }.Concat(d.Captures.Where(c => c.Notes.Length > 0).Select(c => $"**Capture {c.Id}:** {c.Notes}")).Where(s => s is not null));
+            var record = d.LatestImageRecord;
+            CatalogueImage? image = record is not null && d.LatestImage is { } latest
+                ? new CatalogueImage(record.Version, record.Sha256, await SizeAsync(record.Sha256, cancellation).ConfigureAwait(false), latest)
+                : null;
+            items.Add(new CatalogueItem(
+                d.Item.AccessionNumber,
+                d.Item.Title,
+                d.Item.Side,
+                d.Item.LabelText,
+                description,
+                [.. d.Captures.Select(c => new CatalogueCapture(c.OriginalFileName, c.Sha256, c.Size, c.SampleRate, c.Channels, c.BitsPerSample, c.DurationSeconds, c.Deck, c.Operator, c.CapturedOn))],
+                image,
+                Histogram: null));
+        }
+
+        return new CatalogueSite(collection.Name, collection.Description, options.SourceOrganization, DateTimeOffset.UtcNow, items);
+    }
+
+    /// <summary>Writes the catalogue into an empty folder and records the publication on every item.</summary>
+    public async Task<IReadOnlyList<string>> PublishAsync(int collectionId, string folder, string agent, CancellationToken cancellation = default)
+    {
+        var site = await SiteAsync(collectionId, cancellation).ConfigureAwait(false);
+        IReadOnlyList<string> files;
+        try
+        {
+            files = CatalogueWriter.Write(site, folder);
+        }
+        catch (IOException e)
+        {
+            throw new ArchiveInputException(e.Message);
+        }
+
+        await RecordAsync(collectionId, $"Catalogue published to {Path.GetFullPath(folder)} ({files.Count} files).", agent, cancellation).ConfigureAwait(false);
+        return files;
+    }
+
+    /// <summary>Writes the catalogue as a zip (its single top folder is the site) to <paramref name="output"/>.</summary>
+    public async Task<int> PublishZipAsync(int collectionId, Stream output, string agent, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(output);
+        var site = await SiteAsync(collectionId, cancellation).ConfigureAwait(false);
+        var temp = Path.Combine(store.TempFolder, $"catalogue-{Guid.NewGuid():N}");
+        try
+        {
+            var files = CatalogueWriter.Write(site, temp);
+            using (var zip = new ZipArchive(output, ZipArchiveMode.Create, leaveOpen: true))
+            {
+                foreach (var file in files)
+                {
+                    var entry = zip.CreateEntry($"catalogue/{file}", CompressionLevel.Optimal);
+                    entry.LastWriteTime = new DateTimeOffset(2000, 1, 1, 0, 0, 0, TimeSpan.Zero);
+                    await using var target = entry.Open();
+                    await using var source = File.OpenRead(Path.Combine(temp, file));
+                    await source.CopyToAsync(target, cancellation).ConfigureAwait(false);
+                }
+            }
+
+            await RecordAsync(collectionId, $"Catalogue published as a zip ({files.Count} files).", agent, cancellation).ConfigureAwait(false);
+            return files.Count;
+        }
+        finally
+        {
+            if (Directory.Exists(temp))
+            {
+                Directory.Delete(temp, recursive: true);
+            }
+        }
+    }
+
+    private async Task<long> SizeAsync(string sha256, CancellationToken cancellation) =>
+        (await db.Objects.AsNoTracking().FirstOrDefaultAsync(o => o.Sha256 == sha256, cancellation).ConfigureAwait(false))?.Size ?? 0;
+
+    private async Task RecordAsync(int collectionId, string detail, string agent, CancellationToken cancellation)
+    {
+        EventLog.Add(db, EventTypes.Export, agent, "collection", collectionId.ToString(CultureInfo.InvariantCulture), "success", detail);
+        foreach (var itemId in await db.Items.Where(i => i.CollectionId == collectionId).Select(i => i.Id).ToListAsync(cancellation).ConfigureAwait(false))
+        {
+            EventLog.Add(db, EventTypes.Export, agent, "item", itemId.ToString(CultureInfo.InvariantCulture), "success", detail, itemId);
+        }
+
+        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+    }
+}

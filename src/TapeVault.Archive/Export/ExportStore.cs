@@ -1,0 +1,67 @@
+using Microsoft.EntityFrameworkCore;
+using TapeVault.Archive.Entities;
+using TapeVault.Archive.Storage;
+
+namespace TapeVault.Archive.Export;
+
+/// <summary>Bags and catalogues made in the web app: written into the content store and recorded, so they can be downloaded and audited.</summary>
+public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExport bags, CataloguePublisher catalogues)
+{
+    public async Task<ExportRecord> StoreBagAsync(BagScope scope, string agent, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(scope);
+        BagResult? result = null;
+        string bagName = scope.ItemId is { } itemId
+            ? $"bag-{BagExport.PathPart(await db.Items.Where(i => i.Id == itemId).Select(i => i.AccessionNumber).FirstOrDefaultAsync(cancellation).ConfigureAwait(false) ?? throw new ArchiveNotFoundException($"There is no item {itemId}."))}"
+            : $"bag-collection-{scope.CollectionId}";
+        using var staged = await store.StageAsync(async stream =>
+        {
+            await using var sink = new ZipBagSink(stream, bagName);
+            result = await bags.WriteAsync(scope, sink, agent, cancellation).ConfigureAwait(false);
+        }, cancellation).ConfigureAwait(false);
+        return await RecordAsync(staged, "bag", scope.CollectionId, scope.ItemId, $"{result!.Name}.zip", agent, cancellation).ConfigureAwait(false);
+    }
+
+    public async Task<ExportRecord> StoreCatalogueAsync(int collectionId, string agent, CancellationToken cancellation = default)
+    {
+        using var staged = await store.StageAsync(stream => catalogues.PublishZipAsync(collectionId, stream, agent, cancellation), cancellation).ConfigureAwait(false);
+        return await RecordAsync(staged, "catalogue", collectionId, null, $"catalogue-collection-{collectionId}.zip", agent, cancellation).ConfigureAwait(false);
+    }
+
+    private async Task<ExportRecord> RecordAsync(StagedObject staged, string kind, int? collectionId, int? itemId, string fileName, string agent, CancellationToken cancellation)
+    {
+        bool known = await db.Objects.AnyAsync(o => o.Sha256 == staged.Sha256, cancellation).ConfigureAwait(false);
+        if (!known)
+        {
+            db.Objects.Add(new StoredObject { Sha256 = staged.Sha256, Size = staged.Size, Kind = ObjectKind.Export, StoredUtc = DateTimeOffset.UtcNow });
+        }
+
+        var record = new ExportRecord
+        {
+            Kind = kind,
+            CollectionId = collectionId,
+            ItemId = itemId,
+            Sha256 = staged.Sha256,
+            FileName = fileName,
+            CreatedUtc = DateTimeOffset.UtcNow,
+            CreatedBy = agent,
+        };
+        db.Exports.Add(record);
+        staged.Commit();
+        try
+        {
+            await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+        }
+        catch
+        {
+            if (!known)
+            {
+                staged.Rollback();
+            }
+
+            throw;
+        }
+
+        return record;
+    }
+}

@@ -1,0 +1,79 @@
+using Microsoft.AspNetCore.Identity;
+using Microsoft.Extensions.DependencyInjection;
+using TapeVault.Archive;
+using TapeVault.Archive.Accounts;
+using TapeVault.Archive.Export;
+using TapeVault.Archive.Fixity;
+using TapeVault.Archive.Storage;
+
+namespace TapeVault.Cli;
+
+/// <summary>The web app's archive opened from the command line: the same database, store and services, migrated first.</summary>
+public sealed class ArchiveSession : IDisposable
+{
+    private readonly ServiceProvider services;
+    private readonly IServiceScope scope;
+
+    private ArchiveSession(ServiceProvider services)
+    {
+        this.services = services;
+        scope = services.CreateScope();
+    }
+
+    public ArchiveOptions Options => Get<ArchiveOptions>();
+
+    public const string OptionsUsage = "[--database FILE] [--store DIR]";
+
+    /// <summary>Marks the archive's options as known, so that a command can refuse unknown ones before opening anything.</summary>
+    public static void DeclareOptions(CommandLine args)
+    {
+        ArgumentNullException.ThrowIfNull(args);
+        _ = args.Value("database");
+        _ = args.Value("store");
+    }
+
+    public static ArchiveSession Open(CommandLine args, CliSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(args);
+        ArgumentNullException.ThrowIfNull(settings);
+        var options = settings.Archive;
+        options.BaseFolder = ArchiveOptions.FindRepositoryRoot() ?? Directory.GetCurrentDirectory();
+        if (args.Value("database") is { } database)
+        {
+            options.DatabasePath = Path.GetFullPath(database);
+        }
+
+        if (args.Value("store") is { } storePath)
+        {
+            options.StorePath = Path.GetFullPath(storePath);
+        }
+
+        var collection = new ServiceCollection();
+        collection.AddLogging();
+        collection.AddSingleton(options);
+        collection.AddSingleton(settings.Export);
+        collection.AddSingleton(new ContentStore(options.FullStorePath));
+        collection.AddDbContext<ArchiveDbContext>(db => ArchiveDatabase.Configure(db, options.FullDatabasePath));
+        collection.AddIdentityCore<IdentityUser>(ArchiveServices.ConfigureIdentity)
+            .AddRoles<IdentityRole>()
+            .AddEntityFrameworkStores<ArchiveDbContext>();
+        collection.AddScoped<UserAdmin>();
+        collection.AddScoped<FixityAudit>();
+        collection.AddScoped<BagExport>();
+        collection.AddScoped<CataloguePublisher>();
+        var session = new ArchiveSession(collection.BuildServiceProvider());
+        ArchiveDatabase.MigrateAsync(session.Get<ArchiveDbContext>()).GetAwaiter().GetResult();
+        return session;
+    }
+
+    public T Get<T>()
+        where T : notnull => scope.ServiceProvider.GetRequiredService<T>();
+
+    public static string Agent => $"cli:{Environment.UserName}";
+
+    public void Dispose()
+    {
+        scope.Dispose();
+        services.Dispose();
+    }
+}

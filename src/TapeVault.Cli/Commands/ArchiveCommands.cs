@@ -1,0 +1,215 @@
+using System.Globalization;
+using Microsoft.EntityFrameworkCore;
+using TapeVault.Archive;
+using TapeVault.Archive.Export;
+using TapeVault.Archive.Fixity;
+using TapeVault.Archive.Jobs;
+
+namespace TapeVault.Cli.Commands;
+
+/// <summary>
+/// Commands on the web app's archive: <c>verify</c> (fixity audit; exit 1 on any mismatch or missing file),
+/// <c>export bag</c> (RFC 8493) and <c>publish</c> (the static catalogue).
+/// </summary>
+public static class ArchiveCommands
+{
+    public const int Damaged = 1;
+
+    public static string VerifyUsage => $"verify [--collection ID] {ArchiveSession.OptionsUsage}";
+
+    public static string ExportUsage => $"export bag (--item ACCESSION | --collection ID) --out PATH [--zip] {ArchiveSession.OptionsUsage}";
+
+    public static string PublishUsage => $"publish COLLECTION-ID OUTDIR {ArchiveSession.OptionsUsage}";
+
+    public static IReadOnlySet<string> ExportFlags { get; } = new HashSet<string>(StringComparer.Ordinal) { "zip" };
+
+    public static int Verify(CommandLine args, TextWriter output, TextWriter error, CliSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(args);
+        ArgumentNullException.ThrowIfNull(output);
+        ArgumentNullException.ThrowIfNull(error);
+        int? collection = args.Value("collection") is { } c ? ParseId(c, "--collection") : null;
+        ArchiveSession.DeclareOptions(args);
+        args.RejectUnknown();
+        if (args.Positional.Count > 0)
+        {
+            throw new UsageException($"verify takes no file names: tapevault {VerifyUsage}.");
+        }
+
+        using var session = ArchiveSession.Open(args, settings);
+        FixityReport report;
+        using (var bar = new ProgressBar("verifying"))
+        {
+            report = Run(() => session.Get<FixityAudit>().RunAsync(collection, ArchiveSession.Agent, new InlineProgress<FixityProgress>(p => bar.Report((double)p.Done / Math.Max(1, p.Total)))));
+        }
+
+        foreach (var p in report.Problems)
+        {
+            output.WriteLine($"{p.Problem.ToUpperInvariant(),-9} {p.Kind} {p.File} · item {p.Item ?? "—"} · collection {p.Collection ?? "—"} · {p.Detail}");
+        }
+
+        output.WriteLine(report.AllGood
+            ? $"All {report.Checked} stored object(s) match their recorded SHA-256; nothing was changed."
+            : $"{report.Checked - report.Good} of {report.Checked} stored object(s) are damaged or missing; nothing was changed or repaired.");
+        if (!report.AllGood)
+        {
+            error.WriteLine($"tapevault: fixity audit found {report.Problems.Count} problem(s).");
+            return Damaged;
+        }
+
+        return 0;
+    }
+
+    public static int Export(CommandLine args, TextWriter output, CliSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(args);
+        ArgumentNullException.ThrowIfNull(output);
+        if (args.Positional is not ["bag"])
+        {
+            throw new UsageException($"Say what to export: tapevault {ExportUsage}.");
+        }
+
+        string? accession = args.Value("item");
+        int? collection = args.Value("collection") is { } c ? ParseId(c, "--collection") : null;
+        string outPath = args.Required("out");
+        bool zip = args.Flag("zip");
+        ArchiveSession.DeclareOptions(args);
+        args.RejectUnknown();
+        if ((accession is null) == (collection is null))
+        {
+            throw new UsageException("Give either --item ACCESSION or --collection ID.");
+        }
+
+        var target = Path.GetFullPath(outPath);
+        if (zip ? File.Exists(target) || Directory.Exists(target) : Directory.Exists(target) && Directory.EnumerateFileSystemEntries(target).Any() || File.Exists(target))
+        {
+            throw new UsageException($"{target} already exists; give a new path for the bag.");
+        }
+
+        using var session = ArchiveSession.Open(args, settings);
+        var db = session.Get<ArchiveDbContext>();
+        BagScope scope;
+        if (accession is not null)
+        {
+            int itemId = db.Items.AsNoTracking().Where(i => i.AccessionNumber == accession).Select(i => i.Id).FirstOrDefault();
+            scope = itemId != 0 ? BagScope.Item(itemId) : throw new UsageException($"There is no item with accession number '{accession}'.");
+        }
+        else
+        {
+            scope = BagScope.OfCollection(collection!.Value);
+        }
+
+        var bags = session.Get<BagExport>();
+        BagResult result;
+        if (zip)
+        {
+            var temp = target + ".part";
+            try
+            {
+                using (var file = new FileStream(temp, FileMode.CreateNew, FileAccess.Write))
+                {
+                    result = Run(async () =>
+                    {
+                        await using var sink = new ZipBagSink(file, Path.GetFileNameWithoutExtension(target));
+                        return await bags.WriteAsync(scope, sink, ArchiveSession.Agent).ConfigureAwait(false);
+                    });
+                }
+
+                File.Move(temp, target);
+            }
+            finally
+            {
+                File.Delete(temp);
+            }
+        }
+        else
+        {
+            var temp = Path.Combine(Path.GetDirectoryName(target)!, $".{Path.GetFileName(target)}.part-{Guid.NewGuid():N}");
+            try
+            {
+                result = Run(async () =>
+                {
+                    await using var sink = new FolderBagSink(temp);
+                    return await bags.WriteAsync(scope, sink, ArchiveSession.Agent).ConfigureAwait(false);
+                });
+                if (Directory.Exists(target))
+                {
+                    Directory.Delete(target);
+                }
+
+                Directory.Move(temp, target);
+            }
+            finally
+            {
+                if (Directory.Exists(temp))
+                {
+                    Directory.Delete(temp, recursive: true);
+                }
+            }
+        }
+
+        output.WriteLine($"Bag written to {target}: {result.PayloadFiles} payload file(s), {result.PayloadBytes} bytes, for {string.Join(", ", result.ExternalIdentifiers)}.");
+        output.WriteLine(zip ? "Unzip it and check it with: sha256sum -c manifest-sha256.txt" : $"Check it with: cd {target} && sha256sum -c manifest-sha256.txt && sha256sum -c tagmanifest-sha256.txt");
+        return 0;
+    }
+
+    public static int Publish(CommandLine args, TextWriter output, CliSettings settings)
+    {
+        ArgumentNullException.ThrowIfNull(args);
+        ArgumentNullException.ThrowIfNull(output);
+        ArchiveSession.DeclareOptions(args);
+        args.RejectUnknown();
+        if (args.Positional.Count != 2)
+        {
+            throw new UsageException($"Give a collection and a folder: tapevault {PublishUsage}.");
+        }
+
+        int collection = ParseId(args.Positional[0], "COLLECTION-ID");
+        var target = Path.GetFullPath(args.Positional[1]);
+        if (File.Exists(target) || (Directory.Exists(target) && Directory.EnumerateFileSystemEntries(target).Any()))
+        {
+            throw new UsageException($"{target} already exists and is not empty; publish into a new folder.");
+        }
+
+        using var session = ArchiveSession.Open(args, settings);
+        var temp = Path.Combine(Path.GetDirectoryName(target)!, $".{Path.GetFileName(target)}.part-{Guid.NewGuid():N}");
+        try
+        {
+            var files = Run(() => session.Get<CataloguePublisher>().PublishAsync(collection, temp, ArchiveSession.Agent));
+            if (Directory.Exists(target))
+            {
+                Directory.Delete(target);
+            }
+
+            Directory.Move(temp, target);
+            output.WriteLine($"Catalogue written to {target}: {files.Count} files. Open {Path.Combine(target, "index.html")} in a browser; check it with: cd {target} && sha256sum -c SHA256SUMS");
+        }
+        finally
+        {
+            if (Directory.Exists(temp))
+            {
+                Directory.Delete(temp, recursive: true);
+            }
+        }
+
+        return 0;
+    }
+
+    private static int ParseId(string text, string what) =>
+        int.TryParse(text, NumberStyles.None, CultureInfo.InvariantCulture, out int id) && id > 0
+            ? id
+            : throw new UsageException($"{what} must be a positive number, not '{text}'.");
+
+    /// <summary>Runs archive work; its refusals become usage errors (one line, exit 2).</summary>
+    private static T Run<T>(Func<Task<T>> work)
+    {
+        try
+        {
+            return work().GetAwaiter().GetResult();
+        }
+        catch (Exception e) when (e is ArchiveInputException or ArchiveNotFoundException or ArchiveConflictException)
+        {
+            throw new UsageException(e.Message);
+        }
+    }
+}

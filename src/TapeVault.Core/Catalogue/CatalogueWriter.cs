@@ -1,0 +1,399 @@
+using System.Globalization;
+using System.Net;
+using System.Security.Cryptography;
+using System.Text;
+using System.Text.Json;
+using TapeVault.Core.Image;
+
+namespace TapeVault.Core.Catalogue;
+
+/// <summary>
+/// Writes a collection's public catalogue as a static site that works opened from disk: index.html, one page per item,
+/// catalogue.css, catalogue.json, catalogue.csv and SHA256SUMS over every other file (for GNU sha256sum -c). No
+/// scripts, no fonts, nothing fetched: plots are inline SVG with a table behind each.
+/// </summary>
+public static class CatalogueWriter
+{
+    public const string ConfidenceExplanation =
+        "Confidence is TapeVault's estimate of the chance that a block's bytes are exactly as they were written on the tape: at 0.99, about one block in a hundred is expected to be wrong.";
+
+    private static readonly CultureInfo Invariant = CultureInfo.InvariantCulture;
+    private static readonly UTF8Encoding Utf8 = new(encoderShouldEmitUTF8Identifier: false);
+    private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web) { WriteIndented = true };
+
+    /// <summary>Writes the site into <paramref name="folder"/> (created; must be empty) and returns the relative paths written.</summary>
+    public static IReadOnlyList<string> Write(CatalogueSite site, string folder)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        ArgumentException.ThrowIfNullOrEmpty(folder);
+        var root = Path.GetFullPath(folder);
+        if (Directory.Exists(root) && Directory.EnumerateFileSystemEntries(root).Any())
+        {
+            throw new IOException($"The folder {root} is not empty; publish into a new folder.");
+        }
+
+        Directory.CreateDirectory(Path.Combine(root, "items"));
+        var files = new List<string>();
+        void Put(string relative, string text)
+        {
+            File.WriteAllText(Path.Combine(root, relative.Replace('/', Path.DirectorySeparatorChar)), text, Utf8);
+            files.Add(relative);
+        }
+
+        var pages = PageNames(site.Items);
+        Put("catalogue.css", Css);
+        Put("index.html", Index(site, pages));
+        for (int i = 0; i < site.Items.Count; i++)
+        {
+            Put($"items/{pages[i]}", ItemPage(site, site.Items[i]));
+        }
+
+        Put("catalogue.json", JsonSerializer.Serialize(JsonModel(site, pages), Json));
+        Put("catalogue.csv", Csv(site));
+
+        var sums = new StringBuilder();
+        foreach (var relative in files.Order(StringComparer.Ordinal))
+        {
+            var hash = Convert.ToHexStringLower(SHA256.HashData(File.ReadAllBytes(Path.Combine(root, relative))));
+            sums.Append(Invariant, $"{hash}  {relative}\n");
+        }
+
+        File.WriteAllText(Path.Combine(root, "SHA256SUMS"), sums.ToString(), Utf8);
+        files.Add("SHA256SUMS");
+        return files;
+    }
+
+    /// <summary>Counts of an image's positions by status, and the mean confidence of those recovered.</summary>
+    public static (int Clean, int Voted, int Repaired, int Missing, int Conflicts, double Overall) Summary(TapeImage image)
+    {
+        ArgumentNullException.ThrowIfNull(image);
+        return (image.Count(RecoveryStatus.Clean), image.Count(RecoveryStatus.Voted), image.Count(RecoveryStatus.Repaired),
+            image.Count(RecoveryStatus.Missing), image.Blocks.Count(b => b.Conflict), image.OverallConfidence);
+    }
+
+    public static string FileSafe(string name)
+    {
+        ArgumentNullException.ThrowIfNull(name);
+        var cleaned = new string([.. name.Select(c => char.IsAsciiLetterOrDigit(c) || c is '-' or '_' ? c : '_')]);
+        return cleaned.Length == 0 ? "_" : cleaned.Length > 100 ? cleaned[..100] : cleaned;
+    }
+
+    private static List<string> PageNames(IReadOnlyList<CatalogueItem> items)
+    {
+        var used = new HashSet<string>(StringComparer.OrdinalIgnoreCase);
+        var names = new List<string>();
+        foreach (var item in items)
+        {
+            var stem = FileSafe(item.AccessionNumber);
+            var name = $"{stem}.html";
+            for (int n = 2; !used.Add(name); n++)
+            {
+                name = $"{stem}-{n}.html";
+            }
+
+            names.Add(name);
+        }
+
+        return names;
+    }
+
+    private static string E(string? text) => WebUtility.HtmlEncode(text ?? string.Empty);
+
+    private static string F(double value, string format = "0.000") => value.ToString(format, Invariant);
+
+    private static string Head(string title, string cssPath, IEnumerable<(string Name, string Content)> meta)
+    {
+        var b = new StringBuilder();
+        b.Append("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n");
+        b.Append(Invariant, $"<title>{E(title)}</title>\n");
+        b.Append("<link rel=\"schema.DCTERMS\" href=\"http://purl.org/dc/terms/\">\n");
+        foreach (var (name, content) in meta)
+        {
+            b.Append(Invariant, $"<meta name=\"{E(name)}\" content=\"{E(content)}\">\n");
+        }
+
+        b.Append(Invariant, $"<link rel=\"stylesheet\" href=\"{cssPath}\">\n</head>\n<body>\n");
+        return b.ToString();
+    }
+
+    private static string Index(CatalogueSite site, List<string> pages)
+    {
+        var b = new StringBuilder(Head(site.CollectionName, "catalogue.css",
+        [
+            ("DCTERMS.title", site.CollectionName),
+            ("DCTERMS.publisher", site.SourceOrganization),
+            ("DCTERMS.issued", site.PublishedUtc.ToString("yyyy-MM-dd", Invariant)),
+            ("DCTERMS.type", "Collection"),
+        ]));
+        b.Append(Invariant, $"<header><p class=\"org\">{E(site.SourceOrganization)}</p><h1>{E(site.CollectionName)}</h1></header>\n<main>\n");
+        b.Append(Invariant, $"<div class=\"description\">{SafeMarkdown.ToHtml(site.CollectionDescriptionMarkdown)}</div>\n");
+        b.Append(Invariant, $"<p class=\"explain\">{E(ConfidenceExplanation)}</p>\n");
+        b.Append("<table>\n<caption>Tapes in this collection</caption>\n<thead><tr><th scope=\"col\">Accession number</th><th scope=\"col\">Title</th><th scope=\"col\">Blocks clean / voted / repaired / missing</th><th scope=\"col\">Overall confidence</th></tr></thead>\n<tbody>\n");
+        for (int i = 0; i < site.Items.Count; i++)
+        {
+            var item = site.Items[i];
+            string blocks = "no image yet";
+            string overall = "—";
+            if (item.Image is { } image)
+            {
+                var s = Summary(image.Image);
+                blocks = $"{s.Clean} / {s.Voted} / {s.Repaired} / {s.Missing}";
+                overall = F(s.Overall);
+            }
+
+            b.Append(Invariant, $"<tr><td><a href=\"items/{pages[i]}\">{E(item.AccessionNumber)}</a></td><td>{E(item.Title)}</td><td class=\"num\">{blocks}</td><td class=\"num\">{overall}</td></tr>\n");
+        }
+
+        b.Append("</tbody>\n</table>\n");
+        b.Append(Invariant, $"<p class=\"small\">Published {site.PublishedUtc:yyyy-MM-dd HH:mm} UTC with TapeVault. Also as <a href=\"catalogue.json\">catalogue.json</a> and <a href=\"catalogue.csv\">catalogue.csv</a>; every file's SHA-256 is in <a href=\"SHA256SUMS\">SHA256SUMS</a>.</p>\n");
+        b.Append("</main>\n</body>\n</html>\n");
+        return b.ToString();
+    }
+
+    private static string ItemPage(CatalogueSite site, CatalogueItem item)
+    {
+        var meta = new List<(string, string)>
+        {
+            ("DCTERMS.title", item.Title),
+            ("DCTERMS.identifier", item.AccessionNumber),
+            ("DCTERMS.isPartOf", site.CollectionName),
+            ("DCTERMS.publisher", site.SourceOrganization),
+            ("DCTERMS.type", "Dataset"),
+            ("DCTERMS.description", string.IsNullOrWhiteSpace(item.LabelText) ? item.Title : $"Label: {item.LabelText}"),
+            ("DCTERMS.provenance", $"Recovered by TapeVault from {item.Captures.Count} audio capture(s) of the tape."),
+        };
+        if (item.Captures.Select(c => c.CapturedOn).Where(d => d is not null).Min() is { } first)
+        {
+            meta.Add(("DCTERMS.created", first.ToString("yyyy-MM-dd", Invariant)));
+        }
+
+        if (item.Image is { } im)
+        {
+            meta.Add(("DCTERMS.format", "application/vnd.tapevault.image"));
+            meta.Add(("DCTERMS.extent", $"{im.Size} bytes"));
+        }
+
+        var b = new StringBuilder(Head($"{item.AccessionNumber} {item.Title}", "../catalogue.css", meta));
+        b.Append(Invariant, $"<header><p class=\"org\"><a href=\"../index.html\">{E(site.CollectionName)}</a></p><h1><span class=\"accession\">{E(item.AccessionNumber)}</span> {E(item.Title)}</h1></header>\n<main>\n");
+        b.Append("<dl class=\"facts\">");
+        b.Append(Invariant, $"<dt>Accession number</dt><dd>{E(item.AccessionNumber)}</dd><dt>Side</dt><dd>{E(item.Side)}</dd>");
+        if (!string.IsNullOrWhiteSpace(item.LabelText))
+        {
+            b.Append(Invariant, $"<dt>Label</dt><dd>{E(item.LabelText)}</dd>");
+        }
+
+        b.Append("</dl>\n");
+        b.Append(Invariant, $"<section><h2>Description</h2><div class=\"description\">{SafeMarkdown.ToHtml(item.DescriptionMarkdown)}</div></section>\n");
+        if (item.Image is { } image)
+        {
+            AppendImage(b, image);
+        }
+        else
+        {
+            b.Append("<section><h2>Recovery</h2><p>No tape image has been made of this tape yet.</p></section>\n");
+        }
+
+        if (item.Histogram is { } histogram)
+        {
+            AppendHistogram(b, histogram);
+        }
+
+        b.Append("<section><h2>Provenance</h2><p>The audio captures the image was recovered from. Each original is kept unchanged; its SHA-256 identifies it.</p>\n<table><caption>Captures</caption><thead><tr><th scope=\"col\">File</th><th scope=\"col\">SHA-256</th><th scope=\"col\">Audio</th><th scope=\"col\">Deck</th><th scope=\"col\">Operator</th><th scope=\"col\">Captured on</th></tr></thead><tbody>\n");
+        foreach (var c in item.Captures)
+        {
+            b.Append(Invariant, $"<tr><td>{E(c.FileName)}</td><td><code>{c.Sha256}</code></td><td>{c.SampleRate} Hz, {c.BitsPerSample}-bit, {c.Channels} ch, {F(c.DurationSeconds, "0.0")} s, {c.Size} bytes</td><td>{E(c.Deck)}</td><td>{E(c.Operator)}</td><td>{(c.CapturedOn is { } d ? d.ToString("yyyy-MM-dd", Invariant) : "—")}</td></tr>\n");
+        }
+
+        b.Append("</tbody></table></section>\n</main>\n</body>\n</html>\n");
+        return b.ToString();
+    }
+
+    private static void AppendImage(StringBuilder b, CatalogueImage image)
+    {
+        var s = Summary(image.Image);
+        b.Append("<section><h2>Recovery</h2>\n");
+        b.Append(Invariant, $"<p class=\"summary\"><span data-count=\"clean\">{s.Clean}</span> clean, <span data-count=\"voted\">{s.Voted}</span> voted, <span data-count=\"repaired\">{s.Repaired}</span> repaired, <span data-count=\"missing\">{s.Missing}</span> missing of {image.Image.Blocks.Length} block(s); overall confidence <span data-count=\"overall\">{F(s.Overall)}</span>.</p>\n");
+        b.Append(Invariant, $"<p class=\"explain\">{E(ConfidenceExplanation)} Clean blocks passed their checksum; voted blocks were put together from several captures; repaired blocks had their least certain bits corrected until the checksum held; missing blocks could not be read from any capture and are left empty, never filled in.</p>\n");
+        b.Append(Invariant, $"<p>Tape image version {image.Version}: {image.Size} bytes, SHA-256 <code>{image.Sha256}</code>.</p>\n");
+        AppendBlockMap(b, image.Image);
+        if (image.Image.Files.Length > 0)
+        {
+            b.Append("<h3>Files on the tape</h3>\n<table><caption>Files named by the block headers</caption><thead><tr><th scope=\"col\">Name</th><th scope=\"col\">Bytes</th><th scope=\"col\">Blocks</th><th scope=\"col\">Complete</th></tr></thead><tbody>\n");
+            foreach (var f in image.Image.Files)
+            {
+                b.Append(Invariant, $"<tr><td><code>{E(f.Name)}</code></td><td class=\"num\">{f.Length}</td><td class=\"num\">{f.BlockCount}</td><td>{(f.Complete ? "yes" : "no")}</td></tr>\n");
+            }
+
+            b.Append("</tbody></table>\n");
+        }
+
+        b.Append("<h3>Checksums</h3>\n<table><caption>SHA-256 of each block's bytes in the image</caption><thead><tr><th scope=\"col\">Position</th><th scope=\"col\">Block</th><th scope=\"col\">Status</th><th scope=\"col\">Confidence</th><th scope=\"col\">SHA-256 of the payload</th></tr></thead><tbody>\n");
+        foreach (var block in image.Image.Blocks)
+        {
+            var hash = block.Status == RecoveryStatus.Missing ? "—" : $"<code>{Convert.ToHexStringLower(SHA256.HashData(block.Payload.AsSpan()))}</code>";
+            b.Append(Invariant, $"<tr><td class=\"num\">{block.Position}</td><td><code>{E(block.Key)}</code></td><td>{Word(block.Status)}</td><td class=\"num\">{F(block.Confidence)}</td><td>{hash}</td></tr>\n");
+        }
+
+        b.Append("</tbody></table>\n</section>\n");
+    }
+
+    private static string Word(RecoveryStatus status) => status.ToString().ToLowerInvariant();
+
+    private static void AppendBlockMap(StringBuilder b, TapeImage image)
+    {
+        const int cell = 18;
+        const int perRow = 32;
+        int count = image.Blocks.Length;
+        int rows = Math.Max(1, (count + perRow - 1) / perRow);
+        int width = (Math.Min(Math.Max(count, 1), perRow) * cell) + 4;
+        int height = (rows * cell) + 4;
+        b.Append("<h3>Block map</h3>\n<p class=\"small\">One square per block in tape order. ■ clean, ◆ voted, ▲ repaired, □ with a cross: missing; the darker, the more confident.</p>\n");
+        b.Append(Invariant, $"<svg class=\"blockmap\" role=\"img\" aria-labelledby=\"map-title\" width=\"{width}\" height=\"{height}\" viewBox=\"0 0 {width} {height}\" xmlns=\"http://www.w3.org/2000/svg\">\n<title id=\"map-title\">Block map: {count} block(s) by status and confidence</title>\n");
+        foreach (var block in image.Blocks)
+        {
+            int x = 2 + ((block.Position % perRow) * cell);
+            int y = 2 + ((block.Position / perRow) * cell);
+            double opacity = 0.25 + (0.75 * Math.Clamp(block.Confidence, 0, 1));
+            b.Append(Invariant, $"<g><title>position {block.Position} ({E(block.Key)}): {Word(block.Status)}, confidence {F(block.Confidence)}</title>");
+            b.Append(block.Status switch
+            {
+                RecoveryStatus.Clean => string.Create(Invariant, $"<rect x=\"{x + 2}\" y=\"{y + 2}\" width=\"{cell - 4}\" height=\"{cell - 4}\" fill=\"#3d6b4f\" fill-opacity=\"{F(opacity, "0.00")}\"/>"),
+                RecoveryStatus.Voted => string.Create(Invariant, $"<polygon points=\"{x + (cell / 2)},{y + 1} {x + cell - 1},{y + (cell / 2)} {x + (cell / 2)},{y + cell - 1} {x + 1},{y + (cell / 2)}\" fill=\"#9a6418\" fill-opacity=\"{F(opacity, "0.00")}\"/>"),
+                RecoveryStatus.Repaired => string.Create(Invariant, $"<polygon points=\"{x + (cell / 2)},{y + 2} {x + cell - 2},{y + cell - 2} {x + 2},{y + cell - 2}\" fill=\"#9a6418\" fill-opacity=\"{F(opacity, "0.00")}\"/>"),
+                _ => string.Create(Invariant, $"<rect x=\"{x + 2}\" y=\"{y + 2}\" width=\"{cell - 4}\" height=\"{cell - 4}\" fill=\"none\" stroke=\"#9a3b2e\" stroke-width=\"1.5\"/><path d=\"M{x + 4},{y + 4} L{x + cell - 4},{y + cell - 4} M{x + cell - 4},{y + 4} L{x + 4},{y + cell - 4}\" stroke=\"#9a3b2e\" stroke-width=\"1.5\"/>"),
+            });
+            b.Append("</g>\n");
+        }
+
+        b.Append("</svg>\n");
+    }
+
+    private static void AppendHistogram(StringBuilder b, PulseHistogram h)
+    {
+        const int width = 640;
+        const int height = 220;
+        const int left = 50;
+        const int bottom = 30;
+        const int top = 10;
+        long max = Math.Max(1, h.Counts.DefaultIfEmpty(0).Max());
+        int n = Math.Max(1, h.Counts.Count);
+        double barWidth = (width - left - 10) / (double)n;
+        double Xof(double us) => left + ((us - h.FirstBinMicroseconds) / h.BinMicroseconds * barWidth);
+        b.Append("<section><h2>Pulse lengths</h2>\n");
+        b.Append(Invariant, $"<p class=\"small\">How long the pulses read from the tape were ({E(h.Source)}). Dashed lines: the format's pulse classes; dotted lines: where one class ends and the next begins.</p>\n");
+        b.Append(Invariant, $"<svg class=\"histogram\" role=\"img\" aria-labelledby=\"hist-title\" width=\"{width}\" height=\"{height}\" viewBox=\"0 0 {width} {height}\" xmlns=\"http://www.w3.org/2000/svg\">\n<title id=\"hist-title\">Histogram of pulse lengths in microseconds</title>\n");
+        for (int i = 0; i < h.Counts.Count; i++)
+        {
+            double barHeight = (height - bottom - top) * (double)h.Counts[i] / max;
+            b.Append(Invariant, $"<rect x=\"{F(left + (i * barWidth), "0.0")}\" y=\"{F(height - bottom - barHeight, "0.0")}\" width=\"{F(Math.Max(barWidth - 0.5, 0.5), "0.0")}\" height=\"{F(barHeight, "0.0")}\" fill=\"#4a5d6b\"/>\n");
+        }
+
+        foreach (var (name, us) in h.Classes)
+        {
+            b.Append(Invariant, $"<line x1=\"{F(Xof(us), "0.0")}\" y1=\"{top}\" x2=\"{F(Xof(us), "0.0")}\" y2=\"{height - bottom}\" stroke=\"#3d6b4f\" stroke-dasharray=\"5 3\"/><text x=\"{F(Xof(us) + 3, "0.0")}\" y=\"{top + 12}\" font-size=\"11\">{E(name)}</text>\n");
+        }
+
+        foreach (var us in h.BoundariesMicroseconds)
+        {
+            b.Append(Invariant, $"<line x1=\"{F(Xof(us), "0.0")}\" y1=\"{top}\" x2=\"{F(Xof(us), "0.0")}\" y2=\"{height - bottom}\" stroke=\"#9a3b2e\" stroke-dasharray=\"1 3\"/>\n");
+        }
+
+        b.Append(Invariant, $"<line x1=\"{left}\" y1=\"{height - bottom}\" x2=\"{width - 10}\" y2=\"{height - bottom}\" stroke=\"#23303a\"/>");
+        b.Append(Invariant, $"<text x=\"{left}\" y=\"{height - 8}\" font-size=\"11\">{F(h.FirstBinMicroseconds, "0")} µs</text><text x=\"{width - 80}\" y=\"{height - 8}\" font-size=\"11\">{F(h.FirstBinMicroseconds + (n * h.BinMicroseconds), "0")} µs</text>");
+        b.Append(Invariant, $"<text x=\"4\" y=\"{top + 10}\" font-size=\"11\">{max}</text>\n</svg>\n");
+        b.Append("<details><summary>The histogram as a table</summary><table><caption>Pulses per length bin</caption><thead><tr><th scope=\"col\">From (µs)</th><th scope=\"col\">To (µs)</th><th scope=\"col\">Pulses</th></tr></thead><tbody>\n");
+        for (int i = 0; i < h.Counts.Count; i++)
+        {
+            if (h.Counts[i] > 0)
+            {
+                double from = h.FirstBinMicroseconds + (i * h.BinMicroseconds);
+                b.Append(Invariant, $"<tr><td class=\"num\">{F(from, "0")}</td><td class=\"num\">{F(from + h.BinMicroseconds, "0")}</td><td class=\"num\">{h.Counts[i]}</td></tr>\n");
+            }
+        }
+
+        b.Append("</tbody></table></details>\n</section>\n");
+    }
+
+    private static object JsonModel(CatalogueSite site, List<string> pages) => new
+    {
+        collection = site.CollectionName,
+        sourceOrganization = site.SourceOrganization,
+        publishedUtc = site.PublishedUtc,
+        confidenceExplanation = ConfidenceExplanation,
+        items = site.Items.Select((item, i) =>
+        {
+            var s = item.Image is { } im ? Summary(im.Image) : default;
+            return new
+            {
+                accessionNumber = item.AccessionNumber,
+                title = item.Title,
+                side = item.Side,
+                label = item.LabelText,
+                page = $"items/{pages[i]}",
+                image = item.Image is { } image
+                    ? new
+                    {
+                        version = image.Version,
+                        sha256 = image.Sha256,
+                        size = image.Size,
+                        blocks = image.Image.Blocks.Length,
+                        clean = s.Clean,
+                        voted = s.Voted,
+                        repaired = s.Repaired,
+                        missing = s.Missing,
+                        conflicts = s.Conflicts,
+                        overallConfidence = s.Overall,
+                        files = image.Image.Files.Select(f => new { name = f.Name, length = f.Length, complete = f.Complete }),
+                    }
+                    : null,
+                captures = item.Captures.Select(c => new { fileName = c.FileName, sha256 = c.Sha256, deck = c.Deck, @operator = c.Operator, capturedOn = c.CapturedOn }),
+            };
+        }),
+    };
+
+    private static string Csv(CatalogueSite site)
+    {
+        // RFC 4180: CRLF line ends; fields with commas, quotes or line breaks are quoted, quotes doubled.
+        static string Q(string? v)
+        {
+            v ??= string.Empty;
+            return v.IndexOfAny([',', '"', '\r', '\n']) >= 0 ? $"\"{v.Replace("\"", "\"\"", StringComparison.Ordinal)}\"" : v;
+        }
+
+        var b = new StringBuilder("accession_number,title,side,blocks,clean,voted,repaired,missing,conflicts,overall_confidence,image_sha256,files\r\n");
+        foreach (var item in site.Items)
+        {
+            if (item.Image is { } im)
+            {
+                var s = Summary(im.Image);
+                b.Append(Invariant, $"{Q(item.AccessionNumber)},{Q(item.Title)},{Q(item.Side)},{im.Image.Blocks.Length},{s.Clean},{s.Voted},{s.Repaired},{s.Missing},{s.Conflicts},{F(s.Overall, "0.000000")},{im.Sha256},{Q(string.Join(";", im.Image.Files.Select(f => f.Name)))}\r\n");
+            }
+            else
+            {
+                b.Append(Invariant, $"{Q(item.AccessionNumber)},{Q(item.Title)},{Q(item.Side)},0,0,0,0,0,0,,,\r\n");
+            }
+        }
+
+        return b.ToString();
+    }
+
+    private const string Css = """
+        body { margin: 0 auto; max-width: 60rem; padding: 1rem 1.5rem 3rem; font: 16px/1.5 system-ui, sans-serif; background: #f6f4ee; color: #23303a; }
+        header { border-bottom: 2px solid #d9d4c7; margin-bottom: 1rem; }
+        .org { color: #5d6a73; margin: 0; }
+        h1 { margin: .2rem 0 .6rem; }
+        h2 { border-bottom: 1px solid #d9d4c7; margin-top: 2rem; }
+        .accession { font-family: ui-monospace, monospace; border: 1px solid #d9d4c7; padding: 0 .3rem; }
+        table { border-collapse: collapse; width: 100%; background: #fffdf8; margin: .5rem 0 1rem; }
+        th, td { text-align: left; padding: .35rem .5rem; border-bottom: 1px solid #d9d4c7; vertical-align: top; }
+        caption { text-align: left; font-weight: 600; padding: .3rem 0; }
+        .num { text-align: right; font-variant-numeric: tabular-nums; }
+        code { font-family: ui-monospace, monospace; font-size: .85rem; word-break: break-all; }
+        .explain, .small { color: #5d6a73; font-size: .92rem; }
+        .facts { display: grid; grid-template-columns: max-content 1fr; gap: .2rem 1rem; }
+        .facts dt { font-weight: 600; color: #5d6a73; }
+        .facts dd { margin: 0; }
+        svg { background: #fffdf8; border: 1px solid #d9d4c7; max-width: 100%; height: auto; }
+        a { color: #1f5fa8; }
+        """;
+}

@@ -1,0 +1,122 @@
+using System.Diagnostics;
+using System.Text;
+using Microsoft.EntityFrameworkCore;
+using Microsoft.Extensions.DependencyInjection;
+using TapeVault.Archive;
+using TapeVault.Archive.Curation;
+using TapeVault.Archive.Entities;
+using TapeVault.Archive.Export;
+using TapeVault.Archive.Ingest;
+using TapeVault.Archive.Jobs;
+using TapeVault.Archive.Storage;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Synthesis;
+
+namespace TapeVault.Archive.Tests;
+
+/// <summary>
+/// A real archive in a temporary folder (SQLite file and content store): one collection, one orrin-80 item with two
+/// synthesised passes, each decoded and merged into an image, as the web app's jobs would do it. The synthesised bytes
+/// are the ground truth the tests compare with (they come from the channel model, not from the decoder under test).
+/// </summary>
+public sealed class ArchiveFixture : IAsyncDisposable
+{
+    public const string Accession = "TEST-0001";
+
+    private ArchiveFixture(string root, ServiceProvider services)
+    {
+        Root = root;
+        Services = services;
+    }
+
+    public string Root { get; }
+
+    public ServiceProvider Services { get; }
+
+    public ArchiveOptions Options => Services.GetRequiredService<ArchiveOptions>();
+
+    public ContentStore Store => Services.GetRequiredService<ContentStore>();
+
+    public int CollectionId { get; private set; }
+
+    public int ItemId { get; private set; }
+
+    public IReadOnlyList<TapeFile> Files { get; } =
+    [
+        new("GREET", Encoding.ASCII.GetBytes(string.Concat(Enumerable.Repeat("HELLO FROM THE TEST TAPE. ", 12)))),
+        new("DATA", Enumerable.Range(0, 300).Select(i => unchecked((byte)(i * 7))).ToArray()),
+    ];
+
+    public static async Task<ArchiveFixture> CreateAsync(string conditionNotes = "Slight oxide shedding.")
+    {
+        var root = Directory.CreateTempSubdirectory("tapevault-archive-test-").FullName;
+        var options = new ArchiveOptions { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" };
+        var collection = new ServiceCollection();
+        collection.AddLogging();
+        collection.AddTapeVaultArchive(options, ProfileCatalog.BuiltIn, new ExportOptions { SourceOrganization = "Test Archive" });
+        var fixture = new ArchiveFixture(root, collection.BuildServiceProvider());
+        await fixture.FillAsync(conditionNotes);
+        return fixture;
+    }
+
+    public ArchiveDbContext NewContext() => Services.GetRequiredService<IDbContextFactory<ArchiveDbContext>>().CreateDbContext();
+
+    public async ValueTask DisposeAsync()
+    {
+        await Services.DisposeAsync();
+        Microsoft.Data.Sqlite.SqliteConnection.ClearAllPools();
+        foreach (var file in Directory.EnumerateFiles(Root, "*", SearchOption.AllDirectories))
+        {
+            File.SetAttributes(file, FileAttributes.Normal);
+        }
+
+        Directory.Delete(Root, recursive: true);
+    }
+
+    /// <summary>Runs GNU sha256sum -c on a checksum file in <paramref name="folder"/>; returns its exit code and output.</summary>
+    public static (int ExitCode, string Output) Sha256SumCheck(string folder, string sumsFile)
+    {
+        var start = new ProcessStartInfo("/usr/bin/sha256sum") { WorkingDirectory = folder, RedirectStandardOutput = true, RedirectStandardError = true };
+        start.ArgumentList.Add("-c");
+        start.ArgumentList.Add(sumsFile);
+        using var process = Process.Start(start)!;
+        string output = process.StandardOutput.ReadToEnd() + process.StandardError.ReadToEnd();
+        process.WaitForExit();
+        return (process.ExitCode, output);
+    }
+
+    private async Task FillAsync(string conditionNotes)
+    {
+        await using (var db = NewContext())
+        {
+            await ArchiveDatabase.MigrateAsync(db);
+        }
+
+        var profile = ProfileCatalog.BuiltIn.Get("orrin-80");
+        using var scope = Services.CreateScope();
+        var actions = scope.ServiceProvider.GetRequiredService<CuratorActions>();
+        CollectionId = (await actions.CreateCollectionAsync("Test shelf", "A shelf made for the tests.", "tester")).Id;
+        ItemId = (await actions.CreateItemAsync(CollectionId, Accession, "Test tape", "TEST LABEL", conditionNotes, "A", "tester")).Id;
+        var ingest = scope.ServiceProvider.GetRequiredService<CaptureIngest>();
+        var handlers = Services.GetServices<IJobHandler>().ToDictionary(h => h.Kind);
+        var passes = new[] { new ChannelDamage { SnrDb = 26, Seed = 101 }, new ChannelDamage { SnrDb = 22, Speed = 1.02, Seed = 102 } };
+        for (int p = 0; p < passes.Length; p++)
+        {
+            var path = Path.Combine(Root, $"pass{p + 1}.wav");
+            CaptureSynthesizer.Write(path, profile, Files, passes[p]);
+            IngestResult ingested;
+            await using (var source = File.OpenRead(path))
+            {
+                ingested = await ingest.IngestAsync(source, new IngestRequest { ItemId = ItemId, FileName = $"pass{p + 1}.wav", ContentType = "audio/wav", Agent = "tester", Deck = "bench deck" });
+            }
+
+            File.Delete(path);
+            var decode = new JobRecord { Kind = JobKinds.Decode, Parameters = new DecodeJobParameters(ingested.Capture.Id, profile.Id, null).ToJson(), CreatedBy = "tester" };
+            await handlers[JobKinds.Decode].RunAsync(decode, (_, _) => Task.FromResult(false), CancellationToken.None);
+        }
+
+        var merge = new JobRecord { Kind = JobKinds.Merge, Parameters = new MergeJobParameters(ItemId).ToJson(), CreatedBy = "tester" };
+        await handlers[JobKinds.Merge].RunAsync(merge, (_, _) => Task.FromResult(false), CancellationToken.None);
+    }
+}

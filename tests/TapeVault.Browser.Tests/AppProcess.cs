@@ -1,0 +1,168 @@
+using System.Diagnostics;
+using System.Net;
+using System.Net.Sockets;
+using System.Text;
+using System.Text.RegularExpressions;
+
+namespace TapeVault.Browser.Tests;
+
+/// <summary>
+/// The web app as a real process on 127.0.0.1 on a free port, with a fresh database and store in a temporary folder,
+/// started from its build output the way a user runs it. The first curator's one-time password is read from what the
+/// app prints, as a user would read it.
+/// </summary>
+public sealed partial class AppProcess : IAsyncDisposable
+{
+    private readonly Process process;
+    private readonly StringBuilder output = new();
+
+    private AppProcess(Process process, string root, Uri address)
+    {
+        this.process = process;
+        Root = root;
+        Address = address;
+    }
+
+    public Uri Address { get; }
+
+    public string Root { get; }
+
+    public string CuratorPassword { get; private set; } = string.Empty;
+
+    public string Output
+    {
+        get
+        {
+            lock (output)
+            {
+                return output.ToString();
+            }
+        }
+    }
+
+    public static string RepositoryRoot()
+    {
+        for (var folder = new DirectoryInfo(AppContext.BaseDirectory); folder is not null; folder = folder.Parent)
+        {
+            if (File.Exists(Path.Combine(folder.FullName, "TapeVault.sln")))
+            {
+                return folder.FullName;
+            }
+        }
+
+        throw new InvalidOperationException("The tests must run from inside the repository.");
+    }
+
+    public static async Task<AppProcess> StartAsync()
+    {
+        var repo = RepositoryRoot();
+        var configuration = AppContext.BaseDirectory.Contains($"{Path.DirectorySeparatorChar}Debug{Path.DirectorySeparatorChar}", StringComparison.Ordinal) ? "Debug" : "Release";
+        var app = Path.Combine(repo, "src", "TapeVault.Web", "bin", configuration, "net10.0", "TapeVault.Web.dll");
+        if (!File.Exists(app))
+        {
+            throw new InvalidOperationException($"The web app is not built at {app}; run the tests with scripts/test.");
+        }
+
+        var root = Directory.CreateTempSubdirectory("tapevault-browser-").FullName;
+        int port = FreePort();
+        var address = new Uri($"http://127.0.0.1:{port}");
+        var start = new ProcessStartInfo("dotnet")
+        {
+            WorkingDirectory = root,
+            RedirectStandardOutput = true,
+            RedirectStandardError = true,
+            UseShellExecute = false,
+        };
+        start.ArgumentList.Add(app);
+        start.Environment["urls"] = address.ToString().TrimEnd('/');
+        start.Environment["TapeVault__Archive__DatabasePath"] = Path.Combine(root, "archive.db");
+        start.Environment["TapeVault__Archive__StorePath"] = Path.Combine(root, "store");
+        start.Environment["TapeVault__Web__SeedDemo"] = "false";
+        start.Environment["TapeVault__Web__InitialCurator"] = "curator";
+        start.Environment["TapeVault__Fixity__IntervalHours"] = "0";
+        start.Environment["DOTNET_ENVIRONMENT"] = "Production";
+
+        var process = Process.Start(start) ?? throw new InvalidOperationException("Could not start the web app.");
+        var running = new AppProcess(process, root, address);
+        process.OutputDataReceived += (_, e) => running.Append(e.Data);
+        process.ErrorDataReceived += (_, e) => running.Append(e.Data);
+        process.BeginOutputReadLine();
+        process.BeginErrorReadLine();
+
+        using var http = new HttpClient();
+        var deadline = DateTime.UtcNow.AddSeconds(60);
+        while (true)
+        {
+            if (process.HasExited)
+            {
+                throw new InvalidOperationException($"The web app stopped at start:\n{running.Output}");
+            }
+
+            try
+            {
+                using var response = await http.GetAsync(new Uri(address, "/signin"));
+                if (response.StatusCode == HttpStatusCode.OK)
+                {
+                    break;
+                }
+            }
+            catch (HttpRequestException)
+            {
+                // Not listening yet.
+            }
+
+            if (DateTime.UtcNow > deadline)
+            {
+                throw new TimeoutException($"The web app did not answer within 60 s:\n{running.Output}");
+            }
+
+            await Task.Delay(200);
+        }
+
+        var match = PasswordLine().Match(running.Output);
+        running.CuratorPassword = match.Success ? match.Groups[1].Value : throw new InvalidOperationException($"The app printed no curator password:\n{running.Output}");
+        return running;
+    }
+
+    public async ValueTask DisposeAsync()
+    {
+        if (!process.HasExited)
+        {
+            process.Kill(entireProcessTree: true);
+            await process.WaitForExitAsync();
+        }
+
+        process.Dispose();
+        try
+        {
+            Directory.Delete(Root, recursive: true);
+        }
+        catch (IOException)
+        {
+            // A leftover temporary folder is harmless.
+        }
+    }
+
+    private static int FreePort()
+    {
+        using var listener = new TcpListener(IPAddress.Loopback, 0);
+        listener.Start();
+        return ((IPEndPoint)listener.LocalEndpoint).Port;
+    }
+
+    private void Append(string? line)
+    {
+        if (line is null)
+        {
+            return;
+        }
+
+        lock (output)
+        {
+            output.AppendLine(line);
+        }
+    }
+
+    [GeneratedRegex(@"password:\s+(\S+)")]
+    private static partial Regex PasswordLine();
+}

@@ -1,0 +1,199 @@
+using System.IO.Compression;
+using System.Security.Cryptography;
+using System.Text;
+using Microsoft.Playwright;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Synthesis;
+using Xunit;
+
+namespace TapeVault.Browser.Tests;
+
+/// <summary>The whole job as a new curator does it, in a real browser against the app running as a real process.</summary>
+public sealed class CuratorJourneyTests
+{
+    private const string Collection = "Browser test shelf";
+    private const string Accession = "WEB-0001";
+
+    private static readonly IReadOnlyList<TapeFile> Files =
+    [
+        new("HELLO", Encoding.ASCII.GetBytes(string.Concat(Enumerable.Repeat("A TAPE READ IN A BROWSER TEST. ", 10)))),
+    ];
+
+    [Fact]
+    public async Task CuratorGoesFromSignInToAPublishedCatalogue()
+    {
+        await using var app = await AppProcess.StartAsync();
+        await using var browser = await Browser.StartAsync();
+        var page = await browser.NewPageAsync();
+        var captures = WriteCaptures(app.Root);
+
+        await SignInAsync(page, app, "curator", app.CuratorPassword);
+        await Browser.ShotAsync(page, "01-collections");
+
+        await page.FillAsync("#name", Collection);
+        await page.FillAsync("#description", "Made by the browser test.");
+        await page.ClickAsync("button:has-text('Create collection')");
+        await page.WaitForURLAsync("**/collections/*");
+        await page.FillAsync("#accession", Accession);
+        await page.FillAsync("#title", "Browser test tape");
+        await page.FillAsync("#condition", "Clean shell, no mould seen.");
+        await page.ClickAsync("button:has-text('Add tape')");
+        await page.WaitForURLAsync("**/items/*");
+        var itemUrl = page.Url;
+
+        foreach (var capture in captures)
+        {
+            await page.SetInputFilesAsync("#file", capture);
+            await page.FillAsync("#deck", "bench deck");
+            await page.ClickAsync("#upload button[type=submit]");
+            await page.WaitForFunctionAsync("() => document.getElementById('upload-text')?.textContent.includes('Stored as capture')");
+            Assert.Equal("100", await page.GetAttributeAsync("#upload-bar", "value") ?? await page.EvalOnSelectorAsync<string>("#upload-bar", "e => String(e.value)"));
+            await Browser.ShotAsync(page, $"02-uploaded-{Path.GetFileNameWithoutExtension(capture)}");
+            await page.GotoAsync(itemUrl);
+        }
+
+        Assert.Equal(2, await page.Locator("table.grid >> tbody >> tr:has(a[download])").CountAsync());
+
+        // Decode each capture with the whole default bank (every setting ticked).
+        foreach (var option in await page.Locator("#captureId option").AllAsync())
+        {
+            await page.SelectOptionAsync("#captureId", (await option.GetAttributeAsync("value"))!);
+            await page.SelectOptionAsync("#profile", "orrin-80");
+            Assert.Equal(8, await page.Locator("fieldset input[type=checkbox]:checked").CountAsync());
+            await page.ClickAsync("button:has-text('Start decode')");
+            await page.WaitForURLAsync(itemUrl);
+        }
+
+        await WaitForJobsAsync(page, app, "03-jobs-decoded");
+
+        // The block map: one row per capture × setting, the clean readings marked with a tick (not colour alone).
+        await page.GotoAsync(itemUrl);
+        var rows = page.Locator("table.blockmap tbody tr");
+        Assert.Equal(16, await rows.CountAsync());
+        Assert.True(await page.Locator("table.blockmap td.cell-clean").CountAsync() > 0);
+        var firstClean = page.Locator("table.blockmap td.cell-clean").First;
+        Assert.Contains("clean", await firstClean.GetAttributeAsync("title") ?? string.Empty, StringComparison.Ordinal);
+        Assert.Contains("✓", await firstClean.InnerTextAsync(), StringComparison.Ordinal);
+        await Browser.ShotAsync(page, "04-block-map");
+
+        // Merge, then download the image and check its SHA-256 against the one the page shows.
+        await page.ClickAsync("button:has-text('Merge all passes')");
+        await WaitForJobsAsync(page, app, "05-jobs-merged");
+        await page.GotoAsync(itemUrl);
+        var shown = (await page.InnerTextAsync("[data-image-sha256]")).Trim();
+        var download = await page.RunAndWaitForDownloadAsync(() => page.ClickAsync("[data-image-download]"));
+        var imagePath = Path.Combine(app.Root, "downloaded.tvimg");
+        await download.SaveAsAsync(imagePath);
+        Assert.Equal(shown, Convert.ToHexStringLower(SHA256.HashData(await File.ReadAllBytesAsync(imagePath))));
+        Assert.Contains("0 missing", await page.InnerTextAsync("main"), StringComparison.Ordinal);
+        await Browser.ShotAsync(page, "06-image");
+
+        // Publish the catalogue, download it and open it from disk.
+        await page.ClickAsync($"a:has-text('{Collection}')");
+        await page.ClickAsync("button:has-text('Publish the catalogue')");
+        await WaitForJobsAsync(page, app, "07-jobs-published");
+        await page.GotoAsync(new Uri(app.Address, "/collections/1").ToString());
+        var zip = await page.RunAndWaitForDownloadAsync(() => page.ClickAsync("a[data-export=catalogue]"));
+        var zipPath = Path.Combine(app.Root, "catalogue.zip");
+        await zip.SaveAsAsync(zipPath);
+        var site = Path.Combine(app.Root, "site");
+        ZipFile.ExtractToDirectory(zipPath, site);
+        await page.GotoAsync(new Uri(Path.Combine(site, "catalogue", "index.html")).AbsoluteUri);
+        Assert.Equal(Collection, (await page.InnerTextAsync("h1")).Trim());
+        await Browser.ShotAsync(page, "08-catalogue-index");
+        await page.ClickAsync($"a:has-text('{Accession}')");
+        Assert.Contains("clean", await page.InnerTextAsync("[data-count=clean] >> xpath=.."), StringComparison.Ordinal);
+        Assert.Equal(shown, (await page.Locator("code").Filter(new LocatorFilterOptions { HasText = shown }).First.InnerTextAsync()).Trim());
+        await Browser.ShotAsync(page, "09-catalogue-item");
+    }
+
+    [Fact]
+    public async Task ViewerSeesNoWriteControlAndTheApiRefusesTheirWrites()
+    {
+        await using var app = await AppProcess.StartAsync();
+        await using var browser = await Browser.StartAsync();
+        var curator = await browser.NewPageAsync();
+        await SignInAsync(curator, app, "curator", app.CuratorPassword);
+        await curator.FillAsync("#name", Collection);
+        await curator.ClickAsync("button:has-text('Create collection')");
+        await curator.WaitForURLAsync("**/collections/*");
+        await curator.FillAsync("#accession", Accession);
+        await curator.FillAsync("#title", "Browser test tape");
+        await curator.ClickAsync("button:has-text('Add tape')");
+        await curator.WaitForURLAsync("**/items/*");
+        var itemUrl = curator.Url;
+
+        await curator.GotoAsync(new Uri(app.Address, "/users").ToString());
+        await curator.FillAsync("#userName", "volunteer");
+        await curator.SelectOptionAsync("#role", "viewer");
+        await curator.ClickAsync("button:has-text('Create account')");
+        var password = (await curator.InnerTextAsync(".notice code")).Trim();
+        await Browser.ShotAsync(curator, "10-account-made");
+
+        var viewer = await browser.NewPageAsync();
+        await SignInAsync(viewer, app, "volunteer", password);
+        foreach (var path in new[] { "/", "/collections/1", itemUrl, "/jobs" })
+        {
+            await viewer.GotoAsync(path.StartsWith("http", StringComparison.Ordinal) ? path : new Uri(app.Address, path).ToString());
+            // The only form a viewer sees is the one that signs them out.
+            Assert.Equal(0, await viewer.Locator("main form").CountAsync());
+            Assert.Equal(0, await viewer.Locator("main button").CountAsync());
+        }
+
+        await Browser.ShotAsync(viewer, "11-viewer-item");
+        int status = await viewer.EvaluateAsync<int>(
+            """
+            async () => {
+              const token = (await (await fetch('/api/antiforgery')).json()).token;
+              const response = await fetch('/api/collections', {
+                method: 'POST',
+                headers: { 'Content-Type': 'application/json', 'X-TapeVault-Antiforgery': token },
+                body: JSON.stringify({ name: 'not allowed' })
+              });
+              return response.status;
+            }
+            """);
+        Assert.Equal(403, status);
+    }
+
+    private static async Task SignInAsync(IPage page, AppProcess app, string user, string password)
+    {
+        await page.GotoAsync(app.Address.ToString());
+        await page.WaitForURLAsync("**/signin**");
+        await page.FillAsync("#userName", user);
+        await page.FillAsync("#password", password);
+        await page.ClickAsync("button:has-text('Sign in')");
+        await page.WaitForSelectorAsync("h1:has-text('Collections')");
+    }
+
+    /// <summary>Opens the jobs page and waits, watching the live progress, until every job is done at 100 %.</summary>
+    private static async Task WaitForJobsAsync(IPage page, AppProcess app, string shot)
+    {
+        await page.GotoAsync(new Uri(app.Address, "/jobs").ToString());
+        await page.WaitForFunctionAsync(
+            "() => { const rows = [...document.querySelectorAll('tr[data-job]')]; return rows.length > 0 && rows.every(r => r.querySelector('.job-state').textContent.trim() === 'done' && r.querySelector('progress').value === 1); }",
+            null,
+            new PageWaitForFunctionOptions { Timeout = 90_000 });
+
+        // The page reloads itself once its jobs are over; open it afresh so the screenshot sees a settled page.
+        await page.GotoAsync(new Uri(app.Address, "/jobs").ToString());
+        await Browser.ShotAsync(page, shot);
+    }
+
+    /// <summary>Two passes of one orrin-80 tape from the channel model (the written bytes are the ground truth).</summary>
+    private static List<string> WriteCaptures(string folder)
+    {
+        var profile = ProfileCatalog.BuiltIn.Get("orrin-80");
+        var paths = new List<string>();
+        var damage = new[] { new ChannelDamage { SnrDb = 26, Seed = 31 }, new ChannelDamage { SnrDb = 20, Speed = 1.02, Seed = 32 } };
+        for (int i = 0; i < damage.Length; i++)
+        {
+            var path = Path.Combine(folder, $"web-pass{i + 1}.wav");
+            CaptureSynthesizer.Write(path, profile, Files, damage[i]);
+            paths.Add(path);
+        }
+
+        return paths;
+    }
+}
