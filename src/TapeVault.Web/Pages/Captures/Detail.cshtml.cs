@@ -70,7 +70,7 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
     public Task<IActionResult> OnGetAsync(int id) => LoadOrNotFoundAsync(() => LoadAsync(id));
 
     /// <summary>A link to this page with the current choices, some replaced.</summary>
-    public string Link(int? block = null, double? from = null, double? seconds = null, string? scope = null, string anchor = "", bool keepZoom = true, int? list = null)
+    public string Link(int? block = null, double? from = null, double? seconds = null, string? scope = null, string anchor = "", bool keepZoom = true, int? list = null, string? setting = null)
     {
         var query = new List<string>();
         void add(string name, string? value)
@@ -82,7 +82,7 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
         }
 
         add("run", Blocks?.Choice.RunId.ToString(CultureInfo.InvariantCulture));
-        add("setting", Blocks?.Choice.Setting);
+        add("setting", setting ?? Blocks?.Choice.Setting);
         add("block", (block ?? Selected?.Position)?.ToString(CultureInfo.InvariantCulture));
         if (from is not null || keepZoom)
         {
@@ -94,6 +94,16 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
         add("list", list?.ToString(CultureInfo.InvariantCulture));
         return $"/captures/{CaptureId}" + (query.Count > 0 ? "?" + string.Join("&", query) : string.Empty) + anchor;
     }
+
+    /// <summary>Another run of this capture, with its own defaults (its blocks are not this run's).</summary>
+    public string RunLink(int run) => $"/captures/{CaptureId}?run={run.ToString(CultureInfo.InvariantCulture)}";
+
+    /// <summary>The same view through another setting of the run.</summary>
+    public string SettingLink(string setting) => Link(setting: setting);
+
+    /// <summary>The block list starting at the block <paramref name="fraction"/> of the way through the run.</summary>
+    public string ListAt(double fraction) =>
+        Link(list: (int)(fraction * Math.Max(0, (Blocks?.Blocks.Count ?? 0) - ListedCount)), anchor: "#blocks");
 
     /// <summary>The link that zooms to the start of <paramref name="block"/>.</summary>
     public string ZoomLink(BlockPositionView block)
