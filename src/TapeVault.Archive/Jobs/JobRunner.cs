@@ -105,10 +105,20 @@ public sealed partial class JobRunner(JobQueue queue, IEnumerable<IJobHandler> h
         {
             await queue.FinishAsync(job.Id, JobState.Failed, "Failed.", e.Message).ConfigureAwait(false);
         }
-        catch (Exception e) when (e is IOException or InvalidOperationException or ArgumentException or UnauthorizedAccessException or Core.Audio.CaptureFormatException or Core.Formats.ProfileException or Microsoft.EntityFrameworkCore.DbUpdateException)
+        catch (Exception e)
         {
+            // Whatever went wrong (a locked database, a full disk, a bug), the job ends failed with the reason and the
+            // worker lives on; a worker that died here would leave its job "running" until the next restart.
             LogFailed(logger, e, job.Id);
-            await queue.FinishAsync(job.Id, JobState.Failed, "Failed.", $"The job stopped with an error: {e.Message}").ConfigureAwait(false);
+            try
+            {
+                await queue.FinishAsync(job.Id, JobState.Failed, "Failed.", $"The job stopped with an error: {e.Message}").ConfigureAwait(false);
+            }
+            catch (Exception finishing) when (finishing is System.Data.Common.DbException or IOException)
+            {
+                // The database itself is unreachable; the job stays "running" and is recovered at the next start.
+                LogFailed(logger, finishing, job.Id);
+            }
         }
     }
 

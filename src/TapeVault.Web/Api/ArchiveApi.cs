@@ -62,7 +62,9 @@ public static class ArchiveApi
             return Results.Created($"/api/items/{item.Id}", await q.ItemAsync(item.Id, c).ConfigureAwait(false));
         });
         write.MapPost("/items/{id:int}/captures", UploadAsync)
-            .Accepts<IFormFile>("audio/wav", "application/octet-stream", "multipart/form-data")
+            // "*/*" too: without it routing answers 415 to any other type before the curator check and before the
+            // ingest's own check against AllowedContentTypes (audio/x-wav, ...), which gives the one-sentence reason.
+            .Accepts<IFormFile>("audio/wav", "application/octet-stream", "multipart/form-data", "*/*")
             .WithDescription("Upload a capture as the raw request body (audio/wav) or as the first file of a multipart form. Query: fileName (raw body), deck, operator, capturedOn (yyyy-mm-dd), notes, decodeProfile (queue a decode with the default bank).");
         write.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
         {

@@ -1,6 +1,6 @@
 using Microsoft.Playwright;
 
-namespace TapeVault.Browser.Tests;
+namespace TapeVault.EndToEnd.Tests;
 
 /// <summary>
 /// Debian's Chromium driven by Playwright: headless, with a fresh user-data folder, never a browser download. When

@@ -4,7 +4,7 @@ using System.Net.Sockets;
 using System.Text;
 using System.Text.RegularExpressions;
 
-namespace TapeVault.Browser.Tests;
+namespace TapeVault.EndToEnd.Tests;
 
 /// <summary>
 /// The web app as a real process on 127.0.0.1 on a free port, with a fresh database and store in a temporary folder,

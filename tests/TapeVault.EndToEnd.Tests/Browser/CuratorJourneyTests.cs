@@ -7,7 +7,7 @@ using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
 using Xunit;
 
-namespace TapeVault.Browser.Tests;
+namespace TapeVault.EndToEnd.Tests;
 
 /// <summary>The whole job as a new curator does it, in a real browser against the app running as a real process.</summary>
 public sealed class CuratorJourneyTests
