@@ -21,12 +21,12 @@ public static class CaptureApi
         read.MapGet("/blocks", (int id, int? run, string? setting, Plots plots, CancellationToken c) =>
             plots.Get.BlocksAsync(id, run, setting, c))
             .WithDescription("The block positions of a decode run (default: the newest), where the chosen setting read them.");
-        read.MapGet("/zoom", (int id, int? run, string? setting, double from, double seconds, int? columns, Plots plots, CancellationToken c) =>
+        read.MapGet("/zoom", (int id, int? run, string? setting, double? from, double? seconds, int? columns, Plots plots, CancellationToken c) =>
             plots.Get.ZoomAsync(id, run, setting, from, seconds, columns ?? CapturePlots.DefaultColumns, c))
-            .WithDescription("A stretch of the capture (from and seconds, at most 20 s) with one setting's conditioned signal, switching band and edges.");
+            .WithDescription("A stretch of the capture (from and seconds; by default the first 40 ms of the first block; at most 20 s) with one setting's conditioned signal, switching band and edges.");
         read.MapGet("/pulses", (int id, int? run, string? setting, string? scope, int? position, Plots plots, CancellationToken c) =>
             plots.Get.HistogramAsync(id, run, setting, scope, position, c))
-            .WithDescription("Pulse-length histogram of one setting over a block position (scope=block, the default) or the whole capture (scope=whole), with the profile's marks.");
+            .WithDescription("Pulse-length histogram of one setting over a block position (scope=block; position, by default the first) or the whole capture (scope=whole; the default when the run found no block), with the profile's marks.");
         read.MapGet("/speed", (int id, int? run, string? setting, Plots plots, CancellationToken c) =>
             plots.Get.SpeedAsync(id, run, setting, c))
             .WithDescription("The playback speed each block was read at by one setting, against time in the capture.");

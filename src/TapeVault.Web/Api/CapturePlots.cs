@@ -24,6 +24,12 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
     public const double MinimumZoomSeconds = 0.001;
     public const int HistogramBins = 90;
 
+    /// <summary>The default zoom: the first 40 ms of a block, where the sync and the first bytes are.</summary>
+    public const double DefaultZoomSeconds = 0.04;
+
+    /// <summary>A default zoom starts this long before its block, so the block's first edges are not on the frame's edge.</summary>
+    public const double ZoomLeadSeconds = 0.005;
+
     /// <summary>
     /// Run before a zoomed stretch so that the filters and the envelope have settled by its first sample: the DC block's
     /// time constant is 5 ms at 30 Hz and the envelope falls by 1/e in 20 ms, so a quarter second leaves no trace of the
@@ -78,10 +84,12 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
     /// The stretch [<paramref name="fromSeconds"/>, + <paramref name="seconds"/>) of the capture and what the chosen
     /// setting made of it, worked out afresh by running that one setting over the stretch.
     /// </summary>
-    public async Task<ZoomView> ZoomAsync(int captureId, int? runId, string? setting, double fromSeconds, double seconds, int columns = DefaultColumns, CancellationToken cancellation = default)
+    /// <remarks>Without a start, the stretch begins just before the run's first block (or at the start of the capture).</remarks>
+    public async Task<ZoomView> ZoomAsync(int captureId, int? runId, string? setting, double? fromSeconds, double? seconds, int columns = DefaultColumns, CancellationToken cancellation = default)
     {
         var run = await ChooseAsync(captureId, runId, setting, cancellation).ConfigureAwait(false);
-        return await ZoomAsync(run, fromSeconds, seconds, columns, cancellation).ConfigureAwait(false);
+        double from = fromSeconds ?? (Blocks(run) is { Count: > 0 } blocks ? Math.Max(0, blocks[0].StartSeconds - ZoomLeadSeconds) : 0);
+        return await ZoomAsync(run, from, seconds ?? DefaultZoomSeconds, columns, cancellation).ConfigureAwait(false);
     }
 
     public async Task<ZoomView> ZoomAsync(ChosenRun run, double fromSeconds, double seconds, int columns = DefaultColumns, CancellationToken cancellation = default)
@@ -155,13 +163,16 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
     public async Task<HistogramView> HistogramAsync(ChosenRun run, string? scope, int? position, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(run);
+        var blocks = Blocks(run);
+
+        // Without a scope, one block when the run found any, else the whole capture.
         bool whole = scope switch
         {
-            null or "" or "block" => false,
+            null or "" => blocks.Count == 0,
+            "block" => false,
             "whole" => true,
             _ => throw new ArchiveInputException("The histogram's scope is \"block\" or \"whole\"."),
         };
-        var blocks = Blocks(run);
         var mine = blocks.Where(b => b.Setting == run.Setting.Name).ToList();
         double speed = Median(mine.Select(b => b.Speed)) ?? 1;
         double from = 0, to = run.Capture.DurationSeconds;

@@ -14,8 +14,7 @@ namespace TapeVault.Web.Pages.Captures;
 /// </summary>
 public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, ProfileCatalog profiles) : ArchivePage
 {
-    /// <summary>The default zoom: the first 40 ms of a block, where the sync and the first bytes are.</summary>
-    public const double DefaultZoomSeconds = 0.04;
+    public const double DefaultZoomSeconds = CapturePlots.DefaultZoomSeconds;
 
     private readonly CapturePlots plots = new(db, store, profiles);
 
@@ -109,7 +108,7 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
     public string ZoomLink(BlockPositionView block)
     {
         ArgumentNullException.ThrowIfNull(block);
-        return Link(block.Position, Math.Max(0, block.StartSeconds - 0.005), DefaultZoomSeconds, anchor: "#zoom");
+        return Link(block.Position, Math.Max(0, block.StartSeconds - CapturePlots.ZoomLeadSeconds), DefaultZoomSeconds, anchor: "#zoom");
     }
 
     /// <summary>The link that shows the whole of <paramref name="block"/> (cut to the longest zoom).</summary>
@@ -154,7 +153,7 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
         Blocks = new BlockListView(run.Choice, CapturePlots.Blocks(run));
         Selected = Block is { } b ? Blocks.Blocks.FirstOrDefault(x => x.Position == b) : null;
         Selected ??= Blocks.Blocks.Count > 0 ? Blocks.Blocks[0] : null;
-        double from = From ?? (Selected is { } s ? Math.Max(0, s.StartSeconds - 0.005) : 0);
+        double from = From ?? (Selected is { } s ? Math.Max(0, s.StartSeconds - CapturePlots.ZoomLeadSeconds) : 0);
         double seconds = Seconds ?? DefaultZoomSeconds;
         try
         {
