@@ -131,6 +131,7 @@ public static class WebApp
         app.MapOpenApi().AllowAnonymous();
         app.MapRazorPages();
         app.MapTapeVaultApi();
+        app.MapCaptureApi();
         return app;
     }
 

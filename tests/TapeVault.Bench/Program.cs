@@ -28,6 +28,11 @@ if (section is "all" or "throughput")
     Throughput.Run(work, [30, 60]);
 }
 
+if (section is "all" or "plots")
+{
+    PlotData.Run(work, 60);
+}
+
 if (section is "all" or "ber")
 {
     FskErrorRate.Run();

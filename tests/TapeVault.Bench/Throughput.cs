@@ -37,7 +37,7 @@ public static class Throughput
     }
 
     /// <summary>A long capture: the demo format's files repeated, with mild noise and wow, so the decoders do real work.</summary>
-    private static void EnsureCapture(string path, int minutes)
+    internal static void EnsureCapture(string path, int minutes)
     {
         if (File.Exists(path))
         {

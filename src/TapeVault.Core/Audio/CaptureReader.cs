@@ -191,7 +191,7 @@ public sealed class CaptureReader : IDisposable
 
             int frames = Math.Min(bufferCount / channels, destination.Length - written);
             int sampleCount = frames * channels;
-            ToMono(interleaved.AsSpan(bufferStart, sampleCount), destination.Slice(written, frames));
+            ToMono(interleaved.AsSpan(bufferStart, sampleCount), destination.Slice(written, frames), channels, Channel);
             bufferStart += sampleCount;
             bufferCount -= sampleCount;
             written += frames;
@@ -288,16 +288,15 @@ public sealed class CaptureReader : IDisposable
     }
 
     /// <summary>Turns whole interleaved frames into mono samples, one per frame, without allocating.</summary>
-    private void ToMono(ReadOnlySpan<float> source, Span<float> destination)
+    internal static void ToMono(ReadOnlySpan<float> source, Span<float> destination, int channels, ChannelChoice channel)
     {
-        int channels = Channels;
         if (channels == 1)
         {
             source.CopyTo(destination);
             return;
         }
 
-        switch (Channel)
+        switch (channel)
         {
             case ChannelChoice.Left:
                 for (int i = 0, j = 0; i < destination.Length; i++, j += channels)

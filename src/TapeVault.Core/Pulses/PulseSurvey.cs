@@ -1,0 +1,32 @@
+using TapeVault.Core.Audio;
+using TapeVault.Core.Detection;
+using TapeVault.Core.Edges;
+
+namespace TapeVault.Core.Pulses;
+
+/// <summary>The intervals between one setting's counted edges over a whole capture, counted into a histogram in one streaming pass.</summary>
+public static class PulseSurvey
+{
+    private const int ChunkFrames = 64 * 1024;
+
+    /// <summary>Runs <paramref name="setting"/> through the detector bank over every sample <paramref name="reader"/> has left.</summary>
+    public static PulseHistogramResult Measure(CaptureReader reader, DetectorSetting setting, PulseHistogram histogram, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(reader);
+        ArgumentNullException.ThrowIfNull(setting);
+        ArgumentNullException.ThrowIfNull(histogram);
+        var bank = new DetectorBank([setting], reader.SampleRate);
+        var edges = new[] { new EdgeBuffer() };
+        var chunk = new float[ChunkFrames];
+        int read;
+        while ((read = reader.Read(chunk)) > 0)
+        {
+            cancellation.ThrowIfCancellationRequested();
+            edges[0].Clear();
+            bank.Process(chunk.AsSpan(0, read), edges);
+            histogram.AddIntervals(edges[0].Items, reader.SampleRate);
+        }
+
+        return histogram.ToResult();
+    }
+}
