@@ -5,6 +5,7 @@ using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Export;
 using TapeVault.Archive.Fixity;
 using TapeVault.Archive.Storage;
+using TapeVault.Core.Formats;
 
 namespace TapeVault.Cli;
 
@@ -52,6 +53,7 @@ public sealed class ArchiveSession : IDisposable
         collection.AddLogging();
         collection.AddSingleton(options);
         collection.AddSingleton(settings.Export);
+        collection.AddSingleton(ProfileCatalog.WithUserFolder(settings.ProfilesFolder is { Length: > 0 } folder ? Path.GetFullPath(folder, options.BaseFolder) : null));
         collection.AddSingleton(new ContentStore(options.FullStorePath));
         collection.AddDbContext<ArchiveDbContext>(db => ArchiveDatabase.Configure(db, options.FullDatabasePath));
         collection.AddIdentityCore<IdentityUser>(ArchiveServices.ConfigureIdentity)

@@ -86,6 +86,25 @@ public sealed class CatalogueTests(SharedArchive shared)
     }
 
     [Fact]
+    public async Task PulseHistogramPeaksWhereTheFormatWritesItsPulses()
+    {
+        var site = await PublishAsync();
+        var document = parser.ParseDocument(File.ReadAllText(Path.Combine(site, "items", $"{ArchiveFixture.Accession}.html")));
+        Assert.NotNull(document.QuerySelector("svg.histogram"));
+        var tables = document.QuerySelectorAll("details table");
+        var bins = tables[0].QuerySelectorAll("tbody tr").Select(r => r.QuerySelectorAll("td").Select(c => double.Parse(c.TextContent, CultureInfo.InvariantCulture)).ToArray()).ToList();
+        var marks = tables[1].QuerySelectorAll("tbody tr").Where(r => !r.TextContent.Contains("boundary", StringComparison.Ordinal))
+            .Select(r => double.Parse(r.QuerySelectorAll("td")[1].TextContent, CultureInfo.InvariantCulture)).ToList();
+        Assert.NotEmpty(marks);
+
+        // The fullest bin lies within 10 % of a duration the format writes (orrin-80 writes 320, 640 and 1280 µs
+        // cycles; the synthesised passes were written with exactly those), the marks placed at the measured speed.
+        var peak = bins.MaxBy(b => b[2])!;
+        double centre = Math.Sqrt(peak[0] * peak[1]);
+        Assert.Contains(marks, m => Math.Abs(m - centre) / m < 0.10);
+    }
+
+    [Fact]
     public async Task CsvAndJsonCarryTheSameSummary()
     {
         var site = await PublishAsync();

@@ -3,12 +3,16 @@ using System.IO.Compression;
 using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive.Events;
 using TapeVault.Archive.Storage;
+using TapeVault.Core.Audio;
 using TapeVault.Core.Catalogue;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Pulses;
+using PulseHistogram = TapeVault.Core.Catalogue.PulseHistogram;
 
 namespace TapeVault.Archive.Export;
 
 /// <summary>Gathers a collection's items from the archive into the catalogue model and writes the static site.</summary>
-public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, ExportOptions options)
+public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, ExportOptions options, ProfileCatalog profiles)
 {
     public async Task<CatalogueSite> SiteAsync(int collectionId, CancellationToken cancellation = default)
     {
@@ -36,7 +40,7 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
                 description,
                 [.. d.Captures.Select(c => new CatalogueCapture(c.OriginalFileName, c.Sha256, c.Size, c.SampleRate, c.Channels, c.BitsPerSample, c.DurationSeconds, c.Deck, c.Operator, c.CapturedOn))],
                 image,
-                Histogram: null));
+                await HistogramAsync(d, cancellation).ConfigureAwait(false)));
         }
 
         return new CatalogueSite(collection.Name, collection.Description, options.SourceOrganization, DateTimeOffset.UtcNow, items);
@@ -91,6 +95,50 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
                 Directory.Delete(temp, recursive: true);
             }
         }
+    }
+
+    /// <summary>
+    /// The pulse lengths of the capture the image took most from (or the first decoded one), read by the setting that
+    /// found most clean blocks there, with the profile's marks placed at that capture's measured speed.
+    /// </summary>
+    private async Task<PulseHistogram?> HistogramAsync(ItemDossier d, CancellationToken cancellation)
+    {
+        string? preferred = d.LatestImage?.Blocks.Where(b => !b.Sources.IsDefaultOrEmpty).GroupBy(b => b.Sources[0].CaptureSha256)
+            .OrderByDescending(g => g.Count()).Select(g => g.Key).FirstOrDefault();
+        var capture = d.Captures.Where(c => d.Runs.Any(r => r.CaptureId == c.Id)).OrderByDescending(c => c.Sha256 == preferred).ThenBy(c => c.Id).FirstOrDefault();
+        if (capture is null || !store.Exists(capture.Sha256))
+        {
+            return null;
+        }
+
+        var run = d.Runs.Where(r => r.CaptureId == capture.Id).OrderByDescending(r => r.Id).First();
+        if (!profiles.TryGet(run.ProfileId, out var profile))
+        {
+            return null;
+        }
+
+        var clean = await db.Candidates.AsNoTracking().Where(c => c.RunId == run.Id && c.Status == "clean")
+            .Select(c => new { c.SettingName, c.Speed }).ToListAsync(cancellation).ConfigureAwait(false);
+        var settings = Runs.SettingsJson.Read(run.SettingsJson);
+        var best = clean.GroupBy(c => c.SettingName).OrderByDescending(g => g.Count()).FirstOrDefault();
+        var setting = settings.FirstOrDefault(s => s.Name == best?.Key) ?? (settings.Count > 0 ? settings[0] : null);
+        if (setting is null)
+        {
+            return null;
+        }
+
+        double speed = best is null ? 1 : best.Select(c => c.Speed).Order().ElementAt(best.Count() / 2);
+        var marks = PulseMarks.For(profile, setting, speed);
+        var result = await Task.Run(() =>
+        {
+            using var reader = CaptureReader.Open(store.PathOf(capture.Sha256));
+            return PulseSurvey.Measure(reader, setting, new Core.Pulses.PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, 120), cancellation);
+        }, cancellation).ConfigureAwait(false);
+        return new PulseHistogram(
+            [.. result.BinEdgesSeconds.Select(e => e * 1e6)],
+            [.. result.Counts],
+            [.. marks.Marks.Where(m => m.Kind != PulseMarkKind.Limit).Select(m => new HistogramMark(m.Label, m.Seconds * 1e6, m.Kind == PulseMarkKind.Boundary))],
+            $"capture '{capture.OriginalFileName}', detector setting {setting.Name}; {marks.Measures.TrimEnd('.')}");
     }
 
     private async Task<long> SizeAsync(string sha256, CancellationToken cancellation) =>

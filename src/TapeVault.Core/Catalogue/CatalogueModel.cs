@@ -26,11 +26,15 @@ public sealed record CatalogueCapture(string FileName, string Sha256, long Size,
 /// <summary>The newest tape image of the item: its container's hash, and the image itself for the block map and files.</summary>
 public sealed record CatalogueImage(int Version, string Sha256, long Size, TapeImage Image);
 
-/// <summary>A histogram of pulse lengths (microseconds), with the profile's pulse classes and the decision boundaries between them.</summary>
+/// <summary>
+/// A histogram of pulse lengths over one capture (log-spaced bins, edges in microseconds), with the profile's durations
+/// and the decoder's decision boundaries marked where they fall in that capture.
+/// </summary>
 public sealed record PulseHistogram(
-    double BinMicroseconds,
-    double FirstBinMicroseconds,
+    IReadOnlyList<double> BinEdgesMicroseconds,
     IReadOnlyList<long> Counts,
-    IReadOnlyList<(string Name, double Microseconds)> Classes,
-    IReadOnlyList<double> BoundariesMicroseconds,
+    IReadOnlyList<HistogramMark> Marks,
     string Source);
+
+/// <summary>A marked duration: a pulse class or tone the format writes, or (<c>Boundary</c>) where one class ends and the next begins.</summary>
+public sealed record HistogramMark(string Label, double Microseconds, bool Boundary);

@@ -273,42 +273,58 @@ public static class CatalogueWriter
         const int width = 640;
         const int height = 220;
         const int left = 50;
+        const int right = 10;
         const int bottom = 30;
-        const int top = 10;
-        long max = Math.Max(1, h.Counts.DefaultIfEmpty(0).Max());
-        int n = Math.Max(1, h.Counts.Count);
-        double barWidth = (width - left - 10) / (double)n;
-        double Xof(double us) => left + ((us - h.FirstBinMicroseconds) / h.BinMicroseconds * barWidth);
+        const int top = 16;
+        if (h.Counts.Count == 0 || h.BinEdgesMicroseconds.Count != h.Counts.Count + 1)
+        {
+            return;
+        }
+
+        long max = Math.Max(1, h.Counts.Max());
+        double lowLog = Math.Log(h.BinEdgesMicroseconds[0]);
+        double highLog = Math.Log(h.BinEdgesMicroseconds[^1]);
+        double Xof(double us) => left + ((Math.Log(Math.Max(us, 1e-9)) - lowLog) / (highLog - lowLog) * (width - left - right));
         b.Append("<section><h2>Pulse lengths</h2>\n");
-        b.Append(Invariant, $"<p class=\"small\">How long the pulses read from the tape were ({E(h.Source)}). Dashed lines: the format's pulse classes; dotted lines: where one class ends and the next begins.</p>\n");
+        b.Append(Invariant, $"<p class=\"small\">How long the pulses read from the tape were ({E(h.Source)}), on a logarithmic axis. Dashed lines: the durations the format writes; dotted lines: where the decoder's decision changes from one to the next. Tidy peaks on the dashed lines mean a healthy read.</p>\n");
         b.Append(Invariant, $"<svg class=\"histogram\" role=\"img\" aria-labelledby=\"hist-title\" width=\"{width}\" height=\"{height}\" viewBox=\"0 0 {width} {height}\" xmlns=\"http://www.w3.org/2000/svg\">\n<title id=\"hist-title\">Histogram of pulse lengths in microseconds</title>\n");
         for (int i = 0; i < h.Counts.Count; i++)
         {
+            double x0 = Xof(h.BinEdgesMicroseconds[i]);
+            double x1 = Xof(h.BinEdgesMicroseconds[i + 1]);
             double barHeight = (height - bottom - top) * (double)h.Counts[i] / max;
-            b.Append(Invariant, $"<rect x=\"{F(left + (i * barWidth), "0.0")}\" y=\"{F(height - bottom - barHeight, "0.0")}\" width=\"{F(Math.Max(barWidth - 0.5, 0.5), "0.0")}\" height=\"{F(barHeight, "0.0")}\" fill=\"#4a5d6b\"/>\n");
+            b.Append(Invariant, $"<rect x=\"{F(x0, "0.0")}\" y=\"{F(height - bottom - barHeight, "0.0")}\" width=\"{F(Math.Max(x1 - x0 - 0.3, 0.3), "0.0")}\" height=\"{F(barHeight, "0.0")}\" fill=\"#4a5d6b\"/>\n");
         }
 
-        foreach (var (name, us) in h.Classes)
+        foreach (var mark in h.Marks)
         {
-            b.Append(Invariant, $"<line x1=\"{F(Xof(us), "0.0")}\" y1=\"{top}\" x2=\"{F(Xof(us), "0.0")}\" y2=\"{height - bottom}\" stroke=\"#3d6b4f\" stroke-dasharray=\"5 3\"/><text x=\"{F(Xof(us) + 3, "0.0")}\" y=\"{top + 12}\" font-size=\"11\">{E(name)}</text>\n");
+            double x = Xof(mark.Microseconds);
+            if (x < left || x > width - right)
+            {
+                continue;
+            }
+
+            b.Append(mark.Boundary
+                ? string.Create(Invariant, $"<line x1=\"{F(x, "0.0")}\" y1=\"{top}\" x2=\"{F(x, "0.0")}\" y2=\"{height - bottom}\" stroke=\"#9a3b2e\" stroke-dasharray=\"1 3\"><title>{E(mark.Label)}: {F(mark.Microseconds, "0")} µs</title></line>\n")
+                : string.Create(Invariant, $"<line x1=\"{F(x, "0.0")}\" y1=\"{top}\" x2=\"{F(x, "0.0")}\" y2=\"{height - bottom}\" stroke=\"#3d6b4f\" stroke-dasharray=\"5 3\"/><text x=\"{F(x + 3, "0.0")}\" y=\"{top - 4}\" font-size=\"11\">{E(mark.Label)}</text>\n"));
         }
 
-        foreach (var us in h.BoundariesMicroseconds)
-        {
-            b.Append(Invariant, $"<line x1=\"{F(Xof(us), "0.0")}\" y1=\"{top}\" x2=\"{F(Xof(us), "0.0")}\" y2=\"{height - bottom}\" stroke=\"#9a3b2e\" stroke-dasharray=\"1 3\"/>\n");
-        }
-
-        b.Append(Invariant, $"<line x1=\"{left}\" y1=\"{height - bottom}\" x2=\"{width - 10}\" y2=\"{height - bottom}\" stroke=\"#23303a\"/>");
-        b.Append(Invariant, $"<text x=\"{left}\" y=\"{height - 8}\" font-size=\"11\">{F(h.FirstBinMicroseconds, "0")} µs</text><text x=\"{width - 80}\" y=\"{height - 8}\" font-size=\"11\">{F(h.FirstBinMicroseconds + (n * h.BinMicroseconds), "0")} µs</text>");
+        b.Append(Invariant, $"<line x1=\"{left}\" y1=\"{height - bottom}\" x2=\"{width - right}\" y2=\"{height - bottom}\" stroke=\"#23303a\"/>");
+        b.Append(Invariant, $"<text x=\"{left}\" y=\"{height - 8}\" font-size=\"11\">{F(h.BinEdgesMicroseconds[0], "0")} µs</text><text x=\"{width - 90}\" y=\"{height - 8}\" font-size=\"11\">{F(h.BinEdgesMicroseconds[^1], "0")} µs</text>");
         b.Append(Invariant, $"<text x=\"4\" y=\"{top + 10}\" font-size=\"11\">{max}</text>\n</svg>\n");
         b.Append("<details><summary>The histogram as a table</summary><table><caption>Pulses per length bin</caption><thead><tr><th scope=\"col\">From (µs)</th><th scope=\"col\">To (µs)</th><th scope=\"col\">Pulses</th></tr></thead><tbody>\n");
         for (int i = 0; i < h.Counts.Count; i++)
         {
             if (h.Counts[i] > 0)
             {
-                double from = h.FirstBinMicroseconds + (i * h.BinMicroseconds);
-                b.Append(Invariant, $"<tr><td class=\"num\">{F(from, "0")}</td><td class=\"num\">{F(from + h.BinMicroseconds, "0")}</td><td class=\"num\">{h.Counts[i]}</td></tr>\n");
+                b.Append(Invariant, $"<tr><td class=\"num\">{F(h.BinEdgesMicroseconds[i], "0.0")}</td><td class=\"num\">{F(h.BinEdgesMicroseconds[i + 1], "0.0")}</td><td class=\"num\">{h.Counts[i]}</td></tr>\n");
             }
+        }
+
+        b.Append("</tbody></table>\n<table><caption>Marked durations</caption><thead><tr><th scope=\"col\">Mark</th><th scope=\"col\">µs</th></tr></thead><tbody>\n");
+        foreach (var mark in h.Marks)
+        {
+            b.Append(Invariant, $"<tr><td>{E(mark.Label)}{(mark.Boundary ? " (decision boundary)" : string.Empty)}</td><td class=\"num\">{F(mark.Microseconds, "0.0")}</td></tr>\n");
         }
 
         b.Append("</tbody></table></details>\n</section>\n");

@@ -176,8 +176,21 @@ public sealed class CuratorJourneyTests
             null,
             new PageWaitForFunctionOptions { Timeout = 90_000 });
 
-        // The page reloads itself once its jobs are over; open it afresh so the screenshot sees a settled page.
-        await page.GotoAsync(new Uri(app.Address, "/jobs").ToString());
+        // The page reloads itself once its jobs are over; open it afresh (again if that reload cut in) so the
+        // screenshot sees a settled page.
+        for (int attempt = 0; ; attempt++)
+        {
+            try
+            {
+                await page.GotoAsync(new Uri(app.Address, "/jobs").ToString());
+                break;
+            }
+            catch (PlaywrightException) when (attempt < 3)
+            {
+                await Task.Delay(500);
+            }
+        }
+
         await Browser.ShotAsync(page, shot);
     }
 
