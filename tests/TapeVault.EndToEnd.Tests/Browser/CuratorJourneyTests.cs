@@ -77,6 +77,20 @@ public sealed class CuratorJourneyTests
         Assert.Contains("✓", await firstClean.InnerTextAsync(), StringComparison.Ordinal);
         await Browser.ShotAsync(page, "04-block-map");
 
+        // The capture page: the waveform, the zoom with the detector's decisions, the pulse lengths and the speed,
+        // each a figure with a table behind it for those who cannot see the plot.
+        await page.ClickAsync("a[href$='/captures/1']");
+        await page.WaitForSelectorAsync("h2#overview");
+        foreach (var section in new[] { "overview", "zoom", "pulses", "speed" })
+        {
+            Assert.True(await page.Locator($"h2#{section}").CountAsync() == 1, $"no {section} section");
+        }
+
+        Assert.True(await page.Locator("figure.plot svg").CountAsync() >= 4);
+        Assert.True(await page.Locator("figure.plot details table").CountAsync() >= 4);
+        await Browser.ShotAsync(page, "04b-capture-page");
+        await page.GotoAsync(itemUrl);
+
         // Merge, then download the image and check its SHA-256 against the one the page shows.
         await page.ClickAsync("button:has-text('Merge all passes')");
         await WaitForJobsAsync(page, app, "05-jobs-merged");

@@ -52,6 +52,9 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
 
     public IReadOnlyList<ExportView> Exports { get; private set; } = [];
 
+    /// <summary>The profile the decode form offers first: the one this tape was last decoded with.</summary>
+    public string? DefaultProfile => Item?.Captures.SelectMany(c => c.Runs).OrderByDescending(r => r.Id).FirstOrDefault()?.ProfileId;
+
     public Task<IActionResult> OnPostBagAsync(int id) => TryAsync(
         async () =>
         {
