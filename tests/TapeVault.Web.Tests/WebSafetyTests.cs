@@ -1,4 +1,6 @@
 using System.Net;
+using System.Net.Http.Json;
+using TapeVault.Web.Api;
 using TapeVault.Web;
 using TapeVault.Web.Tests.Support;
 using Xunit;
@@ -64,4 +66,27 @@ public sealed class WebSafetyTests
     [Fact]
     public void ContentSecurityPolicyAllowsNothingFromOutside() =>
         Assert.DoesNotContain("http", SecurityHeaders.ContentSecurityPolicy, StringComparison.Ordinal);
+}
+
+public sealed class OriginalDownloadTests
+{
+    [Theory]
+    [InlineData("false", HttpStatusCode.Forbidden)]
+    [InlineData("true", HttpStatusCode.OK)]
+    public async Task ViewersDownloadOriginalsOnlyWhenTheSettingAllowsIt(string allowed, HttpStatusCode viewerGets)
+    {
+        using var folder = new ArchiveFolder();
+        await using var app = new ArchiveAppFactory(folder, new Dictionary<string, string?> { ["TapeVault:Web:ViewersMayDownloadOriginals"] = allowed });
+        await app.AddCuratorAndViewerAsync();
+        using var curator = await app.SignedInAsync(ArchiveAppFactory.CuratorName);
+        var (_, itemId) = await curator.NewItemAsync("DL-1");
+        using var upload = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 2000), "dl.wav");
+        await ApiClient.EnsureAsync(upload, HttpStatusCode.Created);
+        var uploaded = (await upload.Content.ReadFromJsonAsync<UploadResult>(ApiClient.Json))!;
+        using var viewer = await app.SignedInAsync(ArchiveAppFactory.ViewerName);
+        using var asViewer = await viewer.Http.GetAsync($"/api/captures/{uploaded.Capture.Id}/original");
+        Assert.Equal(viewerGets, asViewer.StatusCode);
+        using var asCurator = await curator.Http.GetAsync($"/api/captures/{uploaded.Capture.Id}/original");
+        Assert.Equal(HttpStatusCode.OK, asCurator.StatusCode);
+    }
 }
