@@ -1,5 +1,6 @@
 using System.Text.Json;
 using TapeVault.Core.Checksums;
+using TapeVault.Core.Text;
 
 namespace TapeVault.Core.Formats;
 
@@ -17,12 +18,12 @@ public static class ProfileLoader
         var info = new FileInfo(path);
         if (!info.Exists)
         {
-            throw new ProfileException(OneLine($"The profile file does not exist: {path}."));
+            throw new ProfileException(Messages.OneLine($"The profile file does not exist: {path}."));
         }
 
         if (info.Length > MaximumFileBytes)
         {
-            throw new ProfileException(OneLine($"The profile file {path} is {info.Length} bytes; profiles are at most {MaximumFileBytes} bytes."));
+            throw new ProfileException(Messages.OneLine($"The profile file {path} is {info.Length} bytes; profiles are at most {MaximumFileBytes} bytes."));
         }
 
         return Parse(File.ReadAllText(path), Path.GetFileName(path));
@@ -33,7 +34,7 @@ public static class ProfileLoader
         ArgumentNullException.ThrowIfNull(json);
         if (json.Length > MaximumFileBytes)
         {
-            throw new ProfileException(OneLine($"Profile {source}: the text is longer than {MaximumFileBytes} characters."));
+            throw new ProfileException(Messages.OneLine($"Profile {source}: the text is longer than {MaximumFileBytes} characters."));
         }
 
         ProfileDocument? document;
@@ -50,42 +51,15 @@ public static class ProfileLoader
                 : e.Message.Contains("Duplicate", StringComparison.OrdinalIgnoreCase)
                     ? "a field given twice"
                     : "invalid JSON or a value of the wrong type";
-            throw new ProfileException(OneLine($"Profile {source}: {reason}{where}{line}."), e);
+            throw new ProfileException(Messages.OneLine($"Profile {source}: {reason}{where}{line}."), e);
         }
 
         if (document is null)
         {
-            throw new ProfileException(OneLine($"Profile {source}: the file holds no profile object."));
+            throw new ProfileException(Messages.OneLine($"Profile {source}: the file holds no profile object."));
         }
 
         return new Validator(source).Build(document);
-    }
-
-    /// <summary>
-    /// A message as one line: a field name or value from the file (a JSON escape such as \n makes any character) or
-    /// a path may hold control characters, which are shown as \u escapes instead.
-    /// </summary>
-    private static string OneLine(string message)
-    {
-        if (!message.Any(char.IsControl))
-        {
-            return message;
-        }
-
-        var text = new System.Text.StringBuilder(message.Length + 16);
-        foreach (char c in message)
-        {
-            if (char.IsControl(c))
-            {
-                text.Append($"\\u{(int)c:x4}");
-            }
-            else
-            {
-                text.Append(c);
-            }
-        }
-
-        return text.ToString();
     }
 
     private sealed class Validator(string source)
@@ -495,7 +469,7 @@ public static class ProfileLoader
         private static bool IsIdentifier(string id) =>
             id.Length > 0 && id.All(ch => ch is (>= 'a' and <= 'z') or (>= '0' and <= '9') or '-');
 
-        private ProfileException Error(string path, string message) => new(OneLine($"Profile {_label}: {path} {message}."));
+        private ProfileException Error(string path, string message) => new(Messages.OneLine($"Profile {_label}: {path} {message}."));
 
         [System.Diagnostics.CodeAnalysis.DoesNotReturn]
         private void Fail(string path, string message) => throw Error(path, message);

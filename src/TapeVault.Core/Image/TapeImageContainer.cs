@@ -4,6 +4,7 @@ using System.Globalization;
 using System.Security.Cryptography;
 using System.Text.Encodings.Web;
 using System.Text.Json;
+using TapeVault.Core.Text;
 
 namespace TapeVault.Core.Image;
 
@@ -316,7 +317,7 @@ public static class TapeImageContainer
         catch (JsonException e)
         {
             string where = e.Path is { Length: > 1 } p ? $" at {p.TrimStart('$', '.')}" : string.Empty;
-            throw new ImageFormatException(OneLine($"The image's manifest is not valid JSON of format version {CurrentVersion}{where}."), e);
+            throw new ImageFormatException(Messages.OneLine($"The image's manifest is not valid JSON of format version {CurrentVersion}{where}."), e);
         }
         catch (ArgumentException e)
         {
@@ -537,34 +538,7 @@ public static class TapeImageContainer
 
         private static ImageFormatException Missing(string at) => Bad($"its manifest lacks {at}");
 
-        private static ImageFormatException Bad(string what) => new(OneLine($"The image is not a valid version {CurrentVersion} container: {what}."));
-    }
-
-    /// <summary>
-    /// A message as one line: a name or value from the manifest (a JSON escape such as \n makes any character) may hold
-    /// control characters, which are shown as \u escapes instead.
-    /// </summary>
-    private static string OneLine(string message)
-    {
-        if (!message.Any(char.IsControl))
-        {
-            return message;
-        }
-
-        var text = new System.Text.StringBuilder(message.Length + 16);
-        foreach (char c in message)
-        {
-            if (char.IsControl(c))
-            {
-                text.Append($"\\u{(int)c:x4}");
-            }
-            else
-            {
-                text.Append(c);
-            }
-        }
-
-        return text.ToString();
+        private static ImageFormatException Bad(string what) => new(Messages.OneLine($"The image is not a valid version {CurrentVersion} container: {what}."));
     }
 
     /// <summary>Refuses, before a byte is written, an image no reader would accept.</summary>

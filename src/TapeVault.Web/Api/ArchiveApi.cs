@@ -106,7 +106,8 @@ public static class ArchiveApi
         return http.User.Identity?.Name ?? "anonymous";
     }
 
-    private static async ValueTask<object?> Errors(EndpointFilterInvocationContext context, EndpointFilterDelegate next)
+    /// <summary>The archive's refusals as problem documents: 400 bad input, 404 unknown id, 409 contradicts what is stored.</summary>
+    public static async ValueTask<object?> Errors(EndpointFilterInvocationContext context, EndpointFilterDelegate next)
     {
         try
         {

@@ -13,7 +13,7 @@ public static class CaptureApi
 {
     public static void MapCaptureApi(this IEndpointRouteBuilder app)
     {
-        var read = app.MapGroup("/api/captures/{id:int}").AddEndpointFilter(Errors).RequireAuthorization(Roles.ReaderPolicy).WithTags("capture plots");
+        var read = app.MapGroup("/api/captures/{id:int}").AddEndpointFilter(ArchiveApi.Errors).RequireAuthorization(Roles.ReaderPolicy).WithTags("capture plots");
 
         read.MapGet("/overview", (int id, int? columns, Plots plots, CancellationToken c) =>
             plots.Get.OverviewAsync(id, columns ?? CapturePlots.DefaultColumns, c))
@@ -43,26 +43,6 @@ public static class CaptureApi
             var services = http.RequestServices;
             return ValueTask.FromResult<Plots?>(new Plots(
                 services.GetRequiredService<ArchiveDbContext>(), services.GetRequiredService<ContentStore>(), services.GetRequiredService<ProfileCatalog>()));
-        }
-    }
-
-    private static async ValueTask<object?> Errors(EndpointFilterInvocationContext context, EndpointFilterDelegate next)
-    {
-        try
-        {
-            return await next(context).ConfigureAwait(false);
-        }
-        catch (ArchiveInputException e)
-        {
-            return Results.Problem(statusCode: StatusCodes.Status400BadRequest, title: e.Message);
-        }
-        catch (ArchiveNotFoundException e)
-        {
-            return Results.Problem(statusCode: StatusCodes.Status404NotFound, title: e.Message);
-        }
-        catch (ArchiveConflictException e)
-        {
-            return Results.Problem(statusCode: StatusCodes.Status409Conflict, title: e.Message);
         }
     }
 }
