@@ -61,8 +61,8 @@ public sealed class FskDecoder : ISymbolDecoder
     /// <summary>How far, in bits, a start bit after a loss of signal may lie off the character grid from before it.</summary>
     private const double GridToleranceBits = 0.3;
 
-    /// <summary>How much the grid's uncertainty grows per bit of gap: a speed error of 0.3 % (wow the tracking missed).</summary>
-    private const double GridDriftPerBit = 0.003;
+    /// <summary>How much the grid's uncertainty grows per bit of gap: a speed error of 0.15 % (wow the tracking missed).</summary>
+    private const double GridDriftPerBit = 0.0015;
 
     /// <summary>Past this uncertainty a whole bit's slip can no longer be told from drift and the grid is not used.</summary>
     private const double MaximumGridToleranceBits = 0.45;
