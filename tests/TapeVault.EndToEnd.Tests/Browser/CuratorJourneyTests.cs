@@ -176,8 +176,21 @@ public sealed class CuratorJourneyTests
             null,
             new PageWaitForFunctionOptions { Timeout = 90_000 });
 
-        // The page reloads itself once its jobs are over; open it afresh so the screenshot sees a settled page.
-        await page.GotoAsync(new Uri(app.Address, "/jobs").ToString());
+        // The page reloads itself once its jobs are over; open it afresh so the screenshot sees a settled page. That
+        // reload can land while this navigation is under way and interrupt it: then navigate again.
+        for (int attempt = 1; ; attempt++)
+        {
+            try
+            {
+                await page.GotoAsync(new Uri(app.Address, "/jobs").ToString());
+                break;
+            }
+            catch (PlaywrightException e) when (attempt < 3 && e.Message.Contains("interrupted by another navigation", StringComparison.Ordinal))
+            {
+                await page.WaitForLoadStateAsync(LoadState.Load);
+            }
+        }
+
         await Browser.ShotAsync(page, shot);
     }
 
