@@ -40,7 +40,9 @@ if (section is "all" or "ber")
 
 if (section is "all" or "recovery")
 {
-    Recovery.Run(work, seeds: 4);
+    // An optional first seed (recovery 101) measures on tapes other than those the stream constants were fitted on.
+    int first = section == "recovery" && args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 1;
+    Recovery.Run(work, first, seeds: 4);
 }
 
 if (section is "all" or "calibration")

@@ -32,10 +32,11 @@ public static class Recovery
         return tapes;
     }
 
-    public static void Run(string work, int seeds)
+    public static void Run(string work, int first, int seeds)
     {
         var stopwatch = Stopwatch.StartNew();
-        var tapes = Corpus(work, 1, seeds);
+        Console.WriteLine($"Tapes of seeds {first} onwards.");
+        var tapes = Corpus(work, first, seeds);
         Print(tapes, seeds);
         Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s.");
         Console.WriteLine();

@@ -43,11 +43,12 @@ public sealed record MergeOptions
     public double StreamAgreedByteErrorFloor { get; init; } = 2e-4;
 
     /// <summary>
-    /// The factor on the confidence of a stream segment that resumes after bytes no capture kept: the readings that
-    /// resume after a dropout are framed on a false start bit more often than their margins show. Fitted with the
-    /// floors above.
+    /// The factor on the confidence of a stream segment that resumes after bytes no capture kept, for readings that
+    /// resume after a dropout framed on a false start bit more often than their margins show. Fitted with the floors
+    /// above: 1 since the FSK decoder takes a start bit after a loss of signal only on the character grid it kept
+    /// before (0.1 was the fit while it took any fall to space).
     /// </summary>
-    public double StreamAfterGapFactor { get; init; } = 0.1;
+    public double StreamAfterGapFactor { get; init; } = 1;
 
     /// <summary>The time the image records as its making; null for now.</summary>
     public DateTimeOffset? CreatedUtc { get; init; }

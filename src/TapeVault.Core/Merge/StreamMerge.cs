@@ -201,8 +201,17 @@ internal sealed class StreamMerge
         return Segments(kept, character);
     }
 
+    /// <summary>
+    /// The weight of evidence for a slot against a clashing one: the log odds, summed over the captures that read its
+    /// value, that each read a true character there. Two captures that each may well have framed on a false start
+    /// bit weigh less than one that read cleanly, where a count of captures would let them outvote it.
+    /// </summary>
     private static double Support(Slot slot) =>
-        slot.Bytes.Where(b => b.Value == slot.Value).GroupBy(b => b.Pass).Sum(g => 1 - g.Average(b => b.Error)) * slot.Probability;
+        slot.Bytes.Where(b => b.Value == slot.Value).GroupBy(b => b.Pass).Sum(g =>
+        {
+            double error = Math.Clamp(g.Average(b => b.Error), 1e-6, 0.999);
+            return Math.Log((1 - error) / error);
+        }) + Math.Log(slot.Probability / Math.Max(1 - slot.Probability, 1e-12));
 
     private sealed class CentreOrder : IComparer<Slot>
     {

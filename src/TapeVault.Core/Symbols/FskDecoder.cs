@@ -66,6 +66,15 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private const double SilenceAmplitude = 1e-4;
 
+    /// <summary>How far, in bits, a start bit after a loss of signal may lie off the character grid from before it.</summary>
+    private const double GridToleranceBits = 0.3;
+
+    /// <summary>How much the grid's uncertainty grows per bit of gap: a speed error of 0.15 % (wow the tracking missed).</summary>
+    private const double GridDriftPerBit = 0.0015;
+
+    /// <summary>Past this uncertainty a whole bit's slip can no longer be told from drift and the grid is not used.</summary>
+    private const double MaximumGridToleranceBits = 0.45;
+
     private readonly FskEncoding _fsk;
     private readonly ByteFraming _framing;
     private readonly BlockAssembler _assembler;
@@ -105,6 +114,7 @@ public sealed class FskDecoder : ISymbolDecoder
     private int _bitIndex;
     private double _nextBitTime;
     private double _lastCharEnd;
+    private double _gridStart = double.NaN;
     private double _speed = 1;
     private double _lastEdge = double.NaN;
     private float _level;
@@ -218,10 +228,11 @@ public sealed class FskDecoder : ISymbolDecoder
             }
             else
             {
-                if (d < 0 && _previousD >= 0 && _markRun >= 0.25 * BitSamples && (_inBlock || _resuming || HeardLeadIn))
+                double crossing = d < 0 && _previousD >= 0 ? n - 1 + _previousD / (_previousD - d) : 0;
+                if (d < 0 && _previousD >= 0 && _markRun >= 0.25 * BitSamples && (_inBlock || _resuming || HeardLeadIn)
+                    && (_inBlock || !_resuming || MayResumeAt(crossing)))
                 {
                     // Start bit: D crosses zero half a window after the mark-to-space boundary.
-                    double crossing = n - 1 + _previousD / (_previousD - d);
                     if (!_inBlock && !_resuming)
                     {
                         // A new block after a lead-in learns its own tone balance, from this start bit on.
@@ -272,6 +283,34 @@ public sealed class FskDecoder : ISymbolDecoder
         _markSin *= markNorm;
         _spaceCos *= spaceNorm;
         _spaceSin *= spaceNorm;
+    }
+
+    /// <summary>
+    /// Whether a fall to space after a loss of signal may be taken for a start bit. The stream resumes with no lead-in,
+    /// so any fall from a data bit 1 to a 0 looks like one; and some falls frame as well as the true ones (in lower-case
+    /// text, bits 5 and 6 are mark and bit 7 space, so a frame three bits early has its stop bits on mark too, and
+    /// stays there). Characters follow back to back, so while the character grid from before the loss is still sure
+    /// (the speed known to a fraction of a per cent over the gap), only a fall on that grid is a start bit. A fall
+    /// after a whole character of mark (the line idle) starts a character wherever it lies, and once the grid has
+    /// drifted past knowing, any fall does, as after a lead-in.
+    /// </summary>
+    private bool MayResumeAt(double crossing)
+    {
+        if (double.IsNaN(_gridStart) || _markRun >= _framing.BitsPerByte * BitSamples)
+        {
+            return true;
+        }
+
+        double elapsedBits = (crossing - _gridStart) / BitSamples;
+        double tolerance = GridToleranceBits + (GridDriftPerBit * elapsedBits);
+        if (tolerance > MaximumGridToleranceBits)
+        {
+            return true;
+        }
+
+        double characters = elapsedBits / _framing.BitsPerByte;
+        double offBits = Math.Abs(characters - Math.Round(characters)) * _framing.BitsPerByte;
+        return offBits <= tolerance;
     }
 
     /// <summary>No carrier: the character in progress is void, and a block in progress ends at its last whole character.</summary>
@@ -455,6 +494,11 @@ public sealed class FskDecoder : ISymbolDecoder
         if (_framing.Parity != Parity.None)
         {
             framingOk &= _framing.ParityHolds(ones + (_charBits[1 + _framing.DataBits] ? 1 : 0));
+        }
+
+        if (framingOk)
+        {
+            _gridStart = _charStart;
         }
 
         _assembler.NoteLevel(_level);

@@ -66,7 +66,8 @@ public sealed class MergeCommandTests : IClassFixture<MergeCaptures>
 
         // Outside reference: the bytes minimodem was given; each pass alone lost some of them to SoX's silence.
         Assert.Equal(KcsCaptures.Hex(KcsCaptures.Text), KcsCaptures.Hex(File.ReadAllBytes(payload)));
-        Assert.Contains("pass 1", run.Output, StringComparison.Ordinal);
+        // Each position names the pass that won it (which one depends on where each pass lost bytes).
+        Assert.Matches(@"pass [12] ", run.Output);
         Assert.Contains("positions:", run.Output, StringComparison.Ordinal);
 
         using var document = JsonDocument.Parse(File.ReadAllBytes(json));
