@@ -22,10 +22,11 @@ public static class WebApp
 
     public static WebApplication Build(string[] args)
     {
+        var repository = ArchiveOptions.FindRepositoryRoot();
         var builder = WebApplication.CreateBuilder(new WebApplicationOptions
         {
             Args = args,
-            WebRootPath = ArchiveOptions.FindRepositoryRoot() is { } root ? Path.Combine(root, "web") : Path.Combine(AppContext.BaseDirectory, "web"),
+            WebRootPath = repository is not null ? Path.Combine(repository, "web") : Path.Combine(AppContext.BaseDirectory, "web"),
         });
 
         // The settings file lives at the top of the repository; the copy beside the program, then the one in the current folder.
@@ -35,7 +36,7 @@ public static class WebApp
             Optional = true,
             FileProvider = new PhysicalFileProvider(AppContext.BaseDirectory),
         });
-        builder.Configuration.AddJsonFile(Path.Combine(ArchiveOptions.FindRepositoryRoot() ?? Directory.GetCurrentDirectory(), "appsettings.json"), optional: true);
+        builder.Configuration.AddJsonFile(Path.Combine(repository ?? Directory.GetCurrentDirectory(), "appsettings.json"), optional: true);
         builder.Configuration.AddEnvironmentVariables();
         builder.Configuration.AddCommandLine(args);
         if (string.IsNullOrEmpty(builder.Configuration["urls"]))
@@ -44,7 +45,7 @@ public static class WebApp
         }
 
         var archive = builder.Configuration.GetSection(ArchiveOptions.Section).Get<ArchiveOptions>() ?? new ArchiveOptions();
-        archive.BaseFolder = ArchiveOptions.FindRepositoryRoot() ?? Directory.GetCurrentDirectory();
+        archive.BaseFolder = repository ?? Directory.GetCurrentDirectory();
         var profiles = ProfileCatalog.WithUserFolder(builder.Configuration["TapeVault:ProfilesFolder"] is { Length: > 0 } folder ? Path.GetFullPath(folder, archive.BaseFolder) : null);
         var web = builder.Configuration.GetSection(WebOptions.Section).Get<WebOptions>() ?? new WebOptions();
         builder.Services.AddSingleton(web);

@@ -25,8 +25,9 @@ public sealed class RestartTests
             using var curator = await first.SignedInAsync(ArchiveAppFactory.CuratorName);
             var (_, itemId) = await curator.NewItemAsync("RESTART-1");
 
-            // Ninety seconds of tone: long enough that the decode is still going when the app is stopped.
-            using var upload = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 22_050 * 90, seed: 7), "long.wav", extraQuery: $"&decodeProfile={SynthCaptures.Profile}");
+            // Thirty minutes of tone: long enough that the decode (about 40 M samples, seconds even on an idle
+            // machine) is still going when the app is stopped, with progress reported on the way.
+            using var upload = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 22_050 * 1800, seed: 7), "long.wav", extraQuery: $"&decodeProfile={SynthCaptures.Profile}");
             await ApiClient.EnsureAsync(upload, HttpStatusCode.Created);
             var uploaded = (await upload.Content.ReadFromJsonAsync<UploadResult>(ApiClient.Json))!;
             jobId = uploaded.DecodeJob!.Id;

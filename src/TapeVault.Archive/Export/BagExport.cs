@@ -49,48 +49,13 @@ public sealed class BagExport(ArchiveDbContext db, ContentStore store, ExportOpt
             }
 
             identifiers.Add(dossier.Item.AccessionNumber);
-            foreach (var capture in dossier.Captures)
+            var stored = dossier.Captures
+                .Select(c => (c.Sha256, Path: $"{folder}/originals/capture-{c.Id}-{PathPart(c.OriginalFileName)}", What: $"the original of capture {c.Id}"))
+                .Concat(dossier.Images.Select(i => (i.Sha256, Path: $"{folder}/images/{PathPart(dossier.Item.AccessionNumber)}-v{i.Version}{TapeImageContainer.Extension}", What: $"tape image version {i.Version}")));
+            foreach (var (sha256, path, what) in stored)
             {
-                if (!store.Exists(capture.Sha256))
-                {
-                    throw new ArchiveConflictException($"Item {dossier.Item.AccessionNumber}: the original of capture {capture.Id} is missing from the store; run a fixity audit before exporting.");
-                }
-
-                var path = $"{folder}/originals/capture-{capture.Id}-{PathPart(capture.OriginalFileName)}";
-                var (hash, length) = await sink.WriteAsync(path, async s =>
-                {
-                    await using var source = store.OpenRead(capture.Sha256);
-                    await source.CopyToAsync(s, cancellation).ConfigureAwait(false);
-                }, cancellation).ConfigureAwait(false);
-                if (hash != capture.Sha256)
-                {
-                    throw new ArchiveConflictException($"Item {dossier.Item.AccessionNumber}: the original of capture {capture.Id} no longer matches its SHA-256; run a fixity audit before exporting.");
-                }
-
-                manifest.Add((hash, path));
-                bytes += length;
-            }
-
-            foreach (var image in dossier.Images)
-            {
-                if (!store.Exists(image.Sha256))
-                {
-                    throw new ArchiveConflictException($"Item {dossier.Item.AccessionNumber}: tape image version {image.Version} is missing from the store; run a fixity audit before exporting.");
-                }
-
-                var path = $"{folder}/images/{PathPart(dossier.Item.AccessionNumber)}-v{image.Version}{TapeImageContainer.Extension}";
-                var (hash, length) = await sink.WriteAsync(path, async s =>
-                {
-                    await using var source = store.OpenRead(image.Sha256);
-                    await source.CopyToAsync(s, cancellation).ConfigureAwait(false);
-                }, cancellation).ConfigureAwait(false);
-                if (hash != image.Sha256)
-                {
-                    throw new ArchiveConflictException($"Item {dossier.Item.AccessionNumber}: tape image version {image.Version} no longer matches its SHA-256; run a fixity audit before exporting.");
-                }
-
-                manifest.Add((hash, path));
-                bytes += length;
+                manifest.Add((sha256, path));
+                bytes += await CopyStoredAsync(sink, sha256, path, $"Item {dossier.Item.AccessionNumber}: {what}", cancellation).ConfigureAwait(false);
             }
 
             foreach (var (fileName, value) in new[] { ("item.json", dossier.ToMetadata()), ("events.json", dossier.ToEventHistory()) })
@@ -138,6 +103,24 @@ public sealed class BagExport(ArchiveDbContext db, ContentStore store, ExportOpt
         var cleaned = new string(chars).Trim().Trim('.');
         cleaned = cleaned.Replace("..", "_", StringComparison.Ordinal);
         return cleaned.Length == 0 ? "_" : cleaned.Length > 120 ? cleaned[..120] : cleaned;
+    }
+
+    /// <summary>Copies a stored object into the bag, checking on the way that it still has its SHA-256; returns its length.</summary>
+    private async Task<long> CopyStoredAsync(BagSink sink, string sha256, string path, string what, CancellationToken cancellation)
+    {
+        if (!store.Exists(sha256))
+        {
+            throw new ArchiveConflictException($"{what} is missing from the store; run a fixity audit before exporting.");
+        }
+
+        var (hash, length) = await sink.WriteAsync(path, async s =>
+        {
+            await using var source = store.OpenRead(sha256);
+            await source.CopyToAsync(s, cancellation).ConfigureAwait(false);
+        }, cancellation).ConfigureAwait(false);
+        return hash == sha256
+            ? length
+            : throw new ArchiveConflictException($"{what} no longer matches its SHA-256; run a fixity audit before exporting.");
     }
 
     private async Task<List<int>> ItemIdsAsync(BagScope scope, CancellationToken cancellation)

@@ -109,7 +109,7 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
 
         string message = objectKnown
             ? $"These bytes were already in the archive; capture {capture.Id} links the stored original instead of storing it again."
-            : $"Stored as capture {capture.Id} ({ObjectTooLargeException.FormatBytes(staged.Size)}, SHA-256 {staged.Sha256[..12]}…).";
+            : $"Stored as capture {capture.Id} ({ByteSizes.Format(staged.Size)}, SHA-256 {staged.Sha256[..12]}…).";
         return new IngestResult(capture, Duplicate: false, LinkedExistingObject: objectKnown, message);
     }
 

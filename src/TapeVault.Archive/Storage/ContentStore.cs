@@ -265,11 +265,15 @@ public sealed class StagedObject : IDisposable
 }
 
 public sealed class ObjectTooLargeException(long maxBytes)
-    : Exception($"The upload is larger than the limit of {FormatBytes(maxBytes)}.")
+    : Exception($"The upload is larger than the limit of {ByteSizes.Format(maxBytes)}.")
 {
     public long MaxBytes { get; } = maxBytes;
+}
 
-    public static string FormatBytes(long bytes) => bytes switch
+/// <summary>Sizes as people read them (binary units, two decimals at most).</summary>
+public static class ByteSizes
+{
+    public static string Format(long bytes) => bytes switch
     {
         >= 1L << 30 => $"{bytes / (double)(1L << 30):0.##} GiB",
         >= 1L << 20 => $"{bytes / (double)(1L << 20):0.##} MiB",

@@ -209,7 +209,7 @@ public static class ArchiveApi
     {
         if (request.ContentLength is { } declared && declared > options.MaxUploadBytes)
         {
-            throw new ArchiveInputException($"The upload is larger than the limit of {ObjectTooLargeException.FormatBytes(options.MaxUploadBytes)}.");
+            throw new ArchiveInputException($"The upload is larger than the limit of {ByteSizes.Format(options.MaxUploadBytes)}.");
         }
 
         // The store counts the bytes against the limit itself; the server's small default limit is for other requests.

@@ -14,6 +14,8 @@ namespace TapeVault.Web.Api;
 /// <summary>The reads behind both the pages and the API, so both show the same thing.</summary>
 public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles, UserManager<IdentityUser> users, ContentStore store)
 {
+    private readonly Dictionary<string, TapeImage> imagesRead = new(StringComparer.Ordinal);
+
     public async Task<IReadOnlyList<CollectionSummary>> CollectionsAsync(CancellationToken cancellation = default) =>
         await db.Collections.AsNoTracking().OrderBy(c => c.Name)
             .Select(c => new CollectionSummary(c.Id, c.Name, c.Description, c.Items.Count, c.CreatedUtc))
@@ -188,7 +190,20 @@ public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles,
         return new BlockMap(newest?.Id, columns, rows);
     }
 
+    /// <summary>Reads a stored container once per request: the item page asks for the newest image and its block map.</summary>
     private async Task<TapeImage> ReadImageAsync(string sha256, CancellationToken cancellation)
+    {
+        if (imagesRead.TryGetValue(sha256, out var known))
+        {
+            return known;
+        }
+
+        var image = await ReadStoredImageAsync(sha256, cancellation).ConfigureAwait(false);
+        imagesRead[sha256] = image;
+        return image;
+    }
+
+    private async Task<TapeImage> ReadStoredImageAsync(string sha256, CancellationToken cancellation)
     {
         if (!store.Exists(sha256))
         {

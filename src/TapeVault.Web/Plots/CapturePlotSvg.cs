@@ -46,11 +46,11 @@ public static class CapturePlotSvg
                 double x1 = Math.Max(frame.X(b.EndSeconds), x0 + 2);
                 string chosen = b.Position == selected ? " plot-block-selected" : string.Empty;
                 svg.Append($"<a href=\"{Escape(link(b))}\" class=\"plot-block-link\">");
-                svg.Append($"<title>Block position {b.Position} ({Escape(b.Identity)}): {StatusWord(b.Status)}, {b.StartSeconds:0.00}–{b.EndSeconds:0.00} s. Select to zoom.</title>");
+                svg.Append($"<title>Block position {b.Position} ({Escape(b.Identity)}): {StatusText.Word(b.Status)}, {b.StartSeconds:0.00}–{b.EndSeconds:0.00} s. Select to zoom.</title>");
                 svg.Append($"<rect class=\"plot-block plot-block-{Escape(b.Status)}{chosen}\" x=\"{N(x0)}\" y=\"{N(frame.Top)}\" width=\"{N(x1 - x0)}\" height=\"{N(frame.Height)}\"/>");
                 if (blocks.Count <= 60)
                 {
-                    svg.Append($"<text class=\"plot-block-label\" x=\"{N((x0 + x1) / 2)}\" y=\"{N(frame.Top - 6)}\" text-anchor=\"middle\">{StatusSymbol(b.Status)}</text>");
+                    svg.Append($"<text class=\"plot-block-label\" x=\"{N((x0 + x1) / 2)}\" y=\"{N(frame.Top - 6)}\" text-anchor=\"middle\">{StatusText.Symbol(b.Status)}</text>");
                 }
 
                 svg.Append("</a>");
@@ -269,7 +269,7 @@ public static class CapturePlotSvg
                 continue;
             }
 
-            string tip = $"<title>Position {p.Position} ({Escape(p.Identity)}) at {p.StartSeconds:0.00} s: {(p.Speed - 1) * 100:+0.00;-0.00;0.00} %, {StatusWord(p.Status)}</title>";
+            string tip = $"<title>Position {p.Position} ({Escape(p.Identity)}) at {p.StartSeconds:0.00} s: {(p.Speed - 1) * 100:+0.00;-0.00;0.00} %, {StatusText.Word(p.Status)}</title>";
             svg.Append(p.Status == "clean"
                 ? $"<circle class=\"plot-point plot-point-clean\" cx=\"{N(x)}\" cy=\"{N(y)}\" r=\"{N(r)}\">{tip}</circle>"
                 : $"<path class=\"plot-point plot-point-other\" d=\"M{N(x - 4)} {N(y - 4)}L{N(x + 4)} {N(y + 4)}M{N(x - 4)} {N(y + 4)}L{N(x + 4)} {N(y - 4)}\">{tip}</path>");
@@ -288,21 +288,6 @@ public static class CapturePlotSvg
         return Close(svg);
     }
 
-    public static string StatusSymbol(string status) => status switch
-    {
-        "clean" => "✓",
-        "failed" => "✗",
-        "unchecked" => "○",
-        _ => "?",
-    };
-
-    public static string StatusWord(string status) => status switch
-    {
-        "clean" => "clean",
-        "failed" => "failed",
-        "unchecked" => "no checksum",
-        _ => status,
-    };
 
     /// <summary>Time ticks and the axis title: minutes and seconds for long spans, seconds with as many decimals as the step needs otherwise.</summary>
     public static (IReadOnlyList<(double, string)> Ticks, string Title) TimeTicks(double from, double to)

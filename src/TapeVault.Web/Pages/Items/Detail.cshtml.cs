@@ -97,19 +97,6 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
         Exports = await queries.ExportsAsync(null, id, HttpContext.RequestAborted).ConfigureAwait(false);
     }
 
-    /// <summary>The symbol and word for a status, so that no cell says it by colour alone.</summary>
-    public static (string Symbol, string Word) Symbol(string status) => status switch
-    {
-        "clean" => ("✓", "clean"),
-        "failed" => ("✗", "failed"),
-        "unchecked" => ("○", "no checksum"),
-        "voted" => ("≈", "voted"),
-        "repaired" => ("⚒", "repaired"),
-        "missing" => ("–", "missing"),
-        "none" => ("·", "not read"),
-        _ => ("?", status),
-    };
-
     public sealed class DecodeForm
     {
         public int CaptureId { get; set; }
