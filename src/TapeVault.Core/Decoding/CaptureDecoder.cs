@@ -43,8 +43,11 @@ public static class CaptureDecoder
         }
 
         // A decoder that throws stops the worker, which then returns no buffers: the token frees this thread too.
+        // The worker blocks on the queue for the whole decode, so it gets a thread of its own rather than one of the
+        // pool's, which a web app needs for its requests.
         using var stop = CancellationTokenSource.CreateLinkedTokenSource(options.Cancellation);
-        var worker = Task.Run(() =>
+        var worker = Task.Factory.StartNew(
+            () =>
         {
             try
             {
@@ -59,7 +62,10 @@ public static class CaptureDecoder
                 stop.Cancel();
                 throw;
             }
-        });
+        },
+            CancellationToken.None,
+            TaskCreationOptions.LongRunning,
+            TaskScheduler.Default);
         try
         {
             while (true)
