@@ -41,8 +41,10 @@ if (section is "all" or "ber")
 if (section is "all" or "recovery")
 {
     // An optional first seed (recovery 101) measures on tapes other than those the stream constants were fitted on.
+    // An optional profile id after it (recovery 1 biphase-1200) measures that profile alone.
     int first = section == "recovery" && args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 1;
-    Recovery.Run(work, first, seeds: 4);
+    string? only = section == "recovery" && args.Length > 2 ? args[2] : null;
+    Recovery.Run(work, first, seeds: 4, only);
 }
 
 if (section is "all" or "calibration")

@@ -12,12 +12,12 @@ namespace TapeVault.Bench;
 public static class Recovery
 {
     /// <summary>Tapes <paramref name="first"/> onwards; a format with headers has fewer units per tape, so it gets twice as many tapes.</summary>
-    public static List<ScoredTape> Corpus(string work, int first, int count) => [.. Decoded(work, first, count).Select(t => RecoveryCorpus.Score(t))];
+    public static List<ScoredTape> Corpus(string work, int first, int count, string? only = null) => [.. Decoded(work, first, count, only).Select(t => RecoveryCorpus.Score(t))];
 
-    public static List<RecoveryCorpus.DecodedTape> Decoded(string work, int first, int count)
+    public static List<RecoveryCorpus.DecodedTape> Decoded(string work, int first, int count, string? only = null)
     {
         var tapes = new List<RecoveryCorpus.DecodedTape>();
-        foreach (var profile in ProfileCatalog.BuiltIn.All)
+        foreach (var profile in ProfileCatalog.BuiltIn.All.Where(p => only is null || p.Id == only))
         {
             int n = profile.Layout.IsStream ? count : 2 * count;
             foreach (var level in RecoveryCorpus.Levels)
@@ -32,11 +32,11 @@ public static class Recovery
         return tapes;
     }
 
-    public static void Run(string work, int first, int seeds)
+    public static void Run(string work, int first, int seeds, string? only = null)
     {
         var stopwatch = Stopwatch.StartNew();
         Console.WriteLine($"Tapes of seeds {first} onwards.");
-        var tapes = Corpus(work, first, seeds);
+        var tapes = Corpus(work, first, seeds, only);
         Print(tapes, seeds);
         Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s.");
         Console.WriteLine();

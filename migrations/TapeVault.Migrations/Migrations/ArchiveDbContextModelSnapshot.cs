@@ -278,6 +278,9 @@ namespace TapeVault.Migrations.Migrations
                         .IsRequired()
                         .HasColumnType("BLOB");
 
+                    b.Property<byte[]>("ChecksumErrorOdds")
+                        .HasColumnType("BLOB");
+
                     b.Property<double>("Confidence")
                         .HasColumnType("REAL");
 
@@ -298,6 +301,9 @@ namespace TapeVault.Migrations.Migrations
 
                     b.Property<byte[]>("Header")
                         .IsRequired()
+                        .HasColumnType("BLOB");
+
+                    b.Property<byte[]>("HeaderErrorOdds")
                         .HasColumnType("BLOB");
 
                     b.Property<string>("IdentityKey")

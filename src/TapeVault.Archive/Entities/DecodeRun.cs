@@ -97,6 +97,12 @@ public sealed class CandidateRecord
     /// <summary>Per payload byte, little-endian float32: the estimated error odds.</summary>
     public required byte[] ByteErrorOdds { get; set; }
 
+    /// <summary>Per header byte, little-endian float32: the estimated error odds (null in rows stored before they were kept).</summary>
+    public byte[]? HeaderErrorOdds { get; set; }
+
+    /// <summary>Per check-value byte, little-endian float32: the estimated error odds (null in rows stored before they were kept).</summary>
+    public byte[]? ChecksumErrorOdds { get; set; }
+
     /// <summary>Per payload byte, little-endian float64: the time in the capture.</summary>
     public required byte[] ByteSeconds { get; set; }
 }

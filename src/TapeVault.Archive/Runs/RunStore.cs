@@ -73,6 +73,8 @@ public static class RunStore
             Payload = [.. c.Payload],
             ByteMargins = MemoryMarshal.AsBytes(c.ByteMargins.AsSpan()).ToArray(),
             ByteErrorOdds = MemoryMarshal.AsBytes(c.ByteErrorOdds.AsSpan()).ToArray(),
+            HeaderErrorOdds = MemoryMarshal.AsBytes(c.HeaderErrorOdds.AsSpan()).ToArray(),
+            ChecksumErrorOdds = MemoryMarshal.AsBytes(c.ChecksumErrorOdds.AsSpan()).ToArray(),
             ByteSeconds = MemoryMarshal.AsBytes(c.ByteSeconds.AsSpan()).ToArray(),
         };
     }
@@ -99,6 +101,8 @@ public static class RunStore
             Confidence = r.Confidence,
             ByteMargins = ImmutableArray.Create(MemoryMarshal.Cast<byte, float>(r.ByteMargins).ToArray()),
             ByteErrorOdds = ImmutableArray.Create(MemoryMarshal.Cast<byte, float>(r.ByteErrorOdds).ToArray()),
+            HeaderErrorOdds = r.HeaderErrorOdds is null ? [] : ImmutableArray.Create(MemoryMarshal.Cast<byte, float>(r.HeaderErrorOdds).ToArray()),
+            ChecksumErrorOdds = r.ChecksumErrorOdds is null ? [] : ImmutableArray.Create(MemoryMarshal.Cast<byte, float>(r.ChecksumErrorOdds).ToArray()),
             ByteSeconds = ImmutableArray.Create(MemoryMarshal.Cast<byte, double>(r.ByteSeconds).ToArray()),
             Decisions = r.Decisions,
             AmbiguousDecisions = r.AmbiguousDecisions,

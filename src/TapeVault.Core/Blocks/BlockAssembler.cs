@@ -21,6 +21,7 @@ public sealed class BlockAssembler
     private readonly List<int> _byteFirstDecision = new(512);
     private readonly List<double> _byteSample = new(512);
     private int _framingErrors;
+    private int _erasedBits;
     private int _expectedTotal;
     private double _startSample;
     private double _levelSum;
@@ -53,6 +54,7 @@ public sealed class BlockAssembler
         _byteSample.Clear();
         Decisions.Clear();
         _framingErrors = 0;
+        _erasedBits = 0;
         _levelSum = 0;
         _levelCount = 0;
         _speedSum = 0;
@@ -67,6 +69,15 @@ public sealed class BlockAssembler
         _levelSum += envelope;
         _levelCount++;
     }
+
+    /// <summary>
+    /// A bit of the block was not read at all (a bridged dropout) and stands as a guess. A checksum that holds over
+    /// guessed bits vouches for them only as far as its false-match odds reach: n guesses are 2^n tries.
+    /// </summary>
+    public void NoteErasedBit() => _erasedBits++;
+
+    // Beyond these odds of a false match among the guesses, a holding checksum proves nothing.
+    private const double MostGuessedMatchOdds = 0.01;
 
     public void NoteSpeed(double speed)
     {
@@ -222,11 +233,20 @@ public sealed class BlockAssembler
             var covered = _layout.Checksum.Covers == ChecksumCoverage.Payload ? payload : all.AsSpan(0, payloadEnd);
             uint computed = _checksum.Compute(covered) & WidthMask(checksumBytes);
             status = computed == stored ? BlockStatus.Clean : BlockStatus.Failed;
+            if (status == BlockStatus.Clean && Math.ScaleB(_checksum.FalseMatchProbability, _erasedBits) > MostGuessedMatchOdds)
+            {
+                // Erasures guessed as zeros can make a checksum's own codeword (all zeros passes a CRC with no
+                // initial value): an unproven reading, left for the merge to vote on.
+                status = BlockStatus.Failed;
+            }
+
             // A failed block whose (damaged) header claims no payload has nothing that could be right: trusting its empty
             // payload would mark a misread as certain.
             confidence = status == BlockStatus.Clean
                 ? PosteriorGivenMatch(logPayloadOk + logRestOk, _checksum.FalseMatchProbability)
-                : payloadEnd == headerBytes ? 0 : PayloadRightGivenMismatch(logPayloadOk, logRestOk);
+                : payloadEnd == headerBytes ? 0
+                : computed == stored ? Math.Exp(logPayloadOk)
+                : PayloadRightGivenMismatch(logPayloadOk, logRestOk);
         }
 
         if (_framingErrors > 0 && status == BlockStatus.Clean)
@@ -246,6 +266,18 @@ public sealed class BlockAssembler
         }
 
         double level = _levelCount > 0 ? _levelSum / _levelCount : 0;
+        var headerOdds = new float[headerBytes];
+        for (int b = 0; b < headerBytes; b++)
+        {
+            headerOdds[b] = (float)(1 - Math.Exp(byteLogOk[b]));
+        }
+
+        var checksumOdds = new float[stored is null ? 0 : byteCount - payloadEnd];
+        for (int b = 0; b < checksumOdds.Length; b++)
+        {
+            checksumOdds[b] = (float)(1 - Math.Exp(byteLogOk[payloadEnd + b]));
+        }
+
         _output.Add(new BlockCandidate
         {
             SettingIndex = _settingIndex,
@@ -258,6 +290,8 @@ public sealed class BlockAssembler
             Confidence = Math.Clamp(confidence, 0, 1),
             ByteMargins = ImmutableArray.Create(payloadMargins),
             ByteErrorOdds = ImmutableArray.Create(payloadOdds),
+            HeaderErrorOdds = ImmutableArray.Create(headerOdds),
+            ChecksumErrorOdds = ImmutableArray.Create(checksumOdds),
             ByteSeconds = ImmutableArray.Create(payloadSeconds),
             Decisions = Decisions.Count,
             AmbiguousDecisions = ambiguous,

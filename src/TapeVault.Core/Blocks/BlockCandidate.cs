@@ -58,6 +58,12 @@ public sealed record BlockCandidate
     /// <summary>Per payload byte: the estimated probability that it is wrong.</summary>
     public required ImmutableArray<float> ByteErrorOdds { get; init; }
 
+    /// <summary>Per header byte: the estimated probability that it is wrong (empty in readings stored before these were kept).</summary>
+    public ImmutableArray<float> HeaderErrorOdds { get; init; } = [];
+
+    /// <summary>Per byte of the check value read: the estimated probability that it is wrong (empty when none was read, or for older readings).</summary>
+    public ImmutableArray<float> ChecksumErrorOdds { get; init; } = [];
+
     /// <summary>Per payload byte: its time in the capture, in seconds.</summary>
     public required ImmutableArray<double> ByteSeconds { get; init; }
 

@@ -50,7 +50,7 @@ public static class BlockPositioner
             {
                 key = FindOverlapping(trusted, c)?.Identity.Key
                     ?? (copies > 1 ? FindNeighbouringCopy(trusted, c)?.Identity.Key : null)
-                    ?? (c.Truncated && c.Payload.IsEmpty ? FindNearest(trusted, c)?.Identity.Key : null)
+                    ?? (c.Truncated && c.Payload.IsEmpty && !NamesItself(c) ? FindNearest(trusted, c)?.Identity.Key : null)
                     ?? c.Identity.Key;
             }
 
@@ -66,6 +66,7 @@ public static class BlockPositioner
         var stretchesByKey = new Dictionary<string, List<int>>(StringComparer.Ordinal);
         var readings = new List<(double Start, double End, int Stretch)>();
         var positionOf = new int[keyed.Count];
+        var wholeBySetting = new Dictionary<(int Stretch, int Setting), int>();
         for (int i = 0; i < keyed.Count; i++)
         {
             var (candidate, key) = keyed[i];
@@ -76,7 +77,10 @@ public static class BlockPositioner
                 stretchesByKey.Add(key, ofKey);
             }
 
+            // One setting reads each copy of a block whole once: another whole reading of the same identity by the
+            // same setting, after as many as the format writes, is another block whose header was misread alike.
             int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnd[ofKey[^1]] + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds)
+                && (candidate.Truncated || wholeBySetting.GetValueOrDefault((ofKey[^1], candidate.SettingIndex)) < Math.Max(1, copies))
                 ? ofKey[^1]
                 : -1;
             if (found < 0)
@@ -88,6 +92,11 @@ public static class BlockPositioner
             else
             {
                 stretchEnd[found] = Math.Max(stretchEnd[found], candidate.EndSeconds);
+            }
+
+            if (!candidate.Truncated)
+            {
+                wholeBySetting[(found, candidate.SettingIndex)] = wholeBySetting.GetValueOrDefault((found, candidate.SettingIndex)) + 1;
             }
 
             // Candidates arrive in order of start (keyed was built so), so these starts ascend.
@@ -230,6 +239,9 @@ public static class BlockPositioner
     /// For a reading cut off inside its header (so it has no identity to go by, and no payload to offer): the clean
     /// block nearest to it in time, within two block lengths.
     /// </summary>
+    /// <summary>Whether a reading's header was read far enough to give a field of its identity: then it keeps that identity rather than a neighbour's.</summary>
+    private static bool NamesItself(BlockCandidate c) => c.Identity.BlockNumber is not null || c.Identity.FileId is not null || c.Identity.FileName is not null;
+
     private static BlockCandidate? FindNearest(List<BlockCandidate> trusted, BlockCandidate c)
     {
         BlockCandidate? best = null;

@@ -38,6 +38,8 @@ internal sealed class BlockMerge
 
     private BlockLayout Layout => _profile.Layout;
 
+    private bool BridgesOnCellClock => _profile.Family == FormatFamily.Biphase;
+
     /// <summary>
     /// Anchors for aligning passes: each clean block's bytes at its start, in nominal tape seconds. The bytes, not
     /// only the identity: headers that carry just a block number repeat it in every file.
@@ -72,6 +74,7 @@ internal sealed class BlockMerge
         var blocks = new List<ImageBlock>(groups.Count);
         foreach (var group in groups)
         {
+
             if (ResolvePosition(group) is { } block)
             {
                 blocks.Add(block);
@@ -323,13 +326,13 @@ internal sealed class BlockMerge
             bool lostStep = false;
             for (int i = 0; i < bytes.Length; i++)
             {
-                int payloadIndex = i - candidate.Header.Length;
-                errors[i] = payloadIndex >= 0 && payloadIndex < candidate.ByteErrorOdds.Length ? candidate.ByteErrorOdds[payloadIndex] : rest;
+                errors[i] = ByteError(candidate, i, rest);
 
                 // A byte more likely wrong than right is where a dropout broke the reading: a decoder that reads on
                 // through it may have slipped a bit, so the bytes after it can be confidently wrong. They keep a
-                // weak vote.
-                if (lostStep)
+                // weak vote. The biphase decoder bridges a dropout on its cell clock instead (BiphaseDecoder), so its
+                // bytes after one stay where they were written and keep their own odds.
+                if (lostStep && !BridgesOnCellClock)
                 {
                     errors[i] = Math.Max(errors[i], SlippedByteError);
                 }
@@ -458,7 +461,22 @@ internal sealed class BlockMerge
         return value;
     }
 
-    /// <summary>A reading's typical byte error: the mean of its payload's, standing in for its header and check bytes, which carry none of their own.</summary>
+    /// <summary>The error odds of byte <paramref name="index"/> of a reading laid out as on tape; <paramref name="rest"/> where the reading kept none.</summary>
+    private static float ByteError(BlockCandidate c, int index, float rest)
+    {
+        int payloadStart = c.Header.Length;
+        int checksumStart = payloadStart + c.Payload.Length;
+        if (index < payloadStart)
+        {
+            return At(c.HeaderErrorOdds, index);
+        }
+
+        return index < checksumStart ? At(c.ByteErrorOdds, index - payloadStart) : At(c.ChecksumErrorOdds, index - checksumStart);
+
+        float At(ImmutableArray<float> odds, int i) => i < odds.Length ? odds[i] : rest;
+    }
+
+    /// <summary>A reading's typical byte error: the mean of its payload's, standing in for header and check bytes of readings that kept none of their own.</summary>
     private static double MeanError(BlockCandidate c)
     {
         if (c.ByteErrorOdds.IsEmpty)

@@ -59,8 +59,10 @@ public static class TapeMerger
     }
 
     /// <summary>
-    /// Each pass's timeline. The pass with most anchors is the reference; every other is fitted to it. A pass with
-    /// no anchor in common keeps its own start lined up with the reference's.
+    /// Each pass's timeline. The pass with most anchors is the reference. The others join one at a time, the one with
+    /// most anchors in common first, each fitted to the anchors of every pass placed before it (mapped onto the
+    /// common timeline): two passes that share no clean block may each share one with a third. A pass with no anchor
+    /// in common with any keeps its own start lined up with the reference's.
     /// </summary>
     public static PassTimeline[] Align(IReadOnlyList<MergePass> passes, FormatProfile profile)
     {
@@ -70,6 +72,12 @@ public static class TapeMerger
         double character = StreamMerge.CharacterSeconds(passes);
         var speeds = passes.Select(MedianSpeed).ToArray();
         var anchors = passes.Select((p, i) => stream ? StreamMerge.Anchors(p, speeds[i], character) : BlockMerge.Anchors(p, speeds[i])).ToArray();
+        var timelines = new PassTimeline?[passes.Count];
+        if (passes.Count == 0)
+        {
+            return [];
+        }
+
         int reference = 0;
         for (int i = 1; i < passes.Count; i++)
         {
@@ -81,20 +89,35 @@ public static class TapeMerger
 
         double Start(int i) => passes[i].Candidates.Count == 0 ? 0 : speeds[i] * passes[i].Candidates.Min(c => c.StartSeconds);
         double tolerance = stream ? 1.5 * character : 0.3;
-        var timelines = new PassTimeline[passes.Count];
-        for (int i = 0; i < passes.Count; i++)
+        timelines[reference] = new PassTimeline(speeds[reference], 1, 0);
+        var placed = new List<(long Feature, double Time)>(anchors[reference]);
+        while (Array.IndexOf(timelines, null) >= 0)
         {
-            if (i == reference)
+            int next = -1;
+            (double Scale, double Offset, int Inliers) bestFit = default;
+            for (int i = 0; i < passes.Count; i++)
             {
-                timelines[i] = new PassTimeline(speeds[i], 1, 0);
-                continue;
+                if (timelines[i] is not null)
+                {
+                    continue;
+                }
+
+                var fit = PassTimeline.Fit(placed, anchors[i], tolerance, Start(reference) - Start(i));
+                if (next < 0 || fit.Inliers > bestFit.Inliers)
+                {
+                    next = i;
+                    bestFit = fit;
+                }
             }
 
-            var (scale, offset, _) = PassTimeline.Fit(anchors[reference], anchors[i], tolerance, Start(reference) - Start(i));
-            timelines[i] = new PassTimeline(speeds[i], scale, offset);
+            var timeline = new PassTimeline(speeds[next], bestFit.Scale, bestFit.Offset);
+            timelines[next] = timeline;
+
+            // Anchors are in the pass's nominal seconds (its capture time scaled by its speed); the fit maps those on.
+            placed.AddRange(anchors[next].Select(a => (a.Feature, (timeline.Scale * a.Time) + timeline.Offset)));
         }
 
-        return timelines;
+        return [.. timelines.Select(t => t!.Value)];
     }
 
     private static double MedianSpeed(MergePass pass)

@@ -11,12 +11,34 @@ namespace TapeVault.Core.Symbols;
 /// bits add one more at the cell boundary. Intervals between transitions are therefore a half or a whole cell.
 /// The lead-in of zeros tells which transitions are mid-cell ones (those in the zero direction), and the sync
 /// pattern starts a block. Biphase needs every transition, so it reads both edges whatever the setting counts.
+/// <para>
+/// A dropout inside a block breaks the pattern. Rather than give the rest of the block up, the decoder bridges it:
+/// it keeps the cell clock of the last mid-cell transition read before the break, waits for a run of transitions
+/// that all fall on that clock's grid again, and counts the cells in between as erased bits (margin 0). The bits
+/// after the dropout then sit where they belong in the block, so another pass, or the checksum, can fill the
+/// erasures.
+/// </para>
 /// </summary>
 public sealed class BiphaseDecoder : ISymbolDecoder
 {
     private const int Half = 0;
     private const int Whole = 1;
-    private const int InvalidToLoseBlock = 3;
+
+    // A transition counts as on the grid within this fraction of a half cell; the decision boundary between a
+    // mid-cell and a boundary transition lies at 0.5, and clock drift over a long dropout eats into the rest.
+    private const double GridTolerance = 0.3;
+
+    // How far, in cells, a transition read normally may stray from the cell clock before it counts as noise.
+    private const double ClockTolerance = 0.25;
+
+    // Consecutive cells whose mid-cell transitions fall on the grid, in the biphase pattern, before the signal counts
+    // as back. A single noise edge lands on the grid often (the window is 60 % of every half cell); a byte's worth of
+    // cells in a row, each with its transition, is what a signal does. The count is our choice, checked by the
+    // recovery benchmark.
+    private const int MidsToResynchronise = 8;
+
+    // Longer than the longest dropout worth bridging; past it the clock has drifted too far to place bits.
+    private const double LongestBridgeCells = 120;
 
     private readonly BiphaseEncoding _encoding;
     private readonly PulseClassifier _classifier;
@@ -33,7 +55,13 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     private int _bitFirstDecision = -1;
     private ulong _shift;
     private int _bitsSinceLeadIn;
-    private int _recentInvalid;
+    private CellClock _clock;
+    private bool _bridging;
+    private double _anchorSample;
+    private double _cellSamples;
+    private readonly BridgeEdge[] _bridge = new BridgeEdge[(2 * MidsToResynchronise) + 2];
+    private int _bridgeCount;
+    private int _bridgeMids;
 
     public BiphaseDecoder(FormatProfile profile, double sampleRate, BlockAssembler assembler)
     {
@@ -58,6 +86,46 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         Data,
     }
 
+    /// <summary>
+    /// The cell clock of a block: where the last mid-cell transition fell and how long a cell lasts, smoothed over the
+    /// transitions that kept time (a first-order loop on phase and a slower one on period), so that one late edge at
+    /// the start of a dropout moves neither much.
+    /// </summary>
+    private struct CellClock
+    {
+        private const double PhaseGain = 0.25;
+        private const double PeriodGain = 0.02;
+
+        public double LastMid { get; private set; }
+
+        public double Cell { get; private set; }
+
+        public bool Running { get; private set; }
+
+        public void Start(double mid, double cell)
+        {
+            LastMid = mid;
+            Cell = cell;
+            Running = true;
+        }
+
+        public void Stop() => Running = false;
+
+        public readonly double CellsSince(double sample) => (sample - LastMid) / Cell;
+
+        /// <summary>A mid-cell transition that kept time, a whole number of cells after the last.</summary>
+        public void Keep(double mid)
+        {
+            double cells = Math.Max(1, Math.Round(CellsSince(mid)));
+            double error = mid - (LastMid + (cells * Cell));
+            LastMid += (cells * Cell) + (PhaseGain * error);
+            Cell += PeriodGain * error / cells;
+        }
+    }
+
+    /// <summary>A transition seen while bridging: its place on the old clock's grid in half cells (even: mid-cell).</summary>
+    private readonly record struct BridgeEdge(long HalfCell, double Sample, bool Bit);
+
     public void OnEdges(ReadOnlySpan<Edge> edges)
     {
         foreach (var edge in edges)
@@ -70,8 +138,14 @@ public sealed class BiphaseDecoder : ISymbolDecoder
 
             double seconds = (edge.Sample - _lastEdge) / _sampleRate;
             _lastEdge = edge.Sample;
-            var decision = _classifier.Classify(seconds, _speed.Speed);
             bool bit = edge.Rising != _encoding.OneIsFalling;
+            if (_bridging)
+            {
+                Bridge(edge.Sample, bit);
+                continue;
+            }
+
+            var decision = _classifier.Classify(seconds, _speed.Speed);
             switch (_mode)
             {
                 case Mode.Hunting:
@@ -102,6 +176,8 @@ public sealed class BiphaseDecoder : ISymbolDecoder
 
         _mode = Mode.Hunting;
         _run = 0;
+        _bridging = false;
+        _clock.Stop();
     }
 
     private void Hunt(PulseDecision decision, double seconds, bool bit)
@@ -140,23 +216,33 @@ public sealed class BiphaseDecoder : ISymbolDecoder
 
         if (!decision.IsValid || (decision.Class == Whole && _atBoundary))
         {
-            // A whole cell after a boundary, or no class at all, breaks the pattern: the cell phase is lost.
-            if (_mode == Mode.Sync || ++_recentInvalid >= InvalidToLoseBlock)
+            // A whole cell after a boundary, or no class at all, breaks the pattern: the cell phase is lost. Before
+            // a block there is nothing to keep; inside one, bridge from the last mid-cell transition.
+            if (_mode == Mode.Sync || !_clock.Running)
             {
                 Lose(sample);
                 return;
             }
 
-            _assembler.Decisions.Add(0, 1, 1);
-            _atBoundary = false;
-            EmitBit(bit, sample);
+            StartBridge();
+            Bridge(sample, bit);
             return;
         }
 
         if (_mode == Mode.Data)
         {
+            // Pulses that classify may still be noise at the edge of a dropout; counted against the cell clock of the
+            // last mid-cell transition they do not fit, and bridging from that transition keeps the bit count.
+            double cells = _clock.CellsSince(sample);
+            double expected = decision.Class == Half && !_atBoundary ? 0.5 : 1;
+            if (Math.Abs(cells - expected) > ClockTolerance)
+            {
+                StartBridge();
+                Bridge(sample, bit);
+                return;
+            }
+
             _assembler.Decisions.Add(decision.Distance, decision.Residual, decision.Scale);
-            _recentInvalid = Math.Max(0, _recentInvalid - 1);
         }
 
         if (decision.Distance > 0.5 * decision.Scale)
@@ -172,6 +258,11 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         }
 
         _atBoundary = false;
+        if (_mode == Mode.Data)
+        {
+            _clock.Keep(sample);
+        }
+
         EmitBit(bit, sample);
     }
 
@@ -186,7 +277,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
             if ((_shift & _syncMask) == _syncPattern)
             {
                 _mode = Mode.Data;
-                _recentInvalid = 0;
+                _clock.Start(sample, _encoding.CellSeconds * _sampleRate / _speed.Speed);
                 _framer.Reset();
                 _assembler.Begin(sample);
             }
@@ -205,6 +296,136 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         {
             _mode = Mode.Hunting;
             _run = 0;
+            _clock.Stop();
         }
+    }
+
+    private void StartBridge()
+    {
+        _bridging = true;
+        _anchorSample = _clock.LastMid;
+        _cellSamples = _clock.Cell;
+        _bridgeCount = 0;
+        _bridgeMids = 0;
+    }
+
+    /// <summary>
+    /// One transition while bridging. It joins the run being built when it lies on the grid and keeps the biphase
+    /// pattern (a mid-cell transition in every cell, a boundary one only right after a mid-cell one); otherwise the
+    /// run starts again. A long enough run ends the bridge.
+    /// </summary>
+    private void Bridge(double sample, bool bit)
+    {
+        double halfCells = 2 * (sample - _anchorSample) / _cellSamples;
+        if (halfCells > 2 * LongestBridgeCells)
+        {
+            Lose(_anchorSample);
+            return;
+        }
+
+        long k = (long)Math.Round(halfCells);
+        if (k <= 0 || Math.Abs(halfCells - k) > GridTolerance)
+        {
+            _bridgeCount = 0;
+            _bridgeMids = 0;
+            return;
+        }
+
+        bool mid = (k & 1) == 0;
+        if (_bridgeCount > 0)
+        {
+            long previous = _bridge[_bridgeCount - 1].HalfCell;
+            bool previousMid = (previous & 1) == 0;
+
+            // After a mid-cell transition comes the next cell's (two halves on) or a boundary (one half on); after a
+            // boundary, the mid-cell transition of the same cell.
+            bool follows = previousMid ? k == previous + 2 || k == previous + 1 : mid && k == previous + 1;
+            if (!follows)
+            {
+                _bridgeCount = 0;
+                _bridgeMids = 0;
+            }
+        }
+
+        if (_bridgeCount == 0 && !mid)
+        {
+            // A run starts on a mid-cell transition, so that its first bit has a transition of its own.
+            return;
+        }
+
+        _bridge[_bridgeCount++] = new BridgeEdge(k, sample, bit);
+        if (mid && ++_bridgeMids >= MidsToResynchronise)
+        {
+            Resynchronise();
+        }
+        else if (_bridgeCount == _bridge.Length)
+        {
+            // Cannot happen with the pattern rules (at most two transitions a cell), but never overrun.
+            _bridgeCount = 0;
+            _bridgeMids = 0;
+        }
+    }
+
+    /// <summary>Writes the bridged cells as erasures, then the run's bits, and follows the signal normally again.</summary>
+    private void Resynchronise()
+    {
+        _bridging = false;
+        long firstCell = _bridge[0].HalfCell / 2;
+
+        for (long cell = 1; cell < firstCell; cell++)
+        {
+            _bitFirstDecision = _assembler.Decisions.Count;
+            _assembler.Decisions.Add(0, 1, 1);
+            _assembler.NoteErasedBit();
+            EmitBit(false, _anchorSample + (cell * _cellSamples));
+            if (_mode != Mode.Data)
+            {
+                return;
+            }
+        }
+
+        // The first transition's interval reaches back into the dropout, so its bit is taken but not trusted.
+        int boundaryDecision = -1;
+        for (int i = 0; i < _bridgeCount; i++)
+        {
+            var edge = _bridge[i];
+            int decisionIndex = _assembler.Decisions.Count;
+            if (i == 0)
+            {
+                _assembler.Decisions.Add(0, 1, 1);
+                _assembler.NoteErasedBit();
+            }
+            else
+            {
+                var decision = _classifier.Classify((edge.Sample - _bridge[i - 1].Sample) / _sampleRate, _speed.Speed);
+                if (decision.IsValid)
+                {
+                    _assembler.Decisions.Add(decision.Distance, decision.Residual, decision.Scale);
+                }
+                else
+                {
+                    _assembler.Decisions.Add(0, 1, 1);
+                }
+            }
+
+            if ((edge.HalfCell & 1) == 1)
+            {
+                boundaryDecision = decisionIndex;
+                continue;
+            }
+
+            _bitFirstDecision = boundaryDecision >= 0 ? boundaryDecision : decisionIndex;
+            boundaryDecision = -1;
+            _clock.Keep(edge.Sample);
+            EmitBit(edge.Bit, edge.Sample);
+            if (_mode != Mode.Data)
+            {
+                return;
+            }
+        }
+
+        // The run ends on a mid-cell transition: the next transition is a boundary or the next cell's.
+        _atBoundary = false;
+        _bitFirstDecision = -1;
     }
 }
