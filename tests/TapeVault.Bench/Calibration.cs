@@ -39,13 +39,20 @@ public static class Calibration
         var atDefaults = fits.Find(f => f.Single == defaults.StreamByteErrorFloor && f.Agreed == defaults.StreamAgreedByteErrorFloor && f.Factor == defaults.StreamAfterGapFactor);
         Console.WriteLine($"Fit on the stream tapes of seeds 1 to {seeds} (streams only): byte error floors {best.Single:0e0} (one capture), {best.Agreed:0e0} (captures agreeing), after-gap factor {best.Factor}: ECE {best.Ece:0.0000} there.");
         Console.WriteLine($"Defaults in use: {defaults.StreamByteErrorFloor:0e0}, {defaults.StreamAgreedByteErrorFloor:0e0}, {defaults.StreamAfterGapFactor}: ECE {atDefaults.Ece:0.0000} on the fit tapes.");
-        var tapes = Recovery.Corpus(work, 101, seeds);
+        var heldOut = Recovery.Decoded(work, 101, seeds);
+        var tapes = heldOut.Select(t => RecoveryCorpus.Score(t)).ToList();
+        var fitted = new TapeVault.Core.Merge.MergeOptions { StreamByteErrorFloor = best.Single, StreamAgreedByteErrorFloor = best.Agreed, StreamAfterGapFactor = best.Factor };
+        double StreamEce(TapeVault.Core.Merge.MergeOptions options) => Ece([.. heldOut.Where(t => t.Profile.Layout.IsStream).Select(t => RecoveryCorpus.Score(t, options)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right)))]);
+        Console.WriteLine($"Stream positions of the tapes from seed 101: ECE {StreamEce(defaults):0.0000} with the defaults, {StreamEce(fitted):0.0000} with the fit.");
         Console.WriteLine($"Calibration of merged confidence (tapes from seed 101, {seeds} per stream profile and level, {2 * seeds} per block profile and level)");
         Print("merged positions", tapes.SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right))).ToList());
+        Print("of them, stream positions (the fitted constants act on these alone)", tapes.Where(t => t.Units > 0 && IsStream(t.ProfileId)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right))).ToList());
         Print("single readings (each pass's best per position, for comparison)", tapes.SelectMany(t => t.SingleCandidates).ToList());
         Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s.");
         Console.WriteLine();
     }
+
+    private static bool IsStream(string profileId) => TapeVault.Core.Formats.ProfileCatalog.BuiltIn.Get(profileId).Layout.IsStream;
 
     private static double Ece(List<(double Confidence, bool Right)> items)
     {

@@ -54,6 +54,15 @@ public static class RecoveryCorpus
             Speed = 1 + (((seed % 5) - 2) * 0.01),
             Seed = seed,
         }),
+        new("heavy", seed => new ChannelDamage
+        {
+            SnrDb = 12,
+            RandomDropoutsPerMinute = 100,
+            WowPercent = 0.3,
+            FlutterPercent = 0.1,
+            Speed = 1 + (((seed % 5) - 2) * 0.01),
+            Seed = seed,
+        }),
     ];
 
     /// <summary>Files of random bytes and text for one tape, sized so that a pass takes a few seconds of capture.</summary>

@@ -5,11 +5,14 @@ namespace TapeVault.Cli.Commands;
 
 /// <summary>
 /// tapevault image verify FILE: exit 0 for a whole image, 1 with one line on standard error for a damaged one.
-/// tapevault image extract FILE DIR [--partial]: writes the files the image's headers name.
+/// tapevault image extract FILE DIR [--partial]: writes the files the image's headers name; exit 3 when a file was
+/// left out (incomplete without --partial), so that a script does not take a part for the whole.
 /// </summary>
 public static class ImageCommand
 {
     public const int Damaged = 1;
+
+    public const int FilesLeftOut = 3;
 
     public const string Usage = "image verify FILE | image extract FILE DIR [--partial]";
 
@@ -134,7 +137,7 @@ public static class ImageCommand
 
         int skipped = files.Length - writes.Count;
         output.WriteLine($"{writes.Count} of {files.Length} file(s) written to {folder}; {skipped} skipped.");
-        return 0;
+        return skipped > 0 ? FilesLeftOut : 0;
     }
 
     private static string ExistingFile(string path)
