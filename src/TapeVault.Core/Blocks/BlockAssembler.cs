@@ -20,6 +20,7 @@ public sealed class BlockAssembler
     private readonly List<byte> _bytes = new(512);
     private readonly List<int> _byteFirstDecision = new(512);
     private readonly List<double> _byteSample = new(512);
+    private readonly List<float> _byteFramingDoubt = new(512);
     private int _framingErrors;
     private int _erasedBits;
     private int _expectedTotal;
@@ -52,6 +53,7 @@ public sealed class BlockAssembler
         _bytes.Clear();
         _byteFirstDecision.Clear();
         _byteSample.Clear();
+        _byteFramingDoubt.Clear();
         Decisions.Clear();
         _framingErrors = 0;
         _erasedBits = 0;
@@ -85,8 +87,12 @@ public sealed class BlockAssembler
         _speedCount++;
     }
 
-    /// <summary>Adds one byte whose decisions start at <paramref name="firstDecision"/> in <see cref="Decisions"/>. True when the block is complete.</summary>
-    public bool AddByte(byte value, int firstDecision, bool framingOk, double sample)
+    /// <summary>
+    /// Adds one byte whose decisions start at <paramref name="firstDecision"/> in <see cref="Decisions"/>. True when the
+    /// block is complete. <paramref name="framingDoubt"/> is the chance, beyond its decisions, that the byte was framed
+    /// in the wrong place (an asynchronous character whose start bit nothing confirmed).
+    /// </summary>
+    public bool AddByte(byte value, int firstDecision, bool framingOk, double sample, float framingDoubt = 0)
     {
         if (!InBlock)
         {
@@ -96,6 +102,7 @@ public sealed class BlockAssembler
         _bytes.Add(value);
         _byteFirstDecision.Add(firstDecision);
         _byteSample.Add(sample);
+        _byteFramingDoubt.Add(Math.Clamp(framingDoubt, 0f, 0.99f));
         if (!framingOk)
         {
             _framingErrors++;
@@ -194,7 +201,7 @@ public sealed class BlockAssembler
                 }
             }
 
-            byteLogOk[b] = logOk;
+            byteLogOk[b] = logOk + Math.Log(1 - _byteFramingDoubt[b]);
             byteMargin[b] = minMargin;
             minimumMargin = Math.Min(minimumMargin, minMargin);
         }

@@ -75,6 +75,15 @@ public sealed class FskDecoder : ISymbolDecoder
     /// <summary>Past this uncertainty a whole bit's slip can no longer be told from drift and the grid is not used.</summary>
     private const double MaximumGridToleranceBits = 0.45;
 
+    /// <summary>
+    /// The chance that a character framed from a start bit nothing confirmed (taken after a loss of signal with no
+    /// grid to hold it, or on a grid that itself began so) sits whole bits off: lower-case text framed a few bits
+    /// early reads cleanly, so its decisions cannot show it. Our estimate, checked by the recovery benchmark: large
+    /// enough that two captures misframing a stretch alike do not outvote one that kept a confirmed grid, small
+    /// enough that a lone such reading is still kept.
+    /// </summary>
+    private const float UnconfirmedFramingDoubt = 0.05f;
+
     private readonly FskEncoding _fsk;
     private readonly ByteFraming _framing;
     private readonly BlockAssembler _assembler;
@@ -115,6 +124,11 @@ public sealed class FskDecoder : ISymbolDecoder
     private double _nextBitTime;
     private double _lastCharEnd;
     private double _gridStart = double.NaN;
+
+    // Whether the character grid goes back to a confirmed start bit (after a lead-in or an idle line), and the same
+    // for the character being read.
+    private bool _gridConfirmed = true;
+    private bool _charConfirmed = true;
     private double _speed = 1;
     private double _lastEdge = double.NaN;
     private float _level;
@@ -242,6 +256,7 @@ public sealed class FskDecoder : ISymbolDecoder
 
                     _inChar = true;
                     _bitIndex = 0;
+                    _charConfirmed = StartIsConfirmed(crossing);
                     _markRunBeforeStart = _markRun;
                     _charStart = crossing;
                     _nextBitTime = crossing + 0.5 * BitSamples;
@@ -311,6 +326,29 @@ public sealed class FskDecoder : ISymbolDecoder
         double characters = elapsedBits / _framing.BitsPerByte;
         double offBits = Math.Abs(characters - Math.Round(characters)) * _framing.BitsPerByte;
         return offBits <= tolerance;
+    }
+
+    /// <summary>
+    /// Whether a start bit at <paramref name="crossing"/> is confirmed: the first after a lead-in or after an idle line
+    /// is; inside a block, or resumed on the grid kept over a loss of signal, it is as sure as that grid; resumed with
+    /// no grid to hold it, it is not.
+    /// </summary>
+    private bool StartIsConfirmed(double crossing)
+    {
+
+        if ((!_inBlock && !_resuming) || _markRun >= _framing.BitsPerByte * BitSamples)
+        {
+            return true;
+        }
+
+        if (_inBlock)
+        {
+            return _gridConfirmed;
+        }
+
+        bool gridHeld = !double.IsNaN(_gridStart)
+            && GridToleranceBits + (GridDriftPerBit * (crossing - _gridStart) / BitSamples) <= MaximumGridToleranceBits;
+        return gridHeld && _gridConfirmed;
     }
 
     /// <summary>No carrier: the character in progress is void, and a block in progress ends at its last whole character.</summary>
@@ -501,9 +539,12 @@ public sealed class FskDecoder : ISymbolDecoder
             _gridStart = _charStart;
         }
 
+        // The next character starts where this one ended: it is no surer than this one, whose framing failed or not.
+        _gridConfirmed = framingOk ? _charConfirmed : _gridConfirmed && _charConfirmed;
+
         _assembler.NoteLevel(_level);
         _assembler.NoteSpeed(_speed);
-        if (_assembler.AddByte((byte)value, first, framingOk, _charStart))
+        if (_assembler.AddByte((byte)value, first, framingOk, _charStart, _charConfirmed ? 0 : UnconfirmedFramingDoubt))
         {
             _inBlock = false;
         }

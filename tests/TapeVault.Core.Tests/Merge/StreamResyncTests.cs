@@ -58,4 +58,29 @@ public sealed class StreamResyncTests(RoundTripFolder folder, ITestOutputHelper 
         Assert.Equal(Convert.ToHexString(Text), Convert.ToHexString([.. image.Blocks.SelectMany(b => b.Payload)]));
         Assert.All(image.Blocks, b => Assert.Equal(RecoveryStatus.Voted, b.Status));
     }
+
+    [Theory]
+    [InlineData(0.04, false)]
+    [InlineData(0.15, true)]
+    public void A_reading_that_resumes_too_far_from_its_grid_declares_a_framing_doubt(double dropoutSeconds, bool doubtful)
+    {
+        // At 1200 baud the grid kept over a loss of signal holds for about 100 bits (83 ms): 40 ms is within it,
+        // 150 ms is not, and the character the decoder then takes up could be framed whole bits off, reading cleanly.
+        var profile = RoundTrips.Profile("kcs-1200");
+        TapeFile[] files = [new("NOTES", Text)];
+        var reading = RoundTrips.SynthAndDecode(folder, profile, files, new ChannelDamage()).Result.Best.MaxBy(c => c.Payload.Length)!;
+        double start = reading.ByteSeconds[60];
+        var damage = new ChannelDamage { Seed = 5, SnrDb = 30, Dropouts = [new Dropout(start, dropoutSeconds, 1.0)] };
+        var result = RoundTrips.SynthAndDecode(folder, profile, files, damage).Result;
+
+        var after = result.Candidates.Where(c => c.StartSeconds > start && c.Payload.Length >= 20).ToList();
+        Assert.NotEmpty(after);
+        foreach (var c in after)
+        {
+            // Every character of such a reading carries the doubt (they all hang on its first start bit); a reading
+            // resumed on the grid carries none beyond what its decisions show.
+            float least = c.ByteErrorOdds.Skip(1).Min();
+            Assert.True(doubtful ? least >= 0.05f : least < 0.01f, $"{c.SettingName} from {c.StartSeconds:0.000} s: least error odds {least}");
+        }
+    }
 }
