@@ -89,4 +89,41 @@ public sealed class OriginalDownloadTests
         using var asCurator = await curator.Http.GetAsync($"/api/captures/{uploaded.Capture.Id}/original");
         Assert.Equal(HttpStatusCode.OK, asCurator.StatusCode);
     }
+
+    [Theory]
+    [InlineData("false", true)]
+    [InlineData("true", false)]
+    public async Task ViewersSeeWaveformsNoFinerThanEightSamplesAColumnWhereOriginalsAreWithheld(string allowed, bool coarse)
+    {
+        // Zoom after zoom at one sample a column would hand a viewer the recording the download refuses.
+        using var folder = new ArchiveFolder();
+        await using var app = new ArchiveAppFactory(folder, new Dictionary<string, string?> { ["TapeVault:Web:ViewersMayDownloadOriginals"] = allowed });
+        await app.AddCuratorAndViewerAsync();
+        using var curator = await app.SignedInAsync(ArchiveAppFactory.CuratorName);
+        var (_, itemId) = await curator.NewItemAsync("ZOOM-1");
+        using var upload = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 22_050), "zoom.wav", extraQuery: $"&decodeProfile={SynthCaptures.Profile}");
+        await ApiClient.EnsureAsync(upload, HttpStatusCode.Created);
+        var uploaded = (await upload.Content.ReadFromJsonAsync<UploadResult>(ApiClient.Json))!;
+        Assert.Equal("done", (await curator.WaitForJobAsync(uploaded.DecodeJob!.Id, TimeSpan.FromSeconds(30))).State);
+        using var viewer = await app.SignedInAsync(ArchiveAppFactory.ViewerName);
+        int id = uploaded.Capture.Id;
+
+        // 10 ms of a 22 050 Hz capture is 220 samples: at most 27 columns at eight samples a column.
+        var viewerZoom = await viewer.GetAsync<ZoomView>($"/api/captures/{id}/zoom?from=0.1&seconds=0.01&columns=1000");
+        var curatorZoom = await curator.GetAsync<ZoomView>($"/api/captures/{id}/zoom?from=0.1&seconds=0.01&columns=1000");
+        var viewerOverview = await viewer.GetAsync<WaveformView>($"/api/captures/{id}/overview?columns=4000");
+        if (coarse)
+        {
+            Assert.InRange(viewerZoom.Signal.Minimum.Count, 1, 220 / 8);
+            Assert.InRange(viewerZoom.Conditioned.Minimum.Count, 1, 220 / 8);
+            Assert.InRange(viewerOverview.Minimum.Count, 1, 22_050 / 8);
+        }
+        else
+        {
+            Assert.True(viewerZoom.Signal.Minimum.Count >= 200, $"{viewerZoom.Signal.Minimum.Count} columns");
+            Assert.Equal(4000, viewerOverview.Minimum.Count);
+        }
+
+        Assert.True(curatorZoom.Signal.Minimum.Count >= 200, $"a curator's zoom has {curatorZoom.Signal.Minimum.Count} columns");
+    }
 }

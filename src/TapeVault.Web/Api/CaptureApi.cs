@@ -8,6 +8,8 @@ namespace TapeVault.Web.Api;
 /// <summary>
 /// The capture page's data as JSON, for anyone who can read the archive: the overview, the run's blocks, a zoomed
 /// stretch with one setting's threshold and edges, the pulse-length histogram and the measured speed. Reads only.
+/// Where viewers may not download originals, their waveforms are no finer than <see cref="CapturePlots.ViewerFramesPerColumn"/>
+/// samples a column.
 /// </summary>
 public static class CaptureApi
 {
@@ -41,8 +43,9 @@ public static class CaptureApi
         {
             ArgumentNullException.ThrowIfNull(http);
             var services = http.RequestServices;
-            return ValueTask.FromResult<Plots?>(new Plots(
-                services.GetRequiredService<ArchiveDbContext>(), services.GetRequiredService<ContentStore>(), services.GetRequiredService<ProfileCatalog>()));
+            var plots = new Plots(services.GetRequiredService<ArchiveDbContext>(), services.GetRequiredService<ContentStore>(), services.GetRequiredService<ProfileCatalog>());
+            plots.Get.LeastFramesPerColumn = CapturePlots.LeastFramesPerColumnFor(http.User, services.GetRequiredService<WebOptions>());
+            return ValueTask.FromResult<Plots?>(plots);
         }
     }
 }

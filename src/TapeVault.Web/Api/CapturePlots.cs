@@ -1,6 +1,8 @@
 using System.Collections.Concurrent;
+using System.Security.Claims;
 using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive;
+using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Entities;
 using TapeVault.Archive.Runs;
 using TapeVault.Archive.Storage;
@@ -20,6 +22,26 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
 {
     public const int DefaultColumns = 1000;
     public const int MaximumColumns = 4000;
+
+    /// <summary>
+    /// Where viewers may not download originals, no plot shows them the capture finer than this many samples a column:
+    /// enough for the shape of a pulse, not enough to rebuild the recording from zoom after zoom.
+    /// </summary>
+    public const int ViewerFramesPerColumn = 8;
+
+    /// <summary>The fewest samples a column of the overview or a zoom stands for (1: every sample, for curators).</summary>
+    public int LeastFramesPerColumn { get; set; } = 1;
+
+    /// <summary>What <see cref="LeastFramesPerColumn"/> is for this user under the app's settings.</summary>
+    public static int LeastFramesPerColumnFor(ClaimsPrincipal user, WebOptions web)
+    {
+        ArgumentNullException.ThrowIfNull(user);
+        ArgumentNullException.ThrowIfNull(web);
+        return web.ViewersMayDownloadOriginals || user.IsInRole(Roles.Curator) ? 1 : ViewerFramesPerColumn;
+    }
+
+    private int Columns(int asked, long frames) =>
+        (int)Math.Max(1, Math.Min(Math.Clamp(asked, 50, MaximumColumns), frames / Math.Max(1, LeastFramesPerColumn)));
     public const double MaximumZoomSeconds = 20;
     public const double MinimumZoomSeconds = 0.001;
     public const int HistogramBins = 90;
@@ -56,7 +78,8 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
     public async Task<WaveformView> OverviewAsync(int captureId, int columns = DefaultColumns, CancellationToken cancellation = default)
     {
         var capture = await CaptureAsync(captureId, cancellation).ConfigureAwait(false);
-        var (overview, cached) = await CaptureOverviews.GetAsync(store, capture.Sha256, Math.Clamp(columns, 50, MaximumColumns), Channel, cancellation).ConfigureAwait(false);
+        long frames = (long)Math.Round(capture.DurationSeconds * capture.SampleRate);
+        var (overview, cached) = await CaptureOverviews.GetAsync(store, capture.Sha256, Columns(columns, frames), Channel, cancellation).ConfigureAwait(false);
         return ToView(overview, 0, cached);
     }
 
@@ -117,7 +140,7 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
 
         var trace = DetectorTrace.Run(samples, rate, run.Setting, warmStart);
         var window = samples.AsSpan(warmFrames);
-        int used = Math.Clamp(columns, 50, MaximumColumns);
+        int used = Columns(columns, window.Length);
         var signal = WaveformOverview.FromSamples(window, rate, used);
         var conditioned = WaveformOverview.FromSamples(trace.Conditioned.AsSpan()[warmFrames..], rate, used);
         var band = new float[conditioned.Columns];

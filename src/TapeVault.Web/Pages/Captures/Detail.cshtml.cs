@@ -12,7 +12,7 @@ namespace TapeVault.Web.Pages.Captures;
 /// setting's threshold and decisions, the pulse-length histogram and the playback speed over time. Every choice is a
 /// query parameter, so every view is a plain link that works without script, mouse or a second request.
 /// </summary>
-public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, ProfileCatalog profiles) : ArchivePage
+public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, ProfileCatalog profiles, WebOptions web) : ArchivePage
 {
     public const double DefaultZoomSeconds = CapturePlots.DefaultZoomSeconds;
 
@@ -122,6 +122,7 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
     private async Task LoadAsync(int id)
     {
         CaptureId = id;
+        plots.LeastFramesPerColumn = CapturePlots.LeastFramesPerColumnFor(User, web);
         var cancellation = HttpContext.RequestAborted;
         Facts = await plots.FactsAsync(id, cancellation).ConfigureAwait(false);
         try
