@@ -139,9 +139,17 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
 
     private async Task<StagedObject> StageAsync(Stream body, CancellationToken cancellation)
     {
+        // A body that does not even start like a WAV file is refused at its first bytes, not after gigabytes.
+        var head = new byte[WavSignature.Length];
+        int got = await body.ReadAtLeastAsync(head, head.Length, throwOnEndOfStream: false, cancellation).ConfigureAwait(false);
+        if (WavSignature.Problem(head.AsSpan(0, got), got) is { } problem)
+        {
+            throw new ArchiveInputException(problem);
+        }
+
         try
         {
-            return await store.StageAsync(body, options.MaxUploadBytes, cancellation).ConfigureAwait(false);
+            return await store.StageAsync(body, options.MaxUploadBytes, head.AsMemory(0, got), cancellation).ConfigureAwait(false);
         }
         catch (ObjectTooLargeException e)
         {

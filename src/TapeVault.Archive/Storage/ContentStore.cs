@@ -43,7 +43,11 @@ public sealed class ContentStore
 
     /// <summary>Streams <paramref name="source"/> into a temporary file, hashing as it goes; never holds the whole in memory.</summary>
     /// <exception cref="ObjectTooLargeException">The stream is longer than <paramref name="maxBytes"/>; nothing is left behind.</exception>
-    public async Task<StagedObject> StageAsync(Stream source, long maxBytes, CancellationToken cancellation = default)
+    public async Task<StagedObject> StageAsync(Stream source, long maxBytes, CancellationToken cancellation = default) =>
+        await StageAsync(source, maxBytes, ReadOnlyMemory<byte>.Empty, cancellation).ConfigureAwait(false);
+
+    /// <summary>As above, for a stream whose first bytes (<paramref name="alreadyRead"/>) the caller has read to look at.</summary>
+    public async Task<StagedObject> StageAsync(Stream source, long maxBytes, ReadOnlyMemory<byte> alreadyRead, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(source);
         var tempPath = Path.Combine(TempFolder, $"{Guid.NewGuid():N}.part");
@@ -51,10 +55,17 @@ public sealed class ContentStore
         try
         {
             using var hash = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
-            long size = 0;
+            long size = alreadyRead.Length;
             var buffer = new byte[BufferBytes];
             await using (var file = new FileStream(tempPath, FileMode.CreateNew, FileAccess.Write, FileShare.None, BufferBytes, FileOptions.Asynchronous))
             {
+                if (size > maxBytes)
+                {
+                    throw new ObjectTooLargeException(maxBytes);
+                }
+
+                hash.AppendData(alreadyRead.Span);
+                await file.WriteAsync(alreadyRead, cancellation).ConfigureAwait(false);
                 int read;
                 while ((read = await source.ReadAsync(buffer, cancellation).ConfigureAwait(false)) > 0)
                 {

@@ -64,30 +64,15 @@ internal static class WavHeaderProbe
     public static WavLayout Probe(Stream stream)
     {
         long fileLength = stream.Length;
-        if (fileLength == 0)
-        {
-            throw new CaptureFormatException("The file is empty (0 bytes), so it is not a WAV file.");
-        }
-
         stream.Position = 0;
-        Span<byte> head = stackalloc byte[12];
+        Span<byte> head = stackalloc byte[WavSignature.Length];
         int got = ReadFully(stream, head);
-        bool riff = got >= 4 && head[..4].SequenceEqual("RIFF"u8);
-        bool rf64 = got >= 4 && head[..4].SequenceEqual("RF64"u8);
-        if (!riff && !rf64)
+        if (WavSignature.Problem(head[..got], fileLength) is { } problem)
         {
-            throw new CaptureFormatException("The file is not a WAV file (no RIFF header).");
+            throw new CaptureFormatException(problem);
         }
 
-        if (got < 12)
-        {
-            throw new CaptureFormatException($"The file is too short to be a WAV file ({fileLength} bytes; it ends inside the RIFF header).");
-        }
-
-        if (!head[8..12].SequenceEqual("WAVE"u8))
-        {
-            throw new CaptureFormatException($"The file is a RIFF file but not a WAV file (its form type is '{Printable(head[8..12])}', not 'WAVE').");
-        }
+        bool rf64 = head[..4].SequenceEqual("RF64"u8);
 
         long riffSize = BinaryPrimitives.ReadUInt32LittleEndian(head[4..8]);
         long rf64DataBytes = -1;
@@ -338,7 +323,7 @@ internal static class WavHeaderProbe
         _ => string.Empty,
     };
 
-    private static string Printable(ReadOnlySpan<byte> fourCc)
+    internal static string Printable(ReadOnlySpan<byte> fourCc)
     {
         var text = new StringBuilder(fourCc.Length);
         foreach (byte b in fourCc)
