@@ -20,13 +20,20 @@ public sealed class ConcurrencyTests(ITestOutputHelper output)
         using var viewer = await app.SignedInAsync(ArchiveAppFactory.ViewerName);
         var (collectionId, itemId) = await curator.NewItemAsync("BUSY-1");
 
-        // Forty seconds of tone each (different bytes, so two captures): long enough for the two decodes to overlap.
-        var jobs = new List<int>();
+        // Two minutes of tone each (different bytes, so two captures), both uploaded before either decode is asked
+        // for: otherwise the first decode can be over before the second upload has arrived.
+        var captures = new List<int>();
         for (int seed = 1; seed <= 2; seed++)
         {
-            using var upload = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 22_050 * 40, seed: seed), $"busy{seed}.wav", extraQuery: $"&decodeProfile={SynthCaptures.Profile}");
+            using var upload = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 22_050 * 120, seed: seed), $"busy{seed}.wav");
             await ApiClient.EnsureAsync(upload, HttpStatusCode.Created);
-            jobs.Add((await upload.Content.ReadFromJsonAsync<UploadResult>(ApiClient.Json))!.DecodeJob!.Id);
+            captures.Add((await upload.Content.ReadFromJsonAsync<UploadResult>(ApiClient.Json))!.Capture.Id);
+        }
+
+        var jobs = new List<int>();
+        foreach (int capture in captures)
+        {
+            jobs.Add((await curator.PostAsync<JobView>($"/api/captures/{capture}/decode", new DecodeRequest(SynthCaptures.Profile, null, null), HttpStatusCode.Accepted)).Id);
         }
 
         string[] pages = ["/", $"/collections/{collectionId}", $"/items/{itemId}", "/jobs", "/api/jobs"];

@@ -235,13 +235,13 @@ public static class BlockPositioner
         return best;
     }
 
+    /// <summary>Whether a reading's header was read far enough to give a field of its identity: then it keeps that identity rather than a neighbour's.</summary>
+    private static bool NamesItself(BlockCandidate c) => c.Identity.BlockNumber is not null || c.Identity.FileId is not null || c.Identity.FileName is not null;
+
     /// <summary>
     /// For a reading cut off inside its header (so it has no identity to go by, and no payload to offer): the clean
     /// block nearest to it in time, within two block lengths.
     /// </summary>
-    /// <summary>Whether a reading's header was read far enough to give a field of its identity: then it keeps that identity rather than a neighbour's.</summary>
-    private static bool NamesItself(BlockCandidate c) => c.Identity.BlockNumber is not null || c.Identity.FileId is not null || c.Identity.FileName is not null;
-
     private static BlockCandidate? FindNearest(List<BlockCandidate> trusted, BlockCandidate c)
     {
         BlockCandidate? best = null;

@@ -74,7 +74,6 @@ internal sealed class BlockMerge
         var blocks = new List<ImageBlock>(groups.Count);
         foreach (var group in groups)
         {
-
             if (ResolvePosition(group) is { } block)
             {
                 blocks.Add(block);

@@ -72,11 +72,12 @@ public static class TapeMerger
         double character = StreamMerge.CharacterSeconds(passes);
         var speeds = passes.Select(MedianSpeed).ToArray();
         var anchors = passes.Select((p, i) => stream ? StreamMerge.Anchors(p, speeds[i], character) : BlockMerge.Anchors(p, speeds[i])).ToArray();
-        var timelines = new PassTimeline?[passes.Count];
         if (passes.Count == 0)
         {
             return [];
         }
+
+        var timelines = new PassTimeline?[passes.Count];
 
         int reference = 0;
         for (int i = 1; i < passes.Count; i++)

@@ -317,7 +317,7 @@ public sealed class FskDecoder : ISymbolDecoder
         }
 
         double elapsedBits = (crossing - _gridStart) / BitSamples;
-        double tolerance = GridToleranceBits + (GridDriftPerBit * elapsedBits);
+        double tolerance = GridToleranceAt(crossing);
         if (tolerance > MaximumGridToleranceBits)
         {
             return true;
@@ -335,7 +335,6 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private bool StartIsConfirmed(double crossing)
     {
-
         if ((!_inBlock && !_resuming) || _markRun >= _framing.BitsPerByte * BitSamples)
         {
             return true;
@@ -346,10 +345,12 @@ public sealed class FskDecoder : ISymbolDecoder
             return _gridConfirmed;
         }
 
-        bool gridHeld = !double.IsNaN(_gridStart)
-            && GridToleranceBits + (GridDriftPerBit * (crossing - _gridStart) / BitSamples) <= MaximumGridToleranceBits;
+        bool gridHeld = !double.IsNaN(_gridStart) && GridToleranceAt(crossing) <= MaximumGridToleranceBits;
         return gridHeld && _gridConfirmed;
     }
+
+    /// <summary>How far, in bits, a start bit at <paramref name="crossing"/> may lie off the grid kept since the last good character.</summary>
+    private double GridToleranceAt(double crossing) => GridToleranceBits + (GridDriftPerBit * (crossing - _gridStart) / BitSamples);
 
     /// <summary>No carrier: the character in progress is void, and a block in progress ends at its last whole character.</summary>
     private void LoseSignal(double n)

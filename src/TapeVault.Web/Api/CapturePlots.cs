@@ -22,26 +22,6 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
 {
     public const int DefaultColumns = 1000;
     public const int MaximumColumns = 4000;
-
-    /// <summary>
-    /// Where viewers may not download originals, no plot shows them the capture finer than this many samples a column:
-    /// enough for the shape of a pulse, not enough to rebuild the recording from zoom after zoom.
-    /// </summary>
-    public const int ViewerFramesPerColumn = 8;
-
-    /// <summary>The fewest samples a column of the overview or a zoom stands for (1: every sample, for curators).</summary>
-    public int LeastFramesPerColumn { get; set; } = 1;
-
-    /// <summary>What <see cref="LeastFramesPerColumn"/> is for this user under the app's settings.</summary>
-    public static int LeastFramesPerColumnFor(ClaimsPrincipal user, WebOptions web)
-    {
-        ArgumentNullException.ThrowIfNull(user);
-        ArgumentNullException.ThrowIfNull(web);
-        return web.ViewersMayDownloadOriginals || user.IsInRole(Roles.Curator) ? 1 : ViewerFramesPerColumn;
-    }
-
-    private int Columns(int asked, long frames) =>
-        (int)Math.Max(1, Math.Min(Math.Clamp(asked, 50, MaximumColumns), frames / Math.Max(1, LeastFramesPerColumn)));
     public const double MaximumZoomSeconds = 20;
     public const double MinimumZoomSeconds = 0.001;
     public const int HistogramBins = 90;
@@ -65,6 +45,26 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
     // Whole-capture histograms take seconds on a long capture; they depend only on the original and the choices.
     private static readonly ConcurrentDictionary<string, Task<PulseHistogramResult>> WholeCaptureHistograms = new(StringComparer.Ordinal);
     private const int WholeCaptureHistogramsKept = 64;
+
+    /// <summary>
+    /// Where viewers may not download originals, no plot shows them the capture finer than this many samples a column:
+    /// enough for the shape of a pulse, not enough to rebuild the recording from zoom after zoom.
+    /// </summary>
+    public const int ViewerFramesPerColumn = 8;
+
+    /// <summary>The fewest samples a column of the overview or a zoom stands for (1: every sample, for curators).</summary>
+    public int LeastFramesPerColumn { get; set; } = 1;
+
+    /// <summary>What <see cref="LeastFramesPerColumn"/> is for this user under the app's settings.</summary>
+    public static int LeastFramesPerColumnFor(ClaimsPrincipal user, WebOptions web)
+    {
+        ArgumentNullException.ThrowIfNull(user);
+        ArgumentNullException.ThrowIfNull(web);
+        return web.ViewersMayDownloadOriginals || user.IsInRole(Roles.Curator) ? 1 : ViewerFramesPerColumn;
+    }
+
+    private int Columns(int asked, long frames) =>
+        (int)Math.Max(1, Math.Min(Math.Clamp(asked, 50, MaximumColumns), frames / Math.Max(1, LeastFramesPerColumn)));
 
     public async Task<CaptureFacts> FactsAsync(int captureId, CancellationToken cancellation = default)
     {
