@@ -41,12 +41,13 @@ public static class Calibration
         Console.WriteLine($"Defaults in use: {defaults.StreamByteErrorFloor:0e0}, {defaults.StreamAgreedByteErrorFloor:0e0}, {defaults.StreamAfterGapFactor}: ECE {atDefaults.Ece:0.0000} on the fit tapes.");
         var heldOut = Recovery.Decoded(work, 101, seeds);
         var tapes = heldOut.Select(t => RecoveryCorpus.Score(t)).ToList();
+        var streamPositions = tapes.Where(t => IsStream(t.ProfileId)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right))).ToList();
         var fitted = new TapeVault.Core.Merge.MergeOptions { StreamByteErrorFloor = best.Single, StreamAgreedByteErrorFloor = best.Agreed, StreamAfterGapFactor = best.Factor };
-        double StreamEce(TapeVault.Core.Merge.MergeOptions options) => Ece([.. heldOut.Where(t => t.Profile.Layout.IsStream).Select(t => RecoveryCorpus.Score(t, options)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right)))]);
-        Console.WriteLine($"Stream positions of the tapes from seed 101: ECE {StreamEce(defaults):0.0000} with the defaults, {StreamEce(fitted):0.0000} with the fit.");
+        double fittedEce = Ece([.. heldOut.Where(t => t.Profile.Layout.IsStream).Select(t => RecoveryCorpus.Score(t, fitted)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right)))]);
+        Console.WriteLine($"Stream positions of the tapes from seed 101: ECE {Ece(streamPositions):0.0000} with the defaults, {fittedEce:0.0000} with the fit.");
         Console.WriteLine($"Calibration of merged confidence (tapes from seed 101, {seeds} per stream profile and level, {2 * seeds} per block profile and level)");
         Print("merged positions", tapes.SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right))).ToList());
-        Print("of them, stream positions (the fitted constants act on these alone)", tapes.Where(t => t.Units > 0 && IsStream(t.ProfileId)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right))).ToList());
+        Print("of them, stream positions (the fitted constants act on these alone)", streamPositions);
         Print("single readings (each pass's best per position, for comparison)", tapes.SelectMany(t => t.SingleCandidates).ToList());
         Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s.");
         Console.WriteLine();
@@ -54,41 +55,31 @@ public static class Calibration
 
     private static bool IsStream(string profileId) => TapeVault.Core.Formats.ProfileCatalog.BuiltIn.Get(profileId).Layout.IsStream;
 
-    private static double Ece(List<(double Confidence, bool Right)> items)
+    /// <summary>The non-empty bins of <paramref name="items"/>: their edges, count, mean confidence and observed rate of right ones.</summary>
+    private static IEnumerable<(int Bin, int Count, double Mean, double Right)> Bins(List<(double Confidence, bool Right)> items)
     {
-        double ece = 0;
         for (int b = 0; b + 1 < Edges.Length; b++)
         {
             var bin = items.Where(i => i.Confidence >= Edges[b] && i.Confidence < Edges[b + 1]).ToList();
             if (bin.Count > 0)
             {
-                ece += bin.Count / (double)items.Count * Math.Abs(bin.Average(i => i.Confidence) - (bin.Count(i => i.Right) / (double)bin.Count));
+                yield return (b, bin.Count, bin.Average(i => i.Confidence), bin.Count(i => i.Right) / (double)bin.Count);
             }
         }
-
-        return ece;
     }
 
-    public static double Print(string title, List<(double Confidence, bool Right)> items)
+    private static double Ece(List<(double Confidence, bool Right)> items) =>
+        Bins(items).Sum(bin => bin.Count / (double)items.Count * Math.Abs(bin.Mean - bin.Right));
+
+    public static void Print(string title, List<(double Confidence, bool Right)> items)
     {
         Console.WriteLine(title);
         Console.WriteLine($"{"bin",-14} {"count",6} {"mean conf",10} {"right",8} {"gap",7}");
-        double ece = 0;
-        for (int b = 0; b + 1 < Edges.Length; b++)
+        foreach (var (b, count, mean, right) in Bins(items))
         {
-            var bin = items.Where(i => i.Confidence >= Edges[b] && i.Confidence < Edges[b + 1]).ToList();
-            if (bin.Count == 0)
-            {
-                continue;
-            }
-
-            double mean = bin.Average(i => i.Confidence);
-            double right = bin.Count(i => i.Right) / (double)bin.Count;
-            ece += bin.Count / (double)items.Count * Math.Abs(mean - right);
-            Console.WriteLine($"{$"[{Edges[b]:0.###}, {Math.Min(1, Edges[b + 1]):0.###}{(b + 2 == Edges.Length ? "]" : ")")}",-14} {bin.Count,6} {mean,10:0.0000} {right,8:0.0000} {mean - right,7:+0.000;-0.000}");
+            Console.WriteLine($"{$"[{Edges[b]:0.###}, {Math.Min(1, Edges[b + 1]):0.###}{(b + 2 == Edges.Length ? "]" : ")")}",-14} {count,6} {mean,10:0.0000} {right,8:0.0000} {mean - right,7:+0.000;-0.000}");
         }
 
-        Console.WriteLine($"{items.Count} items, expected calibration error {ece:0.0000} (goal <= 0.05)");
-        return ece;
+        Console.WriteLine($"{items.Count} items, expected calibration error {Ece(items):0.0000} (goal <= 0.05)");
     }
 }

@@ -105,78 +105,40 @@ public static class RecoveryCorpus
     public static ScoredTape Score(DecodedTape tape, MergeOptions? options = null)
     {
         var image = TapeMerger.Merge(tape.Results, tape.Names, (options ?? new MergeOptions()) with { CreatedUtc = DateTimeOffset.UnixEpoch });
-        return tape.Profile.Layout.IsStream
-            ? ScoreStream(tape.Profile, tape.Level, tape.Seed, tape.Files, tape.Results, image)
-            : ScoreBlocks(tape.Profile, tape.Level, tape.Seed, BlockWriter.Blocks(tape.Profile, tape.Files), tape.Results, image);
+        return tape.Profile.Layout.IsStream ? ScoreStream(tape, image) : ScoreBlocks(tape, image);
     }
 
-    private static ScoredTape ScoreBlocks(FormatProfile profile, DamageLevel level, int seed, List<byte[]> written, List<DecodeResult> results, TapeImage image)
+    /// <summary>Whether a reading's header and payload are right; the units it got right go into the set given (none when it is null).</summary>
+    private delegate bool Judge(ReadOnlySpan<byte> header, ReadOnlySpan<byte> payload, HashSet<int>? right);
+
+    private static ScoredTape ScoreBlocks(DecodedTape tape, TapeImage image)
     {
+        var profile = tape.Profile;
         int header = profile.Layout.HeaderBytes;
         int check = ChecksumCatalog.Get(profile.Layout.Checksum!.Algorithm).Width;
-        var truth = written.Select(b => (Header: b[..header], Payload: b[header..^check])).ToList();
-        int Find(ReadOnlySpan<byte> h, ReadOnlySpan<byte> p)
+        var truth = BlockWriter.Blocks(profile, tape.Files).Select(b => (Header: b[..header], Payload: b[header..^check])).ToList();
+        bool Find(ReadOnlySpan<byte> h, ReadOnlySpan<byte> p, HashSet<int>? right)
         {
             for (int i = 0; i < truth.Count; i++)
             {
                 if (h.SequenceEqual(truth[i].Header) && p.SequenceEqual(truth[i].Payload))
                 {
-                    return i;
+                    right?.Add(i);
+                    return true;
                 }
             }
 
-            return -1;
+            return false;
         }
 
-        var perPass = new List<HashSet<int>>();
-        var singles = new List<(double, bool)>();
-        foreach (var result in results)
-        {
-            var right = new HashSet<int>();
-            foreach (var best in result.Best)
-            {
-                int t = Find(best.Header.AsSpan(), best.Payload.AsSpan());
-                if (best.Status == BlockStatus.Clean && t >= 0)
-                {
-                    right.Add(t);
-                }
-
-                singles.Add((best.Confidence, t >= 0));
-            }
-
-            perPass.Add(right);
-        }
-
-        var merged = new HashSet<int>();
-        var blocks = new List<(double, bool, RecoveryStatus)>();
-        int wrongClean = 0, missing = 0;
-        foreach (var block in image.Blocks)
-        {
-            if (block.Status == RecoveryStatus.Missing)
-            {
-                missing++;
-                continue;
-            }
-
-            int t = Find(block.Header.AsSpan(), block.Payload.AsSpan());
-            if (t >= 0)
-            {
-                merged.Add(t);
-            }
-            else if (block.Status == RecoveryStatus.Clean)
-            {
-                wrongClean++;
-            }
-
-            blocks.Add((block.Confidence, t >= 0, block.Status));
-        }
-
-        return new ScoredTape(profile.Id, level.Name, seed, truth.Count, perPass, merged, blocks, singles, wrongClean, missing);
+        // A pass recovers a block alone only where its reading is clean.
+        return Tally(tape, image, truth.Count, Find, aloneNeedsClean: true);
     }
 
-    private static ScoredTape ScoreStream(FormatProfile profile, DamageLevel level, int seed, List<TapeFile> files, List<DecodeResult> results, TapeImage image)
+    private static ScoredTape ScoreStream(DecodedTape tape, TapeImage image)
     {
         // Every written byte gets one number: file f's byte i is base[f] + i.
+        var files = tape.Files;
         var bases = new int[files.Count];
         for (int f = 1; f < files.Count; f++)
         {
@@ -184,15 +146,21 @@ public static class RecoveryCorpus
         }
 
         int units = bases[^1] + files[^1].Content.Length;
+        return Tally(tape, image, units, (_, payload, right) => Place(payload, files, bases, right), aloneNeedsClean: false);
+    }
+
+    /// <summary>Each pass's best readings and the merged image, scored by <paramref name="judge"/>.</summary>
+    private static ScoredTape Tally(DecodedTape tape, TapeImage image, int units, Judge judge, bool aloneNeedsClean)
+    {
         var perPass = new List<HashSet<int>>();
         var singles = new List<(double, bool)>();
-        foreach (var result in results)
+        foreach (var result in tape.Results)
         {
             var right = new HashSet<int>();
             foreach (var best in result.Best)
             {
-                bool all = Place(best.Payload.AsSpan(), files, bases, right);
-                singles.Add((best.Confidence, all));
+                bool counts = !aloneNeedsClean || best.Status == BlockStatus.Clean;
+                singles.Add((best.Confidence, judge(best.Header.AsSpan(), best.Payload.AsSpan(), counts ? right : null)));
             }
 
             perPass.Add(right);
@@ -209,16 +177,16 @@ public static class RecoveryCorpus
                 continue;
             }
 
-            bool all = Place(block.Payload.AsSpan(), files, bases, merged);
-            if (!all && block.Status == RecoveryStatus.Clean)
+            bool right = judge(block.Header.AsSpan(), block.Payload.AsSpan(), merged);
+            if (!right && block.Status == RecoveryStatus.Clean)
             {
                 wrongClean++;
             }
 
-            blocks.Add((block.Confidence, all, block.Status));
+            blocks.Add((block.Confidence, right, block.Status));
         }
 
-        return new ScoredTape(profile.Id, level.Name, seed, units, perPass, merged, blocks, singles, wrongClean, missing);
+        return new ScoredTape(tape.Profile.Id, tape.Level.Name, tape.Seed, units, perPass, merged, blocks, singles, wrongClean, missing);
     }
 
     /// <summary>
@@ -226,7 +194,7 @@ public static class RecoveryCorpus
     /// to <paramref name="right"/> and says whether all agree. A run shorter than four bytes lines up anywhere, so it
     /// counts as right only where it is exactly the written bytes and adds nothing.
     /// </summary>
-    private static bool Place(ReadOnlySpan<byte> run, List<TapeFile> files, int[] bases, HashSet<int> right)
+    private static bool Place(ReadOnlySpan<byte> run, List<TapeFile> files, int[] bases, HashSet<int>? right)
     {
         if (run.IsEmpty)
         {
@@ -263,7 +231,7 @@ public static class RecoveryCorpus
             {
                 if (run[i] == best[bestOffset + i])
                 {
-                    right.Add(bases[bestFile] + bestOffset + i);
+                    right?.Add(bases[bestFile] + bestOffset + i);
                 }
             }
         }

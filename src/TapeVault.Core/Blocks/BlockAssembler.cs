@@ -11,6 +11,9 @@ namespace TapeVault.Core.Blocks;
 /// </summary>
 public sealed class BlockAssembler
 {
+    // Beyond these odds of a false match among guessed bits, a holding checksum proves nothing.
+    private const double MostGuessedMatchOdds = 0.01;
+
     private readonly BlockLayout _layout;
     private readonly IBlockChecksum? _checksum;
     private readonly int _settingIndex;
@@ -73,13 +76,15 @@ public sealed class BlockAssembler
     }
 
     /// <summary>
-    /// A bit of the block was not read at all (a bridged dropout) and stands as a guess. A checksum that holds over
-    /// guessed bits vouches for them only as far as its false-match odds reach: n guesses are 2^n tries.
+    /// A bit of the block was not read at all (a bridged dropout) and stands as a guess: a decision of margin 0. A
+    /// checksum that holds over guessed bits vouches for them only as far as its false-match odds reach: n guesses
+    /// are 2^n tries.
     /// </summary>
-    public void NoteErasedBit() => _erasedBits++;
-
-    // Beyond these odds of a false match among the guesses, a holding checksum proves nothing.
-    private const double MostGuessedMatchOdds = 0.01;
+    public void AddErasedBit()
+    {
+        Decisions.Add(0, 1, 1);
+        _erasedBits++;
+    }
 
     public void NoteSpeed(double speed)
     {

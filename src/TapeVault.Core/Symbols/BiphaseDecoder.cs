@@ -57,8 +57,6 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     private int _bitsSinceLeadIn;
     private CellClock _clock;
     private bool _bridging;
-    private double _anchorSample;
-    private double _cellSamples;
     private readonly BridgeEdge[] _bridge = new BridgeEdge[(2 * MidsToResynchronise) + 2];
     private int _bridgeCount;
     private int _bridgeMids;
@@ -300,11 +298,10 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         }
     }
 
+    /// <summary>Bridging counts from the clock as it stood at the break: nothing moves it until the signal is back.</summary>
     private void StartBridge()
     {
         _bridging = true;
-        _anchorSample = _clock.LastMid;
-        _cellSamples = _clock.Cell;
         _bridgeCount = 0;
         _bridgeMids = 0;
     }
@@ -316,10 +313,10 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     /// </summary>
     private void Bridge(double sample, bool bit)
     {
-        double halfCells = 2 * (sample - _anchorSample) / _cellSamples;
+        double halfCells = 2 * _clock.CellsSince(sample);
         if (halfCells > 2 * LongestBridgeCells)
         {
-            Lose(_anchorSample);
+            Lose(_clock.LastMid);
             return;
         }
 
@@ -375,9 +372,8 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         for (long cell = 1; cell < firstCell; cell++)
         {
             _bitFirstDecision = _assembler.Decisions.Count;
-            _assembler.Decisions.Add(0, 1, 1);
-            _assembler.NoteErasedBit();
-            EmitBit(false, _anchorSample + (cell * _cellSamples));
+            _assembler.AddErasedBit();
+            EmitBit(false, _clock.LastMid + (cell * _clock.Cell));
             if (_mode != Mode.Data)
             {
                 return;
@@ -392,8 +388,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
             int decisionIndex = _assembler.Decisions.Count;
             if (i == 0)
             {
-                _assembler.Decisions.Add(0, 1, 1);
-                _assembler.NoteErasedBit();
+                _assembler.AddErasedBit();
             }
             else
             {

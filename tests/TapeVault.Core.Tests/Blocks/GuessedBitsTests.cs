@@ -27,8 +27,7 @@ public sealed class GuessedBitsTests
             {
                 if (bit < erasedBits)
                 {
-                    assembler.Decisions.Add(0, 1, 1);
-                    assembler.NoteErasedBit();
+                    assembler.AddErasedBit();
                 }
                 else
                 {

@@ -16,12 +16,7 @@ public sealed class MergeResolutionTests
 {
     private static readonly FormatProfile Crc16 = ProfileCatalog.BuiltIn.Get("biphase-1200");
 
-    private static byte[] Written(FormatProfile profile, int blockNumber, int seed = 0)
-    {
-        var payload = new byte[64];
-        new Random((blockNumber * 31) + seed).NextBytes(payload);
-        return BlockWriter.Build(profile.Layout, string.Empty, 0, blockNumber, payload);
-    }
+    private static byte[] Written(FormatProfile profile, int blockNumber, int seed = 0) => Readings.Written(profile, blockNumber, seed);
 
     /// <summary>Three blocks at 1 s intervals, read clean, except the middle one as <paramref name="middle"/> gives.</summary>
     private static MergePass ThreeBlocks(FormatProfile profile, int capture, BlockCandidate middle) =>

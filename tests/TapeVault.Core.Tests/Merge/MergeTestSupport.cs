@@ -17,6 +17,14 @@ internal static class Readings
         return profile with { Layout = profile.Layout with { Checksum = profile.Layout.Checksum! with { Algorithm = checksum } } };
     }
 
+    /// <summary>A block of 64 random bytes (seeded by its number and <paramref name="seed"/>) as <see cref="BlockWriter.Build"/> lays it out.</summary>
+    public static byte[] Written(FormatProfile profile, int blockNumber, int seed = 0)
+    {
+        var payload = new byte[64];
+        new Random((blockNumber * 31) + seed).NextBytes(payload);
+        return BlockWriter.Build(profile.Layout, string.Empty, 0, blockNumber, payload);
+    }
+
     public static ImageSource Capture(int n) => new(new string((char)('a' + n), 64), $"pass-{n}.wav", 44_100, 1, 60);
 
     public static MergePass Pass(int n, params BlockCandidate[] candidates) => new(Capture(n), candidates, "test");

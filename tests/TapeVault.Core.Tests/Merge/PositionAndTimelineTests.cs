@@ -14,12 +14,7 @@ public sealed class PositionAndTimelineTests
 {
     private static readonly FormatProfile Crc16 = ProfileCatalog.BuiltIn.Get("biphase-1200");
 
-    private static byte[] Written(int blockNumber, int seed = 0)
-    {
-        var payload = new byte[64];
-        new Random((blockNumber * 31) + seed).NextBytes(payload);
-        return BlockWriter.Build(Crc16.Layout, string.Empty, 0, blockNumber, payload);
-    }
+    private static byte[] Written(int blockNumber, int seed = 0) => Readings.Written(Crc16, blockNumber, seed);
 
     [Fact]
     public void Two_whole_readings_by_one_setting_under_one_misread_number_are_two_positions()
