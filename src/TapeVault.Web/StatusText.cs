@@ -1,25 +1,21 @@
+using TapeVault.Core.Text;
+
 namespace TapeVault.Web;
 
 /// <summary>
-/// How a block's status reads on every page and plot: a symbol and a word, so that no status is told by colour alone.
-/// Covers a reading's status (clean, failed, unchecked), an image position's (voted, repaired, missing) and "none"
-/// for a setting that read nothing there.
+/// How a block's status reads on every page and plot: the symbol and word of Core's one table
+/// (<see cref="Vocabulary"/>), so that no status is told by colour alone and the pages say what the command line,
+/// the JSON and the catalogue say.
 /// </summary>
 public static class StatusText
 {
-    public static (string Symbol, string Word) Of(string status) => status switch
+    public static (string Symbol, string Word) Of(string status)
     {
-        "clean" => ("✓", "clean"),
-        "failed" => ("✗", "failed"),
-        "unchecked" => ("○", "no checksum"),
-        "voted" => ("≈", "voted"),
-        "repaired" => ("⚒", "repaired"),
-        "missing" => ("–", "missing"),
-        "none" => ("·", "not read"),
-        _ => ("?", status),
-    };
+        var term = Vocabulary.Of(status);
+        return (term.Symbol, term.Word);
+    }
 
-    public static string Symbol(string status) => Of(status).Symbol;
+    public static string Symbol(string status) => Vocabulary.Of(status).Symbol;
 
-    public static string Word(string status) => Of(status).Word;
+    public static string Word(string status) => Vocabulary.Of(status).Word;
 }

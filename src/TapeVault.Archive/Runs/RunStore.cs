@@ -4,6 +4,7 @@ using System.Security.Cryptography;
 using TapeVault.Archive.Entities;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Decoding;
+using TapeVault.Core.Text;
 
 namespace TapeVault.Archive.Runs;
 
@@ -29,7 +30,7 @@ public static class RunStore
             CleanPositions = clean,
             Outcome = positions == 0
                 ? "No blocks found."
-                : $"{positions} position(s): {clean} clean, {failed} failed{(unchecked_ > 0 ? $", {unchecked_} without checksum" : string.Empty)}.",
+                : $"{positions} position(s): {clean} clean, {failed} failed{(unchecked_ > 0 ? $", {unchecked_} unchecked" : string.Empty)}.",
         };
 
         foreach (var c in result.Candidates)
@@ -53,7 +54,7 @@ public static class RunStore
             FileId = c.Identity.FileId,
             BlockNumber = c.Identity.BlockNumber,
             Ordinal = c.Identity.Ordinal,
-            Status = c.Status.ToString().ToLowerInvariant(),
+            Status = Vocabulary.Of(c.Status).Name,
             Confidence = c.Confidence,
             MinimumMargin = c.MinimumMargin,
             MeanMargin = c.MeanMargin,

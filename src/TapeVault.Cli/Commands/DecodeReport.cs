@@ -2,6 +2,7 @@ using System.Globalization;
 using System.Text.Json;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Decoding;
+using TapeVault.Core.Text;
 
 namespace TapeVault.Cli.Commands;
 
@@ -21,7 +22,7 @@ public static class DecodeReport
 
         output.WriteLine($"Profile  {result.Profile.Id} ({result.Profile.Name}); bank of {result.Settings.Count} settings");
         output.WriteLine();
-        output.WriteLine($"{"pos",4}  {"block",-16} {"status",-9} {"confidence",10}  {"bytes",5}  {"margin",6}  {"speed",6}  {"won by",-12} {"agree",5}");
+        output.WriteLine($"{"pos",4}  {"block",-16} {"status",-9} {"confidence",10}  {"bytes",5}  {"margin",6}  {"speed",8}  {"won by",-12} {"agree",5}");
         foreach (var best in result.Best)
         {
             int agreeing = 0;
@@ -41,7 +42,7 @@ public static class DecodeReport
             }
 
             output.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"{best.Position,4}  {Truncate(best.Identity.Key, 16),-16} {Status(best.Status),-9} {best.Confidence,10:0.0000}  {best.Payload.Length,5}  {best.MinimumMargin,6:0.00}  {best.Speed,6:0.000}  {best.SettingName,-12} {agreeing,2}/{readers,-2}"));
+                $"{best.Position,4}  {Truncate(best.Identity.Key, 16),-16} {Status(best.Status),-9} {best.Confidence,10:0.0000}  {best.Payload.Length,5}  {best.MinimumMargin,6:0.00}  {Vocabulary.SpeedPercent(best.Speed),8}  {best.SettingName,-12} {agreeing,2}/{readers,-2}"));
         }
 
         int clean = result.Best.Count(b => b.Status == BlockStatus.Clean);
@@ -49,16 +50,12 @@ public static class DecodeReport
         int unchecked_ = result.Best.Count(b => b.Status == BlockStatus.Unchecked);
         output.WriteLine();
         output.WriteLine($"{result.Best.Count} positions: {clean} clean, {failed} failed, {unchecked_} unchecked.");
-        output.WriteLine("confidence: the estimated chance that the block's payload is right. margin: how far its least certain");
-        output.WriteLine("decision was from a wrong one (0 to 1). agree: readings of the position with the same status and bytes, of all.");
+        output.WriteLine(Vocabulary.ConfidenceSentence);
+        output.WriteLine("margin: how far the least certain decision was from a wrong one (0 to 1). agree: readings of the position with");
+        output.WriteLine("the same status and bytes, of all.");
     }
 
-    public static string Status(BlockStatus status) => status switch
-    {
-        BlockStatus.Clean => "clean",
-        BlockStatus.Failed => "failed",
-        _ => "unchecked",
-    };
+    public static string Status(BlockStatus status) => Vocabulary.Of(status).Name;
 
     public static void WriteJson(Stream stream, DecodeResult result)
     {

@@ -3,6 +3,7 @@ using System.Text.Json;
 using TapeVault.Core.Decoding;
 using TapeVault.Core.Image;
 using TapeVault.Core.Merge;
+using TapeVault.Core.Text;
 
 namespace TapeVault.Cli.Commands;
 
@@ -94,13 +95,7 @@ public static class MergeCommand
         return 0;
     }
 
-    public static string Status(RecoveryStatus status) => status switch
-    {
-        RecoveryStatus.Clean => "clean",
-        RecoveryStatus.Voted => "voted",
-        RecoveryStatus.Repaired => "repaired",
-        _ => "missing",
-    };
+    public static string Status(RecoveryStatus status) => Vocabulary.Of(status).Name;
 
     /// <summary>The pass (1-based, in the order the captures were given) that a reading came from.</summary>
     private static int PassOf(TapeImage image, BlockProvenance source)

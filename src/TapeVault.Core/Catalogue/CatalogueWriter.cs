@@ -5,6 +5,8 @@ using System.Text;
 using System.Text.Json;
 using TapeVault.Core.Image;
 
+using TapeVault.Core.Text;
+
 namespace TapeVault.Core.Catalogue;
 
 /// <summary>
@@ -14,8 +16,7 @@ namespace TapeVault.Core.Catalogue;
 /// </summary>
 public static class CatalogueWriter
 {
-    public const string ConfidenceExplanation =
-        "Confidence is TapeVault's estimate of the chance that a block's bytes are exactly as they were written on the tape: at 0.99, about one block in a hundred is expected to be wrong.";
+    public const string ConfidenceExplanation = Vocabulary.ConfidenceSentence;
 
     private static readonly CultureInfo Invariant = CultureInfo.InvariantCulture;
     private static readonly UTF8Encoding Utf8 = new(encoderShouldEmitUTF8Identifier: false);
@@ -237,7 +238,7 @@ public static class CatalogueWriter
         b.Append("</tbody></table>\n</section>\n");
     }
 
-    private static string Word(RecoveryStatus status) => status.ToString().ToLowerInvariant();
+    private static string Word(RecoveryStatus status) => Vocabulary.Of(status).Word;
 
     private static void AppendBlockMap(StringBuilder b, TapeImage image)
     {

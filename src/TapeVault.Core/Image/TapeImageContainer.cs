@@ -597,13 +597,7 @@ public static class TapeImageContainer
         Confidence = p.Confidence,
     };
 
-    internal static string StatusName(RecoveryStatus status) => status switch
-    {
-        RecoveryStatus.Clean => "clean",
-        RecoveryStatus.Voted => "voted",
-        RecoveryStatus.Repaired => "repaired",
-        _ => "missing",
-    };
+    internal static string StatusName(RecoveryStatus status) => Vocabulary.Of(status).Name;
 
     private static ReadOnlySpan<byte> Bytes(ImmutableArray<byte> bytes) => bytes.IsDefault ? [] : bytes.AsSpan();
 

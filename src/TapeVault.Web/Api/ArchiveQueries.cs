@@ -8,6 +8,7 @@ using TapeVault.Archive.Storage;
 using TapeVault.Core.Image;
 using TapeVault.Core.Detection;
 using TapeVault.Core.Formats;
+using TapeVault.Core.Text;
 
 namespace TapeVault.Web.Api;
 
@@ -119,7 +120,7 @@ public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles,
             return new ImageBlockView(
                 b.Position,
                 b.Key,
-                b.Status.ToString().ToLowerInvariant(),
+                Vocabulary.Of(b.Status).Name,
                 b.Confidence,
                 b.AgreeingCaptures,
                 b.Conflict,
@@ -158,7 +159,7 @@ public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles,
         if (newest is not null && store.Exists(newest.Sha256))
         {
             var image = await ReadImageAsync(newest.Sha256, cancellation).ConfigureAwait(false);
-            columns = [.. image.Blocks.Select(b => new BlockMapColumn(b.Position, b.Key, b.Status.ToString().ToLowerInvariant(), b.Confidence))];
+            columns = [.. image.Blocks.Select(b => new BlockMapColumn(b.Position, b.Key, Vocabulary.Of(b.Status).Name, b.Confidence))];
             foreach (var b in image.Blocks.Where(b => !b.Sources.IsDefaultOrEmpty))
             {
                 chosen.TryAdd(b.Key, (b.Sources[0].CaptureSha256, b.Sources[0].SettingName));
