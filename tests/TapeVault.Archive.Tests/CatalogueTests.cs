@@ -69,7 +69,11 @@ public sealed class CatalogueTests(SharedArchive shared)
         Assert.Contains(image.Sha256, document.Body!.TextContent, StringComparison.Ordinal);
         Assert.Contains(CatalogueWriter.ConfidenceExplanation, document.Body.TextContent, StringComparison.Ordinal);
         Assert.Equal(ArchiveFixture.Accession, document.QuerySelector("meta[name='DCTERMS.identifier']")!.GetAttribute("content"));
-        Assert.NotNull(document.QuerySelector("svg.blockmap"));
+        // The tape timeline: the image lane draws one titled shape per position of the image.
+        var timeline = document.QuerySelector("svg.timeline");
+        Assert.NotNull(timeline);
+        Assert.Equal(image.CleanBlocks + image.VotedBlocks + image.RepairedBlocks + image.MissingBlocks,
+            timeline!.QuerySelectorAll("title").Count(t => t.TextContent.StartsWith("position ", StringComparison.Ordinal)));
 
         // Every capture is in the provenance table with its SHA-256.
         foreach (var capture in await db.Captures.AsNoTracking().Where(c => c.ItemId == shared.Archive.ItemId).ToListAsync())

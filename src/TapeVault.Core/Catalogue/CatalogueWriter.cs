@@ -6,6 +6,7 @@ using System.Text.Json;
 using TapeVault.Core.Image;
 
 using TapeVault.Core.Text;
+using TapeVault.Core.Timeline;
 
 namespace TapeVault.Core.Catalogue;
 
@@ -240,33 +241,13 @@ public static class CatalogueWriter
 
     private static string Word(RecoveryStatus status) => Vocabulary.Of(status).Word;
 
+    /// <summary>The same tape timeline as the web app's tape page, drawn from the image alone.</summary>
     private static void AppendBlockMap(StringBuilder b, TapeImage image)
     {
-        const int cell = 18;
-        const int perRow = 32;
-        int count = image.Blocks.Length;
-        int rows = Math.Max(1, (count + perRow - 1) / perRow);
-        int width = (Math.Min(Math.Max(count, 1), perRow) * cell) + 4;
-        int height = (rows * cell) + 4;
-        b.Append("<h3>Block map</h3>\n<p class=\"small\">One square per block in tape order. ■ clean, ◆ voted, ▲ repaired, □ with a cross: missing; the darker, the more confident.</p>\n");
-        b.Append(Invariant, $"<svg class=\"blockmap\" role=\"img\" aria-labelledby=\"map-title\" width=\"{width}\" height=\"{height}\" viewBox=\"0 0 {width} {height}\" xmlns=\"http://www.w3.org/2000/svg\">\n<title id=\"map-title\">Block map: {count} block(s) by status and confidence</title>\n");
-        foreach (var block in image.Blocks)
-        {
-            int x = 2 + ((block.Position % perRow) * cell);
-            int y = 2 + ((block.Position / perRow) * cell);
-            double opacity = 0.25 + (0.75 * Math.Clamp(block.Confidence, 0, 1));
-            b.Append(Invariant, $"<g><title>position {block.Position} ({E(block.Key)}): {Word(block.Status)}, confidence {F(block.Confidence)}</title>");
-            b.Append(block.Status switch
-            {
-                RecoveryStatus.Clean => string.Create(Invariant, $"<rect x=\"{x + 2}\" y=\"{y + 2}\" width=\"{cell - 4}\" height=\"{cell - 4}\" fill=\"#3d6b4f\" fill-opacity=\"{F(opacity, "0.00")}\"/>"),
-                RecoveryStatus.Voted => string.Create(Invariant, $"<polygon points=\"{x + (cell / 2)},{y + 1} {x + cell - 1},{y + (cell / 2)} {x + (cell / 2)},{y + cell - 1} {x + 1},{y + (cell / 2)}\" fill=\"#9a6418\" fill-opacity=\"{F(opacity, "0.00")}\"/>"),
-                RecoveryStatus.Repaired => string.Create(Invariant, $"<polygon points=\"{x + (cell / 2)},{y + 2} {x + cell - 2},{y + cell - 2} {x + 2},{y + cell - 2}\" fill=\"#9a6418\" fill-opacity=\"{F(opacity, "0.00")}\"/>"),
-                _ => string.Create(Invariant, $"<rect x=\"{x + 2}\" y=\"{y + 2}\" width=\"{cell - 4}\" height=\"{cell - 4}\" fill=\"none\" stroke=\"#9a3b2e\" stroke-width=\"1.5\"/><path d=\"M{x + 4},{y + 4} L{x + cell - 4},{y + cell - 4} M{x + cell - 4},{y + 4} L{x + 4},{y + cell - 4}\" stroke=\"#9a3b2e\" stroke-width=\"1.5\"/>"),
-            });
-            b.Append("</g>\n");
-        }
-
-        b.Append("</svg>\n");
+        b.Append("<h3>Tape timeline</h3>\n<p class=\"small\">Tape time runs from left to right. The top lane is the image, one bar per block; below it, each capture's lane shows the readings the image took from it, where they lay on the tape. The shape tells the outcome and paler means less confident; the table below says the same in words.</p>\n");
+        b.Append("<div class=\"timeline-scroll\">");
+        b.Append(TimelineSvg.Render(TapeTimeline.FromImage(image), null, title: "Tape timeline"));
+        b.Append("</div>\n");
     }
 
     private static void AppendHistogram(StringBuilder b, PulseHistogram h)
@@ -395,6 +376,8 @@ public static class CatalogueWriter
     }
 
     private const string Css = """
+        .timeline-scroll { overflow-x: auto; background: #fffdf8; border: 1px solid #d9d4c7; padding: .3rem; }
+        svg.timeline { display: block; font-family: inherit; }
         body { margin: 0 auto; max-width: 60rem; padding: 1rem 1.5rem 3rem; font: 16px/1.5 system-ui, sans-serif; background: #f6f4ee; color: #23303a; }
         header { border-bottom: 2px solid #d9d4c7; margin-bottom: 1rem; }
         .org { color: #5d6a73; margin: 0; }

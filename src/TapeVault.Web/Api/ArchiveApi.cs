@@ -44,6 +44,7 @@ public static class ArchiveApi
         read.MapGet("/jobs/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.JobAsync(id, c));
         read.MapGet("/items/{id:int}/images", (int id, ArchiveQueries q, CancellationToken c) => q.ImagesAsync(id, c));
         read.MapGet("/items/{id:int}/block-map", (int id, ArchiveQueries q, CancellationToken c) => q.BlockMapAsync(id, c));
+        read.MapGet("/items/{id:int}/positions/{position:int}", (int id, int position, ArchiveQueries q, CancellationToken c) => q.PositionAsync(id, position, c));
         read.MapGet("/images/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.ImageAsync(id, c));
         read.MapGet("/images/{id:int}/download", DownloadImageAsync);
         read.MapGet("/exports", (ArchiveQueries q, int? collectionId, int? itemId, CancellationToken c) => q.ExportsAsync(collectionId, itemId, c));

@@ -9,6 +9,7 @@ using TapeVault.Core.Image;
 using TapeVault.Core.Detection;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Text;
+using TapeVault.Core.Timeline;
 
 namespace TapeVault.Web.Api;
 
@@ -189,6 +190,68 @@ public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles,
         }
 
         return new BlockMap(newest?.Id, columns, rows);
+    }
+
+    /// <summary>
+    /// The tape timeline of an item: the newest decode of each capture (as the merge takes them), one lane per
+    /// setting, and the newest image on top when there is one.
+    /// </summary>
+    public async Task<TapeTimeline> TimelineAsync(int itemId, CancellationToken cancellation = default)
+    {
+        if (!await db.Items.AnyAsync(i => i.Id == itemId, cancellation).ConfigureAwait(false))
+        {
+            throw new ArchiveNotFoundException($"There is no item {itemId}.");
+        }
+
+        var runs = await MergeJob.RunsToMergeAsync(db, itemId, cancellation).ConfigureAwait(false);
+        var runIds = runs.Select(r => r.Id).ToList();
+        var rows = await db.Candidates.AsNoTracking().Where(c => runIds.Contains(c.RunId))
+            .Select(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed })
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        var captureOfRun = runs.ToDictionary(r => r.Id, r => r.Capture!.Sha256);
+        var readings = rows.Select(c => new TimelineReading(captureOfRun[c.RunId], c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed)).ToList();
+        var captures = runs.Select(r => (r.Capture!.Sha256, $"Capture {r.CaptureId} · {r.Capture.OriginalFileName}")).ToList();
+        var settings = runs.ToDictionary(r => r.Capture!.Sha256, r => (IReadOnlyList<string>)[.. SettingsJson.Read(r.SettingsJson).Select(s => s.Name)], StringComparer.Ordinal);
+
+        IReadOnlyList<TimelinePosition>? positions = null;
+        var newest = await db.Images.AsNoTracking().Where(i => i.ItemId == itemId).OrderByDescending(i => i.Version).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        if (newest is not null && store.Exists(newest.Sha256))
+        {
+            var image = await ReadImageAsync(newest.Sha256, cancellation).ConfigureAwait(false);
+            positions = [.. image.Blocks.Select(b => new TimelinePosition(b.Position, b.Key, Vocabulary.Of(b.Status).Name, b.Confidence))];
+        }
+
+        return TapeTimeline.Build(captures, readings, settings, positions);
+    }
+
+    /// <summary>Every reading of one position of the newest image, side by side: which capture and setting, what it read, how sure.</summary>
+    public async Task<PositionReadings> PositionAsync(int itemId, int position, CancellationToken cancellation = default)
+    {
+        var newest = await db.Images.AsNoTracking().Where(i => i.ItemId == itemId).OrderByDescending(i => i.Version).FirstOrDefaultAsync(cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"Item {itemId} has no tape image yet; merge its captures first.");
+        var image = await ReadImageAsync(newest.Sha256, cancellation).ConfigureAwait(false);
+        if (position < 0 || position >= image.Blocks.Length)
+        {
+            throw new ArchiveNotFoundException($"The image of item {itemId} has no position {position}.");
+        }
+
+        var block = image.Blocks[position];
+        var runs = await MergeJob.RunsToMergeAsync(db, itemId, cancellation).ConfigureAwait(false);
+        var runIds = runs.Select(r => r.Id).ToList();
+        var records = await db.Candidates.AsNoTracking().Where(c => runIds.Contains(c.RunId) && c.IdentityKey == block.Key)
+            .OrderBy(c => c.RunId).ThenBy(c => c.SettingIndex).ThenBy(c => c.StartSeconds)
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        var runById = runs.ToDictionary(r => r.Id);
+        var readings = records.Select(c =>
+        {
+            var run = runById[c.RunId];
+            bool same = block.Status != RecoveryStatus.Missing && c.Payload.AsSpan().SequenceEqual(block.Payload.AsSpan());
+            return new PositionReading(run.CaptureId, run.Capture!.OriginalFileName, run.Id, c.SettingName, c.Status, c.Confidence, c.StartSeconds,
+                c.PayloadLength, Convert.ToHexStringLower(c.Payload.AsSpan(0, Math.Min(c.Payload.Length, 16))), c.MinimumMargin, c.MeanMargin,
+                c.AmbiguousDecisions, same);
+        }).ToList();
+        return new PositionReadings(itemId, newest.Version, block.Position, image.Blocks.Length, block.Key, Vocabulary.Of(block.Status).Name, block.Confidence,
+            block.Payload.Length, Convert.ToHexStringLower(block.Payload.AsSpan(0, Math.Min(block.Payload.Length, 16))), readings);
     }
 
     /// <summary>Reads a stored container once per request: the item page asks for the newest image and its block map.</summary>

@@ -171,3 +171,32 @@ public sealed record BlockMapRow(int CaptureId, string CaptureFile, int RunId, s
 public sealed record BlockMapCell(string Status, double Confidence, bool Chosen);
 
 public sealed record ExportView(int Id, string Kind, int? CollectionId, int? ItemId, string FileName, string Sha256, long Size, DateTimeOffset CreatedUtc, string CreatedBy);
+
+/// <summary>One reading of one image position, for the position's side-by-side view.</summary>
+public sealed record PositionReading(
+    int CaptureId,
+    string CaptureFile,
+    int RunId,
+    string Setting,
+    string Status,
+    double Confidence,
+    double StartSeconds,
+    int Bytes,
+    string FirstBytesHex,
+    double MinimumMargin,
+    double MeanMargin,
+    int AmbiguousDecisions,
+    bool SameAsImage);
+
+/// <summary>An image position and every reading of it.</summary>
+public sealed record PositionReadings(
+    int ItemId,
+    int ImageVersion,
+    int Position,
+    int PositionCount,
+    string Key,
+    string Status,
+    double Confidence,
+    int Bytes,
+    string FirstBytesHex,
+    IReadOnlyList<PositionReading> Readings);

@@ -67,15 +67,14 @@ public sealed class CuratorJourneyTests
 
         await WaitForJobsAsync(page, app, "03-jobs-decoded");
 
-        // The block map: one row per capture × setting, the clean readings marked with a tick (not colour alone).
+        // The tape timeline before a merge: both captures have lanes, and the settings that read nothing checkable
+        // are folded away behind a count rather than drawn.
         await page.GotoAsync(itemUrl);
-        var rows = page.Locator("table.blockmap tbody tr");
-        Assert.Equal(16, await rows.CountAsync());
-        Assert.True(await page.Locator("table.blockmap td.cell-clean").CountAsync() > 0);
-        var firstClean = page.Locator("table.blockmap td.cell-clean").First;
-        Assert.Contains("clean", await firstClean.GetAttributeAsync("title") ?? string.Empty, StringComparison.Ordinal);
-        Assert.Contains("✓", await firstClean.InnerTextAsync(), StringComparison.Ordinal);
-        await Browser.ShotAsync(page, "04-block-map");
+        Assert.Equal(1, await page.Locator("h2#timeline").CountAsync());
+        var captureTitles = await page.Locator("h2#timeline ~ div.timeline-scroll svg.timeline text.tl-capture").AllTextContentsAsync();
+        Assert.Equal(2, captureTitles.Count(t => t.StartsWith("Capture ", StringComparison.Ordinal)));
+        Assert.True(await page.Locator("svg.timeline text.tl-lane").CountAsync() > 0);
+        await Browser.ShotAsync(page, "04-timeline");
 
         // The capture page: the waveform, the zoom with the detector's decisions, the pulse lengths and the speed,
         // each a figure with a table behind it for those who cannot see the plot.
@@ -102,6 +101,15 @@ public sealed class CuratorJourneyTests
         Assert.Equal(shown, Convert.ToHexStringLower(SHA256.HashData(await File.ReadAllBytesAsync(imagePath))));
         Assert.Contains("0 missing", await page.InnerTextAsync("main"), StringComparison.Ordinal);
         await Browser.ShotAsync(page, "06-image");
+
+        // After the merge the image is the timeline's top lane; a position opens its readings side by side.
+        Assert.True(await page.Locator("svg.timeline a.tl-position").CountAsync() > 0);
+        await page.Locator("svg.timeline a.tl-position").First.ClickAsync();
+        await page.WaitForSelectorAsync("h2:has-text('Every reading of this block')");
+        Assert.True(await page.Locator("table.grid tbody tr").CountAsync() >= 2);
+        Assert.Contains("yes", await page.InnerTextAsync("table.grid tbody"), StringComparison.Ordinal);
+        await Browser.ShotAsync(page, "06b-position");
+        await page.GotoAsync(itemUrl);
 
         // Publish the catalogue, download it and open it from disk.
         await page.ClickAsync($"a:has-text('{Collection}')");

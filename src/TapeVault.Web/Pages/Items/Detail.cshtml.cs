@@ -19,7 +19,7 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
 
     public ImageDetail? Latest { get; private set; }
 
-    public BlockMap? Map { get; private set; }
+    public TapeVault.Core.Timeline.TapeTimeline? Timeline { get; private set; }
 
     [TempData]
     public string? Message { get; set; }
@@ -93,7 +93,7 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
             }
         }
 
-        Map = await queries.BlockMapAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
+        Timeline = await queries.TimelineAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
         Exports = await queries.ExportsAsync(null, id, HttpContext.RequestAborted).ConfigureAwait(false);
     }
 

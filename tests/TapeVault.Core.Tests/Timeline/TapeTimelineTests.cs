@@ -1,0 +1,117 @@
+using System.Xml.Linq;
+using TapeVault.Core.Timeline;
+using Xunit;
+
+namespace TapeVault.Core.Tests.Timeline;
+
+/// <summary>The tape timeline: captures lined up on one tape time, useless settings folded, the image on top.</summary>
+public sealed class TapeTimelineTests
+{
+    private static readonly (string, string)[] TwoCaptures = [("a", "Capture 1"), ("b", "Capture 2")];
+
+    [Fact]
+    public void Captures_AreLinedUp_ByTheBlocksTheyShare_AfterTheirOwnSpeed()
+    {
+        // Capture b started 3 s later into its recording and played 2 % fast: its capture times are shorter by the
+        // speed and later by the start.
+        var readings = new List<TimelineReading>();
+        for (int k = 0; k < 5; k++)
+        {
+            double tape = 1 + (2 * k);
+            readings.Add(new TimelineReading("a", "s1", $"F:{k}", "clean", 0.99, tape, tape + 1.5, 1.0));
+            readings.Add(new TimelineReading("b", "s1", $"F:{k}", "clean", 0.99, (tape / 1.02) + 3, ((tape + 1.5) / 1.02) + 3, 1.02));
+        }
+
+        var t = TapeTimeline.Build(TwoCaptures, readings, new Dictionary<string, IReadOnlyList<string>>(), null);
+
+        var a = t.Captures[0].Lanes.Single().Spans;
+        var b = t.Captures[1].Lanes.Single().Spans;
+        for (int k = 0; k < 5; k++)
+        {
+            Assert.Equal(a[k].Start, b[k].Start, 1e-6 + (0.03 * 3));
+        }
+
+        Assert.Null(t.Image);
+    }
+
+    [Fact]
+    public void SettingsThatReadNothingCheckable_FoldAway_AndSettingsThatReadNothing_StillCount()
+    {
+        var readings = new List<TimelineReading>
+        {
+            new("a", "good", "F:0", "clean", 0.99, 1, 2, 1),
+            new("a", "garbled", "F?:9", "failed", 0.1, 1, 2, 1),
+        };
+        var settings = new Dictionary<string, IReadOnlyList<string>> { ["a"] = ["good", "garbled", "silent"] };
+
+        var t = TapeTimeline.Build([("a", "Capture 1")], readings, settings, null);
+
+        Assert.Equal(["good"], t.Captures[0].Lanes.Select(l => l.Title));
+        Assert.Equal(["garbled", "silent"], t.Captures[0].Folded.Select(l => l.Title));
+    }
+
+    [Fact]
+    public void AMissingPosition_IsDrawnBetweenItsNeighbours_NotHidden()
+    {
+        var readings = new List<TimelineReading>
+        {
+            new("a", "s", "F:0", "clean", 0.99, 1, 2, 1),
+            new("a", "s", "F:2", "clean", 0.99, 5, 6, 1),
+        };
+        TimelinePosition[] image = [new(0, "F:0", "clean", 0.99), new(1, "F:1", "missing", 0), new(2, "F:2", "clean", 0.99)];
+
+        var t = TapeTimeline.Build([("a", "Capture 1")], readings, new Dictionary<string, IReadOnlyList<string>>(), image);
+
+        var spans = t.Image!.Spans;
+        Assert.Equal(3, spans.Count);
+        Assert.True(spans[1].Start >= spans[0].End - 1e-9 && spans[1].End <= spans[2].Start + 1e-9, "the missing block lies between its neighbours");
+        Assert.True(spans[1].End > spans[1].Start);
+    }
+
+    [Fact]
+    public void Svg_IsWellFormed_WithOneTitledLinkPerImagePosition()
+    {
+        var readings = new List<TimelineReading>();
+        var image = new List<TimelinePosition>();
+        for (int k = 0; k < 6; k++)
+        {
+            readings.Add(new TimelineReading("a", "s", $"F:{k}", k == 3 ? "failed" : "clean", 0.9, k, k + 0.8, 1));
+            image.Add(new TimelinePosition(k, $"F:{k}", k == 3 ? "missing" : "clean", k == 3 ? 0 : 0.9));
+        }
+
+        var t = TapeTimeline.Build([("a", "Capture <1> & co")], readings, new Dictionary<string, IReadOnlyList<string>>(), image);
+        var svg = XDocument.Parse(TimelineSvg.Render(t, p => $"/items/1/positions/{p}"));
+
+        XNamespace ns = "http://www.w3.org/2000/svg";
+        var links = svg.Descendants(ns + "a").ToList();
+        Assert.Equal(6, links.Count);
+        Assert.Equal("/items/1/positions/3", (string?)links[3].Attribute("href"));
+        Assert.Contains("missing", links[3].Element(ns + "title")!.Value, StringComparison.Ordinal);
+        Assert.Contains(svg.Descendants(ns + "text"), e => e.Value == "Capture <1> & co");
+    }
+
+    [Fact]
+    public void Svg_OfALongTape_StaysSmall()
+    {
+        // 400 blocks, 3 passes × 8 settings: the size the tape page must stay within (performance goal, 300 KB a page).
+        var captures = Enumerable.Range(0, 3).Select(c => ($"c{c}", $"Capture {c}")).ToList();
+        var readings = new List<TimelineReading>();
+        var rng = new Random(7);
+        foreach (var (key, _) in captures)
+        {
+            for (int s = 0; s < 8; s++)
+            {
+                for (int k = 0; k < 400; k++)
+                {
+                    readings.Add(new TimelineReading(key, $"setting {s}", $"F:{k}", rng.NextDouble() < 0.8 ? "clean" : "failed", rng.NextDouble(), 2.5 * k, (2.5 * k) + 2.2, 1));
+                }
+            }
+        }
+
+        var image = Enumerable.Range(0, 400).Select(k => new TimelinePosition(k, $"F:{k}", "clean", 0.999)).ToList();
+        var t = TapeTimeline.Build(captures, readings, new Dictionary<string, IReadOnlyList<string>>(), image);
+        string svg = TimelineSvg.Render(t, p => $"/items/1/positions/{p}");
+
+        Assert.True(svg.Length < 250_000, $"{svg.Length} characters");
+    }
+}
