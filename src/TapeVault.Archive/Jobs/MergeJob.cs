@@ -43,11 +43,43 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
         return [.. runs.Where(r => r.ProfileId == profileId).GroupBy(r => r.CaptureId).Select(g => g.First()).OrderBy(r => r.CaptureId)];
     }
 
+    /// <summary>
+    /// A merge asked for while decodes of the same tape are still queued or running (the demo's, or a curator who
+    /// merges straight after starting them) waits for them, so that it merges every pass it was asked to. It waits only
+    /// for jobs queued before it: those are claimed first, so the wait always ends.
+    /// </summary>
+    private async Task WaitForEarlierDecodesAsync(JobRecord job, int itemId, JobProgress progress, CancellationToken cancellation)
+    {
+        while (true)
+        {
+            int[] waiting;
+            await using (var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false))
+            {
+                waiting = await db.Jobs.AsNoTracking()
+                    .Where(j => j.ItemId == itemId && j.Kind == JobKinds.Decode && j.Id < job.Id && (j.State == JobState.Queued || j.State == JobState.Running))
+                    .OrderBy(j => j.Id).Select(j => j.Id).ToArrayAsync(cancellation).ConfigureAwait(false);
+            }
+
+            if (waiting.Length == 0)
+            {
+                return;
+            }
+
+            if (await progress(0, $"Waiting for decode job(s) {string.Join(", ", waiting)} of this tape to finish.").ConfigureAwait(false))
+            {
+                throw new OperationCanceledException(cancellation);
+            }
+
+            await Task.Delay(TimeSpan.FromMilliseconds(500), cancellation).ConfigureAwait(false);
+        }
+    }
+
     public async Task<JobOutcome> RunAsync(JobRecord job, JobProgress progress, CancellationToken cancellation)
     {
         ArgumentNullException.ThrowIfNull(job);
         ArgumentNullException.ThrowIfNull(progress);
         var parameters = MergeJobParameters.FromJson(job.Parameters);
+        await WaitForEarlierDecodesAsync(job, parameters.ItemId, progress, cancellation).ConfigureAwait(false);
         List<DecodeRun> runs;
         var passes = new List<MergePass>();
         await using (var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false))

@@ -78,6 +78,10 @@ public sealed class DemoSeeder(ArchiveDbContext db, ContentStore store, ArchiveO
                     JobQueue.Enqueue(db, JobKinds.Decode, new DecodeJobParameters(ingested.Capture.Id, profile.Id, null).ToJson(), EventLog.SystemAgent, item.Id, ingested.Capture.Id);
                     await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
                 }
+
+                // A newcomer's first look at a demo tape is a finished image: its merge waits for the decodes above.
+                JobQueue.Enqueue(db, JobKinds.Merge, new MergeJobParameters(item.Id).ToJson(), EventLog.SystemAgent, item.Id);
+                await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
             }
         }
         finally
