@@ -16,6 +16,7 @@ public sealed class BlockLayoutCodec
 
     private readonly int[] _offsets;
     private readonly (int Start, int Length)[] _coveredHeader;
+    private readonly int _coveredHeaderBytes;
     private readonly bool _coversPayload;
     private readonly uint _checkMask;
 
@@ -62,6 +63,7 @@ public sealed class BlockLayoutCodec
         }
 
         _coveredHeader = [.. ranges];
+        _coveredHeaderBytes = ranges.Sum(r => r.Length);
     }
 
     /// <summary>The codec of <paramref name="layout"/>, made once per layout instance.</summary>
@@ -191,7 +193,7 @@ public sealed class BlockLayoutCodec
             return checksum.Compute(block[start..end]) & _checkMask;
         }
 
-        int total = (_coversPayload ? payloadLength : 0) + _coveredHeader.Sum(r => r.Length);
+        int total = (_coversPayload ? payloadLength : 0) + _coveredHeaderBytes;
         byte[] rented = ArrayPool<byte>.Shared.Rent(total);
         try
         {
