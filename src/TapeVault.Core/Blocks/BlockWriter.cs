@@ -1,4 +1,3 @@
-using TapeVault.Core.Checksums;
 using TapeVault.Core.Formats;
 
 namespace TapeVault.Core.Blocks;
@@ -47,20 +46,19 @@ public static class BlockWriter
         return blocks;
     }
 
-    /// <summary>One block: header fields by role, the payload, then the checksum.</summary>
+    /// <summary>One block: header fields by role, the payload, then the check value (<see cref="BlockLayoutCodec"/>).</summary>
     public static byte[] Build(BlockLayout layout, string fileName, long fileId, long blockNumber, ReadOnlySpan<byte> payload)
     {
         ArgumentNullException.ThrowIfNull(layout);
-        var checksum = layout.Checksum is { } spec ? ChecksumCatalog.Get(spec.Algorithm) : null;
-        int checkBytes = checksum?.Width ?? 0;
-        var block = new byte[layout.HeaderBytes + payload.Length + checkBytes];
-        int offset = 0;
+        ArgumentNullException.ThrowIfNull(fileName);
+        var codec = BlockLayoutCodec.For(layout);
+        var block = new byte[codec.BlockBytes(payload.Length)];
         foreach (var field in layout.Header)
         {
-            var target = block.AsSpan(offset, field.Bytes);
             switch (field.Role)
             {
                 case FieldRole.FileName:
+                    var target = block.AsSpan(codec.FieldOffset(field), field.Bytes);
                     target.Fill((byte)' ');
                     for (int i = 0; i < Math.Min(fileName.Length, field.Bytes); i++)
                     {
@@ -69,38 +67,23 @@ public static class BlockWriter
 
                     break;
                 case FieldRole.FileId:
-                    WriteUnsigned(target, (ulong)fileId, field.BigEndian);
+                    codec.WriteField(block, field, (ulong)fileId);
                     break;
                 case FieldRole.BlockNumber:
-                    WriteUnsigned(target, (ulong)blockNumber, field.BigEndian);
+                    codec.WriteField(block, field, (ulong)blockNumber);
                     break;
                 case FieldRole.PayloadLength:
-                    WriteUnsigned(target, (ulong)payload.Length, field.BigEndian);
+                    codec.WriteField(block, field, (ulong)payload.Length);
                     break;
             }
-
-            offset += field.Bytes;
         }
 
-        payload.CopyTo(block.AsSpan(offset));
-        offset += payload.Length;
-        if (checksum is not null)
+        payload.CopyTo(block.AsSpan(codec.HeaderBytes));
+        if (codec.Checksum is not null)
         {
-            var covered = layout.Checksum!.Covers == ChecksumCoverage.Payload
-                ? block.AsSpan(layout.HeaderBytes, payload.Length)
-                : block.AsSpan(0, offset);
-            WriteUnsigned(block.AsSpan(offset, checkBytes), checksum.Compute(covered), layout.Checksum.BigEndian);
+            codec.WriteCheck(block, payload.Length);
         }
 
         return block;
-    }
-
-    private static void WriteUnsigned(Span<byte> target, ulong value, bool bigEndian)
-    {
-        for (int i = 0; i < target.Length; i++)
-        {
-            byte b = unchecked((byte)(value >> (8 * i)));
-            target[bigEndian ? target.Length - 1 - i : i] = b;
-        }
     }
 }

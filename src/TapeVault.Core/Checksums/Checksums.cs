@@ -1,9 +1,198 @@
 namespace TapeVault.Core.Checksums;
 
-/// <summary>XOR of all bytes (<c>xor8</c>).</summary>
-public sealed class Xor8Checksum : IBlockChecksum
+/// <summary>
+/// A CRC of any parameters in the Rocksoft/Williams model, table-driven: one 256-entry table built when the model is
+/// built, in the reflected form (register shifts right) when input bytes are reflected and in the normal form
+/// otherwise.
+/// </summary>
+public sealed class CrcChecksum : IBlockChecksum
 {
-    public string Name => "xor8";
+    private readonly uint[] _table;
+    private readonly uint _mask;
+    private readonly uint _start;
+    private readonly int _topShift;
+
+    public CrcChecksum(string name, CrcParameters parameters)
+    {
+        ArgumentException.ThrowIfNullOrWhiteSpace(name);
+        ArgumentNullException.ThrowIfNull(parameters);
+        Name = name;
+        Parameters = parameters;
+        int width = parameters.Width;
+        _mask = CrcParameters.Mask(width);
+        _topShift = width - 8;
+        _table = new uint[256];
+        if (parameters.RefIn)
+        {
+            // Reflected form: the register holds the CRC bit-reversed, and bytes enter at its low end.
+            uint poly = Reflect(parameters.Poly, width);
+            for (uint i = 0; i < 256; i++)
+            {
+                uint c = i;
+                for (int bit = 0; bit < 8; bit++)
+                {
+                    c = (c & 1u) != 0 ? (c >> 1) ^ poly : c >> 1;
+                }
+
+                _table[i] = c;
+            }
+
+            _start = Reflect(parameters.Init, width);
+        }
+        else
+        {
+            // Normal form: bytes enter at the register's top eight bits.
+            uint top = 1u << (width - 1);
+            for (uint i = 0; i < 256; i++)
+            {
+                uint c = i << _topShift;
+                for (int bit = 0; bit < 8; bit++)
+                {
+                    c = ((c & top) != 0 ? (c << 1) ^ parameters.Poly : c << 1) & _mask;
+                }
+
+                _table[i] = c;
+            }
+
+            _start = parameters.Init;
+        }
+    }
+
+    /// <summary>The same model (and table) under another name.</summary>
+    public CrcChecksum(string name, CrcChecksum same)
+    {
+        ArgumentException.ThrowIfNullOrWhiteSpace(name);
+        ArgumentNullException.ThrowIfNull(same);
+        Name = name;
+        Parameters = same.Parameters;
+        _table = same._table;
+        _mask = same._mask;
+        _start = same._start;
+        _topShift = same._topShift;
+    }
+
+    public string Name { get; }
+
+    public CrcParameters Parameters { get; }
+
+    public int Width => Parameters.Bytes;
+
+    /// <summary>A random block matches a w-bit CRC with odds 2^-w (a 12-bit CRC stored in two bytes has 4096 values).</summary>
+    public double FalseMatchProbability => Math.ScaleB(1.0, -Parameters.Width);
+
+    public uint Compute(ReadOnlySpan<byte> data)
+    {
+        uint[] table = _table;
+        uint crc = _start;
+        if (Parameters.RefIn)
+        {
+            foreach (byte b in data)
+            {
+                crc = table[(crc ^ b) & 0xFFu] ^ (crc >> 8);
+            }
+        }
+        else
+        {
+            int shift = _topShift;
+            uint mask = _mask;
+            foreach (byte b in data)
+            {
+                // Shifting left pushes bits past the width; the mask keeps the register at its width.
+                crc = ((crc << 8) ^ table[((crc >> shift) ^ b) & 0xFFu]) & mask;
+            }
+        }
+
+        // The register of the reflected form is the CRC reversed: refout says which way round the result is read.
+        if (Parameters.RefIn != Parameters.RefOut)
+        {
+            crc = Reflect(crc, Parameters.Width);
+        }
+
+        return (crc ^ Parameters.XorOut) & _mask;
+    }
+
+    /// <summary>The low <paramref name="width"/> bits of <paramref name="value"/> in reverse order.</summary>
+    public static uint Reflect(uint value, int width) => ReverseBits(value) >> (32 - width);
+
+    private static uint ReverseBits(uint v)
+    {
+        v = ((v >> 1) & 0x55555555u) | ((v & 0x55555555u) << 1);
+        v = ((v >> 2) & 0x33333333u) | ((v & 0x33333333u) << 2);
+        v = ((v >> 4) & 0x0F0F0F0Fu) | ((v & 0x0F0F0F0Fu) << 4);
+        return System.Buffers.Binary.BinaryPrimitives.ReverseEndianness(v);
+    }
+}
+
+/// <summary>An additive sum of bytes or 16-bit words, 8 or 16 bits wide, with or without end-around carry, optionally complemented.</summary>
+public sealed class SumChecksum : IBlockChecksum
+{
+    public SumChecksum(string name, SumParameters parameters)
+    {
+        ArgumentException.ThrowIfNullOrWhiteSpace(name);
+        ArgumentNullException.ThrowIfNull(parameters);
+        Name = name;
+        Parameters = parameters;
+    }
+
+    public string Name { get; }
+
+    public SumParameters Parameters { get; }
+
+    public int Width => Parameters.Bytes;
+
+    public uint Compute(ReadOnlySpan<byte> data)
+    {
+        var p = Parameters;
+        int bits = p.Bits;
+        uint mask = CrcParameters.Mask(bits);
+        bool endAround = p.Carry == SumCarry.EndAround;
+        uint acc = 0;
+        if (p.Addend == SumAddend.Byte)
+        {
+            foreach (byte b in data)
+            {
+                acc = Add(acc, b, bits, mask, endAround);
+            }
+        }
+        else
+        {
+            bool big = p.Addend == SumAddend.WordBigEndian;
+            for (int i = 0; i < data.Length; i += 2)
+            {
+                uint first = data[i];
+                uint second = i + 1 < data.Length ? data[i + 1] : 0u;
+                acc = Add(acc, big ? (first << 8) | second : (second << 8) | first, bits, mask, endAround);
+            }
+        }
+
+        return p.Complement switch
+        {
+            SumComplement.Ones => ~acc & mask,
+            SumComplement.Twos => unchecked(0u - acc) & mask,
+            _ => acc,
+        };
+    }
+
+    private static uint Add(uint acc, uint addend, int bits, uint mask, bool endAround)
+    {
+        // Both terms are below 2^16, so the sum fits in 17 bits and cannot overflow.
+        uint sum = acc + addend;
+        return endAround ? (sum & mask) + (sum >> bits) : sum & mask;
+    }
+}
+
+/// <summary>The XOR of all bytes.</summary>
+public sealed class XorChecksum : IBlockChecksum
+{
+    public XorChecksum(string name)
+    {
+        ArgumentException.ThrowIfNullOrWhiteSpace(name);
+        Name = name;
+    }
+
+    public string Name { get; }
+
+    public XorParameters Parameters { get; } = new();
 
     public int Width => 1;
 
@@ -16,128 +205,5 @@ public sealed class Xor8Checksum : IBlockChecksum
         }
 
         return acc;
-    }
-}
-
-/// <summary>Sum of all bytes modulo 256 (<c>sum8</c>).</summary>
-public sealed class Sum8Checksum : IBlockChecksum
-{
-    public string Name => "sum8";
-
-    public int Width => 1;
-
-    public uint Compute(ReadOnlySpan<byte> data)
-    {
-        uint acc = 0;
-        foreach (byte b in data)
-        {
-            // Masked every step, so the accumulator never exceeds 0x1FE and cannot overflow.
-            acc = (acc + b) & 0xFFu;
-        }
-
-        return acc;
-    }
-}
-
-/// <summary>
-/// CRC-16/IBM-3740, a.k.a. CRC-16/CCITT-FALSE (<c>crc16-ccitt-false</c>):
-/// poly 0x1021, init 0xFFFF, no reflection, xorout 0.
-/// </summary>
-public sealed class Crc16CcittFalseChecksum : IBlockChecksum
-{
-    public string Name => "crc16-ccitt-false";
-
-    public int Width => 2;
-
-    public uint Compute(ReadOnlySpan<byte> data) => Crc16Msb.Update(0xFFFFu, data);
-}
-
-/// <summary>
-/// CRC-16/XMODEM (<c>crc16-xmodem</c>): poly 0x1021, init 0, no reflection, xorout 0.
-/// </summary>
-public sealed class Crc16XmodemChecksum : IBlockChecksum
-{
-    public string Name => "crc16-xmodem";
-
-    public int Width => 2;
-
-    public uint Compute(ReadOnlySpan<byte> data) => Crc16Msb.Update(0u, data);
-}
-
-/// <summary>
-/// CRC-32/ISO-HDLC (<c>crc32</c>): reflected poly 0xEDB88320, init 0xFFFFFFFF, xorout 0xFFFFFFFF.
-/// </summary>
-public sealed class Crc32Checksum : IBlockChecksum
-{
-    private static readonly uint[] Table = BuildTable();
-
-    public string Name => "crc32";
-
-    public int Width => 4;
-
-    public uint Compute(ReadOnlySpan<byte> data)
-    {
-        uint[] table = Table;
-        uint crc = 0xFFFFFFFFu;
-        foreach (byte b in data)
-        {
-            crc = table[(crc ^ b) & 0xFFu] ^ (crc >> 8);
-        }
-
-        return crc ^ 0xFFFFFFFFu;
-    }
-
-    private static uint[] BuildTable()
-    {
-        const uint reflectedPoly = 0xEDB88320u;
-        var table = new uint[256];
-        for (uint i = 0; i < 256; i++)
-        {
-            uint c = i;
-            for (int bit = 0; bit < 8; bit++)
-            {
-                c = (c & 1u) != 0 ? (c >> 1) ^ reflectedPoly : c >> 1;
-            }
-
-            table[i] = c;
-        }
-
-        return table;
-    }
-}
-
-/// <summary>Shared MSB-first (non-reflected) table for the poly-0x1021 CRC-16 variants.</summary>
-internal static class Crc16Msb
-{
-    private static readonly ushort[] Table = BuildTable();
-
-    public static uint Update(uint crc, ReadOnlySpan<byte> data)
-    {
-        ushort[] table = Table;
-        foreach (byte b in data)
-        {
-            // Shifting left pushes bits past bit 15; the mask keeps the register at 16 bits.
-            crc = ((crc << 8) ^ table[((crc >> 8) ^ b) & 0xFFu]) & 0xFFFFu;
-        }
-
-        return crc;
-    }
-
-    private static ushort[] BuildTable()
-    {
-        const uint poly = 0x1021u;
-        var table = new ushort[256];
-        for (uint i = 0; i < 256; i++)
-        {
-            uint c = i << 8;
-            for (int bit = 0; bit < 8; bit++)
-            {
-                c = (c & 0x8000u) != 0 ? ((c << 1) ^ poly) & 0xFFFFu : (c << 1) & 0xFFFFu;
-            }
-
-            table[i] = (ushort)c;
-        }
-
-        return table;
     }
 }

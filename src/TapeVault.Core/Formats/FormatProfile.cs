@@ -45,8 +45,14 @@ public enum FieldRole
 
 public enum ChecksumCoverage
 {
+    /// <summary>Every header field and the payload.</summary>
     HeaderAndPayload,
+
+    /// <summary>The payload only.</summary>
     Payload,
+
+    /// <summary>The fields named in <see cref="ChecksumSpec.CoveredFields"/>, in tape order.</summary>
+    Fields,
 }
 
 /// <summary>A named pulse class: a whole cycle of a nominal duration.</summary>
@@ -88,7 +94,31 @@ public sealed record ByteFraming(int DataBits, BitOrder BitOrder, string StartBi
 
 public sealed record HeaderField(string Name, int Bytes, FieldRole Role, bool BigEndian);
 
-public sealed record ChecksumSpec(string Algorithm, ChecksumCoverage Covers, bool BigEndian);
+/// <summary>
+/// The check value of a block: the checksum (<see cref="Algorithm"/>, a catalogue name or the canonical text of its
+/// parameters, see <see cref="Checksums.ChecksumCatalog"/>), the bytes it covers, and the byte order it is stored in
+/// after the payload.
+/// </summary>
+public sealed record ChecksumSpec(string Algorithm, ChecksumCoverage Covers, bool BigEndian)
+{
+    /// <summary>The name that stands for the payload in <see cref="CoveredFields"/>.</summary>
+    public const string PayloadName = "payload";
+
+    /// <summary>
+    /// With <see cref="ChecksumCoverage.Fields"/>: the header fields the check covers, by name, in tape order, with
+    /// <see cref="PayloadName"/> for the payload. Empty for the other coverages.
+    /// </summary>
+    public IReadOnlyList<string> CoveredFields { get; init; } = [];
+
+    /// <summary>The checksum itself, built once per model (<see cref="Checksums.ChecksumCatalog.Get"/>).</summary>
+    public Checksums.IBlockChecksum Resolve() => Checksums.ChecksumCatalog.Get(Algorithm);
+
+    public bool Equals(ChecksumSpec? other) =>
+        other is not null && Algorithm == other.Algorithm && Covers == other.Covers && BigEndian == other.BigEndian
+        && CoveredFields.SequenceEqual(other.CoveredFields);
+
+    public override int GetHashCode() => HashCode.Combine(Algorithm, Covers, BigEndian, CoveredFields.Count);
+}
 
 /// <summary>
 /// How bytes make blocks. A layout without header, fixed payload length or checksum is a stream: everything

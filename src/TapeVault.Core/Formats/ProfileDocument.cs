@@ -1,3 +1,4 @@
+using System.Text.Json;
 using System.Text.Json.Serialization;
 
 namespace TapeVault.Core.Formats;
@@ -75,8 +76,37 @@ internal sealed class HeaderFieldDocument
 internal sealed class ChecksumDocument
 {
     public string? Algorithm { get; set; }
-    public string? Covers { get; set; }
+    public CrcDocument? Crc { get; set; }
+    public SumDocument? Sum { get; set; }
+    public XorDocument? Xor { get; set; }
+
+    // A keyword (header-and-payload, payload) or a list of field names.
+    public JsonElement? Covers { get; set; }
     public string? Endian { get; set; }
+}
+
+internal sealed class CrcDocument
+{
+    public int? Width { get; set; }
+
+    // Numbers written as text ("0x1021") or as JSON numbers.
+    public JsonElement? Poly { get; set; }
+    public JsonElement? Init { get; set; }
+    public bool? Refin { get; set; }
+    public bool? Refout { get; set; }
+    public JsonElement? Xorout { get; set; }
+}
+
+internal sealed class SumDocument
+{
+    public int? Bits { get; set; }
+    public string? Carry { get; set; }
+    public string? Complement { get; set; }
+    public string? Addend { get; set; }
+}
+
+internal sealed class XorDocument
+{
 }
 
 internal sealed class LayoutDocument

@@ -397,29 +397,7 @@ public static class ProfileLoader
                 Fail("layout.maximumPayloadBytes", $"must be between 1 and {MaximumPayloadLimit}, not {maximum}");
             }
 
-            ChecksumSpec? checksum = null;
-            if (d.Checksum is { } c)
-            {
-                string algorithm = Required(c.Algorithm, "layout.checksum.algorithm");
-                if (!ChecksumCatalog.TryGet(algorithm, out _))
-                {
-                    Fail("layout.checksum.algorithm", $"names an unknown checksum '{algorithm}' (known: {string.Join(", ", ChecksumCatalog.Names)})");
-                }
-
-                var covers = (c.Covers ?? "header-and-payload") switch
-                {
-                    "header-and-payload" => ChecksumCoverage.HeaderAndPayload,
-                    "payload" => ChecksumCoverage.Payload,
-                    var other => throw Error("layout.checksum.covers", $"must be header-and-payload or payload, not '{other}'"),
-                };
-                bool big = (c.Endian ?? "big") switch
-                {
-                    "little" => false,
-                    "big" => true,
-                    var other => throw Error("layout.checksum.endian", $"must be little or big, not '{other}'"),
-                };
-                checksum = new ChecksumSpec(algorithm, covers, big);
-            }
+            ChecksumSpec? checksum = d.Checksum is { } c ? Checksum(c, header) : null;
 
             if (header.Count > 0 && payload is null && !hasLengthField)
             {
@@ -438,6 +416,225 @@ public static class ProfileLoader
             }
 
             return new BlockLayout(header, payload, maximum, checksum, copies);
+        }
+
+        private ChecksumSpec Checksum(ChecksumDocument c, List<HeaderField> header)
+        {
+            const string path = "layout.checksum";
+            int given = (c.Algorithm is null ? 0 : 1) + (c.Crc is null ? 0 : 1) + (c.Sum is null ? 0 : 1) + (c.Xor is null ? 0 : 1);
+            if (given > 1)
+            {
+                Fail(path, "must give one of algorithm, crc, sum or xor, not several");
+            }
+
+            IBlockChecksum checksum;
+            if (c.Crc is { } crc)
+            {
+                checksum = ChecksumCatalog.Create(Crc(crc, path + ".crc"));
+            }
+            else if (c.Sum is { } sum)
+            {
+                checksum = ChecksumCatalog.Create(Sum(sum, path + ".sum"));
+            }
+            else if (c.Xor is not null)
+            {
+                checksum = ChecksumCatalog.Create(new XorParameters());
+            }
+            else
+            {
+                string algorithm = string.IsNullOrWhiteSpace(c.Algorithm)
+                    ? throw Error(path + ".algorithm", "is required (or give the checksum's parameters as crc, sum or xor)")
+                    : c.Algorithm;
+                if (!ChecksumCatalog.TryGet(algorithm, out var named))
+                {
+                    Fail(path + ".algorithm", $"names an unknown checksum '{algorithm}' (known: {string.Join(", ", ChecksumCatalog.Names)}; or give crc, sum or xor parameters)");
+                }
+
+                checksum = named;
+            }
+
+            var (covers, fields) = Coverage(c.Covers, header, path + ".covers");
+            bool big = (c.Endian ?? "big") switch
+            {
+                "little" => false,
+                "big" => true,
+                var other => throw Error(path + ".endian", $"must be little or big, not '{other}'"),
+            };
+
+            // A name the profile wrote is kept as written (an alias stays an alias); parameters are kept by the name
+            // the catalogue gives them, which the catalogue resolves again.
+            string name = c.Algorithm ?? checksum.Name;
+            return new ChecksumSpec(name, covers, big) { CoveredFields = fields };
+        }
+
+        private CrcParameters Crc(CrcDocument d, string path)
+        {
+            int width = Required(d.Width, path + ".width");
+            if (width is < CrcParameters.MinimumWidth or > CrcParameters.MaximumWidth)
+            {
+                Fail(path + ".width", $"must be between {CrcParameters.MinimumWidth} and {CrcParameters.MaximumWidth} bits, not {width}");
+            }
+
+            uint mask = CrcParameters.Mask(width);
+            uint poly = Number(d.Poly, path + ".poly", mask, width) ?? throw Error(path + ".poly", "is required");
+            if ((poly & 1u) == 0)
+            {
+                Fail(path + ".poly", $"must be odd (a generator has its x^0 term; the top term x^{width} is left out), not 0x{poly:x}");
+            }
+
+            uint init = Number(d.Init, path + ".init", mask, width) ?? 0;
+            uint xorout = Number(d.Xorout, path + ".xorout", mask, width) ?? 0;
+            bool refin = d.Refin ?? false;
+            bool refout = d.Refout ?? refin;
+            return new CrcParameters(width, poly, init, refin, refout, xorout);
+        }
+
+        private uint? Number(JsonElement? element, string path, uint mask, int width)
+        {
+            if (element is not { } e || e.ValueKind == JsonValueKind.Null)
+            {
+                return null;
+            }
+
+            ulong value;
+            if (e.ValueKind == JsonValueKind.Number)
+            {
+                if (!e.TryGetUInt64(out value))
+                {
+                    Fail(path, $"must be a whole number from 0, not {e.GetRawText()}");
+                }
+            }
+            else if (e.ValueKind == JsonValueKind.String)
+            {
+                string text = e.GetString()!;
+                bool ok = text.StartsWith("0x", StringComparison.OrdinalIgnoreCase)
+                    ? ulong.TryParse(text.AsSpan(2), System.Globalization.NumberStyles.AllowHexSpecifier, System.Globalization.CultureInfo.InvariantCulture, out value)
+                    : ulong.TryParse(text, System.Globalization.NumberStyles.None, System.Globalization.CultureInfo.InvariantCulture, out value);
+                if (!ok || text.Length is 0 or > 20)
+                {
+                    Fail(path, $"must be a number, in hex as \"0x1021\" or in decimal, not '{text}'");
+                }
+            }
+            else
+            {
+                Fail(path, $"must be a number, in hex as \"0x1021\" or in decimal, not {e.ValueKind.ToString().ToLowerInvariant()}");
+                return null;
+            }
+
+            if (value > mask)
+            {
+                Fail(path, $"must fit in the CRC's {width} bits (at most 0x{mask:x}), not 0x{value:x}");
+            }
+
+            return (uint)value;
+        }
+
+        private SumParameters Sum(SumDocument d, string path)
+        {
+            int bits = Required(d.Bits, path + ".bits");
+            if (bits is not (8 or 16))
+            {
+                Fail(path + ".bits", $"must be 8 or 16, not {bits}");
+            }
+
+            var carry = SumParameters.ParseCarry(d.Carry ?? "none")
+                ?? throw Error(path + ".carry", $"must be none or end-around, not '{d.Carry}'");
+            var complement = SumParameters.ParseComplement(d.Complement ?? "none")
+                ?? throw Error(path + ".complement", $"must be none, ones or twos, not '{d.Complement}'");
+            var addend = SumParameters.ParseAddend(d.Addend ?? "byte")
+                ?? throw Error(path + ".addend", $"must be byte, word-big or word-little, not '{d.Addend}'");
+            if (addend != SumAddend.Byte && bits != 16)
+            {
+                Fail(path + ".addend", $"'{d.Addend}' adds 16-bit words, which needs bits 16, not {bits}");
+            }
+
+            return new SumParameters(bits, carry, complement, addend);
+        }
+
+        private (ChecksumCoverage Covers, IReadOnlyList<string> Fields) Coverage(JsonElement? element, List<HeaderField> header, string path)
+        {
+            if (element is not { } e || e.ValueKind == JsonValueKind.Null)
+            {
+                return (ChecksumCoverage.HeaderAndPayload, []);
+            }
+
+            if (e.ValueKind == JsonValueKind.String)
+            {
+                return e.GetString() switch
+                {
+                    "header-and-payload" => (ChecksumCoverage.HeaderAndPayload, []),
+                    "payload" => (ChecksumCoverage.Payload, []),
+                    var other => throw Error(path, $"must be header-and-payload or payload, or a list of field names, not '{other}'"),
+                };
+            }
+
+            if (e.ValueKind != JsonValueKind.Array)
+            {
+                Fail(path, $"must be header-and-payload or payload, or a list of field names, not {e.ValueKind.ToString().ToLowerInvariant()}");
+            }
+
+            int count = e.GetArrayLength();
+            if (count == 0)
+            {
+                Fail(path, "must name at least one field (header field names, and payload for the payload)");
+            }
+
+            if (header.Exists(h => h.Name == ChecksumSpec.PayloadName))
+            {
+                Fail(path, $"cannot name fields while a header field is itself called '{ChecksumSpec.PayloadName}' (that name stands for the payload); rename the field");
+            }
+
+            var fields = new List<string>(count);
+            int lastPosition = -1;
+            int index = 0;
+            foreach (var item in e.EnumerateArray())
+            {
+                string itemPath = $"{path}[{index}]";
+                if (item.ValueKind != JsonValueKind.String || item.GetString() is not { Length: > 0 } name)
+                {
+                    Fail(itemPath, "must be a field name");
+                    return default;
+                }
+
+                int position = name == ChecksumSpec.PayloadName ? header.Count : header.FindIndex(h => h.Name == name);
+                if (position < 0)
+                {
+                    string known = string.Join(", ", header.Select(h => h.Name).Append(ChecksumSpec.PayloadName));
+                    Fail(itemPath, $"names no field: '{name}' (the fields are {known})");
+                }
+
+                if (position < header.Count && header.FindLastIndex(h => h.Name == name) != position)
+                {
+                    Fail(itemPath, $"names '{name}', which more than one header field is called");
+                }
+
+                if (fields.Contains(name))
+                {
+                    Fail(itemPath, $"repeats '{name}'");
+                }
+
+                if (position < lastPosition)
+                {
+                    Fail(itemPath, $"names '{name}' after a field that follows it on tape: list the covered fields in tape order");
+                }
+
+                lastPosition = position;
+                fields.Add(name);
+                index++;
+            }
+
+            // The two keyword coverages, written out as names, are the keywords: the same check, the same spec.
+            if (fields.Count == header.Count + 1)
+            {
+                return (ChecksumCoverage.HeaderAndPayload, []);
+            }
+
+            if (fields is [ChecksumSpec.PayloadName])
+            {
+                return (ChecksumCoverage.Payload, []);
+            }
+
+            return (ChecksumCoverage.Fields, fields.AsReadOnly());
         }
 
         private RecordingLayout Recording(RecordingDocument? d)

@@ -363,22 +363,8 @@ internal sealed class BlockMerge
         var status = outcome.Trials == 1 ? RecoveryStatus.Voted : RecoveryStatus.Repaired;
         return Block([.. header], [.. payload], status, outcome.Confidence, sources, 0, identity);
 
-        bool Holds(byte[] block)
-        {
-            var spec = Layout.Checksum!;
-            var covered = spec.Covers == ChecksumCoverage.Payload
-                ? block.AsSpan(Layout.HeaderBytes, payloadLength)
-                : block.AsSpan(0, Layout.HeaderBytes + payloadLength);
-            uint stored = ReadUnsigned(block.AsSpan(Layout.HeaderBytes + payloadLength, width), spec.BigEndian);
-            uint mask = width >= 4 ? uint.MaxValue : (1u << (8 * width)) - 1;
-            if ((_checksum!.Compute(covered) & mask) != stored)
-            {
-                return false;
-            }
-
-            // A length field that disagrees with the payload would make the block a different one.
-            return Layout.FieldWithRole(FieldRole.PayloadLength) is not { } lengthField || FieldValue(block, lengthField) == payloadLength;
-        }
+        // The check value holds and the length field agrees (BlockLayoutCodec.CheckHolds).
+        bool Holds(byte[] block) => BlockLayoutCodec.For(Layout).CheckHolds(block, payloadLength);
     }
 
     /// <summary>
@@ -422,42 +408,10 @@ internal sealed class BlockMerge
         c.Payload.AsSpan().CopyTo(bytes.AsSpan(c.Header.Length));
         if (complete)
         {
-            uint value = c.StoredChecksum ?? 0;
-            var target = bytes.AsSpan(c.Header.Length + c.Payload.Length, width);
-            for (int i = 0; i < width; i++)
-            {
-                target[Layout.Checksum!.BigEndian ? width - 1 - i : i] = unchecked((byte)(value >> (8 * i)));
-            }
+            BlockLayoutCodec.For(Layout).WriteStoredCheck(bytes.AsSpan(c.Header.Length + c.Payload.Length, width), c.StoredChecksum ?? 0);
         }
 
         return bytes;
-    }
-
-    private long FieldValue(byte[] block, HeaderField field)
-    {
-        int offset = 0;
-        foreach (var f in Layout.Header)
-        {
-            if (ReferenceEquals(f, field))
-            {
-                break;
-            }
-
-            offset += f.Bytes;
-        }
-
-        return ReadUnsigned(block.AsSpan(offset, field.Bytes), field.BigEndian);
-    }
-
-    private static uint ReadUnsigned(ReadOnlySpan<byte> bytes, bool bigEndian)
-    {
-        uint value = 0;
-        for (int i = 0; i < bytes.Length; i++)
-        {
-            value = unchecked((value << 8) | bytes[bigEndian ? i : bytes.Length - 1 - i]);
-        }
-
-        return value;
     }
 
     /// <summary>The error odds of byte <paramref name="index"/> of a reading laid out as on tape; <paramref name="rest"/> where the reading kept none.</summary>

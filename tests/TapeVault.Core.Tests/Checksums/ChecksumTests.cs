@@ -90,9 +90,9 @@ public sealed class ChecksumTests
     }
 
     [Fact]
-    public void The_catalogue_lists_exactly_the_five_checksums_and_each_answers_to_its_name()
+    public void The_catalogue_lists_the_five_names_of_the_first_profile_language_first_and_each_answers_to_its_name()
     {
-        Assert.Equal(["xor8", "sum8", "crc16-ccitt-false", "crc16-xmodem", "crc32"], ChecksumCatalog.Names);
+        Assert.Equal(["xor8", "sum8", "crc16-ccitt-false", "crc16-xmodem", "crc32"], ChecksumCatalog.Names.Take(5));
         foreach (string name in ChecksumCatalog.Names)
         {
             Assert.Equal(name, ChecksumCatalog.Get(name).Name);
