@@ -97,6 +97,10 @@ public static class OutsideDamage
     public static void ApplySox(string input, string output, IReadOnlyList<string> outputOptions, IReadOnlyList<string> effects) =>
         Run(SoxPath, ["-R", "-V1", input, .. outputOptions, output, .. effects]);
 
+    /// <summary>Mixes <paramref name="noise"/> into <paramref name="signal"/> with SoX (-m, each input at volume 1: summed, not scaled down).</summary>
+    public static void Mix(string signal, string noise, string output) =>
+        Run(SoxPath, ["-R", "-V1", "-m", "-v", "1", signal, "-v", "1", noise, output]);
+
     /// <summary>
     /// An FSK capture written by minimodem (outside reference: Debian's software FSK modem). Each block goes through
     /// <c>minimodem --tx</c> on its own, with the profile's tones and baud and its stop bits, and SoX puts mark tone

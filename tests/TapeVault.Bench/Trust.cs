@@ -351,7 +351,7 @@ public static class Trust
             double noiseVolume = volume / Math.Sqrt(2) * Math.Pow(10, -snr / 20) / 0.54;
             OutsideDamage.ApplySox("-n", noise, ["-r", sampleRate.ToString(CultureInfo.InvariantCulture), "-b", "16", "-c", "1"], ["synth", seconds.ToString("0.###", CultureInfo.InvariantCulture), "whitenoise", "vol", noiseVolume.ToString("0.######", CultureInfo.InvariantCulture)]);
             string mixed = stem + ".mixed.wav";
-            MixSox(clean, noise, mixed);
+            OutsideDamage.Mix(clean, noise, mixed);
             description = $"minimodem {sampleRate} Hz, lead-in {leadIn:0.00} s, volume {volume:0.00}, SoX noise at SNR {snr:0.0} dB";
             path = Chain(mixed, path, channels, sampleRate, rng, ref description);
             return (path, "minimodem+sox", description);
@@ -379,24 +379,6 @@ public static class Trust
         OutsideDamage.ApplySox(input, output, options, effects);
         description += "; " + text;
         return output;
-    }
-
-    private static void MixSox(string signal, string noise, string output)
-    {
-        // Outside reference: SoX mixes the noise in (-m, each input at its own volume, 1: no scaling).
-        var start = new ProcessStartInfo(OutsideDamage.SoxPath) { UseShellExecute = false, RedirectStandardError = true };
-        foreach (string a in new[] { "-R", "-V1", "-m", "-v", "1", signal, "-v", "1", noise, output })
-        {
-            start.ArgumentList.Add(a);
-        }
-
-        using var process = Process.Start(start)!;
-        string error = process.StandardError.ReadToEnd();
-        process.WaitForExit();
-        if (process.ExitCode != 0)
-        {
-            throw new InvalidOperationException($"sox mix failed: {error}");
-        }
     }
 
     private static double Ece(List<Reading> readings) => Calibration.EqualBinEce([.. readings.Select(r => (r.Confidence, r.Right))]);
