@@ -17,7 +17,7 @@ public sealed class BagExportTests(SharedArchive shared)
         using (var scope = archive.Services.CreateScope())
         {
             await using var sink = new FolderBagSink(bag);
-            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.Item(archive.ItemId), sink, "tester");
+            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.Item(archive.ItemId), sink);
         }
 
         AssertValidBag(bag, [ArchiveFixture.Accession]);
@@ -32,7 +32,7 @@ public sealed class BagExportTests(SharedArchive shared)
         {
             await using var file = File.Create(zipPath);
             await using var sink = new ZipBagSink(file, "shelf-bag");
-            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.OfCollection(archive.CollectionId), sink, "tester");
+            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.OfCollection(archive.CollectionId), sink);
         }
 
         var unpacked = Path.Combine(archive.Root, $"unpacked-{Guid.NewGuid():N}");
@@ -49,7 +49,7 @@ public sealed class BagExportTests(SharedArchive shared)
         using (var scope = archive.Services.CreateScope())
         {
             await using var sink = new FolderBagSink(bag);
-            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.Item(archive.ItemId), sink, "tester");
+            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.Item(archive.ItemId), sink);
         }
 
         await using var db = archive.NewContext();
@@ -96,9 +96,9 @@ public sealed class BagExportTests(SharedArchive shared)
         var relative = payload.Select(f => Path.GetRelativePath(bag, f).Replace('\\', '/')).ToHashSet();
         Assert.Equal(relative, manifest);
 
-        // RFC 8493 §2.2.1: the tag manifest covers the tag files.
+        // RFC 8493 §2.2.1: the tag manifest covers the tag files, our event chain head among them (§2.2.4 allows other tag files).
         var tags = File.ReadAllLines(Path.Combine(bag, "tagmanifest-sha256.txt")).Select(l => l.Split("  ", 2)[1]).ToHashSet();
-        Assert.Equal(new HashSet<string> { "bagit.txt", "bag-info.txt", "manifest-sha256.txt" }, tags);
+        Assert.Equal(new HashSet<string> { "bagit.txt", "bag-info.txt", "manifest-sha256.txt", BagExport.ChainHeadTagFile }, tags);
 
         // GNU coreutils sha256sum (outside the project) verifies both manifests as written.
         var (manifestExit, manifestOut) = ArchiveFixture.Sha256SumCheck(bag, "manifest-sha256.txt");

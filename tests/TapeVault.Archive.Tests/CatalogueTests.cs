@@ -138,7 +138,7 @@ public sealed class CatalogueTests(SharedArchive shared)
     {
         var folder = Path.Combine(shared.Archive.Root, $"site-{Guid.NewGuid():N}");
         using var scope = shared.Archive.Services.CreateScope();
-        await scope.ServiceProvider.GetRequiredService<CataloguePublisher>().PublishAsync(shared.Archive.CollectionId, folder, "tester");
+        await scope.ServiceProvider.GetRequiredService<CataloguePublisher>().WriteAsync(shared.Archive.CollectionId, folder);
         return folder;
     }
 }

@@ -48,9 +48,13 @@ public static class ArchiveCommands
             output.WriteLine($"{p.Problem.ToUpperInvariant(),-9} {p.Kind} {p.File} · item {p.Item ?? "—"} · collection {p.Collection ?? "—"} · {p.Detail}");
         }
 
+        output.WriteLine(report.Chain.FirstBreak is { } broken
+            ? $"Event chain BROKEN at event {broken.EventId}: {broken.Reason}"
+            : $"Event chain intact: {report.Chain.Events} event(s) up to {report.Chain.Head?.ToString() ?? "none"}.");
+        output.WriteLine($"Event chain head: {report.HeadAfter?.ToString() ?? "none"} (after this audit's own events; compare it with a copy kept in a bag or catalogue).");
         output.WriteLine(report.AllGood
-            ? $"All {report.Checked} stored object(s) match their recorded SHA-256; nothing was changed."
-            : $"{report.Checked - report.Good} of {report.Checked} stored object(s) are damaged or missing; nothing was changed or repaired.");
+            ? $"All {report.Checked} stored object(s) match their recorded SHA-256 and their records agree; nothing was changed."
+            : $"{report.Problems.Count} problem(s) in {report.Checked} stored object(s), their records and the event log; nothing was changed or repaired.");
         if (!report.AllGood)
         {
             error.WriteLine($"tapevault: fixity audit found {report.Problems.Count} problem(s).");
@@ -111,7 +115,7 @@ public static class ArchiveCommands
                     result = Run(async () =>
                     {
                         await using var sink = new ZipBagSink(file, Path.GetFileNameWithoutExtension(target));
-                        return await bags.WriteAsync(scope, sink, ArchiveSession.Agent).ConfigureAwait(false);
+                        return await bags.WriteAsync(scope, sink).ConfigureAwait(false);
                     });
                 }
 
@@ -130,7 +134,7 @@ public static class ArchiveCommands
                 result = Run(async () =>
                 {
                     await using var sink = new FolderBagSink(temp);
-                    return await bags.WriteAsync(scope, sink, ArchiveSession.Agent).ConfigureAwait(false);
+                    return await bags.WriteAsync(scope, sink).ConfigureAwait(false);
                 });
                 if (Directory.Exists(target))
                 {
@@ -148,6 +152,9 @@ public static class ArchiveCommands
             }
         }
 
+        // Recorded only now that the bag is in place under its final name (a crash before this records nothing).
+        bags.RecordExported(result, ArchiveSession.Agent, $"written by the command line as '{Path.GetFileName(target)}'");
+        db.SaveChanges();
         output.WriteLine($"Bag written to {target}: {result.PayloadFiles} payload file(s), {result.PayloadBytes} bytes, for {string.Join(", ", result.ExternalIdentifiers)}.");
         output.WriteLine(zip ? "Unzip it and check it with: sha256sum -c manifest-sha256.txt" : $"Check it with: cd {target} && sha256sum -c manifest-sha256.txt && sha256sum -c tagmanifest-sha256.txt");
         return 0;
@@ -175,13 +182,21 @@ public static class ArchiveCommands
         var temp = Path.Combine(Path.GetDirectoryName(target)!, $".{Path.GetFileName(target)}.part-{Guid.NewGuid():N}");
         try
         {
-            var files = Run(() => session.Get<CataloguePublisher>().PublishAsync(collection, temp, ArchiveSession.Agent));
+            var publisher = session.Get<CataloguePublisher>();
+            var files = Run(() => publisher.WriteAsync(collection, temp));
             if (Directory.Exists(target))
             {
                 Directory.Delete(target);
             }
 
             Directory.Move(temp, target);
+
+            // The event names the folder the catalogue ended in, never the temporary one it was written to.
+            Run(async () =>
+            {
+                await publisher.RecordPublishedAsync(collection, $"Catalogue published by the command line to the folder '{Path.GetFileName(target)}' ({files.Count} files).", ArchiveSession.Agent).ConfigureAwait(false);
+                return 0;
+            });
             output.WriteLine($"Catalogue written to {target}: {files.Count} files. Open {Path.Combine(target, "index.html")} in a browser; check it with: cd {target} && sha256sum -c SHA256SUMS");
         }
         finally
