@@ -3,7 +3,9 @@ using System.Net;
 using System.Net.Http.Json;
 using Microsoft.Data.Sqlite;
 using Microsoft.EntityFrameworkCore;
+using Microsoft.Extensions.DependencyInjection;
 using TapeVault.Archive;
+using TapeVault.Archive.Events;
 using TapeVault.Web.Api;
 using TapeVault.Web.Tests.Support;
 using Xunit;
@@ -126,6 +128,15 @@ public sealed class IntegrityTests
         var audit = await curator.PostAsync<JobView>("/api/fixity", new { }, HttpStatusCode.Accepted);
         await curator.WaitForJobAsync(audit.Id, TimeSpan.FromSeconds(30));
 
+        // An event as an older release's command line wrote it, with the folder it published to.
+        await using (var scope = app.Scope())
+        {
+            var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+            EventLog.Add(db, EventTypes.Export, "cli:old", "item", itemId.ToString(System.Globalization.CultureInfo.InvariantCulture), "success",
+                $"Catalogue published to {Path.Combine(folder.Root, ".site.part-0123abcd")} (9 files).", itemId);
+            await db.SaveChangesAsync();
+        }
+
         using var viewer = await app.SignedInAsync(ArchiveAppFactory.ViewerName);
         var events = await viewer.Http.GetStringAsync($"/api/items/{itemId}/events");
         var page = await viewer.Http.GetStringAsync($"/items/{itemId}");
@@ -135,5 +146,7 @@ public sealed class IntegrityTests
             Assert.DoesNotContain(folder.Root, text, StringComparison.Ordinal);
             Assert.DoesNotContain(folder.Root.Replace("/", "\\/", StringComparison.Ordinal), text, StringComparison.Ordinal);
         }
+
+        Assert.Contains("Catalogue published to (a folder on the server) (9 files).", events, StringComparison.Ordinal);
     }
 }
