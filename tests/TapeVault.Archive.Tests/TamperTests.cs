@@ -132,6 +132,30 @@ public sealed class TamperTests
     }
 
     [Fact]
+    public async Task NewestEventsCutOffPassTheChainButNotAHeadKeptInABag()
+    {
+        await using var archive = await ArchiveFixture.CreateAsync();
+        var bag = Path.Combine(archive.Root, "kept-bag");
+        Assert.Equal(0, Entry.Run(["export", "bag", "--item", ArchiveFixture.Accession, "--out", bag, "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath], new StringWriter(), new StringWriter()));
+        string kept = File.ReadAllText(Path.Combine(bag, "event-chain-head.txt")).Trim();
+        long keptId = long.Parse(kept.Split(' ')[1], CultureInfo.InvariantCulture);
+        Assert.Equal(0, Verify(archive, "--expect-head", kept).Exit);
+
+        // Everything from the kept head on is removed: what is left is a whole chain, just shorter.
+        TamperBehindTriggers(archive, $"DELETE FROM Events WHERE Id >= {keptId};");
+        var (alone, aloneOutput, _) = Verify(archive);
+        Assert.Equal(0, alone);
+        Assert.Contains("Event chain intact", aloneOutput, StringComparison.Ordinal);
+
+        var (exit, output, _) = Verify(archive, "--expect-head", kept);
+        Assert.Equal(1, exit);
+        // The audit without the kept head added events of its own, so event N exists again, with another hash.
+        var line = Assert.Single(Lines(output, "KEPT-HEAD"));
+        Assert.Contains($"Event {keptId} now has SHA-256", line, StringComparison.Ordinal);
+        Assert.Contains(kept.Split(':')[1], line, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public async Task DeletedObjectRowLeavesTheFileInPlaceAndTheAuditNamesTheCaptureAndTheFile()
     {
         await using var archive = await ArchiveFixture.CreateAsync();
@@ -149,12 +173,12 @@ public sealed class TamperTests
         Assert.True(File.Exists(archive.Store.PathOf(sha)), "The audit must not move or remove the file.");
     }
 
-    internal static (int Exit, string Output, string Error) Verify(ArchiveFixture archive)
+    internal static (int Exit, string Output, string Error) Verify(ArchiveFixture archive, params string[] extra)
     {
         SqliteConnection.ClearAllPools();
         var output = new StringWriter();
         var error = new StringWriter();
-        int exit = Entry.Run(["verify", "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath], output, error);
+        int exit = Entry.Run(["verify", "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath, .. extra], output, error);
         return (exit, output.ToString(), error.ToString());
     }
 

@@ -123,6 +123,37 @@ public static class EventChain
         return new ChainReport(count, head, null);
     }
 
+    /// <summary>Reads a head as bags, catalogues and <c>verify</c> write it ("event 42 sha256:…"); null when it is not one.</summary>
+    public static ChainHead? ParseHead(string? text)
+    {
+        var parts = (text ?? string.Empty).Trim().Split(' ', StringSplitOptions.RemoveEmptyEntries);
+        return parts is ["event", var id, var hash]
+            && long.TryParse(id, NumberStyles.None, CultureInfo.InvariantCulture, out long eventId) && eventId > 0
+            && hash.StartsWith("sha256:", StringComparison.Ordinal) && hash[7..] is { Length: 64 } sha && sha.All(char.IsAsciiHexDigitLower)
+            ? new ChainHead(eventId, sha)
+            : null;
+    }
+
+    /// <summary>
+    /// Checks a head kept elsewhere (a bag's, a catalogue's, a noted one) against the log: the event must still be
+    /// there with that hash. Returns why not, or null when it is. Finds what the chain alone cannot: the newest events
+    /// cut off, or the chain recomputed after an edit.
+    /// </summary>
+    public static async Task<string?> CheckKeptHeadAsync(ArchiveDbContext db, ChainHead kept, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        ArgumentNullException.ThrowIfNull(kept);
+        var stored = await db.Events.AsNoTracking().Where(e => e.Id == kept.EventId).Select(e => new { e.Sha256 }).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        if (stored is null)
+        {
+            return $"The kept head {kept} names an event the log no longer holds: the history was cut off after it or rewritten.";
+        }
+
+        return stored.Sha256 == kept.Sha256
+            ? null
+            : $"Event {kept.EventId} now has SHA-256 {stored.Sha256}, not {kept.Sha256} as the kept head says: the history up to it was rewritten.";
+    }
+
     /// <summary>
     /// Gives the events of a database made before the chain their hashes (once: only when no event has one yet), then
     /// records that it did so as an event of its own. Returns how many events were sealed.
