@@ -33,7 +33,9 @@ public sealed class AccessControlArchive : IAsyncLifetime
         await App.AddCuratorAndViewerAsync();
         using var curator = await App.SignedInAsync(ArchiveAppFactory.CuratorName);
         var (collectionId, itemId) = await curator.NewItemAsync("ACL-1");
-        using var upload = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 4000), "acl.wav", extraQuery: $"&decodeProfile={SynthCaptures.Profile}");
+        // A capture with a block in it, so that the image has a position for the position endpoints to answer.
+        var capture = SynthCaptures.Orrin(Folder.Root, "acl", files: 1, bytesPerFile: 16, seed: 3);
+        using var upload = await curator.UploadRawAsync(itemId, capture.Bytes, "acl.wav", extraQuery: $"&decodeProfile={SynthCaptures.Profile}");
         await ApiClient.EnsureAsync(upload, HttpStatusCode.Created);
         var uploaded = (await upload.Content.ReadFromJsonAsync<UploadResult>(ApiClient.Json))!;
         var job = await curator.WaitForJobAsync(uploaded.DecodeJob!.Id, TimeSpan.FromSeconds(30));
@@ -49,6 +51,7 @@ public sealed class AccessControlArchive : IAsyncLifetime
         var merged = await curator.WaitForJobAsync(merge.Id, TimeSpan.FromSeconds(30));
         Assert.True(merged.State == "done", merged.Error);
         Ids["images"] = Invariant(merged.ResultId!.Value);
+        Ids["positions"] = "0";
         var bag = await curator.PostAsync<JobView>($"/api/items/{itemId}/bag", new { }, HttpStatusCode.Accepted);
         var bagged = await curator.WaitForJobAsync(bag.Id, TimeSpan.FromSeconds(30));
         Assert.True(bagged.State == "done", bagged.Error);
