@@ -132,13 +132,24 @@ public sealed class ContentStore
         return Convert.ToHexStringLower(await SHA256.HashDataAsync(stream, cancellation).ConfigureAwait(false));
     }
 
-    /// <summary>Removes temporary files left by an ingest that was interrupted (a crash, a kill); returns how many.</summary>
+    /// <summary>
+    /// Removes whatever an interrupted piece of work (a crash, a kill) left in the temporary folder, which only the app
+    /// writes to: staged uploads and objects (*.part), catalogue folders being published (catalogue-*), demo captures
+    /// being made (demo-*), plot caches being written. Nothing in it is ever the only copy of anything. Returns how
+    /// many entries were removed.
+    /// </summary>
     public int SweepTemporaryFiles()
     {
         int removed = 0;
-        foreach (var file in Directory.EnumerateFiles(TempFolder, "*.part"))
+        foreach (var file in Directory.EnumerateFiles(TempFolder))
         {
             File.Delete(file);
+            removed++;
+        }
+
+        foreach (var folder in Directory.EnumerateDirectories(TempFolder))
+        {
+            Directory.Delete(folder, recursive: true);
             removed++;
         }
 
