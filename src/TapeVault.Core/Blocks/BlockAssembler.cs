@@ -7,7 +7,10 @@ namespace TapeVault.Core.Blocks;
 /// <summary>
 /// Turns the bytes of one detector setting into block candidates, following the profile's layout: header, payload
 /// (fixed length or from a length field), checksum. A stream layout makes one unchecked block from a lead-in to the
-/// next loss of signal. The symbol decoders say where a block begins and when the signal is lost.
+/// next loss of signal. The symbol decoders say where a block begins and on what evidence, hand over each decision
+/// (<see cref="AddDecision"/>, <see cref="AddGuessedDecision"/>) and byte, and say when the signal is lost; what is
+/// missing after a loss of signal is the next block's doubt (it begins on no evidence). <see cref="BlockScorer"/>
+/// judges each finished block.
 /// </summary>
 public sealed class BlockAssembler
 {

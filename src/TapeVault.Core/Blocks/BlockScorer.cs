@@ -226,11 +226,13 @@ public sealed class BlockScorer
             else if (match)
             {
                 // The check proves nothing here: the bytes are as good as an unchecked reading of them.
-                confidence = Math.Exp(SumFloored(logModel, headerBytes, payloadEnd));
+                confidence = Math.Exp(SumFloored(logModel, 0, payloadEnd));
             }
             else
             {
-                confidence = PayloadRightGivenMismatch(SumFloored(logModel, headerBytes, payloadEnd), SumFloored(logModel, 0, headerBytes) + SumFloored(logModel, payloadEnd, byteCount));
+                // The payload is right only under its own header (a payload under a wrong block number or name is a
+                // wrong block), so given the mismatch, the error must lie in the check bytes alone.
+                confidence = PayloadRightGivenMismatch(SumFloored(logModel, 0, payloadEnd), SumFloored(logModel, payloadEnd, byteCount));
             }
 
             // A failed block whose (damaged) header claims no payload has nothing that could be right.
@@ -323,7 +325,7 @@ public sealed class BlockScorer
         return ok / (ok + ((1 - ok) * falseMatch));
     }
 
-    /// <summary>P(payload right | checksum fails): the error must then lie in the header or the check bytes.</summary>
+    /// <summary>P(block right | checksum fails), <paramref name="logPayloadOk"/> over the bytes that must be right: the error must then lie in the rest (the check bytes).</summary>
     public static double PayloadRightGivenMismatch(double logPayloadOk, double logRestOk)
     {
         double payloadOk = Math.Exp(logPayloadOk);

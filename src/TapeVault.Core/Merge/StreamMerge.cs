@@ -119,9 +119,9 @@ internal sealed class StreamMerge
                     readerOf.Add(c.SettingIndex, r);
                 }
 
-                // A reading's first characters may have been framed on a false start bit too (a reading that begins
-                // after a loss of signal needs no lead-in).
-                int sinceBroken = 0;
+                // A reading's first characters carry their own doubt where nothing marked its start (the block
+                // scorer gives it to a reading begun on no evidence, and it is kept with the byte odds).
+                int sinceBroken = int.MaxValue;
                 for (int i = 0; i < c.Payload.Length; i++)
                 {
                     float error = Math.Clamp(c.ByteErrorOdds[i], 1e-6f, 0.999f);
