@@ -263,7 +263,7 @@ internal sealed class BlockMerge
                 return (Witnesses: witnesses, Chance: AnyRight(witnesses.Select(w => w.Candidate.Confidence)));
             })
             .OrderByDescending(c => c.Witnesses.Count)
-            .ThenByDescending(c => c.Chance.Right)
+            .ThenBy(c => c.Chance.LogWrong)
             .ToList();
 
         var winner = contents[0];
