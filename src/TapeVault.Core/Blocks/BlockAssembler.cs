@@ -135,7 +135,7 @@ public sealed class BlockAssembler
 
         if (!_layout.IsStream && _bytes.Count == _layout.HeaderBytes && _layout.FieldWithRole(FieldRole.PayloadLength) is { } lengthField)
         {
-            long length = ReadField(lengthField);
+            long length = BlockLayoutCodec.For(_layout).ReadField(CollectionsMarshal.AsSpan(_bytes), lengthField);
 
             // A length beyond the layout's limit means a damaged header: read up to the limit and let the checksum fail.
             int payload = (int)Math.Min(length, _layout.MaximumPayloadBytes);
@@ -166,29 +166,6 @@ public sealed class BlockAssembler
         }
 
         Emit(sample, truncated: !_layout.IsStream);
-    }
-
-    private long ReadField(HeaderField field)
-    {
-        int offset = 0;
-        foreach (var f in _layout.Header)
-        {
-            if (ReferenceEquals(f, field))
-            {
-                break;
-            }
-
-            offset += f.Bytes;
-        }
-
-        long value = 0;
-        for (int i = 0; i < field.Bytes; i++)
-        {
-            int index = field.BigEndian ? offset + i : offset + field.Bytes - 1 - i;
-            value = (value << 8) | _bytes[index];
-        }
-
-        return value;
     }
 
     private void Emit(double endSample, bool truncated)
@@ -260,10 +237,10 @@ public sealed class BlockAssembler
                     fileName = DecodeName(bytes);
                     break;
                 case FieldRole.FileId:
-                    fileId = BlockScorer.ReadUnsigned(bytes, field.BigEndian);
+                    fileId = (long)BlockLayoutCodec.ReadUnsigned(bytes, field.BigEndian);
                     break;
                 case FieldRole.BlockNumber:
-                    blockNumber = BlockScorer.ReadUnsigned(bytes, field.BigEndian);
+                    blockNumber = (long)BlockLayoutCodec.ReadUnsigned(bytes, field.BigEndian);
                     break;
             }
 

@@ -82,13 +82,15 @@ public sealed class BlockScorer
     private const double PlainPriorWeight = 0.5;
 
     private readonly BlockLayout _layout;
+    private readonly BlockLayoutCodec _codec;
     private readonly IBlockChecksum? _checksum;
 
     public BlockScorer(BlockLayout layout)
     {
         ArgumentNullException.ThrowIfNull(layout);
         _layout = layout;
-        _checksum = layout.Checksum is { } spec ? ChecksumCatalog.Get(spec.Algorithm) : null;
+        _codec = BlockLayoutCodec.For(layout);
+        _checksum = _codec.Checksum;
     }
 
     /// <summary>Bytes of check value the layout puts after the payload (0 without a checksum).</summary>
@@ -195,16 +197,14 @@ public sealed class BlockScorer
         }
         else
         {
-            var spec = _layout.Checksum!;
-            stored = ReadUnsigned(bytes.Slice(payloadEnd, checksumBytes), spec.BigEndian);
-            var covered = spec.Covers == ChecksumCoverage.Payload ? bytes[headerBytes..payloadEnd] : bytes[..payloadEnd];
-            uint computed = _checksum.Compute(covered) & WidthMask(checksumBytes);
-            bool match = computed == stored;
+            int payloadLength = payloadEnd - headerBytes;
+            stored = _codec.ReadStoredCheck(bytes, payloadLength);
+            bool match = _codec.ComputeCheck(bytes, payloadLength) == stored;
             if (!match)
             {
                 doubts |= BlockDoubts.ChecksumMismatch;
             }
-            else if (IsAllAlike(covered, bytes.Slice(payloadEnd, checksumBytes)))
+            else if (_codec.CoveredAllAlike(bytes, payloadLength))
             {
                 doubts |= BlockDoubts.AllAlikeCheck;
             }
@@ -301,23 +301,6 @@ public sealed class BlockScorer
         };
     }
 
-    /// <summary>
-    /// Whether a holding check over <paramref name="covered"/> is free: nothing covered (the check of nothing is a
-    /// constant), or the covered bytes and the check bytes all one value. A zero-init CRC, xor8 and sum8 all give zero
-    /// over zeros, so a run of zeros read from a stuck line makes their codeword; a CRC with a non-zero initial value
-    /// (CRC-16/IBM-3740, init 0xFFFF in the CRC catalogue) gives a check unlike the zeros, which is evidence.
-    /// </summary>
-    public static bool IsAllAlike(ReadOnlySpan<byte> covered, ReadOnlySpan<byte> check)
-    {
-        if (covered.IsEmpty)
-        {
-            return true;
-        }
-
-        byte value = covered[0];
-        return !covered.ContainsAnyExcept(value) && !check.ContainsAnyExcept(value);
-    }
-
     /// <summary>P(right | checksum holds) by Bayes: a wrong block passes with the checksum's false-match odds.</summary>
     public static double PosteriorGivenMatch(double logAllOk, double falseMatch)
     {
@@ -366,17 +349,4 @@ public sealed class BlockScorer
 
         return sum;
     }
-
-    internal static uint ReadUnsigned(ReadOnlySpan<byte> bytes, bool bigEndian)
-    {
-        uint value = 0;
-        for (int i = 0; i < bytes.Length; i++)
-        {
-            value = unchecked((value << 8) | bytes[bigEndian ? i : bytes.Length - 1 - i]);
-        }
-
-        return value;
-    }
-
-    private static uint WidthMask(int bytes) => bytes >= 4 ? uint.MaxValue : (1u << (8 * bytes)) - 1;
 }

@@ -33,7 +33,7 @@ internal sealed class BlockMerge
         _passes = passes;
         _timelines = timelines;
         _options = options;
-        _checksum = profile.Layout.Checksum is { } spec ? ChecksumCatalog.Get(spec.Algorithm) : null;
+        _checksum = BlockLayoutCodec.For(profile.Layout).Checksum;
     }
 
     private BlockLayout Layout => _profile.Layout;

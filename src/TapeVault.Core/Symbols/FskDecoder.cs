@@ -433,7 +433,7 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private void BeginBlock(double start, BlockStart evidence, bool confirmed)
     {
-        _assembler.Begin(start - 0.5 * _tones.Window);
+        _assembler.Begin(start - 0.5 * _tones.Window, EvidenceOf(evidence, confirmed));
         _inBlock = true;
         _resuming = false;
 
@@ -446,6 +446,20 @@ public sealed class FskDecoder : ISymbolDecoder
             _alignment.Reset();
         }
     }
+
+    /// <summary>
+    /// What the block stage is told of a block's start: a lead-in or an idle line is the format's own mark of one; a
+    /// stream resumed on the character grid kept over a loss of signal is held by that grid as by a sync; a stream
+    /// taken up with nothing before it (resumed off the grid, or begun without a lead-in) has no evidence, and its
+    /// first characters are doubted.
+    /// </summary>
+    private static BlockStartEvidence EvidenceOf(BlockStart evidence, bool confirmed) => evidence switch
+    {
+        BlockStart.LeadIn or BlockStart.IdleLine => BlockStartEvidence.LeadIn,
+        BlockStart.Resumed when confirmed => BlockStartEvidence.Sync,
+        BlockStart.WithoutLeadIn when confirmed => BlockStartEvidence.LeadIn,
+        _ => BlockStartEvidence.None,
+    };
 
     private void AddCharacter(int value, ReadOnlySpan<float> levels, bool framingOk, double start, bool confirmed)
     {
