@@ -165,7 +165,10 @@ public sealed class BlockScorer
         }
 
         var doubts = BlockDoubts.None;
-        if (!startProven)
+
+        // A block aligned on its own characters is a stream's way to start; a block of a checked format starts only
+        // where the format marks one, whatever its bytes say.
+        if (!startProven || (evidence == BlockStartEvidence.SelfAligned && _checksum is not null))
         {
             doubts |= BlockDoubts.NoStartEvidence;
         }

@@ -14,6 +14,12 @@ public enum BlockStartEvidence
 
     /// <summary>A lead-in followed by the sync.</summary>
     LeadInAndSync,
+
+    /// <summary>
+    /// No lead-in or sync (a stream taken up mid-way), but the decoder checked its framing against the characters
+    /// themselves and put what doubt remains into each byte's own framing odds; the block stage adds none of its own.
+    /// </summary>
+    SelfAligned,
 }
 
 /// <summary>Why a block is not clean, or what lowers the trust in it; several may hold at once.</summary>

@@ -450,14 +450,15 @@ public sealed class FskDecoder : ISymbolDecoder
     /// <summary>
     /// What the block stage is told of a block's start: a lead-in or an idle line is the format's own mark of one; a
     /// stream resumed on the character grid kept over a loss of signal is held by that grid as by a sync; a stream
-    /// taken up with nothing before it (resumed off the grid, or begun without a lead-in) has no evidence, and its
-    /// first characters are doubted.
+    /// begun without a lead-in is aligned on its own characters (<see cref="FrameAlignment"/>), which price their own
+    /// doubt; a stream resumed off the grid has no evidence, and the block stage doubts its first characters.
     /// </summary>
     private static BlockStartEvidence EvidenceOf(BlockStart evidence, bool confirmed) => evidence switch
     {
         BlockStart.LeadIn or BlockStart.IdleLine => BlockStartEvidence.LeadIn,
         BlockStart.Resumed when confirmed => BlockStartEvidence.Sync,
         BlockStart.WithoutLeadIn when confirmed => BlockStartEvidence.LeadIn,
+        BlockStart.WithoutLeadIn => BlockStartEvidence.SelfAligned,
         _ => BlockStartEvidence.None,
     };
 
