@@ -24,7 +24,13 @@ public sealed class StoredCandidateTests(SharedArchive shared)
             var again = RunStore.ToCandidate(RunStore.ToRecord(candidate));
             Assert.Equal(candidate.HeaderErrorOdds.ToArray(), again.HeaderErrorOdds.ToArray());
             Assert.Equal(candidate.ChecksumErrorOdds.ToArray(), again.ChecksumErrorOdds.ToArray());
+            Assert.Equal(candidate.Doubts, again.Doubts);
+            Assert.Equal(candidate.Doubts, (TapeVault.Core.Blocks.BlockDoubts)row.Doubts);
         }
+
+        // The archive keeps why a reading failed: every failed row says it.
+        var failed = await db.Candidates.AsNoTracking().Where(c => c.Status == "failed").ToListAsync();
+        Assert.All(failed, f => Assert.NotEqual(0, f.Doubts));
     }
 
     [Fact]

@@ -295,6 +295,9 @@ namespace TapeVault.Migrations.Migrations
                     b.Property<int>("Decisions")
                         .HasColumnType("INTEGER");
 
+                    b.Property<int>("Doubts")
+                        .HasColumnType("INTEGER");
+
                     b.Property<double>("EndSeconds")
                         .HasColumnType("REAL");
 

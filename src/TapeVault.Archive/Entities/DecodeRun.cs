@@ -81,6 +81,9 @@ public sealed class CandidateRecord
 
     public bool Truncated { get; set; }
 
+    /// <summary>Why the reading is not clean, or what lowers the trust in it (<see cref="TapeVault.Core.Blocks.BlockDoubts"/> flags; 0 for readings stored before these were kept).</summary>
+    public int Doubts { get; set; }
+
     public long? StoredChecksum { get; set; }
 
     public int PayloadLength { get; set; }

@@ -67,6 +67,7 @@ public static class RunStore
             StartSeconds = c.StartSeconds,
             EndSeconds = c.EndSeconds,
             Truncated = c.Truncated,
+            Doubts = (int)c.Doubts,
             StoredChecksum = c.StoredChecksum,
             PayloadLength = c.Payload.Length,
             PayloadSha256 = Convert.ToHexStringLower(SHA256.HashData(c.Payload.AsSpan())),
@@ -116,6 +117,7 @@ public static class RunStore
             StartSeconds = r.StartSeconds,
             EndSeconds = r.EndSeconds,
             Truncated = r.Truncated,
+            Doubts = (BlockDoubts)r.Doubts,
         };
     }
 

@@ -106,6 +106,16 @@ public static class DecodeReport
             json.WriteNumber("snrDb", Math.Round(b.SnrDb, 2));
             json.WriteNumber("speed", Math.Round(b.Speed, 5));
             json.WriteBoolean("truncated", b.Truncated);
+            json.WriteStartArray("doubts");
+            foreach (var doubt in Enum.GetValues<BlockDoubts>())
+            {
+                if (doubt != BlockDoubts.None && b.Doubts.HasFlag(doubt))
+                {
+                    json.WriteStringValue(JsonNamingPolicy.KebabCaseLower.ConvertName(doubt.ToString()));
+                }
+            }
+
+            json.WriteEndArray();
             json.WriteEndObject();
         }
 

@@ -90,6 +90,14 @@ public sealed class DecodeCommandTests : IClassFixture<CliCaptures>
             Assert.Contains(block.GetProperty("status").GetString(), Statuses);
             Assert.InRange(block.GetProperty("confidence").GetDouble(), 0, 1);
             Assert.Matches("^([0-9a-f]{2})*$", block.GetProperty("payloadHex").GetString());
+
+            // The reasons a reading is doubted, in the block stage's own words; a failed reading always has one.
+            var doubts = block.GetProperty("doubts").EnumerateArray().Select(d => d.GetString()!).ToList();
+            Assert.All(doubts, d => Assert.Matches("^[a-z]+(-[a-z]+)*$", d));
+            if (block.GetProperty("status").GetString() == "failed")
+            {
+                Assert.NotEmpty(doubts);
+            }
         }
 
         // One best block per position, each of them one of the blocks.
