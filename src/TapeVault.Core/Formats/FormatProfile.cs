@@ -122,7 +122,7 @@ public sealed record ChecksumSpec(string Algorithm, ChecksumCoverage Covers, boo
 
 /// <summary>
 /// How bytes make blocks. A layout without header, fixed payload length or checksum is a stream: everything
-/// between two lead-ins is one unchecked block.
+/// from a block start to the next idle line or loss of signal is one unchecked block.
 /// </summary>
 public sealed record BlockLayout(
     IReadOnlyList<HeaderField> Header,
