@@ -467,11 +467,15 @@ public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles,
                 _ => "counts only the upward swings",
             },
         };
-        if (s.HighPassHz != Usual(group.Select(x => x.HighPassHz)) || s.LowPassHz != Usual(group.Select(x => x.LowPassHz)))
+        if (s.HighPassHz > Usual(group.Select(x => x.HighPassHz)))
         {
             parts.Add(s.LowPassHz is { } lp
                 ? $"listens only between {s.HighPassHz:0} and {lp:0} Hz, for a capture with hum or hiss around the signal"
-                : $"takes out only what lies below {s.HighPassHz:0} Hz");
+                : $"listens only above {s.HighPassHz:0} Hz, for a capture with hum under the signal");
+        }
+        else if (s.LowPassHz != Usual(group.Select(x => x.LowPassHz)))
+        {
+            parts.Add(s.LowPassHz is { } cut ? $"cuts off above {cut:0} Hz" : "keeps the highest frequencies too");
         }
 
         if (s.ThresholdMode != Usual(group.Select(x => x.ThresholdMode)) || s.Hysteresis != Usual(group.Where(x => x.ThresholdMode == s.ThresholdMode).Select(x => x.Hysteresis)))
