@@ -34,12 +34,7 @@ public sealed class AccessibilityTests
             await AuditAsync(anonymous, app, path, "anonymous", findings);
         }
 
-        var page = await browser.NewPageAsync();
-        await page.GotoAsync(new Uri(app.Address, "/signin").ToString());
-        await page.FillAsync("#userName", "curator");
-        await page.FillAsync("#password", app.CuratorPassword);
-        await page.ClickAsync("button:has-text('Sign in')");
-        await page.WaitForSelectorAsync("h1:has-text('Collections')");
+        var page = await SignedInAsync(browser, app, "curator", app.CuratorPassword);
 
         string[] pages =
         [
@@ -58,7 +53,30 @@ public sealed class AccessibilityTests
         }
 
         await AuditCurrentAsync(page, "/items/1 (details open)", "curator", findings);
+
+        // A viewer's pages hold no write controls, so they are laid out differently: audited too.
+        var viewer = await SignedInAsync(browser, app, ViewerName, ViewerPassword);
+        foreach (var path in new[] { "/", "/collections/1", "/items/1", "/captures/1", "/jobs" })
+        {
+            await AuditAsync(viewer, app, path, "viewer", findings);
+        }
+
         Assert.True(findings.Count == 0, "axe-core found serious or critical WCAG 2.1 AA violations:\n" + string.Join("\n", findings));
+    }
+
+    private const string ViewerName = "volunteer";
+
+    private const string ViewerPassword = "Axe-Audit-Viewer-Passw0rd";
+
+    private static async Task<IPage> SignedInAsync(Browser browser, AppProcess app, string user, string password)
+    {
+        var page = await browser.NewPageAsync();
+        await page.GotoAsync(new Uri(app.Address, "/signin").ToString());
+        await page.FillAsync("#userName", user);
+        await page.FillAsync("#password", password);
+        await page.ClickAsync("button:has-text('Sign in')");
+        await page.WaitForSelectorAsync("h1:has-text('Collections')");
+        return page;
     }
 
     private static async Task AuditAsync(IPage page, AppProcess app, string path, string who, List<string> findings)
@@ -84,6 +102,7 @@ public sealed class AccessibilityTests
     private static async Task FillAsync(AppProcess app)
     {
         using var api = await ApiSession.SignInAsync(app.Address, "curator", app.CuratorPassword);
+        await api.PostJsonAsync("/api/users", new { userName = ViewerName, role = "viewer", password = ViewerPassword });
         await api.PostJsonAsync("/api/collections", new { name = "Audit shelf", description = "Tapes for the *accessibility* audit." });
         await api.PostJsonAsync("/api/collections/1/items", new { accessionNumber = "AX-0001", title = "Audited tape", labelText = "side A", conditionNotes = "No **mould** seen.", side = "A" });
         var path = Path.Combine(app.Root, "audit.wav");
