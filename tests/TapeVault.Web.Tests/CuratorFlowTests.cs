@@ -1,6 +1,8 @@
 using System.Net;
 using System.Net.Http.Json;
 using System.Xml.Linq;
+using Microsoft.EntityFrameworkCore;
+using Microsoft.Extensions.DependencyInjection;
 using AngleSharp.Dom;
 using AngleSharp.Html.Parser;
 using TapeVault.Core.Detection;
@@ -206,6 +208,47 @@ public sealed class CuratorFlowTests
         Assert.Equal("image/svg+xml", icon.Content.Headers.ContentType?.MediaType);
         XNamespace svg = "http://www.w3.org/2000/svg";
         Assert.Equal(svg + "svg", XDocument.Parse(await icon.Content.ReadAsStringAsync()).Root!.Name);
+    }
+
+    [Fact]
+    public async Task CapturePage_ListsBlockPositionsInOrder_EvenWhenTheBestReadingsStartTimesAreNot()
+    {
+        using var folder = new ArchiveFolder();
+        await using var app = new ArchiveAppFactory(folder);
+        await app.AddCuratorAndViewerAsync();
+        using var curator = await app.SignedInAsync(ArchiveAppFactory.CuratorName);
+        var (_, itemId) = await curator.NewItemAsync("ORDER-01");
+        var capture = SynthCaptures.Orrin(folder.Root, "order", files: 2, bytesPerFile: 60, seed: 33);
+        UploadResult uploaded;
+        using (var upload = await curator.UploadRawAsync(itemId, capture.Bytes, "order.wav", extraQuery: $"&decodeProfile={SynthCaptures.Profile}"))
+        {
+            await ApiClient.EnsureAsync(upload, HttpStatusCode.Created);
+            uploaded = (await upload.Content.ReadFromJsonAsync<UploadResult>(ApiClient.Json))!;
+        }
+
+        var run = (await curator.WaitForJobAsync(uploaded.DecodeJob!.Id, JobLimit)).ResultId!.Value;
+
+        // Number the first two positions the other way round, so that tape time and position order disagree: the
+        // page must list by position, not by where the best reading happens to start.
+        await using (var scope = app.Scope())
+        {
+            var db = scope.ServiceProvider.GetRequiredService<TapeVault.Archive.ArchiveDbContext>();
+            var candidates = await db.Candidates.Where(c => c.RunId == run).ToListAsync();
+            Assert.True(candidates.Select(c => c.Position).Distinct().Count() >= 2, "the decode found fewer than two positions");
+            foreach (var c in candidates.Where(c => c.Position is 0 or 1))
+            {
+                c.Position = 1 - c.Position;
+            }
+
+            await db.SaveChangesAsync();
+        }
+
+        var page = await PageAsync(curator, $"/captures/{uploaded.Capture.Id}?run={run}");
+        var table = page.QuerySelectorAll("table").First(t => t.QuerySelector("thead")?.TextContent.Contains("Look closer", StringComparison.Ordinal) == true);
+        var positions = table.QuerySelectorAll("tbody tr td:first-child")
+            .Select(td => int.Parse(td.TextContent.Split(' ')[0], System.Globalization.CultureInfo.InvariantCulture)).ToList();
+        Assert.True(positions.Count >= 2);
+        Assert.Equal(positions.Order(), positions);
     }
 
     private static async Task<IDocument> PageAsync(ApiClient client, string path)
