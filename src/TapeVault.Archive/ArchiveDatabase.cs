@@ -31,7 +31,10 @@ public static class ArchiveDatabase
         return new ArchiveDbContext(options.Options);
     }
 
-    /// <summary>Creates the folder, applies every pending migration and switches the file to write-ahead logging.</summary>
+    /// <summary>
+    /// Creates the folder, applies every pending migration, switches the file to write-ahead logging and, in a
+    /// database made before the event log was chained, gives the existing events their hashes (recorded as an event).
+    /// </summary>
     public static async Task MigrateAsync(ArchiveDbContext db, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(db);
@@ -45,5 +48,6 @@ public static class ArchiveDatabase
 
         // WAL lets page reads go on while a job writes; the mode is stored in the file, so once is enough.
         await db.Database.ExecuteSqlRawAsync("PRAGMA journal_mode=WAL;", cancellation).ConfigureAwait(false);
+        await Events.EventChain.SealLegacyAsync(db, cancellation).ConfigureAwait(false);
     }
 }

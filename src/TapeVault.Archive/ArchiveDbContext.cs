@@ -3,6 +3,7 @@ using Microsoft.AspNetCore.Identity.EntityFrameworkCore;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.EntityFrameworkCore.Storage.ValueConversion;
 using TapeVault.Archive.Entities;
+using TapeVault.Archive.Events;
 
 namespace TapeVault.Archive;
 
@@ -31,14 +32,57 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
 
     public override int SaveChanges(bool acceptAllChangesOnSuccess)
     {
-        RefuseEventChanges();
-        return base.SaveChanges(acceptAllChangesOnSuccess);
+        var added = AddedEvents();
+        if (added.Count == 0)
+        {
+            return base.SaveChanges(acceptAllChangesOnSuccess);
+        }
+
+        // The head is read and the new events inserted under one write lock, so the chain cannot fork.
+        var own = Database.CurrentTransaction is null ? Database.BeginTransaction() : null;
+        try
+        {
+            var head = Events.AsNoTracking().OrderByDescending(e => e.Id).Select(e => new { e.Id, e.Sha256 }).FirstOrDefault();
+            EventChain.Link(added, head?.Id ?? 0, head?.Sha256);
+            int saved = base.SaveChanges(acceptAllChangesOnSuccess);
+            own?.Commit();
+            return saved;
+        }
+        finally
+        {
+            own?.Dispose();
+        }
     }
 
-    public override Task<int> SaveChangesAsync(bool acceptAllChangesOnSuccess, CancellationToken cancellationToken = default)
+    public override async Task<int> SaveChangesAsync(bool acceptAllChangesOnSuccess, CancellationToken cancellationToken = default)
     {
-        RefuseEventChanges();
-        return base.SaveChangesAsync(acceptAllChangesOnSuccess, cancellationToken);
+        var added = AddedEvents();
+        if (added.Count == 0)
+        {
+            return await base.SaveChangesAsync(acceptAllChangesOnSuccess, cancellationToken).ConfigureAwait(false);
+        }
+
+        var own = Database.CurrentTransaction is null ? await Database.BeginTransactionAsync(cancellationToken).ConfigureAwait(false) : null;
+        try
+        {
+            var head = await Events.AsNoTracking().OrderByDescending(e => e.Id).Select(e => new { e.Id, e.Sha256 })
+                .FirstOrDefaultAsync(cancellationToken).ConfigureAwait(false);
+            EventChain.Link(added, head?.Id ?? 0, head?.Sha256);
+            int saved = await base.SaveChangesAsync(acceptAllChangesOnSuccess, cancellationToken).ConfigureAwait(false);
+            if (own is not null)
+            {
+                await own.CommitAsync(cancellationToken).ConfigureAwait(false);
+            }
+
+            return saved;
+        }
+        finally
+        {
+            if (own is not null)
+            {
+                await own.DisposeAsync().ConfigureAwait(false);
+            }
+        }
     }
 
     protected override void ConfigureConventions(ModelConfigurationBuilder configurationBuilder)
@@ -105,6 +149,9 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
         {
             e.HasIndex(v => v.ItemId);
             e.HasIndex(v => new { v.ObjectType, v.ObjectId });
+            e.Property(v => v.Sha256).HasMaxLength(64);
+            e.Property(v => v.PreviousSha256).HasMaxLength(64);
+            e.Ignore(v => v.Sequence);
         });
 
         builder.Entity<ExportRecord>(e =>
@@ -121,14 +168,23 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
         });
     }
 
-    private void RefuseEventChanges()
+    /// <summary>Refuses changed or removed events; returns the added ones in the order they were added.</summary>
+    private List<ArchiveEvent> AddedEvents()
     {
+        var added = new List<ArchiveEvent>();
         foreach (var entry in ChangeTracker.Entries<ArchiveEvent>())
         {
             if (entry.State is EntityState.Modified or EntityState.Deleted)
             {
                 throw new InvalidOperationException("The event log is append-only: an event cannot be changed or removed.");
             }
+
+            if (entry.State == EntityState.Added)
+            {
+                added.Add(entry.Entity);
+            }
         }
+
+        return [.. added.OrderBy(e => e.Sequence)];
     }
 }

@@ -1,5 +1,6 @@
 using System.IO.Compression;
 using System.Text;
+using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
 using TapeVault.Archive.Export;
 using Xunit;
@@ -17,7 +18,7 @@ public sealed class BagExportTests(SharedArchive shared)
         using (var scope = archive.Services.CreateScope())
         {
             await using var sink = new FolderBagSink(bag);
-            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.Item(archive.ItemId), sink, "tester");
+            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.Item(archive.ItemId), sink);
         }
 
         AssertValidBag(bag, [ArchiveFixture.Accession]);
@@ -32,7 +33,7 @@ public sealed class BagExportTests(SharedArchive shared)
         {
             await using var file = File.Create(zipPath);
             await using var sink = new ZipBagSink(file, "shelf-bag");
-            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.OfCollection(archive.CollectionId), sink, "tester");
+            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.OfCollection(archive.CollectionId), sink);
         }
 
         var unpacked = Path.Combine(archive.Root, $"unpacked-{Guid.NewGuid():N}");
@@ -49,7 +50,7 @@ public sealed class BagExportTests(SharedArchive shared)
         using (var scope = archive.Services.CreateScope())
         {
             await using var sink = new FolderBagSink(bag);
-            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.Item(archive.ItemId), sink, "tester");
+            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.Item(archive.ItemId), sink);
         }
 
         await using var db = archive.NewContext();
@@ -65,6 +66,34 @@ public sealed class BagExportTests(SharedArchive shared)
         Assert.Equal(ArchiveFixture.Accession, metadata.RootElement.GetProperty("item").GetProperty("accessionNumber").GetString());
         using var events = System.Text.Json.JsonDocument.Parse(File.ReadAllText(Path.Combine(item, "events.json")));
         Assert.Contains(events.RootElement.EnumerateArray(), e => e.GetProperty("eventType").GetString() == "merge");
+    }
+
+    [Fact]
+    public async Task BagInfoAndItsOwnTagFileCarryTheEventChainHeadAsTheDatabaseHoldsIt()
+    {
+        var archive = shared.Archive;
+        var bag = Path.Combine(archive.Root, $"bag-{Guid.NewGuid():N}");
+        string expected;
+        using (var scope = archive.Services.CreateScope())
+        {
+            await using (var db = archive.NewContext())
+            {
+                var newest = await db.Events.AsNoTracking().OrderByDescending(e => e.Id).FirstAsync();
+                expected = $"event {newest.Id} sha256:{newest.Sha256}";
+            }
+
+            await using var sink = new FolderBagSink(bag);
+            await scope.ServiceProvider.GetRequiredService<BagExport>().WriteAsync(BagScope.Item(archive.ItemId), sink);
+        }
+
+        var info = File.ReadAllLines(Path.Combine(bag, "bag-info.txt")).Select(l => l.Split(": ", 2)).ToDictionary(p => p[0], p => p[1]);
+        Assert.Equal(expected, info["Event-Chain-Head"]);
+        Assert.Equal($"{expected}\n", File.ReadAllText(Path.Combine(bag, BagExport.ChainHeadTagFile)));
+
+        // The bag's own history ends at that head, with every event's hashes, so the copy can be checked against the archive's.
+        using var events = System.Text.Json.JsonDocument.Parse(File.ReadAllText(Path.Combine(bag, "data", ArchiveFixture.Accession, "events.json")));
+        Assert.All(events.RootElement.EnumerateArray(), e => Assert.Matches("^[0-9a-f]{64}$", e.GetProperty("sha256").GetString()!));
+        AssertValidBag(bag, [ArchiveFixture.Accession]);
     }
 
     [Fact]
@@ -96,9 +125,9 @@ public sealed class BagExportTests(SharedArchive shared)
         var relative = payload.Select(f => Path.GetRelativePath(bag, f).Replace('\\', '/')).ToHashSet();
         Assert.Equal(relative, manifest);
 
-        // RFC 8493 §2.2.1: the tag manifest covers the tag files.
+        // RFC 8493 §2.2.1: the tag manifest covers the tag files, our event chain head among them (§2.2.4 allows other tag files).
         var tags = File.ReadAllLines(Path.Combine(bag, "tagmanifest-sha256.txt")).Select(l => l.Split("  ", 2)[1]).ToHashSet();
-        Assert.Equal(new HashSet<string> { "bagit.txt", "bag-info.txt", "manifest-sha256.txt" }, tags);
+        Assert.Equal(new HashSet<string> { "bagit.txt", "bag-info.txt", "manifest-sha256.txt", BagExport.ChainHeadTagFile }, tags);
 
         // GNU coreutils sha256sum (outside the project) verifies both manifests as written.
         var (manifestExit, manifestOut) = ArchiveFixture.Sha256SumCheck(bag, "manifest-sha256.txt");

@@ -2,6 +2,7 @@ using System.Globalization;
 using AngleSharp.Html.Parser;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
+using TapeVault.Archive.Events;
 using TapeVault.Archive.Export;
 using TapeVault.Core.Catalogue;
 using Xunit;
@@ -138,11 +139,40 @@ public sealed class CatalogueTests(SharedArchive shared)
         Assert.Contains("not empty", error.ToString(), StringComparison.Ordinal);
     }
 
+    [Fact]
+    public async Task CatalogueJsonCarriesTheEventChainHeadAsTheDatabaseHoldsIt()
+    {
+        ChainHead head;
+        await using (var db = shared.Archive.NewContext())
+        {
+            head = (await EventChain.HeadAsync(db))!;
+            Assert.Equal(head.Sha256, (await db.Events.AsNoTracking().OrderByDescending(e => e.Id).FirstAsync()).Sha256);
+        }
+
+        var site = await PublishAsync();
+        using var json = System.Text.Json.JsonDocument.Parse(File.ReadAllText(Path.Combine(site, "catalogue.json")));
+        Assert.Equal($"event {head.EventId} sha256:{head.Sha256}", json.RootElement.GetProperty("eventChainHead").GetString());
+    }
+
+    [Fact]
+    public async Task CliPublishRecordsTheFolderItEndedInNotTheTemporaryOneNorAServerPath()
+    {
+        var archive = shared.Archive;
+        var target = Path.Combine(archive.Root, $"named-site-{Guid.NewGuid():N}");
+        var args = new[] { "publish", archive.CollectionId.ToString(CultureInfo.InvariantCulture), target, "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath };
+        Assert.Equal(0, TapeVault.Cli.Entry.Run(args, new StringWriter(), new StringWriter()));
+        await using var db = archive.NewContext();
+        var recorded = await db.Events.AsNoTracking().Where(e => e.EventType == "export" && e.ObjectType == "collection").OrderByDescending(e => e.Id).FirstAsync();
+        Assert.Contains($"'{Path.GetFileName(target)}'", recorded.Detail, StringComparison.Ordinal);
+        Assert.DoesNotContain(".part-", recorded.Detail, StringComparison.Ordinal);
+        Assert.DoesNotContain(archive.Root, recorded.Detail, StringComparison.Ordinal);
+    }
+
     private async Task<string> PublishAsync()
     {
         var folder = Path.Combine(shared.Archive.Root, $"site-{Guid.NewGuid():N}");
         using var scope = shared.Archive.Services.CreateScope();
-        await scope.ServiceProvider.GetRequiredService<CataloguePublisher>().PublishAsync(shared.Archive.CollectionId, folder, "tester");
+        await scope.ServiceProvider.GetRequiredService<CataloguePublisher>().WriteAsync(shared.Archive.CollectionId, folder);
         return folder;
     }
 }

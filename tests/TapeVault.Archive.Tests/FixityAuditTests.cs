@@ -26,7 +26,7 @@ public sealed class FixityAuditTests
         int objects = await db.Objects.CountAsync();
         Assert.True(report.AllGood);
         Assert.Equal(objects, report.Checked);
-        Assert.Equal(objects, await db.Events.CountAsync(e => e.EventType == EventTypes.FixityCheck && e.Outcome == FixityAudit.Ok));
+        Assert.Equal(objects, await db.Events.CountAsync(e => e.EventType == EventTypes.FixityCheck && e.ObjectType == "object" && e.Outcome == FixityAudit.Ok));
     }
 
     [Fact]

@@ -68,6 +68,36 @@ public static class Calibration
         }
     }
 
+    /// <summary>
+    /// Expected calibration error over <paramref name="bins"/> equal bins of confidence ([0, 0.1), …, [0.9, 1]):
+    /// Σ over bins (count / total) × |mean confidence − observed rate of right ones|; 0 for no items.
+    /// </summary>
+    public static double EqualBinEce(IReadOnlyCollection<(double Confidence, bool Right)> items, int bins = 10)
+    {
+        ArgumentNullException.ThrowIfNull(items);
+        var count = new int[bins];
+        var confidence = new double[bins];
+        var right = new int[bins];
+        foreach (var (c, r) in items)
+        {
+            int b = Math.Clamp((int)(c * bins), 0, bins - 1);
+            count[b]++;
+            confidence[b] += c;
+            right[b] += r ? 1 : 0;
+        }
+
+        double ece = 0;
+        for (int b = 0; b < bins; b++)
+        {
+            if (count[b] > 0)
+            {
+                ece += Math.Abs(confidence[b] - right[b]) / items.Count;
+            }
+        }
+
+        return ece;
+    }
+
     private static double Ece(List<(double Confidence, bool Right)> items) =>
         Bins(items).Sum(bin => bin.Count / (double)items.Count * Math.Abs(bin.Mean - bin.Right));
 

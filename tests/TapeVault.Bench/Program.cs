@@ -20,6 +20,12 @@ if (section == "fuzz")
     return Fuzz.Run(work, args[1..]);
 }
 
+if (section == "trust")
+{
+    // trust --blocks N --first-seed S --jobs J [--profile ID] [--minutes M]: see Trust and docs/performance.md.
+    return Trust.Run(work, args[1..]);
+}
+
 var total = Stopwatch.StartNew();
 Console.WriteLine($"TapeVault benchmark — {Environment.ProcessorCount} cores, .NET {Environment.Version}, {DateTime.UtcNow:yyyy-MM-dd}");
 Console.WriteLine();

@@ -194,7 +194,7 @@ public static class RecoveryCorpus
     /// to <paramref name="right"/> and says whether all agree. A run shorter than four bytes lines up anywhere, so it
     /// counts as right only where it is exactly the written bytes and adds nothing.
     /// </summary>
-    private static bool Place(ReadOnlySpan<byte> run, List<TapeFile> files, int[] bases, HashSet<int>? right)
+    public static bool Place(ReadOnlySpan<byte> run, List<TapeFile> files, int[] bases, HashSet<int>? right)
     {
         if (run.IsEmpty)
         {

@@ -2,7 +2,8 @@ namespace TapeVault.Archive.Entities;
 
 /// <summary>
 /// One line of the append-only event log (after the PREMIS event model: type, date, agent, object, outcome).
-/// Rows are only ever added: the context refuses changes, and database triggers refuse UPDATE and DELETE.
+/// Rows are only ever added: the context refuses changes, and database triggers refuse UPDATE and DELETE. Each row
+/// carries its place in a hash chain (docs/event-chain.md), so an edit made behind the archive's back is found.
 /// </summary>
 public sealed class ArchiveEvent
 {
@@ -28,4 +29,15 @@ public sealed class ArchiveEvent
     public required string Outcome { get; set; }
 
     public string Detail { get; set; } = string.Empty;
+
+    /// <summary>SHA-256 (lower-case hex) of the event's canonical content, which includes <see cref="PreviousSha256"/>.</summary>
+    public string? Sha256 { get; set; }
+
+    /// <summary>The <see cref="Sha256"/> of the event before this one, or 64 zeros for the first event.</summary>
+    public string? PreviousSha256 { get; set; }
+
+    /// <summary>The order events were added in within one unit of work (not stored): their order in the chain.</summary>
+    internal long Sequence { get; } = Interlocked.Increment(ref nextSequence);
+
+    private static long nextSequence;
 }

@@ -17,22 +17,30 @@ public sealed record BagScope(int? ItemId, int? CollectionId)
     public static BagScope OfCollection(int id) => new(null, id);
 }
 
-public sealed record BagResult(string Name, int PayloadFiles, long PayloadBytes, IReadOnlyList<string> ExternalIdentifiers);
+/// <param name="ChainHead">The event chain's head when the bag was made (before the bag's own export events).</param>
+public sealed record BagResult(string Name, int PayloadFiles, long PayloadBytes, IReadOnlyList<string> ExternalIdentifiers, IReadOnlyList<int> ItemIds, ChainHead? ChainHead);
 
 /// <summary>
 /// Writes a bag after RFC 8493 (BagIt 1.0): bagit.txt, bag-info.txt, the payload under data/ (per item: the originals,
 /// the tape images, the item's metadata and event history as JSON), manifest-sha256.txt and tagmanifest-sha256.txt.
-/// Manifest lines are "hash, two spaces, path", which RFC 8493 allows and GNU sha256sum -c reads as they are.
+/// Manifest lines are "hash, two spaces, path", which RFC 8493 allows and GNU sha256sum -c reads as they are. The head
+/// of the event chain is written as bag-info's Event-Chain-Head and as the tag file event-chain-head.txt. Writing a bag
+/// records nothing: whoever keeps the finished bag records its export events (<see cref="RecordExported"/>) with it.
 /// </summary>
 public sealed class BagExport(ArchiveDbContext db, ContentStore store, ExportOptions options)
 {
+    /// <summary>The tag file that holds the event chain's head (listed in tagmanifest-sha256.txt).</summary>
+    public const string ChainHeadTagFile = "event-chain-head.txt";
+
     private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web) { WriteIndented = true };
 
-    public async Task<BagResult> WriteAsync(BagScope scope, BagSink sink, string agent, CancellationToken cancellation = default)
+    public async Task<BagResult> WriteAsync(BagScope scope, BagSink sink, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(scope);
         ArgumentNullException.ThrowIfNull(sink);
         var itemIds = await ItemIdsAsync(scope, cancellation).ConfigureAwait(false);
+        var head = await EventChain.HeadAsync(db, cancellation).ConfigureAwait(false);
+        string headText = head?.ToString() ?? "none (the event log is empty)";
         var manifest = new List<(string Hash, string Path)>();
         long bytes = 0;
         var identifiers = new List<string>();
@@ -73,26 +81,35 @@ public sealed class BagExport(ArchiveDbContext db, ContentStore store, ExportOpt
             .Append(CultureInfo.InvariantCulture, $"Source-Organization: {OneLine(options.SourceOrganization)}\n")
             .Append(CultureInfo.InvariantCulture, $"Bagging-Date: {DateTime.UtcNow:yyyy-MM-dd}\n")
             .Append(CultureInfo.InvariantCulture, $"Payload-Oxum: {bytes}.{manifest.Count}\n")
-            .Append(CultureInfo.InvariantCulture, $"Bag-Software-Agent: TapeVault {Core.Decoding.CaptureDecoder.CodeVersion}\n");
+            .Append(CultureInfo.InvariantCulture, $"Bag-Software-Agent: TapeVault {Core.Decoding.CaptureDecoder.CodeVersion}\n")
+            .Append(CultureInfo.InvariantCulture, $"Event-Chain-Head: {headText}\n");
         foreach (var id in identifiers)
         {
             info.Append(CultureInfo.InvariantCulture, $"External-Identifier: {OneLine(id)}\n");
         }
 
         tags.Add((await WriteTextAsync(sink, "bag-info.txt", info.ToString(), cancellation).ConfigureAwait(false), "bag-info.txt"));
+        tags.Add((await WriteTextAsync(sink, ChainHeadTagFile, $"{headText}\n", cancellation).ConfigureAwait(false), ChainHeadTagFile));
         var manifestText = string.Concat(manifest.OrderBy(m => m.Path, StringComparer.Ordinal).Select(m => $"{m.Hash}  {m.Path}\n"));
         tags.Add((await WriteTextAsync(sink, "manifest-sha256.txt", manifestText, cancellation).ConfigureAwait(false), "manifest-sha256.txt"));
         await WriteTextAsync(sink, "tagmanifest-sha256.txt", string.Concat(tags.Select(t => $"{t.Hash}  {t.Path}\n")), cancellation).ConfigureAwait(false);
 
         string name = scope.ItemId is not null ? $"bag-{PathPart(identifiers[0])}" : $"bag-collection-{scope.CollectionId}";
-        foreach (var itemId in itemIds)
+        return new BagResult(name, manifest.Count, bytes, identifiers, itemIds, head);
+    }
+
+    /// <summary>
+    /// Adds the export events of a finished bag to the context, unsaved, so they are committed in the same transaction
+    /// as whatever records the bag as kept (an export row, or nothing but the events once the bag is in its folder).
+    /// </summary>
+    public void RecordExported(BagResult bag, string agent, string where)
+    {
+        ArgumentNullException.ThrowIfNull(bag);
+        foreach (var itemId in bag.ItemIds)
         {
             EventLog.Add(db, EventTypes.Export, agent, "item", itemId.ToString(CultureInfo.InvariantCulture), "success",
-                $"Exported in bag '{name}': {manifest.Count} payload file(s), {bytes} bytes.", itemId);
+                $"Exported in bag '{bag.Name}' ({where}): {bag.PayloadFiles} payload file(s), {bag.PayloadBytes} bytes; event chain head {bag.ChainHead?.ToString() ?? "none"}.", itemId);
         }
-
-        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
-        return new BagResult(name, manifest.Count, bytes, identifiers);
     }
 
     /// <summary>A file or folder name made safe for a bag path and for manifest lines (no separators, no control characters, no %).</summary>

@@ -43,29 +43,26 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
                 await HistogramAsync(d, cancellation).ConfigureAwait(false)));
         }
 
-        return new CatalogueSite(collection.Name, collection.Description, options.SourceOrganization, DateTimeOffset.UtcNow, items);
+        var head = await EventChain.HeadAsync(db, cancellation).ConfigureAwait(false);
+        return new CatalogueSite(collection.Name, collection.Description, options.SourceOrganization, DateTimeOffset.UtcNow, items, head?.ToString());
     }
 
-    /// <summary>Writes the catalogue into an empty folder and records the publication on every item.</summary>
-    public async Task<IReadOnlyList<string>> PublishAsync(int collectionId, string folder, string agent, CancellationToken cancellation = default)
+    /// <summary>Writes the catalogue into an empty folder; records nothing (see <see cref="RecordPublishedAsync"/>).</summary>
+    public async Task<IReadOnlyList<string>> WriteAsync(int collectionId, string folder, CancellationToken cancellation = default)
     {
         var site = await SiteAsync(collectionId, cancellation).ConfigureAwait(false);
-        IReadOnlyList<string> files;
         try
         {
-            files = CatalogueWriter.Write(site, folder);
+            return CatalogueWriter.Write(site, folder);
         }
         catch (IOException e)
         {
             throw new ArchiveInputException(e.Message);
         }
-
-        await RecordAsync(collectionId, $"Catalogue published to {Path.GetFullPath(folder)} ({files.Count} files).", agent, cancellation).ConfigureAwait(false);
-        return files;
     }
 
-    /// <summary>Writes the catalogue as a zip (its single top folder is the site) to <paramref name="output"/>.</summary>
-    public async Task<int> PublishZipAsync(int collectionId, Stream output, string agent, CancellationToken cancellation = default)
+    /// <summary>Writes the catalogue as a zip (its single top folder is the site) to <paramref name="output"/>; records nothing.</summary>
+    public async Task<int> PublishZipAsync(int collectionId, Stream output, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(output);
         var site = await SiteAsync(collectionId, cancellation).ConfigureAwait(false);
@@ -85,7 +82,6 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
                 }
             }
 
-            await RecordAsync(collectionId, $"Catalogue published as a zip ({files.Count} files).", agent, cancellation).ConfigureAwait(false);
             return files.Count;
         }
         finally
@@ -94,6 +90,28 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
             {
                 Directory.Delete(temp, recursive: true);
             }
+        }
+    }
+
+    /// <summary>The ids of a collection's items (whose histories a publication is recorded in).</summary>
+    public Task<List<int>> ItemIdsAsync(int collectionId, CancellationToken cancellation = default) =>
+        db.Items.Where(i => i.CollectionId == collectionId).Select(i => i.Id).ToListAsync(cancellation);
+
+    /// <summary>Records a finished publication on the collection and every item, and saves.</summary>
+    public async Task RecordPublishedAsync(int collectionId, string detail, string agent, CancellationToken cancellation = default)
+    {
+        RecordPublished(collectionId, await ItemIdsAsync(collectionId, cancellation).ConfigureAwait(false), detail, agent);
+        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+    }
+
+    /// <summary>Adds a publication's events to the context, unsaved, for the caller to commit with what it records.</summary>
+    public void RecordPublished(int collectionId, IReadOnlyList<int> itemIds, string detail, string agent)
+    {
+        ArgumentNullException.ThrowIfNull(itemIds);
+        EventLog.Add(db, EventTypes.Export, agent, "collection", collectionId.ToString(CultureInfo.InvariantCulture), "success", detail);
+        foreach (var itemId in itemIds)
+        {
+            EventLog.Add(db, EventTypes.Export, agent, "item", itemId.ToString(CultureInfo.InvariantCulture), "success", detail, itemId);
         }
     }
 
@@ -143,15 +161,4 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
 
     private async Task<long> SizeAsync(string sha256, CancellationToken cancellation) =>
         (await db.Objects.AsNoTracking().FirstOrDefaultAsync(o => o.Sha256 == sha256, cancellation).ConfigureAwait(false))?.Size ?? 0;
-
-    private async Task RecordAsync(int collectionId, string detail, string agent, CancellationToken cancellation)
-    {
-        EventLog.Add(db, EventTypes.Export, agent, "collection", collectionId.ToString(CultureInfo.InvariantCulture), "success", detail);
-        foreach (var itemId in await db.Items.Where(i => i.CollectionId == collectionId).Select(i => i.Id).ToListAsync(cancellation).ConfigureAwait(false))
-        {
-            EventLog.Add(db, EventTypes.Export, agent, "item", itemId.ToString(CultureInfo.InvariantCulture), "success", detail, itemId);
-        }
-
-        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
-    }
 }

@@ -17,18 +17,24 @@ public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExpo
         using var staged = await store.StageAsync(async stream =>
         {
             await using var sink = new ZipBagSink(stream, bagName);
-            result = await bags.WriteAsync(scope, sink, agent, cancellation).ConfigureAwait(false);
+            result = await bags.WriteAsync(scope, sink, cancellation).ConfigureAwait(false);
         }, cancellation).ConfigureAwait(false);
-        return await RecordAsync(staged, "bag", scope.CollectionId, scope.ItemId, $"{result!.Name}.zip", agent, cancellation).ConfigureAwait(false);
+        var bag = result!;
+        return await RecordAsync(staged, "bag", scope.CollectionId, scope.ItemId, $"{bag.Name}.zip", agent,
+            () => bags.RecordExported(bag, agent, "kept in the archive for download"), cancellation).ConfigureAwait(false);
     }
 
     public async Task<ExportRecord> StoreCatalogueAsync(int collectionId, string agent, CancellationToken cancellation = default)
     {
-        using var staged = await store.StageAsync(stream => catalogues.PublishZipAsync(collectionId, stream, agent, cancellation), cancellation).ConfigureAwait(false);
-        return await RecordAsync(staged, "catalogue", collectionId, null, $"catalogue-collection-{collectionId}.zip", agent, cancellation).ConfigureAwait(false);
+        int files = 0;
+        using var staged = await store.StageAsync(async stream => files = await catalogues.PublishZipAsync(collectionId, stream, cancellation).ConfigureAwait(false), cancellation).ConfigureAwait(false);
+        string fileName = $"catalogue-collection-{collectionId}.zip";
+        var itemIds = await catalogues.ItemIdsAsync(collectionId, cancellation).ConfigureAwait(false);
+        return await RecordAsync(staged, "catalogue", collectionId, null, fileName, agent,
+            () => catalogues.RecordPublished(collectionId, itemIds, $"Catalogue published as '{fileName}', kept in the archive for download ({files} files).", agent), cancellation).ConfigureAwait(false);
     }
 
-    private async Task<ExportRecord> RecordAsync(StagedObject staged, string kind, int? collectionId, int? itemId, string fileName, string agent, CancellationToken cancellation)
+    private async Task<ExportRecord> RecordAsync(StagedObject staged, string kind, int? collectionId, int? itemId, string fileName, string agent, Action recordEvents, CancellationToken cancellation)
     {
         bool known = await db.Objects.AnyAsync(o => o.Sha256 == staged.Sha256, cancellation).ConfigureAwait(false);
         if (!known)
@@ -47,6 +53,9 @@ public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExpo
             CreatedBy = agent,
         };
         db.Exports.Add(record);
+
+        // The export's events go in the same transaction as its row: a crash leaves both or neither.
+        recordEvents();
         staged.Commit();
         try
         {
@@ -59,6 +68,7 @@ public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExpo
                 staged.Rollback();
             }
 
+            db.ChangeTracker.Clear();
             throw;
         }
 

@@ -88,6 +88,9 @@ public sealed record ItemDossier(
         objectId = e.ObjectId,
         outcome = e.Outcome,
         detail = e.Detail,
+        itemId = e.ItemId,
+        sha256 = e.Sha256,
+        previousSha256 = e.PreviousSha256,
     });
 
     public static async Task<ItemDossier> LoadAsync(ArchiveDbContext db, ContentStore store, int itemId, CancellationToken cancellation = default)

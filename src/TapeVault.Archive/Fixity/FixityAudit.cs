@@ -5,10 +5,12 @@ using TapeVault.Archive.Storage;
 
 namespace TapeVault.Archive.Fixity;
 
-/// <summary>One place a damaged or missing object is used: which collection, item and file it is.</summary>
+/// <summary>One place a damaged, missing or contradicted object is used (which collection, item and file), or a broken link of the event chain.</summary>
 public sealed record FixityFinding(string Sha256, string Problem, string Kind, string? Collection, string? Item, string File, string Detail);
 
-public sealed record FixityReport(int Checked, int Good, IReadOnlyList<FixityFinding> Problems, DateTimeOffset StartedUtc, DateTimeOffset FinishedUtc)
+/// <param name="Chain">The walk along the event chain, made before the audit added events of its own.</param>
+/// <param name="HeadAfter">The chain's head once the audit's own fixity-check events were recorded.</param>
+public sealed record FixityReport(int Checked, int Good, IReadOnlyList<FixityFinding> Problems, DateTimeOffset StartedUtc, DateTimeOffset FinishedUtc, ChainReport Chain, ChainHead? HeadAfter)
 {
     public bool AllGood => Problems.Count == 0;
 }
@@ -17,15 +19,28 @@ public sealed record FixityReport(int Checked, int Good, IReadOnlyList<FixityFin
 public readonly record struct FixityProgress(int Done, int Total);
 
 /// <summary>
-/// Re-hashes every stored object (originals, images, exports) against the SHA-256 the archive recorded, records one
-/// fixity-check event per object, and reports each mismatch or missing file by collection, item and file. It only
-/// reads: nothing is repaired, replaced or removed.
+/// Walks the event chain and names its first broken link; re-hashes every stored object (originals, images, exports)
+/// against the SHA-256 the archive recorded; cross-checks every capture (its row, its object row and its ingest event
+/// must agree on SHA-256 and size); and reports files in the store that no row names, and object rows nothing uses.
+/// Records one fixity-check event per object. It only reads: nothing is repaired, replaced, moved or removed.
 /// </summary>
-public sealed class FixityAudit(ArchiveDbContext db, ContentStore store)
+public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
 {
     public const string Ok = "ok";
     public const string Mismatch = "mismatch";
     public const string Missing = "missing";
+
+    /// <summary>A capture's row, object row and ingest event disagree.</summary>
+    public const string Contradiction = "contradiction";
+
+    /// <summary>A file in the store that no object row names.</summary>
+    public const string Unrecorded = "unrecorded";
+
+    /// <summary>An object row that no capture, image or export uses.</summary>
+    public const string Unreferenced = "unreferenced";
+
+    /// <summary>A link of the event chain that does not hold.</summary>
+    public const string ChainBroken = "chain-broken";
 
     public async Task<FixityReport> RunAsync(int? collectionId, string agent, IProgress<FixityProgress>? progress = null, CancellationToken cancellation = default)
     {
@@ -35,14 +50,26 @@ public sealed class FixityAudit(ArchiveDbContext db, ContentStore store)
             throw new ArchiveNotFoundException($"There is no collection {id}.");
         }
 
+        // The chain first, before this audit adds events of its own.
+        var problems = new List<FixityFinding>();
+        var chain = await EventChain.VerifyAsync(db, cancellation).ConfigureAwait(false);
+        if (chain.FirstBreak is { } broken)
+        {
+            var stored = await db.Events.AsNoTracking().Where(e => e.Id == broken.EventId).Select(e => e.Sha256).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+            problems.Add(new FixityFinding(stored ?? string.Empty, ChainBroken, "event", null, null, $"event {broken.EventId}", broken.Reason));
+        }
+
+        EventLog.Add(db, EventTypes.FixityCheck, agent, "event-log", "chain", chain.Intact ? Ok : ChainBroken,
+            chain.FirstBreak is { } b ? $"First broken link: {b.Reason}" : $"{chain.Events} event(s) chained; head {chain.Head?.ToString() ?? "none"}.");
+
         var places = await PlacesAsync(collectionId, cancellation).ConfigureAwait(false);
         var objects = await db.Objects.AsNoTracking().OrderBy(o => o.Sha256).ToListAsync(cancellation).ConfigureAwait(false);
+        var recorded = objects.ToDictionary(o => o.Sha256, StringComparer.Ordinal);
         if (collectionId is not null)
         {
             objects = [.. objects.Where(o => places.ContainsKey(o.Sha256))];
         }
 
-        var problems = new List<FixityFinding>();
         int good = 0;
         for (int i = 0; i < objects.Count; i++)
         {
@@ -53,7 +80,7 @@ public sealed class FixityAudit(ArchiveDbContext db, ContentStore store)
             if (!File.Exists(path))
             {
                 outcome = Missing;
-                detail = $"The file {path} is gone.";
+                detail = $"The file {store.RelativePath(stored.Sha256)} is gone from the store.";
             }
             else
             {
@@ -71,7 +98,14 @@ public sealed class FixityAudit(ArchiveDbContext db, ContentStore store)
                 }
             }
 
-            var uses = places.GetValueOrDefault(stored.Sha256) ?? [new Place(stored.Kind.ToString().ToLowerInvariant(), null, null, null, "(not referenced)")];
+            var uses = places.GetValueOrDefault(stored.Sha256);
+            if (uses is null)
+            {
+                uses = [new Place(stored.Kind.ToString().ToLowerInvariant(), null, null, null, "(not referenced)")];
+                problems.Add(new FixityFinding(stored.Sha256, Unreferenced, uses[0].Kind, null, null, uses[0].File,
+                    $"The object row {stored.Sha256} ({stored.Size} bytes) is used by no capture, image or export: what used it was changed or removed behind the archive's back."));
+            }
+
             if (outcome == Ok)
             {
                 good++;
@@ -91,9 +125,124 @@ public sealed class FixityAudit(ArchiveDbContext db, ContentStore store)
             progress?.Report(new FixityProgress(i + 1, objects.Count));
         }
 
+        problems.AddRange(await CrossCheckCapturesAsync(collectionId, recorded, cancellation).ConfigureAwait(false));
+        problems.AddRange(await UnrecordedFilesAsync(collectionId, recorded, places, cancellation).ConfigureAwait(false));
+        foreach (var finding in problems.Where(p => p.Problem is Contradiction or Unrecorded or Unreferenced))
+        {
+            EventLog.Add(db, EventTypes.FixityCheck, agent, finding.Problem == Unrecorded ? "file" : "object", finding.Sha256, finding.Problem, $"{finding.Kind} {finding.File}: {finding.Detail}");
+        }
+
         await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
-        return new FixityReport(objects.Count, good, problems, started, DateTimeOffset.UtcNow);
+        var headAfter = await EventChain.HeadAsync(db, cancellation).ConfigureAwait(false);
+        return new FixityReport(objects.Count, good, problems, started, DateTimeOffset.UtcNow, chain, headAfter);
     }
+
+    /// <summary>Files in the store named like objects that no object row names (found at start and by the audit; never moved).</summary>
+    public static async Task<IReadOnlyList<string>> UnrecordedNamesAsync(ArchiveDbContext db, ContentStore store, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        ArgumentNullException.ThrowIfNull(store);
+        var known = (await db.Objects.AsNoTracking().Select(o => o.Sha256).ToListAsync(cancellation).ConfigureAwait(false)).ToHashSet(StringComparer.Ordinal);
+        return [.. store.EnumerateHashes().Where(h => !known.Contains(h)).Order(StringComparer.Ordinal)];
+    }
+
+    /// <summary>
+    /// Every capture's row, its object row and its ingest event (the last "N bytes, SHA-256 H" in its detail, after
+    /// the file name) must say the same SHA-256 and size (the file itself is
+    /// checked against the object row above); any disagreement names the capture.
+    /// </summary>
+    private async Task<List<FixityFinding>> CrossCheckCapturesAsync(int? collectionId, Dictionary<string, Entities.StoredObject> recorded, CancellationToken cancellation)
+    {
+        var findings = new List<FixityFinding>();
+        var captures = await db.Captures.AsNoTracking()
+            .Where(c => collectionId == null || c.Item!.CollectionId == collectionId)
+            .OrderBy(c => c.Id)
+            .Select(c => new { c.Id, c.Sha256, c.Size, c.OriginalFileName, c.Item!.AccessionNumber, Collection = c.Item.Collection!.Name })
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        var ingests = await db.Events.AsNoTracking()
+            .Where(e => e.EventType == EventTypes.Ingest && e.ObjectType == "capture" && (e.Outcome == "success" || e.Outcome == "linked"))
+            .OrderBy(e => e.Id)
+            .Select(e => new { e.ObjectId, e.Detail })
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        var firstIngest = new Dictionary<string, string>(StringComparer.Ordinal);
+        foreach (var e in ingests)
+        {
+            firstIngest.TryAdd(e.ObjectId, e.Detail);
+        }
+
+        foreach (var c in captures)
+        {
+            var said = new List<string>();
+            string id = c.Id.ToString(System.Globalization.CultureInfo.InvariantCulture);
+            if (!recorded.TryGetValue(c.Sha256, out var stored))
+            {
+                said.Add($"no object row names its SHA-256 {c.Sha256}");
+            }
+            else if (stored.Size != c.Size)
+            {
+                said.Add($"its row says {c.Size} bytes, its object row {stored.Size}");
+            }
+
+            if (!firstIngest.TryGetValue(id, out var detail))
+            {
+                said.Add("the event log holds no ingest event for it");
+            }
+            else if (IngestFacts().Match(detail) is not { Success: true } facts)
+            {
+                said.Add("its ingest event does not state a size and SHA-256");
+            }
+            else
+            {
+                if (facts.Groups["sha"].Value != c.Sha256)
+                {
+                    said.Add($"it was ingested with SHA-256 {facts.Groups["sha"].Value}, but its row now says {c.Sha256}");
+                }
+
+                if (facts.Groups["size"].Value != c.Size.ToString(System.Globalization.CultureInfo.InvariantCulture))
+                {
+                    said.Add($"it was ingested with {facts.Groups["size"].Value} bytes, but its row now says {c.Size}");
+                }
+            }
+
+            if (said.Count > 0)
+            {
+                findings.Add(new FixityFinding(c.Sha256, Contradiction, "original", c.Collection, c.AccessionNumber, $"capture {id} '{c.OriginalFileName}'",
+                    $"Capture {id}: {string.Join("; ", said)}."));
+            }
+        }
+
+        return findings;
+    }
+
+    private async Task<List<FixityFinding>> UnrecordedFilesAsync(int? collectionId, Dictionary<string, Entities.StoredObject> recorded, Dictionary<string, List<Place>> places, CancellationToken cancellation)
+    {
+        var findings = new List<FixityFinding>();
+        foreach (var name in store.EnumerateHashes().Where(h => !recorded.ContainsKey(h)).Order(StringComparer.Ordinal).ToList())
+        {
+            var uses = places.GetValueOrDefault(name);
+            if (collectionId is not null && uses is null)
+            {
+                continue;
+            }
+
+            string actual = await store.HashStoredAsync(name, cancellation).ConfigureAwait(false) ?? "(gone)";
+            long size = File.Exists(store.PathOf(name)) ? new FileInfo(store.PathOf(name)).Length : 0;
+            string detail = $"The file {store.RelativePath(name)} ({size} bytes, SHA-256 {actual}{(actual == name ? ", as its name says" : ", not what its name says")}) is in the store, but no object row names it; it was left where it is.";
+            if (uses is null)
+            {
+                findings.Add(new FixityFinding(actual, Unrecorded, "file", null, null, store.RelativePath(name), detail));
+            }
+            else
+            {
+                findings.AddRange(uses.Select(u => new FixityFinding(actual, Unrecorded, u.Kind, u.Collection, u.Item, u.File, detail)));
+            }
+        }
+
+        return findings;
+    }
+
+    [System.Text.RegularExpressions.GeneratedRegex(@"(?<size>\d+) bytes, SHA-256 (?<sha>[0-9a-f]{64})", System.Text.RegularExpressions.RegexOptions.CultureInvariant | System.Text.RegularExpressions.RegexOptions.RightToLeft)]
+    private static partial System.Text.RegularExpressions.Regex IngestFacts();
 
     private sealed record Place(string Kind, string? Collection, string? Item, int? ItemId, string File);
 

@@ -38,13 +38,16 @@ public sealed class FixityJob(IServiceScopeFactory scopes) : IJobHandler
             }
         }), cancellation).ConfigureAwait(false);
         await pending.ConfigureAwait(false);
+        string chain = report.Chain.FirstBreak is { } broken
+            ? $"The event chain is broken at event {broken.EventId}: {broken.Reason}"
+            : $"Event chain intact ({report.Chain.Events} events); head now {report.HeadAfter?.ToString() ?? "none"}.";
         if (report.AllGood)
         {
-            return new JobOutcome(null, $"Fixity audit: all {report.Checked} stored object(s) match their recorded SHA-256.");
+            return new JobOutcome(null, $"Fixity audit: all {report.Checked} stored object(s) match their recorded SHA-256 and their records agree. {chain}");
         }
 
         var listed = string.Join(" ", report.Problems.Take(5).Select(p => $"{p.Problem}: {p.Kind} {p.File} of item {p.Item ?? "—"} in {p.Collection ?? "—"}."));
-        return new JobOutcome(null, $"Fixity audit: {report.Checked - report.Good} of {report.Checked} stored object(s) failed ({report.Problems.Count} use(s)). {listed}{(report.Problems.Count > 5 ? " See the event log for the rest." : string.Empty)}");
+        return new JobOutcome(null, $"Fixity audit: {report.Problems.Count} problem(s) in {report.Checked} stored object(s), their records and the event log. {chain} {listed}{(report.Problems.Count > 5 ? " See the event log for the rest." : string.Empty)}");
     }
 }
 

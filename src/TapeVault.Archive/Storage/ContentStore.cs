@@ -132,43 +132,32 @@ public sealed class ContentStore
         return Convert.ToHexStringLower(await SHA256.HashDataAsync(stream, cancellation).ConfigureAwait(false));
     }
 
-    /// <summary>Removes temporary files left by an ingest that was interrupted (a crash, a kill); returns how many.</summary>
+    /// <summary>
+    /// Removes whatever an interrupted piece of work (a crash, a kill) left in the temporary folder, which only the app
+    /// writes to: staged uploads and objects (*.part), catalogue folders being published (catalogue-*), demo captures
+    /// being made (demo-*), plot caches being written. Nothing in it is ever the only copy of anything. Returns how
+    /// many entries were removed.
+    /// </summary>
     public int SweepTemporaryFiles()
     {
         int removed = 0;
-        foreach (var file in Directory.EnumerateFiles(TempFolder, "*.part"))
+        foreach (var file in Directory.EnumerateFiles(TempFolder))
         {
             File.Delete(file);
+            removed++;
+        }
+
+        foreach (var folder in Directory.EnumerateDirectories(TempFolder))
+        {
+            Directory.Delete(folder, recursive: true);
             removed++;
         }
 
         return removed;
     }
 
-    /// <summary>
-    /// Moves object files that no database row names into <c>orphans/</c>: they were placed by a step that was cut off
-    /// (a crash, a kill) before its row was committed, so nobody was ever told they were stored. They are moved aside,
-    /// not deleted, so that nothing is lost if the database was the thing that went wrong. Returns how many.
-    /// </summary>
-    public int QuarantineOrphans(IReadOnlySet<string> known)
-    {
-        ArgumentNullException.ThrowIfNull(known);
-        int moved = 0;
-        foreach (var sha in EnumerateHashes().ToList())
-        {
-            if (known.Contains(sha))
-            {
-                continue;
-            }
-
-            var folder = Directory.CreateDirectory(Path.Combine(Root, "orphans")).FullName;
-            var target = Path.Combine(folder, $"{sha}-{DateTime.UtcNow:yyyyMMddHHmmss}");
-            File.Move(PathOf(sha), target, overwrite: false);
-            moved++;
-        }
-
-        return moved;
-    }
+    /// <summary>Where an object lives, relative to the store's root ("objects/ab/cd/…"): for messages, which never show server paths.</summary>
+    public string RelativePath(string sha256) => Path.GetRelativePath(Root, PathOf(sha256)).Replace('\\', '/');
 
     /// <summary>Every object file in the store, by hash (for audits and orphan checks).</summary>
     public IEnumerable<string> EnumerateHashes() =>

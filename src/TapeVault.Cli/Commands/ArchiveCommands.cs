@@ -1,6 +1,7 @@
 using System.Globalization;
 using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive;
+using TapeVault.Archive.Events;
 using TapeVault.Archive.Export;
 using TapeVault.Archive.Fixity;
 using TapeVault.Archive.Jobs;
@@ -8,14 +9,15 @@ using TapeVault.Archive.Jobs;
 namespace TapeVault.Cli.Commands;
 
 /// <summary>
-/// Commands on the web app's archive: <c>verify</c> (fixity audit; exit 1 on any mismatch or missing file),
+/// Commands on the web app's archive: <c>verify</c> (the event chain, every stored object and every capture's records;
+/// exit 1 on any broken link, mismatch, missing file, contradiction or unrecorded file, or a kept head that no longer holds),
 /// <c>export bag</c> (RFC 8493) and <c>publish</c> (the static catalogue).
 /// </summary>
 public static class ArchiveCommands
 {
     public const int Damaged = 1;
 
-    public static string VerifyUsage => $"verify [--collection ID] {ArchiveSession.OptionsUsage}";
+    public static string VerifyUsage => $"verify [--collection ID] [--expect-head \"event N sha256:HASH\"] {ArchiveSession.OptionsUsage}";
 
     public static string ExportUsage => $"export bag (--item ACCESSION | --collection ID) --out PATH [--zip] {ArchiveSession.OptionsUsage}";
 
@@ -29,6 +31,9 @@ public static class ArchiveCommands
         ArgumentNullException.ThrowIfNull(output);
         ArgumentNullException.ThrowIfNull(error);
         int? collection = args.Value("collection") is { } c ? ParseId(c, "--collection") : null;
+        var kept = args.Value("expect-head") is { } h
+            ? EventChain.ParseHead(h) ?? throw new UsageException($"--expect-head takes a head as bags and verify write it, \"event N sha256:HASH\", not '{h}'.")
+            : null;
         ArchiveSession.DeclareOptions(args);
         args.RejectUnknown();
         if (args.Positional.Count > 0)
@@ -48,12 +53,22 @@ public static class ArchiveCommands
             output.WriteLine($"{p.Problem.ToUpperInvariant(),-9} {p.Kind} {p.File} · item {p.Item ?? "—"} · collection {p.Collection ?? "—"} · {p.Detail}");
         }
 
-        output.WriteLine(report.AllGood
-            ? $"All {report.Checked} stored object(s) match their recorded SHA-256; nothing was changed."
-            : $"{report.Checked - report.Good} of {report.Checked} stored object(s) are damaged or missing; nothing was changed or repaired.");
-        if (!report.AllGood)
+        output.WriteLine(report.Chain.FirstBreak is { } broken
+            ? $"Event chain BROKEN at event {broken.EventId}: {broken.Reason}"
+            : $"Event chain intact: {report.Chain.Events} event(s) up to {report.Chain.Head?.ToString() ?? "none"}.");
+        string? keptProblem = kept is null ? null : Run(() => EventChain.CheckKeptHeadAsync(session.Get<ArchiveDbContext>(), kept));
+        if (kept is not null)
         {
-            error.WriteLine($"tapevault: fixity audit found {report.Problems.Count} problem(s).");
+            output.WriteLine(keptProblem is null ? $"Kept head {kept} is in the log as it was." : $"KEPT-HEAD {keptProblem}");
+        }
+
+        output.WriteLine($"Event chain head: {report.HeadAfter?.ToString() ?? "none"} (after this audit's own events; compare it with a copy kept in a bag or catalogue).");
+        output.WriteLine(report.AllGood
+            ? $"All {report.Checked} stored object(s) match their recorded SHA-256 and their records agree; nothing was changed."
+            : $"{report.Problems.Count} problem(s) in {report.Checked} stored object(s), their records and the event log; nothing was changed or repaired.");
+        if (!report.AllGood || keptProblem is not null)
+        {
+            error.WriteLine($"tapevault: fixity audit found {report.Problems.Count + (keptProblem is null ? 0 : 1)} problem(s).");
             return Damaged;
         }
 
@@ -111,7 +126,7 @@ public static class ArchiveCommands
                     result = Run(async () =>
                     {
                         await using var sink = new ZipBagSink(file, Path.GetFileNameWithoutExtension(target));
-                        return await bags.WriteAsync(scope, sink, ArchiveSession.Agent).ConfigureAwait(false);
+                        return await bags.WriteAsync(scope, sink).ConfigureAwait(false);
                     });
                 }
 
@@ -130,7 +145,7 @@ public static class ArchiveCommands
                 result = Run(async () =>
                 {
                     await using var sink = new FolderBagSink(temp);
-                    return await bags.WriteAsync(scope, sink, ArchiveSession.Agent).ConfigureAwait(false);
+                    return await bags.WriteAsync(scope, sink).ConfigureAwait(false);
                 });
                 if (Directory.Exists(target))
                 {
@@ -148,6 +163,9 @@ public static class ArchiveCommands
             }
         }
 
+        // Recorded only now that the bag is in place under its final name (a crash before this records nothing).
+        bags.RecordExported(result, ArchiveSession.Agent, $"written by the command line as '{Path.GetFileName(target)}'");
+        db.SaveChanges();
         output.WriteLine($"Bag written to {target}: {result.PayloadFiles} payload file(s), {result.PayloadBytes} bytes, for {string.Join(", ", result.ExternalIdentifiers)}.");
         output.WriteLine(zip ? "Unzip it and check it with: sha256sum -c manifest-sha256.txt" : $"Check it with: cd {target} && sha256sum -c manifest-sha256.txt && sha256sum -c tagmanifest-sha256.txt");
         return 0;
@@ -175,13 +193,21 @@ public static class ArchiveCommands
         var temp = Path.Combine(Path.GetDirectoryName(target)!, $".{Path.GetFileName(target)}.part-{Guid.NewGuid():N}");
         try
         {
-            var files = Run(() => session.Get<CataloguePublisher>().PublishAsync(collection, temp, ArchiveSession.Agent));
+            var publisher = session.Get<CataloguePublisher>();
+            var files = Run(() => publisher.WriteAsync(collection, temp));
             if (Directory.Exists(target))
             {
                 Directory.Delete(target);
             }
 
             Directory.Move(temp, target);
+
+            // The event names the folder the catalogue ended in, never the temporary one it was written to.
+            Run(async () =>
+            {
+                await publisher.RecordPublishedAsync(collection, $"Catalogue published by the command line to the folder '{Path.GetFileName(target)}' ({files.Count} files).", ArchiveSession.Agent).ConfigureAwait(false);
+                return 0;
+            });
             output.WriteLine($"Catalogue written to {target}: {files.Count} files. Open {Path.Combine(target, "index.html")} in a browser; check it with: cd {target} && sha256sum -c SHA256SUMS");
         }
         finally

@@ -1,5 +1,5 @@
 using System.Collections.Immutable;
-using TapeVault.Core.Checksums;
+using System.Runtime.InteropServices;
 using TapeVault.Core.Formats;
 
 namespace TapeVault.Core.Blocks;
@@ -7,15 +7,15 @@ namespace TapeVault.Core.Blocks;
 /// <summary>
 /// Turns the bytes of one detector setting into block candidates, following the profile's layout: header, payload
 /// (fixed length or from a length field), checksum. A stream layout makes one unchecked block from a lead-in to the
-/// next loss of signal. The symbol decoders say where a block begins and when the signal is lost.
+/// next loss of signal. The symbol decoders say where a block begins and on what evidence, hand over each decision
+/// (<see cref="AddDecision"/>, <see cref="AddGuessedDecision"/>) and byte, and say when the signal is lost; what is
+/// missing after a loss of signal is the next block's doubt (it begins on no evidence). <see cref="BlockScorer"/>
+/// judges each finished block.
 /// </summary>
 public sealed class BlockAssembler
 {
-    // Beyond these odds of a false match among guessed bits, a holding checksum proves nothing.
-    private const double MostGuessedMatchOdds = 0.01;
-
     private readonly BlockLayout _layout;
-    private readonly IBlockChecksum? _checksum;
+    private readonly BlockScorer _scorer;
     private readonly int _settingIndex;
     private readonly string _settingName;
     private readonly double _sampleRate;
@@ -25,9 +25,10 @@ public sealed class BlockAssembler
     private readonly List<double> _byteSample = new(512);
     private readonly List<float> _byteFramingDoubt = new(512);
     private int _framingErrors;
-    private int _erasedBits;
+    private int _guessedDecisions;
     private int _expectedTotal;
     private double _startSample;
+    private BlockStartEvidence _evidence;
     private double _levelSum;
     private int _levelCount;
     private double _speedSum;
@@ -38,36 +39,46 @@ public sealed class BlockAssembler
     {
         ArgumentNullException.ThrowIfNull(profile);
         _layout = profile.Layout;
-        _checksum = _layout.Checksum is { } spec ? ChecksumCatalog.Get(spec.Algorithm) : null;
+        _scorer = new BlockScorer(_layout);
         _settingIndex = settingIndex;
         _settingName = settingName;
         _sampleRate = sampleRate;
         _output = output;
     }
 
+    /// <summary>The decisions of the block being read. Decoders should hand decisions over through <see cref="AddDecision"/> and <see cref="AddGuessedDecision"/>.</summary>
     public DecisionLog Decisions { get; } = new();
+
+    /// <summary>How many decisions the block being read holds so far: the index the next decision will have.</summary>
+    public int DecisionCount => Decisions.Count;
 
     public bool InBlock { get; private set; }
 
-    public void Begin(double sample)
+    /// <summary>A block begins after a lead-in (the evidence the decoders that do not say otherwise have).</summary>
+    public void Begin(double sample) => Begin(sample, BlockStartEvidence.LeadIn);
+
+    /// <summary>
+    /// A block begins at <paramref name="sample"/>, on the strength of <paramref name="evidence"/>. A block begun on no
+    /// evidence is never clean, whatever its check says: it may be noise or the middle of another block.
+    /// </summary>
+    public void Begin(double sample, BlockStartEvidence evidence)
     {
         InBlock = true;
         _startSample = sample;
+        _evidence = evidence;
         _bytes.Clear();
         _byteFirstDecision.Clear();
         _byteSample.Clear();
         _byteFramingDoubt.Clear();
         Decisions.Clear();
         _framingErrors = 0;
-        _erasedBits = 0;
+        _guessedDecisions = 0;
         _levelSum = 0;
         _levelCount = 0;
         _speedSum = 0;
         _speedCount = 0;
-        _expectedTotal = _layout.IsStream ? int.MaxValue : _layout.HeaderBytes + (_layout.PayloadBytes ?? 0) + ChecksumBytes;
+        _expectedTotal = _layout.IsStream ? int.MaxValue : _layout.HeaderBytes + (_layout.PayloadBytes ?? 0) + _scorer.ChecksumBytes;
     }
-
-    private int ChecksumBytes => _checksum?.Width ?? 0;
 
     public void NoteLevel(float envelope)
     {
@@ -76,15 +87,24 @@ public sealed class BlockAssembler
     }
 
     /// <summary>
-    /// A bit of the block was not read at all (a bridged dropout) and stands as a guess: a decision of margin 0. A
-    /// checksum that holds over guessed bits vouches for them only as far as its false-match odds reach: n guesses
-    /// are 2^n tries.
+    /// One decision (pulse class, bit, tone) of the block: its distance to the decision boundary, its residual from
+    /// the nominal value, and the distance from nominal to the boundary, all in one unit.
     /// </summary>
-    public void AddErasedBit()
+    public void AddDecision(float distance, float residual, float scale) => Decisions.Add(distance, residual, scale);
+
+    /// <summary>
+    /// A decision that was guessed, not read (an erased bit, a marker or stop bit the signal did not show): margin 0,
+    /// counted as a guess. A checksum that holds over guesses vouches for them only as far as its false-match odds
+    /// reach: n guesses are 2^n tries.
+    /// </summary>
+    public void AddGuessedDecision()
     {
         Decisions.Add(0, 1, 1);
-        _erasedBits++;
+        _guessedDecisions++;
     }
+
+    /// <summary>A bit of the block was not read at all (a bridged dropout) and stands as a guess: see <see cref="AddGuessedDecision"/>.</summary>
+    public void AddErasedBit() => AddGuessedDecision();
 
     public void NoteSpeed(double speed)
     {
@@ -115,11 +135,11 @@ public sealed class BlockAssembler
 
         if (!_layout.IsStream && _bytes.Count == _layout.HeaderBytes && _layout.FieldWithRole(FieldRole.PayloadLength) is { } lengthField)
         {
-            long length = ReadField(lengthField);
+            long length = BlockLayoutCodec.For(_layout).ReadField(CollectionsMarshal.AsSpan(_bytes), lengthField);
 
             // A length beyond the layout's limit means a damaged header: read up to the limit and let the checksum fail.
             int payload = (int)Math.Min(length, _layout.MaximumPayloadBytes);
-            _expectedTotal = _layout.HeaderBytes + payload + ChecksumBytes;
+            _expectedTotal = _layout.HeaderBytes + payload + _scorer.ChecksumBytes;
         }
 
         if (_bytes.Count >= _expectedTotal)
@@ -148,170 +168,45 @@ public sealed class BlockAssembler
         Emit(sample, truncated: !_layout.IsStream);
     }
 
-    private long ReadField(HeaderField field)
-    {
-        int offset = 0;
-        foreach (var f in _layout.Header)
-        {
-            if (ReferenceEquals(f, field))
-            {
-                break;
-            }
-
-            offset += f.Bytes;
-        }
-
-        long value = 0;
-        for (int i = 0; i < field.Bytes; i++)
-        {
-            int index = field.BigEndian ? offset + i : offset + field.Bytes - 1 - i;
-            value = (value << 8) | _bytes[index];
-        }
-
-        return value;
-    }
-
     private void Emit(double endSample, bool truncated)
     {
         InBlock = false;
-        int headerBytes = _layout.IsStream ? 0 : Math.Min(_layout.HeaderBytes, _bytes.Count);
-        int checksumBytes = ChecksumBytes;
-        int payloadEnd = truncated ? _bytes.Count : Math.Max(headerBytes, _bytes.Count - checksumBytes);
         var all = _bytes.ToArray();
+        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, _framingErrors, _guessedDecisions, _evidence, truncated);
+        int headerBytes = score.HeaderBytes;
+        int payloadEnd = score.PayloadEnd;
         var header = all.AsSpan(0, headerBytes);
         var payload = all.AsSpan(headerBytes, payloadEnd - headerBytes);
-
-        var (sigma, typicalScale) = Decisions.NoiseEstimate();
-        int byteCount = all.Length;
-        var byteLogOk = new double[byteCount];
-        var byteMargin = new float[byteCount];
-        int ambiguous = 0;
-        double marginSum = 0;
-        double minimumMargin = 1;
-        for (int b = 0; b < byteCount; b++)
-        {
-            int first = _byteFirstDecision[b];
-            int last = b + 1 < byteCount ? _byteFirstDecision[b + 1] : Decisions.Count;
-            double logOk = 0;
-            float minMargin = 1;
-            for (int i = first; i < last; i++)
-            {
-                logOk += Decisions.LogRightOdds(i, sigma);
-                float m = Decisions.Margin(i);
-                minMargin = Math.Min(minMargin, m);
-                marginSum += m;
-                if (m < DecisionLog.AmbiguousMargin)
-                {
-                    ambiguous++;
-                }
-            }
-
-            byteLogOk[b] = logOk + Math.Log(1 - _byteFramingDoubt[b]);
-            byteMargin[b] = minMargin;
-            minimumMargin = Math.Min(minimumMargin, minMargin);
-        }
-
-        double logPayloadOk = 0;
-        double logRestOk = 0;
-        for (int b = 0; b < byteCount; b++)
-        {
-            if (b >= headerBytes && b < payloadEnd)
-            {
-                logPayloadOk += byteLogOk[b];
-            }
-            else
-            {
-                logRestOk += byteLogOk[b];
-            }
-        }
-
-        BlockStatus status;
-        uint? stored = null;
-        double confidence;
-        if (_checksum is null)
-        {
-            status = truncated ? BlockStatus.Failed : BlockStatus.Unchecked;
-            confidence = Math.Exp(logPayloadOk);
-        }
-        else if (truncated)
-        {
-            status = BlockStatus.Failed;
-            confidence = 0;
-        }
-        else
-        {
-            var checkSpan = all.AsSpan(payloadEnd, checksumBytes);
-            stored = ReadUnsigned(checkSpan, _layout.Checksum!.BigEndian);
-            var covered = _layout.Checksum.Covers == ChecksumCoverage.Payload ? payload : all.AsSpan(0, payloadEnd);
-            uint computed = _checksum.Compute(covered) & WidthMask(checksumBytes);
-            status = computed == stored ? BlockStatus.Clean : BlockStatus.Failed;
-            if (status == BlockStatus.Clean && Math.ScaleB(_checksum.FalseMatchProbability, _erasedBits) > MostGuessedMatchOdds)
-            {
-                // Erasures guessed as zeros can make a checksum's own codeword (all zeros passes a CRC with no
-                // initial value): an unproven reading, left for the merge to vote on.
-                status = BlockStatus.Failed;
-            }
-
-            // A failed block whose (damaged) header claims no payload has nothing that could be right: trusting its empty
-            // payload would mark a misread as certain.
-            confidence = status == BlockStatus.Clean
-                ? PosteriorGivenMatch(logPayloadOk + logRestOk, _checksum.FalseMatchProbability)
-                : payloadEnd == headerBytes ? 0
-                : computed == stored ? Math.Exp(logPayloadOk)
-                : PayloadRightGivenMismatch(logPayloadOk, logRestOk);
-        }
-
-        if (_framingErrors > 0 && status == BlockStatus.Clean)
-        {
-            // A checksum can hold over a framing slip only by chance; keep the block but trust it less.
-            confidence *= 0.5;
-        }
-
-        var identity = ReadIdentity(_layout, header, _ordinal);
-        var payloadMargins = byteMargin.AsSpan(headerBytes, payloadEnd - headerBytes).ToArray();
-        var payloadOdds = new float[payloadEnd - headerBytes];
         var payloadSeconds = new double[payloadEnd - headerBytes];
         for (int b = headerBytes; b < payloadEnd; b++)
         {
-            payloadOdds[b - headerBytes] = (float)(1 - Math.Exp(byteLogOk[b]));
             payloadSeconds[b - headerBytes] = _byteSample[b] / _sampleRate;
         }
 
         double level = _levelCount > 0 ? _levelSum / _levelCount : 0;
-        var headerOdds = new float[headerBytes];
-        for (int b = 0; b < headerBytes; b++)
-        {
-            headerOdds[b] = (float)(1 - Math.Exp(byteLogOk[b]));
-        }
-
-        var checksumOdds = new float[stored is null ? 0 : byteCount - payloadEnd];
-        for (int b = 0; b < checksumOdds.Length; b++)
-        {
-            checksumOdds[b] = (float)(1 - Math.Exp(byteLogOk[payloadEnd + b]));
-        }
-
         _output.Add(new BlockCandidate
         {
             SettingIndex = _settingIndex,
             SettingName = _settingName,
-            Identity = identity,
+            Identity = ReadIdentity(_layout, header, _ordinal),
             Header = [.. header],
             Payload = [.. payload],
-            StoredChecksum = stored,
-            Status = status,
-            Confidence = Math.Clamp(confidence, 0, 1),
-            ByteMargins = ImmutableArray.Create(payloadMargins),
-            ByteErrorOdds = ImmutableArray.Create(payloadOdds),
-            HeaderErrorOdds = ImmutableArray.Create(headerOdds),
-            ChecksumErrorOdds = ImmutableArray.Create(checksumOdds),
+            StoredChecksum = score.StoredChecksum,
+            Status = score.Status,
+            Doubts = score.Doubts,
+            Confidence = score.Confidence,
+            ByteMargins = score.PayloadMargins,
+            ByteErrorOdds = score.PayloadErrorOdds,
+            HeaderErrorOdds = score.HeaderErrorOdds,
+            ChecksumErrorOdds = score.ChecksumErrorOdds,
             ByteSeconds = ImmutableArray.Create(payloadSeconds),
             Decisions = Decisions.Count,
-            AmbiguousDecisions = ambiguous,
-            MinimumMargin = Decisions.Count > 0 ? minimumMargin : 0,
-            MeanMargin = Decisions.Count > 0 ? marginSum / Decisions.Count : 0,
+            AmbiguousDecisions = score.AmbiguousDecisions,
+            MinimumMargin = score.MinimumMargin,
+            MeanMargin = score.MeanMargin,
             FramingErrors = _framingErrors,
             LevelDbfs = level > 0 ? 20 * Math.Log10(level) : -120,
-            SnrDb = 20 * Math.Log10(typicalScale / sigma),
+            SnrDb = score.SnrDb,
             Speed = _speedCount > 0 ? _speedSum / _speedCount : 1,
             StartSeconds = _startSample / _sampleRate,
             EndSeconds = endSample / _sampleRate,
@@ -342,10 +237,10 @@ public sealed class BlockAssembler
                     fileName = DecodeName(bytes);
                     break;
                 case FieldRole.FileId:
-                    fileId = ReadUnsigned(bytes, field.BigEndian);
+                    fileId = (long)BlockLayoutCodec.ReadUnsigned(bytes, field.BigEndian);
                     break;
                 case FieldRole.BlockNumber:
-                    blockNumber = ReadUnsigned(bytes, field.BigEndian);
+                    blockNumber = (long)BlockLayoutCodec.ReadUnsigned(bytes, field.BigEndian);
                     break;
             }
 
@@ -371,34 +266,5 @@ public sealed class BlockAssembler
         }
 
         return new string(chars[..length]);
-    }
-
-    private static uint ReadUnsigned(ReadOnlySpan<byte> bytes, bool bigEndian)
-    {
-        uint value = 0;
-        for (int i = 0; i < bytes.Length; i++)
-        {
-            value = unchecked((value << 8) | bytes[bigEndian ? i : bytes.Length - 1 - i]);
-        }
-
-        return value;
-    }
-
-    private static uint WidthMask(int bytes) => bytes >= 4 ? uint.MaxValue : (1u << (8 * bytes)) - 1;
-
-    /// <summary>P(right | checksum holds) by Bayes: a wrong block passes with the checksum's false-match odds.</summary>
-    public static double PosteriorGivenMatch(double logAllOk, double falseMatch)
-    {
-        double ok = Math.Exp(logAllOk);
-        return ok / (ok + (1 - ok) * falseMatch);
-    }
-
-    /// <summary>P(payload right | checksum fails): the error must then lie in the header or the check bytes.</summary>
-    public static double PayloadRightGivenMismatch(double logPayloadOk, double logRestOk)
-    {
-        double payloadOk = Math.Exp(logPayloadOk);
-        double restOk = Math.Exp(logRestOk);
-        double anyWrong = 1 - payloadOk * restOk;
-        return anyWrong <= 1e-12 ? 0 : payloadOk * (1 - restOk) / anyWrong;
     }
 }

@@ -4,10 +4,10 @@ namespace TapeVault.Core.Blocks;
 
 public enum BlockStatus
 {
-    /// <summary>The checksum holds.</summary>
+    /// <summary>The block began where the format marks a block start, and its checksum holds over bytes that prove it (see <see cref="BlockScorer"/>).</summary>
     Clean,
 
-    /// <summary>The checksum does not hold, or the block was cut short.</summary>
+    /// <summary>The checksum does not hold, or the block was cut short, or its holding check is no evidence; <see cref="BlockCandidate.Doubts"/> says which.</summary>
     Failed,
 
     /// <summary>The format has no checksum.</summary>
@@ -48,6 +48,9 @@ public sealed record BlockCandidate
     public uint? StoredChecksum { get; init; }
 
     public required BlockStatus Status { get; init; }
+
+    /// <summary>Why the block is not clean, or what lowers the trust in it (none in readings stored before these were kept).</summary>
+    public BlockDoubts Doubts { get; init; }
 
     /// <summary>Estimated probability that the payload is right, 0..1.</summary>
     public required double Confidence { get; init; }

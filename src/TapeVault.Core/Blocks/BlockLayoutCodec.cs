@@ -217,6 +217,32 @@ public sealed class BlockLayoutCodec
         }
     }
 
+    /// <summary>
+    /// Whether every byte the check covers and every byte of the stored check value are one and the same value (or
+    /// the check covers nothing): then a holding check proves nothing, since a stuck line or a steady tone reads as
+    /// such a run and zero-init CRCs, XOR and sums over zeros give zero for free.
+    /// </summary>
+    public bool CoveredAllAlike(ReadOnlySpan<byte> block, int payloadLength)
+    {
+        var check = block.Slice(HeaderBytes + payloadLength, CheckBytes);
+        bool payloadPiece = _coversPayload && payloadLength > 0;
+        if (_coveredHeaderBytes == 0 && !payloadPiece)
+        {
+            return true;
+        }
+
+        byte value = _coveredHeader.Length > 0 ? block[_coveredHeader[0].Start] : block[HeaderBytes];
+        foreach (var (start, length) in _coveredHeader)
+        {
+            if (block.Slice(start, length).ContainsAnyExcept(value))
+            {
+                return false;
+            }
+        }
+
+        return !(payloadPiece && block.Slice(HeaderBytes, payloadLength).ContainsAnyExcept(value)) && !check.ContainsAnyExcept(value);
+    }
+
     /// <summary>The check value stored after a payload of <paramref name="payloadLength"/> bytes.</summary>
     public uint ReadStoredCheck(ReadOnlySpan<byte> block, int payloadLength)
     {

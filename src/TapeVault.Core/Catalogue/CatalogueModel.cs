@@ -3,12 +3,14 @@ using TapeVault.Core.Image;
 namespace TapeVault.Core.Catalogue;
 
 /// <summary>A published collection: what the catalogue shows, gathered by the archive; no database types in here.</summary>
+/// <param name="EventChainHead">The archive's event chain head when the catalogue was made ("event N sha256:…"), if any.</param>
 public sealed record CatalogueSite(
     string CollectionName,
     string CollectionDescriptionMarkdown,
     string SourceOrganization,
     DateTimeOffset PublishedUtc,
-    IReadOnlyList<CatalogueItem> Items);
+    IReadOnlyList<CatalogueItem> Items,
+    string? EventChainHead = null);
 
 public sealed record CatalogueItem(
     string AccessionNumber,

@@ -317,6 +317,7 @@ public static class CatalogueWriter
         collection = site.CollectionName,
         sourceOrganization = site.SourceOrganization,
         publishedUtc = site.PublishedUtc,
+        eventChainHead = site.EventChainHead,
         confidenceExplanation = ConfidenceExplanation,
         items = site.Items.Select((item, i) =>
         {

@@ -91,6 +91,10 @@ public sealed record TapeImage
 
     public int Count(RecoveryStatus status) => Blocks.Count(b => b.Status == status);
 
-    /// <summary>Probability that every recovered (non-missing) block is right, under independence.</summary>
-    public double OverallConfidence => Blocks.Where(b => b.Status != RecoveryStatus.Missing).Aggregate(1.0, (p, b) => p * b.Confidence);
+    /// <summary>
+    /// Probability that every recovered (non-missing) position is right: the product of their confidences, positions
+    /// being read independently (summed in logs, so that thousands of near-certain positions do not lose precision).
+    /// Missing positions hold no bytes to be right or wrong; <see cref="Count"/> says how many there are.
+    /// </summary>
+    public double OverallConfidence => Math.Exp(Blocks.Where(b => b.Status != RecoveryStatus.Missing).Sum(b => Math.Log(b.Confidence)));
 }

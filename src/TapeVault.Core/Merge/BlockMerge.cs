@@ -33,7 +33,7 @@ internal sealed class BlockMerge
         _passes = passes;
         _timelines = timelines;
         _options = options;
-        _checksum = profile.Layout.Checksum is { } spec ? ChecksumCatalog.Get(spec.Algorithm) : null;
+        _checksum = BlockLayoutCodec.For(profile.Layout).Checksum;
     }
 
     private BlockLayout Layout => _profile.Layout;
@@ -245,8 +245,10 @@ internal sealed class BlockMerge
 
     /// <summary>
     /// Valid readings grouped by their bytes. Each capture's most confident reading of a content is one independent
-    /// witness; a content's odds are the product of its witnesses' odds, and the contents share the probability with
-    /// the chance that none of them is right. The winner has the most captures, then the highest probability.
+    /// witness. Witnesses that agree byte for byte are all right or all wrong; they are all wrong only if each is, so
+    /// a content's chance is 1 − Π(1 − c) over its witnesses (agreement raises it, never lowers it). Contents that
+    /// differ cannot both be right: each content's chance is then weighed against the others' being wrong. The
+    /// winner has the most captures, then the highest probability.
     /// </summary>
     private ImageBlock ResolveClean(List<(BlockCandidate Candidate, int Pass)> valid)
     {
@@ -258,18 +260,14 @@ internal sealed class BlockMerge
                     .Select(w => w.MaxBy(r => r.Candidate.Confidence))
                     .OrderByDescending(r => r.Candidate.Confidence)
                     .ToList();
-                double logOdds = witnesses.Sum(w => LogOdds(w.Candidate.Confidence));
-                return (Witnesses: witnesses, LogOdds: logOdds);
+                return (Witnesses: witnesses, Chance: AnyRight(witnesses.Select(w => w.Candidate.Confidence)));
             })
             .OrderByDescending(c => c.Witnesses.Count)
-            .ThenByDescending(c => c.LogOdds)
+            .ThenBy(c => c.Chance.LogWrong)
             .ToList();
 
-        // P(content) = odds / (1 + Σ odds), in logs so that many near-certain witnesses do not overflow.
-        double maxLog = Math.Max(0, contents.Max(c => c.LogOdds));
-        double denominator = Math.Exp(-maxLog) + contents.Sum(c => Math.Exp(c.LogOdds - maxLog));
         var winner = contents[0];
-        double confidence = Math.Exp(winner.LogOdds - maxLog) / denominator;
+        double confidence = OneOf([.. contents.Select(c => c.Chance)], 0);
 
         var top = winner.Witnesses[0].Candidate;
         var conflicts = contents.Skip(1)
@@ -511,10 +509,38 @@ internal sealed class BlockMerge
         return sorted[sorted.Count / 2];
     }
 
-    private static double LogOdds(double p)
+    /// <summary>
+    /// The chance that at least one of independent witnesses is right, as P(right) and, kept apart so that near-certain
+    /// witnesses do not round to 1 too early, log P(wrong) = Σ log(1 − c).
+    /// </summary>
+    internal static (double Right, double LogWrong) AnyRight(IEnumerable<double> confidences)
     {
-        double q = Math.Clamp(p, 1e-15, 1 - 1e-15);
-        return Math.Log(q / (1 - q));
+        double logWrong = 0;
+        foreach (double c in confidences)
+        {
+            logWrong += Math.Log(Math.Max(1 - Math.Clamp(c, 0, 1), 1e-300));
+        }
+
+        return (1 - Math.Exp(logWrong), logWrong);
+    }
+
+    /// <summary>
+    /// P(content <paramref name="index"/> right | at most one of the contents is right), each content right on its
+    /// own with its chance: w_i Π_(j≠i)(1 − w_j) over the sum of the same for every content plus Π(1 − w_j).
+    /// One content alone keeps its chance.
+    /// </summary>
+    internal static double OneOf(IReadOnlyList<(double Right, double LogWrong)> contents, int index)
+    {
+        if (contents.Count == 1)
+        {
+            return contents[0].Right;
+        }
+
+        // In logs relative to "all wrong": content i alone right weighs w_i / (1 − w_i).
+        var logWeights = contents.Select(c => Math.Log(Math.Max(c.Right, 1e-300)) - c.LogWrong).ToArray();
+        double max = Math.Max(0, logWeights.Max());
+        double denominator = Math.Exp(-max) + logWeights.Sum(w => Math.Exp(w - max));
+        return Math.Exp(logWeights[index] - max) / denominator;
     }
 
     /// <summary>A hash of a string that is the same in every run (string.GetHashCode is not).</summary>

@@ -37,7 +37,7 @@ public sealed record MergeOptions
     /// (seeds 1–4 of the benchmark's recovery corpus, `dotnet run --project tests/TapeVault.Bench -- calibration`)
     /// by the smallest expected calibration error; the benchmark reports the error on tapes of seeds 101 onwards.
     /// </summary>
-    public double StreamByteErrorFloor { get; init; } = 2e-4;
+    public double StreamByteErrorFloor { get; init; } = BlockScorer.UnseenByteError;
 
     /// <inheritdoc cref="StreamByteErrorFloor"/>
     public double StreamAgreedByteErrorFloor { get; init; } = 2e-4;

@@ -14,11 +14,6 @@ namespace TapeVault.Core.Merge;
 /// </summary>
 internal sealed class StreamMerge
 {
-    /// <summary>How many characters after a broken one are trusted less, and how little.</summary>
-    private const int FramesAfterBreak = 2;
-
-    private const float AfterBreakError = 0.3f;
-
     /// <summary>The vote a byte needs when some capture read that stretch of tape and did not see it.</summary>
     private const double LoneByteProbability = 0.9;
 
@@ -124,17 +119,17 @@ internal sealed class StreamMerge
                     readerOf.Add(c.SettingIndex, r);
                 }
 
-                // A reading's first characters may have been framed on a false start bit too (a reading that begins
-                // after a loss of signal needs no lead-in).
-                int sinceBroken = 0;
+                // A reading's first characters carry their own doubt where nothing marked its start (the block
+                // scorer gives it to a reading begun on no evidence, and it is kept with the byte odds).
+                int sinceBroken = int.MaxValue;
                 for (int i = 0; i < c.Payload.Length; i++)
                 {
                     float error = Math.Clamp(c.ByteErrorOdds[i], 1e-6f, 0.999f);
 
                     // The characters just after a broken one may have been framed on a false start bit.
-                    if (sinceBroken < FramesAfterBreak)
+                    if (sinceBroken < BlockScorer.DoubtfulFrames)
                     {
-                        error = Math.Max(error, AfterBreakError);
+                        error = Math.Max(error, BlockScorer.DoubtfulFrameError);
                     }
 
                     sinceBroken = c.ByteErrorOdds[i] >= 0.5f ? 0 : sinceBroken == int.MaxValue ? int.MaxValue : sinceBroken + 1;

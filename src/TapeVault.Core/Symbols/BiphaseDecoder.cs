@@ -277,7 +277,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
                 _mode = Mode.Data;
                 _clock.Start(sample, _encoding.CellSeconds * _sampleRate / _speed.Speed);
                 _framer.Reset();
-                _assembler.Begin(sample);
+                _assembler.Begin(sample, BlockStartEvidence.LeadInAndSync);
             }
             else if (bit && _bitsSinceLeadIn > 4 * _encoding.SyncBits.Length)
             {

@@ -199,7 +199,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             _patternLength = 0;
             _recentInvalid = 0;
             _framer.Reset();
-            _assembler.Begin(endSample);
+            _assembler.Begin(endSample, BlockStartEvidence.LeadInAndSync);
         }
     }
 

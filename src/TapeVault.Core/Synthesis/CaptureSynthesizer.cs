@@ -19,7 +19,7 @@ public static class CaptureSynthesizer
         FormatProfile profile,
         IReadOnlyList<TapeFile> files,
         ChannelDamage damage,
-        CaptureEncoding encoding = CaptureEncoding.Pcm16)
+        CaptureEncoding? encoding = null)
     {
         return WriteBlocks(path, profile, BlockWriter.Blocks(profile, files), damage, encoding);
     }
@@ -27,27 +27,51 @@ public static class CaptureSynthesizer
     /// <summary>
     /// Writes ready-made blocks (header + payload + checksum, copies not repeated) as they stand, without laying
     /// files out: for captures of blocks that are not what <see cref="BlockWriter"/> would make, such as a block
-    /// altered after its checksum was computed.
+    /// altered after its checksum was computed. The encoding defaults to the damage's converter resolution
+    /// (<see cref="ChannelDamage.QuantizeBits"/>: 8, 16 or 24-bit PCM), else 16-bit PCM; a stereo damage writes two channels.
     /// </summary>
     public static SynthesizedCapture WriteBlocks(
         string path,
         FormatProfile profile,
         IReadOnlyList<byte[]> blocks,
         ChannelDamage damage,
-        CaptureEncoding encoding = CaptureEncoding.Pcm16)
+        CaptureEncoding? encoding = null)
     {
         ArgumentNullException.ThrowIfNull(damage);
         ArgumentNullException.ThrowIfNull(blocks);
-        using var writer = new CaptureWriterStream(path, damage.SampleRate, encoding);
         var model = Model(profile, blocks, damage, out double tapeSeconds);
+        using var writer = new CaptureWriterStream(path, damage.SampleRate, encoding ?? EncodingFor(damage), model.Channels);
         var chunk = new float[16_384];
         int count;
-        while ((count = model.Render(chunk)) > 0)
+        if (model.Channels == 1)
         {
-            writer.Write(chunk.AsSpan(0, count));
+            while ((count = model.Render(chunk)) > 0)
+            {
+                writer.Write(chunk.AsSpan(0, count));
+            }
+        }
+        else
+        {
+            var other = new float[chunk.Length];
+            while ((count = model.Render(chunk, other)) > 0)
+            {
+                writer.Write(chunk.AsSpan(0, count), other.AsSpan(0, count));
+            }
         }
 
         return new SynthesizedCapture(path, blocks, tapeSeconds, model.NoiseSigma);
+    }
+
+    /// <summary>The sample encoding that holds the damage's converter resolution exactly: 8, 16 or 24-bit PCM (16 when none is set).</summary>
+    public static CaptureEncoding EncodingFor(ChannelDamage damage)
+    {
+        ArgumentNullException.ThrowIfNull(damage);
+        return damage.QuantizeBits switch
+        {
+            8 => CaptureEncoding.Pcm8,
+            24 => CaptureEncoding.Pcm24,
+            _ => CaptureEncoding.Pcm16,
+        };
     }
 
     /// <summary>A ready-to-render channel model whose noise level is set from the clean signal's measured RMS.</summary>
@@ -73,7 +97,11 @@ public static class CaptureSynthesizer
     public static double MeasureCleanRms(FormatProfile profile, IReadOnlyList<byte[]> blocks, ChannelDamage damage, double tapeSeconds)
     {
         ArgumentNullException.ThrowIfNull(damage);
-        var clean = damage with { SnrDb = null, HumLevel = 0, Dropouts = [], RandomDropoutsPerMinute = 0 };
+        var clean = damage with
+        {
+            SnrDb = null, HumLevel = 0, Dropouts = [], RandomDropoutsPerMinute = 0, PrintThroughDb = null, ClipDriveDb = null,
+            QuantizeBits = null, Channels = CaptureChannels.Mono,
+        };
         var model = new ChannelModel(FluxWriter.Reversals(profile, blocks), clean, tapeSeconds);
         int skip = (int)(damage.MarginSeconds * damage.SampleRate) + damage.SampleRate / 20;
         long limit = Math.Min(model.TotalSamples - 2 * skip, 10L * damage.SampleRate);

@@ -7,14 +7,17 @@ namespace TapeVault.Core.Synthesis;
 /// V0 / (1 + (2t/PW50)²) (Mee and Daniel, Magnetic Recording Technology); a deck's line output integrates that back
 /// into a band-limited copy of the magnetisation. Speed, wow and flutter map capture time to tape time; azimuth error
 /// averages across the track (a boxcar whose response is sin x / x); then come the deck's bandwidth, dropouts, hum
-/// and noise. Rendering streams: call <see cref="Render"/> with chunk after chunk.
+/// and noise, and last the converter: its drive into hard clipping and its resolution. Print-through enters as faint
+/// copies of the reversals one wrap earlier and later, read back like the recording. Rendering streams: call
+/// <see cref="Render(Span{float})"/> (or, for a stereo capture, <see cref="Render(Span{float}, Span{float})"/>) with
+/// chunk after chunk.
 /// </summary>
 public sealed class ChannelModel
 {
     private const double LorentzianReach = 25;
 
     private readonly ChannelDamage _damage;
-    private readonly IEnumerator<double> _reversals;
+    private readonly IEnumerator<(double Time, double Weight)> _reversals;
     private readonly double _pw50;
     private readonly double _halfPw50Inverse;
     private readonly double _leak;
@@ -23,10 +26,15 @@ public sealed class ChannelModel
     private readonly float[] _boxcar;
     private readonly double _boxcarLength;
     private readonly double _noiseSigma;
+    private readonly double _drive;
+    private readonly double _quantumScale;
+    private readonly Random _ditherRandom;
+    private readonly Random _deadRandom;
+    private readonly double _deadSigma;
     private Biquad _deckLowPass;
     private readonly List<double> _window = new(64);
     private readonly List<double> _windowWeight = new(64);
-    private double _nextWeight = -1;
+    private double _nextWeight;
     private double _nextReversal;
     private bool _reversalsDone;
     private long _sampleIndex;
@@ -43,7 +51,17 @@ public sealed class ChannelModel
     {
         ArgumentNullException.ThrowIfNull(reversals);
         _damage = damage ?? throw new ArgumentNullException(nameof(damage));
-        _reversals = reversals.GetEnumerator();
+        if (damage.QuantizeBits is { } bits && bits is not (8 or 16 or 24))
+        {
+            throw new ArgumentOutOfRangeException(nameof(damage), bits, "QuantizeBits must be 8, 16 or 24.");
+        }
+
+        _reversals = WithPrintThrough(reversals, damage).GetEnumerator();
+        _drive = damage.ClipDriveDb is { } drive ? Math.Pow(10, drive / 20) : 1;
+        _quantumScale = damage.QuantizeBits is { } b ? Math.Pow(2, b - 1) : 0;
+        _ditherRandom = new Random(unchecked((damage.Seed * 7927) + 29));
+        _deadRandom = new Random(unchecked((damage.Seed * 7933) + 31));
+        _deadSigma = damage.DeadChannelNoiseDbfs is { } dead ? Math.Pow(10, dead / 20) : 0;
         _pw50 = damage.Pw50Microseconds * 1e-6;
         _halfPw50Inverse = 2 / _pw50;
         _leak = Math.Exp(-2 * Math.PI * 10.0 / damage.SampleRate);
@@ -56,7 +74,13 @@ public sealed class ChannelModel
         int count = Poisson(dropoutRandom, damage.RandomDropoutsPerMinute * totalSeconds / 60);
         for (int i = 0; i < count; i++)
         {
-            _dropouts.Add(new Dropout(dropoutRandom.NextDouble() * totalSeconds, 0.005 + 0.055 * dropoutRandom.NextDouble(), 0.9 + 0.1 * dropoutRandom.NextDouble()));
+            double start = dropoutRandom.NextDouble() * totalSeconds;
+            double duration = 0.005 + 0.055 * dropoutRandom.NextDouble();
+            double u = dropoutRandom.NextDouble();
+            double depth = damage.RandomDropoutDepthDb is var (shallowest, deepest)
+                ? 1 - Math.Pow(10, -(shallowest + ((deepest - shallowest) * u)) / 20)
+                : 0.9 + 0.1 * u;
+            _dropouts.Add(new Dropout(start, duration, depth));
         }
 
         _dropouts.Sort((a, b) => a.StartSeconds.CompareTo(b.StartSeconds));
@@ -74,6 +98,9 @@ public sealed class ChannelModel
     public long TotalSamples { get; }
 
     public double NoiseSigma => _noiseSigma;
+
+    /// <summary>1 for a mono capture, 2 for a stereo one.</summary>
+    public int Channels => _damage.Channels == CaptureChannels.Mono ? 1 : 2;
 
     /// <summary>The azimuth smear as a time of tape: w·tan θ / v.</summary>
     public static double AzimuthSmearSeconds(ChannelDamage damage)
@@ -95,17 +122,48 @@ public sealed class ChannelModel
     public double TapeTime(double t)
     {
         var d = _damage;
-        double wow = d.WowPercent / 100 / (2 * Math.PI * d.WowHz) * (1 - Math.Cos(2 * Math.PI * d.WowHz * t));
-        double flutter = d.FlutterPercent / 100 / (2 * Math.PI * d.FlutterHz) * (1 - Math.Cos(2 * Math.PI * d.FlutterHz * t));
+
+        // No wow or flutter adds exactly nothing, so their cosines are skipped.
+        double wow = d.WowPercent == 0 ? 0 : d.WowPercent / 100 / (2 * Math.PI * d.WowHz) * (1 - Math.Cos(2 * Math.PI * d.WowHz * t));
+        double flutter = d.FlutterPercent == 0 ? 0 : d.FlutterPercent / 100 / (2 * Math.PI * d.FlutterHz) * (1 - Math.Cos(2 * Math.PI * d.FlutterHz * t));
         return d.Speed * (t - d.MarginSeconds + wow + flutter);
     }
 
-    /// <summary>Fills <paramref name="output"/> with the next samples; returns how many (0 at the end).</summary>
+    /// <summary>
+    /// Fills both channels of a stereo capture with the next samples; returns how many (0 at the end). A dead
+    /// channel holds silence or the noise of a live input with nothing on it, through the same converter.
+    /// </summary>
+    public int Render(Span<float> left, Span<float> right)
+    {
+        if (left.Length != right.Length)
+        {
+            throw new ArgumentException("The two channels need buffers of one length.", nameof(right));
+        }
+
+        var signal = _damage.Channels == CaptureChannels.LeftDead ? right : left;
+        var other = _damage.Channels == CaptureChannels.LeftDead ? left : right;
+        int count = Render(signal);
+        if (_damage.Channels is CaptureChannels.Mono or CaptureChannels.Stereo)
+        {
+            signal[..count].CopyTo(other);
+            return count;
+        }
+
+        for (int i = 0; i < count; i++)
+        {
+            other[i] = (float)Convert(_deadSigma > 0 ? _deadSigma * Gaussian(_deadRandom) : 0);
+        }
+
+        return count;
+    }
+
+    /// <summary>Fills <paramref name="output"/> with the next samples of the signal; returns how many (0 at the end).</summary>
     public int Render(Span<float> output)
     {
         int count = (int)Math.Min(output.Length, TotalSamples - _sampleIndex);
         var d = _damage;
         double reach = LorentzianReach * _pw50;
+        bool lineOutput = d.Chain == ReadChain.LineOutput;
         for (int i = 0; i < count; i++)
         {
             double t = (double)(_sampleIndex + i) / d.SampleRate;
@@ -129,20 +187,27 @@ public sealed class ChannelModel
             // (leakily, as real playback amplifiers roll off below a few tens of hertz); the integral of a Lorentzian
             // over one sample step is exact in closed form, (PW50/2)·Δarctan(2t/PW50), so the line output stays right
             // even when a sample step is as long as the pulse.
+            // Each chain needs only its own sum (the arctangents are most of the work).
             double head = 0;
             double step = 0;
             for (int k = 0; k < _window.Count; k++)
             {
                 double x = (tape - _window[k]) * _halfPw50Inverse;
                 double weight = _windowWeight[k];
-                head += weight / (1 + x * x);
-                double arctan = Math.Atan(x);
-                step += weight * (arctan - _windowArctan[k]);
-                _windowArctan[k] = arctan;
+                if (lineOutput)
+                {
+                    double arctan = Math.Atan(x);
+                    step += weight * (arctan - _windowArctan[k]);
+                    _windowArctan[k] = arctan;
+                }
+                else
+                {
+                    head += weight / (1 + x * x);
+                }
             }
 
             _line = _line * _leak + step * (2 / Math.PI);
-            double value = d.Chain == ReadChain.LineOutput ? _line : head;
+            double value = lineOutput ? _line : head;
             output[i] = (float)AzimuthAverage(value);
         }
 
@@ -158,14 +223,91 @@ public sealed class ChannelModel
 
             if (_noiseSigma > 0)
             {
-                value += _noiseSigma * Gaussian();
+                value += _noiseSigma * Gaussian(_noiseRandom);
             }
 
-            output[i] = (float)value;
+            output[i] = (float)Convert(value);
         }
 
         _sampleIndex += count;
         return count;
+    }
+
+    /// <summary>The converter: drive and hard clipping at full scale where asked for, then rounding to its resolution, dithered where asked for.</summary>
+    private double Convert(double value)
+    {
+        if (_damage.ClipDriveDb is not null)
+        {
+            value = Math.Clamp(value * _drive, -1, 1);
+        }
+
+        if (_quantumScale > 0)
+        {
+            double dither = _damage.Dither ? _ditherRandom.NextDouble() - _ditherRandom.NextDouble() : 0;
+            value = Math.Clamp(Math.Round((value * _quantumScale) + dither), -_quantumScale, _quantumScale - 1) / _quantumScale;
+        }
+
+        return value;
+    }
+
+    /// <summary>
+    /// The reversals with their signs (alternating, the first one up), and where print-through is asked for, the
+    /// echoes' reversals one wrap earlier and later at the echo level, all in time order.
+    /// </summary>
+    private static IEnumerable<(double Time, double Weight)> WithPrintThrough(IEnumerable<double> reversals, ChannelDamage damage)
+    {
+        if (damage.PrintThroughDb is not { } echoDb)
+        {
+            return Signed(reversals, 0, 1);
+        }
+
+        double echo = Math.Pow(10, echoDb / 20);
+        return Merged([Signed(reversals, -damage.PrintThroughSeconds, echo), Signed(reversals, 0, 1), Signed(reversals, damage.PrintThroughSeconds, echo)]);
+    }
+
+    private static IEnumerable<(double Time, double Weight)> Signed(IEnumerable<double> reversals, double shift, double weight)
+    {
+        double sign = 1;
+        foreach (double r in reversals)
+        {
+            yield return (r + shift, sign * weight);
+            sign = -sign;
+        }
+    }
+
+    private static IEnumerable<(double Time, double Weight)> Merged(IEnumerable<(double Time, double Weight)>[] sources)
+    {
+        var heads = sources.Select(s => s.GetEnumerator()).ToArray();
+        try
+        {
+            var live = heads.Select(h => h.MoveNext()).ToArray();
+            while (true)
+            {
+                int next = -1;
+                for (int k = 0; k < heads.Length; k++)
+                {
+                    if (live[k] && (next < 0 || heads[k].Current.Time < heads[next].Current.Time))
+                    {
+                        next = k;
+                    }
+                }
+
+                if (next < 0)
+                {
+                    yield break;
+                }
+
+                yield return heads[next].Current;
+                live[next] = heads[next].MoveNext();
+            }
+        }
+        finally
+        {
+            foreach (var head in heads)
+            {
+                head.Dispose();
+            }
+        }
     }
 
     private double AzimuthAverage(double value)
@@ -213,11 +355,10 @@ public sealed class ChannelModel
 
     private void Advance()
     {
-        // Reversals alternate in sign; the first one (weight +1 after the initial −1) steps up.
-        _nextWeight = -_nextWeight;
+        // Reversals alternate in sign; the first one steps up.
         if (_reversals.MoveNext())
         {
-            _nextReversal = _reversals.Current;
+            (_nextReversal, _nextWeight) = _reversals.Current;
         }
         else
         {
@@ -225,11 +366,11 @@ public sealed class ChannelModel
         }
     }
 
-    private double Gaussian()
+    private static double Gaussian(Random random)
     {
         // Box–Muller; one value per call keeps the sequence simple and seed-stable.
-        double u1 = 1.0 - _noiseRandom.NextDouble();
-        double u2 = _noiseRandom.NextDouble();
+        double u1 = 1.0 - random.NextDouble();
+        double u2 = random.NextDouble();
         return Math.Sqrt(-2 * Math.Log(u1)) * Math.Cos(2 * Math.PI * u2);
     }
 

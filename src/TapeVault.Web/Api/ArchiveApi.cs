@@ -145,9 +145,21 @@ public static class ArchiveApi
             : Results.Problem(statusCode: StatusCodes.Status401Unauthorized, title: "The user name or password is wrong.");
     }
 
+    /// <summary>Whether this user may have an original's bytes (the download itself, or a bag that carries it).</summary>
+    public static bool MayDownloadOriginals(WebOptions web, ClaimsPrincipal user)
+    {
+        ArgumentNullException.ThrowIfNull(web);
+        ArgumentNullException.ThrowIfNull(user);
+        return web.ViewersMayDownloadOriginals || user.IsInRole(Roles.Curator);
+    }
+
+    /// <summary>Bags carry originals; catalogues do not.</summary>
+    public static bool MayDownloadExport(string kind, WebOptions web, ClaimsPrincipal user) =>
+        kind != "bag" || MayDownloadOriginals(web, user);
+
     private static async Task<IResult> DownloadOriginalAsync(int id, ArchiveDbContext db, ContentStore store, WebOptions web, ClaimsPrincipal user, CancellationToken c)
     {
-        if (!web.ViewersMayDownloadOriginals && !user.IsInRole(Roles.Curator))
+        if (!MayDownloadOriginals(web, user))
         {
             return Results.Problem(statusCode: StatusCodes.Status403Forbidden, title: "Only curators may download original captures here.");
         }
@@ -169,10 +181,19 @@ public static class ArchiveApi
         return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
     }
 
-    private static async Task<IResult> DownloadExportAsync(int id, ArchiveDbContext db, ContentStore store, CancellationToken c)
+    /// <summary>
+    /// A bag holds the originals byte for byte (it is the archive's preservation package, complete or not at all), so
+    /// where viewers may not download originals they may not download bags either; catalogues hold no originals.
+    /// </summary>
+    private static async Task<IResult> DownloadExportAsync(int id, ArchiveDbContext db, ContentStore store, WebOptions web, ClaimsPrincipal user, CancellationToken c)
     {
         var export = await db.Exports.AsNoTracking().FirstOrDefaultAsync(x => x.Id == id, c).ConfigureAwait(false)
             ?? throw new ArchiveNotFoundException($"There is no export {id}.");
+        if (!MayDownloadExport(export.Kind, web, user))
+        {
+            return Results.Problem(statusCode: StatusCodes.Status403Forbidden, title: "Bags hold the original captures; only curators may download them here.");
+        }
+
         if (!store.Exists(export.Sha256))
         {
             return Results.Problem(statusCode: StatusCodes.Status410Gone, title: "The export's file is missing from the content store; run a fixity audit.");

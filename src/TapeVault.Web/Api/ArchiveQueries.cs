@@ -14,7 +14,7 @@ using TapeVault.Core.Timeline;
 namespace TapeVault.Web.Api;
 
 /// <summary>The reads behind both the pages and the API, so both show the same thing.</summary>
-public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles, UserManager<IdentityUser> users, ContentStore store)
+public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles, UserManager<IdentityUser> users, ContentStore store)
 {
     private readonly Dictionary<string, TapeImage> imagesRead = new(StringComparer.Ordinal);
 
@@ -142,10 +142,20 @@ public sealed class ArchiveQueries(ArchiveDbContext db, ProfileCatalog profiles,
             throw new ArchiveNotFoundException($"There is no item {itemId}.");
         }
 
-        return await db.Events.AsNoTracking().Where(e => e.ItemId == itemId).OrderBy(e => e.Id)
+        var events = await db.Events.AsNoTracking().Where(e => e.ItemId == itemId).OrderBy(e => e.Id)
             .Select(e => new EventView(e.Id, e.EventType, e.OccurredUtc, e.Agent, e.ObjectType, e.ObjectId, e.Outcome, e.Detail))
             .ToListAsync(cancellation).ConfigureAwait(false);
+        return [.. events.Select(e => e with { Detail = HideServerPaths(e.Detail) })];
     }
+
+    /// <summary>
+    /// Events written by older releases named folders on the server (a published catalogue's, a missing file's);
+    /// the web shows none: an absolute path becomes "(a folder on the server)". The stored event is unchanged.
+    /// </summary>
+    public static string HideServerPaths(string detail) => AbsolutePath().Replace(detail, "(a folder on the server)");
+
+    [System.Text.RegularExpressions.GeneratedRegex(@"(?<![\w.~])(?:[A-Za-z]:\\|/)(?:[^\s'""/\\]+[/\\])+[^\s'""()]*", System.Text.RegularExpressions.RegexOptions.CultureInvariant)]
+    private static partial System.Text.RegularExpressions.Regex AbsolutePath();
 
     public async Task<IReadOnlyList<ImageSummary>> ImagesAsync(int itemId, CancellationToken cancellation = default)
     {

@@ -12,6 +12,16 @@ public abstract class ArchivePage : PageModel
 
     public string Agent => User.Identity?.Name ?? "anonymous";
 
+    /// <summary>Whether this user may have originals' bytes: their downloads and the bags that carry them.</summary>
+    public bool MayDownloadOriginals => Api.ArchiveApi.MayDownloadOriginals(HttpContext.RequestServices.GetRequiredService<WebOptions>(), User);
+
+    /// <summary>Whether this user may download an export (bags carry originals; catalogues do not).</summary>
+    public bool MayDownload(Api.ExportView export)
+    {
+        ArgumentNullException.ThrowIfNull(export);
+        return export.Kind != "bag" || MayDownloadOriginals;
+    }
+
     /// <summary>Runs a change; a refusal becomes a message on the page (and status 400/404/409) instead of an error page.</summary>
     protected async Task<IActionResult> TryAsync(Func<Task<IActionResult>> change, Func<Task> reload)
     {

@@ -2,6 +2,8 @@ using Microsoft.AspNetCore.Identity;
 using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive;
 using TapeVault.Archive.Accounts;
+using TapeVault.Archive.Events;
+using TapeVault.Archive.Fixity;
 using TapeVault.Archive.Seeding;
 using TapeVault.Archive.Storage;
 
@@ -24,11 +26,18 @@ public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions
             LogSwept(logger, swept);
         }
 
-        var known = (await db.Objects.AsNoTracking().Select(o => o.Sha256).ToListAsync(cancellationToken).ConfigureAwait(false)).ToHashSet(StringComparer.Ordinal);
-        int orphans = store.QuarantineOrphans(known);
-        if (orphans > 0)
+        // Files no row names are reported with their hash and left where they are: a missing row may be the damage.
+        var unrecorded = await FixityAudit.UnrecordedNamesAsync(db, store, cancellationToken).ConfigureAwait(false);
+        if (unrecorded.Count > 0)
         {
-            LogOrphans(logger, orphans);
+            foreach (var name in unrecorded)
+            {
+                LogUnrecorded(logger, store.RelativePath(name), name);
+            }
+
+            EventLog.Add(db, EventTypes.FixityCheck, EventLog.SystemAgent, "store", "objects", FixityAudit.Unrecorded,
+                $"At start, {unrecorded.Count} file(s) in the store were named by no object row and were left in place: {string.Join(", ", unrecorded.Select(store.RelativePath))}. Run a fixity audit to see which captures they concern.");
+            await db.SaveChangesAsync(cancellationToken).ConfigureAwait(false);
         }
 
         var admin = scope.ServiceProvider.GetRequiredService<UserAdmin>();
@@ -63,8 +72,8 @@ public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions
     [LoggerMessage(Level = LogLevel.Information, Message = "Removed {Count} temporary file(s) left by interrupted uploads.")]
     private static partial void LogSwept(ILogger logger, int count);
 
-    [LoggerMessage(Level = LogLevel.Warning, Message = "Moved {Count} stored file(s) that no record names (left by a step cut off before it was recorded) into the store's orphans folder.")]
-    private static partial void LogOrphans(ILogger logger, int count);
+    [LoggerMessage(Level = LogLevel.Warning, Message = "The store holds {File} (named SHA-256 {Sha256}), which no object row names; it was left in place. Run a fixity audit.")]
+    private static partial void LogUnrecorded(ILogger logger, string file, string sha256);
 
     [LoggerMessage(Level = LogLevel.Information, Message = "The archive was empty: the demo collection was made and its captures queued for decoding.")]
     private static partial void LogSeeded(ILogger logger);

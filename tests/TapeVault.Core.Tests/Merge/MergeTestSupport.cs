@@ -84,7 +84,7 @@ internal static class Readings
             Payload = [.. payload],
             StoredChecksum = stored,
             Status = status,
-            Confidence = status == BlockStatus.Clean ? BlockAssembler.PosteriorGivenMatch(logOk, checksum.FalseMatchProbability) : 0,
+            Confidence = status == BlockStatus.Clean ? BlockScorer.PosteriorGivenMatch(logOk, checksum.FalseMatchProbability) : 0,
             ByteMargins = [.. errors.Select(e => (float)Math.Clamp(1 - (4 * e), 0, 1))],
             ByteErrorOdds = [.. errors],
             ByteSeconds = [.. Enumerable.Range(0, payloadLength).Select(i => startSeconds + 0.05 + (0.0067 * i))],

@@ -1,0 +1,251 @@
+using System.Globalization;
+using System.Security.Cryptography;
+using System.Text;
+using Microsoft.EntityFrameworkCore;
+using TapeVault.Archive.Entities;
+
+namespace TapeVault.Archive.Events;
+
+/// <summary>The last link of the event chain: the newest event's id and SHA-256.</summary>
+public sealed record ChainHead(long EventId, string Sha256)
+{
+    /// <summary>How the head is written in bags, catalogues and by <c>verify</c>: "event 42 sha256:…".</summary>
+    public override string ToString() => string.Create(CultureInfo.InvariantCulture, $"event {EventId} sha256:{Sha256}");
+}
+
+/// <summary>The first event whose link does not hold, and why.</summary>
+public sealed record ChainBreak(long EventId, string Reason);
+
+/// <summary>What a walk along the chain found: how many events, the head, and the first broken link (null when none).</summary>
+public sealed record ChainReport(int Events, ChainHead? Head, ChainBreak? FirstBreak)
+{
+    public bool Intact => FirstBreak is null;
+}
+
+/// <summary>
+/// The tamper-evident event log (docs/event-chain.md): every event carries the SHA-256 of its canonical content, and
+/// that content includes the SHA-256 of the event before it. Editing, removing, inserting or reordering a row behind
+/// the archive's back breaks a link that <see cref="VerifyAsync"/> names; a copy of the head kept elsewhere (in every
+/// bag and catalogue) also shows when the newest events were cut off or the whole chain was recomputed.
+/// </summary>
+public static class EventChain
+{
+    /// <summary>The canonical form's version, written into it so that a later form cannot be confused with this one.</summary>
+    public const int Version = 1;
+
+    /// <summary>The event recorded when a database made before the chain had its existing events sealed.</summary>
+    public const string SealedEventType = "chain-sealed";
+
+    /// <summary>What the first event names as the one before it.</summary>
+    public static readonly string Genesis = new('0', 64);
+
+    /// <summary>
+    /// The canonical content of an event: UTF-8 JSON after RFC 8785 (JSON Canonicalization Scheme) for the values it
+    /// holds: members sorted by name, no white space, strings with only <c>"</c>, <c>\</c> and U+0000–U+001F escaped
+    /// (the short forms \b \f \n \r \t, otherwise \u00xx in lower-case hex), integers in decimal, null for no item,
+    /// and the time as "yyyy-MM-ddTHH:mm:ss.fffffffZ" in UTC.
+    /// </summary>
+    public static byte[] CanonicalBytes(ArchiveEvent e, string previousSha256)
+    {
+        ArgumentNullException.ThrowIfNull(e);
+        ArgumentNullException.ThrowIfNull(previousSha256);
+        var b = new StringBuilder(256 + e.Detail.Length);
+        b.Append("{\"agent\":");
+        AppendString(b, e.Agent);
+        b.Append(",\"detail\":");
+        AppendString(b, e.Detail);
+        b.Append(",\"eventType\":");
+        AppendString(b, e.EventType);
+        b.Append(CultureInfo.InvariantCulture, $",\"id\":{e.Id}");
+        b.Append(",\"itemId\":").Append(e.ItemId is { } item ? item.ToString(CultureInfo.InvariantCulture) : "null");
+        b.Append(",\"objectId\":");
+        AppendString(b, e.ObjectId);
+        b.Append(",\"objectType\":");
+        AppendString(b, e.ObjectType);
+        b.Append(",\"occurredUtc\":");
+        AppendString(b, e.OccurredUtc.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss.fffffff'Z'", CultureInfo.InvariantCulture));
+        b.Append(",\"outcome\":");
+        AppendString(b, e.Outcome);
+        b.Append(",\"previous\":");
+        AppendString(b, previousSha256);
+        b.Append(CultureInfo.InvariantCulture, $",\"version\":{Version}}}");
+        return new UTF8Encoding(encoderShouldEmitUTF8Identifier: false, throwOnInvalidBytes: true).GetBytes(b.ToString());
+    }
+
+    /// <summary>SHA-256 (FIPS 180-4) of the canonical content, lower-case hex.</summary>
+    public static string HashOf(ArchiveEvent e, string previousSha256) => Convert.ToHexStringLower(SHA256.HashData(CanonicalBytes(e, previousSha256)));
+
+    /// <summary>The newest event's id and hash; null for an empty log.</summary>
+    public static async Task<ChainHead?> HeadAsync(ArchiveDbContext db, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        var last = await db.Events.AsNoTracking().OrderByDescending(e => e.Id).Select(e => new { e.Id, e.Sha256 })
+            .FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        return last is null ? null : new ChainHead(last.Id, last.Sha256 ?? string.Empty);
+    }
+
+    /// <summary>Walks the whole log in id order, recomputing every link; stops at the first that does not hold.</summary>
+    public static async Task<ChainReport> VerifyAsync(ArchiveDbContext db, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        string previous = Genesis;
+        long previousId = 0;
+        int count = 0;
+        ChainHead? head = null;
+        await foreach (var e in db.Events.AsNoTracking().OrderBy(e => e.Id).AsAsyncEnumerable().WithCancellation(cancellation).ConfigureAwait(false))
+        {
+            count++;
+            string before = previousId == 0 ? "the start of the log" : $"event {previousId}";
+            string? problem = null;
+            if (e.Sha256 is null || e.PreviousSha256 is null)
+            {
+                problem = $"Event {e.Id} carries no place in the chain: it was added outside the archive.";
+            }
+            else if (!string.Equals(e.PreviousSha256, previous, StringComparison.Ordinal))
+            {
+                problem = $"Event {e.Id} names {e.PreviousSha256} as the event before it, but {before} has {previous}: an event was removed, inserted or reordered here.";
+            }
+            else if (!string.Equals(HashOf(e, previous), e.Sha256, StringComparison.Ordinal))
+            {
+                problem = $"Event {e.Id} ({e.EventType} {e.ObjectType} {e.ObjectId}, {e.OccurredUtc.UtcDateTime:yyyy-MM-dd HH:mm:ss} UTC) does not match its SHA-256 {e.Sha256}: it was edited after it was recorded.";
+            }
+
+            if (problem is not null)
+            {
+                return new ChainReport(count, head, new ChainBreak(e.Id, problem));
+            }
+
+            previous = e.Sha256!;
+            previousId = e.Id;
+            head = new ChainHead(e.Id, e.Sha256!);
+        }
+
+        return new ChainReport(count, head, null);
+    }
+
+    /// <summary>Reads a head as bags, catalogues and <c>verify</c> write it ("event 42 sha256:…"); null when it is not one.</summary>
+    public static ChainHead? ParseHead(string? text)
+    {
+        var parts = (text ?? string.Empty).Trim().Split(' ', StringSplitOptions.RemoveEmptyEntries);
+        return parts is ["event", var id, var hash]
+            && long.TryParse(id, NumberStyles.None, CultureInfo.InvariantCulture, out long eventId) && eventId > 0
+            && hash.StartsWith("sha256:", StringComparison.Ordinal) && hash[7..] is { Length: 64 } sha && sha.All(char.IsAsciiHexDigitLower)
+            ? new ChainHead(eventId, sha)
+            : null;
+    }
+
+    /// <summary>
+    /// Checks a head kept elsewhere (a bag's, a catalogue's, a noted one) against the log: the event must still be
+    /// there with that hash. Returns why not, or null when it is. Finds what the chain alone cannot: the newest events
+    /// cut off, or the chain recomputed after an edit.
+    /// </summary>
+    public static async Task<string?> CheckKeptHeadAsync(ArchiveDbContext db, ChainHead kept, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        ArgumentNullException.ThrowIfNull(kept);
+        var stored = await db.Events.AsNoTracking().Where(e => e.Id == kept.EventId).Select(e => new { e.Sha256 }).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        if (stored is null)
+        {
+            return $"The kept head {kept} names an event the log no longer holds: the history was cut off after it or rewritten.";
+        }
+
+        return stored.Sha256 == kept.Sha256
+            ? null
+            : $"Event {kept.EventId} now has SHA-256 {stored.Sha256}, not {kept.Sha256} as the kept head says: the history up to it was rewritten.";
+    }
+
+    /// <summary>
+    /// Gives the events of a database made before the chain their hashes (once: only when no event has one yet), then
+    /// records that it did so as an event of its own. Returns how many events were sealed.
+    /// </summary>
+    public static async Task<int> SealLegacyAsync(ArchiveDbContext db, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        if (await db.Events.AnyAsync(e => e.Sha256 != null, cancellation).ConfigureAwait(false)
+            || !await db.Events.AnyAsync(cancellation).ConfigureAwait(false))
+        {
+            return 0;
+        }
+
+        await using var transaction = await db.Database.BeginTransactionAsync(cancellation).ConfigureAwait(false);
+        var events = await db.Events.AsNoTracking().OrderBy(e => e.Id).ToListAsync(cancellation).ConfigureAwait(false);
+        if (events.Any(e => e.Sha256 is not null))
+        {
+            return 0;
+        }
+
+        string previous = Genesis;
+        foreach (var e in events)
+        {
+            string sha = HashOf(e, previous);
+            await db.Database.ExecuteSqlAsync(
+                $"UPDATE \"Events\" SET \"Sha256\" = {sha}, \"PreviousSha256\" = {previous} WHERE \"Id\" = {e.Id} AND \"Sha256\" IS NULL",
+                cancellation).ConfigureAwait(false);
+            previous = sha;
+        }
+
+        EventLog.Add(db, SealedEventType, EventLog.SystemAgent, "event-log", "chain", "success",
+            string.Create(CultureInfo.InvariantCulture,
+                $"The {events.Count} event(s) recorded before the log was chained (ids {events[0].Id} to {events[^1].Id}) were given their hashes; the chain's head was then event {events[^1].Id} sha256:{previous}."));
+        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+        await transaction.CommitAsync(cancellation).ConfigureAwait(false);
+        return events.Count;
+    }
+
+    /// <summary>
+    /// Gives the events about to be inserted their ids and links, after the newest stored event. The caller holds the
+    /// database's write lock (a transaction begun IMMEDIATE, as every EF Core transaction on SQLite is), so no other
+    /// writer can add an event between reading the head and inserting.
+    /// </summary>
+    internal static void Link(IReadOnlyList<ArchiveEvent> added, long headId, string? headSha256)
+    {
+        string previous = headSha256 ?? Genesis;
+        long id = headId;
+        foreach (var e in added)
+        {
+            e.Id = ++id;
+            e.Agent = Scrub(e.Agent);
+            e.EventType = Scrub(e.EventType);
+            e.ObjectType = Scrub(e.ObjectType);
+            e.ObjectId = Scrub(e.ObjectId);
+            e.Outcome = Scrub(e.Outcome);
+            e.Detail = Scrub(e.Detail);
+            e.OccurredUtc = StoredInstant(e.OccurredUtc);
+            e.PreviousSha256 = previous;
+            e.Sha256 = HashOf(e, previous);
+            previous = e.Sha256;
+        }
+    }
+
+    /// <summary>
+    /// The instant as the database gives it back: the column keeps UTC ticks to 1000-tick (0.1 ms) steps (EF Core's
+    /// DateTimeOffsetToBinaryConverter), so the hash is computed over what is read back, not over finer ticks.
+    /// </summary>
+    internal static DateTimeOffset StoredInstant(DateTimeOffset value) =>
+        new(value.UtcTicks - (value.UtcTicks % 1000), TimeSpan.Zero);
+
+    /// <summary>A string as SQLite gives it back: UTF-8 cannot hold a lone surrogate, which becomes U+FFFD on the way in.</summary>
+    private static string Scrub(string value) => Encoding.UTF8.GetString(Encoding.UTF8.GetBytes(value));
+
+    private static void AppendString(StringBuilder b, string value)
+    {
+        b.Append('"');
+        foreach (char c in value)
+        {
+            switch (c)
+            {
+                case '"': b.Append("\\\""); break;
+                case '\\': b.Append("\\\\"); break;
+                case '\b': b.Append("\\b"); break;
+                case '\f': b.Append("\\f"); break;
+                case '\n': b.Append("\\n"); break;
+                case '\r': b.Append("\\r"); break;
+                case '\t': b.Append("\\t"); break;
+                case < ' ': b.Append(CultureInfo.InvariantCulture, $"\\u{(int)c:x4}"); break;
+                default: b.Append(c); break;
+            }
+        }
+
+        b.Append('"');
+    }
+}

@@ -1,0 +1,355 @@
+using System.Collections.Immutable;
+using TapeVault.Core.Checksums;
+using TapeVault.Core.Formats;
+
+namespace TapeVault.Core.Blocks;
+
+/// <summary>What the scorer concluded about one block's bytes.</summary>
+public sealed record BlockScore
+{
+    /// <summary>Header bytes present (the layout's, or fewer in a block cut short); 0 for a stream.</summary>
+    public required int HeaderBytes { get; init; }
+
+    /// <summary>Index of the first byte after the payload.</summary>
+    public required int PayloadEnd { get; init; }
+
+    public required BlockStatus Status { get; init; }
+
+    public required BlockDoubts Doubts { get; init; }
+
+    /// <summary>Estimated probability that the payload is right, 0..1.</summary>
+    public required double Confidence { get; init; }
+
+    public required uint? StoredChecksum { get; init; }
+
+    public required ImmutableArray<float> HeaderErrorOdds { get; init; }
+
+    public required ImmutableArray<float> PayloadErrorOdds { get; init; }
+
+    public required ImmutableArray<float> ChecksumErrorOdds { get; init; }
+
+    public required ImmutableArray<float> PayloadMargins { get; init; }
+
+    public required int AmbiguousDecisions { get; init; }
+
+    public required double MinimumMargin { get; init; }
+
+    public required double MeanMargin { get; init; }
+
+    public required double SnrDb { get; init; }
+}
+
+/// <summary>
+/// Judges one block: whether its format's own evidence makes it clean, the chance its payload is right, and each
+/// byte's chance of being wrong.
+/// <para>
+/// Clean needs three things: the block began where the format marks a block start (lead-in or sync), its check value
+/// matches the bytes, and that match is evidence (the bytes are not all alike in a way that satisfies the check for
+/// free, and not so many bits were guessed that some guess was bound to satisfy it).
+/// </para>
+/// <para>
+/// Each decision's odds of being wrong come from <see cref="DecisionLog"/> (a Gaussian tail over the block's spread).
+/// That model is a guide to where errors lie, not a calibrated count of them: over thousands of decisions with
+/// heavy-tailed residuals it can put the chance that all of them are right near zero while the block is exact. The
+/// prior that a block is right is therefore an even mixture of that model and a plain one that counts only what is
+/// known to be doubtful (guessed decisions, framing doubts and bytes wrong in ways no margin shows, at
+/// <see cref="UnseenByteError"/> each). A block is then right given a holding check by Bayes, a wrong block passing
+/// with the check's false-match odds; a strong check dominates whenever the reading is plausible.
+/// </para>
+/// </summary>
+public sealed class BlockScorer
+{
+    /// <summary>
+    /// The least chance that a byte is wrong in a way its decisions do not show (a character framed one bit off, a
+    /// bit the margins misjudge). 2e-4 is the per-byte floor fitted for stream bytes on the recovery benchmark's fit
+    /// tapes (seeds 1–4; see <see cref="Merge.MergeOptions.StreamByteErrorFloor"/>), not on the tapes it reports.
+    /// </summary>
+    public const double UnseenByteError = 2e-4;
+
+    /// <summary>How many characters at an unproven start (or after a broken character) may have been framed on a false start bit.</summary>
+    public const int DoubtfulFrames = 2;
+
+    /// <summary>The least error odds of those characters.</summary>
+    public const float DoubtfulFrameError = 0.3f;
+
+    /// <summary>A failed block never claims more than even odds on its own: the only check of its bytes says something in them is wrong.</summary>
+    public const double MostFailedConfidence = 0.5;
+
+    /// <summary>Beyond these odds of a false match among all the ways to guess the guessed bits, a holding check proves nothing.</summary>
+    public const double MostGuessedMatchOdds = 0.01;
+
+    /// <summary>The weight of the plain prior (only known doubts) beside the decision model's: even, for want of knowing which is nearer.</summary>
+    private const double PlainPriorWeight = 0.5;
+
+    private readonly BlockLayout _layout;
+    private readonly BlockLayoutCodec _codec;
+    private readonly IBlockChecksum? _checksum;
+
+    public BlockScorer(BlockLayout layout)
+    {
+        ArgumentNullException.ThrowIfNull(layout);
+        _layout = layout;
+        _codec = BlockLayoutCodec.For(layout);
+        _checksum = _codec.Checksum;
+    }
+
+    /// <summary>Bytes of check value the layout puts after the payload (0 without a checksum).</summary>
+    public int ChecksumBytes => _checksum?.Width ?? 0;
+
+    /// <summary>
+    /// Scores the block <paramref name="bytes"/> as read. Byte b was made by the decisions from
+    /// <paramref name="byteFirstDecision"/>[b] up to the next byte's first (the last byte's run to the end of
+    /// <paramref name="decisions"/>); <paramref name="byteFramingDoubt"/>[b] is the chance, beyond its decisions, that
+    /// it was framed in the wrong place. <paramref name="guessedDecisions"/> decisions were guesses (erased bits).
+    /// </summary>
+    public BlockScore Score(
+        ReadOnlySpan<byte> bytes,
+        ReadOnlySpan<int> byteFirstDecision,
+        ReadOnlySpan<float> byteFramingDoubt,
+        DecisionLog decisions,
+        int framingErrors,
+        int guessedDecisions,
+        BlockStartEvidence evidence,
+        bool truncated)
+    {
+        ArgumentNullException.ThrowIfNull(decisions);
+        int byteCount = bytes.Length;
+        int headerBytes = _layout.IsStream ? 0 : Math.Min(_layout.HeaderBytes, byteCount);
+        int checksumBytes = ChecksumBytes;
+        int payloadEnd = truncated ? byteCount : Math.Max(headerBytes, byteCount - checksumBytes);
+        bool startProven = evidence != BlockStartEvidence.None;
+
+        // Per byte: log P(right) under the decision model, and under the plain one.
+        var (sigma, typicalScale) = decisions.NoiseEstimate();
+        var logModel = new double[byteCount];
+        var logPlain = new double[byteCount];
+        var byteMargin = new float[byteCount];
+        int ambiguous = 0;
+        double marginSum = 0;
+        double minimumMargin = 1;
+        for (int b = 0; b < byteCount; b++)
+        {
+            int first = byteFirstDecision[b];
+            int last = b + 1 < byteCount ? byteFirstDecision[b + 1] : decisions.Count;
+            double logOk = 0;
+            int guesses = 0;
+            float minMargin = 1;
+            for (int i = first; i < last; i++)
+            {
+                logOk += decisions.LogRightOdds(i, sigma);
+                float m = decisions.Margin(i);
+                minMargin = Math.Min(minMargin, m);
+                marginSum += m;
+                if (m < DecisionLog.AmbiguousMargin)
+                {
+                    ambiguous++;
+                }
+
+                if (m <= 0)
+                {
+                    guesses++;
+                }
+            }
+
+            double framing = Math.Log(1 - Math.Clamp(byteFramingDoubt[b], 0f, 0.99f));
+            if (!startProven && b < DoubtfulFrames)
+            {
+                // Nothing marked where the block began: its first characters may have been framed on a false start.
+                framing = Math.Min(framing, Math.Log(1 - DoubtfulFrameError));
+            }
+
+            logModel[b] = logOk + framing;
+            logPlain[b] = (guesses * -Math.Log(2)) + framing + Math.Log(1 - UnseenByteError);
+            byteMargin[b] = minMargin;
+            minimumMargin = Math.Min(minimumMargin, minMargin);
+        }
+
+        var doubts = BlockDoubts.None;
+
+        // A block aligned on its own characters is a stream's way to start; a block of a checked format starts only
+        // where the format marks one, whatever its bytes say.
+        if (!startProven || (evidence == BlockStartEvidence.SelfAligned && _checksum is not null))
+        {
+            doubts |= BlockDoubts.NoStartEvidence;
+        }
+
+        if (framingErrors > 0)
+        {
+            doubts |= BlockDoubts.FramingErrors;
+        }
+
+        if (truncated)
+        {
+            doubts |= BlockDoubts.CutShort;
+        }
+
+        BlockStatus status;
+        uint? stored = null;
+        double confidence;
+        if (_checksum is null)
+        {
+            // Nothing checks these bytes: the payload is right as far as every byte is, none better than the bytes
+            // no margin vouches for. A block cut short has lost the rest of its payload.
+            status = truncated ? BlockStatus.Failed : BlockStatus.Unchecked;
+            confidence = truncated ? 0 : Math.Exp(SumFloored(logModel, headerBytes, payloadEnd));
+        }
+        else if (truncated)
+        {
+            status = BlockStatus.Failed;
+            confidence = 0;
+        }
+        else
+        {
+            int payloadLength = payloadEnd - headerBytes;
+            stored = _codec.ReadStoredCheck(bytes, payloadLength);
+            bool match = _codec.ComputeCheck(bytes, payloadLength) == stored;
+            if (!match)
+            {
+                doubts |= BlockDoubts.ChecksumMismatch;
+            }
+            else if (_codec.CoveredAllAlike(bytes, payloadLength))
+            {
+                doubts |= BlockDoubts.AllAlikeCheck;
+            }
+
+            if (match && Math.ScaleB(_checksum.FalseMatchProbability, guessedDecisions) > MostGuessedMatchOdds)
+            {
+                // Erasures guessed as zeros can make a checksum's own codeword: an unproven reading, left to the merge.
+                doubts |= BlockDoubts.TooManyGuesses;
+            }
+
+            const BlockDoubts Disqualifying = BlockDoubts.NoStartEvidence | BlockDoubts.ChecksumMismatch | BlockDoubts.AllAlikeCheck | BlockDoubts.TooManyGuesses;
+            status = match && (doubts & Disqualifying) == 0 ? BlockStatus.Clean : BlockStatus.Failed;
+
+            if (match && (doubts & BlockDoubts.AllAlikeCheck) == 0)
+            {
+                double logPrior = LogMix(Sum(logModel, 0, byteCount), Sum(logPlain, 0, byteCount));
+                confidence = PosteriorGivenMatch(logPrior, _checksum.FalseMatchProbability);
+            }
+            else if (match)
+            {
+                // The check proves nothing here: the bytes are as good as an unchecked reading of them.
+                confidence = Math.Exp(SumFloored(logModel, 0, payloadEnd));
+            }
+            else
+            {
+                // The payload is right only under its own header (a payload under a wrong block number or name is a
+                // wrong block), so given the mismatch, the error must lie in the check bytes alone.
+                confidence = PayloadRightGivenMismatch(SumFloored(logModel, 0, payloadEnd), SumFloored(logModel, payloadEnd, byteCount));
+            }
+
+            // A failed block whose (damaged) header claims no payload has nothing that could be right.
+            if (status != BlockStatus.Clean && payloadEnd == headerBytes)
+            {
+                confidence = 0;
+            }
+        }
+
+        if (status == BlockStatus.Clean && framingErrors > 0)
+        {
+            // A checksum can hold over a framing slip only by chance; keep the block but trust it less.
+            confidence *= 0.5;
+        }
+
+        if (status == BlockStatus.Failed)
+        {
+            confidence = Math.Min(confidence, MostFailedConfidence);
+        }
+
+        confidence = Math.Clamp(confidence, 0, 1);
+
+        // Per-byte odds as the decisions give them, before any check (the merge votes with them where no check
+        // held); for bytes nothing checks, no better than the floor of what margins cannot see.
+        bool unchecked_ = _checksum is null;
+        float Odds(int b)
+        {
+            double wrong = 1 - Math.Exp(logModel[b]);
+            return (float)(unchecked_ ? Math.Max(wrong, UnseenByteError) : wrong);
+        }
+
+        var headerOdds = new float[headerBytes];
+        for (int b = 0; b < headerBytes; b++)
+        {
+            headerOdds[b] = Odds(b);
+        }
+
+        var payloadOdds = new float[payloadEnd - headerBytes];
+        for (int b = headerBytes; b < payloadEnd; b++)
+        {
+            payloadOdds[b - headerBytes] = Odds(b);
+        }
+
+        var checksumOdds = new float[stored is null ? 0 : byteCount - payloadEnd];
+        for (int b = 0; b < checksumOdds.Length; b++)
+        {
+            checksumOdds[b] = Odds(payloadEnd + b);
+        }
+
+        return new BlockScore
+        {
+            HeaderBytes = headerBytes,
+            PayloadEnd = payloadEnd,
+            Status = status,
+            Doubts = doubts,
+            Confidence = confidence,
+            StoredChecksum = stored,
+            HeaderErrorOdds = ImmutableArray.Create(headerOdds),
+            PayloadErrorOdds = ImmutableArray.Create(payloadOdds),
+            ChecksumErrorOdds = ImmutableArray.Create(checksumOdds),
+            PayloadMargins = ImmutableArray.Create(byteMargin.AsSpan(headerBytes, payloadEnd - headerBytes)),
+            AmbiguousDecisions = ambiguous,
+            MinimumMargin = decisions.Count > 0 ? minimumMargin : 0,
+            MeanMargin = decisions.Count > 0 ? marginSum / decisions.Count : 0,
+            SnrDb = 20 * Math.Log10(typicalScale / sigma),
+        };
+    }
+
+    /// <summary>P(right | checksum holds) by Bayes: a wrong block passes with the checksum's false-match odds.</summary>
+    public static double PosteriorGivenMatch(double logAllOk, double falseMatch)
+    {
+        double ok = Math.Exp(logAllOk);
+        return ok / (ok + ((1 - ok) * falseMatch));
+    }
+
+    /// <summary>P(block right | checksum fails), <paramref name="logPayloadOk"/> over the bytes that must be right: the error must then lie in the rest (the check bytes).</summary>
+    public static double PayloadRightGivenMismatch(double logPayloadOk, double logRestOk)
+    {
+        double payloadOk = Math.Exp(logPayloadOk);
+        double restOk = Math.Exp(logRestOk);
+        double anyWrong = 1 - (payloadOk * restOk);
+        return anyWrong <= 1e-12 ? 0 : payloadOk * (1 - restOk) / anyWrong;
+    }
+
+    /// <summary>log(w·e^plain + (1 − w)·e^model), the even mixture of the two priors, without underflow.</summary>
+    private static double LogMix(double logModel, double logPlain)
+    {
+        double a = Math.Log(1 - PlainPriorWeight) + logModel;
+        double b = Math.Log(PlainPriorWeight) + logPlain;
+        double max = Math.Max(a, b);
+        return max + Math.Log(Math.Exp(a - max) + Math.Exp(b - max));
+    }
+
+    private static double Sum(double[] values, int from, int to)
+    {
+        double sum = 0;
+        for (int i = from; i < to; i++)
+        {
+            sum += values[i];
+        }
+
+        return sum;
+    }
+
+    /// <summary>Σ log P(right) over bytes from..to, each byte no surer than <see cref="UnseenByteError"/> allows.</summary>
+    private static double SumFloored(double[] logRight, int from, int to)
+    {
+        double ceiling = Math.Log(1 - UnseenByteError);
+        double sum = 0;
+        for (int i = from; i < to; i++)
+        {
+            sum += Math.Min(logRight[i], ceiling);
+        }
+
+        return sum;
+    }
+}

@@ -1,0 +1,51 @@
+namespace TapeVault.Core.Blocks;
+
+/// <summary>What the signal showed where a block began: the format's own marks of a block start, or none.</summary>
+public enum BlockStartEvidence
+{
+    /// <summary>Nothing marked the start (a decoder resumed after a loss of signal at the first character it found).</summary>
+    None,
+
+    /// <summary>A lead-in of the length the profile asks for.</summary>
+    LeadIn,
+
+    /// <summary>The profile's sync pattern or sync bytes, without a lead-in before them.</summary>
+    Sync,
+
+    /// <summary>A lead-in followed by the sync.</summary>
+    LeadInAndSync,
+
+    /// <summary>
+    /// No lead-in or sync (a stream taken up mid-way), but the decoder checked its framing against the characters
+    /// themselves and put what doubt remains into each byte's own framing odds; the block stage adds none of its own.
+    /// </summary>
+    SelfAligned,
+}
+
+/// <summary>Why a block is not clean, or what lowers the trust in it; several may hold at once.</summary>
+[Flags]
+public enum BlockDoubts
+{
+    None = 0,
+
+    /// <summary>The block began where nothing marked a block start: it may be a stretch of noise or the middle of another block.</summary>
+    NoStartEvidence = 1,
+
+    /// <summary>The block ended before its layout said it would (dropout or lost sync).</summary>
+    CutShort = 2,
+
+    /// <summary>The check value does not match the bytes.</summary>
+    ChecksumMismatch = 4,
+
+    /// <summary>
+    /// The check holds, but over bytes that give it for free: every covered byte and every check byte alike (a zero-init
+    /// CRC, xor8 or sum8 over zeros), or nothing covered at all. A stuck line or a steady tone reads as such a run.
+    /// </summary>
+    AllAlikeCheck = 8,
+
+    /// <summary>So many bits were guessed that the check's false-match odds over all the ways to guess them prove nothing.</summary>
+    TooManyGuesses = 16,
+
+    /// <summary>Some byte's framing failed (a stop bit or marker where none should be); the check holds only by chance over a slip.</summary>
+    FramingErrors = 32,
+}

@@ -1,0 +1,167 @@
+using System.Runtime.CompilerServices;
+
+namespace TapeVault.Core.Detection;
+
+/// <summary>
+/// The tone detector of an FSK setting: two sliding quadrature correlators, one bit long, measure the energy at the
+/// mark and space tones; their normalised difference D = (Em − Es)/(Em + Es) is the soft decision (the non-coherent
+/// binary FSK detector of the textbooks, e.g. Proakis, Digital Communications). It also says whether there is a
+/// carrier at all.
+/// <para>
+/// Em and Es are each divided by that tone's own level, learnt from the windows that hold one tone alone, so that a
+/// capture with high-frequency loss (the mark tone weaker than the space tone) still has D cross zero half a window
+/// after each change of tone, where the bit timing expects it. Which windows may teach a level is the caller's
+/// call (it knows whether the recording is under way): see <see cref="Next"/>.
+/// </para>
+/// </summary>
+public struct ToneDetector
+{
+    /// <summary>|raw D| above this: the correlator window holds (almost) only one tone, whose level it then shows.</summary>
+    private const double PureTone = 0.9;
+
+    /// <summary>The largest energy ratio between the tones that is rebalanced: 16, i.e. 12 dB.</summary>
+    private const double MaximumToneImbalance = 16;
+
+    /// <summary>
+    /// Tone amplitude (full scale 1) below which a window holds no carrier, whatever the recent level: 1e-4, about
+    /// −80 dBFS, the same as the detector bank's hysteresis floor against digital silence. A converter's dither or idle
+    /// noise (±1 LSB of 16 bits is 3e-5) would otherwise become carrier once the running level has fallen to it, and
+    /// ten minutes of an idle input were read as one long block of noise.
+    /// </summary>
+    private const double SilenceAmplitude = 1e-4;
+
+    private readonly float[] _markI, _markQ, _spaceI, _spaceQ;
+    private readonly double _markStepCos, _markStepSin, _spaceStepCos, _spaceStepSin;
+    private readonly double _silenceEnergy;
+    private readonly double _referenceGain;
+    private readonly double _levelGain;
+    private int _ring;
+    private double _markCos, _markSin, _spaceCos, _spaceSin;
+    private double _sumMarkI, _sumMarkQ, _sumSpaceI, _sumSpaceQ;
+    private double _carrierReference;
+    private double _markLevel;
+    private double _spaceLevel;
+    private double _markLevelSamples;
+    private double _spaceLevelSamples;
+
+    public ToneDetector(double markHz, double spaceHz, double baud, double sampleRate)
+    {
+        Window = Math.Max(2, (int)Math.Round(sampleRate / baud));
+        _markI = new float[Window];
+        _markQ = new float[Window];
+        _spaceI = new float[Window];
+        _spaceQ = new float[Window];
+        _markCos = 1;
+        _spaceCos = 1;
+
+        // A tone of amplitude A gives a correlator sum of about A·W/2 over a window of W samples.
+        _silenceEnergy = Math.Pow(0.5 * SilenceAmplitude * Window, 2);
+        (_markStepSin, _markStepCos) = Math.SinCos(2 * Math.PI * markHz / sampleRate);
+        (_spaceStepSin, _spaceStepCos) = Math.SinCos(2 * Math.PI * spaceHz / sampleRate);
+
+        // The carrier reference follows a quarter of a second; the tone levels about two bits' worth of windows that
+        // hold one tone alone.
+        _referenceGain = 1.0 / (0.25 * sampleRate);
+        _levelGain = 1.0 / (2.0 * Window);
+    }
+
+    /// <summary>The correlator window, in samples: one bit at nominal speed.</summary>
+    public int Window { get; }
+
+    /// <summary>Whether the last window held a carrier (its energy is neither silence nor a dropout's).</summary>
+    public bool Carrier { get; private set; }
+
+    /// <summary>
+    /// Takes one sample and returns D for the window that ends with it (0 without carrier). A window that holds mark
+    /// alone teaches the mark level when <paramref name="learnMark"/>, one that holds space alone the space level when
+    /// <paramref name="learnSpace"/>: noise before a lead-in can look like either tone, so only windows of the
+    /// recording may teach.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public float Next(float x, bool learnMark, bool learnSpace)
+    {
+        float mi = (float)(x * _markCos);
+        float mq = (float)(x * _markSin);
+        float si = (float)(x * _spaceCos);
+        float sq = (float)(x * _spaceSin);
+
+        // Rotate the two local oscillators by one sample (a complex multiply, no trigonometry per sample).
+        (_markCos, _markSin) = (_markCos * _markStepCos - _markSin * _markStepSin, _markSin * _markStepCos + _markCos * _markStepSin);
+        (_spaceCos, _spaceSin) = (_spaceCos * _spaceStepCos - _spaceSin * _spaceStepSin, _spaceSin * _spaceStepCos + _spaceCos * _spaceStepSin);
+        _sumMarkI += mi - _markI[_ring];
+        _sumMarkQ += mq - _markQ[_ring];
+        _sumSpaceI += si - _spaceI[_ring];
+        _sumSpaceQ += sq - _spaceQ[_ring];
+        _markI[_ring] = mi;
+        _markQ[_ring] = mq;
+        _spaceI[_ring] = si;
+        _spaceQ[_ring] = sq;
+        _ring = _ring + 1 == Window ? 0 : _ring + 1;
+
+        double mark = _sumMarkI * _sumMarkI + _sumMarkQ * _sumMarkQ;
+        double space = _sumSpaceI * _sumSpaceI + _sumSpaceQ * _sumSpaceQ;
+        double total = mark + space;
+
+        // Below 2 % of the usual carrier energy there is no signal to decide on: a dropout, or silence.
+        Carrier = total > 0.02 * _carrierReference && total > _silenceEnergy;
+        if (!Carrier)
+        {
+            return 0;
+        }
+
+        _carrierReference += (total - _carrierReference) * _referenceGain;
+        if (_carrierReference < total * 0.05)
+        {
+            _carrierReference = total * 0.05;
+        }
+
+        // Each tone is measured against its own level, learnt where the window holds that tone alone (there the
+        // raw D is near ±1, whatever the balance). High-frequency loss (azimuth, worn heads, a deck's low-pass)
+        // makes the mark tone weaker than the space tone; unweighted, D would then cross zero early at every fall to
+        // space and late at every rise to mark, and the bit timing, which hangs on those crossings, would slip.
+        // A level starts as the plain mean of what has been seen (the first windows that pass the test are the least
+        // pure ones, at the edge of a lone bit) and becomes a running average once it has enough behind it.
+        double raw = (mark - space) / total;
+        if (raw > PureTone && learnMark)
+        {
+            _markLevelSamples++;
+            _markLevel += (mark - _markLevel) * Math.Max(_levelGain, 1.0 / _markLevelSamples);
+        }
+        else if (raw < -PureTone && learnSpace)
+        {
+            _spaceLevelSamples++;
+            _spaceLevel += (space - _spaceLevel) * Math.Max(_levelGain, 1.0 / _spaceLevelSamples);
+        }
+
+        if (_markLevel <= 0 || _spaceLevel <= 0)
+        {
+            // Until both tones have been heard alone, assume they are balanced.
+            return (float)raw;
+        }
+
+        // Rebalancing is bounded: past 12 dB between the tones (more than any deck's high-frequency loss, common
+        // practice) the weaker tone is mostly gone, and lifting it further would lift noise into confident decisions.
+        double balance = Math.Clamp(_markLevel / _spaceLevel, 1.0 / MaximumToneImbalance, MaximumToneImbalance);
+        double m = mark / balance;
+        double s = space;
+        return (float)((m - s) / (m + s));
+    }
+
+    /// <summary>A new recording learns its own tone balance: the space level starts again from the next pure window.</summary>
+    public void ForgetSpaceLevel()
+    {
+        _spaceLevel = 0;
+        _spaceLevelSamples = 0;
+    }
+
+    /// <summary>Rounding makes a rotated phasor drift off the unit circle: pull it back (once a chunk is enough).</summary>
+    public void Renormalise()
+    {
+        double markNorm = 1 / Math.Sqrt(_markCos * _markCos + _markSin * _markSin);
+        double spaceNorm = 1 / Math.Sqrt(_spaceCos * _spaceCos + _spaceSin * _spaceSin);
+        _markCos *= markNorm;
+        _markSin *= markNorm;
+        _spaceCos *= spaceNorm;
+        _spaceSin *= spaceNorm;
+    }
+}

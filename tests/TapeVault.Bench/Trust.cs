@@ -1,0 +1,438 @@
+using System.Collections.Concurrent;
+using System.Diagnostics;
+using System.Globalization;
+using System.Text;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Checksums;
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Image;
+using TapeVault.Core.Merge;
+using TapeVault.Core.Synthesis;
+
+namespace TapeVault.Bench;
+
+/// <summary>
+/// Trust on damage nobody tuned for. Each tape (files drawn from its seed) is written three times, each pass from one
+/// of three sources drawn from the seed: our channel model with damage drawn from wide ranges
+/// (<see cref="RandomDamage"/>); the same followed by a SoX effect chain drawn from the seed; or, for FSK profiles,
+/// minimodem's own FSK (outside reference: minimodem, with SoX's tones between blocks, white noise and effect chain).
+/// Every pass is decoded with the default bank and the three are merged. Ground truth is what was written.
+/// Counted per profile: (a) readings marked clean whose header and payload are not a written block's, at every
+/// detector setting (not only the best); (b) the expected calibration error (10 equal bins) of every reading's
+/// confidence, of each pass's best reading per position, and of the merged positions; (c) for merged images that are
+/// byte-exact with every position clean and read alike by two captures or more, the image's overall confidence.
+/// For a stream (no checksum, so nothing is ever clean) a reading is right when all its bytes are the written bytes
+/// where they line up best; (a) counts stream readings at confidence 0.99 or more that are wrong instead.
+/// </summary>
+public static class Trust
+{
+    public const int PassesPerTape = 3;
+
+    /// <summary>The stream confidence above which a wrong stream reading counts with the wrong clean ones.</summary>
+    public const double StreamConfidentWrong = 0.99;
+
+    private static long s_makeTicks, s_decodeTicks, s_mergeTicks;
+
+    private sealed record Subject(string Family, FormatProfile Profile);
+
+    private sealed record Reading(double Confidence, bool Right, bool WrongClean, bool Clean = false);
+
+    private sealed record WrongExample(string Profile, int Seed, int Pass, string Source, string Setting, BlockStatus Status, double Confidence, int PayloadBytes, string Damage);
+
+    /// <summary>What one tape gave: readings per source, positions, and its image's verdict.</summary>
+    private sealed record TapeOutcome(
+        Subject Subject,
+        int Seed,
+        int WrittenUnits,
+        int WrittenBlocks,
+        Dictionary<string, List<Reading>> ReadingsBySource,
+        List<Reading> Best,
+        List<Reading> Positions,
+        double? ExactImageConfidence,
+        List<WrongExample> Examples,
+        string? Error);
+
+    public static int Run(string work, string[] args)
+    {
+        int blocks = 300, firstSeed = 1, jobs = 2;
+        double minutes = double.PositiveInfinity;
+        string? only = null;
+        for (int i = 0; i + 1 < args.Length; i += 2)
+        {
+            switch (args[i])
+            {
+                case "--blocks": blocks = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
+                case "--first-seed": firstSeed = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
+                case "--jobs": jobs = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
+                case "--profile": only = args[i + 1]; break;
+                case "--minutes": minutes = double.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
+                default: throw new ArgumentException($"Unknown option {args[i]}; trust takes --blocks N --first-seed S --jobs J --profile ID --minutes M.");
+            }
+        }
+
+        var stopwatch = Stopwatch.StartNew();
+        string folder = Path.Combine(work, "trust");
+        Directory.CreateDirectory(folder);
+        Subject[] subjects =
+        [
+            new("pulse-width", TrustProfiles.PulseBlocks),
+            new("fsk", TrustProfiles.ToneBlocks),
+            new("fsk", ProfileCatalog.BuiltIn.Get("kcs-300")),
+            new("fsk", ProfileCatalog.BuiltIn.Get("kcs-1200")),
+            new("biphase", ProfileCatalog.BuiltIn.Get("biphase-1200")),
+        ];
+
+        // Block formats: tapes from the first seed until the written blocks reach the count asked for. Streams: one
+        // tape per 200 blocks asked for (each holds a few hundred bytes), at least two.
+        var tapes = new List<(Subject Subject, int Seed, int Index)>();
+        foreach (var subject in subjects.Where(s => only is null || s.Profile.Id == only))
+        {
+            if (subject.Profile.Layout.IsStream)
+            {
+                int streams = Math.Max(2, blocks / 200);
+                for (int s = 0; s < streams; s++)
+                {
+                    tapes.Add((subject, firstSeed + s, s * blocks / streams));
+                }
+
+                continue;
+            }
+
+            int written = 0;
+            for (int seed = firstSeed; written < blocks; seed++)
+            {
+                tapes.Add((subject, seed, written));
+                written += BlockWriter.Blocks(subject.Profile, Files(subject.Profile, seed)).Count;
+            }
+        }
+
+        Console.WriteLine($"Trust on damage nobody tuned for: tapes of seeds {firstSeed} onwards, {PassesPerTape} passes each, {jobs} at a time, {tapes.Count} tapes{(double.IsFinite(minutes) ? $", no new tape after {minutes} min" : string.Empty)}.");
+        var outcomes = new ConcurrentBag<TapeOutcome>();
+        int done = 0, skipped = 0;
+        var cpu = Process.GetCurrentProcess().TotalProcessorTime;
+
+        // Every profile advances together (tapes in the order of the blocks written before them), so that a run cut
+        // short by --minutes has measured each profile on its first seeds.
+        Parallel.ForEach(
+            tapes.OrderBy(w => w.Index).ThenBy(w => w.Subject.Profile.Id, StringComparer.Ordinal),
+            new ParallelOptions { MaxDegreeOfParallelism = jobs },
+            w =>
+            {
+                if (stopwatch.Elapsed.TotalMinutes > minutes)
+                {
+                    Interlocked.Increment(ref skipped);
+                    return;
+                }
+
+                outcomes.Add(Tape(folder, w.Subject, w.Seed));
+                int n = Interlocked.Increment(ref done);
+                if (n % 50 == 0)
+                {
+                    Console.Error.WriteLine($"  {n}/{tapes.Count} tapes, {stopwatch.Elapsed.TotalSeconds:0} s");
+                }
+            });
+
+        if (skipped > 0)
+        {
+            Console.WriteLine($"Time limit reached: {skipped} of {tapes.Count} tapes not measured.");
+        }
+
+        Print([.. outcomes]);
+        Console.WriteLine($"This process's CPU time {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:0} s (SoX and minimodem run as processes of their own, not counted).");
+        Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s wall; wall time summed over workers: making captures {Stopwatch.GetElapsedTime(0, s_makeTicks).TotalSeconds:0} s, decoding {Stopwatch.GetElapsedTime(0, s_decodeTicks).TotalSeconds:0} s, merging {Stopwatch.GetElapsedTime(0, s_mergeTicks).TotalSeconds:0} s.");
+        Console.WriteLine();
+        return 0;
+    }
+
+    /// <summary>
+    /// A tape's files, of random bytes, runs of zeros, one repeated byte or text, so that blocks of all-equal bytes
+    /// (which some checksums pass whatever their length) are common. A block format gets 8–24 files, most of them
+    /// short (many short blocks make the most of the capture time) and a few empty or a block or two long; a stream
+    /// gets one to three files of a few hundred bytes.
+    /// </summary>
+    public static List<TapeFile> Files(FormatProfile profile, int seed)
+    {
+        var rng = new Random(unchecked((seed * 1_000_003) + StableHash(profile.Id)));
+        bool stream = profile.Layout.IsStream;
+        int blockBytes = Math.Min(BlockWriter.DefaultPayloadBytes, profile.Layout.MaximumPayloadBytes);
+        int count = stream ? 1 + rng.Next(3) : 8 + rng.Next(17);
+        var files = new List<TapeFile>();
+        for (int f = 0; f < count; f++)
+        {
+            double kind = rng.NextDouble();
+            int length = stream ? 1 + rng.Next(profile.Fsk is { Baud: < 600 } ? 150 : 500)
+                : kind < 0.04 ? 0
+                : kind < 0.85 ? 1 + rng.Next(40)
+                : 1 + rng.Next(2 * blockBytes);
+            var content = new byte[length];
+            int i = 0;
+            while (i < length)
+            {
+                int run = Math.Min(length - i, 1 + rng.Next(80));
+                var span = content.AsSpan(i, run);
+                switch (rng.Next(4))
+                {
+                    case 0: rng.NextBytes(span); break;
+                    case 1: span.Clear(); break;
+                    case 2: span.Fill((byte)rng.Next(256)); break;
+                    default:
+                        for (int k = 0; k < run; k++)
+                        {
+                            span[k] = (byte)"archive tape block lead-in 0123456789 "[rng.Next(38)];
+                        }
+
+                        break;
+                }
+
+                i += run;
+            }
+
+            files.Add(new TapeFile($"F{seed % 1000:D3}{f}", content));
+        }
+
+        return files;
+    }
+
+    private static int StableHash(string text)
+    {
+        // FNV-1a: a hash that is the same in every process (string.GetHashCode is not).
+        uint hash = 2166136261;
+        foreach (char c in text)
+        {
+            hash = unchecked((hash ^ c) * 16777619);
+        }
+
+        return (int)(hash & 0x7FFFFFFF);
+    }
+
+    private static TapeOutcome Tape(string folder, Subject subject, int seed)
+    {
+        var profile = subject.Profile;
+        var files = Files(profile, seed);
+        var written = BlockWriter.Blocks(profile, files);
+        var judge = Judge(profile, files, written, out int units);
+        var bySource = new Dictionary<string, List<Reading>>();
+        var best = new List<Reading>();
+        var examples = new List<WrongExample>();
+        var results = new List<DecodeResult>();
+        var names = new List<string>();
+        var rng = new Random(unchecked((seed * 7_919) + StableHash(profile.Id)));
+        try
+        {
+            for (int p = 0; p < PassesPerTape; p++)
+            {
+                string stem = Path.Combine(folder, $"{profile.Id}-{seed}-{p}");
+                long t0 = Stopwatch.GetTimestamp();
+                var (path, source, description) = Pass(stem, profile, written, rng);
+                long t1 = Stopwatch.GetTimestamp();
+                var result = CaptureDecoder.Decode(path, profile);
+                Interlocked.Add(ref s_makeTicks, t1 - t0);
+                Interlocked.Add(ref s_decodeTicks, Stopwatch.GetTimestamp() - t1);
+                foreach (string f in Directory.GetFiles(folder, Path.GetFileName(stem) + "*"))
+                {
+                    File.Delete(f);
+                }
+
+                results.Add(result);
+                names.Add(Path.GetFileName(path));
+                if (!bySource.TryGetValue(source, out var readings))
+                {
+                    bySource[source] = readings = [];
+                }
+
+                foreach (var candidate in result.Candidates)
+                {
+                    bool right = judge(candidate.Header.AsSpan(), candidate.Payload.AsSpan());
+                    bool wrongClean = !right && (profile.Layout.IsStream ? candidate.Confidence >= StreamConfidentWrong : candidate.Status == BlockStatus.Clean);
+                    readings.Add(new Reading(candidate.Confidence, right, wrongClean, candidate.Status == BlockStatus.Clean));
+                    if (wrongClean && examples.Count < 3)
+                    {
+                        examples.Add(new WrongExample(profile.Id, seed, p, source, candidate.SettingName, candidate.Status, candidate.Confidence, candidate.Payload.Length, description));
+                    }
+                }
+
+                foreach (var candidate in result.Best)
+                {
+                    best.Add(new Reading(candidate.Confidence, judge(candidate.Header.AsSpan(), candidate.Payload.AsSpan()), false));
+                }
+            }
+
+            long m0 = Stopwatch.GetTimestamp();
+            var image = TapeMerger.Merge(results, names, new MergeOptions { CreatedUtc = DateTimeOffset.UnixEpoch });
+            Interlocked.Add(ref s_mergeTicks, Stopwatch.GetTimestamp() - m0);
+            var positions = new List<Reading>();
+            bool exact = image.Blocks.Length > 0;
+            int rightBlocks = 0;
+            foreach (var block in image.Blocks)
+            {
+                if (block.Status == RecoveryStatus.Missing)
+                {
+                    exact = false;
+                    continue;
+                }
+
+                bool right = judge(block.Header.AsSpan(), block.Payload.AsSpan());
+                bool wrongClean = !right && (profile.Layout.IsStream ? block.Confidence >= StreamConfidentWrong : block.Status == RecoveryStatus.Clean);
+                positions.Add(new Reading(block.Confidence, right, wrongClean));
+                rightBlocks += right ? 1 : 0;
+                exact &= right && block.AgreeingCaptures >= 2 && (profile.Layout.IsStream || block.Status == RecoveryStatus.Clean);
+            }
+
+            // Byte-exact: every written block once (a stream: its bytes in as many segments as files).
+            exact &= rightBlocks == written.Count && image.Blocks.Length == written.Count;
+            return new TapeOutcome(subject, seed, units, written.Count, bySource, best, positions, exact ? image.OverallConfidence : null, examples, null);
+        }
+        catch (Exception e) when (e is not OutOfMemoryException)
+        {
+            // A decoder or merge that throws is a finding of its own: reported, and the run goes on.
+            return new TapeOutcome(subject, seed, units, written.Count, bySource, best, [], null, examples, $"{profile.Id} seed {seed}: {e.GetType().Name}: {e.Message}");
+        }
+    }
+
+    private delegate bool Judgement(ReadOnlySpan<byte> header, ReadOnlySpan<byte> payload);
+
+    /// <summary>Whether a reading is right: a written block's header and payload, or for a stream, written bytes where they line up best.</summary>
+    private static Judgement Judge(FormatProfile profile, List<TapeFile> files, List<byte[]> written, out int units)
+    {
+        if (profile.Layout.IsStream)
+        {
+            var bases = new int[files.Count];
+            for (int f = 1; f < files.Count; f++)
+            {
+                bases[f] = bases[f - 1] + files[f - 1].Content.Length;
+            }
+
+            units = bases[^1] + files[^1].Content.Length;
+            return (_, payload) => RecoveryCorpus.Place(payload, files, bases, null);
+        }
+
+        int header = profile.Layout.HeaderBytes;
+        int check = ChecksumCatalog.Get(profile.Layout.Checksum!.Algorithm).Width;
+        var truth = written.Select(b => Convert.ToHexString(b.AsSpan(0, b.Length - check))).ToHashSet(StringComparer.Ordinal);
+        units = written.Count;
+        return (h, p) =>
+        {
+            if (h.Length != header)
+            {
+                return false;
+            }
+
+            var joined = new byte[h.Length + p.Length];
+            h.CopyTo(joined);
+            p.CopyTo(joined.AsSpan(h.Length));
+            return truth.Contains(Convert.ToHexString(joined));
+        };
+    }
+
+    /// <summary>One pass: its capture file, its source and a description of its damage.</summary>
+    private static (string Path, string Source, string Description) Pass(string stem, FormatProfile profile, List<byte[]> written, Random rng)
+    {
+        double draw = rng.NextDouble();
+        bool minimodem = profile.Family == FormatFamily.Fsk && draw < 0.3;
+        bool sox = minimodem || draw >= 0.65;
+        string path = stem + ".wav";
+        string description;
+        int channels = 1;
+        int sampleRate;
+        if (minimodem)
+        {
+            // Outside reference: minimodem writes the FSK, SoX the tones between blocks and the noise.
+            sampleRate = RandomDamage.SampleRates[rng.Next(RandomDamage.SampleRates.Count)];
+            double leadIn = profile.Layout.IsStream && rng.NextDouble() < 0.3 ? 0 : 0.15 + (rng.NextDouble() * 1.5);
+            double volume = 0.2 + (rng.NextDouble() * 0.7);
+            double snr = 12 + (rng.NextDouble() * 33);
+            string clean = stem + ".minimodem.wav";
+            OutsideDamage.MinimodemCapture(clean, profile, written, sampleRate, leadIn, volume);
+            string noise = stem + ".noise.wav";
+
+            // SoX's white noise at "vol 1" has an RMS of about 0.54 (measured with SoX's stat); the tones' RMS is volume/√2.
+            double seconds = leadIn + profile.Recording.TrailerSeconds + 1 + written.Sum(b => (b.Length * profile.Framing.BitsPerByte / profile.Fsk!.Baud) + profile.Recording.BlockGapSeconds);
+            double noiseVolume = volume / Math.Sqrt(2) * Math.Pow(10, -snr / 20) / 0.54;
+            OutsideDamage.ApplySox("-n", noise, ["-r", sampleRate.ToString(CultureInfo.InvariantCulture), "-b", "16", "-c", "1"], ["synth", seconds.ToString("0.###", CultureInfo.InvariantCulture), "whitenoise", "vol", noiseVolume.ToString("0.######", CultureInfo.InvariantCulture)]);
+            string mixed = stem + ".mixed.wav";
+            OutsideDamage.Mix(clean, noise, mixed);
+            description = $"minimodem {sampleRate} Hz, lead-in {leadIn:0.00} s, volume {volume:0.00}, SoX noise at SNR {snr:0.0} dB";
+            path = Chain(mixed, path, channels, sampleRate, rng, ref description);
+            return (path, "minimodem+sox", description);
+        }
+
+        var damage = RandomDamage.Draw(rng);
+        description = RandomDamage.Describe(damage);
+        if (!sox)
+        {
+            CaptureSynthesizer.WriteBlocks(path, profile, written, damage);
+            return (path, "channel", description);
+        }
+
+        string ours = stem + ".channel.wav";
+        CaptureSynthesizer.WriteBlocks(ours, profile, written, damage);
+        channels = damage.Channels == CaptureChannels.Mono ? 1 : 2;
+        path = Chain(ours, path, channels, damage.SampleRate, rng, ref description);
+        return (path, "channel+sox", description);
+    }
+
+    private static string Chain(string input, string output, int channels, int sampleRate, Random rng, ref string description)
+    {
+        // Outside reference: SoX applies an effect chain drawn from the seed.
+        var (options, effects, text) = OutsideDamage.SoxChain(rng, channels, sampleRate);
+        OutsideDamage.ApplySox(input, output, options, effects);
+        description += "; " + text;
+        return output;
+    }
+
+    private static double Ece(List<Reading> readings) => Calibration.EqualBinEce([.. readings.Select(r => (r.Confidence, r.Right))]);
+
+    private static void Print(List<TapeOutcome> outcomes)
+    {
+        Console.WriteLine();
+        Console.WriteLine("Per profile. units: written blocks (bytes for a stream); readings: every setting's block candidates of every pass;");
+        Console.WriteLine("wrong clean: readings (and merged positions) marked clean that are not a written block (streams: wrong at confidence >= 0.99);");
+        Console.WriteLine("ECE: 10 equal bins; exact images: byte-exact merges with every position clean (stream: read) and agreed by >= 2 captures.");
+        Console.WriteLine($"{"family",-11} {"profile",-18} {"tapes",5} {"units",6} {"readings",8} {"clean",6} {"wrong clean",11} {"ECE read",8} {"ECE best",8} {"positions",9} {"wrong pos",9} {"ECE merged",10} {"exact",5} {"min conf",8} {"< 0.99",6}");
+        foreach (var group in outcomes.GroupBy(o => (o.Subject.Family, o.Subject.Profile.Id)).OrderBy(g => g.Key.Family, StringComparer.Ordinal).ThenBy(g => g.Key.Id, StringComparer.Ordinal))
+        {
+            var readings = group.SelectMany(o => o.ReadingsBySource.Values.SelectMany(r => r)).ToList();
+            var best = group.SelectMany(o => o.Best).ToList();
+            var positions = group.SelectMany(o => o.Positions).ToList();
+            var exact = group.Where(o => o.ExactImageConfidence is not null).Select(o => o.ExactImageConfidence!.Value).ToList();
+            bool stream = group.First().Subject.Profile.Layout.IsStream;
+            string units = stream ? $"{group.Sum(o => o.WrittenUnits)}B" : group.Sum(o => o.WrittenUnits).ToString(CultureInfo.InvariantCulture);
+            Console.WriteLine(
+                $"{group.Key.Family,-11} {group.Key.Id,-18} {group.Count(),5} {units,6} {readings.Count,8} {(stream ? "-" : readings.Count(r => r.Clean).ToString(CultureInfo.InvariantCulture)),6} " +
+                $"{readings.Count(r => r.WrongClean),11} {Ece(readings),8:0.0000} {Ece(best),8:0.0000} {positions.Count,9} {positions.Count(r => r.WrongClean),9} " +
+                $"{Ece(positions),10:0.0000} {exact.Count,5} {(exact.Count > 0 ? exact.Min().ToString("0.0000", CultureInfo.InvariantCulture) : "-"),8} {exact.Count(c => c < 0.99),6}");
+        }
+
+        Console.WriteLine();
+        Console.WriteLine("Per family and source of the passes (readings of every setting):");
+        Console.WriteLine($"{"family",-11} {"source",-14} {"readings",8} {"right",7} {"wrong clean",11} {"ECE read",8}");
+        foreach (var group in outcomes
+            .SelectMany(o => o.ReadingsBySource.Select(kv => (o.Subject.Family, Source: kv.Key, Readings: kv.Value)))
+            .GroupBy(x => (x.Family, x.Source))
+            .OrderBy(g => g.Key.Family, StringComparer.Ordinal).ThenBy(g => g.Key.Source, StringComparer.Ordinal))
+        {
+            var readings = group.SelectMany(x => x.Readings).ToList();
+            Console.WriteLine($"{group.Key.Family,-11} {group.Key.Source,-14} {readings.Count,8} {readings.Count(r => r.Right),7} {readings.Count(r => r.WrongClean),11} {Ece(readings),8:0.0000}");
+        }
+
+        var errors = outcomes.Where(o => o.Error is not null).ToList();
+        if (errors.Count > 0)
+        {
+            Console.WriteLine();
+            Console.WriteLine($"{errors.Count} tapes could not be made or merged; first: {errors[0].Error}");
+        }
+
+        var examples = outcomes.SelectMany(o => o.Examples).OrderBy(e => e.Profile, StringComparer.Ordinal).ThenBy(e => e.Seed).ToList();
+        if (examples.Count > 0)
+        {
+            Console.WriteLine();
+            Console.WriteLine("Wrong readings marked clean (first per profile, up to 4): profile, seed, pass, source, setting, status, confidence, payload bytes, damage");
+            foreach (var example in examples.GroupBy(e => e.Profile).SelectMany(g => g.Take(4)))
+            {
+                Console.WriteLine($"  {example.Profile} seed {example.Seed} pass {example.Pass} {example.Source} [{example.Setting}] {example.Status} {example.Confidence:0.0000} {example.PayloadBytes} B; {example.Damage}");
+            }
+        }
+    }
+}
+
