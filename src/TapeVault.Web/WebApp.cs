@@ -93,6 +93,7 @@ public static class WebApp
             pages.Conventions.AllowAnonymousToPage("/Account/SignIn");
             pages.Conventions.AllowAnonymousToPage("/Account/Denied");
             pages.Conventions.AllowAnonymousToPage("/Error");
+            pages.Conventions.AllowAnonymousToPage("/Handling");
         }).AddMvcOptions(mvc => mvc.Filters.Add(new CuratorWritesFilter()));
         builder.Services.AddOpenApi();
         builder.Services.AddProblemDetails(problems => problems.CustomizeProblemDetails = context =>
@@ -133,6 +134,7 @@ public static class WebApp
         app.MapRazorPages();
         app.MapTapeVaultApi();
         app.MapCaptureApi();
+        app.MapImageFilesApi();
         return app;
     }
 

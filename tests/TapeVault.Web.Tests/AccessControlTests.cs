@@ -33,8 +33,8 @@ public sealed class AccessControlArchive : IAsyncLifetime
         await App.AddCuratorAndViewerAsync();
         using var curator = await App.SignedInAsync(ArchiveAppFactory.CuratorName);
         var (collectionId, itemId) = await curator.NewItemAsync("ACL-1");
-        // A capture with a block in it, so that the image has a position for the position endpoints to answer.
-        var capture = SynthCaptures.Orrin(Folder.Root, "acl", files: 1, bytesPerFile: 16, seed: 3);
+        // A capture with a file on it, so that the image has positions and files to reach.
+        var capture = SynthCaptures.Orrin(Folder.Root, "acl", files: 1, bytesPerFile: 40, seed: 7);
         using var upload = await curator.UploadRawAsync(itemId, capture.Bytes, "acl.wav", extraQuery: $"&decodeProfile={SynthCaptures.Profile}");
         await ApiClient.EnsureAsync(upload, HttpStatusCode.Created);
         var uploaded = (await upload.Content.ReadFromJsonAsync<UploadResult>(ApiClient.Json))!;
@@ -52,6 +52,7 @@ public sealed class AccessControlArchive : IAsyncLifetime
         Assert.True(merged.State == "done", merged.Error);
         Ids["images"] = Invariant(merged.ResultId!.Value);
         Ids["positions"] = "0";
+        Ids["files"] = "0";
         var bag = await curator.PostAsync<JobView>($"/api/items/{itemId}/bag", new { }, HttpStatusCode.Accepted);
         var bagged = await curator.WaitForJobAsync(bag.Id, TimeSpan.FromSeconds(30));
         Assert.True(bagged.State == "done", bagged.Error);
@@ -88,10 +89,10 @@ public sealed partial class AccessControlTests(AccessControlArchive archive, ITe
     /// <summary>Reads that need a curator: the account list.</summary>
     private static readonly HashSet<string> CuratorOnlyReads = new(StringComparer.Ordinal) { "/api/users" };
 
-    /// <summary>Reads open to visitors: the sign-in and refusal pages, the error page, the token and the API description.</summary>
+    /// <summary>Reads open to visitors: the sign-in and refusal pages, the error page, the handling cautions, the token and the API description.</summary>
     private static readonly HashSet<string> AnonymousReads = new(StringComparer.Ordinal)
     {
-        "/api/antiforgery", "/signin", "/denied", "/Error", "/openapi/{documentName}.json",
+        "/api/antiforgery", "/signin", "/denied", "/Error", "/handling", "/openapi/{documentName}.json",
     };
 
     [Fact]

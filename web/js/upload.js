@@ -1,6 +1,38 @@
 // Uploads a capture as the raw request body, so the server streams it to disk; shows bytes sent as they go.
+// What the upload did ("Stored as capture 6", "the same bytes are already stored") is kept for the tape's page until
+// the curator dismisses it, across the reload that shows the new capture.
 (function () {
   "use strict";
+  var notice = document.getElementById("upload-notice");
+  var key = notice ? "tapevault.upload-notice." + notice.dataset.item : null;
+
+  function showNotice() {
+    if (!notice) { return; }
+    var message = window.sessionStorage.getItem(key);
+    notice.textContent = "";
+    if (!message) { return; }
+    var box = document.createElement("p");
+    box.className = "notice dismissible";
+    var text = document.createElement("span");
+    text.className = "upload-message";
+    text.textContent = message;
+    var button = document.createElement("button");
+    button.type = "button";
+    button.className = "quiet";
+    button.textContent = "Dismiss";
+    button.setAttribute("aria-label", "Dismiss the upload message");
+    button.addEventListener("click", function () {
+      window.sessionStorage.removeItem(key);
+      notice.textContent = "";
+    });
+    box.appendChild(text);
+    box.appendChild(document.createTextNode(" "));
+    box.appendChild(button);
+    notice.appendChild(box);
+  }
+
+  showNotice();
+
   var form = document.getElementById("upload");
   if (!form) { return; }
   var token = document.querySelector('meta[name="tapevault-antiforgery"]').content;
@@ -43,7 +75,10 @@
       try { body = JSON.parse(request.responseText); } catch (ignored) { body = null; }
       if (request.status === 200 || request.status === 201) {
         bar.value = 100;
-        text.textContent = body && body.message ? body.message : "Uploaded.";
+        var message = body && body.message ? body.message : "Uploaded.";
+        if (body && body.decodeJob) { message += " Decode queued as job " + body.decodeJob.id + "."; }
+        text.textContent = message;
+        if (key) { window.sessionStorage.setItem(key, file.name + ": " + message); showNotice(); }
         window.setTimeout(function () { window.location.reload(); }, 1200);
       } else {
         text.textContent = "Not stored: " + (body && body.title ? body.title : "the server answered " + request.status + ".");

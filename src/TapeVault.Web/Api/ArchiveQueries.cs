@@ -63,7 +63,7 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
 
     public async Task<RunDetail> RunAsync(int id, CancellationToken cancellation = default)
     {
-        var run = await db.Runs.AsNoTracking().Include(r => r.Capture).ThenInclude(c => c!.Item).FirstOrDefaultAsync(r => r.Id == id, cancellation).ConfigureAwait(false)
+        var run = await db.Runs.AsNoTracking().Include(r => r.Capture).ThenInclude(c => c!.Item).ThenInclude(i => i!.Collection).FirstOrDefaultAsync(r => r.Id == id, cancellation).ConfigureAwait(false)
             ?? throw new ArchiveNotFoundException($"There is no decode run {id}.");
         var candidates = await db.Candidates.AsNoTracking().Where(c => c.RunId == id)
             .OrderBy(c => c.Position).ThenBy(c => c.SettingIndex).ThenBy(c => c.StartSeconds)
@@ -74,16 +74,66 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
             var best = g.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First();
             return new PositionView(g.Key, best.IdentityKey, ToView(best), readings);
         }).ToList();
-        return new RunDetail(ToSummary(run), run.Capture!.OriginalFileName, run.Capture.ItemId, run.Capture.Item!.AccessionNumber, positions);
+        var item = run.Capture!.Item!;
+        return new RunDetail(ToSummary(run), run.Capture.OriginalFileName, run.Capture.ItemId, item.AccessionNumber, positions, item.CollectionId, item.Collection!.Name, item.Title);
     }
 
     public async Task<IReadOnlyList<JobView>> JobsAsync(int take = 100, CancellationToken cancellation = default) =>
-        (await db.Jobs.AsNoTracking().OrderByDescending(j => j.Id).Take(Math.Clamp(take, 1, 1000)).ToListAsync(cancellation).ConfigureAwait(false))
-            .Select(ToView).ToList();
+        await NamedAsync(await db.Jobs.AsNoTracking().OrderByDescending(j => j.Id).Take(Math.Clamp(take, 1, 1000)).ToListAsync(cancellation).ConfigureAwait(false), cancellation).ConfigureAwait(false);
 
     public async Task<JobView> JobAsync(int id, CancellationToken cancellation = default) =>
-        ToView(await db.Jobs.AsNoTracking().FirstOrDefaultAsync(j => j.Id == id, cancellation).ConfigureAwait(false)
-            ?? throw new ArchiveNotFoundException($"There is no job {id}."));
+        (await NamedAsync([await db.Jobs.AsNoTracking().FirstOrDefaultAsync(j => j.Id == id, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no job {id}.")], cancellation).ConfigureAwait(false))[0];
+
+    /// <summary>The newest fixity audits of a collection (or of the whole store, which covers it too), newest first.</summary>
+    public async Task<IReadOnlyList<JobView>> FixityAuditsAsync(int collectionId, int take = 3, CancellationToken cancellation = default)
+    {
+        var audits = await db.Jobs.AsNoTracking().Where(j => j.Kind == JobKinds.Fixity).OrderByDescending(j => j.Id).Take(200)
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        var ofCollection = audits.Where(j => ScopeOf(j) is var scope && (scope.CollectionId == collectionId || scope is { CollectionId: null, ItemId: null }))
+            .Take(Math.Clamp(take, 1, 50)).ToList();
+        return await NamedAsync(ofCollection, cancellation).ConfigureAwait(false);
+    }
+
+    /// <summary>Job views with what each is for by name: the tape's accession number, the collection's name.</summary>
+    private async Task<IReadOnlyList<JobView>> NamedAsync(IReadOnlyList<JobRecord> jobs, CancellationToken cancellation)
+    {
+        var collectionOf = jobs.ToDictionary(j => j.Id, j => ScopeOf(j).CollectionId);
+        var itemIds = jobs.Where(j => j.ItemId is not null).Select(j => j.ItemId!.Value).Distinct().ToList();
+        var collectionIds = collectionOf.Values.OfType<int>().Distinct().ToList();
+        var items = await db.Items.AsNoTracking().Where(i => itemIds.Contains(i.Id)).Select(i => new { i.Id, i.AccessionNumber })
+            .ToDictionaryAsync(i => i.Id, i => i.AccessionNumber, cancellation).ConfigureAwait(false);
+        var collections = await db.Collections.AsNoTracking().Where(c => collectionIds.Contains(c.Id)).Select(c => new { c.Id, c.Name })
+            .ToDictionaryAsync(c => c.Id, c => c.Name, cancellation).ConfigureAwait(false);
+        return [.. jobs.Select(j =>
+        {
+            int? collection = collectionOf[j.Id];
+            return ToView(j) with
+            {
+                CollectionId = collection,
+                CollectionName = collection is { } c ? collections.GetValueOrDefault(c) : null,
+                AccessionNumber = j.ItemId is { } i ? items.GetValueOrDefault(i) : null,
+            };
+        })];
+    }
+
+    /// <summary>The collection or item a fixity, bag or catalogue job works on; none for the other kinds.</summary>
+    private static ScopeParameters ScopeOf(JobRecord job)
+    {
+        if (job.Kind is not (JobKinds.Fixity or JobKinds.Bag or JobKinds.Publish))
+        {
+            return new ScopeParameters(null, job.ItemId);
+        }
+
+        try
+        {
+            return ScopeParameters.FromJson(job.Parameters);
+        }
+        catch (Exception e) when (e is System.Text.Json.JsonException or JobFailedException)
+        {
+            return new ScopeParameters(null, job.ItemId);
+        }
+    }
 
     public async Task<IReadOnlyList<EventView>> ItemEventsAsync(int itemId, CancellationToken cancellation = default)
     {
@@ -148,6 +198,25 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
             blocks,
             [.. image.Files.Select(f => new ImageFileView(f.Name, f.Length, f.FirstPosition, f.BlockCount, f.Complete))],
             [.. image.Captures.Select(c => new ImageCaptureView(c.CaptureSha256, c.FileName, c.SampleRate, c.Channels, c.DurationSeconds))]);
+    }
+
+    /// <summary>
+    /// The files the headers of a stored tape image name, with names safe to save under (as the command line's
+    /// extract gives them). Derived from the image, so anyone who may download the image may have them.
+    /// </summary>
+    public async Task<RecoveredFiles> RecoveredFilesAsync(int imageId, CancellationToken cancellation = default)
+    {
+        var record = await db.Images.AsNoTracking().Include(i => i.Item).FirstOrDefaultAsync(i => i.Id == imageId, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no tape image {imageId}.");
+        if (!store.Exists(record.Sha256))
+        {
+            throw new ArchiveConflictException("The tape image's file is missing from the content store; run a fixity audit.");
+        }
+
+        var image = await ReadImageAsync(record.Sha256, cancellation).ConfigureAwait(false);
+        var files = ImageFiles.Extract(image);
+        var names = SafeFileNames.Assign(files.Select(f => f.File.Name));
+        return new RecoveredFiles(record.Id, record.Item!.AccessionNumber, record.Version, record.CreatedUtc, [.. files.Select((f, i) => new RecoveredFile(i, names[i], f))]);
     }
 
     /// <summary>Each capture × setting's best reading of each position of the newest image (or of every block seen, before a merge).</summary>
@@ -363,24 +432,69 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
             s.Edges.ToString().ToLowerInvariant(), Explain(s));
     }
 
-    /// <summary>One sentence a volunteer can read: what the setting listens for.</summary>
+    /// <summary>What the whole setting assumes about the capture, then what sets it apart in its group, as one text.</summary>
     public static string Explain(DetectorSetting s)
     {
         ArgumentNullException.ThrowIfNull(s);
-        string source = s.Differentiate
-            ? "Made for captures taken straight off the tape head (the signal is differentiated first)"
-            : "Made for captures from a deck's line or earphone output";
-        string filter = s.LowPassHz is { } lp ? $", smoothed above {lp:0} Hz" : string.Empty;
-        string threshold = s.ThresholdMode == ThresholdMode.Relative
-            ? $"a switching band of ±{s.Hysteresis:P0} of the recent signal level, so it follows quiet and loud passages"
-            : $"a fixed switching band of ±{s.Hysteresis:0.###} of full scale";
-        string edges = s.Edges switch
+        var group = DetectorBanks.Default.Where(x => x.Differentiate == s.Differentiate).ToList();
+        return $"{SourceSentence(s.Differentiate)} This setting {Difference(s, group.Count > 0 && group.Contains(s) ? group : [s])}.";
+    }
+
+    /// <summary>
+    /// The default bank grouped by where each setting assumes the signal comes from (a deck's line output or a head
+    /// amplifier), each group introduced once, each setting by what sets it apart from the rest of its group.
+    /// </summary>
+    public static IReadOnlyList<SettingGroupView> SettingGroups() => SettingGroups(DetectorBanks.Default);
+
+    public static IReadOnlyList<SettingGroupView> SettingGroups(IReadOnlyList<DetectorSetting> bank)
+    {
+        ArgumentNullException.ThrowIfNull(bank);
+        return [.. bank.GroupBy(s => s.Differentiate).OrderBy(g => g.Key).Select(g =>
         {
-            EdgeSelection.Rising => "times the signal's upward swings",
-            EdgeSelection.Falling => "times the signal's downward swings",
-            _ => "times both upward and downward swings",
+            var members = g.ToList();
+            return new SettingGroupView(
+                g.Key ? "Taken straight off the tape head" : "Taken from a deck's line or earphone output",
+                SourceSentence(g.Key),
+                [.. members.Select(s => new SettingChoiceView(s.Name, Difference(s, members)))]);
+        })];
+    }
+
+    private static string SourceSentence(bool differentiate) => differentiate
+        ? "These settings assume the capture came from the playback head through a plain amplifier, with no deck electronics to square the signal up: the head answers to changes in the tape's magnetisation, so the settings take the slope of the signal first and time the swings of that."
+        : "These settings assume the capture came from a deck's line or earphone socket, whose own playback amplifier has already shaped the signal into the swings the computer wrote: the settings time those swings as they are, after taking out rumble and hiss.";
+
+    /// <summary>What one setting counts and where it departs from what most of its group does.</summary>
+    private static string Difference(DetectorSetting s, IReadOnlyList<DetectorSetting> group)
+    {
+        static T Usual<T>(IEnumerable<T> values) => values.GroupBy(v => v).OrderByDescending(g => g.Count()).First().Key;
+        var parts = new List<string>
+        {
+            s.Edges switch
+            {
+                EdgeSelection.Both => "counts every swing, upward and downward",
+                EdgeSelection.Falling => "counts only the downward swings",
+                _ when s.Invert => "counts only the downward swings (it turns the signal over, for a chain wired the other way round)",
+                _ => "counts only the upward swings",
+            },
         };
-        string invert = s.Invert ? " The signal is turned upside down first, for decks wired the other way round." : string.Empty;
-        return $"{source}{filter}; uses {threshold} and {edges}.{invert}";
+        if (s.HighPassHz > Usual(group.Select(x => x.HighPassHz)))
+        {
+            parts.Add(s.LowPassHz is { } lp
+                ? $"listens only between {s.HighPassHz:0} and {lp:0} Hz, for a capture with hum or hiss around the signal"
+                : $"listens only above {s.HighPassHz:0} Hz, for a capture with hum under the signal");
+        }
+        else if (s.LowPassHz != Usual(group.Select(x => x.LowPassHz)))
+        {
+            parts.Add(s.LowPassHz is { } cut ? $"cuts off above {cut:0} Hz" : "keeps the highest frequencies too");
+        }
+
+        if (s.ThresholdMode != Usual(group.Select(x => x.ThresholdMode)) || s.Hysteresis != Usual(group.Where(x => x.ThresholdMode == s.ThresholdMode).Select(x => x.Hysteresis)))
+        {
+            parts.Add(s.ThresholdMode == ThresholdMode.Fixed
+                ? $"switches at a fixed level (±{s.Hysteresis:0.###} of full scale), for a capture whose loudness does not wander"
+                : $"needs a wider swing to switch (±{s.Hysteresis:P0} of the recent level), so that noise does not flip it");
+        }
+
+        return string.Join("; ", parts);
     }
 }

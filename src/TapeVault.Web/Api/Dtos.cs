@@ -49,7 +49,7 @@ public sealed record RunSummary(
     int Positions,
     int CleanPositions);
 
-public sealed record RunDetail(RunSummary Run, string CaptureFileName, int ItemId, string AccessionNumber, IReadOnlyList<PositionView> Positions);
+public sealed record RunDetail(RunSummary Run, string CaptureFileName, int ItemId, string AccessionNumber, IReadOnlyList<PositionView> Positions, int CollectionId = 0, string CollectionName = "", string ItemTitle = "");
 
 /// <summary>One block position of a run: the best reading, and every setting's reading of it.</summary>
 public sealed record PositionView(int Position, string Identity, CandidateView Best, IReadOnlyList<CandidateView> Readings);
@@ -84,7 +84,10 @@ public sealed record JobView(
     DateTimeOffset CreatedUtc,
     DateTimeOffset? StartedUtc,
     DateTimeOffset? FinishedUtc,
-    int Attempts);
+    int Attempts,
+    int? CollectionId = null,
+    string? CollectionName = null,
+    string? AccessionNumber = null);
 
 public sealed record EventView(long Id, string EventType, DateTimeOffset OccurredUtc, string Agent, string ObjectType, string ObjectId, string Outcome, string Detail);
 
@@ -200,3 +203,15 @@ public sealed record PositionReadings(
     int Bytes,
     string FirstBytesHex,
     IReadOnlyList<PositionReading> Readings);
+
+/// <summary>A file named by a tape image's headers: its place in the image's file list, a name safe to save under, its bytes.</summary>
+public sealed record RecoveredFile(int Index, string SafeName, TapeVault.Core.Image.ExtractedFile Extracted);
+
+/// <summary>The files recovered from one version of a tape's image.</summary>
+public sealed record RecoveredFiles(int ImageId, string AccessionNumber, int Version, DateTimeOffset CreatedUtc, IReadOnlyList<RecoveredFile> Files);
+
+/// <summary>One detector setting in the decode form: its name and what sets it apart from the rest of its group.</summary>
+public sealed record SettingChoiceView(string Name, string Difference);
+
+/// <summary>Detector settings that make the same assumption about where the capture's signal comes from.</summary>
+public sealed record SettingGroupView(string Title, string Assumes, IReadOnlyList<SettingChoiceView> Settings);

@@ -46,11 +46,25 @@ public sealed class CuratorJourneyTests
         {
             await page.SetInputFilesAsync("#file", capture);
             await page.FillAsync("#deck", "bench deck");
+
+            // The form decodes with the whole bank unless told not to; this journey decodes by hand below.
+            Assert.NotEqual(string.Empty, await page.InputValueAsync("#decodeProfile"));
+            await page.SelectOptionAsync("#decodeProfile", string.Empty);
             await page.ClickAsync("#upload button[type=submit]");
             await page.WaitForFunctionAsync("() => document.getElementById('upload-text')?.textContent.includes('Stored as capture')");
             Assert.Equal("100", await page.GetAttributeAsync("#upload-bar", "value") ?? await page.EvalOnSelectorAsync<string>("#upload-bar", "e => String(e.value)"));
             await Browser.ShotAsync(page, $"02-uploaded-{Path.GetFileNameWithoutExtension(capture)}");
             await page.GotoAsync(itemUrl);
+
+            // What the upload did stays on the tape's page, across the reload, until the curator dismisses it.
+            var notice = page.Locator("#upload-notice .upload-message");
+            Assert.Contains("Stored as capture", await notice.InnerTextAsync(), StringComparison.Ordinal);
+            await page.GotoAsync(itemUrl);
+            Assert.Contains("Stored as capture", await notice.InnerTextAsync(), StringComparison.Ordinal);
+            await page.ClickAsync("#upload-notice button:has-text('Dismiss')");
+            Assert.Equal(0, await notice.CountAsync());
+            await page.GotoAsync(itemUrl);
+            Assert.Equal(0, await notice.CountAsync());
         }
 
         Assert.Equal(2, await page.Locator("table.grid >> tbody >> tr:has(a[download])").CountAsync());

@@ -151,7 +151,8 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
             run = await plots.ChooseAsync(id, null, null, cancellation).ConfigureAwait(false);
         }
 
-        Blocks = new BlockListView(run.Choice, CapturePlots.Blocks(run));
+        // Listed by position, the order the tape holds them (the best readings' start times can differ in order by a setting's lag).
+        Blocks = new BlockListView(run.Choice, [.. CapturePlots.Blocks(run).OrderBy(b => b.Position).ThenBy(b => b.StartSeconds)]);
         Selected = Block is { } b ? Blocks.Blocks.FirstOrDefault(x => x.Position == b) : null;
         Selected ??= Blocks.Blocks.Count > 0 ? Blocks.Blocks[0] : null;
         double from = From ?? (Selected is { } s ? Math.Max(0, s.StartSeconds - CapturePlots.ZoomLeadSeconds) : 0);

@@ -14,14 +14,17 @@ public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actio
 
     public IReadOnlyList<ExportView> Exports { get; private set; } = [];
 
+    /// <summary>The newest fixity audits that covered this collection, newest first.</summary>
+    public IReadOnlyList<JobView> Audits { get; private set; } = [];
+
     [TempData]
     public string? Message { get; set; }
 
-    public Task<IActionResult> OnPostPublishAsync(int id) => QueueAsync(id, JobKinds.Publish, "Publishing the catalogue");
+    public Task<IActionResult> OnPostPublishAsync(int id) => QueueAsync(id, JobKinds.Publish, "Publishing the catalogue", "the download appears here when it is done");
 
-    public Task<IActionResult> OnPostBagAsync(int id) => QueueAsync(id, JobKinds.Bag, "Making a bag of the whole collection");
+    public Task<IActionResult> OnPostBagAsync(int id) => QueueAsync(id, JobKinds.Bag, "Making a bag of the whole collection", "the download appears here when it is done");
 
-    public Task<IActionResult> OnPostFixityAsync(int id) => QueueAsync(id, JobKinds.Fixity, "Auditing the fixity of every stored file of the collection");
+    public Task<IActionResult> OnPostFixityAsync(int id) => QueueAsync(id, JobKinds.Fixity, "Auditing the fixity of every stored file of the collection", "its result appears here under Fixity audits");
 
     public Task<IActionResult> OnGetAsync(int id) => LoadOrNotFoundAsync(() => LoadAsync(id));
 
@@ -37,14 +40,15 @@ public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actio
     {
         Collection = await queries.CollectionAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
         Exports = await queries.ExportsAsync(id, null, HttpContext.RequestAborted).ConfigureAwait(false);
+        Audits = await queries.FixityAuditsAsync(id, 3, HttpContext.RequestAborted).ConfigureAwait(false);
     }
 
-    private Task<IActionResult> QueueAsync(int id, string kind, string what) => TryAsync(
+    private Task<IActionResult> QueueAsync(int id, string kind, string what, string where) => TryAsync(
         async () =>
         {
             var job = await actions.QueueScopedAsync(kind, id, null, Agent).ConfigureAwait(false);
             runner.Nudge();
-            Message = $"{what}: job {job.Id}. Follow it on the Jobs page; the download appears here when it is done.";
+            Message = $"{what}: job {job.Id}. Follow it on the Jobs page; {where}.";
             return Redirect($"/collections/{id}");
         },
         () => LoadAsync(id));

@@ -15,6 +15,9 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
 
     public IReadOnlyList<SettingView> Settings { get; } = ArchiveQueries.DefaultSettings();
 
+    /// <summary>The default bank's settings grouped by what they assume about where the capture's signal comes from.</summary>
+    public IReadOnlyList<SettingGroupView> SettingGroups { get; } = ArchiveQueries.SettingGroups();
+
     public IReadOnlyList<ImageSummary> Images { get; private set; } = [];
 
     public ImageDetail? Latest { get; private set; }
@@ -52,6 +55,9 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
 
     public IReadOnlyList<ExportView> Exports { get; private set; } = [];
 
+    /// <summary>The profile the upload form decodes with unless told otherwise: the last one used on this tape, else the first.</summary>
+    public string? UploadProfile => DefaultProfile ?? (Profiles.Count > 0 ? Profiles[0].Id : null);
+
     /// <summary>The profile the decode form offers first: the one this tape was last decoded with.</summary>
     public string? DefaultProfile => Item?.Captures.SelectMany(c => c.Runs).OrderByDescending(r => r.Id).FirstOrDefault()?.ProfileId;
 
@@ -74,6 +80,19 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
             return Redirect($"/items/{id}");
         },
         () => LoadAsync(id));
+
+    /// <summary>
+    /// A timeline whose positions are links is a group of controls, not a picture: an image role would hide its links
+    /// from assistive technology (WCAG 2.1 4.1.2; axe-core's nested-interactive rule).
+    /// </summary>
+    public static string Interactive(string svg, bool linked)
+    {
+        ArgumentNullException.ThrowIfNull(svg);
+        const string picture = "<svg class=\"timeline\" role=\"img\"";
+        return linked && svg.StartsWith(picture, StringComparison.Ordinal)
+            ? "<svg class=\"timeline\" role=\"group\"" + svg[picture.Length..]
+            : svg;
+    }
 
     private async Task LoadAsync(int id)
     {
