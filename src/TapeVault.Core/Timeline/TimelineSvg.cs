@@ -40,7 +40,10 @@ public static class TimelineSvg
         double X(double t) => Gutter + ((t - timeline.Start) / span * (Width - Gutter - Right));
 
         var b = new StringBuilder(4096);
-        b.Append(Invariant, $"<svg class=\"timeline\" role=\"img\" aria-label=\"{E(title)}\" width=\"{Width}\" height=\"{height}\" viewBox=\"0 0 {Width} {height}\" xmlns=\"http://www.w3.org/2000/svg\">\n");
+        // A timeline whose positions are links is a group of controls, not a picture: an image role would hide its links
+        // from assistive technology (WCAG 2.1 4.1.2; axe-core's nested-interactive rule).
+        string role = image && positionLink is not null ? "group" : "img";
+        b.Append(Invariant, $"<svg class=\"timeline\" role=\"{role}\" aria-label=\"{E(title)}\" width=\"{Width}\" height=\"{height}\" viewBox=\"0 0 {Width} {height}\" xmlns=\"http://www.w3.org/2000/svg\">\n");
         b.Append(Invariant, $"<title>{E(title)}: tape time from left to right, {(image ? "the image on top, " : string.Empty)}then each capture's detector settings.</title>\n");
         AppendPatterns(b);
         AppendAxis(b, timeline, X, height);

@@ -81,19 +81,6 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
         },
         () => LoadAsync(id));
 
-    /// <summary>
-    /// A timeline whose positions are links is a group of controls, not a picture: an image role would hide its links
-    /// from assistive technology (WCAG 2.1 4.1.2; axe-core's nested-interactive rule).
-    /// </summary>
-    public static string Interactive(string svg, bool linked)
-    {
-        ArgumentNullException.ThrowIfNull(svg);
-        const string picture = "<svg class=\"timeline\" role=\"img\"";
-        return linked && svg.StartsWith(picture, StringComparison.Ordinal)
-            ? "<svg class=\"timeline\" role=\"group\"" + svg[picture.Length..]
-            : svg;
-    }
-
     private async Task LoadAsync(int id)
     {
         Item = await queries.ItemAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
