@@ -26,17 +26,19 @@ public struct LeadInFinder
     // next to the block, while one jittery pulse moves it by under 0.1 %.
     private const int MeanWindow = 64;
 
-    // A run survives one kind of stray: an edge moved by noise makes one pulse long and the next short, and an extra
-    // edge splits one pulse in two, so a pulse outside the tolerance is held and, if the next one makes it whole
-    // (the two add up to two pulses or to one), both belong to the run. Anything else (a missing edge, another
-    // class) ends it.
+    // A run survives strays: noise that moves one edge makes one pulse long and the next short, two in a row. It does
+    // not survive three in a row, nor more than one stray in sixteen pulses.
+    private const int MissesInRowAllowed = 2;
+    private const int PulsesPerMissAllowed = 16;
+
     private readonly double _nominal;
     private readonly int _minimum;
     private readonly double _lowestMean;
     private readonly double _highestMean;
     private double _mean;
     private int _count;
-    private double _held;
+    private int _misses;
+    private int _missesInRow;
 
     /// <param name="nominalSeconds">The lead-in pulse's nominal duration.</param>
     /// <param name="minimumCount">Pulses the run must hold before it counts as a lead-in.</param>
@@ -86,44 +88,29 @@ public struct LeadInFinder
     public readonly double Speed => _nominal / _mean;
 
     /// <summary>
-    /// Adds one pulse as measured. Returns whether it joined the current run; a pulse that did not is held as a
-    /// possible half of a moved or extra edge (the run goes on) or, when the pulse before it was held already and the
-    /// two do not make whole pulses, the first pulse of a new run.
+    /// Adds one pulse as measured. Returns whether it joined the current run; a pulse that did not is a stray (the run
+    /// goes on) or, after another stray or too many, the first pulse of a new run.
     /// </summary>
     public bool Add(double seconds)
     {
-        if (_count > 0 && _held > 0)
+        if (_count > 0 && Math.Abs(seconds - _mean) <= Tolerance * _mean)
         {
-            // The pulse before was held: only together with this one may it stay in the run.
-            double sum = _held + seconds;
-            _held = 0;
-            if (Near(sum, 2 * _mean))
-            {
-                Join(sum / 2);
-                Join(sum / 2);
-                return true;
-            }
-
-            if (Near(sum, _mean))
-            {
-                Join(sum);
-                return true;
-            }
-        }
-        else if (_count > 0 && Near(seconds, _mean))
-        {
-            Join(seconds);
+            _count++;
+            _mean += (seconds - _mean) / Math.Min(_count, MeanWindow);
+            _missesInRow = 0;
             return true;
         }
-        else if (_count > 0)
+
+        _misses++;
+        _missesInRow++;
+        if (_count == 0 || _missesInRow > MissesInRowAllowed || _misses * PulsesPerMissAllowed > _count)
         {
-            _held = seconds;
-            return false;
+            _count = 1;
+            _mean = seconds;
+            _misses = 0;
+            _missesInRow = 0;
         }
 
-        _count = 1;
-        _mean = seconds;
-        _held = 0;
         return false;
     }
 
@@ -132,14 +119,7 @@ public struct LeadInFinder
     {
         _count = 0;
         _mean = 0;
-        _held = 0;
-    }
-
-    private static bool Near(double seconds, double mean) => Math.Abs(seconds - mean) <= Tolerance * mean;
-
-    private void Join(double seconds)
-    {
-        _count++;
-        _mean += (seconds - _mean) / Math.Min(_count, MeanWindow);
+        _misses = 0;
+        _missesInRow = 0;
     }
 }

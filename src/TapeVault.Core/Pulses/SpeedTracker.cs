@@ -1,16 +1,14 @@
 namespace TapeVault.Core.Pulses;
 
 /// <summary>
-/// Playback speed relative to nominal. The lead-in (a long run of one class) calibrates it: as a plain mean of its
-/// pulses, or from the mean of the run <see cref="LeadInFinder"/> found; inside a block a slow first-order loop
-/// follows drift and wow, fed only by confident decisions so that a bad pulse cannot drag it.
+/// Playback speed relative to nominal. The lead-in (a long run of one class, found by <see cref="LeadInFinder"/>)
+/// calibrates it from the run's mean; inside a block a slow first-order loop follows drift and wow, fed only by
+/// confident decisions so that a bad pulse cannot drag it.
 /// </summary>
 public struct SpeedTracker
 {
     // Time constant of about 30 pulses: fast enough for wow of a few hertz, slow next to any bit.
     private const double LoopGain = 1.0 / 30;
-    private double _calibrationSum;
-    private int _calibrationCount;
 
     public SpeedTracker()
     {
@@ -28,27 +26,6 @@ public struct SpeedTracker
         }
 
         Speed = speed;
-    }
-
-    public void ResetCalibration()
-    {
-        _calibrationSum = 0;
-        _calibrationCount = 0;
-    }
-
-    /// <summary>
-    /// Adds one lead-in pulse: <paramref name="measuredSeconds"/> of a class whose nominal is <paramref name="nominalSeconds"/>.
-    /// The speed in use changes only once <paramref name="commit"/> says the run is long enough to be a lead-in, so a
-    /// short run of look-alike pulses in noise cannot mislead the classification of the real lead-in.
-    /// </summary>
-    public void Calibrate(double measuredSeconds, double nominalSeconds, bool commit)
-    {
-        _calibrationSum += measuredSeconds / nominalSeconds;
-        _calibrationCount++;
-        if (commit)
-        {
-            Speed = _calibrationCount / _calibrationSum;
-        }
     }
 
     /// <summary>Follows the speed from a pulse classified with a margin well clear of its boundary.</summary>

@@ -141,6 +141,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         switch (_mode)
         {
             case Mode.Hunting:
+            case Mode.LeadIn:
                 // The lead-in is judged by its regularity alone; its mean gives the speed, and only then are pulses
                 // classified, so a tape off speed loses no lead-in pulse to a classification window.
                 if (_leadIn.Add(seconds) && _leadIn.Found)
@@ -148,28 +149,11 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                     _speed.Calibrate(_leadIn.Speed);
                     _mode = Mode.LeadIn;
                 }
-
-                break;
-            case Mode.LeadIn:
-                int pulseClass = _classifier.ClassOf(seconds, _speed.Speed);
-                if (pulseClass == _leadInClass)
-                {
-                    // Still the lead-in, if a jittery pulse: the finder keeps the run or ends it.
-                    _leadIn.Add(seconds);
-                    if (_leadIn.Found)
-                    {
-                        _speed.Calibrate(_leadIn.Speed);
-                    }
-                    else
-                    {
-                        _mode = Mode.Hunting;
-                    }
-                }
-                else
+                else if (_mode == Mode.LeadIn)
                 {
                     _syncIndex = 0;
                     _mode = Mode.Sync;
-                    OnSyncPulse(pulseClass, endSample);
+                    OnSyncPulse(_classifier.ClassOf(seconds, _speed.Speed), endSample);
                 }
 
                 break;
@@ -188,9 +172,8 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     {
         if (pulseClass != _sync[_syncIndex])
         {
-            // Not the sync: a lead-in must be found again, as long as the format demands, before the next sync.
+            // Not the sync: hunt again. The lead-in run is kept, so a stray pulse inside a long lead-in costs nothing.
             _mode = Mode.Hunting;
-            _leadIn.Reset();
             return;
         }
 

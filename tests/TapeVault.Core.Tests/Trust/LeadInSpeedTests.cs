@@ -180,8 +180,8 @@ public sealed class LeadInSpeedTests(RoundTripFolder folder) : IClassFixture<Rou
     }
 
     /// <summary>
-    /// Biphase classes are a factor of two apart, so its classification window (half way to the boundary) spans
-    /// ±17 % and a biphase tape 7 or 11 % off speed already kept its lead-in: this guards that it stays so.
+    /// Biphase classes are a factor of two apart, so its classification window (half way to the boundary) already
+    /// spans ±17 % and this passed before the lead-in was found by regularity too; it guards the shared finder.
     /// </summary>
     [Theory]
     [InlineData(0.93)]
