@@ -2,8 +2,8 @@ namespace TapeVault.Core.Pulses;
 
 /// <summary>
 /// Finds a lead-in by its regularity rather than by classifying its pulses: a long run of near-equal pulses, each
-/// within <see cref="Tolerance"/> of the run's running mean, whose mean lies where the lead-in class would read at a
-/// playback speed within <see cref="MaximumSpeedError"/> of nominal. Classification windows are narrower than that
+/// close to the run's running mean, whose mean lies where the lead-in class would read at a playback speed within
+/// <see cref="MaximumSpeedError"/> of nominal. Classification windows are narrower than that
 /// (a boundary between classes 25 % apart lies 12 % from each), so judging each pulse against them before the speed
 /// is known loses lead-ins on tapes a few per cent off speed; the run's mean is the speed calibration itself.
 /// <para>
@@ -15,36 +15,24 @@ public struct LeadInFinder
     /// <summary>How far off nominal a tape may play and still have its lead-in found (±12 %).</summary>
     public const double MaximumSpeedError = 0.12;
 
-    /// <summary>
-    /// How far a pulse may lie from the run's running mean and still belong to the run. Wow, flutter and edge jitter
-    /// move a lead-in pulse by a few per cent at most (common practice); neighbouring classes differ by 25 % or more
-    /// (the profile loader's rule), so a pulse of another class never joins.
-    /// </summary>
-    public const double Tolerance = 0.06;
-
     // The running mean follows the last few dozen pulses, so the speed it gives is the speed where the lead-in ends,
     // next to the block, while one jittery pulse moves it by under 0.1 %.
     private const int MeanWindow = 64;
-
-    // A run survives strays: noise that moves one edge makes one pulse long and the next short, two in a row. It does
-    // not survive three in a row, nor more than one stray in sixteen pulses.
-    private const int MissesInRowAllowed = 2;
-    private const int PulsesPerMissAllowed = 16;
 
     private readonly double _nominal;
     private readonly int _minimum;
     private readonly double _lowestMean;
     private readonly double _highestMean;
+    private readonly double _tolerance;
     private double _mean;
     private int _count;
-    private int _misses;
-    private int _missesInRow;
 
     /// <param name="nominalSeconds">The lead-in pulse's nominal duration.</param>
     /// <param name="minimumCount">Pulses the run must hold before it counts as a lead-in.</param>
     /// <param name="lowestMeanSeconds">The shortest run mean accepted (at most the nominal over 1 + <see cref="MaximumSpeedError"/>).</param>
     /// <param name="highestMeanSeconds">The longest run mean accepted.</param>
-    public LeadInFinder(double nominalSeconds, int minimumCount, double lowestMeanSeconds, double highestMeanSeconds)
+    /// <param name="tolerance">How far (a fraction of the run's mean) each pulse of the run may lie from its running mean.</param>
+    public LeadInFinder(double nominalSeconds, int minimumCount, double lowestMeanSeconds, double highestMeanSeconds, double tolerance)
     {
         if (!(nominalSeconds > 0) || !(lowestMeanSeconds > 0) || !(lowestMeanSeconds <= nominalSeconds) || !(highestMeanSeconds >= nominalSeconds))
         {
@@ -52,6 +40,12 @@ public struct LeadInFinder
         }
 
         ArgumentOutOfRangeException.ThrowIfLessThan(minimumCount, 2);
+        if (!(tolerance > 0 && tolerance < 1))
+        {
+            throw new ArgumentOutOfRangeException(nameof(tolerance), tolerance, "A tolerance is a fraction between 0 and 1.");
+        }
+
+        _tolerance = tolerance;
         _nominal = nominalSeconds;
         _minimum = minimumCount;
         _lowestMean = lowestMeanSeconds;
@@ -61,18 +55,22 @@ public struct LeadInFinder
     /// <summary>
     /// The finder for a lead-in of class <paramref name="index"/>: its mean may lie anywhere a speed within ±12 % puts
     /// it, but never past the class's own decision boundaries, so a run of a neighbouring class played at nominal
-    /// speed is never taken for the lead-in.
+    /// speed is never taken for the lead-in. Each pulse must lie within half the way from the class's nominal to its
+    /// nearer boundary (in ratio) of the run's mean: the window a lead-in pulse always had, centred on what the tape
+    /// plays rather than on the nominal, so it no longer depends on the speed.
     /// </summary>
     public static LeadInFinder ForClass(PulseClassifier classifier, int index, int minimumCount)
     {
         ArgumentNullException.ThrowIfNull(classifier);
         double nominal = classifier.NominalSeconds(index);
         var (low, high) = classifier.ClassRange(index);
+        double halfWay = 0.5 * Math.Min(Math.Log(nominal / low), Math.Log(high / nominal));
         return new LeadInFinder(
             nominal,
             minimumCount,
             Math.Max(nominal / (1 + MaximumSpeedError), low),
-            Math.Min(nominal / (1 - MaximumSpeedError), high));
+            Math.Min(nominal / (1 - MaximumSpeedError), high),
+            Math.Exp(halfWay) - 1);
     }
 
     /// <summary>Pulses in the current run.</summary>
@@ -88,29 +86,19 @@ public struct LeadInFinder
     public readonly double Speed => _nominal / _mean;
 
     /// <summary>
-    /// Adds one pulse as measured. Returns whether it joined the current run; a pulse that did not is a stray (the run
-    /// goes on) or, after another stray or too many, the first pulse of a new run.
+    /// Adds one pulse as measured. Returns whether it joined the current run; a pulse that did not starts a new run.
     /// </summary>
     public bool Add(double seconds)
     {
-        if (_count > 0 && Math.Abs(seconds - _mean) <= Tolerance * _mean)
+        if (_count > 0 && Math.Abs(seconds - _mean) <= _tolerance * _mean)
         {
             _count++;
             _mean += (seconds - _mean) / Math.Min(_count, MeanWindow);
-            _missesInRow = 0;
             return true;
         }
 
-        _misses++;
-        _missesInRow++;
-        if (_count == 0 || _missesInRow > MissesInRowAllowed || _misses * PulsesPerMissAllowed > _count)
-        {
-            _count = 1;
-            _mean = seconds;
-            _misses = 0;
-            _missesInRow = 0;
-        }
-
+        _count = 1;
+        _mean = seconds;
         return false;
     }
 
@@ -119,7 +107,5 @@ public struct LeadInFinder
     {
         _count = 0;
         _mean = 0;
-        _misses = 0;
-        _missesInRow = 0;
     }
 }

@@ -172,8 +172,9 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     {
         if (pulseClass != _sync[_syncIndex])
         {
-            // Not the sync: hunt again. The lead-in run is kept, so a stray pulse inside a long lead-in costs nothing.
+            // Not the sync: a lead-in must be found again, as long as the format demands, before the next sync.
             _mode = Mode.Hunting;
+            _leadIn.Reset();
             return;
         }
 

@@ -77,23 +77,21 @@ public sealed class LeadInFinderTests
     }
 
     [Fact]
-    public void One_edge_moved_by_noise_does_not_end_the_run_but_three_strays_in_a_row_do()
+    public void A_pulse_off_the_run_by_less_than_half_the_way_to_a_neighbour_keeps_it_and_another_class_ends_it()
     {
         var finder = NewFinder();
         Feed(ref finder, 390e-6, 1.07, 300, jitter: 0.02, seed: 7);
         Assert.True(finder.Found);
 
-        // An edge late by a tenth of a pulse: one pulse 10 % long, the next 10 % short.
+        // The medium class's nearer boundary (the geometric mean with the long class) lies 17.7 % above it; half way
+        // is 8.5 %: a pulse 7 % long still belongs to the run, wherever the speed has put the run.
         double pulse = 390e-6 / 1.07;
-        Assert.False(finder.Add(pulse * 1.1));
-        Assert.False(finder.Add(pulse * 0.9));
-        Assert.True(finder.Add(pulse));
+        Assert.True(finder.Add(pulse * 1.07));
         Assert.True(finder.Found);
 
-        // Three pulses of another class in a row: the run is over.
-        finder.Add(540e-6);
-        finder.Add(540e-6);
-        finder.Add(540e-6);
+        // A long pulse (the next class) ends the run.
+        Assert.False(finder.Add(540e-6 / 1.07));
         Assert.False(finder.Found);
+        Assert.Equal(1, finder.Count);
     }
 }
