@@ -51,11 +51,13 @@ public static class BlockPositioner
                 key = FindOverlapping(trusted, c)?.Identity.Key
                     ?? (copies > 1 ? FindNeighbouringCopy(trusted, c)?.Identity.Key : null)
                     ?? (c.Truncated && c.Payload.IsEmpty && !NamesItself(c) ? FindNearest(trusted, c)?.Identity.Key : null)
-                    ?? c.Identity.Key;
+                    ?? string.Empty;
             }
 
             keyed.Add((c, key));
         }
+
+        KeyUnanchoredReadings(keyed);
 
         // A position is one identity over one stretch of tape: copies and other settings' readings overlap or follow
         // closely; the same identity much later (a block number reused by the next file) is a new position. Copies
@@ -127,6 +129,156 @@ public static class BlockPositioner
 
         placed.Sort((a, b) => a.Position != b.Position ? a.Position.CompareTo(b.Position) : a.StartSeconds.CompareTo(b.StartSeconds));
         return placed;
+    }
+
+    /// <summary>
+    /// Failed readings that no clean reading anchors (the empty key) are places on the tape all the same: readings of
+    /// different settings that start at the same sync are one place. A header that other readings of the capture share
+    /// keeps its identity; a header nobody else read is a misread, not a block of its own, and takes the identity most
+    /// readings of its place agree on, or, when none does, that of the place it overlaps: a setting that does not suit
+    /// the capture garbles headers and may run past a block's end on a misread length, and neither makes a new block.
+    /// </summary>
+    private static void KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed)
+    {
+        var support = new Dictionary<string, int>(StringComparer.Ordinal);
+        foreach (var (candidate, key) in keyed)
+        {
+            string own = candidate.Identity.Key;
+            support[own] = support.GetValueOrDefault(own) + 1;
+        }
+
+        // Places in order of start: the first reading of each, and the readings that joined it.
+        var places = new List<List<int>>();
+        var placeOf = new int[keyed.Count];
+        Array.Fill(placeOf, -1);
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            if (keyed[i].Key.Length > 0)
+            {
+                continue;
+            }
+
+            var c = keyed[i].Candidate;
+            List<int>? joined = null;
+            for (int p = places.Count - 1; p >= 0 && p >= places.Count - 16; p--)
+            {
+                var first = keyed[places[p][0]].Candidate;
+                if (SameSync(first, c))
+                {
+                    joined = places[p];
+                    break;
+                }
+            }
+
+            if (joined is null)
+            {
+                places.Add([i]);
+                placeOf[i] = places.Count - 1;
+            }
+            else
+            {
+                joined.Add(i);
+                placeOf[i] = placeOf[joined[0]];
+            }
+        }
+
+        // Each place's identity: the one most readings of the capture carry; then the most confident reading's.
+        var placeKey = new string[places.Count];
+        var placeSupport = new int[places.Count];
+        for (int p = 0; p < places.Count; p++)
+        {
+            int best = places[p][0];
+            foreach (int i in places[p])
+            {
+                var c = keyed[i].Candidate;
+                var b = keyed[best].Candidate;
+                int sc = support[c.Identity.Key];
+                int sb = support[b.Identity.Key];
+                if (sc > sb || (sc == sb && c.Confidence > b.Confidence))
+                {
+                    best = i;
+                }
+            }
+
+            placeKey[p] = keyed[best].Candidate.Identity.Key;
+            placeSupport[p] = support[placeKey[p]];
+        }
+
+        for (int p = 0; p < places.Count; p++)
+        {
+            string key = placeKey[p];
+            if (placeSupport[p] <= 1)
+            {
+                key = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0]) ?? key;
+            }
+
+            foreach (int i in places[p])
+            {
+                // A header that other readings share is read right as far as anyone can tell: it keeps its identity.
+                string own = keyed[i].Candidate.Identity.Key;
+                keyed[i] = (keyed[i].Candidate, support[own] > 1 ? own : key);
+            }
+        }
+    }
+
+    /// <summary>
+    /// The key of the best-supported reading that overlaps most of the place's first reading, or most of which that
+    /// reading overlaps: an anchored reading's key, or another place's.
+    /// </summary>
+    private static string? OverlappedKey(
+        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first)
+    {
+        var c = keyed[first].Candidate;
+        string? best = null;
+        int bestSupport = 1;
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var other = keyed[i].Candidate;
+            if (other.StartSeconds >= c.EndSeconds)
+            {
+                break;
+            }
+
+            if (placeOf[i] == place || !MostlyOverlaps(c, other))
+            {
+                continue;
+            }
+
+            string key = keyed[i].Key;
+            int otherSupport;
+            if (placeOf[i] >= 0)
+            {
+                key = placeKey[placeOf[i]];
+                otherSupport = placeSupport[placeOf[i]];
+            }
+            else
+            {
+                otherSupport = int.MaxValue;
+            }
+
+            if (otherSupport > bestSupport)
+            {
+                best = key;
+                bestSupport = otherSupport;
+            }
+        }
+
+        return best;
+    }
+
+    /// <summary>Two readings of one block by different settings start at the same sync: within a quarter of the shorter, and 50 ms.</summary>
+    private static bool SameSync(BlockCandidate a, BlockCandidate b)
+    {
+        double shorter = Math.Min(a.EndSeconds - a.StartSeconds, b.EndSeconds - b.StartSeconds);
+        return Math.Abs(a.StartSeconds - b.StartSeconds) <= Math.Min(0.05, 0.25 * Math.Max(shorter, 0));
+    }
+
+    /// <summary>Whether the two readings overlap over at least half of the shorter one.</summary>
+    private static bool MostlyOverlaps(BlockCandidate a, BlockCandidate b)
+    {
+        double overlap = Math.Min(a.EndSeconds, b.EndSeconds) - Math.Max(a.StartSeconds, b.StartSeconds);
+        double shorter = Math.Min(a.EndSeconds - a.StartSeconds, b.EndSeconds - b.StartSeconds);
+        return overlap > 0 && overlap >= 0.5 * shorter;
     }
 
     /// <summary>Per position: a clean candidate of highest confidence, else the most confident of any status.</summary>

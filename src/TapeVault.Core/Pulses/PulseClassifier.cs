@@ -53,15 +53,14 @@ public sealed class PulseClassifier
     }
 
     /// <summary>
-    /// The durations (at nominal speed) within <paramref name="fraction"/> of the way from class <paramref name="index"/>'s
-    /// nominal to its nearer boundary, in ratio terms: the pulses that are clearly of that class.
+    /// The durations (at nominal speed) that classify as class <paramref name="index"/>: from the boundary (or the
+    /// shortest accepted duration) below its nominal to the boundary (or the longest accepted) above it.
     /// </summary>
-    public (double Low, double High) AcceptanceWindow(int index, double fraction)
+    public (double Low, double High) ClassRange(int index)
     {
         double below = index > 0 ? _logBoundary[index - 1] : _logLowest;
         double above = index < _logBoundary.Length ? _logBoundary[index] : _logHighest;
-        double halfWidth = fraction * Math.Min(_logNominal[index] - below, above - _logNominal[index]);
-        return (Math.Exp(_logNominal[index] - halfWidth), Math.Exp(_logNominal[index] + halfWidth));
+        return (Math.Exp(below), Math.Exp(above));
     }
 
     /// <summary>Only the class of a pulse (−1 for none): no logarithm, for the hot path that needs no distances.</summary>

@@ -49,7 +49,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     private readonly ulong _syncMask;
     private SpeedTracker _speed = new();
     private Mode _mode = Mode.Hunting;
-    private int _run;
+    private LeadInFinder _leadIn;
     private double _lastEdge = double.NaN;
     private bool _atBoundary;
     private int _bitFirstDecision = -1;
@@ -69,6 +69,9 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         _sampleRate = sampleRate;
         _assembler = assembler;
         _framer = new SyncByteFramer(profile.Framing, assembler);
+
+        // A lead-in of zeros has a transition every half cell: a run of near-equal half cells, at any speed in range.
+        _leadIn = LeadInFinder.ForClass(_classifier, Half, 2 * _encoding.LeadInMinimumBits);
         foreach (char c in _encoding.SyncBits)
         {
             _syncPattern = (_syncPattern << 1) | (c == '1' ? 1u : 0u);
@@ -147,7 +150,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
             switch (_mode)
             {
                 case Mode.Hunting:
-                    Hunt(decision, seconds, bit);
+                    Hunt(seconds, bit);
                     break;
                 case Mode.Sync:
                 case Mode.Data:
@@ -173,29 +176,23 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         }
 
         _mode = Mode.Hunting;
-        _run = 0;
+        _leadIn.Reset();
         _bridging = false;
         _clock.Stop();
     }
 
-    private void Hunt(PulseDecision decision, double seconds, bool bit)
+    private void Hunt(double seconds, bool bit)
     {
-        if (decision.Class != Half || Math.Abs(decision.Residual) > 0.5 * decision.Scale)
+        // Found by regularity, not by classification: the speed is not known until the lead-in has been found.
+        if (!_leadIn.Add(seconds) || !_leadIn.Found)
         {
-            _run = 0;
             return;
         }
 
-        if (_run == 0)
-        {
-            _speed.ResetCalibration();
-        }
-
-        _run++;
-        _speed.Calibrate(seconds, _encoding.CellSeconds / 2, commit: _run >= 2 * _encoding.LeadInMinimumBits);
+        _speed.Calibrate(_leadIn.Speed);
 
         // In a run of zeros the transitions alternate: boundary, mid-cell (zero direction), boundary...
-        if (_run >= 2 * _encoding.LeadInMinimumBits && !bit)
+        if (!bit)
         {
             _mode = Mode.Sync;
             _atBoundary = false;
@@ -275,6 +272,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
             if ((_shift & _syncMask) == _syncPattern)
             {
                 _mode = Mode.Data;
+                _leadIn.Reset();
                 _clock.Start(sample, _encoding.CellSeconds * _sampleRate / _speed.Speed);
                 _framer.Reset();
                 _assembler.Begin(sample, BlockStartEvidence.LeadInAndSync);
@@ -282,7 +280,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
             else if (bit && _bitsSinceLeadIn > 4 * _encoding.SyncBits.Length)
             {
                 _mode = Mode.Hunting;
-                _run = 0;
+                _leadIn.Reset();
             }
 
             return;
@@ -293,7 +291,6 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         if (_framer.AddBit(bit, first, sample))
         {
             _mode = Mode.Hunting;
-            _run = 0;
             _clock.Stop();
         }
     }

@@ -8,8 +8,8 @@ namespace TapeVault.Core.Symbols;
 
 /// <summary>
 /// Pulse-width formats: a pulse is a whole cycle between two counted edges (or two half cycles when a setting counts
-/// both edges). A lead-in of one class calibrates the speed, the sync sequence starts a block, and each bit is a
-/// short sequence of classes.
+/// both edges). A lead-in of one class is found by its regularity, whatever the speed within ±12 %, and calibrates the
+/// speed before any pulse is classified; the sync sequence starts a block, and each bit is a short sequence of classes.
 /// </summary>
 public sealed class PulseWidthDecoder : ISymbolDecoder
 {
@@ -28,7 +28,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private readonly int[] _pattern = new int[64];
     private SpeedTracker _speed = new();
     private Mode _mode = Mode.Hunting;
-    private int _run;
+    private LeadInFinder _leadIn;
     private int _syncIndex;
     private int _patternLength;
     private int _patternFirstDecision;
@@ -36,7 +36,6 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private double _lastEdge = double.NaN;
     private double _glitchCarry;
     private double _pendingHalf = double.NaN;
-    private readonly (double Low, double High) _leadInBounds;
 
     public PulseWidthDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, BlockAssembler assembler)
     {
@@ -55,7 +54,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _assembler = assembler;
         _framer = new SyncByteFramer(profile.Framing, assembler);
         _leadInClass = IndexOf(_encoding.LeadInClass);
-        _leadInBounds = _classifier.AcceptanceWindow(_leadInClass, 0.5);
+        _leadIn = LeadInFinder.ForClass(_classifier, _leadInClass, _encoding.LeadInMinimum);
         _sync = Indices(_encoding.Sync);
         _zero = Indices(_encoding.Zero);
         _one = Indices(_encoding.One);
@@ -134,61 +133,48 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         }
 
         _mode = Mode.Hunting;
-        _run = 0;
+        _leadIn.Reset();
     }
 
     private void OnCycle(double seconds, double endSample, float level)
     {
-        // Hunting and sync need only the class; distances (a logarithm each) are worked out for data pulses alone.
-        var decision = _mode == Mode.Data
-            ? _classifier.Classify(seconds, _speed.Speed)
-            : new PulseDecision(_classifier.ClassOf(seconds, _speed.Speed), 0, 0, 1);
         switch (_mode)
         {
             case Mode.Hunting:
             case Mode.LeadIn:
-                if (decision.Class == _leadInClass && seconds * _speed.Speed >= _leadInBounds.Low && seconds * _speed.Speed <= _leadInBounds.High)
+                // The lead-in is judged by its regularity alone; its mean gives the speed, and only then are pulses
+                // classified, so a tape off speed loses no lead-in pulse to a classification window.
+                if (_leadIn.Add(seconds) && _leadIn.Found)
                 {
-                    if (_run == 0)
-                    {
-                        _speed.ResetCalibration();
-                    }
-
-                    _run++;
-                    _speed.Calibrate(seconds, _classifier.NominalSeconds(_leadInClass), commit: _run >= _encoding.LeadInMinimum);
-                    if (_run >= _encoding.LeadInMinimum)
-                    {
-                        _mode = Mode.LeadIn;
-                    }
+                    _speed.Calibrate(_leadIn.Speed);
+                    _mode = Mode.LeadIn;
                 }
                 else if (_mode == Mode.LeadIn)
                 {
                     _syncIndex = 0;
                     _mode = Mode.Sync;
-                    OnSyncPulse(decision, endSample);
-                }
-                else
-                {
-                    _run = 0;
+                    OnSyncPulse(_classifier.ClassOf(seconds, _speed.Speed), endSample);
                 }
 
                 break;
             case Mode.Sync:
-                OnSyncPulse(decision, endSample);
+                OnSyncPulse(_classifier.ClassOf(seconds, _speed.Speed), endSample);
                 break;
             case Mode.Data:
+                // Data pulses alone need the distances (a logarithm each).
                 _assembler.NoteLevel(level);
-                OnDataPulse(decision, seconds, endSample);
+                OnDataPulse(_classifier.Classify(seconds, _speed.Speed), seconds, endSample);
                 break;
         }
     }
 
-    private void OnSyncPulse(PulseDecision decision, double endSample)
+    private void OnSyncPulse(int pulseClass, double endSample)
     {
-        if (decision.Class != _sync[_syncIndex])
+        if (pulseClass != _sync[_syncIndex])
         {
+            // Not the sync: a lead-in must be found again, as long as the format demands, before the next sync.
             _mode = Mode.Hunting;
-            _run = 0;
+            _leadIn.Reset();
             return;
         }
 
@@ -199,6 +185,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             _patternLength = 0;
             _recentInvalid = 0;
             _framer.Reset();
+            _leadIn.Reset();
             _assembler.Begin(endSample, BlockStartEvidence.LeadInAndSync);
         }
     }
@@ -265,7 +252,6 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         if (_framer.AddBit(bit, _patternFirstDecision, endSample))
         {
             _mode = Mode.Hunting;
-            _run = 0;
         }
     }
 

@@ -1,0 +1,63 @@
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Tests.Merge;
+using Xunit;
+
+namespace TapeVault.Core.Tests.Trust;
+
+/// <summary>
+/// A position is a place on the tape. Readings by different settings that start at the same sync are one place; a
+/// reading whose header nobody else read (a garbled block number or name) joins that place instead of making a
+/// position of its own. The profile is the test-local biphase format of <see cref="LeadInProfiles"/>.
+/// </summary>
+public sealed class PositionsMisreadTests
+{
+    private static readonly FormatProfile Profile = LeadInProfiles.Biphase;
+
+    private static BlockCandidate FailedReading(int blockNumber, double start, string setting, byte? misreadNumber = null)
+    {
+        var written = Readings.Written(Profile, blockNumber);
+        if (misreadNumber is { } number)
+        {
+            written[0] = number;
+        }
+
+        // A payload byte read wrong: the checksum fails, so no reading here is clean.
+        return Readings.Of(Profile, written, start, 0, setting, changedPayload: new Dictionary<int, byte> { [3] = (byte)(written[Profile.Layout.HeaderBytes + 3] ^ 0x10) });
+    }
+
+    [Fact]
+    public void A_misread_header_at_the_same_sync_as_a_shared_one_joins_its_position()
+    {
+        // Block 5, failed in every setting: two settings read its header alike, a third misread the number as 77.
+        var readings = new[]
+        {
+            FailedReading(5, 3.000, "s0"),
+            FailedReading(5, 3.000, "s1"),
+            FailedReading(5, 3.002, "s2", misreadNumber: 77),
+            FailedReading(6, 4.500, "s0"),
+        };
+
+        var placed = BlockPositioner.Place(readings);
+
+        // Two blocks were written, so two positions (before, the misread made a third).
+        Assert.Equal(2, placed.Select(c => c.Position).Distinct().Count());
+        Assert.Single(placed.Where(c => c.SettingName == "s2").Select(c => c.Position).Intersect(placed.Where(c => c.StartSeconds < 4).Select(c => c.Position)).Distinct());
+    }
+
+    [Fact]
+    public void A_misread_header_alone_at_its_place_is_still_a_position()
+    {
+        // Nothing else read block 6's place: its garbled reading is the only evidence of a block there.
+        var readings = new[]
+        {
+            FailedReading(5, 3.000, "s0"),
+            FailedReading(5, 3.000, "s1"),
+            FailedReading(6, 4.500, "s2", misreadNumber: 99),
+        };
+
+        var placed = BlockPositioner.Place(readings);
+
+        Assert.Equal(2, placed.Select(c => c.Position).Distinct().Count());
+    }
+}
