@@ -73,7 +73,7 @@ public static class ImageCommand
         bool partial = args.Flag("partial");
         args.RejectUnknown();
         string path = ExistingFile(args.Positional[1]);
-        string folder = Path.GetFullPath(args.Positional[2]);
+        string folder = Files.OutputPath(args.Positional[2]);
         if (File.Exists(folder))
         {
             throw new UsageException($"The output folder {args.Positional[2]} is a file.");
