@@ -23,7 +23,6 @@ public static class ArchiveCommands
 
     public static string PublishUsage => $"publish COLLECTION-ID OUTDIR {ArchiveSession.OptionsUsage}";
 
-    public static IReadOnlySet<string> ExportFlags { get; } = new HashSet<string>(StringComparer.Ordinal) { "zip" };
 
     public static int Verify(CommandLine args, TextWriter output, TextWriter error, CliSettings settings)
     {

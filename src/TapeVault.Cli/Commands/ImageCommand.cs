@@ -16,7 +16,6 @@ public static class ImageCommand
 
     public const string Usage = "image verify FILE | image extract FILE DIR [--partial]";
 
-    public static IReadOnlySet<string> Flags { get; } = new HashSet<string>(StringComparer.Ordinal) { "partial" };
 
     public static int Run(CommandLine args, TextWriter output, TextWriter error)
     {
