@@ -98,17 +98,17 @@ public sealed class TrailingSlashTests : IDisposable
     }
 }
 
-/// <summary>A temporary archive for the archive commands: collection 1 holding item T-0001.</summary>
+/// <summary>A temporary archive for the archive commands: collection 1 holding one item (T-0001 unless told).</summary>
 internal static class CliArchive
 {
-    public static (string Database, string Store) Create(string database, string store)
+    public static (string Database, string Store) Create(string database, string store, string accession = "T-0001")
     {
         var args = new CommandLine(["--database", database, "--store", store], new HashSet<string>());
         using (var session = ArchiveSession.Open(args, new CliSettings()))
         {
             var curator = new CuratorActions(session.Get<ArchiveDbContext>(), ProfileCatalog.BuiltIn);
             var collection = curator.CreateCollectionAsync("Test shelf", null, "test").GetAwaiter().GetResult();
-            curator.CreateItemAsync(collection.Id, "T-0001", "Test tape", null, null, null, "test").GetAwaiter().GetResult();
+            curator.CreateItemAsync(collection.Id, accession, "Test tape", null, null, null, "test").GetAwaiter().GetResult();
         }
 
         Microsoft.Data.Sqlite.SqliteConnection.ClearAllPools();
