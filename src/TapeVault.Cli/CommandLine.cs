@@ -14,8 +14,17 @@ public sealed class CommandLine
     private readonly Dictionary<string, string?> _options = new(StringComparer.Ordinal);
     private readonly HashSet<string> _read = new(StringComparer.Ordinal);
 
-    public CommandLine(IEnumerable<string> args, IReadOnlySet<string> flags)
+    private readonly IReadOnlySet<string>? _known;
+
+    /// <summary>Parses the words of the command <paramref name="help"/> describes; an option it does not list is refused at once.</summary>
+    public CommandLine(IEnumerable<string> args, CommandHelp help)
+        : this(args, (help ?? throw new ArgumentNullException(nameof(help))).Flags, help.Known)
     {
+    }
+
+    public CommandLine(IEnumerable<string> args, IReadOnlySet<string> flags, IReadOnlySet<string>? known = null)
+    {
+        _known = known;
         ArgumentNullException.ThrowIfNull(args);
         ArgumentNullException.ThrowIfNull(flags);
         using var e = args.GetEnumerator();
@@ -32,7 +41,12 @@ public sealed class CommandLine
                     value = name[(eq + 1)..];
                     name = name[..eq];
                 }
-                else if (!flags.Contains(name))
+                if (known is not null && !known.Contains(name))
+                {
+                    throw new UsageException(Unknown(name, known));
+                }
+
+                if (value is null && !flags.Contains(name))
                 {
                     value = e.MoveNext() ? e.Current : throw new UsageException($"The option --{name} needs a value.");
                 }
@@ -82,13 +96,19 @@ public sealed class CommandLine
         return value;
     }
 
+    /// <summary>"Unknown option --profle; did you mean --profile?", or without the question when nothing is near.</summary>
+    private static string Unknown(string name, IEnumerable<string> known) =>
+        CommandHelp.Nearest(name, known) is { } near
+            ? $"Unknown option --{name}; did you mean --{near}?"
+            : $"Unknown option --{name}.";
+
     public void RejectUnknown()
     {
         foreach (string name in _options.Keys)
         {
             if (!_read.Contains(name))
             {
-                throw new UsageException($"Unknown option --{name}.");
+                throw new UsageException(Unknown(name, _known ?? _read));
             }
         }
     }

@@ -24,26 +24,38 @@ namespace TapeVault.Cli
 
             if (args[0] is "help" or "--help" or "-h")
             {
-                WriteHelp(output);
-                return 0;
+                if (args.Length == 1)
+                {
+                    WriteHelp(output);
+                    return 0;
+                }
+
+                return WriteCommandHelp(args[1], output, error);
+            }
+
+            // "tapevault X --help" or "-h" anywhere after the command: that command's own help, nothing run.
+            if (args.Skip(1).Any(a => a is "--help" or "-h"))
+            {
+                return WriteCommandHelp(args[0], output, error);
             }
 
             try
             {
-                var rest = args.Skip(1);
+                var help = CommandHelp.Find(args[0]) ?? throw new UsageException(UnknownCommand(args[0]));
+                var rest = new CommandLine(args.Skip(1), help);
                 return args[0] switch
                 {
-                    "decode" => DecodeCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
-                    "merge" => MergeCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
-                    "synth" => SynthCommand.Run(new CommandLine(rest, SynthCommand.Flags), output),
-                    "profiles" => ProfilesCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
-                    "demo" => DemoCommand.Run(new CommandLine(rest, new HashSet<string>()), output),
-                    "image" => ImageCommand.Run(new CommandLine(rest, ImageCommand.Flags), output, error),
-                    "verify" => ArchiveCommands.Verify(new CommandLine(rest, new HashSet<string>()), output, error, CliSettings.Load()),
-                    "export" => ArchiveCommands.Export(new CommandLine(rest, ArchiveCommands.ExportFlags), output, CliSettings.Load()),
-                    "publish" => ArchiveCommands.Publish(new CommandLine(rest, new HashSet<string>()), output, CliSettings.Load()),
-                    "users" => UsersCommand.Run(new CommandLine(rest, UsersCommand.Flags), output, Console.In, CliSettings.Load()),
-                    _ => throw new UsageException($"Unknown command '{args[0]}'; run 'tapevault help'."),
+                    "decode" => DecodeCommand.Run(rest, output),
+                    "merge" => MergeCommand.Run(rest, output),
+                    "synth" => SynthCommand.Run(rest, output),
+                    "profiles" => ProfilesCommand.Run(rest, output),
+                    "demo" => DemoCommand.Run(rest, output),
+                    "image" => ImageCommand.Run(rest, output, error),
+                    "verify" => ArchiveCommands.Verify(rest, output, error, CliSettings.Load()),
+                    "export" => ArchiveCommands.Export(rest, output, CliSettings.Load()),
+                    "publish" => ArchiveCommands.Publish(rest, output, CliSettings.Load()),
+                    "users" => UsersCommand.Run(rest, output, Console.In, CliSettings.Load()),
+                    _ => throw new UsageException(UnknownCommand(args[0])),
                 };
             }
             catch (Exception e) when (e is UsageException or CaptureFormatException or ProfileException)
@@ -63,6 +75,23 @@ namespace TapeVault.Cli
             }
         }
 
+        private static string UnknownCommand(string typed) =>
+            CommandHelp.Nearest(typed, CommandHelp.All.Select(c => c.Name)) is { } near
+                ? $"Unknown command '{typed}'; did you mean '{near}'? Run 'tapevault help' for the list."
+                : $"Unknown command '{typed}'; run 'tapevault help' for the list.";
+
+        private static int WriteCommandHelp(string command, TextWriter output, TextWriter error)
+        {
+            if (CommandHelp.Find(command) is { } help)
+            {
+                help.Write(output);
+                return 0;
+            }
+
+            error.WriteLine($"tapevault: {UnknownCommand(command)}");
+            return BadInput;
+        }
+
         private static void WriteHelp(TextWriter output)
         {
             output.WriteLine("tapevault: decode, score and archive captures of data cassettes.");
@@ -77,6 +106,8 @@ namespace TapeVault.Cli
             output.WriteLine($"  tapevault {ArchiveCommands.ExportUsage}");
             output.WriteLine($"  tapevault {ArchiveCommands.PublishUsage}");
             output.WriteLine($"  tapevault {ImageCommand.Usage}");
+            output.WriteLine();
+            output.WriteLine("Run 'tapevault COMMAND --help' (or 'tapevault help COMMAND') for a command's options, units and defaults.");
         }
     }
 }

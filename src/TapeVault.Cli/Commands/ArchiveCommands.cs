@@ -23,7 +23,6 @@ public static class ArchiveCommands
 
     public static string PublishUsage => $"publish COLLECTION-ID OUTDIR {ArchiveSession.OptionsUsage}";
 
-    public static IReadOnlySet<string> ExportFlags { get; } = new HashSet<string>(StringComparer.Ordinal) { "zip" };
 
     public static int Verify(CommandLine args, TextWriter output, TextWriter error, CliSettings settings)
     {
@@ -95,7 +94,7 @@ public static class ArchiveCommands
             throw new UsageException("Give either --item ACCESSION or --collection ID.");
         }
 
-        var target = Path.GetFullPath(outPath);
+        var target = Files.OutputPath(outPath);
         if (zip ? File.Exists(target) || Directory.Exists(target) : Directory.Exists(target) && Directory.EnumerateFileSystemEntries(target).Any() || File.Exists(target))
         {
             throw new UsageException($"{target} already exists; give a new path for the bag.");
@@ -183,7 +182,7 @@ public static class ArchiveCommands
         }
 
         int collection = ParseId(args.Positional[0], "COLLECTION-ID");
-        var target = Path.GetFullPath(args.Positional[1]);
+        var target = Files.OutputPath(args.Positional[1]);
         if (File.Exists(target) || (Directory.Exists(target) && Directory.EnumerateFileSystemEntries(target).Any()))
         {
             throw new UsageException($"{target} already exists and is not empty; publish into a new folder.");

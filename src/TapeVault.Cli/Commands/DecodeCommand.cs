@@ -111,6 +111,12 @@ internal static class Catalogs
 
 internal static class Files
 {
+    /// <summary>
+    /// The full path of an output folder as the user typed it, without a trailing separator ("files/" is the folder
+    /// "files"), so that its parent and its name, and temporary names built beside it, are those of the folder itself.
+    /// </summary>
+    public static string OutputPath(string path) => Path.TrimEndingDirectorySeparator(Path.GetFullPath(path));
+
     /// <summary>An output file named by an option.</summary>
     public sealed record Output(string Option, string Path);
 

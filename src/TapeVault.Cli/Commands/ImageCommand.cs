@@ -16,7 +16,6 @@ public static class ImageCommand
 
     public const string Usage = "image verify FILE | image extract FILE DIR [--partial]";
 
-    public static IReadOnlySet<string> Flags { get; } = new HashSet<string>(StringComparer.Ordinal) { "partial" };
 
     public static int Run(CommandLine args, TextWriter output, TextWriter error)
     {
@@ -73,7 +72,7 @@ public static class ImageCommand
         bool partial = args.Flag("partial");
         args.RejectUnknown();
         string path = ExistingFile(args.Positional[1]);
-        string folder = Path.GetFullPath(args.Positional[2]);
+        string folder = Files.OutputPath(args.Positional[2]);
         if (File.Exists(folder))
         {
             throw new UsageException($"The output folder {args.Positional[2]} is a file.");

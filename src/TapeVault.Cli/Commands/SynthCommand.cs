@@ -10,7 +10,6 @@ public static class SynthCommand
 {
     public const string Usage = "synth OUT.wav --profile ID [--text TEXT | --file PATH] [--name NAME] [--seed N] [--rate HZ] [--snr DB] [--speed F] [--wow PERCENT] [--flutter PERCENT] [--pw50 US] [--azimuth DEGREES] [--dropouts PER_MINUTE] [--hum LEVEL] [--level PEAK] [--head] [--invert] [--encoding pcm8|pcm16|pcm24|float32]";
 
-    public static readonly IReadOnlySet<string> Flags = new HashSet<string>(StringComparer.Ordinal) { "head", "invert" };
 
     public static int Run(CommandLine args, TextWriter output)
     {

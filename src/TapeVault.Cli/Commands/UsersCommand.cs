@@ -11,7 +11,6 @@ public static class UsersCommand
 {
     public const string Usage = "users add NAME --role curator|viewer [--password-stdin] [--database FILE] | users list [--database FILE]";
 
-    public static IReadOnlySet<string> Flags { get; } = new HashSet<string>(StringComparer.Ordinal) { "password-stdin" };
 
     public static int Run(CommandLine args, TextWriter output, TextReader input, CliSettings settings)
     {
