@@ -206,7 +206,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     {
         if (_bitFirstDecision < 0 || !_atBoundary)
         {
-            _bitFirstDecision = _assembler.Decisions.Count;
+            _bitFirstDecision = _assembler.DecisionCount;
         }
 
         if (!decision.IsValid || (decision.Class == Whole && _atBoundary))
@@ -237,7 +237,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
                 return;
             }
 
-            _assembler.Decisions.Add(decision.Distance, decision.Residual, decision.Scale);
+            _assembler.AddDecision(decision.Distance, decision.Residual, decision.Scale);
         }
 
         if (decision.Distance > 0.5 * decision.Scale)
@@ -286,7 +286,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
             return;
         }
 
-        int first = _bitFirstDecision >= 0 ? _bitFirstDecision : _assembler.Decisions.Count;
+        int first = _bitFirstDecision >= 0 ? _bitFirstDecision : _assembler.DecisionCount;
         _bitFirstDecision = -1;
         if (_framer.AddBit(bit, first, sample))
         {
@@ -368,7 +368,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
 
         for (long cell = 1; cell < firstCell; cell++)
         {
-            _bitFirstDecision = _assembler.Decisions.Count;
+            _bitFirstDecision = _assembler.DecisionCount;
             _assembler.AddErasedBit();
             EmitBit(false, _clock.LastMid + (cell * _clock.Cell));
             if (_mode != Mode.Data)
@@ -382,7 +382,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         for (int i = 0; i < _bridgeCount; i++)
         {
             var edge = _bridge[i];
-            int decisionIndex = _assembler.Decisions.Count;
+            int decisionIndex = _assembler.DecisionCount;
             if (i == 0)
             {
                 _assembler.AddErasedBit();
@@ -392,11 +392,11 @@ public sealed class BiphaseDecoder : ISymbolDecoder
                 var decision = _classifier.Classify((edge.Sample - _bridge[i - 1].Sample) / _sampleRate, _speed.Speed);
                 if (decision.IsValid)
                 {
-                    _assembler.Decisions.Add(decision.Distance, decision.Residual, decision.Scale);
+                    _assembler.AddDecision(decision.Distance, decision.Residual, decision.Scale);
                 }
                 else
                 {
-                    _assembler.Decisions.Add(0, 1, 1);
+                    _assembler.AddGuessedDecision();
                 }
             }
 

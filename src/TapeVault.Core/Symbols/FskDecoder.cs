@@ -482,7 +482,7 @@ public sealed class FskDecoder : ISymbolDecoder
             }
         }
 
-        int first = _assembler.Decisions.Count;
+        int first = _assembler.DecisionCount;
         AsyncCharacterFramer.LogDecisions(levels, _assembler.Decisions);
         _assembler.NoteLevel(_level);
         _assembler.NoteSpeed(_speed.Speed);

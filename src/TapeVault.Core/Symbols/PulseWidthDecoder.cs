@@ -194,12 +194,12 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     {
         if (_patternLength == 0)
         {
-            _patternFirstDecision = _assembler.Decisions.Count;
+            _patternFirstDecision = _assembler.DecisionCount;
         }
 
         if (!decision.IsValid)
         {
-            _assembler.Decisions.Add(0, 1, 1);
+            _assembler.AddGuessedDecision();
             if (++_recentInvalid >= InvalidPulsesToLoseBlock)
             {
                 LoseSignal(endSample);
@@ -211,7 +211,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         }
 
         _recentInvalid = Math.Max(0, _recentInvalid - 1);
-        _assembler.Decisions.Add(decision.Distance, decision.Residual, decision.Scale);
+        _assembler.AddDecision(decision.Distance, decision.Residual, decision.Scale);
         if (decision.Distance > 0.5 * decision.Scale)
         {
             _speed.Track(seconds, _classifier.NominalSeconds(decision.Class));
@@ -230,7 +230,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         else if (!IsPrefixOf(_zero) && !IsPrefixOf(_one))
         {
             // No bit begins like this: the decision nearest a bit is a guess with no margin.
-            _assembler.Decisions.Add(0, 1, 1);
+            _assembler.AddGuessedDecision();
             CompleteBit(GuessBit(decision), endSample);
         }
     }
