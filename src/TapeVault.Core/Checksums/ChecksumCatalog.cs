@@ -30,11 +30,11 @@ public static class ChecksumCatalog
         Model("CRC-12/UMTS", 12, 0x80F, 0x000, false, true, 0x000, "CRC-12/3GPP"),
         Model("CRC-15/CAN", 15, 0x4599, 0x0000, false, false, 0x0000, "CRC-15"),
         Model("CRC-16/ARC", 16, 0x8005, 0x0000, true, true, 0x0000, "ARC", "CRC-16", "CRC-16/LHA"),
-        Model("CRC-16/UMTS", 16, 0x8005, 0x0000, false, false, 0x0000, "CRC-16/BUYPASS"),
+        Model("CRC-16/UMTS", 16, 0x8005, 0x0000, false, false, 0x0000),
         Model("CRC-16/XMODEM", 16, 0x1021, 0x0000, false, false, 0x0000, "CRC-16/V-41-MSB", "XMODEM", "ZMODEM"),
-        Model("CRC-16/IBM-3740", 16, 0x1021, 0xFFFF, false, false, 0x0000, "CRC-16/CCITT-FALSE"),
+        Model("CRC-16/CCITT-FALSE", 16, 0x1021, 0xFFFF, false, false, 0x0000),
         Model("CRC-16/KERMIT", 16, 0x1021, 0x0000, true, true, 0x0000, "CRC-16/CCITT", "CRC-16/CCITT-TRUE", "CRC-16/V-41-LSB", "KERMIT"),
-        Model("CRC-16/IBM-SDLC", 16, 0x1021, 0xFFFF, true, true, 0xFFFF, "CRC-16/ISO-HDLC", "CRC-16/X-25", "X-25"),
+        Model("CRC-16/ISO-HDLC", 16, 0x1021, 0xFFFF, true, true, 0xFFFF, "CRC-16/X-25", "X-25"),
         Model("CRC-16/GSM", 16, 0x1021, 0x0000, false, false, 0xFFFF),
         Model("CRC-16/MODBUS", 16, 0x8005, 0xFFFF, true, true, 0x0000, "MODBUS"),
         Model("CRC-16/USB", 16, 0x8005, 0xFFFF, true, true, 0xFFFF),
@@ -62,7 +62,7 @@ public static class ChecksumCatalog
     [
         ("xor8", () => Create(new XorParameters())),
         ("sum8", () => Create(Sum8)),
-        ("crc16-ccitt-false", () => Create(ModelNamed("CRC-16/IBM-3740").Parameters)),
+        ("crc16-ccitt-false", () => Create(ModelNamed("CRC-16/CCITT-FALSE").Parameters)),
         ("crc16-xmodem", () => Create(ModelNamed("CRC-16/XMODEM").Parameters)),
         ("crc32", () => Create(ModelNamed("CRC-32/ISO-HDLC").Parameters)),
     ];

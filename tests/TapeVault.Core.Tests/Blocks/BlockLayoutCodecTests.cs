@@ -175,7 +175,7 @@ public sealed class BlockLayoutCodecTests
             "CRC-8/SMBUS",
             "CRC-12/UMTS",
             "CRC-16/ARC",
-            "CRC-16/IBM-SDLC",
+            "CRC-16/ISO-HDLC",
             "CRC-24/OPENPGP",
             "CRC-32/BZIP2",
             "crc32",

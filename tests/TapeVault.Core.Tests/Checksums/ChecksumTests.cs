@@ -9,7 +9,7 @@ public sealed class ChecksumTests
     private static readonly int[] RandomLengths = [0, 1, 2, 3, 7, 8, 15, 16, 31, 63, 64, 255, 256, 1000, 4096, 65537];
 
     [Theory]
-    // Source: reveng.sourceforge.io, "Catalogue of parametrised CRC algorithms", CRC-16/IBM-3740
+    // Source: reveng.sourceforge.io, "Catalogue of parametrised CRC algorithms", CRC-16/CCITT-FALSE
     // (alias CRC-16/CCITT-FALSE), check = 0x29b1.
     [InlineData("crc16-ccitt-false", 0x29B1u)]
     // Source: same catalogue, CRC-16/XMODEM, check = 0x31c3.

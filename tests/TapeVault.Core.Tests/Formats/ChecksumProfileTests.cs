@@ -21,10 +21,10 @@ public sealed class ChecksumProfileTests
         }));
 
         var spec = profile.Layout.Checksum!;
-        Assert.Equal("CRC-16/IBM-3740", spec.Algorithm);
-        Assert.Same(ChecksumCatalog.Get("CRC-16/IBM-3740"), spec.Resolve());
+        Assert.Equal("CRC-16/CCITT-FALSE", spec.Algorithm);
+        Assert.Same(ChecksumCatalog.Get("CRC-16/CCITT-FALSE"), spec.Resolve());
 
-        // Source: CRC catalogue (reveng), CRC-16/IBM-3740 check value 0x29B1.
+        // Source: CRC catalogue (reveng), CRC-16/CCITT-FALSE check value 0x29B1.
         Assert.Equal(0x29B1u, spec.Resolve().Compute("123456789"u8));
     }
 

@@ -87,7 +87,7 @@ public sealed class ScoringTrustRulesTests
     [Fact]
     public void The_same_zeros_under_a_crc_with_a_non_zero_initial_value_are_evidence_and_clean()
     {
-        // CRC-16/CCITT-FALSE is CRC-16/IBM-3740 in the CRC catalogue (reveng): poly 0x1021, init 0xFFFF, xorout 0x0000,
+        // CRC-16/CCITT-FALSE in the CRC catalogue (reveng): poly 0x1021, init 0xFFFF, xorout 0x0000,
         // check 0x29B1 over "123456789". Its init makes the check of zeros non-zero, so the check bytes are not the
         // zeros' own codeword: the block's bytes are not all alike.
         var check = ChecksumCatalog.Get("crc16-ccitt-false");
