@@ -16,6 +16,7 @@ public sealed class BlockAssembler
 {
     private readonly BlockLayout _layout;
     private readonly BlockScorer _scorer;
+    private readonly BlockLayoutCodec _codec;
     private readonly int _settingIndex;
     private readonly string _settingName;
     private readonly double _sampleRate;
@@ -40,6 +41,7 @@ public sealed class BlockAssembler
         ArgumentNullException.ThrowIfNull(profile);
         _layout = profile.Layout;
         _scorer = new BlockScorer(_layout);
+        _codec = BlockLayoutCodec.For(_layout);
         _settingIndex = settingIndex;
         _settingName = settingName;
         _sampleRate = sampleRate;
@@ -53,9 +55,6 @@ public sealed class BlockAssembler
     public int DecisionCount => Decisions.Count;
 
     public bool InBlock { get; private set; }
-
-    /// <summary>A block begins after a lead-in (the evidence the decoders that do not say otherwise have).</summary>
-    public void Begin(double sample) => Begin(sample, BlockStartEvidence.LeadIn);
 
     /// <summary>
     /// A block begins at <paramref name="sample"/>, on the strength of <paramref name="evidence"/>. A block begun on no
@@ -135,7 +134,7 @@ public sealed class BlockAssembler
 
         if (!_layout.IsStream && _bytes.Count == _layout.HeaderBytes && _layout.FieldWithRole(FieldRole.PayloadLength) is { } lengthField)
         {
-            long length = BlockLayoutCodec.For(_layout).ReadField(CollectionsMarshal.AsSpan(_bytes), lengthField);
+            long length = _codec.ReadField(CollectionsMarshal.AsSpan(_bytes), lengthField);
 
             // A length beyond the layout's limit means a damaged header: read up to the limit and let the checksum fail.
             int payload = (int)Math.Min(length, _layout.MaximumPayloadBytes);

@@ -18,7 +18,7 @@ public sealed class GuessedBitsTests
     {
         var output = new List<BlockCandidate>();
         var assembler = new BlockAssembler(Biphase, 0, "s0", 44_100, output);
-        assembler.Begin(0);
+        assembler.Begin(0, BlockStartEvidence.LeadIn);
         int bit = 0;
         for (int b = 0; b < bytes.Length; b++)
         {

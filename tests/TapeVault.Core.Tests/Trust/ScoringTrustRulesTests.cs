@@ -135,7 +135,7 @@ public sealed class ScoringTrustRulesTests
 
         var output = new List<BlockCandidate>();
         var assembler = new BlockAssembler(profile, 0, "s0", 44_100, output);
-        assembler.Begin(0);
+        assembler.Begin(0, BlockStartEvidence.LeadIn);
         foreach (byte value in block)
         {
             int first = assembler.DecisionCount;
