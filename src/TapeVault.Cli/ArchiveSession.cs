@@ -42,7 +42,6 @@ public sealed class ArchiveSession : IDisposable
         var collection = new ServiceCollection();
         collection.AddLogging();
         collection.AddSingleton(options);
-        collection.AddSingleton(settings.Export);
         collection.AddSingleton(ProfileCatalog.WithUserFolder(settings.ProfilesFolder is { Length: > 0 } folder ? Path.GetFullPath(folder, options.BaseFolder) : null));
         collection.AddSingleton(new ContentStore(options.FullStorePath));
         collection.AddDbContext<ArchiveDbContext>(db => ArchiveDatabase.Configure(db, options.FullDatabasePath));

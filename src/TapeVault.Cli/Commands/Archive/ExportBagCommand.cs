@@ -116,6 +116,11 @@ public sealed class ExportBagCommand : CliCommand
         bags.RecordExported(result, ArchiveSession.Agent, $"written by the command line as '{Path.GetFileName(target)}'");
         db.SaveChanges();
         output.WriteLine($"Bag written to {target}: {result.PayloadFiles} payload file(s), {result.PayloadBytes} bytes, for {string.Join(", ", result.ExternalIdentifiers)}.");
+        if (!session.Options.Organisation.IsSet)
+        {
+            output.WriteLine($"The bag names no Source-Organization: the archive's organisation is not set; to name it, {Organisation.WhereToSet}.");
+        }
+
         output.WriteLine(zip ? "Unzip it and check it with: sha256sum -c manifest-sha256.txt" : $"Check it with: cd {target} && sha256sum -c manifest-sha256.txt && sha256sum -c tagmanifest-sha256.txt");
         return 0;
     }

@@ -59,6 +59,11 @@ public sealed class PublishCommand : CliCommand
                 await publisher.RecordPublishedAsync(collection, $"Catalogue published by the command line to the folder '{Path.GetFileName(target)}' ({files.Count} files).", ArchiveSession.Agent).ConfigureAwait(false);
                 return 0;
             });
+            if (!session.Options.Organisation.IsSet)
+            {
+                output.WriteLine($"The catalogue names no publisher: the archive's organisation is not set; to name it, {Organisation.WhereToSet}.");
+            }
+
             output.WriteLine($"Catalogue written to {target}: {files.Count} files. Open {Path.Combine(target, "index.html")} in a browser; check it with: cd {target} && sha256sum -c SHA256SUMS");
         }
         finally
