@@ -49,9 +49,8 @@ public static class WebApp
         var profiles = ProfileCatalog.WithUserFolder(builder.Configuration["TapeVault:ProfilesFolder"] is { Length: > 0 } folder ? Path.GetFullPath(folder, archive.BaseFolder) : null);
         var web = builder.Configuration.GetSection(WebOptions.Section).Get<WebOptions>() ?? new WebOptions();
         builder.Services.AddSingleton(web);
-        var export = builder.Configuration.GetSection(ExportOptions.Section).Get<ExportOptions>() ?? new ExportOptions();
         builder.Services.AddSingleton(builder.Configuration.GetSection(FixityOptions.Section).Get<FixityOptions>() ?? new FixityOptions());
-        builder.Services.AddTapeVaultArchive(archive, profiles, export);
+        builder.Services.AddTapeVaultArchive(archive, profiles);
 
         // Sign-in cookies must survive a restart: the keys live beside the database, not in memory.
         builder.Services.AddDataProtection()

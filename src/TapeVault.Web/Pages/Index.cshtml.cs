@@ -1,11 +1,15 @@
 using Microsoft.AspNetCore.Mvc;
+using TapeVault.Archive;
 using TapeVault.Archive.Curation;
 using TapeVault.Web.Api;
 
 namespace TapeVault.Web.Pages;
 
-public sealed class IndexModel(ArchiveQueries queries, CuratorActions actions) : ArchivePage
+public sealed class IndexModel(ArchiveQueries queries, CuratorActions actions, ArchiveOptions archive) : ArchivePage
 {
+    /// <summary>The archive's organisation, for the curators' reminder while it is not set.</summary>
+    public Organisation Organisation => archive.Organisation;
+
     public IReadOnlyList<CollectionSummary> Collections { get; private set; } = [];
 
     [BindProperty]
