@@ -103,7 +103,10 @@ public sealed record CommandHelp(string Name, string Summary, IReadOnlyList<stri
             [.. ArchiveOptions]),
         new("image", "Check a tape image, or extract the files its headers name (exit 3 if a file is left out).",
             [.. ImageCommand.Usage.Split(" | ")],
-            [new("partial", null, "extract: also write incomplete files, their gaps closed up; default: skip them")]),
+            [
+                new("partial", null, "extract: also write incomplete files, their gaps closed up; default: skip them"),
+                new("overwrite", null, "extract: replace files of the same name already in the folder; default: refuse (exit 4) and write nothing"),
+            ]),
     ];
 
     public static CommandHelp? Find(string name) => All.FirstOrDefault(c => c.Name == name);

@@ -5,8 +5,9 @@ namespace TapeVault.Cli.Commands;
 
 /// <summary>
 /// tapevault image verify FILE: exit 0 for a whole image, 1 with one line on standard error for a damaged one.
-/// tapevault image extract FILE DIR [--partial]: writes the files the image's headers name; exit 3 when a file was
-/// left out (incomplete without --partial), so that a script does not take a part for the whole.
+/// tapevault image extract FILE DIR [--partial] [--overwrite]: writes the files the image's headers name; exit 3 when a
+/// file was left out (incomplete without --partial), so that a script does not take a part for the whole; exit 4, with
+/// nothing written, when a file of that name is already in the folder and --overwrite was not given.
 /// </summary>
 public static class ImageCommand
 {
@@ -14,7 +15,9 @@ public static class ImageCommand
 
     public const int FilesLeftOut = 3;
 
-    public const string Usage = "image verify FILE | image extract FILE DIR [--partial]";
+    public const int WouldOverwrite = 4;
+
+    public const string Usage = "image verify FILE | image extract FILE DIR [--partial] [--overwrite]";
 
 
     public static int Run(CommandLine args, TextWriter output, TextWriter error)
@@ -66,10 +69,11 @@ public static class ImageCommand
     {
         if (args.Positional.Count != 3)
         {
-            throw new UsageException("Usage: tapevault image extract FILE DIR [--partial]");
+            throw new UsageException("Usage: tapevault image extract FILE DIR [--partial] [--overwrite]");
         }
 
         bool partial = args.Flag("partial");
+        bool overwrite = args.Flag("overwrite");
         args.RejectUnknown();
         string path = ExistingFile(args.Positional[1]);
         string folder = Files.OutputPath(args.Positional[2]);
@@ -127,6 +131,17 @@ public static class ImageCommand
                 : $"partial  {name}{renamed}: {bytes.Length} bytes, incomplete ({file.DescribeGaps()}); the gaps are closed up, not filled");
         }
 
+        // A file already there is never replaced without being asked, and a folder never: all or nothing is written.
+        var folders = writes.Where(w => Directory.Exists(w.Path)).Select(w => Path.GetFileName(w.Path)).ToList();
+        var existing = writes.Where(w => File.Exists(w.Path)).Select(w => Path.GetFileName(w.Path)).ToList();
+        if (folders.Count > 0 || (existing.Count > 0 && !overwrite))
+        {
+            error.WriteLine(folders.Count > 0
+                ? $"tapevault: {folder} already holds a folder named {Listed(folders)}, which a file cannot replace; nothing was written. Extract into a new folder."
+                : $"tapevault: {folder} already holds {Listed(existing)}; nothing was written. Give --overwrite to replace {(existing.Count == 1 ? "it" : "them")}, or extract into a new folder.");
+            return WouldOverwrite;
+        }
+
         Directory.CreateDirectory(folder);
         Files.WriteAtomically(writes);
         foreach (string line in lines)
@@ -135,7 +150,8 @@ public static class ImageCommand
         }
 
         int skipped = files.Length - writes.Count;
-        output.WriteLine($"{writes.Count} of {files.Length} file(s) written to {folder}; {skipped} skipped.");
+        string replaced = existing.Count > 0 ? $" ({existing.Count} replaced: {Listed(existing)})" : string.Empty;
+        output.WriteLine($"{writes.Count} of {files.Length} file(s) written to {folder}{replaced}; {skipped} skipped.");
         return skipped > 0 ? FilesLeftOut : 0;
     }
 
@@ -148,6 +164,10 @@ public static class ImageCommand
 
         return File.Exists(path) ? path : throw new UsageException($"The image {path} does not exist.");
     }
+
+    /// <summary>Names for a message: each quoted, the first five, then how many more.</summary>
+    private static string Listed(IReadOnlyList<string> names) =>
+        string.Join(", ", names.Take(5).Select(n => $"'{n}'")) + (names.Count > 5 ? $" and {names.Count - 5} more" : string.Empty);
 
     /// <summary>A tape name as it can be shown on one terminal line.</summary>
     private static string Printable(string name) =>
