@@ -11,6 +11,15 @@ namespace TapeVault.Archive.Tests;
 public sealed class BagExportTests(SharedArchive shared)
 {
     [Fact]
+    public void BagPaths_WriteOutHiddenAndDirectionChangingCharacters()
+    {
+        // UAX #9: U+202E reverses what follows, so "\u202Egpj.exe" would show as "exe.jpg" in a bag's folder listing.
+        Assert.Equal("capture-[U+202E]gpj.exe", BagExport.PathPart("capture-\u202Egpj.exe"));
+        Assert.Equal("BHCC[U+2066]-7[U+2069]", BagExport.PathPart("BHCC\u2066-7\u2069"));
+        Assert.Equal("a_b", BagExport.PathPart("a/b"));
+    }
+
+    [Fact]
     public async Task ItemBagFollowsRfc8493AndGnuSha256sumVerifiesBothManifests()
     {
         var archive = shared.Archive;

@@ -62,6 +62,9 @@ public sealed partial class BadInputTests(BadInputArchive archive) : IClassFixtu
         ["slash in name"] = (Valid, "tapes/side-a.wav", "audio/wav", false, "path separator"),
         ["backslash in name"] = (Valid, "tapes\\side-a.wav", "audio/wav", true, "path separator"),
         ["dot-dot in name"] = (Valid, "..side-a.wav", "audio/wav", true, "'..'"),
+        // UAX #9 / UTS #39: a right-to-left override makes "\u202E3pm.wav" show as "vaw.mp3"; a zero-width space hides.
+        ["right-to-left override in name"] = (Valid, "\u202E3pm.wav", "audio/wav", false, "U+202E RIGHT-TO-LEFT OVERRIDE"),
+        ["zero-width space in name"] = (Valid, "side\u200B-a.wav", "audio/wav", true, "U+200B ZERO WIDTH SPACE"),
         ["wrong content type"] = (Valid, "side-a.wav", "text/plain", false, "content type 'text/plain'"),
         ["wrong extension"] = (Valid, "side-a.mp3", "audio/wav", false, "'.mp3'"),
     };

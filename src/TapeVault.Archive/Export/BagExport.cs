@@ -117,12 +117,13 @@ public sealed class BagExport(ArchiveDbContext db, ContentStore store, ArchiveOp
         }
     }
 
-    /// <summary>A file or folder name made safe for a bag path and for manifest lines (no separators, no control characters, no %).</summary>
+    /// <summary>A file or folder name made safe for a bag path and for manifest lines (no separators, no control characters, no %, no hidden characters).</summary>
     public static string PathPart(string name)
     {
         ArgumentNullException.ThrowIfNull(name);
         var chars = name.Select(c => char.IsControl(c) || c is '/' or '\\' or '%' or ':' or '*' or '?' or '"' or '<' or '>' or '|' ? '_' : c).ToArray();
-        var cleaned = new string(chars).Trim().Trim('.');
+        // Hidden and direction-changing characters are written out ("[U+202E]"), so a path reads as what it is.
+        var cleaned = Core.Text.VisibleNames.MakeVisible(new string(chars)).Trim().Trim('.');
         cleaned = cleaned.Replace("..", "_", StringComparison.Ordinal);
         return cleaned.Length == 0 ? "_" : cleaned.Length > 120 ? cleaned[..120] : cleaned;
     }

@@ -33,6 +33,12 @@ public static class SafeNames
             return "The file name contains control characters.";
         }
 
+        // UAX #9 and UTS #39: a character that reorders the text or shows nothing makes a name look like another one.
+        if (TapeVault.Core.Text.VisibleNames.FirstHidden(name) is { } hidden)
+        {
+            return $"The file name contains an invisible or direction-changing character ({hidden}), which would make it look like another name.";
+        }
+
         if (name.Trim() is "." or "")
         {
             return "The file name is not a name.";

@@ -3,6 +3,7 @@ using System.Net;
 using System.Security.Cryptography;
 using System.Text;
 using System.Text.Json;
+using CsvHelper;
 using TapeVault.Core.Image;
 
 using TapeVault.Core.Text;
@@ -354,30 +355,73 @@ public static class CatalogueWriter
         }),
     };
 
-    private static string Csv(CatalogueSite site)
+    /// <summary>
+    /// The options of catalogue.csv. RFC 4180 (CRLF line ends, quotes doubled inside quoted fields) and OWASP's
+    /// CSV Injection guidance (owasp.org/www-community/attacks/CSV_Injection): a text cell that starts with =, +, -, @,
+    /// tab or carriage return gets a single quote in front so a spreadsheet shows it as text, never runs it as a formula,
+    /// and every cell is quoted, so a separator or quote inside a cell cannot start a new cell in a reader that splits
+    /// on ';'. Names read from a tape's own headers go through the same cells. Numbers we format ourselves are not text.
+    /// </summary>
+    public static CsvWriterOptions CsvOptions { get; } = CsvWriterOptions.Default with
     {
-        // RFC 4180: CRLF line ends; fields with commas, quotes or line breaks are quoted, quotes doubled.
-        static string Q(string? v)
+        Injection = CsvInjection.Escape,
+        InjectionEscape = '\'',
+        Quoting = CsvQuoting.Always,
+        NewLine = "\r\n",
+    };
+
+    /// <summary>The columns of catalogue.csv, in order.</summary>
+    public static IReadOnlyList<string> CsvColumns { get; } =
+        ["accession_number", "title", "side", "blocks", "clean", "voted", "repaired", "missing", "conflicts", "overall_confidence", "image_sha256", "files"];
+
+    /// <summary>catalogue.csv: one row per item.</summary>
+    public static string Csv(CatalogueSite site)
+    {
+        ArgumentNullException.ThrowIfNull(site);
+        using var text = new StringWriter(Invariant);
+        using (var csv = CsvWriter.Create(text, CsvOptions, false))
         {
-            v ??= string.Empty;
-            return v.IndexOfAny([',', '"', '\r', '\n']) >= 0 ? $"\"{v.Replace("\"", "\"\"", StringComparison.Ordinal)}\"" : v;
+            foreach (var column in CsvColumns)
+            {
+                csv.WriteField(column);
+            }
+
+            csv.EndRecord();
+            foreach (var item in site.Items)
+            {
+                csv.WriteField(item.AccessionNumber);
+                csv.WriteField(item.Title);
+                csv.WriteField(item.Side);
+                if (item.Image is { } im)
+                {
+                    var s = Summary(im.Image);
+                    csv.WriteField(im.Image.Blocks.Length);
+                    csv.WriteField(s.Clean);
+                    csv.WriteField(s.Voted);
+                    csv.WriteField(s.Repaired);
+                    csv.WriteField(s.Missing);
+                    csv.WriteField(s.Conflicts);
+                    csv.WriteField(s.Overall, "0.000000");
+                    csv.WriteField(im.Sha256);
+                    csv.WriteField(string.Join(";", im.Image.Files.Select(f => f.Name)));
+                }
+                else
+                {
+                    for (int i = 0; i < 6; i++)
+                    {
+                        csv.WriteField(0);
+                    }
+
+                    csv.WriteField(string.Empty);
+                    csv.WriteField(string.Empty);
+                    csv.WriteField(string.Empty);
+                }
+
+                csv.EndRecord();
+            }
         }
 
-        var b = new StringBuilder("accession_number,title,side,blocks,clean,voted,repaired,missing,conflicts,overall_confidence,image_sha256,files\r\n");
-        foreach (var item in site.Items)
-        {
-            if (item.Image is { } im)
-            {
-                var s = Summary(im.Image);
-                b.Append(Invariant, $"{Q(item.AccessionNumber)},{Q(item.Title)},{Q(item.Side)},{im.Image.Blocks.Length},{s.Clean},{s.Voted},{s.Repaired},{s.Missing},{s.Conflicts},{F(s.Overall, "0.000000")},{im.Sha256},{Q(string.Join(";", im.Image.Files.Select(f => f.Name)))}\r\n");
-            }
-            else
-            {
-                b.Append(Invariant, $"{Q(item.AccessionNumber)},{Q(item.Title)},{Q(item.Side)},0,0,0,0,0,0,,,\r\n");
-            }
-        }
-
-        return b.ToString();
+        return text.ToString();
     }
 
     private const string Css = """

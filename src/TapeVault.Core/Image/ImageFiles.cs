@@ -1,6 +1,7 @@
 using System.Collections.Immutable;
 using System.Globalization;
 using System.Text;
+using TapeVault.Core.Text;
 
 namespace TapeVault.Core.Image;
 
@@ -93,7 +94,8 @@ public static class SafeFileNames
     public const int MaximumLength = 100;
 
     /// <summary>
-    /// No path separators, no control characters, no leading dot (so no "." or ".." and no hidden file), no run of
+    /// No path separators, no control characters, no hidden or direction-changing character (each is written out as
+    /// "[U+XXXX]", <see cref="VisibleNames"/>), no leading dot (so no "." or ".." and no hidden file), no run of
     /// dots; the padding a header's name field carries (trailing NULs and spaces) is dropped first.
     /// </summary>
     public static string Sanitise(string nameFromTape)
@@ -107,7 +109,9 @@ public static class SafeFileNames
             safe.Append(forbidden ? '_' : c);
         }
 
-        string plain = safe.ToString();
+        // Characters that show nothing or reorder the name ("\u202Egpj.exe" showing as "exe.jpg") are written out.
+        string plain = VisibleNames.MakeVisible(safe.ToString());
+        safe.Clear().Append(plain);
         for (int i = 0; i < plain.Length; i++)
         {
             bool dotRun = (i + 1 < plain.Length && plain[i + 1] == '.') || (i > 0 && plain[i - 1] == '.');

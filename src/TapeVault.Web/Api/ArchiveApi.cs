@@ -38,7 +38,7 @@ public static class ArchiveApi
         read.MapGet("/items/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.ItemAsync(id, c));
         read.MapGet("/items/{id:int}/events", (int id, ArchiveQueries q, CancellationToken c) => q.ItemEventsAsync(id, c));
         read.MapGet("/captures/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.CaptureAsync(id, c));
-        read.MapGet("/captures/{id:int}/original", DownloadOriginalAsync);
+        read.MapDownload("/captures/{id:int}/original", DownloadOriginalAsync);
         read.MapGet("/runs/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.RunAsync(id, c));
         read.MapGet("/jobs", (ArchiveQueries q, CancellationToken c, int? take) => q.JobsAsync(take ?? 100, c));
         read.MapGet("/jobs/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.JobAsync(id, c));
@@ -46,9 +46,9 @@ public static class ArchiveApi
         read.MapGet("/items/{id:int}/block-map", (int id, ArchiveQueries q, CancellationToken c) => q.BlockMapAsync(id, c));
         read.MapGet("/items/{id:int}/positions/{position:int}", (int id, int position, ArchiveQueries q, CancellationToken c) => q.PositionAsync(id, position, c));
         read.MapGet("/images/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.ImageAsync(id, c));
-        read.MapGet("/images/{id:int}/download", DownloadImageAsync);
+        read.MapDownload("/images/{id:int}/download", DownloadImageAsync);
         read.MapGet("/exports", (ArchiveQueries q, int? collectionId, int? itemId, CancellationToken c) => q.ExportsAsync(collectionId, itemId, c));
-        read.MapGet("/exports/{id:int}/download", DownloadExportAsync);
+        read.MapDownload("/exports/{id:int}/download", DownloadExportAsync);
         read.MapGet("/profiles", (ArchiveQueries q) => q.Profiles());
         read.MapGet("/detector-settings", () => ArchiveQueries.DefaultSettings());
 
@@ -157,7 +157,7 @@ public static class ArchiveApi
     public static bool MayDownloadExport(string kind, WebOptions web, ClaimsPrincipal user) =>
         kind != "bag" || MayDownloadOriginals(web, user);
 
-    private static async Task<IResult> DownloadOriginalAsync(int id, ArchiveDbContext db, ContentStore store, WebOptions web, ClaimsPrincipal user, CancellationToken c)
+    private static async Task<IResult> DownloadOriginalAsync(int id, ArchiveDbContext db, ContentStore store, WebOptions web, HttpContext http, ClaimsPrincipal user, CancellationToken c)
     {
         if (!MayDownloadOriginals(web, user))
         {
@@ -171,7 +171,7 @@ public static class ArchiveApi
             return Results.Problem(statusCode: StatusCodes.Status410Gone, title: "The stored original is missing from the content store; run a fixity audit.");
         }
 
-        return Results.File(store.OpenRead(capture.Sha256), "audio/wav", capture.OriginalFileName, enableRangeProcessing: true);
+        return Downloads.File(http, store.OpenRead(capture.Sha256), "audio/wav", capture.OriginalFileName, capture.Sha256, capture.IngestedUtc);
     }
 
     private static async Task<IResult> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c)
@@ -185,7 +185,7 @@ public static class ArchiveApi
     /// A bag holds the originals byte for byte (it is the archive's preservation package, complete or not at all), so
     /// where viewers may not download originals they may not download bags either; catalogues hold no originals.
     /// </summary>
-    private static async Task<IResult> DownloadExportAsync(int id, ArchiveDbContext db, ContentStore store, WebOptions web, ClaimsPrincipal user, CancellationToken c)
+    private static async Task<IResult> DownloadExportAsync(int id, ArchiveDbContext db, ContentStore store, WebOptions web, HttpContext http, ClaimsPrincipal user, CancellationToken c)
     {
         var export = await db.Exports.AsNoTracking().FirstOrDefaultAsync(x => x.Id == id, c).ConfigureAwait(false)
             ?? throw new ArchiveNotFoundException($"There is no export {id}.");
@@ -199,10 +199,10 @@ public static class ArchiveApi
             return Results.Problem(statusCode: StatusCodes.Status410Gone, title: "The export's file is missing from the content store; run a fixity audit.");
         }
 
-        return Results.File(store.OpenRead(export.Sha256), "application/zip", export.FileName, enableRangeProcessing: true);
+        return Downloads.File(http, store.OpenRead(export.Sha256), "application/zip", export.FileName, export.Sha256, export.CreatedUtc);
     }
 
-    private static async Task<IResult> DownloadImageAsync(int id, ArchiveDbContext db, ContentStore store, CancellationToken c)
+    private static async Task<IResult> DownloadImageAsync(int id, ArchiveDbContext db, ContentStore store, HttpContext http, CancellationToken c)
     {
         var image = await db.Images.AsNoTracking().Include(i => i.Item).FirstOrDefaultAsync(x => x.Id == id, c).ConfigureAwait(false)
             ?? throw new ArchiveNotFoundException($"There is no tape image {id}.");
@@ -212,7 +212,7 @@ public static class ArchiveApi
         }
 
         var name = $"{SafeDownloadName(image.Item!.AccessionNumber)}-v{image.Version}{Core.Image.TapeImageContainer.Extension}";
-        return Results.File(store.OpenRead(image.Sha256), "application/octet-stream", name, enableRangeProcessing: true);
+        return Downloads.File(http, store.OpenRead(image.Sha256), "application/octet-stream", name, image.Sha256, image.CreatedUtc);
     }
 
     private static string SafeDownloadName(string accession) =>

@@ -18,9 +18,9 @@ public static class ImageFilesApi
     public static void MapImageFilesApi(this IEndpointRouteBuilder app)
     {
         var read = app.MapGroup("/api/images/{id:int}/files").AddEndpointFilter(ArchiveApi.Errors).RequireAuthorization(Roles.ReaderPolicy).WithTags("archive");
-        read.MapGet("/{index:int}", DownloadFileAsync)
+        read.MapDownload("/{index:int}", DownloadFileAsync)
             .WithDescription("One complete file named by the image's headers (index as in the image's file list); 409 when a block of it is missing.");
-        read.MapGet("/zip", DownloadZipAsync)
+        read.MapDownload("/zip", DownloadZipAsync)
             .WithDescription("Every complete file named by the image's headers as one zip; files with a block missing are named in INCOMPLETE.txt inside it.");
     }
 
@@ -30,7 +30,7 @@ public static class ImageFilesApi
         return $"{SafeAccession(files.AccessionNumber)}-v{files.Version}-files.zip";
     }
 
-    private static async Task<IResult> DownloadFileAsync(int id, int index, ArchiveQueries queries, CancellationToken cancellation)
+    private static async Task<IResult> DownloadFileAsync(int id, int index, ArchiveQueries queries, HttpContext http, CancellationToken cancellation)
     {
         var files = await queries.RecoveredFilesAsync(id, cancellation).ConfigureAwait(false);
         if (index < 0 || index >= files.Files.Count)
@@ -44,13 +44,13 @@ public static class ImageFilesApi
             throw new ArchiveConflictException($"The file {file.SafeName} is incomplete ({file.Extracted.DescribeGaps()}); only complete files are given out.");
         }
 
-        return Results.File(file.Extracted.Bytes.ToArray(), "application/octet-stream", file.SafeName);
+        return Downloads.File(http, file.Extracted.Bytes.ToArray(), "application/octet-stream", file.SafeName, files.CreatedUtc);
     }
 
-    private static async Task<IResult> DownloadZipAsync(int id, ArchiveQueries queries, CancellationToken cancellation)
+    private static async Task<IResult> DownloadZipAsync(int id, ArchiveQueries queries, HttpContext http, CancellationToken cancellation)
     {
         var files = await queries.RecoveredFilesAsync(id, cancellation).ConfigureAwait(false);
-        return Results.File(Zip(files), "application/zip", ZipName(files));
+        return Downloads.File(http, Zip(files), "application/zip", ZipName(files), files.CreatedUtc);
     }
 
     /// <summary>The complete files, stamped with the image's time so the same image always gives the same zip.</summary>

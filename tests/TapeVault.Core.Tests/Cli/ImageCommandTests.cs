@@ -1,3 +1,4 @@
+using TapeVault.Cli.Commands;
 using TapeVault.Core.Image;
 using TapeVault.Core.Tests.Image;
 using TapeVault.Core.Tests.OutsideChecks;
@@ -114,6 +115,45 @@ public sealed class ImageCommandTests : IDisposable
         Assert.Equal(1, run.ExitCode);
         Assert.Single(run.ErrorLines);
         Assert.Empty(Directory.GetFileSystemEntries(folder));
+    }
+
+    [Fact]
+    public void Extract_RefusesToReplaceAFileAlreadyThere_NamingIt_AndWritesNothing_UnlessToldToOverwrite()
+    {
+        string path = WriteImage("again");
+        string folder = temp.NewFolder("again-files");
+        File.WriteAllText(Path.Combine(folder, "HELLO"), "a letter kept here before");
+        File.WriteAllText(Path.Combine(folder, "notes.txt"), "not on the tape");
+
+        var refused = CliRun.Run("image", "extract", path, folder);
+
+        Assert.True(refused.ExitCode == ImageExtractCommand.WouldOverwrite, refused.ToString());
+        var line = Assert.Single(refused.ErrorLines);
+        Assert.Contains("'HELLO'", line, StringComparison.Ordinal);
+        Assert.Contains("--overwrite", line, StringComparison.Ordinal);
+        Assert.Equal("a letter kept here before", File.ReadAllText(Path.Combine(folder, "HELLO")));
+        Assert.Equal(["HELLO", "notes.txt"], Directory.GetFileSystemEntries(folder).Select(f => Path.GetFileName(f)!).Order(StringComparer.Ordinal).ToArray());
+
+        var replaced = CliRun.Run("image", "extract", path, folder, "--overwrite");
+
+        Assert.True(replaced.ExitCode == ImageExtractCommand.FilesLeftOut, replaced.ToString());
+        Assert.Equal([.. image.Blocks[0].Payload, .. image.Blocks[1].Payload], File.ReadAllBytes(Path.Combine(folder, "HELLO")));
+        Assert.Equal("not on the tape", File.ReadAllText(Path.Combine(folder, "notes.txt")));
+        Assert.Contains("1 replaced: 'HELLO'", replaced.Output, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void Extract_RefusesAFolderWhereAFileWouldGo_EvenWithOverwrite()
+    {
+        string path = WriteImage("folder-in-way");
+        string folder = temp.NewFolder("folder-in-way-files");
+        Directory.CreateDirectory(Path.Combine(folder, "DATA"));
+
+        var run = CliRun.Run("image", "extract", path, folder, "--overwrite");
+
+        Assert.True(run.ExitCode == ImageExtractCommand.WouldOverwrite, run.ToString());
+        Assert.Contains("'DATA'", Assert.Single(run.ErrorLines), StringComparison.Ordinal);
+        Assert.Equal(["DATA"], Directory.GetFileSystemEntries(folder).Select(f => Path.GetFileName(f)!).ToArray());
     }
 
     private string WriteImage(string name)

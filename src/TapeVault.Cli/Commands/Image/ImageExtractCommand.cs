@@ -4,17 +4,21 @@ using TapeVault.Core.Image;
 namespace TapeVault.Cli.Commands;
 
 /// <summary>
-/// tapevault image extract FILE --out DIR [--partial]: writes the files the image's headers name; exit 3 when a file
-/// was left out (incomplete without --partial), so that a script does not take a part for the whole.
+/// tapevault image extract FILE --out DIR [--partial] [--overwrite]: writes the files the image's headers name; exit 3
+/// when a file was left out (incomplete without --partial), so that a script does not take a part for the whole; exit 4,
+/// with nothing written, when a file of that name is already in the folder and --overwrite was not given.
 /// </summary>
 public sealed class ImageExtractCommand : CliCommand
 {
     public const int FilesLeftOut = 3;
 
+    public const int WouldOverwrite = 4;
+
     private readonly Argument<string> file = new("FILE") { Description = "the tape image (.tvimg) to read" };
     private readonly Argument<string> target = new("DIR") { Description = "the folder the files go to (the same as --out)", Arity = ArgumentArity.ZeroOrOne };
     private readonly Option<string> output = CommonOptions.Out("DIR", "the folder the files go to, made if missing; required, here or as the word after FILE");
     private readonly Option<bool> partial = new("--partial") { Description = "also write incomplete files, their gaps closed up; default: skip them" };
+    private readonly Option<bool> overwrite = new("--overwrite") { Description = "replace files of the same name already in the folder; default: refuse (exit 4) and write nothing" };
 
     public ImageExtractCommand()
         : base("extract", "Write the files a tape image's headers name into a folder (exit 3 if a file is left out).")
@@ -23,9 +27,10 @@ public sealed class ImageExtractCommand : CliCommand
         Arguments.Add(target);
         Options.Add(output);
         Options.Add(partial);
+        Options.Add(overwrite);
     }
 
-    public override string Usage => "image extract FILE (DIR | --out DIR) [--partial]";
+    public override string Usage => "image extract FILE (DIR | --out DIR) [--partial] [--overwrite]";
 
     protected override int Run(Invocation run)
     {
@@ -34,6 +39,7 @@ public sealed class ImageExtractCommand : CliCommand
         var error = run.Error;
         string outPath = run.OutputPath(this.output, target);
         bool partial = run.Value(this.partial);
+        bool overwrite = run.Value(this.overwrite);
         string path = ImageFileArgument.Existing(run.Value(file)!);
         string folder = Files.OutputPath(outPath);
         if (File.Exists(folder))
@@ -90,6 +96,17 @@ public sealed class ImageExtractCommand : CliCommand
                 : $"partial  {name}{renamed}: {bytes.Length} bytes, incomplete ({file.DescribeGaps()}); the gaps are closed up, not filled");
         }
 
+        // A file already there is never replaced without being asked, and a folder never: all or nothing is written.
+        var folders = writes.Where(w => Directory.Exists(w.Path)).Select(w => Path.GetFileName(w.Path)).ToList();
+        var existing = writes.Where(w => File.Exists(w.Path)).Select(w => Path.GetFileName(w.Path)).ToList();
+        if (folders.Count > 0 || (existing.Count > 0 && !overwrite))
+        {
+            error.WriteLine(folders.Count > 0
+                ? $"tapevault: {folder} already holds a folder named {Listed(folders)}, which a file cannot replace; nothing was written. Extract into a new folder."
+                : $"tapevault: {folder} already holds {Listed(existing)}; nothing was written. Give --overwrite to replace {(existing.Count == 1 ? "it" : "them")}, or extract into a new folder.");
+            return WouldOverwrite;
+        }
+
         Directory.CreateDirectory(folder);
         Files.WriteAtomically(writes);
         foreach (string line in lines)
@@ -98,9 +115,14 @@ public sealed class ImageExtractCommand : CliCommand
         }
 
         int skipped = files.Length - writes.Count;
-        output.WriteLine($"{writes.Count} of {files.Length} file(s) written to {folder}; {skipped} skipped.");
+        string replaced = existing.Count > 0 ? $" ({existing.Count} replaced: {Listed(existing)})" : string.Empty;
+        output.WriteLine($"{writes.Count} of {files.Length} file(s) written to {folder}{replaced}; {skipped} skipped.");
         return skipped > 0 ? FilesLeftOut : 0;
     }
+
+    /// <summary>Names for a message: each quoted, the first five, then how many more.</summary>
+    private static string Listed(IReadOnlyList<string> names) =>
+        string.Join(", ", names.Take(5).Select(n => $"'{n}'")) + (names.Count > 5 ? $" and {names.Count - 5} more" : string.Empty);
 
     /// <summary>A tape name as it can be shown on one terminal line.</summary>
     private static string Printable(string name) =>
