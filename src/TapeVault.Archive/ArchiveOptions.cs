@@ -17,11 +17,27 @@ public sealed class ArchiveOptions
     /// <summary>The largest capture accepted, in bytes.</summary>
     public long MaxUploadBytes { get; set; } = 2L * 1024 * 1024 * 1024;
 
-    /// <summary>File name extensions accepted for captures.</summary>
-    public string[] AllowedExtensions { get; set; } = [".wav", ".wave"];
+    /// <summary>The file name extensions accepted for captures when the settings name none.</summary>
+    public static IReadOnlyList<string> DefaultExtensions { get; } = [".wav", ".wave"];
 
-    /// <summary>Content types accepted for captures (what browsers and tools send for WAV, or a plain byte stream).</summary>
-    public string[] AllowedContentTypes { get; set; } = ["audio/wav", "audio/x-wav", "audio/wave", "audio/vnd.wave", "application/octet-stream"];
+    /// <summary>The content types accepted when the settings name none (what browsers and tools send for WAV, or a plain byte stream).</summary>
+    public static IReadOnlyList<string> DefaultContentTypes { get; } = ["audio/wav", "audio/x-wav", "audio/wave", "audio/vnd.wave", "application/octet-stream"];
+
+    /// <summary>
+    /// File name extensions accepted for captures, as the settings give them; a list given replaces
+    /// <see cref="DefaultExtensions"/>. Empty here, not the defaults: the configuration binder appends a configured
+    /// list to the one a property starts with, so a default list could never be narrowed.
+    /// </summary>
+    public string[] AllowedExtensions { get; set; } = [];
+
+    /// <summary>Content types accepted for captures, as the settings give them; a list given replaces <see cref="DefaultContentTypes"/>.</summary>
+    public string[] AllowedContentTypes { get; set; } = [];
+
+    /// <summary>The extensions in force: the configured ones (each once, in their order), or the defaults.</summary>
+    public IReadOnlyList<string> AcceptedExtensions => InForce(AllowedExtensions, DefaultExtensions);
+
+    /// <summary>The content types in force: the configured ones (each once, in their order), or the defaults.</summary>
+    public IReadOnlyList<string> AcceptedContentTypes => InForce(AllowedContentTypes, DefaultContentTypes);
 
     /// <summary>How many jobs run at once.</summary>
     public int Workers { get; set; } = 2;
@@ -35,6 +51,12 @@ public sealed class ArchiveOptions
     public string FullDatabasePath => Path.GetFullPath(DatabasePath, BaseFolder);
 
     public string FullStorePath => Path.GetFullPath(StorePath, BaseFolder);
+
+    private static IReadOnlyList<string> InForce(string[] configured, IReadOnlyList<string> defaults)
+    {
+        var list = (configured ?? []).Where(v => !string.IsNullOrWhiteSpace(v)).Select(v => v.Trim()).Distinct(StringComparer.OrdinalIgnoreCase).ToList();
+        return list.Count > 0 ? list : defaults;
+    }
 
     /// <summary>The clone the program runs from (the folder holding TapeVault.sln and web/), or null for an installed copy.</summary>
     public static string? FindRepositoryRoot()

@@ -39,19 +39,28 @@ public static class ArchiveServices
         return services;
     }
 
+    /// <summary>The archive's password rules (<see cref="PasswordPolicy"/>) on an Identity set-up.</summary>
+    public static IdentityBuilder AddArchivePasswordPolicy(this IdentityBuilder identity)
+    {
+        ArgumentNullException.ThrowIfNull(identity);
+        return identity.AddPasswordValidator<PasswordPolicy>();
+    }
+
     /// <summary>Identity's password and lockout rules for the archive (shared by the web app and the CLI).</summary>
     public static void ConfigureIdentity(IdentityOptions identity)
     {
         ArgumentNullException.ThrowIfNull(identity);
-        // Length over character classes, after NIST SP 800-63B's advice on memorised secrets.
-        identity.Password.RequiredLength = 12;
+        // No composition rules (NIST SP 800-63B-4 §3.1.1.2); PasswordPolicy checks length, blocklist and context, so
+        // Identity's own validator is left asking only for something.
+        identity.Password.RequiredLength = 1;
         identity.Password.RequireNonAlphanumeric = false;
         identity.Password.RequireUppercase = false;
         identity.Password.RequireLowercase = false;
         identity.Password.RequireDigit = false;
-        identity.Lockout.MaxFailedAccessAttempts = 5;
-        identity.Lockout.DefaultLockoutTimeSpan = TimeSpan.FromMinutes(10);
+        // Failed sign-ins are slowed down by the web app's sign-in throttle, not by locking the account (which would
+        // let anyone lock anyone out); a lock with no end is how an account is disabled (UserAdmin.DisableAsync).
         identity.Lockout.AllowedForNewUsers = true;
+        identity.Lockout.MaxFailedAccessAttempts = int.MaxValue;
         identity.User.RequireUniqueEmail = false;
     }
 }

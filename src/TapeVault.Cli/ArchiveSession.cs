@@ -47,7 +47,8 @@ public sealed class ArchiveSession : IDisposable
         collection.AddDbContext<ArchiveDbContext>(db => ArchiveDatabase.Configure(db, options.FullDatabasePath));
         collection.AddIdentityCore<IdentityUser>(ArchiveServices.ConfigureIdentity)
             .AddRoles<IdentityRole>()
-            .AddEntityFrameworkStores<ArchiveDbContext>();
+            .AddEntityFrameworkStores<ArchiveDbContext>()
+            .AddArchivePasswordPolicy();
         collection.AddScoped<UserAdmin>();
         collection.AddScoped<FixityAudit>();
         collection.AddScoped<BagExport>();

@@ -6,11 +6,11 @@ namespace TapeVault.Web;
 
 /// <summary>
 /// Every page handler that is not a GET changes something, so it needs a curator: one rule for all pages, so that a
-/// new form cannot forget it. Signing in and out are the only writes open to others.
+/// new form cannot forget it. Signing in and out, and changing one's own password, are the only writes open to others.
 /// </summary>
 public sealed class CuratorWritesFilter : IAsyncPageFilter
 {
-    private static readonly HashSet<string> OpenPages = new(StringComparer.Ordinal) { "/Account/SignIn", "/Account/SignOut", "/Error" };
+    private static readonly HashSet<string> OpenPages = new(StringComparer.Ordinal) { "/Account/SignIn", "/Account/SignOut", "/Account/Password", "/Error" };
 
     public Task OnPageHandlerSelectionAsync(PageHandlerSelectedContext context) => Task.CompletedTask;
 

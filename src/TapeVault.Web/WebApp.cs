@@ -3,12 +3,14 @@ using Microsoft.AspNetCore.Authorization;
 using Microsoft.AspNetCore.DataProtection;
 using Microsoft.AspNetCore.Identity;
 using Microsoft.AspNetCore.Server.Kestrel.Core;
+using Microsoft.Extensions.DependencyInjection.Extensions;
 using Microsoft.Extensions.FileProviders;
 using TapeVault.Archive;
 using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Export;
 using TapeVault.Archive.Jobs;
 using TapeVault.Core.Formats;
+using TapeVault.Web.Accounts;
 using TapeVault.Web.Api;
 using TapeVault.Web.Startup;
 
@@ -59,7 +61,15 @@ public static class WebApp
 
         builder.Services.AddIdentity<IdentityUser, IdentityRole>(ArchiveServices.ConfigureIdentity)
             .AddEntityFrameworkStores<ArchiveDbContext>()
-            .AddDefaultTokenProviders();
+            .AddDefaultTokenProviders()
+            .AddArchivePasswordPolicy();
+
+        // Every request checks the session's security stamp against the account's, so that signing out, a password
+        // change, a reset and disabling end every session at once, copies of the cookie included.
+        builder.Services.Configure<SecurityStampValidatorOptions>(stamp => stamp.ValidationInterval = TimeSpan.Zero);
+        builder.Services.TryAddSingleton(TimeProvider.System);
+        builder.Services.AddSingleton<SignInGuard>();
+        builder.Services.AddTapeVaultRateLimits(web.SignIn);
         builder.Services.ConfigureApplicationCookie(cookie =>
         {
             cookie.LoginPath = "/signin";
@@ -90,6 +100,13 @@ public static class WebApp
         builder.Services.AddRazorPages(pages =>
         {
             pages.Conventions.AllowAnonymousToPage("/Account/SignIn");
+            pages.Conventions.AddPageRouteModelConvention("/Account/SignIn", model =>
+            {
+                foreach (var selector in model.Selectors)
+                {
+                    selector.EndpointMetadata.Add(new Microsoft.AspNetCore.RateLimiting.EnableRateLimitingAttribute(RateLimits.SignIn));
+                }
+            });
             pages.Conventions.AllowAnonymousToPage("/Account/Denied");
             pages.Conventions.AllowAnonymousToPage("/Error");
             pages.Conventions.AllowAnonymousToPage("/Handling");
@@ -126,7 +143,9 @@ public static class WebApp
         app.Use(SecurityHeaders.Add);
         app.UseStaticFiles();
         app.UseRouting();
+        app.UseRateLimiter();
         app.UseAuthentication();
+        app.Use(PasswordChangeGate.Check);
         app.UseAuthorization();
         app.UseAntiforgery();
         app.MapOpenApi().AllowAnonymous();
@@ -163,4 +182,7 @@ public sealed class WebOptions
 
     /// <summary>Whether viewers may download original captures.</summary>
     public bool ViewersMayDownloadOriginals { get; set; } = true;
+
+    /// <summary>How failed sign-ins are slowed down.</summary>
+    public SignInThrottleOptions SignIn { get; set; } = new();
 }

@@ -1,5 +1,6 @@
 using System.Diagnostics;
 using System.Net;
+using System.Net.Http.Json;
 using System.Net.Sockets;
 using System.Text;
 using System.Text.RegularExpressions;
@@ -130,8 +131,38 @@ public sealed partial class AppProcess : IAsyncDisposable
             throw new InvalidOperationException($"The app printed no curator password:\n{running.Output}");
         }
 
-        running.CuratorPassword = match.Success ? match.Groups[1].Value : string.Empty;
+        // The printed password is a one-time password that must be changed at the first sign-in, as a user would.
+        running.CuratorPassword = match.Success ? await ChangeOneTimePasswordAsync(address, match.Groups[1].Value) : string.Empty;
         return running;
+    }
+
+    /// <summary>Signs in with the one-time password and sets a new one, which it returns.</summary>
+    private static async Task<string> ChangeOneTimePasswordAsync(Uri address, string oneTime)
+    {
+        string chosen = $"spools and reels {Guid.NewGuid():N}";
+        using var handler = new HttpClientHandler { CookieContainer = new CookieContainer(), AllowAutoRedirect = false };
+        using var http = new HttpClient(handler) { BaseAddress = address };
+        await UseTokenAsync(http);
+        using (var signIn = await http.PostAsJsonAsync("/api/signin", new { userName = "curator", password = oneTime }))
+        {
+            signIn.EnsureSuccessStatusCode();
+        }
+
+        await UseTokenAsync(http);
+        using var change = await http.PostAsJsonAsync("/api/account/password", new { currentPassword = oneTime, newPassword = chosen });
+        if (!change.IsSuccessStatusCode)
+        {
+            throw new InvalidOperationException($"Changing the one-time password failed: {(int)change.StatusCode} {await change.Content.ReadAsStringAsync()}");
+        }
+
+        return chosen;
+
+        static async Task UseTokenAsync(HttpClient http)
+        {
+            using var document = System.Text.Json.JsonDocument.Parse(await http.GetStringAsync("/api/antiforgery"));
+            http.DefaultRequestHeaders.Remove(document.RootElement.GetProperty("headerName").GetString()!);
+            http.DefaultRequestHeaders.Add(document.RootElement.GetProperty("headerName").GetString()!, document.RootElement.GetProperty("token").GetString());
+        }
     }
 
     /// <summary>Ends the app at once with SIGKILL, as a power cut or the OOM killer would: no shutdown code runs.</summary>

@@ -57,6 +57,7 @@ public sealed class AccessControlArchive : IAsyncLifetime
         var bagged = await curator.WaitForJobAsync(bag.Id, TimeSpan.FromSeconds(30));
         Assert.True(bagged.State == "done", bagged.Error);
         Ids["exports"] = Invariant(bagged.ResultId!.Value);
+        Ids["users"] = ArchiveAppFactory.ViewerName;
     }
 
     public async Task DisposeAsync()
@@ -79,11 +80,12 @@ public sealed partial class AccessControlTests(AccessControlArchive archive, ITe
 {
     /// <summary>
     /// Writes open to people who are not curators, each on purpose: signing in and out, fetching the antiforgery
-    /// token, and the error page (which a failed form post lands on). Everything else that writes needs a curator.
+    /// token, changing one's own password, and the error page (which a failed form post lands on). Everything else
+    /// that writes needs a curator.
     /// </summary>
     private static readonly HashSet<string> OpenWriteRoutes = new(StringComparer.Ordinal)
     {
-        "/api/signin", "/api/signout", "/api/antiforgery", "/signin", "/signout", "/Error",
+        "/api/signin", "/api/signout", "/api/antiforgery", "/signin", "/signout", "/Error", "/api/account/password", "/account/password",
     };
 
     /// <summary>Reads that need a curator: the account list.</summary>
@@ -106,6 +108,8 @@ public sealed partial class AccessControlTests(AccessControlArchive archive, ITe
         Assert.Contains(writes, w => w.ToString() == $"POST /items/{archive.Ids["items"]}?handler=Decode");
         Assert.Contains(writes, w => w.ToString() == "POST /jobs?handler=Cancel");
         Assert.Contains(writes, w => w.ToString() == "POST /users");
+        Assert.Contains(writes, w => w.ToString() == "POST /users?handler=Disable");
+        Assert.Contains(writes, w => w.ToString() == $"POST /api/users/{ArchiveAppFactory.ViewerName}/disable");
 
         using var anonymous = new ApiClient(archive.App.NewClient());
         await anonymous.RefreshAntiforgeryAsync();

@@ -1,3 +1,4 @@
+using System.Net.Http.Json;
 using System.Text.RegularExpressions;
 using Microsoft.AspNetCore.Identity;
 using Microsoft.EntityFrameworkCore;
@@ -7,6 +8,7 @@ using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Entities;
 using TapeVault.Archive.Jobs;
 using TapeVault.Core.Synthesis;
+using TapeVault.Web.Api;
 using TapeVault.Web.Tests.Support;
 using Xunit;
 
@@ -38,9 +40,19 @@ public sealed partial class StartupTests
 
         Assert.Equal([Roles.Curator], await app.RolesOfAsync("first-curator"));
 
-        // The printed password signs in, and the account may write.
+        // The printed password signs in, but must be changed before anything else; then the account may write.
         using var client = new ApiClient(app.NewClient());
         await client.SignInAsync("first-curator", password.Groups["password"].Value);
+        using (var refused = await client.Http.PostAsJsonAsync("/api/collections", new NewCollection("Too early", null), ApiClient.Json))
+        {
+            Assert.Equal(System.Net.HttpStatusCode.Forbidden, refused.StatusCode);
+        }
+
+        using (var changed = await client.Http.PostAsJsonAsync("/api/account/password", new PasswordChange(password.Groups["password"].Value, "Brackenfield Spools In Winter 9"), ApiClient.Json))
+        {
+            Assert.Equal(System.Net.HttpStatusCode.NoContent, changed.StatusCode);
+        }
+
         await client.NewItemAsync("FIRST-1");
     }
 

@@ -121,18 +121,20 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
         }
 
         var extension = Path.GetExtension(request.FileName);
-        if (!options.AllowedExtensions.Contains(extension, StringComparer.OrdinalIgnoreCase))
+        var extensions = options.AcceptedExtensions;
+        if (!extensions.Contains(extension, StringComparer.OrdinalIgnoreCase))
         {
             throw new ArchiveInputException(
-                $"Files ending in '{(extension.Length == 0 ? "(nothing)" : extension)}' are not accepted; captures must be {string.Join(" or ", options.AllowedExtensions)} files.");
+                $"Files ending in '{(extension.Length == 0 ? "(nothing)" : extension)}' are not accepted; captures must be {string.Join(" or ", extensions)} files.");
         }
 
         if (request.ContentType is { } type)
         {
             var bare = type.Split(';', 2)[0].Trim();
-            if (!options.AllowedContentTypes.Contains(bare, StringComparer.OrdinalIgnoreCase))
+            var types = options.AcceptedContentTypes;
+            if (!types.Contains(bare, StringComparer.OrdinalIgnoreCase))
             {
-                throw new ArchiveInputException($"The content type '{bare}' is not accepted for captures; send the WAV file as audio/wav.");
+                throw new ArchiveInputException($"The content type '{bare}' is not accepted for captures; send the WAV file as {string.Join(" or ", types)}.");
             }
         }
     }

@@ -12,10 +12,13 @@ public static class CommandTree
         new SynthCommand(),
         new ProfilesCommand(),
         new DemoCommand(),
-        new CommandGroup("users", "Add or list the web app's accounts.")
+        new CommandGroup("users", "Add, list, reset, disable or enable the web app's accounts.")
         {
             new UsersAddCommand(),
             new UsersListCommand(),
+            new UsersResetCommand(),
+            new UsersDisableCommand(),
+            new UsersEnableCommand(),
         },
         new VerifyCommand(),
         new CommandGroup("export", "Export from the web app's archive.")

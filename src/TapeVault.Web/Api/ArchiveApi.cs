@@ -12,6 +12,8 @@ using TapeVault.Archive.Curation;
 using TapeVault.Archive.Ingest;
 using TapeVault.Archive.Jobs;
 using TapeVault.Archive.Storage;
+using TapeVault.Web.Accounts;
+using TapeVault.Web.Startup;
 
 namespace TapeVault.Web.Api;
 
@@ -26,12 +28,21 @@ public static class ArchiveApi
 
         api.MapGet("/antiforgery", (HttpContext http, IAntiforgery antiforgery) =>
             new AntiforgeryToken(ApiAntiforgery.HeaderName, antiforgery.GetAndStoreTokens(http).RequestToken!)).AllowAnonymous();
-        api.MapPost("/signin", SignInAsync).AllowAnonymous();
-        api.MapPost("/signout", async (SignInManager<IdentityUser> signIn) =>
+        api.MapPost("/signin", SignInAsync).AllowAnonymous().RequireRateLimiting(RateLimits.SignIn)
+            .WithDescription("Sign in. 204 signed in; 401 wrong name or password (one answer for both); 429 too many attempts (Retry-After says how long to wait). An account with a one-time password must then change it (POST /api/account/password) before anything else.");
+        api.MapPost("/signout", async (HttpContext http) =>
         {
-            await signIn.SignOutAsync().ConfigureAwait(false);
+            await SignOutEverywhereAsync(http).ConfigureAwait(false);
             return Results.NoContent();
-        }).RequireAuthorization(Roles.ReaderPolicy);
+        }).RequireAuthorization(Roles.ReaderPolicy).WithDescription("Sign out: every session of this account ends, not only this one.");
+        api.MapPost("/account/password", async (PasswordChange body, UserAdmin admin, UserManager<IdentityUser> users, SignInManager<IdentityUser> signIn, HttpContext http) =>
+        {
+            string name = Agent(http);
+            await admin.ChangePasswordAsync(name, body.CurrentPassword ?? string.Empty, body.NewPassword ?? string.Empty, name).ConfigureAwait(false);
+            // The change ended every session; this one goes on with the new stamp.
+            await signIn.RefreshSignInAsync((await users.FindByNameAsync(name).ConfigureAwait(false))!).ConfigureAwait(false);
+            return Results.NoContent();
+        }).RequireAuthorization(Roles.ReaderPolicy).WithDescription("Change the signed-in account's password; its other sessions end.");
 
         read.MapGet("/collections", (ArchiveQueries q, CancellationToken c) => q.CollectionsAsync(c));
         read.MapGet("/collections/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.CollectionAsync(id, c));
@@ -99,6 +110,32 @@ public static class ArchiveApi
             var (user, generated) = await admin.AddAsync(body.UserName, body.Role, body.Password, Agent(http)).ConfigureAwait(false);
             return Results.Created($"/api/users/{user.UserName}", new NewUserCreated(user.UserName!, body.Role, generated));
         });
+        write.MapPost("/users/{name}/reset", async (string name, UserAdmin admin, HttpContext http) =>
+            Results.Ok(new PasswordReset(name, (await admin.ResetPasswordAsync(name, null, Agent(http)).ConfigureAwait(false))!)))
+            .WithDescription("Give an account a one-time password (shown only in this answer), to be changed at its next sign-in; its sessions end.");
+        write.MapPost("/users/{name}/disable", async (string name, UserAdmin admin, HttpContext http) =>
+        {
+            await admin.DisableAsync(name, Agent(http)).ConfigureAwait(false);
+            return Results.NoContent();
+        }).WithDescription("Disable an account: it cannot sign in and its sessions end. The last enabled curator cannot be disabled.");
+        write.MapPost("/users/{name}/enable", async (string name, UserAdmin admin, HttpContext http) =>
+        {
+            await admin.EnableAsync(name, Agent(http)).ConfigureAwait(false);
+            return Results.NoContent();
+        }).WithDescription("Enable a disabled account again.");
+    }
+
+    /// <summary>Signs out and renews the account's security stamp, so that a copy of the session cookie is worth nothing.</summary>
+    public static async Task SignOutEverywhereAsync(HttpContext http)
+    {
+        ArgumentNullException.ThrowIfNull(http);
+        var users = http.RequestServices.GetRequiredService<UserManager<IdentityUser>>();
+        if (await users.GetUserAsync(http.User).ConfigureAwait(false) is { } user)
+        {
+            await users.UpdateSecurityStampAsync(user).ConfigureAwait(false);
+        }
+
+        await http.RequestServices.GetRequiredService<SignInManager<IdentityUser>>().SignOutAsync().ConfigureAwait(false);
     }
 
     public static string Agent(HttpContext http)
@@ -132,17 +169,19 @@ public static class ArchiveApi
         }
     }
 
-    private static async Task<IResult> SignInAsync(SignInRequest body, SignInManager<IdentityUser> signIn)
+    private static async Task<IResult> SignInAsync(SignInRequest body, SignInGuard guard, HttpContext http)
     {
-        var result = await signIn.PasswordSignInAsync(body.UserName ?? string.Empty, body.Password ?? string.Empty, isPersistent: false, lockoutOnFailure: true).ConfigureAwait(false);
-        if (result.IsLockedOut)
+        var (outcome, retryAfter) = await guard.SignInAsync(http, body.UserName, body.Password).ConfigureAwait(false);
+        switch (outcome)
         {
-            return Results.Problem(statusCode: StatusCodes.Status423Locked, title: "The account is locked after too many failed sign-ins; try again later.");
+            case SignInOutcome.SignedIn or SignInOutcome.SignedInMustChangePassword:
+                return Results.NoContent();
+            case SignInOutcome.Throttled:
+                http.Response.Headers.RetryAfter = Math.Max(1, (int)Math.Ceiling(retryAfter.TotalSeconds)).ToString(CultureInfo.InvariantCulture);
+                return Results.Problem(statusCode: StatusCodes.Status429TooManyRequests, title: SignInGuard.ThrottledMessage(retryAfter));
+            default:
+                return Results.Problem(statusCode: StatusCodes.Status401Unauthorized, title: SignInGuard.RefusedMessage);
         }
-
-        return result.Succeeded
-            ? Results.NoContent()
-            : Results.Problem(statusCode: StatusCodes.Status401Unauthorized, title: "The user name or password is wrong.");
     }
 
     /// <summary>Whether this user may have an original's bytes (the download itself, or a bag that carries it).</summary>

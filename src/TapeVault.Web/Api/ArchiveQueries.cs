@@ -390,7 +390,12 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
         foreach (var user in await users.Users.AsNoTracking().OrderBy(u => u.UserName).ToListAsync().ConfigureAwait(false))
         {
             var roles = await users.GetRolesAsync(user).ConfigureAwait(false);
-            list.Add(new UserView(user.UserName ?? string.Empty, [.. roles], await users.IsLockedOutAsync(user).ConfigureAwait(false)));
+            var claims = await users.GetClaimsAsync(user).ConfigureAwait(false);
+            list.Add(new UserView(
+                user.UserName ?? string.Empty,
+                [.. roles],
+                user.LockoutEnd is { } end && end > DateTimeOffset.UtcNow,
+                claims.Any(c => c.Type == Archive.Accounts.UserAdmin.MustChangePasswordClaim)));
         }
 
         return list;

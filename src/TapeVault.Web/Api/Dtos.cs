@@ -104,7 +104,9 @@ public sealed record SettingView(
     string Edges,
     string Explanation);
 
-public sealed record UserView(string UserName, IReadOnlyList<string> Roles, bool LockedOut);
+/// <param name="Disabled">The account cannot sign in (a curator disabled it).</param>
+/// <param name="MustChangePassword">The account's password is a one-time password, to be changed at its next sign-in.</param>
+public sealed record UserView(string UserName, IReadOnlyList<string> Roles, bool Disabled, bool MustChangePassword);
 
 public sealed record NewCollection(string Name, string? Description);
 
@@ -118,6 +120,12 @@ public sealed record NewUser(string UserName, string Role, string? Password);
 public sealed record NewUserCreated(string UserName, string Role, string? GeneratedPassword);
 
 public sealed record SignInRequest(string UserName, string Password);
+
+/// <summary>A signed-in account changing its own password.</summary>
+public sealed record PasswordChange(string CurrentPassword, string NewPassword);
+
+/// <summary>A curator's reset of another account: its new one-time password, shown once.</summary>
+public sealed record PasswordReset(string UserName, string OneTimePassword);
 
 public sealed record UploadResult(CaptureSummary Capture, bool Duplicate, bool LinkedExistingObject, string Message, JobView? DecodeJob);
 

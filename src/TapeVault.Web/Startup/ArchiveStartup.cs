@@ -52,7 +52,8 @@ public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions
                  TapeVault: first start. A curator account was made:
                    user name: {web.InitialCurator}
                    password:  {password}
-                 This password is shown only now; sign in and keep it safe, or add accounts with 'tapevault users add'.
+                 This one-time password is shown only now and must be changed at the first sign-in
+                 (or set one with 'tapevault users reset {web.InitialCurator} --password-stdin').
 
                 """).ConfigureAwait(false);
         }

@@ -1,9 +1,13 @@
+using System.Collections.Concurrent;
 using System.Globalization;
+using System.Net;
+using Microsoft.AspNetCore.Builder;
 using Microsoft.AspNetCore.Hosting;
 using Microsoft.AspNetCore.Identity;
 using Microsoft.AspNetCore.Mvc.Testing;
 using Microsoft.Data.Sqlite;
 using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.Logging;
 using TapeVault.Archive;
 using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Storage;
@@ -49,6 +53,16 @@ public sealed class ArchiveFolder : IDisposable
     }
 }
 
+/// <summary>A clock that stands still until a test moves it on; it starts at the real time.</summary>
+public sealed class ManualClock : TimeProvider
+{
+    private DateTimeOffset now = DateTimeOffset.UtcNow;
+
+    public override DateTimeOffset GetUtcNow() => now;
+
+    public void Advance(TimeSpan by) => now += by;
+}
+
 /// <summary>
 /// Starts the real web app (pages, API, job workers) in memory over an <see cref="ArchiveFolder"/>. Settings go in as
 /// host settings, which the factory hands to the program as command-line arguments, so the app reads them while it is
@@ -59,13 +73,19 @@ public sealed class ArchiveAppFactory : WebApplicationFactory<Program>
     public const string CuratorName = "test-curator";
     public const string ViewerName = "test-viewer";
 
-    /// <summary>Known passwords for the test accounts (Identity asks for 12 characters with digits and both cases).</summary>
+    /// <summary>The known password of the test accounts (the password policy asks at least 15 characters, no common word).</summary>
     public const string Password = "Archive-Test-Passw0rd";
 
     private readonly Dictionary<string, string?> settings;
 
-    public ArchiveAppFactory(ArchiveFolder folder, IReadOnlyDictionary<string, string?>? overrides = null)
+    private readonly bool captureLogs;
+    private readonly TimeProvider? clock;
+
+    /// <param name="clock">The app's clock, when a test must move time on (a <see cref="ManualClock"/>).</param>
+    public ArchiveAppFactory(ArchiveFolder folder, IReadOnlyDictionary<string, string?>? overrides = null, bool captureLogs = false, TimeProvider? clock = null)
     {
+        this.captureLogs = captureLogs;
+        this.clock = clock;
         ArgumentNullException.ThrowIfNull(folder);
         Folder = folder;
         settings = new Dictionary<string, string?>(StringComparer.OrdinalIgnoreCase)
@@ -96,6 +116,20 @@ public sealed class ArchiveAppFactory : WebApplicationFactory<Program>
     /// <summary>A client that keeps cookies and shows redirects as they are (so a redirect to /signin can be seen).</summary>
     public HttpClient NewClient() => CreateClient(new WebApplicationFactoryClientOptions { AllowAutoRedirect = false, HandleCookies = true });
 
+    /// <summary>A client as <see cref="NewClient()"/>, whose requests arrive from the given network address.</summary>
+    public HttpClient NewClient(string address)
+    {
+        var client = NewClient();
+        client.DefaultRequestHeaders.Add(ClientAddressFilter.Header, address);
+        return client;
+    }
+
+    /// <summary>A client that keeps no cookies: every request carries only the headers the test gives it.</summary>
+    public HttpClient NewBareClient() => CreateClient(new WebApplicationFactoryClientOptions { AllowAutoRedirect = false, HandleCookies = false });
+
+    /// <summary>Every line the app logged, at every level, when the factory was made with <c>captureLogs</c>.</summary>
+    public ConcurrentQueue<string> LogLines { get; } = new();
+
     /// <summary>Makes an account with the known password through the archive's own account service.</summary>
     public async Task AddUserAsync(string userName, string role)
     {
@@ -118,6 +152,14 @@ public sealed class ArchiveAppFactory : WebApplicationFactory<Program>
         await AddUserAsync(ViewerName, Roles.Viewer).ConfigureAwait(false);
     }
 
+    /// <summary>The names of every account, read from the Identity store.</summary>
+    public async Task<IList<string>> UserNamesAsync()
+    {
+        await using var scope = Scope();
+        var users = scope.ServiceProvider.GetRequiredService<UserManager<IdentityUser>>();
+        return [.. users.Users.Select(u => u.UserName!)];
+    }
+
     /// <summary>The role names a user has, read from the Identity store.</summary>
     public async Task<IList<string>> RolesOfAsync(string userName)
     {
@@ -133,6 +175,67 @@ public sealed class ArchiveAppFactory : WebApplicationFactory<Program>
         foreach (var (key, value) in settings)
         {
             builder.UseSetting(key, value);
+        }
+
+        builder.ConfigureServices(services => services.AddSingleton<IStartupFilter, ClientAddressFilter>());
+        if (clock is not null)
+        {
+            builder.ConfigureServices(services => services.AddSingleton(clock));
+        }
+        if (captureLogs)
+        {
+            builder.ConfigureLogging(logging =>
+            {
+                logging.SetMinimumLevel(LogLevel.Trace);
+                logging.AddFilter(_ => true);
+                logging.AddProvider(new QueueLoggerProvider(LogLines));
+            });
+        }
+    }
+
+    /// <summary>
+    /// The in-memory server has no network, so every request would come from no address; this stands in for the
+    /// network, giving a request the address a test names in <see cref="Header"/> (test builds only).
+    /// </summary>
+    private sealed class ClientAddressFilter : IStartupFilter
+    {
+        public const string Header = "X-Test-Client-Address";
+
+        public Action<IApplicationBuilder> Configure(Action<IApplicationBuilder> next) => app =>
+        {
+            app.Use((context, nextMiddleware) =>
+            {
+                if (context.Request.Headers.TryGetValue(Header, out var value) && IPAddress.TryParse(value, out var address))
+                {
+                    context.Connection.RemoteIpAddress = address;
+                }
+
+                return nextMiddleware();
+            });
+            next(app);
+        };
+    }
+
+    private sealed class QueueLoggerProvider(ConcurrentQueue<string> lines) : ILoggerProvider
+    {
+        public ILogger CreateLogger(string categoryName) => new QueueLogger(categoryName, lines);
+
+        public void Dispose()
+        {
+        }
+    }
+
+    private sealed class QueueLogger(string category, ConcurrentQueue<string> lines) : ILogger
+    {
+        public IDisposable? BeginScope<TState>(TState state)
+            where TState : notnull => null;
+
+        public bool IsEnabled(LogLevel logLevel) => true;
+
+        public void Log<TState>(LogLevel logLevel, EventId eventId, TState state, Exception? exception, Func<TState, Exception?, string> formatter)
+        {
+            ArgumentNullException.ThrowIfNull(formatter);
+            lines.Enqueue($"{category} {logLevel}: {formatter(state, exception)} {exception}");
         }
     }
 

@@ -37,7 +37,7 @@ public sealed class UsersAddCommand : CliCommand
         run.Output.WriteLine($"Account '{user.UserName}' made with the {userRole} role in {session.Options.FullDatabasePath}.");
         if (generated is not null)
         {
-            run.Output.WriteLine($"Password (shown only now): {generated}");
+            run.Output.WriteLine($"One-time password (shown only now; it must be changed at the first sign-in): {generated}");
         }
 
         return 0;

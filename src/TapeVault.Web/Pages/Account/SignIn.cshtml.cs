@@ -1,10 +1,11 @@
-using Microsoft.AspNetCore.Identity;
+using System.Globalization;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
+using TapeVault.Web.Accounts;
 
 namespace TapeVault.Web.Pages.Account;
 
-public sealed class SignInModel(SignInManager<IdentityUser> signIn) : PageModel
+public sealed class SignInModel(SignInGuard guard) : PageModel
 {
     [BindProperty]
     public string UserName { get; set; } = string.Empty;
@@ -15,21 +16,36 @@ public sealed class SignInModel(SignInManager<IdentityUser> signIn) : PageModel
     [BindProperty(SupportsGet = true)]
     public string? ReturnUrl { get; set; }
 
+    /// <summary>Seconds to wait, when the rate limiter turned this address's attempts away.</summary>
+    [BindProperty(SupportsGet = true)]
+    public int? Wait { get; set; }
+
     public void OnGet()
     {
+        if (Wait is > 0 and < 100_000)
+        {
+            ModelState.AddModelError(string.Empty, $"Too many sign-in attempts from this address; wait {Wait.Value.ToString(CultureInfo.InvariantCulture)} seconds and try again.");
+        }
     }
 
     public async Task<IActionResult> OnPostAsync()
     {
-        var result = await signIn.PasswordSignInAsync(UserName, Password, isPersistent: false, lockoutOnFailure: true).ConfigureAwait(false);
-        if (result.Succeeded)
+        var (outcome, retryAfter) = await guard.SignInAsync(HttpContext, UserName, Password).ConfigureAwait(false);
+        switch (outcome)
         {
-            return LocalRedirect(Url.IsLocalUrl(ReturnUrl) ? ReturnUrl! : "/");
+            case SignInOutcome.SignedIn:
+                return LocalRedirect(Url.IsLocalUrl(ReturnUrl) ? ReturnUrl! : "/");
+            case SignInOutcome.SignedInMustChangePassword:
+                return LocalRedirect(PasswordChangeGate.ChangePage);
+            case SignInOutcome.Throttled:
+                Response.Headers.RetryAfter = Math.Max(1, (int)Math.Ceiling(retryAfter.TotalSeconds)).ToString(CultureInfo.InvariantCulture);
+                Response.StatusCode = StatusCodes.Status429TooManyRequests;
+                ModelState.AddModelError(string.Empty, SignInGuard.ThrottledMessage(retryAfter));
+                return Page();
+            default:
+                Response.StatusCode = StatusCodes.Status401Unauthorized;
+                ModelState.AddModelError(string.Empty, SignInGuard.RefusedMessage);
+                return Page();
         }
-
-        ModelState.AddModelError(string.Empty, result.IsLockedOut
-            ? "This account is locked for a few minutes after too many failed sign-ins."
-            : "The user name or password is wrong.");
-        return Page();
     }
 }

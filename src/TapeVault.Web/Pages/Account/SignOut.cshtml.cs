@@ -1,10 +1,10 @@
-using Microsoft.AspNetCore.Identity;
 using Microsoft.AspNetCore.Mvc;
 using Microsoft.AspNetCore.Mvc.RazorPages;
+using TapeVault.Web.Api;
 
 namespace TapeVault.Web.Pages.Account;
 
-public sealed class SignOutModel(SignInManager<IdentityUser> signIn) : PageModel
+public sealed class SignOutModel : PageModel
 {
     public void OnGet()
     {
@@ -12,7 +12,8 @@ public sealed class SignOutModel(SignInManager<IdentityUser> signIn) : PageModel
 
     public async Task<IActionResult> OnPostAsync()
     {
-        await signIn.SignOutAsync().ConfigureAwait(false);
+        // Every session of the account ends, so a copied cookie is worth nothing after signing out.
+        await ArchiveApi.SignOutEverywhereAsync(HttpContext).ConfigureAwait(false);
         return Redirect("/signin");
     }
 }
