@@ -5,7 +5,7 @@ using TapeVault.Core.Text;
 namespace TapeVault.Core.Formats;
 
 /// <summary>Reads a profile from JSON and validates it; a profile that cannot work is never built.</summary>
-public static class ProfileLoader
+public static partial class ProfileLoader
 {
     /// <summary>Profile files larger than this are refused before parsing.</summary>
     public const int MaximumFileBytes = 256 * 1024;
@@ -62,7 +62,7 @@ public static class ProfileLoader
         return new Validator(source).Build(document);
     }
 
-    private sealed class Validator(string source)
+    private sealed partial class Validator(string source)
     {
         private string _label = source;
 
@@ -357,9 +357,15 @@ public static class ProfileLoader
                     "file-id" => FieldRole.FileId,
                     "block-number" => FieldRole.BlockNumber,
                     "payload-length" => FieldRole.PayloadLength,
-                    var other => throw Error(path + ".role", $"must be other, file-name, file-id, block-number or payload-length, not '{other}'"),
+                    "sync" => FieldRole.Sync,
+                    var other => throw Error(path + ".role", $"must be other, file-name, file-id, block-number, payload-length or sync, not '{other}'"),
                 };
-                int maxBytes = role is FieldRole.FileName or FieldRole.Other ? 64 : 4;
+                int maxBytes = role switch
+                {
+                    FieldRole.FileName or FieldRole.Other => 64,
+                    FieldRole.Sync => MaximumSyncBytes,
+                    _ => 4,
+                };
                 if (bytes < 1 || bytes > maxBytes)
                 {
                     Fail(path + ".bytes", $"must be between 1 and {maxBytes} for role {f.Role ?? "other"}, not {bytes}");
@@ -376,7 +382,7 @@ public static class ProfileLoader
                     "big" => true,
                     var other => throw Error(path + ".endian", $"must be little or big, not '{other}'"),
                 };
-                header.Add(new HeaderField(fieldName, bytes, role, big));
+                header.Add(new HeaderField(fieldName, bytes, role, big) { Expected = SyncExpected(f, role, bytes, i, path) });
             }
 
             int? payload = d.PayloadBytes;
@@ -415,6 +421,7 @@ public static class ProfileLoader
                 Fail("layout.copies", $"must be between 1 and 8, not {copies}");
             }
 
+            SyncCopies(header, copies);
             return new BlockLayout(header, payload, maximum, checksum, copies);
         }
 
