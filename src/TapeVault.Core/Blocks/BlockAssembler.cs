@@ -12,7 +12,7 @@ namespace TapeVault.Core.Blocks;
 /// missing after a loss of signal is the next block's doubt (it begins on no evidence). <see cref="BlockScorer"/>
 /// judges each finished block.
 /// </summary>
-public sealed class BlockAssembler
+public sealed partial class BlockAssembler
 {
     private readonly BlockLayout _layout;
     private readonly BlockScorer _scorer;

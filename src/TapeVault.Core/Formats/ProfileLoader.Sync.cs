@@ -44,10 +44,15 @@ public static partial class ProfileLoader
                     Fail(itemPath, $"holds {value.Length} bytes; the field has {bytes}");
                 }
 
-                if (value.AsSpan().IndexOfAnyExcept(value[0]) < 0)
+                // A run of one value is what a stuck line or a lead-in reads as: it proves no block start.
+                if (value.Length > 1 && value.AsSpan().IndexOfAnyExcept(value[0]) < 0)
                 {
-                    // A run of one value is what a stuck line or a lead-in reads as: it proves no block start.
                     Fail(itemPath, "must not be one byte value repeated: a lead-in or a stuck line reads as such a run");
+                }
+
+                if (value is [0x00] or [0xFF])
+                {
+                    Fail(itemPath, "must not be a byte of all zeros or all ones: a lead-in or a stuck line reads as such a run");
                 }
 
                 result.Add(value);

@@ -85,7 +85,7 @@ public static partial class ProfileLoader
             {
                 case "pulse-width":
                     return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.PulseWidth,
-                        PulseWidth(d.PulseWidth), null, null, framing, layout, recording);
+                        PulseWidth(d.PulseWidth, layout), null, null, framing, layout, recording);
                 case "fsk":
                     return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Fsk,
                         null, Fsk(d.Fsk), null, framing, layout, recording);
@@ -98,7 +98,7 @@ public static partial class ProfileLoader
             }
         }
 
-        private PulseWidthEncoding PulseWidth(PulseWidthDocument? d)
+        private PulseWidthEncoding PulseWidth(PulseWidthDocument? d, BlockLayout layout)
         {
             if (d is null)
             {
@@ -169,16 +169,19 @@ public static partial class ProfileLoader
                 Fail("pulseWidth.leadIn.minimumCount", $"must be between 8 and 100 000, not {minimum}");
             }
 
-            var sync = ClassSequence(d.Sync, "pulseWidth.sync", classes);
+            // Without a class sequence, a block begins at its sync field's bits or at its first byte marker.
+            var sync = d.Sync is null && (layout.Header is [{ Role: FieldRole.Sync }, ..] || d.Markers?.BeforeByte is { Count: > 0 })
+                ? []
+                : ClassSequence(d.Sync, "pulseWidth.sync", classes);
 
             // The decoder leaves the lead-in on the first pulse of another class and takes it as the sync's first;
             // a sync that began with the lead-in class would be swallowed by the lead-in and never be seen.
-            if (sync[0] == leadClass)
+            if (sync.Count > 0 && sync[0] == leadClass)
             {
                 Fail("pulseWidth.sync[0]", $"must not be the lead-in class '{leadClass}': the lead-in ends on the first pulse of another class, which is where the sync begins");
             }
 
-            return new PulseWidthEncoding(classes, zero, one, leadClass, minimum, sync);
+            return Symbols(d, classes, new PulseWidthEncoding(classes, zero, one, leadClass, minimum, sync), layout);
         }
 
         private static bool IsPrefix(IReadOnlyList<string> a, IReadOnlyList<string> b)
@@ -382,7 +385,7 @@ public static partial class ProfileLoader
                     "big" => true,
                     var other => throw Error(path + ".endian", $"must be little or big, not '{other}'"),
                 };
-                header.Add(new HeaderField(fieldName, bytes, role, big) { Expected = SyncExpected(f, role, bytes, i, path) });
+                header.Add(new HeaderField(fieldName, bytes, role, big) { Expected = SyncExpected(f, role, bytes, i, path), ZeroMeans = ZeroMeans(f, role, bytes, path) });
             }
 
             int? payload = d.PayloadBytes;
