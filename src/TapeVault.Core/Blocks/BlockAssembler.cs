@@ -12,7 +12,7 @@ namespace TapeVault.Core.Blocks;
 /// missing after a loss of signal is the next block's doubt (it begins on no evidence). <see cref="BlockScorer"/>
 /// judges each finished block.
 /// </summary>
-public sealed class BlockAssembler
+public sealed partial class BlockAssembler
 {
     private readonly BlockLayout _layout;
     private readonly BlockScorer _scorer;
@@ -171,7 +171,14 @@ public sealed class BlockAssembler
     {
         InBlock = false;
         var all = _bytes.ToArray();
-        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, _framingErrors, _guessedDecisions, _evidence, truncated);
+        var evidence = _evidence;
+        if (_codec.SyncField is not null && !_codec.NormalizeSync(all, truncated ? -1 : all.Length - _codec.HeaderBytes - _codec.CheckBytes))
+        {
+            // The sync bytes are the format's mark of a block start: read wrong, they mark nothing.
+            evidence = BlockStartEvidence.None;
+        }
+
+        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, _framingErrors, _guessedDecisions, evidence, truncated);
         int headerBytes = score.HeaderBytes;
         int payloadEnd = score.PayloadEnd;
         var header = all.AsSpan(0, headerBytes);

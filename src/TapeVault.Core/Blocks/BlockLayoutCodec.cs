@@ -10,7 +10,7 @@ namespace TapeVault.Core.Blocks;
 /// then the check value over the bytes the profile says it covers. The assembler, the merge and the writer all read
 /// and write blocks through it. A block here is the bytes from the first header byte on (header, payload, check).
 /// </summary>
-public sealed class BlockLayoutCodec
+public sealed partial class BlockLayoutCodec
 {
     private static readonly ConditionalWeakTable<BlockLayout, BlockLayoutCodec> Codecs = new();
 
@@ -107,7 +107,10 @@ public sealed class BlockLayoutCodec
         return equal >= 0 ? _offsets[equal] : throw new ArgumentException($"The field '{field.Name}' is not in the layout's header.", nameof(field));
     }
 
-    /// <summary>The unsigned value of a field of up to eight bytes in its byte order, from a block or its header.</summary>
+    /// <summary>
+    /// The unsigned value of a field of up to eight bytes in its byte order, from a block or its header; a stored 0
+    /// reads as the value the field says it stands for (<see cref="HeaderField.ZeroMeans"/>).
+    /// </summary>
     public long ReadField(ReadOnlySpan<byte> bytes, HeaderField field)
     {
         if (!TryReadField(bytes, field, out long value))
@@ -135,13 +138,26 @@ public sealed class BlockLayoutCodec
         }
 
         value = unchecked((long)ReadUnsigned(bytes.Slice(offset, field.Bytes), field.BigEndian));
+        if (value == 0 && field.ZeroMeans is { } zeroMeans)
+        {
+            value = zeroMeans;
+        }
+
         return true;
     }
 
-    /// <summary>Writes <paramref name="value"/> into a field in its byte order (bits above the field's width are dropped).</summary>
+    /// <summary>
+    /// Writes <paramref name="value"/> into a field in its byte order (bits above the field's width are dropped); the
+    /// value a stored 0 stands for (<see cref="HeaderField.ZeroMeans"/>) is written as 0.
+    /// </summary>
     public void WriteField(Span<byte> block, HeaderField field, ulong value)
     {
         ArgumentNullException.ThrowIfNull(field);
+        if (field.ZeroMeans is { } zeroMeans && value == (ulong)zeroMeans)
+        {
+            value = 0;
+        }
+
         WriteUnsigned(block.Slice(FieldOffset(field), field.Bytes), value, field.BigEndian);
     }
 

@@ -331,16 +331,25 @@ public static class BlockPositioner
             }
         }
 
-        // Candidates before lo start before c ends; blocks are short, so only the last few can still overlap it.
+        // Candidates before lo start before c ends; blocks are short, so only the last few can still overlap it. A
+        // misread that ran on past its block's end (a damaged length) overlaps the next block too: it belongs to the
+        // one it shares the most tape with.
+        BlockCandidate? best = null;
+        double bestOverlap = double.NegativeInfinity;
         for (int i = lo - 1; i >= 0 && i >= lo - 64; i--)
         {
             if (Overlaps(trusted[i].StartSeconds, trusted[i].EndSeconds, c.StartSeconds, c.EndSeconds))
             {
-                return trusted[i];
+                double overlap = Math.Min(trusted[i].EndSeconds, c.EndSeconds) - Math.Max(trusted[i].StartSeconds, c.StartSeconds);
+                if (overlap > bestOverlap)
+                {
+                    best = trusted[i];
+                    bestOverlap = overlap;
+                }
             }
         }
 
-        return null;
+        return best;
     }
 
     /// <summary>

@@ -27,7 +27,10 @@ public static class BlockWriter
                 continue;
             }
 
-            int size = layout.PayloadBytes ?? Math.Min(DefaultPayloadBytes, layout.MaximumPayloadBytes);
+            // A length field whose 0 stands for a value (0 means 256) says how much a full block holds.
+            int size = layout.PayloadBytes
+                ?? (int?)layout.FieldWithRole(FieldRole.PayloadLength)?.ZeroMeans
+                ?? Math.Min(DefaultPayloadBytes, layout.MaximumPayloadBytes);
             int count = Math.Max(1, (file.Content.Length + size - 1) / size);
             for (int b = 0; b < count; b++)
             {
@@ -74,6 +77,10 @@ public static class BlockWriter
                     break;
                 case FieldRole.PayloadLength:
                     codec.WriteField(block, field, (ulong)payload.Length);
+                    break;
+                case FieldRole.Sync:
+                    // The first copy's sync; the flux writer puts each copy's own (BlockLayoutCodec.ForCopy).
+                    codec.SyncOfCopy(0).CopyTo(block.AsSpan(codec.FieldOffset(field), field.Bytes));
                     break;
             }
         }

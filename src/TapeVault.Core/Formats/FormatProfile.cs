@@ -41,6 +41,12 @@ public enum FieldRole
 
     /// <summary>The length of the payload in bytes.</summary>
     PayloadLength,
+
+    /// <summary>
+    /// Bytes the format writes to mark where a block begins, with the values it expects (<see cref="HeaderField.Expected"/>,
+    /// one per copy where the copies differ). They carry no data; a check covers them only where its coverage names them.
+    /// </summary>
+    Sync,
 }
 
 public enum ChecksumCoverage
@@ -58,7 +64,7 @@ public enum ChecksumCoverage
 /// <summary>A named pulse class: a whole cycle of a nominal duration.</summary>
 public sealed record PulseClass(string Name, double Seconds);
 
-public sealed record PulseWidthEncoding(
+public sealed partial record PulseWidthEncoding(
     IReadOnlyList<PulseClass> Classes,
     IReadOnlyList<string> Zero,
     IReadOnlyList<string> One,
@@ -92,7 +98,41 @@ public sealed record ByteFraming(int DataBits, BitOrder BitOrder, string StartBi
     };
 }
 
-public sealed record HeaderField(string Name, int Bytes, FieldRole Role, bool BigEndian);
+public sealed record HeaderField(string Name, int Bytes, FieldRole Role, bool BigEndian)
+{
+    /// <summary>
+    /// For a <see cref="FieldRole.Sync"/> field: the bytes it must hold, one entry per copy of the block (entry c for
+    /// copy c), or a single entry that every copy holds. Empty for other roles.
+    /// </summary>
+    public IReadOnlyList<System.Collections.Immutable.ImmutableArray<byte>> Expected { get; init; } = [];
+
+    /// <summary>
+    /// The value a stored 0 stands for (a one-byte length where 0 means 256), or null when 0 means 0. Only for the
+    /// roles payload-length and other; <see cref="Blocks.BlockLayoutCodec"/> applies it when it reads or writes the field.
+    /// </summary>
+    public long? ZeroMeans { get; init; }
+
+    public bool Equals(HeaderField? other)
+    {
+        if (other is null || Name != other.Name || Bytes != other.Bytes || Role != other.Role || BigEndian != other.BigEndian
+            || ZeroMeans != other.ZeroMeans || Expected.Count != other.Expected.Count)
+        {
+            return false;
+        }
+
+        for (int i = 0; i < Expected.Count; i++)
+        {
+            if (!Expected[i].AsSpan().SequenceEqual(other.Expected[i].AsSpan()))
+            {
+                return false;
+            }
+        }
+
+        return true;
+    }
+
+    public override int GetHashCode() => HashCode.Combine(Name, Bytes, Role, BigEndian, ZeroMeans, Expected.Count);
+}
 
 /// <summary>
 /// The check value of a block: the checksum (<see cref="Algorithm"/>, a catalogue name or the canonical text of its
@@ -124,7 +164,7 @@ public sealed record ChecksumSpec(string Algorithm, ChecksumCoverage Covers, boo
 /// How bytes make blocks. A layout without header, fixed payload length or checksum is a stream: everything
 /// from a block start to the next idle line or loss of signal is one unchecked block.
 /// </summary>
-public sealed record BlockLayout(
+public sealed partial record BlockLayout(
     IReadOnlyList<HeaderField> Header,
     int? PayloadBytes,
     int MaximumPayloadBytes,
@@ -165,7 +205,7 @@ public sealed record BlockLayout(
 public sealed record RecordingLayout(double LeadInSeconds, double BlockGapSeconds, double TrailerSeconds);
 
 /// <summary>A complete, validated format profile. Build one with <see cref="ProfileLoader"/>.</summary>
-public sealed record FormatProfile(
+public sealed partial record FormatProfile(
     string Id,
     string Name,
     string Description,

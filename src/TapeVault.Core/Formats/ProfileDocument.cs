@@ -38,6 +38,23 @@ internal sealed class PulseWidthDocument
     public List<string?>? One { get; set; }
     public LeadInDocument? LeadIn { get; set; }
     public List<string?>? Sync { get; set; }
+
+    // "cycles" (default) or "half-cycles": what a class's duration measures.
+    public string? Pulses { get; set; }
+    public MarkersDocument? Markers { get; set; }
+    public BlockGapDocument? BlockGap { get; set; }
+}
+
+internal sealed class MarkersDocument
+{
+    public List<string?>? BeforeByte { get; set; }
+    public List<string?>? AfterByte { get; set; }
+    public List<string?>? EndOfBlock { get; set; }
+}
+
+internal sealed class BlockGapDocument
+{
+    public int? Count { get; set; }
 }
 
 internal sealed class FskDocument
@@ -71,6 +88,12 @@ internal sealed class HeaderFieldDocument
     public int? Bytes { get; set; }
     public string? Role { get; set; }
     public string? Endian { get; set; }
+
+    // A sync field's expected bytes: one hex text per copy ("89 88 87"), or one for all copies.
+    public List<string?>? Expect { get; set; }
+
+    // The value a stored 0 stands for (a length where 0 means 256).
+    public long? ZeroMeans { get; set; }
 }
 
 internal sealed class ChecksumDocument

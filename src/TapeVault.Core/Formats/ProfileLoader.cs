@@ -5,7 +5,7 @@ using TapeVault.Core.Text;
 namespace TapeVault.Core.Formats;
 
 /// <summary>Reads a profile from JSON and validates it; a profile that cannot work is never built.</summary>
-public static class ProfileLoader
+public static partial class ProfileLoader
 {
     /// <summary>Profile files larger than this are refused before parsing.</summary>
     public const int MaximumFileBytes = 256 * 1024;
@@ -62,7 +62,7 @@ public static class ProfileLoader
         return new Validator(source).Build(document);
     }
 
-    private sealed class Validator(string source)
+    private sealed partial class Validator(string source)
     {
         private string _label = source;
 
@@ -85,7 +85,7 @@ public static class ProfileLoader
             {
                 case "pulse-width":
                     return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.PulseWidth,
-                        PulseWidth(d.PulseWidth), null, null, framing, layout, recording);
+                        PulseWidth(d.PulseWidth, layout), null, null, framing, layout, recording);
                 case "fsk":
                     return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Fsk,
                         null, Fsk(d.Fsk), null, framing, layout, recording);
@@ -98,7 +98,7 @@ public static class ProfileLoader
             }
         }
 
-        private PulseWidthEncoding PulseWidth(PulseWidthDocument? d)
+        private PulseWidthEncoding PulseWidth(PulseWidthDocument? d, BlockLayout layout)
         {
             if (d is null)
             {
@@ -169,16 +169,19 @@ public static class ProfileLoader
                 Fail("pulseWidth.leadIn.minimumCount", $"must be between 8 and 100 000, not {minimum}");
             }
 
-            var sync = ClassSequence(d.Sync, "pulseWidth.sync", classes);
+            // Without a class sequence, a block begins at its sync field's bits or at its first byte marker.
+            var sync = d.Sync is null && (layout.Header is [{ Role: FieldRole.Sync }, ..] || d.Markers?.BeforeByte is { Count: > 0 })
+                ? []
+                : ClassSequence(d.Sync, "pulseWidth.sync", classes);
 
             // The decoder leaves the lead-in on the first pulse of another class and takes it as the sync's first;
             // a sync that began with the lead-in class would be swallowed by the lead-in and never be seen.
-            if (sync[0] == leadClass)
+            if (sync.Count > 0 && sync[0] == leadClass)
             {
                 Fail("pulseWidth.sync[0]", $"must not be the lead-in class '{leadClass}': the lead-in ends on the first pulse of another class, which is where the sync begins");
             }
 
-            return new PulseWidthEncoding(classes, zero, one, leadClass, minimum, sync);
+            return Symbols(d, classes, new PulseWidthEncoding(classes, zero, one, leadClass, minimum, sync), layout);
         }
 
         private static bool IsPrefix(IReadOnlyList<string> a, IReadOnlyList<string> b)
@@ -357,9 +360,15 @@ public static class ProfileLoader
                     "file-id" => FieldRole.FileId,
                     "block-number" => FieldRole.BlockNumber,
                     "payload-length" => FieldRole.PayloadLength,
-                    var other => throw Error(path + ".role", $"must be other, file-name, file-id, block-number or payload-length, not '{other}'"),
+                    "sync" => FieldRole.Sync,
+                    var other => throw Error(path + ".role", $"must be other, file-name, file-id, block-number, payload-length or sync, not '{other}'"),
                 };
-                int maxBytes = role is FieldRole.FileName or FieldRole.Other ? 64 : 4;
+                int maxBytes = role switch
+                {
+                    FieldRole.FileName or FieldRole.Other => 64,
+                    FieldRole.Sync => MaximumSyncBytes,
+                    _ => 4,
+                };
                 if (bytes < 1 || bytes > maxBytes)
                 {
                     Fail(path + ".bytes", $"must be between 1 and {maxBytes} for role {f.Role ?? "other"}, not {bytes}");
@@ -376,7 +385,7 @@ public static class ProfileLoader
                     "big" => true,
                     var other => throw Error(path + ".endian", $"must be little or big, not '{other}'"),
                 };
-                header.Add(new HeaderField(fieldName, bytes, role, big));
+                header.Add(new HeaderField(fieldName, bytes, role, big) { Expected = SyncExpected(f, role, bytes, i, path), ZeroMeans = ZeroMeans(f, role, bytes, path) });
             }
 
             int? payload = d.PayloadBytes;
@@ -415,6 +424,7 @@ public static class ProfileLoader
                 Fail("layout.copies", $"must be between 1 and 8, not {copies}");
             }
 
+            SyncCopies(header, copies);
             return new BlockLayout(header, payload, maximum, checksum, copies);
         }
 

@@ -8,31 +8,58 @@ namespace TapeVault.Core.Symbols;
 
 /// <summary>
 /// Pulse-width formats: a pulse is a whole cycle between two counted edges (or two half cycles when a setting counts
-/// both edges). A lead-in of one class is found by its regularity, whatever the speed within ±12 %, and calibrates the
-/// speed before any pulse is classified; the sync sequence starts a block, and each bit is a short sequence of classes.
+/// both edges), or, for a format measured in half cycles, the time between two successive edges. A lead-in of one
+/// class is found by its regularity, whatever the speed within ±12 %, and calibrates the speed before any pulse is
+/// classified. A block then begins where the profile says: at its class sync, at its sync field's bits searched
+/// bit by bit (a sync byte may begin with the lead-in's own bits), or at its first byte marker. Each bit is a short
+/// sequence of classes; markers before and after each byte and at the end of a block are sequences too. Where the
+/// profile has a block gap, a run as short as the gap, followed by the sync, starts a block without a lead-in.
 /// </summary>
 public sealed class PulseWidthDecoder : ISymbolDecoder
 {
     private const int InvalidPulsesToLoseBlock = 4;
 
+    // The bits (and the pulses that made them) kept while a sync field's bits are searched: more than the longest
+    // sync field's framed bits (16 bytes of at most 17 bits).
+    private const int RingBits = 512;
+    private const int RingPulses = 2048;
+
     private readonly PulseWidthEncoding _encoding;
     private readonly PulseClassifier _classifier;
     private readonly double _sampleRate;
-    private readonly bool _halfCycles;
+    private readonly bool _pairHalves;
+    private readonly bool _inert;
     private readonly BlockAssembler _assembler;
     private readonly SyncByteFramer _framer;
     private readonly int _leadInClass;
     private readonly int[] _sync;
     private readonly int[] _zero;
     private readonly int[] _one;
+    private readonly int[] _before;
+    private readonly int[] _after;
+    private readonly int[] _end;
     private readonly int[] _pattern = new int[64];
+    private readonly bool _searchesSyncBits;
+    private readonly bool _hasSyncField;
+    private readonly bool[][] _syncBits;
+    private readonly int _longestSyncBits;
+    private readonly int _leadBit;
+    private readonly PulseDecision[] _ringPulse = new PulseDecision[RingPulses];
+    private readonly bool[] _ringBit = new bool[RingBits];
+    private readonly long[] _ringBitFirstPulse = new long[RingBits];
     private SpeedTracker _speed = new();
     private Mode _mode = Mode.Hunting;
+    private Phase _phase;
     private LeadInFinder _leadIn;
+    private int _runCount;
     private int _syncIndex;
     private int _patternLength;
     private int _patternFirstDecision;
+    private int _byteFirstDecision;
     private int _recentInvalid;
+    private long _pulsesSeen;
+    private long _bitsSeen;
+    private int _searchBits;
     private double _lastEdge = double.NaN;
     private double _glitchCarry;
     private double _pendingHalf = double.NaN;
@@ -50,14 +77,47 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
         _classifier = new PulseClassifier(nominal);
         _sampleRate = sampleRate;
-        _halfCycles = countsBothEdges;
+
+        // Whole-cycle classes from a setting that counts both edges: pair the halves. Half-cycle classes need both
+        // edges; a setting that counts one direction sees only sums of two pulses and reads nothing.
+        _pairHalves = countsBothEdges && !_encoding.HalfCycles;
+        _inert = _encoding.HalfCycles && !countsBothEdges;
         _assembler = assembler;
         _framer = new SyncByteFramer(profile.Framing, assembler);
         _leadInClass = IndexOf(_encoding.LeadInClass);
-        _leadIn = LeadInFinder.ForClass(_classifier, _leadInClass, _encoding.LeadInMinimum);
+        _leadIn = LeadInFinder.ForClass(_classifier, _leadInClass, _encoding.ShortestRun);
         _sync = Indices(_encoding.Sync);
         _zero = Indices(_encoding.Zero);
         _one = Indices(_encoding.One);
+        _before = Indices(_encoding.BeforeByte);
+        _after = Indices(_encoding.AfterByte);
+        _end = Indices(_encoding.EndOfBlock);
+
+        // With neither a class sync nor a marker before each byte, the sync field's framed bits are searched.
+        var codec = BlockLayoutCodec.For(profile.Layout);
+        _hasSyncField = codec.SyncField is not null;
+        _searchesSyncBits = _sync.Length == 0 && _before.Length == 0 && codec.SyncField is not null;
+        _syncBits = [];
+        if (_searchesSyncBits)
+        {
+            var expected = codec.SyncField!.Expected;
+            _syncBits = new bool[expected.Count][];
+            int frame = profile.Framing.BitsPerByte;
+            for (int c = 0; c < expected.Count; c++)
+            {
+                var bits = new bool[expected[c].Length * frame];
+                for (int b = 0; b < expected[c].Length; b++)
+                {
+                    SyncByteFramer.Frame(profile.Framing, expected[c][b], bits.AsSpan(b * frame, frame));
+                }
+
+                _syncBits[c] = bits;
+                _longestSyncBits = Math.Max(_longestSyncBits, bits.Length);
+            }
+        }
+
+        // The bit a lead-in pulse stands for, where a bit is that one pulse (-1 where it is not a bit).
+        _leadBit = _zero is [var z] && z == _leadInClass ? 0 : _one is [var o] && o == _leadInClass ? 1 : -1;
     }
 
     private enum Mode
@@ -65,11 +125,26 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         Hunting,
         LeadIn,
         Sync,
+        SyncSearch,
         Data,
+    }
+
+    // Where a block's data stands: at a byte boundary (a marker, the end of the block, or a byte's first bit may
+    // come), inside a byte's bits, or at the marker after a byte.
+    private enum Phase
+    {
+        Boundary,
+        Bits,
+        After,
     }
 
     public void OnEdges(ReadOnlySpan<Edge> edges)
     {
+        if (_inert)
+        {
+            return;
+        }
+
         foreach (var edge in edges)
         {
             if (double.IsNaN(_lastEdge))
@@ -80,7 +155,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
             double seconds = (edge.Sample - _lastEdge) / _sampleRate + _glitchCarry;
             _lastEdge = edge.Sample;
-            double unit = _halfCycles ? 0.5 : 1.0;
+            double unit = _pairHalves ? 0.5 : 1.0;
 
             // Noise between samples can split a cycle: carry a glitch into the next interval instead of deciding on it.
             if (seconds * _speed.Speed < _classifier.ShortestAcceptedSeconds * unit)
@@ -98,7 +173,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 continue;
             }
 
-            if (_halfCycles)
+            if (_pairHalves)
             {
                 if (double.IsNaN(_pendingHalf))
                 {
@@ -119,7 +194,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 _pendingHalf = double.NaN;
             }
 
-            OnCycle(seconds, edge.Sample, edge.Level);
+            OnPulse(seconds, edge.Sample, edge.Level);
         }
     }
 
@@ -136,7 +211,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _leadIn.Reset();
     }
 
-    private void OnCycle(double seconds, double endSample, float level)
+    private void OnPulse(double seconds, double endSample, float level)
     {
         switch (_mode)
         {
@@ -147,18 +222,32 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 if (_leadIn.Add(seconds) && _leadIn.Found)
                 {
                     _speed.Calibrate(_leadIn.Speed);
+                    if (_mode == Mode.Hunting)
+                    {
+                        _pulsesSeen = 0;
+                        _bitsSeen = 0;
+                    }
+
                     _mode = Mode.LeadIn;
+                    _runCount = _leadIn.Count;
+                    if (_searchesSyncBits && _leadBit >= 0)
+                    {
+                        // Lead-in pulses are bits too: a sync byte may begin with them.
+                        RecordPulse(_classifier.Classify(seconds, _speed.Speed));
+                        RecordBit(_leadBit == 1, _pulsesSeen - 1);
+                    }
                 }
                 else if (_mode == Mode.LeadIn)
                 {
-                    _syncIndex = 0;
-                    _mode = Mode.Sync;
-                    OnSyncPulse(_classifier.ClassOf(seconds, _speed.Speed), endSample);
+                    LeaveRun(seconds, endSample, level);
                 }
 
                 break;
             case Mode.Sync:
                 OnSyncPulse(_classifier.ClassOf(seconds, _speed.Speed), endSample);
+                break;
+            case Mode.SyncSearch:
+                OnSearchPulse(_classifier.Classify(seconds, _speed.Speed), endSample);
                 break;
             case Mode.Data:
                 // Data pulses alone need the distances (a logarithm each).
@@ -167,6 +256,43 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 break;
         }
     }
+
+    // The evidence of a block start found after the run that just ended: a lead-in, or a run only as long as a gap.
+    private BlockStartEvidence RunEvidence(bool synced) =>
+        _runCount >= _encoding.LeadInMinimum
+            ? (synced ? BlockStartEvidence.LeadInAndSync : BlockStartEvidence.LeadIn)
+            : BlockStartEvidence.Sync;
+
+    private void LeaveRun(double seconds, double endSample, float level)
+    {
+        if (_sync.Length > 0)
+        {
+            _syncIndex = 0;
+            _mode = Mode.Sync;
+            OnSyncPulse(_classifier.ClassOf(seconds, _speed.Speed), endSample);
+        }
+        else if (_searchesSyncBits)
+        {
+            _mode = Mode.SyncSearch;
+            _searchBits = 0;
+            _patternLength = 0;
+            OnSearchPulse(_classifier.Classify(seconds, _speed.Speed), endSample);
+        }
+        else if (_runCount >= _encoding.LeadInMinimum)
+        {
+            // The first byte's marker follows the lead-in; a sync field after it is checked when the block is whole.
+            StartData(endSample, BlockLeadInEvidence());
+            _assembler.NoteLevel(level);
+            OnDataPulse(_classifier.Classify(seconds, _speed.Speed), seconds, endSample);
+        }
+        else
+        {
+            _mode = Mode.Hunting;
+            _leadIn.Reset();
+        }
+    }
+
+    private BlockStartEvidence BlockLeadInEvidence() => _hasSyncField ? BlockStartEvidence.LeadInAndSync : BlockStartEvidence.LeadIn;
 
     private void OnSyncPulse(int pulseClass, double endSample)
     {
@@ -181,13 +307,131 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _syncIndex++;
         if (_syncIndex == _sync.Length)
         {
-            _mode = Mode.Data;
-            _patternLength = 0;
-            _recentInvalid = 0;
-            _framer.Reset();
-            _leadIn.Reset();
-            _assembler.Begin(endSample, BlockStartEvidence.LeadInAndSync);
+            StartData(endSample, RunEvidence(synced: true));
         }
+    }
+
+    private void StartData(double endSample, BlockStartEvidence evidence)
+    {
+        _mode = Mode.Data;
+        _phase = Phase.Boundary;
+        _patternLength = 0;
+        _recentInvalid = 0;
+        _framer.Reset();
+        _leadIn.Reset();
+        _assembler.Begin(endSample, evidence);
+    }
+
+    private void RecordPulse(PulseDecision decision)
+    {
+        _ringPulse[_pulsesSeen % RingPulses] = decision;
+        _pulsesSeen++;
+    }
+
+    private void RecordBit(bool bit, long firstPulse)
+    {
+        _ringBit[_bitsSeen % RingBits] = bit;
+        _ringBitFirstPulse[_bitsSeen % RingBits] = firstPulse;
+        _bitsSeen++;
+    }
+
+    // A sync field's bits are searched one bit at a time after the run: they may begin with the run's own bits, so
+    // the decoder cannot wait for the first pulse of another class.
+    private void OnSearchPulse(PulseDecision decision, double endSample)
+    {
+        if (!decision.IsValid)
+        {
+            _mode = Mode.Hunting;
+            _leadIn.Reset();
+            return;
+        }
+
+        RecordPulse(decision);
+        _pattern[_patternLength++] = decision.Class;
+        bool bit;
+        if (Matches(_zero))
+        {
+            bit = false;
+        }
+        else if (Matches(_one))
+        {
+            bit = true;
+        }
+        else if (IsPrefixOf(_zero) || IsPrefixOf(_one))
+        {
+            return;
+        }
+        else
+        {
+            _mode = Mode.Hunting;
+            _leadIn.Reset();
+            return;
+        }
+
+        RecordBit(bit, _pulsesSeen - _patternLength);
+        _patternLength = 0;
+        for (int c = 0; c < _syncBits.Length; c++)
+        {
+            if (EndsWith(_syncBits[c]))
+            {
+                BeginAtSyncBits(_syncBits[c], endSample);
+                return;
+            }
+        }
+
+        if (++_searchBits > _longestSyncBits + 8)
+        {
+            _mode = Mode.Hunting;
+            _leadIn.Reset();
+        }
+    }
+
+    private bool EndsWith(bool[] bits)
+    {
+        if (_bitsSeen < bits.Length || bits.Length > RingBits)
+        {
+            return false;
+        }
+
+        long first = _bitsSeen - bits.Length;
+        if (_pulsesSeen - _ringBitFirstPulse[first % RingBits] > RingPulses)
+        {
+            return false;
+        }
+
+        for (int i = 0; i < bits.Length; i++)
+        {
+            if (_ringBit[(first + i) % RingBits] != bits[i])
+            {
+                return false;
+            }
+        }
+
+        return true;
+    }
+
+    // The sync field's bits were found: the block begins with them, each bit with the decisions of its own pulses.
+    private void BeginAtSyncBits(bool[] bits, double endSample)
+    {
+        StartData(endSample, RunEvidence(synced: true));
+        long first = _bitsSeen - bits.Length;
+        for (int i = 0; i < bits.Length; i++)
+        {
+            long bit = first + i;
+            long pulseStart = _ringBitFirstPulse[bit % RingBits];
+            long pulseEnd = bit + 1 < _bitsSeen ? _ringBitFirstPulse[(bit + 1) % RingBits] : _pulsesSeen;
+            int decisionIndex = _assembler.DecisionCount;
+            for (long p = pulseStart; p < pulseEnd; p++)
+            {
+                var d = _ringPulse[p % RingPulses];
+                _assembler.AddDecision(d.Distance, d.Residual, d.Scale);
+            }
+
+            _framer.AddBit(bits[i], decisionIndex, endSample);
+        }
+
+        _phase = _framer.AtByteStart ? Phase.Boundary : Phase.Bits;
+        _patternLength = 0;
     }
 
     private void OnDataPulse(PulseDecision decision, double seconds, double endSample)
@@ -206,7 +450,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 return;
             }
 
-            CompleteBit(GuessBit(decision), endSample);
+            OnGuess(decision, endSample);
             return;
         }
 
@@ -219,6 +463,77 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
         _assembler.NoteSpeed(_speed.Speed);
         _pattern[_patternLength++] = decision.Class;
+        switch (_phase)
+        {
+            case Phase.Boundary:
+                OnBoundaryPattern(decision, endSample);
+                break;
+            case Phase.After:
+                if (Matches(_after))
+                {
+                    _patternLength = 0;
+                    _phase = Phase.Boundary;
+                }
+                else if (!IsPrefixOf(_after))
+                {
+                    // Not the marker the format writes after a byte: a framing error on the next byte, read on.
+                    _framer.NoteFramingError();
+                    _patternLength = 0;
+                    _phase = Phase.Boundary;
+                }
+
+                break;
+            default:
+                OnBitPattern(decision, endSample);
+                break;
+        }
+    }
+
+    private void OnBoundaryPattern(PulseDecision decision, double endSample)
+    {
+        if (_end.Length > 0 && Matches(_end))
+        {
+            // The block's end, as the format marks it.
+            _assembler.EndAtMarker(endSample);
+            _mode = Mode.Hunting;
+            _leadIn.Reset();
+            return;
+        }
+
+        if (_before.Length > 0)
+        {
+            if (Matches(_before))
+            {
+                _byteFirstDecision = _patternFirstDecision;
+                _patternLength = 0;
+                _phase = Phase.Bits;
+            }
+            else if (!IsPrefixOf(_before) && !(_end.Length > 0 && IsPrefixOf(_end)))
+            {
+                // No marker begins like this: take it for the marker, a guess with no margin and a framing error.
+                _assembler.AddGuessedDecision();
+                _framer.NoteFramingError();
+                _byteFirstDecision = _patternFirstDecision;
+                _patternLength = 0;
+                _phase = Phase.Bits;
+            }
+
+            return;
+        }
+
+        // No marker before bytes: the byte's first bit begins here, unless the pulses are the end's.
+        if (_end.Length > 0 && IsPrefixOf(_end) && !IsPrefixOf(_zero) && !IsPrefixOf(_one))
+        {
+            return;
+        }
+
+        _byteFirstDecision = _patternFirstDecision;
+        _phase = Phase.Bits;
+        OnBitPattern(decision, endSample);
+    }
+
+    private void OnBitPattern(PulseDecision decision, double endSample)
+    {
         if (Matches(_zero))
         {
             CompleteBit(false, endSample);
@@ -235,6 +550,34 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         }
     }
 
+    // An invalid pulse stands for whatever the current symbol needs: a bit is guessed, a marker taken as read.
+    private void OnGuess(PulseDecision decision, double endSample)
+    {
+        switch (_phase)
+        {
+            case Phase.Boundary when _before.Length > 0:
+                _framer.NoteFramingError();
+                _byteFirstDecision = _patternFirstDecision;
+                _patternLength = 0;
+                _phase = Phase.Bits;
+                break;
+            case Phase.After:
+                _framer.NoteFramingError();
+                _patternLength = 0;
+                _phase = Phase.Boundary;
+                break;
+            default:
+                if (_phase == Phase.Boundary)
+                {
+                    _byteFirstDecision = _patternFirstDecision;
+                    _phase = Phase.Bits;
+                }
+
+                CompleteBit(GuessBit(decision), endSample);
+                break;
+        }
+    }
+
     private bool GuessBit(PulseDecision decision)
     {
         if (!decision.IsValid)
@@ -248,14 +591,23 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
     private void CompleteBit(bool bit, double endSample)
     {
+        // A byte's decisions begin with the marker before it.
+        int firstDecision = _framer.AtByteStart ? _byteFirstDecision : _patternFirstDecision;
         _patternLength = 0;
-        if (_framer.AddBit(bit, _patternFirstDecision, endSample))
+        if (_framer.AddBit(bit, firstDecision, endSample))
         {
             _mode = Mode.Hunting;
+            _leadIn.Reset();
+            return;
+        }
+
+        if (_framer.AtByteStart)
+        {
+            _phase = _after.Length > 0 ? Phase.After : Phase.Boundary;
         }
     }
 
-    private bool Matches(int[] sequence) => _patternLength == sequence.Length && IsPrefixOf(sequence);
+    private bool Matches(int[] sequence) => sequence.Length > 0 && _patternLength == sequence.Length && IsPrefixOf(sequence);
 
     private bool IsPrefixOf(int[] sequence)
     {

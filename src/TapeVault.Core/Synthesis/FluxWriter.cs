@@ -25,28 +25,9 @@ public static class FluxWriter
     public static IEnumerable<bool> FramedBits(ByteFraming framing, byte value)
     {
         ArgumentNullException.ThrowIfNull(framing);
-        foreach (char c in framing.StartBits)
-        {
-            yield return c == '1';
-        }
-
-        int ones = 0;
-        for (int i = 0; i < framing.DataBits; i++)
-        {
-            bool bit = ((value >> framing.DataBitShift(i)) & 1) != 0;
-            ones += bit ? 1 : 0;
-            yield return bit;
-        }
-
-        if (framing.Parity != Parity.None)
-        {
-            yield return framing.ParityBit(ones);
-        }
-
-        foreach (char c in framing.StopBits)
-        {
-            yield return c == '1';
-        }
+        var bits = new bool[framing.BitsPerByte];
+        Bytes.SyncByteFramer.Frame(framing, value, bits);
+        return bits;
     }
 
     private static IEnumerable<double> PulseWidth(FormatProfile profile, IReadOnlyList<byte[]> blocks)
@@ -56,44 +37,59 @@ public static class FluxWriter
         double leadIn = byName[encoding.LeadInClass];
         double t = 0;
         int leadInCycles = Math.Max(encoding.LeadInMinimum * 2, (int)(profile.Recording.LeadInSeconds / leadIn));
-        int gapCycles = Math.Max(encoding.LeadInMinimum * 2, (int)(profile.Recording.BlockGapSeconds / leadIn));
+        int gapCycles = encoding.BlockGap > 0
+            ? encoding.BlockGap
+            : Math.Max(encoding.LeadInMinimum * 2, (int)(profile.Recording.BlockGapSeconds / leadIn));
         bool first = true;
-        foreach (var block in blocks)
+        var codec = Blocks.BlockLayoutCodec.For(profile.Layout);
+
+        // A pulse is a whole cycle (two reversals) or, in a half-cycle format, the time to the next reversal.
+        IEnumerable<double> Pulses(IEnumerable<string> names)
+        {
+            foreach (string name in names)
+            {
+                double period = byName[name];
+                yield return t;
+                if (!encoding.HalfCycles)
+                {
+                    yield return t + period / 2;
+                }
+
+                t += period;
+            }
+        }
+
+        foreach (var written in blocks)
         {
             for (int copy = 0; copy < profile.Layout.Copies; copy++)
             {
+                var block = codec.ForCopy(written, copy);
                 for (int i = 0, n = first ? leadInCycles : gapCycles; i < n; i++)
                 {
-                    foreach (double r in Cycle(t, leadIn)) yield return r;
-                    t += leadIn;
+                    foreach (double r in Pulses([encoding.LeadInClass])) yield return r;
                 }
 
                 first = false;
-                foreach (string name in encoding.Sync)
-                {
-                    foreach (double r in Cycle(t, byName[name])) yield return r;
-                    t += byName[name];
-                }
-
+                foreach (double r in Pulses(encoding.Sync)) yield return r;
                 foreach (byte value in block)
                 {
+                    foreach (double r in Pulses(encoding.BeforeByte)) yield return r;
                     foreach (bool bit in FramedBits(profile.Framing, value))
                     {
-                        foreach (string name in bit ? encoding.One : encoding.Zero)
-                        {
-                            foreach (double r in Cycle(t, byName[name])) yield return r;
-                            t += byName[name];
-                        }
+                        foreach (double r in Pulses(bit ? encoding.One : encoding.Zero)) yield return r;
                     }
+
+                    foreach (double r in Pulses(encoding.AfterByte)) yield return r;
                 }
+
+                foreach (double r in Pulses(encoding.EndOfBlock)) yield return r;
             }
         }
 
         int trailer = Math.Max(16, (int)(profile.Recording.TrailerSeconds / leadIn));
         for (int i = 0; i < trailer; i++)
         {
-            foreach (double r in Cycle(t, leadIn)) yield return r;
-            t += leadIn;
+            foreach (double r in Pulses([encoding.LeadInClass])) yield return r;
         }
     }
 
@@ -195,11 +191,5 @@ public static class FluxWriter
         }
 
         foreach (double r in Zeros(profile.Recording.TrailerSeconds, 16)) yield return r;
-    }
-
-    private static IEnumerable<double> Cycle(double start, double period)
-    {
-        yield return start;
-        yield return start + period / 2;
     }
 }

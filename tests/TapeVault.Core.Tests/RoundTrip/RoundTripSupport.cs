@@ -51,6 +51,12 @@ internal static class RoundTrips
     public static IReadOnlyList<TapeFile> Files(FormatProfile profile)
     {
         int binary = profile.Fsk is { Baud: < 600 } ? 64 : 200;
+
+        // A format whose full block is large (a length where 0 means 256) still gets a file of several blocks.
+        if (profile.Layout.FieldWithRole(FieldRole.PayloadLength)?.ZeroMeans is { } fullBlock && fullBlock > 100)
+        {
+            binary = (int)(2 * fullBlock) + 60;
+        }
         int text = profile.Fsk is { Baud: < 600 } ? 40 : 90;
         var random = new Random(20_240_601);
         var content = new byte[binary];
