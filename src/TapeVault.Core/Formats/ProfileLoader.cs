@@ -5,7 +5,7 @@ using TapeVault.Core.Text;
 namespace TapeVault.Core.Formats;
 
 /// <summary>Reads a profile from JSON and validates it; a profile that cannot work is never built.</summary>
-public static class ProfileLoader
+public static partial class ProfileLoader
 {
     /// <summary>Profile files larger than this are refused before parsing.</summary>
     public const int MaximumFileBytes = 256 * 1024;
@@ -62,7 +62,7 @@ public static class ProfileLoader
         return new Validator(source).Build(document);
     }
 
-    private sealed class Validator(string source)
+    private sealed partial class Validator(string source)
     {
         private string _label = source;
 
@@ -88,7 +88,7 @@ public static class ProfileLoader
                         PulseWidth(d.PulseWidth), null, null, framing, layout, recording);
                 case "fsk":
                     return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Fsk,
-                        null, Fsk(d.Fsk), null, framing, layout, recording);
+                        null, Fsk(d.Fsk, framing, layout), null, framing, layout, recording);
                 case "biphase":
                     return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Biphase,
                         null, null, Biphase(d.Biphase), framing, layout, recording);
@@ -227,7 +227,7 @@ public static class ProfileLoader
             return result;
         }
 
-        private FskEncoding Fsk(FskDocument? d)
+        private FskEncoding Fsk(FskDocument? d, ByteFraming framing, BlockLayout layout)
         {
             if (d is null)
             {
@@ -256,7 +256,7 @@ public static class ProfileLoader
                 Fail("fsk.leadInMinimumSeconds", $"must be between 0 and 60, not {leadIn}");
             }
 
-            return new FskEncoding(mark, space, baud, leadIn);
+            return new FskEncoding(mark, space, baud, leadIn) { LeadInCharacters = FskLeadIn(d, framing, layout) };
         }
 
         private BiphaseEncoding Biphase(BiphaseDocument? d)
@@ -274,19 +274,16 @@ public static class ProfileLoader
                 Fail("biphase.oneIs", $"must be 'falling' or 'rising' (the mid-cell transition that means 1), not '{oneIs}'");
             }
 
-            int leadIn = Required(d.LeadInMinimumBits, "biphase.leadInMinimumBits");
-            if (leadIn < 8 || leadIn > 100_000)
-            {
-                Fail("biphase.leadInMinimumBits", $"must be between 8 and 100 000, not {leadIn}");
-            }
-
+            var (pattern, leadIn) = BiphaseLeadIn(d);
             string sync = Required(d.SyncBits, "biphase.syncBits");
-            if (sync.Length is 0 or > 64 || sync.Any(ch => ch is not ('0' or '1')) || !sync.Contains('1', StringComparison.Ordinal))
+            if (pattern == BitPatterns.Zeros
+                && (sync.Length is 0 or > 64 || sync.Any(ch => ch is not ('0' or '1')) || !sync.Contains('1', StringComparison.Ordinal)))
             {
                 Fail("biphase.syncBits", "must be 1 to 64 characters of 0 and 1 with at least one 1 (the lead-in is zeros)");
             }
 
-            return new BiphaseEncoding(cell * 1e-6, oneIs == "falling", leadIn, sync);
+            BiphaseSync(pattern, sync);
+            return new BiphaseEncoding(cell * 1e-6, oneIs == "falling", leadIn, sync) { LeadInBits = pattern };
         }
 
         private ByteFraming Framing(FramingDocument? d)

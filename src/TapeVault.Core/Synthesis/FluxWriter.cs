@@ -25,28 +25,7 @@ public static class FluxWriter
     public static IEnumerable<bool> FramedBits(ByteFraming framing, byte value)
     {
         ArgumentNullException.ThrowIfNull(framing);
-        foreach (char c in framing.StartBits)
-        {
-            yield return c == '1';
-        }
-
-        int ones = 0;
-        for (int i = 0; i < framing.DataBits; i++)
-        {
-            bool bit = ((value >> framing.DataBitShift(i)) & 1) != 0;
-            ones += bit ? 1 : 0;
-            yield return bit;
-        }
-
-        if (framing.Parity != Parity.None)
-        {
-            yield return framing.ParityBit(ones);
-        }
-
-        foreach (char c in framing.StopBits)
-        {
-            yield return c == '1';
-        }
+        return BitPatterns.Frame(framing, value);
     }
 
     private static IEnumerable<double> PulseWidth(FormatProfile profile, IReadOnlyList<byte[]> blocks)
@@ -167,18 +146,21 @@ public static class FluxWriter
             t += cell;
         }
 
-        IEnumerable<double> Zeros(double seconds, int minimum)
+        // The lead-in's pattern repeated (zeros, ones or alternating bits), ending on its last bit before the sync.
+        IEnumerable<double> LeadIn(double seconds, int minimum)
         {
+            string pattern = biphase.LeadInBits;
             int count = Math.Max(minimum, (int)(seconds / cell));
+            count += (pattern.Length - (count % pattern.Length)) % pattern.Length;
             for (int i = 0; i < count; i++)
             {
-                foreach (double r in Bit(false)) yield return r;
+                foreach (double r in Bit(pattern[i % pattern.Length] == '1')) yield return r;
             }
         }
 
         foreach (var block in blocks)
         {
-            foreach (double r in Zeros(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds, biphase.LeadInMinimumBits * 2)) yield return r;
+            foreach (double r in LeadIn(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds, biphase.LeadInMinimumBits * 2)) yield return r;
             first = false;
             foreach (char c in biphase.SyncBits)
             {
@@ -194,7 +176,7 @@ public static class FluxWriter
             }
         }
 
-        foreach (double r in Zeros(profile.Recording.TrailerSeconds, 16)) yield return r;
+        foreach (double r in LeadIn(profile.Recording.TrailerSeconds, 16)) yield return r;
     }
 
     private static IEnumerable<double> Cycle(double start, double period)
