@@ -171,7 +171,14 @@ public sealed class BlockAssembler
     {
         InBlock = false;
         var all = _bytes.ToArray();
-        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, _framingErrors, _guessedDecisions, _evidence, truncated);
+        var evidence = _evidence;
+        if (_codec.SyncField is not null && !_codec.NormalizeSync(all, truncated ? -1 : all.Length - _codec.HeaderBytes - _codec.CheckBytes))
+        {
+            // The sync bytes are the format's mark of a block start: read wrong, they mark nothing.
+            evidence = BlockStartEvidence.None;
+        }
+
+        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, _framingErrors, _guessedDecisions, evidence, truncated);
         int headerBytes = score.HeaderBytes;
         int payloadEnd = score.PayloadEnd;
         var header = all.AsSpan(0, headerBytes);

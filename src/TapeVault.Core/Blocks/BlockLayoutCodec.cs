@@ -10,7 +10,7 @@ namespace TapeVault.Core.Blocks;
 /// then the check value over the bytes the profile says it covers. The assembler, the merge and the writer all read
 /// and write blocks through it. A block here is the bytes from the first header byte on (header, payload, check).
 /// </summary>
-public sealed class BlockLayoutCodec
+public sealed partial class BlockLayoutCodec
 {
     private static readonly ConditionalWeakTable<BlockLayout, BlockLayoutCodec> Codecs = new();
 

@@ -75,6 +75,10 @@ public static class BlockWriter
                 case FieldRole.PayloadLength:
                     codec.WriteField(block, field, (ulong)payload.Length);
                     break;
+                case FieldRole.Sync:
+                    // The first copy's sync; the flux writer puts each copy's own (BlockLayoutCodec.ForCopy).
+                    codec.SyncOfCopy(0).CopyTo(block.AsSpan(codec.FieldOffset(field), field.Bytes));
+                    break;
             }
         }
 

@@ -41,6 +41,12 @@ public enum FieldRole
 
     /// <summary>The length of the payload in bytes.</summary>
     PayloadLength,
+
+    /// <summary>
+    /// Bytes the format writes to mark where a block begins, with the values it expects (<see cref="HeaderField.Expected"/>,
+    /// one per copy where the copies differ). They carry no data; a check covers them only where its coverage names them.
+    /// </summary>
+    Sync,
 }
 
 public enum ChecksumCoverage
@@ -102,7 +108,14 @@ public sealed record ByteFraming(int DataBits, BitOrder BitOrder, string StartBi
     };
 }
 
-public sealed record HeaderField(string Name, int Bytes, FieldRole Role, bool BigEndian);
+public sealed record HeaderField(string Name, int Bytes, FieldRole Role, bool BigEndian)
+{
+    /// <summary>
+    /// For a <see cref="FieldRole.Sync"/> field: the bytes it must hold, one entry per copy of the block (entry c for
+    /// copy c), or a single entry that every copy holds. Empty for other roles.
+    /// </summary>
+    public IReadOnlyList<System.Collections.Immutable.ImmutableArray<byte>> Expected { get; init; } = [];
+}
 
 /// <summary>
 /// The check value of a block: the checksum (<see cref="Algorithm"/>, a catalogue name or the canonical text of its

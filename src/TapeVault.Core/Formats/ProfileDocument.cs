@@ -87,6 +87,9 @@ internal sealed class HeaderFieldDocument
     public int? Bytes { get; set; }
     public string? Role { get; set; }
     public string? Endian { get; set; }
+
+    // A sync field's expected bytes: one hex text per copy ("89 88 87"), or one for all copies.
+    public List<string?>? Expect { get; set; }
 }
 
 internal sealed class ChecksumDocument

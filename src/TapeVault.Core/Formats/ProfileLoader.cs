@@ -354,9 +354,15 @@ public static partial class ProfileLoader
                     "file-id" => FieldRole.FileId,
                     "block-number" => FieldRole.BlockNumber,
                     "payload-length" => FieldRole.PayloadLength,
-                    var other => throw Error(path + ".role", $"must be other, file-name, file-id, block-number or payload-length, not '{other}'"),
+                    "sync" => FieldRole.Sync,
+                    var other => throw Error(path + ".role", $"must be other, file-name, file-id, block-number, payload-length or sync, not '{other}'"),
                 };
-                int maxBytes = role is FieldRole.FileName or FieldRole.Other ? 64 : 4;
+                int maxBytes = role switch
+                {
+                    FieldRole.FileName or FieldRole.Other => 64,
+                    FieldRole.Sync => MaximumSyncBytes,
+                    _ => 4,
+                };
                 if (bytes < 1 || bytes > maxBytes)
                 {
                     Fail(path + ".bytes", $"must be between 1 and {maxBytes} for role {f.Role ?? "other"}, not {bytes}");
@@ -373,7 +379,7 @@ public static partial class ProfileLoader
                     "big" => true,
                     var other => throw Error(path + ".endian", $"must be little or big, not '{other}'"),
                 };
-                header.Add(new HeaderField(fieldName, bytes, role, big));
+                header.Add(new HeaderField(fieldName, bytes, role, big) { Expected = SyncExpected(f, role, bytes, i, path) });
             }
 
             int? payload = d.PayloadBytes;
@@ -412,6 +418,7 @@ public static partial class ProfileLoader
                 Fail("layout.copies", $"must be between 1 and 8, not {copies}");
             }
 
+            SyncCopies(header, copies);
             return new BlockLayout(header, payload, maximum, checksum, copies);
         }
 

@@ -37,10 +37,12 @@ public static class FluxWriter
         int leadInCycles = Math.Max(encoding.LeadInMinimum * 2, (int)(profile.Recording.LeadInSeconds / leadIn));
         int gapCycles = Math.Max(encoding.LeadInMinimum * 2, (int)(profile.Recording.BlockGapSeconds / leadIn));
         bool first = true;
-        foreach (var block in blocks)
+        var codec = Blocks.BlockLayoutCodec.For(profile.Layout);
+        foreach (var written in blocks)
         {
             for (int copy = 0; copy < profile.Layout.Copies; copy++)
             {
+                var block = codec.ForCopy(written, copy);
                 for (int i = 0, n = first ? leadInCycles : gapCycles; i < n; i++)
                 {
                     foreach (double r in Cycle(t, leadIn)) yield return r;
