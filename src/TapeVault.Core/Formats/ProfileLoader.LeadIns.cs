@@ -45,6 +45,20 @@ public static partial class ProfileLoader
                 Fail(path, "needs blocks (a layout with a header or a checksum): a leader of characters announces the sync of a block");
             }
 
+            if (layout.Header is not [{ Role: FieldRole.Sync } sync, ..])
+            {
+                Fail(path, "needs the layout to begin with a sync field (role sync): the block begins at the first sync character after the leader");
+                return null;
+            }
+
+            for (int c = 0; c < sync.Expected.Count; c++)
+            {
+                if (sync.Expected[c][0] == character)
+                {
+                    Fail("layout.header[0].expect", $"must not begin with the leader's character 0x{character:x2}: the leader ends at the first character that is not its own, which is where the sync begins");
+                }
+            }
+
             return new CharacterLeadIn(character, minimum);
         }
 

@@ -106,16 +106,51 @@ public static class FluxWriter
             }
         }
 
-        foreach (var block in blocks)
+        IEnumerable<double> Character(byte value)
         {
-            foreach (double r in Idle(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds)) yield return r;
-            first = false;
-            foreach (byte value in block)
+            foreach (bool b in FramedBits(profile.Framing, value))
             {
-                foreach (bool b in FramedBits(profile.Framing, value))
+                foreach (double r in Cell(b ? fsk.MarkHz : fsk.SpaceHz)) yield return r;
+                t += bit;
+            }
+        }
+
+        // A leader of repeated characters: the lead-in's seconds of them, at least twice the minimum a reader needs.
+        IEnumerable<double> Leader(CharacterLeadIn leader, double seconds)
+        {
+            double frame = profile.Framing.BitsPerByte * bit;
+            int count = Math.Max(2 * leader.MinimumCount, (int)(seconds / frame));
+            for (int i = 0; i < count; i++)
+            {
+                foreach (double r in Character((byte)leader.Character)) yield return r;
+            }
+        }
+
+        var codec = Blocks.BlockLayoutCodec.For(profile.Layout);
+        foreach (var written in blocks)
+        {
+            for (int copy = 0; copy < profile.Layout.Copies; copy++)
+            {
+                var block = codec.ForCopy(written, copy);
+                if (fsk.LeadInCharacters is { } leader)
                 {
-                    foreach (double r in Cell(b ? fsk.MarkHz : fsk.SpaceHz)) yield return r;
-                    t += bit;
+                    // Before the first block the leader alone; before each later one a gap of mark tone, then the leader.
+                    if (!first)
+                    {
+                        foreach (double r in Idle(profile.Recording.BlockGapSeconds)) yield return r;
+                    }
+
+                    foreach (double r in Leader(leader, first ? profile.Recording.LeadInSeconds : 0)) yield return r;
+                }
+                else
+                {
+                    foreach (double r in Idle(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds)) yield return r;
+                }
+
+                first = false;
+                foreach (byte value in block)
+                {
+                    foreach (double r in Character(value)) yield return r;
                 }
             }
         }
