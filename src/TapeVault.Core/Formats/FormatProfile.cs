@@ -115,6 +115,28 @@ public sealed record HeaderField(string Name, int Bytes, FieldRole Role, bool Bi
     /// copy c), or a single entry that every copy holds. Empty for other roles.
     /// </summary>
     public IReadOnlyList<System.Collections.Immutable.ImmutableArray<byte>> Expected { get; init; } = [];
+
+    // Two fields that expect the same bytes are the same field: compare what the lists hold, not the lists.
+    public bool Equals(HeaderField? other)
+    {
+        if (other is null || Name != other.Name || Bytes != other.Bytes || Role != other.Role || BigEndian != other.BigEndian
+            || Expected.Count != other.Expected.Count)
+        {
+            return false;
+        }
+
+        for (int i = 0; i < Expected.Count; i++)
+        {
+            if (!Expected[i].AsSpan().SequenceEqual(other.Expected[i].AsSpan()))
+            {
+                return false;
+            }
+        }
+
+        return true;
+    }
+
+    public override int GetHashCode() => HashCode.Combine(Name, Bytes, Role, BigEndian, Expected.Count);
 }
 
 /// <summary>
