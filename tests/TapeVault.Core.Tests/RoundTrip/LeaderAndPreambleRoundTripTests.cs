@@ -182,8 +182,10 @@ public sealed class LeaderAndPreambleRoundTripTests(RoundTripFolder folder) : IC
             clean += truth.Count(t => result.Best.Any(b => b.Status == BlockStatus.Clean && t.Matches(b)));
         }
 
-        // Most blocks survive damage this wide; the figure is reported in docs/profiles.md.
-        Assert.True(clean >= written / 2, $"only {clean} of {written} blocks came back clean");
+        // Damage this wide loses many blocks to dropouts in a single pass (seeds 9001–9040 in one pass: 52 % of
+        // fsk-sync-1200's blocks and 62 % of biphase-1500's come back clean, docs/profiles.md); the merge of several
+        // passes recovers more. Fewer than two in five would mean the lead-in or sync no longer holds under damage.
+        Assert.True(clean * 5 >= written * 2, $"only {clean} of {written} blocks came back clean");
     }
 }
 
