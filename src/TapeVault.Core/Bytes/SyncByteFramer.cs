@@ -35,43 +35,6 @@ public sealed class SyncByteFramer
         _framingOk = true;
     }
 
-    /// <summary>
-    /// The bits of one byte as the framing puts it on tape: start bits, data bits in their order, parity, stop bits
-    /// (<see cref="ByteFraming.BitsPerByte"/> of them). Writers and sync searches both frame bytes here.
-    /// </summary>
-    public static void Frame(ByteFraming framing, byte value, Span<bool> bits)
-    {
-        ArgumentNullException.ThrowIfNull(framing);
-        if (bits.Length != framing.BitsPerByte)
-        {
-            throw new ArgumentException($"A framed byte has {framing.BitsPerByte} bits, not {bits.Length}.", nameof(bits));
-        }
-
-        int at = 0;
-        foreach (char c in framing.StartBits)
-        {
-            bits[at++] = c == '1';
-        }
-
-        int ones = 0;
-        for (int i = 0; i < framing.DataBits; i++)
-        {
-            bool bit = ((value >> framing.DataBitShift(i)) & 1) != 0;
-            ones += bit ? 1 : 0;
-            bits[at++] = bit;
-        }
-
-        if (framing.Parity != Parity.None)
-        {
-            bits[at++] = framing.ParityBit(ones);
-        }
-
-        foreach (char c in framing.StopBits)
-        {
-            bits[at++] = c == '1';
-        }
-    }
-
     /// <summary>Whether the next bit is the first of a byte.</summary>
     public bool AtByteStart => _bitIndex == 0;
 

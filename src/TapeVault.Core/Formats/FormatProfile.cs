@@ -75,9 +75,19 @@ public sealed partial record PulseWidthEncoding(
 public sealed record FskEncoding(double MarkHz, double SpaceHz, double Baud, double LeadInMinimumSeconds)
 {
     public double BitSeconds => 1.0 / Baud;
+
+    /// <summary>
+    /// A lead-in of repeated characters instead of mark tone (see <see cref="CharacterLeadIn"/>); null when the
+    /// lead-in is mark tone of <see cref="LeadInMinimumSeconds"/>.
+    /// </summary>
+    public CharacterLeadIn? LeadInCharacters { get; init; }
 }
 
-public sealed record BiphaseEncoding(double CellSeconds, bool OneIsFalling, int LeadInMinimumBits, string SyncBits);
+public sealed record BiphaseEncoding(double CellSeconds, bool OneIsFalling, int LeadInMinimumBits, string SyncBits)
+{
+    /// <summary>The lead-in's bit pattern, repeated: <c>0</c> (the first language's zeros), <c>1</c>, or <c>01</c> (alternating bits).</summary>
+    public string LeadInBits { get; init; } = BitPatterns.Zeros;
+}
 
 public sealed record ByteFraming(int DataBits, BitOrder BitOrder, string StartBits, string StopBits, Parity Parity)
 {
@@ -112,6 +122,7 @@ public sealed record HeaderField(string Name, int Bytes, FieldRole Role, bool Bi
     /// </summary>
     public long? ZeroMeans { get; init; }
 
+    // Two fields that expect the same bytes are the same field: compare what the lists hold, not the lists.
     public bool Equals(HeaderField? other)
     {
         if (other is null || Name != other.Name || Bytes != other.Bytes || Role != other.Role || BigEndian != other.BigEndian

@@ -63,6 +63,21 @@ internal sealed class FskDocument
     public double? SpaceHz { get; set; }
     public double? Baud { get; set; }
     public double? LeadInMinimumSeconds { get; set; }
+    public FskLeadInDocument? LeadIn { get; set; }
+}
+
+// A lead-in of repeated characters: the character as a number ("0x16" or 22), and how many make a lead-in.
+internal sealed class FskLeadInDocument
+{
+    public JsonElement? Character { get; set; }
+    public int? MinimumCount { get; set; }
+}
+
+// A lead-in as a repeated bit pattern ("0", "1" or "01") and how many bits make a lead-in.
+internal sealed class BiphaseLeadInDocument
+{
+    public string? Bits { get; set; }
+    public int? MinimumBits { get; set; }
 }
 
 internal sealed class BiphaseDocument
@@ -70,6 +85,7 @@ internal sealed class BiphaseDocument
     public double? CellMicroseconds { get; set; }
     public string? OneIs { get; set; }
     public int? LeadInMinimumBits { get; set; }
+    public BiphaseLeadInDocument? LeadIn { get; set; }
     public string? SyncBits { get; set; }
 }
 

@@ -88,7 +88,7 @@ public static partial class ProfileLoader
                         PulseWidth(d.PulseWidth, layout), null, null, framing, layout, recording);
                 case "fsk":
                     return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Fsk,
-                        null, Fsk(d.Fsk), null, framing, layout, recording);
+                        null, Fsk(d.Fsk, framing, layout), null, framing, layout, recording);
                 case "biphase":
                     return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Biphase,
                         null, null, Biphase(d.Biphase), framing, layout, recording);
@@ -230,7 +230,7 @@ public static partial class ProfileLoader
             return result;
         }
 
-        private FskEncoding Fsk(FskDocument? d)
+        private FskEncoding Fsk(FskDocument? d, ByteFraming framing, BlockLayout layout)
         {
             if (d is null)
             {
@@ -259,7 +259,7 @@ public static partial class ProfileLoader
                 Fail("fsk.leadInMinimumSeconds", $"must be between 0 and 60, not {leadIn}");
             }
 
-            return new FskEncoding(mark, space, baud, leadIn);
+            return new FskEncoding(mark, space, baud, leadIn) { LeadInCharacters = FskLeadIn(d, framing, layout) };
         }
 
         private BiphaseEncoding Biphase(BiphaseDocument? d)
@@ -277,19 +277,16 @@ public static partial class ProfileLoader
                 Fail("biphase.oneIs", $"must be 'falling' or 'rising' (the mid-cell transition that means 1), not '{oneIs}'");
             }
 
-            int leadIn = Required(d.LeadInMinimumBits, "biphase.leadInMinimumBits");
-            if (leadIn < 8 || leadIn > 100_000)
-            {
-                Fail("biphase.leadInMinimumBits", $"must be between 8 and 100 000, not {leadIn}");
-            }
-
+            var (pattern, leadIn) = BiphaseLeadIn(d);
             string sync = Required(d.SyncBits, "biphase.syncBits");
-            if (sync.Length is 0 or > 64 || sync.Any(ch => ch is not ('0' or '1')) || !sync.Contains('1', StringComparison.Ordinal))
+            if (pattern == BitPatterns.Zeros
+                && (sync.Length is 0 or > 64 || sync.Any(ch => ch is not ('0' or '1')) || !sync.Contains('1', StringComparison.Ordinal)))
             {
                 Fail("biphase.syncBits", "must be 1 to 64 characters of 0 and 1 with at least one 1 (the lead-in is zeros)");
             }
 
-            return new BiphaseEncoding(cell * 1e-6, oneIs == "falling", leadIn, sync);
+            BiphaseSync(pattern, sync);
+            return new BiphaseEncoding(cell * 1e-6, oneIs == "falling", leadIn, sync) { LeadInBits = pattern };
         }
 
         private ByteFraming Framing(FramingDocument? d)

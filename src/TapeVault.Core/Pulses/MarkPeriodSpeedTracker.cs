@@ -50,6 +50,18 @@ public struct MarkPeriodSpeedTracker
     public double Speed { get; private set; }
 
     /// <summary>
+    /// Sets the speed from a measurement of the whole lead-in (a leader of characters, timed from one start bit to the
+    /// next); the mark periods then go on tracking from there.
+    /// </summary>
+    public void Calibrate(double speed)
+    {
+        if (speed > 0 && double.IsFinite(speed))
+        {
+            Speed = speed;
+        }
+    }
+
+    /// <summary>
     /// Notes the edges of a chunk. An interval whose neighbours both look like mark periods too waits until the tone
     /// detector's window is centred on it (see <see cref="Check"/>), because only then can the detector vouch for it.
     /// </summary>

@@ -9,8 +9,10 @@ namespace TapeVault.Core.Symbols;
 /// <summary>
 /// Biphase (Manchester): every cell has a transition in its middle, whose direction is the bit; equal neighbouring
 /// bits add one more at the cell boundary. Intervals between transitions are therefore a half or a whole cell.
-/// The lead-in of zeros tells which transitions are mid-cell ones (those in the zero direction), and the sync
-/// pattern starts a block. Biphase needs every transition, so it reads both edges whatever the setting counts.
+/// The lead-in tells which transitions are mid-cell ones: in a lead-in of equal bits (zeros or ones) those in that
+/// bit's direction, every half cell; in a lead-in of alternating bits every transition, one a whole cell (neighbours
+/// always differ, so no transition falls on a cell boundary). Either is found by its regularity, at any speed in range,
+/// and the sync pattern that breaks it starts a block. Biphase needs every transition, so it reads both edges whatever the setting counts.
 /// <para>
 /// A dropout inside a block breaks the pattern. Rather than give the rest of the block up, the decoder bridges it:
 /// it keeps the cell clock of the last mid-cell transition read before the break, waits for a run of transitions
@@ -47,6 +49,10 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     private readonly SyncByteFramer _framer;
     private readonly ulong _syncPattern;
     private readonly ulong _syncMask;
+    private readonly string _leadInBits;
+
+    // The sync register's window as the lead-in fills it, in each phase of the lead-in's pattern.
+    private readonly ulong[] _leadInWindows;
     private SpeedTracker _speed = new();
     private Mode _mode = Mode.Hunting;
     private LeadInFinder _leadIn;
@@ -70,14 +76,23 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         _assembler = assembler;
         _framer = new SyncByteFramer(profile.Framing, assembler);
 
-        // A lead-in of zeros has a transition every half cell: a run of near-equal half cells, at any speed in range.
-        _leadIn = LeadInFinder.ForClass(_classifier, Half, 2 * _encoding.LeadInMinimumBits);
+        // A lead-in of equal bits has a transition every half cell, one of alternating bits every whole cell: either
+        // way a run of near-equal intervals, found at any speed in range.
+        _leadInBits = _encoding.LeadInBits;
+        _leadIn = BitPatterns.IsWholeCellRun(_leadInBits)
+            ? LeadInFinder.ForClass(_classifier, Whole, _encoding.LeadInMinimumBits)
+            : LeadInFinder.ForClass(_classifier, Half, 2 * _encoding.LeadInMinimumBits);
         foreach (char c in _encoding.SyncBits)
         {
             _syncPattern = (_syncPattern << 1) | (c == '1' ? 1u : 0u);
         }
 
         _syncMask = _encoding.SyncBits.Length == 64 ? ulong.MaxValue : (1UL << _encoding.SyncBits.Length) - 1;
+        _leadInWindows = new ulong[_leadInBits.Length];
+        for (int phase = 0; phase < _leadInWindows.Length; phase++)
+        {
+            _leadInWindows[phase] = BitPatterns.Window(_leadInBits, phase, _encoding.SyncBits.Length);
+        }
     }
 
     private enum Mode
@@ -191,12 +206,14 @@ public sealed class BiphaseDecoder : ISymbolDecoder
 
         _speed.Calibrate(_leadIn.Speed);
 
-        // In a run of zeros the transitions alternate: boundary, mid-cell (zero direction), boundary...
-        if (!bit)
+        // In a run of equal bits the transitions alternate: boundary, mid-cell (in that bit's direction), boundary...;
+        // in a run of alternating bits every transition is mid-cell, and its direction is the bit.
+        bool alternating = BitPatterns.IsWholeCellRun(_leadInBits);
+        if (alternating || bit == (_leadInBits[0] == '1'))
         {
             _mode = Mode.Sync;
             _atBoundary = false;
-            _shift = 0;
+            _shift = BitPatterns.Window(_leadInBits, alternating && bit ? 1 : 0, 64);
             _bitsSinceLeadIn = 0;
             _bitFirstDecision = -1;
         }
@@ -267,8 +284,8 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         {
             _shift = (_shift << 1) | (bit ? 1UL : 0UL);
 
-            // Count from the first 1 after the zeros, however long the lead-in runs.
-            _bitsSinceLeadIn = (_shift & _syncMask) == 0 ? 0 : _bitsSinceLeadIn + 1;
+            // Count from the first bit that breaks the lead-in's pattern, however long the lead-in runs.
+            _bitsSinceLeadIn = InLeadIn(_shift & _syncMask) ? 0 : _bitsSinceLeadIn + 1;
             if ((_shift & _syncMask) == _syncPattern)
             {
                 _mode = Mode.Data;
@@ -293,6 +310,20 @@ public sealed class BiphaseDecoder : ISymbolDecoder
             _mode = Mode.Hunting;
             _clock.Stop();
         }
+    }
+
+    /// <summary>Whether the sync register still holds nothing but the lead-in's pattern (in some phase).</summary>
+    private bool InLeadIn(ulong window)
+    {
+        foreach (ulong leadIn in _leadInWindows)
+        {
+            if (window == leadIn)
+            {
+                return true;
+            }
+        }
+
+        return false;
     }
 
     /// <summary>Bridging counts from the clock as it stood at the break: nothing moves it until the signal is back.</summary>

@@ -28,6 +28,14 @@ namespace TapeVault.Core.Symbols;
 /// that the next block's lead-in begins the next block instead of being read into this one.
 /// </para>
 /// <para>
+/// A profile whose lead-in is a leader of repeated characters (<see cref="CharacterLeadIn"/>) begins blocks after that
+/// leader and nowhere else: a <see cref="LeaderHunt"/> finds its first character wherever characters may start, the
+/// characters after it are framed back to back, the time from one leader character to the next gives the playback
+/// speed (<see cref="LeadInFinder"/>, the lead-in's regularity rather than a nominal window), and once enough of them
+/// have come the first character that is not the leader's, well framed, and the first of a sync the layout expects
+/// begins the block. Mark tone, an idle line or well-framed characters begin nothing there.
+/// </para>
+/// <para>
 /// A stream layout (no blocks, no checksum) has more to recover and nothing to fool: a stream that resumes soon after
 /// a loss of signal needs no new lead-in, but it makes a new block, so the bytes lost in the gap are never silently
 /// closed up inside one block; and a stream with no lead-in at all (a modem's output, a tape cut short) is read from
@@ -73,11 +81,24 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private const float HeldCharacterDistance = 0.5f;
 
+    /// <summary>Characters in a row, neither the leader's nor a sync's first, after which a leader counts as lost.</summary>
+    private const int LeaderMisses = 2;
+
+    /// <summary>How far, in bits, one leader character's start may lie from where the run of them so far puts it.</summary>
+    private const double LeaderJitterBits = 0.4;
+
     private readonly FskEncoding _fsk;
     private readonly ByteFraming _framing;
     private readonly bool _isStream;
     private readonly BlockAssembler _assembler;
     private readonly double _sampleRate;
+    private readonly CharacterLeadIn? _leader;
+    private readonly byte[] _syncFirstBytes = [];
+    private LeaderHunt _hunt;
+    private LeadInFinder _leaderRun;
+    private bool _inLeader;
+    private double _leaderLastStart;
+    private int _leaderMisses;
     private readonly double _evidenceGain;
     private ToneDetector _tones;
     private MarkPeriodSpeedTracker _speed;
@@ -128,6 +149,25 @@ public sealed class FskDecoder : ISymbolDecoder
         _heldLevels = new float[HeldCharacters * _framer.FrameBits];
         double leadInSamples = Math.Max(_fsk.LeadInMinimumSeconds * sampleRate, 2.0 * _tones.Window);
         _evidenceGain = 2.0 / leadInSamples;
+        if (_fsk.LeadInCharacters is { } leader)
+        {
+            _leader = leader;
+            _hunt = new LeaderHunt(_framing, leader);
+
+            // The leader's characters follow one another a frame apart: a run of near-equal intervals, whose mean is
+            // the frame as the tape plays, within the speeds any lead-in may be found at.
+            double frame = _framing.BitsPerByte / _fsk.Baud;
+            _leaderRun = new LeadInFinder(
+                frame,
+                Math.Max(2, leader.MinimumCount - 1),
+                frame / (1 + LeadInFinder.MaximumSpeedError),
+                frame / (1 - LeadInFinder.MaximumSpeedError),
+                LeaderJitterBits / _framing.BitsPerByte);
+            if (BlockLayoutCodec.For(profile.Layout).SyncField is { } sync)
+            {
+                _syncFirstBytes = [.. sync.Expected.Select(e => e[0])];
+            }
+        }
     }
 
     /// <summary>What a block began after: the evidence the format's own signal gives that a block starts there.</summary>
@@ -147,6 +187,9 @@ public sealed class FskDecoder : ISymbolDecoder
 
         /// <summary>A stream with no lead-in: its first well-framed characters.</summary>
         WithoutLeadIn,
+
+        /// <summary>After a leader of repeated characters: the character grid the leader set.</summary>
+        Leader,
     }
 
     public bool NeedsConditionedSignal => true;
@@ -182,14 +225,18 @@ public sealed class FskDecoder : ISymbolDecoder
         for (int i = 0; i < signal.Length; i++)
         {
             bool inChar = _framer.InCharacter;
-            float d = _tones.Next(signal[i], learnMark: inChar || _inBlock || HeardLeadIn, learnSpace: inChar);
+            float d = _tones.Next(signal[i], learnMark: inChar || _inBlock || _inLeader || HeardLeadIn, learnSpace: inChar);
             double n = chunkStart + i;
             _speed.Check(d, n);
+            if (_leader is not null && !_inBlock && !_inLeader && _hunt.Step(d, _previousD, n, BitSamples))
+            {
+                FoundLeader(n);
+            }
 
             // Half a bit without carrier is a loss of signal; a shorter fade (deep noise can null a one-bit window for
             // a moment) is not.
             _noCarrierRun = _tones.Carrier ? 0 : _noCarrierRun + 1;
-            if (_noCarrierRun >= 0.5 * BitSamples && (inChar || _inBlock || _heldCount > 0))
+            if (_noCarrierRun >= 0.5 * BitSamples && (inChar || _inBlock || _heldCount > 0 || _inLeader))
             {
                 LoseSignal();
             }
@@ -234,6 +281,12 @@ public sealed class FskDecoder : ISymbolDecoder
                     // Characters held before a block must follow one another back to back.
                     _heldCount = 0;
                 }
+
+                if (_inLeader && n - _lastCharEnd >= FrameSamples)
+                {
+                    // So must a leader's: a frame without a character ends it.
+                    _inLeader = false;
+                }
             }
 
             _previousD = d;
@@ -259,7 +312,18 @@ public sealed class FskDecoder : ISymbolDecoder
     private void TryStartCharacter(double crossing)
     {
         BlockStart evidence;
-        if (_inBlock || _heldCount > 0)
+        if (_leader is not null && !_inBlock)
+        {
+            if (!_inLeader)
+            {
+                // Where characters start is not known yet: every fall may be a leader character's start bit.
+                _hunt.Fall(crossing, BitSamples);
+                return;
+            }
+
+            evidence = BlockStart.Leader;
+        }
+        else if (_inBlock || _heldCount > 0)
         {
             evidence = BlockStart.InBlock;
         }
@@ -337,7 +401,7 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private bool StartIsConfirmed(double crossing, BlockStart evidence)
     {
-        if (evidence is BlockStart.LeadIn or BlockStart.IdleLine || _markRun >= FrameSamples)
+        if (evidence is BlockStart.LeadIn or BlockStart.IdleLine or BlockStart.Leader || _markRun >= FrameSamples)
         {
             return true;
         }
@@ -362,6 +426,12 @@ public sealed class FskDecoder : ISymbolDecoder
         _framer.Abandon();
         _markRun = 0;
         _heldCount = 0;
+        _inLeader = false;
+        if (_leader is not null)
+        {
+            _hunt.Stop();
+        }
+
         if (_inBlock)
         {
             _assembler.End(_lastCharEnd);
@@ -379,9 +449,69 @@ public sealed class FskDecoder : ISymbolDecoder
         {
             AddCharacter(_framer.Value, _framer.Levels, _framer.FramingOk, _framer.Start, _charConfirmed);
         }
+        else if (_leader is not null)
+        {
+            LeaderCharacter();
+        }
         else
         {
             Hold();
+        }
+    }
+
+    /// <summary>
+    /// The hunt read a leader character, well framed, that ended at sample <paramref name="n"/>: the characters after it
+    /// are framed back to back from here.
+    /// </summary>
+    private void FoundLeader(double n)
+    {
+        _inLeader = true;
+        _leaderLastStart = _hunt.FoundStart;
+        _leaderMisses = 0;
+        _leaderRun.Reset();
+        _lastCharEnd = n;
+        _markRun = 0.5 * BitSamples;
+
+        // A new recording learns its own tone balance, from this leader on.
+        _tones.ForgetSpaceLevel();
+    }
+
+    /// <summary>
+    /// A character read on a leader's grid: another leader character (the run and the speed it gives grow), the first
+    /// character of a sync after a long enough leader (the block begins with it), or neither (a damaged character;
+    /// more than <see cref="LeaderMisses"/> in a row and the leader is lost).
+    /// </summary>
+    private void LeaderCharacter()
+    {
+        int value = _framer.Value;
+        bool framingOk = _framer.FramingOk;
+        double start = _framer.Start;
+        if (framingOk && value == _leader!.Character)
+        {
+            _leaderRun.Add((start - _leaderLastStart) / _sampleRate);
+            if (_leaderRun.Found)
+            {
+                _speed.Calibrate(_leaderRun.Speed);
+            }
+
+            _leaderLastStart = start;
+            _leaderMisses = 0;
+            return;
+        }
+
+        if (framingOk && _leaderRun.Found && Array.IndexOf(_syncFirstBytes, (byte)value) >= 0)
+        {
+            _inLeader = false;
+            BeginBlock(start, BlockStart.Leader, confirmed: true);
+            AddCharacter(value, _framer.Levels, framingOk, start, confirmed: true);
+            return;
+        }
+
+        // A damaged character keeps the grid (the next start bit still follows its stop bits), but not for long.
+        _leaderLastStart = start;
+        if (++_leaderMisses >= LeaderMisses)
+        {
+            _inLeader = false;
         }
     }
 
@@ -436,6 +566,12 @@ public sealed class FskDecoder : ISymbolDecoder
         _assembler.Begin(start - 0.5 * _tones.Window, EvidenceOf(evidence, confirmed));
         _inBlock = true;
         _resuming = false;
+        if (evidence == BlockStart.Leader)
+        {
+            // The leader fixed where characters start: the block's grid is confirmed from its first character.
+            _gridConfirmed = true;
+            _leaderRun.Reset();
+        }
 
         // A block with no lead-in whose first start bit nothing confirmed finds out from its own characters whether
         // they can be framed anywhere else.
@@ -455,7 +591,7 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private static BlockStartEvidence EvidenceOf(BlockStart evidence, bool confirmed) => evidence switch
     {
-        BlockStart.LeadIn or BlockStart.IdleLine => BlockStartEvidence.LeadIn,
+        BlockStart.LeadIn or BlockStart.IdleLine or BlockStart.Leader => BlockStartEvidence.LeadIn,
         BlockStart.Resumed when confirmed => BlockStartEvidence.Sync,
         BlockStart.WithoutLeadIn when confirmed => BlockStartEvidence.LeadIn,
         BlockStart.WithoutLeadIn => BlockStartEvidence.SelfAligned,

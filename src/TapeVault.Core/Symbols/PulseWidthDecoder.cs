@@ -108,7 +108,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 var bits = new bool[expected[c].Length * frame];
                 for (int b = 0; b < expected[c].Length; b++)
                 {
-                    SyncByteFramer.Frame(profile.Framing, expected[c][b], bits.AsSpan(b * frame, frame));
+                    BitPatterns.Frame(profile.Framing, expected[c][b], bits.AsSpan(b * frame, frame));
                 }
 
                 _syncBits[c] = bits;

@@ -25,9 +25,7 @@ public static class FluxWriter
     public static IEnumerable<bool> FramedBits(ByteFraming framing, byte value)
     {
         ArgumentNullException.ThrowIfNull(framing);
-        var bits = new bool[framing.BitsPerByte];
-        Bytes.SyncByteFramer.Frame(framing, value, bits);
-        return bits;
+        return BitPatterns.Frame(framing, value);
     }
 
     private static IEnumerable<double> PulseWidth(FormatProfile profile, IReadOnlyList<byte[]> blocks)
@@ -121,16 +119,51 @@ public static class FluxWriter
             }
         }
 
-        foreach (var block in blocks)
+        IEnumerable<double> Character(byte value)
         {
-            foreach (double r in Idle(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds)) yield return r;
-            first = false;
-            foreach (byte value in block)
+            foreach (bool b in FramedBits(profile.Framing, value))
             {
-                foreach (bool b in FramedBits(profile.Framing, value))
+                foreach (double r in Cell(b ? fsk.MarkHz : fsk.SpaceHz)) yield return r;
+                t += bit;
+            }
+        }
+
+        // A leader of repeated characters: the lead-in's seconds of them, at least twice the minimum a reader needs.
+        IEnumerable<double> Leader(CharacterLeadIn leader, double seconds)
+        {
+            double frame = profile.Framing.BitsPerByte * bit;
+            int count = Math.Max(2 * leader.MinimumCount, (int)(seconds / frame));
+            for (int i = 0; i < count; i++)
+            {
+                foreach (double r in Character((byte)leader.Character)) yield return r;
+            }
+        }
+
+        var codec = Blocks.BlockLayoutCodec.For(profile.Layout);
+        foreach (var written in blocks)
+        {
+            for (int copy = 0; copy < profile.Layout.Copies; copy++)
+            {
+                var block = codec.ForCopy(written, copy);
+                if (fsk.LeadInCharacters is { } leader)
                 {
-                    foreach (double r in Cell(b ? fsk.MarkHz : fsk.SpaceHz)) yield return r;
-                    t += bit;
+                    // Before the first block the leader alone; before each later one a gap of mark tone, then the leader.
+                    if (!first)
+                    {
+                        foreach (double r in Idle(profile.Recording.BlockGapSeconds)) yield return r;
+                    }
+
+                    foreach (double r in Leader(leader, first ? profile.Recording.LeadInSeconds : 0)) yield return r;
+                }
+                else
+                {
+                    foreach (double r in Idle(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds)) yield return r;
+                }
+
+                first = false;
+                foreach (byte value in block)
+                {
+                    foreach (double r in Character(value)) yield return r;
                 }
             }
         }
@@ -163,18 +196,21 @@ public static class FluxWriter
             t += cell;
         }
 
-        IEnumerable<double> Zeros(double seconds, int minimum)
+        // The lead-in's pattern repeated (zeros, ones or alternating bits), ending on its last bit before the sync.
+        IEnumerable<double> LeadIn(double seconds, int minimum)
         {
+            string pattern = biphase.LeadInBits;
             int count = Math.Max(minimum, (int)(seconds / cell));
+            count += (pattern.Length - (count % pattern.Length)) % pattern.Length;
             for (int i = 0; i < count; i++)
             {
-                foreach (double r in Bit(false)) yield return r;
+                foreach (double r in Bit(pattern[i % pattern.Length] == '1')) yield return r;
             }
         }
 
         foreach (var block in blocks)
         {
-            foreach (double r in Zeros(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds, biphase.LeadInMinimumBits * 2)) yield return r;
+            foreach (double r in LeadIn(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds, biphase.LeadInMinimumBits * 2)) yield return r;
             first = false;
             foreach (char c in biphase.SyncBits)
             {
@@ -190,6 +226,6 @@ public static class FluxWriter
             }
         }
 
-        foreach (double r in Zeros(profile.Recording.TrailerSeconds, 16)) yield return r;
+        foreach (double r in LeadIn(profile.Recording.TrailerSeconds, 16)) yield return r;
     }
 }

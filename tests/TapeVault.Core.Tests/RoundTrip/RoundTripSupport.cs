@@ -94,11 +94,12 @@ internal static class RoundTrips
         return (capture, result);
     }
 
-    public static DecodeResult WriteAndDecode(RoundTripFolder folder, FormatProfile profile, IReadOnlyList<byte[]> blocks, ChannelDamage damage)
+    /// <summary>Writes <paramref name="blocks"/> as <paramref name="profile"/> lays them down and decodes them as <paramref name="readAs"/> (the same profile when null).</summary>
+    public static DecodeResult WriteAndDecode(RoundTripFolder folder, FormatProfile profile, IReadOnlyList<byte[]> blocks, ChannelDamage damage, FormatProfile? readAs = null)
     {
         string path = folder.NewCapture(profile.Id);
         CaptureSynthesizer.WriteBlocks(path, profile, blocks, damage);
-        var result = CaptureDecoder.Decode(path, profile);
+        var result = CaptureDecoder.Decode(path, readAs ?? profile);
         File.Delete(path);
         return result;
     }
