@@ -238,9 +238,12 @@ public sealed class BlockScorer
 
             double logModelAll = Sum(logModel, 0, byteCount);
             bool weak = _checksum.FalseMatchProbability > WeakCheckFalseMatch;
-            if (match && weak && (framingErrors > 0 || guessedDecisions > 0 || logModelAll < Math.Log(0.5)))
+            if (match && (framingErrors > 0 || (weak && (guessedDecisions > 0 || logModelAll < Math.Log(0.5)))))
             {
                 // A weak check proves a block only beside decisions that already make it more likely right than not.
+                // A framing error says a character was misread: a check of any strength that holds across it may be
+                // one of the chance matches that thousands of damaged readings produce (an empty block whose length
+                // field was misread, its check read from the bytes after it), so it too waits for a second capture.
                 doubts |= BlockDoubts.Uncorroborated;
             }
 

@@ -50,9 +50,9 @@ public enum BlockDoubts
     FramingErrors = 32,
 
     /// <summary>
-    /// The check holds, but it is a weak one (an 8-bit sum or xor passes about one damaged block in 256, common
-    /// practice) and nothing else vouches for the bytes: a framing error, a guessed bit, or decisions whose margins
-    /// make the block less likely right than not. The reading is probably right, as its confidence says, but not
+    /// The check holds, but nothing else vouches for the bytes: some character's framing failed (whatever the check),
+    /// or the check is a weak one (an 8-bit sum or xor passes about one damaged block in 256, common practice) over a
+    /// guessed bit or decisions whose margins make the block less likely right than not. The reading is probably right, as its confidence says, but not
     /// proven; a second capture that reads the same bytes proves it in the merge.
     /// </summary>
     Uncorroborated = 64,

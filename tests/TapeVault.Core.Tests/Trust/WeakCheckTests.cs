@@ -84,6 +84,18 @@ public sealed class WeakCheckTests
         Assert.InRange(slipped.Confidence, 0.9, 0.97);
     }
 
+    [Fact]
+    public void A_strong_check_that_holds_across_a_framing_error_is_not_clean_on_its_own()
+    {
+        // Thousands of damaged readings give CRC-16 (odds 2^-16 each, common practice) its chance matches; a reading
+        // with a broken character is one of them until a second capture reads the same bytes. Before, such a reading
+        // was clean at confidence 0.5 (an empty FSK block on a head-rise setting, benchmark seed 20263).
+        var slipped = Read(With("crc16-xmodem"), 0.9f, 0.02f, badFrame: 2);
+
+        Assert.NotEqual(BlockStatus.Clean, slipped.Status);
+        Assert.True(slipped.Doubts.HasFlag(BlockDoubts.Uncorroborated), $"doubts {slipped.Doubts}");
+    }
+
     private static BlockCandidate Uncorroborated(FormatProfile profile, byte[] written) =>
         Readings.Of(profile, written, 2.0, 1) with { Status = BlockStatus.Failed, Doubts = BlockDoubts.Uncorroborated, Confidence = 0.99 };
 
