@@ -34,6 +34,10 @@ public static class Trust
 
     private static long s_makeTicks, s_decodeTicks, s_mergeTicks;
 
+    /// <summary>With TAPEVAULT_TRUST_DUMP set to a file path, every reading and position is written there as a row of tab-separated features.</summary>
+    private static readonly ConcurrentQueue<string> s_dump = new();
+    private static readonly string? s_dumpPath = Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_DUMP");
+
     private sealed record Subject(string Family, FormatProfile Profile);
 
     private sealed record Reading(double Confidence, bool Right, bool WrongClean, bool Clean = false);
@@ -139,6 +143,10 @@ public static class Trust
         }
 
         Print([.. outcomes]);
+        if (s_dumpPath is not null)
+        {
+            File.WriteAllLines(s_dumpPath, s_dump);
+        }
         Console.WriteLine($"This process's CPU time {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:0} s (SoX and minimodem run as processes of their own, not counted).");
         Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s wall; wall time summed over workers: making captures {Stopwatch.GetElapsedTime(0, s_makeTicks).TotalSeconds:0} s, decoding {Stopwatch.GetElapsedTime(0, s_decodeTicks).TotalSeconds:0} s, merging {Stopwatch.GetElapsedTime(0, s_mergeTicks).TotalSeconds:0} s.");
         Console.WriteLine();
@@ -246,6 +254,13 @@ public static class Trust
                     bool right = judge(candidate.Header.AsSpan(), candidate.Payload.AsSpan());
                     bool wrongClean = !right && (profile.Layout.IsStream ? candidate.Confidence >= StreamConfidentWrong : candidate.Status == BlockStatus.Clean);
                     readings.Add(new Reading(candidate.Confidence, right, wrongClean, candidate.Status == BlockStatus.Clean));
+                    if (s_dumpPath is not null)
+                    {
+                        s_dump.Enqueue(string.Join('\t', "read", profile.Id, seed, p, source, candidate.SettingName, candidate.Status, (int)candidate.Doubts, candidate.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0,
+                            candidate.MinimumMargin.ToString("0.####", CultureInfo.InvariantCulture), candidate.MeanMargin.ToString("0.####", CultureInfo.InvariantCulture), candidate.AmbiguousDecisions, candidate.Decisions, candidate.FramingErrors,
+                            candidate.SnrDb.ToString("0.##", CultureInfo.InvariantCulture), candidate.Payload.Length, candidate.Truncated ? 1 : 0, candidate.Position, candidate.StartSeconds.ToString("0.###", CultureInfo.InvariantCulture), candidate.Identity.Key,
+                            candidate.HeaderErrorOdds.Concat(candidate.ByteErrorOdds).Concat(candidate.ChecksumErrorOdds).Sum(e => Math.Log(1 - Math.Min(e, 0.999999))).ToString("0.####", CultureInfo.InvariantCulture)));
+                    }
                     if (wrongClean && examples.Count < 3)
                     {
                         examples.Add(new WrongExample(profile.Id, seed, p, source, candidate.SettingName, candidate.Status, candidate.Confidence, candidate.Payload.Length, description));
@@ -275,6 +290,11 @@ public static class Trust
                 bool right = judge(block.Header.AsSpan(), block.Payload.AsSpan());
                 bool wrongClean = !right && (profile.Layout.IsStream ? block.Confidence >= StreamConfidentWrong : block.Status == RecoveryStatus.Clean);
                 positions.Add(new Reading(block.Confidence, right, wrongClean));
+                if (s_dumpPath is not null)
+                {
+                    s_dump.Enqueue(string.Join('\t', "pos", profile.Id, seed, -1, "-", "-", block.Status, 0, block.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0,
+                        block.AgreeingCaptures, block.Sources.Length, 0, 0, 0, 0, block.Payload.Length, 0, block.Position, 0, block.Key));
+                }
                 rightBlocks += right ? 1 : 0;
                 exact &= right && block.AgreeingCaptures >= 2 && (profile.Layout.IsStream || block.Status == RecoveryStatus.Clean);
             }

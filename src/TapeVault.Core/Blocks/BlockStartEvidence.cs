@@ -48,4 +48,12 @@ public enum BlockDoubts
 
     /// <summary>Some byte's framing failed (a stop bit or marker where none should be); the check holds only by chance over a slip.</summary>
     FramingErrors = 32,
+
+    /// <summary>
+    /// The check holds, but nothing else vouches for the bytes: some character's framing failed (whatever the check),
+    /// or the check is a weak one (an 8-bit sum or xor passes about one damaged block in 256, common practice) over a
+    /// guessed bit or decisions whose margins make the block less likely right than not. The reading is probably right, as its confidence says, but not
+    /// proven; a second capture that reads the same bytes proves it in the merge.
+    /// </summary>
+    Uncorroborated = 64,
 }

@@ -240,8 +240,35 @@ internal sealed class BlockMerge
         }
 
         var valid = readings.Where(r => r.Candidate.Status == BlockStatus.Clean).ToList();
-        return valid.Count > 0 ? ResolveClean(valid) : ResolveByVote(readings);
+        if (valid.Count == 0)
+        {
+            // A weak check that holds proves a block once two captures read the same bytes: their damage is
+            // independent, so both passing the check with the same wrong bytes is far beyond its false-match odds.
+            valid = readings
+                .Where(r => IsOnlyUncorroborated(r.Candidate))
+                .GroupBy(r => Convert.ToHexString(r.Candidate.Header.AsSpan()) + ":" + r.Candidate.PayloadHex)
+                .Where(g => g.Select(r => _passes[r.Pass].Capture.CaptureSha256).Distinct(StringComparer.Ordinal).Count() >= 2)
+                .SelectMany(g => g)
+                .ToList();
+        }
+
+        if (valid.Count > 0)
+        {
+            return ResolveClean(valid, RecoveryStatus.Clean);
+        }
+
+        // Nothing proven and no vote that holds: a reading whose weak check holds is still the likeliest content, kept
+        // as voted at its own confidence rather than listed missing.
+        var voted = ResolveByVote(readings);
+        var weak = readings.Where(r => IsOnlyUncorroborated(r.Candidate)).ToList();
+        return voted is { Status: not RecoveryStatus.Missing } || weak.Count == 0 ? voted : ResolveClean(weak, RecoveryStatus.Voted);
     }
+
+    /// <summary>A reading whose weak check holds and that nothing but a want of corroboration keeps from being clean.</summary>
+    private static bool IsOnlyUncorroborated(BlockCandidate c) =>
+        c.Status == BlockStatus.Failed
+        && c.Doubts.HasFlag(BlockDoubts.Uncorroborated)
+        && (c.Doubts & ~(BlockDoubts.Uncorroborated | BlockDoubts.FramingErrors)) == 0;
 
     /// <summary>
     /// Valid readings grouped by their bytes. Each capture's most confident reading of a content is one independent
@@ -250,7 +277,7 @@ internal sealed class BlockMerge
     /// differ cannot both be right: each content's chance is then weighed against the others' being wrong. The
     /// winner has the most captures, then the highest probability.
     /// </summary>
-    private ImageBlock ResolveClean(List<(BlockCandidate Candidate, int Pass)> valid)
+    private ImageBlock ResolveClean(List<(BlockCandidate Candidate, int Pass)> valid, RecoveryStatus status)
     {
         var contents = valid
             .GroupBy(r => Convert.ToHexString(r.Candidate.Header.AsSpan()) + ":" + r.Candidate.PayloadHex)
@@ -276,7 +303,7 @@ internal sealed class BlockMerge
         return Block(
             top.Header,
             top.Payload,
-            RecoveryStatus.Clean,
+            status,
             confidence,
             [.. winner.Witnesses.Select(w => Provenance(w.Candidate, w.Pass))],
             winner.Witnesses.Count,
