@@ -27,9 +27,9 @@ public sealed class BiphaseDrafter : IFamilyDrafter
 
         var h = survey.Runs[half];
         var w = survey.Runs[whole];
-        bool fits = h.Granularity >= 2 && w.OddShare >= 0.2;
+        bool fits = h.Granularity == 2 && h.OddShare < 0.25 && w.OddShare >= 0.35 && w.MeanLength < 3;
         double score = fits ? 0.9 * survey.GroupedShare : 0.1;
-        return new FamilyScore(Family, score, $"halves at {Us(survey.Clusters[half].Seconds)} µs come in pairs in {(h.Granularity >= 2 ? "most" : "few")} runs; wholes at {Us(survey.Clusters[whole].Seconds)} µs come in odd runs in {F(100 * w.OddShare, "0")} % of runs");
+        return new FamilyScore(Family, score, $"halves at {Us(survey.Clusters[half].Seconds)} µs come in runs of {h.Granularity} most often; wholes at {Us(survey.Clusters[whole].Seconds)} µs come alone most often, in odd runs in {F(100 * w.OddShare, "0")} % of runs");
     }
 
     private static (int Half, int Whole)? Pair(StretchSurvey survey)

@@ -51,7 +51,9 @@ public sealed class FskDrafter : IFamilyDrafter
             return null;
         }
 
-        return (b, a, 1 / Math.Sqrt(bitA * bitB));
+        // One cycle a bit is the least a tone can hold: measured just above the lower tone, the baud is that tone.
+        double baud = Math.Min(1 / Math.Sqrt(bitA * bitB), 0.5 / survey.Clusters[b].Seconds);
+        return (b, a, baud);
     }
 
     public FamilyScore Score(StretchSurvey survey)
@@ -77,16 +79,17 @@ public sealed class FskDrafter : IFamilyDrafter
         double highHz = 0.5 / survey.Clusters[high].Seconds;
         double lowHz = 0.5 / survey.Clusters[low].Seconds;
 
-        // The mark is the tone of the long runs: the lead-in and the idle line between blocks.
-        var runs = survey.AllRuns().Where(r => r.Class == low || r.Class == high).ToList();
-        double RunSeconds((int Class, int Start, int Length) r) => r.Length * survey.Clusters[r.Class].Seconds;
-        var longest = runs.OrderByDescending(RunSeconds).Take(Math.Max(1, runs.Count / 50)).ToList();
-        bool highIsMark = longest.Count(r => r.Class == high) * 2 >= longest.Count;
+        // The mark is the tone of the idle line: told by decoding both ways (8 data bits, no parity, one stop bit).
+        var asHigh = Trial(survey.Stretch, highHz, lowHz, baud, 0.05, 8, Parity.None, "1", cancellation);
+        var asLow = Trial(survey.Stretch, lowHz, highHz, baud, 0.05, 8, Parity.None, "1", cancellation);
+        bool highIsMark = asHigh.Score >= asLow.Score;
         int markGroup = highIsMark ? high : low;
         double markHz = highIsMark ? highHz : lowHz;
         double spaceHz = highIsMark ? lowHz : highHz;
-        var leadIns = runs.Where(r => r.Class == markGroup && RunSeconds(r) >= 30 / baud).Select(RunSeconds).ToList();
-        double leadIn = leadIns.Count > 0 ? Math.Clamp(0.4 * leadIns.Min(), 0.02, 60) : 0.1;
+        var runs = survey.AllRuns().Where(r => r.Class == markGroup).ToList();
+        double RunSeconds((int Class, int Start, int Length) r) => r.Length * survey.Clusters[r.Class].Seconds;
+        var leadIns = runs.Where(r => RunSeconds(r) >= 30 / baud).Select(RunSeconds).ToList();
+        double leadIn = leadIns.Count > 0 ? Math.Clamp(0.25 * leadIns.Min(), 0.02, 60) : 0.1;
 
         // The tone spectrum, as a second witness of the tones.
         var spectrum = survey.Stretch.Spectrum();
@@ -101,16 +104,16 @@ public sealed class FskDrafter : IFamilyDrafter
         foreach (var (data, parity, stop) in Framings)
         {
             cancellation.ThrowIfCancellationRequested();
-            var blocks = Trial(survey.Stretch, markHz, spaceHz, baud, leadIn, data, parity, stop, cancellation);
-            int bytes = blocks.Sum(b => b.Payload.Length);
-            int errors = blocks.Sum(b => b.FramingErrors);
-            trials.Add((data, parity, stop, bytes == 0 ? 1 : (double)errors / bytes, blocks));
+            var trial = Trial(survey.Stretch, markHz, spaceHz, baud, leadIn, data, parity, stop, cancellation);
+            trials.Add((data, parity, stop, trial.ErrorShare, trial.Blocks));
         }
 
         var holding = trials.Where(t => t.ErrorShare <= 0.02 && t.Blocks.Sum(b => b.Payload.Length) > 0).ToList();
         if (holding.Count == 0)
         {
-            return null;
+            throw new ProfileDraftException(
+                $"FSK tones at {F(markHz, "0")} Hz (mark) and {F(spaceHz, "0")} Hz at {F(baud, "0.#")} baud, but no framing holds: " +
+                string.Join(", ", trials.Select(t => $"{t.Data}{t.Parity.ToString()[0]}{t.Stop.Length} {t.Blocks.Sum(b => b.Payload.Length)} characters, {F(100 * t.ErrorShare, "0.#")} % framing errors")) + ".");
         }
 
         var chosen = holding
@@ -153,10 +156,10 @@ public sealed class FskDrafter : IFamilyDrafter
             ["leadInMinimumSeconds"] = Math.Round(leadIn, 3),
         };
         string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays";
-        proposal.Measured("fsk.markHz", F(markHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, $"{toneEvidence}; the mark is the tone of the lead-in and the idle line");
+        proposal.Measured("fsk.markHz", F(markHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
         proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, toneEvidence);
         proposal.Measured("fsk.baud", F(baud, "0.00"), 0.9, $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower");
-        proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"40 % of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");
+        proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"a quarter of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");
         var others = string.Join(", ", trials.Select(t => $"{t.Data}{t.Parity.ToString()[0]}{t.Stop.Length}: {F(100 * t.ErrorShare, "0.#")} %"));
         double framingConfidence = holding.Count == 1 ? 0.9 : 0.8;
         Framing(proposal, framing, layout.HasChecksum, 1 - chosen.ErrorShare, orderMeasured, orderEvidence);
@@ -170,7 +173,13 @@ public sealed class FskDrafter : IFamilyDrafter
         return proposal;
     }
 
-    private static List<BlockCandidate> Trial(CaptureStretch stretch, double markHz, double spaceHz, double baud, double leadIn, int data, Parity parity, string stop, CancellationToken cancellation)
+    /// <summary>What one trial decode read: the blocks of the setting that framed best, its characters and its share of framing errors.</summary>
+    private sealed record TrialResult(List<BlockCandidate> Blocks, int Characters, double ErrorShare)
+    {
+        public double Score => Characters * (1 - (4 * ErrorShare));
+    }
+
+    private static TrialResult Trial(CaptureStretch stretch, double markHz, double spaceHz, double baud, double leadIn, int data, Parity parity, string stop, CancellationToken cancellation)
     {
         var json = new JsonObject
         {
@@ -188,10 +197,12 @@ public sealed class FskDrafter : IFamilyDrafter
         }
         catch (ProfileException)
         {
-            return [];
+            return new TrialResult([], 0, 1);
         }
 
-        var session = new CaptureDecoder.DecodeSession(profile, [DetectorBanks.Default[0]], stretch.SampleRate);
+        // The FSK settings of the default bank (one per kind of conditioning), as a decode would run them.
+        var settings = CaptureDecoder.BankFor(profile, DetectorBanks.Default);
+        var session = new CaptureDecoder.DecodeSession(profile, settings, stretch.SampleRate);
         int end = (int)Math.Min(stretch.Samples.Length, (long)(TrialSeconds * stretch.SampleRate));
         const int chunk = 16_384;
         for (int offset = 0; offset < end; offset += chunk)
@@ -200,6 +211,19 @@ public sealed class FskDrafter : IFamilyDrafter
             session.Process(stretch.Samples.AsSpan(offset, Math.Min(chunk, end - offset)));
         }
 
-        return session.Finish();
+        TrialResult best = new([], 0, 1);
+        foreach (var group in session.Finish().GroupBy(b => b.SettingIndex))
+        {
+            var blocks = group.OrderBy(b => b.StartSeconds).ToList();
+            int characters = blocks.Sum(b => b.Payload.Length);
+            double errors = characters == 0 ? 1 : (double)blocks.Sum(b => b.FramingErrors) / characters;
+            var result = new TrialResult(blocks, characters, errors);
+            if (result.Score > best.Score)
+            {
+                best = result;
+            }
+        }
+
+        return best;
     }
 }

@@ -37,9 +37,10 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             return new FamilyScore(Family, 0, "fewer than two groups of interval lengths");
         }
 
-        int even = top.Count(i => runs[i].Granularity == 2);
-        double score = even == top.Count ? 0.8 * survey.GroupedShare : 0.3 * survey.GroupedShare;
-        return new FamilyScore(Family, score, $"{even} of the {top.Count} main groups come in runs of whole cycles (two half cycles) and no more");
+        int even = top.Count(i => runs[i].Granularity == 2 && runs[i].OddShare < 0.25);
+        bool sameBitTime = top.Count >= 2 && runs[top[0]].Granularity * survey.Clusters[top[0]].Seconds is var a && runs[top[1]].Granularity * survey.Clusters[top[1]].Seconds is var b && Math.Abs(Math.Log(a / b)) < 0.12;
+        double score = even == top.Count && !sameBitTime ? 0.8 * survey.GroupedShare : 0.3 * survey.GroupedShare;
+        return new FamilyScore(Family, score, $"{even} of the {top.Count} main groups come most often in runs of one whole cycle (two half cycles){(sameBitTime ? ", but the two main groups make one bit time, as FSK's tones do" : string.Empty)}");
     }
 
     public FamilyProposal? Draft(StretchSurvey survey, CancellationToken cancellation)

@@ -3,8 +3,8 @@ using TapeVault.Core.Edges;
 
 namespace TapeVault.Core.Drafting;
 
-/// <summary>How one group of intervals comes in runs: the share of its runs whose length is a multiple of each count.</summary>
-public sealed record RunStatistics(int Granularity, double OddShare, int Runs);
+/// <summary>How one group of intervals comes in runs: the commonest run length (its step), the share of odd runs, the mean length.</summary>
+public sealed record RunStatistics(int Granularity, double OddShare, int Runs, double MeanLength);
 
 /// <summary>
 /// The first look at a stretch: the intervals between every transition (a detector setting that counts both edges,
@@ -98,21 +98,19 @@ public sealed class StretchSurvey
         var lengths = AllRuns().Where(r => r.Class == cluster).Select(r => r.Length).ToList();
         if (lengths.Count == 0)
         {
-            return new RunStatistics(1, 0, 0);
+            return new RunStatistics(1, 0, 0, 0);
         }
 
-        int granularity = 1;
-        foreach (int g in new[] { 2, 4, 6, 8, 12, 16, 24, 32 })
+        // The commonest run length (a run of one bit, or one cycle), counting its neighbours: a run may lose or gain
+        // one interval where the tone changes and filtering moves a crossing.
+        var counts = new Dictionary<int, int>();
+        foreach (int l in lengths)
         {
-            // A run may lose or gain one interval where the tone changes and filtering moves a crossing.
-            int tolerance = g >= 4 ? 1 : 0;
-            double share = lengths.Count(l => Math.Min(l % g, g - (l % g)) <= tolerance && l >= g - tolerance) / (double)lengths.Count;
-            if (share >= 0.75)
-            {
-                granularity = g;
-            }
+            counts[l] = counts.GetValueOrDefault(l) + 1;
         }
 
-        return new RunStatistics(granularity, lengths.Count(l => l % 2 == 1) / (double)lengths.Count, lengths.Count);
+        int granularity = counts.Keys.MaxBy(l => counts[l] + (l >= 3 ? counts.GetValueOrDefault(l - 1) + counts.GetValueOrDefault(l + 1) : 0) + (l % 2 == 0 ? 0.5 : 0));
+        double mean = lengths.Average();
+        return new RunStatistics(granularity, lengths.Count(l => l % 2 == 1) / (double)lengths.Count, lengths.Count, mean);
     }
 }

@@ -40,7 +40,10 @@ public static class DraftTrials
         string truthJson = RandomFormats.Draw(family, rng);
         var truth = ProfileLoader.Parse(truthJson, "truth");
         var damage = Damage(rng);
-        var files = RandomFormats.Files(rng, 2, truth.Family == FormatFamily.Fsk && truth.Fsk!.Baud < 600 ? 300 : 700);
+        // A stream is one block per file: several short files give it blocks to count.
+        var files = truth.Layout.IsStream
+            ? RandomFormats.Files(rng, 6, 120)
+            : RandomFormats.Files(rng, 2, truth.Family == FormatFamily.Fsk && truth.Fsk!.Baud < 600 ? 300 : 700);
         string path = Path.Combine(folder, $"draft-{family}-{seed}.wav");
         var capture = CaptureSynthesizer.Write(path, truth, files, damage);
         string described = RandomDamage.Describe(damage);

