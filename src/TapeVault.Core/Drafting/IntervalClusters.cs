@@ -48,8 +48,8 @@ public static class IntervalClusters
         return histogram.ToResult();
     }
 
-    /// <summary>The groups, shortest first.</summary>
-    public static List<IntervalCluster> Find(ReadOnlySpan<double> intervals)
+    /// <summary>The groups holding at least <paramref name="leastShare"/> of the intervals, shortest first.</summary>
+    public static List<IntervalCluster> Find(ReadOnlySpan<double> intervals, double leastShare = LeastShare)
     {
         var histogram = Histogram(intervals);
         int bins = histogram.Bins;
@@ -107,7 +107,7 @@ public static class IntervalClusters
                 center = Math.Exp(logSum / count);
             }
 
-            if ((double)count / total < LeastShare)
+            if ((double)count / total < leastShare || count < 4)
             {
                 continue;
             }

@@ -25,6 +25,12 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         ["short", "medium", "long", "extra-long"],
     ];
 
+    /// <summary>
+    /// A class may be rare: a sync pulse comes once a block, one cycle in a thousand or so. Groups this small count
+    /// here, where the survey (which judges structure) leaves them out.
+    /// </summary>
+    public const double RareClassShare = 0.0005;
+
     public string Family => "pulse-width";
 
     public FamilyScore Score(StretchSurvey survey)
@@ -53,7 +59,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         foreach (var setting in DetectorBanks.Default.Where(s => s.Edges != EdgeSelection.Both))
         {
             var cycles = IntervalClusters.Intervals(stretch.Edges(setting, cancellation), stretch.SampleRate);
-            var clusters = Separate(IntervalClusters.Find(cycles));
+            var clusters = Separate(IntervalClusters.Find(cycles, RareClassShare));
             if (clusters.Count < 2)
             {
                 continue;
