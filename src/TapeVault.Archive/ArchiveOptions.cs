@@ -29,6 +29,9 @@ public sealed class ArchiveOptions
     /// <summary>How many times a job interrupted by a restart is started again before it is failed.</summary>
     public int MaxAttempts { get; set; } = 3;
 
+    /// <summary>The organisation that holds the archive, named in bags and catalogues.</summary>
+    public Organisation Organisation { get; set; } = new();
+
     public string FullDatabasePath => Path.GetFullPath(DatabasePath, BaseFolder);
 
     public string FullStorePath => Path.GetFullPath(StorePath, BaseFolder);

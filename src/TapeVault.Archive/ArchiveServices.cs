@@ -15,13 +15,13 @@ namespace TapeVault.Archive;
 public static class ArchiveServices
 {
     /// <summary>The database, the content store, ingest, jobs and the Identity stores; the host adds its own sign-in scheme.</summary>
-    public static IServiceCollection AddTapeVaultArchive(this IServiceCollection services, ArchiveOptions options, ProfileCatalog profiles, ExportOptions? export = null)
+    public static IServiceCollection AddTapeVaultArchive(this IServiceCollection services, ArchiveOptions options, ProfileCatalog profiles)
     {
         ArgumentNullException.ThrowIfNull(options);
         services.AddSingleton(options);
-        services.AddSingleton(export ?? new ExportOptions());
         services.AddScoped<FixityAudit>();
         services.AddScoped<BagExport>();
+        services.AddScoped<OrganisationSettings>();
         services.AddScoped<CataloguePublisher>();
         services.AddScoped<ExportStore>();
         services.AddSingleton(profiles);

@@ -23,36 +23,25 @@ public sealed class ArchiveSession : IDisposable
 
     public ArchiveOptions Options => Get<ArchiveOptions>();
 
-    public const string OptionsUsage = "[--database FILE] [--store DIR]";
-
-    /// <summary>Marks the archive's options as known, so that a command can refuse unknown ones before opening anything.</summary>
-    public static void DeclareOptions(CommandLine args)
+    /// <summary>Opens the archive that the settings name, or the database and store given on the command line.</summary>
+    public static ArchiveSession Open(string? database, string? store, CliSettings settings)
     {
-        ArgumentNullException.ThrowIfNull(args);
-        _ = args.Value("database");
-        _ = args.Value("store");
-    }
-
-    public static ArchiveSession Open(CommandLine args, CliSettings settings)
-    {
-        ArgumentNullException.ThrowIfNull(args);
         ArgumentNullException.ThrowIfNull(settings);
         var options = settings.Archive;
         options.BaseFolder = ArchiveOptions.FindRepositoryRoot() ?? Directory.GetCurrentDirectory();
-        if (args.Value("database") is { } database)
+        if (database is not null)
         {
             options.DatabasePath = Path.GetFullPath(database);
         }
 
-        if (args.Value("store") is { } storePath)
+        if (store is not null)
         {
-            options.StorePath = Path.GetFullPath(storePath);
+            options.StorePath = Path.GetFullPath(store);
         }
 
         var collection = new ServiceCollection();
         collection.AddLogging();
         collection.AddSingleton(options);
-        collection.AddSingleton(settings.Export);
         collection.AddSingleton(ProfileCatalog.WithUserFolder(settings.ProfilesFolder is { Length: > 0 } folder ? Path.GetFullPath(folder, options.BaseFolder) : null));
         collection.AddSingleton(new ContentStore(options.FullStorePath));
         collection.AddDbContext<ArchiveDbContext>(db => ArchiveDatabase.Configure(db, options.FullDatabasePath));

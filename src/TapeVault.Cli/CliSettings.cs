@@ -16,9 +16,6 @@ public sealed class CliSettings
     /// <summary>Where the web app's archive lives (the same section the web app reads), for <c>users</c>.</summary>
     public TapeVault.Archive.ArchiveOptions Archive { get; set; } = new();
 
-    /// <summary>What bags and catalogues say about who made them.</summary>
-    public TapeVault.Archive.Export.ExportOptions Export { get; set; } = new();
-
     public sealed class DecodeSettings
     {
         public string Channel { get; set; } = "mix";

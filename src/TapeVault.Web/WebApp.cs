@@ -51,9 +51,8 @@ public static class WebApp
         builder.Services.AddSingleton(new ProfilesFolder(profilesFolder));
         var web = builder.Configuration.GetSection(WebOptions.Section).Get<WebOptions>() ?? new WebOptions();
         builder.Services.AddSingleton(web);
-        var export = builder.Configuration.GetSection(ExportOptions.Section).Get<ExportOptions>() ?? new ExportOptions();
         builder.Services.AddSingleton(builder.Configuration.GetSection(FixityOptions.Section).Get<FixityOptions>() ?? new FixityOptions());
-        builder.Services.AddTapeVaultArchive(archive, profiles, export);
+        builder.Services.AddTapeVaultArchive(archive, profiles);
 
         // Sign-in cookies must survive a restart: the keys live beside the database, not in memory.
         builder.Services.AddDataProtection()

@@ -54,7 +54,8 @@ public sealed class ArchiveFixture : IAsyncDisposable
         var options = new ArchiveOptions { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" };
         var collection = new ServiceCollection();
         collection.AddLogging();
-        collection.AddTapeVaultArchive(options, ProfileCatalog.BuiltIn, new ExportOptions { SourceOrganization = "Test Archive" });
+        options.Organisation = new Organisation { Name = "Test Archive", Address = "1 Test Street\nTestford", ContactEmail = "archive@example.org" };
+        collection.AddTapeVaultArchive(options, ProfileCatalog.BuiltIn);
         var fixture = new ArchiveFixture(root, collection.BuildServiceProvider());
         await fixture.FillAsync(conditionNotes);
         return fixture;

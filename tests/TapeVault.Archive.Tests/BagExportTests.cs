@@ -97,6 +97,54 @@ public sealed class BagExportTests(SharedArchive shared)
     }
 
     [Fact]
+    public async Task AnArchiveThatHasNotNamedItsOrganisation_WritesBagsAndCataloguesNamingNone_NotTheDemoClub()
+    {
+        var archive = shared.Archive;
+        var unnamed = new ArchiveOptions();
+        var bag = Path.Combine(archive.Root, $"unnamed-bag-{Guid.NewGuid():N}");
+        var site = Path.Combine(archive.Root, $"unnamed-site-{Guid.NewGuid():N}");
+        using (var scope = archive.Services.CreateScope())
+        {
+            var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+            await using (var sink = new FolderBagSink(bag))
+            {
+                await new BagExport(db, archive.Store, unnamed).WriteAsync(BagScope.Item(archive.ItemId), sink);
+            }
+
+            await new CataloguePublisher(db, archive.Store, unnamed, Core.Formats.ProfileCatalog.BuiltIn).WriteAsync(archive.CollectionId, site);
+        }
+
+        // RFC 8493 §2.2.2: the reserved elements are optional; a bag without them is still a valid bag.
+        string info = File.ReadAllText(Path.Combine(bag, "bag-info.txt"));
+        Assert.DoesNotContain("Source-Organization", info, StringComparison.Ordinal);
+        Assert.DoesNotContain("Contact-", info, StringComparison.Ordinal);
+        Assert.DoesNotContain("Brackenfield", info, StringComparison.Ordinal);
+        var (tagExit, tagOut) = ArchiveFixture.Sha256SumCheck(bag, "tagmanifest-sha256.txt");
+        Assert.True(tagExit == 0, tagOut);
+
+        string index = File.ReadAllText(Path.Combine(site, "index.html"));
+        Assert.DoesNotContain("DCTERMS.publisher", index, StringComparison.Ordinal);
+        Assert.DoesNotContain("class=\"org\"", index, StringComparison.Ordinal);
+        Assert.DoesNotContain("Brackenfield", index, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public async Task TheCatalogueNamesTheArchivesOrganisation_AsItsPublisher()
+    {
+        var archive = shared.Archive;
+        var site = Path.Combine(archive.Root, $"named-site-{Guid.NewGuid():N}");
+        using (var scope = archive.Services.CreateScope())
+        {
+            await scope.ServiceProvider.GetRequiredService<CataloguePublisher>().WriteAsync(archive.CollectionId, site);
+        }
+
+        // Dublin Core's "publisher" term (DCMI Metadata Terms), as a meta tag, and the name at the top of the page.
+        string index = File.ReadAllText(Path.Combine(site, "index.html"));
+        Assert.Contains("<meta name=\"DCTERMS.publisher\" content=\"Test Archive\">", index, StringComparison.Ordinal);
+        Assert.Contains("<p class=\"org\">Test Archive</p>", index, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public void BagIntoAFolderThatIsNotEmptyIsRefused()
     {
         var archive = shared.Archive;
@@ -117,7 +165,12 @@ public sealed class BagExportTests(SharedArchive shared)
         long octets = payload.Sum(f => new FileInfo(f).Length);
         Assert.Equal($"{octets}.{payload.Length}", info.Single(i => i.Label == "Payload-Oxum").Value);
         Assert.Matches(@"^\d{4}-\d{2}-\d{2}$", info.Single(i => i.Label == "Bagging-Date").Value);
+        // RFC 8493 §2.2.2's reserved elements for who holds the bag, from the archive's own settings; a multi-line
+        // address on one line; an element the archive did not set is left out, not written empty.
         Assert.Equal("Test Archive", info.Single(i => i.Label == "Source-Organization").Value);
+        Assert.Equal("1 Test Street, Testford", info.Single(i => i.Label == "Organization-Address").Value);
+        Assert.Equal("archive@example.org", info.Single(i => i.Label == "Contact-Email").Value);
+        Assert.DoesNotContain(info, i => i.Label is "Contact-Name" or "Contact-Phone");
         Assert.Equal(accessions, info.Where(i => i.Label == "External-Identifier").Select(i => i.Value));
 
         // RFC 8493 §2.1.3: every payload file is in the manifest, and the manifest names nothing else.

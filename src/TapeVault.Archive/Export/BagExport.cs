@@ -27,7 +27,7 @@ public sealed record BagResult(string Name, int PayloadFiles, long PayloadBytes,
 /// of the event chain is written as bag-info's Event-Chain-Head and as the tag file event-chain-head.txt. Writing a bag
 /// records nothing: whoever keeps the finished bag records its export events (<see cref="RecordExported"/>) with it.
 /// </summary>
-public sealed class BagExport(ArchiveDbContext db, ContentStore store, ExportOptions options)
+public sealed class BagExport(ArchiveDbContext db, ContentStore store, ArchiveOptions options)
 {
     /// <summary>The tag file that holds the event chain's head (listed in tagmanifest-sha256.txt).</summary>
     public const string ChainHeadTagFile = "event-chain-head.txt";
@@ -77,8 +77,14 @@ public sealed class BagExport(ArchiveDbContext db, ContentStore store, ExportOpt
 
         var tags = new List<(string Hash, string Path)>();
         tags.Add((await WriteTextAsync(sink, "bagit.txt", "BagIt-Version: 1.0\nTag-File-Character-Encoding: UTF-8\n", cancellation).ConfigureAwait(false), "bagit.txt"));
-        var info = new StringBuilder()
-            .Append(CultureInfo.InvariantCulture, $"Source-Organization: {OneLine(options.SourceOrganization)}\n")
+        var info = new StringBuilder();
+        var organisation = await OrganisationSettings.CurrentAsync(db, options, cancellation).ConfigureAwait(false);
+        foreach (var (label, value) in organisation.BagInfo())
+        {
+            info.Append(CultureInfo.InvariantCulture, $"{label}: {value}\n");
+        }
+
+        info
             .Append(CultureInfo.InvariantCulture, $"Bagging-Date: {DateTime.UtcNow:yyyy-MM-dd}\n")
             .Append(CultureInfo.InvariantCulture, $"Payload-Oxum: {bytes}.{manifest.Count}\n")
             .Append(CultureInfo.InvariantCulture, $"Bag-Software-Agent: TapeVault {Core.Decoding.CaptureDecoder.CodeVersion}\n")
@@ -169,13 +175,4 @@ public sealed class BagExport(ArchiveDbContext db, ContentStore store, ExportOpt
     }
 
     private static string OneLine(string value) => string.Join(' ', value.Split(['\r', '\n'], StringSplitOptions.RemoveEmptyEntries)).Trim();
-}
-
-/// <summary>The "TapeVault:Export" section of appsettings.json.</summary>
-public sealed class ExportOptions
-{
-    public const string Section = "TapeVault:Export";
-
-    /// <summary>Written as Source-Organization in every bag and shown in the catalogue.</summary>
-    public string SourceOrganization { get; set; } = "Brackenfield Home Computer Club (demo)";
 }

@@ -12,7 +12,7 @@ using PulseHistogram = TapeVault.Core.Catalogue.PulseHistogram;
 namespace TapeVault.Archive.Export;
 
 /// <summary>Gathers a collection's items from the archive into the catalogue model and writes the static site.</summary>
-public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, ExportOptions options, ProfileCatalog profiles)
+public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, ArchiveOptions options, ProfileCatalog profiles)
 {
     public async Task<CatalogueSite> SiteAsync(int collectionId, CancellationToken cancellation = default)
     {
@@ -44,7 +44,8 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
         }
 
         var head = await EventChain.HeadAsync(db, cancellation).ConfigureAwait(false);
-        return new CatalogueSite(collection.Name, collection.Description, options.SourceOrganization, DateTimeOffset.UtcNow, items, head?.ToString());
+        var organisation = await OrganisationSettings.CurrentAsync(db, options, cancellation).ConfigureAwait(false);
+        return new CatalogueSite(collection.Name, collection.Description, organisation.DisplayName, DateTimeOffset.UtcNow, items, head?.ToString());
     }
 
     /// <summary>Writes the catalogue into an empty folder; records nothing (see <see cref="RecordPublishedAsync"/>).</summary>

@@ -7,7 +7,7 @@ namespace TapeVault.Core.Catalogue;
 public sealed record CatalogueSite(
     string CollectionName,
     string CollectionDescriptionMarkdown,
-    string SourceOrganization,
+    string? SourceOrganization,
     DateTimeOffset PublishedUtc,
     IReadOnlyList<CatalogueItem> Items,
     string? EventChainHead = null);

@@ -101,6 +101,10 @@ public static class CatalogueWriter
 
     private static string E(string? text) => WebUtility.HtmlEncode(text ?? string.Empty);
 
+    /// <summary>The archive's organisation as the publisher (Dublin Core), when the archive has named it.</summary>
+    private static (string Name, string Content)[] Publisher(CatalogueSite site) =>
+        string.IsNullOrWhiteSpace(site.SourceOrganization) ? [] : [("DCTERMS.publisher", site.SourceOrganization)];
+
     private static string F(double value, string format = "0.000") => value.ToString(format, Invariant);
 
     private static string Head(string title, string cssPath, IEnumerable<(string Name, string Content)> meta)
@@ -123,11 +127,11 @@ public static class CatalogueWriter
         var b = new StringBuilder(Head(site.CollectionName, "catalogue.css",
         [
             ("DCTERMS.title", site.CollectionName),
-            ("DCTERMS.publisher", site.SourceOrganization),
+            .. Publisher(site),
             ("DCTERMS.issued", site.PublishedUtc.ToString("yyyy-MM-dd", Invariant)),
             ("DCTERMS.type", "Collection"),
         ]));
-        b.Append(Invariant, $"<header><p class=\"org\">{E(site.SourceOrganization)}</p><h1>{E(site.CollectionName)}</h1></header>\n<main>\n");
+        b.Append(Invariant, $"<header>{(site.SourceOrganization is { } org ? $"<p class=\"org\">{E(org)}</p>" : string.Empty)}<h1>{E(site.CollectionName)}</h1></header>\n<main>\n");
         b.Append(Invariant, $"<div class=\"description\">{SafeMarkdown.ToHtml(site.CollectionDescriptionMarkdown)}</div>\n");
         b.Append(Invariant, $"<p class=\"explain\">{E(ConfidenceExplanation)}</p>\n");
         b.Append("<table>\n<caption>Tapes in this collection</caption>\n<thead><tr><th scope=\"col\">Accession number</th><th scope=\"col\">Title</th><th scope=\"col\">Blocks clean / voted / repaired / missing</th><th scope=\"col\">Overall confidence</th></tr></thead>\n<tbody>\n");
@@ -154,16 +158,16 @@ public static class CatalogueWriter
 
     private static string ItemPage(CatalogueSite site, CatalogueItem item)
     {
-        var meta = new List<(string, string)>
-        {
+        List<(string, string)> meta =
+        [
             ("DCTERMS.title", item.Title),
             ("DCTERMS.identifier", item.AccessionNumber),
             ("DCTERMS.isPartOf", site.CollectionName),
-            ("DCTERMS.publisher", site.SourceOrganization),
+            .. Publisher(site),
             ("DCTERMS.type", "Dataset"),
             ("DCTERMS.description", string.IsNullOrWhiteSpace(item.LabelText) ? item.Title : $"Label: {item.LabelText}"),
             ("DCTERMS.provenance", $"Recovered by TapeVault from {item.Captures.Count} audio capture(s) of the tape."),
-        };
+        ];
         if (item.Captures.Select(c => c.CapturedOn).Where(d => d is not null).Min() is { } first)
         {
             meta.Add(("DCTERMS.created", first.ToString("yyyy-MM-dd", Invariant)));

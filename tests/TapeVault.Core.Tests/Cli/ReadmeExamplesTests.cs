@@ -13,7 +13,7 @@ namespace TapeVault.Core.Tests.Cli;
 /// </summary>
 public sealed partial class ReadmeExamplesTests : IDisposable
 {
-    private const string Prefix = "dotnet run --project src/TapeVault.Cli -- ";
+    private const string Prefix = "tapevault ";
 
     private readonly OutsideTempFolder temp = new();
 
@@ -58,6 +58,74 @@ public sealed partial class ReadmeExamplesTests : IDisposable
         }
 
         Assert.True(File.Exists(Path.Combine(folder, "tape.tvimg")), "merge wrote no tape.tvimg.");
+    }
+
+    [Fact]
+    public void TheScriptTheReadmePutsOnThePath_RunsTheCommandLine_AndPassesItsExitCode()
+    {
+        string root = RepositoryRoot();
+        string readme = File.ReadAllText(Path.Combine(root, "README.md"));
+        Assert.Contains("export PATH=\"$PWD/scripts:$PATH\"", readme, StringComparison.Ordinal);
+        Assert.Contains("about a minute and a half", readme, StringComparison.Ordinal);
+        if (!OperatingSystem.IsWindows())
+        {
+            Assert.True((File.GetUnixFileMode(Path.Combine(root, "scripts", "tapevault")) & UnixFileMode.UserExecute) != 0, "scripts/tapevault is not executable.");
+        }
+
+        var help = RunScript(root, "tapevault help");
+        Assert.True(help.Exit == 0, help.ToString());
+        Assert.Contains("tapevault decode CAPTURE.wav", help.Output, StringComparison.Ordinal);
+
+        var wrong = RunScript(root, "tapevault decod");
+        Assert.True(wrong.Exit == 2, wrong.ToString());
+        Assert.Contains("did you mean 'decode'?", wrong.Error, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void TheBashCompletionTheReadmeLoads_CompletesCommandsAndProfiles()
+    {
+        string root = RepositoryRoot();
+        Assert.Contains("source scripts/tapevault-completion.bash", File.ReadAllText(Path.Combine(root, "README.md")), StringComparison.Ordinal);
+
+        // bash itself runs the completion function as it would on Tab, with the line typed so far.
+        string Complete(string line) => RunScript(root, $$"""
+            source scripts/tapevault-completion.bash
+            COMP_LINE='{{line}}'; COMP_POINT=${#COMP_LINE}
+            read -r -a COMP_WORDS <<< "$COMP_LINE"; [ "${COMP_LINE: -1}" = " " ] && COMP_WORDS+=("")
+            COMP_CWORD=$(( ${#COMP_WORDS[@]} - 1 ))
+            _tapevault_complete
+            printf '%s\n' "${COMPREPLY[@]}"
+            """).Output;
+
+        Assert.Equal(["decode", "demo"], Complete("tapevault de").Split('\n', StringSplitOptions.RemoveEmptyEntries).Order(StringComparer.Ordinal));
+        Assert.Equal(["extract"], Complete("tapevault image ex").Split('\n', StringSplitOptions.RemoveEmptyEntries));
+        Assert.Contains("orrin-80", Complete("tapevault decode x.wav --profile ").Split('\n'));
+    }
+
+    /// <summary>
+    /// Runs a bash script in the repository with scripts/ on the PATH, as the README sets it up; the tapevault script
+    /// runs the build the tests were made with (its configuration is the folder above the tests' own).
+    /// </summary>
+    private static Run RunScript(string root, string script)
+    {
+        var start = new ProcessStartInfo("bash")
+        {
+            WorkingDirectory = root,
+            RedirectStandardOutput = true,
+            RedirectStandardError = true,
+            RedirectStandardInput = true,
+            UseShellExecute = false,
+        };
+        start.ArgumentList.Add("-c");
+        start.ArgumentList.Add(script);
+        start.Environment["PATH"] = $"{Path.Combine(root, "scripts")}:{Path.GetDirectoryName(Environment.ProcessPath)}:{Environment.GetEnvironmentVariable("PATH")}";
+        start.Environment["TAPEVAULT_CONFIGURATION"] = new DirectoryInfo(AppContext.BaseDirectory).Parent!.Name;
+        using var process = Process.Start(start)!;
+        process.StandardInput.Close();
+        var output = process.StandardOutput.ReadToEndAsync();
+        var error = process.StandardError.ReadToEndAsync();
+        Assert.True(process.WaitForExit(300_000), "the script did not finish within 300 s.");
+        return new Run(process.ExitCode, output.Result, error.Result);
     }
 
     private sealed record Example(string Line, List<string> Args, int[] AllowedExits);

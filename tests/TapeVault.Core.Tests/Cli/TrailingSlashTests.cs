@@ -103,8 +103,7 @@ internal static class CliArchive
 {
     public static (string Database, string Store) Create(string database, string store, string accession = "T-0001")
     {
-        var args = new CommandLine(["--database", database, "--store", store], new HashSet<string>());
-        using (var session = ArchiveSession.Open(args, new CliSettings()))
+        using (var session = ArchiveSession.Open(database, store, new CliSettings()))
         {
             var curator = new CuratorActions(session.Get<ArchiveDbContext>(), ProfileCatalog.BuiltIn);
             var collection = curator.CreateCollectionAsync("Test shelf", null, "test").GetAwaiter().GetResult();

@@ -1,3 +1,4 @@
+using System.CommandLine;
 using TapeVault.Core.Decoding;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
@@ -8,14 +9,21 @@ namespace TapeVault.Cli.Commands;
 /// tapevault demo [--out DIR]: synthesises the demo club's tapes with their damaged passes and decodes every pass
 /// with the default bank, so a new user sees the whole read path on embedded defaults.
 /// </summary>
-public static class DemoCommand
+public sealed class DemoCommand : CliCommand
 {
-    public static int Run(CommandLine args, TextWriter output)
+    private readonly Option<string> folderOption = CommonOptions.Out("DIR", "where the demo captures go; default: tapevault-demo in the temporary folder");
+
+    public DemoCommand()
+        : base("demo", "Synthesise the demo club's damaged tapes and decode them.")
     {
-        ArgumentNullException.ThrowIfNull(args);
-        ArgumentNullException.ThrowIfNull(output);
-        string folder = args.Value("out") ?? Path.Combine(Path.GetTempPath(), "tapevault-demo");
-        args.RejectUnknown();
+        Options.Add(folderOption);
+    }
+
+    protected override int Run(Invocation run)
+    {
+        ArgumentNullException.ThrowIfNull(run);
+        var output = run.Output;
+        string folder = run.Value(folderOption) ?? Path.Combine(Path.GetTempPath(), "tapevault-demo");
         Directory.CreateDirectory(folder);
 
         output.WriteLine($"TapeVault demo: the {DemoTapes.Club} (a fictional club) digitises its tapes.");
@@ -50,7 +58,7 @@ public static class DemoCommand
         }
 
         output.WriteLine($"Captures are in {folder}. Decode one yourself with:");
-        output.WriteLine($"  dotnet run --project src/TapeVault.Cli -- decode {Path.Combine(folder, "bhcc-0017-pass1.wav")} --profile orrin-80 --json out.json");
+        output.WriteLine($"  tapevault decode {Path.Combine(folder, "bhcc-0017-pass1.wav")} --profile orrin-80 --json out.json");
         return 0;
     }
 }

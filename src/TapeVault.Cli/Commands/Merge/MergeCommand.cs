@@ -1,3 +1,4 @@
+using System.CommandLine;
 using System.Globalization;
 using System.Text.Json;
 using TapeVault.Core.Decoding;
@@ -7,35 +8,48 @@ using TapeVault.Core.Text;
 
 namespace TapeVault.Cli.Commands;
 
-/// <summary>tapevault merge CAPTURE1.wav CAPTURE2.wav … --profile ID --image OUT [--json OUT.json] [--payload OUT.bin]</summary>
-public static class MergeCommand
+/// <summary>tapevault merge CAPTURE1.wav CAPTURE2.wav … --profile ID --out OUT.tvimg: several captures of one tape into one tape image.</summary>
+public sealed class MergeCommand : CliCommand
 {
-    public const string Usage = "merge CAPTURE1.wav CAPTURE2.wav ... --profile ID --image OUT [--json OUT.json] [--payload OUT.bin] [--channel left|right|mix] [--profiles DIR]";
+    private readonly Argument<string[]> captures = new("CAPTURE.wav") { Description = "the captures of one tape (WAV files), each a pass", Arity = ArgumentArity.OneOrMore };
+    private readonly Option<string> profile = CommonOptions.Profile();
+    private readonly Option<string> image = CommonOptions.Out("OUT.tvimg", "the tape image to write (required)", "--image");
+    private readonly Option<string> json = new("--json") { HelpName = "OUT.json", Description = "write the merge report as JSON; default: none" };
+    private readonly Option<string> payload = new("--payload") { HelpName = "OUT.bin", Description = "write the merged payload bytes; default: none" };
+    private readonly Option<string> channel = CommonOptions.Channel();
+    private readonly Option<string> profiles = CommonOptions.ProfilesFolder();
 
-    public static int Run(CommandLine args, TextWriter output)
+    public MergeCommand()
+        : base("merge", "Merge several captures of one tape into a tape image (.tvimg), block by block.")
     {
-        ArgumentNullException.ThrowIfNull(args);
-        ArgumentNullException.ThrowIfNull(output);
-        if (args.Positional.Count == 0)
-        {
-            throw new UsageException($"Usage: tapevault {Usage}");
-        }
+        image.Required = true;
+        Arguments.Add(captures);
+        Options.Add(profile);
+        Options.Add(image);
+        Options.Add(json);
+        Options.Add(payload);
+        Options.Add(channel);
+        Options.Add(profiles);
+    }
 
-        var captures = args.Positional;
+    protected override int Run(Invocation run)
+    {
+        ArgumentNullException.ThrowIfNull(run);
+        var output = run.Output;
+        var captures = run.Value(this.captures)!;
         var settings = CliSettings.Load();
-        var profile = Catalogs.Profile(args, settings);
-        var channel = DecodeCommand.Channel(args.Value("channel") ?? settings.Decode.Channel);
-        string imagePath = args.Required("image");
-        string? jsonPath = args.Value("json");
-        string? payloadPath = args.Value("payload");
-        args.RejectUnknown();
+        var profile = Catalogs.Profile(run.Value(this.profile)!, run.Value(profiles), settings);
+        var channel = DecodeCommand.Channel(run.Value(this.channel) ?? settings.Decode.Channel);
+        string imagePath = run.Value(image)!;
+        string? jsonPath = run.Value(json);
+        string? payloadPath = run.Value(payload);
 
-        if (captures.Distinct(StringComparer.Ordinal).Count() != captures.Count)
+        if (captures.Distinct(StringComparer.Ordinal).Count() != captures.Length)
         {
             throw new UsageException("A capture is named twice; each pass is merged once.");
         }
 
-        var outputs = new List<Files.Output> { new("image", imagePath) };
+        var outputs = new List<Files.Output> { new("out", imagePath) };
         if (jsonPath is not null)
         {
             outputs.Add(new Files.Output("json", jsonPath));
@@ -52,17 +66,17 @@ public static class MergeCommand
         }
 
         // Every capture is decoded with the default bank; one bar runs over all of them.
-        var results = new List<DecodeResult>(captures.Count);
-        using (var bar = new ProgressBar($"decoding {captures.Count} captures"))
+        var results = new List<DecodeResult>(captures.Length);
+        using (var bar = new ProgressBar($"decoding {captures.Length} captures"))
         {
-            for (int i = 0; i < captures.Count; i++)
+            for (int i = 0; i < captures.Length; i++)
             {
                 int done = i;
                 var options = new DecodeOptions
                 {
                     Channel = channel,
                     ChunkSamples = settings.Decode.ChunkSamples,
-                    Progress = new Progress(bar, done, captures.Count),
+                    Progress = new Progress(bar, done, captures.Length),
                 };
                 results.Add(CaptureDecoder.Decode(captures[i], profile, options: options));
             }
@@ -70,20 +84,20 @@ public static class MergeCommand
             bar.Report(1);
         }
 
-        var image = TapeMerger.Merge(results, [.. captures.Select(Path.GetFileName).Select(n => n ?? string.Empty)]);
+        var merged = TapeMerger.Merge(results, [.. captures.Select(Path.GetFileName).Select(n => n ?? string.Empty)]);
 
         // Outputs are written only after every decode and the merge succeeded: to temporary files, then into place.
-        var writers = new List<(string Path, Action<Stream> Write)> { (imagePath, stream => TapeImageContainer.Write(stream, image)) };
+        var writers = new List<(string Path, Action<Stream> Write)> { (imagePath, stream => TapeImageContainer.Write(stream, merged)) };
         if (jsonPath is not null)
         {
-            writers.Add((jsonPath, stream => WriteJson(stream, image)));
+            writers.Add((jsonPath, stream => WriteJson(stream, merged)));
         }
 
         if (payloadPath is not null)
         {
             writers.Add((payloadPath, stream =>
             {
-                foreach (var block in image.Blocks)
+                foreach (var block in merged.Blocks)
                 {
                     stream.Write(block.Payload.AsSpan());
                 }
@@ -91,7 +105,7 @@ public static class MergeCommand
         }
 
         Files.WriteAtomically(writers);
-        WriteTable(output, image);
+        WriteTable(output, merged);
         return 0;
     }
 
