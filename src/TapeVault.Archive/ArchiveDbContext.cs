@@ -30,6 +30,8 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
 
     public DbSet<ExportRecord> Exports => Set<ExportRecord>();
 
+    public DbSet<OrganisationRecord> Organisation => Set<OrganisationRecord>();
+
     public override int SaveChanges(bool acceptAllChangesOnSuccess)
     {
         var added = AddedEvents();
@@ -98,6 +100,17 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
     {
         ArgumentNullException.ThrowIfNull(builder);
         base.OnModelCreating(builder);
+
+        builder.Entity<OrganisationRecord>(e =>
+        {
+            e.ToTable("Organisation");
+            e.Property(o => o.Id).ValueGeneratedNever();
+            e.Property(o => o.Name).HasMaxLength(200);
+            e.Property(o => o.Address).HasMaxLength(500);
+            e.Property(o => o.ContactName).HasMaxLength(200);
+            e.Property(o => o.ContactPhone).HasMaxLength(60);
+            e.Property(o => o.ContactEmail).HasMaxLength(254);
+        });
 
         builder.Entity<Collection>(e =>
         {

@@ -21,6 +21,7 @@ public static class ArchiveServices
         services.AddSingleton(options);
         services.AddScoped<FixityAudit>();
         services.AddScoped<BagExport>();
+        services.AddScoped<OrganisationSettings>();
         services.AddScoped<CataloguePublisher>();
         services.AddScoped<ExportStore>();
         services.AddSingleton(profiles);

@@ -3,8 +3,9 @@ namespace TapeVault.Archive;
 /// <summary>
 /// The organisation that holds the archive: the "TapeVault:Archive:Organisation" section of appsettings.json. Bags
 /// carry it in bag-info.txt as the reserved elements of RFC 8493 §2.2.2 (Source-Organization, Organization-Address,
-/// Contact-Name, Contact-Phone, Contact-Email); catalogues name it as their publisher. Until its name is set, bags and
-/// catalogues name no organisation (the elements are optional), and the first start says where to set it.
+/// Contact-Name, Contact-Phone, Contact-Email); catalogues name it as their publisher. A curator may set it on the web
+/// app's settings page instead (<see cref="OrganisationSettings"/>), which takes precedence. Until its name is set,
+/// bags and catalogues name no organisation (the elements are optional), and the first start says where to set it.
 /// </summary>
 public sealed class Organisation
 {
@@ -30,7 +31,7 @@ public sealed class Organisation
 
     /// <summary>Where to set it, for the messages that say it is missing.</summary>
     public const string WhereToSet =
-        "set TapeVault:Archive:Organisation (Name, and Address, ContactName, ContactPhone, ContactEmail if you like) in appsettings.json";
+        "a curator sets it on the web app's Settings page (/settings), or set TapeVault:Archive:Organisation (Name, and Address, ContactName, ContactPhone, ContactEmail if you like) in appsettings.json";
 
     /// <summary>The bag-info.txt lines of RFC 8493 §2.2.2 for the parts that are set, in the order the RFC lists them.</summary>
     public IEnumerable<(string Label, string Value)> BagInfo()

@@ -48,7 +48,9 @@ public static class WebApp
 
         var archive = builder.Configuration.GetSection(ArchiveOptions.Section).Get<ArchiveOptions>() ?? new ArchiveOptions();
         archive.BaseFolder = repository ?? Directory.GetCurrentDirectory();
-        var profiles = ProfileCatalog.WithUserFolder(builder.Configuration["TapeVault:ProfilesFolder"] is { Length: > 0 } folder ? Path.GetFullPath(folder, archive.BaseFolder) : null);
+        string? profilesFolder = builder.Configuration["TapeVault:ProfilesFolder"] is { Length: > 0 } folder ? Path.GetFullPath(folder, archive.BaseFolder) : null;
+        var profiles = ProfileCatalog.WithUserFolder(profilesFolder);
+        builder.Services.AddSingleton(new ProfilesFolder(profilesFolder));
         var web = builder.Configuration.GetSection(WebOptions.Section).Get<WebOptions>() ?? new WebOptions();
         builder.Services.AddSingleton(web);
         builder.Services.AddSingleton(builder.Configuration.GetSection(FixityOptions.Section).Get<FixityOptions>() ?? new FixityOptions());
@@ -170,6 +172,9 @@ public static class WebApp
 }
 
 /// <summary>The "TapeVault:Web" section of appsettings.json.</summary>
+/// <summary>Where the user's own profiles live (TapeVault:ProfilesFolder); null when none is configured.</summary>
+public sealed record ProfilesFolder(string? Path);
+
 public sealed class WebOptions
 {
     public const string Section = "TapeVault:Web";

@@ -57,6 +57,20 @@ public sealed partial class StartupTests
     }
 
     [Fact]
+    public async Task FirstStart_SaysWhereToSetTheOrganisation_OnlyWhileItIsNotSet()
+    {
+        using var folder = new ArchiveFolder();
+        string unset = await StartAndStopAsync(folder, []);
+        Assert.Contains("organisation is not set", unset, StringComparison.Ordinal);
+        Assert.Contains("/settings", unset, StringComparison.Ordinal);
+        Assert.Contains("TapeVault:Archive:Organisation", unset, StringComparison.Ordinal);
+
+        using var other = new ArchiveFolder();
+        string set = await StartAndStopAsync(other, new() { ["TapeVault:Archive:Organisation:Name"] = "Riverside Sound Archive" });
+        Assert.DoesNotContain("organisation is not set", set, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public async Task SeedDemo_OnAnEmptyArchive_MakesTheDemoCollection_WhoseTapesArriveDecodedAndMerged()
     {
         using var folder = new ArchiveFolder();

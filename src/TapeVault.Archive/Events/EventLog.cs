@@ -12,6 +12,7 @@ public static class EventTypes
     public const string FixityCheck = "fixity-check";
     public const string Account = "account";
     public const string Create = "create";
+    public const string Settings = "settings";
 }
 
 /// <summary>Adds events to the context; they are written with the change they describe, in the same transaction.</summary>

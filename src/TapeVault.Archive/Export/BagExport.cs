@@ -78,7 +78,8 @@ public sealed class BagExport(ArchiveDbContext db, ContentStore store, ArchiveOp
         var tags = new List<(string Hash, string Path)>();
         tags.Add((await WriteTextAsync(sink, "bagit.txt", "BagIt-Version: 1.0\nTag-File-Character-Encoding: UTF-8\n", cancellation).ConfigureAwait(false), "bagit.txt"));
         var info = new StringBuilder();
-        foreach (var (label, value) in options.Organisation.BagInfo())
+        var organisation = await OrganisationSettings.CurrentAsync(db, options, cancellation).ConfigureAwait(false);
+        foreach (var (label, value) in organisation.BagInfo())
         {
             info.Append(CultureInfo.InvariantCulture, $"{label}: {value}\n");
         }

@@ -44,7 +44,8 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
         }
 
         var head = await EventChain.HeadAsync(db, cancellation).ConfigureAwait(false);
-        return new CatalogueSite(collection.Name, collection.Description, options.Organisation.DisplayName, DateTimeOffset.UtcNow, items, head?.ToString());
+        var organisation = await OrganisationSettings.CurrentAsync(db, options, cancellation).ConfigureAwait(false);
+        return new CatalogueSite(collection.Name, collection.Description, organisation.DisplayName, DateTimeOffset.UtcNow, items, head?.ToString());
     }
 
     /// <summary>Writes the catalogue into an empty folder; records nothing (see <see cref="RecordPublishedAsync"/>).</summary>

@@ -28,7 +28,8 @@ public static class Entry
         }
 
         var root = CommandTree.Build();
-        var parse = root.Parse(args);
+        // Words are taken as typed: "@name" is a file name like any other, not a file of further words.
+        var parse = root.Parse(args, new ParserConfiguration { ResponseFileTokenReplacer = null });
         var invocation = new InvocationConfiguration { Output = output, Error = error, EnableDefaultExceptionHandler = false };
 
         // "[suggest:N]" (tab completion) answers with the words that fit, whatever else is on the line.

@@ -5,10 +5,10 @@ using TapeVault.Web.Api;
 
 namespace TapeVault.Web.Pages;
 
-public sealed class IndexModel(ArchiveQueries queries, CuratorActions actions, ArchiveOptions archive) : ArchivePage
+public sealed class IndexModel(ArchiveQueries queries, CuratorActions actions, OrganisationSettings organisation) : ArchivePage
 {
     /// <summary>The archive's organisation, for the curators' reminder while it is not set.</summary>
-    public Organisation Organisation => archive.Organisation;
+    public Organisation Organisation { get; private set; } = new();
 
     public IReadOnlyList<CollectionSummary> Collections { get; private set; } = [];
 
@@ -18,7 +18,11 @@ public sealed class IndexModel(ArchiveQueries queries, CuratorActions actions, A
     [BindProperty]
     public string? Description { get; set; }
 
-    public async Task OnGetAsync() => Collections = await queries.CollectionsAsync(HttpContext.RequestAborted).ConfigureAwait(false);
+    public async Task OnGetAsync()
+    {
+        Collections = await queries.CollectionsAsync(HttpContext.RequestAborted).ConfigureAwait(false);
+        Organisation = await organisation.CurrentAsync(HttpContext.RequestAborted).ConfigureAwait(false);
+    }
 
     public Task<IActionResult> OnPostAsync() => TryAsync(
         async () =>

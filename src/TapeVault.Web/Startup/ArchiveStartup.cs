@@ -59,13 +59,13 @@ public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions
         }
 
         // The organisation that holds the archive is named in every bag and catalogue: say where to set it.
-        if (!scope.ServiceProvider.GetRequiredService<ArchiveOptions>().Organisation.IsSet)
+        if (!(await OrganisationSettings.CurrentAsync(db, scope.ServiceProvider.GetRequiredService<ArchiveOptions>(), cancellationToken).ConfigureAwait(false)).IsSet)
         {
             await Console.Out.WriteLineAsync(
                 $"""
 
                  TapeVault: the archive's organisation is not set, so bags and catalogues name none.
-                 To name it, {Organisation.WhereToSet}, and restart.
+                 To name it: {Organisation.WhereToSet}.
 
                 """).ConfigureAwait(false);
         }

@@ -119,6 +119,20 @@ public sealed class ConsistentOptionsTests : IDisposable
         Assert.Equal(OutsideTool.Sha256Sum(byWord), OutsideTool.Sha256Sum(byOut));
     }
 
+    [Fact]
+    public void NegativeNumbersAreValues_AndAWordStartingWithAnAtSignIsAFileName()
+    {
+        string root = temp.NewFolder("words");
+        string capture = Path.Combine(root, "@tape.wav");
+
+        var run = CliRun.Run("synth", "--out", capture, "--profile", "kcs-300", "--text", "HI", "--azimuth", "-2", "--snr", "-5");
+        var decode = CliRun.Run("decode", capture, "--profile", "kcs-300");
+
+        Assert.True(run.ExitCode == 0, run.ToString());
+        Assert.True(File.Exists(capture), run.ToString());
+        Assert.True(decode.ExitCode == 0, decode.ToString());
+    }
+
     /// <summary>A new archive: collection 1 "Test shelf" with one item, then further collections by the names given.</summary>
     private (string Database, string Store) Archive(string name, params string[] more)
     {

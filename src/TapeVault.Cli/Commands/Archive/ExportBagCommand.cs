@@ -116,9 +116,9 @@ public sealed class ExportBagCommand : CliCommand
         bags.RecordExported(result, ArchiveSession.Agent, $"written by the command line as '{Path.GetFileName(target)}'");
         db.SaveChanges();
         output.WriteLine($"Bag written to {target}: {result.PayloadFiles} payload file(s), {result.PayloadBytes} bytes, for {string.Join(", ", result.ExternalIdentifiers)}.");
-        if (!session.Options.Organisation.IsSet)
+        if (!ArchiveWork.Run(() => OrganisationSettings.CurrentAsync(db, session.Options)).IsSet)
         {
-            output.WriteLine($"The bag names no Source-Organization: the archive's organisation is not set; to name it, {Organisation.WhereToSet}.");
+            output.WriteLine($"The bag names no Source-Organization: the archive's organisation is not set. To name it: {Organisation.WhereToSet}.");
         }
 
         output.WriteLine(zip ? "Unzip it and check it with: sha256sum -c manifest-sha256.txt" : $"Check it with: cd {target} && sha256sum -c manifest-sha256.txt && sha256sum -c tagmanifest-sha256.txt");

@@ -59,9 +59,9 @@ public sealed class PublishCommand : CliCommand
                 await publisher.RecordPublishedAsync(collection, $"Catalogue published by the command line to the folder '{Path.GetFileName(target)}' ({files.Count} files).", ArchiveSession.Agent).ConfigureAwait(false);
                 return 0;
             });
-            if (!session.Options.Organisation.IsSet)
+            if (!ArchiveWork.Run(() => OrganisationSettings.CurrentAsync(session.Get<ArchiveDbContext>(), session.Options)).IsSet)
             {
-                output.WriteLine($"The catalogue names no publisher: the archive's organisation is not set; to name it, {Organisation.WhereToSet}.");
+                output.WriteLine($"The catalogue names no publisher: the archive's organisation is not set. To name it: {Organisation.WhereToSet}.");
             }
 
             output.WriteLine($"Catalogue written to {target}: {files.Count} files. Open {Path.Combine(target, "index.html")} in a browser; check it with: cd {target} && sha256sum -c SHA256SUMS");

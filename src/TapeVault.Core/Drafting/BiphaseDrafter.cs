@@ -1,0 +1,172 @@
+using System.Text.Json.Nodes;
+using TapeVault.Core.Pulses;
+using static TapeVault.Core.Drafting.CommonSections;
+
+namespace TapeVault.Core.Drafting;
+
+/// <summary>
+/// Biphase (Manchester): intervals are half a cell or a whole one. Halves come in pairs (two make a cell with a
+/// boundary transition), wholes come alone (a change of bit), so the whole group has odd runs where no other family
+/// has. A lead-in of zeros is a long run of halves; the first whole after it ends on the mid-cell transition of the
+/// first 1, from where each whole flips the bit and each pair of halves repeats it.
+/// </summary>
+public sealed class BiphaseDrafter : IFamilyDrafter
+{
+    /// <summary>Half cells in a run that may be a lead-in (32 bits of zeros).</summary>
+    public const int LeastLeadInHalves = 64;
+
+    public string Family => "biphase";
+
+    public FamilyScore Score(StretchSurvey survey)
+    {
+        ArgumentNullException.ThrowIfNull(survey);
+        if (Pair(survey) is not var (half, whole))
+        {
+            return new FamilyScore(Family, 0, "no two main groups of intervals one twice the other");
+        }
+
+        var h = survey.Runs[half];
+        var w = survey.Runs[whole];
+        bool fits = h.Granularity == 2 && h.OddShare < 0.25 && w.OddShare >= 0.35 && w.MeanLength < 3;
+        double score = fits ? 0.9 * survey.GroupedShare : 0.1;
+        return new FamilyScore(Family, score, $"halves at {Us(survey.Clusters[half].Seconds)} µs come in runs of {h.Granularity} most often; wholes at {Us(survey.Clusters[whole].Seconds)} µs come alone most often, in odd runs in {F(100 * w.OddShare, "0")} % of runs");
+    }
+
+    private static (int Half, int Whole)? Pair(StretchSurvey survey)
+    {
+        var top = survey.Dominant.Take(2).ToList();
+        if (top.Count < 2 || survey.Clusters[top[1]].Share < 0.05)
+        {
+            return null;
+        }
+
+        int half = Math.Min(top[0], top[1]);
+        int whole = Math.Max(top[0], top[1]);
+        double ratio = survey.Clusters[whole].Seconds / survey.Clusters[half].Seconds;
+        return ratio is > 1.7 and < 2.3 ? (half, whole) : null;
+    }
+
+    public FamilyProposal? Draft(StretchSurvey survey, CancellationToken cancellation)
+    {
+        ArgumentNullException.ThrowIfNull(survey);
+        if (Pair(survey) is not var (halfGroup, wholeGroup))
+        {
+            return null;
+        }
+
+        double cell = Math.Sqrt(2 * survey.Clusters[halfGroup].Seconds * survey.Clusters[wholeGroup].Seconds);
+
+        // The read path's classifier for halves (0) and wholes (1), with its acceptance limits.
+        var classifier = new PulseClassifier([cell / 2, cell], outerRatio: 1.45);
+        var intervals = survey.Intervals;
+        var kind = new int[intervals.Length];
+        for (int i = 0; i < kind.Length; i++)
+        {
+            kind[i] = classifier.ClassOf(intervals[i], 1);
+        }
+
+        var leadRuns = new List<(int Start, int Length)>();
+        for (int i = 0; i < kind.Length;)
+        {
+            int j = i;
+            while (j < kind.Length && kind[j] == 0)
+            {
+                j++;
+            }
+
+            if (j - i >= LeastLeadInHalves)
+            {
+                leadRuns.Add((i, j - i));
+            }
+
+            i = j + 1;
+        }
+
+        if (leadRuns.Count == 0)
+        {
+            return null;
+        }
+
+        double median = leadRuns.Select(r => (double)r.Length).Order().ElementAt(leadRuns.Count / 2);
+        leadRuns = [.. leadRuns.Where(r => r.Length >= Math.Max(LeastLeadInHalves, 0.3 * median))];
+        var blocks = new List<int[]>();
+        int risingOnes = 0;
+        int firstOnes = 0;
+        for (int k = 0; k < leadRuns.Count; k++)
+        {
+            int at = leadRuns[k].Start + leadRuns[k].Length;
+            int limit = k + 1 < leadRuns.Count ? leadRuns[k + 1].Start : kind.Length;
+            if (at >= limit || kind[at] != 1)
+            {
+                continue;
+            }
+
+            // The edge that ends the first whole is the first 1's mid-cell transition: its direction is a 1's.
+            firstOnes++;
+            risingOnes += survey.Edges[at + 1].Rising ? 1 : 0;
+            var bits = new List<int> { 1 };
+            int bit = 1;
+            int i = at + 1;
+            while (i < limit)
+            {
+                if (kind[i] == 1)
+                {
+                    bit ^= 1;
+                    i++;
+                }
+                else if (kind[i] == 0 && i + 1 < limit && kind[i + 1] == 0)
+                {
+                    i += 2;
+                }
+                else
+                {
+                    break;
+                }
+
+                bits.Add(bit);
+            }
+
+            if (bits.Count >= 24)
+            {
+                blocks.Add([.. bits]);
+            }
+        }
+
+        if (blocks.Count == 0)
+        {
+            return null;
+        }
+
+        var reading = SyncFormatSearch.Search(blocks, [new BitMapping("zeros lead in", 0, 1)], 0, cancellation);
+        if (reading is null)
+        {
+            return null;
+        }
+
+        bool proven = reading.Layout.HasChecksum;
+        int shortest = leadRuns.Min(r => r.Length) / 2;
+        int minimum = Math.Clamp((int)(0.25 * shortest), 8, MostLeadIn);
+        string syncBits = string.Concat(reading.Sync.Select(b => b == 1 ? '1' : '0'));
+        string oneIs = risingOnes * 2 >= firstOnes ? "rising" : "falling";
+        var proposal = new FamilyProposal();
+        proposal.Sections["biphase"] = new JsonObject
+        {
+            ["cellMicroseconds"] = Math.Round(cell * 1e6, 2),
+            ["oneIs"] = oneIs,
+            ["leadInMinimumBits"] = minimum,
+            ["syncBits"] = syncBits,
+        };
+        proposal.Measured("biphase.cellMicroseconds", Us(cell), 0.9,
+            $"intervals of half a cell ({Us(survey.Clusters[halfGroup].Seconds)} µs) and a whole one ({Us(survey.Clusters[wholeGroup].Seconds)} µs) through setting {survey.Setting.Name}; as the tape plays");
+        proposal.Guessed("biphase.oneIs", oneIs, 0.5,
+            $"the first 1 after {firstOnes} lead-ins has a {oneIs} mid-cell transition in this capture, but a capture's polarity depends on the deck and its wiring (the detector bank reads both)");
+        proposal.Measured("biphase.leadInMinimumBits", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortest} zeros)");
+        proposal.Measured("biphase.syncBits", syncBits, proven ? 0.9 : 0.4,
+            $"{blocks.Count} blocks begin alike for {reading.CommonPrefix} bits from the first 1 after their lead-in; " + (proven ? "the check value holds when bytes start after this sync" : "the shortest sync whose framing holds is drafted"));
+        Framing(proposal, reading.Framing, proven, reading.FramingShare, proven && !reading.OrderAmbiguous, OrderEvidence(reading));
+        Layout(proposal, reading.Layout);
+        AmbiguousOrder(proposal, reading);
+        proposal.Notes.Add($"Read through detector setting {survey.Setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync and framing held.");
+        return proposal;
+    }
+}

@@ -1,0 +1,229 @@
+using System.Text.Json.Nodes;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Detection;
+using TapeVault.Core.Formats;
+using static TapeVault.Core.Drafting.CommonSections;
+
+namespace TapeVault.Core.Drafting;
+
+/// <summary>
+/// FSK: a bit is a fixed time of one of two tones, so each tone's half cycles come in runs of a fixed step (its
+/// cycles per bit, twice over), and both steps give the same bit time. The tone of the long runs (the lead-in and the
+/// idle line) is the mark. Framing is told by decoding with the read path's own FSK decoder under each usual
+/// framing: the one with the most bits per character whose start, stop and parity bits hold.
+/// </summary>
+public sealed class FskDrafter : IFamilyDrafter
+{
+    /// <summary>Trial decodes read at most this much of the stretch.</summary>
+    public const double TrialSeconds = 60;
+
+    /// <summary>The framings tried (data bits, parity, stop bits), after one start bit 0, as serial lines use them (common practice).</summary>
+    public static IReadOnlyList<(int Data, Parity Parity, string Stop)> Framings { get; } =
+    [
+        (8, Parity.None, "1"), (8, Parity.None, "11"), (8, Parity.Even, "1"), (8, Parity.Odd, "1"),
+        (7, Parity.Even, "1"), (7, Parity.Odd, "1"), (8, Parity.Even, "11"), (8, Parity.Odd, "11"), (7, Parity.None, "1"),
+    ];
+
+    public string Family => "fsk";
+
+    private static (int Low, int High, double Baud)? Tones(StretchSurvey survey)
+    {
+        var top = survey.Dominant.Take(2).ToList();
+        if (top.Count < 2 || survey.Clusters[top[1]].Share < 0.05)
+        {
+            return null;
+        }
+
+        int a = Math.Min(top[0], top[1]);
+        int b = Math.Max(top[0], top[1]);
+        var ra = survey.Runs[a];
+        var rb = survey.Runs[b];
+        if (ra.Granularity < 2 || rb.Granularity < 2)
+        {
+            return null;
+        }
+
+        double bitA = ra.Granularity * survey.Clusters[a].Seconds;
+        double bitB = rb.Granularity * survey.Clusters[b].Seconds;
+        if (Math.Abs(Math.Log(bitA / bitB)) > 0.12)
+        {
+            return null;
+        }
+
+        // One cycle a bit is the least a tone can hold: measured just above the lower tone, the baud is that tone.
+        double baud = Math.Min(1 / Math.Sqrt(bitA * bitB), 0.5 / survey.Clusters[b].Seconds);
+        return (b, a, baud);
+    }
+
+    public FamilyScore Score(StretchSurvey survey)
+    {
+        ArgumentNullException.ThrowIfNull(survey);
+        if (Tones(survey) is not var (low, high, baud))
+        {
+            return new FamilyScore(Family, 0, "the two main groups do not come in runs that make one bit time");
+        }
+
+        return new FamilyScore(Family, 0.9 * survey.GroupedShare,
+            $"half cycles of {F(0.5 / survey.Clusters[high].Seconds, "0")} Hz come in runs of {survey.Runs[high].Granularity} and of {F(0.5 / survey.Clusters[low].Seconds, "0")} Hz in runs of {survey.Runs[low].Granularity}: one bit time of {Us(1 / baud)} µs either way");
+    }
+
+    public FamilyProposal? Draft(StretchSurvey survey, CancellationToken cancellation)
+    {
+        ArgumentNullException.ThrowIfNull(survey);
+        if (Tones(survey) is not var (low, high, baud))
+        {
+            return null;
+        }
+
+        double highHz = 0.5 / survey.Clusters[high].Seconds;
+        double lowHz = 0.5 / survey.Clusters[low].Seconds;
+
+        // The mark is the tone of the idle line: told by decoding both ways (8 data bits, no parity, one stop bit).
+        var asHigh = Trial(survey.Stretch, highHz, lowHz, baud, 0.05, 8, Parity.None, "1", cancellation);
+        var asLow = Trial(survey.Stretch, lowHz, highHz, baud, 0.05, 8, Parity.None, "1", cancellation);
+        bool highIsMark = asHigh.Score >= asLow.Score;
+        int markGroup = highIsMark ? high : low;
+        double markHz = highIsMark ? highHz : lowHz;
+        double spaceHz = highIsMark ? lowHz : highHz;
+        var runs = survey.AllRuns().Where(r => r.Class == markGroup).ToList();
+        double RunSeconds((int Class, int Start, int Length) r) => r.Length * survey.Clusters[r.Class].Seconds;
+        var leadIns = runs.Where(r => RunSeconds(r) >= 30 / baud).Select(RunSeconds).ToList();
+        double leadIn = leadIns.Count > 0 ? Math.Clamp(0.25 * leadIns.Min(), 0.02, 60) : 0.1;
+
+        // The tone spectrum, as a second witness of the tones.
+        var spectrum = survey.Stretch.Spectrum();
+        string Peak(double hz) => spectrum.Where(p => Math.Abs(Math.Log(p.Hz / hz)) < 0.08).Select(p => p.Power).DefaultIfEmpty(0).Max() is var power && power >= 0.1
+            ? $"the spectrum peaks near {F(hz, "0")} Hz ({F(10 * Math.Log10(power), "0")} dB)"
+            : $"the spectrum shows little near {F(hz, "0")} Hz";
+        bool spectrumAgrees = spectrum.Any(p => Math.Abs(Math.Log(p.Hz / markHz)) < 0.08 && p.Power >= 0.1)
+            && spectrum.Any(p => Math.Abs(Math.Log(p.Hz / spaceHz)) < 0.08 && p.Power >= 0.1);
+
+        // Framing: decode with each framing and keep the most constrained one whose bits hold.
+        var trials = new List<(int Data, Parity Parity, string Stop, double ErrorShare, List<BlockCandidate> Blocks)>();
+        foreach (var (data, parity, stop) in Framings)
+        {
+            cancellation.ThrowIfCancellationRequested();
+            var trial = Trial(survey.Stretch, markHz, spaceHz, baud, leadIn, data, parity, stop, cancellation);
+            trials.Add((data, parity, stop, trial.ErrorShare, trial.Blocks));
+        }
+
+        var holding = trials.Where(t => t.ErrorShare <= 0.02 && t.Blocks.Sum(b => b.Payload.Length) > 0).ToList();
+        if (holding.Count == 0)
+        {
+            throw new ProfileDraftException(
+                $"FSK tones at {F(markHz, "0")} Hz (mark) and {F(spaceHz, "0")} Hz at {F(baud, "0.#")} baud, but no framing holds: " +
+                string.Join(", ", trials.Select(t => $"{t.Data}{t.Parity.ToString()[0]}{t.Stop.Length} {t.Blocks.Sum(b => b.Payload.Length)} characters, {F(100 * t.ErrorShare, "0.#")} % framing errors")) + ".");
+        }
+
+        var chosen = holding
+            .OrderByDescending(t => 1 + t.Data + (t.Parity == Parity.None ? 0 : 1) + t.Stop.Length)
+            .ThenByDescending(t => t.Parity == Parity.None ? 0 : 1)
+            .First();
+        var blockBytes = chosen.Blocks.OrderBy(b => b.StartSeconds).Select(b => b.Payload.ToArray()).Where(b => b.Length > 0).ToList();
+
+        // Bit order: the check value tells it where there is one; else the share of printable text.
+        var reversed = blockBytes.Select(b => b.Select(x => Reverse(x, chosen.Data)).ToArray()).ToList();
+        var asRead = LayoutSearch.Search([.. blockBytes.Select(b => new DraftBlock([b]))]);
+        var asReversed = LayoutSearch.Search([.. reversed.Select(b => new DraftBlock([b]))]);
+        bool msb = !asRead.HasChecksum && asReversed.HasChecksum;
+        var layout = msb ? asReversed : asRead;
+        bool orderMeasured = layout.HasChecksum;
+        string orderEvidence = layout.HasChecksum ? "the check value holds with this bit order" : "no check value tells the bit order";
+        if (!layout.HasChecksum)
+        {
+            double lsbText = PrintableShare(blockBytes);
+            double msbText = PrintableShare(reversed);
+            if (Math.Max(lsbText, msbText) >= 0.9 && Math.Min(lsbText, msbText) <= 0.6)
+            {
+                msb = msbText > lsbText;
+                orderMeasured = true;
+                orderEvidence = $"{F(100 * Math.Max(lsbText, msbText), "0")} % of bytes read this way are printable text, {F(100 * Math.Min(lsbText, msbText), "0")} % the other way";
+            }
+            else
+            {
+                orderEvidence = "serial lines send the least significant bit first (common practice); nothing in the bytes tells";
+            }
+        }
+
+        var framing = new ByteFraming(chosen.Data, msb ? BitOrder.MsbFirst : BitOrder.LsbFirst, "0", chosen.Stop, chosen.Parity);
+        var proposal = new FamilyProposal();
+        proposal.Sections["fsk"] = new JsonObject
+        {
+            ["markHz"] = Math.Round(markHz, 1),
+            ["spaceHz"] = Math.Round(spaceHz, 1),
+            ["baud"] = Math.Round(baud, 2),
+            ["leadInMinimumSeconds"] = Math.Round(leadIn, 3),
+        };
+        string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays";
+        proposal.Measured("fsk.markHz", F(markHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
+        proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, toneEvidence);
+        proposal.Measured("fsk.baud", F(baud, "0.00"), 0.9, $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower");
+        proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"a quarter of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");
+        var others = string.Join(", ", trials.Select(t => $"{t.Data}{t.Parity.ToString()[0]}{t.Stop.Length}: {F(100 * t.ErrorShare, "0.#")} %"));
+        double framingConfidence = holding.Count == 1 ? 0.9 : 0.8;
+        Framing(proposal, framing, layout.HasChecksum, 1 - chosen.ErrorShare, orderMeasured, orderEvidence);
+        proposal.Findings.RemoveAll(f => f.Path is "framing.startBits" or "framing.stopBits" or "framing.parity" or "framing.dataBits");
+        proposal.Measured("framing.startBits", "'0'", 0.9, "a fall from the idle mark tone starts each character");
+        proposal.Measured("framing.stopBits", $"'{chosen.Stop}'", framingConfidence, $"framing errors per framing tried (data bits, parity, stop bits): {others}; the longest frame that holds is drafted");
+        proposal.Measured("framing.parity", chosen.Parity.ToString().ToLowerInvariant(), framingConfidence, $"framing errors per framing tried: {others}");
+        proposal.Measured("framing.dataBits", F(chosen.Data), layout.HasChecksum ? 0.9 : framingConfidence - 0.1, $"framing errors per framing tried: {others}");
+        Layout(proposal, layout);
+        proposal.Notes.Add($"Framing told by {trials.Count} trial decodes of the first {F(Math.Min(TrialSeconds, survey.Stretch.Seconds), "0")} s with the read path's FSK decoder; {blockBytes.Count} blocks read with the framing chosen.");
+        return proposal;
+    }
+
+    /// <summary>What one trial decode read: the blocks of the setting that framed best, its characters and its share of framing errors.</summary>
+    private sealed record TrialResult(List<BlockCandidate> Blocks, int Characters, double ErrorShare)
+    {
+        public double Score => Characters * (1 - (4 * ErrorShare));
+    }
+
+    private static TrialResult Trial(CaptureStretch stretch, double markHz, double spaceHz, double baud, double leadIn, int data, Parity parity, string stop, CancellationToken cancellation)
+    {
+        var json = new JsonObject
+        {
+            ["id"] = "trial",
+            ["name"] = "trial",
+            ["family"] = "fsk",
+            ["fsk"] = new JsonObject { ["markHz"] = markHz, ["spaceHz"] = spaceHz, ["baud"] = baud, ["leadInMinimumSeconds"] = leadIn },
+            ["framing"] = new JsonObject { ["dataBits"] = data, ["bitOrder"] = "lsb-first", ["startBits"] = "0", ["stopBits"] = stop, ["parity"] = parity.ToString().ToLowerInvariant() },
+            ["layout"] = new JsonObject(),
+        };
+        FormatProfile profile;
+        try
+        {
+            profile = ProfileLoader.Parse(json.ToJsonString(), "trial");
+        }
+        catch (ProfileException)
+        {
+            return new TrialResult([], 0, 1);
+        }
+
+        // The FSK settings of the default bank (one per kind of conditioning), as a decode would run them.
+        var settings = CaptureDecoder.BankFor(profile, DetectorBanks.Default);
+        var session = new CaptureDecoder.DecodeSession(profile, settings, stretch.SampleRate);
+        int end = (int)Math.Min(stretch.Samples.Length, (long)(TrialSeconds * stretch.SampleRate));
+        const int chunk = 16_384;
+        for (int offset = 0; offset < end; offset += chunk)
+        {
+            cancellation.ThrowIfCancellationRequested();
+            session.Process(stretch.Samples.AsSpan(offset, Math.Min(chunk, end - offset)));
+        }
+
+        TrialResult best = new([], 0, 1);
+        foreach (var group in session.Finish().GroupBy(b => b.SettingIndex))
+        {
+            var blocks = group.OrderBy(b => b.StartSeconds).ToList();
+            int characters = blocks.Sum(b => b.Payload.Length);
+            double errors = characters == 0 ? 1 : (double)blocks.Sum(b => b.FramingErrors) / characters;
+            var result = new TrialResult(blocks, characters, errors);
+            if (result.Score > best.Score)
+            {
+                best = result;
+            }
+        }
+
+        return best;
+    }
+}

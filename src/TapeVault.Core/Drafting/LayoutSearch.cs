@@ -1,0 +1,330 @@
+using TapeVault.Core.Checksums;
+
+namespace TapeVault.Core.Drafting;
+
+/// <summary>One block as a draft read it: the bytes, and other readings of its end where the end is uncertain.</summary>
+public sealed record DraftBlock(IReadOnlyList<byte[]> Readings)
+{
+    public byte[] First => Readings[0];
+}
+
+/// <summary>A header field a draft found, by offset: what it is, and how it was told.</summary>
+public sealed record FoundField(int Offset, int Bytes, string Role, bool BigEndian, string Evidence);
+
+/// <summary>
+/// What the block layout search found: the check value (its checksum, byte order and the offset its coverage starts
+/// at), the header's size and the fields it could name, the payload length where it is fixed, and how many copies of
+/// each block the tape holds.
+/// </summary>
+public sealed record LayoutFinding(
+    string? Checksum,
+    bool ChecksumBigEndian,
+    int CoverageStart,
+    int ChecksumBytes,
+    int BlocksTried,
+    int BlocksHolding,
+    int HeaderBytes,
+    IReadOnlyList<FoundField> Fields,
+    int? FixedPayloadBytes,
+    int MaximumPayloadBytes,
+    int Copies,
+    double CopiesShare,
+    IReadOnlyList<byte[]> Blocks)
+{
+    public bool HasChecksum => Checksum is not null;
+
+    /// <summary>Whether every header byte belongs to a field whose role was told from the blocks.</summary>
+    public bool HeaderExplained => Fields.Sum(f => f.Bytes) == HeaderBytes && Fields.All(f => f.Role != "other");
+}
+
+/// <summary>
+/// Searches decoded blocks for their layout: every checksum of the catalogue (<see cref="ChecksumCatalog"/>), stored
+/// in either byte order after the bytes it covers, from the first byte or from a few bytes in (a header outside the
+/// check); then a header field that always holds the payload's length, one that counts blocks, a printable name; and
+/// copies of a block written one after another. Nothing is taken from any one block: a finding must hold on most.
+/// </summary>
+public static class LayoutSearch
+{
+    /// <summary>The furthest into a block a check's coverage may start (a header it leaves out).</summary>
+    public const int MaximumCoverageStart = 8;
+
+    /// <summary>At most this many blocks are tried: enough to tell a check from chance many times over.</summary>
+    public const int MaximumBlocks = 16;
+
+    private static readonly Lazy<IReadOnlyList<IBlockChecksum>> Candidates = new(() =>
+    {
+        var seen = new HashSet<ChecksumParameters>();
+        var list = new List<IBlockChecksum>();
+        foreach (string name in ChecksumCatalog.Names)
+        {
+            var checksum = ChecksumCatalog.Get(name);
+            if (seen.Add(ChecksumCatalog.ParametersOf(checksum)))
+            {
+                list.Add(checksum);
+            }
+        }
+
+        return list;
+    });
+
+    /// <summary>How many of <paramref name="blocks"/> some catalogue checksum holds on: the quick score of a way of reading them.</summary>
+    public static LayoutFinding Search(IReadOnlyList<DraftBlock> blocks)
+    {
+        ArgumentNullException.ThrowIfNull(blocks);
+        var tried = blocks.Where(b => b.First.Length >= 3).Take(MaximumBlocks).ToList();
+        var (checksum, big, start, holding, chosen) = FindChecksum(tried);
+        var lengths = chosen.Select(b => b.Length).ToList();
+        int width = checksum?.Width ?? 0;
+        var fields = new List<FoundField>();
+        int header = start;
+        int? fixedPayload = null;
+        var good = chosen.Where(b => b.Length > width + start).ToList();
+        if (checksum is not null && good.Count > 0)
+        {
+            var lengthField = good.Select(b => b.Length).Distinct().Count() >= 2 ? FindLengthField(good, width, start) : null;
+            if (lengthField is { } lf)
+            {
+                header = lf.Header;
+                fields.Add(lf.Field);
+            }
+            else
+            {
+                fixedPayload = good.GroupBy(b => b.Length).OrderByDescending(g => g.Count()).First().Key - width - header;
+            }
+
+            fields.AddRange(FindCounterAndName(good, header, fields));
+        }
+
+        fields.Sort((a, b) => a.Offset.CompareTo(b.Offset));
+        int maximum = Math.Max(1, good.Count > 0 ? good.Max(b => b.Length) - width - header : 1);
+        var (copies, share) = Copies(checksum is null ? [.. tried.Select(b => b.First)] : chosen);
+        return new LayoutFinding(checksum?.Name, big, start, width, tried.Count, holding, header, fields, fixedPayload, maximum, copies, share, chosen);
+    }
+
+    private static (IBlockChecksum? Checksum, bool BigEndian, int Start, int Holding, List<byte[]> Chosen) FindChecksum(List<DraftBlock> blocks)
+    {
+        IBlockChecksum? best = null;
+        bool bestBig = true;
+        int bestStart = 0;
+        int bestHolding = 0;
+        List<byte[]> bestChosen = [.. blocks.Select(b => b.First)];
+        int needed = Math.Max(2, (blocks.Count + 1) / 2);
+        foreach (var checksum in Candidates.Value)
+        {
+            int w = checksum.Width;
+            for (int start = 0; start <= MaximumCoverageStart; start++)
+            {
+                int holdBig = 0;
+                int holdLittle = 0;
+                var chosenBig = new byte[blocks.Count][];
+                var chosenLittle = new byte[blocks.Count][];
+                for (int i = 0; i < blocks.Count; i++)
+                {
+                    // Give up on this reading once too few blocks are left to reach the share needed.
+                    if (Math.Max(holdBig, holdLittle) + (blocks.Count - i) < needed)
+                    {
+                        break;
+                    }
+
+                    foreach (var reading in blocks[i].Readings)
+                    {
+                        if (reading.Length < start + w + 1 || AllZero(reading.AsSpan(start, reading.Length - w - start)))
+                        {
+                            continue;
+                        }
+
+                        uint value = checksum.Compute(reading.AsSpan(start, reading.Length - w - start));
+                        var stored = reading.AsSpan(reading.Length - w);
+                        if (chosenBig[i] is null && value == Read(stored, true))
+                        {
+                            chosenBig[i] = reading;
+                            holdBig++;
+                        }
+
+                        if (chosenLittle[i] is null && w > 1 && value == Read(stored, false))
+                        {
+                            chosenLittle[i] = reading;
+                            holdLittle++;
+                        }
+                    }
+                }
+
+                foreach (var (holding, big, chosen) in new[] { (holdBig, true, chosenBig), (holdLittle, false, chosenLittle) })
+                {
+                    if (holding >= needed && holding > bestHolding)
+                    {
+                        best = checksum;
+                        bestBig = big;
+                        bestStart = start;
+                        bestHolding = holding;
+                        bestChosen = [.. chosen.Where(c => c is not null)];
+                    }
+                }
+            }
+        }
+
+        return (best, bestBig, bestStart, bestHolding, bestChosen);
+    }
+
+    private static (FoundField Field, int Header)? FindLengthField(List<byte[]> blocks, int checkBytes, int coverageStart)
+    {
+        const int maximumHeader = 24;
+        for (int header = Math.Max(1, coverageStart); header <= maximumHeader; header++)
+        {
+            if (coverageStart > 0 && header != coverageStart)
+            {
+                continue;
+            }
+
+            for (int offset = 0; offset < header; offset++)
+            {
+                foreach (int width in new[] { 1, 2 })
+                {
+                    if (offset + width > header)
+                    {
+                        continue;
+                    }
+
+                    foreach (bool big in width == 1 ? new[] { false } : [false, true])
+                    {
+                        int agree = 0;
+                        foreach (var block in blocks)
+                        {
+                            if (block.Length >= header + checkBytes && Read(block.AsSpan(offset, width), big) == (uint)(block.Length - header - checkBytes))
+                            {
+                                agree++;
+                            }
+                        }
+
+                        if (agree == blocks.Count)
+                        {
+                            return (new FoundField(offset, width, "payload-length", big, $"holds the payload's length in all {agree} blocks whose check holds, whose lengths differ"), header);
+                        }
+                    }
+                }
+            }
+        }
+
+        return null;
+    }
+
+    private static IEnumerable<FoundField> FindCounterAndName(List<byte[]> blocks, int header, List<FoundField> taken)
+    {
+        bool free(int offset, int bytes) => !taken.Any(f => offset < f.Offset + f.Bytes && f.Offset < offset + bytes);
+        var distinct = new List<byte[]>();
+        foreach (var block in blocks)
+        {
+            if (distinct.Count == 0 || !distinct[^1].AsSpan().SequenceEqual(block))
+            {
+                distinct.Add(block);
+            }
+        }
+
+        // A printable name: the longest run of header bytes that are printable text in every block.
+        int bestStart = -1;
+        int bestLength = 0;
+        for (int start = 0; start < header; start++)
+        {
+            int length = 0;
+            while (start + length < header && free(start + length, 1) && blocks.All(b => b[start + length] is >= 0x20 and < 0x7f))
+            {
+                length++;
+            }
+
+            if (length > bestLength)
+            {
+                (bestStart, bestLength) = (start, length);
+            }
+        }
+
+        var found = new List<FoundField>();
+        if (bestLength >= 3)
+        {
+            found.Add(new FoundField(bestStart, bestLength, "file-name", false, $"{bestLength} bytes of printable text in every block"));
+        }
+
+        // A block counter: a field that goes up by one from each block to the next in most steps.
+        if (distinct.Count >= 3)
+        {
+            FoundField? counter = null;
+            double bestShare = 0.6;
+            for (int offset = 0; offset < header; offset++)
+            {
+                foreach (int width in new[] { 2, 1 })
+                {
+                    if (offset + width > header || !free(offset, width) || found.Any(f => offset < f.Offset + f.Bytes && f.Offset < offset + width))
+                    {
+                        continue;
+                    }
+
+                    foreach (bool big in width == 1 ? new[] { false } : [false, true])
+                    {
+                        int up = 0;
+                        for (int i = 1; i < distinct.Count; i++)
+                        {
+                            if (Read(distinct[i].AsSpan(offset, width), big) == Read(distinct[i - 1].AsSpan(offset, width), big) + 1)
+                            {
+                                up++;
+                            }
+                        }
+
+                        double share = (double)up / (distinct.Count - 1);
+                        if (share > bestShare + 1e-9)
+                        {
+                            bestShare = share;
+                            counter = new FoundField(offset, width, "block-number", big, $"goes up by one from block to block in {up} of {distinct.Count - 1} steps");
+                        }
+                    }
+                }
+            }
+
+            if (counter is not null)
+            {
+                found.Add(counter);
+            }
+        }
+
+        return found;
+    }
+
+    private static (int Copies, double Share) Copies(IReadOnlyList<byte[]> blocks)
+    {
+        if (blocks.Count < 2)
+        {
+            return (1, 0);
+        }
+
+        var runs = new List<int>();
+        int run = 1;
+        for (int i = 1; i <= blocks.Count; i++)
+        {
+            if (i < blocks.Count && blocks[i].AsSpan().SequenceEqual(blocks[i - 1]))
+            {
+                run++;
+                continue;
+            }
+
+            runs.Add(run);
+            run = 1;
+        }
+
+        int copies = runs.GroupBy(r => r).OrderByDescending(g => g.Count() * g.Key).ThenBy(g => g.Key).First().Key;
+        copies = Math.Clamp(copies, 1, 8);
+        double share = (double)runs.Where(r => r == copies).Sum() / blocks.Count;
+        return (copies, share);
+    }
+
+    private static bool AllZero(ReadOnlySpan<byte> bytes) => bytes.IndexOfAnyExcept((byte)0) < 0;
+
+    internal static uint Read(ReadOnlySpan<byte> bytes, bool bigEndian)
+    {
+        uint value = 0;
+        for (int i = 0; i < bytes.Length; i++)
+        {
+            int index = bigEndian ? i : bytes.Length - 1 - i;
+            value = (value << 8) | bytes[index];
+        }
+
+        return value;
+    }
+}

@@ -1,0 +1,213 @@
+using System.Text.Json.Nodes;
+using TapeVault.Core.Detection;
+using TapeVault.Core.Formats;
+using static TapeVault.Core.Drafting.CommonSections;
+
+namespace TapeVault.Core.Drafting;
+
+/// <summary>
+/// Pulse-width formats: bits are whole cycles of two or more lengths. In the survey each cycle is two equal half
+/// cycles, so every group comes in even runs, and the groups' bit times (a group's run step times its length) differ,
+/// unlike FSK's. The draft reads cycles through a setting that counts one edge a cycle: the groups are the pulse
+/// classes, the class of the long runs is the lead-in, and the symbols after each lead-in go to the sync search.
+/// </summary>
+public sealed class PulseWidthDrafter : IFamilyDrafter
+{
+    /// <summary>A run of one class this long (in cycles) may be a lead-in; data rarely holds so many equal bits in a row.</summary>
+    public const int LeastLeadInCycles = 48;
+
+    private static readonly string[][] ClassNames =
+    [
+        [],
+        ["single"],
+        ["short", "long"],
+        ["short", "medium", "long"],
+        ["short", "medium", "long", "extra-long"],
+    ];
+
+    /// <summary>
+    /// A class may be rare: a sync pulse comes once a block, one cycle in a thousand or so. Groups this small count
+    /// here, where the survey (which judges structure) leaves them out.
+    /// </summary>
+    public const double RareClassShare = 0.0005;
+
+    public string Family => "pulse-width";
+
+    public FamilyScore Score(StretchSurvey survey)
+    {
+        ArgumentNullException.ThrowIfNull(survey);
+        var runs = survey.Runs;
+        var top = survey.Dominant.Take(3).Where(i => survey.Clusters[i].Share >= 0.05).ToList();
+        if (top.Count < 2)
+        {
+            return new FamilyScore(Family, 0, "fewer than two groups of interval lengths");
+        }
+
+        int even = top.Count(i => runs[i].Granularity == 2 && runs[i].OddShare < 0.25);
+        bool sameBitTime = top.Count >= 2 && runs[top[0]].Granularity * survey.Clusters[top[0]].Seconds is var a && runs[top[1]].Granularity * survey.Clusters[top[1]].Seconds is var b && Math.Abs(Math.Log(a / b)) < 0.12;
+        double score = even == top.Count && !sameBitTime ? 0.8 * survey.GroupedShare : 0.3 * survey.GroupedShare;
+        return new FamilyScore(Family, score, $"{even} of the {top.Count} main groups come most often in runs of one whole cycle (two half cycles){(sameBitTime ? ", but the two main groups make one bit time, as FSK's tones do" : string.Empty)}");
+    }
+
+    public FamilyProposal? Draft(StretchSurvey survey, CancellationToken cancellation)
+    {
+        ArgumentNullException.ThrowIfNull(survey);
+        var stretch = survey.Stretch;
+
+        // Whole cycles: the setting (one edge a cycle) whose intervals group best.
+        (DetectorSetting Setting, double[] Cycles, List<IntervalCluster> Clusters, int[] Symbols, double Share)? best = null;
+        foreach (var setting in DetectorBanks.Default.Where(s => s.Edges != EdgeSelection.Both))
+        {
+            var cycles = IntervalClusters.Intervals(stretch.Edges(setting, cancellation), stretch.SampleRate);
+            var clusters = Separate(IntervalClusters.Find(cycles, RareClassShare));
+            if (clusters.Count < 2)
+            {
+                continue;
+            }
+
+            var symbols = IntervalClusters.Classify(cycles, clusters);
+            double share = (double)symbols.Count(s => s >= 0) / Math.Max(1, symbols.Length);
+            if (best is null || share > best.Value.Share)
+            {
+                best = (setting, cycles, clusters, symbols, share);
+            }
+        }
+
+        if (best is not { } chosen)
+        {
+            return null;
+        }
+
+        var classesFound = chosen.Clusters;
+        var sym = chosen.Symbols;
+
+        // The lead-in: the class of the long runs.
+        var longRuns = Runs(sym).Where(r => r.Class >= 0 && r.Length >= LeastLeadInCycles).ToList();
+        if (longRuns.Count == 0)
+        {
+            return null;
+        }
+
+        int leadIn = longRuns.GroupBy(r => r.Class).OrderByDescending(g => g.Sum(r => r.Length)).First().Key;
+        var leadRuns = longRuns.Where(r => r.Class == leadIn).ToList();
+        double median = leadRuns.Select(r => (double)r.Length).Order().ElementAt(leadRuns.Count / 2);
+        int threshold = Math.Max(LeastLeadInCycles, (int)(0.25 * median));
+        leadRuns = [.. leadRuns.Where(r => r.Length >= threshold)];
+
+        // Each block: from the end of a lead-in to the next lead-in or a loss of signal (four unclassified cycles).
+        var blocks = new List<int[]>();
+        for (int k = 0; k < leadRuns.Count; k++)
+        {
+            int from = leadRuns[k].Start + leadRuns[k].Length;
+            int limit = k + 1 < leadRuns.Count ? leadRuns[k + 1].Start : sym.Length;
+            int to = from;
+            int invalid = 0;
+            while (to < limit && invalid < 4)
+            {
+                invalid = sym[to] < 0 ? invalid + 1 : 0;
+                to++;
+            }
+
+            to -= invalid;
+            if (to - from >= 24)
+            {
+                blocks.Add(sym[from..to]);
+            }
+        }
+
+        if (blocks.Count == 0)
+        {
+            return null;
+        }
+
+        // The bit classes: the two commonest inside blocks.
+        var counts = new long[classesFound.Count];
+        foreach (var block in blocks)
+        {
+            foreach (int s in block.Skip(4))
+            {
+                if (s >= 0)
+                {
+                    counts[s]++;
+                }
+            }
+        }
+
+        var bitClasses = Enumerable.Range(0, counts.Length).OrderByDescending(i => counts[i]).Take(2).Order().ToArray();
+        int zeroFirst = bitClasses.Contains(leadIn) ? leadIn : bitClasses[0];
+        int oneFirst = bitClasses[0] == zeroFirst ? bitClasses[1] : bitClasses[0];
+        var mappings = new[] { new BitMapping("lead-in class is 0", zeroFirst, oneFirst), new BitMapping("lead-in class is 1", oneFirst, zeroFirst) };
+        var reading = SyncFormatSearch.Search(blocks, mappings, leadIn, cancellation);
+        if (reading is null)
+        {
+            return null;
+        }
+
+        var names = classesFound.Count < ClassNames.Length ? ClassNames[classesFound.Count] : [.. Enumerable.Range(1, classesFound.Count).Select(i => $"class-{i}")];
+        var proposal = new FamilyProposal();
+        bool proven = reading.Layout.HasChecksum;
+        int shortestLeadIn = leadRuns.Min(r => r.Length);
+        int minimum = Math.Clamp((int)(0.25 * shortestLeadIn), 8, MostLeadIn);
+        var sync = reading.Sync.Select(s => names[s]).ToList();
+        proposal.Sections["pulseWidth"] = new JsonObject
+        {
+            ["classes"] = new JsonArray([.. classesFound.Select((c, i) => (JsonNode)new JsonObject { ["name"] = names[i], ["microseconds"] = Math.Round(c.Seconds * 1e6, 1) })]),
+            ["zero"] = new JsonArray(JsonValue.Create(names[reading.Mapping.ZeroSymbol])),
+            ["one"] = new JsonArray(JsonValue.Create(names[reading.Mapping.OneSymbol])),
+            ["leadIn"] = new JsonObject { ["class"] = names[leadIn], ["minimumCount"] = minimum },
+            ["sync"] = new JsonArray([.. sync.Select(s => (JsonNode)JsonValue.Create(s)!)]),
+        };
+        proposal.Measured("pulseWidth.classes", string.Join(", ", classesFound.Select((c, i) => $"{names[i]} {Us(c.Seconds)} µs")), 0.9,
+            $"groups of cycle lengths through setting {chosen.Setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * chosen.Share, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)");
+        proposal.Measured("pulseWidth.leadIn.class", names[leadIn], 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(r => r.Length)} {names[leadIn]} cycles");
+        proposal.Measured("pulseWidth.leadIn.minimumCount", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortestLeadIn} cycles)");
+        string bitEvidence = proven ? "the check value holds with this mapping" : $"{names[bitClasses[0]]} and {names[bitClasses[1]]} are the commonest classes inside blocks; which is 0 is not proven (drafted: {reading.Mapping.Name})";
+        proposal.Measured("pulseWidth.zero", names[reading.Mapping.ZeroSymbol], proven ? 0.9 : 0.5, bitEvidence);
+        proposal.Measured("pulseWidth.one", names[reading.Mapping.OneSymbol], proven ? 0.9 : 0.5, bitEvidence);
+        proposal.Measured("pulseWidth.sync", string.Join(" ", sync), proven ? 0.9 : 0.4,
+            $"{blocks.Count} blocks begin alike for {reading.CommonPrefix} cycles after their lead-in; " + (proven ? "the check value holds when bytes start after this sync" : "the shortest sync whose framing holds is drafted"));
+        Framing(proposal, reading.Framing, proven, reading.FramingShare, proven && !reading.OrderAmbiguous, OrderEvidence(reading));
+        Layout(proposal, reading.Layout);
+        AmbiguousOrder(proposal, reading);
+        proposal.Notes.Add($"Read through detector setting {chosen.Setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync, mapping and framing held.");
+        return proposal;
+    }
+
+    /// <summary>Neighbouring classes closer than the profile language allows (25 %) are one class: the larger keeps its place.</summary>
+    private static List<IntervalCluster> Separate(List<IntervalCluster> clusters)
+    {
+        var result = new List<IntervalCluster>();
+        foreach (var cluster in clusters)
+        {
+            if (result.Count > 0 && cluster.Seconds < result[^1].Seconds * 1.3)
+            {
+                if (cluster.Count > result[^1].Count)
+                {
+                    result[^1] = cluster;
+                }
+
+                continue;
+            }
+
+            result.Add(cluster);
+        }
+
+        return result;
+    }
+
+    private static IEnumerable<(int Class, int Start, int Length)> Runs(int[] symbols)
+    {
+        int i = 0;
+        while (i < symbols.Length)
+        {
+            int j = i + 1;
+            while (j < symbols.Length && symbols[j] == symbols[i])
+            {
+                j++;
+            }
+
+            yield return (symbols[i], i, j - i);
+            i = j;
+        }
+    }
+}

@@ -1,0 +1,103 @@
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Drafting;
+using TapeVault.Core.Formats;
+
+namespace TapeVault.Core.Synthesis;
+
+/// <summary>The outcome of one draft trial: what was written, what the draft guessed, and what each profile read back.</summary>
+public sealed record DraftTrialResult(
+    int Seed,
+    string Family,
+    string DraftedFamily,
+    int Written,
+    int RecoveredByConfirmedDraft,
+    int RecoveredByTruth,
+    IReadOnlyList<string> Guessed,
+    int Fields,
+    double Confidence,
+    string Damage,
+    string? Failure,
+    string TruthJson,
+    string? DraftJson)
+{
+    public double DraftShare => Written == 0 ? 0 : (double)RecoveredByConfirmedDraft / Written;
+
+    public double TruthShare => Written == 0 ? 0 : (double)RecoveredByTruth / Written;
+}
+
+/// <summary>
+/// One measurement of the drafter: a random profile of a family (<see cref="RandomFormats"/>), files written through
+/// the channel model with damage drawn from wide ranges, optionally damaged further by an outside tool, a draft from
+/// the capture, the draft's guesses confirmed from the truth (<see cref="GuessConfirmation"/>), and both the
+/// confirmed draft and the truth decoding the whole capture.
+/// </summary>
+public static class DraftTrials
+{
+    public static DraftTrialResult Run(string family, int seed, string folder, Func<string, Random, (string Path, string Description)>? outsideDamage = null)
+    {
+        ArgumentNullException.ThrowIfNull(folder);
+        var rng = new Random(seed);
+        string truthJson = RandomFormats.Draw(family, rng);
+        var truth = ProfileLoader.Parse(truthJson, "truth");
+        var damage = Damage(rng);
+        // A stream is one block per file: several short files give it blocks to count.
+        var files = truth.Layout.IsStream
+            ? RandomFormats.Files(rng, 6, 120)
+            : RandomFormats.Files(rng, 2, truth.Family == FormatFamily.Fsk && truth.Fsk!.Baud < 600 ? 300 : 700);
+        string path = Path.Combine(folder, $"draft-{family}-{seed}.wav");
+        var capture = CaptureSynthesizer.Write(path, truth, files, damage);
+        string described = RandomDamage.Describe(damage);
+        if (outsideDamage is not null)
+        {
+            var (damaged, chain) = outsideDamage(path, rng);
+            path = damaged;
+            described += "; then " + chain;
+        }
+
+        int truthRead = RandomFormats.Recovered(CaptureDecoder.Decode(path, truth), truth, capture.Blocks);
+        ProfileDraft draft;
+        try
+        {
+            draft = ProfileDrafter.Draft(path);
+        }
+        catch (ProfileDraftException e)
+        {
+            return new DraftTrialResult(seed, family, "none", capture.Blocks.Count, 0, truthRead, [], 0, 0, described, e.Message, truthJson, null);
+        }
+
+        string drafted = draft.Findings.First(f => f.Path == "family").Value;
+        string confirmed = GuessConfirmation.Confirm(draft.Json, truthJson, draft.GuessedPaths);
+        int read;
+        string? failure = null;
+        try
+        {
+            read = RandomFormats.Recovered(CaptureDecoder.Decode(path, ProfileLoader.Parse(confirmed, "confirmed")), truth, capture.Blocks);
+        }
+        catch (ProfileException e)
+        {
+            read = 0;
+            failure = "the confirmed draft does not load: " + e.Message;
+        }
+
+        return new DraftTrialResult(seed, family, drafted, capture.Blocks.Count, read, truthRead, draft.GuessedPaths, draft.Findings.Count, draft.Confidence, described, failure, truthJson, draft.Json + "\n" + draft.SideListJson());
+    }
+
+    /// <summary>
+    /// Damage from wide ranges (speed ±7 %, wow to 0.4 %, flutter to 0.2 %, SNR 18–45 dB, up to 10 dropouts a minute,
+    /// azimuth, band limit, hum, print-through, clipping, inversion, either read chain, 22.05–96 kHz): the random
+    /// damage of <see cref="RandomDamage"/> with its harshest corners (SNR under 18 dB, a dropout every second) left
+    /// to the trust measurements, since a draft is made from a curator's better captures.
+    /// </summary>
+    public static ChannelDamage Damage(Random rng)
+    {
+        ArgumentNullException.ThrowIfNull(rng);
+        var d = RandomDamage.Draw(rng);
+        return d with
+        {
+            SnrDb = Math.Max(18, d.SnrDb ?? 45),
+            RandomDropoutsPerMinute = d.RandomDropoutsPerMinute / 6,
+            WowPercent = Math.Min(0.4, d.WowPercent),
+            FlutterPercent = Math.Min(0.2, d.FlutterPercent),
+        };
+    }
+}
