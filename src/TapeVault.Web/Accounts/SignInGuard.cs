@@ -61,6 +61,7 @@ public sealed class SignInGuard : IDisposable
 {
     public const string DeviceCookie = "tapevault.device";
     private const int MaxTracked = 100_000;
+    private const int MaxNameLength = 256;
 
     private readonly SignInThrottleOptions options;
     private readonly TimeProvider time;
@@ -92,7 +93,10 @@ public sealed class SignInGuard : IDisposable
         var services = http.RequestServices;
         var users = services.GetRequiredService<UserManager<IdentityUser>>();
         var signIn = services.GetRequiredService<SignInManager<IdentityUser>>();
-        string name = users.NormalizeName((userName ?? string.Empty).Trim()) ?? string.Empty;
+        string typed = users.NormalizeName((userName ?? string.Empty).Trim()) ?? string.Empty;
+
+        // Counted under at most 256 characters (no account name is longer), so that long names cost no memory.
+        string name = typed.Length > MaxNameLength ? typed[..MaxNameLength] : typed;
         var key = (name, RateLimits.ClientKey(http));
         var now = time.GetUtcNow();
 
@@ -106,7 +110,7 @@ public sealed class SignInGuard : IDisposable
             return (SignInOutcome.Throttled, TimeSpan.FromMinutes(5));
         }
 
-        var user = name.Length == 0 ? null : await users.FindByNameAsync(name).ConfigureAwait(false);
+        var user = typed.Length is 0 or > MaxNameLength ? null : await users.FindByNameAsync(typed).ConfigureAwait(false);
         bool passwordRight;
         if (user is null)
         {
