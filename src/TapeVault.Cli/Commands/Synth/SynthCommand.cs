@@ -41,7 +41,7 @@ public sealed class SynthCommand : CliCommand
         }
     }
 
-    public override string Usage => "synth OUT.wav --profile ID [--text TEXT | --file PATH] [--name NAME] [--seed N] [--rate HZ] [--snr DB] [--speed FACTOR] [--wow PERCENT] [--flutter PERCENT] [--pw50 US] [--azimuth DEGREES] [--dropouts PER_MINUTE] [--hum LEVEL] [--level PEAK] [--head] [--invert] [--encoding pcm8|pcm16|pcm24|float32] [--profiles DIR]";
+    public override string Usage => "synth (OUT.wav | --out OUT.wav) --profile ID [--text TEXT | --file PATH] [--name NAME] [--seed N] [--rate HZ] [--snr DB] [--speed FACTOR] [--wow PERCENT] [--flutter PERCENT] [--pw50 US] [--azimuth DEGREES] [--dropouts PER_MINUTE] [--hum LEVEL] [--level PEAK] [--head] [--invert] [--encoding pcm8|pcm16|pcm24|float32] [--profiles DIR]";
 
     protected override int Run(Invocation run)
     {
