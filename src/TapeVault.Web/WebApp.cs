@@ -114,6 +114,7 @@ public static class WebApp
                 };
             }
         });
+        builder.Services.AddExceptionHandler<DiskFullHandler>();
         builder.Services.AddSingleton<JobRunner>();
         builder.Services.AddScoped<ArchiveQueries>();
         builder.Services.AddHostedService<ArchiveStartup>();
