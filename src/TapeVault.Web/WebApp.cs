@@ -115,6 +115,7 @@ public static class WebApp
             }
         });
         builder.Services.AddExceptionHandler<DiskFullHandler>();
+        builder.Services.AddTapeVaultRateLimits(builder.Configuration.GetSection(RateLimitOptions.Section).Get<RateLimitOptions>() ?? new RateLimitOptions());
         builder.Services.AddSingleton<JobRunner>();
         builder.Services.AddScoped<ArchiveQueries>();
         builder.Services.AddHostedService<ArchiveStartup>();
@@ -130,6 +131,7 @@ public static class WebApp
         app.UseRouting();
         app.UseAuthentication();
         app.UseAuthorization();
+        app.UseRateLimiter();
         app.UseAntiforgery();
         app.MapOpenApi().AllowAnonymous();
         app.MapRazorPages();

@@ -106,7 +106,31 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
             $"Capture {capture.Id} with profile {profile.Id} and {result.Settings.Count} detector setting(s), code {result.CodeVersion}: {run.Outcome}", capture.ItemId);
         await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
         await transaction.CommitAsync(CancellationToken.None).ConfigureAwait(false);
-        return new JobOutcome(run.Id, $"Decode run {run.Id}: {run.Outcome}");
+
+        // What the capture page plots over the whole capture is made here, once, not by whoever opens the page: the
+        // pulse-length survey of every setting (one pass of the bank) and the waveform overview. They are a cache:
+        // the run is stored whatever happens to them, and the page makes any that are missing.
+        await progress(0.99, "Surveying pulse lengths and the waveform for the plots.").ConfigureAwait(false);
+        string plots;
+        try
+        {
+            int surveys = await Task.Factory.StartNew(
+                () => WholeCaptureSurveys.MakeForRun(store, path, capture.Sha256, profile, result.Settings, run.Candidates, cancellation),
+                cancellation,
+                TaskCreationOptions.LongRunning,
+                TaskScheduler.Default).ConfigureAwait(false);
+            long frames = (long)Math.Round(capture.DurationSeconds * capture.SampleRate);
+            await CaptureOverviews.GetAsync(store, capture.Sha256, (int)Math.Max(1, Math.Min(CaptureOverviews.DefaultColumns, frames)), ChannelChoice.Mix, cancellation).ConfigureAwait(false);
+            plots = $" Plots made: {surveys} pulse-length survey(s) and the overview.";
+        }
+        catch (Exception e) when (e is IOException or ArchiveConflictException or CaptureFormatException)
+        {
+            plots = StorageFaults.IsDiskFull(e)
+                ? " The plots were not made ahead: the archive's disk is full; the capture page makes them when asked."
+                : " The plots were not made ahead; the capture page makes them when asked.";
+        }
+
+        return new JobOutcome(run.Id, $"Decode run {run.Id}: {run.Outcome}{plots}");
     }
 
 }
