@@ -94,6 +94,10 @@ public static class WebApp
             pages.Conventions.AllowAnonymousToPage("/Account/Denied");
             pages.Conventions.AllowAnonymousToPage("/Error");
             pages.Conventions.AllowAnonymousToPage("/Handling");
+
+            // The capture page draws a zoom and a histogram from the original on each view: the same limit as the plot API.
+            pages.Conventions.AddPageApplicationModelConvention("/Captures/Detail", page =>
+                page.EndpointMetadata.Add(new Microsoft.AspNetCore.RateLimiting.EnableRateLimitingAttribute(RateLimits.Plots)));
         }).AddMvcOptions(mvc => mvc.Filters.Add(new CuratorWritesFilter()));
         builder.Services.AddOpenApi();
         builder.Services.AddProblemDetails(problems => problems.CustomizeProblemDetails = context =>

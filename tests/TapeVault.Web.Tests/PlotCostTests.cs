@@ -84,6 +84,10 @@ public sealed class PlotCostTests
         string title = await ApiClient.ProblemTitleAsync(refused);
         Assert.StartsWith("Too many plot requests from this account (at most 3 at once and 1 a minute); try again in ", title, StringComparison.Ordinal);
 
+        // The capture page, which draws a zoom and a histogram on the server, counts against the same allowance.
+        using var page = await viewer.Http.GetAsync($"/captures/{uploaded.Capture.Id}");
+        Assert.Equal(HttpStatusCode.TooManyRequests, page.StatusCode);
+
         // Another account has its own allowance; reads that compute nothing from the original are not limited.
         using var other = await curator.Http.GetAsync(zoom);
         await ApiClient.EnsureAsync(other, HttpStatusCode.OK);
