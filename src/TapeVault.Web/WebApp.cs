@@ -71,7 +71,7 @@ public static class WebApp
         builder.Services.Configure<SecurityStampValidatorOptions>(stamp => stamp.ValidationInterval = TimeSpan.Zero);
         builder.Services.TryAddSingleton(TimeProvider.System);
         builder.Services.AddSingleton<SignInGuard>();
-        builder.Services.AddTapeVaultRateLimits(web.SignIn);
+        builder.Services.AddTapeVaultRateLimits(web.SignIn, builder.Configuration.GetSection(RateLimitOptions.Section).Get<RateLimitOptions>() ?? new RateLimitOptions());
         builder.Services.ConfigureApplicationCookie(cookie =>
         {
             cookie.LoginPath = "/signin";
@@ -112,6 +112,10 @@ public static class WebApp
             pages.Conventions.AllowAnonymousToPage("/Account/Denied");
             pages.Conventions.AllowAnonymousToPage("/Error");
             pages.Conventions.AllowAnonymousToPage("/Handling");
+
+            // The capture page draws a zoom and a histogram from the original on each view: the same limit as the plot API.
+            pages.Conventions.AddPageApplicationModelConvention("/Captures/Detail", page =>
+                page.EndpointMetadata.Add(new Microsoft.AspNetCore.RateLimiting.EnableRateLimitingAttribute(RateLimits.Plots)));
         }).AddMvcOptions(mvc => mvc.Filters.Add(new CuratorWritesFilter()));
         builder.Services.AddOpenApi();
         builder.Services.AddProblemDetails(problems => problems.CustomizeProblemDetails = context =>
@@ -132,6 +136,7 @@ public static class WebApp
                 };
             }
         });
+        builder.Services.AddExceptionHandler<DiskFullHandler>();
         builder.Services.AddSingleton<JobRunner>();
         builder.Services.AddScoped<ArchiveQueries>();
         builder.Services.AddHostedService<ArchiveStartup>();
@@ -145,9 +150,12 @@ public static class WebApp
         app.Use(SecurityHeaders.Add);
         app.UseStaticFiles();
         app.UseRouting();
-        app.UseRateLimiter();
         app.UseAuthentication();
         app.Use(PasswordChangeGate.Check);
+
+        // After authentication, so that the plot limit can go by account; before authorization, so that a refused
+        // sign-in never reaches the account checks.
+        app.UseRateLimiter();
         app.UseAuthorization();
         app.UseAntiforgery();
         app.MapOpenApi().AllowAnonymous();

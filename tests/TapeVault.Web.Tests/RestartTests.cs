@@ -63,7 +63,8 @@ public sealed class RestartTests
 
         await using var second = new ArchiveAppFactory(folder);
         using var again = await second.SignedInAsync(ArchiveAppFactory.CuratorName);
-        var finished = await again.WaitForJobAsync(jobId, TimeSpan.FromSeconds(45));
+        // The job decodes the thirty minutes again and surveys them for the plots (every setting, one more pass).
+        var finished = await again.WaitForJobAsync(jobId, TimeSpan.FromSeconds(120));
         Assert.True(finished.State == "done" || (finished.State == "failed" && !string.IsNullOrWhiteSpace(finished.Error)), $"The job ended {finished.State} without a reason.");
         Assert.Equal(2, finished.Attempts);
         await using (var db = ArchiveDatabase.Open(folder.DatabasePath))

@@ -96,17 +96,43 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
                 $"The stored original of capture {capture.Id} no longer matches its SHA-256 (read {result.Capture.Sha256[..12]}…, recorded {capture.Sha256[..12]}…); nothing was decoded. Run a fixity audit.");
         }
 
+        var run = RunStore.ToRun(capture.Id, result, started, DateTimeOffset.UtcNow);
+
+        // What the capture page plots over the whole capture is made here, once, not by whoever opens the page: the
+        // pulse-length survey of every setting (one pass of the bank) and the waveform overview. They are a cache:
+        // the run is stored whatever happens to them, and the page makes any that are missing. They are made before the
+        // run is stored, so a stop while they are being made repeats the job without leaving a second run behind.
+        await progress(0.975, "Surveying pulse lengths and the waveform for the plots.").ConfigureAwait(false);
+        string plots;
+        try
+        {
+            int surveys = await Task.Factory.StartNew(
+                () => WholeCaptureSurveys.MakeForRun(store, path, capture.Sha256, profile, result.Settings, run.Candidates, cancellation),
+                cancellation,
+                TaskCreationOptions.LongRunning,
+                TaskScheduler.Default).ConfigureAwait(false);
+            long frames = (long)Math.Round(capture.DurationSeconds * capture.SampleRate);
+            await CaptureOverviews.GetAsync(store, capture.Sha256, (int)Math.Max(1, Math.Min(CaptureOverviews.DefaultColumns, frames)), ChannelChoice.Mix, cancellation).ConfigureAwait(false);
+            plots = $" Plots made: {surveys} pulse-length survey(s) and the overview.";
+        }
+        catch (Exception e) when (e is IOException or ArchiveConflictException or CaptureFormatException)
+        {
+            plots = StorageFaults.IsDiskFull(e)
+                ? " The plots were not made ahead: the archive's disk is full; the capture page makes them when asked."
+                : " The plots were not made ahead; the capture page makes them when asked.";
+        }
+
         await progress(0.98, "Storing the blocks.").ConfigureAwait(false);
         await using var write = await contexts.CreateDbContextAsync(CancellationToken.None).ConfigureAwait(false);
         await using var transaction = await write.Database.BeginTransactionAsync(CancellationToken.None).ConfigureAwait(false);
-        var run = RunStore.ToRun(capture.Id, result, started, DateTimeOffset.UtcNow);
         write.Runs.Add(run);
         await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
         EventLog.Add(write, EventTypes.Decode, job.CreatedBy, "run", run.Id.ToString(), "success",
             $"Capture {capture.Id} with profile {profile.Id} and {result.Settings.Count} detector setting(s), code {result.CodeVersion}: {run.Outcome}", capture.ItemId);
         await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
         await transaction.CommitAsync(CancellationToken.None).ConfigureAwait(false);
-        return new JobOutcome(run.Id, $"Decode run {run.Id}: {run.Outcome}");
+
+        return new JobOutcome(run.Id, $"Decode run {run.Id}: {run.Outcome}{plots}");
     }
 
 }

@@ -112,7 +112,10 @@ public sealed partial class JobRunner(JobQueue queue, IEnumerable<IJobHandler> h
             LogFailed(logger, e, job.Id);
             try
             {
-                await queue.FinishAsync(job.Id, JobState.Failed, "Failed.", $"The job stopped with an error: {e.Message}").ConfigureAwait(false);
+                string reason = Storage.StorageFaults.IsDiskFull(e)
+                    ? Storage.StorageFaults.DiskFullSentence($"what the {job.Kind} job made")
+                    : $"The job stopped with an error: {e.Message}";
+                await queue.FinishAsync(job.Id, JobState.Failed, "Failed.", reason).ConfigureAwait(false);
             }
             catch (Exception finishing) when (finishing is System.Data.Common.DbException or IOException)
             {

@@ -23,6 +23,14 @@ public sealed class ContentStore
 
     public string TempFolder { get; }
 
+    /// <summary>
+    /// Opens a new temporary file for writing: every byte the store takes in passes through it. Replaceable so that a
+    /// test can hand the store a stream on a full device (Linux's /dev/full answers every write with ENOSPC) and see
+    /// the real code path meet a full disk.
+    /// </summary>
+    public Func<string, Stream> OpenTemporary { get; set; } =
+        path => new FileStream(path, FileMode.CreateNew, FileAccess.Write, FileShare.None, BufferBytes, FileOptions.Asynchronous);
+
     public static bool IsHash(string? sha256) =>
         sha256 is { Length: 64 } && sha256.All(c => c is (>= '0' and <= '9') or (>= 'a' and <= 'f'));
 
@@ -57,7 +65,7 @@ public sealed class ContentStore
             using var hash = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
             long size = alreadyRead.Length;
             var buffer = new byte[BufferBytes];
-            await using (var file = new FileStream(tempPath, FileMode.CreateNew, FileAccess.Write, FileShare.None, BufferBytes, FileOptions.Asynchronous))
+            await using (var file = OpenTemporary(tempPath))
             {
                 if (size > maxBytes)
                 {
@@ -79,8 +87,7 @@ public sealed class ContentStore
                     await file.WriteAsync(buffer.AsMemory(0, read), cancellation).ConfigureAwait(false);
                 }
 
-                await file.FlushAsync(cancellation).ConfigureAwait(false);
-                file.Flush(flushToDisk: true);
+                await FlushToDiskAsync(file, cancellation).ConfigureAwait(false);
             }
 
             staged.Complete(Convert.ToHexStringLower(hash.GetHashAndReset()), size);
@@ -100,11 +107,10 @@ public sealed class ContentStore
         var tempPath = Path.Combine(TempFolder, $"{Guid.NewGuid():N}.part");
         try
         {
-            await using (var file = new FileStream(tempPath, FileMode.CreateNew, FileAccess.Write, FileShare.None, BufferBytes, FileOptions.Asynchronous))
+            await using (var file = OpenTemporary(tempPath))
             {
                 await write(file).ConfigureAwait(false);
-                await file.FlushAsync(cancellation).ConfigureAwait(false);
-                file.Flush(flushToDisk: true);
+                await FlushToDiskAsync(file, cancellation).ConfigureAwait(false);
             }
 
             await using var read = File.OpenRead(tempPath);
@@ -116,6 +122,15 @@ public sealed class ContentStore
         {
             File.Delete(tempPath);
             throw;
+        }
+    }
+
+    private static async Task FlushToDiskAsync(Stream file, CancellationToken cancellation)
+    {
+        await file.FlushAsync(cancellation).ConfigureAwait(false);
+        if (file is FileStream stream)
+        {
+            stream.Flush(flushToDisk: true);
         }
     }
 

@@ -29,4 +29,45 @@ public static class PulseSurvey
 
         return histogram.ToResult();
     }
+
+    /// <summary>
+    /// Every setting's survey in one streaming pass: the bank runs all settings over each chunk (eight to a vector), so
+    /// the capture is read once whatever their number. <paramref name="histograms"/>[i] receives setting i's intervals.
+    /// </summary>
+    public static IReadOnlyList<PulseHistogramResult> MeasureAll(CaptureReader reader, IReadOnlyList<DetectorSetting> settings, IReadOnlyList<PulseHistogram> histograms, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(reader);
+        ArgumentNullException.ThrowIfNull(settings);
+        ArgumentNullException.ThrowIfNull(histograms);
+        if (settings.Count != histograms.Count || settings.Count == 0)
+        {
+            throw new ArgumentException("One histogram for each setting, and at least one setting.", nameof(histograms));
+        }
+
+        var bank = new DetectorBank(settings, reader.SampleRate);
+        var edges = new EdgeBuffer[settings.Count];
+        for (int i = 0; i < edges.Length; i++)
+        {
+            edges[i] = new EdgeBuffer();
+        }
+
+        var chunk = new float[ChunkFrames];
+        int read;
+        while ((read = reader.Read(chunk)) > 0)
+        {
+            cancellation.ThrowIfCancellationRequested();
+            foreach (var buffer in edges)
+            {
+                buffer.Clear();
+            }
+
+            bank.Process(chunk.AsSpan(0, read), edges);
+            for (int i = 0; i < edges.Length; i++)
+            {
+                histograms[i].AddIntervals(edges[i].Items, reader.SampleRate);
+            }
+        }
+
+        return [.. histograms.Select(h => h.ToResult())];
+    }
 }

@@ -44,7 +44,7 @@ public sealed record HistogramBinView(double FromSeconds, double ToSeconds, long
 /// <summary>A marked duration: kind "nominal" (what the format writes), "boundary" (where a decision changes) or "limit".</summary>
 public sealed record PulseMarkView(string Label, double Seconds, string Kind);
 
-/// <summary>How long the intervals between the chosen setting's edges were, over a block or the whole capture.</summary>
+/// <summary>How long the intervals between the chosen setting's edges were, over a block or the whole capture (Cached: made by the decode job or an earlier request).</summary>
 public sealed record HistogramView(
     PlotChoice Choice,
     string Scope,
@@ -55,7 +55,8 @@ public sealed record HistogramView(
     IReadOnlyList<HistogramBinView> Bins,
     long Below,
     long Above,
-    IReadOnlyList<PulseMarkView> Marks);
+    IReadOnlyList<PulseMarkView> Marks,
+    bool Cached = false);
 
 /// <summary>The playback speed a block was read at (1 = nominal; above 1 the tape ran fast), where the block lies in the capture.</summary>
 public sealed record SpeedPointView(int Position, string Identity, double StartSeconds, double EndSeconds, double Speed, string Status);

@@ -20,11 +20,11 @@ namespace TapeVault.Web.Api;
 /// </summary>
 public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, ProfileCatalog profiles)
 {
-    public const int DefaultColumns = 1000;
+    public const int DefaultColumns = CaptureOverviews.DefaultColumns;
     public const int MaximumColumns = 4000;
     public const double MaximumZoomSeconds = 20;
     public const double MinimumZoomSeconds = 0.001;
-    public const int HistogramBins = 90;
+    public const int HistogramBins = WholeCaptureSurveys.Bins;
 
     /// <summary>The default zoom: the first 40 ms of a block, where the sync and the first bytes are.</summary>
     public const double DefaultZoomSeconds = 0.04;
@@ -218,34 +218,19 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
 
         var marks = PulseMarks.For(run.Profile, run.Setting, speed);
         PulseHistogramResult result;
-        var path = OriginalPath(run.Capture);
+        bool cached = false;
         if (whole)
         {
-            string key = $"{run.Capture.Sha256}|{SettingsJson.Write([run.Setting])}|{marks.LowestSeconds:R}|{marks.HighestSeconds:R}|{HistogramBins}";
-            if (WholeCaptureHistograms.Count >= WholeCaptureHistogramsKept)
+            // Made by the decode job for every setting of its run; made here only when missing (an older run), then kept.
+            string kept = WholeCaptureSurveys.CachePath(store, run.Capture.Sha256, run.Setting, marks);
+            if (WholeCaptureSurveys.TryRead(kept) is { } survey)
             {
-                WholeCaptureHistograms.Clear();
+                result = survey;
+                cached = true;
             }
-
-            var survey = WholeCaptureHistograms.GetOrAdd(key, _ => Task.Run(() =>
+            else
             {
-                using var reader = CaptureReader.Open(path, Channel);
-                return PulseSurvey.Measure(reader, run.Setting, new PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, HistogramBins));
-            }));
-            try
-            {
-                result = await survey.WaitAsync(cancellation).ConfigureAwait(false);
-            }
-            catch (Exception e) when (e is not OperationCanceledException)
-            {
-                // A failed survey is not kept: the next request tries again.
-                WholeCaptureHistograms.TryRemove(key, out _);
-                if (e is CaptureFormatException)
-                {
-                    throw new ArchiveConflictException($"The stored original could not be read: {e.Message}");
-                }
-
-                throw;
+                result = await SurveyAsync(run, marks, kept, cancellation).ConfigureAwait(false);
             }
         }
         else
@@ -254,7 +239,7 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
             long start = (long)Math.Round(from * rate);
             long warmStart = Math.Max(0, start - (long)Math.Round(WarmUpSeconds * rate));
             int frames = (int)Math.Min(int.MaxValue, (long)Math.Round(to * rate) - warmStart);
-            var samples = await Task.Run(() => ReadExcerpt(path, warmStart, frames), cancellation).ConfigureAwait(false);
+            var samples = await Task.Run(() => ReadExcerpt(OriginalPath(run.Capture), warmStart, frames), cancellation).ConfigureAwait(false);
             var trace = DetectorTrace.Run(samples, rate, run.Setting, warmStart);
             var histogram = new PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, HistogramBins);
             var inBlock = trace.Edges.Where(e => e.Sample >= start).ToArray();
@@ -269,7 +254,42 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
         }
 
         return new HistogramView(run.Choice, whole ? "whole" : "block", from, to, marks.Measures, speed, bins, result.Below, result.Above,
-            [.. marks.Marks.Select(m => new PulseMarkView(m.Label, m.Seconds, m.Kind.ToString().ToLowerInvariant()))]);
+            [.. marks.Marks.Select(m => new PulseMarkView(m.Label, m.Seconds, m.Kind.ToString().ToLowerInvariant()))], cached);
+    }
+
+    /// <summary>A whole-capture survey nobody made ahead: one computation however many ask at once, then kept on disk.</summary>
+    private async Task<PulseHistogramResult> SurveyAsync(ChosenRun run, PulseMarkSet marks, string kept, CancellationToken cancellation)
+    {
+        var path = OriginalPath(run.Capture);
+        if (WholeCaptureHistograms.Count >= WholeCaptureHistogramsKept)
+        {
+            WholeCaptureHistograms.Clear();
+        }
+
+        var survey = WholeCaptureHistograms.GetOrAdd(kept, _ => Task.Run(() =>
+        {
+            using var reader = CaptureReader.Open(path, Channel);
+            var measured = PulseSurvey.Measure(reader, run.Setting, new PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, HistogramBins));
+            WholeCaptureSurveys.Write(store, kept, measured);
+            return measured;
+        }));
+        try
+        {
+            var result = await survey.WaitAsync(cancellation).ConfigureAwait(false);
+            WholeCaptureHistograms.TryRemove(kept, out _);
+            return result;
+        }
+        catch (Exception e) when (e is not OperationCanceledException)
+        {
+            // A failed survey is not kept: the next request tries again.
+            WholeCaptureHistograms.TryRemove(kept, out _);
+            if (e is CaptureFormatException)
+            {
+                throw new ArchiveConflictException($"The stored original could not be read: {e.Message}");
+            }
+
+            throw;
+        }
     }
 
     /// <summary>The speed each of the chosen setting's block readings was decoded at, in tape order.</summary>

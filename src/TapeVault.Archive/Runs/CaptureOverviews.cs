@@ -1,9 +1,8 @@
 using System.Collections.Concurrent;
-using TapeVault.Archive;
 using TapeVault.Archive.Storage;
 using TapeVault.Core.Audio;
 
-namespace TapeVault.Web.Api;
+namespace TapeVault.Archive.Runs;
 
 /// <summary>
 /// Overviews of stored captures, kept as small files under the store's <c>derived/overviews</c> folder (never under
@@ -12,6 +11,9 @@ namespace TapeVault.Web.Api;
 /// </summary>
 public static class CaptureOverviews
 {
+    /// <summary>The columns of the capture page's overview; the decode job makes this one ahead of any request.</summary>
+    public const int DefaultColumns = 1000;
+
     // Requests for the same overview while it is being computed wait for the one computation.
     private static readonly ConcurrentDictionary<string, Lazy<Task<WaveformOverview>>> InFlight = new(StringComparer.Ordinal);
 
