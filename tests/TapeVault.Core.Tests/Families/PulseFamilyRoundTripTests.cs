@@ -43,7 +43,7 @@ public sealed class PulseFamilyRoundTripTests(RoundTripFolder folder) : IClassFi
     [MemberData(nameof(Cases))]
     public void Every_block_comes_back_clean_with_the_written_bytes(string profileId, string damageName)
     {
-        var profile = ProfileCatalog.BuiltIn.Get(profileId);
+        var profile = FamilyProfiles.Get(profileId);
         var files = Files();
         var blocks = BlockWriter.Blocks(profile, files);
 
@@ -72,7 +72,7 @@ public sealed class PulseFamilyRoundTripTests(RoundTripFolder folder) : IClassFi
     [MemberData(nameof(SoxCases))]
     public void Every_block_comes_back_clean_through_a_sox_effect_chain(string profileId, string chain)
     {
-        var profile = ProfileCatalog.BuiltIn.Get(profileId);
+        var profile = FamilyProfiles.Get(profileId);
         var files = Files();
         string source = folder.NewCapture("sox-source");
         var capture = CaptureSynthesizer.Write(source, profile, files, new ChannelDamage { SnrDb = 30, Seed = 44 });

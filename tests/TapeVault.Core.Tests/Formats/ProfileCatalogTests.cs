@@ -43,10 +43,10 @@ public sealed class ProfileCatalogTests(ProfileFolder folders) : IClassFixture<P
         var catalog = ProfileCatalog.WithUserFolder(folder);
 
         Assert.Equal(
-            ["biphase-1200", "kcs-1200", "kcs-300", "one-cycle-bits", "orrin-80", "test-pulse", "test-tones", "three-class-pairs"],
+            ["biphase-1200", "kcs-1200", "kcs-300", "one-cycle-bits", "orrin-80", "test-pulse", "test-tones"],
             catalog.All.Select(p => p.Id));
         Assert.Equal(FormatFamily.Fsk, catalog.Get("test-tones").Family);
-        Assert.Equal(6, ProfileCatalog.BuiltIn.All.Count());
+        Assert.Equal(5, ProfileCatalog.BuiltIn.All.Count());
     }
 
     [Fact]
@@ -99,8 +99,8 @@ public sealed class ProfileCatalogTests(ProfileFolder folders) : IClassFixture<P
     [Fact]
     public void No_folder_or_a_missing_folder_leaves_the_built_ins()
     {
-        Assert.Equal(6, ProfileCatalog.WithUserFolder(null).All.Count());
-        Assert.Equal(6, ProfileCatalog.WithUserFolder(Path.Combine(folders.Root, "absent")).All.Count());
+        Assert.Equal(5, ProfileCatalog.WithUserFolder(null).All.Count());
+        Assert.Equal(5, ProfileCatalog.WithUserFolder(Path.Combine(folders.Root, "absent")).All.Count());
     }
 
     [Fact]
