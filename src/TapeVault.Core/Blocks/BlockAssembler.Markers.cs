@@ -3,6 +3,8 @@ namespace TapeVault.Core.Blocks;
 // Blocks whose end the format marks on tape.
 public sealed partial class BlockAssembler
 {
+    private bool _endMarked;
+
     /// <summary>
     /// The format's end-of-block marker followed the bytes read so far: the block ends here. A block that holds
     /// fewer bytes than its layout says is cut short; one whose length the layout leaves open (a stream) is whole.
@@ -20,6 +22,22 @@ public sealed partial class BlockAssembler
             return;
         }
 
-        Emit(sample, truncated: !_layout.IsStream && _bytes.Count < _expectedTotal);
+        if (_kinds.Many)
+        {
+            // The marker says where the block ends, and so which kind it is: the one its length fits.
+            (_layout, _scorer, _codec, int expected) = _kinds.Fit(System.Runtime.InteropServices.CollectionsMarshal.AsSpan(_bytes));
+            _expectedTotal = expected;
+        }
+
+        // A length nothing gave (an earlier block that was not read) is what the marker says.
+        bool shortOfLayout = _bytes.Count < _layout.HeaderBytes + _scorer.ChecksumBytes
+            || (_expectedTotal != int.MaxValue && _bytes.Count < _expectedTotal);
+        Emit(sample, truncated: !_layout.IsStream && shortOfLayout);
     }
+
+    /// <summary>
+    /// The format marks each block's end: a block is complete at its end marker (<see cref="EndAtMarker"/>), not when
+    /// its layout's length is reached, so a block of another kind than expected is still read whole.
+    /// </summary>
+    public void EndsAtMarker() => _endMarked = true;
 }

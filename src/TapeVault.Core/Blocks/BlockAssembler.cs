@@ -14,9 +14,9 @@ namespace TapeVault.Core.Blocks;
 /// </summary>
 public sealed partial class BlockAssembler
 {
-    private readonly BlockLayout _layout;
-    private readonly BlockScorer _scorer;
-    private readonly BlockLayoutCodec _codec;
+    private BlockLayout _layout;
+    private BlockScorer _scorer;
+    private BlockLayoutCodec _codec;
     private readonly int _settingIndex;
     private readonly string _settingName;
     private readonly double _sampleRate;
@@ -42,6 +42,7 @@ public sealed partial class BlockAssembler
         _layout = profile.Layout;
         _scorer = new BlockScorer(_layout);
         _codec = BlockLayoutCodec.For(_layout);
+        _kinds = new KindSequence(profile);
         _settingIndex = settingIndex;
         _settingName = settingName;
         _sampleRate = sampleRate;
@@ -76,7 +77,19 @@ public sealed partial class BlockAssembler
         _levelCount = 0;
         _speedSum = 0;
         _speedCount = 0;
+        if (_kinds.Many)
+        {
+            (_layout, _scorer, _codec) = _kinds.Begin();
+        }
+
         _expectedTotal = _layout.IsStream ? int.MaxValue : _layout.HeaderBytes + (_layout.PayloadBytes ?? 0) + _scorer.ChecksumBytes;
+        if (_kinds.Many && _layout.LengthRule is not null)
+        {
+            // An earlier block gave the length; without it, the block runs to its end marker.
+            _expectedTotal = _kinds.PayloadFromRule() is { } fromRule
+                ? _layout.HeaderBytes + (int)Math.Min(fromRule, _layout.MaximumPayloadBytes) + _scorer.ChecksumBytes
+                : int.MaxValue;
+        }
     }
 
     public void NoteLevel(float envelope)
@@ -141,7 +154,7 @@ public sealed partial class BlockAssembler
             _expectedTotal = _layout.HeaderBytes + payload + _scorer.ChecksumBytes;
         }
 
-        if (_bytes.Count >= _expectedTotal)
+        if (_endMarked ? _bytes.Count >= _kinds.LongestBlock : _bytes.Count >= _expectedTotal)
         {
             Emit(sample, truncated: false);
             return true;
@@ -172,6 +185,12 @@ public sealed partial class BlockAssembler
         InBlock = false;
         var all = _bytes.ToArray();
         var evidence = _evidence;
+        if (_kinds.Many)
+        {
+            // Before the sync is made the first copy's: the copy read is what says which block comes next.
+            _kinds.Read(all, truncated);
+        }
+
         if (_codec.SyncField is not null && !_codec.NormalizeSync(all, truncated ? -1 : all.Length - _codec.HeaderBytes - _codec.CheckBytes))
         {
             // The sync bytes are the format's mark of a block start: read wrong, they mark nothing.
@@ -194,7 +213,7 @@ public sealed partial class BlockAssembler
         {
             SettingIndex = _settingIndex,
             SettingName = _settingName,
-            Identity = ReadIdentity(_layout, header, _ordinal),
+            Identity = _kinds.Many ? _kinds.Identity(header, _ordinal) : ReadIdentity(_layout, header, _ordinal),
             Header = [.. header],
             Payload = [.. payload],
             StoredChecksum = score.StoredChecksum,

@@ -51,8 +51,9 @@ public sealed partial class BlockLayoutCodec
 
     /// <summary>
     /// Copy <paramref name="copy"/> of a whole block (header, payload, check) as the writer puts it on tape: the
-    /// block itself where every copy is alike, else a new array with that copy's sync bytes, and its check value
-    /// computed again where the check covers them.
+    /// block itself where every copy is alike, else a new array with that copy's sync bytes. Where the check covers
+    /// the sync and held over the block as given, it is computed again for the copy; a block altered after its check
+    /// was computed stays as wrong in every copy.
     /// </summary>
     public byte[] ForCopy(byte[] block, int copy)
     {
@@ -62,15 +63,20 @@ public sealed partial class BlockLayoutCodec
             return block;
         }
 
+        int payloadLength = block.Length - HeaderBytes - CheckBytes;
+        bool recompute = CoversSync && Checksum is not null && ComputeCheck(block, payloadLength) == ReadStoredCheck(block, payloadLength);
         var written = (byte[])block.Clone();
         SyncOfCopy(copy).CopyTo(written);
-        if (Checksum is not null)
+        if (recompute)
         {
-            WriteCheck(written, block.Length - HeaderBytes - CheckBytes);
+            WriteCheck(written, payloadLength);
         }
 
         return written;
     }
+
+    // The sync is the first field, so a check covers it when its first covered stretch starts the block.
+    private bool CoversSync => SyncField is not null && _coveredHeader.Length > 0 && _coveredHeader[0].Start == 0;
 
     /// <summary>
     /// Writes the first copy's sync bytes over a block's sync field when the bytes read there are those of another

@@ -3,7 +3,11 @@ using TapeVault.Core.Formats;
 namespace TapeVault.Core.Blocks;
 
 /// <summary>A file to put on tape.</summary>
-public sealed record TapeFile(string Name, byte[] Content);
+public sealed record TapeFile(string Name, byte[] Content)
+{
+    /// <summary>Where the file loads in memory, for formats whose header block gives start and end addresses.</summary>
+    public long Address { get; init; }
+}
 
 /// <summary>Lays files out as blocks the way a machine using the profile would write them (the synthesiser's source of truth).</summary>
 public static class BlockWriter
@@ -21,6 +25,12 @@ public static class BlockWriter
         for (int f = 0; f < files.Count; f++)
         {
             var file = files[f];
+            if (profile.Kinds.Count > 1)
+            {
+                blocks.AddRange(KindBlocks(profile.Kinds, file, f));
+                continue;
+            }
+
             if (layout.IsStream)
             {
                 blocks.Add(file.Content);
@@ -43,6 +53,58 @@ public static class BlockWriter
                 }
 
                 blocks.Add(Build(layout, file.Name, f, b, payload));
+            }
+        }
+
+        return blocks;
+    }
+
+    /// <summary>
+    /// A file written as several block kinds: each kind once, in order; the content goes whole into the first kind
+    /// whose length is not fixed (a data block), the kinds before it say its length (a length field, or start and end
+    /// addresses from <see cref="TapeFile.Address"/>), and kinds with a fixed length are filled with zeros.
+    /// </summary>
+    private static IEnumerable<byte[]> KindBlocks(IReadOnlyList<BlockLayout> kinds, TapeFile file, int fileIndex)
+    {
+        var blocks = new byte[kinds.Count][];
+        int dataKind = -1;
+        for (int k = 0; k < kinds.Count; k++)
+        {
+            var kind = kinds[k];
+            bool open = kind.PayloadBytes is null;
+            if (open && dataKind < 0)
+            {
+                dataKind = k;
+            }
+
+            var payload = open && dataKind == k ? file.Content : new byte[kind.PayloadBytes ?? 0];
+            blocks[k] = Build(kind, file.Name, fileIndex, k, payload);
+        }
+
+        // The lengths that later kinds take from earlier blocks, written into those blocks (whose checks change).
+        for (int k = 0; k < kinds.Count; k++)
+        {
+            if (kinds[k].LengthRule is not { } rule)
+            {
+                continue;
+            }
+
+            var source = blocks[rule.SourceKind];
+            var codec = BlockLayoutCodec.For(kinds[rule.SourceKind]);
+            long length = blocks[k].Length - BlockLayoutCodec.For(kinds[k]).HeaderBytes - BlockLayoutCodec.For(kinds[k]).CheckBytes;
+            if (rule.LengthField is { } field)
+            {
+                codec.WriteField(source, field, (ulong)length);
+            }
+            else
+            {
+                codec.WriteField(source, rule.StartField!, (ulong)file.Address);
+                codec.WriteField(source, rule.EndField!, (ulong)(file.Address + length - (rule.InclusiveEnd ? 1 : 0)));
+            }
+
+            if (codec.Checksum is not null)
+            {
+                codec.WriteCheck(source, source.Length - codec.HeaderBytes - codec.CheckBytes);
             }
         }
 

@@ -155,6 +155,31 @@ internal sealed class LayoutDocument
     public int? MaximumPayloadBytes { get; set; }
     public ChecksumDocument? Checksum { get; set; }
     public int? Copies { get; set; }
+
+    // Several block kinds in the order a file writes them, in place of header, payloadBytes and checksum.
+    public List<BlockKindDocument?>? Kinds { get; set; }
+}
+
+internal sealed class BlockKindDocument
+{
+    public string? Name { get; set; }
+    public List<HeaderFieldDocument?>? Header { get; set; }
+    public int? PayloadBytes { get; set; }
+    public int? MaximumPayloadBytes { get; set; }
+    public PayloadLengthDocument? PayloadLength { get; set; }
+    public ChecksumDocument? Checksum { get; set; }
+}
+
+internal sealed class PayloadLengthDocument
+{
+    // The kind whose block (the last one read before) carries the length.
+    public string? Kind { get; set; }
+
+    // A length field of that block; or a start and an end address, with the end inclusive or exclusive.
+    public string? Field { get; set; }
+    public string? Start { get; set; }
+    public string? End { get; set; }
+    public string? EndIs { get; set; }
 }
 
 internal sealed class RecordingDocument

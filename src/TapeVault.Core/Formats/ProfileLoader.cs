@@ -84,14 +84,14 @@ public static partial class ProfileLoader
             switch (family)
             {
                 case "pulse-width":
-                    return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.PulseWidth,
-                        PulseWidth(d.PulseWidth, layout), null, null, framing, layout, recording);
+                    return WithKinds(new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.PulseWidth,
+                        PulseWidth(d.PulseWidth, layout), null, null, framing, layout, recording));
                 case "fsk":
-                    return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Fsk,
-                        null, Fsk(d.Fsk, framing, layout), null, framing, layout, recording);
+                    return WithKinds(new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Fsk,
+                        null, Fsk(d.Fsk, framing, layout), null, framing, layout, recording));
                 case "biphase":
-                    return new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Biphase,
-                        null, null, Biphase(d.Biphase), framing, layout, recording);
+                    return WithKinds(new FormatProfile(id, name, d.Description ?? string.Empty, FormatFamily.Biphase,
+                        null, null, Biphase(d.Biphase), framing, layout, recording));
                 default:
                     Fail("family", $"must be pulse-width, fsk or biphase, not '{family}'");
                     return null!;
@@ -330,23 +330,30 @@ public static partial class ProfileLoader
             return bits;
         }
 
-        private BlockLayout Layout(LayoutDocument? d)
+        private BlockLayout Layout(LayoutDocument? d, string at = "layout", bool lengthByRule = false)
         {
             if (d is null)
             {
                 Fail("layout", "is required (an empty object {} means a stream with no blocks)");
             }
 
+            if (d!.Kinds is not null && at == "layout")
+            {
+                return Kinds(d);
+            }
+
+            bool inKind = at != "layout";
+
             var header = new List<HeaderField>();
             var fields = d!.Header ?? [];
             if (fields.Count > 32)
             {
-                Fail("layout.header", "may have at most 32 fields");
+                Fail(at + ".header", "may have at most 32 fields");
             }
 
             for (int i = 0; i < fields.Count; i++)
             {
-                string path = $"layout.header[{i}]";
+                string path = $"{at}.header[{i}]";
                 var f = fields[i] ?? throw Error(path, "must be an object");
                 string fieldName = Required(f.Name, path + ".name");
                 int bytes = Required(f.Bytes, path + ".bytes");
@@ -387,32 +394,33 @@ public static partial class ProfileLoader
 
             int? payload = d.PayloadBytes;
             bool hasLengthField = header.Exists(h => h.Role == FieldRole.PayloadLength);
-            if (payload is { } p && (p < 1 || p > MaximumPayloadLimit))
+            // A block kind may be all header (a file's header block): its payload is empty.
+            if (payload is { } p && (p < (inKind ? 0 : 1) || p > MaximumPayloadLimit))
             {
-                Fail("layout.payloadBytes", $"must be between 1 and {MaximumPayloadLimit}, not {p}");
+                Fail(at + ".payloadBytes", $"must be between {(inKind ? 0 : 1)} and {MaximumPayloadLimit}, not {p}");
             }
 
             if (payload is not null && hasLengthField)
             {
-                Fail("layout.payloadBytes", "must not be given when a header field has the role payload-length");
+                Fail(at + ".payloadBytes", "must not be given when a header field has the role payload-length");
             }
 
             int maximum = d.MaximumPayloadBytes ?? (hasLengthField ? 65535 : payload ?? 65535);
-            if (maximum < 1 || maximum > MaximumPayloadLimit)
+            if (maximum < (payload == 0 ? 0 : 1) || maximum > MaximumPayloadLimit)
             {
-                Fail("layout.maximumPayloadBytes", $"must be between 1 and {MaximumPayloadLimit}, not {maximum}");
+                Fail(at + ".maximumPayloadBytes", $"must be between 1 and {MaximumPayloadLimit}, not {maximum}");
             }
 
-            ChecksumSpec? checksum = d.Checksum is { } c ? Checksum(c, header) : null;
+            ChecksumSpec? checksum = d.Checksum is { } c ? Checksum(c, header, at + ".checksum") : null;
 
-            if (header.Count > 0 && payload is null && !hasLengthField)
+            if (header.Count > 0 && payload is null && !hasLengthField && !lengthByRule)
             {
-                Fail("layout.payloadBytes", "is required when the header has no payload-length field");
+                Fail(at + ".payloadBytes", "is required when the header has no payload-length field (or, in a block kind, payloadLength)");
             }
 
-            if (header.Count == 0 && checksum is not null && payload is null)
+            if (header.Count == 0 && checksum is not null && payload is null && !lengthByRule)
             {
-                Fail("layout.payloadBytes", "is required when blocks have a checksum but no header");
+                Fail(at + ".payloadBytes", "is required when blocks have a checksum but no header");
             }
 
             int copies = d.Copies ?? 1;
@@ -425,9 +433,8 @@ public static partial class ProfileLoader
             return new BlockLayout(header, payload, maximum, checksum, copies);
         }
 
-        private ChecksumSpec Checksum(ChecksumDocument c, List<HeaderField> header)
+        private ChecksumSpec Checksum(ChecksumDocument c, List<HeaderField> header, string path)
         {
-            const string path = "layout.checksum";
             int given = (c.Algorithm is null ? 0 : 1) + (c.Crc is null ? 0 : 1) + (c.Sum is null ? 0 : 1) + (c.Xor is null ? 0 : 1);
             if (given > 1)
             {

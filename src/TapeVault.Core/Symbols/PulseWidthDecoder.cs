@@ -116,6 +116,11 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             }
         }
 
+        if (_end.Length > 0)
+        {
+            assembler.EndsAtMarker();
+        }
+
         // The bit a lead-in pulse stands for, where a bit is that one pulse (-1 where it is not a bit).
         _leadBit = _zero is [var z] && z == _leadInClass ? 0 : _one is [var o] && o == _leadInClass ? 1 : -1;
     }
@@ -466,7 +471,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         switch (_phase)
         {
             case Phase.Boundary:
-                OnBoundaryPattern(decision, endSample);
+                OnBoundaryPattern(decision, seconds, endSample);
                 break;
             case Phase.After:
                 if (Matches(_after))
@@ -489,7 +494,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         }
     }
 
-    private void OnBoundaryPattern(PulseDecision decision, double endSample)
+    private void OnBoundaryPattern(PulseDecision decision, double seconds, double endSample)
     {
         if (_end.Length > 0 && Matches(_end))
         {
@@ -502,6 +507,17 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
         if (_before.Length > 0)
         {
+            if (_patternLength == 1 && decision.Class == _leadInClass && _before[0] != _leadInClass && (_end.Length == 0 || _end[0] != _leadInClass))
+            {
+                // A lead-in pulse where a marker should be: the block ended without its end marker (or was cut), and
+                // the next lead-in begins here.
+                _assembler.EndAtMarker(endSample);
+                _mode = Mode.Hunting;
+                _leadIn.Reset();
+                _leadIn.Add(seconds);
+                return;
+            }
+
             if (Matches(_before))
             {
                 _byteFirstDecision = _patternFirstDecision;

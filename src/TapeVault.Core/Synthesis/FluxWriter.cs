@@ -39,7 +39,8 @@ public static class FluxWriter
             ? encoding.BlockGap
             : Math.Max(encoding.LeadInMinimum * 2, (int)(profile.Recording.BlockGapSeconds / leadIn));
         bool first = true;
-        var codec = Blocks.BlockLayoutCodec.For(profile.Layout);
+        var kinds = profile.BlockKinds;
+        int index = 0;
 
         // A pulse is a whole cycle (two reversals) or, in a half-cycle format, the time to the next reversal.
         IEnumerable<double> Pulses(IEnumerable<string> names)
@@ -59,6 +60,8 @@ public static class FluxWriter
 
         foreach (var written in blocks)
         {
+            // Blocks of several kinds come in the order a file writes them (BlockWriter.Blocks).
+            var codec = Blocks.BlockLayoutCodec.For(kinds[index++ % kinds.Count]);
             for (int copy = 0; copy < profile.Layout.Copies; copy++)
             {
                 var block = codec.ForCopy(written, copy);

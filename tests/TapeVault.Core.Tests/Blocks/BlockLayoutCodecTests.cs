@@ -154,9 +154,11 @@ public sealed class BlockLayoutCodecTests
     {
         foreach (var profile in ProfileCatalog.BuiltIn.All.Where(p => p.Layout.Checksum is not null))
         {
-            var codec = BlockLayoutCodec.For(profile.Layout);
+            // Blocks of several kinds come in the order a file writes them, each kind with its own layout.
+            int index = 0;
             foreach (var block in BlockWriter.Blocks(profile, [new TapeFile("DEMO", Payload(300, 7))]))
             {
+                var codec = BlockLayoutCodec.For(profile.BlockKinds[index++ % profile.BlockKinds.Count]);
                 int payloadLength = block.Length - codec.HeaderBytes - codec.CheckBytes;
                 Assert.True(codec.CheckHolds(block, payloadLength), profile.Id);
             }

@@ -79,10 +79,15 @@ internal static class RoundTrips
     /// <summary>The header and payload of every block <see cref="BlockWriter"/> lays out, in tape order.</summary>
     public static List<TruthBlock> Truth(FormatProfile profile, IReadOnlyList<byte[]> blocks)
     {
-        var layout = profile.Layout;
-        int header = layout.IsStream ? 0 : layout.HeaderBytes;
-        int check = layout.Checksum is { } spec ? ChecksumCatalog.Get(spec.Algorithm).Width : 0;
-        return [.. blocks.Select(b => new TruthBlock(b[..header], b[header..^check]))];
+        // Blocks of several kinds come in the order a file writes them, each with its own header and check.
+        var kinds = profile.BlockKinds;
+        return [.. blocks.Select((b, i) =>
+        {
+            var layout = kinds[i % kinds.Count];
+            int header = layout.IsStream ? 0 : layout.HeaderBytes;
+            int check = layout.Checksum is { } spec ? ChecksumCatalog.Get(spec.Algorithm).Width : 0;
+            return new TruthBlock(b[..header], b[header..^check]);
+        })];
     }
 
     public static (SynthesizedCapture Capture, DecodeResult Result) SynthAndDecode(RoundTripFolder folder, FormatProfile profile, IReadOnlyList<TapeFile> files, ChannelDamage damage)
