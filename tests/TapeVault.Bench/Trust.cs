@@ -425,6 +425,19 @@ public static class Trust
         }
 
         Console.WriteLine();
+        Console.WriteLine("Per family (every profile of the family together; block formats and streams apart, as their units differ):");
+        Console.WriteLine($"{"family",-11} {"kind",-7} {"units",7} {"readings",8} {"wrong clean",11} {"ECE read",8} {"ECE best",8} {"positions",9} {"wrong pos",9} {"ECE merged",10}");
+        foreach (var group in outcomes.GroupBy(o => (o.Subject.Family, Stream: o.Subject.Profile.Layout.IsStream)).OrderBy(g => g.Key.Family, StringComparer.Ordinal).ThenBy(g => g.Key.Stream))
+        {
+            var readings = group.SelectMany(o => o.ReadingsBySource.Values.SelectMany(r => r)).ToList();
+            var best = group.SelectMany(o => o.Best).ToList();
+            var positions = group.SelectMany(o => o.Positions).ToList();
+            Console.WriteLine(
+                $"{group.Key.Family,-11} {(group.Key.Stream ? "stream" : "blocks"),-7} {group.Sum(o => o.WrittenUnits),7} {readings.Count,8} {readings.Count(r => r.WrongClean),11} {Ece(readings),8:0.0000} {Ece(best),8:0.0000} " +
+                $"{positions.Count,9} {positions.Count(r => r.WrongClean),9} {Ece(positions),10:0.0000}");
+        }
+
+        Console.WriteLine();
         Console.WriteLine("Per family and source of the passes (readings of every setting):");
         Console.WriteLine($"{"family",-11} {"source",-14} {"readings",8} {"right",7} {"wrong clean",11} {"ECE read",8}");
         foreach (var group in outcomes

@@ -346,7 +346,9 @@ internal sealed class StreamMerge
             // same characters on the same false start bit): a stream is voted, never clean; its confidence and
             // agreeing captures say how far to trust it.
             Status = RecoveryStatus.Voted,
-            Confidence = Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1),
+            Confidence = Math.Min(
+                Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1),
+                agreeing >= 2 ? _options.StreamAgreedSegmentCeiling : _options.StreamLoneSegmentCeiling),
             Header = [],
             Payload = payload,
             Sources = sources,

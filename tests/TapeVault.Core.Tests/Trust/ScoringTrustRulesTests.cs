@@ -81,7 +81,10 @@ public sealed class ScoringTrustRulesTests
 
         Assert.Equal(BlockStatus.Failed, candidate.Status);
         Assert.True(candidate.Doubts.HasFlag(BlockDoubts.AllAlikeCheck), $"doubts {candidate.Doubts}");
-        Assert.InRange(candidate.Confidence, 0, BlockScorer.MostFailedConfidence);
+
+        // Not proven, and no surer than what is known to be doubtful in it (no check adds to it): begun on a lead-in
+        // and sync, such blocks are mostly real runs of zeros (149 of 151 on the trust benchmark's biphase tapes).
+        Assert.InRange(candidate.Confidence, 0.5, 1 - 1e-3);
     }
 
     [Fact]

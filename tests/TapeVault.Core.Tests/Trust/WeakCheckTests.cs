@@ -96,6 +96,40 @@ public sealed class WeakCheckTests
         Assert.True(slipped.Doubts.HasFlag(BlockDoubts.Uncorroborated), $"doubts {slipped.Doubts}");
     }
 
+    [Fact]
+    public void A_real_block_of_zeros_after_a_lead_in_and_sync_keeps_the_confidence_its_known_doubts_allow()
+    {
+        // Zeros are CRC-16/XMODEM's own codeword (init 0, CRC catalogue), so the check proves nothing; begun on a lead-in
+        // and sync, such a block is mostly a real run of zeros, and the decision model alone (near 0 over noisy
+        // decisions) made it look like noise.
+        var crc = With("crc16-xmodem");
+        var profile = crc with { Layout = crc.Layout with { Checksum = crc.Layout.Checksum! with { Covers = ChecksumCoverage.Payload } } };
+        var zeros = BlockWriter.Build(profile.Layout, string.Empty, 0, 3, new byte[32]);
+        var output = new List<BlockCandidate>();
+        var assembler = new BlockAssembler(profile, 0, "s0", 44_100, output);
+        assembler.Begin(0, BlockStartEvidence.LeadInAndSync);
+        for (int b = 0; b < zeros.Length; b++)
+        {
+            int first = assembler.DecisionCount;
+            for (int k = 0; k < 8; k++)
+            {
+                assembler.AddDecision(0.6f, 0.35f, 1);
+            }
+
+            if (assembler.AddByte(zeros[b], first, framingOk: true, sample: 100 * (b + 1)))
+            {
+                break;
+            }
+        }
+
+        assembler.End(100 * (zeros.Length + 1));
+        var candidate = Assert.Single(output);
+
+        Assert.Equal(BlockStatus.Failed, candidate.Status);
+        Assert.True(candidate.Doubts.HasFlag(BlockDoubts.AllAlikeCheck), $"doubts {candidate.Doubts}");
+        Assert.InRange(candidate.Confidence, 0.9, 1 - 1e-3);
+    }
+
     private static BlockCandidate Uncorroborated(FormatProfile profile, byte[] written) =>
         Readings.Of(profile, written, 2.0, 1) with { Status = BlockStatus.Failed, Doubts = BlockDoubts.Uncorroborated, Confidence = 0.99 };
 
