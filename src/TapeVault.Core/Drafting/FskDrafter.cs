@@ -152,7 +152,9 @@ public sealed class FskDrafter : IFamilyDrafter
         {
             ["markHz"] = Math.Round(markHz, 1),
             ["spaceHz"] = Math.Round(spaceHz, 1),
-            ["baud"] = Math.Round(baud, 2),
+
+            // Rounded, the baud must still not pass the lower tone (one cycle a bit is the least).
+            ["baud"] = Math.Min(Math.Round(baud, 2), Math.Min(Math.Round(markHz, 1), Math.Round(spaceHz, 1))),
             ["leadInMinimumSeconds"] = Math.Round(leadIn, 3),
         };
         string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays";
