@@ -20,6 +20,12 @@ if (section == "fuzz")
     return Fuzz.Run(work, args[1..]);
 }
 
+if (section == "draft")
+{
+    // draft --count N --first-seed S: see DraftFigure and docs/performance.md.
+    return DraftFigure.Run(work, args[1..]);
+}
+
 if (section == "trust")
 {
     // trust --blocks N --first-seed S --jobs J [--profile ID] [--minutes M]: see Trust and docs/performance.md.

@@ -11,6 +11,11 @@ public static class CommandTree
         new MergeCommand(),
         new SynthCommand(),
         new ProfilesCommand(),
+        new CommandGroup("profile", "Draft a format profile from a capture, or check one against a capture.")
+        {
+            new ProfileDraftCommand(),
+            new ProfileCheckCommand(),
+        },
         new DemoCommand(),
         new CommandGroup("users", "Add, list, reset, disable or enable the web app's accounts.")
         {

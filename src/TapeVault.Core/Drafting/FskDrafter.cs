@@ -44,9 +44,13 @@ public sealed class FskDrafter : IFamilyDrafter
             return null;
         }
 
-        double bitA = ra.Granularity * survey.Clusters[a].Seconds;
-        double bitB = rb.Granularity * survey.Clusters[b].Seconds;
-        if (Math.Abs(Math.Log(bitA / bitB)) > 0.12)
+        // A tone holds whole cycles a bit, so its runs step by an even count of half cycles: of the even counts next to
+        // each measured step, the pair that makes the two bit times agree best.
+        static IEnumerable<int> Even(int g) => new[] { g - 1, g, g + 1 }.Where(x => x >= 2 && x % 2 == 0);
+        var (bitA, bitB) = Even(ra.Granularity)
+            .SelectMany(ga => Even(rb.Granularity).Select(gb => (A: ga * survey.Clusters[a].Seconds, B: gb * survey.Clusters[b].Seconds)))
+            .MinBy(p => Math.Abs(Math.Log(p.A / p.B)));
+        if (bitA == 0 || Math.Abs(Math.Log(bitA / bitB)) > 0.12)
         {
             return null;
         }
@@ -152,7 +156,9 @@ public sealed class FskDrafter : IFamilyDrafter
         {
             ["markHz"] = Math.Round(markHz, 1),
             ["spaceHz"] = Math.Round(spaceHz, 1),
-            ["baud"] = Math.Round(baud, 2),
+
+            // Rounded, the baud must still not pass the lower tone (one cycle a bit is the least).
+            ["baud"] = Math.Min(Math.Round(baud, 2), Math.Min(Math.Round(markHz, 1), Math.Round(spaceHz, 1))),
             ["leadInMinimumSeconds"] = Math.Round(leadIn, 3),
         };
         string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays";

@@ -1,0 +1,89 @@
+using System.Diagnostics;
+using System.Globalization;
+using TapeVault.Core.Audio;
+using TapeVault.Core.Synthesis;
+
+namespace TapeVault.Bench;
+
+/// <summary>
+/// The drafter's figure: on captures of random formats of each family (<see cref="RandomFormats"/>), with damage from
+/// wide ranges (<see cref="DraftTrials.Damage"/>) and, for every other capture, a SoX effect chain drawn from the seed
+/// (<see cref="OutsideDamage.SoxChain"/>), the share of written blocks the draft reads back once only its guessed
+/// fields are confirmed from the truth, beside the share the truth itself reads back.
+/// draft [--count N] [--first-seed S]: N captures per family (default 20), seeds S, S+1, ... (default 9001).
+/// </summary>
+public static class DraftFigure
+{
+    public static int Run(string work, string[] args)
+    {
+        int count = 20;
+        int first = 9001;
+        for (int i = 0; i + 1 < args.Length; i += 2)
+        {
+            int value = int.Parse(args[i + 1], CultureInfo.InvariantCulture);
+            switch (args[i])
+            {
+                case "--count": count = value; break;
+                case "--first-seed": first = value; break;
+                default: throw new ArgumentException($"Unknown option {args[i]}.");
+            }
+        }
+
+        string folder = Directory.CreateDirectory(Path.Combine(work, "draft")).FullName;
+        Console.WriteLine($"Draft figure: {count} captures per family, seeds {first}–{first + count - 1}, SoX chain on every other one.");
+        Console.WriteLine($"{"family",-12} {"written",8} {"draft",8} {"truth",8} {"draft/written",14} {"draft/truth",12} {"guessed",8} {"family right",13} {"failed",7} {"s/draft",8}");
+        int allWritten = 0, allDraft = 0, allTruth = 0;
+        foreach (string family in RandomFormats.Families)
+        {
+            int written = 0, drafted = 0, truth = 0, guessed = 0, fields = 0, familyRight = 0, failed = 0;
+            var time = Stopwatch.StartNew();
+            for (int k = 0; k < count; k++)
+            {
+                int seed = first + k;
+                var result = DraftTrials.Run(family, seed, folder, seed % 2 == 0 ? Sox : null);
+                written += result.Written;
+                drafted += result.RecoveredByConfirmedDraft;
+                truth += result.RecoveredByTruth;
+                guessed += result.Guessed.Count;
+                fields += result.Fields;
+                familyRight += result.DraftedFamily == family ? 1 : 0;
+                if (result.Failure is not null || result.RecoveredByConfirmedDraft < 0.95 * result.RecoveredByTruth)
+                {
+                    failed++;
+                    Console.WriteLine($"  {family} seed {seed}: {result.RecoveredByConfirmedDraft}/{result.RecoveredByTruth}/{result.Written} drafted {result.DraftedFamily}; guessed {string.Join(", ", result.Guessed)}; {result.Failure}; {result.Damage}");
+                }
+
+                foreach (string file in Directory.EnumerateFiles(folder))
+                {
+                    File.Delete(file);
+                }
+            }
+
+            allWritten += written;
+            allDraft += drafted;
+            allTruth += truth;
+            Console.WriteLine($"{family,-12} {written,8} {drafted,8} {truth,8} {Percent(drafted, written),14} {Percent(drafted, truth),12} {(fields == 0 ? "-" : $"{guessed}/{fields}"),8} {familyRight,6}/{count,-6} {failed,7} {time.Elapsed.TotalSeconds / count,8:0.0}");
+        }
+
+        Console.WriteLine($"{"all",-12} {allWritten,8} {allDraft,8} {allTruth,8} {Percent(allDraft, allWritten),14} {Percent(allDraft, allTruth),12}");
+        return 0;
+    }
+
+    private static string Percent(int part, int whole) => whole == 0 ? "-" : (100.0 * part / whole).ToString("0.0", CultureInfo.InvariantCulture) + " %";
+
+    private static (string Path, string Description) Sox(string path, Random rng)
+    {
+        int rate;
+        int channels;
+        using (var reader = CaptureReader.Open(path))
+        {
+            rate = reader.SampleRate;
+            channels = reader.Channels;
+        }
+
+        var (output, effects, description) = OutsideDamage.SoxChain(rng, channels, rate);
+        string damaged = Path.ChangeExtension(path, ".sox.wav");
+        OutsideDamage.ApplySox(path, damaged, output, effects);
+        return (damaged, description);
+    }
+}
