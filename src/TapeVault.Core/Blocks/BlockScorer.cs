@@ -283,9 +283,11 @@ public sealed class BlockScorer
             }
         }
 
-        // A failed block claims no more than even odds, unless its check holds and what fails it is only that the check
-        // has no support or proves nothing: then its confidence is what the evidence it has says.
-        if (status == BlockStatus.Failed && (doubts & (Disqualifying | BlockDoubts.CutShort) & ~(BlockDoubts.Uncorroborated | BlockDoubts.AllAlikeCheck)) != 0)
+        // A failed block claims no more than even odds, whatever failed it: a status that says "failed" beside a
+        // confidence that says "probably right" would contradict itself on every surface. A reading whose check holds
+        // but proves nothing on its own (a weak check without support, an all-alike block, a framing error) is proven by
+        // a second capture that reads the same bytes, in the merge, not by its own confidence.
+        if (status == BlockStatus.Failed)
         {
             confidence = Math.Min(confidence, MostFailedConfidence);
         }

@@ -20,7 +20,7 @@ public static class Vocabulary
         "Confidence is TapeVault's estimate of the probability that the bytes are right: of blocks shown at 0.90, about nine in ten are.";
 
     public static readonly StatusTerm Clean = new("clean", "✓", "clean", "The format's own check holds over bytes that were read after a lead-in or sync.");
-    public static readonly StatusTerm Failed = new("failed", "✗", "failed", "The check does not hold, or the block was cut short.");
+    public static readonly StatusTerm Failed = new("failed", "✗", "failed", "The check does not hold, the block was cut short, or its holding check proves nothing on its own (another capture that reads the same bytes proves it).");
     public static readonly StatusTerm Unchecked = new("unchecked", "○", "unchecked", "The format carries no check over these bytes; only the decisions' margins speak for them.");
     public static readonly StatusTerm Voted = new("voted", "≈", "voted", "No reading was clean; a vote across readings gave bytes the check accepts.");
     public static readonly StatusTerm Repaired = new("repaired", "⚒", "repaired", "A vote left the check failing; flipping the least certain bits made it hold.");

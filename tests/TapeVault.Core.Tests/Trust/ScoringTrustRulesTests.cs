@@ -84,7 +84,8 @@ public sealed class ScoringTrustRulesTests
 
         // Not proven, and no surer than what is known to be doubtful in it (no check adds to it): begun on a lead-in
         // and sync, such blocks are mostly real runs of zeros (149 of 151 on the trust benchmark's biphase tapes).
-        Assert.InRange(candidate.Confidence, 0.5, 1 - 1e-3);
+        // Failed, it claims no more than even odds (status and confidence never contradict each other).
+        Assert.Equal(BlockScorer.MostFailedConfidence, candidate.Confidence, 3);
     }
 
     [Fact]

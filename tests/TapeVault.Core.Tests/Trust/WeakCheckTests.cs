@@ -54,8 +54,8 @@ public sealed class WeakCheckTests
         Assert.NotEqual(BlockStatus.Clean, noisy.Status);
         Assert.True(noisy.Doubts.HasFlag(BlockDoubts.Uncorroborated), $"doubts {noisy.Doubts}");
 
-        // Still the likeliest reading: its confidence is the check's evidence, not the floor of a failed block.
-        Assert.InRange(noisy.Confidence, 0.9, 1);
+        // Failed, so it claims no more than even odds: status and confidence never contradict each other.
+        Assert.InRange(noisy.Confidence, 0, BlockScorer.MostFailedConfidence);
 
         // The same decisions read well: the weak check and the margins together make it clean.
         var sure = Read(With(checksum), 0.9f, 0.02f);
@@ -80,8 +80,9 @@ public sealed class WeakCheckTests
         Assert.NotEqual(BlockStatus.Clean, slipped.Status);
         Assert.True(slipped.Doubts.HasFlag(BlockDoubts.Uncorroborated), $"doubts {slipped.Doubts}");
 
-        // Prior odds 0.06 that a block with one framing error is right, times 256 for a holding 8-bit check: 0.94.
-        Assert.InRange(slipped.Confidence, 0.9, 0.97);
+        // Prior odds 0.06 that a block with one framing error is right, times 256 for a holding 8-bit check, would
+        // be 0.94; failed, it claims no more than even odds.
+        Assert.Equal(BlockScorer.MostFailedConfidence, slipped.Confidence, 3);
     }
 
     [Fact]
@@ -97,7 +98,7 @@ public sealed class WeakCheckTests
     }
 
     [Fact]
-    public void A_real_block_of_zeros_after_a_lead_in_and_sync_keeps_the_confidence_its_known_doubts_allow()
+    public void A_real_block_of_zeros_after_a_lead_in_and_sync_is_failed_at_even_odds_not_below()
     {
         // Zeros are CRC-16/XMODEM's own codeword (init 0, CRC catalogue), so the check proves nothing; begun on a lead-in
         // and sync, such a block is mostly a real run of zeros, and the decision model alone (near 0 over noisy
@@ -127,7 +128,7 @@ public sealed class WeakCheckTests
 
         Assert.Equal(BlockStatus.Failed, candidate.Status);
         Assert.True(candidate.Doubts.HasFlag(BlockDoubts.AllAlikeCheck), $"doubts {candidate.Doubts}");
-        Assert.InRange(candidate.Confidence, 0.9, 1 - 1e-3);
+        Assert.Equal(BlockScorer.MostFailedConfidence, candidate.Confidence, 3);
     }
 
     private static BlockCandidate Uncorroborated(FormatProfile profile, byte[] written) =>
