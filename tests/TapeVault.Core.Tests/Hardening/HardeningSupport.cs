@@ -32,8 +32,8 @@ internal static class Refusal
 /// WAV files written byte by byte for the hardening cases, on top of <see cref="WavBytes"/>.
 /// </summary>
 /// <remarks>
-/// The layout facts relied on here are from memory of the RIFF and WAVE specification (IBM and Microsoft,
-/// "Multimedia Programming Interface and Data Specifications 1.0", 1991) and Microsoft's WAVEFORMATEXTENSIBLE
+/// The layout facts relied on here are from memory of the RIFF and WAVE specification
+/// ("Multimedia Programming Interface and Data Specifications 1.0", 1991) and the published WAVEFORMATEXTENSIBLE
 /// documentation, not from a copy at hand:
 /// <list type="bullet">
 /// <item>A file is "RIFF", a little-endian uint32 of the bytes that follow (file length − 8), the form type "WAVE",

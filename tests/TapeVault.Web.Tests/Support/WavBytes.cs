@@ -5,7 +5,7 @@ namespace TapeVault.Web.Tests.Support;
 
 /// <summary>
 /// WAV files written byte by byte, so that each bad input is exactly the damage it names. The layout relied on is the
-/// RIFF/WAVE layout of the Microsoft/IBM "Multimedia Programming Interface and Data Specifications 1.0" (1991), quoted
+/// RIFF/WAVE layout of the "Multimedia Programming Interface and Data Specifications 1.0" (1991), quoted
 /// from memory, and common practice since:
 /// <list type="bullet">
 /// <item>"RIFF", a little-endian uint32 holding the file's length minus 8, then the form type "WAVE";</item>
