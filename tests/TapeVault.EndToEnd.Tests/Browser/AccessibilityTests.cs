@@ -38,7 +38,7 @@ public sealed class AccessibilityTests
 
         string[] pages =
         [
-            "/", "/collections/1", "/items/1", "/items/1/positions/0", "/captures/1", "/captures/1?scope=whole", "/runs/1", "/jobs", "/users", "/account/password", "/settings", "/handling",
+            "/", "/collections/1", "/items/1", "/items/1/positions/0", "/captures/1", "/captures/1?scope=whole", "/captures/1/draft", "/runs/1", "/jobs", "/users", "/account/password", "/settings", "/handling",
         ];
         foreach (var path in pages)
         {
