@@ -49,8 +49,8 @@ public sealed partial class BlockAssembler
         _output = output;
     }
 
-    /// <summary>The decisions of the block being read. Decoders should hand decisions over through <see cref="AddDecision"/> and <see cref="AddGuessedDecision"/>.</summary>
-    public DecisionLog Decisions { get; } = new();
+    /// <summary>The decisions of the block being read; decoders hand them over through <see cref="AddDecision"/> and <see cref="AddGuessedDecision"/> only.</summary>
+    private DecisionLog Decisions { get; } = new();
 
     /// <summary>How many decisions the block being read holds so far: the index the next decision will have.</summary>
     public int DecisionCount => Decisions.Count;

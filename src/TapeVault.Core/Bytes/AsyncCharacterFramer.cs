@@ -1,5 +1,4 @@
 using System.Runtime.CompilerServices;
-using TapeVault.Core.Blocks;
 using TapeVault.Core.Formats;
 
 namespace TapeVault.Core.Bytes;
@@ -90,17 +89,6 @@ public struct AsyncCharacterFramer
     /// and the stop bit mark, so the distance is signed toward that value and a wrong one lands on 0 (odds one half).
     /// </summary>
     public static float Distance(int bit, int frameBits, float d) => bit == 0 ? -d : bit == frameBits - 1 ? d : Math.Abs(d);
-
-    /// <summary>Logs one character's decisions, from its bits' D, to a block's decision log.</summary>
-    public static void LogDecisions(ReadOnlySpan<float> levels, DecisionLog log)
-    {
-        ArgumentNullException.ThrowIfNull(log);
-        for (int b = 0; b < levels.Length; b++)
-        {
-            float distance = Distance(b, levels.Length, levels[b]);
-            log.Add(distance, 1 - distance, 1);
-        }
-    }
 
     /// <summary>The smallest decision distance of a character's bits (below 0: a start or stop bit on the wrong side).</summary>
     public static float LeastDistance(ReadOnlySpan<float> levels)

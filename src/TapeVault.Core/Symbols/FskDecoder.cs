@@ -619,7 +619,12 @@ public sealed class FskDecoder : ISymbolDecoder
         }
 
         int first = _assembler.DecisionCount;
-        AsyncCharacterFramer.LogDecisions(levels, _assembler.Decisions);
+        for (int b = 0; b < levels.Length; b++)
+        {
+            float distance = AsyncCharacterFramer.Distance(b, levels.Length, levels[b]);
+            _assembler.AddDecision(distance, 1 - distance, 1);
+        }
+
         _assembler.NoteLevel(_level);
         _assembler.NoteSpeed(_speed.Speed);
         if (_assembler.AddByte((byte)value, first, framingOk, start, confirmed ? 0 : UnconfirmedFramingDoubt))

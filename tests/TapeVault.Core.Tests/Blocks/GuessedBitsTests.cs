@@ -22,7 +22,7 @@ public sealed class GuessedBitsTests
         int bit = 0;
         for (int b = 0; b < bytes.Length; b++)
         {
-            int first = assembler.Decisions.Count;
+            int first = assembler.DecisionCount;
             for (int k = 0; k < 8; k++, bit++)
             {
                 if (bit < erasedBits)
@@ -31,7 +31,7 @@ public sealed class GuessedBitsTests
                 }
                 else
                 {
-                    assembler.Decisions.Add(0.9f, 0.02f, 1);
+                    assembler.AddDecision(0.9f, 0.02f, 1);
                 }
             }
 
