@@ -79,13 +79,20 @@ public sealed partial class BlockAssembler
         /// <summary>The kind a block ended by its format's marker is: the expected one if its length fits, else another that fits.</summary>
         public (BlockLayout, BlockScorer, BlockLayoutCodec, int ExpectedTotal) Fit(ReadOnlySpan<byte> bytes)
         {
+            // A kind whose length is known and met comes before one whose length is open (a data block whose header
+            // block was not read runs to any marker): a header block read where its data block was expected is a
+            // header block, not a data block of the header's length whose weak check may hold by chance.
             int chosen = -1;
-            for (int i = 0; i < _layouts.Length && chosen < 0; i++)
+            for (int pass = 0; pass < 2 && chosen < 0; pass++)
             {
-                int k = (_current + i) % _layouts.Length;
-                if (Fits(k, bytes, out int payload) && (i == 0 || _codecs[k].CheckHolds(bytes, payload)))
+                for (int i = 0; i < _layouts.Length && chosen < 0; i++)
                 {
-                    chosen = k;
+                    int k = (_current + i) % _layouts.Length;
+                    bool known = Expected(k, bytes) != int.MaxValue;
+                    if ((pass == 1 || known) && Fits(k, bytes, out int payload) && (i == 0 || _codecs[k].CheckHolds(bytes, payload)))
+                    {
+                        chosen = k;
+                    }
                 }
             }
 

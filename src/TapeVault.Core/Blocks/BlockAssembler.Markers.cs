@@ -8,8 +8,11 @@ public sealed partial class BlockAssembler
     /// <summary>
     /// The format's end-of-block marker followed the bytes read so far: the block ends here. A block that holds
     /// fewer bytes than its layout says is cut short; one whose length the layout leaves open (a stream) is whole.
+    /// <paramref name="asWritten"/> is false where the block ended without the marker its format writes (the next
+    /// lead-in began where a byte's or the end's marker should be): a framing error, for a block whose length only
+    /// that marker gives may have lost its tail, and a weak check over the bytes before holds by chance.
     /// </summary>
-    public void EndAtMarker(double sample)
+    public void EndAtMarker(double sample, bool asWritten = true)
     {
         if (!InBlock)
         {
@@ -20,6 +23,11 @@ public sealed partial class BlockAssembler
         {
             InBlock = false;
             return;
+        }
+
+        if (!asWritten)
+        {
+            _framingErrors++;
         }
 
         if (_kinds.Many)

@@ -185,6 +185,16 @@ public sealed partial class BlockAssembler
         InBlock = false;
         var all = _bytes.ToArray();
         var evidence = _evidence;
+        int framingErrors = _framingErrors;
+        bool lengthUnproven = _kinds.Many && !truncated && _layout.LengthRule is not null && _kinds.PayloadFromRule() is null;
+        if (_kinds.Many && !truncated && _layout.LengthRule is not null && _kinds.PayloadFromRule() is { } given
+            && given != all.Length - _layout.HeaderBytes - _scorer.ChecksumBytes)
+        {
+            // A kind whose length an earlier block gives, ended at a marker at another length: a marker was lost or
+            // gained on the way, a framing error.
+            framingErrors++;
+        }
+
         if (_kinds.Many)
         {
             // Before the sync is made the first copy's: the copy read is what says which block comes next.
@@ -197,7 +207,7 @@ public sealed partial class BlockAssembler
             evidence = BlockStartEvidence.None;
         }
 
-        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, _framingErrors, _guessedDecisions, evidence, truncated);
+        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, framingErrors, _guessedDecisions, evidence, truncated, lengthUnproven);
         int headerBytes = score.HeaderBytes;
         int payloadEnd = score.PayloadEnd;
         var header = all.AsSpan(0, headerBytes);
@@ -229,7 +239,7 @@ public sealed partial class BlockAssembler
             AmbiguousDecisions = score.AmbiguousDecisions,
             MinimumMargin = score.MinimumMargin,
             MeanMargin = score.MeanMargin,
-            FramingErrors = _framingErrors,
+            FramingErrors = framingErrors,
             LevelDbfs = level > 0 ? 20 * Math.Log10(level) : -120,
             SnrDb = score.SnrDb,
             Speed = _speedCount > 0 ? _speedSum / _speedCount : 1,

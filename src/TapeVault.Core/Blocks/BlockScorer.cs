@@ -119,6 +119,8 @@ public sealed class BlockScorer
     /// <paramref name="byteFirstDecision"/>[b] up to the next byte's first (the last byte's run to the end of
     /// <paramref name="decisions"/>); <paramref name="byteFramingDoubt"/>[b] is the chance, beyond its decisions, that
     /// it was framed in the wrong place. <paramref name="guessedDecisions"/> decisions were guesses (erased bits).
+    /// <paramref name="lengthUnproven"/>: nothing but the block's own end marker said where it ends (a kind whose
+    /// length an earlier block gives, read without that block).
     /// </summary>
     public BlockScore Score(
         ReadOnlySpan<byte> bytes,
@@ -128,7 +130,8 @@ public sealed class BlockScorer
         int framingErrors,
         int guessedDecisions,
         BlockStartEvidence evidence,
-        bool truncated)
+        bool truncated,
+        bool lengthUnproven = false)
     {
         ArgumentNullException.ThrowIfNull(decisions);
         int byteCount = bytes.Length;
@@ -238,9 +241,12 @@ public sealed class BlockScorer
 
             double logModelAll = Sum(logModel, 0, byteCount);
             bool weak = _checksum.FalseMatchProbability > WeakCheckFalseMatch;
-            if (match && (framingErrors > 0 || (weak && (guessedDecisions > 0 || logModelAll < Math.Log(0.5)))))
+            bool lengthDoubtful = lengthUnproven && ambiguous > 0;
+            if (match && (framingErrors > 0 || (weak && (lengthDoubtful || guessedDecisions > 0 || logModelAll < Math.Log(0.5)))))
             {
                 // A weak check proves a block only beside decisions that already make it more likely right than not.
+                // Where only its end marker gave its length, every decision must vouch for itself: one ambiguous
+                // pulse may have ended the block early or late, and the check over the bytes before holds by chance.
                 // A framing error says a character was misread: a check of any strength that holds across it may be
                 // one of the chance matches that thousands of damaged readings produce (an empty block whose length
                 // field was misread, its check read from the bytes after it), so it too waits for a second capture.

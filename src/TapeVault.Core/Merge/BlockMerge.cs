@@ -173,6 +173,14 @@ internal sealed class BlockMerge
 
             if (match is null)
             {
+                // A block of a later kind read without the block that names it carries no file of its own: over the
+                // same stretch of tape with the same bytes, it is the named readings' position (and the reverse).
+                match = groups.LastOrDefault(g => g.Contents.Contains(entry.TrustedContent!) && g.Overlap(entry) > -OverlapSlack
+                    && (Unnamed(entry.TrustedKey!) || Unnamed(g.TrustedKey!)));
+            }
+
+            if (match is null)
+            {
                 groups.Add(new Group(entry));
             }
             else
@@ -227,6 +235,9 @@ internal sealed class BlockMerge
         // readings ran together) must not pull its group ahead of the block before it.
         return [.. groups.OrderBy(g => Median(g.Entries.Select(e => e.Start)))];
     }
+
+    /// <summary>An identity key with neither file name nor file id (a block of a later kind read without its header).</summary>
+    private static bool Unnamed(string key) => key.StartsWith(':');
 
     private ImageBlock? ResolvePosition(Group group)
     {
@@ -297,6 +308,9 @@ internal sealed class BlockMerge
         double confidence = OneOf([.. contents.Select(c => c.Chance)], 0);
 
         var top = winner.Witnesses[0].Candidate;
+
+        // A witness read without the block that names it carries no file: the position takes a named witness's identity.
+        var identity = winner.Witnesses.Select(w => (BlockIdentity?)w.Candidate.Identity).FirstOrDefault(i => i!.Value.FileName is not null || i.Value.FileId is not null) ?? top.Identity;
         var conflicts = contents.Skip(1)
             .Select(c => new ConflictingReading(c.Witnesses[0].Candidate.Payload, Provenance(c.Witnesses[0].Candidate, c.Witnesses[0].Pass), c.Witnesses.Count))
             .ToImmutableArray();
@@ -307,7 +321,7 @@ internal sealed class BlockMerge
             confidence,
             [.. winner.Witnesses.Select(w => Provenance(w.Candidate, w.Pass))],
             winner.Witnesses.Count,
-            top.Identity) with
+            identity) with
         {
             ConflictingPayloads = conflicts,
         };

@@ -510,8 +510,8 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             if (_patternLength == 1 && decision.Class == _leadInClass && _before[0] != _leadInClass && (_end.Length == 0 || _end[0] != _leadInClass))
             {
                 // A lead-in pulse where a marker should be: the block ended without its end marker (or was cut), and
-                // the next lead-in begins here.
-                _assembler.EndAtMarker(endSample);
+                // the next lead-in begins here. Where the format writes an end marker, its absence is a framing error.
+                _assembler.EndAtMarker(endSample, asWritten: _end.Length == 0);
                 _mode = Mode.Hunting;
                 _leadIn.Reset();
                 _leadIn.Add(seconds);

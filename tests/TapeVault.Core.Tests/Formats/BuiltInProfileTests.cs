@@ -13,7 +13,7 @@ public sealed class BuiltInProfileTests
     {
         var ids = ProfileCatalog.BuiltIn.All.Select(p => p.Id).ToList();
 
-        Assert.Equal(["biphase-1200", "biphase-1500", "fsk-sync-1200", "kcs-1200", "kcs-300", "one-cycle-bits", "orrin-80"], ids);
+        Assert.Equal(["biphase-1200", "biphase-1500", "fsk-sync-1200", "kcs-1200", "kcs-300", "one-cycle-bits", "orrin-80", "three-class-pairs"], ids);
     }
 
     [Fact]
@@ -102,7 +102,7 @@ public sealed class BuiltInProfileTests
         var error = Assert.Throws<ProfileException>(() => ProfileCatalog.BuiltIn.Get("no-such-format"));
 
         Assert.Contains("'no-such-format'", error.Message, StringComparison.Ordinal);
-        Assert.Contains("biphase-1200, biphase-1500, fsk-sync-1200, kcs-1200, kcs-300, one-cycle-bits, orrin-80", error.Message, StringComparison.Ordinal);
+        Assert.Contains("biphase-1200, biphase-1500, fsk-sync-1200, kcs-1200, kcs-300, one-cycle-bits, orrin-80, three-class-pairs", error.Message, StringComparison.Ordinal);
         Assert.False(ProfileCatalog.BuiltIn.TryGet("no-such-format", out _));
     }
 
