@@ -36,7 +36,6 @@ public sealed class ExportBagCommand : CliCommand
         var output = run.Output;
         string? accession = run.Value(item);
         var word = run.Value(collection) is { } c ? new ArchiveWork.CollectionWord(c, "--collection") : null;
-        _ = word?.Id;
         string outPath = run.Value(this.output)!;
         bool zip = run.Value(this.zip);
         if ((accession is null) == (word is null))

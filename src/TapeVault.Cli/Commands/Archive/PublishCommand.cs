@@ -32,7 +32,6 @@ public sealed class PublishCommand : CliCommand
         ArgumentNullException.ThrowIfNull(run);
         var output = run.Output;
         var word = new ArchiveWork.CollectionWord(run.Value(collectionArgument)!, "COLLECTION");
-        _ = word.Id;
         var target = Files.OutputPath(run.OutputPath(this.output, folder));
         if (File.Exists(target) || (Directory.Exists(target) && Directory.EnumerateFileSystemEntries(target).Any()))
         {

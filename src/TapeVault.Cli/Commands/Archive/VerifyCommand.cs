@@ -35,7 +35,6 @@ public sealed class VerifyCommand : CliCommand
         var output = run.Output;
         var error = run.Error;
         var word = run.Value(collectionOption) is { } c ? new ArchiveWork.CollectionWord(c, "--collection") : null;
-        _ = word?.Id;
         var kept = run.Value(expectHead) is { } h
             ? EventChain.ParseHead(h) ?? throw new UsageException($"--expect-head takes a head as bags and verify write it, \"event N sha256:HASH\", not '{h}'.")
             : null;

@@ -24,8 +24,8 @@ internal static class ArchiveWork
     /// <summary>A collection as the user named it: digits are its id; other words its exact name, in any case.</summary>
     public sealed record CollectionWord(string Text, string What)
     {
-        /// <summary>The id when the word is one; a word of digits that is no positive number is refused before anything is opened.</summary>
-        public int? Id => Text.All(char.IsAsciiDigit)
+        /// <summary>The id when the word is one; a word of digits that is no positive number is refused when the word is made, before anything is opened.</summary>
+        public int? Id { get; } = Text.All(char.IsAsciiDigit)
             ? int.TryParse(Text, NumberStyles.None, CultureInfo.InvariantCulture, out int id) && id > 0
                 ? id
                 : throw new UsageException($"{What} must be a positive number or a collection's name, not '{Text}'.")
