@@ -139,6 +139,7 @@ public static class WebApp
         builder.Services.AddExceptionHandler<DiskFullHandler>();
         builder.Services.AddSingleton<JobRunner>();
         builder.Services.AddScoped<ArchiveQueries>();
+        builder.Services.TryAddSingleton(new OperatorConsole(Console.Out));
         builder.Services.AddHostedService<ArchiveStartup>();
         builder.Services.AddHostedService(s => s.GetRequiredService<JobRunner>());
         builder.Services.AddSingleton<FixityScheduler>();

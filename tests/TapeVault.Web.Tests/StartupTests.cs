@@ -128,17 +128,11 @@ public sealed partial class StartupTests
     /// <summary>Starts the app once and returns what it printed to the console while starting.</summary>
     private static async Task<string> StartAndStopAsync(ArchiveFolder folder, Dictionary<string, string?> settings)
     {
-        var original = Console.Out;
+        // This app's own console: tests that start apps side by side must not hear each other's words.
         using var captured = new StringWriter();
-        Console.SetOut(TextWriter.Synchronized(captured));
-        try
+        await using (var app = new ArchiveAppFactory(folder, settings, console: TextWriter.Synchronized(captured)))
         {
-            await using var app = new ArchiveAppFactory(folder, settings);
             _ = app.Services;
-        }
-        finally
-        {
-            Console.SetOut(original);
         }
 
         return captured.ToString();

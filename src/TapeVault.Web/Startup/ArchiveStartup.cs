@@ -13,7 +13,7 @@ namespace TapeVault.Web.Startup;
 /// Runs before the server listens: applies migrations, clears temporary files of interrupted uploads, makes the roles,
 /// the first curator (its one-time password printed once) and, in an empty archive, the demo collection.
 /// </summary>
-public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions web, ContentStore store, ILogger<ArchiveStartup> logger) : IHostedService
+public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions web, ContentStore store, OperatorConsole console, ILogger<ArchiveStartup> logger) : IHostedService
 {
     public async Task StartAsync(CancellationToken cancellationToken)
     {
@@ -46,7 +46,7 @@ public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions
         if (!string.IsNullOrWhiteSpace(web.InitialCurator) && !users.Users.Any())
         {
             var (_, password) = await admin.AddAsync(web.InitialCurator, Roles.Curator, null, "system").ConfigureAwait(false);
-            await Console.Out.WriteLineAsync(
+            await console.SayAsync(
                 $"""
 
                  TapeVault: first start. A curator account was made:
@@ -61,7 +61,7 @@ public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions
         // The organisation that holds the archive is named in every bag and catalogue: say where to set it.
         if (!(await OrganisationSettings.CurrentAsync(db, scope.ServiceProvider.GetRequiredService<ArchiveOptions>(), cancellationToken).ConfigureAwait(false)).IsSet)
         {
-            await Console.Out.WriteLineAsync(
+            await console.SayAsync(
                 $"""
 
                  TapeVault: the archive's organisation is not set, so bags and catalogues name none.

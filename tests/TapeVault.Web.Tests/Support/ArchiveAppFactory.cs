@@ -11,6 +11,7 @@ using Microsoft.Extensions.Logging;
 using TapeVault.Archive;
 using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Storage;
+using TapeVault.Web.Startup;
 
 namespace TapeVault.Web.Tests.Support;
 
@@ -80,12 +81,15 @@ public sealed class ArchiveAppFactory : WebApplicationFactory<Program>
 
     private readonly bool captureLogs;
     private readonly TimeProvider? clock;
+    private readonly TextWriter? console;
 
     /// <param name="clock">The app's clock, when a test must move time on (a <see cref="ManualClock"/>).</param>
-    public ArchiveAppFactory(ArchiveFolder folder, IReadOnlyDictionary<string, string?>? overrides = null, bool captureLogs = false, TimeProvider? clock = null)
+    /// <param name="console">Where this app's words to whoever started it go (standard output when null).</param>
+    public ArchiveAppFactory(ArchiveFolder folder, IReadOnlyDictionary<string, string?>? overrides = null, bool captureLogs = false, TimeProvider? clock = null, TextWriter? console = null)
     {
         this.captureLogs = captureLogs;
         this.clock = clock;
+        this.console = console;
         ArgumentNullException.ThrowIfNull(folder);
         Folder = folder;
         settings = new Dictionary<string, string?>(StringComparer.OrdinalIgnoreCase)
@@ -181,6 +185,11 @@ public sealed class ArchiveAppFactory : WebApplicationFactory<Program>
         if (clock is not null)
         {
             builder.ConfigureServices(services => services.AddSingleton(clock));
+        }
+
+        if (console is not null)
+        {
+            builder.ConfigureServices(services => services.AddSingleton(new OperatorConsole(console)));
         }
         if (captureLogs)
         {
