@@ -24,6 +24,13 @@ public static class ArchiveDatabase
         return builder.UseSqlite(ConnectionString(databasePath), sqlite => sqlite.MigrationsAssembly(MigrationsAssembly));
     }
 
+    /// <summary>The database the settings name.</summary>
+    public static DbContextOptionsBuilder Configure(DbContextOptionsBuilder builder, ArchiveOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        return Configure(builder, options.FullDatabasePath);
+    }
+
     public static ArchiveDbContext Open(string databasePath)
     {
         var options = new DbContextOptionsBuilder<ArchiveDbContext>();

@@ -32,6 +32,9 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
 
     public DbSet<OrganisationRecord> Organisation => Set<OrganisationRecord>();
 
+    /// <summary>The clock events are stamped with (<see cref="ArchiveDbContextFactory"/> sets the host's; the system clock otherwise).</summary>
+    public TimeProvider Clock { get; init; } = TimeProvider.System;
+
     public override int SaveChanges(bool acceptAllChangesOnSuccess)
     {
         var added = AddedEvents();
@@ -101,84 +104,8 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
         ArgumentNullException.ThrowIfNull(builder);
         base.OnModelCreating(builder);
 
-        builder.Entity<OrganisationRecord>(e =>
-        {
-            e.ToTable("Organisation");
-            e.Property(o => o.Id).ValueGeneratedNever();
-            e.Property(o => o.Name).HasMaxLength(200);
-            e.Property(o => o.Address).HasMaxLength(500);
-            e.Property(o => o.ContactName).HasMaxLength(200);
-            e.Property(o => o.ContactPhone).HasMaxLength(60);
-            e.Property(o => o.ContactEmail).HasMaxLength(254);
-        });
-
-        builder.Entity<Collection>(e =>
-        {
-            e.Property(c => c.Name).HasMaxLength(200);
-            e.Property(c => c.Description).HasMaxLength(20_000);
-        });
-
-        builder.Entity<TapeItem>(e =>
-        {
-            e.HasIndex(i => i.AccessionNumber).IsUnique();
-            e.Property(i => i.AccessionNumber).HasMaxLength(64);
-            e.Property(i => i.Title).HasMaxLength(300);
-            e.HasOne(i => i.Collection).WithMany(c => c.Items).HasForeignKey(i => i.CollectionId).OnDelete(DeleteBehavior.Restrict);
-        });
-
-        builder.Entity<StoredObject>(e =>
-        {
-            e.HasKey(o => o.Sha256);
-            e.Property(o => o.Sha256).HasMaxLength(64);
-            e.Property(o => o.Kind).HasConversion<string>().HasMaxLength(16);
-        });
-
-        builder.Entity<Capture>(e =>
-        {
-            e.HasIndex(c => new { c.ItemId, c.Sha256 }).IsUnique();
-            e.HasOne(c => c.Item).WithMany(i => i.Captures).HasForeignKey(c => c.ItemId).OnDelete(DeleteBehavior.Restrict);
-            e.HasOne(c => c.StoredFile).WithMany().HasForeignKey(c => c.Sha256).OnDelete(DeleteBehavior.Restrict);
-        });
-
-        builder.Entity<DecodeRun>(e =>
-        {
-            e.HasOne(r => r.Capture).WithMany(c => c.Runs).HasForeignKey(r => r.CaptureId).OnDelete(DeleteBehavior.Restrict);
-        });
-
-        builder.Entity<CandidateRecord>(e =>
-        {
-            e.HasIndex(c => new { c.RunId, c.Position });
-            e.HasOne(c => c.Run).WithMany(r => r.Candidates).HasForeignKey(c => c.RunId).OnDelete(DeleteBehavior.Cascade);
-        });
-
-        builder.Entity<TapeImageRecord>(e =>
-        {
-            e.HasIndex(i => new { i.ItemId, i.Version }).IsUnique();
-            e.HasOne(i => i.Item).WithMany(t => t.Images).HasForeignKey(i => i.ItemId).OnDelete(DeleteBehavior.Restrict);
-            e.HasOne(i => i.StoredFile).WithMany().HasForeignKey(i => i.Sha256).OnDelete(DeleteBehavior.Restrict);
-        });
-
-        builder.Entity<ArchiveEvent>(e =>
-        {
-            e.HasIndex(v => v.ItemId);
-            e.HasIndex(v => new { v.ObjectType, v.ObjectId });
-            e.Property(v => v.Sha256).HasMaxLength(64);
-            e.Property(v => v.PreviousSha256).HasMaxLength(64);
-            e.Ignore(v => v.Sequence);
-        });
-
-        builder.Entity<ExportRecord>(e =>
-        {
-            e.HasOne(x => x.StoredFile).WithMany().HasForeignKey(x => x.Sha256).OnDelete(DeleteBehavior.Restrict);
-            e.HasIndex(x => x.CollectionId);
-            e.HasIndex(x => x.ItemId);
-        });
-
-        builder.Entity<JobRecord>(e =>
-        {
-            e.HasIndex(j => j.State);
-            e.Property(j => j.State).HasConversion<string>().HasMaxLength(16);
-        });
+        // One IEntityTypeConfiguration per entity, in Entities/Configuration.
+        builder.ApplyConfigurationsFromAssembly(typeof(ArchiveDbContext).Assembly);
     }
 
     /// <summary>Refuses changed or removed events; returns the added ones in the order they were added.</summary>

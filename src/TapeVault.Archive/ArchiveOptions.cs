@@ -1,3 +1,5 @@
+using System.ComponentModel.DataAnnotations;
+
 namespace TapeVault.Archive;
 
 /// <summary>The "TapeVault:Archive" section of appsettings.json.</summary>
@@ -9,12 +11,15 @@ public sealed class ArchiveOptions
     public string BaseFolder { get; set; } = Directory.GetCurrentDirectory();
 
     /// <summary>The SQLite database file; a relative path is taken from <see cref="BaseFolder"/>.</summary>
+    [Required(AllowEmptyStrings = false)]
     public string DatabasePath { get; set; } = "data/tapevault.db";
 
     /// <summary>The content store's root folder (originals, images, exports).</summary>
+    [Required(AllowEmptyStrings = false)]
     public string StorePath { get; set; } = "data/store";
 
     /// <summary>The largest capture accepted, in bytes.</summary>
+    [Range(1, long.MaxValue)]
     public long MaxUploadBytes { get; set; } = 2L * 1024 * 1024 * 1024;
 
     /// <summary>The file name extensions accepted for captures when the settings name none.</summary>
@@ -40,12 +45,15 @@ public sealed class ArchiveOptions
     public IReadOnlyList<string> AcceptedContentTypes => InForce(AllowedContentTypes, DefaultContentTypes);
 
     /// <summary>How many jobs run at once.</summary>
+    [Range(1, 64)]
     public int Workers { get; set; } = 2;
 
     /// <summary>How many times a job interrupted by a restart is started again before it is failed.</summary>
+    [Range(1, 100)]
     public int MaxAttempts { get; set; } = 3;
 
     /// <summary>The organisation that holds the archive, named in bags and catalogues.</summary>
+    [Required]
     public Organisation Organisation { get; set; } = new();
 
     public string FullDatabasePath => Path.GetFullPath(DatabasePath, BaseFolder);

@@ -1,6 +1,8 @@
 using Microsoft.AspNetCore.Identity;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.DependencyInjection.Extensions;
+using Microsoft.Extensions.Options;
 using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Export;
 using TapeVault.Archive.Fixity;
@@ -14,19 +16,35 @@ namespace TapeVault.Archive;
 
 public static class ArchiveServices
 {
-    /// <summary>The database, the content store, ingest, jobs and the Identity stores; the host adds its own sign-in scheme.</summary>
+    /// <summary>
+    /// The archive as every host runs it (the web app, the command line, a worker): its settings, checked when the
+    /// host starts; the clock; the database; the content store; ingest, curation, fixity, exports, jobs; and the
+    /// accounts (Identity's user and role stores with the archive's password rules). The web app adds only its
+    /// sign-in scheme on top.
+    /// </summary>
     public static IServiceCollection AddTapeVaultArchive(this IServiceCollection services, ArchiveOptions options, ProfileCatalog profiles)
     {
         ArgumentNullException.ThrowIfNull(options);
-        services.AddSingleton(options);
+        ArgumentNullException.ThrowIfNull(profiles);
+        services.AddSingleton<IValidateOptions<ArchiveOptions>, ArchiveOptionsValidation>();
+        services.AddSingleton<IOptionsFactory<ArchiveOptions>>(s => new GivenOptionsFactory<ArchiveOptions>(options, s.GetServices<IValidateOptions<ArchiveOptions>>()));
+        services.AddOptions<ArchiveOptions>().ValidateOnStart();
+        services.AddSingleton(s => s.GetRequiredService<IOptions<ArchiveOptions>>().Value);
+        services.TryAddSingleton(TimeProvider.System);
         services.AddScoped<FixityAudit>();
         services.AddScoped<BagExport>();
         services.AddScoped<OrganisationSettings>();
         services.AddScoped<CataloguePublisher>();
         services.AddScoped<ExportStore>();
         services.AddSingleton(profiles);
-        services.AddSingleton(new ContentStore(options.FullStorePath));
-        services.AddDbContextFactory<ArchiveDbContext>(db => ArchiveDatabase.Configure(db, options.FullDatabasePath));
+        services.AddSingleton(s => new ContentStore(s.GetRequiredService<ArchiveOptions>().FullStorePath));
+        // A context asked for directly (Identity's stores, a request's scope) comes from the factory too, so it has the clock.
+        services.AddScoped(s => s.GetRequiredService<IDbContextFactory<ArchiveDbContext>>().CreateDbContext());
+        services.AddDbContextFactory<ArchiveDbContext, ArchiveDbContextFactory>((s, db) => ArchiveDatabase.Configure(db, s.GetRequiredService<ArchiveOptions>()));
+        services.AddIdentityCore<IdentityUser>(ConfigureIdentity)
+            .AddRoles<IdentityRole>()
+            .AddEntityFrameworkStores<ArchiveDbContext>()
+            .AddArchivePasswordPolicy();
         services.AddScoped<CaptureIngest>();
         services.AddScoped<DemoSeeder>();
         services.AddScoped<UserAdmin>();

@@ -48,7 +48,7 @@ public sealed class OrganisationSettings(ArchiveDbContext db, ArchiveOptions opt
         row.ContactName = contact;
         row.ContactPhone = phone;
         row.ContactEmail = email;
-        row.UpdatedUtc = DateTimeOffset.UtcNow;
+        row.UpdatedUtc = db.Clock.GetUtcNow();
         row.UpdatedBy = agent;
         EventLog.Add(db, EventTypes.Settings, agent, "organisation", "archive", "success", $"The archive's organisation was set to '{Organisation.OneLine(name)}'.");
         await db.SaveChangesAsync(cancellation).ConfigureAwait(false);

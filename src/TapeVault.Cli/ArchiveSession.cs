@@ -1,10 +1,6 @@
-using Microsoft.AspNetCore.Identity;
 using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.Options;
 using TapeVault.Archive;
-using TapeVault.Archive.Accounts;
-using TapeVault.Archive.Export;
-using TapeVault.Archive.Fixity;
-using TapeVault.Archive.Storage;
 using TapeVault.Core.Formats;
 
 namespace TapeVault.Cli;
@@ -41,19 +37,19 @@ public sealed class ArchiveSession : IDisposable
 
         var collection = new ServiceCollection();
         collection.AddLogging();
-        collection.AddSingleton(options);
-        collection.AddSingleton(ProfileCatalog.WithUserFolder(settings.ProfilesFolder is { Length: > 0 } folder ? Path.GetFullPath(folder, options.BaseFolder) : null));
-        collection.AddSingleton(new ContentStore(options.FullStorePath));
-        collection.AddDbContext<ArchiveDbContext>(db => ArchiveDatabase.Configure(db, options.FullDatabasePath));
-        collection.AddIdentityCore<IdentityUser>(ArchiveServices.ConfigureIdentity)
-            .AddRoles<IdentityRole>()
-            .AddEntityFrameworkStores<ArchiveDbContext>()
-            .AddArchivePasswordPolicy();
-        collection.AddScoped<UserAdmin>();
-        collection.AddScoped<FixityAudit>();
-        collection.AddScoped<BagExport>();
-        collection.AddScoped<CataloguePublisher>();
+        collection.AddTapeVaultArchive(options, ProfileCatalog.WithUserFolder(settings.ProfilesFolder is { Length: > 0 } folder ? Path.GetFullPath(folder, options.BaseFolder) : null));
         var session = new ArchiveSession(collection.BuildServiceProvider());
+        try
+        {
+            // The settings are checked here, as the web app checks them when it starts.
+            _ = session.Options;
+        }
+        catch (OptionsValidationException problem)
+        {
+            session.Dispose();
+            throw new UsageException($"appsettings.json: {string.Join(" ", problem.Failures)}");
+        }
+
         ArchiveDatabase.MigrateAsync(session.Get<ArchiveDbContext>()).GetAwaiter().GetResult();
         return session;
     }

@@ -61,10 +61,9 @@ public static class WebApp
             .SetApplicationName("TapeVault")
             .PersistKeysToFileSystem(new DirectoryInfo(Path.Combine(Path.GetDirectoryName(archive.FullDatabasePath)!, "keys")));
 
-        builder.Services.AddIdentity<IdentityUser, IdentityRole>(ArchiveServices.ConfigureIdentity)
-            .AddEntityFrameworkStores<ArchiveDbContext>()
-            .AddDefaultTokenProviders()
-            .AddArchivePasswordPolicy();
+        // The archive registered the account stores and password rules; the web app adds the sign-in scheme.
+        builder.Services.AddIdentity<IdentityUser, IdentityRole>()
+            .AddDefaultTokenProviders();
 
         // Every request checks the session's security stamp against the account's, so that signing out, a password
         // change, a reset and disabling end every session at once, copies of the cookie included.

@@ -29,7 +29,7 @@ public sealed class StoredCandidateTests(SharedArchive shared)
         }
 
         // The archive keeps why a reading failed: every failed row says it.
-        var failed = await db.Candidates.AsNoTracking().Where(c => c.Status == "failed").ToListAsync();
+        var failed = await db.Candidates.AsNoTracking().Where(c => c.Status == TapeVault.Core.Blocks.BlockStatus.Failed).ToListAsync();
         Assert.All(failed, f => Assert.NotEqual(0, f.Doubts));
     }
 

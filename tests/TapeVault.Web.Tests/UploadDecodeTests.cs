@@ -66,7 +66,7 @@ public sealed class UploadDecodeTests
         await using (var scope = app.Scope())
         {
             var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
-            var payloads = await db.Candidates.Where(c => c.RunId == run.Run.Id && c.Status == "clean").Select(c => c.Payload).ToListAsync();
+            var payloads = await db.Candidates.Where(c => c.RunId == run.Run.Id && c.Status == TapeVault.Core.Blocks.BlockStatus.Clean).Select(c => c.Payload).ToListAsync();
             Assert.All(payloads, p => Assert.Contains(capture.Payloads, truth => truth.AsSpan().SequenceEqual(p)));
             Assert.Equal(1, await db.Runs.CountAsync(r => r.CaptureId == uploaded.Capture.Id));
         }

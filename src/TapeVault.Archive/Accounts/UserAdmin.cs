@@ -177,7 +177,7 @@ public sealed class UserAdmin(UserManager<IdentityUser> users, RoleManager<Ident
 
     /// <summary>Whether the account is disabled: Identity's lock with no end is how this archive disables one.</summary>
     public async Task<bool> IsDisabledAsync(IdentityUser user) =>
-        await users.GetLockoutEndDateAsync(user).ConfigureAwait(false) is { } end && end > DateTimeOffset.UtcNow;
+        await users.GetLockoutEndDateAsync(user).ConfigureAwait(false) is { } end && end > db.Clock.GetUtcNow();
 
     /// <summary>Whether the account's password is a one-time password that must be changed before anything else.</summary>
     public async Task<bool> MustChangePasswordAsync(IdentityUser user) =>

@@ -15,7 +15,7 @@ public sealed class CuratorActions(ArchiveDbContext db, ProfileCatalog profiles)
     public async Task<Collection> CreateCollectionAsync(string name, string? description, string agent, CancellationToken cancellation = default)
     {
         name = Required(name, "collection name", 200);
-        var collection = new Collection { Name = name, Description = Optional(description, "description"), CreatedUtc = DateTimeOffset.UtcNow };
+        var collection = new Collection { Name = name, Description = Optional(description, "description"), CreatedUtc = db.Clock.GetUtcNow() };
         db.Collections.Add(collection);
         await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
         EventLog.Add(db, EventTypes.Create, agent, "collection", collection.Id.ToString(), "success", $"Collection '{name}' created.");
@@ -50,7 +50,7 @@ public sealed class CuratorActions(ArchiveDbContext db, ProfileCatalog profiles)
             LabelText = Optional(labelText, "label text"),
             ConditionNotes = Optional(condition, "condition notes"),
             Side = string.IsNullOrWhiteSpace(side) ? "A" : Required(side, "side", 16),
-            CreatedUtc = DateTimeOffset.UtcNow,
+            CreatedUtc = db.Clock.GetUtcNow(),
         };
         db.Items.Add(item);
         await db.SaveChangesAsync(cancellation).ConfigureAwait(false);

@@ -1,3 +1,5 @@
+using TapeVault.Core.Blocks;
+
 namespace TapeVault.Archive.Entities;
 
 /// <summary>One decode of one capture with one bank of detector settings: what was used, and what came out.</summary>
@@ -55,7 +57,7 @@ public sealed class CandidateRecord
 
     public int Ordinal { get; set; }
 
-    public required string Status { get; set; }
+    public BlockStatus Status { get; set; }
 
     public double Confidence { get; set; }
 

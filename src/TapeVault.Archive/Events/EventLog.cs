@@ -34,7 +34,7 @@ public static class EventLog
         var entry = new ArchiveEvent
         {
             EventType = eventType,
-            OccurredUtc = DateTimeOffset.UtcNow,
+            OccurredUtc = db.Clock.GetUtcNow(),
             Agent = string.IsNullOrWhiteSpace(agent) ? SystemAgent : agent,
             ObjectType = objectType,
             ObjectId = objectId,

@@ -85,7 +85,7 @@ public sealed class BagExport(ArchiveDbContext db, ContentStore store, ArchiveOp
         }
 
         info
-            .Append(CultureInfo.InvariantCulture, $"Bagging-Date: {DateTime.UtcNow:yyyy-MM-dd}\n")
+            .Append(CultureInfo.InvariantCulture, $"Bagging-Date: {db.Clock.GetUtcNow():yyyy-MM-dd}\n")
             .Append(CultureInfo.InvariantCulture, $"Payload-Oxum: {bytes}.{manifest.Count}\n")
             .Append(CultureInfo.InvariantCulture, $"Bag-Software-Agent: TapeVault {Core.Decoding.CaptureDecoder.CodeVersion}\n")
             .Append(CultureInfo.InvariantCulture, $"Event-Chain-Head: {headText}\n");

@@ -1,3 +1,4 @@
+using TapeVault.Core.Blocks;
 using System.Globalization;
 using System.IO.Compression;
 using Microsoft.EntityFrameworkCore;
@@ -45,7 +46,7 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
 
         var head = await EventChain.HeadAsync(db, cancellation).ConfigureAwait(false);
         var organisation = await OrganisationSettings.CurrentAsync(db, options, cancellation).ConfigureAwait(false);
-        return new CatalogueSite(collection.Name, collection.Description, organisation.DisplayName, DateTimeOffset.UtcNow, items, head?.ToString());
+        return new CatalogueSite(collection.Name, collection.Description, organisation.DisplayName, db.Clock.GetUtcNow(), items, head?.ToString());
     }
 
     /// <summary>Writes the catalogue into an empty folder; records nothing (see <see cref="RecordPublishedAsync"/>).</summary>
@@ -136,7 +137,7 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
             return null;
         }
 
-        var clean = await db.Candidates.AsNoTracking().Where(c => c.RunId == run.Id && c.Status == "clean")
+        var clean = await db.Candidates.AsNoTracking().Where(c => c.RunId == run.Id && c.Status == BlockStatus.Clean)
             .Select(c => new { c.SettingName, c.Speed }).ToListAsync(cancellation).ConfigureAwait(false);
         var settings = Runs.SettingsJson.Read(run.SettingsJson);
         var best = clean.GroupBy(c => c.SettingName).OrderByDescending(g => g.Count()).FirstOrDefault();

@@ -39,7 +39,7 @@ public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExpo
         bool known = await db.Objects.AnyAsync(o => o.Sha256 == staged.Sha256, cancellation).ConfigureAwait(false);
         if (!known)
         {
-            db.Objects.Add(new StoredObject { Sha256 = staged.Sha256, Size = staged.Size, Kind = ObjectKind.Export, StoredUtc = DateTimeOffset.UtcNow });
+            db.Objects.Add(new StoredObject { Sha256 = staged.Sha256, Size = staged.Size, Kind = ObjectKind.Export, StoredUtc = db.Clock.GetUtcNow() });
         }
 
         var record = new ExportRecord
@@ -49,7 +49,7 @@ public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExpo
             ItemId = itemId,
             Sha256 = staged.Sha256,
             FileName = fileName,
-            CreatedUtc = DateTimeOffset.UtcNow,
+            CreatedUtc = db.Clock.GetUtcNow(),
             CreatedBy = agent,
         };
         db.Exports.Add(record);

@@ -44,7 +44,7 @@ public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
 
     public async Task<FixityReport> RunAsync(int? collectionId, string agent, IProgress<FixityProgress>? progress = null, CancellationToken cancellation = default)
     {
-        var started = DateTimeOffset.UtcNow;
+        var started = db.Clock.GetUtcNow();
         if (collectionId is { } id && !await db.Collections.AnyAsync(c => c.Id == id, cancellation).ConfigureAwait(false))
         {
             throw new ArchiveNotFoundException($"There is no collection {id}.");
@@ -134,7 +134,7 @@ public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
 
         await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
         var headAfter = await EventChain.HeadAsync(db, cancellation).ConfigureAwait(false);
-        return new FixityReport(objects.Count, good, problems, started, DateTimeOffset.UtcNow, chain, headAfter);
+        return new FixityReport(objects.Count, good, problems, started, db.Clock.GetUtcNow(), chain, headAfter);
     }
 
     /// <summary>Files in the store named like objects that no object row names (found at start and by the audit; never moved).</summary>

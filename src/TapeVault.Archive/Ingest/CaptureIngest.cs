@@ -76,14 +76,14 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
             Operator = request.Operator,
             CapturedOn = request.CapturedOn,
             Notes = request.Notes,
-            IngestedUtc = DateTimeOffset.UtcNow,
+            IngestedUtc = db.Clock.GetUtcNow(),
             IngestedBy = request.Agent,
         };
 
         await using var transaction = await db.Database.BeginTransactionAsync(cancellation).ConfigureAwait(false);
         if (!objectKnown)
         {
-            db.Objects.Add(new StoredObject { Sha256 = staged.Sha256, Size = staged.Size, Kind = ObjectKind.Original, StoredUtc = DateTimeOffset.UtcNow });
+            db.Objects.Add(new StoredObject { Sha256 = staged.Sha256, Size = staged.Size, Kind = ObjectKind.Original, StoredUtc = db.Clock.GetUtcNow() });
         }
 
         db.Captures.Add(capture);

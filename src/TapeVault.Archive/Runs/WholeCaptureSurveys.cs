@@ -1,3 +1,4 @@
+using TapeVault.Core.Blocks;
 using System.Collections.Immutable;
 using System.Security.Cryptography;
 using System.Text;
@@ -80,12 +81,12 @@ public static class WholeCaptureSurveys
     /// The playback speed a setting's marks are placed for: the median over block positions of the speed of that
     /// setting's best reading there (clean first, then the most confident); 1 where it read no block.
     /// </summary>
-    public static double SpeedOf(IEnumerable<(int Position, string SettingName, string Status, double Confidence, double Speed)> readings, string settingName)
+    public static double SpeedOf(IEnumerable<(int Position, string SettingName, BlockStatus Status, double Confidence, double Speed)> readings, string settingName)
     {
         ArgumentNullException.ThrowIfNull(readings);
         var speeds = readings.Where(r => r.SettingName == settingName)
             .GroupBy(r => r.Position)
-            .Select(g => g.OrderByDescending(r => r.Status == "clean").ThenByDescending(r => r.Confidence).First().Speed)
+            .Select(g => g.OrderByDescending(r => r.Status == BlockStatus.Clean).ThenByDescending(r => r.Confidence).First().Speed)
             .Where(v => v > 0 && double.IsFinite(v))
             .Order()
             .ToArray();

@@ -28,7 +28,7 @@ public sealed class DemoSeeder(ArchiveDbContext db, ContentStore store, ArchiveO
             Name = $"{DemoTapes.Club} (demo)",
             Description = "A fictional club's shelf of tapes for its fictional Orrin 80 computer, made up for TapeVault's demonstration. "
                 + "The captures are synthesised, each pass with its own damage (noise, wow, dropouts, a head amplifier with inverted wiring).",
-            CreatedUtc = DateTimeOffset.UtcNow,
+            CreatedUtc = db.Clock.GetUtcNow(),
         };
         db.Collections.Add(collection);
         await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
@@ -48,7 +48,7 @@ public sealed class DemoSeeder(ArchiveDbContext db, ContentStore store, ArchiveO
                     LabelText = tape.LabelText,
                     ConditionNotes = tape.Condition,
                     Side = "A",
-                    CreatedUtc = DateTimeOffset.UtcNow,
+                    CreatedUtc = db.Clock.GetUtcNow(),
                 };
                 db.Items.Add(item);
                 await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
@@ -69,7 +69,7 @@ public sealed class DemoSeeder(ArchiveDbContext db, ContentStore store, ArchiveO
                             ContentType = "audio/wav",
                             Deck = pass.Deck,
                             Operator = "demo",
-                            CapturedOn = DateOnly.FromDateTime(DateTime.UtcNow),
+                            CapturedOn = DateOnly.FromDateTime(db.Clock.GetUtcNow().UtcDateTime),
                             Notes = pass.Description,
                             Agent = EventLog.SystemAgent,
                         }, cancellation).ConfigureAwait(false);

@@ -1,3 +1,4 @@
+using TapeVault.Core.Blocks;
 using Microsoft.AspNetCore.Identity;
 using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive;
@@ -71,7 +72,7 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
         var positions = candidates.GroupBy(c => c.Position).Select(g =>
         {
             var readings = g.Select(ToView).ToList();
-            var best = g.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First();
+            var best = g.OrderByDescending(c => c.Status == BlockStatus.Clean).ThenByDescending(c => c.Confidence).First();
             return new PositionView(g.Key, best.IdentityKey, ToView(best), readings);
         }).ToList();
         var item = run.Capture!.Item!;
@@ -259,9 +260,9 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
             foreach (var settingName in SettingsJson.Read(run.SettingsJson).Select(s => s.Name))
             {
                 var byKey = ofRun.Where(c => c.SettingName == settingName).GroupBy(c => c.IdentityKey, StringComparer.Ordinal)
-                    .ToDictionary(g => g.Key, g => g.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First(), StringComparer.Ordinal);
+                    .ToDictionary(g => g.Key, g => g.OrderByDescending(c => c.Status == BlockStatus.Clean).ThenByDescending(c => c.Confidence).First(), StringComparer.Ordinal);
                 var cells = columns.Select(col => byKey.TryGetValue(col.Key, out var best)
-                    ? new BlockMapCell(best.Status, best.Confidence,
+                    ? new BlockMapCell(Vocabulary.Of(best.Status).Name, best.Confidence,
                         chosen.TryGetValue(col.Key, out var win) && win.Capture == run.Capture!.Sha256 && win.Setting == settingName)
                     : new BlockMapCell("none", 0, false)).ToList();
                 rows.Add(new BlockMapRow(run.CaptureId, run.Capture!.OriginalFileName, run.Id, settingName, cells));
@@ -288,7 +289,7 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
             .Select(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed })
             .ToListAsync(cancellation).ConfigureAwait(false);
         var captureOfRun = runs.ToDictionary(r => r.Id, r => r.Capture!.Sha256);
-        var readings = rows.Select(c => new TimelineReading(captureOfRun[c.RunId], c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed)).ToList();
+        var readings = rows.Select(c => new TimelineReading(captureOfRun[c.RunId], c.SettingName, c.IdentityKey, Vocabulary.Of(c.Status).Name, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed)).ToList();
         var captures = runs.Select(r => (r.Capture!.Sha256, $"Capture {r.CaptureId} · {r.Capture.OriginalFileName}")).ToList();
         var settings = runs.ToDictionary(r => r.Capture!.Sha256, r => (IReadOnlyList<string>)[.. SettingsJson.Read(r.SettingsJson).Select(s => s.Name)], StringComparer.Ordinal);
 
@@ -325,7 +326,7 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
         {
             var run = runById[c.RunId];
             bool same = block.Status != RecoveryStatus.Missing && c.Payload.AsSpan().SequenceEqual(block.Payload.AsSpan());
-            return new PositionReading(run.CaptureId, run.Capture!.OriginalFileName, run.Id, c.SettingName, c.Status, c.Confidence, c.StartSeconds,
+            return new PositionReading(run.CaptureId, run.Capture!.OriginalFileName, run.Id, c.SettingName, Vocabulary.Of(c.Status).Name, c.Confidence, c.StartSeconds,
                 c.PayloadLength, Convert.ToHexStringLower(c.Payload.AsSpan(0, Math.Min(c.Payload.Length, 16))), c.MinimumMargin, c.MeanMargin,
                 c.AmbiguousDecisions, same);
         }).ToList();
@@ -394,7 +395,7 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
             list.Add(new UserView(
                 user.UserName ?? string.Empty,
                 [.. roles],
-                user.LockoutEnd is { } end && end > DateTimeOffset.UtcNow,
+                user.LockoutEnd is { } end && end > db.Clock.GetUtcNow(),
                 claims.Any(c => c.Type == Archive.Accounts.UserAdmin.MustChangePasswordClaim)));
         }
 
@@ -426,7 +427,7 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
     public static CandidateView ToView(CandidateRecord c)
     {
         ArgumentNullException.ThrowIfNull(c);
-        return new(c.SettingName, c.Status, c.Confidence, c.MinimumMargin, c.MeanMargin, c.AmbiguousDecisions, c.Decisions, c.SnrDb,
+        return new(c.SettingName, Vocabulary.Of(c.Status).Name, c.Confidence, c.MinimumMargin, c.MeanMargin, c.AmbiguousDecisions, c.Decisions, c.SnrDb,
             c.Speed, c.StartSeconds, c.EndSeconds, c.Truncated, c.PayloadLength, c.PayloadSha256);
     }
 

@@ -1,3 +1,4 @@
+using TapeVault.Core.Text;
 using System.Collections.Concurrent;
 using System.Security.Claims;
 using Microsoft.EntityFrameworkCore;
@@ -337,7 +338,7 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
 
         // Only the columns the plots need: the payload and margin blobs stay in the database.
         var candidates = await db.Candidates.AsNoTracking().Where(c => c.RunId == run.Id)
-            .Select(c => new CandidatePoint(c.Position, c.SettingIndex, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.Speed, c.StartSeconds, c.EndSeconds))
+            .Select(c => new CandidatePoint(c.Position, c.SettingIndex, c.SettingName, c.IdentityKey, Vocabulary.Of(c.Status).Name, c.Confidence, c.Speed, c.StartSeconds, c.EndSeconds))
             .ToListAsync(cancellation).ConfigureAwait(false);
 
         DetectorSetting chosen;
