@@ -47,6 +47,7 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
         var own = Database.CurrentTransaction is null ? Database.BeginTransaction() : null;
         try
         {
+            ArchiveDatabase.LockEventsForAppend(this);
             var head = Events.AsNoTracking().OrderByDescending(e => e.Id).Select(e => new { e.Id, e.Sha256 }).FirstOrDefault();
             EventChain.Link(added, head?.Id ?? 0, head?.Sha256);
             int saved = base.SaveChanges(acceptAllChangesOnSuccess);
@@ -70,6 +71,7 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
         var own = Database.CurrentTransaction is null ? await Database.BeginTransactionAsync(cancellationToken).ConfigureAwait(false) : null;
         try
         {
+            await ArchiveDatabase.LockEventsForAppendAsync(this, cancellationToken).ConfigureAwait(false);
             var head = await Events.AsNoTracking().OrderByDescending(e => e.Id).Select(e => new { e.Id, e.Sha256 })
                 .FirstOrDefaultAsync(cancellationToken).ConfigureAwait(false);
             EventChain.Link(added, head?.Id ?? 0, head?.Sha256);

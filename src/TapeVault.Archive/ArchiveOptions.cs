@@ -2,6 +2,13 @@ using System.ComponentModel.DataAnnotations;
 
 namespace TapeVault.Archive;
 
+/// <summary>The database engines the archive runs on.</summary>
+public enum DatabaseProvider
+{
+    Sqlite,
+    PostgreSql,
+}
+
 /// <summary>The "TapeVault:Archive" section of appsettings.json.</summary>
 public sealed class ArchiveOptions
 {
@@ -10,7 +17,16 @@ public sealed class ArchiveOptions
     /// <summary>The folder relative paths are taken from (the repository root when run from a clone; else the current folder).</summary>
     public string BaseFolder { get; set; } = Directory.GetCurrentDirectory();
 
-    /// <summary>The SQLite database file; a relative path is taken from <see cref="BaseFolder"/>.</summary>
+    /// <summary>Which database holds the archive: an SQLite file (the default, nothing to set up) or a PostgreSQL server.</summary>
+    public DatabaseProvider Provider { get; set; } = DatabaseProvider.Sqlite;
+
+    /// <summary>
+    /// With <see cref="DatabaseProvider.PostgreSql"/>, the server's connection string (Npgsql's keywords, e.g.
+    /// "Host=db.example.org;Port=5432;Database=tapevault;Username=tapevault;Password=…"); unused with SQLite.
+    /// </summary>
+    public string ConnectionString { get; set; } = "";
+
+    /// <summary>With <see cref="DatabaseProvider.Sqlite"/>, the database file; a relative path is taken from <see cref="BaseFolder"/>.</summary>
     [Required(AllowEmptyStrings = false)]
     public string DatabasePath { get; set; } = "data/tapevault.db";
 

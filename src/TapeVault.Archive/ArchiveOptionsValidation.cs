@@ -19,6 +19,29 @@ public sealed class ArchiveOptionsValidation : IValidateOptions<ArchiveOptions>
             failures.AddRange(results.Select(r => $"{ArchiveOptions.Section}:{string.Join(",", r.MemberNames)}: {r.ErrorMessage}"));
         }
 
+        if (!Enum.IsDefined(options.Provider))
+        {
+            failures.Add($"{ArchiveOptions.Section}:Provider: \"{options.Provider}\" is not a database provider; use Sqlite or PostgreSql.");
+        }
+        else if (options.Provider == DatabaseProvider.PostgreSql)
+        {
+            if (string.IsNullOrWhiteSpace(options.ConnectionString))
+            {
+                failures.Add($"{ArchiveOptions.Section}:ConnectionString: the PostgreSql provider needs a connection string (Host=…;Database=…;Username=…).");
+            }
+            else
+            {
+                try
+                {
+                    _ = new Npgsql.NpgsqlConnectionStringBuilder(options.ConnectionString);
+                }
+                catch (ArgumentException problem)
+                {
+                    failures.Add($"{ArchiveOptions.Section}:ConnectionString: {problem.Message}");
+                }
+            }
+        }
+
         foreach (var extension in options.AcceptedExtensions)
         {
             if (extension.Length < 2 || extension[0] != '.' || extension.IndexOfAny(Path.GetInvalidFileNameChars()) >= 0)

@@ -48,10 +48,17 @@ public sealed class ArchiveFixture : IAsyncDisposable
         new("DATA", Enumerable.Range(0, 300).Select(i => unchecked((byte)(i * 7))).ToArray()),
     ];
 
-    public static async Task<ArchiveFixture> CreateAsync(string conditionNotes = "Slight oxide shedding.")
+    /// <summary>Builds the archive on an SQLite file in the folder, or on the PostgreSQL database <paramref name="postgreSql"/> names.</summary>
+    public static async Task<ArchiveFixture> CreateAsync(string conditionNotes = "Slight oxide shedding.", string? postgreSql = null)
     {
         var root = Directory.CreateTempSubdirectory("tapevault-archive-test-").FullName;
         var options = new ArchiveOptions { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" };
+        if (postgreSql is not null)
+        {
+            options.Provider = DatabaseProvider.PostgreSql;
+            options.ConnectionString = postgreSql;
+        }
+
         var collection = new ServiceCollection();
         collection.AddLogging();
         options.Organisation = new Organisation { Name = "Test Archive", Address = "1 Test Street\nTestford", ContactEmail = "archive@example.org" };

@@ -5,7 +5,8 @@ namespace TapeVault.Archive.Storage;
 /// <summary>
 /// A full disk, told apart from other faults so that people are told what happened: the content store's writes fail
 /// with ENOSPC (errno 28 on Linux and macOS, which .NET puts in the IOException's HResult; ERROR_DISK_FULL and
-/// ERROR_HANDLE_DISK_FULL on Windows), and SQLite's with SQLITE_FULL (result code 13).
+/// ERROR_HANDLE_DISK_FULL on Windows), SQLite's with SQLITE_FULL (result code 13)
+/// and PostgreSQL's with SQLSTATE 53100 (disk_full, PostgreSQL documentation, Appendix A).
 /// </summary>
 public static class StorageFaults
 {
@@ -20,6 +21,11 @@ public static class StorageFaults
         for (var e = exception; e is not null; e = e.InnerException)
         {
             if (e is SqliteException { SqliteErrorCode: SqliteFull })
+            {
+                return true;
+            }
+
+            if (e is Npgsql.PostgresException { SqlState: Npgsql.PostgresErrorCodes.DiskFull })
             {
                 return true;
             }
