@@ -155,7 +155,7 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
         }
         catch (ObjectTooLargeException e)
         {
-            throw new ArchiveInputException(e.Message);
+            throw new ArchiveTooLargeException(e.Message);
         }
     }
 

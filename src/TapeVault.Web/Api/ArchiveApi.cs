@@ -2,6 +2,7 @@ using System.Globalization;
 using System.Security.Claims;
 using Microsoft.AspNetCore.Antiforgery;
 using Microsoft.AspNetCore.Http.Features;
+using Microsoft.AspNetCore.Http.HttpResults;
 using Microsoft.AspNetCore.Identity;
 using Microsoft.AspNetCore.WebUtilities;
 using Microsoft.EntityFrameworkCore;
@@ -22,106 +23,166 @@ public static class ArchiveApi
 {
     public static void MapTapeVaultApi(this IEndpointRouteBuilder app)
     {
-        var api = app.MapGroup("/api").AddEndpointFilter(Errors).AddEndpointFilter(ApiAntiforgery.Validate).WithTags("archive");
-        var read = api.MapGroup(string.Empty).RequireAuthorization(Roles.ReaderPolicy);
-        var write = api.MapGroup(string.Empty).RequireAuthorization(Roles.CuratorPolicy);
+        // One group per resource, each with its tag in the OpenAPI document. A handler's refusals are thrown as the
+        // archive's exceptions and answered by the Errors filter as problem details (400, 404, 409); each group
+        // declares the ones it can give, so that the document lists them.
+        var api = app.MapGroup("/api").AddEndpointFilter(Errors).AddEndpointFilter(ApiAntiforgery.Validate);
+        MapSession(api.MapGroup(string.Empty).WithTags("session"));
+        MapCollections(api.MapGroup(string.Empty).WithTags("collections"));
+        MapItems(api.MapGroup(string.Empty).WithTags("items").ProducesProblem(StatusCodes.Status404NotFound));
+        MapCaptures(api.MapGroup(string.Empty).WithTags("captures").ProducesProblem(StatusCodes.Status404NotFound));
+        MapJobs(api.MapGroup(string.Empty).WithTags("jobs"));
+        MapExports(api.MapGroup(string.Empty).WithTags("exports"));
+        MapReference(api.MapGroup(string.Empty).WithTags("reference").RequireAuthorization(Roles.ReaderPolicy));
+        MapUsers(api.MapGroup(string.Empty).WithTags("users").RequireAuthorization(Roles.CuratorPolicy));
+    }
 
-        api.MapGet("/antiforgery", (HttpContext http, IAntiforgery antiforgery) =>
-            new AntiforgeryToken(ApiAntiforgery.HeaderName, antiforgery.GetAndStoreTokens(http).RequestToken!)).AllowAnonymous();
-        api.MapPost("/signin", SignInAsync).AllowAnonymous().RequireRateLimiting(RateLimits.SignIn)
+    private static void MapSession(RouteGroupBuilder session)
+    {
+        session.MapGet("/antiforgery", (HttpContext http, IAntiforgery antiforgery) =>
+            TypedResults.Ok(new AntiforgeryToken(ApiAntiforgery.HeaderName, antiforgery.GetAndStoreTokens(http).RequestToken!))).AllowAnonymous();
+        session.MapPost("/signin", SignInAsync).AllowAnonymous().RequireRateLimiting(RateLimits.SignIn)
             .WithDescription("Sign in. 204 signed in; 401 wrong name or password (one answer for both); 429 too many attempts (Retry-After says how long to wait). An account with a one-time password must then change it (POST /api/account/password) before anything else.");
-        api.MapPost("/signout", async (HttpContext http) =>
+        session.MapPost("/signout", async (HttpContext http) =>
         {
             await SignOutEverywhereAsync(http).ConfigureAwait(false);
-            return Results.NoContent();
+            return TypedResults.NoContent();
         }).RequireAuthorization(Roles.ReaderPolicy).WithDescription("Sign out: every session of this account ends, not only this one.");
-        api.MapPost("/account/password", async (PasswordChange body, UserAdmin admin, UserManager<IdentityUser> users, SignInManager<IdentityUser> signIn, HttpContext http) =>
+        session.MapPost("/account/password", async (PasswordChange body, UserAdmin admin, UserManager<IdentityUser> users, SignInManager<IdentityUser> signIn, HttpContext http) =>
         {
             string name = Agent(http);
             await admin.ChangePasswordAsync(name, body.CurrentPassword ?? string.Empty, body.NewPassword ?? string.Empty, name).ConfigureAwait(false);
             // The change ended every session; this one goes on with the new stamp.
             await signIn.RefreshSignInAsync((await users.FindByNameAsync(name).ConfigureAwait(false))!).ConfigureAwait(false);
-            return Results.NoContent();
-        }).RequireAuthorization(Roles.ReaderPolicy).WithDescription("Change the signed-in account's password; its other sessions end.");
+            return TypedResults.NoContent();
+        }).RequireAuthorization(Roles.ReaderPolicy).ProducesProblem(StatusCodes.Status400BadRequest)
+            .WithDescription("Change the signed-in account's password; its other sessions end.");
+    }
 
-        read.MapGet("/collections", (ArchiveQueries q, CancellationToken c) => q.CollectionsAsync(c));
-        read.MapGet("/collections/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.CollectionAsync(id, c));
-        read.MapGet("/items/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.ItemAsync(id, c));
-        read.MapGet("/items/{id:int}/events", (int id, ArchiveQueries q, CancellationToken c) => q.ItemEventsAsync(id, c));
-        read.MapGet("/captures/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.CaptureAsync(id, c));
-        read.MapDownload("/captures/{id:int}/original", DownloadOriginalAsync);
-        read.MapGet("/runs/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.RunAsync(id, c));
-        read.MapGet("/jobs", (ArchiveQueries q, CancellationToken c, int? take) => q.JobsAsync(take ?? 100, c));
-        read.MapGet("/jobs/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.JobAsync(id, c));
-        read.MapGet("/items/{id:int}/images", (int id, ArchiveQueries q, CancellationToken c) => q.ImagesAsync(id, c));
-        read.MapGet("/items/{id:int}/block-map", (int id, ArchiveQueries q, CancellationToken c) => q.BlockMapAsync(id, c));
-        read.MapGet("/items/{id:int}/positions/{position:int}", (int id, int position, ArchiveQueries q, CancellationToken c) => q.PositionAsync(id, position, c));
-        read.MapGet("/images/{id:int}", (int id, ArchiveQueries q, CancellationToken c) => q.ImageAsync(id, c));
-        read.MapDownload("/images/{id:int}/download", DownloadImageAsync);
-        read.MapGet("/exports", (ArchiveQueries q, int? collectionId, int? itemId, CancellationToken c) => q.ExportsAsync(collectionId, itemId, c));
-        read.MapDownload("/exports/{id:int}/download", DownloadExportAsync);
-        read.MapGet("/profiles", (ArchiveQueries q) => q.Profiles());
-        read.MapGet("/detector-settings", () => ArchiveQueries.DefaultSettings());
-
+    private static void MapCollections(RouteGroupBuilder collections)
+    {
+        var read = collections.MapGroup(string.Empty).RequireAuthorization(Roles.ReaderPolicy);
+        var write = collections.MapGroup(string.Empty).RequireAuthorization(Roles.CuratorPolicy);
+        read.MapGet("/collections", async (ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.CollectionsAsync(c).ConfigureAwait(false)));
+        read.MapGet("/collections/{id:int}", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.CollectionAsync(id, c).ConfigureAwait(false)))
+            .ProducesProblem(StatusCodes.Status404NotFound);
         write.MapPost("/collections", async (NewCollection body, CuratorActions actions, ArchiveQueries q, HttpContext http, CancellationToken c) =>
         {
             var created = await actions.CreateCollectionAsync(body.Name, body.Description, Agent(http), c).ConfigureAwait(false);
-            return Results.Created($"/api/collections/{created.Id}", await q.CollectionAsync(created.Id, c).ConfigureAwait(false));
-        });
-        write.MapPost("/collections/{id:int}/items", async (int id, NewItem body, CuratorActions actions, ArchiveQueries q, HttpContext http, CancellationToken c) =>
+            return TypedResults.Created($"/api/collections/{created.Id}", await q.CollectionAsync(created.Id, c).ConfigureAwait(false));
+        }).ProducesProblem(StatusCodes.Status400BadRequest);
+
+        var one = write.MapGroup(string.Empty).ProducesProblem(StatusCodes.Status404NotFound);
+        one.MapPost("/collections/{id:int}/items", async (int id, NewItem body, CuratorActions actions, ArchiveQueries q, HttpContext http, CancellationToken c) =>
         {
             var item = await actions.CreateItemAsync(id, body.AccessionNumber, body.Title, body.LabelText, body.ConditionNotes, body.Side, Agent(http), c).ConfigureAwait(false);
-            return Results.Created($"/api/items/{item.Id}", await q.ItemAsync(item.Id, c).ConfigureAwait(false));
-        });
+            return TypedResults.Created($"/api/items/{item.Id}", await q.ItemAsync(item.Id, c).ConfigureAwait(false));
+        }).ProducesProblem(StatusCodes.Status400BadRequest).ProducesProblem(StatusCodes.Status409Conflict)
+            .WithDescription("Add an item (one tape side) to the collection. 409 when the accession number is taken.");
+        one.MapPost("/collections/{id:int}/bag", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Bag, id, null, actions, runner, http, c));
+        one.MapPost("/collections/{id:int}/publish", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Publish, id, null, actions, runner, http, c));
+    }
+
+    private static void MapItems(RouteGroupBuilder items)
+    {
+        var read = items.MapGroup(string.Empty).RequireAuthorization(Roles.ReaderPolicy);
+        var write = items.MapGroup(string.Empty).RequireAuthorization(Roles.CuratorPolicy);
+        read.MapGet("/items/{id:int}", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.ItemAsync(id, c).ConfigureAwait(false)));
+        read.MapGet("/items/{id:int}/events", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.ItemEventsAsync(id, c).ConfigureAwait(false)));
+        read.MapGet("/items/{id:int}/images", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.ImagesAsync(id, c).ConfigureAwait(false)));
+        read.MapGet("/items/{id:int}/block-map", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.BlockMapAsync(id, c).ConfigureAwait(false)));
+        read.MapGet("/items/{id:int}/positions/{position:int}", async (int id, int position, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.PositionAsync(id, position, c).ConfigureAwait(false)));
         write.MapPost("/items/{id:int}/captures", UploadAsync)
             // "*/*" too: without it routing answers 415 to any other type before the curator check and before the
             // ingest's own check against AllowedContentTypes (audio/x-wav, ...), which gives the one-sentence reason.
             .Accepts<IFormFile>("audio/wav", "application/octet-stream", "multipart/form-data", "*/*")
-            .WithDescription("Upload a capture as the raw request body (audio/wav) or as the first file of a multipart form. Query: fileName (raw body), deck, operator, capturedOn (yyyy-mm-dd), notes, decodeProfile (queue a decode with the default bank).");
-        write.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-        {
-            var job = await actions.QueueDecodeAsync(id, body.Profile, body.Settings, body.Channel, Agent(http), c).ConfigureAwait(false);
-            runner.Nudge();
-            return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
-        });
+            .Produces<UploadResult>(StatusCodes.Status201Created)
+            .Produces<UploadResult>(StatusCodes.Status200OK)
+            .ProducesProblem(StatusCodes.Status400BadRequest)
+            .ProducesProblem(StatusCodes.Status413PayloadTooLarge)
+            .WithDescription("Upload a capture as the raw request body (audio/wav) or as the first file of a multipart form. Query: fileName (raw body), deck, operator, capturedOn (yyyy-mm-dd), notes, decodeProfile (queue a decode with the default bank). 201 stored; 200 when the item already held these bytes; 404 no such item; 413 when the body is larger than the archive's MaxUploadBytes.");
         write.MapPost("/items/{id:int}/merge", async (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueMergeAsync(id, Agent(http), c).ConfigureAwait(false);
             runner.Nudge();
-            return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
+            return TypedResults.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
         });
-        write.MapPost("/fixity", (int? collectionId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Fixity, collectionId, null, actions, runner, http, c))
-            .WithDescription("Queue a fixity audit of the whole store, or of one collection (?collectionId=).");
         write.MapPost("/items/{id:int}/bag", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
             QueueAsync(JobKinds.Bag, null, id, actions, runner, http, c));
-        write.MapPost("/collections/{id:int}/bag", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Bag, id, null, actions, runner, http, c));
-        write.MapPost("/collections/{id:int}/publish", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Publish, id, null, actions, runner, http, c));
-        write.MapPost("/jobs/{id:int}/cancel", async (int id, JobQueue queue, CancellationToken c) =>
+    }
+
+    private static void MapCaptures(RouteGroupBuilder captures)
+    {
+        var read = captures.MapGroup(string.Empty).RequireAuthorization(Roles.ReaderPolicy);
+        read.MapGet("/captures/{id:int}", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.CaptureAsync(id, c).ConfigureAwait(false)));
+        read.MapDownload("/captures/{id:int}/original", DownloadOriginalAsync);
+        captures.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+        {
+            var job = await actions.QueueDecodeAsync(id, body.Profile, body.Settings, body.Channel, Agent(http), c).ConfigureAwait(false);
+            runner.Nudge();
+            return TypedResults.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
+        }).RequireAuthorization(Roles.CuratorPolicy).ProducesProblem(StatusCodes.Status400BadRequest);
+    }
+
+    private static void MapJobs(RouteGroupBuilder jobs)
+    {
+        var read = jobs.MapGroup(string.Empty).RequireAuthorization(Roles.ReaderPolicy);
+        read.MapGet("/jobs", async (ArchiveQueries q, CancellationToken c, int? take) => TypedResults.Ok(await q.JobsAsync(take ?? 100, c).ConfigureAwait(false)));
+        read.MapGet("/jobs/{id:int}", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.JobAsync(id, c).ConfigureAwait(false)))
+            .ProducesProblem(StatusCodes.Status404NotFound);
+        jobs.MapPost("/jobs/{id:int}/cancel", async (int id, JobQueue queue, CancellationToken c) =>
         {
             var job = await queue.CancelAsync(id, c).ConfigureAwait(false) ?? throw new ArchiveNotFoundException($"There is no job {id}.");
-            return Results.Ok(ArchiveQueries.ToView(job));
-        });
-        write.MapGet("/users", (ArchiveQueries q) => q.UsersAsync());
-        write.MapPost("/users", async (NewUser body, UserAdmin admin, HttpContext http) =>
+            return TypedResults.Ok(ArchiveQueries.ToView(job));
+        }).RequireAuthorization(Roles.CuratorPolicy).ProducesProblem(StatusCodes.Status404NotFound).ProducesProblem(StatusCodes.Status409Conflict);
+    }
+
+    private static void MapExports(RouteGroupBuilder exports)
+    {
+        var read = exports.MapGroup(string.Empty).RequireAuthorization(Roles.ReaderPolicy);
+        read.MapGet("/runs/{id:int}", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.RunAsync(id, c).ConfigureAwait(false)))
+            .ProducesProblem(StatusCodes.Status404NotFound).WithTags("runs");
+        read.MapGet("/images/{id:int}", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.ImageAsync(id, c).ConfigureAwait(false)))
+            .ProducesProblem(StatusCodes.Status404NotFound).WithTags("images");
+        read.MapDownload("/images/{id:int}/download", DownloadImageAsync).ProducesProblem(StatusCodes.Status404NotFound).WithTags("images");
+        read.MapGet("/exports", async (ArchiveQueries q, int? collectionId, int? itemId, CancellationToken c) => TypedResults.Ok(await q.ExportsAsync(collectionId, itemId, c).ConfigureAwait(false)));
+        read.MapDownload("/exports/{id:int}/download", DownloadExportAsync).ProducesProblem(StatusCodes.Status404NotFound);
+        exports.MapPost("/fixity", (int? collectionId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Fixity, collectionId, null, actions, runner, http, c))
+            .RequireAuthorization(Roles.CuratorPolicy).ProducesProblem(StatusCodes.Status404NotFound).WithTags("fixity")
+            .WithDescription("Queue a fixity audit of the whole store, or of one collection (?collectionId=).");
+    }
+
+    private static void MapReference(RouteGroupBuilder reference)
+    {
+        reference.MapGet("/profiles", (ArchiveQueries q) => TypedResults.Ok(q.Profiles()));
+        reference.MapGet("/detector-settings", () => TypedResults.Ok(ArchiveQueries.DefaultSettings()));
+    }
+
+    private static void MapUsers(RouteGroupBuilder users)
+    {
+        users.MapGet("/users", async (ArchiveQueries q) => TypedResults.Ok(await q.UsersAsync().ConfigureAwait(false)));
+        users.MapPost("/users", async (NewUser body, UserAdmin admin, HttpContext http) =>
         {
             var (user, generated) = await admin.AddAsync(body.UserName, body.Role, body.Password, Agent(http)).ConfigureAwait(false);
-            return Results.Created($"/api/users/{user.UserName}", new NewUserCreated(user.UserName!, body.Role, generated));
-        });
-        write.MapPost("/users/{name}/reset", async (string name, UserAdmin admin, HttpContext http) =>
-            Results.Ok(new PasswordReset(name, (await admin.ResetPasswordAsync(name, null, Agent(http)).ConfigureAwait(false))!)))
+            return TypedResults.Created($"/api/users/{user.UserName}", new NewUserCreated(user.UserName!, body.Role, generated));
+        }).ProducesProblem(StatusCodes.Status400BadRequest).ProducesProblem(StatusCodes.Status409Conflict);
+        var one = users.MapGroup(string.Empty).ProducesProblem(StatusCodes.Status404NotFound);
+        one.MapPost("/users/{name}/reset", async (string name, UserAdmin admin, HttpContext http) =>
+            TypedResults.Ok(new PasswordReset(name, (await admin.ResetPasswordAsync(name, null, Agent(http)).ConfigureAwait(false))!)))
             .WithDescription("Give an account a one-time password (shown only in this answer), to be changed at its next sign-in; its sessions end.");
-        write.MapPost("/users/{name}/disable", async (string name, UserAdmin admin, HttpContext http) =>
+        one.MapPost("/users/{name}/disable", async (string name, UserAdmin admin, HttpContext http) =>
         {
             await admin.DisableAsync(name, Agent(http)).ConfigureAwait(false);
-            return Results.NoContent();
-        }).WithDescription("Disable an account: it cannot sign in and its sessions end. The last enabled curator cannot be disabled.");
-        write.MapPost("/users/{name}/enable", async (string name, UserAdmin admin, HttpContext http) =>
+            return TypedResults.NoContent();
+        }).ProducesProblem(StatusCodes.Status409Conflict)
+            .WithDescription("Disable an account: it cannot sign in and its sessions end. 409 for the last enabled curator, who cannot be disabled.");
+        one.MapPost("/users/{name}/enable", async (string name, UserAdmin admin, HttpContext http) =>
         {
             await admin.EnableAsync(name, Agent(http)).ConfigureAwait(false);
-            return Results.NoContent();
+            return TypedResults.NoContent();
         }).WithDescription("Enable a disabled account again.");
     }
 
@@ -150,6 +211,10 @@ public static class ArchiveApi
         try
         {
             return await next(context).ConfigureAwait(false);
+        }
+        catch (ArchiveTooLargeException e)
+        {
+            return Results.Problem(statusCode: StatusCodes.Status413PayloadTooLarge, title: e.Message);
         }
         catch (ArchiveInputException e)
         {
@@ -213,11 +278,11 @@ public static class ArchiveApi
         return Downloads.File(http, store.OpenRead(capture.Sha256), "audio/wav", capture.OriginalFileName, capture.Sha256, capture.IngestedUtc);
     }
 
-    private static async Task<IResult> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c)
+    private static async Task<Accepted<JobView>> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c)
     {
         var job = await actions.QueueScopedAsync(kind, collectionId, itemId, Agent(http), c).ConfigureAwait(false);
         runner.Nudge();
-        return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
+        return TypedResults.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
     }
 
     /// <summary>
@@ -258,7 +323,7 @@ public static class ArchiveApi
         new([.. accession.Select(ch => char.IsAsciiLetterOrDigit(ch) || ch is '-' or '_' or '.' ? ch : '_')]);
 
     /// <summary>Streams the body into the store (never buffered whole), then records the capture; bad input leaves nothing behind.</summary>
-    private static async Task<IResult> UploadAsync(
+    private static async Task<Results<Created<UploadResult>, Ok<UploadResult>>> UploadAsync(
         int id,
         HttpRequest request,
         CaptureIngest ingest,
@@ -270,7 +335,7 @@ public static class ArchiveApi
     {
         if (request.ContentLength is { } declared && declared > options.MaxUploadBytes)
         {
-            throw new ArchiveInputException($"The upload is larger than the limit of {ByteSizes.Format(options.MaxUploadBytes)}.");
+            throw new ArchiveTooLargeException($"The upload is larger than the limit of {ByteSizes.Format(options.MaxUploadBytes)}.");
         }
 
         // The store counts the bytes against the limit itself; the server's small default limit is for other requests.
@@ -312,7 +377,7 @@ public static class ArchiveApi
 
         var summary = await queries.CaptureAsync(result.Capture.Id, cancellation).ConfigureAwait(false);
         var body = new UploadResult(summary, result.Duplicate, result.LinkedExistingObject, result.Message, job);
-        return result.Duplicate ? Results.Ok(body) : Results.Created($"/api/captures/{summary.Id}", body);
+        return result.Duplicate ? TypedResults.Ok(body) : TypedResults.Created($"/api/captures/{summary.Id}", body);
     }
 
     private static async Task<IngestResult> IngestMultipartAsync(
