@@ -4,7 +4,8 @@ namespace TapeVault.Cli;
 
 /// <summary>
 /// The "TapeVault" section of appsettings.json: the copy beside the program, overridden by one in the current
-/// folder (the repository root, when run with <c>dotnet run</c>). Options on the command line override both.
+/// folder (the repository root, when run with <c>dotnet run</c>), then environment variables (TapeVault__Archive__…).
+/// Options on the command line override them all.
 /// </summary>
 public sealed class CliSettings
 {
@@ -28,6 +29,8 @@ public sealed class CliSettings
         var configuration = new ConfigurationBuilder()
             .AddJsonFile(Path.Combine(AppContext.BaseDirectory, "appsettings.json"), optional: true)
             .AddJsonFile(Path.Combine(Directory.GetCurrentDirectory(), "appsettings.json"), optional: true)
+            // As the web app: TapeVault__Archive__Provider=PostgreSql and the like override the files.
+            .AddEnvironmentVariables()
             .Build();
         var settings = configuration.GetSection("TapeVault").Get<CliSettings>() ?? new CliSettings();
         if (settings.Decode.ChunkSamples is < 256 or > 1 << 20)
