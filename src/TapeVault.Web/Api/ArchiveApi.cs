@@ -78,27 +78,27 @@ public static class ArchiveApi
             // ingest's own check against AllowedContentTypes (audio/x-wav, ...), which gives the one-sentence reason.
             .Accepts<IFormFile>("audio/wav", "application/octet-stream", "multipart/form-data", "*/*")
             .WithDescription("Upload a capture as the raw request body (audio/wav) or as the first file of a multipart form. Query: fileName (raw body), deck, operator, capturedOn (yyyy-mm-dd), notes, decodeProfile (queue a decode with the default bank).");
-        write.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+        write.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueDecodeAsync(id, body.Profile, body.Settings, body.Channel, Agent(http), c).ConfigureAwait(false);
-            runner.Nudge();
+            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
             return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
         });
-        write.MapPost("/items/{id:int}/merge", async (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+        write.MapPost("/items/{id:int}/merge", async (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueMergeAsync(id, Agent(http), c).ConfigureAwait(false);
-            runner.Nudge();
+            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
             return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
         });
-        write.MapPost("/fixity", (int? collectionId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Fixity, collectionId, null, actions, runner, http, c))
+        write.MapPost("/fixity", (int? collectionId, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Fixity, collectionId, null, actions, jobs, http, c))
             .WithDescription("Queue a fixity audit of the whole store, or of one collection (?collectionId=).");
-        write.MapPost("/items/{id:int}/bag", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Bag, null, id, actions, runner, http, c));
-        write.MapPost("/collections/{id:int}/bag", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Bag, id, null, actions, runner, http, c));
-        write.MapPost("/collections/{id:int}/publish", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Publish, id, null, actions, runner, http, c));
+        write.MapPost("/items/{id:int}/bag", (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Bag, null, id, actions, jobs, http, c));
+        write.MapPost("/collections/{id:int}/bag", (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Bag, id, null, actions, jobs, http, c));
+        write.MapPost("/collections/{id:int}/publish", (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Publish, id, null, actions, jobs, http, c));
         write.MapPost("/jobs/{id:int}/cancel", async (int id, JobQueue queue, CancellationToken c) =>
         {
             var job = await queue.CancelAsync(id, c).ConfigureAwait(false) ?? throw new ArchiveNotFoundException($"There is no job {id}.");
@@ -213,10 +213,10 @@ public static class ArchiveApi
         return Downloads.File(http, store.OpenRead(capture.Sha256), "audio/wav", capture.OriginalFileName, capture.Sha256, capture.IngestedUtc);
     }
 
-    private static async Task<IResult> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c)
+    private static async Task<IResult> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c)
     {
         var job = await actions.QueueScopedAsync(kind, collectionId, itemId, Agent(http), c).ConfigureAwait(false);
-        runner.Nudge();
+        await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
         return Results.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
     }
 
@@ -264,7 +264,7 @@ public static class ArchiveApi
         CaptureIngest ingest,
         CuratorActions actions,
         ArchiveOptions options,
-        JobRunner runner,
+        JobDispatcher jobs,
         ArchiveQueries queries,
         CancellationToken cancellation)
     {
@@ -306,7 +306,7 @@ public static class ArchiveApi
         if (!result.Duplicate && !string.IsNullOrWhiteSpace(query["decodeProfile"]))
         {
             var queued = await actions.QueueDecodeAsync(result.Capture.Id, query["decodeProfile"]!, null, null, agent, cancellation).ConfigureAwait(false);
-            runner.Nudge();
+            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
             job = ArchiveQueries.ToView(queued);
         }
 
