@@ -126,7 +126,7 @@ public sealed partial class JobSchedules(ISchedulerFactory schedulers, ArchiveOp
             }
             catch (IOException e)
             {
-                throw new InvalidOperationException(
+                throw new ScheduleInUseException(
                     $"Another TapeVault process already runs the jobs of this archive (it holds {lockPath}). On SQLite one process runs jobs: Quartz.NET cannot cluster on SQLite. Start this one with TapeVault:Web:Role = Pages, or keep the schedule in PostgreSQL (TapeVault:Jobs:Store) for several workers.", e);
             }
         }
@@ -177,3 +177,6 @@ public sealed partial class JobSchedules(ISchedulerFactory schedulers, ArchiveOp
     [LoggerMessage(Level = LogLevel.Warning, Message = "The start-up sweep of the job table could not be queued; the periodic one will do it.")]
     private static partial void LogSweepFailed(ILogger logger, Exception exception);
 }
+
+/// <summary>Another process already runs the jobs of this SQLite schedule.</summary>
+public sealed class ScheduleInUseException(string message, Exception inner) : InvalidOperationException(message, inner);

@@ -55,6 +55,35 @@ public static partial class JobWorker
         return builder.Build();
     }
 
+    /// <summary>Stops the worker once the job table has nothing queued or running (<c>tapevault worker --until-idle</c>).</summary>
+    public static void StopWhenIdle(IServiceCollection services)
+    {
+        ArgumentNullException.ThrowIfNull(services);
+        services.AddHostedService<IdleStop>();
+    }
+
+    private sealed class IdleStop(JobQueue queue, JobsOptions jobs, IHostApplicationLifetime lifetime) : BackgroundService
+    {
+        protected override async Task ExecuteAsync(CancellationToken stoppingToken)
+        {
+            var started = new TaskCompletionSource();
+            using (lifetime.ApplicationStarted.Register(() => started.TrySetResult()))
+            {
+                await started.Task.WaitAsync(stoppingToken).ConfigureAwait(false);
+            }
+
+            // Idle at two looks in a row: a job handed back to the queue between two looks is seen at the second.
+            int idleLooks = 0;
+            while (!stoppingToken.IsCancellationRequested && idleLooks < 2)
+            {
+                await Task.Delay(TimeSpan.FromSeconds(jobs.PollSeconds), stoppingToken).ConfigureAwait(false);
+                idleLooks = (await queue.UnfinishedAsync(stoppingToken).ConfigureAwait(false)).Count == 0 ? idleLooks + 1 : 0;
+            }
+
+            lifetime.StopApplication();
+        }
+    }
+
     /// <summary>Before any job runs: the archive's schema is brought up to date (as the web app does at its start).</summary>
     private sealed partial class WorkerStartup(IDbContextFactory<ArchiveDbContext> contexts, ArchiveOptions archive, JobsOptions jobs, ILogger<WorkerStartup> logger) : IHostedService
     {
