@@ -52,14 +52,14 @@ public sealed class JobArchive : IAsyncDisposable
         });
 
     /// <summary>A node that serves pages only: it queues jobs into the schedule and runs none (its scheduler never starts).</summary>
-    public ServiceProvider PagesNode()
+    public ServiceProvider PagesNode(JobsOptions? jobs = null)
     {
         var services = new ServiceCollection();
         services.AddLogging();
         var options = Options();
         services.AddTapeVaultArchive(options, ProfileCatalog.BuiltIn);
         services.AddSingleton<IHostApplicationLifetime, NoLifetime>();
-        services.AddTapeVaultJobs(options, new JobsOptions(), new FixityOptions { Schedule = string.Empty }, runJobs: false);
+        services.AddTapeVaultJobs(options, jobs ?? new JobsOptions(), new FixityOptions { Schedule = string.Empty }, runJobs: false);
         return services.BuildServiceProvider();
     }
 

@@ -73,7 +73,9 @@ public sealed class WorkerCrashTests
         Assert.Equal(0, await db.Jobs.CountAsync(j => j.State == JobState.Queued || j.State == JobState.Running));
     }
 
-    private static Process StartWorker(JobArchive archive, params string[] more)
+    internal static Process StartWorker(JobArchive archive, params string[] more) => StartWorker(archive, new Dictionary<string, string>(), more);
+
+    internal static Process StartWorker(JobArchive archive, IReadOnlyDictionary<string, string> environment, params string[] more)
     {
         // The CLI's assembly is copied beside the tests; run it with the same dotnet host that runs them.
         var start = new ProcessStartInfo(Environment.ProcessPath!)
@@ -91,11 +93,16 @@ public sealed class WorkerCrashTests
         start.Environment["TapeVault__Fixity__Schedule"] = string.Empty;
         start.Environment["TapeVault__Jobs__PollSeconds"] = "1";
         start.Environment["Logging__LogLevel__Default"] = "Warning";
+        foreach (var (key, value) in environment)
+        {
+            start.Environment[key] = value;
+        }
+
         return Process.Start(start)!;
     }
 
     /// <summary>A 16-bit mono PCM WAV of uniform noise (RIFF/WAVE layout as Microsoft's multimedia spec gives it).</summary>
-    private static MemoryStream NoiseWav(int frames, int seed)
+    internal static MemoryStream NoiseWav(int frames, int seed)
     {
         var bytes = new byte[44 + (frames * 2)];
         var span = bytes.AsSpan();
