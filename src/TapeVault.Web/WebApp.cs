@@ -53,7 +53,6 @@ public static class WebApp
         builder.Services.AddSingleton(new ProfilesFolder(profilesFolder));
         var web = builder.Configuration.GetSection(WebOptions.Section).Get<WebOptions>() ?? new WebOptions();
         builder.Services.AddSingleton(web);
-        builder.Services.AddSingleton(builder.Configuration.GetSection(FixityOptions.Section).Get<FixityOptions>() ?? new FixityOptions());
         builder.Services.AddTapeVaultArchive(archive, profiles);
 
         // Sign-in cookies must survive a restart: the keys live beside the database, not in memory.
@@ -136,13 +135,14 @@ public static class WebApp
             }
         });
         builder.Services.AddExceptionHandler<DiskFullHandler>();
-        builder.Services.AddSingleton<JobRunner>();
         builder.Services.AddScoped<ArchiveQueries>();
         builder.Services.TryAddSingleton(new OperatorConsole(Console.Out));
         builder.Services.AddHostedService<ArchiveStartup>();
-        builder.Services.AddHostedService(s => s.GetRequiredService<JobRunner>());
-        builder.Services.AddSingleton<FixityScheduler>();
-        builder.Services.AddHostedService(s => s.GetRequiredService<FixityScheduler>());
+        builder.Services.AddTapeVaultJobs(
+            archive,
+            builder.Configuration.GetSection(JobsOptions.Section).Get<JobsOptions>() ?? new JobsOptions(),
+            builder.Configuration.GetSection(FixityOptions.Section).Get<FixityOptions>() ?? new FixityOptions(),
+            runJobs: web.Role != WebRole.Pages);
 
         var app = builder.Build();
         app.UseExceptionHandler("/Error");
@@ -180,12 +180,28 @@ public static class WebApp
 }
 
 /// <summary>The "TapeVault:Web" section of appsettings.json.</summary>
+/// <summary>What one started web app does (TapeVault:Web:Role).</summary>
+public enum WebRole
+{
+    /// <summary>Serves the pages and the API and runs the jobs: one machine.</summary>
+    Full,
+
+    /// <summary>Serves the pages and the API and queues jobs for workers, running none itself.</summary>
+    Pages,
+
+    /// <summary>Runs the jobs and serves nothing, as <c>tapevault worker</c> does.</summary>
+    Worker,
+}
+
 /// <summary>Where the user's own profiles live (TapeVault:ProfilesFolder); null when none is configured.</summary>
 public sealed record ProfilesFolder(string? Path);
 
 public sealed class WebOptions
 {
     public const string Section = "TapeVault:Web";
+
+    /// <summary>Full: pages and jobs (the default); Pages: pages only, jobs run by workers; Worker: jobs only, no pages.</summary>
+    public WebRole Role { get; set; } = WebRole.Full;
 
     /// <summary>Fill an empty archive with the demo collection at first start.</summary>
     public bool SeedDemo { get; set; } = true;

@@ -85,7 +85,7 @@ public sealed partial class AppProcess : IAsyncDisposable
         start.Environment["TapeVault__Archive__StorePath"] = Path.Combine(root, "store");
         start.Environment["TapeVault__Web__SeedDemo"] = "false";
         start.Environment["TapeVault__Web__InitialCurator"] = "curator";
-        start.Environment["TapeVault__Fixity__IntervalHours"] = "0";
+        start.Environment["TapeVault__Fixity__Schedule"] = string.Empty;
         start.Environment["DOTNET_ENVIRONMENT"] = "Production";
 
         var process = Process.Start(start) ?? throw new InvalidOperationException("Could not start the web app.");

@@ -18,3 +18,9 @@ public sealed record JobOutcome(int? ResultId, string Summary);
 
 /// <summary>A failure whose message is fit to show the user as the job's error.</summary>
 public sealed class JobFailedException(string message) : Exception(message);
+
+/// <summary>
+/// The job cannot start yet (a merge whose decodes are still to run): it goes back to the queue, showing
+/// <paramref name="message"/>, and is fired again after a short wait. Throw it before any work is done.
+/// </summary>
+public sealed class JobNotReadyException(string message) : Exception(message);

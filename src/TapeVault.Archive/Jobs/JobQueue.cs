@@ -12,7 +12,11 @@ public static class JobKinds
     public const string Publish = "publish";
 }
 
-/// <summary>The persisted job table's operations. Claiming is one conditional UPDATE, so two workers never take the same job.</summary>
+/// <summary>
+/// The job table: the user's record of every job (kind, progress, cancel, outcome, error). The job engine
+/// (<see cref="JobEngine"/>) decides when and where a job runs; claiming here is one conditional UPDATE, so two firings
+/// never both run the same job.
+/// </summary>
 public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, ArchiveOptions options)
 {
     public static JobRecord Enqueue(ArchiveDbContext db, string kind, string parameters, string agent, int? itemId = null, int? captureId = null)
@@ -34,67 +38,96 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
     }
 
     /// <summary>
-    /// At start, before any worker runs: a job found running was cut off by a stop or crash. Its partial work was never
-    /// committed (a decode run is written in one transaction at the end), so it is queued again, or failed with the
-    /// reason once it has been cut off <see cref="ArchiveOptions.MaxAttempts"/> times.
+    /// Takes job <paramref name="jobId"/> for one firing of the job engine, or returns null when there is nothing to
+    /// run. A queued job is claimed with one conditional UPDATE, so two firings never both take it. A firing that
+    /// resumes a job cut off by a stop or by a node that died (<paramref name="resuming"/>) finds it still running:
+    /// its partial work was never committed (a decode run is written in one transaction at the end), so it starts
+    /// over, or is failed with the reason once it has been cut off <see cref="ArchiveOptions.MaxAttempts"/> times, or
+    /// ends cancelled when a cancel was asked for before the stop. Its attempt count is the claim's version: of two
+    /// firings that resume the same cut-off, only one moves it on.
     /// </summary>
-    public async Task<int> RecoverInterruptedAsync(CancellationToken cancellation = default)
+    public async Task<JobRecord?> ClaimAsync(int jobId, bool resuming, CancellationToken cancellation = default)
     {
         await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
-        var running = await db.Jobs.Where(j => j.State == JobState.Running).ToListAsync(cancellation).ConfigureAwait(false);
-        foreach (var job in running)
+        var job = await db.Jobs.AsNoTracking().FirstOrDefaultAsync(j => j.Id == jobId, cancellation).ConfigureAwait(false);
+        if (job is null)
         {
-            if (job.CancelRequested)
-            {
-                job.State = JobState.Cancelled;
-                job.FinishedUtc = DateTimeOffset.UtcNow;
-                job.ProgressText = "Cancelled (the app stopped before the cancel took effect).";
-            }
-            else if (job.Attempts >= options.MaxAttempts)
-            {
-                job.State = JobState.Failed;
-                job.FinishedUtc = DateTimeOffset.UtcNow;
-                job.Error = $"The app stopped {job.Attempts} times while this job ran, so it was not started again; start it anew once the cause is found.";
-            }
-            else
-            {
-                job.State = JobState.Queued;
-                job.Progress = 0;
-                job.ProgressText = "Queued again: the app stopped while this job ran, and it starts over from the beginning.";
-            }
+            return null;
         }
 
-        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
-        return running.Count;
-    }
-
-    /// <summary>Takes the oldest queued job, or returns null when there is none.</summary>
-    public async Task<JobRecord?> ClaimNextAsync(CancellationToken cancellation = default)
-    {
-        await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
-        for (int attempt = 0; attempt < 5; attempt++)
+        var now = DateTimeOffset.UtcNow;
+        if (job.State == JobState.Queued)
         {
-            var next = await db.Jobs.AsNoTracking().Where(j => j.State == JobState.Queued)
-                .OrderBy(j => j.Id).Select(j => j.Id).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
-            if (next == 0)
-            {
-                return null;
-            }
-
-            var now = DateTimeOffset.UtcNow;
-            int claimed = await db.Jobs.Where(j => j.Id == next && j.State == JobState.Queued)
+            int claimed = await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Queued)
                 .ExecuteUpdateAsync(s => s
                     .SetProperty(j => j.State, JobState.Running)
                     .SetProperty(j => j.StartedUtc, now)
                     .SetProperty(j => j.Attempts, j => j.Attempts + 1)
                     .SetProperty(j => j.ProgressText, "Starting."), cancellation).ConfigureAwait(false);
-            if (claimed == 1)
-            {
-                return await db.Jobs.AsNoTracking().FirstAsync(j => j.Id == next, cancellation).ConfigureAwait(false);
-            }
+            return claimed == 1 ? await db.Jobs.AsNoTracking().FirstAsync(j => j.Id == jobId, cancellation).ConfigureAwait(false) : null;
         }
 
-        return null;
+        if (job.State != JobState.Running || !resuming)
+        {
+            return null;
+        }
+
+        int attempts = job.Attempts;
+        var cutOff = db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running && j.Attempts == attempts);
+        if (job.CancelRequested)
+        {
+            await cutOff.ExecuteUpdateAsync(s => s.SetProperty(j => j.State, JobState.Cancelled).SetProperty(j => j.FinishedUtc, now)
+                .SetProperty(j => j.ProgressText, "Cancelled (the job was cut off before the cancel took effect)."), cancellation).ConfigureAwait(false);
+            return null;
+        }
+
+        if (attempts >= options.MaxAttempts)
+        {
+            await cutOff.ExecuteUpdateAsync(s => s.SetProperty(j => j.State, JobState.Failed).SetProperty(j => j.FinishedUtc, now)
+                .SetProperty(j => j.ProgressText, "Failed.")
+                .SetProperty(j => j.Error, $"The job was cut off {attempts} times while it ran (the app stopped or the worker running it died), so it was not started again; start it anew once the cause is found."),
+                cancellation).ConfigureAwait(false);
+            return null;
+        }
+
+        int resumed = await cutOff.ExecuteUpdateAsync(s => s
+            .SetProperty(j => j.Attempts, attempts + 1)
+            .SetProperty(j => j.StartedUtc, now)
+            .SetProperty(j => j.Progress, 0.0)
+            .SetProperty(j => j.ProgressText, "Started again: the job was cut off while it ran (the app stopped or its worker died), and it starts over from the beginning."),
+            cancellation).ConfigureAwait(false);
+        return resumed == 1 ? await db.Jobs.AsNoTracking().FirstAsync(j => j.Id == jobId, cancellation).ConfigureAwait(false) : null;
+    }
+
+    /// <summary>
+    /// Hands a claimed job back to the queue without counting the claim as an attempt (it did no work): a merge whose
+    /// decodes have not finished yet waits queued rather than holding a worker.
+    /// </summary>
+    public async Task<bool> DeferAsync(int jobId, int attempts, string text, CancellationToken cancellation = default)
+    {
+        await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
+        int deferred = await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running && j.Attempts == attempts && !j.CancelRequested)
+            .ExecuteUpdateAsync(s => s
+                .SetProperty(j => j.State, JobState.Queued)
+                .SetProperty(j => j.Attempts, attempts - 1)
+                .SetProperty(j => j.Progress, 0.0)
+                .SetProperty(j => j.ProgressText, text), cancellation).ConfigureAwait(false);
+        if (deferred == 0)
+        {
+            // A cancel came in while the job was looking: it ends cancelled rather than waiting on.
+            await FinishAsync(jobId, JobState.Cancelled, "Cancelled by a curator; nothing was stored.").ConfigureAwait(false);
+        }
+
+        return deferred == 1;
+    }
+
+    /// <summary>The ids of the jobs still to be finished, queued or running, oldest first.</summary>
+    public async Task<List<(int Id, JobState State, string Kind)>> UnfinishedAsync(CancellationToken cancellation = default)
+    {
+        await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
+        var rows = await db.Jobs.AsNoTracking().Where(j => j.State == JobState.Queued || j.State == JobState.Running)
+            .OrderBy(j => j.Id).Select(j => new { j.Id, j.State, j.Kind }).ToListAsync(cancellation).ConfigureAwait(false);
+        return [.. rows.Select(r => (r.Id, r.State, r.Kind))];
     }
 
     /// <summary>Records progress and says whether a cancel was asked for.</summary>

@@ -46,31 +46,21 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
     /// <summary>
     /// A merge asked for while decodes of the same tape are still queued or running (the demo's, or a curator who
     /// merges straight after starting them) waits for them, so that it merges every pass it was asked to. It waits only
-    /// for jobs queued before it: those are claimed first, so the wait always ends.
+    /// for jobs queued before it, and waits in the queue, not on a worker: with one worker, the decodes run meanwhile.
     /// </summary>
-    private async Task WaitForEarlierDecodesAsync(JobRecord job, int itemId, JobProgress progress, CancellationToken cancellation)
+    private async Task EnsureEarlierDecodesFinishedAsync(JobRecord job, int itemId, CancellationToken cancellation)
     {
-        while (true)
+        int[] waiting;
+        await using (var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false))
         {
-            int[] waiting;
-            await using (var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false))
-            {
-                waiting = await db.Jobs.AsNoTracking()
-                    .Where(j => j.ItemId == itemId && j.Kind == JobKinds.Decode && j.Id < job.Id && (j.State == JobState.Queued || j.State == JobState.Running))
-                    .OrderBy(j => j.Id).Select(j => j.Id).ToArrayAsync(cancellation).ConfigureAwait(false);
-            }
+            waiting = await db.Jobs.AsNoTracking()
+                .Where(j => j.ItemId == itemId && j.Kind == JobKinds.Decode && j.Id < job.Id && (j.State == JobState.Queued || j.State == JobState.Running))
+                .OrderBy(j => j.Id).Select(j => j.Id).ToArrayAsync(cancellation).ConfigureAwait(false);
+        }
 
-            if (waiting.Length == 0)
-            {
-                return;
-            }
-
-            if (await progress(0, $"Waiting for decode job(s) {string.Join(", ", waiting)} of this tape to finish.").ConfigureAwait(false))
-            {
-                throw new OperationCanceledException(cancellation);
-            }
-
-            await Task.Delay(TimeSpan.FromMilliseconds(500), cancellation).ConfigureAwait(false);
+        if (waiting.Length > 0)
+        {
+            throw new JobNotReadyException($"Waiting for decode job(s) {string.Join(", ", waiting)} of this tape to finish.");
         }
     }
 
@@ -79,7 +69,7 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
         ArgumentNullException.ThrowIfNull(job);
         ArgumentNullException.ThrowIfNull(progress);
         var parameters = MergeJobParameters.FromJson(job.Parameters);
-        await WaitForEarlierDecodesAsync(job, parameters.ItemId, progress, cancellation).ConfigureAwait(false);
+        await EnsureEarlierDecodesFinishedAsync(job, parameters.ItemId, cancellation).ConfigureAwait(false);
         List<DecodeRun> runs;
         var passes = new List<MergePass>();
         await using (var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false))

@@ -31,6 +31,7 @@ public static class CommandTree
             new ExportBagCommand(),
         },
         new PublishCommand(),
+        new WorkerCommand(),
         new CommandGroup("image", "Check a tape image, or extract the files its headers name.")
         {
             new ImageVerifyCommand(),

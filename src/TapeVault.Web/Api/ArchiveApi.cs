@@ -79,10 +79,10 @@ public static class ArchiveApi
             return TypedResults.Created($"/api/items/{item.Id}", await q.ItemAsync(item.Id, c).ConfigureAwait(false));
         }).ProducesProblem(StatusCodes.Status400BadRequest).ProducesProblem(StatusCodes.Status409Conflict)
             .WithDescription("Add an item (one tape side) to the collection. 409 when the accession number is taken.");
-        one.MapPost("/collections/{id:int}/bag", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Bag, id, null, actions, runner, http, c));
-        one.MapPost("/collections/{id:int}/publish", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Publish, id, null, actions, runner, http, c));
+        one.MapPost("/collections/{id:int}/bag", (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Bag, id, null, actions, jobs, http, c));
+        one.MapPost("/collections/{id:int}/publish", (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Publish, id, null, actions, jobs, http, c));
     }
 
     private static void MapItems(RouteGroupBuilder items)
@@ -103,14 +103,14 @@ public static class ArchiveApi
             .ProducesProblem(StatusCodes.Status400BadRequest)
             .ProducesProblem(StatusCodes.Status413PayloadTooLarge)
             .WithDescription("Upload a capture as the raw request body (audio/wav) or as the first file of a multipart form. Query: fileName (raw body), deck, operator, capturedOn (yyyy-mm-dd), notes, decodeProfile (queue a decode with the default bank). 201 stored; 200 when the item already held these bytes; 404 no such item; 413 when the body is larger than the archive's MaxUploadBytes.");
-        write.MapPost("/items/{id:int}/merge", async (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+        write.MapPost("/items/{id:int}/merge", async (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueMergeAsync(id, Agent(http), c).ConfigureAwait(false);
-            runner.Nudge();
+            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
             return TypedResults.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
         });
-        write.MapPost("/items/{id:int}/bag", (int id, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Bag, null, id, actions, runner, http, c));
+        write.MapPost("/items/{id:int}/bag", (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Bag, null, id, actions, jobs, http, c));
     }
 
     private static void MapCaptures(RouteGroupBuilder captures)
@@ -118,10 +118,10 @@ public static class ArchiveApi
         var read = captures.MapGroup(string.Empty).RequireAuthorization(Roles.ReaderPolicy);
         read.MapGet("/captures/{id:int}", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.CaptureAsync(id, c).ConfigureAwait(false)));
         read.MapDownload("/captures/{id:int}/original", DownloadOriginalAsync);
-        captures.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
+        captures.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueDecodeAsync(id, body.Profile, body.Settings, body.Channel, Agent(http), c).ConfigureAwait(false);
-            runner.Nudge();
+            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
             return TypedResults.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
         }).RequireAuthorization(Roles.CuratorPolicy).ProducesProblem(StatusCodes.Status400BadRequest);
     }
@@ -149,8 +149,8 @@ public static class ArchiveApi
         read.MapDownload("/images/{id:int}/download", DownloadImageAsync).ProducesProblem(StatusCodes.Status404NotFound).WithTags("images");
         read.MapGet("/exports", async (ArchiveQueries q, int? collectionId, int? itemId, CancellationToken c) => TypedResults.Ok(await q.ExportsAsync(collectionId, itemId, c).ConfigureAwait(false)));
         read.MapDownload("/exports/{id:int}/download", DownloadExportAsync).ProducesProblem(StatusCodes.Status404NotFound);
-        exports.MapPost("/fixity", (int? collectionId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
-            QueueAsync(JobKinds.Fixity, collectionId, null, actions, runner, http, c))
+        exports.MapPost("/fixity", (int? collectionId, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
+            QueueAsync(JobKinds.Fixity, collectionId, null, actions, jobs, http, c))
             .RequireAuthorization(Roles.CuratorPolicy).ProducesProblem(StatusCodes.Status404NotFound).WithTags("fixity")
             .WithDescription("Queue a fixity audit of the whole store, or of one collection (?collectionId=).");
     }
@@ -278,10 +278,10 @@ public static class ArchiveApi
         return Downloads.File(http, store.OpenRead(capture.Sha256), "audio/wav", capture.OriginalFileName, capture.Sha256, capture.IngestedUtc);
     }
 
-    private static async Task<Accepted<JobView>> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c)
+    private static async Task<Accepted<JobView>> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c)
     {
         var job = await actions.QueueScopedAsync(kind, collectionId, itemId, Agent(http), c).ConfigureAwait(false);
-        runner.Nudge();
+        await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
         return TypedResults.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
     }
 
@@ -329,7 +329,7 @@ public static class ArchiveApi
         CaptureIngest ingest,
         CuratorActions actions,
         ArchiveOptions options,
-        JobRunner runner,
+        JobDispatcher jobs,
         ArchiveQueries queries,
         CancellationToken cancellation)
     {
@@ -371,7 +371,7 @@ public static class ArchiveApi
         if (!result.Duplicate && !string.IsNullOrWhiteSpace(query["decodeProfile"]))
         {
             var queued = await actions.QueueDecodeAsync(result.Capture.Id, query["decodeProfile"]!, null, null, agent, cancellation).ConfigureAwait(false);
-            runner.Nudge();
+            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
             job = ArchiveQueries.ToView(queued);
         }
 

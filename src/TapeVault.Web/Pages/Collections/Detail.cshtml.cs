@@ -5,7 +5,7 @@ using TapeVault.Web.Api;
 
 namespace TapeVault.Web.Pages.Collections;
 
-public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actions, JobRunner runner) : ArchivePage
+public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actions, JobDispatcher jobs) : ArchivePage
 {
     public CollectionDetail? Collection { get; private set; }
 
@@ -47,7 +47,7 @@ public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actio
         async () =>
         {
             var job = await actions.QueueScopedAsync(kind, id, null, Agent).ConfigureAwait(false);
-            runner.Nudge();
+            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
             Message = $"{what}: job {job.Id}. Follow it on the Jobs page; {where}.";
             return Redirect($"/collections/{id}");
         },
