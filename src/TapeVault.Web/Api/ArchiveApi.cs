@@ -77,7 +77,13 @@ public static class ArchiveApi
             // "*/*" too: without it routing answers 415 to any other type before the curator check and before the
             // ingest's own check against AllowedContentTypes (audio/x-wav, ...), which gives the one-sentence reason.
             .Accepts<IFormFile>("audio/wav", "application/octet-stream", "multipart/form-data", "*/*")
-            .WithDescription("Upload a capture as the raw request body (audio/wav) or as the first file of a multipart form. Query: fileName (raw body), deck, operator, capturedOn (yyyy-mm-dd), notes, decodeProfile (queue a decode with the default bank).");
+            .WithDescription("Upload a capture (WAV, Broadcast WAV, RF64/BW64 or FLAC) as the raw request body (audio/wav, audio/flac) or as the first file of a multipart form. Query: fileName (raw body), deck, operator, capturedOn (yyyy-mm-dd), notes, decodeProfile (queue a decode with the default bank).");
+        write.MapPost("/captures/{id:int}/details-from-file", async (int id, CuratorActions actions, ArchiveQueries q, HttpContext http, CancellationToken c) =>
+        {
+            await actions.UseEmbeddedDetailsAsync(id, Agent(http), c).ConfigureAwait(false);
+            return await q.CaptureAsync(id, c).ConfigureAwait(false);
+        })
+            .WithDescription("The curator confirms the deck, operator, date and notes the capture file's own metadata (Broadcast WAV bext, iXML, FLAC comments) suggests; details it does not suggest stay.");
         write.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueDecodeAsync(id, body.Profile, body.Settings, body.Channel, Agent(http), c).ConfigureAwait(false);
@@ -210,7 +216,7 @@ public static class ArchiveApi
             return Results.Problem(statusCode: StatusCodes.Status410Gone, title: "The stored original is missing from the content store; run a fixity audit.");
         }
 
-        return Downloads.File(http, store.OpenRead(capture.Sha256), "audio/wav", capture.OriginalFileName, capture.Sha256, capture.IngestedUtc);
+        return Downloads.File(http, store.OpenRead(capture.Sha256), capture.Container == "flac" ? "audio/flac" : "audio/wav", capture.OriginalFileName, capture.Sha256, capture.IngestedUtc);
     }
 
     private static async Task<IResult> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobRunner runner, HttpContext http, CancellationToken c)
