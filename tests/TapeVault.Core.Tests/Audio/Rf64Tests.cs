@@ -29,6 +29,9 @@ public sealed class Rf64Tests : IClassFixture<AudioTempFolder>
         OutsideTool.Sox("-n", "-r", "48000", "-b", "24", "-c", "2", plain, "synth", "0.4", "sine", "1200", "sine", "2400", "vol", "0.5");
         string path = temp.Write($"{form}.wav", ToRf64(File.ReadAllBytes(plain), form));
 
+        // The capture page's excerpts seek into the data chunk the same way.
+        Assert.Equal(CaptureExcerpt.Read(plain, 5000, 3000, ChannelChoice.Left), CaptureExcerpt.Read(path, 5000, 3000, ChannelChoice.Left));
+
         using CaptureReader reader = CaptureReader.Open(path);
         Assert.Equal(form.ToLowerInvariant(), reader.Container);
         Assert.Equal(AudioSamples.ReadFile(plain), AudioSamples.ReadAll(reader));

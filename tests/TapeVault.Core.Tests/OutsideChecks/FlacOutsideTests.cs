@@ -80,6 +80,20 @@ public sealed class FlacOutsideTests : IClassFixture<OutsideTempFolder>
     }
 
     [Fact]
+    public void An_Excerpt_OfAFlac_IsTheSameStretchAsFromTheWav()
+    {
+        string wav = temp.File("excerpt.wav");
+        OutsideTool.Sox("-n", "-r", "48000", "-b", "16", "-c", "2", wav, "synth", "1.5", "sine", "1200", "sine", "2400", "vol", "0.5");
+        string flac = Encode(wav, 8, 1152);
+
+        // Across frame boundaries (1152 samples each), from a frame's middle, and running past the end.
+        foreach (var (start, count) in new[] { (0L, 100), (1000L, 5000), (70_000L, 10_000) })
+        {
+            Assert.Equal(CaptureExcerpt.Read(wav, start, count, ChannelChoice.Right), CaptureExcerpt.Read(flac, start, count, ChannelChoice.Right));
+        }
+    }
+
+    [Fact]
     public void A_StreamInfoMd5ThatDoesNotMatch_IsAFixityFinding_NotAFailedDecode()
     {
         string wav = temp.File("md5.wav");
