@@ -366,54 +366,62 @@ internal sealed class FlacSampleProvider : ISampleProvider
     // RFC 9639, section 9.2.5: fixed predictors of order 0 to 4.
     private static void FixedPredict(Span<long> s, int order)
     {
-        switch (order)
+        // Unchecked: a damaged stream that wraps is caught by Emit's range check, then by the MD5.
+        unchecked
         {
-            case 1:
-                for (int i = 1; i < s.Length; i++)
-                {
-                    s[i] += s[i - 1];
-                }
+            switch (order)
+            {
+                case 1:
+                    for (int i = 1; i < s.Length; i++)
+                    {
+                        s[i] += s[i - 1];
+                    }
 
-                break;
-            case 2:
-                for (int i = 2; i < s.Length; i++)
-                {
-                    s[i] += (2 * s[i - 1]) - s[i - 2];
-                }
+                    break;
+                case 2:
+                    for (int i = 2; i < s.Length; i++)
+                    {
+                        s[i] += (2 * s[i - 1]) - s[i - 2];
+                    }
 
-                break;
-            case 3:
-                for (int i = 3; i < s.Length; i++)
-                {
-                    s[i] += (3 * s[i - 1]) - (3 * s[i - 2]) + s[i - 3];
-                }
+                    break;
+                case 3:
+                    for (int i = 3; i < s.Length; i++)
+                    {
+                        s[i] += (3 * s[i - 1]) - (3 * s[i - 2]) + s[i - 3];
+                    }
 
-                break;
-            case 4:
-                for (int i = 4; i < s.Length; i++)
-                {
-                    s[i] += (4 * s[i - 1]) - (6 * s[i - 2]) + (4 * s[i - 3]) - s[i - 4];
-                }
+                    break;
+                case 4:
+                    for (int i = 4; i < s.Length; i++)
+                    {
+                        s[i] += (4 * s[i - 1]) - (6 * s[i - 2]) + (4 * s[i - 3]) - s[i - 4];
+                    }
 
-                break;
-            default:
-                break;
+                    break;
+                default:
+                    break;
+            }
         }
     }
 
     // RFC 9639, section 9.2.6: the prediction is the sum of coefficient × earlier sample, shifted right.
     private static void LinearPredict(Span<long> s, ReadOnlySpan<long> coefficients, int shift)
     {
-        int order = coefficients.Length;
-        for (int i = order; i < s.Length; i++)
+        // Unchecked: a damaged stream that wraps is caught by Emit's range check, then by the MD5.
+        unchecked
         {
-            long sum = 0;
-            for (int j = 0; j < order; j++)
+            int order = coefficients.Length;
+            for (int i = order; i < s.Length; i++)
             {
-                sum += coefficients[j] * s[i - 1 - j];
-            }
+                long sum = 0;
+                for (int j = 0; j < order; j++)
+                {
+                    sum += coefficients[j] * s[i - 1 - j];
+                }
 
-            s[i] += sum >> shift;
+                s[i] += sum >> shift;
+            }
         }
     }
 
