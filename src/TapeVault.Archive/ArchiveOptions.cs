@@ -38,11 +38,14 @@ public sealed class ArchiveOptions
     [Range(1, long.MaxValue)]
     public long MaxUploadBytes { get; set; } = 2L * 1024 * 1024 * 1024;
 
-    /// <summary>The file name extensions accepted for captures when the settings name none.</summary>
-    public static IReadOnlyList<string> DefaultExtensions { get; } = [".wav", ".wave"];
+    /// <summary>
+    /// The file name extensions accepted for captures when the settings name none: WAV (RIFF, RF64 and BW64 files
+    /// mostly end in .wav too), Broadcast WAV's .bwf, .rf64, and FLAC.
+    /// </summary>
+    public static IReadOnlyList<string> DefaultExtensions { get; } = [".wav", ".wave", ".bwf", ".rf64", ".flac"];
 
-    /// <summary>The content types accepted when the settings name none (what browsers and tools send for WAV, or a plain byte stream).</summary>
-    public static IReadOnlyList<string> DefaultContentTypes { get; } = ["audio/wav", "audio/x-wav", "audio/wave", "audio/vnd.wave", "application/octet-stream"];
+    /// <summary>The content types accepted when the settings name none (what browsers and tools send for WAV and FLAC, or a plain byte stream).</summary>
+    public static IReadOnlyList<string> DefaultContentTypes { get; } = ["audio/wav", "audio/x-wav", "audio/wave", "audio/vnd.wave", "audio/flac", "audio/x-flac", "application/octet-stream"];
 
     /// <summary>
     /// File name extensions accepted for captures, as the settings give them; a list given replaces

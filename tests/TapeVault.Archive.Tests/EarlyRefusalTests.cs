@@ -20,7 +20,7 @@ public sealed class EarlyRefusalTests(SharedArchive shared)
 
         var e = await Assert.ThrowsAsync<ArchiveInputException>(() => ingest.IngestAsync(body, new IngestRequest { ItemId = shared.Archive.ItemId, FileName = "not-audio.wav", Agent = "test" }));
 
-        Assert.Equal("The file is not a WAV file (no RIFF header).", e.Message);
+        Assert.Equal("The file is not a WAV file (no RIFF header) and not a FLAC file (no fLaC marker).", e.Message);
         Assert.True(body.BytesRead <= 12, $"{body.BytesRead} bytes were read");
         Assert.Equal(before, Directory.Exists(tmp) ? Directory.GetFiles(tmp).Length : 0);
     }

@@ -29,7 +29,7 @@ public sealed class UploadSettingsTests
         using (var octets = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 2000), "side-a.wav", "application/octet-stream"))
         {
             Assert.Equal(HttpStatusCode.BadRequest, octets.StatusCode);
-            Assert.Equal("The content type 'application/octet-stream' is not accepted for captures; send the WAV file as audio/wav.", await ApiClient.ProblemTitleAsync(octets));
+            Assert.Equal("The content type 'application/octet-stream' is not accepted for captures; send the capture as audio/wav.", await ApiClient.ProblemTitleAsync(octets));
         }
 
         using var accepted = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 2000), "side-a.wav", "audio/wav");
@@ -52,6 +52,6 @@ public sealed class UploadSettingsTests
         }
 
         using var mp3 = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 2000), "side-a.mp3");
-        Assert.Equal("Files ending in '.mp3' are not accepted; captures must be .wav or .wave files.", await ApiClient.ProblemTitleAsync(mp3));
+        Assert.Equal("Files ending in '.mp3' are not accepted; captures must be .wav, .wave, .bwf, .rf64 or .flac files.", await ApiClient.ProblemTitleAsync(mp3));
     }
 }

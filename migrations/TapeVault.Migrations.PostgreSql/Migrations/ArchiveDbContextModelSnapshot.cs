@@ -413,12 +413,25 @@ namespace TapeVault.Migrations.PostgreSql.Migrations
                     b.Property<int>("Channels")
                         .HasColumnType("integer");
 
+                    b.Property<string>("Container")
+                        .IsRequired()
+                        .ValueGeneratedOnAdd()
+                        .HasMaxLength(8)
+                        .HasColumnType("character varying(8)")
+                        .HasDefaultValue("wav");
+
                     b.Property<string>("Deck")
                         .IsRequired()
                         .HasColumnType("text");
 
                     b.Property<double>("DurationSeconds")
                         .HasColumnType("double precision");
+
+                    b.Property<string>("EmbeddedMetadata")
+                        .IsRequired()
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("text")
+                        .HasDefaultValue("");
 
                     b.Property<string>("Encoding")
                         .IsRequired()

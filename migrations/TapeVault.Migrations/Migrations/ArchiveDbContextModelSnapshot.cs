@@ -398,12 +398,25 @@ namespace TapeVault.Migrations.Migrations
                     b.Property<int>("Channels")
                         .HasColumnType("INTEGER");
 
+                    b.Property<string>("Container")
+                        .IsRequired()
+                        .ValueGeneratedOnAdd()
+                        .HasMaxLength(8)
+                        .HasColumnType("TEXT")
+                        .HasDefaultValue("wav");
+
                     b.Property<string>("Deck")
                         .IsRequired()
                         .HasColumnType("TEXT");
 
                     b.Property<double>("DurationSeconds")
                         .HasColumnType("REAL");
+
+                    b.Property<string>("EmbeddedMetadata")
+                        .IsRequired()
+                        .ValueGeneratedOnAdd()
+                        .HasColumnType("TEXT")
+                        .HasDefaultValue("");
 
                     b.Property<string>("Encoding")
                         .IsRequired()

@@ -59,6 +59,33 @@ public sealed class CuratorActions(ArchiveDbContext db, ProfileCatalog profiles)
         return item;
     }
 
+    /// <summary>
+    /// The curator confirms what the capture file's own metadata (Broadcast WAV bext, iXML, FLAC comments) suggests:
+    /// each suggested detail (deck, operator, date, notes) replaces the capture's; details the file does not suggest
+    /// stay as they are. Recorded in the event log with the values before and after.
+    /// </summary>
+    public async Task<Capture> UseEmbeddedDetailsAsync(int captureId, string agent, CancellationToken cancellation = default)
+    {
+        var capture = await db.Captures.FirstOrDefaultAsync(c => c.Id == captureId, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no capture {captureId}.");
+        var suggestion = Ingest.EmbeddedMetadata.Parse(capture.EmbeddedMetadata)?.Suggestion;
+        if (suggestion is null || suggestion.IsEmpty)
+        {
+            throw new ArchiveInputException($"Capture {captureId}'s file carries no deck, operator, date or notes to use.");
+        }
+
+        string before = $"deck '{capture.Deck}', operator '{capture.Operator}', date {capture.CapturedOn?.ToString("yyyy-MM-dd", System.Globalization.CultureInfo.InvariantCulture) ?? "none"}";
+        capture.Deck = suggestion.Deck.Length > 0 ? Limit(suggestion.Deck, 2000) : capture.Deck;
+        capture.Operator = suggestion.Operator.Length > 0 ? Limit(suggestion.Operator, 2000) : capture.Operator;
+        capture.CapturedOn = suggestion.CapturedOn ?? capture.CapturedOn;
+        capture.Notes = suggestion.Notes.Length > 0 ? Limit(suggestion.Notes, MaxTextLength) : capture.Notes;
+        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+        EventLog.Add(db, EventTypes.Create, agent, "capture", capture.Id.ToString(), "details-confirmed",
+            $"Capture {capture.Id} takes the details its file suggests ({Ingest.CaptureIngest.Describe(suggestion)}); before: {before}.", capture.ItemId);
+        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+        return capture;
+    }
+
     /// <summary>Queues a decode of a capture with the default bank, or with the named settings of it.</summary>
     public async Task<JobRecord> QueueDecodeAsync(int captureId, string profileId, IReadOnlyList<string>? settingNames, string? channel, string agent, CancellationToken cancellation = default)
     {
@@ -133,6 +160,8 @@ public sealed class CuratorActions(ArchiveDbContext db, ProfileCatalog profiles)
         await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
         return job;
     }
+
+    private static string Limit(string text, int length) => text.Length <= length ? text : text[..length];
 
     private static string Required(string? value, string what, int maxLength)
     {

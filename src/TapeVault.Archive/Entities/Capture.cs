@@ -26,6 +26,16 @@ public sealed class Capture
 
     public required string Encoding { get; set; }
 
+    /// <summary>The file's container: <c>wav</c> (RIFF), <c>rf64</c>, <c>bw64</c> or <c>flac</c>.</summary>
+    public string Container { get; set; } = "wav";
+
+    /// <summary>
+    /// The file's own metadata (Broadcast WAV bext and iXML, FLAC comments) as JSON (<see cref="Ingest.EmbeddedMetadata"/>);
+    /// empty when it carries none. Kept as read at ingest; the curator decides whether its suggestions become the
+    /// capture's deck, operator, date and notes.
+    /// </summary>
+    public string EmbeddedMetadata { get; set; } = string.Empty;
+
     public double DurationSeconds { get; set; }
 
     public string Deck { get; set; } = string.Empty;

@@ -41,6 +41,7 @@ public sealed record ItemDossier(
             channels = c.Channels,
             bitsPerSample = c.BitsPerSample,
             encoding = c.Encoding,
+            container = c.Container,
             durationSeconds = c.DurationSeconds,
             deck = c.Deck,
             @operator = c.Operator,
@@ -48,6 +49,7 @@ public sealed record ItemDossier(
             notes = c.Notes,
             ingestedUtc = c.IngestedUtc,
             ingestedBy = c.IngestedBy,
+            embeddedMetadata = Ingest.EmbeddedMetadata.Parse(c.EmbeddedMetadata),
         }),
         decodeRuns = Runs.Select(r => new
         {

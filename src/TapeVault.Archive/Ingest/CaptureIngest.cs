@@ -32,9 +32,9 @@ public sealed record IngestRequest
 public sealed record IngestResult(Capture Capture, bool Duplicate, bool LinkedExistingObject, string Message);
 
 /// <summary>
-/// Takes a capture in: streams it into the store's temporary folder while hashing, checks that it is a WAV file
-/// TapeVault can decode, then moves it into place and records it. Anything refused leaves no row, no object and no
-/// temporary file.
+/// Takes a capture in: streams it into the store's temporary folder while hashing, checks that it is a WAV, RF64, BW64
+/// or FLAC file TapeVault can decode (a FLAC file is decoded whole, its CRCs and MD5 checked), keeps the metadata it
+/// carries, then moves it into place and records it. Anything refused leaves no row, no object and no temporary file.
 /// </summary>
 public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, ArchiveOptions options)
 {
@@ -71,6 +71,8 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
             Channels = audio.Channels,
             BitsPerSample = audio.BitsPerSample,
             Encoding = audio.Encoding,
+            Container = audio.Container,
+            EmbeddedMetadata = Ingest.EmbeddedMetadata.ToJson(audio.Metadata),
             DurationSeconds = audio.DurationSeconds,
             Deck = request.Deck,
             Operator = request.Operator,
@@ -110,6 +112,10 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
         string message = objectKnown
             ? $"These bytes were already in the archive; capture {capture.Id} links the stored original instead of storing it again."
             : $"Stored as capture {capture.Id} ({ByteSizes.Format(staged.Size)}, SHA-256 {staged.Sha256[..12]}…).";
+        if (audio.Metadata is { Suggestion.IsEmpty: false } embedded)
+        {
+            message += $" The file's own metadata suggests {Describe(embedded.Suggestion)}; confirm it on the capture's page.";
+        }
         return new IngestResult(capture, Duplicate: false, LinkedExistingObject: objectKnown, message);
     }
 
@@ -125,7 +131,7 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
         if (!extensions.Contains(extension, StringComparer.OrdinalIgnoreCase))
         {
             throw new ArchiveInputException(
-                $"Files ending in '{(extension.Length == 0 ? "(nothing)" : extension)}' are not accepted; captures must be {string.Join(" or ", extensions)} files.");
+                $"Files ending in '{(extension.Length == 0 ? "(nothing)" : extension)}' are not accepted; captures must be {OneOf(extensions)} files.");
         }
 
         if (request.ContentType is { } type)
@@ -134,10 +140,14 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
             var types = options.AcceptedContentTypes;
             if (!types.Contains(bare, StringComparer.OrdinalIgnoreCase))
             {
-                throw new ArchiveInputException($"The content type '{bare}' is not accepted for captures; send the WAV file as {string.Join(" or ", types)}.");
+                throw new ArchiveInputException($"The content type '{bare}' is not accepted for captures; send the capture as {OneOf(types)}.");
             }
         }
     }
+
+    /// <summary>"a", "a or b", "a, b or c".</summary>
+    private static string OneOf(IReadOnlyList<string> choices) =>
+        choices.Count <= 1 ? string.Join(string.Empty, choices) : $"{string.Join(", ", choices.Take(choices.Count - 1))} or {choices[^1]}";
 
     private async Task<StagedObject> StageAsync(Stream body, CancellationToken cancellation)
     {
@@ -159,6 +169,34 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
         }
     }
 
+    /// <summary>The suggestion in words, for the ingest message: "deck 'X', operator 'Y', date 2026-11-30".</summary>
+    public static string Describe(TapeVault.Core.Audio.CaptureDetailsSuggestion suggestion)
+    {
+        ArgumentNullException.ThrowIfNull(suggestion);
+        var parts = new List<string>();
+        if (suggestion.Deck.Length > 0)
+        {
+            parts.Add($"deck '{suggestion.Deck}'");
+        }
+
+        if (suggestion.Operator.Length > 0)
+        {
+            parts.Add($"operator '{suggestion.Operator}'");
+        }
+
+        if (suggestion.CapturedOn is { } date)
+        {
+            parts.Add($"date {date:yyyy-MM-dd}");
+        }
+
+        if (suggestion.Notes.Length > 0)
+        {
+            parts.Add("notes");
+        }
+
+        return string.Join(", ", parts);
+    }
+
     private static CaptureInfoSummary Inspect(string path)
     {
         try
@@ -170,7 +208,19 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
                     "The WAV header claims more audio than the file holds; the file was probably cut off while copying, so copy it again.");
             }
 
-            return new CaptureInfoSummary(reader.SampleRate, reader.Channels, reader.BitsPerSample, reader.Encoding, reader.DurationSeconds);
+            if (reader.Container == "flac")
+            {
+                // A FLAC file's damage shows only in its frames: decode it all now (CRCs, STREAMINFO, MD5), so a
+                // damaged one is refused before anything is stored.
+                var info = reader.Complete();
+                if (info.FixityFinding is { } finding)
+                {
+                    throw new ArchiveInputException(finding);
+                }
+            }
+
+            return new CaptureInfoSummary(reader.SampleRate, reader.Channels, reader.BitsPerSample, reader.Encoding, reader.DurationSeconds, reader.Container,
+                EmbeddedMetadata.From(reader.Metadata));
         }
         catch (CaptureFormatException e)
         {
@@ -178,5 +228,5 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
         }
     }
 
-    private sealed record CaptureInfoSummary(int SampleRate, int Channels, int BitsPerSample, string Encoding, double DurationSeconds);
+    private sealed record CaptureInfoSummary(int SampleRate, int Channels, int BitsPerSample, string Encoding, double DurationSeconds, string Container, EmbeddedMetadata? Metadata);
 }

@@ -129,6 +129,13 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
         await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
         EventLog.Add(write, EventTypes.Decode, job.CreatedBy, "run", run.Id.ToString(), "success",
             $"Capture {capture.Id} with profile {profile.Id} and {result.Settings.Count} detector setting(s), code {result.CodeVersion}: {run.Outcome}", capture.ItemId);
+        if (result.Capture.FixityFinding is { } finding)
+        {
+            // The file's bytes match their SHA-256 but its audio no longer matches the digest the file carries (a FLAC
+            // STREAMINFO MD5): recorded as a fixity finding against the original, the decode itself stands.
+            EventLog.Add(write, EventTypes.FixityCheck, job.CreatedBy, "object", capture.Sha256, Fixity.FixityAudit.Mismatch,
+                $"capture {capture.Id} ({capture.OriginalFileName}), decoded by run {run.Id}: {finding}", capture.ItemId);
+        }
         await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
         await transaction.CommitAsync(CancellationToken.None).ConfigureAwait(false);
 

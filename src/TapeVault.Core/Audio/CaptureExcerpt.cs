@@ -45,12 +45,10 @@ public static class CaptureExcerpt
                 return mono;
             }
 
-            stream.Position = 0;
+            IDisposable? owner = null;
             try
             {
-                using var wave = new WaveFileReader(stream);
-                wave.Position = startFrame * layout.BlockAlign;
-                var samples = wave.ToSampleProvider();
+                var samples = CaptureSamples.Open(stream, layout, startFrame, out owner, out _);
                 int channels = layout.Channels;
                 var interleaved = new float[Math.Min(frames, CaptureReader.FramesPerBuffer) * channels];
                 int done = 0;
@@ -72,6 +70,10 @@ public static class CaptureExcerpt
             catch (Exception e) when (e is FormatException or InvalidDataException or EndOfStreamException or ArgumentException or InvalidOperationException)
             {
                 throw new CaptureFormatException("The WAV file's audio could not be decoded; the file may be damaged.", e);
+            }
+            finally
+            {
+                owner?.Dispose();
             }
         }
     }

@@ -26,4 +26,16 @@ public sealed record CaptureInfo(
     /// stopped early, a recorder that never closed the file), and only the audio that is there was read.
     /// </summary>
     public bool Truncated { get; init; }
+
+    /// <summary>The container: <c>"wav"</c> (RIFF), <c>"rf64"</c>, <c>"bw64"</c> or <c>"flac"</c>.</summary>
+    public string Container { get; init; } = "wav";
+
+    /// <summary>The metadata chunks the file carries (Broadcast WAV bext and iXML, FLAC comments).</summary>
+    public CaptureMetadata Metadata { get; init; } = CaptureMetadata.None;
+
+    /// <summary>
+    /// One sentence when the audio did not match the digest the file carries (a FLAC file's STREAMINFO MD5), else
+    /// null: a fixity finding for the archive to record, not a reason to stop decoding.
+    /// </summary>
+    public string? FixityFinding { get; init; }
 }

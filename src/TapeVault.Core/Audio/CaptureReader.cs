@@ -3,13 +3,14 @@ using NAudio.Wave;
 namespace TapeVault.Core.Audio;
 
 /// <summary>
-/// Streams a WAV capture as mono float samples in [-1, 1], and computes the SHA-256 of the file in the same read.
+/// Streams a capture (WAV, RF64/BW64 or FLAC) as mono float samples in [-1, 1], and computes the SHA-256 of the file in the same read.
 /// </summary>
 /// <remarks>
 /// <para>
 /// <see cref="Open"/> validates the header up front and throws <see cref="CaptureFormatException"/> for anything
 /// TapeVault cannot decode. Reads PCM 8/16/24/32-bit and IEEE float 32/64-bit, plain or WAVE_FORMAT_EXTENSIBLE,
-/// with 1 to 8 channels; several channels become one by <see cref="ChannelChoice"/>.
+/// with 1 to 8 channels, in RIFF, RF64 (EBU Tech 3306) or BW64 (ITU-R BS.2088) files, and FLAC (RFC 9639, decoded by
+/// <see cref="FlacSampleProvider"/>, its MD5 checked at the end); several channels become one by <see cref="ChannelChoice"/>.
 /// </para>
 /// <para>
 /// The file is opened once and read once: NAudio's <see cref="WaveFileReader"/> reads through a hashing stream; the
@@ -29,7 +30,8 @@ public sealed class CaptureReader : IDisposable
     internal const int FramesPerBuffer = 4096;
 
     private readonly HashingReadStream file;
-    private readonly WaveFileReader wave;
+    private readonly IDisposable? owner;
+    private readonly FlacSampleProvider? flac;
     private readonly ISampleProvider samples;
     private readonly float[] interleaved;
     private int bufferStart;
@@ -38,13 +40,16 @@ public sealed class CaptureReader : IDisposable
     private CaptureInfo? info;
     private bool disposed;
 
-    private CaptureReader(string path, ChannelChoice channel, HashingReadStream file, WavLayout layout, WaveFileReader wave, ISampleProvider samples)
+    private CaptureReader(string path, ChannelChoice channel, HashingReadStream file, WavLayout layout, IDisposable? owner, FlacSampleProvider? flac, ISampleProvider samples)
     {
         Path = path;
         Channel = channel;
         this.file = file;
-        this.wave = wave;
+        this.owner = owner;
+        this.flac = flac;
         this.samples = samples;
+        Container = layout.Container;
+        Metadata = layout.Metadata;
         SampleRate = layout.SampleRate;
         Channels = layout.Channels;
         BitsPerSample = layout.BitsPerSample;
@@ -63,10 +68,16 @@ public sealed class CaptureReader : IDisposable
     /// <summary>Sample frames per second.</summary>
     public int SampleRate { get; }
 
+    /// <summary>The container: <c>"wav"</c> (RIFF), <c>"rf64"</c>, <c>"bw64"</c> or <c>"flac"</c>.</summary>
+    public string Container { get; }
+
+    /// <summary>The metadata chunks the file carries: Broadcast WAV bext and iXML, FLAC comments.</summary>
+    public CaptureMetadata Metadata { get; }
+
     /// <summary>Channels stored in the file (1 to 8).</summary>
     public int Channels { get; }
 
-    /// <summary>Container bits per sample: 8, 16, 24, 32 or 64.</summary>
+    /// <summary>Bits per sample: 8, 16, 24, 32 or 64 for WAV; 4 to 32 for FLAC.</summary>
     public int BitsPerSample { get; }
 
     /// <summary><c>"pcm"</c> or <c>"float"</c>.</summary>
@@ -129,39 +140,20 @@ public sealed class CaptureReader : IDisposable
         }
 
         var file = new HashingReadStream(stream);
-        WaveFileReader? wave = null;
+        IDisposable? owner = null;
         try
         {
             WavLayout layout = WavHeaderProbe.Probe(file);
-            file.Position = 0;
-            wave = OpenWave(file);
-            if (file.Position != layout.DataOffset
-                || wave.WaveFormat.Channels != layout.Channels
-                || wave.WaveFormat.SampleRate != layout.SampleRate
-                || wave.WaveFormat.BitsPerSample != layout.BitsPerSample)
-            {
-                throw new CaptureFormatException("The WAV file's chunks could not be read consistently; the file may be damaged.");
-            }
+            ISampleProvider samples = CaptureSamples.Open(file, layout, 0, out owner, out FlacSampleProvider? flac);
 
             // The parsers stepped over chunk bodies before the audio (LIST, JUNK, ...); hash them now, once,
             // so that the audio read that follows continues the hash in file order.
             file.HashUpTo(layout.DataOffset);
-
-            ISampleProvider samples;
-            try
-            {
-                samples = wave.ToSampleProvider();
-            }
-            catch (Exception e) when (e is ArgumentException or InvalidOperationException)
-            {
-                throw new CaptureFormatException("The WAV file's encoding could not be decoded; TapeVault reads PCM 8/16/24/32-bit and IEEE float.", e);
-            }
-
-            return new CaptureReader(path, channel, file, layout, wave, samples);
+            return new CaptureReader(path, channel, file, layout, owner, flac, samples);
         }
         catch
         {
-            wave?.Dispose();
+            owner?.Dispose();
             file.Dispose();
             throw;
         }
@@ -224,20 +216,8 @@ public sealed class CaptureReader : IDisposable
         if (!disposed)
         {
             disposed = true;
-            wave.Dispose();
+            owner?.Dispose();
             file.Dispose();
-        }
-    }
-
-    private static WaveFileReader OpenWave(HashingReadStream file)
-    {
-        try
-        {
-            return new WaveFileReader(file);
-        }
-        catch (Exception e) when (e is FormatException or InvalidDataException or EndOfStreamException or ArgumentException or InvalidOperationException)
-        {
-            throw new CaptureFormatException("The WAV file's header could not be read; the file may be damaged.", e);
         }
     }
 
@@ -283,7 +263,13 @@ public sealed class CaptureReader : IDisposable
         sourceEnded = true;
         bufferCount = 0;
         string sha256 = file.Finish();
-        info = new CaptureInfo(sha256, file.HashedBytes, SampleRate, Channels, BitsPerSample, Encoding, FrameCount, DurationSeconds) { Truncated = Truncated };
+        info = new CaptureInfo(sha256, file.HashedBytes, SampleRate, Channels, BitsPerSample, Encoding, FrameCount, DurationSeconds)
+        {
+            Truncated = Truncated,
+            Container = Container,
+            Metadata = Metadata,
+            FixityFinding = flac?.FixityFinding,
+        };
         return false;
     }
 

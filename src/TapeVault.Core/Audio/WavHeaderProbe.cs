@@ -23,6 +23,15 @@ internal sealed record WavLayout(
     long DeclaredDataBytes,
     long AvailableDataBytes)
 {
+    /// <summary>The container: <c>"wav"</c> (RIFF), <c>"rf64"</c>, <c>"bw64"</c> or <c>"flac"</c>.</summary>
+    public string Container { get; init; } = "wav";
+
+    /// <summary>The metadata chunks the file carries (bext, iXML, FLAC comments).</summary>
+    public CaptureMetadata Metadata { get; init; } = CaptureMetadata.None;
+
+    /// <summary>The FLAC stream's STREAMINFO, for a FLAC file.</summary>
+    public FlacStreamInfo? Flac { get; init; }
+
     /// <summary>Whole sample frames present in the file.</summary>
     public long FrameCount => AvailableDataBytes / BlockAlign;
 
@@ -72,7 +81,19 @@ internal static class WavHeaderProbe
             throw new CaptureFormatException(problem);
         }
 
-        bool rf64 = head[..4].SequenceEqual("RF64"u8);
+        if (head[..4].SequenceEqual("fLaC"u8))
+        {
+            return FlacStreamInfo.Probe(stream);
+        }
+
+        // RF64 (EBU Tech 3306) and BW64 (ITU-R BS.2088) keep 64-bit sizes in a ds64 chunk right after the header.
+        bool bw64 = head[..4].SequenceEqual("BW64"u8);
+        bool rf64 = bw64 || head[..4].SequenceEqual("RF64"u8);
+        string container = bw64 ? "bw64" : rf64 ? "rf64" : "wav";
+        string kind = bw64 ? "BW64" : "RF64";
+        BroadcastExtension? bext = null;
+        string? ixml = null;
+        long rf64SampleCount = 0;
 
         long riffSize = BinaryPrimitives.ReadUInt32LittleEndian(head[4..8]);
         long rf64DataBytes = -1;
@@ -82,15 +103,23 @@ internal static class WavHeaderProbe
             Span<byte> ds64 = stackalloc byte[32];
             if (ReadFully(stream, ds64) < 32 || !ds64[..4].SequenceEqual("ds64"u8))
             {
-                throw new CaptureFormatException("The RF64 file has no valid ds64 chunk, so its size is unknown.");
+                throw new CaptureFormatException($"The {kind} file has no valid ds64 chunk, so its size is unknown.");
             }
 
+            // EBU Tech 3306 ds64: riffSize (64 bits), dataSize (64 bits), sampleCount (64 bits), table length, table.
             int ds64Size = BinaryPrimitives.ReadInt32LittleEndian(ds64[4..8]);
             riffSize = BinaryPrimitives.ReadInt64LittleEndian(ds64[8..16]);
             rf64DataBytes = BinaryPrimitives.ReadInt64LittleEndian(ds64[16..24]);
-            if (ds64Size < 24 || riffSize < 0 || rf64DataBytes < 0)
+            rf64SampleCount = ds64Size >= 24 ? BinaryPrimitives.ReadInt64LittleEndian(ds64[24..32]) : 0;
+            if (ds64Size < 24 || riffSize < 0 || rf64DataBytes < 0 || rf64SampleCount < 0)
             {
-                throw new CaptureFormatException("The RF64 file has a damaged ds64 chunk, so its size is unknown.");
+                throw new CaptureFormatException($"The {kind} file has a damaged ds64 chunk, so its size is unknown.");
+            }
+
+            if (riffSize + 8 != fileLength)
+            {
+                throw new CaptureFormatException(string.Create(CultureInfo.InvariantCulture,
+                    $"The {kind} file's ds64 chunk says the file is {riffSize + 8} bytes but it is {fileLength} bytes, so the file is cut off or its ds64 chunk is wrong."));
             }
 
             stream.Position = 8L + 12L + ds64Size;
@@ -125,6 +154,18 @@ internal static class WavHeaderProbe
                 }
 
                 dataOffset = body;
+                if (rf64 && size != uint.MaxValue && size != rf64DataBytes)
+                {
+                    throw new CaptureFormatException(string.Create(CultureInfo.InvariantCulture,
+                        $"The {kind} file's data chunk says {size} bytes but its ds64 chunk says {rf64DataBytes}, so the audio's length is ambiguous."));
+                }
+
+                if (rf64 && rf64DataBytes > fileLength - body)
+                {
+                    throw new CaptureFormatException(string.Create(CultureInfo.InvariantCulture,
+                        $"The {kind} file's ds64 chunk says the audio is {rf64DataBytes} bytes but only {fileLength - body} bytes follow the data chunk's header, so the ds64 chunk disagrees with the file."));
+                }
+
                 declaredData = rf64 ? rf64DataBytes : size;
                 availableData = Math.Min(declaredData, fileLength - body);
                 next = body + (rf64 ? declaredData : availableData);
@@ -137,6 +178,23 @@ internal static class WavHeaderProbe
                 }
 
                 fmt = ReadFmt(stream, size, fileLength - body);
+                next = body + size;
+            }
+            else if (id.SequenceEqual("bext"u8) && bext is null)
+            {
+                CaptureMetadata.CheckCodingHistoryLength(size - CaptureMetadata.BextFixedBytes);
+                bext = CaptureMetadata.ParseBext(ReadBody(stream, size, fileLength - body, "Broadcast WAV (bext)"));
+                next = body + size;
+            }
+            else if (id.SequenceEqual("iXML"u8) && ixml is null)
+            {
+                if (size > CaptureMetadata.MaxIxmlBytes)
+                {
+                    throw new CaptureFormatException(string.Create(CultureInfo.InvariantCulture,
+                        $"The WAV file's iXML chunk is {size} bytes, more than the {CaptureMetadata.MaxIxmlBytes} bytes TapeVault keeps, so the chunk is probably damaged."));
+                }
+
+                ixml = CaptureMetadata.ParseIxml(ReadBody(stream, size, fileLength - body, "iXML"));
                 next = body + size;
             }
             else
@@ -210,7 +268,17 @@ internal static class WavHeaderProbe
             throw new CaptureFormatException($"The WAV file has no data chunk{withinRiff}, so it holds no audio samples.");
         }
 
-        var layout = new WavLayout(encoding, f.Channels, (int)f.SampleRate, f.BlockAlign, f.BitsPerSample, dataOffset, declaredData, availableData);
+        if (rf64 && rf64SampleCount != 0 && rf64SampleCount != rf64DataBytes / f.BlockAlign)
+        {
+            throw new CaptureFormatException(string.Create(CultureInfo.InvariantCulture,
+                $"The {kind} file's ds64 chunk counts {rf64SampleCount} sample frames but its {rf64DataBytes} audio bytes hold {rf64DataBytes / f.BlockAlign}, so the ds64 chunk disagrees with the file."));
+        }
+
+        var layout = new WavLayout(encoding, f.Channels, (int)f.SampleRate, f.BlockAlign, f.BitsPerSample, dataOffset, declaredData, availableData)
+        {
+            Container = container,
+            Metadata = bext is null && ixml is null ? CaptureMetadata.None : new CaptureMetadata { Bext = bext, Ixml = ixml },
+        };
         if (layout.FrameCount == 0)
         {
             throw new CaptureFormatException(declaredData == 0
@@ -334,7 +402,20 @@ internal static class WavHeaderProbe
         return text.ToString();
     }
 
-    private static int ReadFully(Stream stream, Span<byte> buffer)
+    private static byte[] ReadBody(Stream stream, long size, long bytesLeft, string what)
+    {
+        if (size > bytesLeft)
+        {
+            throw new CaptureFormatException(string.Create(CultureInfo.InvariantCulture,
+                $"The WAV file ends inside its {what} chunk (the chunk claims {size} bytes; {Math.Max(bytesLeft, 0)} are left)."));
+        }
+
+        var body = new byte[size];
+        ReadFully(stream, body);
+        return body;
+    }
+
+    internal static int ReadFully(Stream stream, Span<byte> buffer)
     {
         int total = 0;
         while (total < buffer.Length)

@@ -1,8 +1,9 @@
 namespace TapeVault.Core.Audio;
 
 /// <summary>
-/// The first twelve bytes of a WAV file: "RIFF" (or "RF64"), a size, "WAVE". Enough to refuse a file that is not a
-/// WAV at all before the rest of it arrives; the whole header is checked once the file is in.
+/// The first twelve bytes of a WAV file: "RIFF" (or "RF64" / "BW64"), a size, "WAVE"; or the "fLaC" marker of a FLAC
+/// file (RFC 9639). Enough to refuse a file that is neither before the rest of it arrives; the whole header is checked
+/// once the file is in.
 /// </summary>
 public static class WavSignature
 {
@@ -19,11 +20,16 @@ public static class WavSignature
             return "The file is empty (0 bytes), so it is not a WAV file.";
         }
 
+        if (head.Length >= 4 && head[..4].SequenceEqual("fLaC"u8))
+        {
+            return null;
+        }
+
         bool riff = head.Length >= 4 && head[..4].SequenceEqual("RIFF"u8);
-        bool rf64 = head.Length >= 4 && head[..4].SequenceEqual("RF64"u8);
+        bool rf64 = head.Length >= 4 && (head[..4].SequenceEqual("RF64"u8) || head[..4].SequenceEqual("BW64"u8));
         if (!riff && !rf64)
         {
-            return "The file is not a WAV file (no RIFF header).";
+            return "The file is not a WAV file (no RIFF header) and not a FLAC file (no fLaC marker).";
         }
 
         if (head.Length < Length)

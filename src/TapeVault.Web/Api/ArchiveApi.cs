@@ -102,7 +102,7 @@ public static class ArchiveApi
             .Produces<UploadResult>(StatusCodes.Status200OK)
             .ProducesProblem(StatusCodes.Status400BadRequest)
             .ProducesProblem(StatusCodes.Status413PayloadTooLarge)
-            .WithDescription("Upload a capture as the raw request body (audio/wav) or as the first file of a multipart form. Query: fileName (raw body), deck, operator, capturedOn (yyyy-mm-dd), notes, decodeProfile (queue a decode with the default bank). 201 stored; 200 when the item already held these bytes; 404 no such item; 413 when the body is larger than the archive's MaxUploadBytes.");
+            .WithDescription("Upload a capture (WAV, Broadcast WAV, RF64/BW64 or FLAC) as the raw request body (audio/wav, audio/flac) or as the first file of a multipart form. Query: fileName (raw body), deck, operator, capturedOn (yyyy-mm-dd), notes, decodeProfile (queue a decode with the default bank). 201 stored; 200 when the item already held these bytes; 404 no such item; 413 when the body is larger than the archive's MaxUploadBytes.");
         write.MapPost("/items/{id:int}/merge", async (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueMergeAsync(id, Agent(http), c).ConfigureAwait(false);
@@ -118,6 +118,14 @@ public static class ArchiveApi
         var read = captures.MapGroup(string.Empty).RequireAuthorization(Roles.ReaderPolicy);
         read.MapGet("/captures/{id:int}", async (int id, ArchiveQueries q, CancellationToken c) => TypedResults.Ok(await q.CaptureAsync(id, c).ConfigureAwait(false)));
         read.MapDownload("/captures/{id:int}/original", DownloadOriginalAsync);
+        captures.MapPost("/captures/{id:int}/details-from-file", async (int id, CuratorActions actions, ArchiveQueries q, HttpContext http, CancellationToken c) =>
+        {
+            await actions.UseEmbeddedDetailsAsync(id, Agent(http), c).ConfigureAwait(false);
+            return TypedResults.Ok(await q.CaptureAsync(id, c).ConfigureAwait(false));
+        })
+            .RequireAuthorization(Roles.CuratorPolicy)
+            .ProducesProblem(StatusCodes.Status404NotFound)
+            .WithDescription("The curator confirms the deck, operator, date and notes the capture file's own metadata (Broadcast WAV bext, iXML, FLAC comments) suggests; details it does not suggest stay.");
         captures.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueDecodeAsync(id, body.Profile, body.Settings, body.Channel, Agent(http), c).ConfigureAwait(false);
@@ -275,7 +283,7 @@ public static class ArchiveApi
             return Results.Problem(statusCode: StatusCodes.Status410Gone, title: "The stored original is missing from the content store; run a fixity audit.");
         }
 
-        return Downloads.File(http, store.OpenRead(capture.Sha256), "audio/wav", capture.OriginalFileName, capture.Sha256, capture.IngestedUtc);
+        return Downloads.File(http, store.OpenRead(capture.Sha256), capture.Container == "flac" ? "audio/flac" : "audio/wav", capture.OriginalFileName, capture.Sha256, capture.IngestedUtc);
     }
 
     private static async Task<Accepted<JobView>> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c)

@@ -3,6 +3,7 @@ using Microsoft.AspNetCore.Identity;
 using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive;
 using TapeVault.Archive.Entities;
+using TapeVault.Archive.Ingest;
 using TapeVault.Archive.Jobs;
 using TapeVault.Archive.Runs;
 using TapeVault.Archive.Storage;
@@ -414,7 +415,11 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
         ArgumentNullException.ThrowIfNull(c);
         return new(c.Id, c.ItemId, c.OriginalFileName, c.Sha256, c.Size, c.SampleRate, c.Channels, c.BitsPerSample, c.Encoding,
             c.DurationSeconds, c.Deck, c.Operator, c.CapturedOn, c.Notes, c.IngestedUtc, c.IngestedBy,
-            [.. c.Runs.OrderBy(r => r.Id).Select(ToSummary)]);
+            [.. c.Runs.OrderBy(r => r.Id).Select(ToSummary)])
+        {
+            Container = c.Container,
+            Embedded = EmbeddedMetadata.Parse(c.EmbeddedMetadata),
+        };
     }
 
     public static RunSummary ToSummary(DecodeRun r)

@@ -35,7 +35,14 @@ public sealed record CaptureSummary(
     string Notes,
     DateTimeOffset IngestedUtc,
     string IngestedBy,
-    IReadOnlyList<RunSummary> Runs);
+    IReadOnlyList<RunSummary> Runs)
+{
+    /// <summary>The file's container: wav (RIFF), rf64, bw64 or flac.</summary>
+    public string Container { get; init; } = "wav";
+
+    /// <summary>The file's own metadata (bext, iXML, FLAC comments) and what it suggests; null when it carries none.</summary>
+    public TapeVault.Archive.Ingest.EmbeddedMetadata? Embedded { get; init; }
+}
 
 public sealed record RunSummary(
     int Id,

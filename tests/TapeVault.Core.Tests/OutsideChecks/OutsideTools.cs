@@ -34,8 +34,8 @@ internal sealed record ToolOutput(string StandardOutput, string StandardError);
 
 /// <summary>
 /// The general-purpose programs the outside checks lean on, none of which shares code with TapeVault: minimodem
-/// (Debian's software FSK modem) writes and reads FSK audio, SoX converts, damages and measures WAV files, and GNU
-/// coreutils' sha256sum hashes them. scripts/test installs them when they are missing.
+/// (Debian's software FSK modem) writes and reads FSK audio, SoX converts, damages and measures WAV files, Debian's
+/// flac (the reference encoder of RFC 9639) encodes them as FLAC, and GNU coreutils' sha256sum hashes them. scripts/test installs them when they are missing.
 /// </summary>
 internal static class OutsideTool
 {
@@ -43,12 +43,15 @@ internal static class OutsideTool
     public const string SoxPath = "/usr/bin/sox";
     public const string Sha256SumPath = "/usr/bin/sha256sum";
 
+    /// <summary>Debian's flac, the reference encoder of RFC 9639.</summary>
+    public const string FlacPath = "/usr/bin/flac";
+
     /// <summary>Runs a program to completion and returns what it printed; a non-zero exit is an error.</summary>
     public static ToolOutput Run(string program, IReadOnlyList<string> arguments, byte[]? standardInput = null)
     {
         if (!System.IO.File.Exists(program))
         {
-            throw new InvalidOperationException($"{program} is missing: run scripts/test, which installs sox and minimodem.");
+            throw new InvalidOperationException($"{program} is missing: run scripts/test, which installs sox, minimodem and flac.");
         }
 
         var start = new ProcessStartInfo(program)

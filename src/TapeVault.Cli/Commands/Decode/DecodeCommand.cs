@@ -7,7 +7,7 @@ namespace TapeVault.Cli.Commands;
 /// <summary>tapevault decode CAPTURE.wav --profile ID: every detector setting of the profile over one capture, every block scored.</summary>
 public sealed class DecodeCommand : CliCommand
 {
-    private readonly Argument<string> capture = new("CAPTURE.wav") { Description = "the capture to decode: a WAV file (8, 16, 24 or 32-bit PCM, or 32-bit float)" };
+    private readonly Argument<string> capture = new("CAPTURE.wav") { Description = "the capture to decode: a WAV file (8, 16, 24 or 32-bit PCM, or 32-bit float; Broadcast WAV, RF64 and BW64 too) or a FLAC file" };
     private readonly Option<string> profile = CommonOptions.Profile();
     private readonly Option<string> channel = CommonOptions.Channel();
     private readonly Option<string> json = new("--json") { HelpName = "OUT.json", Description = "write the full report as JSON; default: none" };

@@ -9,6 +9,8 @@ namespace TapeVault.Cli.Commands;
 /// <summary>The table and the JSON document of a decode.</summary>
 public static class DecodeReport
 {
+    private static readonly JsonSerializerOptions BextJson = new(JsonSerializerDefaults.Web);
+
     public static void WriteTable(TextWriter output, DecodeResult result)
     {
         ArgumentNullException.ThrowIfNull(output);
@@ -18,6 +20,36 @@ public static class DecodeReport
         if (c.Truncated)
         {
             output.WriteLine("         cut off: the file ends before the audio its header declares; what is there was decoded");
+        }
+
+        if (c.Container != "wav")
+        {
+            output.WriteLine($"         {c.Container.ToUpperInvariant()} file");
+        }
+
+        if (c.FixityFinding is { } finding)
+        {
+            output.WriteLine($"         fixity: {finding}");
+        }
+
+        var suggestion = c.Metadata.Suggestion();
+        if (!suggestion.IsEmpty)
+        {
+            // What the file's own metadata (Broadcast WAV bext, iXML, FLAC comments) says; the curator decides.
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"File says deck '{suggestion.Deck}', operator '{suggestion.Operator}', captured {suggestion.CapturedOn?.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture) ?? "(no date)"}"));
+            if (suggestion.Notes.Length > 0)
+            {
+                output.WriteLine($"         notes: {suggestion.Notes}");
+            }
+        }
+
+        if (c.Metadata.Bext is { CodingHistory.Length: > 0 } bext)
+        {
+            foreach (string line in bext.CodingHistory.Split('\n'))
+            {
+                output.WriteLine($"         coding history: {line.Trim()}");
+            }
         }
 
         output.WriteLine($"Profile  {result.Profile.Id} ({result.Profile.Name}); bank of {result.Settings.Count} settings");
@@ -68,6 +100,50 @@ public static class DecodeReport
         json.WriteNumber("channels", result.Capture.Channels);
         json.WriteNumber("durationSeconds", result.Capture.DurationSeconds);
         json.WriteBoolean("truncated", result.Capture.Truncated);
+        json.WriteString("container", result.Capture.Container);
+        if (result.Capture.FixityFinding is { } finding)
+        {
+            json.WriteString("fixityFinding", finding);
+        }
+
+        var metadata = result.Capture.Metadata;
+        if (!metadata.IsEmpty)
+        {
+            var suggestion = metadata.Suggestion();
+            json.WriteStartObject("fileSays");
+            json.WriteString("deck", suggestion.Deck);
+            json.WriteString("operator", suggestion.Operator);
+            if (suggestion.CapturedOn is { } date)
+            {
+                json.WriteString("capturedOn", date.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture));
+            }
+
+            json.WriteString("notes", suggestion.Notes);
+            if (metadata.Bext is { } bext)
+            {
+                json.WritePropertyName("bext");
+                JsonSerializer.Serialize(json, bext, BextJson);
+            }
+
+            if (metadata.Ixml is { } ixml)
+            {
+                json.WriteString("ixml", ixml);
+            }
+
+            if (metadata.Comments.Count > 0)
+            {
+                json.WriteStartArray("comments");
+                foreach (string comment in metadata.Comments)
+                {
+                    json.WriteStringValue(comment);
+                }
+
+                json.WriteEndArray();
+            }
+
+            json.WriteEndObject();
+        }
+
         json.WriteEndObject();
         json.WriteString("profile", result.Profile.Id);
         json.WriteString("codeVersion", result.CodeVersion);

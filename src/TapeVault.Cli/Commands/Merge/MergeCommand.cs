@@ -11,7 +11,7 @@ namespace TapeVault.Cli.Commands;
 /// <summary>tapevault merge CAPTURE1.wav CAPTURE2.wav … --profile ID --out OUT.tvimg: several captures of one tape into one tape image.</summary>
 public sealed class MergeCommand : CliCommand
 {
-    private readonly Argument<string[]> captures = new("CAPTURE.wav") { Description = "the captures of one tape (WAV files), each a pass", Arity = ArgumentArity.OneOrMore };
+    private readonly Argument<string[]> captures = new("CAPTURE.wav") { Description = "the captures of one tape (WAV or FLAC files), each a pass", Arity = ArgumentArity.OneOrMore };
     private readonly Option<string> profile = CommonOptions.Profile();
     private readonly Option<string> image = CommonOptions.Out("OUT.tvimg", "the tape image to write (required)", "--image");
     private readonly Option<string> json = new("--json") { HelpName = "OUT.json", Description = "write the merge report as JSON; default: none" };

@@ -11,7 +11,7 @@ namespace TapeVault.Cli.Commands;
 /// </summary>
 public sealed class ProfileDraftCommand : CliCommand
 {
-    private readonly Argument<string> capture = new("CAPTURE.wav") { Description = "the capture to draft from: a WAV file" };
+    private readonly Argument<string> capture = new("CAPTURE.wav") { Description = "the capture to draft from: a WAV or FLAC file" };
     private readonly Option<string> output = CommonOptions.Out("FILE.json", "write the drafted profile here, and its findings beside it (FILE.findings.json); default: the profile to standard output");
     private readonly Option<double> seconds = CommonOptions.Number("--seconds", "S", $"how much of the capture to read, from its start, in seconds (1 to 3600); default: {CaptureStretch.DefaultSeconds:0}", CaptureStretch.DefaultSeconds, 1, 3600);
     private readonly Option<string> channel = CommonOptions.Channel();

@@ -68,6 +68,16 @@ public sealed class CaptureModel(ArchiveDbContext db, ContentStore store, Profil
 
     public Task<IActionResult> OnGetAsync(int id) => LoadOrNotFoundAsync(() => LoadAsync(id));
 
+    /// <summary>The curator takes the deck, operator, date and notes the file's own metadata suggests.</summary>
+    public Task<IActionResult> OnPostUseFileDetailsAsync(int id) => TryAsync(
+        async () =>
+        {
+            var actions = HttpContext.RequestServices.GetRequiredService<TapeVault.Archive.Curation.CuratorActions>();
+            await actions.UseEmbeddedDetailsAsync(id, Agent, HttpContext.RequestAborted).ConfigureAwait(false);
+            return RedirectToPage(new { id });
+        },
+        () => LoadAsync(id));
+
     /// <summary>A link to this page with the current choices, some replaced.</summary>
     public string Link(int? block = null, double? from = null, double? seconds = null, string? scope = null, string anchor = "", bool keepZoom = true, int? list = null, string? setting = null)
     {
