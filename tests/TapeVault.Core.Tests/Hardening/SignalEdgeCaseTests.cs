@@ -1,4 +1,3 @@
-using System.Diagnostics;
 using System.Globalization;
 using TapeVault.Core.Audio;
 using TapeVault.Core.Blocks;
@@ -33,7 +32,7 @@ public sealed class SignalEdgeCaseTests(AudioTempFolder temp) : IClassFixture<Au
     [InlineData("dither of 1 LSB", "orrin-80")]
     [InlineData("dither of 1 LSB", "kcs-300")]
     [InlineData("dither of 1 LSB", "biphase-1200")]
-    public void TenMinutesOfSilence_DecodeToNoBlock_InBoundedTime(string silence, string id)
+    public void TenMinutesOfSilence_DecodeToNoBlock(string silence, string id)
     {
         string path = temp.File($"ten-minutes-of-{WavRefusalTests.Safe(silence)}.wav");
         // Written once for the class (the cases of one class run one after another) and kept in its temporary folder.
@@ -44,15 +43,11 @@ public sealed class SignalEdgeCaseTests(AudioTempFolder temp) : IClassFixture<Au
             Assert.Equal("13230000", OutsideTool.SoxInfo("-s", path));
         }
 
-        var clock = Stopwatch.StartNew();
+        // How fast is the benchmark's question (tests/TapeVault.Bench throughput), never a timed test's.
         var result = CaptureDecoder.Decode(path, RoundTrips.Profile(id));
-        clock.Stop();
 
         Assert.True(result.Candidates.Count == 0, $"{id}: {result.Candidates.Count} candidates: {RoundTrips.Describe(result)}");
         Assert.Equal(13_230_000, result.Capture.FrameCount);
-
-        // Under a second on 2 cores (docs/performance.md: ~800x real time at 44.1 kHz); the bound leaves room for a loaded machine.
-        Assert.True(clock.Elapsed < TimeSpan.FromSeconds(30), $"{id}: {clock.Elapsed.TotalSeconds:0.0} s for 10 minutes of silence");
     }
 
     [Theory]
