@@ -148,6 +148,11 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
         builder.Entity<CandidateRecord>(e =>
         {
             e.HasIndex(c => new { c.RunId, c.Position });
+
+            // Covers the tape timeline's query (every reading of a tape's runs, without their per-byte arrays), so a
+            // long tape's timeline is read from the index instead of from rows of several kilobytes each.
+            e.HasIndex(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed })
+                .HasDatabaseName("IX_Candidates_Timeline");
             e.HasOne(c => c.Run).WithMany(r => r.Candidates).HasForeignKey(c => c.RunId).OnDelete(DeleteBehavior.Cascade);
         });
 
