@@ -30,7 +30,18 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
     [BindProperty]
     public DecodeForm Decode { get; set; } = new();
 
-    public Task<IActionResult> OnGetAsync(int id) => LoadOrNotFoundAsync(() => LoadAsync(id));
+    /// <summary>How many image positions the positions table shows at a time (a long tape's table comes in pages).</summary>
+    public const int PositionsPerPage = 100;
+
+    /// <summary>The first position of the page of the positions table shown (0-based index into the image's blocks).</summary>
+    public int PositionsFrom { get; private set; }
+
+    public Task<IActionResult> OnGetAsync(int id, [FromQuery(Name = "positions")] int positions = 0) => LoadOrNotFoundAsync(async () =>
+    {
+        await LoadAsync(id).ConfigureAwait(false);
+        int count = Latest?.Blocks.Count ?? 0;
+        PositionsFrom = count == 0 ? 0 : Math.Clamp(positions, 0, count - 1) / PositionsPerPage * PositionsPerPage;
+    });
 
     public Task<IActionResult> OnPostDecodeAsync(int id) => TryAsync(
         async () =>
