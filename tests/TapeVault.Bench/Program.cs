@@ -32,6 +32,12 @@ if (section == "trust")
     return Trust.Run(work, args[1..]);
 }
 
+if (section == "scale")
+{
+    // scale [--tapes N] [--captures N] [--capture-kb N] [--blocks N] [--requests N] [--rebuild]: see Scale and docs/performance.md.
+    return await Scale.RunAsync(work, args[1..]);
+}
+
 var total = Stopwatch.StartNew();
 Console.WriteLine($"TapeVault benchmark — {Environment.ProcessorCount} cores, .NET {Environment.Version}, {DateTime.UtcNow:yyyy-MM-dd}");
 Console.WriteLine();

@@ -393,6 +393,9 @@ namespace TapeVault.Migrations.PostgreSql.Migrations
 
                     b.HasIndex("RunId", "Position");
 
+                    b.HasIndex("RunId", "SettingName", "IdentityKey", "Status", "Confidence", "StartSeconds", "EndSeconds", "Speed")
+                        .HasDatabaseName("IX_Candidates_Timeline");
+
                     b.ToTable("Candidates");
                 });
 

@@ -380,6 +380,9 @@ namespace TapeVault.Migrations.Migrations
 
                     b.HasIndex("RunId", "Position");
 
+                    b.HasIndex("RunId", "SettingName", "IdentityKey", "Status", "Confidence", "StartSeconds", "EndSeconds", "Speed")
+                        .HasDatabaseName("IX_Candidates_Timeline");
+
                     b.ToTable("Candidates");
                 });
 

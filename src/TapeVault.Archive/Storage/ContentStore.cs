@@ -10,6 +10,9 @@ public sealed class ContentStore
 {
     private const int BufferBytes = 81_920;
 
+    /// <summary>The piece a re-hash reads at a time (1 MiB).</summary>
+    private const int HashBufferBytes = 1 << 20;
+
     public ContentStore(string root)
     {
         ArgumentException.ThrowIfNullOrEmpty(root);
@@ -143,8 +146,24 @@ public sealed class ContentStore
             return null;
         }
 
-        await using var stream = OpenRead(sha256);
-        return Convert.ToHexStringLower(await SHA256.HashDataAsync(stream, cancellation).ConfigureAwait(false));
+        // Read in large pieces, straight into the hash (the stream's own buffer would only add a copy).
+        await using var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.Read, bufferSize: 0, FileOptions.Asynchronous | FileOptions.SequentialScan);
+        using var hash = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
+        var buffer = System.Buffers.ArrayPool<byte>.Shared.Rent(HashBufferBytes);
+        try
+        {
+            int read;
+            while ((read = await stream.ReadAsync(buffer.AsMemory(0, HashBufferBytes), cancellation).ConfigureAwait(false)) > 0)
+            {
+                hash.AppendData(buffer, 0, read);
+            }
+        }
+        finally
+        {
+            System.Buffers.ArrayPool<byte>.Shared.Return(buffer);
+        }
+
+        return Convert.ToHexStringLower(hash.GetHashAndReset());
     }
 
     /// <summary>

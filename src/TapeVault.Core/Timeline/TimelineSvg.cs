@@ -24,6 +24,9 @@ public static class TimelineSvg
     private const int GroupGap = 10;
     private const int LegendHeight = 26;
 
+    /// <summary>Above this many image positions (under three pixels each) the image lane is drawn without a link per position.</summary>
+    public const int MaxLinkedPositions = 260;
+
     private static readonly CultureInfo Invariant = CultureInfo.InvariantCulture;
 
     /// <summary>
@@ -42,7 +45,11 @@ public static class TimelineSvg
         var b = new StringBuilder(4096);
         // A timeline whose positions are links is a group of controls, not a picture: an image role would hide its links
         // from assistive technology (WCAG 2.1 4.1.2; axe-core's nested-interactive rule).
-        string role = image && positionLink is not null ? "group" : "img";
+        // A long tape's positions are narrower than a pointer can pick (800 positions in 780 pixels): its image lane is
+        // drawn like a setting's lane, one path per outcome and shade, and its positions are reached from the page's
+        // positions table instead; a link per position would only add bytes.
+        bool linked = image && positionLink is not null && timeline.Image!.Spans.Count <= MaxLinkedPositions;
+        string role = linked ? "group" : "img";
         b.Append(Invariant, $"<svg class=\"timeline\" role=\"{role}\" aria-label=\"{E(title)}\" width=\"{Width}\" height=\"{height}\" viewBox=\"0 0 {Width} {height}\" xmlns=\"http://www.w3.org/2000/svg\">\n");
         b.Append(Invariant, $"<title>{E(title)}: tape time from left to right, {(image ? "the image on top, " : string.Empty)}then each capture's detector settings.</title>\n");
         AppendPatterns(b);
@@ -51,21 +58,13 @@ public static class TimelineSvg
         if (image)
         {
             b.Append(Invariant, $"<text class=\"tl-lane\" x=\"4\" y=\"{y + 16}\" font-size=\"13\" font-weight=\"700\">Image</text>\n");
-            foreach (var s in timeline.Image!.Spans)
+            if (timeline.Image!.Spans.Count > MaxLinkedPositions)
             {
-                double x0 = X(s.Start);
-                double w = Math.Max(2, X(s.End) - x0 - 1);
-                var term = Vocabulary.Of(s.Status);
-                string tip = $"position {s.Position} ({s.Key}): {term.Word}, confidence {s.Confidence.ToString("0.000", Invariant)}, at {s.Start.ToString("0.0", Invariant)} s";
-                string shape = Shape(s.Status, x0, y, w, ImageLaneHeight, Opacity(s.Confidence, s.Status));
-                if (positionLink is not null && s.Position is { } position)
-                {
-                    b.Append(Invariant, $"<a href=\"{E(positionLink(position))}\" class=\"tl-position\"><title>{E(tip)}</title>{shape}</a>\n");
-                }
-                else
-                {
-                    b.Append(Invariant, $"<g><title>{E(tip)}</title>{shape}</g>\n");
-                }
+                AppendSpans(b, timeline.Image.Spans, $"Image, {timeline.Image.Spans.Count} positions", X, y, ImageLaneHeight);
+            }
+            else
+            {
+                AppendPositions(b, timeline.Image.Spans, positionLink, X, y);
             }
 
             y += ImageLaneHeight + GroupGap;
@@ -90,18 +89,45 @@ public static class TimelineSvg
         return b.ToString();
     }
 
+    /// <summary>The image lane of a tape of few positions: each position a shape with its details in a title, and a link where the caller gives one.</summary>
+    private static void AppendPositions(StringBuilder b, IReadOnlyList<TimelineSpan> spans, Func<int, string>? positionLink, Func<double, double> x, int y)
+    {
+        foreach (var s in spans)
+        {
+            double x0 = x(s.Start);
+            double w = Math.Max(2, x(s.End) - x0 - 1);
+            var term = Vocabulary.Of(s.Status);
+            string tip = $"position {s.Position} ({s.Key}): {term.Word}, confidence {s.Confidence.ToString("0.000", Invariant)}, at {s.Start.ToString("0.0", Invariant)} s";
+            string shape = Shape(s.Status, x0, y, w, ImageLaneHeight, Opacity(s.Confidence, s.Status));
+            if (positionLink is not null && s.Position is { } position)
+            {
+                b.Append(Invariant, $"<a href=\"{E(positionLink(position))}\" class=\"tl-position\"><title>{E(tip)}</title>{shape}</a>\n");
+            }
+            else
+            {
+                b.Append(Invariant, $"<g><title>{E(tip)}</title>{shape}</g>\n");
+            }
+        }
+    }
+
     /// <summary>One setting's readings: one path per outcome and shade, with a title that counts them.</summary>
     private static void AppendLane(StringBuilder b, TimelineLane lane, string captureTitle, Func<double, double> x, int y)
     {
         b.Append(Invariant, $"<text class=\"tl-lane\" x=\"12\" y=\"{y + 12}\" font-size=\"11\">{E(Shorten(lane.Title, 24))}</text>\n");
-        var counts = lane.Spans.GroupBy(s => s.Status).Select(g => $"{g.Count()} {Vocabulary.Of(g.Key).Word}");
-        b.Append(Invariant, $"<g><title>{E(captureTitle)} · {E(lane.Title)}: {E(lane.Spans.Count == 0 ? "read nothing" : string.Join(", ", counts))}</title>\n");
-        foreach (var group in lane.Spans.GroupBy(s => (s.Status, Shade: OpacityBucket(s.Confidence, s.Status))))
+        AppendSpans(b, lane.Spans, $"{captureTitle} · {lane.Title}", x, y, LaneHeight);
+    }
+
+    /// <summary>Spans as one path per outcome and shade, in a group whose title counts them.</summary>
+    private static void AppendSpans(StringBuilder b, IReadOnlyList<TimelineSpan> spans, string title, Func<double, double> x, int y, int laneHeight)
+    {
+        var counts = spans.GroupBy(s => s.Status).Select(g => $"{g.Count()} {Vocabulary.Of(g.Key).Word}");
+        b.Append(Invariant, $"<g><title>{E(title)}: {E(spans.Count == 0 ? "read nothing" : string.Join(", ", counts))}</title>\n");
+        foreach (var group in spans.GroupBy(s => (s.Status, Shade: OpacityBucket(s.Confidence, s.Status))))
         {
             // Whole pixels, and neighbours less than a pixel apart drawn as one bar: a long tape packs several
             // blocks into a pixel, where separate bars would only add bytes.
             var d = new StringBuilder();
-            var (top, h) = Band(group.Key.Status, y, LaneHeight);
+            var (top, h) = Band(group.Key.Status, y, laneHeight);
             int runStart = -1, runEnd = -1;
             foreach (var s in group.OrderBy(s => s.Start))
             {

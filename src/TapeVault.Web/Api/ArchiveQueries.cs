@@ -35,6 +35,19 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
         return new CollectionDetail(c.Id, c.Name, c.Description, c.CreatedUtc, items);
     }
 
+    /// <summary>A collection with one page of its tapes (in accession order, from the 0-based <paramref name="from"/>) and how many it holds in all.</summary>
+    public async Task<(CollectionDetail Collection, int TotalItems)> CollectionPageAsync(int id, int from, int take, CancellationToken cancellation = default)
+    {
+        var c = await db.Collections.AsNoTracking().FirstOrDefaultAsync(c => c.Id == id, cancellation).ConfigureAwait(false)
+            ?? throw new ArchiveNotFoundException($"There is no collection {id}.");
+        int total = await db.Items.CountAsync(i => i.CollectionId == id, cancellation).ConfigureAwait(false);
+        var items = await db.Items.AsNoTracking().Where(i => i.CollectionId == id).OrderBy(i => i.AccessionNumber)
+            .Skip(Math.Max(0, from)).Take(Math.Max(1, take))
+            .Select(i => new ItemSummary(i.Id, i.AccessionNumber, i.Title, i.Side, i.Captures.Count, i.Captures.SelectMany(x => x.Runs).Count()))
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        return (new CollectionDetail(c.Id, c.Name, c.Description, c.CreatedUtc, items), total);
+    }
+
     public async Task<ItemDetail> ItemAsync(int id, CancellationToken cancellation = default)
     {
         var item = await db.Items.AsNoTracking().Include(i => i.Collection).FirstOrDefaultAsync(i => i.Id == id, cancellation).ConfigureAwait(false)

@@ -114,4 +114,28 @@ public sealed class TapeTimelineTests
 
         Assert.True(svg.Length < 250_000, $"{svg.Length} characters");
     }
+
+    [Fact]
+    public void Svg_OfATapeOfManyPositions_DrawsItsImageLaneAsPaths_WithoutALinkPerPosition()
+    {
+        // 800 positions in the drawing's 778 pixels: each narrower than a pixel, so a link each could not be picked
+        // and would only add bytes; the page's positions table links them instead.
+        var readings = new List<TimelineReading>();
+        var image = new List<TimelinePosition>();
+        for (int k = 0; k < 800; k++)
+        {
+            readings.Add(new TimelineReading("a", "s", $"F:{k}", "clean", 0.999, 1.6 * k, (1.6 * k) + 1.4, 1));
+            image.Add(new TimelinePosition(k, $"F:{k}", k % 100 == 7 ? "missing" : "clean", k % 100 == 7 ? 0 : 0.999));
+        }
+
+        var t = TapeTimeline.Build([("a", "Capture 1")], readings, new Dictionary<string, IReadOnlyList<string>>(), image);
+        string text = TimelineSvg.Render(t, p => $"/items/1/positions/{p}");
+        var svg = XDocument.Parse(text);
+
+        XNamespace ns = "http://www.w3.org/2000/svg";
+        Assert.Empty(svg.Descendants(ns + "a"));
+        Assert.Equal("img", (string?)svg.Root!.Attribute("role"));
+        Assert.Contains(svg.Descendants(ns + "title"), e => e.Value.Contains("Image, 800 positions", StringComparison.Ordinal) && e.Value.Contains("8 missing", StringComparison.Ordinal));
+        Assert.True(text.Length < 20_000, $"{text.Length} characters");
+    }
 }

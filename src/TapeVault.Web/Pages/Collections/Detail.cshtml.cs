@@ -26,7 +26,16 @@ public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actio
 
     public Task<IActionResult> OnPostFixityAsync(int id) => QueueAsync(id, JobKinds.Fixity, "Auditing the fixity of every stored file of the collection", "its result appears here under Fixity audits");
 
-    public Task<IActionResult> OnGetAsync(int id) => LoadOrNotFoundAsync(() => LoadAsync(id));
+    /// <summary>How many tapes the page lists at a time (a collection of thousands comes in pages).</summary>
+    public const int TapesPerPage = 200;
+
+    /// <summary>The 0-based index of the first tape listed.</summary>
+    public int TapesFrom { get; private set; }
+
+    /// <summary>How many tapes the collection holds in all.</summary>
+    public int TotalTapes { get; private set; }
+
+    public Task<IActionResult> OnGetAsync(int id, [FromQuery(Name = "tapes")] int tapes = 0) => LoadOrNotFoundAsync(() => LoadAsync(id, tapes));
 
     public Task<IActionResult> OnPostAsync(int id) => TryAsync(
         async () =>
@@ -36,9 +45,16 @@ public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actio
         },
         () => LoadAsync(id));
 
-    private async Task LoadAsync(int id)
+    private async Task LoadAsync(int id, int tapes = 0)
     {
-        Collection = await queries.CollectionAsync(id, HttpContext.RequestAborted).ConfigureAwait(false);
+        TapesFrom = Math.Max(0, tapes) / TapesPerPage * TapesPerPage;
+        (Collection, TotalTapes) = await queries.CollectionPageAsync(id, TapesFrom, TapesPerPage, HttpContext.RequestAborted).ConfigureAwait(false);
+        if (TapesFrom > 0 && TapesFrom >= TotalTapes)
+        {
+            TapesFrom = Math.Max(0, TotalTapes - 1) / TapesPerPage * TapesPerPage;
+            (Collection, TotalTapes) = await queries.CollectionPageAsync(id, TapesFrom, TapesPerPage, HttpContext.RequestAborted).ConfigureAwait(false);
+        }
+
         Exports = await queries.ExportsAsync(id, null, HttpContext.RequestAborted).ConfigureAwait(false);
         Audits = await queries.FixityAuditsAsync(id, 3, HttpContext.RequestAborted).ConfigureAwait(false);
     }

@@ -1,0 +1,499 @@
+using System.Buffers.Binary;
+using System.Diagnostics;
+using System.Globalization;
+using Microsoft.EntityFrameworkCore;
+using Microsoft.Extensions.Configuration;
+using Microsoft.Extensions.DependencyInjection;
+using Microsoft.Extensions.Hosting;
+using TapeVault.Archive;
+using TapeVault.Archive.Curation;
+using TapeVault.Archive.Entities;
+using TapeVault.Archive.Events;
+using EventLog = TapeVault.Archive.Events.EventLog;
+using TapeVault.Archive.Export;
+using TapeVault.Archive.Fixity;
+using TapeVault.Archive.Ingest;
+using TapeVault.Archive.Jobs;
+using TapeVault.Archive.Runs;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Synthesis;
+using TapeVault.EndToEnd.Tests;
+
+namespace TapeVault.Bench;
+
+/// <summary>
+/// The archive at scale: builds an archive of many tapes through the archive's own services (curator actions, capture
+/// ingest, the run store, the job queue and its runner with the real merge job), plus one long tape of 400 blocks read
+/// in 3 passes by the default bank; then starts the web app on loopback and reads its pages, times a catalogue of every
+/// tape and a fixity audit, and runs GNU sha256sum over the same files in the same run as the outside reference.
+/// Prints figures; asserts nothing.
+/// </summary>
+public static partial class Scale
+{
+    private const string Agent = "bench";
+
+    private sealed record Options(int Tapes, int CapturesPerTape, int CaptureKilobytes, int LongBlocks, int Requests, bool Rebuild);
+
+    public static async Task<int> RunAsync(string work, string[] args)
+    {
+        var options = Parse(args);
+        string root = Path.Combine(work, $"scale-{options.Tapes}x{options.CapturesPerTape}-{options.CaptureKilobytes}k-{options.LongBlocks}b");
+        Console.WriteLine($"== The archive at scale: {options.Tapes} tapes × {options.CapturesPerTape} captures of {options.CaptureKilobytes} KiB, one tape of {options.LongBlocks} blocks × 3 passes");
+        Console.WriteLine($"archive folder {root}; load at start: {Load()}");
+        var built = Path.Combine(root, "built.txt");
+        if (options.Rebuild || !File.Exists(built))
+        {
+            if (Directory.Exists(root))
+            {
+                MakeWritable(root);
+                Directory.Delete(root, recursive: true);
+            }
+
+            Directory.CreateDirectory(root);
+            var summary = await BuildAsync(work, root, options);
+            await File.WriteAllTextAsync(built, summary);
+        }
+        else
+        {
+            Console.WriteLine("reusing the archive built by an earlier run (--rebuild builds it anew):");
+        }
+
+        Console.Write(await File.ReadAllTextAsync(built));
+        var facts = await FactsAsync(root);
+        await MeasurePagesAsync(root, facts, options);
+        await MeasureMergeAsync(root, facts);
+        await MeasurePublishAsync(root, facts);
+        await MeasureFixityAsync(root);
+        Console.WriteLine($"load at end: {Load()}");
+        Console.WriteLine();
+        return 0;
+    }
+
+    private static Options Parse(string[] args)
+    {
+        int tapes = 10_000, captures = 3, kilobytes = 32, blocks = 400, requests = 40;
+        bool rebuild = false;
+        for (int i = 0; i < args.Length; i++)
+        {
+            int Next() => int.Parse(args[++i], CultureInfo.InvariantCulture);
+            switch (args[i])
+            {
+                case "--tapes": tapes = Next(); break;
+                case "--captures": captures = Next(); break;
+                case "--capture-kb": kilobytes = Next(); break;
+                case "--blocks": blocks = Next(); break;
+                case "--requests": requests = Next(); break;
+                case "--rebuild": rebuild = true; break;
+                default: throw new ArgumentException($"scale: unknown option '{args[i]}' (--tapes N, --captures N, --capture-kb N, --blocks N, --requests N, --rebuild)");
+            }
+        }
+
+        if (tapes < 1 || captures < 1 || kilobytes < 1 || blocks < 1 || requests < 5)
+        {
+            throw new ArgumentException("scale: --tapes, --captures, --capture-kb and --blocks are at least 1, --requests at least 5.");
+        }
+
+        return new Options(tapes, captures, kilobytes, blocks, requests, rebuild);
+    }
+
+    private static ArchiveOptions Archive(string root) => new() { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" };
+
+    private static ServiceProvider Services(string root)
+    {
+        var services = new ServiceCollection();
+        services.AddLogging();
+        services.AddTapeVaultArchive(Archive(root), ProfileCatalog.BuiltIn);
+        return services.BuildServiceProvider();
+    }
+
+    private static async Task<string> BuildAsync(string work, string root, Options options)
+    {
+        var log = new System.Text.StringBuilder();
+        void Say(string line)
+        {
+            Console.WriteLine(line);
+            log.AppendLine(line);
+        }
+
+        await using var services = Services(root);
+        await using (var first = services.CreateAsyncScope())
+        {
+            await ArchiveDatabase.MigrateAsync(first.ServiceProvider.GetRequiredService<ArchiveDbContext>());
+        }
+
+        var profile = ProfileCatalog.BuiltIn.Get("orrin-80");
+        var clock = Stopwatch.StartNew();
+        int collectionId;
+        var itemIds = new List<int>(options.Tapes + 1);
+        await using (var scope = services.CreateAsyncScope())
+        {
+            var actions = scope.ServiceProvider.GetRequiredService<CuratorActions>();
+            collectionId = (await actions.CreateCollectionAsync("Scale shelf", "Synthetic tapes for the scale benchmark.", Agent)).Id;
+        }
+
+        // Tapes are added as CuratorActions.CreateItemAsync adds them (the row, then its "create" event), 500 to a save.
+        for (int start = 0; start < options.Tapes; start += 500)
+        {
+            await using var scope = services.CreateAsyncScope();
+            var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+            var batch = new List<TapeItem>();
+            for (int t = start; t < Math.Min(options.Tapes, start + 500); t++)
+            {
+                batch.Add(new TapeItem
+                {
+                    CollectionId = collectionId, AccessionNumber = $"SC-{t + 1:00000}", Title = $"Club tape {t + 1}", LabelText = $"Side A, tape {t + 1}",
+                    ConditionNotes = "Shell intact.", Side = "A", CreatedUtc = DateTimeOffset.UtcNow,
+                });
+            }
+
+            db.Items.AddRange(batch);
+            await db.SaveChangesAsync();
+            foreach (var item in batch)
+            {
+                EventLog.Add(db, EventTypes.Create, Agent, "item", item.Id.ToString(CultureInfo.InvariantCulture), "success", $"Item {item.AccessionNumber} '{item.Title}' created.", item.Id);
+                itemIds.Add(item.Id);
+            }
+
+            await db.SaveChangesAsync();
+        }
+
+        Say($"built: {options.Tapes} tapes in {clock.Elapsed.TotalSeconds:0.0} s (as CuratorActions.CreateItemAsync adds them, 500 to a save)");
+
+        // Every short capture is a distinct small WAV (noise from its own seed), ingested by the upload's own service.
+        clock.Restart();
+        var captureIds = new List<int>(options.Tapes * options.CapturesPerTape);
+        long bytesIn = 0;
+        for (int start = 0; start < itemIds.Count; start += 200)
+        {
+            await using var scope = services.CreateAsyncScope();
+            var ingest = scope.ServiceProvider.GetRequiredService<CaptureIngest>();
+            for (int t = start; t < Math.Min(itemIds.Count, start + 200); t++)
+            {
+                for (int p = 0; p < options.CapturesPerTape; p++)
+                {
+                    var wav = NoiseWav(options.CaptureKilobytes * 1024, (t * options.CapturesPerTape) + p);
+                    bytesIn += wav.Length;
+                    using var body = new MemoryStream(wav);
+                    var result = await ingest.IngestAsync(body, new IngestRequest
+                    {
+                        ItemId = itemIds[t], FileName = $"pass-{p + 1}.wav", ContentType = "audio/wav", Deck = $"deck {(p % 3) + 1}", Operator = Agent, Agent = Agent,
+                    });
+                    captureIds.Add(result.Capture.Id);
+                }
+            }
+
+            if (start % 2000 == 0 && start > 0)
+            {
+                Console.WriteLine($"   … {captureIds.Count} captures in {clock.Elapsed.TotalSeconds:0} s");
+            }
+        }
+
+        Say($"built: {captureIds.Count} captures ({bytesIn / 1e6:0} MB) in {clock.Elapsed.TotalSeconds:0.0} s (CaptureIngest.IngestAsync, each hashed, fsynced and placed)");
+
+        // One real decode of a short tape gives the readings every short capture's run records (the runs are rows
+        // made by the run store, as a decode job makes them; decoding 30 000 captures is the read path's benchmark).
+        clock.Restart();
+        var templatePath = Path.Combine(work, "scale-template.wav");
+        CaptureSynthesizer.Write(templatePath, profile, [new TapeFile("SCALE", new byte[32])], new ChannelDamage { SnrDb = 24, Seed = 5 });
+        var template = CaptureDecoder.Decode(templatePath, profile);
+        int runs = 0;
+        for (int start = 0; start < captureIds.Count; start += 300)
+        {
+            await using var scope = services.CreateAsyncScope();
+            var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+            var batch = captureIds.Skip(start).Take(300).ToList();
+            var items = await db.Captures.AsNoTracking().Where(c => batch.Contains(c.Id)).ToDictionaryAsync(c => c.Id, c => c.ItemId);
+            var made = new List<(DecodeRun Run, int ItemId)>();
+            foreach (var id in batch)
+            {
+                var now = DateTimeOffset.UtcNow;
+                var run = RunStore.ToRun(id, template, now, now);
+                db.Runs.Add(run);
+                made.Add((run, items[id]));
+            }
+
+            await db.SaveChangesAsync();
+            foreach (var (run, itemId) in made)
+            {
+                EventLog.Add(db, EventTypes.Decode, Agent, "run", run.Id.ToString(CultureInfo.InvariantCulture), "success",
+                    $"Capture {run.CaptureId} with profile {profile.Id} and {template.Settings.Count} detector setting(s), code {template.CodeVersion}: {run.Outcome}", itemId);
+            }
+
+            await db.SaveChangesAsync();
+            runs += batch.Count;
+        }
+
+        Say($"built: {runs} decode runs of {template.Candidates.Count} readings each in {clock.Elapsed.TotalSeconds:0.0} s (RunStore.ToRun, batched)");
+
+        // The long tape: three passes synthesised with their own damage, uploaded and decoded by real decode jobs.
+        clock.Restart();
+        int longItem;
+        var longCaptures = new List<int>();
+        await using (var scope = services.CreateAsyncScope())
+        {
+            var actions = scope.ServiceProvider.GetRequiredService<CuratorActions>();
+            longItem = (await actions.CreateItemAsync(collectionId, "SC-LONG", $"Long tape of {options.LongBlocks} blocks", "Both sides full", "Played often.", "A", Agent)).Id;
+            var ingest = scope.ServiceProvider.GetRequiredService<CaptureIngest>();
+            var content = new byte[options.LongBlocks * 255];
+            new Random(400).NextBytes(content);
+            for (int p = 0; p < 3; p++)
+            {
+                var path = Path.Combine(work, $"scale-long-{options.LongBlocks}-{p + 1}.wav");
+                if (!File.Exists(path))
+                {
+                    CaptureSynthesizer.Write(path, profile, [new TapeFile("LONGTAPE", content)],
+                        new ChannelDamage { SnrDb = 20, Seed = 4000 + p, WowPercent = 0.2, RandomDropoutsPerMinute = 20, Speed = 1 + ((p - 1) * 0.01) });
+                }
+
+                await using var file = File.OpenRead(path);
+                var result = await ingest.IngestAsync(file, new IngestRequest { ItemId = longItem, FileName = $"long-pass-{p + 1}.wav", ContentType = "audio/wav", Deck = $"deck {p + 1}", Agent = Agent });
+                longCaptures.Add(result.Capture.Id);
+                await actions.QueueDecodeAsync(result.Capture.Id, profile.Id, null, "mix", Agent);
+            }
+        }
+
+        await RunQueueAsync(services);
+        Say($"built: the long tape's 3 passes synthesised, ingested and decoded by decode jobs in {clock.Elapsed.TotalSeconds:0.0} s");
+
+        // Every tape's image is made by a merge job, worked by the job runner as the app works them.
+        clock.Restart();
+        await using (var scope = services.CreateAsyncScope())
+        {
+            var actions = scope.ServiceProvider.GetRequiredService<CuratorActions>();
+            foreach (var id in itemIds.Append(longItem))
+            {
+                await actions.QueueMergeAsync(id, Agent);
+            }
+        }
+
+        await RunQueueAsync(services);
+        await using (var scope = services.CreateAsyncScope())
+        {
+            var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+            int images = await db.Images.CountAsync();
+            int failed = await db.Jobs.CountAsync(j => j.State != JobState.Done);
+            Say($"built: {images} tape images by merge jobs in {clock.Elapsed.TotalSeconds:0.0} s ({failed} job(s) not done)");
+        }
+
+        return log.ToString();
+    }
+
+    /// <summary>Runs the archive's jobs as a worker does (the job engine, two workers as the app has) until the queue is empty.</summary>
+    private static async Task RunQueueAsync(ServiceProvider services)
+    {
+        var archive = services.GetRequiredService<ArchiveOptions>();
+        using var worker = JobWorker.Build(new ConfigurationBuilder().Build(), archive, JobWorker.StopWhenIdle);
+        await worker.RunAsync();
+    }
+
+    private sealed record Facts(int CollectionId, int[] ItemIds, int[] CaptureIds, int LongItem, int[] LongCaptures, int Tapes, int Objects, long ObjectBytes);
+
+    private static async Task<Facts> FactsAsync(string root)
+    {
+        await using var services = Services(root);
+        await using var scope = services.CreateAsyncScope();
+        var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+        var items = await db.Items.AsNoTracking().Select(i => new { i.Id, i.AccessionNumber, i.CollectionId }).ToListAsync();
+        var longItem = items.Single(i => i.AccessionNumber == "SC-LONG");
+        var captures = await db.Captures.AsNoTracking().Select(c => new { c.Id, c.ItemId }).ToListAsync();
+        long bytes = await db.Objects.SumAsync(o => o.Size);
+        int objects = await db.Objects.CountAsync();
+        return new Facts(longItem.CollectionId, [.. items.Where(i => i.Id != longItem.Id).Select(i => i.Id)], [.. captures.Where(c => c.ItemId != longItem.Id).Select(c => c.Id)],
+            longItem.Id, [.. captures.Where(c => c.ItemId == longItem.Id).Select(c => c.Id)], items.Count, objects, bytes);
+    }
+
+    private static async Task MeasurePagesAsync(string root, Facts facts, Options options)
+    {
+        // The app makes the first curator at its first start on the archive; the password chosen then is kept beside
+        // the archive for the runs that reuse it.
+        await using var app = await AppProcess.StartAsync(root);
+        var saved = Path.Combine(root, "curator-password.txt");
+        if (app.CuratorPassword.Length > 0)
+        {
+            await File.WriteAllTextAsync(saved, app.CuratorPassword);
+        }
+
+        using var api = await ApiSession.SignInAsync(app.Address, "curator", await File.ReadAllTextAsync(saved));
+        var random = new Random(14);
+        Console.WriteLine($"pages over loopback ({options.Requests} requests each after 3 warm-up, one client, signed in as a curator):");
+        Console.WriteLine("| page | p50 ms | p95 ms | HTML KB |");
+        Console.WriteLine("|---|---|---|---|");
+        await PageAsync(api, "collection (all tapes)", _ => $"/collections/{facts.CollectionId}", options.Requests);
+        await PageAsync(api, "tape (3 captures, 1 image)", _ => $"/items/{facts.ItemIds[random.Next(facts.ItemIds.Length)]}", options.Requests);
+        await PageAsync(api, "capture", _ => $"/captures/{facts.CaptureIds[random.Next(facts.CaptureIds.Length)]}", options.Requests);
+        await PageAsync(api, "jobs", _ => "/jobs", options.Requests);
+        await PageAsync(api, "collections (home)", _ => "/", options.Requests);
+        await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings", _ => $"/items/{facts.LongItem}", Math.Max(5, options.Requests / 4));
+        Console.WriteLine("(page times are whole requests on loopback; the tape page tells its timeline's own server time in a Server-Timing header)");
+    }
+
+    private static async Task PageAsync(ApiSession api, string name, Func<int, string> path, int requests, bool optional = false)
+    {
+        var times = new List<double>(requests);
+        long size = 0;
+        int refused = 0;
+        var serverTimes = new List<double>();
+        for (int r = -3; r < requests; r++)
+        {
+            string url = path(r);
+            var started = Stopwatch.GetTimestamp();
+            var response = await api.Http.GetAsync(url);
+            var body = await response.Content.ReadAsByteArrayAsync();
+            double ms = Stopwatch.GetElapsedTime(started).TotalMilliseconds;
+
+            // A page that plots from the original is rate-limited per account: wait as told, then ask again (the wait
+            // is not counted; the refusal is).
+            while (response.StatusCode == System.Net.HttpStatusCode.TooManyRequests)
+            {
+                refused++;
+                await Task.Delay(response.Headers.RetryAfter?.Delta ?? TimeSpan.FromSeconds(1));
+                response.Dispose();
+                started = Stopwatch.GetTimestamp();
+                response = await api.Http.GetAsync(url);
+                body = await response.Content.ReadAsByteArrayAsync();
+                ms = Stopwatch.GetElapsedTime(started).TotalMilliseconds;
+            }
+
+            using var disposing = response;
+            if (!response.IsSuccessStatusCode)
+            {
+                if (optional && response.StatusCode == System.Net.HttpStatusCode.NotFound)
+                {
+                    return;
+                }
+
+                throw new InvalidOperationException($"GET {url}: {(int)response.StatusCode}");
+            }
+
+            if (r >= 0)
+            {
+                times.Add(ms);
+                size = Math.Max(size, body.Length);
+                if (response.Headers.TryGetValues("Server-Timing", out var timings)
+                    && ServerTimingDuration().Match(string.Join(",", timings)) is { Success: true } timing)
+                {
+                    serverTimes.Add(double.Parse(timing.Groups[1].Value, CultureInfo.InvariantCulture));
+                }
+            }
+        }
+
+        times.Sort();
+        serverTimes.Sort();
+        string timeline = serverTimes.Count > 0 ? $" timeline read and drawn on the server (Server-Timing): p50 {Percentile(serverTimes, 0.50):0.0} ms, p95 {Percentile(serverTimes, 0.95):0.0} ms" : string.Empty;
+        Console.WriteLine($"| {name} | {Percentile(times, 0.50):0.0} | {Percentile(times, 0.95):0.0} | {size / 1024.0:0.0} |{timeline}{(refused > 0 ? $" ({refused} refused by the plot rate limit, asked again after the wait)" : string.Empty)}");
+    }
+
+    private static async Task MeasureMergeAsync(string root, Facts facts)
+    {
+        await using var services = Services(root);
+        int jobId;
+        await using (var scope = services.CreateAsyncScope())
+        {
+            jobId = (await scope.ServiceProvider.GetRequiredService<CuratorActions>().QueueMergeAsync(facts.LongItem, Agent)).Id;
+        }
+
+        var clock = Stopwatch.StartNew();
+        await RunQueueAsync(services);
+        clock.Stop();
+        await using (var scope = services.CreateAsyncScope())
+        {
+            var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+            var job = await db.Jobs.AsNoTracking().FirstAsync(j => j.Id == jobId);
+            double seconds = job.FinishedUtc is { } f && job.StartedUtc is { } s ? (f - s).TotalSeconds : double.NaN;
+            int readings = await db.Candidates.CountAsync(c => c.Run!.Capture!.ItemId == facts.LongItem);
+            Console.WriteLine($"merge of the long tape's 3 passes ({readings} readings): merge job {seconds:0.00} s from start to finish ({job.State}: {job.ProgressText})");
+        }
+    }
+
+    private static async Task MeasurePublishAsync(string root, Facts facts)
+    {
+        await using var services = Services(root);
+        await using var scope = services.CreateAsyncScope();
+        var publisher = scope.ServiceProvider.GetRequiredService<CataloguePublisher>();
+        var zip = Path.Combine(root, "catalogue.zip");
+        var clock = Stopwatch.StartNew();
+        await using (var file = File.Create(zip))
+        {
+            await publisher.PublishZipAsync(facts.CollectionId, file);
+        }
+
+        Console.WriteLine($"catalogue of {facts.Tapes} tapes published in {clock.Elapsed.TotalSeconds:0.0} s ({new FileInfo(zip).Length / 1e6:0.0} MB zip; CataloguePublisher.PublishZipAsync)");
+        File.Delete(zip);
+    }
+
+    private static async Task MeasureFixityAsync(string root)
+    {
+        var objects = Path.Combine(root, "store", "objects");
+        var files = Directory.EnumerateFiles(objects, "*", SearchOption.AllDirectories).ToList();
+        long bytes = files.Sum(f => new FileInfo(f).Length);
+
+        // GNU sha256sum over the same files: once to warm the page cache for both, then timed.
+        double Sha256sum()
+        {
+            var list = Path.Combine(root, "objects.list");
+            File.WriteAllLines(list, files);
+            var start = new ProcessStartInfo("sh", ["-c", $"xargs -a '{list}' -d '\\n' sha256sum > /dev/null"]) { UseShellExecute = false };
+            var clock = Stopwatch.StartNew();
+            using var process = Process.Start(start)!;
+            process.WaitForExit();
+            if (process.ExitCode != 0)
+            {
+                throw new InvalidOperationException("sha256sum failed.");
+            }
+
+            return clock.Elapsed.TotalSeconds;
+        }
+
+        Sha256sum();
+        double outside = Sha256sum();
+        await using var services = Services(root);
+        await using var scope = services.CreateAsyncScope();
+        var audit = scope.ServiceProvider.GetRequiredService<FixityAudit>();
+        var clock = Stopwatch.StartNew();
+        var report = await audit.RunAsync(null, Agent);
+        double ours = clock.Elapsed.TotalSeconds;
+        double outside2 = Sha256sum();
+        double reference = Math.Min(outside, outside2);
+        Console.WriteLine($"fixity over {files.Count} files, {bytes / 1e6:0} MB: audit {ours:0.00} s ({bytes / 1e6 / ours:0} MB/s, {files.Count / ours:0} files/s; {report.Good}/{report.Checked} good, {report.Problems.Count} problem(s)); "
+            + $"GNU sha256sum {outside:0.00} s and {outside2:0.00} s ({bytes / 1e6 / reference:0} MB/s); ratio {ours / reference:0.00}");
+    }
+
+    [System.Text.RegularExpressions.GeneratedRegex(@"timeline;[^,]*dur=([0-9.]+)")]
+    private static partial System.Text.RegularExpressions.Regex ServerTimingDuration();
+
+    private static double Percentile(List<double> sorted, double q) => sorted[Math.Min(sorted.Count - 1, (int)Math.Ceiling(q * sorted.Count) - 1)];
+
+    /// <summary>A 16-bit mono 8 kHz PCM WAV of the given size holding noise from its own seed, so every file is distinct.</summary>
+    private static byte[] NoiseWav(int size, int seed)
+    {
+        size -= size % 2;
+        var wav = new byte[size];
+        int data = size - 44;
+        "RIFF"u8.CopyTo(wav);
+        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(4), size - 8);
+        "WAVEfmt "u8.CopyTo(wav.AsSpan(8));
+        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(16), 16);
+        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(20), 1);
+        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(22), 1);
+        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(24), 8000);
+        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(28), 16_000);
+        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(32), 2);
+        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(34), 16);
+        "data"u8.CopyTo(wav.AsSpan(36));
+        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(40), data);
+        new Random(seed).NextBytes(wav.AsSpan(44));
+        return wav;
+    }
+
+    private static string Load() => File.Exists("/proc/loadavg") ? string.Join(' ', File.ReadAllText("/proc/loadavg").Split(' ').Take(3)) : "unknown";
+
+    private static void MakeWritable(string folder)
+    {
+        foreach (var file in Directory.EnumerateFiles(folder, "*", SearchOption.AllDirectories))
+        {
+            File.SetAttributes(file, FileAttributes.Normal);
+        }
+    }
+}
