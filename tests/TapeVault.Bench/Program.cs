@@ -20,6 +20,12 @@ if (section == "fuzz")
     return Fuzz.Run(work, args[1..]);
 }
 
+if (section == "fingerprint")
+{
+    // What every built-in profile decodes, hashed: compare the builds before and after a change to the read path.
+    return Fingerprint.Run(work);
+}
+
 if (section == "draft")
 {
     // draft --count N --first-seed S: see DraftFigure and docs/performance.md.

@@ -50,15 +50,21 @@ public sealed class DetectorBank
 
     /// <summary>
     /// Advances every setting over <paramref name="samples"/>. Edges are appended to <paramref name="edges"/>[setting]
-    /// (the caller clears them between chunks). When <paramref name="conditioned"/> is given, the conditioned
-    /// signal of each setting is written to it too (tone detectors read it).
+    /// (the caller clears them between chunks). When <paramref name="tones"/> is given, each setting's conditioned
+    /// signal also drives its tone correlators in the same pass, and their energies are written to
+    /// <paramref name="energies"/> (FSK decoders read them).
     /// </summary>
-    public void Process(ReadOnlySpan<float> samples, EdgeBuffer[] edges, float[][]? conditioned = null)
+    public void Process(ReadOnlySpan<float> samples, EdgeBuffer[] edges, ToneBank? tones = null, ToneEnergies? energies = null)
     {
         ArgumentNullException.ThrowIfNull(edges);
         if (edges.Length < Settings.Count)
         {
             throw new ArgumentException("One edge buffer is needed per setting.", nameof(edges));
+        }
+
+        if (tones is not null && (energies is null || energies.Capacity < samples.Length || tones.Settings != Settings.Count))
+        {
+            throw new ArgumentException("Tone correlators need one lane per setting and room for the chunk's energies.", nameof(energies));
         }
 
         // Crossing times are interpolated in single precision relative to the start of what a group is given; slices
@@ -68,11 +74,13 @@ public sealed class DetectorBank
             var slice = samples.Slice(offset, Math.Min(SliceSamples, samples.Length - offset));
             for (int g = 0; g < _groups.Length; g++)
             {
-                _groups[g].Process(slice, _samplesSeen, edges, conditioned, offset);
+                _groups[g].Process(slice, _samplesSeen, edges, tones, energies, offset);
             }
 
             _samplesSeen += slice.Length;
         }
+
+        tones?.EndChunk();
     }
 
     /// <summary>The longest run of samples a lane group processes at once (float spacing at 4096 is 1/2048 sample).</summary>
@@ -82,7 +90,6 @@ public sealed class DetectorBank
     private struct LaneGroup
     {
         private int _firstSetting;
-        private int _laneCount;
 
         // Coefficients.
         private Vector256<float> _hpA;
@@ -171,7 +178,6 @@ public sealed class DetectorBank
             return new LaneGroup
             {
                 _firstSetting = first,
-                _laneCount = lanes,
                 _hpA = Vector256.Create(hpA),
                 _b0 = Vector256.Create(b0),
                 _b1 = Vector256.Create(b1),
@@ -195,7 +201,7 @@ public sealed class DetectorBank
             };
         }
 
-        public void Process(ReadOnlySpan<float> samples, long chunkStart, EdgeBuffer[] edges, float[][]? conditioned, int conditionedOffset)
+        public void Process(ReadOnlySpan<float> samples, long chunkStart, EdgeBuffer[] edges, ToneBank? tones, ToneEnergies? energies, int offset)
         {
             // State into locals so the JIT keeps it in registers for the loop.
             float previousSample = _previousSample;
@@ -221,7 +227,6 @@ public sealed class DetectorBank
             var zero = Vector256<float>.Zero;
             var one = Vector256<float>.One;
             var minusOne = Vector256.Create(-1f);
-            int lanes = _laneCount;
             Span<float> crossingLanes = stackalloc float[LanesPerGroup];
             Span<float> envelopeLanes = stackalloc float[LanesPerGroup];
 
@@ -272,7 +277,7 @@ public sealed class DetectorBank
                     lastCrossing = Vector256.ConditionalSelect(crossed, crossingTime, lastCrossing);
                     previousConditioned = c;
 
-                    // Kept for tone detectors; one store, transposed after the loop only when they ask for it.
+                    // Kept for the tone correlators, which run over the slice after this loop when the bank has them.
                     eventConditioned[n] = c;
 
                     // Schmitt trigger: low goes high above +band, high goes low below −band.
@@ -292,16 +297,10 @@ public sealed class DetectorBank
                 }
             }
 
-            if (conditioned is not null)
+            if (tones is not null)
             {
-                for (int lane = 0; lane < lanes; lane++)
-                {
-                    var target = conditioned[_firstSetting + lane].AsSpan(conditionedOffset, samples.Length);
-                    for (int n = 0; n < target.Length; n++)
-                    {
-                        target[n] = eventConditioned[n].GetElement(lane);
-                    }
-                }
+                // The tone correlators of these eight settings read the conditioned signal just kept, still in its lanes.
+                tones.Process(_firstSetting, eventConditioned.AsSpan(0, samples.Length), energies!, offset);
             }
 
             // The slice's counted switches become edges, outside the sample loop.
