@@ -20,6 +20,12 @@ if (section == "fuzz")
     return Fuzz.Run(work, args[1..]);
 }
 
+if (section == "fingerprint")
+{
+    // What every built-in profile decodes, hashed: compare the builds before and after a change to the read path.
+    return Fingerprint.Run(work);
+}
+
 if (section == "draft")
 {
     // draft --count N --first-seed S: see DraftFigure and docs/performance.md.
@@ -43,7 +49,12 @@ Console.WriteLine($"TapeVault benchmark — {Environment.ProcessorCount} cores, 
 Console.WriteLine();
 if (section is "all" or "throughput")
 {
-    Throughput.Run(work, [30, 60]);
+    // throughput [MINUTES [LONG-MINUTES [PROFILE]]]: every built-in profile at MINUTES (30), orrin-80 again at
+    // LONG-MINUTES (120; 0 for none) for memory flatness; PROFILE measures that profile alone.
+    int minutes = section == "throughput" && args.Length > 1 ? int.Parse(args[1], CultureInfo.InvariantCulture) : 30;
+    int longMinutes = section == "throughput" && args.Length > 2 ? int.Parse(args[2], CultureInfo.InvariantCulture) : 120;
+    string? only = section == "throughput" && args.Length > 3 ? args[3] : null;
+    Throughput.Run(work, minutes, longMinutes, "orrin-80", only);
 }
 
 if (section is "all" or "plots")

@@ -1,4 +1,6 @@
 using System.Diagnostics;
+using System.Globalization;
+using System.Text;
 using TapeVault.Core.Audio;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Decoding;
@@ -8,43 +10,128 @@ using TapeVault.Core.Synthesis;
 namespace TapeVault.Bench;
 
 /// <summary>
-/// Read-path throughput: a bare scan of a capture (read, convert to float, sum) against a decode with the default
-/// bank of eight settings, on a synthesised capture of the demo pulse-width format.
+/// Read-path throughput of every family: for each built-in profile, a 30-minute capture decoded with the profile's
+/// default bank, beside a bare scan of the same file (read, convert to float, SHA-256, sum) in the same run; and, as the
+/// outside reference, minimodem's single FSK detector (<c>minimodem --rx 300</c>) and SoX's <c>stat</c> on a KCS file
+/// that minimodem itself wrote. Every figure is a whole process (start-up included), the median of three, and the
+/// processes of one table run one after the other, so their ratios share the machine's load of that moment.
 /// </summary>
 public static class Throughput
 {
-    public static void Run(string work, int[] minutes)
+    /// <summary>Every built-in profile, by family: the default bank of each is what a user gets.</summary>
+    public static readonly string[] Profiles =
+        ["orrin-80", "three-class-pairs", "one-cycle-bits", "kcs-300", "kcs-1200", "fsk-sync-1200", "biphase-1200", "biphase-1500"];
+
+    private const int Runs = 3;
+
+    /// <summary>
+    /// <paramref name="minutes"/>: the capture length of the per-family table; <paramref name="longMinutes"/>: a second,
+    /// longer capture of <paramref name="longProfile"/> for memory flatness (0 for none); <paramref name="only"/>: one
+    /// profile alone (null for all).
+    /// </summary>
+    public static void Run(string work, int minutes, int longMinutes, string longProfile, string? only)
     {
-        Console.WriteLine("Read-path throughput (orrin-80, 44.1 kHz 16-bit mono, default bank of 8 settings)");
-        Console.WriteLine($"{"capture",8} {"scan Ms/s",10} {"bank Ms/s",10} {"ratio",6} {"x real time",12} {"scan peak MB",13} {"bank peak MB",13} {"blocks clean",13}");
-        foreach (int m in minutes)
+        Console.WriteLine($"Read-path throughput: 44.1 kHz 16-bit mono, {minutes} min captures, whole processes, median of {Runs}");
+        Console.WriteLine($"Load at start: {Load()}");
+        string kcs = Path.Combine(work, $"minimodem-kcs300-{minutes}min.wav");
+        EnsureMinimodemCapture(kcs, minutes);
+
+        // The outside references, measured first and again at the end so a change of load between shows.
+        var reference = MeasureReferences(kcs);
+        Console.WriteLine();
+        Console.WriteLine($"{"profile",-18} {"family",-12} {"scan s",7} {"bank s",7} {"vs scan",8} {"vs mm",6} {"x real",7} {"Ms/s",6} {"cpu s",6} {"cpu/scan",8} {"cpu/mm",6} {"scan MB",8} {"bank MB",8} {"blocks",14}");
+        Row(reference.MinimodemCapture, "kcs-300", minutes, reference);
+        foreach (string id in Profiles)
         {
-            string path = Path.Combine(work, $"orrin-{m}min.wav");
-            EnsureCapture(path, m);
-            // This machine's speed wanders by ±20 % from run to run: each figure is the median of three runs.
-            var scan = Median(Child("scan", path), Child("scan", path), Child("scan", path));
-            var bank = Median(Child("bank", path), Child("bank", path), Child("bank", path));
-            double seconds = m * 60.0;
-            double samples = seconds * 44_100;
-            double scanRate = samples / scan.Seconds;
-            double bankRate = samples / bank.Seconds;
-            Console.WriteLine($"{m + " min",8} {scanRate / 1e6,10:0.0} {bankRate / 1e6,10:0.0} {scanRate / bankRate,6:0.00} {seconds / bank.Seconds,12:0} {scan.PeakMegabytes,13:0} {bank.PeakMegabytes,13:0} {bank.Note,13}");
+            if (only is not null && id != only)
+            {
+                continue;
+            }
+
+            string path = CapturePath(work, id, minutes);
+            EnsureCapture(path, id, minutes);
+            Row(path, id, minutes, reference);
         }
 
-        Console.WriteLine("Each figure is the median of three runs, each in a fresh process.");
-        Console.WriteLine("Goals: ratio <= 4, >= 1000x real time for the bank on 2 cores, peak memory < 300 MB and flat from 30 to 60 minutes.");
+        if (longMinutes > 0 && (only is null || only == longProfile))
+        {
+            string path = CapturePath(work, longProfile, longMinutes);
+            EnsureCapture(path, longProfile, longMinutes);
+            Row(path, longProfile, longMinutes, reference);
+            Console.WriteLine($"({longProfile} at {minutes} and {longMinutes} minutes: peak memory should be flat.)");
+        }
+
+        Console.WriteLine();
+        Console.WriteLine($"Load at end: {Load()}");
+        var again = MeasureReferences(kcs);
+        Console.WriteLine("cpu: user + system seconds of the whole process (GNU time); on a shared machine the CPU ratios move less than the wall-clock ones.");
+        Console.WriteLine($"Ratios are against the scan of the same file and against minimodem --rx on the minimodem KCS file, both measured in this run.");
+        Console.WriteLine($"minimodem at the start {reference.Minimodem.Seconds:0.00} s, at the end {again.Minimodem.Seconds:0.00} s (the load moved by their ratio).");
+        Console.WriteLine("Goals: vs scan <= 4, vs minimodem < 1 (FSK), >= 1000x real time on 2 cores, peak memory < 300 MB and flat with length.");
         Console.WriteLine();
     }
 
-    /// <summary>A long capture: the demo format's files repeated, with mild noise and wow, so the decoders do real work.</summary>
-    internal static void EnsureCapture(string path, int minutes)
+    private sealed record References(string MinimodemCapture, Measured Minimodem, Measured SoxStat);
+
+    private static References MeasureReferences(string kcs)
+    {
+        // Outside reference: minimodem (a general-purpose software FSK modem, one detector) reading the file it wrote,
+        // and SoX reading, converting and summing it (the floor of any read path).
+        var minimodem = Median(() => Measure(OutsideDamage.MinimodemPath, ["--rx", "300", "--stopbits", "2", "-q", "-f", kcs]));
+        var stat = Median(() => Measure(OutsideDamage.SoxPath, [kcs, "-n", "stat"]));
+        Console.WriteLine($"minimodem --rx 300 -f {Path.GetFileName(kcs)}: {minimodem.Seconds:0.00} s wall, {minimodem.CpuSeconds:0.00} s CPU, {minimodem.PeakMegabytes:0} MB; " +
+            $"sox {Path.GetFileName(kcs)} -n stat: {stat.Seconds:0.00} s, {stat.PeakMegabytes:0} MB; minimodem read {minimodem.Note}");
+        return new References(kcs, minimodem, stat);
+    }
+
+    private static void Row(string path, string id, int minutes, References reference)
+    {
+        var profile = ProfileCatalog.BuiltIn.Get(id);
+        var scan = Median(() => Child("scan", path, id));
+        var bank = Median(() => Child("bank", path, id));
+        double seconds = DurationSeconds(path);
+        double samples = seconds * 44_100;
+        string label = path == reference.MinimodemCapture ? $"{id} minimodem" : $"{id} {minutes}'";
+        Console.WriteLine(
+            $"{label,-18} {profile.Family.ToString().ToLowerInvariant(),-12} {scan.Seconds,7:0.00} {bank.Seconds,7:0.00} {bank.Seconds / scan.Seconds,8:0.00} " +
+            $"{bank.Seconds / reference.Minimodem.Seconds,6:0.00} {seconds / bank.Seconds,7:0} {samples / bank.Seconds / 1e6,6:0.0} {bank.CpuSeconds,6:0.00} {bank.CpuSeconds / scan.CpuSeconds,8:0.00} {bank.CpuSeconds / reference.Minimodem.CpuSeconds,6:0.00} " +
+            $"{scan.PeakMegabytes,8:0} {bank.PeakMegabytes,8:0} {bank.Note,14}");
+    }
+
+    private static double DurationSeconds(string path)
+    {
+        using var reader = CaptureReader.Open(path);
+        return (double)reader.FrameCount / reader.SampleRate;
+    }
+
+    private static string CapturePath(string work, string id, int minutes) =>
+        id == "orrin-80" ? Path.Combine(work, $"orrin-{minutes}min.wav") : Path.Combine(work, $"{id}-{minutes}min.wav");
+
+    private static string Load()
+    {
+        try
+        {
+            return File.ReadAllText("/proc/loadavg").Trim() + " (1, 5, 15-minute load averages; running/total tasks; last pid)";
+        }
+        catch (IOException)
+        {
+            return "unknown";
+        }
+    }
+
+    /// <summary>A long capture of the orrin-80 demo format (kept under its old name for the plot benchmark).</summary>
+    internal static void EnsureCapture(string path, int minutes) => EnsureCapture(path, "orrin-80", minutes);
+
+    /// <summary>A long capture of <paramref name="profileId"/>: files of random bytes, with mild noise and wow, so the decoders do real work.</summary>
+    internal static void EnsureCapture(string path, string profileId, int minutes)
     {
         if (File.Exists(path))
         {
             return;
         }
 
-        var profile = ProfileCatalog.BuiltIn.Get("orrin-80");
+        var clock = Stopwatch.StartNew();
+        var profile = ProfileCatalog.BuiltIn.Get(profileId);
         var random = new Random(minutes);
         var files = new List<TapeFile>();
         double seconds = 0;
@@ -98,37 +185,108 @@ public static class Throughput
             }
         }
 
-        File.Move(temporary, path);
+        File.Move(temporary, path, overwrite: true);
+        Console.WriteLine($"(made {Path.GetFileName(path)} in {clock.Elapsed.TotalSeconds:0} s)");
     }
 
-    private readonly record struct ChildResult(double Seconds, double PeakMegabytes, string Note);
-
-    private static ChildResult Median(params ChildResult[] runs)
+    /// <summary>
+    /// A Kansas City Standard stream written by minimodem (300 baud, the standard's tones, two stop bits) carrying
+    /// printable text for <paramref name="minutes"/>, after a 2-second lead-in of mark tone that SoX makes.
+    /// </summary>
+    private static void EnsureMinimodemCapture(string path, int minutes)
     {
+        if (File.Exists(path))
+        {
+            return;
+        }
+
+        var clock = Stopwatch.StartNew();
+        var profile = ProfileCatalog.BuiltIn.Get("kcs-300");
+        // 300 baud, 11 bits a character (start, eight data, two stop): 300/11 characters a second.
+        int characters = (int)((minutes * 60.0 - 3) * 300 / 11);
+        var random = new Random(minutes);
+        var text = new StringBuilder(characters);
+        while (text.Length < characters)
+        {
+            text.Append(random.Next(5) == 0 ? ' ' : (char)('a' + random.Next(26)));
+            if (random.Next(60) == 0)
+            {
+                text.Append('\n');
+            }
+        }
+
+        string temporary = Path.Combine(Path.GetDirectoryName(path)!, "minimodem-kcs-part.wav");
+        OutsideDamage.MinimodemCapture(temporary, profile, [Encoding.ASCII.GetBytes(text.ToString(0, characters))], 44_100, leadInSeconds: 2, volume: 0.5);
+        File.Move(temporary, path, overwrite: true);
+        Console.WriteLine($"(made {Path.GetFileName(path)} with minimodem and SoX in {clock.Elapsed.TotalSeconds:0} s)");
+    }
+
+    private readonly record struct Measured(double Seconds, double CpuSeconds, double PeakMegabytes, string Note);
+
+    // This machine's speed wanders from run to run: each figure is the median of three runs.
+    private static Measured Median(Func<Measured> run)
+    {
+        var runs = new Measured[Runs];
+        for (int i = 0; i < runs.Length; i++)
+        {
+            runs[i] = run();
+        }
+
         Array.Sort(runs, (a, b) => a.Seconds.CompareTo(b.Seconds));
         return runs[runs.Length / 2];
     }
 
-    private static ChildResult Child(string mode, string path)
+    /// <summary>A benchmark child process: the whole process is timed, start-up included.</summary>
+    private static Measured Child(string mode, string path, string profile) =>
+        Measure(Environment.ProcessPath!, ["--child", mode, path, profile]);
+
+    /// <summary>
+    /// Runs <paramref name="program"/> under GNU time (outside reference for peak resident memory and CPU time) and
+    /// times it from here. Standard output's first line is kept as the note.
+    /// </summary>
+    private static Measured Measure(string program, IReadOnlyList<string> arguments)
     {
-        var start = new ProcessStartInfo(Environment.ProcessPath!, ["--child", mode, path])
+        var start = new ProcessStartInfo("/usr/bin/time")
         {
             RedirectStandardOutput = true,
+            RedirectStandardError = true,
             UseShellExecute = false,
         };
+        start.ArgumentList.Add("-f");
+        start.ArgumentList.Add("tapevault-time %e %U %S %M");
+        start.ArgumentList.Add(program);
+        foreach (string argument in arguments)
+        {
+            start.ArgumentList.Add(argument);
+        }
+
+        var clock = Stopwatch.StartNew();
         using var process = Process.Start(start)!;
-        string output = process.StandardOutput.ReadToEnd();
+        var output = process.StandardOutput.ReadToEndAsync();
+        string error = process.StandardError.ReadToEnd();
         process.WaitForExit();
-        var parts = output.Trim().Split(' ');
-        return new ChildResult(double.Parse(parts[0]), double.Parse(parts[1]), parts.Length > 2 ? parts[2] : string.Empty);
+        double wall = clock.Elapsed.TotalSeconds;
+        string stdout = output.Result;
+        string? times = error.Split('\n').LastOrDefault(l => l.StartsWith("tapevault-time ", StringComparison.Ordinal));
+        if (process.ExitCode != 0 || times is null)
+        {
+            throw new InvalidOperationException($"{program} {string.Join(' ', arguments)} failed ({process.ExitCode}): {error}");
+        }
+
+        var parts = times.Split(' ');
+        double cpu = double.Parse(parts[2], CultureInfo.InvariantCulture) + double.Parse(parts[3], CultureInfo.InvariantCulture);
+        double peak = double.Parse(parts[4], CultureInfo.InvariantCulture) * 1024 / 1e6;
+        string note = program == OutsideDamage.MinimodemPath
+            ? $"{stdout.Length} characters"
+            : stdout.Split('\n', StringSplitOptions.RemoveEmptyEntries).FirstOrDefault()?.Trim() ?? string.Empty;
+        return new Measured(wall, cpu, peak, note);
     }
 
     public static int RunChild(string[] args)
     {
         string mode = args[0];
         string path = args[1];
-        var stopwatch = Stopwatch.StartNew();
-        string note = string.Empty;
+        string note;
         if (mode == "scan")
         {
             using var reader = CaptureReader.Open(path);
@@ -146,14 +304,15 @@ public static class Throughput
         }
         else
         {
-            var result = CaptureDecoder.Decode(path, ProfileCatalog.BuiltIn.Get("orrin-80"));
+            var result = CaptureDecoder.Decode(path, ProfileCatalog.BuiltIn.Get(args[2]));
             int clean = result.Best.Count(b => b.Status == BlockStatus.Clean);
-            note = $"{clean}/{result.Best.Count}";
+            int unread = result.Best.Count(b => b.Status == BlockStatus.Unchecked);
+            note = clean > 0 || unread == 0
+                ? $"{clean}/{result.Best.Count} clean"
+                : $"{result.Best.Sum(b => b.Payload.Length)} B read";
         }
 
-        stopwatch.Stop();
-        double peak = Process.GetCurrentProcess().PeakWorkingSet64 / 1e6;
-        Console.WriteLine(FormattableString.Invariant($"{stopwatch.Elapsed.TotalSeconds} {peak} {note}"));
+        Console.WriteLine(note);
         return 0;
     }
 }

@@ -78,7 +78,17 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
         try
         {
             result = await Task.Factory.StartNew(
-                () => CaptureDecoder.Decode(path, profile, parameters.Settings, new DecodeOptions { Channel = channel, Progress = forward, Cancellation = cancellation }),
+                () => CaptureDecoder.Decode(path, profile, parameters.Settings, new DecodeOptions
+                {
+                    Channel = channel,
+                    Progress = forward,
+                    Cancellation = cancellation,
+
+                    // The plots' pulse-length surveys and waveform overview are of the capture mixed to mono: made in the
+                    // decode's own pass when it reads the capture so, so the job reads the file once.
+                    SurveyIntervals = channel == WholeCaptureSurveys.Channel,
+                    OverviewColumns = channel == ChannelChoice.Mix ? OverviewColumns(capture) : 0,
+                }),
                 cancellation,
                 TaskCreationOptions.LongRunning,
                 TaskScheduler.Default).ConfigureAwait(false);
@@ -99,20 +109,28 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
         var run = RunStore.ToRun(capture.Id, result, started, DateTimeOffset.UtcNow);
 
         // What the capture page plots over the whole capture is made here, once, not by whoever opens the page: the
-        // pulse-length survey of every setting (one pass of the bank) and the waveform overview. They are a cache:
+        // pulse-length survey of every setting and the waveform overview, both counted in the decode's own pass over the
+        // capture (a capture decoded from one channel alone is read once more for them, mixed). They are a cache:
         // the run is stored whatever happens to them, and the page makes any that are missing. They are made before the
         // run is stored, so a stop while they are being made repeats the job without leaving a second run behind.
-        await progress(0.975, "Surveying pulse lengths and the waveform for the plots.").ConfigureAwait(false);
+        await progress(0.975, "Keeping the pulse-length surveys and the waveform overview for the plots.").ConfigureAwait(false);
         string plots;
         try
         {
             int surveys = await Task.Factory.StartNew(
-                () => WholeCaptureSurveys.MakeForRun(store, path, capture.Sha256, profile, result.Settings, run.Candidates, cancellation),
+                () => WholeCaptureSurveys.MakeForRun(store, path, capture.Sha256, profile, result.Settings, run.Candidates, cancellation, result.Surveys),
                 cancellation,
                 TaskCreationOptions.LongRunning,
                 TaskScheduler.Default).ConfigureAwait(false);
-            long frames = (long)Math.Round(capture.DurationSeconds * capture.SampleRate);
-            await CaptureOverviews.GetAsync(store, capture.Sha256, (int)Math.Max(1, Math.Min(CaptureOverviews.DefaultColumns, frames)), ChannelChoice.Mix, cancellation).ConfigureAwait(false);
+            if (result.Overview is { } overview)
+            {
+                CaptureOverviews.Keep(store, capture.Sha256, ChannelChoice.Mix, overview);
+            }
+            else
+            {
+                await CaptureOverviews.GetAsync(store, capture.Sha256, OverviewColumns(capture), ChannelChoice.Mix, cancellation).ConfigureAwait(false);
+            }
+
             plots = $" Plots made: {surveys} pulse-length survey(s) and the overview.";
         }
         catch (Exception e) when (e is IOException or ArchiveConflictException or CaptureFormatException)
@@ -141,5 +159,9 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
 
         return new JobOutcome(run.Id, $"Decode run {run.Id}: {run.Outcome}{plots}");
     }
+
+    /// <summary>The columns of the capture page's overview of this capture (no more than it has frames).</summary>
+    private static int OverviewColumns(Capture capture) =>
+        (int)Math.Max(1, Math.Min(CaptureOverviews.DefaultColumns, (long)Math.Round(capture.DurationSeconds * capture.SampleRate)));
 
 }

@@ -73,6 +73,26 @@ public static class CaptureOverviews
             throw new ArchiveConflictException($"The stored original could not be read: {e.Message}");
         }
 
+        Write(store, cache, overview);
+        return overview;
+    }
+
+    /// <summary>
+    /// Keeps an overview made elsewhere (a decode makes one from the samples it reads, so the job needs no pass of its
+    /// own): <paramref name="overview"/> must be of the whole capture <paramref name="sha256"/>, read through <paramref name="channel"/>.
+    /// </summary>
+    public static void Keep(ContentStore store, string sha256, ChannelChoice channel, WaveformOverview overview)
+    {
+        ArgumentNullException.ThrowIfNull(overview);
+        string cache = CachePath(store, sha256, overview.Columns, channel);
+        if (!File.Exists(cache))
+        {
+            Write(store, cache, overview);
+        }
+    }
+
+    private static void Write(ContentStore store, string cache, WaveformOverview overview)
+    {
         // Written aside and renamed into place, so a reader never sees half a file.
         Directory.CreateDirectory(Path.GetDirectoryName(cache)!);
         string temporary = Path.Combine(store.TempFolder, $"{Guid.NewGuid():N}.overview.part");
@@ -82,6 +102,5 @@ public static class CaptureOverviews
         }
 
         File.Move(temporary, cache, overwrite: true);
-        return overview;
     }
 }

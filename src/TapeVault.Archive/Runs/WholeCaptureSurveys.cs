@@ -96,30 +96,49 @@ public static class WholeCaptureSurveys
     }
 
     /// <summary>
-    /// Surveys every setting of a decode run over the whole capture in one pass and keeps each one; returns how many
-    /// were made (those already kept are not made again).
+    /// Surveys every setting of a decode run over the whole capture and keeps each one; returns how many were made
+    /// (those already kept are not made again). <paramref name="counted"/>: the intervals the decode itself counted,
+    /// setting by setting (read through <see cref="Channel"/>), so the capture is not read again; null to read it once
+    /// more, every setting in one pass of the bank.
     /// </summary>
-    public static int MakeForRun(ContentStore store, string capturePath, string captureSha256, FormatProfile profile, IReadOnlyList<DetectorSetting> settings, IReadOnlyList<CandidateRecord> candidates, CancellationToken cancellation)
+    public static int MakeForRun(ContentStore store, string capturePath, string captureSha256, FormatProfile profile, IReadOnlyList<DetectorSetting> settings, IReadOnlyList<CandidateRecord> candidates, CancellationToken cancellation, IReadOnlyList<IntervalSurvey>? counted = null)
     {
         ArgumentNullException.ThrowIfNull(store);
         ArgumentNullException.ThrowIfNull(profile);
         ArgumentNullException.ThrowIfNull(settings);
         ArgumentNullException.ThrowIfNull(candidates);
         var readings = candidates.Select(c => (c.Position, c.SettingName, c.Status, c.Confidence, c.Speed)).ToList();
-        var wanted = new List<(DetectorSetting Setting, PulseHistogram Histogram, string Path)>();
-        foreach (var setting in settings)
+        if (counted is not null && counted.Count != settings.Count)
         {
+            throw new ArgumentException("The decode counts one survey for each setting.", nameof(counted));
+        }
+
+        var wanted = new List<(DetectorSetting Setting, PulseHistogram Histogram, string Path, IntervalSurvey? Counted)>();
+        for (int i = 0; i < settings.Count; i++)
+        {
+            var setting = settings[i];
             var marks = PulseMarks.For(profile, setting, SpeedOf(readings, setting.Name));
             string path = CachePath(store, captureSha256, setting, marks);
             if (!File.Exists(path))
             {
-                wanted.Add((setting, new PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, Bins), path));
+                wanted.Add((setting, new PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, Bins), path, counted?[i]));
             }
         }
 
         if (wanted.Count == 0)
         {
             return 0;
+        }
+
+        if (counted is not null)
+        {
+            foreach (var w in wanted)
+            {
+                cancellation.ThrowIfCancellationRequested();
+                Write(store, w.Path, w.Counted!.Into(w.Histogram));
+            }
+
+            return wanted.Count;
         }
 
         using var reader = CaptureReader.Open(capturePath, Channel);

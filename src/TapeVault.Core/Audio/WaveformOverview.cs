@@ -116,7 +116,7 @@ public sealed record WaveformOverview(int SampleRate, long FrameCount, Immutable
         columns == 0 ? 0 : (long)((Int128)column * frameCount / columns);
 
     /// <summary>The running state of one decimation: which column the next sample falls in, and its extremes so far.</summary>
-    private sealed class Builder
+    public sealed class Builder
     {
         private readonly long _frameCount;
         private readonly float[] _minimum;

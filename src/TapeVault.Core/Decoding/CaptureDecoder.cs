@@ -4,6 +4,7 @@ using TapeVault.Core.Blocks;
 using TapeVault.Core.Detection;
 using TapeVault.Core.Edges;
 using TapeVault.Core.Formats;
+using TapeVault.Core.Pulses;
 using TapeVault.Core.Symbols;
 
 namespace TapeVault.Core.Decoding;
@@ -30,42 +31,58 @@ public static class CaptureDecoder
         ArgumentNullException.ThrowIfNull(profile);
         options ??= new DecodeOptions();
         var bank = BankFor(profile, settings ?? DetectorBanks.Default);
-        var session = new DecodeSession(profile, bank, reader.SampleRate);
+        var session = new DecodeSession(profile, bank, reader.SampleRate, options.SurveyIntervals);
         long total = reader.FrameCount;
+        var overview = options.OverviewColumns > 0 && total > 0 ? new WaveformOverview.Builder(total, options.OverviewColumns) : null;
 
-        // Two stages on two cores: this thread reads (and hashes) the capture and runs the bank; a worker runs the
-        // symbol decoders on the previous chunk's edges. Three chunk buffers bound the memory whatever the length.
-        using var free = new BlockingCollection<ChunkWork>(boundedCapacity: 3);
-        using var full = new BlockingCollection<ChunkWork>(boundedCapacity: 3);
-        for (int i = 0; i < 3; i++)
+        // This thread reads (and hashes) the capture and runs the bank over each chunk; the symbol decoders of the
+        // settings are shared out between workers (as many as the machine has cores, at most two, and never more than
+        // the settings), each taking every chunk in order for its own decoders. With two cores both stay busy for the
+        // whole decode: the bank and the decoders of one chunk overlap the next. A chunk goes back to be read into once
+        // every worker is done with it; a bounded number of chunk buffers bounds the memory whatever the length.
+        int workers = Math.Clamp(Math.Min(Environment.ProcessorCount, options.DecoderThreads), 1, Math.Max(1, Math.Min(2, session.Settings)));
+        int buffers = 2 + workers;
+        using var free = new BlockingCollection<ChunkWork>(boundedCapacity: buffers);
+        var full = new BlockingCollection<ChunkWork>[workers];
+        for (int i = 0; i < buffers; i++)
         {
             free.Add(session.NewChunk(options.ChunkSamples));
         }
 
-        // A decoder that throws stops the worker, which then returns no buffers: the token frees this thread too.
-        // The worker blocks on the queue for the whole decode, so it gets a thread of its own rather than one of the
+        // A decoder that throws stops its worker, which then returns no buffers: the token frees this thread too.
+        // Workers block on their queues for the whole decode, so each gets a thread of its own rather than one of the
         // pool's, which a web app needs for its requests.
         using var stop = CancellationTokenSource.CreateLinkedTokenSource(options.Cancellation);
-        var worker = Task.Factory.StartNew(
-            () =>
+        var running = new Task[workers];
+        for (int w = 0; w < workers; w++)
         {
-            try
+            var queue = full[w] = new BlockingCollection<ChunkWork>(boundedCapacity: buffers);
+            int part = w;
+            running[w] = Task.Factory.StartNew(
+                () =>
             {
-                foreach (var work in full.GetConsumingEnumerable(stop.Token))
+                try
                 {
-                    session.Decode(work);
-                    free.Add(work, stop.Token);
+                    foreach (var work in queue.GetConsumingEnumerable(stop.Token))
+                    {
+                        session.Decode(work, part, workers);
+                        if (Interlocked.Decrement(ref work.Pending) == 0)
+                        {
+                            free.Add(work, stop.Token);
+                        }
+                    }
                 }
-            }
-            catch (Exception) when (!stop.IsCancellationRequested)
-            {
-                stop.Cancel();
-                throw;
-            }
-        },
-            CancellationToken.None,
-            TaskCreationOptions.LongRunning,
-            TaskScheduler.Default);
+                catch (Exception) when (!stop.IsCancellationRequested)
+                {
+                    stop.Cancel();
+                    throw;
+                }
+            },
+                CancellationToken.None,
+                TaskCreationOptions.LongRunning,
+                TaskScheduler.Default);
+        }
+
         try
         {
             while (true)
@@ -77,36 +94,71 @@ public static class CaptureDecoder
                     break;
                 }
 
+                overview?.Add(work.Samples.AsSpan(0, work.Length));
                 session.Detect(work);
-                full.Add(work, stop.Token);
+                work.Pending = workers;
+                foreach (var queue in full)
+                {
+                    queue.Add(work, stop.Token);
+                }
+
                 options.Progress?.Report(new DecodeProgress(session.SamplesSeen, total));
             }
         }
         catch (OperationCanceledException) when (!options.Cancellation.IsCancellationRequested)
         {
-            // The worker failed; its exception is the one to report, below.
+            // A worker failed; its exception is the one to report, below.
         }
         finally
         {
-            full.CompleteAdding();
+            foreach (var queue in full)
+            {
+                queue.CompleteAdding();
+            }
+
             try
             {
-                worker.Wait(CancellationToken.None);
+                Task.WaitAll(running, CancellationToken.None);
             }
-            catch (AggregateException e) when (e.InnerException is not null and not OperationCanceledException)
+            catch (AggregateException e) when (FirstFailure(e) is { } failure)
             {
-                System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(e.InnerException).Throw();
+                System.Runtime.ExceptionServices.ExceptionDispatchInfo.Capture(failure).Throw();
             }
             catch (AggregateException) when (options.Cancellation.IsCancellationRequested)
             {
                 // Cancelled by the caller: the cancellation below says so.
+            }
+            finally
+            {
+                foreach (var queue in full)
+                {
+                    queue.Dispose();
+                }
             }
         }
 
         options.Cancellation.ThrowIfCancellationRequested();
         var capture = reader.Complete();
         var candidates = session.Finish();
-        return new DecodeResult(capture, profile, bank, candidates, BlockPositioner.BestPerPosition(candidates), CodeVersion);
+        return new DecodeResult(capture, profile, bank, candidates, BlockPositioner.BestPerPosition(candidates), CodeVersion)
+        {
+            Surveys = session.Surveys,
+            Overview = overview?.Finish(reader.SampleRate),
+        };
+    }
+
+    /// <summary>The exception a worker failed with, if any failed with more than the cancellation that stopped the rest.</summary>
+    private static Exception? FirstFailure(AggregateException e)
+    {
+        foreach (var inner in e.Flatten().InnerExceptions)
+        {
+            if (inner is not OperationCanceledException)
+            {
+                return inner;
+            }
+        }
+
+        return null;
     }
 
     /// <summary>
@@ -141,16 +193,19 @@ public static class CaptureDecoder
         return distinct;
     }
 
-    /// <summary>The streaming state of one decode: the bank and one symbol decoder per setting.</summary>
+    /// <summary>The streaming state of one decode: the bank, the tone correlators of a tone format, and one symbol decoder per setting.</summary>
     public sealed class DecodeSession
     {
         private readonly DetectorBank _bank;
+        private readonly ToneBank? _tones;
         private readonly ISymbolDecoder[] _decoders;
         private readonly List<BlockCandidate>[] _candidates;
+        private readonly IntervalSurvey[]? _surveys;
         private readonly int _copies;
         private ChunkWork? _single;
 
-        public DecodeSession(FormatProfile profile, IReadOnlyList<DetectorSetting> settings, int sampleRate)
+        /// <param name="surveyIntervals">Count each setting's edge intervals as well, for the plots' pulse-length histograms.</param>
+        public DecodeSession(FormatProfile profile, IReadOnlyList<DetectorSetting> settings, int sampleRate, bool surveyIntervals = false)
         {
             ArgumentNullException.ThrowIfNull(profile);
             ArgumentNullException.ThrowIfNull(settings);
@@ -171,11 +226,30 @@ public static class CaptureDecoder
                     _ => throw new ArgumentOutOfRangeException(nameof(profile)),
                 };
             }
+
+            if (Array.Exists(_decoders, d => d.ReadsTones))
+            {
+                var fsk = profile.Fsk ?? throw new ArgumentException("Only a tone format's decoders read tones.", nameof(profile));
+                _tones = new ToneBank(settings.Count, fsk.MarkHz, fsk.SpaceHz, fsk.Baud, sampleRate);
+            }
+
+            if (surveyIntervals)
+            {
+                _surveys = new IntervalSurvey[settings.Count];
+                for (int i = 0; i < _surveys.Length; i++)
+                {
+                    _surveys[i] = new IntervalSurvey(sampleRate);
+                }
+            }
         }
 
         public long SamplesSeen => _bank.SamplesSeen;
 
-        private bool NeedsConditioned => Array.Exists(_decoders, d => d.NeedsConditionedSignal);
+        /// <summary>How many settings (and so symbol decoders) the session runs.</summary>
+        public int Settings => _decoders.Length;
+
+        /// <summary>Each setting's edge intervals so far, when the session was asked to count them; else null.</summary>
+        public IReadOnlyList<IntervalSurvey>? Surveys => _surveys;
 
         public ChunkWork NewChunk(int samples)
         {
@@ -185,20 +259,10 @@ public static class CaptureDecoder
                 edges[i] = new EdgeBuffer();
             }
 
-            float[][]? conditioned = null;
-            if (NeedsConditioned)
-            {
-                conditioned = new float[_decoders.Length][];
-                for (int i = 0; i < conditioned.Length; i++)
-                {
-                    conditioned[i] = new float[samples];
-                }
-            }
-
-            return new ChunkWork(new float[samples], edges, conditioned);
+            return new ChunkWork(new float[samples], edges, _tones is null ? null : new ToneEnergies(_decoders.Length, samples));
         }
 
-        /// <summary>The bank's half of a chunk: edges (and the conditioned signal) of every setting.</summary>
+        /// <summary>The bank's half of a chunk: edges (and the tone energies) of every setting.</summary>
         public void Detect(ChunkWork work)
         {
             ArgumentNullException.ThrowIfNull(work);
@@ -208,19 +272,26 @@ public static class CaptureDecoder
                 buffer.Clear();
             }
 
-            _bank.Process(work.Samples.AsSpan(0, work.Length), work.Edges, work.Conditioned);
+            _bank.Process(work.Samples.AsSpan(0, work.Length), work.Edges, _tones, work.Tones);
         }
 
         /// <summary>The decoders' half of a chunk; chunks must arrive in order.</summary>
-        public void Decode(ChunkWork work)
+        public void Decode(ChunkWork work) => Decode(work, 0, 1);
+
+        /// <summary>
+        /// Part <paramref name="part"/> of <paramref name="parts"/> of the decoders' half of a chunk: the settings whose
+        /// index leaves that remainder. Each part must see every chunk in order; different parts may run at once.
+        /// </summary>
+        public void Decode(ChunkWork work, int part, int parts)
         {
             ArgumentNullException.ThrowIfNull(work);
-            for (int i = 0; i < _decoders.Length; i++)
+            for (int i = part; i < _decoders.Length; i += parts)
             {
                 _decoders[i].OnEdges(work.Edges[i].Items);
-                if (_decoders[i].NeedsConditionedSignal)
+                _surveys?[i].AddIntervals(work.Edges[i].Items);
+                if (_decoders[i].ReadsTones)
                 {
-                    _decoders[i].OnConditioned(work.Conditioned![i].AsSpan(0, work.Length), work.Start);
+                    _decoders[i].OnTones(work.Tones!.Lane(i, work.Length), work.Start);
                 }
             }
         }
@@ -258,8 +329,11 @@ public static class CaptureDecoder
 }
 
 /// <summary>One chunk on its way from the bank to the decoders.</summary>
-public sealed class ChunkWork(float[] samples, EdgeBuffer[] edges, float[][]? conditioned)
+public sealed class ChunkWork(float[] samples, EdgeBuffer[] edges, ToneEnergies? tones)
 {
+    /// <summary>Workers still to decode this chunk before it may be read into again.</summary>
+    internal int Pending;
+
     public float[] Samples { get; } = samples;
 
     public int Length { get; set; }
@@ -268,5 +342,6 @@ public sealed class ChunkWork(float[] samples, EdgeBuffer[] edges, float[][]? co
 
     public EdgeBuffer[] Edges { get; } = edges;
 
-    public float[][]? Conditioned { get; } = conditioned;
+    /// <summary>Every setting's tone energies over the chunk, for a tone format; else null.</summary>
+    public ToneEnergies? Tones { get; } = tones;
 }

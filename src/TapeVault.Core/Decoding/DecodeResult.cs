@@ -20,6 +20,18 @@ public sealed record DecodeOptions
 
     public IProgress<DecodeProgress>? Progress { get; init; }
 
+    /// <summary>
+    /// How many threads may run the symbol decoders (each takes its share of the settings); the decode uses at most
+    /// two, and no more than the machine's cores. The bank runs on the reading thread besides.
+    /// </summary>
+    public int DecoderThreads { get; init; } = 2;
+
+    /// <summary>Count every setting's edge intervals as the decode goes (<see cref="DecodeResult.Surveys"/>), so the plots' pulse-length histograms need no pass of their own.</summary>
+    public bool SurveyIntervals { get; init; }
+
+    /// <summary>Columns of a min/max waveform overview made from the samples as they are read (<see cref="DecodeResult.Overview"/>); 0 for none.</summary>
+    public int OverviewColumns { get; init; }
+
     public CancellationToken Cancellation { get; init; }
 }
 
@@ -30,4 +42,11 @@ public sealed record DecodeResult(
     IReadOnlyList<DetectorSetting> Settings,
     IReadOnlyList<BlockCandidate> Candidates,
     IReadOnlyList<BlockCandidate> Best,
-    string CodeVersion);
+    string CodeVersion)
+{
+    /// <summary>Each setting's edge intervals over the whole capture, when the decode was asked to count them.</summary>
+    public IReadOnlyList<Pulses.IntervalSurvey>? Surveys { get; init; }
+
+    /// <summary>The waveform overview made from the samples as they were read, when the decode was asked for one.</summary>
+    public WaveformOverview? Overview { get; init; }
+}

@@ -50,15 +50,21 @@ public sealed class DetectorBank
 
     /// <summary>
     /// Advances every setting over <paramref name="samples"/>. Edges are appended to <paramref name="edges"/>[setting]
-    /// (the caller clears them between chunks). When <paramref name="conditioned"/> is given, the conditioned
-    /// signal of each setting is written to it too (tone detectors read it).
+    /// (the caller clears them between chunks). When <paramref name="tones"/> is given, each setting's conditioned
+    /// signal also drives its tone correlators in the same pass, and their energies are written to
+    /// <paramref name="energies"/> (FSK decoders read them).
     /// </summary>
-    public void Process(ReadOnlySpan<float> samples, EdgeBuffer[] edges, float[][]? conditioned = null)
+    public void Process(ReadOnlySpan<float> samples, EdgeBuffer[] edges, ToneBank? tones = null, ToneEnergies? energies = null)
     {
         ArgumentNullException.ThrowIfNull(edges);
         if (edges.Length < Settings.Count)
         {
             throw new ArgumentException("One edge buffer is needed per setting.", nameof(edges));
+        }
+
+        if (tones is not null && (energies is null || energies.Capacity < samples.Length || tones.Settings != Settings.Count))
+        {
+            throw new ArgumentException("Tone correlators need one lane per setting and room for the chunk's energies.", nameof(energies));
         }
 
         // Crossing times are interpolated in single precision relative to the start of what a group is given; slices
@@ -68,11 +74,13 @@ public sealed class DetectorBank
             var slice = samples.Slice(offset, Math.Min(SliceSamples, samples.Length - offset));
             for (int g = 0; g < _groups.Length; g++)
             {
-                _groups[g].Process(slice, _samplesSeen, edges, conditioned, offset);
+                _groups[g].Process(slice, _samplesSeen, edges, tones, energies, offset);
             }
 
             _samplesSeen += slice.Length;
         }
+
+        tones?.EndChunk();
     }
 
     /// <summary>The longest run of samples a lane group processes at once (float spacing at 4096 is 1/2048 sample).</summary>
@@ -82,7 +90,6 @@ public sealed class DetectorBank
     private struct LaneGroup
     {
         private int _firstSetting;
-        private int _laneCount;
 
         // Coefficients.
         private Vector256<float> _hpA;
@@ -116,62 +123,27 @@ public sealed class DetectorBank
             uint rising = 0, falling = 0;
 
             // Unused lanes repeat the first setting and are never read.
+            float decay = 0;
             for (int lane = 0; lane < LanesPerGroup; lane++)
             {
-                var s = settings[first + Math.Min(lane, lanes - 1)];
-                double dt = 1.0 / sampleRate;
-                double rc = 1.0 / (2 * Math.PI * s.HighPassHz);
-                hpA[lane] = (float)(rc / (rc + dt));
-
-                var lowPass = s.LowPassHz is { } lp ? BiquadCoefficients.ButterworthLowPass(lp, sampleRate) : BiquadCoefficients.PassThrough;
-                (b0[lane], b1[lane], b2[lane], a1[lane], a2[lane]) = (lowPass.B0, lowPass.B1, lowPass.B2, lowPass.A1, lowPass.A2);
-
-                // Differentiation is scaled so that a 1 kHz tone keeps its amplitude, which keeps fixed thresholds meaningful.
-                float sign = s.Invert ? -1f : 1f;
-                if (s.Differentiate)
-                {
-                    float k = (float)(sampleRate / (2 * Math.PI * 1000.0));
-                    gainNow[lane] = sign * k;
-                    gainPrev[lane] = -sign * k;
-                }
-                else
-                {
-                    gainNow[lane] = sign;
-                    gainPrev[lane] = 0f;
-                }
-
-                if (s.ThresholdMode == ThresholdMode.Fixed)
-                {
-                    bandFixed[lane] = (float)s.Hysteresis;
-                    bandRelative[lane] = 0f;
-                }
-                else
-                {
-                    // A small floor keeps digital silence from toggling the trigger.
-                    bandFixed[lane] = 1e-4f;
-                    bandRelative[lane] = (float)s.Hysteresis;
-                }
-
+                var c = ReadChainCoefficients.For(settings[first + Math.Min(lane, lanes - 1)], sampleRate);
+                hpA[lane] = c.HighPassA;
+                (b0[lane], b1[lane], b2[lane], a1[lane], a2[lane]) = (c.LowPass.B0, c.LowPass.B1, c.LowPass.B2, c.LowPass.A1, c.LowPass.A2);
+                gainNow[lane] = c.GainNow;
+                gainPrev[lane] = c.GainPrevious;
+                bandFixed[lane] = c.BandFixed;
+                bandRelative[lane] = c.BandRelative;
+                decay = c.Decay;
                 if (lane < lanes)
                 {
-                    if (s.Edges != EdgeSelection.Falling)
-                    {
-                        rising |= 1u << lane;
-                    }
-
-                    if (s.Edges != EdgeSelection.Rising)
-                    {
-                        falling |= 1u << lane;
-                    }
+                    rising |= c.CountRising ? 1u << lane : 0;
+                    falling |= c.CountFalling ? 1u << lane : 0;
                 }
             }
 
-            // The envelope falls by 1/e in 20 ms: slow next to any bit cell, quick next to a level change between blocks.
-            float decay = (float)Math.Exp(-1.0 / (0.020 * sampleRate));
             return new LaneGroup
             {
                 _firstSetting = first,
-                _laneCount = lanes,
                 _hpA = Vector256.Create(hpA),
                 _b0 = Vector256.Create(b0),
                 _b1 = Vector256.Create(b1),
@@ -195,7 +167,7 @@ public sealed class DetectorBank
             };
         }
 
-        public void Process(ReadOnlySpan<float> samples, long chunkStart, EdgeBuffer[] edges, float[][]? conditioned, int conditionedOffset)
+        public void Process(ReadOnlySpan<float> samples, long chunkStart, EdgeBuffer[] edges, ToneBank? tones, ToneEnergies? energies, int offset)
         {
             // State into locals so the JIT keeps it in registers for the loop.
             float previousSample = _previousSample;
@@ -220,8 +192,6 @@ public sealed class DetectorBank
             var bandRelative = _bandRelative;
             var zero = Vector256<float>.Zero;
             var one = Vector256<float>.One;
-            var minusOne = Vector256.Create(-1f);
-            int lanes = _laneCount;
             Span<float> crossingLanes = stackalloc float[LanesPerGroup];
             Span<float> envelopeLanes = stackalloc float[LanesPerGroup];
 
@@ -248,22 +218,13 @@ public sealed class DetectorBank
                 {
                     float x = samples[n];
 
-                    // One-pole DC block: y[n] = a·(y[n−1] + x[n] − x[n−1]).
-                    hpY = hpA * (hpY + Vector256.Create(x - previousSample));
+                    // DC block, low-pass, derivative and polarity, envelope and band: the read chain's operator (ReadChainStep),
+                    // eight settings at once.
+                    var c = ReadChainStep.Condition(
+                        Vector256.Create(x - previousSample), ref hpY, ref z1, ref z2, ref previousFiltered, hpA, b0, b1, b2, a1, a2, gainNow, gainPrev);
                     previousSample = x;
-
-                    // Biquad low-pass, transposed direct form II.
-                    var filtered = b0 * hpY + z1;
-                    z1 = b1 * hpY - a1 * filtered + z2;
-                    z2 = b2 * hpY - a2 * filtered;
-
-                    // Optional derivative and polarity, folded into two gains per lane.
-                    var c = gainNow * filtered + gainPrev * previousFiltered;
-                    previousFiltered = filtered;
-
-                    // MaxNative: one vmaxps; the IEEE NaN and signed-zero care of Max is not needed for an envelope.
-                    envelope = Vector256.MaxNative(Vector256.Abs(c), envelope * decay);
-                    var band = bandFixed + bandRelative * envelope;
+                    envelope = ReadChainStep.Envelope(c, envelope, decay);
+                    var band = ReadChainStep.Band(envelope, bandFixed, bandRelative);
 
                     // Remember where the signal last crossed zero, interpolated between samples.
                     var crossed = Vector256.Xor(Vector256.LessThan(previousConditioned, zero), Vector256.LessThan(c, zero));
@@ -272,13 +233,11 @@ public sealed class DetectorBank
                     lastCrossing = Vector256.ConditionalSelect(crossed, crossingTime, lastCrossing);
                     previousConditioned = c;
 
-                    // Kept for tone detectors; one store, transposed after the loop only when they ask for it.
+                    // Kept for the tone correlators, which run over the slice after this loop when the bank has them.
                     eventConditioned[n] = c;
 
                     // Schmitt trigger: low goes high above +band, high goes low below −band.
-                    var goUp = Vector256.BitwiseAnd(Vector256.LessThan(state, zero), Vector256.GreaterThan(c, band));
-                    var goDown = Vector256.BitwiseAnd(Vector256.GreaterThan(state, zero), Vector256.LessThan(c, -band));
-                    state = Vector256.ConditionalSelect(goUp, one, Vector256.ConditionalSelect(goDown, minusOne, state));
+                    state = ReadChainStep.Trigger(c, band, state, out var goUp, out var goDown);
 
                     // Some lane switches on most samples, so a branch here would be a coin toss and a call would make the
                     // JIT spill every state vector: each sample writes an event, and only a counted switch keeps it.
@@ -292,16 +251,10 @@ public sealed class DetectorBank
                 }
             }
 
-            if (conditioned is not null)
+            if (tones is not null)
             {
-                for (int lane = 0; lane < lanes; lane++)
-                {
-                    var target = conditioned[_firstSetting + lane].AsSpan(conditionedOffset, samples.Length);
-                    for (int n = 0; n < target.Length; n++)
-                    {
-                        target[n] = eventConditioned[n].GetElement(lane);
-                    }
-                }
+                // The tone correlators of these eight settings read the conditioned signal just kept, still in its lanes.
+                tones.Process(_firstSetting, eventConditioned.AsSpan(0, samples.Length), energies!, offset);
             }
 
             // The slice's counted switches become edges, outside the sample loop.

@@ -1,6 +1,5 @@
 using System.Collections.Immutable;
 using System.Runtime.InteropServices;
-using TapeVault.Core.Dsp;
 using TapeVault.Core.Edges;
 
 namespace TapeVault.Core.Detection;
@@ -22,38 +21,21 @@ public sealed record DetectorTraceResult(
     ImmutableArray<Edge> Edges);
 
 /// <summary>
-/// A plain scalar copy of the read chain of <see cref="DetectorBank"/> for one setting, which also hands out the
-/// envelope-driven band and the trigger state the bank keeps inside its vector lanes and never exposes. It exists so
-/// that a screen can draw the threshold over the signal; the bank stays the decoder's only path. The arithmetic is
-/// the bank's, step for step in single precision, and a test holds the two to the same edges.
+/// The read chain of <see cref="DetectorBank"/> for one setting, sample by sample, handing out the envelope-driven band
+/// and the trigger state the bank keeps inside its vector lanes and never exposes. It exists so that a screen can draw
+/// the threshold over the signal; the bank stays the decoder's only path. Both call the read chain's operator
+/// (<see cref="ReadChainStep"/>, its scalar form here) with the same coefficients (<see cref="ReadChainCoefficients"/>),
+/// and a test holds the two to the same edges.
 /// </summary>
 public static class DetectorTrace
 {
-    // The bank's constants (see DetectorBank.LaneGroup.Create): the derivative's gain keeps a 1 kHz tone at its
-    // amplitude, relative bands have a small floor, and the envelope falls by 1/e in 20 ms.
-    private const double DerivativeUnityHz = 1000.0;
-    private const float RelativeBandFloor = 1e-4f;
-    private const double EnvelopeFallSeconds = 0.020;
-
     /// <summary>Runs <paramref name="setting"/> over <paramref name="samples"/>, which start at capture sample <paramref name="firstSample"/>, from a rested state.</summary>
     public static DetectorTraceResult Run(ReadOnlySpan<float> samples, int sampleRate, DetectorSetting setting, long firstSample = 0)
     {
         ArgumentNullException.ThrowIfNull(setting);
         ArgumentOutOfRangeException.ThrowIfLessThan(sampleRate, 1);
-        double dt = 1.0 / sampleRate;
-        double rc = 1.0 / (2 * Math.PI * setting.HighPassHz);
-        float hpA = (float)(rc / (rc + dt));
-        var lp = setting.LowPassHz is { } hz ? BiquadCoefficients.ButterworthLowPass(hz, sampleRate) : BiquadCoefficients.PassThrough;
-        float sign = setting.Invert ? -1f : 1f;
-        float k = (float)(sampleRate / (2 * Math.PI * DerivativeUnityHz));
-        float gainNow = setting.Differentiate ? sign * k : sign;
-        float gainPrev = setting.Differentiate ? -sign * k : 0f;
-        bool fixedBand = setting.ThresholdMode == ThresholdMode.Fixed;
-        float bandFixed = fixedBand ? (float)setting.Hysteresis : RelativeBandFloor;
-        float bandRelative = fixedBand ? 0f : (float)setting.Hysteresis;
-        float decay = (float)Math.Exp(-1.0 / (EnvelopeFallSeconds * sampleRate));
-        bool countRising = setting.Edges != EdgeSelection.Falling;
-        bool countFalling = setting.Edges != EdgeSelection.Rising;
+        var k = ReadChainCoefficients.For(setting, sampleRate);
+        var lp = k.LowPass;
 
         var conditioned = new float[samples.Length];
         var bands = new float[samples.Length];
@@ -64,15 +46,11 @@ public static class DetectorTrace
         for (int n = 0; n < samples.Length; n++)
         {
             float x = samples[n];
-            hpY = hpA * (hpY + (x - previousSample));
+            float c = ReadChainStep.Condition(
+                x - previousSample, ref hpY, ref z1, ref z2, ref previousFiltered, k.HighPassA, lp.B0, lp.B1, lp.B2, lp.A1, lp.A2, k.GainNow, k.GainPrevious);
             previousSample = x;
-            float filtered = (lp.B0 * hpY) + z1;
-            z1 = (lp.B1 * hpY) - (lp.A1 * filtered) + z2;
-            z2 = (lp.B2 * hpY) - (lp.A2 * filtered);
-            float c = (gainNow * filtered) + (gainPrev * previousFiltered);
-            previousFiltered = filtered;
-            envelope = MathF.Max(MathF.Abs(c), envelope * decay);
-            float band = bandFixed + (bandRelative * envelope);
+            envelope = ReadChainStep.Envelope(c, envelope, k.Decay);
+            float band = ReadChainStep.Band(envelope, k.BandFixed, k.BandRelative);
             if ((previousConditioned < 0) != (c < 0))
             {
                 // The bank keeps this time in single precision relative to its slice; here it is kept whole, in double.
@@ -80,10 +58,8 @@ public static class DetectorTrace
             }
 
             previousConditioned = c;
-            bool up = state < 0 && c > band;
-            bool down = state > 0 && c < -band;
-            state = up ? 1 : down ? -1 : state;
-            if ((up && countRising) || (down && countFalling))
+            state = ReadChainStep.Trigger(c, band, state, out bool up, out bool down);
+            if ((up && k.CountRising) || (down && k.CountFalling))
             {
                 edges.Add(new Edge(lastCrossing, up, envelope));
             }

@@ -4,7 +4,8 @@ namespace TapeVault.Core.Detection;
 
 /// <summary>
 /// The tone detector of an FSK setting: two sliding quadrature correlators, one bit long, measure the energy at the
-/// mark and space tones; their normalised difference D = (Em − Es)/(Em + Es) is the soft decision (the non-coherent
+/// mark and space tones (<see cref="ToneBank"/>, every setting's in one vector; <see cref="ToneCorrelator"/>, the
+/// scalar form); their normalised difference D = (Em − Es)/(Em + Es) is the soft decision (the non-coherent
 /// binary FSK detector of the textbooks, e.g. Proakis, Digital Communications). It also says whether there is a
 /// carrier at all.
 /// <para>
@@ -30,34 +31,21 @@ public struct ToneDetector
     /// </summary>
     private const double SilenceAmplitude = 1e-4;
 
-    private readonly float[] _markI, _markQ, _spaceI, _spaceQ;
-    private readonly double _markStepCos, _markStepSin, _spaceStepCos, _spaceStepSin;
     private readonly double _silenceEnergy;
     private readonly double _referenceGain;
     private readonly double _levelGain;
-    private int _ring;
-    private double _markCos, _markSin, _spaceCos, _spaceSin;
-    private double _sumMarkI, _sumMarkQ, _sumSpaceI, _sumSpaceQ;
     private double _carrierReference;
     private double _markLevel;
     private double _spaceLevel;
     private double _markLevelSamples;
     private double _spaceLevelSamples;
 
-    public ToneDetector(double markHz, double spaceHz, double baud, double sampleRate)
+    public ToneDetector(double baud, double sampleRate)
     {
-        Window = Math.Max(2, (int)Math.Round(sampleRate / baud));
-        _markI = new float[Window];
-        _markQ = new float[Window];
-        _spaceI = new float[Window];
-        _spaceQ = new float[Window];
-        _markCos = 1;
-        _spaceCos = 1;
+        Window = ToneCorrelator.WindowFor(baud, sampleRate);
 
         // A tone of amplitude A gives a correlator sum of about A·W/2 over a window of W samples.
         _silenceEnergy = Math.Pow(0.5 * SilenceAmplitude * Window, 2);
-        (_markStepSin, _markStepCos) = Math.SinCos(2 * Math.PI * markHz / sampleRate);
-        (_spaceStepSin, _spaceStepCos) = Math.SinCos(2 * Math.PI * spaceHz / sampleRate);
 
         // The carrier reference follows a quarter of a second; the tone levels about two bits' worth of windows that
         // hold one tone alone.
@@ -72,34 +60,15 @@ public struct ToneDetector
     public bool Carrier { get; private set; }
 
     /// <summary>
-    /// Takes one sample and returns D for the window that ends with it (0 without carrier). A window that holds mark
-    /// alone teaches the mark level when <paramref name="learnMark"/>, one that holds space alone the space level when
-    /// <paramref name="learnSpace"/>: noise before a lead-in can look like either tone, so only windows of the
-    /// recording may teach.
+    /// Takes the energies at the mark and space tones of the window that ends with one sample (from the setting's lane
+    /// of the <see cref="ToneBank"/>, or a <see cref="ToneCorrelator"/>) and returns D for that window (0 without
+    /// carrier). A window that holds mark alone teaches the mark level when <paramref name="learnMark"/>, one that
+    /// holds space alone the space level when <paramref name="learnSpace"/>: noise before a lead-in can look like either
+    /// tone, so only windows of the recording may teach.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public float Next(float x, bool learnMark, bool learnSpace)
+    public float Next(double mark, double space, bool learnMark, bool learnSpace)
     {
-        float mi = (float)(x * _markCos);
-        float mq = (float)(x * _markSin);
-        float si = (float)(x * _spaceCos);
-        float sq = (float)(x * _spaceSin);
-
-        // Rotate the two local oscillators by one sample (a complex multiply, no trigonometry per sample).
-        (_markCos, _markSin) = (_markCos * _markStepCos - _markSin * _markStepSin, _markSin * _markStepCos + _markCos * _markStepSin);
-        (_spaceCos, _spaceSin) = (_spaceCos * _spaceStepCos - _spaceSin * _spaceStepSin, _spaceSin * _spaceStepCos + _spaceCos * _spaceStepSin);
-        _sumMarkI += mi - _markI[_ring];
-        _sumMarkQ += mq - _markQ[_ring];
-        _sumSpaceI += si - _spaceI[_ring];
-        _sumSpaceQ += sq - _spaceQ[_ring];
-        _markI[_ring] = mi;
-        _markQ[_ring] = mq;
-        _spaceI[_ring] = si;
-        _spaceQ[_ring] = sq;
-        _ring = _ring + 1 == Window ? 0 : _ring + 1;
-
-        double mark = _sumMarkI * _sumMarkI + _sumMarkQ * _sumMarkQ;
-        double space = _sumSpaceI * _sumSpaceI + _sumSpaceQ * _sumSpaceQ;
         double total = mark + space;
 
         // Below 2 % of the usual carrier energy there is no signal to decide on: a dropout, or silence.
@@ -152,16 +121,5 @@ public struct ToneDetector
     {
         _spaceLevel = 0;
         _spaceLevelSamples = 0;
-    }
-
-    /// <summary>Rounding makes a rotated phasor drift off the unit circle: pull it back (once a chunk is enough).</summary>
-    public void Renormalise()
-    {
-        double markNorm = 1 / Math.Sqrt(_markCos * _markCos + _markSin * _markSin);
-        double spaceNorm = 1 / Math.Sqrt(_spaceCos * _spaceCos + _spaceSin * _spaceSin);
-        _markCos *= markNorm;
-        _markSin *= markNorm;
-        _spaceCos *= spaceNorm;
-        _spaceSin *= spaceNorm;
     }
 }

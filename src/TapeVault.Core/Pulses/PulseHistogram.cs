@@ -98,22 +98,31 @@ public sealed class PulseHistogram
         return bin;
     }
 
-    public void Add(double seconds)
+    public void Add(double seconds) => Add(seconds, 1);
+
+    /// <summary>Counts <paramref name="count"/> pulses of <paramref name="seconds"/>.</summary>
+    public void Add(double seconds, long count)
     {
         int bin = BinOf(seconds);
         if (bin < 0)
         {
-            _below++;
+            _below += count;
         }
         else if (bin == _counts.Length)
         {
-            _above++;
+            _above += count;
         }
         else
         {
-            _counts[bin]++;
+            _counts[bin] += count;
         }
     }
+
+    /// <summary>Counts <paramref name="count"/> pulses known to be shorter than any bin.</summary>
+    public void AddBelow(long count) => _below += count;
+
+    /// <summary>Counts <paramref name="count"/> pulses known to be longer than any bin.</summary>
+    public void AddAbove(long count) => _above += count;
 
     /// <summary>
     /// Adds the time between each counted edge and the one before it, carrying the last edge over from the previous

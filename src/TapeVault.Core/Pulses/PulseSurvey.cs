@@ -4,7 +4,11 @@ using TapeVault.Core.Edges;
 
 namespace TapeVault.Core.Pulses;
 
-/// <summary>The intervals between one setting's counted edges over a whole capture, counted into a histogram in one streaming pass.</summary>
+/// <summary>
+/// The intervals between one setting's counted edges over a whole capture, counted into a histogram in one streaming
+/// pass. A decode counts the same intervals as it goes (<see cref="Decoding.DecodeOptions.SurveyIntervals"/>), so a
+/// decode job needs no pass of its own; both count through <see cref="IntervalSurvey"/> and give the same counts.
+/// </summary>
 public static class PulseSurvey
 {
     private const int ChunkFrames = 64 * 1024;
@@ -12,22 +16,9 @@ public static class PulseSurvey
     /// <summary>Runs <paramref name="setting"/> through the detector bank over every sample <paramref name="reader"/> has left.</summary>
     public static PulseHistogramResult Measure(CaptureReader reader, DetectorSetting setting, PulseHistogram histogram, CancellationToken cancellation = default)
     {
-        ArgumentNullException.ThrowIfNull(reader);
         ArgumentNullException.ThrowIfNull(setting);
         ArgumentNullException.ThrowIfNull(histogram);
-        var bank = new DetectorBank([setting], reader.SampleRate);
-        var edges = new[] { new EdgeBuffer() };
-        var chunk = new float[ChunkFrames];
-        int read;
-        while ((read = reader.Read(chunk)) > 0)
-        {
-            cancellation.ThrowIfCancellationRequested();
-            edges[0].Clear();
-            bank.Process(chunk.AsSpan(0, read), edges);
-            histogram.AddIntervals(edges[0].Items, reader.SampleRate);
-        }
-
-        return histogram.ToResult();
+        return MeasureAll(reader, [setting], [histogram], cancellation)[0];
     }
 
     /// <summary>
@@ -46,9 +37,11 @@ public static class PulseSurvey
 
         var bank = new DetectorBank(settings, reader.SampleRate);
         var edges = new EdgeBuffer[settings.Count];
+        var surveys = new IntervalSurvey[settings.Count];
         for (int i = 0; i < edges.Length; i++)
         {
             edges[i] = new EdgeBuffer();
+            surveys[i] = new IntervalSurvey(reader.SampleRate);
         }
 
         var chunk = new float[ChunkFrames];
@@ -64,10 +57,16 @@ public static class PulseSurvey
             bank.Process(chunk.AsSpan(0, read), edges);
             for (int i = 0; i < edges.Length; i++)
             {
-                histograms[i].AddIntervals(edges[i].Items, reader.SampleRate);
+                surveys[i].AddIntervals(edges[i].Items);
             }
         }
 
-        return [.. histograms.Select(h => h.ToResult())];
+        var results = new PulseHistogramResult[settings.Count];
+        for (int i = 0; i < results.Length; i++)
+        {
+            results[i] = surveys[i].Into(histograms[i]);
+        }
+
+        return results;
     }
 }

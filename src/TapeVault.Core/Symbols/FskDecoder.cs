@@ -142,7 +142,7 @@ public sealed class FskDecoder : ISymbolDecoder
         _isStream = profile.Layout.IsStream;
         _assembler = assembler;
         _sampleRate = sampleRate;
-        _tones = new ToneDetector(_fsk.MarkHz, _fsk.SpaceHz, _fsk.Baud, sampleRate);
+        _tones = new ToneDetector(_fsk.Baud, sampleRate);
         _speed = new MarkPeriodSpeedTracker(sampleRate / _fsk.MarkHz * (countsBothEdges ? 0.5 : 1), _tones.Window);
         _framer = new AsyncCharacterFramer(_framing);
         _alignment = new FrameAlignment(_framing);
@@ -192,7 +192,7 @@ public sealed class FskDecoder : ISymbolDecoder
         Leader,
     }
 
-    public bool NeedsConditionedSignal => true;
+    public bool ReadsTones => true;
 
     /// <summary>
     /// Mostly clear mark tone (D above 0.5) over about the lead-in's length: a running mean of ±1, with a time
@@ -220,12 +220,12 @@ public sealed class FskDecoder : ISymbolDecoder
         _speed.OnEdges(edges);
     }
 
-    public void OnConditioned(ReadOnlySpan<float> signal, long chunkStart)
+    public void OnTones(ToneLane tones, long chunkStart)
     {
-        for (int i = 0; i < signal.Length; i++)
+        for (int i = 0; i < tones.Length; i++)
         {
             bool inChar = _framer.InCharacter;
-            float d = _tones.Next(signal[i], learnMark: inChar || _inBlock || _inLeader || HeardLeadIn, learnSpace: inChar);
+            float d = _tones.Next(tones.Mark(i), tones.Space(i), learnMark: inChar || _inBlock || _inLeader || HeardLeadIn, learnSpace: inChar);
             double n = chunkStart + i;
             _speed.Check(d, n);
             if (_leader is not null && !_inBlock && !_inLeader && _hunt.Step(d, _previousD, n, BitSamples))
@@ -293,7 +293,6 @@ public sealed class FskDecoder : ISymbolDecoder
         }
 
         _speed.EndChunk();
-        _tones.Renormalise();
     }
 
     public void Finish(double endSample)

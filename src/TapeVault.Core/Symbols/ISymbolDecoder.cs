@@ -1,20 +1,21 @@
+using TapeVault.Core.Detection;
 using TapeVault.Core.Edges;
 
 namespace TapeVault.Core.Symbols;
 
 /// <summary>
-/// The decode chain of one detector setting after the bank: edges (or, for tone formats, the conditioned signal) in,
+/// The decode chain of one detector setting after the bank: edges (and, for tone formats, the tone energies) in,
 /// block candidates out, through the setting's <see cref="Blocks.BlockAssembler"/>.
 /// </summary>
 public interface ISymbolDecoder
 {
-    /// <summary>True when the decoder reads the conditioned signal as well as the edges; edge decoders need not say.</summary>
-    bool NeedsConditionedSignal => false;
+    /// <summary>True when the decoder reads the tone correlators' energies as well as the edges; edge decoders need not say.</summary>
+    bool ReadsTones => false;
 
     void OnEdges(ReadOnlySpan<Edge> edges);
 
-    /// <summary>The conditioned signal of the chunk whose first sample is <paramref name="chunkStart"/>; only tone decoders read it.</summary>
-    void OnConditioned(ReadOnlySpan<float> signal, long chunkStart)
+    /// <summary>The setting's tone energies over the chunk whose first sample is <paramref name="chunkStart"/>; only tone decoders read them.</summary>
+    void OnTones(ToneLane tones, long chunkStart)
     {
     }
 

@@ -1,0 +1,178 @@
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
+
+namespace TapeVault.Core.Detection;
+
+/// <summary>
+/// The tone correlators of every FSK setting of a bank, four settings to the lanes of one <see cref="Vector256{T}"/>
+/// of doubles: for each setting, two sliding quadrature correlators one bit long measure the energy at the mark and at
+/// the space tone (a recursive sliding DFT: each sample adds its product with the local oscillator and takes away the
+/// product that leaves the window, O(1) a sample whatever the window). Every setting of a profile shares the tones,
+/// the window and so the oscillators: one phasor per tone turns for all lanes.
+/// <para>
+/// The arithmetic is that of <see cref="ToneCorrelator"/>, which it calls for the oscillators and whose scalar form is
+/// the reference: products rounded to single precision as they enter the ring, sums in double precision, so that a
+/// setting's energies are bit for bit those its own scalar correlator would give. What the FSK decoder decides from
+/// them (carrier, tone levels, the soft decision) stays in its <see cref="ToneDetector"/>.
+/// </para>
+/// </summary>
+public sealed class ToneBank
+{
+    public const int LanesPerQuad = 4;
+
+    private readonly Quad[] _quads;
+
+    public ToneBank(int settings, double markHz, double spaceHz, double baud, double sampleRate)
+    {
+        ArgumentOutOfRangeException.ThrowIfLessThan(settings, 1);
+        Settings = settings;
+        Window = ToneCorrelator.WindowFor(baud, sampleRate);
+        _quads = new Quad[(settings + LanesPerQuad - 1) / LanesPerQuad];
+        for (int q = 0; q < _quads.Length; q++)
+        {
+            _quads[q] = new Quad(Window, markHz, spaceHz, sampleRate);
+        }
+    }
+
+    public int Settings { get; }
+
+    /// <summary>The correlator window, in samples: one bit at nominal speed.</summary>
+    public int Window { get; }
+
+    /// <summary>
+    /// Advances the correlators of settings <paramref name="firstSetting"/> onwards (a multiple of four) over a slice of
+    /// the bank's conditioned signal, one vector of eight settings' lanes a sample, writing each setting's energies to
+    /// <paramref name="output"/> from <paramref name="outputOffset"/>.
+    /// </summary>
+    internal void Process(int firstSetting, ReadOnlySpan<Vector256<float>> conditioned, ToneEnergies output, int outputOffset)
+    {
+        for (int half = 0; half < 2; half++)
+        {
+            int quad = (firstSetting / LanesPerQuad) + half;
+            if (quad < _quads.Length)
+            {
+                _quads[quad].Process(conditioned, upper: half == 1, output.Quad(quad), outputOffset);
+            }
+        }
+    }
+
+    /// <summary>Rounding makes a turned phasor drift off the unit circle: pulled back at the end of each chunk the bank is given.</summary>
+    internal void EndChunk()
+    {
+        foreach (var quad in _quads)
+        {
+            quad.EndChunk();
+        }
+    }
+
+    /// <summary>Four settings' correlators; lane i of every vector is setting 4·q + i.</summary>
+    private sealed class Quad(int window, double markHz, double spaceHz, double sampleRate)
+    {
+        private readonly Vector256<float>[] _markRing = new Vector256<float>[window];
+        private readonly Vector256<float>[] _spaceRing = new Vector256<float>[window];
+        private ToneCorrelator.Oscillator _oscillator = new(markHz, spaceHz, sampleRate);
+        private int _ring;
+        private Vector256<double> _sumMarkI, _sumMarkQ, _sumSpaceI, _sumSpaceQ;
+
+        public void Process(ReadOnlySpan<Vector256<float>> conditioned, bool upper, Span<Vector256<double>> output, int outputOffset)
+        {
+            var oscillator = _oscillator;
+            var markRing = _markRing;
+            var spaceRing = _spaceRing;
+            int ring = _ring;
+            var sumMarkI = _sumMarkI;
+            var sumMarkQ = _sumMarkQ;
+            var sumSpaceI = _sumSpaceI;
+            var sumSpaceQ = _sumSpaceQ;
+
+            // Output: two vectors a sample, the four lanes' mark energies, then their space energies.
+            var target = output.Slice(2 * outputOffset, 2 * conditioned.Length);
+            for (int n = 0; n < conditioned.Length; n++)
+            {
+                // Widening single to double is exact: the same x as the scalar correlator's.
+                var (lower, higher) = Vector256.Widen(conditioned[n]);
+                var x = upper ? higher : lower;
+
+                // Each product is rounded to single precision (as the scalar form stores it), I and Q side by side.
+                var mark = Vector256.Narrow(x * Vector256.Create(oscillator.MarkCos), x * Vector256.Create(oscillator.MarkSin));
+                var space = Vector256.Narrow(x * Vector256.Create(oscillator.SpaceCos), x * Vector256.Create(oscillator.SpaceSin));
+                oscillator.Turn();
+
+                // Sliding sums: the new product in, the one a window old out (the difference in single precision, as
+                // in the scalar form, then added in double).
+                var (markInI, markInQ) = Vector256.Widen(mark - markRing[ring]);
+                var (spaceInI, spaceInQ) = Vector256.Widen(space - spaceRing[ring]);
+                markRing[ring] = mark;
+                spaceRing[ring] = space;
+                ring = ring + 1 == markRing.Length ? 0 : ring + 1;
+                sumMarkI += markInI;
+                sumMarkQ += markInQ;
+                sumSpaceI += spaceInI;
+                sumSpaceQ += spaceInQ;
+
+                target[2 * n] = (sumMarkI * sumMarkI) + (sumMarkQ * sumMarkQ);
+                target[(2 * n) + 1] = (sumSpaceI * sumSpaceI) + (sumSpaceQ * sumSpaceQ);
+            }
+
+            _oscillator = oscillator;
+            _ring = ring;
+            _sumMarkI = sumMarkI;
+            _sumMarkQ = sumMarkQ;
+            _sumSpaceI = sumSpaceI;
+            _sumSpaceQ = sumSpaceQ;
+        }
+
+        public void EndChunk() => _oscillator.Renormalise();
+    }
+}
+
+/// <summary>
+/// The mark and space energies of every setting of a <see cref="ToneBank"/> over one chunk: per group of four settings,
+/// two vectors a sample (mark, then space), lane i for setting 4·q + i.
+/// </summary>
+public sealed class ToneEnergies
+{
+    private readonly Vector256<double>[][] _quads;
+
+    public ToneEnergies(int settings, int samples)
+    {
+        _quads = new Vector256<double>[(settings + ToneBank.LanesPerQuad - 1) / ToneBank.LanesPerQuad][];
+        for (int q = 0; q < _quads.Length; q++)
+        {
+            _quads[q] = new Vector256<double>[2 * samples];
+        }
+
+        Capacity = samples;
+    }
+
+    public int Capacity { get; }
+
+    internal Span<Vector256<double>> Quad(int quad) => _quads[quad];
+
+    /// <summary>Setting <paramref name="setting"/>'s view of the chunk.</summary>
+    public ToneLane Lane(int setting, int length) =>
+        new(_quads[setting / ToneBank.LanesPerQuad], setting % ToneBank.LanesPerQuad, length);
+}
+
+/// <summary>One setting's mark and space energies over a chunk, sample by sample.</summary>
+public readonly ref struct ToneLane
+{
+    private readonly ReadOnlySpan<double> _all;
+    private readonly int _lane;
+
+    public ToneLane(Vector256<double>[] quad, int lane, int length)
+    {
+        _all = MemoryMarshal.Cast<Vector256<double>, double>(quad.AsSpan(0, 2 * length));
+        _lane = lane;
+        Length = length;
+    }
+
+    public int Length { get; }
+
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public double Mark(int n) => _all[(2 * ToneBank.LanesPerQuad * n) + _lane];
+
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public double Space(int n) => _all[(2 * ToneBank.LanesPerQuad * n) + ToneBank.LanesPerQuad + _lane];
+}

@@ -1,0 +1,100 @@
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Detection;
+using TapeVault.Core.Edges;
+using TapeVault.Core.Formats;
+using Xunit;
+
+namespace TapeVault.Core.Tests.Detection;
+
+/// <summary>
+/// The tone correlators of every FSK setting run four to a vector inside the bank's pass; the scalar correlator is
+/// their reference, and the FSK decoder's decisions hang on every bit of the energies, so the two must agree exactly.
+/// </summary>
+public sealed class ToneBankTests
+{
+    private const int SampleRate = 44_100;
+
+    [Fact]
+    public void The_bank_lanes_give_bit_for_bit_the_energies_of_the_scalar_correlator_for_every_setting()
+    {
+        // The FSK bank of the Kansas City Standard's tones (1 = 2400 Hz, 0 = 1200 Hz) at 1200 baud, with a fifth setting
+        // so that a second group of four lanes is partly used.
+        var fsk = ProfileCatalog.BuiltIn.Get("kcs-1200").Fsk!;
+        var settings = CaptureDecoder.BankFor(ProfileCatalog.BuiltIn.Get("kcs-1200"), DetectorBanks.Default).ToList();
+        settings.Add(new DetectorSetting("wide", 15, 12000, differentiate: false, invert: true, ThresholdMode.Relative, 0.3, EdgeSelection.Both));
+        float[] signal = NoisyFsk(seconds: 0.5, fsk.MarkHz, fsk.SpaceHz, fsk.Baud);
+
+        var bank = new DetectorBank(settings, SampleRate);
+        var tones = new ToneBank(settings.Count, fsk.MarkHz, fsk.SpaceHz, fsk.Baud, SampleRate);
+        var edges = settings.Select(_ => new EdgeBuffer()).ToArray();
+        var energies = new ToneEnergies(settings.Count, 5000);
+        var scalar = settings.Select(_ => new ToneCorrelator(fsk.MarkHz, fsk.SpaceHz, fsk.Baud, SampleRate)).ToArray();
+        var conditioned = settings.Select(s => DetectorTrace.Run(signal, SampleRate, s).Conditioned).ToArray();
+
+        // Chunks that do not line up with the bank's internal slices; the oscillators are renormalised after each.
+        int compared = 0;
+        for (int offset = 0; offset < signal.Length; offset += 5000)
+        {
+            int length = Math.Min(5000, signal.Length - offset);
+            bank.Process(signal.AsSpan(offset, length), edges, tones, energies);
+            for (int s = 0; s < settings.Count; s++)
+            {
+                var lane = energies.Lane(s, length);
+                for (int n = 0; n < length; n++)
+                {
+                    scalar[s].Next(conditioned[s][offset + n], out double mark, out double space);
+                    Assert.Equal(mark, lane.Mark(n));
+                    Assert.Equal(space, lane.Space(n));
+                    compared++;
+                }
+
+                scalar[s].Renormalise();
+            }
+        }
+
+        Assert.Equal(signal.Length * settings.Count, compared);
+    }
+
+    [Fact]
+    public void A_pure_tone_gives_the_energy_of_a_sinusoid_in_its_own_correlator_and_almost_none_in_the_other()
+    {
+        // A sinusoid of amplitude A over a window of W samples at its own frequency gives |X| = A·W/2 (the DFT of a
+        // sinusoid, any DSP textbook, e.g. Oppenheim and Schafer); 2400 Hz over a window of 37 samples (1200 baud) holds
+        // about two cycles, and the other tone's correlator sees about none of it.
+        var correlator = new ToneCorrelator(2400, 1200, 1200, SampleRate);
+        double mark = 0, space = 0;
+        const double amplitude = 0.5;
+        for (int n = 0; n < 2000; n++)
+        {
+            correlator.Next((float)(amplitude * Math.Sin(2 * Math.PI * 2400 * n / SampleRate)), out mark, out space);
+        }
+
+        double expected = Math.Pow(amplitude * correlator.Window / 2, 2);
+        Assert.Equal(37, correlator.Window);
+        Assert.InRange(mark, expected * 0.9, expected * 1.1);
+        Assert.True(space < expected * 0.05, $"space energy {space} against mark {mark}");
+    }
+
+    /// <summary>Random bits in the two tones, phase-continuous, with a level change and noise; seeded, so repeatable.</summary>
+    private static float[] NoisyFsk(double seconds, double markHz, double spaceHz, double baud)
+    {
+        var signal = new float[(int)(seconds * SampleRate)];
+        var random = new Random(9);
+        double phase = 0;
+        bool mark = true;
+        int bitSamples = (int)(SampleRate / baud);
+        for (int n = 0; n < signal.Length; n++)
+        {
+            if (n % bitSamples == 0)
+            {
+                mark = random.Next(2) == 0;
+            }
+
+            phase += 2 * Math.PI * (mark ? markHz : spaceHz) / SampleRate;
+            double level = n < signal.Length / 2 ? 0.6 : 0.2;
+            signal[n] = (float)((level * Math.Sin(phase)) + ((random.NextDouble() - 0.5) * 0.1));
+        }
+
+        return signal;
+    }
+}
