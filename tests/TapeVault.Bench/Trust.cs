@@ -232,6 +232,7 @@ public static class Trust
             {
                 string stem = Path.Combine(folder, $"{profile.Id}-{seed}-{p}");
                 long t0 = Stopwatch.GetTimestamp();
+                t_channelDamage = null;
                 var (path, source, description) = Pass(stem, profile, written, rng);
                 long t1 = Stopwatch.GetTimestamp();
                 var result = CaptureDecoder.Decode(path, profile);
@@ -261,6 +262,18 @@ public static class Trust
                             candidate.SnrDb.ToString("0.##", CultureInfo.InvariantCulture), candidate.Payload.Length, candidate.Truncated ? 1 : 0, candidate.Position, candidate.StartSeconds.ToString("0.###", CultureInfo.InvariantCulture), candidate.Identity.Key,
                             candidate.HeaderErrorOdds.Concat(candidate.ByteErrorOdds).Concat(candidate.ChecksumErrorOdds).Sum(e => Math.Log(1 - Math.Min(e, 0.999999))).ToString("0.####", CultureInfo.InvariantCulture)));
                     }
+                    if (wrongClean)
+                    {
+                        SaveCase(profile, seed, p, written);
+                    }
+
+                    if (wrongClean && Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_BYTES") is not null)
+                    {
+                        string got = Convert.ToHexString([.. candidate.Header, .. candidate.Payload]);
+                        string near = written.Select(w => Convert.ToHexString(w)).OrderBy(w => Distance(w, got)).First();
+                        Console.WriteLine($"WRONG {seed}/{p} [{candidate.SettingName}] at {candidate.StartSeconds:0.###} s fe={candidate.FramingErrors} amb={candidate.AmbiguousDecisions} min={candidate.MinimumMargin:0.###} doubts={candidate.Doubts}\n  got  {got}\n  near {near}");
+                    }
+
                     if (wrongClean && examples.Count < 3)
                     {
                         examples.Add(new WrongExample(profile.Id, seed, p, source, candidate.SettingName, candidate.Status, candidate.Confidence, candidate.Payload.Length, description));
@@ -310,6 +323,17 @@ public static class Trust
         }
     }
 
+    private static int Distance(string a, string b)
+    {
+        int d = Math.Abs(a.Length - b.Length);
+        for (int i = 0; i < Math.Min(a.Length, b.Length); i++)
+        {
+            d += a[i] == b[i] ? 0 : 1;
+        }
+
+        return d;
+    }
+
     private delegate bool Judgement(ReadOnlySpan<byte> header, ReadOnlySpan<byte> payload);
 
     /// <summary>Whether a reading is right: a written block's header and payload, or for a stream, written bytes where they line up best.</summary>
@@ -346,6 +370,32 @@ public static class Trust
     }
 
     /// <summary>One pass: its capture file, its source and a description of its damage.</summary>
+    /// <summary>The damage of the last pass this thread made with our channel model alone (null after any other kind of pass).</summary>
+    [ThreadStatic]
+    private static ChannelDamage? t_channelDamage;
+
+    /// <summary>
+    /// With TAPEVAULT_TRUST_CASES set to a folder, a pass of our channel model alone that gave a wrong clean reading is
+    /// saved there as a case (profile, damage, written blocks), so that a test can make the same capture again.
+    /// </summary>
+    private static readonly string? s_casesFolder = Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_CASES");
+
+    private static readonly System.Text.Json.JsonSerializerOptions s_caseJson = new() { IncludeFields = true, WriteIndented = true };
+
+    private static void SaveCase(FormatProfile profile, int seed, int pass, List<byte[]> written)
+    {
+        if (s_casesFolder is null || t_channelDamage is null)
+        {
+            return;
+        }
+
+        Directory.CreateDirectory(s_casesFolder);
+        string json = System.Text.Json.JsonSerializer.Serialize(
+            new { Profile = profile.Id, Seed = seed, Pass = pass, Damage = t_channelDamage, Blocks = written.Select(Convert.ToHexString).ToArray() },
+            s_caseJson);
+        File.WriteAllText(Path.Combine(s_casesFolder, $"{profile.Id}-{seed}-{pass}.json"), json);
+    }
+
     private static (string Path, string Source, string Description) Pass(string stem, FormatProfile profile, List<byte[]> written, Random rng)
     {
         double draw = rng.NextDouble();
@@ -381,6 +431,7 @@ public static class Trust
         description = RandomDamage.Describe(damage);
         if (!sox)
         {
+            t_channelDamage = damage;
             CaptureSynthesizer.WriteBlocks(path, profile, written, damage);
             return (path, "channel", description);
         }
