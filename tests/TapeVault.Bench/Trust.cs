@@ -85,6 +85,10 @@ public static class Trust
             new("fsk", ProfileCatalog.BuiltIn.Get("kcs-300")),
             new("fsk", ProfileCatalog.BuiltIn.Get("kcs-1200")),
             new("biphase", ProfileCatalog.BuiltIn.Get("biphase-1200")),
+            new("biphase", ProfileCatalog.BuiltIn.Get("biphase-1500")),
+            new("fsk", ProfileCatalog.BuiltIn.Get("fsk-sync-1200")),
+            new("pulse-width", ProfileCatalog.BuiltIn.Get("three-class-pairs")),
+            new("pulse-width", ProfileCatalog.BuiltIn.Get("one-cycle-bits")),
         ];
 
         // Block formats: tapes from the first seed until the written blocks reach the count asked for. Streams: one
@@ -260,7 +264,8 @@ public static class Trust
                         s_dump.Enqueue(string.Join('\t', "read", profile.Id, seed, p, source, candidate.SettingName, candidate.Status, (int)candidate.Doubts, candidate.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0,
                             candidate.MinimumMargin.ToString("0.####", CultureInfo.InvariantCulture), candidate.MeanMargin.ToString("0.####", CultureInfo.InvariantCulture), candidate.AmbiguousDecisions, candidate.Decisions, candidate.FramingErrors,
                             candidate.SnrDb.ToString("0.##", CultureInfo.InvariantCulture), candidate.Payload.Length, candidate.Truncated ? 1 : 0, candidate.Position, candidate.StartSeconds.ToString("0.###", CultureInfo.InvariantCulture), candidate.Identity.Key,
-                            candidate.HeaderErrorOdds.Concat(candidate.ByteErrorOdds).Concat(candidate.ChecksumErrorOdds).Sum(e => Math.Log(1 - Math.Min(e, 0.999999))).ToString("0.####", CultureInfo.InvariantCulture)));
+                            candidate.HeaderErrorOdds.Concat(candidate.ByteErrorOdds).Concat(candidate.ChecksumErrorOdds).Sum(e => Math.Log(1 - Math.Min(e, 0.999999))).ToString("0.####", CultureInfo.InvariantCulture),
+                            ConfidenceMap.FamilyName(profile.Family), ConfidenceMap.GroupOf(candidate.Status, candidate.Doubts), candidate.ModelConfidence.ToString("R", CultureInfo.InvariantCulture)));
                     }
                     if (wrongClean)
                     {
