@@ -200,7 +200,8 @@ public static class Trust
                 i += run;
             }
 
-            files.Add(new TapeFile($"F{seed % 1000:D3}{f}", content));
+            // A load address for formats whose header block gives start and end addresses.
+            files.Add(new TapeFile($"F{seed % 1000:D3}{f}", content) { Address = 0x1000 });
         }
 
         return files;
@@ -324,7 +325,7 @@ public static class Trust
         catch (Exception e) when (e is not OutOfMemoryException)
         {
             // A decoder or merge that throws is a finding of its own: reported, and the run goes on.
-            return new TapeOutcome(subject, seed, units, written.Count, bySource, best, [], null, examples, $"{profile.Id} seed {seed}: {e.GetType().Name}: {e.Message}");
+            return new TapeOutcome(subject, seed, units, written.Count, bySource, best, [], null, examples, $"{profile.Id} seed {seed}: {e.GetType().Name}: {e.Message} {e.StackTrace?.Split('\n')[0]}");
         }
     }
 
@@ -356,17 +357,12 @@ public static class Trust
             return (_, payload) => RecoveryCorpus.Place(payload, files, bases, null);
         }
 
-        int header = profile.Layout.HeaderBytes;
-        int check = ChecksumCatalog.Get(profile.Layout.Checksum!.Algorithm).Width;
-        var truth = written.Select(b => Convert.ToHexString(b.AsSpan(0, b.Length - check))).ToHashSet(StringComparer.Ordinal);
+        // A block of any kind, without its check value (kinds may differ in header and check width).
+        var widths = profile.BlockKinds.Select(k => BlockLayoutCodec.For(k).CheckBytes).Distinct().ToList();
+        var truth = written.SelectMany(b => widths.Where(w => w <= b.Length).Select(w => Convert.ToHexString(b.AsSpan(0, b.Length - w)))).ToHashSet(StringComparer.Ordinal);
         units = written.Count;
         return (h, p) =>
         {
-            if (h.Length != header)
-            {
-                return false;
-            }
-
             var joined = new byte[h.Length + p.Length];
             h.CopyTo(joined);
             p.CopyTo(joined.AsSpan(h.Length));
@@ -404,7 +400,7 @@ public static class Trust
     private static (string Path, string Source, string Description) Pass(string stem, FormatProfile profile, List<byte[]> written, Random rng)
     {
         double draw = rng.NextDouble();
-        bool minimodem = profile.Family == FormatFamily.Fsk && draw < 0.3;
+        bool minimodem = profile.Family == FormatFamily.Fsk && OutsideDamage.MinimodemWrites(profile) && draw < 0.3;
         bool sox = minimodem || draw >= 0.65;
         string path = stem + ".wav";
         string description;

@@ -39,14 +39,14 @@ public sealed class ConfidenceMap
         Provenance = provenance;
     }
 
+    /// <summary>A map that changes nothing (model confidence as it is).</summary>
+    public static ConfidenceMap Identity { get; } = new(FrozenDictionary<string, (double[], double[])>.Empty, "identity");
+
     /// <summary>The map the product uses, loaded once from the embedded Calibration/confidence-map.json.</summary>
     public static ConfidenceMap Default { get; } = LoadEmbedded();
 
     /// <summary>Where the map came from: the seeds, counts and command, as the file says.</summary>
     public string Provenance { get; }
-
-    /// <summary>A map that changes nothing (model confidence as it is).</summary>
-    public static ConfidenceMap Identity { get; } = new(FrozenDictionary<string, (double[], double[])>.Empty, "identity");
 
     /// <summary>The calibration group of a reading with this status and these doubts.</summary>
     public static ConfidenceGroup GroupOf(BlockStatus status, BlockDoubts doubts) => status switch

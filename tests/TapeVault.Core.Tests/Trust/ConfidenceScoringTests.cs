@@ -69,7 +69,7 @@ public sealed class ConfidenceScoringTests
 
         Assert.Equal(BlockStatus.Failed, candidate.Status);
         Assert.True(candidate.Doubts.HasFlag(BlockDoubts.ChecksumMismatch));
-        Assert.True(candidate.Confidence <= BlockScorer.MostFailedConfidence, $"failed block at confidence {candidate.Confidence}");
+        Assert.True(candidate.ModelConfidence <= 0.5, $"failed block at model confidence {candidate.ModelConfidence}");
     }
 
     [Fact]
