@@ -18,6 +18,8 @@ public static class TrustFit
     private const int Bins = 40;
     private const int LeastPerBin = 50;
 
+    private static readonly JsonSerializerOptions s_json = new() { WriteIndented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
+
     public static int Run(string[] args)
     {
         string? dump = null, output = null, note = null;
@@ -75,7 +77,7 @@ public static class TrustFit
             ["provenance"] = $"Fitted by `dotnet run -c Release --project tests/TapeVault.Bench -- trust-fit --dump FILE --out FILE` on the trust benchmark's readings of tuning seeds {lowest}–{highest} (held-out seeds start at 20000). {note} Counts: {counts.ToString().TrimEnd(' ', ';')}.",
             ["curves"] = curves,
         };
-        File.WriteAllText(output, root.ToJsonString(new JsonSerializerOptions { WriteIndented = true }) + "\n");
+        File.WriteAllText(output, root.ToJsonString(s_json) + "\n");
         Console.WriteLine($"Wrote {output}.");
         return 0;
     }
@@ -130,7 +132,8 @@ public static class TrustFit
         double floor = 0;
         foreach (var (sumModel, right, count) in stack)
         {
-            double at = sumModel / count;
+            // Stored to six decimals: pools that round to one value are one step.
+            double at = Math.Round(sumModel / count, 6);
             double rate = Math.Max(floor, (right + 1.0) / (count + 2.0));
             floor = rate;
             if (x.Count > 0 && at <= x[^1])
