@@ -303,6 +303,12 @@ public sealed class BlockScorer
         double model = Math.Clamp(confidence, 0, 1);
         confidence = Math.Clamp(_map.Map(_family, ConfidenceMap.GroupOf(status, doubts), model), 0, 1);
 
+        // A failed block whose (damaged) header claims no payload has nothing that could be right, whatever the map says.
+        if (_checksum is not null && status != BlockStatus.Clean && payloadEnd == headerBytes)
+        {
+            confidence = 0;
+        }
+
         // Per-byte odds as the decisions give them, before any check (the merge votes with them where no check
         // held); for bytes nothing checks, no better than the floor of what margins cannot see.
         bool unchecked_ = _checksum is null;
