@@ -107,6 +107,10 @@ public static class OutsideDamage
     /// before each (a lead-in of <paramref name="leadInSeconds"/>, then the profile's block gap) and after the last,
     /// as a tape writer would; minimodem's own phase restarts at each block. For a stream the "blocks" are the files.
     /// </summary>
+    /// <summary>Whether minimodem can write the profile's characters (one start bit 0, eight data bits LSB first, no parity).</summary>
+    public static bool MinimodemWrites(FormatProfile profile) =>
+        profile.Fsk is not null && profile.Framing.StartBits == "0" && profile.Framing.DataBits == 8 && profile.Framing.BitOrder == BitOrder.LsbFirst && profile.Framing.Parity == Parity.None;
+
     public static void MinimodemCapture(string path, FormatProfile profile, IReadOnlyList<byte[]> blocks, int sampleRate, double leadInSeconds, double volume)
     {
         var fsk = profile.Fsk ?? throw new ArgumentException("minimodem writes FSK profiles only.", nameof(profile));

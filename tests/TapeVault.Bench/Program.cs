@@ -32,6 +32,12 @@ if (section == "draft")
     return DraftFigure.Run(work, args[1..]);
 }
 
+if (section == "trust-fit")
+{
+    // trust-fit --dump FILE --out FILE --note TEXT: fits the confidence map from a trust run's dump (TAPEVAULT_TRUST_DUMP) of tuning seeds.
+    return TrustFit.Run(args[1..]);
+}
+
 if (section == "trust")
 {
     // trust --blocks N --first-seed S --jobs J [--profile ID] [--minutes M]: see Trust and docs/performance.md.

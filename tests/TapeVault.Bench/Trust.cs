@@ -85,6 +85,10 @@ public static class Trust
             new("fsk", ProfileCatalog.BuiltIn.Get("kcs-300")),
             new("fsk", ProfileCatalog.BuiltIn.Get("kcs-1200")),
             new("biphase", ProfileCatalog.BuiltIn.Get("biphase-1200")),
+            new("biphase", ProfileCatalog.BuiltIn.Get("biphase-1500")),
+            new("fsk", ProfileCatalog.BuiltIn.Get("fsk-sync-1200")),
+            new("pulse-width", ProfileCatalog.BuiltIn.Get("three-class-pairs")),
+            new("pulse-width", ProfileCatalog.BuiltIn.Get("one-cycle-bits")),
         ];
 
         // Block formats: tapes from the first seed until the written blocks reach the count asked for. Streams: one
@@ -196,7 +200,8 @@ public static class Trust
                 i += run;
             }
 
-            files.Add(new TapeFile($"F{seed % 1000:D3}{f}", content));
+            // A load address for formats whose header block gives start and end addresses.
+            files.Add(new TapeFile($"F{seed % 1000:D3}{f}", content) { Address = 0x1000 });
         }
 
         return files;
@@ -232,6 +237,7 @@ public static class Trust
             {
                 string stem = Path.Combine(folder, $"{profile.Id}-{seed}-{p}");
                 long t0 = Stopwatch.GetTimestamp();
+                t_channelDamage = null;
                 var (path, source, description) = Pass(stem, profile, written, rng);
                 long t1 = Stopwatch.GetTimestamp();
                 var result = CaptureDecoder.Decode(path, profile);
@@ -259,8 +265,21 @@ public static class Trust
                         s_dump.Enqueue(string.Join('\t', "read", profile.Id, seed, p, source, candidate.SettingName, candidate.Status, (int)candidate.Doubts, candidate.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0,
                             candidate.MinimumMargin.ToString("0.####", CultureInfo.InvariantCulture), candidate.MeanMargin.ToString("0.####", CultureInfo.InvariantCulture), candidate.AmbiguousDecisions, candidate.Decisions, candidate.FramingErrors,
                             candidate.SnrDb.ToString("0.##", CultureInfo.InvariantCulture), candidate.Payload.Length, candidate.Truncated ? 1 : 0, candidate.Position, candidate.StartSeconds.ToString("0.###", CultureInfo.InvariantCulture), candidate.Identity.Key,
-                            candidate.HeaderErrorOdds.Concat(candidate.ByteErrorOdds).Concat(candidate.ChecksumErrorOdds).Sum(e => Math.Log(1 - Math.Min(e, 0.999999))).ToString("0.####", CultureInfo.InvariantCulture)));
+                            candidate.HeaderErrorOdds.Concat(candidate.ByteErrorOdds).Concat(candidate.ChecksumErrorOdds).Sum(e => Math.Log(1 - Math.Min(e, 0.999999))).ToString("0.####", CultureInfo.InvariantCulture),
+                            ConfidenceMap.FamilyName(profile.Family), ConfidenceMap.GroupOf(candidate.Status, candidate.Doubts), candidate.ModelConfidence.ToString("R", CultureInfo.InvariantCulture)));
                     }
+                    if (wrongClean)
+                    {
+                        SaveCase(profile, seed, p, written);
+                    }
+
+                    if (wrongClean && Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_BYTES") is not null)
+                    {
+                        string got = Convert.ToHexString([.. candidate.Header, .. candidate.Payload]);
+                        string near = written.Select(w => Convert.ToHexString(w)).OrderBy(w => Distance(w, got)).First();
+                        Console.WriteLine($"WRONG {seed}/{p} [{candidate.SettingName}] at {candidate.StartSeconds:0.###} s fe={candidate.FramingErrors} amb={candidate.AmbiguousDecisions} min={candidate.MinimumMargin:0.###} doubts={candidate.Doubts}\n  got  {got}\n  near {near}");
+                    }
+
                     if (wrongClean && examples.Count < 3)
                     {
                         examples.Add(new WrongExample(profile.Id, seed, p, source, candidate.SettingName, candidate.Status, candidate.Confidence, candidate.Payload.Length, description));
@@ -306,8 +325,19 @@ public static class Trust
         catch (Exception e) when (e is not OutOfMemoryException)
         {
             // A decoder or merge that throws is a finding of its own: reported, and the run goes on.
-            return new TapeOutcome(subject, seed, units, written.Count, bySource, best, [], null, examples, $"{profile.Id} seed {seed}: {e.GetType().Name}: {e.Message}");
+            return new TapeOutcome(subject, seed, units, written.Count, bySource, best, [], null, examples, $"{profile.Id} seed {seed}: {e.GetType().Name}: {e.Message} {e.StackTrace?.Split('\n')[0]}");
         }
+    }
+
+    private static int Distance(string a, string b)
+    {
+        int d = Math.Abs(a.Length - b.Length);
+        for (int i = 0; i < Math.Min(a.Length, b.Length); i++)
+        {
+            d += a[i] == b[i] ? 0 : 1;
+        }
+
+        return d;
     }
 
     private delegate bool Judgement(ReadOnlySpan<byte> header, ReadOnlySpan<byte> payload);
@@ -327,17 +357,12 @@ public static class Trust
             return (_, payload) => RecoveryCorpus.Place(payload, files, bases, null);
         }
 
-        int header = profile.Layout.HeaderBytes;
-        int check = ChecksumCatalog.Get(profile.Layout.Checksum!.Algorithm).Width;
-        var truth = written.Select(b => Convert.ToHexString(b.AsSpan(0, b.Length - check))).ToHashSet(StringComparer.Ordinal);
+        // A block of any kind, without its check value (kinds may differ in header and check width).
+        var widths = profile.BlockKinds.Select(k => BlockLayoutCodec.For(k).CheckBytes).Distinct().ToList();
+        var truth = written.SelectMany(b => widths.Where(w => w <= b.Length).Select(w => Convert.ToHexString(b.AsSpan(0, b.Length - w)))).ToHashSet(StringComparer.Ordinal);
         units = written.Count;
         return (h, p) =>
         {
-            if (h.Length != header)
-            {
-                return false;
-            }
-
             var joined = new byte[h.Length + p.Length];
             h.CopyTo(joined);
             p.CopyTo(joined.AsSpan(h.Length));
@@ -346,10 +371,36 @@ public static class Trust
     }
 
     /// <summary>One pass: its capture file, its source and a description of its damage.</summary>
+    /// <summary>The damage of the last pass this thread made with our channel model alone (null after any other kind of pass).</summary>
+    [ThreadStatic]
+    private static ChannelDamage? t_channelDamage;
+
+    /// <summary>
+    /// With TAPEVAULT_TRUST_CASES set to a folder, a pass of our channel model alone that gave a wrong clean reading is
+    /// saved there as a case (profile, damage, written blocks), so that a test can make the same capture again.
+    /// </summary>
+    private static readonly string? s_casesFolder = Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_CASES");
+
+    private static readonly System.Text.Json.JsonSerializerOptions s_caseJson = new() { IncludeFields = true, WriteIndented = true };
+
+    private static void SaveCase(FormatProfile profile, int seed, int pass, List<byte[]> written)
+    {
+        if (s_casesFolder is null || t_channelDamage is null)
+        {
+            return;
+        }
+
+        Directory.CreateDirectory(s_casesFolder);
+        string json = System.Text.Json.JsonSerializer.Serialize(
+            new { Profile = profile.Id, Seed = seed, Pass = pass, Damage = t_channelDamage, Blocks = written.Select(Convert.ToHexString).ToArray() },
+            s_caseJson);
+        File.WriteAllText(Path.Combine(s_casesFolder, $"{profile.Id}-{seed}-{pass}.json"), json);
+    }
+
     private static (string Path, string Source, string Description) Pass(string stem, FormatProfile profile, List<byte[]> written, Random rng)
     {
         double draw = rng.NextDouble();
-        bool minimodem = profile.Family == FormatFamily.Fsk && draw < 0.3;
+        bool minimodem = profile.Family == FormatFamily.Fsk && OutsideDamage.MinimodemWrites(profile) && draw < 0.3;
         bool sox = minimodem || draw >= 0.65;
         string path = stem + ".wav";
         string description;
@@ -381,6 +432,7 @@ public static class Trust
         description = RandomDamage.Describe(damage);
         if (!sox)
         {
+            t_channelDamage = damage;
             CaptureSynthesizer.WriteBlocks(path, profile, written, damage);
             return (path, "channel", description);
         }

@@ -40,7 +40,7 @@ public sealed partial class BlockAssembler
     {
         ArgumentNullException.ThrowIfNull(profile);
         _layout = profile.Layout;
-        _scorer = new BlockScorer(_layout);
+        _scorer = new BlockScorer(_layout, profile.Family);
         _codec = BlockLayoutCodec.For(_layout);
         _kinds = new KindSequence(profile);
         _settingIndex = settingIndex;
@@ -230,6 +230,7 @@ public sealed partial class BlockAssembler
             Status = score.Status,
             Doubts = score.Doubts,
             Confidence = score.Confidence,
+            ModelConfidence = score.ModelConfidence,
             ByteMargins = score.PayloadMargins,
             ByteErrorOdds = score.PayloadErrorOdds,
             HeaderErrorOdds = score.HeaderErrorOdds,

@@ -52,8 +52,11 @@ public sealed record BlockCandidate
     /// <summary>Why the block is not clean, or what lowers the trust in it (none in readings stored before these were kept).</summary>
     public BlockDoubts Doubts { get; init; }
 
-    /// <summary>Estimated probability that the payload is right, 0..1.</summary>
+    /// <summary>Estimated probability that the payload is right, 0..1: the model's estimate through the family's calibration map (<see cref="ConfidenceMap"/>).</summary>
     public required double Confidence { get; init; }
+
+    /// <summary>The scorer's own estimate before calibration (what the calibration map is fitted on; 0 in readings stored before it was kept).</summary>
+    public double ModelConfidence { get; init; }
 
     /// <summary>Per payload byte: the smallest margin of the decisions that made it (0 on the boundary, 1 at nominal or beyond).</summary>
     public required ImmutableArray<float> ByteMargins { get; init; }

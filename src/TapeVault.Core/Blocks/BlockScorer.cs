@@ -17,8 +17,11 @@ public sealed record BlockScore
 
     public required BlockDoubts Doubts { get; init; }
 
-    /// <summary>Estimated probability that the payload is right, 0..1.</summary>
+    /// <summary>Estimated probability that the payload is right, 0..1: <see cref="ModelConfidence"/> through the family's calibration map.</summary>
     public required double Confidence { get; init; }
+
+    /// <summary>The model's estimate before calibration: Bayes over the decisions and the check (see <see cref="BlockScorer"/>).</summary>
+    public required double ModelConfidence { get; init; }
 
     public required uint? StoredChecksum { get; init; }
 
@@ -72,9 +75,6 @@ public sealed class BlockScorer
     /// <summary>The least error odds of those characters.</summary>
     public const float DoubtfulFrameError = 0.3f;
 
-    /// <summary>A failed block never claims more than even odds on its own: the only check of its bytes says something in them is wrong.</summary>
-    public const double MostFailedConfidence = 0.5;
-
     /// <summary>Beyond these odds of a false match among all the ways to guess the guessed bits, a holding check proves nothing.</summary>
     public const double MostGuessedMatchOdds = 0.01;
 
@@ -102,11 +102,16 @@ public sealed class BlockScorer
     private readonly BlockLayout _layout;
     private readonly BlockLayoutCodec _codec;
     private readonly IBlockChecksum? _checksum;
+    private readonly FormatFamily _family;
+    private readonly ConfidenceMap _map;
 
-    public BlockScorer(BlockLayout layout)
+    /// <summary>A scorer for blocks of <paramref name="layout"/> in a format of <paramref name="family"/>, calibrated by <paramref name="map"/> (the embedded <see cref="ConfidenceMap.Default"/> unless given).</summary>
+    public BlockScorer(BlockLayout layout, FormatFamily family, ConfidenceMap? map = null)
     {
         ArgumentNullException.ThrowIfNull(layout);
         _layout = layout;
+        _family = family;
+        _map = map ?? ConfidenceMap.Default;
         _codec = BlockLayoutCodec.For(layout);
         _checksum = _codec.Checksum;
     }
@@ -289,16 +294,20 @@ public sealed class BlockScorer
             }
         }
 
-        // A failed block claims no more than even odds, whatever failed it: a status that says "failed" beside a
-        // confidence that says "probably right" would contradict itself on every surface. A reading whose check holds
-        // but proves nothing on its own (a weak check without support, an all-alike block, a framing error) is proven by
-        // a second capture that reads the same bytes, in the merge, not by its own confidence.
-        if (status == BlockStatus.Failed)
-        {
-            confidence = Math.Min(confidence, MostFailedConfidence);
-        }
+        // The model's estimate is a guide, not a rate: over thousands of decisions with heavy-tailed residuals it can
+        // call an exact block hopeless, and a check that holds without proving anything says little either way. The
+        // family's calibration map, fitted on readings of tuning seeds and grouped by what the check said (clean,
+        // holding but unproven, broken, none), turns it into the rate at which such readings were right. A failed
+        // reading whose check holds may so show high odds: its doubts say why it is not clean, and a second capture
+        // that reads the same bytes proves it in the merge.
+        double model = Math.Clamp(confidence, 0, 1);
+        confidence = Math.Clamp(_map.Map(_family, ConfidenceMap.GroupOf(status, doubts), model), 0, 1);
 
-        confidence = Math.Clamp(confidence, 0, 1);
+        // A failed block whose (damaged) header claims no payload has nothing that could be right, whatever the map says.
+        if (_checksum is not null && status != BlockStatus.Clean && payloadEnd == headerBytes)
+        {
+            confidence = 0;
+        }
 
         // Per-byte odds as the decisions give them, before any check (the merge votes with them where no check
         // held); for bytes nothing checks, no better than the floor of what margins cannot see.
@@ -334,6 +343,7 @@ public sealed class BlockScorer
             Status = status,
             Doubts = doubts,
             Confidence = confidence,
+            ModelConfidence = model,
             StoredChecksum = stored,
             HeaderErrorOdds = ImmutableArray.Create(headerOdds),
             PayloadErrorOdds = ImmutableArray.Create(payloadOdds),

@@ -190,7 +190,14 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 int second = _classifier.ClassOf(2 * seconds, _speed.Speed);
                 if (first != second || first < 0)
                 {
-                    // Out of phase with the cycles (or a glitch): start the pairing again from this half.
+                    // Out of phase with the cycles (or a glitch): start the pairing again from this half. Inside a
+                    // block the half left behind was signal: whatever the next pairs make of the cycles around it, a
+                    // bit may have changed there, so the block carries a guess that its margins would not show.
+                    if (_mode == Mode.Data)
+                    {
+                        _assembler.AddGuessedDecision();
+                    }
+
                     _pendingHalf = seconds;
                     continue;
                 }

@@ -69,7 +69,7 @@ public sealed class ConfidenceScoringTests
 
         Assert.Equal(BlockStatus.Failed, candidate.Status);
         Assert.True(candidate.Doubts.HasFlag(BlockDoubts.ChecksumMismatch));
-        Assert.True(candidate.Confidence <= BlockScorer.MostFailedConfidence, $"failed block at confidence {candidate.Confidence}");
+        Assert.True(candidate.ModelConfidence <= 0.5, $"failed block at model confidence {candidate.ModelConfidence}");
     }
 
     [Fact]
@@ -85,7 +85,7 @@ public sealed class ConfidenceScoringTests
         // Every byte equally likely the wrong one: header and payload (which must both be right for the block to
         // be) are right only when the error is one of the 2 check bytes of 69, about 3 times in 100.
         Assert.Equal(BlockStatus.Failed, candidate.Status);
-        Assert.InRange(candidate.Confidence, 0.015, 0.06);
+        Assert.InRange(candidate.ModelConfidence, 0.015, 0.06);
     }
 
     [Fact]
@@ -118,6 +118,7 @@ public sealed class ConfidenceScoringTests
         Assert.True(without.Doubts.HasFlag(BlockDoubts.NoStartEvidence));
         Assert.True(without.ByteErrorOdds[0] >= BlockScorer.DoubtfulFrameError && without.ByteErrorOdds[1] >= BlockScorer.DoubtfulFrameError);
         Assert.True(without.ByteErrorOdds[5] < 0.01f, $"a later character's odds {without.ByteErrorOdds[5]}");
-        Assert.True(without.Confidence < 0.6 * withLeadIn.Confidence, $"{without.Confidence} vs {withLeadIn.Confidence}");
+        Assert.True(without.ModelConfidence < 0.6 * withLeadIn.ModelConfidence, $"{without.ModelConfidence} vs {withLeadIn.ModelConfidence}");
+        Assert.True(without.Confidence <= withLeadIn.Confidence, $"calibrated {without.Confidence} vs {withLeadIn.Confidence}");
     }
 }

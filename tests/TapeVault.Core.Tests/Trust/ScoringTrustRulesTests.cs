@@ -84,8 +84,8 @@ public sealed class ScoringTrustRulesTests
 
         // Not proven, and no surer than what is known to be doubtful in it (no check adds to it): begun on a lead-in
         // and sync, such blocks are mostly real runs of zeros (149 of 151 on the trust benchmark's biphase tapes).
-        // Failed, it claims no more than even odds (status and confidence never contradict each other).
-        Assert.Equal(BlockScorer.MostFailedConfidence, candidate.Confidence, 3);
+        // The model counts only those known doubts (none here beyond the unseen-byte floor).
+        Assert.Equal(Math.Pow(1 - BlockScorer.UnseenByteError, block.Length), candidate.ModelConfidence, 6);
     }
 
     [Fact]
@@ -124,7 +124,7 @@ public sealed class ScoringTrustRulesTests
         Assert.Equal(BlockStatus.Failed, unproven.Status);
         Assert.True(unproven.Doubts.HasFlag(BlockDoubts.NoStartEvidence), $"doubts {unproven.Doubts}");
         Assert.False(unproven.Doubts.HasFlag(BlockDoubts.ChecksumMismatch));
-        Assert.InRange(unproven.Confidence, 0, BlockScorer.MostFailedConfidence);
+        Assert.True(unproven.Confidence < proven.Confidence, $"unproven {unproven.Confidence} against proven {proven.Confidence}");
     }
 
     [Fact]

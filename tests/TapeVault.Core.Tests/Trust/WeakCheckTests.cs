@@ -54,8 +54,9 @@ public sealed class WeakCheckTests
         Assert.NotEqual(BlockStatus.Clean, noisy.Status);
         Assert.True(noisy.Doubts.HasFlag(BlockDoubts.Uncorroborated), $"doubts {noisy.Doubts}");
 
-        // Failed, so it claims no more than even odds: status and confidence never contradict each other.
-        Assert.InRange(noisy.Confidence, 0, BlockScorer.MostFailedConfidence);
+        // Its confidence is the rate at which such readings (failed, their check holding but unproven) were right
+        // on the tuning seeds, not the model's figure: one formula, through the family's calibration map.
+        Assert.Equal(ConfidenceMap.Default.Map(FormatFamily.Biphase, ConfidenceGroup.HoldsUnproven, noisy.ModelConfidence), noisy.Confidence, 9);
 
         // The same decisions read well: the weak check and the margins together make it clean.
         var sure = Read(With(checksum), 0.9f, 0.02f);
@@ -80,9 +81,10 @@ public sealed class WeakCheckTests
         Assert.NotEqual(BlockStatus.Clean, slipped.Status);
         Assert.True(slipped.Doubts.HasFlag(BlockDoubts.Uncorroborated), $"doubts {slipped.Doubts}");
 
-        // Prior odds 0.06 that a block with one framing error is right, times 256 for a holding 8-bit check, would
-        // be 0.94; failed, it claims no more than even odds.
-        Assert.Equal(BlockScorer.MostFailedConfidence, slipped.Confidence, 3);
+        // Prior odds 0.06 that a block with one framing error is right, times 256 for a holding 8-bit check: 0.94 as
+        // the model says; what it shows is the calibrated rate of such readings.
+        Assert.Equal(0.06 * 256 / (1 + (0.06 * 256)), slipped.ModelConfidence, 2);
+        Assert.Equal(ConfidenceMap.Default.Map(FormatFamily.Biphase, ConfidenceGroup.HoldsUnproven, slipped.ModelConfidence), slipped.Confidence, 9);
     }
 
     [Fact]
@@ -98,7 +100,7 @@ public sealed class WeakCheckTests
     }
 
     [Fact]
-    public void A_real_block_of_zeros_after_a_lead_in_and_sync_is_failed_at_even_odds_not_below()
+    public void A_real_block_of_zeros_after_a_lead_in_and_sync_is_failed_and_no_surer_than_its_known_doubts()
     {
         // Zeros are CRC-16/XMODEM's own codeword (init 0, CRC catalogue), so the check proves nothing; begun on a lead-in
         // and sync, such a block is mostly a real run of zeros, and the decision model alone (near 0 over noisy
@@ -128,7 +130,9 @@ public sealed class WeakCheckTests
 
         Assert.Equal(BlockStatus.Failed, candidate.Status);
         Assert.True(candidate.Doubts.HasFlag(BlockDoubts.AllAlikeCheck), $"doubts {candidate.Doubts}");
-        Assert.Equal(BlockScorer.MostFailedConfidence, candidate.Confidence, 3);
+
+        // The model counts only known doubts here (no guess, no framing doubt: 35 bytes at the unseen-byte floor).
+        Assert.Equal(Math.Pow(1 - BlockScorer.UnseenByteError, zeros.Length), candidate.ModelConfidence, 6);
     }
 
     private static BlockCandidate Uncorroborated(FormatProfile profile, byte[] written) =>

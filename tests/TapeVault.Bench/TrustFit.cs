@@ -1,0 +1,152 @@
+using System.Globalization;
+using System.Text;
+using System.Text.Json;
+using System.Text.Json.Nodes;
+
+namespace TapeVault.Bench;
+
+/// <summary>
+/// Fits the block scorer's confidence map (src/TapeVault.Core/Blocks/Calibration/confidence-map.json) from the
+/// readings a trust run dumped (TAPEVAULT_TRUST_DUMP), which must be of tuning seeds only. Per family and calibration
+/// group: readings sorted by model confidence, pooled into bins of equal count (at most <see cref="Bins"/>, at least
+/// <see cref="LeastPerBin"/> readings each), then pool-adjacent-violators makes the rate of right readings a function
+/// that never falls as the model confidence rises. Each step's rate is (right + 1) / (readings + 2) (Laplace's rule of
+/// succession), so that no step claims certainty its readings cannot show.
+/// </summary>
+public static class TrustFit
+{
+    private const int Bins = 40;
+    private const int LeastPerBin = 50;
+
+    private static readonly JsonSerializerOptions s_json = new() { WriteIndented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
+
+    public static int Run(string[] args)
+    {
+        string? dump = null, output = null, note = null;
+        for (int i = 0; i + 1 < args.Length; i += 2)
+        {
+            switch (args[i])
+            {
+                case "--dump": dump = args[i + 1]; break;
+                case "--out": output = args[i + 1]; break;
+                case "--note": note = args[i + 1]; break;
+                default: throw new ArgumentException($"Unknown option {args[i]}; trust-fit takes --dump FILE --out FILE --note TEXT.");
+            }
+        }
+
+        if (dump is null || output is null)
+        {
+            throw new ArgumentException("trust-fit needs --dump FILE (a trust run's TAPEVAULT_TRUST_DUMP) and --out FILE.");
+        }
+
+        // Reading rows: read, profile, seed, ..., right at 9, ..., family, group, model confidence as the last three.
+        var groups = new Dictionary<string, List<(double Model, bool Right)>>(StringComparer.Ordinal);
+        int lowest = int.MaxValue, highest = int.MinValue;
+        foreach (string line in File.ReadLines(dump))
+        {
+            string[] f = line.Split('\t');
+            if (f[0] != "read" || f.Length < 24)
+            {
+                continue;
+            }
+
+            int seed = int.Parse(f[2], CultureInfo.InvariantCulture);
+            lowest = Math.Min(lowest, seed);
+            highest = Math.Max(highest, seed);
+            string key = $"{f[^3]}/{f[^2]}";
+            if (!groups.TryGetValue(key, out var list))
+            {
+                groups[key] = list = [];
+            }
+
+            list.Add((double.Parse(f[^1], CultureInfo.InvariantCulture), f[9] == "1"));
+        }
+
+        var curves = new JsonObject();
+        var counts = new StringBuilder();
+        foreach (var (key, readings) in groups.OrderBy(g => g.Key, StringComparer.Ordinal))
+        {
+            var (x, y) = Fit(readings);
+            curves[key] = new JsonObject { ["x"] = new JsonArray([.. x.Select(v => (JsonNode)Math.Round(v, 6))]), ["y"] = new JsonArray([.. y.Select(v => (JsonNode)Math.Round(v, 6))]) };
+            counts.Append(CultureInfo.InvariantCulture, $"{key} {readings.Count} readings ({readings.Count(r => r.Right)} right); ");
+            Console.WriteLine($"{key,-28} {readings.Count,7} readings, {readings.Count(r => r.Right),7} right, {x.Length,3} steps: {string.Join(' ', x.Zip(y).Select(p => $"{p.First:0.###}->{p.Second:0.###}"))}");
+        }
+
+        var root = new JsonObject
+        {
+            ["provenance"] = $"Fitted by `dotnet run -c Release --project tests/TapeVault.Bench -- trust-fit --dump FILE --out FILE` on the trust benchmark's readings of tuning seeds {lowest}–{highest} (held-out seeds start at 20000). {note} Counts: {counts.ToString().TrimEnd(' ', ';')}.",
+            ["curves"] = curves,
+        };
+        File.WriteAllText(output, root.ToJsonString(s_json) + "\n");
+        Console.WriteLine($"Wrote {output}.");
+        return 0;
+    }
+
+    /// <summary>The step function: bins of equal count, pooled where a later bin is right less often, Laplace-smoothed, never falling.</summary>
+    public static (double[] X, double[] Y) Fit(List<(double Model, bool Right)> readings)
+    {
+        var sorted = readings.OrderBy(r => r.Model).ToList();
+        int bins = Math.Clamp(sorted.Count / LeastPerBin, 1, Bins);
+
+        // Bins of equal count; readings of one model value stay in one bin.
+        var pools = new List<(double SumModel, int Right, int Count)>();
+        int start = 0;
+        for (int b = 0; b < bins && start < sorted.Count; b++)
+        {
+            int end = b == bins - 1 ? sorted.Count : (int)((long)sorted.Count * (b + 1) / bins);
+            while (end < sorted.Count && end > start && sorted[end].Model == sorted[end - 1].Model)
+            {
+                end++;
+            }
+
+            end = Math.Max(end, start + 1);
+            double sum = 0;
+            int right = 0;
+            for (int i = start; i < end; i++)
+            {
+                sum += sorted[i].Model;
+                right += sorted[i].Right ? 1 : 0;
+            }
+
+            pools.Add((sum, right, end - start));
+            start = end;
+        }
+
+        // Pool adjacent violators.
+        var stack = new List<(double SumModel, int Right, int Count)>();
+        foreach (var pool in pools)
+        {
+            var current = pool;
+            while (stack.Count > 0 && (double)stack[^1].Right / stack[^1].Count >= (double)current.Right / current.Count)
+            {
+                var top = stack[^1];
+                stack.RemoveAt(stack.Count - 1);
+                current = (top.SumModel + current.SumModel, top.Right + current.Right, top.Count + current.Count);
+            }
+
+            stack.Add(current);
+        }
+
+        var x = new List<double>();
+        var y = new List<double>();
+        double floor = 0;
+        foreach (var (sumModel, right, count) in stack)
+        {
+            // Stored to six decimals: pools that round to one value are one step.
+            double at = Math.Round(sumModel / count, 6);
+            double rate = Math.Max(floor, (right + 1.0) / (count + 2.0));
+            floor = rate;
+            if (x.Count > 0 && at <= x[^1])
+            {
+                // Two pools at one model value: keep the later (higher) rate.
+                y[^1] = rate;
+                continue;
+            }
+
+            x.Add(at);
+            y.Add(rate);
+        }
+
+        return ([.. x], [.. y]);
+    }
+}

@@ -1,0 +1,81 @@
+using System.Text.Json;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Checksums;
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Synthesis;
+using TapeVault.Core.Tests.Synthesis;
+using Xunit;
+
+namespace TapeVault.Core.Tests.Trust;
+
+/// <summary>
+/// Passes of the trust benchmark that once gave a wrong reading marked clean, saved with the damage that made them
+/// (`TAPEVAULT_TRUST_CASES=folder dotnet run -c Release --project tests/TapeVault.Bench -- trust ...` writes one file
+/// per such pass of our channel model: the profile, every field of the damage, the written blocks). Each is made again
+/// exactly (the channel model is seeded) and decoded with the default bank; ground truth is what was written.
+/// </summary>
+public sealed class SavedDamageCaseTests(SynthesisFolder folder) : IClassFixture<SynthesisFolder>
+{
+    private static readonly JsonSerializerOptions CaseJson = new() { IncludeFields = true };
+
+    /// <summary>The trust benchmark's pulse-width block format (tests/TapeVault.Bench/TrustProfiles.cs), as the cases were written in it.</summary>
+    private static readonly FormatProfile BenchPulseBlocks = ProfileLoader.Parse(
+        """
+        {
+          "id": "bench-pulse-blocks", "name": "Bench pulse-width blocks", "family": "pulse-width",
+          "pulseWidth": {
+            "classes": [ { "name": "short", "microseconds": 300 }, { "name": "long", "microseconds": 600 }, { "name": "sync", "microseconds": 1200 } ],
+            "zero": [ "short" ], "one": [ "long" ],
+            "leadIn": { "class": "short", "minimumCount": 96 }, "sync": [ "sync", "long" ]
+          },
+          "framing": { "dataBits": 8, "bitOrder": "lsb-first", "startBits": "0", "stopBits": "1", "parity": "none" },
+          "layout": {
+            "header": [ { "name": "file", "bytes": 1, "role": "file-id" }, { "name": "block", "bytes": 1, "role": "block-number" }, { "name": "length", "bytes": 1, "role": "payload-length" } ],
+            "maximumPayloadBytes": 64, "checksum": { "algorithm": "sum8", "covers": "header-and-payload" }, "copies": 1
+          },
+          "recording": { "leadInSeconds": 1.0, "blockGapSeconds": 0.1, "trailerSeconds": 0.2 }
+        }
+        """,
+        "test");
+
+    private sealed record SavedCase(string Profile, int Seed, int Pass, ChannelDamage Damage, string[] Blocks);
+
+    /// <summary>
+    /// Seed 20011, the third pass: a capture off the head amplifier at SNR 16 dB with wow, flutter and shallow dropouts. The
+    /// setting that counts both edges pairs half cycles into cycles; where two halves fell in different classes it
+    /// dropped one and paired on from the next, silently, and the cycles paired out of step read several 1 bits as 0
+    /// with good margins, in bytes whose 8-bit sum still held: a wrong block, clean at confidence 1.0.
+    /// </summary>
+    [Fact]
+    public void Half_cycles_paired_out_of_step_never_make_a_wrong_block_clean()
+    {
+        var saved = Load("pulse-halves-out-of-step.json");
+        var profile = BenchPulseBlocks;
+        Assert.Equal(profile.Id, saved.Profile);
+        var written = saved.Blocks.Select(Convert.FromHexString).ToList();
+        string path = folder.File("saved-pulse-halves.wav");
+        CaptureSynthesizer.WriteBlocks(path, profile, written, saved.Damage);
+
+        var result = CaptureDecoder.Decode(path, profile);
+
+        // Ground truth: the written blocks' header and payload (the check value is what the decoder tests).
+        int check = ChecksumCatalog.Get(profile.Layout.Checksum!.Algorithm).Width;
+        var truth = written.Select(b => Convert.ToHexString(b.AsSpan(0, b.Length - check))).ToHashSet(StringComparer.Ordinal);
+        var clean = result.Candidates.Where(c => c.Status == BlockStatus.Clean).ToList();
+        var wrong = clean.Where(c => !truth.Contains(Convert.ToHexString([.. c.Header, .. c.Payload]))).ToList();
+        Assert.True(
+            wrong.Count == 0,
+            $"{wrong.Count} wrong readings clean, e.g. " + string.Join("; ", wrong.Take(3).Select(c => $"[{c.SettingName}] {c.Identity} at {c.StartSeconds:0.000} s")));
+
+        // The capture is not read as nothing: the test would prove little if no reading were clean at all.
+        Assert.NotEmpty(clean);
+    }
+
+    private static SavedCase Load(string name)
+    {
+        string path = Path.Combine(AppContext.BaseDirectory, "Trust", "Cases", name);
+        return JsonSerializer.Deserialize<SavedCase>(File.ReadAllText(path), CaseJson)
+            ?? throw new InvalidOperationException($"{name} holds no case.");
+    }
+}
