@@ -37,4 +37,31 @@ public sealed class TemporarySweepTests
             Directory.Delete(root, recursive: true);
         }
     }
+
+    [Fact]
+    public void Sweep_OfAStoreOtherNodesWriteTo_LeavesTheirWorkInProgress_AndRemovesOnlyOldLeftovers()
+    {
+        var root = Directory.CreateTempSubdirectory("tapevault-sweep-test-").FullName;
+        try
+        {
+            var store = new ContentStore(root);
+            string fresh = Path.Combine(store.TempFolder, "another-node.part");
+            string old = Path.Combine(store.TempFolder, "left-by-a-crash.part");
+            File.WriteAllText(fresh, "a worker's merge being staged");
+            File.WriteAllText(old, "an upload a crash cut off");
+            File.SetLastWriteTimeUtc(old, DateTime.UtcNow.AddDays(-2));
+            var oldFolder = Directory.CreateDirectory(Path.Combine(store.TempFolder, "catalogue-old")).FullName;
+            Directory.SetLastWriteTimeUtc(oldFolder, DateTime.UtcNow.AddDays(-2));
+
+            Assert.Equal(2, store.SweepTemporaryFiles(TimeSpan.FromDays(1)));
+
+            Assert.True(File.Exists(fresh));
+            Assert.False(File.Exists(old));
+            Assert.False(Directory.Exists(oldFolder));
+        }
+        finally
+        {
+            Directory.Delete(root, recursive: true);
+        }
+    }
 }

@@ -42,6 +42,24 @@ public sealed partial class JobDispatcher(ISchedulerFactory schedulers, JobQueue
         }
     }
 
+    /// <summary>
+    /// Hands one job just queued to the engine (what a page or API request does after queuing). Never throws for a
+    /// schedule fault: the row is saved, and the periodic sweep hands it over once the schedule answers.
+    /// </summary>
+    public async Task DispatchAsync(JobRecord job, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(job);
+        try
+        {
+            var scheduler = await schedulers.GetScheduler(cancellation).ConfigureAwait(false);
+            await ScheduleAsync(scheduler, job.Id, job.Kind, resuming: false, cancellation).ConfigureAwait(false);
+        }
+        catch (Exception e) when (e is SchedulerException or System.Data.Common.DbException or IOException or InvalidOperationException)
+        {
+            LogDispatchFailed(logger, e);
+        }
+    }
+
     private static async Task<bool> ScheduleAsync(IScheduler scheduler, int jobId, string kind, bool resuming, CancellationToken cancellation)
     {
         var job = JobBuilder.Create<ArchiveJobExecution>()

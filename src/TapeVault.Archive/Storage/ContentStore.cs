@@ -172,19 +172,27 @@ public sealed class ContentStore
     /// being made (demo-*), plot caches being written. Nothing in it is ever the only copy of anything. Returns how
     /// many entries were removed.
     /// </summary>
-    public int SweepTemporaryFiles()
+    public int SweepTemporaryFiles(TimeSpan? olderThan = null)
     {
+        // With a store other nodes write too, only what nobody has touched for a while is left over from a stop.
+        var cutoff = olderThan is { } age ? DateTime.UtcNow - age : DateTime.MaxValue;
         int removed = 0;
         foreach (var file in Directory.EnumerateFiles(TempFolder))
         {
-            File.Delete(file);
-            removed++;
+            if (File.GetLastWriteTimeUtc(file) < cutoff)
+            {
+                File.Delete(file);
+                removed++;
+            }
         }
 
         foreach (var folder in Directory.EnumerateDirectories(TempFolder))
         {
-            Directory.Delete(folder, recursive: true);
-            removed++;
+            if (Directory.GetLastWriteTimeUtc(folder) < cutoff)
+            {
+                Directory.Delete(folder, recursive: true);
+                removed++;
+            }
         }
 
         return removed;

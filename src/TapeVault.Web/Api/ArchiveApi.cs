@@ -106,7 +106,7 @@ public static class ArchiveApi
         write.MapPost("/items/{id:int}/merge", async (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueMergeAsync(id, Agent(http), c).ConfigureAwait(false);
-            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
+            await jobs.DispatchAsync(job, CancellationToken.None).ConfigureAwait(false);
             return TypedResults.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
         });
         write.MapPost("/items/{id:int}/bag", (int id, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
@@ -129,7 +129,7 @@ public static class ArchiveApi
         captures.MapPost("/captures/{id:int}/decode", async (int id, DecodeRequest body, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c) =>
         {
             var job = await actions.QueueDecodeAsync(id, body.Profile, body.Settings, body.Channel, Agent(http), c).ConfigureAwait(false);
-            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
+            await jobs.DispatchAsync(job, CancellationToken.None).ConfigureAwait(false);
             return TypedResults.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
         }).RequireAuthorization(Roles.CuratorPolicy).ProducesProblem(StatusCodes.Status400BadRequest);
     }
@@ -289,7 +289,7 @@ public static class ArchiveApi
     private static async Task<Accepted<JobView>> QueueAsync(string kind, int? collectionId, int? itemId, CuratorActions actions, JobDispatcher jobs, HttpContext http, CancellationToken c)
     {
         var job = await actions.QueueScopedAsync(kind, collectionId, itemId, Agent(http), c).ConfigureAwait(false);
-        await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
+        await jobs.DispatchAsync(job, CancellationToken.None).ConfigureAwait(false);
         return TypedResults.Accepted($"/api/jobs/{job.Id}", ArchiveQueries.ToView(job));
     }
 
@@ -379,7 +379,7 @@ public static class ArchiveApi
         if (!result.Duplicate && !string.IsNullOrWhiteSpace(query["decodeProfile"]))
         {
             var queued = await actions.QueueDecodeAsync(result.Capture.Id, query["decodeProfile"]!, null, null, agent, cancellation).ConfigureAwait(false);
-            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
+            await jobs.DispatchAsync(queued, CancellationToken.None).ConfigureAwait(false);
             job = ArchiveQueries.ToView(queued);
         }
 

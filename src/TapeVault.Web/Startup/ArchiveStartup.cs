@@ -4,6 +4,7 @@ using TapeVault.Archive;
 using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Events;
 using TapeVault.Archive.Fixity;
+using TapeVault.Archive.Jobs;
 using TapeVault.Archive.Seeding;
 using TapeVault.Archive.Storage;
 
@@ -13,14 +14,16 @@ namespace TapeVault.Web.Startup;
 /// Runs before the server listens: applies migrations, clears temporary files of interrupted uploads, makes the roles,
 /// the first curator (its one-time password printed once) and, in an empty archive, the demo collection.
 /// </summary>
-public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions web, ContentStore store, OperatorConsole console, ILogger<ArchiveStartup> logger) : IHostedService
+public sealed partial class ArchiveStartup(IServiceProvider services, WebOptions web, ContentStore store, JobsOptions jobs, OperatorConsole console, ILogger<ArchiveStartup> logger) : IHostedService
 {
     public async Task StartAsync(CancellationToken cancellationToken)
     {
         await using var scope = services.CreateAsyncScope();
         var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
         await ArchiveDatabase.MigrateAsync(db, cancellationToken).ConfigureAwait(false);
-        int swept = store.SweepTemporaryFiles();
+        // A store shared with workers on other machines (a clustered schedule) holds their work in progress too: only
+        // temporary files a day old are taken for leftovers there.
+        int swept = store.SweepTemporaryFiles(jobs.Store == ScheduleStoreKind.PostgreSql ? TimeSpan.FromDays(1) : null);
         if (swept > 0)
         {
             LogSwept(logger, swept);

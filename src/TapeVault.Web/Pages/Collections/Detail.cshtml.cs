@@ -63,7 +63,7 @@ public sealed class CollectionModel(ArchiveQueries queries, CuratorActions actio
         async () =>
         {
             var job = await actions.QueueScopedAsync(kind, id, null, Agent).ConfigureAwait(false);
-            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
+            await jobs.DispatchAsync(job, CancellationToken.None).ConfigureAwait(false);
             Message = $"{what}: job {job.Id}. Follow it on the Jobs page; {where}.";
             return Redirect($"/collections/{id}");
         },

@@ -64,7 +64,7 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
             }
 
             var job = await actions.QueueDecodeAsync(Decode.CaptureId, Decode.Profile, Decode.Settings, null, Agent).ConfigureAwait(false);
-            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
+            await jobs.DispatchAsync(job, CancellationToken.None).ConfigureAwait(false);
             Message = $"Decode of capture {Decode.CaptureId} queued as job {job.Id}.";
             return Redirect($"/items/{id}");
         },
@@ -82,7 +82,7 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
         async () =>
         {
             var job = await actions.QueueScopedAsync(JobKinds.Bag, null, id, Agent).ConfigureAwait(false);
-            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
+            await jobs.DispatchAsync(job, CancellationToken.None).ConfigureAwait(false);
             Message = $"Making a bag of this tape: job {job.Id}; the download appears below when it is done.";
             return Redirect($"/items/{id}");
         },
@@ -92,7 +92,7 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
         async () =>
         {
             var job = await actions.QueueMergeAsync(id, Agent).ConfigureAwait(false);
-            await jobs.DispatchWaitingAsync(CancellationToken.None).ConfigureAwait(false);
+            await jobs.DispatchAsync(job, CancellationToken.None).ConfigureAwait(false);
             Message = $"Merge queued as job {job.Id}; the new image version appears here when it is done.";
             return Redirect($"/items/{id}");
         },
