@@ -9,7 +9,7 @@ public sealed record DraftBlock(IReadOnlyList<byte[]> Readings)
 }
 
 /// <summary>A header field a draft found, by offset: what it is, and how it was told.</summary>
-public sealed record FoundField(int Offset, int Bytes, string Role, bool BigEndian, string Evidence);
+public sealed record FoundField(int Offset, int Bytes, string Role, bool BigEndian, string Evidence, int? ZeroMeans = null);
 
 /// <summary>
 /// What the block layout search found: the check value (its checksum, byte order and the offset its coverage starts
@@ -62,6 +62,13 @@ public static class LayoutSearch
             {
                 list.Add(checksum);
             }
+        }
+
+        // A 16-bit additive sum is no catalogue name but a common check of the period (common practice).
+        var sum16 = ChecksumCatalog.Create(new SumParameters(16, SumCarry.None, SumComplement.None));
+        if (seen.Add(ChecksumCatalog.ParametersOf(sum16)))
+        {
+            list.Add(sum16);
         }
 
         return list;
@@ -171,11 +178,6 @@ public static class LayoutSearch
         const int maximumHeader = 24;
         for (int header = Math.Max(1, coverageStart); header <= maximumHeader; header++)
         {
-            if (coverageStart > 0 && header != coverageStart)
-            {
-                continue;
-            }
-
             for (int offset = 0; offset < header; offset++)
             {
                 foreach (int width in new[] { 1, 2 })
@@ -187,18 +189,29 @@ public static class LayoutSearch
 
                     foreach (bool big in width == 1 ? new[] { false } : [false, true])
                     {
+                        // A one-byte length may write a full block of 256 as 0 (common practice).
                         int agree = 0;
+                        int zeroes = 0;
                         foreach (var block in blocks)
                         {
-                            if (block.Length >= header + checkBytes && Read(block.AsSpan(offset, width), big) == (uint)(block.Length - header - checkBytes))
+                            uint value = block.Length >= header + checkBytes ? Read(block.AsSpan(offset, width), big) : uint.MaxValue;
+                            int payload = block.Length - header - checkBytes;
+                            if (value == (uint)payload)
                             {
                                 agree++;
+                            }
+                            else if (width == 1 && value == 0 && payload == 256)
+                            {
+                                agree++;
+                                zeroes++;
                             }
                         }
 
                         if (agree == blocks.Count)
                         {
-                            return (new FoundField(offset, width, "payload-length", big, $"holds the payload's length in all {agree} blocks whose check holds, whose lengths differ"), header);
+                            return (new FoundField(offset, width, "payload-length", big,
+                                $"holds the payload's length in all {agree} blocks whose check holds, whose lengths differ" + (zeroes > 0 ? $" ({zeroes} of 256 bytes written as 0)" : string.Empty),
+                                zeroes > 0 ? 256 : null), header);
                         }
                     }
                 }

@@ -25,6 +25,9 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         ["short", "medium", "long", "extra-long"],
     ];
 
+    /// <summary>A run of the lead-in class this long (in cycles) but shorter than a lead-in may be a gap between blocks.</summary>
+    public const int LeastGapCycles = 16;
+
     /// <summary>
     /// A class may be rare: a sync pulse comes once a block, one cycle in a thousand or so. Groups this small count
     /// here, where the survey (which judges structure) leaves them out.
@@ -94,12 +97,22 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         int threshold = Math.Max(LeastLeadInCycles, (int)(0.25 * median));
         leadRuns = [.. leadRuns.Where(r => r.Length >= threshold)];
 
-        // Each block: from the end of a lead-in to the next lead-in or a loss of signal (four unclassified cycles).
-        var blocks = new List<int[]>();
-        for (int k = 0; k < leadRuns.Count; k++)
+        // Blocks that follow one another after a short run of the lead-in class (a block gap) instead of a lead-in:
+        // runs too short for a lead-in but too long for data, seen again and again, cut blocks too.
+        var cuts = Runs(sym).Where(r => r.Class == leadIn && r.Length >= LeastGapCycles).ToList();
+        var gaps = cuts.Where(r => r.Length < threshold).ToList();
+        bool gapped = gaps.Count >= Math.Max(2, leadRuns.Count);
+        if (!gapped)
         {
-            int from = leadRuns[k].Start + leadRuns[k].Length;
-            int limit = k + 1 < leadRuns.Count ? leadRuns[k + 1].Start : sym.Length;
+            cuts = leadRuns;
+        }
+
+        // Each block: from the end of a lead-in (or gap) to the next one or a loss of signal (four unclassified cycles).
+        var blocks = new List<int[]>();
+        for (int k = 0; k < cuts.Count; k++)
+        {
+            int from = cuts[k].Start + cuts[k].Length;
+            int limit = k + 1 < cuts.Count ? cuts[k + 1].Start : sym.Length;
             int to = from;
             int invalid = 0;
             while (to < limit && invalid < 4)
@@ -157,6 +170,15 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             ["leadIn"] = new JsonObject { ["class"] = names[leadIn], ["minimumCount"] = minimum },
             ["sync"] = new JsonArray([.. sync.Select(s => (JsonNode)JsonValue.Create(s)!)]),
         };
+        if (gapped)
+        {
+            int shortestGap = gaps.Min(r => r.Length);
+            int count = Math.Clamp(shortestGap, 16, 4 * minimum);
+            proposal.Sections["pulseWidth"]!["blockGap"] = new JsonObject { ["count"] = count };
+            proposal.Measured("pulseWidth.blockGap.count", F(count), 0.85,
+                $"{gaps.Count} runs of {shortestGap}–{gaps.Max(r => r.Length)} {names[leadIn]} cycles, too short for a lead-in, come before blocks: blocks that follow one another without a lead-in");
+        }
+
         proposal.Measured("pulseWidth.classes", string.Join(", ", classesFound.Select((c, i) => $"{names[i]} {Us(c.Seconds)} µs")), 0.9,
             $"groups of cycle lengths through setting {chosen.Setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * chosen.Share, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)");
         proposal.Measured("pulseWidth.leadIn.class", names[leadIn], 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(r => r.Length)} {names[leadIn]} cycles");

@@ -33,13 +33,18 @@ public sealed record DraftTrialResult(
 /// </summary>
 public static class DraftTrials
 {
-    public static DraftTrialResult Run(string family, int seed, string folder, Func<string, Random, (string Path, string Description)>? outsideDamage = null)
+    public static DraftTrialResult Run(string family, int seed, string folder, Func<string, Random, (string Path, string Description)>? outsideDamage = null, bool undamaged = false)
     {
         ArgumentNullException.ThrowIfNull(folder);
         var rng = new Random(seed);
         string truthJson = RandomFormats.Draw(family, rng);
         var truth = ProfileLoader.Parse(truthJson, "truth");
         var damage = Damage(rng);
+        if (undamaged)
+        {
+            damage = new ChannelDamage();
+        }
+
         // A stream is one block per file: several short files give it blocks to count.
         var files = truth.Layout.IsStream
             ? RandomFormats.Files(rng, 6, 120)
