@@ -12,7 +12,8 @@ namespace TapeVault.Bench;
 /// fields are confirmed from the truth, beside the share the truth itself reads back.
 /// draft [--count N] [--first-seed S] [--family F]: N captures per family (default 20), seeds S, S+1, ... (default
 /// 9001), of every family of <see cref="RandomFormats.Families"/> or of F alone; --damage none writes undamaged
-/// captures (to tell the drafter's faults from the read path's).
+/// captures (to tell the drafter's faults from the read path's); --show failures prints the truth and the draft of
+/// each capture the draft reads less of.
 /// </summary>
 public static class DraftFigure
 {
@@ -22,6 +23,7 @@ public static class DraftFigure
         int first = 9001;
         string? only = null;
         bool undamaged = false;
+        bool show = false;
         for (int i = 0; i + 1 < args.Length; i += 2)
         {
             switch (args[i])
@@ -30,6 +32,7 @@ public static class DraftFigure
                 case "--first-seed": first = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
                 case "--family": only = args[i + 1]; break;
                 case "--damage": undamaged = args[i + 1] == "none"; break;
+                case "--show": show = args[i + 1] == "failures"; break;
                 default: throw new ArgumentException($"Unknown option {args[i]}.");
             }
         }
@@ -56,6 +59,12 @@ public static class DraftFigure
                 if (result.Failure is not null || result.RecoveredByConfirmedDraft < 0.95 * result.RecoveredByTruth)
                 {
                     failed++;
+                    if (show)
+                    {
+                        Console.WriteLine(result.TruthJson);
+                        Console.WriteLine(result.DraftJson);
+                    }
+
                     Console.WriteLine($"  {family} seed {seed}: {result.RecoveredByConfirmedDraft}/{result.RecoveredByTruth}/{result.Written} drafted {result.DraftedFamily}; guessed {string.Join(", ", result.Guessed)}; {result.Failure}; {result.Damage}");
                 }
 

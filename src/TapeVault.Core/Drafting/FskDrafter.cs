@@ -56,7 +56,11 @@ public sealed class FskDrafter : IFamilyDrafter
         }
 
         // One cycle a bit is the least a tone can hold: measured just above the lower tone, the baud is that tone.
-        double baud = Math.Min(1 / Math.Sqrt(bitA * bitB), 0.5 / survey.Clusters[b].Seconds);
+        // A lower tone of one cycle a bit has a bit boundary at both ends of every half cycle, where filtering moves
+        // the crossings: its half cycles are measured short, and the bit time is the higher tone's alone.
+        double lowerHalf = survey.Clusters[b].Seconds;
+        bool lowerSingle = Math.Abs(Math.Log(bitB / (2 * lowerHalf))) < 0.01;
+        double baud = lowerSingle ? 1 / bitA : Math.Min(1 / Math.Sqrt(bitA * bitB), 0.5 / lowerHalf);
         return (b, a, baud);
     }
 
@@ -82,6 +86,12 @@ public sealed class FskDrafter : IFamilyDrafter
 
         double highHz = 0.5 / survey.Clusters[high].Seconds;
         double lowHz = 0.5 / survey.Clusters[low].Seconds;
+        if (lowHz > 1.03 * baud && lowHz < 1.25 * baud)
+        {
+            // One cycle a bit, its half cycles measured short (see Tones): the tone is the baud.
+            lowHz = baud;
+        }
+
 
         // The mark is the tone of the idle line: told by decoding both ways (8 data bits, no parity, one stop bit).
         var asHigh = Trial(survey.Stretch, highHz, lowHz, baud, 0.05, 8, Parity.None, "1", cancellation);
@@ -168,7 +178,11 @@ public sealed class FskDrafter : IFamilyDrafter
             // Rounded, the baud must still not pass the lower tone (one cycle a bit is the least).
             ["baud"] = Math.Min(Math.Round(baud, 2), Math.Min(Math.Round(markHz, 1), Math.Round(spaceHz, 1))),
         };
-        if (leader is { } lead)
+        Layout(proposal, layout);
+
+        // A leader announces a block's sync characters: without a sync field the check left out, the leader stays
+        // unproven and the lead-in is drafted as mark tone.
+        if (leader is { } lead && proposal.Sections["layout"]?["header"]?[0]?["role"]?.GetValue<string>() == "sync")
         {
             int minimum = Math.Clamp(lead.Shortest / 2, 4, 100_000);
             proposal.Sections["fsk"]!["leadIn"] = new JsonObject { ["character"] = $"0x{lead.Character:X2}", ["minimumCount"] = minimum };
@@ -184,7 +198,7 @@ public sealed class FskDrafter : IFamilyDrafter
         proposal.Measured("fsk.markHz", F(markHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
         proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, toneEvidence);
         proposal.Measured("fsk.baud", F(baud, "0.00"), 0.9, $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower");
-        if (leader is null)
+        if (proposal.Sections["fsk"]!["leadIn"] is null)
         {
             proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"a quarter of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");
         }
@@ -197,7 +211,6 @@ public sealed class FskDrafter : IFamilyDrafter
         proposal.Measured("framing.stopBits", $"'{chosen.Stop}'", framingConfidence, $"framing errors per framing tried (data bits, parity, stop bits): {others}; the longest frame that holds is drafted");
         proposal.Measured("framing.parity", chosen.Parity.ToString().ToLowerInvariant(), framingConfidence, $"framing errors per framing tried: {others}");
         proposal.Measured("framing.dataBits", F(chosen.Data), layout.HasChecksum ? 0.9 : framingConfidence - 0.1, $"framing errors per framing tried: {others}");
-        Layout(proposal, layout);
         proposal.Notes.Add($"Framing told by {trials.Count} trial decodes of the first {F(Math.Min(TrialSeconds, survey.Stretch.Seconds), "0")} s with the read path's FSK decoder; {blockBytes.Count} blocks read with the framing chosen.");
         return proposal;
     }

@@ -158,7 +158,9 @@ public static class LayoutSearch
 
                 foreach (var (holding, big, chosen) in new[] { (holdBig, true, chosenBig), (holdLittle, false, chosenLittle) })
                 {
-                    if (holding >= needed && holding > bestHolding)
+                    // On a tie the wider check wins: the low byte of a 16-bit sum is the 8-bit sum of the same
+                    // bytes, so the narrower check holds wherever the wider one does, one byte short.
+                    if (holding >= needed && (holding > bestHolding || (holding == bestHolding && best is not null && w > best.Width)))
                     {
                         best = checksum;
                         bestBig = big;

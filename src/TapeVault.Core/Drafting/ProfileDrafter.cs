@@ -32,6 +32,7 @@ public static class ProfileDrafter
         }
 
         var scores = Families.Select(f => (Drafter: f, Score: f.Score(survey))).OrderByDescending(s => s.Score.Score).ToList();
+        var refusals = new List<string>();
         foreach (var (drafter, score) in scores)
         {
             if (score.Score <= 0)
@@ -39,7 +40,19 @@ public static class ProfileDrafter
                 continue;
             }
 
-            var proposal = drafter.Draft(survey, cancellation);
+            // A family that fits the intervals may still read nothing (biphase's half and whole cells look like two
+            // tones): its reason is kept, and the next family is tried.
+            FamilyProposal? proposal;
+            try
+            {
+                proposal = drafter.Draft(survey, cancellation);
+            }
+            catch (ProfileDraftException e)
+            {
+                refusals.Add(e.Message);
+                continue;
+            }
+
             if (proposal is null)
             {
                 continue;
@@ -53,7 +66,8 @@ public static class ProfileDrafter
 
         throw new ProfileDraftException(
             $"No family reads the first {stretch.Seconds:0.#} s of {stretch.Source}: " +
-            string.Join("; ", scores.Select(s => $"{s.Score.Family} {s.Score.Score:0.00} ({s.Score.Evidence})")) + ".");
+            string.Join("; ", scores.Select(s => $"{s.Score.Family} {s.Score.Score:0.00} ({s.Score.Evidence})")) + "."
+            + (refusals.Count == 0 ? string.Empty : " " + string.Join(" ", refusals)));
     }
 
     private static ProfileDraft Assemble(CaptureStretch stretch, string family, double familyConfidence, FamilyScore score, FamilyProposal proposal, IReadOnlyList<FamilyScore> scores)
