@@ -49,7 +49,7 @@ public static class DraftFigure
             for (int k = 0; k < count; k++)
             {
                 int seed = first + k;
-                var result = DraftTrials.Run(family, seed, folder, seed % 2 == 0 && !undamaged ? Sox : null, undamaged);
+                var result = DraftTrials.Run(family, seed, folder, seed % 2 == 0 && !undamaged ? Sox : null, undamaged ? new ChannelDamage() : null);
                 written += result.Written;
                 drafted += result.RecoveredByConfirmedDraft;
                 truth += result.RecoveredByTruth;

@@ -140,8 +140,16 @@ public static class LayoutSearch
                             continue;
                         }
 
-                        uint value = checksum.Compute(reading.AsSpan(start, reading.Length - w - start));
+                        // A stored check of all zeros or all ones is no evidence: a reading lengthened by lead-in
+                        // bits ends in such bytes, and a CRC over a message with its own CRC after it leaves a
+                        // constant (zero where nothing is xored out), so the check would "hold" one field too late.
                         var stored = reading.AsSpan(reading.Length - w);
+                        if (stored.IndexOfAnyExcept((byte)0) < 0 || stored.IndexOfAnyExcept((byte)0xFF) < 0)
+                        {
+                            continue;
+                        }
+
+                        uint value = checksum.Compute(reading.AsSpan(start, reading.Length - w - start));
                         if (chosenBig[i] is null && value == Read(stored, true))
                         {
                             chosenBig[i] = reading;

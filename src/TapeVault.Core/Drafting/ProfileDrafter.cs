@@ -61,7 +61,16 @@ public static class ProfileDrafter
             double runnerUp = scores.Where(s => s.Drafter != drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
             bool proven = proposal.Findings.Any(f => f.Path == "layout.checksum");
             double familyConfidence = proven ? 0.97 : Math.Clamp(0.5 + score.Score - runnerUp, 0.3, 0.95);
-            return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)]);
+            try
+            {
+                return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)]);
+            }
+            catch (ProfileException e)
+            {
+                // What this family found cannot be written as a profile (a sync too short to be found, say): its
+                // reason is kept, and the next family is tried.
+                refusals.Add($"The {drafter.Family} reading found cannot be a profile: {e.Message}");
+            }
         }
 
         throw new ProfileDraftException(
