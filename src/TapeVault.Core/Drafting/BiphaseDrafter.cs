@@ -190,6 +190,7 @@ public sealed class BiphaseDrafter : IFamilyDrafter
         Framing(proposal, reading.Framing, proven, reading.FramingShare, proven && !reading.OrderAmbiguous, OrderEvidence(reading));
         Layout(proposal, reading.Layout);
         AmbiguousOrder(proposal, reading);
+        AbsorbedSync(proposal, reading, "biphase.syncBits");
         proposal.Notes.Add($"Read through detector setting {survey.Setting.Name}: {blocks.Count} blocks after {(alternating ? "alternating preambles" : "lead-ins of equal bits")}; {reading.Candidates} readings of sync and framing held.");
         return proposal;
     }

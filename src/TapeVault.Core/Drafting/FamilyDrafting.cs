@@ -211,6 +211,34 @@ internal static class CommonSections
         : reading.OrderAmbiguous ? "a check value holds in both bit orders (a reflected CRC over bit-reversed bytes is another CRC that holds), and neither reading has more header fields or more text"
         : "the check value holds with this bit order";
 
+    /// <summary>
+    /// Bytes alike in every block and outside the check were taken into the sync, but a capture cannot tell sync
+    /// bytes from a header field that never changed in it (the high byte of a block number, say): the sync and the
+    /// header are both guesses then.
+    /// </summary>
+    public static void AbsorbedSync(FamilyProposal proposal, SyncReading reading, string syncPath)
+    {
+        if (reading.AbsorbedBytes == 0)
+        {
+            return;
+        }
+
+        string why = $"the last {reading.AbsorbedBytes} byte(s) of it are alike in every block and outside the check: sync bytes or a header field that never changed in this capture, which the capture cannot tell";
+        foreach (string path in new[] { syncPath, "layout.header" })
+        {
+            int at = proposal.Findings.FindIndex(f => f.Path == path);
+            if (at >= 0)
+            {
+                var f = proposal.Findings[at];
+                proposal.Findings[at] = f with { Guessed = true, Confidence = Math.Min(f.Confidence, 0.6), Evidence = f.Evidence + "; but " + why };
+            }
+            else if (path == "layout.header")
+            {
+                proposal.Guessed(path, "as drafted", 0.6, why);
+            }
+        }
+    }
+
     /// <summary>Where the check holds in both bit orders, the order and the checksum stand or fall together: both are guesses.</summary>
     public static void AmbiguousOrder(FamilyProposal proposal, SyncReading reading)
     {
