@@ -206,6 +206,11 @@ public static class LayoutSearch
                         {
                             uint value = block.Length >= header + checkBytes ? Read(block.AsSpan(offset, width), big) : uint.MaxValue;
                             int payload = block.Length - header - checkBytes;
+                            if (payload < 0)
+                            {
+                                continue;
+                            }
+
                             if (value == (uint)payload)
                             {
                                 agree++;

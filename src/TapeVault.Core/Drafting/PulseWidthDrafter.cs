@@ -158,7 +158,13 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
 
         // Only the classes the reading uses (bits, lead-in, sync) go into the profile: a rare group of noise or
         // dropout edges written as a class would take pulses from the classes beside it when the profile reads.
+        // Where no check proves the reading, every class stays: the curator's bit mapping may need the others.
         var used = new SortedSet<int>(reading.Sync) { leadIn, reading.Mapping.ZeroSymbol, reading.Mapping.OneSymbol };
+        if (!reading.Layout.HasChecksum)
+        {
+            used.UnionWith(Enumerable.Range(0, classesFound.Count));
+        }
+
         used.RemoveWhere(c => c < 0);
         var kept = used.ToList();
         var keptNames = kept.Count < ClassNames.Length ? ClassNames[kept.Count] : [.. Enumerable.Range(1, kept.Count).Select(i => $"class-{i}")];
