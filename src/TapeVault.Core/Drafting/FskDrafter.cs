@@ -56,11 +56,7 @@ public sealed class FskDrafter : IFamilyDrafter
         }
 
         // One cycle a bit is the least a tone can hold: measured just above the lower tone, the baud is that tone.
-        // A lower tone of one cycle a bit has a bit boundary at both ends of every half cycle, where filtering moves
-        // the crossings: its half cycles are measured short, and the bit time is the higher tone's alone.
-        double lowerHalf = survey.Clusters[b].Seconds;
-        bool lowerSingle = Math.Abs(Math.Log(bitB / (2 * lowerHalf))) < 0.01;
-        double baud = lowerSingle ? 1 / bitA : Math.Min(1 / Math.Sqrt(bitA * bitB), 0.5 / lowerHalf);
+        double baud = Math.Min(1 / Math.Sqrt(bitA * bitB), 0.5 / survey.Clusters[b].Seconds);
         return (b, a, baud);
     }
 
@@ -86,12 +82,6 @@ public sealed class FskDrafter : IFamilyDrafter
 
         double highHz = 0.5 / survey.Clusters[high].Seconds;
         double lowHz = 0.5 / survey.Clusters[low].Seconds;
-        if (lowHz > 1.03 * baud && lowHz < 1.25 * baud)
-        {
-            // One cycle a bit, its half cycles measured short (see Tones): the tone is the baud.
-            lowHz = baud;
-        }
-
 
         // The mark is the tone of the idle line: told by decoding both ways (8 data bits, no parity, one stop bit).
         var asHigh = Trial(survey.Stretch, highHz, lowHz, baud, 0.05, 8, Parity.None, "1", cancellation);
@@ -136,14 +126,6 @@ public sealed class FskDrafter : IFamilyDrafter
             .First();
         var blockBytes = chosen.Blocks.OrderBy(b => b.StartSeconds).Select(b => b.Payload.ToArray()).Where(b => b.Length > 0).ToList();
 
-        // A leader of repeated characters: most blocks read after mark tone begin with a run of one character. The
-        // run is the lead-in; what follows it is the block, sync characters first.
-        var leader = Leader(blockBytes);
-        if (leader is { } l)
-        {
-            blockBytes = [.. blockBytes.Select(b => b.AsSpan().IndexOfAnyExcept(l.Character) is var at && at >= 0 ? b[at..] : []).Where(b => b.Length > 0)];
-        }
-
         // Bit order: the check value tells it where there is one; else the share of printable text.
         var reversed = blockBytes.Select(b => b.Select(x => Reverse(x, chosen.Data)).ToArray()).ToList();
         var asRead = LayoutSearch.Search([.. blockBytes.Select(b => new DraftBlock([b]))]);
@@ -177,32 +159,13 @@ public sealed class FskDrafter : IFamilyDrafter
 
             // Rounded, the baud must still not pass the lower tone (one cycle a bit is the least).
             ["baud"] = Math.Min(Math.Round(baud, 2), Math.Min(Math.Round(markHz, 1), Math.Round(spaceHz, 1))),
+            ["leadInMinimumSeconds"] = Math.Round(leadIn, 3),
         };
-        Layout(proposal, layout);
-
-        // A leader announces a block's sync characters: without a sync field the check left out, the leader stays
-        // unproven and the lead-in is drafted as mark tone.
-        if (leader is { } lead && proposal.Sections["layout"]?["header"]?[0]?["role"]?.GetValue<string>() == "sync")
-        {
-            int minimum = Math.Clamp(lead.Shortest / 2, 4, 100_000);
-            proposal.Sections["fsk"]!["leadIn"] = new JsonObject { ["character"] = $"0x{lead.Character:X2}", ["minimumCount"] = minimum };
-            proposal.Measured("fsk.leadIn", $"0x{lead.Character:X2}, at least {minimum}", 0.85,
-                $"{lead.Blocks} of {lead.Of} blocks begin with {lead.Shortest} or more of the character 0x{lead.Character:X2} (a leader); half the shortest run is drafted");
-        }
-        else
-        {
-            proposal.Sections["fsk"]!["leadInMinimumSeconds"] = Math.Round(leadIn, 3);
-        }
-
         string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays";
         proposal.Measured("fsk.markHz", F(markHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
         proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, toneEvidence);
         proposal.Measured("fsk.baud", F(baud, "0.00"), 0.9, $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower");
-        if (proposal.Sections["fsk"]!["leadIn"] is null)
-        {
-            proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"a quarter of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");
-        }
-
+        proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"a quarter of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");
         var others = string.Join(", ", trials.Select(t => $"{t.Data}{t.Parity.ToString()[0]}{t.Stop.Length}: {F(100 * t.ErrorShare, "0.#")} %"));
         double framingConfidence = holding.Count == 1 ? 0.9 : 0.8;
         Framing(proposal, framing, layout.HasChecksum, 1 - chosen.ErrorShare, orderMeasured, orderEvidence);
@@ -211,29 +174,9 @@ public sealed class FskDrafter : IFamilyDrafter
         proposal.Measured("framing.stopBits", $"'{chosen.Stop}'", framingConfidence, $"framing errors per framing tried (data bits, parity, stop bits): {others}; the longest frame that holds is drafted");
         proposal.Measured("framing.parity", chosen.Parity.ToString().ToLowerInvariant(), framingConfidence, $"framing errors per framing tried: {others}");
         proposal.Measured("framing.dataBits", F(chosen.Data), layout.HasChecksum ? 0.9 : framingConfidence - 0.1, $"framing errors per framing tried: {others}");
+        Layout(proposal, layout);
         proposal.Notes.Add($"Framing told by {trials.Count} trial decodes of the first {F(Math.Min(TrialSeconds, survey.Stretch.Seconds), "0")} s with the read path's FSK decoder; {blockBytes.Count} blocks read with the framing chosen.");
         return proposal;
-    }
-
-    /// <summary>
-    /// The character most blocks begin with a run of (at least four, in seven blocks of ten or more): a leader, as
-    /// (character, shortest run, blocks with it, blocks).
-    /// </summary>
-    private static (byte Character, int Shortest, int Blocks, int Of)? Leader(List<byte[]> blocks)
-    {
-        if (blocks.Count < 2)
-        {
-            return null;
-        }
-
-        var runs = blocks.Select(b => (First: b[0], Run: b.AsSpan().IndexOfAnyExcept(b[0]) is var at && at >= 0 ? at : b.Length)).Where(r => r.Run >= 4).ToList();
-        var common = runs.GroupBy(r => r.First).OrderByDescending(g => g.Count()).FirstOrDefault();
-        if (common is null || common.Count() < 0.7 * blocks.Count)
-        {
-            return null;
-        }
-
-        return (common.Key, common.Min(r => r.Run), common.Count(), blocks.Count);
     }
 
     /// <summary>What one trial decode read: the blocks of the setting that framed best, its characters and its share of framing errors.</summary>

@@ -33,7 +33,6 @@ public static class ProfileDrafter
 
         var scores = Families.Select(f => (Drafter: f, Score: f.Score(survey))).OrderByDescending(s => s.Score.Score).ToList();
         var refusals = new List<string>();
-        ProfileDraft? unproven = null;
         foreach (var (drafter, score) in scores)
         {
             if (score.Score <= 0)
@@ -64,17 +63,7 @@ public static class ProfileDrafter
             double familyConfidence = proven ? 0.97 : Math.Clamp(0.5 + score.Score - runnerUp, 0.3, 0.95);
             try
             {
-                var draft = Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)]);
-
-                // A family whose reading a check value proves wins outright; one that proves nothing stands only
-                // if no later family proves its reading (a preamble of alternating bits groups like two pulse
-                // classes, and only the biphase reading finds the check).
-                if (proven)
-                {
-                    return draft;
-                }
-
-                unproven ??= draft;
+                return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)]);
             }
             catch (ProfileException e)
             {
@@ -82,11 +71,6 @@ public static class ProfileDrafter
                 // reason is kept, and the next family is tried.
                 refusals.Add($"The {drafter.Family} reading found cannot be a profile: {e.Message}");
             }
-        }
-
-        if (unproven is not null)
-        {
-            return unproven;
         }
 
         throw new ProfileDraftException(
