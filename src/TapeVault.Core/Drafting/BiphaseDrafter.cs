@@ -8,7 +8,9 @@ namespace TapeVault.Core.Drafting;
 /// Biphase (Manchester): intervals are half a cell or a whole one. Halves come in pairs (two make a cell with a
 /// boundary transition), wholes come alone (a change of bit), so the whole group has odd runs where no other family
 /// has. A lead-in of zeros is a long run of halves; the first whole after it ends on the mid-cell transition of the
-/// first 1, from where each whole flips the bit and each pair of halves repeats it.
+/// first 1, from where each whole flips the bit and each pair of halves repeats it. A preamble of alternating bits is
+/// a long run of wholes; the first pair of halves after it repeats the preamble's last bit, whose value only a check
+/// value tells (both readings are searched).
 /// </summary>
 public sealed class BiphaseDrafter : IFamilyDrafter
 {
@@ -65,30 +67,19 @@ public sealed class BiphaseDrafter : IFamilyDrafter
             kind[i] = classifier.ClassOf(intervals[i], 1);
         }
 
-        var leadRuns = new List<(int Start, int Length)>();
-        for (int i = 0; i < kind.Length;)
-        {
-            int j = i;
-            while (j < kind.Length && kind[j] == 0)
-            {
-                j++;
-            }
-
-            if (j - i >= LeastLeadInHalves)
-            {
-                leadRuns.Add((i, j - i));
-            }
-
-            i = j + 1;
-        }
-
+        // A lead-in of equal bits is a long run of halves; a preamble of alternating bits a long run of wholes.
+        var halfRuns = LongRuns(kind, 0, LeastLeadInHalves);
+        var wholeRuns = LongRuns(kind, 1, LeastLeadInHalves / 2);
+        bool alternating = wholeRuns.Sum(r => 2L * r.Length) > halfRuns.Sum(r => (long)r.Length);
+        var leadRuns = alternating ? wholeRuns : halfRuns;
         if (leadRuns.Count == 0)
         {
             return null;
         }
 
         double median = leadRuns.Select(r => (double)r.Length).Order().ElementAt(leadRuns.Count / 2);
-        leadRuns = [.. leadRuns.Where(r => r.Length >= Math.Max(LeastLeadInHalves, 0.3 * median))];
+        int least = alternating ? LeastLeadInHalves / 2 : LeastLeadInHalves;
+        leadRuns = [.. leadRuns.Where(r => r.Length >= Math.Max(least, 0.3 * median))];
         var blocks = new List<int[]>();
         int risingOnes = 0;
         int firstOnes = 0;
@@ -96,17 +87,31 @@ public sealed class BiphaseDrafter : IFamilyDrafter
         {
             int at = leadRuns[k].Start + leadRuns[k].Length;
             int limit = k + 1 < leadRuns.Count ? leadRuns[k + 1].Start : kind.Length;
-            if (at >= limit || kind[at] != 1)
+            if (at >= limit || kind[at] != (alternating ? 0 : 1))
             {
                 continue;
             }
 
-            // The edge that ends the first whole is the first 1's mid-cell transition: its direction is a 1's.
-            firstOnes++;
-            risingOnes += survey.Edges[at + 1].Rising ? 1 : 0;
             var bits = new List<int> { 1 };
             int bit = 1;
-            int i = at + 1;
+            int i;
+            if (alternating)
+            {
+                // The last whole of the preamble ends on a mid-cell transition of a bit whose value the preamble
+                // cannot tell (its phase depends on the polarity): it is read as 1 here, and the search tries the
+                // reading with every bit inverted too. The edge is that bit's transition.
+                firstOnes++;
+                risingOnes += survey.Edges[at].Rising ? 1 : 0;
+                i = at;
+            }
+            else
+            {
+                // The edge that ends the first whole is the first 1's mid-cell transition: its direction is a 1's.
+                firstOnes++;
+                risingOnes += survey.Edges[at + 1].Rising ? 1 : 0;
+                i = at + 1;
+            }
+
             while (i < limit)
             {
                 if (kind[i] == 1)
@@ -137,36 +142,79 @@ public sealed class BiphaseDrafter : IFamilyDrafter
             return null;
         }
 
-        var reading = SyncFormatSearch.Search(blocks, [new BitMapping("zeros lead in", 0, 1)], 0, cancellation);
+        BitMapping[] mappings = alternating
+            ? [new BitMapping("the preamble's last bit is 1", 0, 1), new BitMapping("the preamble's last bit is 0", 1, 0)]
+            : [new BitMapping("zeros lead in", 0, 1)];
+        var reading = SyncFormatSearch.Search(blocks, mappings, alternating ? -1 : 0, cancellation);
         if (reading is null)
         {
             return null;
         }
 
         bool proven = reading.Layout.HasChecksum;
-        int shortest = leadRuns.Min(r => r.Length) / 2;
+        int shortest = alternating ? leadRuns.Min(r => r.Length) : leadRuns.Min(r => r.Length) / 2;
         int minimum = Math.Clamp((int)(0.25 * shortest), 8, MostLeadIn);
-        string syncBits = string.Concat(reading.Sync.Select(b => b == 1 ? '1' : '0'));
-        string oneIs = risingOnes * 2 >= firstOnes ? "rising" : "falling";
+        string syncBits = string.Concat(reading.Sync.Select(b => reading.Mapping.Bit(b) == 1 ? '1' : '0'));
+        bool risingFirst = risingOnes * 2 >= firstOnes;
+        string oneIs = risingFirst == (reading.Mapping.OneSymbol == 1) ? "rising" : "falling";
         var proposal = new FamilyProposal();
         proposal.Sections["biphase"] = new JsonObject
         {
             ["cellMicroseconds"] = Math.Round(cell * 1e6, 2),
             ["oneIs"] = oneIs,
-            ["leadInMinimumBits"] = minimum,
             ["syncBits"] = syncBits,
         };
+        if (alternating)
+        {
+            proposal.Sections["biphase"]!["leadIn"] = new JsonObject { ["bits"] = "01", ["minimumBits"] = minimum };
+        }
+        else
+        {
+            proposal.Sections["biphase"]!["leadInMinimumBits"] = minimum;
+        }
+
         proposal.Measured("biphase.cellMicroseconds", Us(cell), 0.9,
             $"intervals of half a cell ({Us(survey.Clusters[halfGroup].Seconds)} µs) and a whole one ({Us(survey.Clusters[wholeGroup].Seconds)} µs) through setting {survey.Setting.Name}; as the tape plays");
         proposal.Guessed("biphase.oneIs", oneIs, 0.5,
             $"the first 1 after {firstOnes} lead-ins has a {oneIs} mid-cell transition in this capture, but a capture's polarity depends on the deck and its wiring (the detector bank reads both)");
-        proposal.Measured("biphase.leadInMinimumBits", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortest} zeros)");
+        if (alternating)
+        {
+            proposal.Measured("biphase.leadIn", $"alternating bits, at least {F(minimum)}", 0.85, $"{leadRuns.Count} runs of whole-cell intervals (a transition in every cell and none between: alternating bits); a quarter (at most {MostLeadIn}) of the shortest ({shortest} bits)");
+        }
+        else
+        {
+            proposal.Measured("biphase.leadInMinimumBits", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortest} zeros)");
+        }
         proposal.Measured("biphase.syncBits", syncBits, proven ? 0.9 : 0.4,
-            $"{blocks.Count} blocks begin alike for {reading.CommonPrefix} bits from the first 1 after their lead-in; " + (proven ? "the check value holds when bytes start after this sync" : "the shortest sync whose framing holds is drafted"));
+            $"{blocks.Count} blocks begin alike for {reading.CommonPrefix} bits from the {(alternating ? "preamble's last bit" : "first 1 after their lead-in")}; " + (proven ? "the check value holds when bytes start after this sync" : "the shortest sync whose framing holds is drafted"));
         Framing(proposal, reading.Framing, proven, reading.FramingShare, proven && !reading.OrderAmbiguous, OrderEvidence(reading));
         Layout(proposal, reading.Layout);
         AmbiguousOrder(proposal, reading);
-        proposal.Notes.Add($"Read through detector setting {survey.Setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync and framing held.");
+        AbsorbedSync(proposal, reading, "biphase.syncBits");
+        proposal.Notes.Add($"Read through detector setting {survey.Setting.Name}: {blocks.Count} blocks after {(alternating ? "alternating preambles" : "lead-ins of equal bits")}; {reading.Candidates} readings of sync and framing held.");
         return proposal;
+    }
+
+    /// <summary>Runs of at least <paramref name="least"/> intervals of one kind (0 half, 1 whole), as (start, length).</summary>
+    private static List<(int Start, int Length)> LongRuns(int[] kind, int of, int least)
+    {
+        var runs = new List<(int Start, int Length)>();
+        for (int i = 0; i < kind.Length;)
+        {
+            int j = i;
+            while (j < kind.Length && kind[j] == of)
+            {
+                j++;
+            }
+
+            if (j - i >= least)
+            {
+                runs.Add((i, j - i));
+            }
+
+            i = j + 1;
+        }
+
+        return runs;
     }
 }

@@ -107,11 +107,37 @@ internal static class CommonSections
 
         var header = new JsonArray();
         int at = 0;
+
+        // Bytes before the check's coverage that every block holds alike are a sync field (sync characters the
+        // check leaves out); a field's name goes into the coverage when it starts inside it.
+        var covered = new JsonArray();
+        if (layout.CoverageStart > 0 && layout.Blocks.Count >= 2 && layout.Blocks.All(b => b.Length > layout.CoverageStart && b.AsSpan(0, layout.CoverageStart).SequenceEqual(layout.Blocks[0].AsSpan(0, layout.CoverageStart)))
+            && !layout.Fields.Any(f => f.Offset < layout.CoverageStart))
+        {
+            header.Add(new JsonObject
+            {
+                ["name"] = "sync",
+                ["bytes"] = layout.CoverageStart,
+                ["role"] = "sync",
+                ["expect"] = new JsonArray(string.Join(' ', layout.Blocks[0].Take(layout.CoverageStart).Select(b => b.ToString("X2", CultureInfo.InvariantCulture)))),
+            });
+            at = layout.CoverageStart;
+        }
+
+        void Add(JsonObject node, int offset)
+        {
+            header.Add(node);
+            if (offset >= layout.CoverageStart)
+            {
+                covered.Add(node["name"]!.GetValue<string>());
+            }
+        }
+
         foreach (var field in layout.Fields.OrderBy(f => f.Offset))
         {
             if (field.Offset > at)
             {
-                header.Add(Other(at, field.Offset - at));
+                Add(Other(at, field.Offset - at), at);
             }
 
             var node = new JsonObject { ["name"] = field.Role switch { "payload-length" => "length", "block-number" => "block", "file-name" => "name", _ => $"field-{at}" }, ["bytes"] = field.Bytes, ["role"] = field.Role };
@@ -120,14 +146,21 @@ internal static class CommonSections
                 node["endian"] = field.BigEndian ? "big" : "little";
             }
 
-            header.Add(node);
+            if (field.ZeroMeans is { } zeroMeans)
+            {
+                node["zeroMeans"] = zeroMeans;
+            }
+
+            Add(node, field.Offset);
             at = field.Offset + field.Bytes;
         }
 
         if (layout.HeaderBytes > at)
         {
-            header.Add(Other(at, layout.HeaderBytes - at));
+            Add(Other(at, layout.HeaderBytes - at), at);
         }
+
+        covered.Add("payload");
 
         var section = new JsonObject { ["header"] = header };
         var lengthField = layout.Fields.FirstOrDefault(f => f.Role == "payload-length");
@@ -137,13 +170,13 @@ internal static class CommonSections
         }
         else
         {
-            section["maximumPayloadBytes"] = lengthField.Bytes == 1 ? 255 : 65535;
+            section["maximumPayloadBytes"] = lengthField.ZeroMeans ?? (lengthField.Bytes == 1 ? 255 : 65535);
         }
 
         section["checksum"] = new JsonObject
         {
             ["algorithm"] = layout.Checksum,
-            ["covers"] = layout.CoverageStart == 0 ? "header-and-payload" : "payload",
+            ["covers"] = layout.CoverageStart == 0 ? "header-and-payload" : covered.Count == 1 ? "payload" : covered,
             ["endian"] = layout.ChecksumBigEndian ? "big" : "little",
         };
         section["copies"] = layout.Copies;
@@ -177,6 +210,34 @@ internal static class CommonSections
         !reading.Layout.HasChecksum ? "no check value tells the bit order"
         : reading.OrderAmbiguous ? "a check value holds in both bit orders (a reflected CRC over bit-reversed bytes is another CRC that holds), and neither reading has more header fields or more text"
         : "the check value holds with this bit order";
+
+    /// <summary>
+    /// Bytes alike in every block and outside the check were taken into the sync, but a capture cannot tell sync
+    /// bytes from a header field that never changed in it (the high byte of a block number, say): the sync and the
+    /// header are both guesses then.
+    /// </summary>
+    public static void AbsorbedSync(FamilyProposal proposal, SyncReading reading, string syncPath)
+    {
+        if (reading.AbsorbedBytes == 0)
+        {
+            return;
+        }
+
+        string why = $"the last {reading.AbsorbedBytes} byte(s) of it are alike in every block and outside the check: sync bytes or a header field that never changed in this capture, which the capture cannot tell";
+        foreach (string path in new[] { syncPath, "layout.header" })
+        {
+            int at = proposal.Findings.FindIndex(f => f.Path == path);
+            if (at >= 0)
+            {
+                var f = proposal.Findings[at];
+                proposal.Findings[at] = f with { Guessed = true, Confidence = Math.Min(f.Confidence, 0.6), Evidence = f.Evidence + "; but " + why };
+            }
+            else if (path == "layout.header")
+            {
+                proposal.Guessed(path, "as drafted", 0.6, why);
+            }
+        }
+    }
 
     /// <summary>Where the check holds in both bit orders, the order and the checksum stand or fall together: both are guesses.</summary>
     public static void AmbiguousOrder(FamilyProposal proposal, SyncReading reading)

@@ -7,7 +7,8 @@ namespace TapeVault.Core.Drafting;
 /// takes the reference's value and every measured field keeps the draft's. Used to measure how good a draft's
 /// measured fields are (the guesses are then right by construction). Pulse class names are the draft's: a class the
 /// reference names is the draft's class nearest to it in length. A guessed header brings the payload length with it
-/// (the two decide one another), and a guessed family brings the family's own section.
+/// (the two decide one another) and a coverage that names header fields, and a guessed family brings the family's own
+/// section.
 /// </summary>
 public static class GuessConfirmation
 {
@@ -38,6 +39,12 @@ public static class GuessConfirmation
                     foreach (string part in new[] { "header", "payloadBytes", "maximumPayloadBytes" })
                     {
                         Replace(draft, reference, $"layout.{part}");
+                    }
+
+                    // A coverage that names header fields names the draft's fields: it goes with the header.
+                    if (draft["layout"]?["checksum"]?["covers"] is JsonArray && reference["layout"]?["checksum"]?["covers"] is { } covers)
+                    {
+                        draft["layout"]!["checksum"]!["covers"] = covers.DeepClone();
                     }
 
                     break;

