@@ -72,6 +72,35 @@ public sealed class SavedDamageCaseTests(SynthesisFolder folder) : IClassFixture
         Assert.NotEmpty(clean);
     }
 
+    /// <summary>
+    /// Seed 20010, the second pass, of the built-in one-cycle-bits format (a 16-bit additive sum): one payload byte and
+    /// the check's low byte lost the same bit the same way, and an additive sum cancels that pair, so a wrong block
+    /// held its check and was clean at 0.9996. Such a pair (equal and opposite changes in the sum) is the commonest way a
+    /// sum of any width fails, a known weakness of additive checks against CRCs (common practice; quoted from memory of
+    /// the error-detection literature), so a sum of 16 bits proves no more alone than one of 8.
+    /// </summary>
+    [Fact]
+    public void A_sum_that_cancels_a_pair_of_flips_never_makes_a_wrong_block_clean()
+    {
+        var saved = Load("sum16-aligned-flips.json");
+        var profile = ProfileCatalog.BuiltIn.Get(saved.Profile);
+        var written = saved.Blocks.Select(Convert.FromHexString).ToList();
+        string path = folder.File("saved-sum16-aligned-flips.wav");
+        CaptureSynthesizer.WriteBlocks(path, profile, written, saved.Damage);
+
+        var result = CaptureDecoder.Decode(path, profile);
+
+        // Ground truth: a written block of any kind without its check value (kinds may differ in check width).
+        var widths = profile.BlockKinds.Select(k => BlockLayoutCodec.For(k).CheckBytes).Distinct().ToList();
+        var truth = written.SelectMany(b => widths.Where(w => w <= b.Length).Select(w => Convert.ToHexString(b.AsSpan(0, b.Length - w)))).ToHashSet(StringComparer.Ordinal);
+        var clean = result.Candidates.Where(c => c.Status == BlockStatus.Clean).ToList();
+        var wrong = clean.Where(c => !truth.Contains(Convert.ToHexString([.. c.Header, .. c.Payload]))).ToList();
+        Assert.True(
+            wrong.Count == 0,
+            $"{wrong.Count} wrong readings clean, e.g. " + string.Join("; ", wrong.Take(3).Select(c => $"[{c.SettingName}] {c.Identity} at {c.StartSeconds:0.000} s")));
+        Assert.NotEmpty(clean);
+    }
+
     private static SavedCase Load(string name)
     {
         string path = Path.Combine(AppContext.BaseDirectory, "Trust", "Cases", name);
