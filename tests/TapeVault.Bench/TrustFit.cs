@@ -66,8 +66,15 @@ public static class TrustFit
         var counts = new StringBuilder();
         foreach (var (key, readings) in groups.OrderBy(g => g.Key, StringComparer.Ordinal))
         {
+            if (readings.Count < TapeVault.Core.Blocks.ConfidenceMap.LeastReadings)
+            {
+                counts.Append(CultureInfo.InvariantCulture, $"{key} {readings.Count} readings, too few to fit (model confidence kept); ");
+                Console.WriteLine($"{key,-28} {readings.Count,7} readings: too few to fit, model confidence kept");
+                continue;
+            }
+
             var (x, y) = Fit(readings);
-            curves[key] = new JsonObject { ["x"] = new JsonArray([.. x.Select(v => (JsonNode)Math.Round(v, 6))]), ["y"] = new JsonArray([.. y.Select(v => (JsonNode)Math.Round(v, 6))]) };
+            curves[key] = new JsonObject { ["readings"] = readings.Count, ["x"] = new JsonArray([.. x.Select(v => (JsonNode)Math.Round(v, 6))]), ["y"] = new JsonArray([.. y.Select(v => (JsonNode)Math.Round(v, 6))]) };
             counts.Append(CultureInfo.InvariantCulture, $"{key} {readings.Count} readings ({readings.Count(r => r.Right)} right); ");
             Console.WriteLine($"{key,-28} {readings.Count,7} readings, {readings.Count(r => r.Right),7} right, {x.Length,3} steps: {string.Join(' ', x.Zip(y).Select(p => $"{p.First:0.###}->{p.Second:0.###}"))}");
         }

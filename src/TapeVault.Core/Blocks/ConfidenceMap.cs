@@ -39,6 +39,13 @@ public sealed class ConfidenceMap
         Provenance = provenance;
     }
 
+    /// <summary>
+    /// The fewest readings a curve may be fitted on. A group with fewer keeps the model confidence: a step fitted on a
+    /// hundred readings of mild damage lifted every reading of its group below its range to its rate, a wrong stream
+    /// under heavy outside damage among them.
+    /// </summary>
+    public const int LeastReadings = 200;
+
     /// <summary>A map that changes nothing (model confidence as it is).</summary>
     public static ConfidenceMap Identity { get; } = new(FrozenDictionary<string, (double[], double[])>.Empty, "identity");
 
@@ -99,7 +106,10 @@ public sealed class ConfidenceMap
         return y[lo] + (t * (y[hi] - y[lo]));
     }
 
-    /// <summary>Reads a map from its JSON: { "provenance": "...", "curves": { "family/Group": { "x": [...], "y": [...] } } }, x rising, y in 0..1 and not falling.</summary>
+    /// <summary>
+    /// Reads a map from its JSON: { "provenance": "...", "curves": { "family/Group": { "readings": N, "x": [...], "y": [...] } } },
+    /// N at least <see cref="LeastReadings"/>, x rising, y in 0..1 and not falling.
+    /// </summary>
     public static ConfidenceMap Parse(string json)
     {
         using var document = JsonDocument.Parse(json);
@@ -110,6 +120,12 @@ public sealed class ConfidenceMap
         {
             foreach (var curve in all.EnumerateObject())
             {
+                int readings = curve.Value.TryGetProperty("readings", out var n) ? n.GetInt32() : 0;
+                if (readings < LeastReadings)
+                {
+                    throw new FormatException($"Confidence map curve {curve.Name}: fitted on {readings} readings, fewer than the {LeastReadings} a curve needs.");
+                }
+
                 double[] x = [.. curve.Value.GetProperty("x").EnumerateArray().Select(e => e.GetDouble())];
                 double[] y = [.. curve.Value.GetProperty("y").EnumerateArray().Select(e => e.GetDouble())];
                 if (x.Length == 0 || x.Length != y.Length)

@@ -9,7 +9,7 @@ namespace TapeVault.Core.Tests.Trust;
 public sealed partial class ConfidenceMapTests
 {
     private const string Map = """
-        { "provenance": "test", "curves": { "biphase/Clean": { "x": [0.2, 0.6, 0.9], "y": [0.1, 0.5, 0.99] } } }
+        { "provenance": "test", "curves": { "biphase/Clean": { "readings": 400, "x": [0.2, 0.6, 0.9], "y": [0.1, 0.5, 0.99] } } }
         """;
 
     [Theory]
@@ -26,11 +26,13 @@ public sealed partial class ConfidenceMapTests
         Assert.Equal(0.42, ConfidenceMap.Parse(Map).Map(FormatFamily.Fsk, ConfidenceGroup.Clean, 0.42), 9);
 
     [Theory]
-    [InlineData("""{ "curves": { "fsk/Clean": { "x": [0.5, 0.4], "y": [0.1, 0.2] } } }""")]
-    [InlineData("""{ "curves": { "fsk/Clean": { "x": [0.4, 0.5], "y": [0.3, 0.2] } } }""")]
-    [InlineData("""{ "curves": { "fsk/Clean": { "x": [0.4], "y": [1.2] } } }""")]
-    [InlineData("""{ "curves": { "fsk/Clean": { "x": [0.4, 0.5], "y": [0.2] } } }""")]
-    public void A_curve_that_falls_leaves_0_to_1_or_is_uneven_cannot_be_loaded(string json) =>
+    [InlineData("""{ "curves": { "fsk/Clean": { "readings": 400, "x": [0.5, 0.4], "y": [0.1, 0.2] } } }""")]
+    [InlineData("""{ "curves": { "fsk/Clean": { "readings": 400, "x": [0.4, 0.5], "y": [0.3, 0.2] } } }""")]
+    [InlineData("""{ "curves": { "fsk/Clean": { "readings": 400, "x": [0.4], "y": [1.2] } } }""")]
+    [InlineData("""{ "curves": { "fsk/Clean": { "readings": 400, "x": [0.4, 0.5], "y": [0.2] } } }""")]
+    [InlineData("""{ "curves": { "fsk/Clean": { "readings": 199, "x": [0.4], "y": [0.5] } } }""")]
+    [InlineData("""{ "curves": { "fsk/Clean": { "x": [0.4], "y": [0.5] } } }""")]
+    public void A_curve_that_falls_leaves_0_to_1_is_uneven_or_rests_on_too_few_readings_cannot_be_loaded(string json) =>
         Assert.Throws<FormatException>(() => ConfidenceMap.Parse(json));
 
     [Theory]
