@@ -10,48 +10,18 @@ using Xunit;
 namespace TapeVault.Archive.Tests;
 
 /// <summary>
-/// Runs only where a PostgreSQL server is given in TAPEVAULT_TEST_POSTGRES (a connection string of an account that may
-/// create databases, e.g. "Host=127.0.0.1;Port=55432;Username=postgres"); Quartz.NET clusters only on a real database.
+/// Two tapevault worker processes on one clustered PostgreSQL schedule (Quartz.NET clusters only on a real database;
+/// the temporary PostgreSQL 15 cluster of the "postgresql" collection): one is SIGKILLed mid-decode, the other takes
+/// its job over.
 /// </summary>
-public sealed class PostgreSqlFactAttribute : FactAttribute
+[Collection(PostgreSqlGroup.Name)]
+public sealed class ClusteredWorkerTests(PostgreSqlServer server)
 {
-    public const string Variable = "TAPEVAULT_TEST_POSTGRES";
-
-    public PostgreSqlFactAttribute()
-    {
-        if (string.IsNullOrWhiteSpace(Environment.GetEnvironmentVariable(Variable)))
-        {
-            Skip = $"No PostgreSQL server: set {Variable} to a connection string to run it.";
-        }
-    }
-}
-
-/// <summary>Two tapevault worker processes on one clustered PostgreSQL schedule: one is SIGKILLed mid-decode, the other takes its job over.</summary>
-public sealed class ClusteredWorkerTests
-{
-    [PostgreSqlFact]
+    [Fact]
     public async Task AWorkerKilledMidDecode_HasItsJobTakenOverByTheOtherLiveWorker_ExactlyOnce()
     {
-        string server = Environment.GetEnvironmentVariable(PostgreSqlFactAttribute.Variable)!;
-        string database = $"tapevault_schedule_{Guid.NewGuid():N}";
-        await using (var admin = new NpgsqlConnection(server))
-        {
-            await admin.OpenAsync();
-            await using var create = new NpgsqlCommand($"CREATE DATABASE {database}", admin);
-            await create.ExecuteNonQueryAsync();
-        }
-
-        try
-        {
-            await RunAsync(new NpgsqlConnectionStringBuilder(server) { Database = database, Pooling = false }.ConnectionString);
-        }
-        finally
-        {
-            await using var admin = new NpgsqlConnection(server);
-            await admin.OpenAsync();
-            await using var drop = new NpgsqlCommand($"DROP DATABASE IF EXISTS {database} WITH (FORCE)", admin);
-            await drop.ExecuteNonQueryAsync();
-        }
+        string schedule = await server.CreateDatabaseAsync();
+        await RunAsync(new NpgsqlConnectionStringBuilder(schedule) { Pooling = false }.ConnectionString);
     }
 
     private static async Task RunAsync(string schedule)
