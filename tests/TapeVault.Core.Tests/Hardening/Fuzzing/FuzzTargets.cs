@@ -153,7 +153,7 @@ internal static class FuzzTargets
     {
         var assembly = typeof(ProfileCatalog).Assembly;
         var seeds = new List<byte[]>();
-        foreach (string name in assembly.GetManifestResourceNames().Where(n => n.EndsWith(".json", StringComparison.Ordinal)).Order(StringComparer.Ordinal))
+        foreach (string name in assembly.GetManifestResourceNames().Where(n => n.StartsWith("TapeVault.Core.Formats.BuiltIn.", StringComparison.Ordinal) && n.EndsWith(".json", StringComparison.Ordinal)).Order(StringComparer.Ordinal))
         {
             using var stream = assembly.GetManifestResourceStream(name)!;
             using var copy = new MemoryStream();
