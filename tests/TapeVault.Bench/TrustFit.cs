@@ -62,14 +62,21 @@ public static class TrustFit
             list.Add((double.Parse(f[^1], CultureInfo.InvariantCulture), f[9] == "1"));
         }
 
+        // Each group pooled over every family too: the curve a family uses where its own readings are too few.
+        foreach (var group in groups.Keys.Select(k => k[(k.IndexOf('/', StringComparison.Ordinal) + 1)..]).Distinct(StringComparer.Ordinal).ToList())
+        {
+            groups[TapeVault.Core.Blocks.ConfidenceMap.PooledFamily + "/" + group] =
+                [.. groups.Where(g => g.Key.EndsWith("/" + group, StringComparison.Ordinal)).SelectMany(g => g.Value)];
+        }
+
         var curves = new JsonObject();
         var counts = new StringBuilder();
         foreach (var (key, readings) in groups.OrderBy(g => g.Key, StringComparer.Ordinal))
         {
             if (readings.Count < TapeVault.Core.Blocks.ConfidenceMap.LeastReadings)
             {
-                counts.Append(CultureInfo.InvariantCulture, $"{key} {readings.Count} readings, too few to fit (model confidence kept); ");
-                Console.WriteLine($"{key,-28} {readings.Count,7} readings: too few to fit, model confidence kept");
+                counts.Append(CultureInfo.InvariantCulture, $"{key} {readings.Count} readings, too few to fit on their own (the pooled curve, else the model confidence); ");
+                Console.WriteLine($"{key,-28} {readings.Count,7} readings: too few to fit on their own; the pooled curve, else the model confidence");
                 continue;
             }
 

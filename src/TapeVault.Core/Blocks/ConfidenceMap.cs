@@ -27,7 +27,8 @@ public enum ConfidenceGroup
 /// and <see cref="ConfidenceGroup"/>. Each map is a monotone step function fitted by pool-adjacent-violators
 /// (isotonic regression) on the trust benchmark's readings of tuning seeds only; it is data, stored beside this type
 /// in Calibration/confidence-map.json with the seeds, the reading counts and the command that refits it. Between
-/// steps the map interpolates linearly; a family or group the file does not hold keeps the model confidence.
+/// steps the map interpolates linearly; a family whose own curve for a group is missing (too few readings) takes the
+/// group's curve pooled over every family, and where that is missing too the model confidence stands.
 /// </summary>
 public sealed class ConfidenceMap
 {
@@ -67,6 +68,16 @@ public sealed class ConfidenceMap
     public static string Key(FormatFamily family, ConfidenceGroup group) =>
         string.Create(CultureInfo.InvariantCulture, $"{FamilyName(family)}/{group}");
 
+    /// <summary>
+    /// The key of a group's curve pooled over every family, used for a family whose own readings in the group were too
+    /// few to fit (partial pooling: the group's behaviour in other families is a better guess than none).
+    /// </summary>
+    public static string PooledKey(ConfidenceGroup group) =>
+        string.Create(CultureInfo.InvariantCulture, $"{PooledFamily}/{group}");
+
+    /// <summary>The family name of pooled curves.</summary>
+    public const string PooledFamily = "all";
+
     public static string FamilyName(FormatFamily family) => family switch
     {
         FormatFamily.PulseWidth => "pulse-width",
@@ -78,7 +89,7 @@ public sealed class ConfidenceMap
     /// <summary>The calibrated confidence of a reading of <paramref name="family"/> in <paramref name="group"/> whose model said <paramref name="model"/>.</summary>
     public double Map(FormatFamily family, ConfidenceGroup group, double model)
     {
-        if (!_curves.TryGetValue(Key(family, group), out var curve))
+        if (!_curves.TryGetValue(Key(family, group), out var curve) && !_curves.TryGetValue(PooledKey(group), out curve))
         {
             return model;
         }

@@ -25,6 +25,19 @@ public sealed partial class ConfidenceMapTests
     public void A_family_or_group_the_map_does_not_hold_keeps_the_model_confidence() =>
         Assert.Equal(0.42, ConfidenceMap.Parse(Map).Map(FormatFamily.Fsk, ConfidenceGroup.Clean, 0.42), 9);
 
+    [Fact]
+    public void A_family_without_its_own_curve_for_a_group_takes_the_curve_pooled_over_every_family()
+    {
+        var map = ConfidenceMap.Parse("""
+            { "curves": { "all/HoldsUnproven": { "readings": 700, "x": [0.1, 0.9], "y": [0.7, 0.95] },
+                          "fsk/HoldsUnproven": { "readings": 300, "x": [0.5], "y": [0.2] } } }
+            """);
+
+        Assert.Equal(0.2, map.Map(FormatFamily.Fsk, ConfidenceGroup.HoldsUnproven, 0.9), 9);
+        Assert.Equal(0.95, map.Map(FormatFamily.Biphase, ConfidenceGroup.HoldsUnproven, 0.999), 9);
+        Assert.Equal(0.31, map.Map(FormatFamily.Biphase, ConfidenceGroup.Unchecked, 0.31), 9);
+    }
+
     [Theory]
     [InlineData("""{ "curves": { "fsk/Clean": { "readings": 400, "x": [0.5, 0.4], "y": [0.1, 0.2] } } }""")]
     [InlineData("""{ "curves": { "fsk/Clean": { "readings": 400, "x": [0.4, 0.5], "y": [0.3, 0.2] } } }""")]
