@@ -5,6 +5,7 @@ using TapeVault.Archive.Curation;
 using TapeVault.Archive.Entities;
 using TapeVault.Archive.Ingest;
 using TapeVault.Archive.Jobs;
+using TapeVault.Archive.Tests.PostgreSql;
 using Xunit;
 
 namespace TapeVault.Archive.Tests;
