@@ -22,8 +22,8 @@ public static class CommandTree
             new UsersAddCommand(),
             new UsersListCommand(),
             new UsersResetCommand(),
-            new UsersDisableCommand(),
-            new UsersEnableCommand(),
+            UsersAccessCommand.Disable(),
+            UsersAccessCommand.Enable(),
         },
         new VerifyCommand(),
         new CommandGroup("export", "Export from the web app's archive.")

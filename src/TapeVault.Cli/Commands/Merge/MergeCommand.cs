@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.Globalization;
 using System.Text.Json;
+using System.Text.Json.Serialization;
 using TapeVault.Core.Decoding;
 using TapeVault.Core.Image;
 using TapeVault.Core.Merge;
@@ -158,88 +159,32 @@ public sealed class MergeCommand : CliCommand
         output.WriteLine("detector setting of the chosen reading. agree: captures whose valid readings hold the same bytes.");
     }
 
+    /// <summary>The merge report as JSON (the shape `--json` has always written; records below, camelCase).</summary>
     public static void WriteJson(Stream stream, TapeImage image)
     {
         ArgumentNullException.ThrowIfNull(image);
-        using var json = new Utf8JsonWriter(stream, new JsonWriterOptions { Indented = true });
-        json.WriteStartObject();
-        json.WriteString("profile", image.ProfileId);
-        json.WriteString("codeVersion", image.CodeVersion);
-        json.WriteString("createdUtc", image.CreatedUtc);
-        json.WriteStartArray("captures");
-        foreach (var c in image.Captures)
-        {
-            json.WriteStartObject();
-            json.WriteString("file", c.FileName);
-            json.WriteString("sha256", c.CaptureSha256);
-            json.WriteNumber("sampleRate", c.SampleRate);
-            json.WriteNumber("channels", c.Channels);
-            json.WriteNumber("durationSeconds", c.DurationSeconds);
-            json.WriteEndObject();
-        }
+        ReportSource Source(BlockProvenance s) =>
+            new(PassOf(image, s), s.CaptureSha256, s.SettingName, s.CodeVersion, s.StartSeconds, s.Confidence);
 
-        json.WriteEndArray();
-        json.WriteStartArray("positions");
-        foreach (var block in image.Blocks)
-        {
-            json.WriteStartObject();
-            json.WriteNumber("position", block.Position);
-            json.WriteString("key", block.Key);
-            json.WriteString("status", Status(block.Status));
-            json.WriteNumber("confidence", block.Confidence);
-            json.WriteString("headerHex", Convert.ToHexStringLower(block.Header.AsSpan()));
-            json.WriteString("payloadHex", block.PayloadHex);
-            json.WriteNumber("agreeingCaptures", block.AgreeingCaptures);
-            json.WriteBoolean("conflict", block.Conflict);
-            json.WriteStartArray("provenance");
-            foreach (var source in block.Sources)
-            {
-                WriteSource(json, image, source);
-            }
-
-            json.WriteEndArray();
-            json.WriteStartArray("conflictingReadings");
-            foreach (var loser in block.ConflictingPayloads)
-            {
-                json.WriteStartObject();
-                json.WriteString("payloadHex", Convert.ToHexStringLower(loser.Payload.AsSpan()));
-                json.WriteNumber("agreeingCaptures", loser.AgreeingCaptures);
-                json.WritePropertyName("source");
-                WriteSource(json, image, loser.Source);
-                json.WriteEndObject();
-            }
-
-            json.WriteEndArray();
-            json.WriteEndObject();
-        }
-
-        json.WriteEndArray();
-        json.WriteStartArray("files");
-        foreach (var file in image.Files)
-        {
-            json.WriteStartObject();
-            json.WriteString("name", file.Name);
-            json.WriteNumber("length", file.Length);
-            json.WriteNumber("firstPosition", file.FirstPosition);
-            json.WriteNumber("blockCount", file.BlockCount);
-            json.WriteBoolean("complete", file.Complete);
-            json.WriteEndObject();
-        }
-
-        json.WriteEndArray();
-        json.WriteEndObject();
-    }
-
-    private static void WriteSource(Utf8JsonWriter json, TapeImage image, BlockProvenance source)
-    {
-        json.WriteStartObject();
-        json.WriteNumber("pass", PassOf(image, source));
-        json.WriteString("captureSha256", source.CaptureSha256);
-        json.WriteString("setting", source.SettingName);
-        json.WriteString("codeVersion", source.CodeVersion);
-        json.WriteNumber("startSeconds", source.StartSeconds);
-        json.WriteNumber("confidence", source.Confidence);
-        json.WriteEndObject();
+        var report = new MergeReport(
+            image.ProfileId,
+            image.CodeVersion,
+            image.CreatedUtc,
+            [.. image.Captures.Select(c => new ReportCapture(c.FileName, c.CaptureSha256, c.SampleRate, c.Channels, c.DurationSeconds))],
+            [.. image.Blocks.Select(block => new ReportPosition(
+                block.Position,
+                block.Key,
+                Status(block.Status),
+                block.Confidence,
+                Convert.ToHexStringLower(block.Header.AsSpan()),
+                block.PayloadHex,
+                block.AgreeingCaptures,
+                block.Conflict,
+                [.. block.Sources.Select(Source)],
+                [.. block.ConflictingPayloads.Select(loser => new ReportConflict(
+                    Convert.ToHexStringLower(loser.Payload.AsSpan()), loser.AgreeingCaptures, Source(loser.Source)))]))],
+            [.. image.Files.Select(f => new ReportFile(f.Name, f.Length, f.FirstPosition, f.BlockCount, f.Complete))]);
+        JsonSerializer.Serialize(stream, report, MergeReportJson.Default.MergeReport);
     }
 
     private static string Truncate(string text, int length) => text.Length <= length ? text : string.Concat(text.AsSpan(0, length - 1), "…");
@@ -250,3 +195,35 @@ public sealed class MergeCommand : CliCommand
         public void Report(DecodeProgress value) => bar.Report((index + value.Fraction) / count);
     }
 }
+
+internal sealed record MergeReport(
+    string Profile,
+    string CodeVersion,
+    DateTimeOffset CreatedUtc,
+    IReadOnlyList<ReportCapture> Captures,
+    IReadOnlyList<ReportPosition> Positions,
+    IReadOnlyList<ReportFile> Files);
+
+internal sealed record ReportCapture(string File, string Sha256, int SampleRate, int Channels, double DurationSeconds);
+
+internal sealed record ReportPosition(
+    int Position,
+    string Key,
+    string Status,
+    double Confidence,
+    string HeaderHex,
+    string PayloadHex,
+    int AgreeingCaptures,
+    bool Conflict,
+    IReadOnlyList<ReportSource> Provenance,
+    IReadOnlyList<ReportConflict> ConflictingReadings);
+
+internal sealed record ReportSource(int Pass, string CaptureSha256, string Setting, string CodeVersion, double StartSeconds, double Confidence);
+
+internal sealed record ReportConflict(string PayloadHex, int AgreeingCaptures, ReportSource Source);
+
+internal sealed record ReportFile(string Name, long Length, int FirstPosition, int BlockCount, bool Complete);
+
+[JsonSourceGenerationOptions(PropertyNamingPolicy = JsonKnownNamingPolicy.CamelCase, WriteIndented = true)]
+[JsonSerializable(typeof(MergeReport))]
+internal sealed partial class MergeReportJson : JsonSerializerContext;
