@@ -90,7 +90,7 @@ public sealed class FskDecoder : ISymbolDecoder
     private readonly FskEncoding _fsk;
     private readonly ByteFraming _framing;
     private readonly bool _isStream;
-    private readonly BlockAssembler _assembler;
+    private readonly IBlockSink _blocks;
     private readonly double _sampleRate;
     private readonly CharacterLeadIn? _leader;
     private readonly byte[] _syncFirstBytes = [];
@@ -134,13 +134,13 @@ public sealed class FskDecoder : ISymbolDecoder
     private int _heldCount;
     private BlockStart _heldEvidence;
 
-    public FskDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, BlockAssembler assembler)
+    public FskDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, IBlockSink blocks)
     {
         ArgumentNullException.ThrowIfNull(profile);
         _fsk = profile.Fsk ?? throw new ArgumentException("The profile is not an FSK profile.", nameof(profile));
         _framing = profile.Framing;
         _isStream = profile.Layout.IsStream;
-        _assembler = assembler;
+        _blocks = blocks;
         _sampleRate = sampleRate;
         _tones = new ToneDetector(_fsk.Baud, sampleRate);
         _speed = new MarkPeriodSpeedTracker(sampleRate / _fsk.MarkHz * (countsBothEdges ? 0.5 : 1), _tones.Window);
@@ -272,7 +272,7 @@ public sealed class FskDecoder : ISymbolDecoder
                 {
                     // The line is idle while the block still expects characters: the block ends here, and the mark
                     // tone that follows may be the next block's lead-in.
-                    _assembler.End(_lastCharEnd);
+                    _blocks.End(_lastCharEnd);
                     _inBlock = false;
                 }
 
@@ -299,7 +299,7 @@ public sealed class FskDecoder : ISymbolDecoder
     {
         if (_inBlock)
         {
-            _assembler.End(_lastCharEnd);
+            _blocks.End(_lastCharEnd);
             _inBlock = false;
         }
     }
@@ -433,7 +433,7 @@ public sealed class FskDecoder : ISymbolDecoder
 
         if (_inBlock)
         {
-            _assembler.End(_lastCharEnd);
+            _blocks.End(_lastCharEnd);
             _inBlock = false;
             _resuming = _isStream;
         }
@@ -562,7 +562,7 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private void BeginBlock(double start, BlockStart evidence, bool confirmed)
     {
-        _assembler.Begin(start - 0.5 * _tones.Window, EvidenceOf(evidence, confirmed));
+        _blocks.Begin(start - 0.5 * _tones.Window, EvidenceOf(evidence, confirmed));
         _inBlock = true;
         _resuming = false;
         if (evidence == BlockStart.Leader)
@@ -617,16 +617,16 @@ public sealed class FskDecoder : ISymbolDecoder
             }
         }
 
-        int first = _assembler.DecisionCount;
+        int first = _blocks.DecisionCount;
         for (int b = 0; b < levels.Length; b++)
         {
             float distance = AsyncCharacterFramer.Distance(b, levels.Length, levels[b]);
-            _assembler.AddDecision(distance, 1 - distance, 1);
+            _blocks.AddDecision(distance, 1 - distance, 1);
         }
 
-        _assembler.NoteLevel(_level);
-        _assembler.NoteSpeed(_speed.Speed);
-        if (_assembler.AddByte((byte)value, first, framingOk, start, confirmed ? 0 : UnconfirmedFramingDoubt))
+        _blocks.NoteLevel(_level);
+        _blocks.NoteSpeed(_speed.Speed);
+        if (_blocks.AddByte((byte)value, first, framingOk, start, confirmed ? 0 : UnconfirmedFramingDoubt))
         {
             _inBlock = false;
         }
