@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace TapeVault.Core.Pulses;
 
 /// <summary>
@@ -36,6 +38,7 @@ public struct MarkToneRun
     /// start bit's crossing comes, and it survives dips below zero shorter than a quarter bit: noise makes those in
     /// any lead-in heard at low SNR, and a real space lasts a whole bit.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public void Step(float d, double bitSamples)
     {
         _negativeRun = d < 0 ? _negativeRun + 1 : 0;

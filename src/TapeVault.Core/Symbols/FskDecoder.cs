@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Bytes;
 using TapeVault.Core.Detection;
@@ -97,6 +98,7 @@ public sealed class FskDecoder : ISymbolDecoder
     private bool _resuming;
     private bool _inBlock;
     private double _lastCharEnd;
+    private double _timingSpeed = double.NaN;
 
     // What would begin a block with the character being read, and whether its start bit is confirmed.
     private BlockStart _charEvidence;
@@ -126,6 +128,8 @@ public sealed class FskDecoder : ISymbolDecoder
             byte[] syncFirstBytes = BlockLayoutCodec.For(profile.Layout).SyncField is { } sync ? [.. sync.Expected.Select(e => e[0])] : [];
             _leader = new CharacterLeader(_framing, leader, _fsk.Baud, sampleRate, syncFirstBytes);
         }
+
+        KeepTiming();
     }
 
     /// <summary>What a block began after: the evidence the format's own signal gives that a block starts there.</summary>
@@ -154,12 +158,26 @@ public sealed class FskDecoder : ISymbolDecoder
 
     private bool InLeader => _hasLeader && _leader.InLeader;
 
-    private double BitSamples => _sampleRate / (_fsk.Baud * _speed.Speed);
+    /// <summary>One bit in samples at the measured speed (worked out again only when the speed changes: see <see cref="KeepTiming"/>).</summary>
+    private double BitSamples { get; set; }
 
     /// <summary>One character frame (start, data, parity and all stop bits) in samples at the measured speed.</summary>
-    private double FrameSamples => _framing.BitsPerByte * BitSamples;
+    private double FrameSamples { get; set; }
 
-    private double IdleLineSamples => IdleLineCharacters * FrameSamples;
+    private double IdleLineSamples { get; set; }
+
+    /// <summary>The bit, frame and idle-line lengths follow the speed; they are worked out once for each speed, not once a sample.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private void KeepTiming()
+    {
+        if (_speed.Speed != _timingSpeed)
+        {
+            _timingSpeed = _speed.Speed;
+            BitSamples = _sampleRate / (_fsk.Baud * _speed.Speed);
+            FrameSamples = _framing.BitsPerByte * BitSamples;
+            IdleLineSamples = IdleLineCharacters * FrameSamples;
+        }
+    }
 
     /// <summary>Edges only calibrate the speed, from the mark tone (and give the level the block notes).</summary>
     public void OnEdges(ReadOnlySpan<Edge> edges)
@@ -176,69 +194,100 @@ public sealed class FskDecoder : ISymbolDecoder
     {
         for (int i = 0; i < tones.Length; i++)
         {
-            bool inChar = _framer.InCharacter;
-            bool inLeader = InLeader;
-            float d = _tones.Next(tones.Mark(i), tones.Space(i), learnMark: inChar || _inBlock || inLeader || _mark.HeardLeadIn, learnSpace: inChar);
-            double n = chunkStart + i;
-            _speed.Check(d, n);
-            if (_hasLeader && !_inBlock && !inLeader && _leader.Hunt(d, _previousD, n, BitSamples))
-            {
-                FoundLeader(n);
-            }
-
-            // Half a bit without carrier is a loss of signal; a shorter fade (deep noise can null a one-bit window for
-            // a moment) is not.
-            _noCarrierRun = _tones.Carrier ? 0 : _noCarrierRun + 1;
-            if (_noCarrierRun >= 0.5 * BitSamples && (inChar || _inBlock || _held.Count > 0 || InLeader))
-            {
-                LoseSignal();
-            }
-            else if (inChar)
-            {
-                switch (_framer.Step(d, _previousD, n, BitSamples))
-                {
-                    case CharacterStep.FalseStart:
-                        _mark.FalseStart(n - _framer.Start);
-                        break;
-                    case CharacterStep.Complete:
-                        CompleteCharacter(n);
-                        break;
-                }
-            }
-            else
-            {
-                if (d < 0 && _previousD >= 0 && _mark.Samples >= 0.25 * BitSamples)
-                {
-                    // A fall through zero: D crosses zero half a window after a mark-to-space boundary.
-                    TryStartCharacter(n - 1 + _previousD / (_previousD - d));
-                }
-
-                _mark.Step(d, BitSamples);
-                if (_inBlock && n - _lastCharEnd >= IdleLineSamples)
-                {
-                    // The line is idle while the block still expects characters: the block ends here, and the mark
-                    // tone that follows may be the next block's lead-in.
-                    _blocks.End(_lastCharEnd);
-                    _inBlock = false;
-                }
-
-                if (_held.Count > 0 && n - _lastCharEnd >= FrameSamples)
-                {
-                    // Characters held before a block must follow one another back to back.
-                    _held.Clear();
-                }
-
-                if (InLeader && n - _lastCharEnd >= FrameSamples)
-                {
-                    // So must a leader's: a frame without a character ends it.
-                    _leader.Break();
-                }
-            }
-
-            _previousD = d;
+            Step(tones.Mark(i), tones.Space(i), chunkStart + i);
         }
 
         _speed.EndChunk();
+    }
+
+    /// <summary>
+    /// Two settings' decoders over the same chunk, sample by sample in turn. Each decoder's work hangs on its own last
+    /// sample (running levels and counts), and the two are independent, so the processor overlaps one's with the
+    /// other's: the same decisions as two <see cref="OnTones(ToneLane, long)"/> calls, in less time.
+    /// </summary>
+    public static void OnTones(FskDecoder first, ToneLane firstTones, FskDecoder second, ToneLane secondTones, long chunkStart)
+    {
+        ArgumentNullException.ThrowIfNull(first);
+        ArgumentNullException.ThrowIfNull(second);
+        if (firstTones.Length != secondTones.Length)
+        {
+            throw new ArgumentException("Both settings' tones must cover the same chunk.", nameof(secondTones));
+        }
+
+        for (int i = 0; i < firstTones.Length; i++)
+        {
+            first.Step(firstTones.Mark(i), firstTones.Space(i), chunkStart + i);
+            second.Step(secondTones.Mark(i), secondTones.Space(i), chunkStart + i);
+        }
+
+        first._speed.EndChunk();
+        second._speed.EndChunk();
+    }
+
+    /// <summary>One sample: the mark and space energies of the window that ends at <paramref name="sample"/>.</summary>
+    private void Step(double mark, double space, long sample)
+    {
+        bool inChar = _framer.InCharacter;
+        bool inLeader = InLeader;
+        float d = _tones.Next(mark, space, learnMark: inChar || _inBlock || inLeader || _mark.HeardLeadIn, learnSpace: inChar);
+        double n = sample;
+        _speed.Check(d, n);
+        KeepTiming();
+        if (_hasLeader && !_inBlock && !inLeader && _leader.Hunt(d, _previousD, n, BitSamples))
+        {
+            FoundLeader(n);
+        }
+
+        // Half a bit without carrier is a loss of signal; a shorter fade (deep noise can null a one-bit window for
+        // a moment) is not.
+        _noCarrierRun = _tones.Carrier ? 0 : _noCarrierRun + 1;
+        if (_noCarrierRun >= 0.5 * BitSamples && (inChar || _inBlock || _held.Count > 0 || InLeader))
+        {
+            LoseSignal();
+        }
+        else if (inChar)
+        {
+            switch (_framer.Step(d, _previousD, n, BitSamples))
+            {
+                case CharacterStep.FalseStart:
+                    _mark.FalseStart(n - _framer.Start);
+                    break;
+                case CharacterStep.Complete:
+                    CompleteCharacter(n);
+                    break;
+            }
+        }
+        else
+        {
+            if (d < 0 && _previousD >= 0 && _mark.Samples >= 0.25 * BitSamples)
+            {
+                // A fall through zero: D crosses zero half a window after a mark-to-space boundary.
+                TryStartCharacter(n - 1 + _previousD / (_previousD - d));
+            }
+
+            _mark.Step(d, BitSamples);
+            if (_inBlock && n - _lastCharEnd >= IdleLineSamples)
+            {
+                // The line is idle while the block still expects characters: the block ends here, and the mark
+                // tone that follows may be the next block's lead-in.
+                _blocks.End(_lastCharEnd);
+                _inBlock = false;
+            }
+
+            if (_held.Count > 0 && n - _lastCharEnd >= FrameSamples)
+            {
+                // Characters held before a block must follow one another back to back.
+                _held.Clear();
+            }
+
+            if (InLeader && n - _lastCharEnd >= FrameSamples)
+            {
+                // So must a leader's: a frame without a character ends it.
+                _leader.Break();
+            }
+        }
+
+        _previousD = d;
     }
 
     public void Finish(double endSample)
@@ -401,6 +450,7 @@ public sealed class FskDecoder : ISymbolDecoder
         {
             case LeaderCharacter.Leader when _leader.RunFound:
                 _speed.Calibrate(_leader.Speed);
+                KeepTiming();
                 break;
             case LeaderCharacter.SyncStart:
                 BeginBlock(start, BlockStart.Leader, confirmed: true);
