@@ -3,7 +3,12 @@ namespace TapeVault.Core.Blocks;
 // Blocks whose end the format marks on tape.
 public sealed partial class BlockAssembler
 {
-    private bool _endMarked;
+    /// <summary>
+    /// Whether the format marks each block's end (set from the profile): a block is complete at its end marker
+    /// (<see cref="EndAtMarker"/>), not when its layout's length is reached, so a block of another kind than expected
+    /// is still read whole.
+    /// </summary>
+    private readonly bool _endMarked;
 
     /// <summary>
     /// The format's end-of-block marker followed the bytes read so far: the block ends here. A block that holds
@@ -42,10 +47,4 @@ public sealed partial class BlockAssembler
             || (_expectedTotal != int.MaxValue && _bytes.Count < _expectedTotal);
         Emit(sample, truncated: !_layout.IsStream && shortOfLayout);
     }
-
-    /// <summary>
-    /// The format marks each block's end: a block is complete at its end marker (<see cref="EndAtMarker"/>), not when
-    /// its layout's length is reached, so a block of another kind than expected is still read whole.
-    /// </summary>
-    public void EndsAtMarker() => _endMarked = true;
 }

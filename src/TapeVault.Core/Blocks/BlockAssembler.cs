@@ -7,12 +7,12 @@ namespace TapeVault.Core.Blocks;
 /// <summary>
 /// Turns the bytes of one detector setting into block candidates, following the profile's layout: header, payload
 /// (fixed length or from a length field), checksum. A stream layout makes one unchecked block from a lead-in to the
-/// next loss of signal. The symbol decoders say where a block begins and on what evidence, hand over each decision
-/// (<see cref="AddDecision"/>, <see cref="AddGuessedDecision"/>) and byte, and say when the signal is lost; what is
-/// missing after a loss of signal is the next block's doubt (it begins on no evidence). <see cref="BlockScorer"/>
+/// next loss of signal. The symbol decoders reach it only through <see cref="IBlockSink"/>: they say where a block
+/// begins and on what evidence, hand over each decision (read or guessed) and byte, and say when the signal is lost;
+/// what is missing after a loss of signal is the next block's doubt (it begins on no evidence). <see cref="BlockScorer"/>
 /// judges each finished block.
 /// </summary>
-public sealed partial class BlockAssembler
+public sealed partial class BlockAssembler : IBlockSink
 {
     private BlockLayout _layout;
     private BlockScorer _scorer;
@@ -47,6 +47,9 @@ public sealed partial class BlockAssembler
         _settingName = settingName;
         _sampleRate = sampleRate;
         _output = output;
+
+        // A format that marks each block's end on tape: a block is complete at its end marker, not at its layout's length.
+        _endMarked = profile.PulseWidth is { EndOfBlock.Count: > 0 };
     }
 
     /// <summary>The decisions of the block being read; decoders hand them over through <see cref="AddDecision"/> and <see cref="AddGuessedDecision"/> only.</summary>
@@ -114,9 +117,6 @@ public sealed partial class BlockAssembler
         Decisions.Add(0, 1, 1);
         _guessedDecisions++;
     }
-
-    /// <summary>A bit of the block was not read at all (a bridged dropout) and stands as a guess: see <see cref="AddGuessedDecision"/>.</summary>
-    public void AddErasedBit() => AddGuessedDecision();
 
     public void NoteSpeed(double speed)
     {

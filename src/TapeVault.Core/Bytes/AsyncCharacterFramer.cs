@@ -79,7 +79,12 @@ public struct AsyncCharacterFramer
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public CharacterStep Step(float d, float previousD, double n, double bitSamples)
     {
-        TrackPhase(d, previousD, n, bitSamples);
+        // Only a change of tone after the start bit moves the timing: most samples cost this one test.
+        if ((d < 0) != (previousD < 0) && _bitIndex != 0)
+        {
+            TrackPhase(d, previousD, n, bitSamples);
+        }
+
         return n >= _nextBitTime ? DecideBit(d, bitSamples) : CharacterStep.Reading;
     }
 
@@ -104,11 +109,6 @@ public struct AsyncCharacterFramer
 
     private void TrackPhase(float d, float previousD, double n, double bitSamples)
     {
-        if ((d < 0) == (previousD < 0) || _bitIndex == 0)
-        {
-            return;
-        }
-
         // A change of tone inside the character marks a bit boundary: its D crossing should fall a whole number of bits after the start's.
         double crossing = n - 1 + previousD / (previousD - d);
         double bits = (crossing - Start) / bitSamples;

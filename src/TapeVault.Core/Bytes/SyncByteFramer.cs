@@ -11,7 +11,7 @@ namespace TapeVault.Core.Bytes;
 public sealed class SyncByteFramer
 {
     private readonly ByteFraming _framing;
-    private readonly BlockAssembler _assembler;
+    private readonly IBlockSink _blocks;
     private readonly int _frameBits;
     private int _bitIndex;
     private int _data;
@@ -19,10 +19,10 @@ public sealed class SyncByteFramer
     private bool _framingOk;
     private int _firstDecision;
 
-    public SyncByteFramer(ByteFraming framing, BlockAssembler assembler)
+    public SyncByteFramer(ByteFraming framing, IBlockSink blocks)
     {
         _framing = framing ?? throw new ArgumentNullException(nameof(framing));
-        _assembler = assembler ?? throw new ArgumentNullException(nameof(assembler));
+        _blocks = blocks ?? throw new ArgumentNullException(nameof(blocks));
         _frameBits = framing.BitsPerByte;
         Reset();
     }
@@ -85,6 +85,6 @@ public sealed class SyncByteFramer
         byte value = (byte)_data;
         bool ok = _framingOk;
         Reset();
-        return _assembler.AddByte(value, _firstDecision, ok, sample);
+        return _blocks.AddByte(value, _firstDecision, ok, sample);
     }
 }

@@ -171,8 +171,8 @@ public readonly ref struct ToneLane
     public int Length { get; }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public double Mark(int n) => _all[(2 * ToneBank.LanesPerQuad * n) + _lane];
+    public double Mark(int n) => _all[unchecked((2 * ToneBank.LanesPerQuad * n) + _lane)];
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public double Space(int n) => _all[(2 * ToneBank.LanesPerQuad * n) + ToneBank.LanesPerQuad + _lane];
+    public double Space(int n) => _all[unchecked((2 * ToneBank.LanesPerQuad * n) + ToneBank.LanesPerQuad + _lane)];
 }

@@ -20,6 +20,9 @@ public struct ToneDetector
     /// <summary>|raw D| above this: the correlator window holds (almost) only one tone, whose level it then shows.</summary>
     private const double PureTone = 0.9;
 
+    /// <summary>A hair inside <see cref="PureTone"/>: a difference of energies below this share of their total cannot make a raw D past it.</summary>
+    private const double PureToneBound = 0.8999;
+
     /// <summary>The largest energy ratio between the tones that is rebalanced: 16, i.e. 12 dB.</summary>
     private const double MaximumToneImbalance = 16;
 
@@ -34,11 +37,16 @@ public struct ToneDetector
     private readonly double _silenceEnergy;
     private readonly double _referenceGain;
     private readonly double _levelGain;
+    private readonly double _settledSamples;
     private double _carrierReference;
     private double _markLevel;
     private double _spaceLevel;
     private double _markLevelSamples;
     private double _spaceLevelSamples;
+
+    // The mark level over the space level, bounded (see Next); kept whenever a level changes, valid while both are
+    // known, so that a window costs no division for it.
+    private double _balance;
 
     public ToneDetector(double baud, double sampleRate)
     {
@@ -51,6 +59,7 @@ public struct ToneDetector
         // hold one tone alone.
         _referenceGain = 1.0 / (0.25 * sampleRate);
         _levelGain = 1.0 / (2.0 * Window);
+        _settledSamples = 2.0 * Window;
     }
 
     /// <summary>The correlator window, in samples: one bit at nominal speed.</summary>
@@ -72,8 +81,9 @@ public struct ToneDetector
         double total = mark + space;
 
         // Below 2 % of the usual carrier energy there is no signal to decide on: a dropout, or silence.
-        Carrier = total > 0.02 * _carrierReference && total > _silenceEnergy;
-        if (!Carrier)
+        bool carrier = total > 0.02 * _carrierReference && total > _silenceEnergy;
+        Carrier = carrier;
+        if (!carrier)
         {
             return 0;
         }
@@ -90,30 +100,61 @@ public struct ToneDetector
         // space and late at every rise to mark, and the bit timing, which hangs on those crossings, would slip.
         // A level starts as the plain mean of what has been seen (the first windows that pass the test are the least
         // pure ones, at the edge of a lone bit) and becomes a running average once it has enough behind it.
-        double raw = (mark - space) / total;
-        if (raw > PureTone && learnMark)
+        //
+        // raw D = (mark − space)/total is past ±PureTone only where the difference is past ±PureTone·total, less
+        // rounding: the division is made only there (PureToneBound is a hair inside PureTone, far more than the
+        // rounding of one division), and so only for windows that may teach a level.
+        double difference = mark - space;
+        if (learnMark && difference > PureToneBound * total)
         {
-            _markLevelSamples++;
-            _markLevel += (mark - _markLevel) * Math.Max(_levelGain, 1.0 / _markLevelSamples);
+            double raw = difference / total;
+            if (raw > PureTone)
+            {
+                _markLevelSamples++;
+                _markLevel += (mark - _markLevel) * LevelStep(_markLevelSamples);
+                KeepBalance();
+            }
         }
-        else if (raw < -PureTone && learnSpace)
+        else if (learnSpace && difference < -PureToneBound * total)
         {
-            _spaceLevelSamples++;
-            _spaceLevel += (space - _spaceLevel) * Math.Max(_levelGain, 1.0 / _spaceLevelSamples);
+            double raw = difference / total;
+            if (raw < -PureTone)
+            {
+                _spaceLevelSamples++;
+                _spaceLevel += (space - _spaceLevel) * LevelStep(_spaceLevelSamples);
+                KeepBalance();
+            }
         }
 
         if (_markLevel <= 0 || _spaceLevel <= 0)
         {
             // Until both tones have been heard alone, assume they are balanced.
-            return (float)raw;
+            return (float)(difference / total);
         }
 
-        // Rebalancing is bounded: past 12 dB between the tones (more than any deck's high-frequency loss, common
-        // practice) the weaker tone is mostly gone, and lifting it further would lift noise into confident decisions.
-        double balance = Math.Clamp(_markLevel / _spaceLevel, 1.0 / MaximumToneImbalance, MaximumToneImbalance);
-        double m = mark / balance;
+        double m = mark / _balance;
         double s = space;
         return (float)((m - s) / (m + s));
+    }
+
+    /// <summary>
+    /// The gain of a level after <paramref name="samples"/> windows taught it: the plain mean (1/samples) until that
+    /// falls below the running average's gain. Past twice the window, 1/samples is below 1/(2·window) whatever the
+    /// rounding, so the division is left out there.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private readonly double LevelStep(double samples) => samples > _settledSamples ? _levelGain : Math.Max(_levelGain, 1.0 / samples);
+
+    /// <summary>
+    /// Rebalancing is bounded: past 12 dB between the tones (more than any deck's high-frequency loss, common
+    /// practice) the weaker tone is mostly gone, and lifting it further would lift noise into confident decisions.
+    /// </summary>
+    private void KeepBalance()
+    {
+        if (_markLevel > 0 && _spaceLevel > 0)
+        {
+            _balance = Math.Clamp(_markLevel / _spaceLevel, 1.0 / MaximumToneImbalance, MaximumToneImbalance);
+        }
     }
 
     /// <summary>A new recording learns its own tone balance: the space level starts again from the next pure window.</summary>

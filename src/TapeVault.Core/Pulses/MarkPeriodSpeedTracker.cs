@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using TapeVault.Core.Edges;
 
 namespace TapeVault.Core.Pulses;
@@ -95,7 +96,17 @@ public struct MarkPeriodSpeedTracker
     }
 
     /// <summary>Feeds the estimate with the intervals whose centred window ends at sample <paramref name="n"/>, if its D calls it pure mark.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public void Check(float d, double n)
+    {
+        // Most samples have no interval due: the test is all they cost.
+        if (_pendingHead < _pendingCount && _pending[_pendingHead].CheckAt <= n)
+        {
+            CheckDue(d, n);
+        }
+    }
+
+    private void CheckDue(float d, double n)
     {
         while (_pendingHead < _pendingCount && _pending[_pendingHead].CheckAt <= n)
         {

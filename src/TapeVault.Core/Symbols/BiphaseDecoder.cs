@@ -45,7 +45,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     private readonly BiphaseEncoding _encoding;
     private readonly PulseClassifier _classifier;
     private readonly double _sampleRate;
-    private readonly BlockAssembler _assembler;
+    private readonly IBlockSink _blocks;
     private readonly SyncByteFramer _framer;
     private readonly ulong _syncPattern;
     private readonly ulong _syncMask;
@@ -67,14 +67,14 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     private int _bridgeCount;
     private int _bridgeMids;
 
-    public BiphaseDecoder(FormatProfile profile, double sampleRate, BlockAssembler assembler)
+    public BiphaseDecoder(FormatProfile profile, double sampleRate, IBlockSink blocks)
     {
         ArgumentNullException.ThrowIfNull(profile);
         _encoding = profile.Biphase ?? throw new ArgumentException("The profile is not a biphase profile.", nameof(profile));
         _classifier = new PulseClassifier([_encoding.CellSeconds / 2, _encoding.CellSeconds], outerRatio: 1.45);
         _sampleRate = sampleRate;
-        _assembler = assembler;
-        _framer = new SyncByteFramer(profile.Framing, assembler);
+        _blocks = blocks;
+        _framer = new SyncByteFramer(profile.Framing, blocks);
 
         // A lead-in of equal bits has a transition every half cell, one of alternating bits every whole cell: either
         // way a run of near-equal intervals, found at any speed in range.
@@ -171,8 +171,8 @@ public sealed class BiphaseDecoder : ISymbolDecoder
                 case Mode.Data:
                     if (_mode == Mode.Data)
                     {
-                        _assembler.NoteLevel(edge.Level);
-                        _assembler.NoteSpeed(_speed.Speed);
+                        _blocks.NoteLevel(edge.Level);
+                        _blocks.NoteSpeed(_speed.Speed);
                     }
 
                     Follow(decision, seconds, bit, edge.Sample);
@@ -187,7 +187,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     {
         if (_mode == Mode.Data)
         {
-            _assembler.End(sample);
+            _blocks.End(sample);
         }
 
         _mode = Mode.Hunting;
@@ -223,7 +223,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     {
         if (_bitFirstDecision < 0 || !_atBoundary)
         {
-            _bitFirstDecision = _assembler.DecisionCount;
+            _bitFirstDecision = _blocks.DecisionCount;
         }
 
         if (!decision.IsValid || (decision.Class == Whole && _atBoundary))
@@ -254,7 +254,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
                 return;
             }
 
-            _assembler.AddDecision(decision.Distance, decision.Residual, decision.Scale);
+            _blocks.AddDecision(decision.Distance, decision.Residual, decision.Scale);
         }
 
         if (decision.Distance > 0.5 * decision.Scale)
@@ -292,7 +292,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
                 _leadIn.Reset();
                 _clock.Start(sample, _encoding.CellSeconds * _sampleRate / _speed.Speed);
                 _framer.Reset();
-                _assembler.Begin(sample, BlockStartEvidence.LeadInAndSync);
+                _blocks.Begin(sample, BlockStartEvidence.LeadInAndSync);
             }
             else if (bit && _bitsSinceLeadIn > 4 * _encoding.SyncBits.Length)
             {
@@ -303,7 +303,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
             return;
         }
 
-        int first = _bitFirstDecision >= 0 ? _bitFirstDecision : _assembler.DecisionCount;
+        int first = _bitFirstDecision >= 0 ? _bitFirstDecision : _blocks.DecisionCount;
         _bitFirstDecision = -1;
         if (_framer.AddBit(bit, first, sample))
         {
@@ -399,8 +399,8 @@ public sealed class BiphaseDecoder : ISymbolDecoder
 
         for (long cell = 1; cell < firstCell; cell++)
         {
-            _bitFirstDecision = _assembler.DecisionCount;
-            _assembler.AddErasedBit();
+            _bitFirstDecision = _blocks.DecisionCount;
+            _blocks.AddGuessedDecision();
             EmitBit(false, _clock.LastMid + (cell * _clock.Cell));
             if (_mode != Mode.Data)
             {
@@ -413,21 +413,21 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         for (int i = 0; i < _bridgeCount; i++)
         {
             var edge = _bridge[i];
-            int decisionIndex = _assembler.DecisionCount;
+            int decisionIndex = _blocks.DecisionCount;
             if (i == 0)
             {
-                _assembler.AddErasedBit();
+                _blocks.AddGuessedDecision();
             }
             else
             {
                 var decision = _classifier.Classify((edge.Sample - _bridge[i - 1].Sample) / _sampleRate, _speed.Speed);
                 if (decision.IsValid)
                 {
-                    _assembler.AddDecision(decision.Distance, decision.Residual, decision.Scale);
+                    _blocks.AddDecision(decision.Distance, decision.Residual, decision.Scale);
                 }
                 else
                 {
-                    _assembler.AddGuessedDecision();
+                    _blocks.AddGuessedDecision();
                 }
             }
 

@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Bytes;
 using TapeVault.Core.Detection;
@@ -8,11 +9,15 @@ using TapeVault.Core.Pulses;
 namespace TapeVault.Core.Symbols;
 
 /// <summary>
-/// Frequency-shift keying, framed like a serial line: the policy of when blocks begin and end. The stages under it
-/// are the <see cref="ToneDetector"/> (the soft decision D, positive for mark, and whether there is a carrier), the
-/// <see cref="MarkPeriodSpeedTracker"/> (the playback speed from the mark tone's periods) and the
-/// <see cref="AsyncCharacterFramer"/> (a fall of D through zero after enough mark tone is a start bit; the other bits
-/// are read one bit period apart from it).
+/// Frequency-shift keying, framed like a serial line: the policy of when blocks begin and end, over the stages that
+/// do the work, each in its own folder: the <see cref="ToneDetector"/> (Detection: the soft decision D, positive for
+/// mark, and whether there is a carrier, from the <see cref="ToneBank"/>'s energies), the
+/// <see cref="MarkPeriodSpeedTracker"/> and <see cref="MarkToneRun"/> (Pulses: the playback speed from the mark tone's
+/// periods; how long the line has carried mark), and the <see cref="AsyncCharacterFramer"/>,
+/// <see cref="CharacterGrid"/>, <see cref="HeldCharacters"/>, <see cref="CharacterLeader"/> and
+/// <see cref="FrameAlignment"/> (Bytes: a fall of D through zero after enough mark tone is a start bit, the other bits
+/// are read one bit period apart from it; where characters may start; a block's first characters; a leader of
+/// characters). Decisions and bytes go to the block stage through <see cref="IBlockSink"/>.
 /// <para>
 /// A block begins only where the recording says one may: after a lead-in (mostly mark tone for the profile's minimum
 /// lead-in, ending in a whole character of unbroken mark, longer than any character holds) or after an idle line (a
@@ -52,15 +57,6 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private const double IdleLineCharacters = 3;
 
-    /// <summary>How far, in bits, a start bit after a loss of signal may lie off the character grid from before it.</summary>
-    private const double GridToleranceBits = 0.3;
-
-    /// <summary>How much the grid's uncertainty grows per bit of gap: a speed error of 0.15 % (wow the tracking missed).</summary>
-    private const double GridDriftPerBit = 0.0015;
-
-    /// <summary>Past this uncertainty a whole bit's slip can no longer be told from drift and the grid is not used.</summary>
-    private const double MaximumGridToleranceBits = 0.45;
-
     /// <summary>
     /// The chance that a character framed from a start bit nothing confirmed (taken after a loss of signal with no
     /// grid to hold it, or on a grid that itself began so) sits whole bits off: lower-case text framed a few bits
@@ -71,7 +67,7 @@ public sealed class FskDecoder : ISymbolDecoder
     private const float UnconfirmedFramingDoubt = 0.05f;
 
     /// <summary>Characters that must follow one another back to back before a block begins with them.</summary>
-    private const int HeldCharacters = 2;
+    private const int HeldCharacterCount = 2;
 
     /// <summary>
     /// The least decision distance (D signed toward the start and stop bits' values, |D| for the others) of a character
@@ -81,93 +77,59 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private const float HeldCharacterDistance = 0.5f;
 
-    /// <summary>Characters in a row, neither the leader's nor a sync's first, after which a leader counts as lost.</summary>
-    private const int LeaderMisses = 2;
-
-    /// <summary>How far, in bits, one leader character's start may lie from where the run of them so far puts it.</summary>
-    private const double LeaderJitterBits = 0.4;
-
     private readonly FskEncoding _fsk;
     private readonly ByteFraming _framing;
     private readonly bool _isStream;
-    private readonly BlockAssembler _assembler;
+    private readonly IBlockSink _blocks;
     private readonly double _sampleRate;
-    private readonly CharacterLeadIn? _leader;
-    private readonly byte[] _syncFirstBytes = [];
-    private LeaderHunt _hunt;
-    private LeadInFinder _leaderRun;
-    private bool _inLeader;
-    private double _leaderLastStart;
-    private int _leaderMisses;
-    private readonly double _evidenceGain;
+    private readonly bool _hasLeader;
+    private CharacterLeader _leader;
     private ToneDetector _tones;
     private MarkPeriodSpeedTracker _speed;
+    private MarkToneRun _mark;
     private AsyncCharacterFramer _framer;
+    private CharacterGrid _grid;
     private FrameAlignment _alignment;
+    private readonly HeldCharacters _held;
+    private BlockStart _heldEvidence;
     private float _previousD;
     private float _level;
     private double _noCarrierRun;
     private bool _resuming;
-    private double _markRun;
-    private double _markRunBeforeStart;
-    private int _negativeRun;
-    private double _markEvidence;
     private bool _inBlock;
     private double _lastCharEnd;
-    private double _gridStart = double.NaN;
+    private double _timingSpeed = double.NaN;
 
     // What would begin a block with the character being read, and whether its start bit is confirmed.
     private BlockStart _charEvidence;
     private bool _charConfirmed = true;
 
-    // Whether the character grid goes back to a confirmed start bit (after a lead-in or an idle line, or ruled the
-    // only framing by the characters themselves), and whether the block in progress is still finding that out.
-    private bool _gridConfirmed = true;
+    // Whether the block in progress is still finding out from its own characters where they may be framed.
     private bool _checkingAlignment;
 
-    // A block's first characters, held until enough of them have followed one another (see Hold).
-    private readonly float[] _heldLevels;
-    private readonly int[] _heldValue = new int[HeldCharacters];
-    private readonly double[] _heldStart = new double[HeldCharacters];
-    private readonly bool[] _heldConfirmed = new bool[HeldCharacters];
-    private readonly bool[] _heldFramingOk = new bool[HeldCharacters];
-    private int _heldCount;
-    private BlockStart _heldEvidence;
-
-    public FskDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, BlockAssembler assembler)
+    public FskDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, IBlockSink blocks)
     {
         ArgumentNullException.ThrowIfNull(profile);
         _fsk = profile.Fsk ?? throw new ArgumentException("The profile is not an FSK profile.", nameof(profile));
         _framing = profile.Framing;
         _isStream = profile.Layout.IsStream;
-        _assembler = assembler;
+        _blocks = blocks;
         _sampleRate = sampleRate;
         _tones = new ToneDetector(_fsk.Baud, sampleRate);
         _speed = new MarkPeriodSpeedTracker(sampleRate / _fsk.MarkHz * (countsBothEdges ? 0.5 : 1), _tones.Window);
         _framer = new AsyncCharacterFramer(_framing);
+        _grid = new CharacterGrid(_framing);
         _alignment = new FrameAlignment(_framing);
-        _heldLevels = new float[HeldCharacters * _framer.FrameBits];
-        double leadInSamples = Math.Max(_fsk.LeadInMinimumSeconds * sampleRate, 2.0 * _tones.Window);
-        _evidenceGain = 2.0 / leadInSamples;
+        _held = new HeldCharacters(HeldCharacterCount, _framer.FrameBits);
+        _mark = new MarkToneRun(Math.Max(_fsk.LeadInMinimumSeconds * sampleRate, 2.0 * _tones.Window));
         if (_fsk.LeadInCharacters is { } leader)
         {
-            _leader = leader;
-            _hunt = new LeaderHunt(_framing, leader);
-
-            // The leader's characters follow one another a frame apart: a run of near-equal intervals, whose mean is
-            // the frame as the tape plays, within the speeds any lead-in may be found at.
-            double frame = _framing.BitsPerByte / _fsk.Baud;
-            _leaderRun = new LeadInFinder(
-                frame,
-                Math.Max(2, leader.MinimumCount - 1),
-                frame / (1 + LeadInFinder.MaximumSpeedError),
-                frame / (1 - LeadInFinder.MaximumSpeedError),
-                LeaderJitterBits / _framing.BitsPerByte);
-            if (BlockLayoutCodec.For(profile.Layout).SyncField is { } sync)
-            {
-                _syncFirstBytes = [.. sync.Expected.Select(e => e[0])];
-            }
+            _hasLeader = true;
+            byte[] syncFirstBytes = BlockLayoutCodec.For(profile.Layout).SyncField is { } sync ? [.. sync.Expected.Select(e => e[0])] : [];
+            _leader = new CharacterLeader(_framing, leader, _fsk.Baud, sampleRate, syncFirstBytes);
         }
+
+        KeepTiming();
     }
 
     /// <summary>What a block began after: the evidence the format's own signal gives that a block starts there.</summary>
@@ -194,20 +156,28 @@ public sealed class FskDecoder : ISymbolDecoder
 
     public bool ReadsTones => true;
 
-    /// <summary>
-    /// Mostly clear mark tone (D above 0.5) over about the lead-in's length: a running mean of ±1, with a time
-    /// constant of half the minimum lead-in, above 0.4 (seven windows in ten clearly mark; white noise alone gives
-    /// one in four, since D is then uniform on ±1). A fraction rather than an unbroken run, so that the noise of a
-    /// poor capture, which breaks any run of mark now and then, does not hide a lead-in.
-    /// </summary>
-    private bool HeardLeadIn => _markEvidence > 0.4;
+    private bool InLeader => _hasLeader && _leader.InLeader;
 
-    private double BitSamples => _sampleRate / (_fsk.Baud * _speed.Speed);
+    /// <summary>One bit in samples at the measured speed (worked out again only when the speed changes: see <see cref="KeepTiming"/>).</summary>
+    private double BitSamples { get; set; }
 
     /// <summary>One character frame (start, data, parity and all stop bits) in samples at the measured speed.</summary>
-    private double FrameSamples => _framing.BitsPerByte * BitSamples;
+    private double FrameSamples { get; set; }
 
-    private double IdleLineSamples => IdleLineCharacters * FrameSamples;
+    private double IdleLineSamples { get; set; }
+
+    /// <summary>The bit, frame and idle-line lengths follow the speed; they are worked out once for each speed, not once a sample.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private void KeepTiming()
+    {
+        if (_speed.Speed != _timingSpeed)
+        {
+            _timingSpeed = _speed.Speed;
+            BitSamples = _sampleRate / (_fsk.Baud * _speed.Speed);
+            FrameSamples = _framing.BitsPerByte * BitSamples;
+            IdleLineSamples = IdleLineCharacters * FrameSamples;
+        }
+    }
 
     /// <summary>Edges only calibrate the speed, from the mark tone (and give the level the block notes).</summary>
     public void OnEdges(ReadOnlySpan<Edge> edges)
@@ -224,82 +194,107 @@ public sealed class FskDecoder : ISymbolDecoder
     {
         for (int i = 0; i < tones.Length; i++)
         {
-            bool inChar = _framer.InCharacter;
-            float d = _tones.Next(tones.Mark(i), tones.Space(i), learnMark: inChar || _inBlock || _inLeader || HeardLeadIn, learnSpace: inChar);
-            double n = chunkStart + i;
-            _speed.Check(d, n);
-            if (_leader is not null && !_inBlock && !_inLeader && _hunt.Step(d, _previousD, n, BitSamples))
-            {
-                FoundLeader(n);
-            }
-
-            // Half a bit without carrier is a loss of signal; a shorter fade (deep noise can null a one-bit window for
-            // a moment) is not.
-            _noCarrierRun = _tones.Carrier ? 0 : _noCarrierRun + 1;
-            if (_noCarrierRun >= 0.5 * BitSamples && (inChar || _inBlock || _heldCount > 0 || _inLeader))
-            {
-                LoseSignal();
-            }
-            else if (inChar)
-            {
-                switch (_framer.Step(d, _previousD, n, BitSamples))
-                {
-                    case CharacterStep.FalseStart:
-                        // Not a start bit after all: a glitch in the mark tone. Noise dips like this are common in a
-                        // noisy lead-in, so the run of mark seen before it stands, as if the dip had not happened.
-                        _markRun = _markRunBeforeStart + (n - _framer.Start);
-                        break;
-                    case CharacterStep.Complete:
-                        CompleteCharacter(n);
-                        break;
-                }
-            }
-            else
-            {
-                if (d < 0 && _previousD >= 0 && _markRun >= 0.25 * BitSamples)
-                {
-                    // A fall through zero: D crosses zero half a window after a mark-to-space boundary.
-                    TryStartCharacter(n - 1 + _previousD / (_previousD - d));
-                }
-
-                // The run survives the slope down to zero, so it is still whole when the crossing comes, and it survives
-                // dips below zero shorter than a quarter bit: noise makes those in any lead-in heard at low SNR, and a
-                // real space lasts a whole bit.
-                _negativeRun = d < 0 ? _negativeRun + 1 : 0;
-                _markEvidence += ((d > 0.5f ? 1 : -1) - _markEvidence) * _evidenceGain;
-                _markRun = d > 0.3f ? _markRun + 1 : _negativeRun > 0.25 * BitSamples ? 0 : _markRun;
-                if (_inBlock && n - _lastCharEnd >= IdleLineSamples)
-                {
-                    // The line is idle while the block still expects characters: the block ends here, and the mark
-                    // tone that follows may be the next block's lead-in.
-                    _assembler.End(_lastCharEnd);
-                    _inBlock = false;
-                }
-
-                if (_heldCount > 0 && n - _lastCharEnd >= FrameSamples)
-                {
-                    // Characters held before a block must follow one another back to back.
-                    _heldCount = 0;
-                }
-
-                if (_inLeader && n - _lastCharEnd >= FrameSamples)
-                {
-                    // So must a leader's: a frame without a character ends it.
-                    _inLeader = false;
-                }
-            }
-
-            _previousD = d;
+            Step(tones.Mark(i), tones.Space(i), chunkStart + i);
         }
 
         _speed.EndChunk();
+    }
+
+    /// <summary>
+    /// Two settings' decoders over the same chunk, sample by sample in turn. Each decoder's work hangs on its own last
+    /// sample (running levels and counts), and the two are independent, so the processor overlaps one's with the
+    /// other's: the same decisions as two <see cref="OnTones(ToneLane, long)"/> calls, in less time.
+    /// </summary>
+    public static void OnTones(FskDecoder first, ToneLane firstTones, FskDecoder second, ToneLane secondTones, long chunkStart)
+    {
+        ArgumentNullException.ThrowIfNull(first);
+        ArgumentNullException.ThrowIfNull(second);
+        if (firstTones.Length != secondTones.Length)
+        {
+            throw new ArgumentException("Both settings' tones must cover the same chunk.", nameof(secondTones));
+        }
+
+        for (int i = 0; i < firstTones.Length; i++)
+        {
+            first.Step(firstTones.Mark(i), firstTones.Space(i), chunkStart + i);
+            second.Step(secondTones.Mark(i), secondTones.Space(i), chunkStart + i);
+        }
+
+        first._speed.EndChunk();
+        second._speed.EndChunk();
+    }
+
+    /// <summary>One sample: the mark and space energies of the window that ends at <paramref name="sample"/>.</summary>
+    private void Step(double mark, double space, long sample)
+    {
+        bool inChar = _framer.InCharacter;
+        bool inLeader = InLeader;
+        float d = _tones.Next(mark, space, learnMark: inChar || _inBlock || inLeader || _mark.HeardLeadIn, learnSpace: inChar);
+        double n = sample;
+        _speed.Check(d, n);
+        KeepTiming();
+        if (_hasLeader && !_inBlock && !inLeader && _leader.Hunt(d, _previousD, n, BitSamples))
+        {
+            FoundLeader(n);
+        }
+
+        // Half a bit without carrier is a loss of signal; a shorter fade (deep noise can null a one-bit window for
+        // a moment) is not.
+        _noCarrierRun = _tones.Carrier ? 0 : _noCarrierRun + 1;
+        if (_noCarrierRun >= 0.5 * BitSamples && (inChar || _inBlock || _held.Count > 0 || InLeader))
+        {
+            LoseSignal();
+        }
+        else if (inChar)
+        {
+            switch (_framer.Step(d, _previousD, n, BitSamples))
+            {
+                case CharacterStep.FalseStart:
+                    _mark.FalseStart(n - _framer.Start);
+                    break;
+                case CharacterStep.Complete:
+                    CompleteCharacter(n);
+                    break;
+            }
+        }
+        else
+        {
+            if (d < 0 && _previousD >= 0 && _mark.Samples >= 0.25 * BitSamples)
+            {
+                // A fall through zero: D crosses zero half a window after a mark-to-space boundary.
+                TryStartCharacter(n - 1 + _previousD / (_previousD - d));
+            }
+
+            _mark.Step(d, BitSamples);
+            if (_inBlock && n - _lastCharEnd >= IdleLineSamples)
+            {
+                // The line is idle while the block still expects characters: the block ends here, and the mark
+                // tone that follows may be the next block's lead-in.
+                _blocks.End(_lastCharEnd);
+                _inBlock = false;
+            }
+
+            if (_held.Count > 0 && n - _lastCharEnd >= FrameSamples)
+            {
+                // Characters held before a block must follow one another back to back.
+                _held.Clear();
+            }
+
+            if (InLeader && n - _lastCharEnd >= FrameSamples)
+            {
+                // So must a leader's: a frame without a character ends it.
+                _leader.Break();
+            }
+        }
+
+        _previousD = d;
     }
 
     public void Finish(double endSample)
     {
         if (_inBlock)
         {
-            _assembler.End(_lastCharEnd);
+            _blocks.End(_lastCharEnd);
             _inBlock = false;
         }
     }
@@ -311,32 +306,35 @@ public sealed class FskDecoder : ISymbolDecoder
     private void TryStartCharacter(double crossing)
     {
         BlockStart evidence;
-        if (_leader is not null && !_inBlock)
+        if (_hasLeader && !_inBlock)
         {
-            if (!_inLeader)
+            if (!_leader.InLeader)
             {
                 // Where characters start is not known yet: every fall may be a leader character's start bit.
-                _hunt.Fall(crossing, BitSamples);
+                _leader.Fall(crossing, BitSamples);
                 return;
             }
 
             evidence = BlockStart.Leader;
         }
-        else if (_inBlock || _heldCount > 0)
+        else if (_inBlock || _held.Count > 0)
         {
             evidence = BlockStart.InBlock;
         }
-        else if (_markRun >= IdleLineSamples)
+        else if (_mark.Samples >= IdleLineSamples)
         {
             evidence = BlockStart.IdleLine;
         }
-        else if (HeardLeadIn && _markRun >= FrameSamples)
+        else if (_mark.HeardLeadIn && _mark.Samples >= FrameSamples)
         {
             evidence = BlockStart.LeadIn;
         }
         else if (_resuming)
         {
-            if (!MayResumeAt(crossing))
+            // Characters follow back to back, so while the grid from before the loss of signal is still sure, only a
+            // fall on it is a start bit; a fall after a whole character of mark (the line idle) starts a character
+            // wherever it lies.
+            if (_mark.Samples < FrameSamples && !_grid.MayResumeAt(crossing, BitSamples))
             {
                 return;
             }
@@ -353,7 +351,7 @@ public sealed class FskDecoder : ISymbolDecoder
             return;
         }
 
-        if (evidence is BlockStart.LeadIn or BlockStart.IdleLine or BlockStart.WithoutLeadIn && _heldCount == 0)
+        if (evidence is BlockStart.LeadIn or BlockStart.IdleLine or BlockStart.WithoutLeadIn && _held.Count == 0)
         {
             // A new recording learns its own tone balance, from this start bit on.
             _tones.ForgetSpaceLevel();
@@ -361,36 +359,8 @@ public sealed class FskDecoder : ISymbolDecoder
 
         _charEvidence = evidence;
         _charConfirmed = StartIsConfirmed(crossing, evidence);
-        _markRunBeforeStart = _markRun;
+        _mark.StartBit();
         _framer.Begin(crossing, BitSamples);
-    }
-
-    /// <summary>
-    /// Whether a fall to space after a loss of signal may be taken for a start bit. The stream resumes with no lead-in,
-    /// so any fall from a data bit 1 to a 0 looks like one; and some falls frame as well as the true ones (in lower-case
-    /// text, bits 5 and 6 are mark and bit 7 space, so a frame three bits early has its stop bits on mark too, and
-    /// stays there). Characters follow back to back, so while the character grid from before the loss is still sure
-    /// (the speed known to a fraction of a per cent over the gap), only a fall on that grid is a start bit. A fall
-    /// after a whole character of mark (the line idle) starts a character wherever it lies, and once the grid has
-    /// drifted past knowing, any fall does.
-    /// </summary>
-    private bool MayResumeAt(double crossing)
-    {
-        if (double.IsNaN(_gridStart) || _markRun >= FrameSamples)
-        {
-            return true;
-        }
-
-        double elapsedBits = (crossing - _gridStart) / BitSamples;
-        double tolerance = GridToleranceAt(crossing);
-        if (tolerance > MaximumGridToleranceBits)
-        {
-            return true;
-        }
-
-        double characters = elapsedBits / _framing.BitsPerByte;
-        double offBits = Math.Abs(characters - Math.Round(characters)) * _framing.BitsPerByte;
-        return offBits <= tolerance;
     }
 
     /// <summary>
@@ -400,21 +370,18 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private bool StartIsConfirmed(double crossing, BlockStart evidence)
     {
-        if (evidence is BlockStart.LeadIn or BlockStart.IdleLine or BlockStart.Leader || _markRun >= FrameSamples)
+        if (evidence is BlockStart.LeadIn or BlockStart.IdleLine or BlockStart.Leader || _mark.Samples >= FrameSamples)
         {
             return true;
         }
 
         return evidence switch
         {
-            BlockStart.InBlock => _heldCount > 0 ? _heldConfirmed[_heldCount - 1] : _gridConfirmed,
-            BlockStart.Resumed => !double.IsNaN(_gridStart) && GridToleranceAt(crossing) <= MaximumGridToleranceBits && _gridConfirmed,
+            BlockStart.InBlock => _held.Count > 0 ? _held.Confirmed(_held.Count - 1) : _grid.Confirmed,
+            BlockStart.Resumed => _grid.HoldsAt(crossing, BitSamples) && _grid.Confirmed,
             _ => false,
         };
     }
-
-    /// <summary>How far, in bits, a start bit at <paramref name="crossing"/> may lie off the grid kept since the last good character.</summary>
-    private double GridToleranceAt(double crossing) => GridToleranceBits + (GridDriftPerBit * (crossing - _gridStart) / BitSamples);
 
     /// <summary>
     /// No carrier: the character in progress is void, and a block in progress ends at its last whole character. A
@@ -423,17 +390,16 @@ public sealed class FskDecoder : ISymbolDecoder
     private void LoseSignal()
     {
         _framer.Abandon();
-        _markRun = 0;
-        _heldCount = 0;
-        _inLeader = false;
-        if (_leader is not null)
+        _mark.Restart(0);
+        _held.Clear();
+        if (_hasLeader)
         {
-            _hunt.Stop();
+            _leader.Lose();
         }
 
         if (_inBlock)
         {
-            _assembler.End(_lastCharEnd);
+            _blocks.End(_lastCharEnd);
             _inBlock = false;
             _resuming = _isStream;
         }
@@ -442,15 +408,15 @@ public sealed class FskDecoder : ISymbolDecoder
     /// <summary>The character's last bit was decided at sample <paramref name="n"/>.</summary>
     private void CompleteCharacter(double n)
     {
-        _markRun = 0.5 * BitSamples;
+        _mark.Restart(0.5 * BitSamples);
         _lastCharEnd = n;
         if (_inBlock)
         {
             AddCharacter(_framer.Value, _framer.Levels, _framer.FramingOk, _framer.Start, _charConfirmed);
         }
-        else if (_leader is not null)
+        else if (_hasLeader)
         {
-            LeaderCharacter();
+            LeaderCharacterRead();
         }
         else
         {
@@ -464,66 +430,45 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private void FoundLeader(double n)
     {
-        _inLeader = true;
-        _leaderLastStart = _hunt.FoundStart;
-        _leaderMisses = 0;
-        _leaderRun.Reset();
         _lastCharEnd = n;
-        _markRun = 0.5 * BitSamples;
+        _mark.Restart(0.5 * BitSamples);
 
         // A new recording learns its own tone balance, from this leader on.
         _tones.ForgetSpaceLevel();
     }
 
     /// <summary>
-    /// A character read on a leader's grid: another leader character (the run and the speed it gives grow), the first
-    /// character of a sync after a long enough leader (the block begins with it), or neither (a damaged character;
-    /// more than <see cref="LeaderMisses"/> in a row and the leader is lost).
+    /// A character read on a leader's grid: another leader character (once the run is long enough, it gives the
+    /// speed), the first character of a sync after a long enough leader (the block begins with it), or neither.
     /// </summary>
-    private void LeaderCharacter()
+    private void LeaderCharacterRead()
     {
         int value = _framer.Value;
         bool framingOk = _framer.FramingOk;
         double start = _framer.Start;
-        if (framingOk && value == _leader!.Character)
+        switch (_leader.Character(value, framingOk, start))
         {
-            _leaderRun.Add((start - _leaderLastStart) / _sampleRate);
-            if (_leaderRun.Found)
-            {
-                _speed.Calibrate(_leaderRun.Speed);
-            }
-
-            _leaderLastStart = start;
-            _leaderMisses = 0;
-            return;
-        }
-
-        if (framingOk && _leaderRun.Found && Array.IndexOf(_syncFirstBytes, (byte)value) >= 0)
-        {
-            _inLeader = false;
-            BeginBlock(start, BlockStart.Leader, confirmed: true);
-            AddCharacter(value, _framer.Levels, framingOk, start, confirmed: true);
-            return;
-        }
-
-        // A damaged character keeps the grid (the next start bit still follows its stop bits), but not for long.
-        _leaderLastStart = start;
-        if (++_leaderMisses >= LeaderMisses)
-        {
-            _inLeader = false;
+            case LeaderCharacter.Leader when _leader.RunFound:
+                _speed.Calibrate(_leader.Speed);
+                KeepTiming();
+                break;
+            case LeaderCharacter.SyncStart:
+                BeginBlock(start, BlockStart.Leader, confirmed: true);
+                AddCharacter(value, _framer.Levels, framingOk, start, confirmed: true);
+                break;
         }
     }
 
     /// <summary>
-    /// A block's first characters wait until <see cref="HeldCharacters"/> have followed one another back to back; then
-    /// the block begins with the first of them. A lone character between a lead-in and more mark tone is what a dip
-    /// in the tone makes (its data bits all read mark), not the start of a block. A stream with no lead-in asks more:
-    /// each held character must frame well with confident decisions, and one that does not voids those before it.
+    /// A block's first characters wait until <see cref="HeldCharacterCount"/> have followed one another back to back;
+    /// then the block begins with the first of them. A lone character between a lead-in and more mark tone is what a
+    /// dip in the tone makes (its data bits all read mark), not the start of a block. A stream with no lead-in asks
+    /// more: each held character must frame well with confident decisions, and one that does not voids those before it.
     /// </summary>
     private void Hold()
     {
         var levels = _framer.Levels;
-        if (_heldCount == 0)
+        if (_held.Count == 0)
         {
             _heldEvidence = _charEvidence;
         }
@@ -531,29 +476,23 @@ public sealed class FskDecoder : ISymbolDecoder
         if (_heldEvidence == BlockStart.WithoutLeadIn
             && (!_framer.FramingOk || AsyncCharacterFramer.LeastDistance(levels) < HeldCharacterDistance))
         {
-            _heldCount = 0;
+            _held.Clear();
             return;
         }
 
-        int frameBits = _framer.FrameBits;
-        levels.CopyTo(_heldLevels.AsSpan(_heldCount * frameBits, frameBits));
-        _heldValue[_heldCount] = _framer.Value;
-        _heldStart[_heldCount] = _framer.Start;
-        _heldConfirmed[_heldCount] = _charConfirmed;
-        _heldFramingOk[_heldCount] = _framer.FramingOk;
-        _heldCount++;
-        if (_heldCount < HeldCharacters)
+        _held.Add(_framer.Value, levels, _framer.Start, _charConfirmed, _framer.FramingOk);
+        if (!_held.Full)
         {
             return;
         }
 
-        BeginBlock(_heldStart[0], _heldEvidence, _heldConfirmed[0]);
-        for (int c = 0; c < _heldCount && _inBlock; c++)
+        BeginBlock(_held.Start(0), _heldEvidence, _held.Confirmed(0));
+        for (int c = 0; c < _held.Count && _inBlock; c++)
         {
-            AddCharacter(_heldValue[c], _heldLevels.AsSpan(c * frameBits, frameBits), _heldFramingOk[c], _heldStart[c], _heldConfirmed[c] || (c > 0 && _gridConfirmed));
+            AddCharacter(_held.Value(c), _held.Levels(c), _held.FramingOk(c), _held.Start(c), _held.Confirmed(c) || (c > 0 && _grid.Confirmed));
         }
 
-        _heldCount = 0;
+        _held.Clear();
     }
 
     /// <summary>
@@ -562,14 +501,14 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private void BeginBlock(double start, BlockStart evidence, bool confirmed)
     {
-        _assembler.Begin(start - 0.5 * _tones.Window, EvidenceOf(evidence, confirmed));
+        _blocks.Begin(start - 0.5 * _tones.Window, EvidenceOf(evidence, confirmed));
         _inBlock = true;
         _resuming = false;
         if (evidence == BlockStart.Leader)
         {
             // The leader fixed where characters start: the block's grid is confirmed from its first character.
-            _gridConfirmed = true;
-            _leaderRun.Reset();
+            _grid.Confirmed = true;
+            _leader.BlockBegan();
         }
 
         // A block with no lead-in whose first start bit nothing confirmed finds out from its own characters whether
@@ -577,7 +516,7 @@ public sealed class FskDecoder : ISymbolDecoder
         _checkingAlignment = evidence == BlockStart.WithoutLeadIn && !confirmed;
         if (_checkingAlignment)
         {
-            _gridConfirmed = false;
+            _grid.Confirmed = false;
             _alignment.Reset();
         }
     }
@@ -597,36 +536,31 @@ public sealed class FskDecoder : ISymbolDecoder
         _ => BlockStartEvidence.None,
     };
 
+    /// <summary>A character of the block: its bits go to the block stage as decisions, then its byte.</summary>
     private void AddCharacter(int value, ReadOnlySpan<float> levels, bool framingOk, double start, bool confirmed)
     {
-        if (framingOk)
-        {
-            _gridStart = start;
-        }
-
-        // The next character starts where this one ended: it is no surer than this one, whose framing failed or not.
-        _gridConfirmed = framingOk ? confirmed : _gridConfirmed && confirmed;
+        _grid.Add(framingOk, start, confirmed);
         if (_checkingAlignment)
         {
             _alignment.Add(levels, start, BitSamples);
             if (_alignment.Unambiguous)
             {
                 // Every other framing is ruled out: the characters from here on stand on a confirmed grid.
-                _gridConfirmed = true;
+                _grid.Confirmed = true;
                 _checkingAlignment = false;
             }
         }
 
-        int first = _assembler.DecisionCount;
+        int first = _blocks.DecisionCount;
         for (int b = 0; b < levels.Length; b++)
         {
             float distance = AsyncCharacterFramer.Distance(b, levels.Length, levels[b]);
-            _assembler.AddDecision(distance, 1 - distance, 1);
+            _blocks.AddDecision(distance, 1 - distance, 1);
         }
 
-        _assembler.NoteLevel(_level);
-        _assembler.NoteSpeed(_speed.Speed);
-        if (_assembler.AddByte((byte)value, first, framingOk, start, confirmed ? 0 : UnconfirmedFramingDoubt))
+        _blocks.NoteLevel(_level);
+        _blocks.NoteSpeed(_speed.Speed);
+        if (_blocks.AddByte((byte)value, first, framingOk, start, confirmed ? 0 : UnconfirmedFramingDoubt))
         {
             _inBlock = false;
         }

@@ -5,7 +5,8 @@ namespace TapeVault.Core.Symbols;
 
 /// <summary>
 /// The decode chain of one detector setting after the bank: edges (and, for tone formats, the tone energies) in,
-/// block candidates out, through the setting's <see cref="Blocks.BlockAssembler"/>.
+/// block candidates out, handed to the block stage through <see cref="Blocks.IBlockSink"/> (the setting's
+/// <see cref="Blocks.BlockAssembler"/>) and nothing else of it.
 /// </summary>
 public interface ISymbolDecoder
 {

@@ -29,7 +29,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private readonly double _sampleRate;
     private readonly bool _pairHalves;
     private readonly bool _inert;
-    private readonly BlockAssembler _assembler;
+    private readonly IBlockSink _blocks;
     private readonly SyncByteFramer _framer;
     private readonly int _leadInClass;
     private readonly int[] _sync;
@@ -64,7 +64,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private double _glitchCarry;
     private double _pendingHalf = double.NaN;
 
-    public PulseWidthDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, BlockAssembler assembler)
+    public PulseWidthDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, IBlockSink blocks)
     {
         ArgumentNullException.ThrowIfNull(profile);
         _encoding = profile.PulseWidth ?? throw new ArgumentException("The profile is not a pulse-width profile.", nameof(profile));
@@ -82,8 +82,8 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         // edges; a setting that counts one direction sees only sums of two pulses and reads nothing.
         _pairHalves = countsBothEdges && !_encoding.HalfCycles;
         _inert = _encoding.HalfCycles && !countsBothEdges;
-        _assembler = assembler;
-        _framer = new SyncByteFramer(profile.Framing, assembler);
+        _blocks = blocks;
+        _framer = new SyncByteFramer(profile.Framing, blocks);
         _leadInClass = IndexOf(_encoding.LeadInClass);
         _leadIn = LeadInFinder.ForClass(_classifier, _leadInClass, _encoding.ShortestRun);
         _sync = Indices(_encoding.Sync);
@@ -114,11 +114,6 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 _syncBits[c] = bits;
                 _longestSyncBits = Math.Max(_longestSyncBits, bits.Length);
             }
-        }
-
-        if (_end.Length > 0)
-        {
-            assembler.EndsAtMarker();
         }
 
         // The bit a lead-in pulse stands for, where a bit is that one pulse (-1 where it is not a bit).
@@ -195,7 +190,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                     // bit may have changed there, so the block carries a guess that its margins would not show.
                     if (_mode == Mode.Data)
                     {
-                        _assembler.AddGuessedDecision();
+                        _blocks.AddGuessedDecision();
                     }
 
                     _pendingHalf = seconds;
@@ -216,7 +211,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     {
         if (_mode == Mode.Data)
         {
-            _assembler.End(sample);
+            _blocks.End(sample);
         }
 
         _mode = Mode.Hunting;
@@ -263,7 +258,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 break;
             case Mode.Data:
                 // Data pulses alone need the distances (a logarithm each).
-                _assembler.NoteLevel(level);
+                _blocks.NoteLevel(level);
                 OnDataPulse(_classifier.Classify(seconds, _speed.Speed), seconds, endSample);
                 break;
         }
@@ -294,7 +289,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         {
             // The first byte's marker follows the lead-in; a sync field after it is checked when the block is whole.
             StartData(endSample, BlockLeadInEvidence());
-            _assembler.NoteLevel(level);
+            _blocks.NoteLevel(level);
             OnDataPulse(_classifier.Classify(seconds, _speed.Speed), seconds, endSample);
         }
         else
@@ -331,7 +326,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _recentInvalid = 0;
         _framer.Reset();
         _leadIn.Reset();
-        _assembler.Begin(endSample, evidence);
+        _blocks.Begin(endSample, evidence);
     }
 
     private void RecordPulse(PulseDecision decision)
@@ -432,11 +427,11 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             long bit = first + i;
             long pulseStart = _ringBitFirstPulse[bit % RingBits];
             long pulseEnd = bit + 1 < _bitsSeen ? _ringBitFirstPulse[(bit + 1) % RingBits] : _pulsesSeen;
-            int decisionIndex = _assembler.DecisionCount;
+            int decisionIndex = _blocks.DecisionCount;
             for (long p = pulseStart; p < pulseEnd; p++)
             {
                 var d = _ringPulse[p % RingPulses];
-                _assembler.AddDecision(d.Distance, d.Residual, d.Scale);
+                _blocks.AddDecision(d.Distance, d.Residual, d.Scale);
             }
 
             _framer.AddBit(bits[i], decisionIndex, endSample);
@@ -450,12 +445,12 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     {
         if (_patternLength == 0)
         {
-            _patternFirstDecision = _assembler.DecisionCount;
+            _patternFirstDecision = _blocks.DecisionCount;
         }
 
         if (!decision.IsValid)
         {
-            _assembler.AddGuessedDecision();
+            _blocks.AddGuessedDecision();
             if (++_recentInvalid >= InvalidPulsesToLoseBlock)
             {
                 LoseSignal(endSample);
@@ -467,13 +462,13 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         }
 
         _recentInvalid = Math.Max(0, _recentInvalid - 1);
-        _assembler.AddDecision(decision.Distance, decision.Residual, decision.Scale);
+        _blocks.AddDecision(decision.Distance, decision.Residual, decision.Scale);
         if (decision.Distance > 0.5 * decision.Scale)
         {
             _speed.Track(seconds, _classifier.NominalSeconds(decision.Class));
         }
 
-        _assembler.NoteSpeed(_speed.Speed);
+        _blocks.NoteSpeed(_speed.Speed);
         _pattern[_patternLength++] = decision.Class;
         switch (_phase)
         {
@@ -506,7 +501,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         if (_end.Length > 0 && Matches(_end))
         {
             // The block's end, as the format marks it.
-            _assembler.EndAtMarker(endSample);
+            _blocks.EndAtMarker(endSample);
             _mode = Mode.Hunting;
             _leadIn.Reset();
             return;
@@ -518,7 +513,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             {
                 // A lead-in pulse where a marker should be: the block ended without its end marker (or was cut), and
                 // the next lead-in begins here. Where the format writes an end marker, its absence is a framing error.
-                _assembler.EndAtMarker(endSample, asWritten: _end.Length == 0);
+                _blocks.EndAtMarker(endSample, asWritten: _end.Length == 0);
                 _mode = Mode.Hunting;
                 _leadIn.Reset();
                 _leadIn.Add(seconds);
@@ -534,7 +529,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             else if (!IsPrefixOf(_before) && !(_end.Length > 0 && IsPrefixOf(_end)))
             {
                 // No marker begins like this: take it for the marker, a guess with no margin and a framing error.
-                _assembler.AddGuessedDecision();
+                _blocks.AddGuessedDecision();
                 _framer.NoteFramingError();
                 _byteFirstDecision = _patternFirstDecision;
                 _patternLength = 0;
@@ -568,7 +563,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         else if (!IsPrefixOf(_zero) && !IsPrefixOf(_one))
         {
             // No bit begins like this: the decision nearest a bit is a guess with no margin.
-            _assembler.AddGuessedDecision();
+            _blocks.AddGuessedDecision();
             CompleteBit(GuessBit(decision), endSample);
         }
     }

@@ -27,7 +27,7 @@ public sealed class GuessedBitsTests
             {
                 if (bit < erasedBits)
                 {
-                    assembler.AddErasedBit();
+                    assembler.AddGuessedDecision();
                 }
                 else
                 {
