@@ -25,16 +25,21 @@ public static class TestDatabase
     public static bool IsPostgreSql => Provider == DatabaseProvider.PostgreSql;
 
     /// <summary>A fresh, migrated PostgreSQL database on the run's shared cluster; returns its connection string.</summary>
-    public static async Task<string> CreateAsync()
+    public static Task<string> CreateAsync() => CreateFromAsync(TemplateName);
+
+    private static async Task<string> CreateFromAsync(string template)
     {
         var server = await Shared.Value.ConfigureAwait(false);
         var name = "archive_" + Guid.NewGuid().ToString("N");
         await using var connection = new NpgsqlConnection(server.ConnectionString("postgres"));
         await connection.OpenAsync().ConfigureAwait(false);
-        await using var create = new NpgsqlCommand($"CREATE DATABASE \"{name}\" TEMPLATE \"{TemplateName}\"", connection);
+        await using var create = new NpgsqlCommand($"CREATE DATABASE \"{name}\" TEMPLATE \"{template}\"", connection);
         await create.ExecuteNonQueryAsync().ConfigureAwait(false);
         return server.ConnectionString(name);
     }
+
+    /// <summary>A fresh PostgreSQL database with no tables (copied from template0), as an archive's first start finds it.</summary>
+    public static string CreateEmpty() => Task.Run(() => CreateFromAsync("template0")).GetAwaiter().GetResult();
 
     /// <summary>The synchronous form of <see cref="CreateAsync"/>, for fixtures made in a constructor.</summary>
     public static string Create() => Task.Run(CreateAsync).GetAwaiter().GetResult();
