@@ -17,6 +17,13 @@ public static class TestDatabase
 
     private const string TemplateName = "tapevault_template";
 
+    /// <summary>
+    /// The test databases sort text as a server set up in English does (ICU's "en" collation, PostgreSQL 15 manual,
+    /// "Collation Support"), not byte by byte as the cluster's C locale would: an order that only byte order gives
+    /// shows up as a difference from the SQLite run.
+    /// </summary>
+    private const string EnglishText = "TEMPLATE template0 LOCALE_PROVIDER icu ICU_LOCALE 'en' LOCALE 'C'";
+
     private static readonly Lazy<Task<PostgreSqlServer>> Shared = new(StartAsync, LazyThreadSafetyMode.ExecutionAndPublication);
 
     /// <summary>The provider this test run is on.</summary>
@@ -27,19 +34,20 @@ public static class TestDatabase
     /// <summary>A fresh, migrated PostgreSQL database on the run's shared cluster; returns its connection string.</summary>
     public static Task<string> CreateAsync() => CreateFromAsync(TemplateName);
 
-    private static async Task<string> CreateFromAsync(string template)
+    /// <param name="template">The migrated template; null for an empty database.</param>
+    private static async Task<string> CreateFromAsync(string? template)
     {
         var server = await Shared.Value.ConfigureAwait(false);
         var name = "archive_" + Guid.NewGuid().ToString("N");
         await using var connection = new NpgsqlConnection(server.ConnectionString("postgres"));
         await connection.OpenAsync().ConfigureAwait(false);
-        await using var create = new NpgsqlCommand($"CREATE DATABASE \"{name}\" TEMPLATE \"{template}\"", connection);
+        await using var create = new NpgsqlCommand(template is null ? $"CREATE DATABASE \"{name}\" {EnglishText}" : $"CREATE DATABASE \"{name}\" TEMPLATE \"{template}\"", connection);
         await create.ExecuteNonQueryAsync().ConfigureAwait(false);
         return server.ConnectionString(name);
     }
 
-    /// <summary>A fresh PostgreSQL database with no tables (copied from template0), as an archive's first start finds it.</summary>
-    public static string CreateEmpty() => Task.Run(() => CreateFromAsync("template0")).GetAwaiter().GetResult();
+    /// <summary>A fresh PostgreSQL database with no tables (in English collation, as the template), as an archive's first start finds it.</summary>
+    public static string CreateEmpty() => Task.Run(() => CreateFromAsync(null)).GetAwaiter().GetResult();
 
     /// <summary>The synchronous form of <see cref="CreateAsync"/>, for fixtures made in a constructor.</summary>
     public static string Create() => Task.Run(CreateAsync).GetAwaiter().GetResult();
@@ -84,7 +92,7 @@ public static class TestDatabase
         await using (var connection = new NpgsqlConnection(server.ConnectionString("postgres")))
         {
             await connection.OpenAsync().ConfigureAwait(false);
-            await using var create = new NpgsqlCommand($"CREATE DATABASE \"{TemplateName}\"", connection);
+            await using var create = new NpgsqlCommand($"CREATE DATABASE \"{TemplateName}\" {EnglishText}", connection);
             await create.ExecuteNonQueryAsync().ConfigureAwait(false);
         }
 
