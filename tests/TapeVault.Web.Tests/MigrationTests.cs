@@ -7,6 +7,7 @@ using Microsoft.Extensions.DependencyInjection;
 using Npgsql;
 using TapeVault.Archive;
 using TapeVault.Archive.Events;
+using TapeVault.Archive.Tests.PostgreSql;
 using TapeVault.Web.Tests.Support;
 using Xunit;
 
@@ -20,6 +21,7 @@ public sealed class MigrationTests
         // On a PostgreSQL run the database exists but has no tables, as a new server's database would.
         using var folder = new ArchiveFolder(emptyDatabase: true);
         bool postgreSql = folder.PostgreSql is not null;
+        Assert.Equal(TestDatabase.IsPostgreSql, postgreSql);
         Assert.False(File.Exists(folder.DatabasePath));
         await using var app = new ArchiveAppFactory(folder);
         _ = app.Services; // starts the host, whose startup applies the migrations
