@@ -87,6 +87,23 @@ public sealed class HostShapeTests
     }
 
     [Fact]
+    public void The_command_line_names_an_SQLite_file_or_a_PostgreSQL_database_and_each_chooses_its_provider()
+    {
+        var onServer = new ArchiveOptions { Provider = DatabaseProvider.PostgreSql, ConnectionString = "Host=db.example.org;Database=tapevault" };
+        ArchiveLocation.Apply(onServer, "local.db", null, null);
+        Assert.Equal(DatabaseProvider.Sqlite, onServer.Provider);
+        Assert.Equal(Path.GetFullPath("local.db"), onServer.DatabasePath);
+
+        var inFile = new ArchiveOptions();
+        ArchiveLocation.Apply(inFile, null, "Host=127.0.0.1;Database=archive", null);
+        Assert.Equal(DatabaseProvider.PostgreSql, inFile.Provider);
+        Assert.Equal("Host=127.0.0.1;Database=archive", inFile.ConnectionString);
+
+        var both = Assert.Throws<UsageException>(() => ArchiveLocation.Apply(new ArchiveOptions(), "local.db", "Host=127.0.0.1", null));
+        Assert.Contains("--database and --connection", both.Message, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public async Task Rows_and_events_are_stamped_by_the_host_clock()
     {
         var root = Directory.CreateTempSubdirectory("tapevault-host-").FullName;
