@@ -10,6 +10,9 @@ namespace TapeVault.Archive;
 /// <summary>The archive's database: collections down to block candidates, the object store's index, jobs, events and accounts.</summary>
 public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options) : IdentityDbContext<IdentityUser>(options)
 {
+    /// <summary>PostgreSQL's collation that compares text byte by byte (every server has it; PostgreSQL 15 manual, "Collation Support").</summary>
+    public const string PostgreSqlByteOrder = "C";
+
     public DbSet<Collection> Collections => Set<Collection>();
 
     public DbSet<TapeItem> Items => Set<TapeItem>();
@@ -108,6 +111,16 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
 
         // One IEntityTypeConfiguration per entity, in Entities/Configuration.
         builder.ApplyConfigurationsFromAssembly(typeof(ArchiveDbContext).Assembly);
+
+        // The names lists are sorted by compare byte by byte on PostgreSQL too, as SQLite's BINARY collation does: a
+        // server's own locale (English: "a shelf" before "B shelf", punctuation ignored at first) would otherwise
+        // order collections, tapes, catalogues, bags and accounts differently on the two databases.
+        if (Database.IsNpgsql())
+        {
+            builder.Entity<Collection>().Property(c => c.Name).UseCollation(PostgreSqlByteOrder);
+            builder.Entity<TapeItem>().Property(i => i.AccessionNumber).UseCollation(PostgreSqlByteOrder);
+            builder.Entity<IdentityUser>().Property(u => u.UserName).UseCollation(PostgreSqlByteOrder);
+        }
     }
 
     /// <summary>Refuses changed or removed events; returns the added ones in the order they were added.</summary>

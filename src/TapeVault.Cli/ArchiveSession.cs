@@ -19,21 +19,16 @@ public sealed class ArchiveSession : IDisposable
 
     public ArchiveOptions Options => Get<ArchiveOptions>();
 
-    /// <summary>Opens the archive that the settings name, or the database and store given on the command line.</summary>
-    public static ArchiveSession Open(string? database, string? store, CliSettings settings)
+    /// <summary>
+    /// Opens the archive that the settings name, or the SQLite file (<paramref name="database"/>) or PostgreSQL
+    /// database (<paramref name="connection"/>) and store given on the command line.
+    /// </summary>
+    public static ArchiveSession Open(string? database, string? store, CliSettings settings, string? connection = null)
     {
         ArgumentNullException.ThrowIfNull(settings);
         var options = settings.Archive;
         options.BaseFolder = ArchiveOptions.FindRepositoryRoot() ?? Directory.GetCurrentDirectory();
-        if (database is not null)
-        {
-            options.DatabasePath = Path.GetFullPath(database);
-        }
-
-        if (store is not null)
-        {
-            options.StorePath = Path.GetFullPath(store);
-        }
+        ArchiveLocation.Apply(options, database, connection, store);
 
         var collection = new ServiceCollection();
         collection.AddLogging();

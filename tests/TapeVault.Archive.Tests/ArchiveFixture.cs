@@ -9,6 +9,7 @@ using TapeVault.Archive.Export;
 using TapeVault.Archive.Ingest;
 using TapeVault.Archive.Jobs;
 using TapeVault.Archive.Storage;
+using TapeVault.Archive.Tests.PostgreSql;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
@@ -24,10 +25,14 @@ public sealed class ArchiveFixture : IAsyncDisposable
 {
     public const string Accession = "TEST-0001";
 
-    private ArchiveFixture(string root, ServiceProvider services)
+    /// <summary>The PostgreSQL database the fixture made for itself and drops at the end, if any.</summary>
+    private readonly string? ownDatabase;
+
+    private ArchiveFixture(string root, ServiceProvider services, string? ownDatabase)
     {
         Root = root;
         Services = services;
+        this.ownDatabase = ownDatabase;
     }
 
     public string Root { get; }
@@ -48,11 +53,17 @@ public sealed class ArchiveFixture : IAsyncDisposable
         new("DATA", Enumerable.Range(0, 300).Select(i => unchecked((byte)(i * 7))).ToArray()),
     ];
 
-    /// <summary>Builds the archive on an SQLite file in the folder, or on the PostgreSQL database <paramref name="postgreSql"/> names.</summary>
+    /// <summary>
+    /// Builds the archive on the PostgreSQL database <paramref name="postgreSql"/> names; without one, on the test
+    /// run's provider (<see cref="TestDatabase"/>): an SQLite file in the folder, or a fresh PostgreSQL database.
+    /// </summary>
     public static async Task<ArchiveFixture> CreateAsync(string conditionNotes = "Slight oxide shedding.", string? postgreSql = null)
     {
         var root = Directory.CreateTempSubdirectory("tapevault-archive-test-").FullName;
         var options = new ArchiveOptions { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" };
+        string? ownDatabase = postgreSql is null && TestDatabase.IsPostgreSql ? await TestDatabase.CreateAsync() : null;
+        postgreSql ??= ownDatabase;
+
         if (postgreSql is not null)
         {
             options.Provider = DatabaseProvider.PostgreSql;
@@ -63,17 +74,30 @@ public sealed class ArchiveFixture : IAsyncDisposable
         collection.AddLogging();
         options.Organisation = new Organisation { Name = "Test Archive", Address = "1 Test Street\nTestford", ContactEmail = "archive@example.org" };
         collection.AddTapeVaultArchive(options, ProfileCatalog.BuiltIn);
-        var fixture = new ArchiveFixture(root, collection.BuildServiceProvider());
+        var fixture = new ArchiveFixture(root, collection.BuildServiceProvider(), ownDatabase);
         await fixture.FillAsync(conditionNotes);
         return fixture;
     }
 
     public ArchiveDbContext NewContext() => Services.GetRequiredService<IDbContextFactory<ArchiveDbContext>>().CreateDbContext();
 
+    /// <summary>
+    /// The arguments that point the command line at this archive: its SQLite file, or its PostgreSQL database, and
+    /// its store.
+    /// </summary>
+    public string[] CliArchiveArguments() => Options.Provider == DatabaseProvider.PostgreSql
+        ? ["--connection", Options.ConnectionString, "--store", Options.FullStorePath]
+        : ["--database", Options.FullDatabasePath, "--store", Options.FullStorePath];
+
     public async ValueTask DisposeAsync()
     {
         await Services.DisposeAsync();
         Microsoft.Data.Sqlite.SqliteConnection.ClearAllPools();
+        if (ownDatabase is not null)
+        {
+            TestDatabase.Drop(ownDatabase);
+        }
+
         foreach (var file in Directory.EnumerateFiles(Root, "*", SearchOption.AllDirectories))
         {
             File.SetAttributes(file, FileAttributes.Normal);

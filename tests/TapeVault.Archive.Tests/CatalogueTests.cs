@@ -132,7 +132,7 @@ public sealed class CatalogueTests(SharedArchive shared)
     {
         var archive = shared.Archive;
         var target = Path.Combine(archive.Root, $"cli-site-{Guid.NewGuid():N}");
-        var args = new[] { "publish", archive.CollectionId.ToString(CultureInfo.InvariantCulture), target, "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath };
+        string[] args = ["publish", archive.CollectionId.ToString(CultureInfo.InvariantCulture), target, .. archive.CliArchiveArguments()];
         Assert.Equal(0, TapeVault.Cli.Entry.Run(args, new StringWriter(), new StringWriter()));
         Assert.True(File.Exists(Path.Combine(target, "index.html")));
         var error = new StringWriter();
@@ -160,7 +160,7 @@ public sealed class CatalogueTests(SharedArchive shared)
     {
         var archive = shared.Archive;
         var target = Path.Combine(archive.Root, $"named-site-{Guid.NewGuid():N}");
-        var args = new[] { "publish", archive.CollectionId.ToString(CultureInfo.InvariantCulture), target, "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath };
+        string[] args = ["publish", archive.CollectionId.ToString(CultureInfo.InvariantCulture), target, .. archive.CliArchiveArguments()];
         Assert.Equal(0, TapeVault.Cli.Entry.Run(args, new StringWriter(), new StringWriter()));
         await using var db = archive.NewContext();
         var recorded = await db.Events.AsNoTracking().Where(e => e.EventType == "export" && e.ObjectType == "collection").OrderByDescending(e => e.Id).FirstAsync();

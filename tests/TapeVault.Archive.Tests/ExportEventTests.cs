@@ -22,7 +22,13 @@ public sealed class ExportEventTests
         var objectsBefore = archive.Store.EnumerateHashes().Order(StringComparer.Ordinal).ToList();
 
         // The step that records the finished bag fails, as a crash at that moment would leave it.
-        TamperTests.Tamper(archive, "CREATE TRIGGER \"Test_NoExport\" BEFORE INSERT ON \"Exports\" BEGIN SELECT RAISE(ABORT, 'cut off'); END;");
+        bool postgreSql = archive.Options.Provider == DatabaseProvider.PostgreSql;
+        TamperTests.Tamper(archive, postgreSql
+            ? """
+              CREATE FUNCTION "Test_CutOff"() RETURNS trigger LANGUAGE plpgsql AS $$ BEGIN RAISE EXCEPTION 'cut off'; END $$;
+              CREATE TRIGGER "Test_NoExport" BEFORE INSERT ON "Exports" FOR EACH ROW EXECUTE FUNCTION "Test_CutOff"();
+              """
+            : "CREATE TRIGGER \"Test_NoExport\" BEFORE INSERT ON \"Exports\" BEGIN SELECT RAISE(ABORT, 'cut off'); END;");
         using (var scope = archive.Services.CreateScope())
         {
             await Assert.ThrowsAsync<DbUpdateException>(() => scope.ServiceProvider.GetRequiredService<ExportStore>().StoreBagAsync(BagScope.Item(archive.ItemId), "tester"));
@@ -38,7 +44,7 @@ public sealed class ExportEventTests
         Assert.Equal(objectsBefore, archive.Store.EnumerateHashes().Order(StringComparer.Ordinal).ToList());
 
         // Once recording works again, the bag and its events are committed together.
-        TamperTests.Tamper(archive, "DROP TRIGGER \"Test_NoExport\";");
+        TamperTests.Tamper(archive, postgreSql ? "DROP TRIGGER \"Test_NoExport\" ON \"Exports\";" : "DROP TRIGGER \"Test_NoExport\";");
         using (var scope = archive.Services.CreateScope())
         {
             var record = await scope.ServiceProvider.GetRequiredService<ExportStore>().StoreBagAsync(BagScope.Item(archive.ItemId), "tester");
@@ -54,7 +60,7 @@ public sealed class ExportEventTests
     {
         await using var archive = await ArchiveFixture.CreateAsync();
         var target = Path.Combine(archive.Root, "kept-bag");
-        int exit = TapeVault.Cli.Entry.Run(["export", "bag", "--item", ArchiveFixture.Accession, "--out", target, "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath], new StringWriter(), new StringWriter());
+        int exit = TapeVault.Cli.Entry.Run(["export", "bag", "--item", ArchiveFixture.Accession, "--out", target, .. archive.CliArchiveArguments()], new StringWriter(), new StringWriter());
         Assert.Equal(0, exit);
         Assert.True(File.Exists(Path.Combine(target, "bag-info.txt")));
         await using var db = archive.NewContext();

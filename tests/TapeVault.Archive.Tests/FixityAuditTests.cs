@@ -85,7 +85,7 @@ public sealed class FixityAuditTests
         // The CLI reports the same three and exits 1.
         var output = new StringWriter();
         var error = new StringWriter();
-        int exit = Entry.Run(["verify", "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath], output, error);
+        int exit = Entry.Run(["verify", .. archive.CliArchiveArguments()], output, error);
         Assert.Equal(1, exit);
         var lines = output.ToString().Split('\n').Where(l => l.StartsWith("MISMATCH", StringComparison.Ordinal) || l.StartsWith("MISSING", StringComparison.Ordinal)).ToList();
         Assert.Equal(3, lines.Count);
@@ -99,7 +99,7 @@ public sealed class FixityAuditTests
     {
         await using var archive = await ArchiveFixture.CreateAsync();
         var output = new StringWriter();
-        int exit = Entry.Run(["verify", "--collection", archive.CollectionId.ToString(System.Globalization.CultureInfo.InvariantCulture), "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath], output, new StringWriter());
+        int exit = Entry.Run(["verify", "--collection", archive.CollectionId.ToString(System.Globalization.CultureInfo.InvariantCulture), .. archive.CliArchiveArguments()], output, new StringWriter());
         Assert.Equal(0, exit);
         Assert.Contains("match their recorded SHA-256", output.ToString(), StringComparison.Ordinal);
     }

@@ -11,6 +11,7 @@ using TapeVault.Archive.Ingest;
 using TapeVault.Cli;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Formats;
+using TapeVault.Archive.Tests.PostgreSql;
 using Xunit;
 
 namespace TapeVault.Archive.Tests;
@@ -41,10 +42,11 @@ public sealed class HostShapeTests
     public async Task A_host_with_sound_settings_starts()
     {
         var root = Directory.CreateTempSubdirectory("tapevault-host-").FullName;
+        using var database = TestArchiveDatabase.Create();
         try
         {
             var builder = Host.CreateApplicationBuilder();
-            builder.Services.AddTapeVaultArchive(new ArchiveOptions { BaseFolder = root }, ProfileCatalog.BuiltIn);
+            builder.Services.AddTapeVaultArchive(database.ApplyTo(new ArchiveOptions { BaseFolder = root }), ProfileCatalog.BuiltIn);
             using var host = builder.Build();
             await host.StartAsync();
             await host.StopAsync();
@@ -60,9 +62,11 @@ public sealed class HostShapeTests
     public void The_command_line_opens_the_archive_with_every_service_the_web_app_has()
     {
         var root = Directory.CreateTempSubdirectory("tapevault-host-").FullName;
+        using var database = TestArchiveDatabase.Create();
+        string? file = database.ConnectionString is null ? Path.Combine(root, "a.db") : null;
         try
         {
-            using (var session = ArchiveSession.Open(Path.Combine(root, "a.db"), Path.Combine(root, "store"), new CliSettings()))
+            using (var session = ArchiveSession.Open(file, Path.Combine(root, "store"), new CliSettings(), database.ConnectionString))
             {
                 // Before, the command line registered a hand-picked subset without these.
                 Assert.NotNull(session.Get<CuratorActions>());
@@ -72,7 +76,7 @@ public sealed class HostShapeTests
 
             var settings = new CliSettings();
             settings.Archive.MaxAttempts = 0;
-            var refused = Assert.Throws<UsageException>(() => ArchiveSession.Open(Path.Combine(root, "a.db"), Path.Combine(root, "store"), settings));
+            var refused = Assert.Throws<UsageException>(() => ArchiveSession.Open(file, Path.Combine(root, "store"), settings, database.ConnectionString));
             Assert.Contains("MaxAttempts", refused.Message, StringComparison.Ordinal);
         }
         finally
@@ -83,16 +87,34 @@ public sealed class HostShapeTests
     }
 
     [Fact]
+    public void The_command_line_names_an_SQLite_file_or_a_PostgreSQL_database_and_each_chooses_its_provider()
+    {
+        var onServer = new ArchiveOptions { Provider = DatabaseProvider.PostgreSql, ConnectionString = "Host=db.example.org;Database=tapevault" };
+        ArchiveLocation.Apply(onServer, "local.db", null, null);
+        Assert.Equal(DatabaseProvider.Sqlite, onServer.Provider);
+        Assert.Equal(Path.GetFullPath("local.db"), onServer.DatabasePath);
+
+        var inFile = new ArchiveOptions();
+        ArchiveLocation.Apply(inFile, null, "Host=127.0.0.1;Database=archive", null);
+        Assert.Equal(DatabaseProvider.PostgreSql, inFile.Provider);
+        Assert.Equal("Host=127.0.0.1;Database=archive", inFile.ConnectionString);
+
+        var both = Assert.Throws<UsageException>(() => ArchiveLocation.Apply(new ArchiveOptions(), "local.db", "Host=127.0.0.1", null));
+        Assert.Contains("--database and --connection", both.Message, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public async Task Rows_and_events_are_stamped_by_the_host_clock()
     {
         var root = Directory.CreateTempSubdirectory("tapevault-host-").FullName;
         var at = new DateTimeOffset(2031, 4, 5, 6, 7, 8, TimeSpan.Zero);
+        using var database = TestArchiveDatabase.Create();
         try
         {
             var services = new ServiceCollection();
             services.AddLogging();
             services.AddSingleton<TimeProvider>(new FixedClock(at));
-            services.AddTapeVaultArchive(new ArchiveOptions { BaseFolder = root }, ProfileCatalog.BuiltIn);
+            services.AddTapeVaultArchive(database.ApplyTo(new ArchiveOptions { BaseFolder = root }), ProfileCatalog.BuiltIn);
             await using var provider = services.BuildServiceProvider();
             await using (var db = provider.GetRequiredService<IDbContextFactory<ArchiveDbContext>>().CreateDbContext())
             {
@@ -119,7 +141,7 @@ public sealed class HostShapeTests
         }
     }
 
-    [Fact]
+    [SqliteOnlyFact("a data migration of SQLite databases made by an earlier release; the PostgreSQL schema began with the status stored as the enum")]
     public async Task Readings_stored_by_their_lower_case_word_read_back_as_the_status_enum_after_the_migration()
     {
         var root = Directory.CreateTempSubdirectory("tapevault-host-").FullName;

@@ -5,16 +5,28 @@ using Microsoft.Extensions.DependencyInjection.Extensions;
 using Microsoft.Extensions.Hosting;
 using TapeVault.Archive.Entities;
 using TapeVault.Archive.Jobs;
+using TapeVault.Archive.Tests.PostgreSql;
 using TapeVault.Core.Formats;
 
 namespace TapeVault.Archive.Tests;
 
-/// <summary>An empty, migrated archive in a temporary folder, and job-engine nodes (worker hosts) over it.</summary>
+/// <summary>
+/// An empty, migrated archive in a temporary folder (on the test run's provider: an SQLite file there, or a fresh
+/// PostgreSQL database, <see cref="TestDatabase"/>), and job-engine nodes (worker hosts) over it. The schedule stays
+/// in its SQLite file beside the archive's database either way: one machine.
+/// </summary>
 public sealed class JobArchive : IAsyncDisposable
 {
-    private JobArchive(string root) => Root = root;
+    private JobArchive(string root, string? postgreSql)
+    {
+        Root = root;
+        PostgreSql = postgreSql;
+    }
 
     public string Root { get; }
+
+    /// <summary>The archive's PostgreSQL database on a PostgreSQL run, else null.</summary>
+    public string? PostgreSql { get; }
 
     public string DatabasePath => Path.Combine(Root, "archive.db");
 
@@ -24,16 +36,29 @@ public sealed class JobArchive : IAsyncDisposable
 
     public static async Task<JobArchive> CreateAsync()
     {
-        var archive = new JobArchive(Directory.CreateTempSubdirectory("tapevault-jobs-test-").FullName);
+        var archive = new JobArchive(Directory.CreateTempSubdirectory("tapevault-jobs-test-").FullName, TestDatabase.IsPostgreSql ? await TestDatabase.CreateAsync() : null);
         await using var db = archive.NewContext();
         await ArchiveDatabase.MigrateAsync(db);
         return archive;
     }
 
-    public ArchiveOptions Options(int workers = 1, int maxAttempts = 3) =>
-        new() { BaseFolder = Root, DatabasePath = DatabasePath, StorePath = StorePath, Workers = workers, MaxAttempts = maxAttempts };
+    public ArchiveOptions Options(int workers = 1, int maxAttempts = 3) => new()
+    {
+        BaseFolder = Root,
+        DatabasePath = DatabasePath,
+        StorePath = StorePath,
+        Workers = workers,
+        MaxAttempts = maxAttempts,
+        Provider = PostgreSql is null ? DatabaseProvider.Sqlite : DatabaseProvider.PostgreSql,
+        ConnectionString = PostgreSql ?? string.Empty,
+    };
 
-    public ArchiveDbContext NewContext() => ArchiveDatabase.Open(DatabasePath);
+    public ArchiveDbContext NewContext() => ArchiveDatabase.Open(Options());
+
+    /// <summary>The arguments that point the command line at this archive's database and store.</summary>
+    public string[] CliArchiveArguments() => PostgreSql is null
+        ? ["--database", DatabasePath, "--store", StorePath]
+        : ["--connection", PostgreSql, "--store", StorePath];
 
     /// <summary>A worker node over this archive; <paramref name="handlers"/> replace the built-in job handlers when given.</summary>
     public IHost Worker(IEnumerable<IJobHandler>? handlers = null, int workers = 1, int maxAttempts = 3, string fixitySchedule = "", Action<IServiceCollection>? more = null) =>
@@ -108,6 +133,11 @@ public sealed class JobArchive : IAsyncDisposable
 
     public async ValueTask DisposeAsync()
     {
+        if (PostgreSql is not null)
+        {
+            TestDatabase.Drop(PostgreSql);
+        }
+
         // A node's last journal file may still be going away as the test ends: try the clean-up a few times.
         for (int attempt = 1; ; attempt++)
         {

@@ -3,6 +3,7 @@ using System.Security.Cryptography;
 using Microsoft.Data.Sqlite;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
+using Npgsql;
 using TapeVault.Archive.Ingest;
 using TapeVault.Cli;
 using TapeVault.Core.Formats;
@@ -12,7 +13,8 @@ using Xunit;
 namespace TapeVault.Archive.Tests;
 
 /// <summary>
-/// Edits made behind the archive's back, straight in the SQLite file and the store, as someone with the files (but
+/// Edits made behind the archive's back, straight in the database (the SQLite file, or the PostgreSQL database on a
+/// PostgreSQL run) and the store, as someone with the files (but
 /// not the archive's code) would make them; <c>tapevault verify</c> must name each. The checks read only the command's
 /// output and exit code.
 /// </summary>
@@ -46,8 +48,8 @@ public sealed class TamperTests
         File.SetAttributes(oldPath, FileAttributes.Normal);
         File.Delete(oldPath);
         Tamper(archive, $"""
-            UPDATE Objects SET Sha256 = '{newSha}', Size = {bytes.Length} WHERE Sha256 = '{oldSha}';
-            UPDATE Captures SET Sha256 = '{newSha}', Size = {bytes.Length} WHERE Id = {captureId};
+            UPDATE "Objects" SET "Sha256" = '{newSha}', "Size" = {bytes.Length} WHERE "Sha256" = '{oldSha}';
+            UPDATE "Captures" SET "Sha256" = '{newSha}', "Size" = {bytes.Length} WHERE "Id" = {captureId};
             """);
 
         var (exit, output, _) = Verify(archive);
@@ -80,7 +82,7 @@ public sealed class TamperTests
         }
 
         Assert.Equal(0, Verify(archive).Exit);
-        Tamper(archive, $"UPDATE Captures SET Sha256 = '{firstSha}', Size = {firstSize} WHERE Id = {otherCapture};");
+        Tamper(archive, $"UPDATE \"Captures\" SET \"Sha256\" = '{firstSha}', \"Size\" = {firstSize} WHERE \"Id\" = {otherCapture};");
 
         var (exit, output, _) = Verify(archive);
         Assert.Equal(1, exit);
@@ -104,7 +106,7 @@ public sealed class TamperTests
         }
 
         Assert.Equal(0, Verify(archive).Exit);
-        TamperBehindTriggers(archive, $"UPDATE Events SET Agent = 'someone-else' WHERE Id = {edited};");
+        TamperBehindTriggers(archive, $"UPDATE \"Events\" SET \"Agent\" = 'someone-else' WHERE \"Id\" = {edited};");
 
         var (exit, output, _) = Verify(archive);
         Assert.Equal(1, exit);
@@ -124,7 +126,7 @@ public sealed class TamperTests
             next = ids[(ids.Count / 2) + 1];
         }
 
-        TamperBehindTriggers(archive, $"DELETE FROM Events WHERE Id = {removed};");
+        TamperBehindTriggers(archive, $"DELETE FROM \"Events\" WHERE \"Id\" = {removed};");
 
         var (exit, output, _) = Verify(archive);
         Assert.Equal(1, exit);
@@ -136,13 +138,13 @@ public sealed class TamperTests
     {
         await using var archive = await ArchiveFixture.CreateAsync();
         var bag = Path.Combine(archive.Root, "kept-bag");
-        Assert.Equal(0, Entry.Run(["export", "bag", "--item", ArchiveFixture.Accession, "--out", bag, "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath], new StringWriter(), new StringWriter()));
+        Assert.Equal(0, Entry.Run(["export", "bag", "--item", ArchiveFixture.Accession, "--out", bag, .. archive.CliArchiveArguments()], new StringWriter(), new StringWriter()));
         string kept = File.ReadAllText(Path.Combine(bag, "event-chain-head.txt")).Trim();
         long keptId = long.Parse(kept.Split(' ')[1], CultureInfo.InvariantCulture);
         Assert.Equal(0, Verify(archive, "--expect-head", kept).Exit);
 
         // Everything from the kept head on is removed: what is left is a whole chain, just shorter.
-        TamperBehindTriggers(archive, $"DELETE FROM Events WHERE Id >= {keptId};");
+        TamperBehindTriggers(archive, $"DELETE FROM \"Events\" WHERE \"Id\" >= {keptId};");
         var (alone, aloneOutput, _) = Verify(archive);
         Assert.Equal(0, alone);
         Assert.Contains("Event chain intact", aloneOutput, StringComparison.Ordinal);
@@ -160,7 +162,7 @@ public sealed class TamperTests
     {
         await using var archive = await ArchiveFixture.CreateAsync();
         var (captureId, sha, _) = Captures(archive)[0];
-        Tamper(archive, $"DELETE FROM Objects WHERE Sha256 = '{sha}';");
+        Tamper(archive, $"DELETE FROM \"Objects\" WHERE \"Sha256\" = '{sha}';");
 
         var (exit, output, _) = Verify(archive);
         Assert.Equal(1, exit);
@@ -178,13 +180,27 @@ public sealed class TamperTests
         SqliteConnection.ClearAllPools();
         var output = new StringWriter();
         var error = new StringWriter();
-        int exit = Entry.Run(["verify", "--database", archive.Options.FullDatabasePath, "--store", archive.Options.FullStorePath, .. extra], output, error);
+        int exit = Entry.Run(["verify", .. archive.CliArchiveArguments(), .. extra], output, error);
         return (exit, output.ToString(), error.ToString());
     }
 
-    /// <summary>Runs SQL on the file as an outside program would: its own connection, foreign keys off.</summary>
+    /// <summary>
+    /// Runs SQL on the database as an outside program would: its own connection, foreign keys off. On SQLite that is
+    /// PRAGMA foreign_keys; on PostgreSQL a superuser's session_replication_role = replica, under which foreign keys
+    /// (and other triggers) are not enforced for that session only (PostgreSQL 15 manual, "session_replication_role").
+    /// Identifiers are double-quoted, which both read alike.
+    /// </summary>
     internal static void Tamper(ArchiveFixture archive, string sql)
     {
+        if (archive.Options.Provider == DatabaseProvider.PostgreSql)
+        {
+            using var pg = new NpgsqlConnection(new NpgsqlConnectionStringBuilder(archive.Options.ConnectionString) { Pooling = false }.ConnectionString);
+            pg.Open();
+            using var run = new NpgsqlCommand("SET session_replication_role = replica;\n" + sql, pg);
+            run.ExecuteNonQuery();
+            return;
+        }
+
         SqliteConnection.ClearAllPools();
         using var connection = new SqliteConnection($"Data Source={archive.Options.FullDatabasePath};Pooling=False");
         connection.Open();
@@ -193,9 +209,29 @@ public sealed class TamperTests
         command.ExecuteNonQuery();
     }
 
-    /// <summary>Drops every trigger on Events, runs the edit, and puts the triggers back exactly as they were.</summary>
+    /// <summary>
+    /// Drops every trigger on Events, runs the edit, and puts the triggers back exactly as they were (on PostgreSQL:
+    /// disables the table's own triggers for the edit, ALTER TABLE … DISABLE TRIGGER USER, and enables them again).
+    /// </summary>
     private static void TamperBehindTriggers(ArchiveFixture archive, string edit)
     {
+        if (archive.Options.Provider == DatabaseProvider.PostgreSql)
+        {
+            using (var pg = new NpgsqlConnection(archive.Options.ConnectionString))
+            {
+                pg.Open();
+                using var count = new NpgsqlCommand("SELECT count(*) FROM pg_trigger WHERE tgrelid = '\"Events\"'::regclass AND NOT tgisinternal", pg);
+                Assert.Equal(4L, (long)count.ExecuteScalar()!);
+            }
+
+            // In a session of its own, with replication role origin, so the triggers would fire if they were enabled.
+            using var connection = new NpgsqlConnection(new NpgsqlConnectionStringBuilder(archive.Options.ConnectionString) { Pooling = false }.ConnectionString);
+            connection.Open();
+            using var command = new NpgsqlCommand($"ALTER TABLE \"Events\" DISABLE TRIGGER USER;\n{edit}\nALTER TABLE \"Events\" ENABLE TRIGGER USER;", connection);
+            command.ExecuteNonQuery();
+            return;
+        }
+
         var triggers = new List<(string Name, string Sql)>();
         SqliteConnection.ClearAllPools();
         using (var connection = new SqliteConnection($"Data Source={archive.Options.FullDatabasePath};Pooling=False"))

@@ -2,14 +2,18 @@ using System.Text.RegularExpressions;
 using Microsoft.AspNetCore.Identity;
 using TapeVault.Archive.Accounts;
 using TapeVault.Cli;
+using TapeVault.Archive.Tests.PostgreSql;
 using Xunit;
 
 namespace TapeVault.Archive.Tests;
 
-/// <summary>tapevault users add, list, reset, disable and enable against a real archive file.</summary>
+/// <summary>tapevault users add, list, reset, disable and enable against a real archive (an SQLite file, or a PostgreSQL database on a PostgreSQL run).</summary>
 public sealed partial class UsersCommandTests : IDisposable
 {
     private readonly string root = Directory.CreateTempSubdirectory("tapevault-users-").FullName;
+
+    /// <summary>A PostgreSQL database of its own on a PostgreSQL run; the SQLite file <see cref="Database"/> otherwise.</summary>
+    private readonly TestArchiveDatabase database = TestArchiveDatabase.Create();
 
     private string Database => Path.Combine(root, "archive.db");
 
@@ -27,7 +31,7 @@ public sealed partial class UsersCommandTests : IDisposable
         Assert.Contains("Account 'ed-curator' has a new password; its sessions were ended.", reset, StringComparison.Ordinal);
         string second = OneTimePassword(reset);
         Assert.NotEqual(first, second);
-        using (var session = ArchiveSession.Open(Database, Store, new CliSettings()))
+        using (var session = ArchiveSession.Open(database.ConnectionString is null ? Database : null, Store, new CliSettings(), database.ConnectionString))
         {
             var users = session.Get<UserManager<IdentityUser>>();
             var user = (await users.FindByNameAsync("ed-curator"))!;
@@ -53,7 +57,7 @@ public sealed partial class UsersCommandTests : IDisposable
     {
         var output = new StringWriter();
         var error = new StringWriter();
-        int exit = Entry.Run([.. args, "--database", Database, "--store", Store], output, error);
+        int exit = Entry.Run([.. args, .. database.CliArguments(Database), "--store", Store], output, error);
         Assert.True(exit == expected, $"exit {exit}: {error}");
         return output.ToString();
     }
@@ -62,7 +66,7 @@ public sealed partial class UsersCommandTests : IDisposable
     {
         var output = new StringWriter();
         var error = new StringWriter();
-        Assert.Equal(2, Entry.Run([.. args, "--database", Database, "--store", Store], output, error));
+        Assert.Equal(2, Entry.Run([.. args, .. database.CliArguments(Database), "--store", Store], output, error));
         Assert.Equal(string.Empty, output.ToString());
         return error.ToString().Trim();
     }
@@ -80,6 +84,7 @@ public sealed partial class UsersCommandTests : IDisposable
 
     public void Dispose()
     {
+        database.Dispose();
         Microsoft.Data.Sqlite.SqliteConnection.ClearAllPools();
         try
         {

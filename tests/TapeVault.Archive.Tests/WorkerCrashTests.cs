@@ -85,7 +85,7 @@ public sealed class WorkerCrashTests
             RedirectStandardError = true,
             UseShellExecute = false,
         };
-        foreach (var arg in new[] { Path.Combine(AppContext.BaseDirectory, "tapevault.dll"), "worker", "--database", archive.DatabasePath, "--store", archive.StorePath, "--workers", "1" }.Concat(more))
+        foreach (var arg in (string[])[Path.Combine(AppContext.BaseDirectory, "tapevault.dll"), "worker", .. archive.CliArchiveArguments(), "--workers", "1", .. more])
         {
             start.ArgumentList.Add(arg);
         }

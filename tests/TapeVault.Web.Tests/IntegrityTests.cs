@@ -1,7 +1,6 @@
 using System.IO.Compression;
 using System.Net;
 using System.Net.Http.Json;
-using Microsoft.Data.Sqlite;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.Extensions.DependencyInjection;
 using TapeVault.Archive;
@@ -86,21 +85,14 @@ public sealed class IntegrityTests
             captureId = uploaded.Capture.Id;
         }
 
-        SqliteConnection.ClearAllPools();
-        await using (var connection = new SqliteConnection($"Data Source={folder.DatabasePath};Pooling=False"))
-        {
-            await connection.OpenAsync();
-            await using var delete = connection.CreateCommand();
-            delete.CommandText = $"PRAGMA foreign_keys = OFF; DELETE FROM Objects WHERE Sha256 = '{sha}';";
-            Assert.Equal(1, await delete.ExecuteNonQueryAsync());
-        }
+        Assert.Equal(1, folder.ExecuteBehindTheApp($"DELETE FROM \"Objects\" WHERE \"Sha256\" = '{sha}';"));
 
         await using var second = new ArchiveAppFactory(folder);
         using var again = await second.SignedInAsync(ArchiveAppFactory.CuratorName);
         var path = second.Store.PathOf(sha);
         Assert.True(File.Exists(path), "The original was moved out of the store at start.");
         Assert.False(Directory.Exists(Path.Combine(folder.StorePath, "orphans")));
-        await using (var db = ArchiveDatabase.Open(folder.DatabasePath))
+        await using (var db = folder.OpenDatabase())
         {
             Assert.Equal(1, await db.Events.CountAsync(e => e.Outcome == "unrecorded" && e.Detail.Contains(sha)));
         }

@@ -1,11 +1,13 @@
+using System.Data.Common;
 using System.Reflection;
 using Microsoft.Data.Sqlite;
 using Microsoft.EntityFrameworkCore;
 using Microsoft.EntityFrameworkCore.Migrations;
 using Microsoft.Extensions.DependencyInjection;
+using Npgsql;
 using TapeVault.Archive;
 using TapeVault.Archive.Events;
-using TapeVault.Migrations;
+using TapeVault.Archive.Tests.PostgreSql;
 using TapeVault.Web.Tests.Support;
 using Xunit;
 
@@ -14,27 +16,33 @@ namespace TapeVault.Web.Tests;
 public sealed class MigrationTests
 {
     [Fact]
-    public async Task FirstStart_AppliesEveryMigration_ToAnEmptyDatabase_InWalMode_WithAppendOnlyEvents()
+    public async Task FirstStart_AppliesEveryMigration_ToAnEmptyDatabase_WithAppendOnlyEvents_AndOnSqliteInWalMode()
     {
-        using var folder = new ArchiveFolder();
+        // On a PostgreSQL run the database exists but has no tables, as a new server's database would.
+        using var folder = new ArchiveFolder(emptyDatabase: true);
+        bool postgreSql = folder.PostgreSql is not null;
+        Assert.Equal(TestDatabase.IsPostgreSql, postgreSql);
         Assert.False(File.Exists(folder.DatabasePath));
         await using var app = new ArchiveAppFactory(folder);
         _ = app.Services; // starts the host, whose startup applies the migrations
 
-        // Every migration class in the migrations assembly, found by its attribute rather than through EF.
-        var inAssembly = typeof(DesignTimeFactory).Assembly.GetTypes()
+        // Every migration class in the provider's migrations assembly, found by its attribute rather than through EF.
+        var assembly = postgreSql ? typeof(TapeVault.Migrations.PostgreSql.DesignTimeFactory).Assembly : typeof(TapeVault.Migrations.DesignTimeFactory).Assembly;
+        var inAssembly = assembly.GetTypes()
             .Where(t => typeof(Migration).IsAssignableFrom(t) && t.GetCustomAttribute<MigrationAttribute>() is not null)
             .Select(t => t.GetCustomAttribute<MigrationAttribute>()!.Id)
             .Order(StringComparer.Ordinal)
             .ToList();
         Assert.NotEmpty(inAssembly);
 
-        await using var connection = new SqliteConnection(ArchiveDatabase.ConnectionString(folder.DatabasePath));
+        await using DbConnection connection = postgreSql
+            ? new NpgsqlConnection(folder.PostgreSql)
+            : new SqliteConnection(ArchiveDatabase.ConnectionString(folder.DatabasePath));
         await connection.OpenAsync();
         var applied = new List<string>();
         await using (var history = connection.CreateCommand())
         {
-            history.CommandText = "SELECT MigrationId FROM __EFMigrationsHistory ORDER BY MigrationId";
+            history.CommandText = "SELECT \"MigrationId\" FROM \"__EFMigrationsHistory\"";
             await using var reader = await history.ExecuteReaderAsync();
             while (await reader.ReadAsync())
             {
@@ -42,27 +50,32 @@ public sealed class MigrationTests
             }
         }
 
-        Assert.Equal(inAssembly, applied);
+        Assert.Equal(inAssembly, applied.Order(StringComparer.Ordinal));
         await using (var scope = app.Scope())
         {
             var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+            Assert.Equal(postgreSql, db.Database.IsNpgsql());
             Assert.Empty(await db.Database.GetPendingMigrationsAsync());
             EventLog.Add(db, EventTypes.Create, "test", "collection", "1", "success", "Written to test the triggers.");
             await db.SaveChangesAsync();
         }
 
-        // SQLite reports the journal mode of the file; WAL is stored in the file itself (sqlite.org, "PRAGMA journal_mode").
-        Assert.Equal("wal", Scalar(connection, "PRAGMA journal_mode;"));
+        if (!postgreSql)
+        {
+            // SQLite reports the journal mode of the file; WAL is stored in the file itself (sqlite.org, "PRAGMA
+            // journal_mode"). PostgreSQL has no such mode to set: it always writes ahead (its manual, "Write-Ahead Logging").
+            Assert.Equal("wal", Scalar(connection, "PRAGMA journal_mode;"));
+        }
 
-        // The database refuses to change or remove an event, whatever program opens the file.
-        var update = Assert.Throws<SqliteException>(() => Scalar(connection, "UPDATE Events SET Detail = 'changed';"));
+        // The database refuses to change or remove an event, whatever program connects to it.
+        var update = Assert.ThrowsAny<DbException>(() => Scalar(connection, "UPDATE \"Events\" SET \"Detail\" = 'changed';"));
         Assert.Contains("append-only", update.Message, StringComparison.Ordinal);
-        var delete = Assert.Throws<SqliteException>(() => Scalar(connection, "DELETE FROM Events;"));
+        var delete = Assert.ThrowsAny<DbException>(() => Scalar(connection, "DELETE FROM \"Events\";"));
         Assert.Contains("append-only", delete.Message, StringComparison.Ordinal);
-        Assert.Equal("1", Scalar(connection, "SELECT COUNT(*) FROM Events WHERE Detail = 'Written to test the triggers.';"));
+        Assert.Equal("1", Scalar(connection, "SELECT COUNT(*) FROM \"Events\" WHERE \"Detail\" = 'Written to test the triggers.';"));
     }
 
-    private static string? Scalar(SqliteConnection connection, string sql)
+    private static string? Scalar(DbConnection connection, string sql)
     {
         using var command = connection.CreateCommand();
         command.CommandText = sql;

@@ -53,7 +53,7 @@ public sealed class RestartTests
         }
 
         // The stop cut the job off: it is still marked running, and nothing of it was stored.
-        await using (var db = ArchiveDatabase.Open(folder.DatabasePath))
+        await using (var db = folder.OpenDatabase())
         {
             var job = await db.Jobs.AsNoTracking().SingleAsync(j => j.Id == jobId);
             Assert.Equal(JobState.Running, job.State);
@@ -67,7 +67,7 @@ public sealed class RestartTests
         var finished = await again.WaitForJobAsync(jobId, TimeSpan.FromSeconds(120));
         Assert.True(finished.State == "done" || (finished.State == "failed" && !string.IsNullOrWhiteSpace(finished.Error)), $"The job ended {finished.State} without a reason.");
         Assert.Equal(2, finished.Attempts);
-        await using (var db = ArchiveDatabase.Open(folder.DatabasePath))
+        await using (var db = folder.OpenDatabase())
         {
             Assert.Equal(1, await db.Runs.CountAsync(r => r.CaptureId == captureId));
             Assert.Equal(0, await db.Jobs.CountAsync(j => j.State == JobState.Running || j.State == JobState.Queued));

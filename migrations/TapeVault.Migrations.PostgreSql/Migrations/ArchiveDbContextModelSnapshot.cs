@@ -123,7 +123,8 @@ namespace TapeVault.Migrations.PostgreSql.Migrations
 
                     b.Property<string>("UserName")
                         .HasMaxLength(256)
-                        .HasColumnType("character varying(256)");
+                        .HasColumnType("character varying(256)")
+                        .UseCollation("C");
 
                     b.HasKey("Id");
 
@@ -501,7 +502,8 @@ namespace TapeVault.Migrations.PostgreSql.Migrations
                     b.Property<string>("Name")
                         .IsRequired()
                         .HasMaxLength(200)
-                        .HasColumnType("character varying(200)");
+                        .HasColumnType("character varying(200)")
+                        .UseCollation("C");
 
                     b.HasKey("Id");
 
@@ -804,7 +806,8 @@ namespace TapeVault.Migrations.PostgreSql.Migrations
                     b.Property<string>("AccessionNumber")
                         .IsRequired()
                         .HasMaxLength(64)
-                        .HasColumnType("character varying(64)");
+                        .HasColumnType("character varying(64)")
+                        .UseCollation("C");
 
                     b.Property<int>("CollectionId")
                         .HasColumnType("integer");

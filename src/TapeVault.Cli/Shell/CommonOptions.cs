@@ -1,6 +1,7 @@
 using System.CommandLine;
 using System.CommandLine.Parsing;
 using System.Globalization;
+using TapeVault.Archive;
 using TapeVault.Core.Formats;
 
 namespace TapeVault.Cli;
@@ -92,13 +93,22 @@ public static class CommonOptions
         values.Length == 1 ? values[0] : $"{string.Join(", ", values[..^1])} or {values[^1]}";
 }
 
-/// <summary>--database FILE and --store DIR: where the web app's archive lives, for the commands that open it.</summary>
+/// <summary>
+/// --database FILE (an SQLite archive) or --connection STRING (a PostgreSQL one), and --store DIR: where the web app's
+/// archive lives, for the commands that open it.
+/// </summary>
 public sealed class ArchiveLocation
 {
     public Option<string> Database { get; } = new("--database")
     {
         HelpName = "FILE",
         Description = "the archive's SQLite database; default: TapeVault:Archive in appsettings.json",
+    };
+
+    public Option<string> Connection { get; } = new("--connection")
+    {
+        HelpName = "STRING",
+        Description = "a PostgreSQL archive's connection string (Host=…;Database=…;Username=…), in place of --database; default: TapeVault:Archive in appsettings.json",
     };
 
     public Option<string> Store { get; } = new("--store")
@@ -111,12 +121,50 @@ public sealed class ArchiveLocation
     {
         ArgumentNullException.ThrowIfNull(command);
         command.Options.Add(Database);
+        command.Options.Add(Connection);
         command.Options.Add(Store);
     }
 
     public ArchiveSession Open(Invocation run, CliSettings settings)
     {
         ArgumentNullException.ThrowIfNull(run);
-        return ArchiveSession.Open(run.Value(Database), run.Value(Store), settings);
+        return ArchiveSession.Open(run.Value(Database), run.Value(Store), settings, run.Value(Connection));
+    }
+
+    /// <summary>Points <paramref name="options"/> at the archive the command line names, where it names one.</summary>
+    public void ApplyTo(Invocation run, ArchiveOptions options)
+    {
+        ArgumentNullException.ThrowIfNull(run);
+        Apply(options, run.Value(Database), run.Value(Connection), run.Value(Store));
+    }
+
+    /// <summary>
+    /// --database names an SQLite file and --connection a PostgreSQL database, each choosing its provider whatever the
+    /// settings say; naming both is refused.
+    /// </summary>
+    public static void Apply(ArchiveOptions options, string? database, string? connection, string? store)
+    {
+        ArgumentNullException.ThrowIfNull(options);
+        if (database is not null && connection is not null)
+        {
+            throw new UsageException("The options --database and --connection each name an archive; give one of them.");
+        }
+
+        if (database is not null)
+        {
+            options.Provider = DatabaseProvider.Sqlite;
+            options.DatabasePath = Path.GetFullPath(database);
+        }
+
+        if (connection is not null)
+        {
+            options.Provider = DatabaseProvider.PostgreSql;
+            options.ConnectionString = connection;
+        }
+
+        if (store is not null)
+        {
+            options.StorePath = Path.GetFullPath(store);
+        }
     }
 }

@@ -18,6 +18,12 @@ public sealed class PostgreSqlServer : IAsyncLifetime
     /// <summary>Where Debian puts the server's programs (package postgresql-15; scripts/test installs it).</summary>
     public const string BinFolder = "/usr/lib/postgresql/15/bin";
 
+    /// <summary>
+    /// When set, the folder the clusters are made in (scripts/test sets it, so that it can stop any cluster a test
+    /// process killed before its end left running); else the system's temporary folder.
+    /// </summary>
+    public const string ClustersVariable = "TAPEVAULT_TEST_CLUSTERS";
+
     private const string Superuser = "postgres";
     private string? root;
     private string? data;
@@ -46,7 +52,9 @@ public sealed class PostgreSqlServer : IAsyncLifetime
             }
         }
 
-        root = Directory.CreateTempSubdirectory("tapevault-pg-").FullName;
+        root = Environment.GetEnvironmentVariable(ClustersVariable) is { Length: > 0 } parent
+            ? Directory.CreateDirectory(Path.Combine(parent, "tapevault-pg-" + Guid.NewGuid().ToString("N")[..12])).FullName
+            : Directory.CreateTempSubdirectory("tapevault-pg-").FullName;
         data = Path.Combine(root, "data");
         bool asRoot = Environment.UserName == "root" || GetEffectiveUserId() == 0;
         if (asRoot)

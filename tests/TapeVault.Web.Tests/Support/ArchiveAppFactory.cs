@@ -8,22 +8,46 @@ using Microsoft.AspNetCore.Mvc.Testing;
 using Microsoft.Data.Sqlite;
 using Microsoft.Extensions.DependencyInjection;
 using Microsoft.Extensions.Logging;
+using Npgsql;
 using TapeVault.Archive;
 using TapeVault.Archive.Accounts;
 using TapeVault.Archive.Storage;
+using TapeVault.Archive.Tests.PostgreSql;
 using TapeVault.Web.Startup;
 
 namespace TapeVault.Web.Tests.Support;
 
 /// <summary>
 /// A fresh folder for one archive (its SQLite file, its content store, its sign-in keys), deleted with everything in
-/// it when the test is done. Several app starts in a row may share one, as a restart does.
+/// it when the test is done; on a PostgreSQL run (<see cref="TestDatabase"/>) the archive's database is a fresh
+/// PostgreSQL database instead of the file, dropped with the folder. Several app starts in a row may share one, as a
+/// restart does.
 /// </summary>
 public sealed class ArchiveFolder : IDisposable
 {
+    /// <param name="emptyDatabase">On a PostgreSQL run, a database with no tables yet (as a first start finds it) rather than a migrated one.</param>
+    public ArchiveFolder(bool emptyDatabase = false)
+    {
+        if (TestDatabase.IsPostgreSql)
+        {
+            PostgreSql = emptyDatabase ? TestDatabase.CreateEmpty() : TestDatabase.Create();
+        }
+    }
+
     public string Root { get; } = Directory.CreateTempSubdirectory("tapevault-web-").FullName;
 
+    /// <summary>The archive's PostgreSQL database on a PostgreSQL run; null on SQLite, where it is <see cref="DatabasePath"/>.</summary>
+    public string? PostgreSql { get; }
+
     public string DatabasePath => Path.Combine(Root, "data", "archive.db");
+
+    /// <summary>A context on the archive's database, whichever provider holds it.</summary>
+    public ArchiveDbContext OpenDatabase() => ArchiveDatabase.Open(new ArchiveOptions
+    {
+        DatabasePath = DatabasePath,
+        Provider = PostgreSql is null ? DatabaseProvider.Sqlite : DatabaseProvider.PostgreSql,
+        ConnectionString = PostgreSql ?? string.Empty,
+    });
 
     public string StorePath => Path.Combine(Root, "data", "store");
 
@@ -31,8 +55,47 @@ public sealed class ArchiveFolder : IDisposable
 
     public string File(string name) => Path.Combine(Root, name);
 
+    /// <summary>
+    /// Runs SQL on the archive's database as an outside program would: its own connection, foreign keys off (SQLite:
+    /// PRAGMA foreign_keys; PostgreSQL: a superuser's session_replication_role = replica, PostgreSQL 15 manual).
+    /// Identifiers are double-quoted, which both read alike. Returns the rows changed.
+    /// </summary>
+    public int ExecuteBehindTheApp(string sql)
+    {
+        if (PostgreSql is not null)
+        {
+            using var pg = new NpgsqlConnection(new NpgsqlConnectionStringBuilder(PostgreSql) { Pooling = false }.ConnectionString);
+            pg.Open();
+            using (var role = new NpgsqlCommand("SET session_replication_role = replica", pg))
+            {
+                role.ExecuteNonQuery();
+            }
+
+            using var run = new NpgsqlCommand(sql, pg);
+            return run.ExecuteNonQuery();
+        }
+
+        SqliteConnection.ClearAllPools();
+        using var connection = new SqliteConnection($"Data Source={DatabasePath};Pooling=False");
+        connection.Open();
+        using (var keys = connection.CreateCommand())
+        {
+            keys.CommandText = "PRAGMA foreign_keys = OFF;";
+            keys.ExecuteNonQuery();
+        }
+
+        using var command = connection.CreateCommand();
+        command.CommandText = sql;
+        return command.ExecuteNonQuery();
+    }
+
     public void Dispose()
     {
+        if (PostgreSql is not null)
+        {
+            TestDatabase.Drop(PostgreSql);
+        }
+
         // Pooled connections keep the file open; let them go before the folder is removed.
         using (var connection = new SqliteConnection(ArchiveDatabase.ConnectionString(DatabasePath)))
         {
@@ -98,6 +161,8 @@ public sealed class ArchiveAppFactory : WebApplicationFactory<Program>
             ["TapeVault:Archive:StorePath"] = folder.StorePath,
             ["TapeVault:Web:SeedDemo"] = "false",
             ["TapeVault:Web:InitialCurator"] = string.Empty,
+            ["TapeVault:Archive:Provider"] = folder.PostgreSql is null ? "Sqlite" : "PostgreSql",
+            ["TapeVault:Archive:ConnectionString"] = folder.PostgreSql ?? string.Empty,
 
             // Quiet logs: the settings file's per-category levels would otherwise win over a filter set in code.
             ["Logging:LogLevel:Default"] = "Warning",

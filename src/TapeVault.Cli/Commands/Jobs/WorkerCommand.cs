@@ -32,15 +32,7 @@ public sealed class WorkerCommand : CliCommand
         var settings = JobWorker.ReadSettings([], repository);
         var options = settings.GetSection(ArchiveOptions.Section).Get<ArchiveOptions>() ?? new ArchiveOptions();
         options.BaseFolder = repository ?? Directory.GetCurrentDirectory();
-        if (run.Value(archive.Database) is { } database)
-        {
-            options.DatabasePath = Path.GetFullPath(database);
-        }
-
-        if (run.Value(archive.Store) is { } store)
-        {
-            options.StorePath = Path.GetFullPath(store);
-        }
+        archive.ApplyTo(run, options);
 
         if (run.Value(workers) is { } count)
         {
