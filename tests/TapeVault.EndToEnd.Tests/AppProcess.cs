@@ -57,8 +57,11 @@ public sealed partial class AppProcess : IAsyncDisposable
         throw new InvalidOperationException("The tests must run from inside the repository.");
     }
 
-    /// <summary>Starts the app; with <paramref name="root"/> on an existing archive folder (a restart), else on a new one it deletes afterwards.</summary>
-    public static async Task<AppProcess> StartAsync(string? root = null)
+    /// <summary>
+    /// Starts the app; with <paramref name="root"/> on an existing archive folder (a restart), else on a new one it
+    /// deletes afterwards. <paramref name="environment"/> adds or overrides settings (TapeVault__… variables).
+    /// </summary>
+    public static async Task<AppProcess> StartAsync(string? root = null, IReadOnlyDictionary<string, string>? environment = null)
     {
         var repo = RepositoryRoot();
         var configuration = AppContext.BaseDirectory.Contains($"{Path.DirectorySeparatorChar}Debug{Path.DirectorySeparatorChar}", StringComparison.Ordinal) ? "Debug" : "Release";
@@ -87,6 +90,10 @@ public sealed partial class AppProcess : IAsyncDisposable
         start.Environment["TapeVault__Web__InitialCurator"] = "curator";
         start.Environment["TapeVault__Fixity__Schedule"] = string.Empty;
         start.Environment["DOTNET_ENVIRONMENT"] = "Production";
+        foreach (var (key, value) in environment ?? new Dictionary<string, string>())
+        {
+            start.Environment[key] = value;
+        }
 
         var process = Process.Start(start) ?? throw new InvalidOperationException("Could not start the web app.");
         var running = new AppProcess(process, root, address, owns);
