@@ -16,7 +16,7 @@ namespace TapeVault.EndToEnd.Tests.Cluster;
 /// The deployment for several machines, on loopback with real parts: the web app as a process serving pages only
 /// (<c>TapeVault:Web:Role = Pages</c>) and two <c>tapevault worker</c> processes, the archive and the clustered job
 /// schedule on one temporary PostgreSQL 15 cluster, one content store folder shared by all three. Twelve decodes and
-/// the four merges of their tapes are queued through the JSON API as a curator would; one worker is SIGKILLed in the
+/// then the four merges of their tapes are queued through the JSON API as a curator would; one worker is SIGKILLed in the
 /// middle of a decode. Every job must end done exactly once, the runs and images must be those that one machine
 /// (the web app alone on SQLite) makes of the same captures, no row may point at a missing parent, and the event
 /// chain must verify.
@@ -46,9 +46,10 @@ public sealed class SeveralNodesTests(PostgreSqlServer server)
             await using (var app = await AppProcess.StartAsync())
             {
                 using var api = await ApiSession.SignInAsync(app.Address, "curator", app.CuratorPassword);
-                var queued = await QueueAsync(api, captures);
-                var jobs = await api.WaitForJobsAsync(Cap);
-                alone = await CollectAsync(api, queued, jobs);
+                var queued = await QueueDecodesAsync(api, captures);
+                await api.WaitForJobsAsync(Cap);
+                await QueueMergesAsync(api, queued);
+                alone = await CollectAsync(api, queued, await api.WaitForJobsAsync(Cap));
             }
 
             var several = await RunOnSeveralNodesAsync(folder, captures);
@@ -96,7 +97,7 @@ public sealed class SeveralNodesTests(PostgreSqlServer server)
 
         await using var web = await AppProcess.StartAsync(root, new Dictionary<string, string>(settings) { ["TapeVault__Web__Role"] = "Pages" });
         using var api = await ApiSession.SignInAsync(web.Address, "curator", web.CuratorPassword);
-        var queued = await QueueAsync(api, captures);
+        var queued = await QueueDecodesAsync(api, captures);
 
         // The doomed worker starts first and alone, so that the one node in the schedule's state table is it.
         var worker = new Dictionary<string, string>(settings);
@@ -104,7 +105,7 @@ public sealed class SeveralNodesTests(PostgreSqlServer server)
         string doomedNode = await WaitForValueAsync(
             () => ScalarAsync<string>(schedule, "SELECT instance_name FROM qrtz_scheduler_state WHERE sched_name = @s", ("s", SchedulerName)),
             "the first worker to check in to the clustered schedule");
-        using var survivor = CliProcess.StartWorker(Path.Combine(folder, "web"), Path.Combine(root, "unused.db"), store, worker, "--until-idle");
+        using var survivor = CliProcess.StartWorker(Path.Combine(folder, "web"), Path.Combine(root, "unused.db"), store, worker);
         var survivorOutput = survivor.StandardOutput.ReadToEndAsync();
         var survivorError = survivor.StandardError.ReadToEndAsync();
 
@@ -147,13 +148,18 @@ public sealed class SeveralNodesTests(PostgreSqlServer server)
             await Task.Delay(20);
         }
 
+        // The survivor finishes the decodes, the killed one among them; then the merges are queued (a merge needs its
+        // tape's runs) and run on it too. At the end it is stopped as a service manager stops it (SIGTERM), cleanly.
+        await api.WaitForJobsAsync(Cap);
+        await QueueMergesAsync(api, queued);
+        var jobs = await api.WaitForJobsAsync(Cap);
+        Signal(survivor, "TERM");
         using (var cap = new CancellationTokenSource(Cap))
         {
             await survivor.WaitForExitAsync(cap.Token);
         }
 
         Assert.True(survivor.ExitCode == 0, $"The surviving worker exited {survivor.ExitCode}: {await survivorError}{await survivorOutput}");
-        var jobs = await api.WaitForJobsAsync(Cap);
 
         // Every job done; the killed decode was started twice (the dead node's attempt and the survivor's), every other
         // decode once.
@@ -290,8 +296,8 @@ public sealed class SeveralNodesTests(PostgreSqlServer server)
         return list;
     }
 
-    /// <summary>As a curator: a collection, an item per tape, each pass uploaded and its decode queued; then each tape's merge.</summary>
-    private static async Task<Queued> QueueAsync(ApiSession api, IReadOnlyList<CaptureFile> captures)
+    /// <summary>As a curator: a collection, an item per tape, each pass uploaded and its decode queued.</summary>
+    private static async Task<Queued> QueueDecodesAsync(ApiSession api, IReadOnlyList<CaptureFile> captures)
     {
         int collection = (await api.PostJsonAsync("/api/collections", new { name = "Loaned shelf" })).GetProperty("id").GetInt32();
         var items = new Dictionary<string, int>();
@@ -310,13 +316,16 @@ public sealed class SeveralNodesTests(PostgreSqlServer server)
             decodes[capture.Sha256] = (await api.PostJsonAsync($"/api/captures/{captureId}/decode", new { profile = "orrin-80" })).GetProperty("id").GetInt32();
         }
 
-        // A merge waits for its tape's decodes queued before it, wherever they run.
-        foreach (int item in items.Values)
+        return new Queued(decodes, items);
+    }
+
+    /// <summary>As a curator, once the tapes have runs: each tape's merge.</summary>
+    private static async Task QueueMergesAsync(ApiSession api, Queued queued)
+    {
+        foreach (int item in queued.Items.Values)
         {
             await api.PostJsonAsync($"/api/items/{item}/merge");
         }
-
-        return new Queued(decodes, items);
     }
 
     /// <summary>Reads every run and image through the API, keeping what must not depend on where or when it was made.</summary>
