@@ -13,13 +13,13 @@ using Xunit;
 namespace TapeVault.EndToEnd.Tests.Cluster;
 
 /// <summary>
-/// The deployment for several machines, on loopback with real parts: the web app as a process serving pages only
-/// (<c>TapeVault:Web:Role = Pages</c>) and two <c>tapevault worker</c> processes, the archive and the clustered job
-/// schedule on one temporary PostgreSQL 15 cluster, one content store folder shared by all three. Twelve decodes and
-/// then the four merges of their tapes are queued through the JSON API as a curator would; one worker is SIGKILLed in the
-/// middle of a decode. Every job must end done exactly once, the runs and images must be those that one machine
-/// (the web app alone on SQLite) makes of the same captures, no row may point at a missing parent, and the event
-/// chain must verify.
+/// The deployment for several machines, on loopback with real parts: the web app as two processes serving pages only
+/// (<c>TapeVault:Web:Role = Pages</c>, their sign-in keys in one shared folder) and two <c>tapevault worker</c>
+/// processes, the archive and the clustered job schedule on one temporary PostgreSQL 15 cluster, one content store
+/// folder shared by all. Twelve decodes, then the four merges of their tapes, are queued through the JSON API as a
+/// curator would; one worker is SIGKILLed in the middle of a decode. Every job must end done exactly once, the runs and
+/// images must be those that one machine (the web app alone on SQLite) makes of the same captures, no row may point
+/// at a missing parent, and the event chain must verify.
 /// </summary>
 [Collection(PostgreSqlGroup.Name)]
 public sealed class SeveralNodesTests(PostgreSqlServer server)
@@ -95,9 +95,24 @@ public sealed class SeveralNodesTests(PostgreSqlServer server)
             ["TapeVault__Jobs__CheckinSeconds"] = "2",
         };
 
-        await using var web = await AppProcess.StartAsync(root, new Dictionary<string, string>(settings) { ["TapeVault__Web__Role"] = "Pages" });
+        // Two web nodes serving pages, as behind one address: their sign-in keys in one shared folder, so that a
+        // session begun on one is honoured by the other.
+        var pages = new Dictionary<string, string>(settings)
+        {
+            ["TapeVault__Web__Role"] = "Pages",
+            ["TapeVault__Web__KeysFolder"] = Path.Combine(folder, "shared-keys"),
+        };
+        await using var web = await AppProcess.StartAsync(root, pages);
         using var api = await ApiSession.SignInAsync(web.Address, "curator", web.CuratorPassword);
         var queued = await QueueDecodesAsync(api, captures);
+        var otherRoot = Directory.CreateDirectory(Path.Combine(folder, "web2")).FullName;
+        await using var otherWeb = await AppProcess.StartAsync(otherRoot, pages);
+        using (var seen = await api.Http.GetAsync(new Uri(otherWeb.Address, "/api/jobs?take=1000")))
+        {
+            Assert.True(seen.IsSuccessStatusCode, $"The second web node refused the first one's session: {(int)seen.StatusCode}");
+            var listed = JsonDocument.Parse(await seen.Content.ReadAsStringAsync()).RootElement.EnumerateArray().Select(j => j.GetProperty("id").GetInt32());
+            Assert.Equal(queued.DecodeJobs.Values.Order(), listed.Order());
+        }
 
         // The doomed worker starts first and alone, so that the one node in the schedule's state table is it.
         var worker = new Dictionary<string, string>(settings);
