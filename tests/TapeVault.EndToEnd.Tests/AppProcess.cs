@@ -14,6 +14,8 @@ namespace TapeVault.EndToEnd.Tests;
 /// </summary>
 public sealed partial class AppProcess : IAsyncDisposable
 {
+    private const int StartCapSeconds = 300;
+
     private readonly Process process;
     private readonly StringBuilder output = new();
 
@@ -103,7 +105,8 @@ public sealed partial class AppProcess : IAsyncDisposable
         process.BeginErrorReadLine();
 
         using var http = new HttpClient();
-        var deadline = DateTime.UtcNow.AddSeconds(60);
+        // A cap, not a timing claim: on a loaded machine a start (migrations, first curator) can take minutes.
+        var deadline = DateTime.UtcNow.AddSeconds(StartCapSeconds);
         while (true)
         {
             if (process.HasExited)
@@ -126,7 +129,7 @@ public sealed partial class AppProcess : IAsyncDisposable
 
             if (DateTime.UtcNow > deadline)
             {
-                throw new TimeoutException($"The web app did not answer within 60 s:\n{running.Output}");
+                throw new TimeoutException($"The web app did not answer within {StartCapSeconds} s:\n{running.Output}");
             }
 
             await Task.Delay(200);
