@@ -9,6 +9,7 @@ using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
 using TapeVault.Tests.Shared;
 using Xunit;
+using Xunit.Abstractions;
 
 namespace TapeVault.EndToEnd.Tests.Cluster;
 
@@ -22,7 +23,7 @@ namespace TapeVault.EndToEnd.Tests.Cluster;
 /// at a missing parent, and the event chain must verify.
 /// </summary>
 [Collection(PostgreSqlGroup.Name)]
-public sealed class SeveralNodesTests(PostgreSqlServer server)
+public sealed class SeveralNodesTests(PostgreSqlServer server, ITestOutputHelper log)
 {
     private const int Tapes = 4;
     private const int PassesPerTape = 3;
@@ -152,6 +153,8 @@ public sealed class SeveralNodesTests(PostgreSqlServer server)
                 if ((await HeldJobsAsync(schedule, doomedNode)).Contains(held) && await IsRunningAsync(api, held))
                 {
                     victim = held;
+                    var cut = await api.GetJsonAsync($"/api/jobs/{held}");
+                    log.WriteLine($"Worker {doomedNode} killed holding decode job {held} at progress {cut.GetProperty("progress").GetDouble():0.00} ('{cut.GetProperty("progressText").GetString()}').");
                     doomed.Kill(entireProcessTree: true);
                     await doomed.WaitForExitAsync();
                     break;
@@ -208,7 +211,13 @@ public sealed class SeveralNodesTests(PostgreSqlServer server)
             Assert.Contains("Event chain intact", await output, StringComparison.Ordinal);
         }
 
-        return await CollectAsync(api, queued, jobs);
+        var outcome = await CollectAsync(api, queued, jobs);
+        foreach (var (tape, image) in outcome.Images)
+        {
+            log.WriteLine($"{tape}: {image.Split('\n')[3..9].Aggregate((a, b) => a + " " + b)}");
+        }
+
+        return outcome;
     }
 
     /// <summary>
