@@ -55,10 +55,11 @@ public static class WebApp
         builder.Services.AddSingleton(web);
         builder.Services.AddTapeVaultArchive(archive, profiles);
 
-        // Sign-in cookies must survive a restart: the keys live beside the database, not in memory.
+        // Sign-in cookies and antiforgery tokens must survive a restart, and with several web nodes be read by every
+        // node: the keys live in a folder (TapeVault:Web:KeysFolder, one every web node mounts), by default beside the database.
         builder.Services.AddDataProtection()
             .SetApplicationName("TapeVault")
-            .PersistKeysToFileSystem(new DirectoryInfo(Path.Combine(Path.GetDirectoryName(archive.FullDatabasePath)!, "keys")));
+            .PersistKeysToFileSystem(new DirectoryInfo(web.FullKeysFolder(archive)));
 
         // The archive registered the account stores and password rules; the web app adds the sign-in scheme.
         builder.Services.AddIdentity<IdentityUser, IdentityRole>()
@@ -208,6 +209,23 @@ public sealed class WebOptions
 
     /// <summary>At first start with no accounts, create this curator and print its one-time password once; empty for none.</summary>
     public string InitialCurator { get; set; } = "curator";
+
+    /// <summary>
+    /// The folder that holds the keys protecting sign-in cookies and antiforgery tokens (ASP.NET Core data protection);
+    /// a relative path is taken from the archive's base folder. Empty: a "keys" folder beside the SQLite database. With
+    /// several web nodes behind one address, every node must name the same folder (a shared mount), or a session
+    /// begun on one node is refused by the others.
+    /// </summary>
+    public string KeysFolder { get; set; } = string.Empty;
+
+    /// <summary>The keys folder in force for an archive.</summary>
+    public string FullKeysFolder(ArchiveOptions archive)
+    {
+        ArgumentNullException.ThrowIfNull(archive);
+        return KeysFolder.Length > 0
+            ? Path.GetFullPath(KeysFolder, archive.BaseFolder)
+            : Path.Combine(Path.GetDirectoryName(archive.FullDatabasePath)!, "keys");
+    }
 
     /// <summary>Whether viewers may download original captures.</summary>
     public bool ViewersMayDownloadOriginals { get; set; } = true;

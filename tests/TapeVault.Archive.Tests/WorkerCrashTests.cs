@@ -5,6 +5,7 @@ using Microsoft.Extensions.DependencyInjection;
 using TapeVault.Archive.Curation;
 using TapeVault.Archive.Entities;
 using TapeVault.Archive.Ingest;
+using TapeVault.Tests.Shared;
 using Xunit;
 
 namespace TapeVault.Archive.Tests;
@@ -75,31 +76,8 @@ public sealed class WorkerCrashTests
 
     internal static Process StartWorker(JobArchive archive, params string[] more) => StartWorker(archive, new Dictionary<string, string>(), more);
 
-    internal static Process StartWorker(JobArchive archive, IReadOnlyDictionary<string, string> environment, params string[] more)
-    {
-        // The CLI's assembly is copied beside the tests; run it with the same dotnet host that runs them.
-        var start = new ProcessStartInfo(Environment.ProcessPath!)
-        {
-            WorkingDirectory = archive.Root,
-            RedirectStandardOutput = true,
-            RedirectStandardError = true,
-            UseShellExecute = false,
-        };
-        foreach (var arg in (string[])[Path.Combine(AppContext.BaseDirectory, "tapevault.dll"), "worker", .. archive.CliArchiveArguments(), "--workers", "1", .. more])
-        {
-            start.ArgumentList.Add(arg);
-        }
-
-        start.Environment["TapeVault__Fixity__Schedule"] = string.Empty;
-        start.Environment["TapeVault__Jobs__PollSeconds"] = "1";
-        start.Environment["Logging__LogLevel__Default"] = "Warning";
-        foreach (var (key, value) in environment)
-        {
-            start.Environment[key] = value;
-        }
-
-        return Process.Start(start)!;
-    }
+    internal static Process StartWorker(JobArchive archive, IReadOnlyDictionary<string, string> environment, params string[] more) =>
+        CliProcess.StartWorker(archive.Root, archive.CliArchiveArguments(), environment, more);
 
     /// <summary>A 16-bit mono PCM WAV of uniform noise (RIFF/WAVE layout as Microsoft's multimedia spec gives it).</summary>
     internal static MemoryStream NoiseWav(int frames, int seed)

@@ -14,6 +14,8 @@ namespace TapeVault.EndToEnd.Tests;
 /// </summary>
 public sealed partial class AppProcess : IAsyncDisposable
 {
+    private const int StartCapSeconds = 300;
+
     private readonly Process process;
     private readonly StringBuilder output = new();
 
@@ -57,8 +59,11 @@ public sealed partial class AppProcess : IAsyncDisposable
         throw new InvalidOperationException("The tests must run from inside the repository.");
     }
 
-    /// <summary>Starts the app; with <paramref name="root"/> on an existing archive folder (a restart), else on a new one it deletes afterwards.</summary>
-    public static async Task<AppProcess> StartAsync(string? root = null)
+    /// <summary>
+    /// Starts the app; with <paramref name="root"/> on an existing archive folder (a restart), else on a new one it
+    /// deletes afterwards. <paramref name="environment"/> adds or overrides settings (TapeVault__… variables).
+    /// </summary>
+    public static async Task<AppProcess> StartAsync(string? root = null, IReadOnlyDictionary<string, string>? environment = null)
     {
         var repo = RepositoryRoot();
         var configuration = AppContext.BaseDirectory.Contains($"{Path.DirectorySeparatorChar}Debug{Path.DirectorySeparatorChar}", StringComparison.Ordinal) ? "Debug" : "Release";
@@ -87,6 +92,10 @@ public sealed partial class AppProcess : IAsyncDisposable
         start.Environment["TapeVault__Web__InitialCurator"] = "curator";
         start.Environment["TapeVault__Fixity__Schedule"] = string.Empty;
         start.Environment["DOTNET_ENVIRONMENT"] = "Production";
+        foreach (var (key, value) in environment ?? new Dictionary<string, string>())
+        {
+            start.Environment[key] = value;
+        }
 
         var process = Process.Start(start) ?? throw new InvalidOperationException("Could not start the web app.");
         var running = new AppProcess(process, root, address, owns);
@@ -96,7 +105,8 @@ public sealed partial class AppProcess : IAsyncDisposable
         process.BeginErrorReadLine();
 
         using var http = new HttpClient();
-        var deadline = DateTime.UtcNow.AddSeconds(60);
+        // A cap, not a timing claim: on a loaded machine a start (migrations, first curator) can take minutes.
+        var deadline = DateTime.UtcNow.AddSeconds(StartCapSeconds);
         while (true)
         {
             if (process.HasExited)
@@ -119,7 +129,7 @@ public sealed partial class AppProcess : IAsyncDisposable
 
             if (DateTime.UtcNow > deadline)
             {
-                throw new TimeoutException($"The web app did not answer within 60 s:\n{running.Output}");
+                throw new TimeoutException($"The web app did not answer within {StartCapSeconds} s:\n{running.Output}");
             }
 
             await Task.Delay(200);

@@ -11,7 +11,7 @@ namespace TapeVault.Archive.Jobs;
 /// in a cluster, on another node, and the claim then counts the cut-off.
 /// </summary>
 [DisallowConcurrentExecution]
-public sealed partial class ArchiveJobExecution(JobQueue queue, IEnumerable<IJobHandler> handlers, ILogger<ArchiveJobExecution> logger) : IJob
+public sealed partial class ArchiveJobExecution(JobQueue queue, IEnumerable<IJobHandler> handlers, TimeProvider clock, ILogger<ArchiveJobExecution> logger) : IJob
 {
     /// <summary>How long a job that cannot start yet waits in the queue before it is fired again.</summary>
     public static readonly TimeSpan NotReadyWait = TimeSpan.FromSeconds(1);
@@ -32,7 +32,7 @@ public sealed partial class ArchiveJobExecution(JobQueue queue, IEnumerable<IJob
         var handler = handlers.FirstOrDefault(h => h.Kind == job.Kind);
         if (handler is null)
         {
-            await queue.FinishAsync(job.Id, JobState.Failed, "Failed.", $"This version of TapeVault has no worker for '{job.Kind}' jobs.").ConfigureAwait(false);
+            await queue.FinishAsync(job.Id, job.Attempts, JobState.Failed, "Failed.", $"This version of TapeVault has no worker for '{job.Kind}' jobs.").ConfigureAwait(false);
             return;
         }
 
@@ -51,7 +51,7 @@ public sealed partial class ArchiveJobExecution(JobQueue queue, IEnumerable<IJob
         try
         {
             var outcome = await handler.RunAsync(job, Report, cancel.Token).ConfigureAwait(false);
-            await queue.FinishAsync(job.Id, JobState.Done, outcome.Summary, resultId: outcome.ResultId).ConfigureAwait(false);
+            await queue.FinishAsync(job.Id, job.Attempts, JobState.Done, outcome.Summary, resultId: outcome.ResultId).ConfigureAwait(false);
         }
         catch (OperationCanceledException) when (cancellationToken.IsCancellationRequested)
         {
@@ -59,9 +59,14 @@ public sealed partial class ArchiveJobExecution(JobQueue queue, IEnumerable<IJob
             LogInterrupted(logger, job.Id);
             throw;
         }
+        catch (JobTakenOverException)
+        {
+            // Another firing resumed the job while this one ran (this node was taken for dead): it stored nothing.
+            LogTakenOver(logger, job.Id);
+        }
         catch (OperationCanceledException)
         {
-            await queue.FinishAsync(job.Id, JobState.Cancelled, "Cancelled by a curator; nothing was stored.").ConfigureAwait(false);
+            await queue.FinishAsync(job.Id, job.Attempts, JobState.Cancelled, "Cancelled by a curator; nothing was stored.").ConfigureAwait(false);
         }
         catch (JobNotReadyException e)
         {
@@ -71,14 +76,14 @@ public sealed partial class ArchiveJobExecution(JobQueue queue, IEnumerable<IJob
                     .WithIdentity($"job-{job.Id}-{Guid.NewGuid():N}", JobEngine.ArchiveGroup)
                     .ForJob(context.JobDetail.Key)
                     .WithPriority(JobEngine.PriorityOf(job.Kind))
-                    .StartAt(DateTimeOffset.UtcNow + NotReadyWait)
+                    .StartAt(clock.GetUtcNow() + NotReadyWait)
                     .Build();
                 await context.Scheduler.ScheduleJob(again, cancellationToken: CancellationToken.None).ConfigureAwait(false);
             }
         }
         catch (JobFailedException e)
         {
-            await queue.FinishAsync(job.Id, JobState.Failed, "Failed.", e.Message).ConfigureAwait(false);
+            await queue.FinishAsync(job.Id, job.Attempts, JobState.Failed, "Failed.", e.Message).ConfigureAwait(false);
         }
         catch (Exception e)
         {
@@ -90,7 +95,7 @@ public sealed partial class ArchiveJobExecution(JobQueue queue, IEnumerable<IJob
                 string reason = Storage.StorageFaults.IsDiskFull(e)
                     ? Storage.StorageFaults.DiskFullSentence($"what the {job.Kind} job made")
                     : $"The job stopped with an error: {e.Message}";
-                await queue.FinishAsync(job.Id, JobState.Failed, "Failed.", reason).ConfigureAwait(false);
+                await queue.FinishAsync(job.Id, job.Attempts, JobState.Failed, "Failed.", reason).ConfigureAwait(false);
             }
             catch (Exception finishing) when (finishing is System.Data.Common.DbException or IOException)
             {
@@ -103,6 +108,9 @@ public sealed partial class ArchiveJobExecution(JobQueue queue, IEnumerable<IJob
 
     [LoggerMessage(Level = LogLevel.Information, Message = "Job {JobId} was interrupted by this node stopping; it is handed back to run again.")]
     private static partial void LogInterrupted(ILogger logger, int jobId);
+
+    [LoggerMessage(Level = LogLevel.Warning, Message = "Job {JobId} was taken over by another node while this one ran it (this node was taken for dead); what this node made was not stored.")]
+    private static partial void LogTakenOver(ILogger logger, int jobId);
 
     [LoggerMessage(Level = LogLevel.Error, Message = "Job {JobId} failed.")]
     private static partial void LogFailed(ILogger logger, Exception exception, int jobId);

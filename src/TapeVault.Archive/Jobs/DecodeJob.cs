@@ -22,7 +22,7 @@ public sealed record DecodeJobParameters(int CaptureId, string ProfileId, IReadO
 }
 
 /// <summary>Decodes a stored capture with a bank and stores the run and every candidate in one transaction.</summary>
-public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, ContentStore store, ProfileCatalog profiles) : IJobHandler
+public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, ContentStore store, ProfileCatalog profiles, TimeProvider clock) : IJobHandler
 {
     private static readonly TimeSpan ReportEvery = TimeSpan.FromMilliseconds(400);
 
@@ -59,11 +59,11 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
         };
 
         // The decoder reports from its reading thread; forward at most a few times a second, never blocking it.
-        var lastReport = DateTime.MinValue;
+        var lastReport = DateTimeOffset.MinValue;
         Task pending = Task.CompletedTask;
         var forward = new InlineProgress<DecodeProgress>(p =>
         {
-            var now = DateTime.UtcNow;
+            var now = clock.GetUtcNow();
             if (now - lastReport < ReportEvery || !pending.IsCompleted)
             {
                 return;
@@ -73,7 +73,7 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
             pending = progress(p.Fraction * 0.97, $"Decoded {p.SamplesDone:N0} of {p.SamplesTotal:N0} samples.");
         });
 
-        var started = DateTimeOffset.UtcNow;
+        var started = clock.GetUtcNow();
         DecodeResult result;
         try
         {
@@ -106,7 +106,7 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
                 $"The stored original of capture {capture.Id} no longer matches its SHA-256 (read {result.Capture.Sha256[..12]}…, recorded {capture.Sha256[..12]}…); nothing was decoded. Run a fixity audit.");
         }
 
-        var run = RunStore.ToRun(capture.Id, result, started, DateTimeOffset.UtcNow);
+        var run = RunStore.ToRun(capture.Id, result, started, clock.GetUtcNow());
 
         // What the capture page plots over the whole capture is made here, once, not by whoever opens the page: the
         // pulse-length survey of every setting and the waveform overview, both counted in the decode's own pass over the
@@ -155,9 +155,17 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
                 $"capture {capture.Id} ({capture.OriginalFileName}), decoded by run {run.Id}: {finding}", capture.ItemId);
         }
         await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
-        await transaction.CommitAsync(CancellationToken.None).ConfigureAwait(false);
 
-        return new JobOutcome(run.Id, $"Decode run {run.Id}: {run.Outcome}{plots}");
+        // The run and the job's end are one commit, and only while this firing still holds the job: a decode is
+        // stored once, even when a node taken for dead wakes up after another finished its job.
+        string summary = $"Decode run {run.Id}: {run.Outcome}{plots}";
+        if (!await JobQueue.FinishHeldAsync(write, job, summary, run.Id).ConfigureAwait(false))
+        {
+            throw new JobTakenOverException(job.Id);
+        }
+
+        await transaction.CommitAsync(CancellationToken.None).ConfigureAwait(false);
+        return new JobOutcome(run.Id, summary);
     }
 
     /// <summary>The columns of the capture page's overview of this capture (no more than it has frames).</summary>

@@ -24,3 +24,10 @@ public sealed class JobFailedException(string message) : Exception(message);
 /// <paramref name="message"/>, and is fired again after a short wait. Throw it before any work is done.
 /// </summary>
 public sealed class JobNotReadyException(string message) : Exception(message);
+
+/// <summary>
+/// This firing no longer holds its job (its node was taken for dead and another node resumed the job, which now
+/// holds it): what it made was rolled back, and the job's row is left to the firing that holds it.
+/// </summary>
+public sealed class JobTakenOverException(int jobId)
+    : Exception($"Job {jobId} was taken over by another firing while this one ran it; what this one made was not stored.");

@@ -28,7 +28,7 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
             State = JobState.Queued,
             Parameters = parameters,
             CreatedBy = agent,
-            CreatedUtc = DateTimeOffset.UtcNow,
+            CreatedUtc = db.Clock.GetUtcNow(),
             ItemId = itemId,
             CaptureId = captureId,
             ProgressText = "Waiting for a free worker.",
@@ -55,7 +55,7 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
             return null;
         }
 
-        var now = DateTimeOffset.UtcNow;
+        var now = db.Clock.GetUtcNow();
         if (job.State == JobState.Queued)
         {
             int claimed = await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Queued)
@@ -115,7 +115,7 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
         if (deferred == 0)
         {
             // A cancel came in while the job was looking: it ends cancelled rather than waiting on.
-            await FinishAsync(jobId, JobState.Cancelled, "Cancelled by a curator; nothing was stored.").ConfigureAwait(false);
+            await FinishAsync(jobId, attempts, JobState.Cancelled, "Cancelled by a curator; nothing was stored.").ConfigureAwait(false);
         }
 
         return deferred == 1;
@@ -141,12 +141,17 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
         return await db.Jobs.AsNoTracking().Where(j => j.Id == jobId).Select(j => j.CancelRequested).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
     }
 
-    public async Task FinishAsync(int jobId, JobState state, string text, string? error = null, int? resultId = null)
+    /// <summary>
+    /// Ends the job that the firing holding claim <paramref name="attempts"/> ran. The claim fences it: a firing whose
+    /// job was taken over meanwhile (its node was taken for dead and another resumed the job) changes nothing, and a
+    /// job its handler already ended (<see cref="FinishHeldAsync"/>) stays as the handler left it. Says whether it ended it.
+    /// </summary>
+    public async Task<bool> FinishAsync(int jobId, int attempts, JobState state, string text, string? error = null, int? resultId = null)
     {
         await using var db = await contexts.CreateDbContextAsync().ConfigureAwait(false);
-        var now = DateTimeOffset.UtcNow;
+        var now = db.Clock.GetUtcNow();
         double progress = state == JobState.Done ? 1 : 0;
-        await db.Jobs.Where(j => j.Id == jobId)
+        return 1 == await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running && j.Attempts == attempts)
             .ExecuteUpdateAsync(s => s
                 .SetProperty(j => j.State, state)
                 .SetProperty(j => j.FinishedUtc, now)
@@ -157,11 +162,40 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
             .ConfigureAwait(false);
     }
 
+    /// <summary>
+    /// Ends <paramref name="job"/> done with <paramref name="resultId"/> inside the transaction that stores its result
+    /// (<paramref name="write"/>'s), only while this firing still holds it: the row is running under the claim this
+    /// firing made. A node that was taken for dead (frozen, cut off from the network) while another resumed the job
+    /// finds its claim gone and must roll back, so the result is stored once, by the one firing whose claim stands,
+    /// and a crash between storing the result and ending the job cannot happen (they are one commit).
+    /// </summary>
+    public static async Task<bool> FinishHeldAsync(ArchiveDbContext write, JobRecord job, string text, int resultId)
+    {
+        ArgumentNullException.ThrowIfNull(write);
+        ArgumentNullException.ThrowIfNull(job);
+        if (job.Id == 0)
+        {
+            // A job that was never in the job table, its handler called directly: there is no row to hold or end.
+            return true;
+        }
+
+        var now = write.Clock.GetUtcNow();
+        return 1 == await write.Jobs.Where(j => j.Id == job.Id && j.State == JobState.Running && j.Attempts == job.Attempts)
+            .ExecuteUpdateAsync(s => s
+                .SetProperty(j => j.State, JobState.Done)
+                .SetProperty(j => j.FinishedUtc, now)
+                .SetProperty(j => j.ProgressText, text)
+                .SetProperty(j => j.Error, (string?)null)
+                .SetProperty(j => j.ResultId, resultId)
+                .SetProperty(j => j.Progress, 1.0), CancellationToken.None)
+            .ConfigureAwait(false);
+    }
+
     /// <summary>Asks a job to stop: a queued job is cancelled at once, a running one at its next progress report.</summary>
     public async Task<JobRecord?> CancelAsync(int jobId, CancellationToken cancellation = default)
     {
         await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
-        var now = DateTimeOffset.UtcNow;
+        var now = db.Clock.GetUtcNow();
         await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Queued)
             .ExecuteUpdateAsync(s => s.SetProperty(j => j.State, JobState.Cancelled).SetProperty(j => j.FinishedUtc, now)
                 .SetProperty(j => j.ProgressText, "Cancelled before it started."), cancellation).ConfigureAwait(false);

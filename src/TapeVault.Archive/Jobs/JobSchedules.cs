@@ -106,7 +106,7 @@ public sealed class JobSweepJob(JobDispatcher dispatcher) : IJob
 /// At start: on SQLite, takes the schedule file's lock (one process per schedule file runs jobs: Quartz cannot
 /// cluster on SQLite); on a node that runs jobs, stores the fixity audit's trigger and the sweep's, and sweeps once.
 /// </summary>
-public sealed partial class JobSchedules(ISchedulerFactory schedulers, ArchiveOptions archive, JobsOptions jobs, FixityOptions fixity, JobEngineRole role, IHostApplicationLifetime lifetime, ILogger<JobSchedules> logger) : IHostedService, IDisposable
+public sealed partial class JobSchedules(ISchedulerFactory schedulers, ArchiveOptions archive, JobsOptions jobs, FixityOptions fixity, JobEngineRole role, IHostApplicationLifetime lifetime, TimeProvider clock, ILogger<JobSchedules> logger) : IHostedService, IDisposable
 {
     private FileStream? runnerLock;
 
@@ -138,7 +138,7 @@ public sealed partial class JobSchedules(ISchedulerFactory schedulers, ArchiveOp
             var sweep = JobBuilder.Create<JobSweepJob>().WithIdentity(JobEngine.SweepKey).Build();
             var every = TriggerBuilder.Create().WithIdentity("sweep", JobEngine.ScheduleGroup).ForJob(sweep)
                 .WithSimpleSchedule(s => s.WithInterval(JobSweepJob.Every).RepeatForever().WithMisfireInstruction(SimpleTriggerMisfireInstruction.NextWithRemainingCount))
-                .StartAt(DateTimeOffset.UtcNow + JobSweepJob.Every)
+                .StartAt(clock.GetUtcNow() + JobSweepJob.Every)
                 .Build();
             try
             {

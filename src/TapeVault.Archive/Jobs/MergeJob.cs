@@ -23,7 +23,7 @@ public sealed record MergeJobParameters(int ItemId)
 /// Merges an item's decode runs (the newest run of each capture, with the profile of the newest run of all) into a
 /// tape image, stores the container in the content store and records a new image version; older versions stay.
 /// </summary>
-public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, ContentStore store, ProfileCatalog profiles) : IJobHandler
+public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, ContentStore store, ProfileCatalog profiles, TimeProvider clock) : IJobHandler
 {
     public string Kind => JobKinds.Merge;
 
@@ -102,7 +102,7 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
         }
 
         await progress(0.1, $"Merging {passes.Count} pass(es) with profile {profile.Id}.").ConfigureAwait(false);
-        var image = await Task.Factory.StartNew(() => TapeMerger.Merge(passes, profile), cancellation, TaskCreationOptions.LongRunning, TaskScheduler.Default).ConfigureAwait(false);
+        var image = await Task.Factory.StartNew(() => TapeMerger.Merge(passes, profile, new MergeOptions { Clock = clock }), cancellation, TaskCreationOptions.LongRunning, TaskScheduler.Default).ConfigureAwait(false);
         cancellation.ThrowIfCancellationRequested();
         await progress(0.8, "Writing the tape image.").ConfigureAwait(false);
 
@@ -117,7 +117,7 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
         bool known = await write.Objects.AnyAsync(o => o.Sha256 == staged.Sha256, CancellationToken.None).ConfigureAwait(false);
         if (!known)
         {
-            write.Objects.Add(new StoredObject { Sha256 = staged.Sha256, Size = staged.Size, Kind = ObjectKind.Image, StoredUtc = DateTimeOffset.UtcNow });
+            write.Objects.Add(new StoredObject { Sha256 = staged.Sha256, Size = staged.Size, Kind = ObjectKind.Image, StoredUtc = write.Clock.GetUtcNow() });
         }
 
         int version = 1 + (await write.Images.Where(i => i.ItemId == parameters.ItemId).MaxAsync(i => (int?)i.Version, CancellationToken.None).ConfigureAwait(false) ?? 0);
@@ -147,6 +147,13 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
                 + $"{record.RepairedBlocks} repaired, {record.MissingBlocks} missing, {record.Conflicts} conflict(s), from runs {record.SourceRunIds}.";
             EventLog.Add(write, EventTypes.Merge, job.CreatedBy, "image", record.Id.ToString(), "success", $"{summary} SHA-256 {staged.Sha256}.", parameters.ItemId);
             await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
+
+            // The image and the job's end are one commit, and only while this firing still holds the job.
+            if (!await JobQueue.FinishHeldAsync(write, job, summary, record.Id).ConfigureAwait(false))
+            {
+                throw new JobTakenOverException(job.Id);
+            }
+
             await transaction.CommitAsync(CancellationToken.None).ConfigureAwait(false);
             return new JobOutcome(record.Id, summary);
         }

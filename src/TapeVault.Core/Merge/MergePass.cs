@@ -63,6 +63,9 @@ public sealed record MergeOptions
     /// <inheritdoc cref="StreamLoneSegmentCeiling"/>
     public double StreamAgreedSegmentCeiling { get; init; } = 0.93;
 
-    /// <summary>The time the image records as its making; null for now.</summary>
+    /// <summary>The time the image records as its making; null for the clock's now.</summary>
     public DateTimeOffset? CreatedUtc { get; init; }
+
+    /// <summary>The clock that says "now" when <see cref="CreatedUtc"/> is null (the system's unless the host gives its own).</summary>
+    public TimeProvider Clock { get; init; } = TimeProvider.System;
 }

@@ -51,7 +51,7 @@ public static class TapeMerger
         {
             ProfileId = profile.Id,
             CodeVersion = CaptureDecoder.CodeVersion,
-            CreatedUtc = options.CreatedUtc ?? DateTimeOffset.UtcNow,
+            CreatedUtc = options.CreatedUtc ?? options.Clock.GetUtcNow(),
             Captures = [.. passes.Select(p => p.Capture)],
             Blocks = ordered,
             Files = profile.Layout.IsStream ? [] : Files(ordered),

@@ -53,6 +53,17 @@ public sealed class MergeResolutionTests
     }
 
     [Fact]
+    public void Image_RecordsItsMaking_ByTheClockItIsGiven_UnlessATimeIsGiven()
+    {
+        var at = new DateTimeOffset(2033, 2, 1, 12, 30, 0, TimeSpan.Zero);
+        var clock = new FixedClock(at);
+        var pass = ThreeBlocks(Crc16, 0, Readings.Of(Crc16, Written(Crc16, 1), 2.0, 1));
+
+        Assert.Equal(at, TapeMerger.Merge([pass], Crc16, new MergeOptions { Clock = clock }).CreatedUtc);
+        Assert.Equal(DateTimeOffset.UnixEpoch, TapeMerger.Merge([pass], Crc16, new MergeOptions { Clock = clock, CreatedUtc = DateTimeOffset.UnixEpoch }).CreatedUtc);
+    }
+
+    [Fact]
     public void Agreement_OfIndependentCaptures_RaisesConfidence()
     {
         // An 8-bit check and noisy bytes: one clean reading is good but not near-certain.
@@ -200,4 +211,9 @@ public sealed class MergeResolutionTests
     private static string Hex(System.Collections.Immutable.ImmutableArray<byte> bytes) => Convert.ToHexStringLower(bytes.AsSpan());
 
     private static string Hex(byte[] bytes) => Convert.ToHexStringLower(bytes);
+
+    private sealed class FixedClock(DateTimeOffset at) : TimeProvider
+    {
+        public override DateTimeOffset GetUtcNow() => at;
+    }
 }
