@@ -34,7 +34,14 @@ public static partial class Scale
 {
     private const string Agent = "bench";
 
-    private sealed record Options(int Tapes, int CapturesPerTape, int CaptureKilobytes, int LongBlocks, int Requests, bool Rebuild);
+    private sealed record Options(int Tapes, int CapturesPerTape, int CaptureKilobytes, int LongBlocks, int Requests, bool Rebuild, IReadOnlySet<string> Only)
+    {
+        /// <summary>Whether a measurement is asked for (all of them unless --only names some).</summary>
+        public bool Measures(string section) => Only.Count == 0 || Only.Contains(section);
+    }
+
+    /// <summary>The measurements --only may name.</summary>
+    private static readonly string[] Sections = ["pages", "long", "merge", "publish", "fixity"];
 
     public static async Task<int> RunAsync(string work, string[] args)
     {
@@ -62,10 +69,26 @@ public static partial class Scale
 
         Console.Write(await File.ReadAllTextAsync(built));
         var facts = await FactsAsync(root);
-        await MeasurePagesAsync(root, facts, options);
-        await MeasureMergeAsync(root, facts);
-        await MeasurePublishAsync(root, facts);
-        await MeasureFixityAsync(root);
+        if (options.Measures("pages") || options.Measures("long"))
+        {
+            await MeasurePagesAsync(root, facts, options);
+        }
+
+        if (options.Measures("merge"))
+        {
+            await MeasureMergeAsync(root, facts);
+        }
+
+        if (options.Measures("publish"))
+        {
+            await MeasurePublishAsync(root, facts);
+        }
+
+        if (options.Measures("fixity"))
+        {
+            await MeasureFixityAsync(root);
+        }
+
         Console.WriteLine($"load at end: {Load()}");
         Console.WriteLine();
         return 0;
@@ -75,6 +98,7 @@ public static partial class Scale
     {
         int tapes = 10_000, captures = 3, kilobytes = 32, blocks = 400, requests = 40;
         bool rebuild = false;
+        var only = new HashSet<string>(StringComparer.Ordinal);
         for (int i = 0; i < args.Length; i++)
         {
             int Next() => int.Parse(args[++i], CultureInfo.InvariantCulture);
@@ -86,7 +110,14 @@ public static partial class Scale
                 case "--blocks": blocks = Next(); break;
                 case "--requests": requests = Next(); break;
                 case "--rebuild": rebuild = true; break;
-                default: throw new ArgumentException($"scale: unknown option '{args[i]}' (--tapes N, --captures N, --capture-kb N, --blocks N, --requests N, --rebuild)");
+                case "--only":
+                    foreach (var name in args[++i].Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries))
+                    {
+                        only.Add(Array.IndexOf(Sections, name) >= 0 ? name : throw new ArgumentException($"scale: --only takes {string.Join(", ", Sections)}, not '{name}'"));
+                    }
+
+                    break;
+                default: throw new ArgumentException($"scale: unknown option '{args[i]}' (--tapes N, --captures N, --capture-kb N, --blocks N, --requests N, --rebuild, --only {string.Join(',', Sections)})");
             }
         }
 
@@ -95,7 +126,7 @@ public static partial class Scale
             throw new ArgumentException("scale: --tapes, --captures, --capture-kb and --blocks are at least 1, --requests at least 5.");
         }
 
-        return new Options(tapes, captures, kilobytes, blocks, requests, rebuild);
+        return new Options(tapes, captures, kilobytes, blocks, requests, rebuild, only);
     }
 
     private static ArchiveOptions Archive(string root) => new() { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" };
@@ -320,12 +351,23 @@ public static partial class Scale
         Console.WriteLine($"pages over loopback ({options.Requests} requests each after 3 warm-up, one client, signed in as a curator):");
         Console.WriteLine("| page | p50 ms | p95 ms | HTML KB |");
         Console.WriteLine("|---|---|---|---|");
-        await PageAsync(api, "collection (all tapes)", _ => $"/collections/{facts.CollectionId}", options.Requests);
-        await PageAsync(api, "tape (3 captures, 1 image)", _ => $"/items/{facts.ItemIds[random.Next(facts.ItemIds.Length)]}", options.Requests);
-        await PageAsync(api, "capture", _ => $"/captures/{facts.CaptureIds[random.Next(facts.CaptureIds.Length)]}", options.Requests);
-        await PageAsync(api, "jobs", _ => "/jobs", options.Requests);
-        await PageAsync(api, "collections (home)", _ => "/", options.Requests);
-        await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings", _ => $"/items/{facts.LongItem}", Math.Max(5, options.Requests / 4));
+        if (options.Measures("pages"))
+        {
+            await PageAsync(api, "collection (all tapes)", _ => $"/collections/{facts.CollectionId}", options.Requests);
+            await PageAsync(api, "tape (3 captures, 1 image)", _ => $"/items/{facts.ItemIds[random.Next(facts.ItemIds.Length)]}", options.Requests);
+            await PageAsync(api, "capture", _ => $"/captures/{facts.CaptureIds[random.Next(facts.CaptureIds.Length)]}", options.Requests);
+            await PageAsync(api, "jobs", _ => "/jobs", options.Requests);
+            await PageAsync(api, "collections (home)", _ => "/", options.Requests);
+        }
+
+        if (options.Measures("long"))
+        {
+            // Drawn anew: the kept drawings are removed before each view (as a new decode or merge makes them stale).
+            var kept = Path.Combine(root, "store", "derived", "timelines");
+            await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings, first view", _ => Forget(kept, $"/items/{facts.LongItem}"), Math.Max(5, options.Requests / 4));
+            await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings, later views", _ => $"/items/{facts.LongItem}", options.Requests);
+        }
+
         Console.WriteLine("(page times are whole requests on loopback; the tape page tells its timeline's own server time in a Server-Timing header)");
     }
 
@@ -335,6 +377,7 @@ public static partial class Scale
         long size = 0;
         int refused = 0;
         var serverTimes = new List<double>();
+        var drawnTimes = new List<double>();
         for (int r = -3; r < requests; r++)
         {
             string url = path(r);
@@ -374,14 +417,16 @@ public static partial class Scale
                 if (response.Headers.TryGetValues("Server-Timing", out var timings)
                     && ServerTimingDuration().Match(string.Join(",", timings)) is { Success: true } timing)
                 {
-                    serverTimes.Add(double.Parse(timing.Groups[1].Value, CultureInfo.InvariantCulture));
+                    (timing.Groups[1].Value.Contains("earlier", StringComparison.Ordinal) ? serverTimes : drawnTimes).Add(double.Parse(timing.Groups[2].Value, CultureInfo.InvariantCulture));
                 }
             }
         }
 
         times.Sort();
         serverTimes.Sort();
-        string timeline = serverTimes.Count > 0 ? $" timeline read and drawn on the server (Server-Timing): p50 {Percentile(serverTimes, 0.50):0.0} ms, p95 {Percentile(serverTimes, 0.95):0.0} ms" : string.Empty;
+        drawnTimes.Sort();
+        string timeline = drawnTimes.Count > 0 ? $" timeline read and drawn anew on the server (Server-Timing): p50 {Percentile(drawnTimes, 0.50):0.0} ms, p95 {Percentile(drawnTimes, 0.95):0.0} ms ({drawnTimes.Count} views);" : string.Empty;
+        timeline += serverTimes.Count > 0 ? $" timeline drawn earlier, read: p50 {Percentile(serverTimes, 0.50):0.0} ms, p95 {Percentile(serverTimes, 0.95):0.0} ms ({serverTimes.Count} views)" : string.Empty;
         Console.WriteLine($"| {name} | {Percentile(times, 0.50):0.0} | {Percentile(times, 0.95):0.0} | {size / 1024.0:0.0} |{timeline}{(refused > 0 ? $" ({refused} refused by the plot rate limit, asked again after the wait)" : string.Empty)}");
     }
 
@@ -460,8 +505,18 @@ public static partial class Scale
             + $"GNU sha256sum {outside:0.00} s and {outside2:0.00} s ({bytes / 1e6 / reference:0} MB/s); ratio {ours / reference:0.00}");
     }
 
-    [System.Text.RegularExpressions.GeneratedRegex(@"timeline;[^,]*dur=([0-9.]+)")]
+    [System.Text.RegularExpressions.GeneratedRegex(@"timeline;desc=""([^""]*)"";dur=([0-9.]+)")]
     private static partial System.Text.RegularExpressions.Regex ServerTimingDuration();
+
+    private static string Forget(string folder, string url)
+    {
+        if (Directory.Exists(folder))
+        {
+            Directory.Delete(folder, recursive: true);
+        }
+
+        return url;
+    }
 
     private static double Percentile(List<double> sorted, double q) => sorted[Math.Min(sorted.Count - 1, (int)Math.Ceiling(q * sorted.Count) - 1)];
 
