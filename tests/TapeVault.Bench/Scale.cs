@@ -458,13 +458,33 @@ public static partial class Scale
         await using var scope = services.CreateAsyncScope();
         var publisher = scope.ServiceProvider.GetRequiredService<CataloguePublisher>();
         var zip = Path.Combine(root, "catalogue.zip");
+
+        // The first publication surveys every tape's capture for its histogram (none kept: the kept surveys are removed
+        // first); the second finds them kept, as a club publishing again after more tapes were decoded would.
+        var surveys = Path.Combine(root, "store", "derived", "surveys");
+        if (Directory.Exists(surveys))
+        {
+            Directory.Delete(surveys, recursive: true);
+        }
+
         var clock = Stopwatch.StartNew();
         await using (var file = File.Create(zip))
         {
             await publisher.PublishZipAsync(facts.CollectionId, file);
         }
 
-        Console.WriteLine($"catalogue of {facts.Tapes} tapes published in {clock.Elapsed.TotalSeconds:0.0} s ({new FileInfo(zip).Length / 1e6:0.0} MB zip; CataloguePublisher.PublishZipAsync)");
+        double first = clock.Elapsed.TotalSeconds;
+        clock.Restart();
+        var site = await publisher.SiteAsync(facts.CollectionId);
+        double gather = clock.Elapsed.TotalSeconds;
+        clock.Restart();
+        await using (var file = File.Create(zip))
+        {
+            await publisher.PublishZipAsync(facts.CollectionId, file);
+        }
+
+        Console.WriteLine($"catalogue of {facts.Tapes} tapes (CataloguePublisher.PublishZipAsync, {new FileInfo(zip).Length / 1e6:0.0} MB zip): first publication {first:0.0} s (every histogram surveyed); "
+            + $"published again {clock.Elapsed.TotalSeconds:0.0} s (surveys kept), of which gathering its {site.Items.Count} tapes from the archive {gather:0.0} s (CataloguePublisher.SiteAsync)");
         File.Delete(zip);
     }
 
