@@ -19,6 +19,7 @@ using TapeVault.Core.Blocks;
 using TapeVault.Core.Decoding;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
+using TapeVault.Archive.Tests.PostgreSql;
 using TapeVault.EndToEnd.Tests;
 
 namespace TapeVault.Bench;
@@ -34,7 +35,7 @@ public static partial class Scale
 {
     private const string Agent = "bench";
 
-    private sealed record Options(int Tapes, int CapturesPerTape, int CaptureKilobytes, int LongBlocks, int Requests, bool Rebuild, IReadOnlySet<string> Only)
+    private sealed record Options(int Tapes, int CapturesPerTape, int CaptureKilobytes, int LongBlocks, int Requests, bool Rebuild, IReadOnlySet<string> Only, DatabaseProvider Provider)
     {
         /// <summary>Whether a measurement is asked for (all of them unless --only names some).</summary>
         public bool Measures(string section) => Only.Count == 0 || Only.Contains(section);
@@ -46,11 +47,45 @@ public static partial class Scale
     public static async Task<int> RunAsync(string work, string[] args)
     {
         var options = Parse(args);
-        string root = Path.Combine(work, $"scale-{options.Tapes}x{options.CapturesPerTape}-{options.CaptureKilobytes}k-{options.LongBlocks}b");
-        Console.WriteLine($"== The archive at scale: {options.Tapes} tapes × {options.CapturesPerTape} captures of {options.CaptureKilobytes} KiB, one tape of {options.LongBlocks} blocks × 3 passes");
+        string root = Path.Combine(work, $"scale-{options.Tapes}x{options.CapturesPerTape}-{options.CaptureKilobytes}k-{options.LongBlocks}b{(options.Provider == DatabaseProvider.PostgreSql ? "-pg" : string.Empty)}");
+        Console.WriteLine($"== The archive at scale: {options.Tapes} tapes × {options.CapturesPerTape} captures of {options.CaptureKilobytes} KiB, one tape of {options.LongBlocks} blocks × 3 passes, on {options.Provider}");
         Console.WriteLine($"archive folder {root}; load at start: {Load()}");
         var built = Path.Combine(root, "built.txt");
-        if (options.Rebuild || !File.Exists(built))
+
+        // On PostgreSQL the archive's database (and the job engine's schedule, clustered as several machines would
+        // have it) is in a temporary PostgreSQL 15 cluster started for this run and removed after it, so it is built anew.
+        PostgreSqlServer? server = null;
+        if (options.Provider == DatabaseProvider.PostgreSql)
+        {
+            server = new PostgreSqlServer();
+            await server.InitializeAsync();
+            postgres = await server.CreateDatabaseAsync();
+            Environment.SetEnvironmentVariable("TapeVault__Archive__Provider", "PostgreSql");
+            Environment.SetEnvironmentVariable("TapeVault__Archive__ConnectionString", postgres);
+            Environment.SetEnvironmentVariable("TapeVault__Jobs__Store", "PostgreSql");
+            Environment.SetEnvironmentVariable("TapeVault__Jobs__ConnectionString", postgres);
+            Console.WriteLine($"PostgreSQL 15 on 127.0.0.1:{server.Port} (a temporary cluster, fsync off as in the tests)");
+        }
+
+        try
+        {
+            return await RunOnAsync(work, root, built, options);
+        }
+        finally
+        {
+            if (server is not null)
+            {
+                await server.DisposeAsync();
+            }
+        }
+    }
+
+    /// <summary>The archive's PostgreSQL database for this run; null on SQLite.</summary>
+    private static string? postgres;
+
+    private static async Task<int> RunOnAsync(string work, string root, string built, Options options)
+    {
+        if (options.Rebuild || options.Provider == DatabaseProvider.PostgreSql || !File.Exists(built))
         {
             if (Directory.Exists(root))
             {
@@ -98,6 +133,7 @@ public static partial class Scale
     {
         int tapes = 10_000, captures = 3, kilobytes = 32, blocks = 400, requests = 40;
         bool rebuild = false;
+        var provider = DatabaseProvider.Sqlite;
         var only = new HashSet<string>(StringComparer.Ordinal);
         for (int i = 0; i < args.Length; i++)
         {
@@ -110,6 +146,7 @@ public static partial class Scale
                 case "--blocks": blocks = Next(); break;
                 case "--requests": requests = Next(); break;
                 case "--rebuild": rebuild = true; break;
+                case "--provider": provider = Enum.Parse<DatabaseProvider>(args[++i], ignoreCase: true); break;
                 case "--only":
                     foreach (var name in args[++i].Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries))
                     {
@@ -117,7 +154,7 @@ public static partial class Scale
                     }
 
                     break;
-                default: throw new ArgumentException($"scale: unknown option '{args[i]}' (--tapes N, --captures N, --capture-kb N, --blocks N, --requests N, --rebuild, --only {string.Join(',', Sections)})");
+                default: throw new ArgumentException($"scale: unknown option '{args[i]}' (--tapes N, --captures N, --capture-kb N, --blocks N, --requests N, --rebuild, --only {string.Join(',', Sections)}, --provider Sqlite|PostgreSql)");
             }
         }
 
@@ -126,10 +163,12 @@ public static partial class Scale
             throw new ArgumentException("scale: --tapes, --captures, --capture-kb and --blocks are at least 1, --requests at least 5.");
         }
 
-        return new Options(tapes, captures, kilobytes, blocks, requests, rebuild, only);
+        return new Options(tapes, captures, kilobytes, blocks, requests, rebuild, only, provider);
     }
 
-    private static ArchiveOptions Archive(string root) => new() { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" };
+    private static ArchiveOptions Archive(string root) => postgres is null
+        ? new() { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" }
+        : new() { BaseFolder = root, Provider = DatabaseProvider.PostgreSql, ConnectionString = postgres, StorePath = "store" };
 
     private static ServiceProvider Services(string root)
     {
@@ -315,7 +354,13 @@ public static partial class Scale
     private static async Task RunQueueAsync(ServiceProvider services)
     {
         var archive = services.GetRequiredService<ArchiveOptions>();
-        using var worker = JobWorker.Build(new ConfigurationBuilder().Build(), archive, JobWorker.StopWhenIdle);
+        var settings = new ConfigurationBuilder();
+        if (postgres is not null)
+        {
+            settings.AddInMemoryCollection(new Dictionary<string, string?> { ["TapeVault:Jobs:Store"] = "PostgreSql", ["TapeVault:Jobs:ConnectionString"] = postgres });
+        }
+
+        using var worker = JobWorker.Build(settings.Build(), archive, JobWorker.StopWhenIdle);
         await worker.RunAsync();
     }
 
