@@ -19,6 +19,7 @@ using TapeVault.Core.Blocks;
 using TapeVault.Core.Decoding;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
+using TapeVault.Archive.Tests.PostgreSql;
 using TapeVault.EndToEnd.Tests;
 
 namespace TapeVault.Bench;
@@ -34,16 +35,57 @@ public static partial class Scale
 {
     private const string Agent = "bench";
 
-    private sealed record Options(int Tapes, int CapturesPerTape, int CaptureKilobytes, int LongBlocks, int Requests, bool Rebuild);
+    private sealed record Options(int Tapes, int CapturesPerTape, int CaptureKilobytes, int LongBlocks, int Requests, bool Rebuild, IReadOnlySet<string> Only, DatabaseProvider Provider)
+    {
+        /// <summary>Whether a measurement is asked for (all of them unless --only names some).</summary>
+        public bool Measures(string section) => Only.Count == 0 || Only.Contains(section);
+    }
+
+    /// <summary>The measurements --only may name.</summary>
+    private static readonly string[] Sections = ["pages", "long", "merge", "publish", "fixity"];
 
     public static async Task<int> RunAsync(string work, string[] args)
     {
         var options = Parse(args);
-        string root = Path.Combine(work, $"scale-{options.Tapes}x{options.CapturesPerTape}-{options.CaptureKilobytes}k-{options.LongBlocks}b");
-        Console.WriteLine($"== The archive at scale: {options.Tapes} tapes × {options.CapturesPerTape} captures of {options.CaptureKilobytes} KiB, one tape of {options.LongBlocks} blocks × 3 passes");
+        string root = Path.Combine(work, $"scale-{options.Tapes}x{options.CapturesPerTape}-{options.CaptureKilobytes}k-{options.LongBlocks}b{(options.Provider == DatabaseProvider.PostgreSql ? "-pg" : string.Empty)}");
+        Console.WriteLine($"== The archive at scale: {options.Tapes} tapes × {options.CapturesPerTape} captures of {options.CaptureKilobytes} KiB, one tape of {options.LongBlocks} blocks × 3 passes, on {options.Provider}");
         Console.WriteLine($"archive folder {root}; load at start: {Load()}");
         var built = Path.Combine(root, "built.txt");
-        if (options.Rebuild || !File.Exists(built))
+
+        // On PostgreSQL the archive's database (and the job engine's schedule, clustered as several machines would
+        // have it) is in a temporary PostgreSQL 15 cluster started for this run and removed after it, so it is built anew.
+        PostgreSqlServer? server = null;
+        if (options.Provider == DatabaseProvider.PostgreSql)
+        {
+            server = new PostgreSqlServer();
+            await server.InitializeAsync();
+            postgres = await server.CreateDatabaseAsync();
+            Environment.SetEnvironmentVariable("TapeVault__Archive__Provider", "PostgreSql");
+            Environment.SetEnvironmentVariable("TapeVault__Archive__ConnectionString", postgres);
+            Environment.SetEnvironmentVariable("TapeVault__Jobs__Store", "PostgreSql");
+            Environment.SetEnvironmentVariable("TapeVault__Jobs__ConnectionString", postgres);
+            Console.WriteLine($"PostgreSQL 15 on 127.0.0.1:{server.Port} (a temporary cluster, fsync off as in the tests)");
+        }
+
+        try
+        {
+            return await RunOnAsync(work, root, built, options);
+        }
+        finally
+        {
+            if (server is not null)
+            {
+                await server.DisposeAsync();
+            }
+        }
+    }
+
+    /// <summary>The archive's PostgreSQL database for this run; null on SQLite.</summary>
+    private static string? postgres;
+
+    private static async Task<int> RunOnAsync(string work, string root, string built, Options options)
+    {
+        if (options.Rebuild || options.Provider == DatabaseProvider.PostgreSql || !File.Exists(built))
         {
             if (Directory.Exists(root))
             {
@@ -62,10 +104,26 @@ public static partial class Scale
 
         Console.Write(await File.ReadAllTextAsync(built));
         var facts = await FactsAsync(root);
-        await MeasurePagesAsync(root, facts, options);
-        await MeasureMergeAsync(root, facts);
-        await MeasurePublishAsync(root, facts);
-        await MeasureFixityAsync(root);
+        if (options.Measures("pages") || options.Measures("long"))
+        {
+            await MeasurePagesAsync(root, facts, options);
+        }
+
+        if (options.Measures("merge"))
+        {
+            await MeasureMergeAsync(root, facts);
+        }
+
+        if (options.Measures("publish"))
+        {
+            await MeasurePublishAsync(root, facts);
+        }
+
+        if (options.Measures("fixity"))
+        {
+            await MeasureFixityAsync(root);
+        }
+
         Console.WriteLine($"load at end: {Load()}");
         Console.WriteLine();
         return 0;
@@ -75,6 +133,8 @@ public static partial class Scale
     {
         int tapes = 10_000, captures = 3, kilobytes = 32, blocks = 400, requests = 40;
         bool rebuild = false;
+        var provider = DatabaseProvider.Sqlite;
+        var only = new HashSet<string>(StringComparer.Ordinal);
         for (int i = 0; i < args.Length; i++)
         {
             int Next() => int.Parse(args[++i], CultureInfo.InvariantCulture);
@@ -86,7 +146,15 @@ public static partial class Scale
                 case "--blocks": blocks = Next(); break;
                 case "--requests": requests = Next(); break;
                 case "--rebuild": rebuild = true; break;
-                default: throw new ArgumentException($"scale: unknown option '{args[i]}' (--tapes N, --captures N, --capture-kb N, --blocks N, --requests N, --rebuild)");
+                case "--provider": provider = Enum.Parse<DatabaseProvider>(args[++i], ignoreCase: true); break;
+                case "--only":
+                    foreach (var name in args[++i].Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries))
+                    {
+                        only.Add(Array.IndexOf(Sections, name) >= 0 ? name : throw new ArgumentException($"scale: --only takes {string.Join(", ", Sections)}, not '{name}'"));
+                    }
+
+                    break;
+                default: throw new ArgumentException($"scale: unknown option '{args[i]}' (--tapes N, --captures N, --capture-kb N, --blocks N, --requests N, --rebuild, --only {string.Join(',', Sections)}, --provider Sqlite|PostgreSql)");
             }
         }
 
@@ -95,10 +163,12 @@ public static partial class Scale
             throw new ArgumentException("scale: --tapes, --captures, --capture-kb and --blocks are at least 1, --requests at least 5.");
         }
 
-        return new Options(tapes, captures, kilobytes, blocks, requests, rebuild);
+        return new Options(tapes, captures, kilobytes, blocks, requests, rebuild, only, provider);
     }
 
-    private static ArchiveOptions Archive(string root) => new() { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" };
+    private static ArchiveOptions Archive(string root) => postgres is null
+        ? new() { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" }
+        : new() { BaseFolder = root, Provider = DatabaseProvider.PostgreSql, ConnectionString = postgres, StorePath = "store" };
 
     private static ServiceProvider Services(string root)
     {
@@ -284,7 +354,13 @@ public static partial class Scale
     private static async Task RunQueueAsync(ServiceProvider services)
     {
         var archive = services.GetRequiredService<ArchiveOptions>();
-        using var worker = JobWorker.Build(new ConfigurationBuilder().Build(), archive, JobWorker.StopWhenIdle);
+        var settings = new ConfigurationBuilder();
+        if (postgres is not null)
+        {
+            settings.AddInMemoryCollection(new Dictionary<string, string?> { ["TapeVault:Jobs:Store"] = "PostgreSql", ["TapeVault:Jobs:ConnectionString"] = postgres });
+        }
+
+        using var worker = JobWorker.Build(settings.Build(), archive, JobWorker.StopWhenIdle);
         await worker.RunAsync();
     }
 
@@ -320,12 +396,23 @@ public static partial class Scale
         Console.WriteLine($"pages over loopback ({options.Requests} requests each after 3 warm-up, one client, signed in as a curator):");
         Console.WriteLine("| page | p50 ms | p95 ms | HTML KB |");
         Console.WriteLine("|---|---|---|---|");
-        await PageAsync(api, "collection (all tapes)", _ => $"/collections/{facts.CollectionId}", options.Requests);
-        await PageAsync(api, "tape (3 captures, 1 image)", _ => $"/items/{facts.ItemIds[random.Next(facts.ItemIds.Length)]}", options.Requests);
-        await PageAsync(api, "capture", _ => $"/captures/{facts.CaptureIds[random.Next(facts.CaptureIds.Length)]}", options.Requests);
-        await PageAsync(api, "jobs", _ => "/jobs", options.Requests);
-        await PageAsync(api, "collections (home)", _ => "/", options.Requests);
-        await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings", _ => $"/items/{facts.LongItem}", Math.Max(5, options.Requests / 4));
+        if (options.Measures("pages"))
+        {
+            await PageAsync(api, "collection (all tapes)", _ => $"/collections/{facts.CollectionId}", options.Requests);
+            await PageAsync(api, "tape (3 captures, 1 image)", _ => $"/items/{facts.ItemIds[random.Next(facts.ItemIds.Length)]}", options.Requests);
+            await PageAsync(api, "capture", _ => $"/captures/{facts.CaptureIds[random.Next(facts.CaptureIds.Length)]}", options.Requests);
+            await PageAsync(api, "jobs", _ => "/jobs", options.Requests);
+            await PageAsync(api, "collections (home)", _ => "/", options.Requests);
+        }
+
+        if (options.Measures("long"))
+        {
+            // Drawn anew: the kept drawings are removed before each view (as a new decode or merge makes them stale).
+            var kept = Path.Combine(root, "store", "derived", "timelines");
+            await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings, first view", _ => Forget(kept, $"/items/{facts.LongItem}"), Math.Max(5, options.Requests / 4));
+            await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings, later views", _ => $"/items/{facts.LongItem}", options.Requests);
+        }
+
         Console.WriteLine("(page times are whole requests on loopback; the tape page tells its timeline's own server time in a Server-Timing header)");
     }
 
@@ -335,6 +422,7 @@ public static partial class Scale
         long size = 0;
         int refused = 0;
         var serverTimes = new List<double>();
+        var drawnTimes = new List<double>();
         for (int r = -3; r < requests; r++)
         {
             string url = path(r);
@@ -374,14 +462,16 @@ public static partial class Scale
                 if (response.Headers.TryGetValues("Server-Timing", out var timings)
                     && ServerTimingDuration().Match(string.Join(",", timings)) is { Success: true } timing)
                 {
-                    serverTimes.Add(double.Parse(timing.Groups[1].Value, CultureInfo.InvariantCulture));
+                    (timing.Groups[1].Value.Contains("earlier", StringComparison.Ordinal) ? serverTimes : drawnTimes).Add(double.Parse(timing.Groups[2].Value, CultureInfo.InvariantCulture));
                 }
             }
         }
 
         times.Sort();
         serverTimes.Sort();
-        string timeline = serverTimes.Count > 0 ? $" timeline read and drawn on the server (Server-Timing): p50 {Percentile(serverTimes, 0.50):0.0} ms, p95 {Percentile(serverTimes, 0.95):0.0} ms" : string.Empty;
+        drawnTimes.Sort();
+        string timeline = drawnTimes.Count > 0 ? $" timeline read and drawn anew on the server (Server-Timing): p50 {Percentile(drawnTimes, 0.50):0.0} ms, p95 {Percentile(drawnTimes, 0.95):0.0} ms ({drawnTimes.Count} views);" : string.Empty;
+        timeline += serverTimes.Count > 0 ? $" timeline drawn earlier, read: p50 {Percentile(serverTimes, 0.50):0.0} ms, p95 {Percentile(serverTimes, 0.95):0.0} ms ({serverTimes.Count} views)" : string.Empty;
         Console.WriteLine($"| {name} | {Percentile(times, 0.50):0.0} | {Percentile(times, 0.95):0.0} | {size / 1024.0:0.0} |{timeline}{(refused > 0 ? $" ({refused} refused by the plot rate limit, asked again after the wait)" : string.Empty)}");
     }
 
@@ -413,13 +503,33 @@ public static partial class Scale
         await using var scope = services.CreateAsyncScope();
         var publisher = scope.ServiceProvider.GetRequiredService<CataloguePublisher>();
         var zip = Path.Combine(root, "catalogue.zip");
+
+        // The first publication surveys every tape's capture for its histogram (none kept: the kept surveys are removed
+        // first); the second finds them kept, as a club publishing again after more tapes were decoded would.
+        var surveys = Path.Combine(root, "store", "derived", "surveys");
+        if (Directory.Exists(surveys))
+        {
+            Directory.Delete(surveys, recursive: true);
+        }
+
         var clock = Stopwatch.StartNew();
         await using (var file = File.Create(zip))
         {
             await publisher.PublishZipAsync(facts.CollectionId, file);
         }
 
-        Console.WriteLine($"catalogue of {facts.Tapes} tapes published in {clock.Elapsed.TotalSeconds:0.0} s ({new FileInfo(zip).Length / 1e6:0.0} MB zip; CataloguePublisher.PublishZipAsync)");
+        double first = clock.Elapsed.TotalSeconds;
+        clock.Restart();
+        var site = await publisher.SiteAsync(facts.CollectionId);
+        double gather = clock.Elapsed.TotalSeconds;
+        clock.Restart();
+        await using (var file = File.Create(zip))
+        {
+            await publisher.PublishZipAsync(facts.CollectionId, file);
+        }
+
+        Console.WriteLine($"catalogue of {facts.Tapes} tapes (CataloguePublisher.PublishZipAsync, {new FileInfo(zip).Length / 1e6:0.0} MB zip): first publication {first:0.0} s (every histogram surveyed); "
+            + $"published again {clock.Elapsed.TotalSeconds:0.0} s (surveys kept), of which gathering its {site.Items.Count} tapes from the archive {gather:0.0} s (CataloguePublisher.SiteAsync)");
         File.Delete(zip);
     }
 
@@ -455,13 +565,33 @@ public static partial class Scale
         var report = await audit.RunAsync(null, Agent);
         double ours = clock.Elapsed.TotalSeconds;
         double outside2 = Sha256sum();
-        double reference = Math.Min(outside, outside2);
+
+        // The audit's own hashing of the same files alone (ContentStore.HashStoredAsync on every core, as the audit
+        // calls it), without the event chain's check and the event it records per file.
+        var store = scope.ServiceProvider.GetRequiredService<TapeVault.Archive.Storage.ContentStore>();
+        var names = files.Select(Path.GetFileName).ToList();
+        clock.Restart();
+        await Parallel.ForEachAsync(names, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, async (name, token) => await store.HashStoredAsync(name!, token));
+        double hashing = clock.Elapsed.TotalSeconds;
+        double outside3 = Sha256sum();
+        double reference = Math.Min(outside, Math.Min(outside2, outside3));
         Console.WriteLine($"fixity over {files.Count} files, {bytes / 1e6:0} MB: audit {ours:0.00} s ({bytes / 1e6 / ours:0} MB/s, {files.Count / ours:0} files/s; {report.Good}/{report.Checked} good, {report.Problems.Count} problem(s)); "
-            + $"GNU sha256sum {outside:0.00} s and {outside2:0.00} s ({bytes / 1e6 / reference:0} MB/s); ratio {ours / reference:0.00}");
+            + $"its hashing alone {hashing:0.00} s; GNU sha256sum {outside:0.00}, {outside2:0.00} and {outside3:0.00} s ({bytes / 1e6 / reference:0} MB/s at best); "
+            + $"ratio audit / sha256sum {ours / reference:0.00} (to its slowest run {ours / Math.Max(outside, Math.Max(outside2, outside3)):0.00}), hashing alone / sha256sum {hashing / reference:0.00}");
     }
 
-    [System.Text.RegularExpressions.GeneratedRegex(@"timeline;[^,]*dur=([0-9.]+)")]
+    [System.Text.RegularExpressions.GeneratedRegex(@"timeline;desc=""([^""]*)"";dur=([0-9.]+)")]
     private static partial System.Text.RegularExpressions.Regex ServerTimingDuration();
+
+    private static string Forget(string folder, string url)
+    {
+        if (Directory.Exists(folder))
+        {
+            Directory.Delete(folder, recursive: true);
+        }
+
+        return url;
+    }
 
     private static double Percentile(List<double> sorted, double q) => sorted[Math.Min(sorted.Count - 1, (int)Math.Ceiling(q * sorted.Count) - 1)];
 

@@ -2,11 +2,13 @@ using TapeVault.Core.Blocks;
 using System.Globalization;
 using System.IO.Compression;
 using Microsoft.EntityFrameworkCore;
+using TapeVault.Archive.Entities;
 using TapeVault.Archive.Events;
 using TapeVault.Archive.Storage;
 using TapeVault.Core.Audio;
 using TapeVault.Core.Catalogue;
 using TapeVault.Core.Formats;
+using TapeVault.Core.Image;
 using TapeVault.Core.Pulses;
 using PulseHistogram = TapeVault.Core.Catalogue.PulseHistogram;
 
@@ -15,38 +17,116 @@ namespace TapeVault.Archive.Export;
 /// <summary>Gathers a collection's items from the archive into the catalogue model and writes the static site.</summary>
 public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, ArchiveOptions options, ProfileCatalog profiles)
 {
+    /// <summary>How many runs' readings one query asks for (the histograms' clean readings), so that a query's list stays small.</summary>
+    private const int RunsPerQuery = 500;
+
+    /// <summary>The bins of a catalogue page's pulse-length histogram.</summary>
+    private const int HistogramBins = 120;
+
+    /// <summary>
+    /// The catalogue model of a collection. A collection of ten thousand tapes is gathered in a handful of queries (its
+    /// items, captures, runs and image records each in one, the histograms' clean readings a few hundred runs at a time),
+    /// not a round trip per tape; the tape images are read from the store and the histograms' pulse surveys run on
+    /// every core, each tape's on its own.
+    /// </summary>
     public async Task<CatalogueSite> SiteAsync(int collectionId, CancellationToken cancellation = default)
     {
         var collection = await db.Collections.AsNoTracking().FirstOrDefaultAsync(c => c.Id == collectionId, cancellation).ConfigureAwait(false)
             ?? throw new ArchiveNotFoundException($"There is no collection {collectionId}.");
-        var ids = await db.Items.AsNoTracking().Where(i => i.CollectionId == collectionId).OrderBy(i => i.AccessionNumber).Select(i => i.Id)
+        var items = await db.Items.AsNoTracking().Where(i => i.CollectionId == collectionId).OrderBy(i => i.AccessionNumber)
             .ToListAsync(cancellation).ConfigureAwait(false);
-        var items = new List<CatalogueItem>();
-        foreach (var id in ids)
+        var captures = (await db.Captures.AsNoTracking().Where(c => c.Item!.CollectionId == collectionId).OrderBy(c => c.Id)
+            .ToListAsync(cancellation).ConfigureAwait(false)).ToLookup(c => c.ItemId);
+        var runs = (await db.Runs.AsNoTracking().Where(r => r.Capture!.Item!.CollectionId == collectionId).OrderBy(r => r.Id)
+            .ToListAsync(cancellation).ConfigureAwait(false)).ToLookup(r => r.CaptureId);
+
+        // The newest image version of each item, with its stored file's size (0 when the store has no record of it).
+        var newest = (await db.Images.AsNoTracking().Where(i => i.Item!.CollectionId == collectionId)
+            .Select(i => new { i.ItemId, i.Version, i.Sha256, Size = i.StoredFile == null ? 0 : i.StoredFile.Size })
+            .ToListAsync(cancellation).ConfigureAwait(false))
+            .GroupBy(i => i.ItemId).ToDictionary(g => g.Key, g => g.MaxBy(i => i.Version)!);
+
+        var tapes = new Tape[items.Count];
+        await Parallel.ForEachAsync(Enumerable.Range(0, items.Count), new ParallelOptions { CancellationToken = cancellation }, (i, _) =>
         {
-            var d = await ItemDossier.LoadAsync(db, store, id, cancellation).ConfigureAwait(false);
+            var item = items[i];
+            var record = newest.GetValueOrDefault(item.Id);
+            var image = record is not null ? ReadImage(item, record.Version, record.Sha256) : null;
+            var own = captures[item.Id].ToList();
+            tapes[i] = new Tape(item, own, [.. own.SelectMany(c => runs[c.Id]).OrderBy(r => r.Id)], image is null ? null : new CatalogueImage(record!.Version, record.Sha256, record.Size, image));
+            return ValueTask.CompletedTask;
+        }).ConfigureAwait(false);
+
+        // The histogram of each tape: which run it is read from, then those runs' clean readings in a few queries.
+        var sources = tapes.Select(HistogramSource).ToArray();
+        var chosen = sources.Where(s => s is not null).Select(s => s!.Value.Run.Id).Distinct().ToList();
+        var clean = new Dictionary<int, List<(string Setting, double Speed)>>();
+        for (int start = 0; start < chosen.Count; start += RunsPerQuery)
+        {
+            var batch = chosen.GetRange(start, Math.Min(RunsPerQuery, chosen.Count - start));
+            var rows = await db.Candidates.AsNoTracking().Where(c => batch.Contains(c.RunId) && c.Status == BlockStatus.Clean)
+                .Select(c => new { c.RunId, c.SettingName, c.Speed }).ToListAsync(cancellation).ConfigureAwait(false);
+            foreach (var row in rows)
+            {
+                (clean.TryGetValue(row.RunId, out var list) ? list : clean[row.RunId] = []).Add((row.SettingName, row.Speed));
+            }
+        }
+
+        var histograms = new PulseHistogram?[tapes.Length];
+        await Parallel.ForEachAsync(Enumerable.Range(0, tapes.Length), new ParallelOptions { CancellationToken = cancellation }, (i, token) =>
+        {
+            if (sources[i] is { } source)
+            {
+                histograms[i] = Histogram(source.Capture, source.Run, clean.GetValueOrDefault(source.Run.Id) ?? [], token);
+            }
+
+            return ValueTask.CompletedTask;
+        }).ConfigureAwait(false);
+
+        var catalogued = new List<CatalogueItem>(tapes.Length);
+        for (int i = 0; i < tapes.Length; i++)
+        {
+            var (item, own, _, image) = tapes[i];
             var description = string.Join("\n\n", new[]
             {
-                d.Item.ConditionNotes.Length > 0 ? $"**Condition when received:** {d.Item.ConditionNotes}" : null,
-            }.Concat(d.Captures.Where(c => c.Notes.Length > 0).Select(c => $"**Capture {c.Id}:** {c.Notes}")).Where(s => s is not null));
-            var record = d.LatestImageRecord;
-            CatalogueImage? image = record is not null && d.LatestImage is { } latest
-                ? new CatalogueImage(record.Version, record.Sha256, await SizeAsync(record.Sha256, cancellation).ConfigureAwait(false), latest)
-                : null;
-            items.Add(new CatalogueItem(
-                d.Item.AccessionNumber,
-                d.Item.Title,
-                d.Item.Side,
-                d.Item.LabelText,
+                item.ConditionNotes.Length > 0 ? $"**Condition when received:** {item.ConditionNotes}" : null,
+            }.Concat(own.Where(c => c.Notes.Length > 0).Select(c => $"**Capture {c.Id}:** {c.Notes}")).Where(s => s is not null));
+            catalogued.Add(new CatalogueItem(
+                item.AccessionNumber,
+                item.Title,
+                item.Side,
+                item.LabelText,
                 description,
-                [.. d.Captures.Select(c => new CatalogueCapture(c.OriginalFileName, c.Sha256, c.Size, c.SampleRate, c.Channels, c.BitsPerSample, c.DurationSeconds, c.Deck, c.Operator, c.CapturedOn))],
+                [.. own.Select(c => new CatalogueCapture(c.OriginalFileName, c.Sha256, c.Size, c.SampleRate, c.Channels, c.BitsPerSample, c.DurationSeconds, c.Deck, c.Operator, c.CapturedOn))],
                 image,
-                await HistogramAsync(d, cancellation).ConfigureAwait(false)));
+                histograms[i]));
         }
 
         var head = await EventChain.HeadAsync(db, cancellation).ConfigureAwait(false);
         var organisation = await OrganisationSettings.CurrentAsync(db, options, cancellation).ConfigureAwait(false);
-        return new CatalogueSite(collection.Name, collection.Description, organisation.DisplayName, db.Clock.GetUtcNow(), items, head?.ToString());
+        return new CatalogueSite(collection.Name, collection.Description, organisation.DisplayName, db.Clock.GetUtcNow(), catalogued, head?.ToString());
+    }
+
+    /// <summary>One tape as the catalogue gathers it: the item, its captures and runs in id order, its newest image.</summary>
+    private sealed record Tape(TapeItem Item, List<Capture> Captures, List<DecodeRun> Runs, CatalogueImage? Image);
+
+    /// <summary>The newest image version of an item, read from the store; null when its file is not there.</summary>
+    private TapeImage? ReadImage(TapeItem item, int version, string sha256)
+    {
+        if (!store.Exists(sha256))
+        {
+            return null;
+        }
+
+        using var stream = store.OpenRead(sha256);
+        try
+        {
+            return TapeImageContainer.Read(stream);
+        }
+        catch (ImageFormatException e)
+        {
+            throw new ArchiveConflictException($"Item {item.AccessionNumber}: the stored tape image version {version} is damaged ({e.Message}) Run a fixity audit.");
+        }
     }
 
     /// <summary>Writes the catalogue into an empty folder; records nothing (see <see cref="RecordPublishedAsync"/>).</summary>
@@ -118,29 +198,35 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
     }
 
     /// <summary>
-    /// The pulse lengths of the capture the image took most from (or the first decoded one), read by the setting that
-    /// found most clean blocks there, with the profile's marks placed at that capture's measured speed.
+    /// The capture a tape's histogram is drawn from: the one the image took most from (or the first decoded one), with
+    /// its newest run; null when there is none or its original is not in the store.
     /// </summary>
-    private async Task<PulseHistogram?> HistogramAsync(ItemDossier d, CancellationToken cancellation)
+    private (Capture Capture, DecodeRun Run)? HistogramSource(Tape tape)
     {
-        string? preferred = d.LatestImage?.Blocks.Where(b => !b.Sources.IsDefaultOrEmpty).GroupBy(b => b.Sources[0].CaptureSha256)
+        string? preferred = tape.Image?.Image.Blocks.Where(b => !b.Sources.IsDefaultOrEmpty).GroupBy(b => b.Sources[0].CaptureSha256)
             .OrderByDescending(g => g.Count()).Select(g => g.Key).FirstOrDefault();
-        var capture = d.Captures.Where(c => d.Runs.Any(r => r.CaptureId == c.Id)).OrderByDescending(c => c.Sha256 == preferred).ThenBy(c => c.Id).FirstOrDefault();
+        var capture = tape.Captures.Where(c => tape.Runs.Any(r => r.CaptureId == c.Id)).OrderByDescending(c => c.Sha256 == preferred).ThenBy(c => c.Id).FirstOrDefault();
         if (capture is null || !store.Exists(capture.Sha256))
         {
             return null;
         }
 
-        var run = d.Runs.Where(r => r.CaptureId == capture.Id).OrderByDescending(r => r.Id).First();
+        return (capture, tape.Runs.Where(r => r.CaptureId == capture.Id).OrderByDescending(r => r.Id).First());
+    }
+
+    /// <summary>
+    /// The pulse lengths of a capture, read by the setting of its run that found most clean blocks (the first by name
+    /// among equals), with the profile's marks placed at that capture's measured speed.
+    /// </summary>
+    private PulseHistogram? Histogram(Capture capture, DecodeRun run, List<(string Setting, double Speed)> clean, CancellationToken cancellation)
+    {
         if (!profiles.TryGet(run.ProfileId, out var profile))
         {
             return null;
         }
 
-        var clean = await db.Candidates.AsNoTracking().Where(c => c.RunId == run.Id && c.Status == BlockStatus.Clean)
-            .Select(c => new { c.SettingName, c.Speed }).ToListAsync(cancellation).ConfigureAwait(false);
         var settings = Runs.SettingsJson.Read(run.SettingsJson);
-        var best = clean.GroupBy(c => c.SettingName).OrderByDescending(g => g.Count()).FirstOrDefault();
+        var best = clean.GroupBy(c => c.Setting).OrderByDescending(g => g.Count()).ThenBy(g => g.Key, StringComparer.Ordinal).FirstOrDefault();
         var setting = settings.FirstOrDefault(s => s.Name == best?.Key) ?? (settings.Count > 0 ? settings[0] : null);
         if (setting is null)
         {
@@ -149,18 +235,24 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
 
         double speed = best is null ? 1 : best.Select(c => c.Speed).Order().ElementAt(best.Count() / 2);
         var marks = PulseMarks.For(profile, setting, speed);
-        var result = await Task.Run(() =>
+        // A survey reads the whole capture; it is kept beside the others (its own bin count in its key), so publishing
+        // again reads only the captures decoded since.
+        string kept = Runs.WholeCaptureSurveys.CachePath(store, capture.Sha256, setting, marks, HistogramBins);
+        var result = Runs.WholeCaptureSurveys.TryRead(kept);
+        if (result is null)
         {
-            using var reader = CaptureReader.Open(store.PathOf(capture.Sha256));
-            return PulseSurvey.Measure(reader, setting, new Core.Pulses.PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, 120), cancellation);
-        }, cancellation).ConfigureAwait(false);
+            using (var reader = CaptureReader.Open(store.PathOf(capture.Sha256)))
+            {
+                result = PulseSurvey.Measure(reader, setting, new Core.Pulses.PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, HistogramBins), cancellation);
+            }
+
+            Runs.WholeCaptureSurveys.Write(store, kept, result);
+        }
+
         return new PulseHistogram(
             [.. result.BinEdgesSeconds.Select(e => e * 1e6)],
             [.. result.Counts],
             [.. marks.Marks.Where(m => m.Kind != PulseMarkKind.Limit).Select(m => new HistogramMark(m.Label, m.Seconds * 1e6, m.Kind == PulseMarkKind.Boundary))],
             $"capture '{capture.OriginalFileName}', detector setting {setting.Name}; {marks.Measures.TrimEnd('.')}");
     }
-
-    private async Task<long> SizeAsync(string sha256, CancellationToken cancellation) =>
-        (await db.Objects.AsNoTracking().FirstOrDefaultAsync(o => o.Sha256 == sha256, cancellation).ConfigureAwait(false))?.Size ?? 0;
 }

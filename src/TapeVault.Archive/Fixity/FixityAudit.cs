@@ -50,6 +50,49 @@ public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
             throw new ArchiveNotFoundException($"There is no collection {id}.");
         }
 
+        var places = await PlacesAsync(collectionId, cancellation).ConfigureAwait(false);
+        var objects = await db.Objects.AsNoTracking().OrderBy(o => o.Sha256).ToListAsync(cancellation).ConfigureAwait(false);
+        var recorded = objects.ToDictionary(o => o.Sha256, StringComparer.Ordinal);
+        if (collectionId is not null)
+        {
+            objects = [.. objects.Where(o => places.ContainsKey(o.Sha256))];
+        }
+
+        // The files are hashed from here on, a batch at a time on every core, while the event chain is checked and
+        // each batch's outcome is judged and recorded in order: reading and hashing overlap the database's work
+        // instead of waiting for it.
+        var found = new FileFacts[objects.Count];
+        var hashed = new TaskCompletionSource[(objects.Count + HashBatch - 1) / HashBatch];
+        for (int k = 0; k < hashed.Length; k++)
+        {
+            hashed[k] = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
+        }
+
+        using var stopHashing = CancellationTokenSource.CreateLinkedTokenSource(cancellation);
+        var hashing = Task.Run(() => HashAllAsync(objects, found, hashed, stopHashing.Token), CancellationToken.None);
+        try
+        {
+            return await AuditAsync(collectionId, agent, started, places, objects, recorded, found, hashed, progress, cancellation).ConfigureAwait(false);
+        }
+        finally
+        {
+            await stopHashing.CancelAsync().ConfigureAwait(false);
+            await hashing.ConfigureAwait(false);
+        }
+    }
+
+    private async Task<FixityReport> AuditAsync(
+        int? collectionId,
+        string agent,
+        DateTimeOffset started,
+        Dictionary<string, List<Place>> places,
+        List<Entities.StoredObject> objects,
+        Dictionary<string, Entities.StoredObject> recorded,
+        FileFacts[] found,
+        TaskCompletionSource[] hashed,
+        IProgress<FixityProgress>? progress,
+        CancellationToken cancellation)
+    {
         // The chain first, before this audit adds events of its own.
         var problems = new List<FixityFinding>();
         var chain = await EventChain.VerifyAsync(db, cancellation).ConfigureAwait(false);
@@ -62,22 +105,12 @@ public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
         EventLog.Add(db, EventTypes.FixityCheck, agent, "event-log", "chain", chain.Intact ? Ok : ChainBroken,
             chain.FirstBreak is { } b ? $"First broken link: {b.Reason}" : $"{chain.Events} event(s) chained; head {chain.Head?.ToString() ?? "none"}.");
 
-        var places = await PlacesAsync(collectionId, cancellation).ConfigureAwait(false);
-        var objects = await db.Objects.AsNoTracking().OrderBy(o => o.Sha256).ToListAsync(cancellation).ConfigureAwait(false);
-        var recorded = objects.ToDictionary(o => o.Sha256, StringComparer.Ordinal);
-        if (collectionId is not null)
-        {
-            objects = [.. objects.Where(o => places.ContainsKey(o.Sha256))];
-        }
-
         int good = 0;
-        var found = new FileFacts[objects.Count];
         for (int i = 0; i < objects.Count; i++)
         {
-            // The files are hashed a batch ahead, on every core at once; what they say is judged and recorded in order.
             if (i % HashBatch == 0)
             {
-                await HashBatchAsync(objects, i, found, cancellation).ConfigureAwait(false);
+                await hashed[i / HashBatch].Task.WaitAsync(cancellation).ConfigureAwait(false);
             }
 
             var stored = objects[i];
@@ -124,9 +157,9 @@ public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
 
             EventLog.Add(db, EventTypes.FixityCheck, agent, "object", stored.Sha256, outcome,
                 $"{uses[0].Kind} {uses[0].File}{(uses.Count > 1 ? $" (and {uses.Count - 1} more use(s))" : string.Empty)}: {detail}", uses[0].ItemId);
-            if (i % 100 == 99)
+            if (i % EventsPerSave == EventsPerSave - 1)
             {
-                await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+                await SaveEventsAsync(cancellation).ConfigureAwait(false);
             }
 
             progress?.Report(new FixityProgress(i + 1, objects.Count));
@@ -144,11 +177,56 @@ public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
         return new FixityReport(objects.Count, good, problems, started, db.Clock.GetUtcNow(), chain, headAfter);
     }
 
+    /// <summary>How many of the audit's events are saved at a time.</summary>
+    private const int EventsPerSave = 500;
+
+    /// <summary>
+    /// Saves the events added so far and stops tracking them: an audit of ten thousand files adds as many events, and
+    /// each save would otherwise look over every event saved before it again.
+    /// </summary>
+    private async Task SaveEventsAsync(CancellationToken cancellation)
+    {
+        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+        foreach (var saved in db.ChangeTracker.Entries<Entities.ArchiveEvent>().Where(e => e.State == EntityState.Unchanged).ToList())
+        {
+            saved.State = EntityState.Detached;
+        }
+    }
+
     /// <summary>How many stored files are hashed ahead at a time.</summary>
     private const int HashBatch = 64;
 
     /// <summary>What the store holds under an object's name: whether the file is there, its SHA-256 and its size.</summary>
     private readonly record struct FileFacts(bool Exists, string? Sha256, long Size);
+
+    /// <summary>Hashes every object's file, batch after batch, telling each batch's end; a failure is told to the batches left.</summary>
+    private async Task HashAllAsync(List<Entities.StoredObject> objects, FileFacts[] found, TaskCompletionSource[] hashed, CancellationToken cancellation)
+    {
+        for (int k = 0; k < hashed.Length; k++)
+        {
+            try
+            {
+                await HashBatchAsync(objects, k * HashBatch, found, cancellation).ConfigureAwait(false);
+                hashed[k].SetResult();
+            }
+            catch (Exception e)
+            {
+                for (int rest = k; rest < hashed.Length; rest++)
+                {
+                    if (e is OperationCanceledException)
+                    {
+                        hashed[rest].TrySetCanceled(cancellation);
+                    }
+                    else
+                    {
+                        hashed[rest].TrySetException(e);
+                    }
+                }
+
+                return;
+            }
+        }
+    }
 
     /// <summary>Hashes the next batch of objects' files from <paramref name="first"/>, as many at once as there are cores.</summary>
     private async Task HashBatchAsync(List<Entities.StoredObject> objects, int first, FileFacts[] found, CancellationToken cancellation)

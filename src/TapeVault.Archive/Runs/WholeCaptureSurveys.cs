@@ -29,8 +29,8 @@ public static class WholeCaptureSurveys
 
     private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web);
 
-    /// <summary>Where the survey for these choices is kept.</summary>
-    public static string CachePath(ContentStore store, string captureSha256, DetectorSetting setting, PulseMarkSet marks)
+    /// <summary>Where the survey for these choices is kept (<paramref name="bins"/>: the published catalogue's histograms have their own).</summary>
+    public static string CachePath(ContentStore store, string captureSha256, DetectorSetting setting, PulseMarkSet marks, int bins = Bins)
     {
         ArgumentNullException.ThrowIfNull(store);
         ArgumentNullException.ThrowIfNull(setting);
@@ -40,7 +40,7 @@ public static class WholeCaptureSurveys
             throw new ArgumentException("Not a lower-case hex SHA-256.", nameof(captureSha256));
         }
 
-        string key = $"{captureSha256}|{SettingsJson.Write([setting])}|{marks.LowestSeconds:R}|{marks.HighestSeconds:R}|{Bins}|{Channel}";
+        string key = $"{captureSha256}|{SettingsJson.Write([setting])}|{marks.LowestSeconds:R}|{marks.HighestSeconds:R}|{bins}|{Channel}";
         string keyHash = Convert.ToHexStringLower(SHA256.HashData(Encoding.UTF8.GetBytes(key)))[..32];
         return Path.Combine(store.Root, "derived", "surveys", captureSha256[..2], $"{captureSha256}.{keyHash}.json");
     }
