@@ -215,8 +215,12 @@ public static class BlockPositioner
             foreach (int i in places[p])
             {
                 // A header that other readings share is read right as far as anyone can tell: it keeps its identity.
-                string own = keyed[i].Candidate.Identity.Key;
-                keyed[i] = (keyed[i].Candidate, support[own] > 1 ? own : key);
+                // A reading cut short before its payload offers no bytes and names no block of its own, however many
+                // settings garbled its header alike: it belongs to the place it starts at.
+                var c = keyed[i].Candidate;
+                string own = c.Identity.Key;
+                bool nothingRead = c.Truncated && c.Payload.IsEmpty;
+                keyed[i] = (c, support[own] > 1 && !nothingRead ? own : key);
             }
         }
     }
