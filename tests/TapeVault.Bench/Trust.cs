@@ -61,7 +61,7 @@ public static class Trust
 
     public static int Run(string work, string[] args)
     {
-        int blocks = 300, firstSeed = 1, jobs = 2;
+        int blocks = 300, firstSeed = 1, jobs = Environment.ProcessorCount;
         double minutes = double.PositiveInfinity;
         string? only = null;
         for (int i = 0; i + 1 < args.Length; i += 2)
@@ -120,6 +120,7 @@ public static class Trust
         }
 
         Console.WriteLine($"Trust on damage nobody tuned for: tapes of seeds {firstSeed} onwards, {PassesPerTape} passes each, {jobs} at a time, {tapes.Count} tapes{(double.IsFinite(minutes) ? $", no new tape after {minutes} min" : string.Empty)}.");
+        Console.WriteLine($"Load at start: {Load()} (1, 5, 15-minute load averages on {Environment.ProcessorCount} cores).");
         var outcomes = new ConcurrentBag<TapeOutcome>();
         int done = 0, skipped = 0;
         var cpu = Process.GetCurrentProcess().TotalProcessorTime;
@@ -150,6 +151,7 @@ public static class Trust
             Console.WriteLine($"Time limit reached: {skipped} of {tapes.Count} tapes not measured.");
         }
 
+        Directory.Delete(folder, recursive: true);
         Print([.. outcomes]);
         if (s_dumpPath is not null)
         {
@@ -157,6 +159,17 @@ public static class Trust
         }
         Console.WriteLine($"This process's CPU time {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:0} s (SoX and minimodem run as processes of their own, not counted).");
         Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s wall; wall time summed over workers: making captures {Stopwatch.GetElapsedTime(0, s_makeTicks).TotalSeconds:0} s, decoding {Stopwatch.GetElapsedTime(0, s_decodeTicks).TotalSeconds:0} s, merging {Stopwatch.GetElapsedTime(0, s_mergeTicks).TotalSeconds:0} s.");
+        Console.WriteLine($"Load at end: {Load()}.");
+
+        // What the asked-for count would take at this run's pace (block formats; streams are a few tapes each).
+        var measured = outcomes.Where(o => !o.Subject.Profile.Layout.IsStream).ToList();
+        int measuredBlocks = measured.Sum(o => o.WrittenBlocks);
+        int blockProfiles = subjects.Count(s => !s.Profile.Layout.IsStream && (only is null || s.Profile.Id == only));
+        if (measuredBlocks > 0 && skipped > 0)
+        {
+            double perBlock = stopwatch.Elapsed.TotalMinutes / Math.Max(1, outcomes.Sum(o => o.Subject.Profile.Layout.IsStream ? 0 : o.WrittenBlocks));
+            Console.WriteLine($"At this run's pace ({measuredBlocks} written blocks in {stopwatch.Elapsed.TotalMinutes:0.0} min with {jobs} workers, streams included), {blocks} blocks a profile for {blockProfiles} block profiles would take about {perBlock * blocks * blockProfiles:0} min.");
+        }
         Console.WriteLine();
         return 0;
     }
@@ -210,6 +223,8 @@ public static class Trust
 
         return files;
     }
+
+    private static string Load() => File.Exists("/proc/loadavg") ? string.Join(' ', File.ReadAllText("/proc/loadavg").Split(' ').Take(3)) : "unknown";
 
     private static int StableHash(string text)
     {
