@@ -63,6 +63,9 @@ internal sealed class StreamMerge
         /// <summary>The chance the slot holds the written character, its readers' edge doubt counted (<see cref="EdgeCharacterError"/>).</summary>
         public double Confidence { get; set; }
 
+        /// <summary>The same where the slot ends a segment (beside bytes no capture kept, or the end of its stretch): every reader's character there counts as one at an edge.</summary>
+        public double EndConfidence { get; set; }
+
         public bool Unanimous { get; set; }
     }
 
@@ -195,6 +198,7 @@ internal sealed class StreamMerge
             double floor = Math.Pow(_options.StreamByteErrorFloor, Math.Max(1, alike));
             slot.Probability = Math.Min(slot.Probability, 1 - floor);
             slot.Confidence = Math.Min(Vote(slot, edges: true, of: slot.Value).Probability, slot.Probability);
+            slot.EndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, everyReaderAtEdge: true).Probability, slot.Confidence);
 
             // A byte that other captures reading this stretch did not see must be a confident one.
             if (slot.Probability > (supporting < covering ? LoneByteProbability : 0.5))
@@ -246,7 +250,7 @@ internal sealed class StreamMerge
     /// <paramref name="edges"/>, a reading's first and last character count as no surer than <see cref="EdgeCharacterError"/>.
     /// Returns the likeliest value and its probability, or <paramref name="of"/>'s probability where given.
     /// </summary>
-    private static (byte Value, double Probability) Vote(Slot slot, bool edges, byte? of = null)
+    private static (byte Value, double Probability) Vote(Slot slot, bool edges, byte? of = null, bool everyReaderAtEdge = false)
     {
         var values = slot.Bytes.Select(b => b.Value).Distinct().ToArray();
         var logLikelihood = new double[values.Length + 1];
@@ -258,7 +262,7 @@ internal sealed class StreamMerge
                 double sum = 0;
                 foreach (var r in readings)
                 {
-                    double error = edges && r.Edge ? Math.Max(r.Error, EdgeCharacterError) : r.Error;
+                    double error = edges && (r.Edge || everyReaderAtEdge) ? Math.Max(r.Error, EdgeCharacterError) : r.Error;
                     sum += v < values.Length && r.Value == values[v] ? 1 - error : error / 255.0;
                 }
 
@@ -347,7 +351,15 @@ internal sealed class StreamMerge
     {
         var payload = slots.Select(s => s.Value).ToImmutableArray();
         int agreeing = slots.Count == 0 ? 0 : slots.Min(s => s.Bytes.Where(b => b.Value == s.Value).Select(b => b.Pass).Distinct().Count());
-        double logConfidence = slots.Sum(s => Math.Log(Math.Max(s.Confidence, 1e-300)));
+        // A segment's ends lie beside bytes no capture kept (or at its stretch's end): whatever each reader's own
+        // reading did there, the character at a segment's end is doubted as one at an edge.
+        double logConfidence = 0;
+        for (int i = 0; i < slots.Count; i++)
+        {
+            double p = i == 0 || i == slots.Count - 1 ? slots[i].EndConfidence : slots[i].Confidence;
+            logConfidence += Math.Log(Math.Max(p, 1e-300));
+        }
+
 
         // Provenance: per capture, the reading that gave most of the winning bytes; the capture that gave most first.
         var winning = slots.SelectMany(s => s.Bytes.Where(b => b.Value == s.Value)).ToList();
