@@ -16,7 +16,8 @@ namespace TapeVault.Core.Merge;
 /// each one's vote, where every capture's reading of a character may be wrong in a way no margin shows
 /// (<see cref="MergeOptions.StreamByteErrorFloor"/>) and the first and last character of what a capture read (where its
 /// signal began or broke off: tone dying away, the edge of a dropout, a start with no lead-in) may be one it invented
-/// or framed off (<see cref="EdgeCharacterError"/>). Independent captures that read a character alike are all wrong
+/// or framed off (<see cref="EdgeCharacterError"/>), and so may the character at each end of a segment, beside bytes
+/// no capture kept or at its stretch's end. Independent captures that read a character alike are all wrong
 /// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
 /// never lowers it, and a segment one capture alone carried claims what its ends allow.
 /// </para>
