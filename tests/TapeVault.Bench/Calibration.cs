@@ -20,29 +20,26 @@ public static class Calibration
         var fitTapes = Recovery.Decoded(work, 1, seeds).Where(t => t.Profile.Layout.IsStream).ToList();
         double[] grid = [2e-4, 5e-4, 1e-3, 2e-3, 5e-3, 1e-2, 2e-2, 5e-2];
         double[] factors = [0.1, 0.2, 0.3, 0.5, 0.7, 1];
-        var fits = new List<(double Single, double Agreed, double Factor, double Ece)>();
+        var fits = new List<(double Single, double Factor, double Ece)>();
         foreach (double single in grid)
         {
-            foreach (double agreed in grid.Where(a => a <= single))
+            foreach (double factor in factors)
             {
-                foreach (double factor in factors)
-                {
-                    var options = new TapeVault.Core.Merge.MergeOptions { StreamByteErrorFloor = single, StreamAgreedByteErrorFloor = agreed, StreamAfterGapFactor = factor };
-                    var items = fitTapes.Select(t => RecoveryCorpus.Score(t, options)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right))).ToList();
-                    fits.Add((single, agreed, factor, Ece(items)));
-                }
+                var options = new TapeVault.Core.Merge.MergeOptions { StreamByteErrorFloor = single, StreamAfterGapFactor = factor };
+                var items = fitTapes.Select(t => RecoveryCorpus.Score(t, options)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right))).ToList();
+                fits.Add((single, factor, Ece(items)));
             }
         }
 
         var best = fits.MinBy(f => f.Ece);
         var defaults = new TapeVault.Core.Merge.MergeOptions();
-        var atDefaults = fits.Find(f => f.Single == defaults.StreamByteErrorFloor && f.Agreed == defaults.StreamAgreedByteErrorFloor && f.Factor == defaults.StreamAfterGapFactor);
-        Console.WriteLine($"Fit on the stream tapes of seeds 1 to {seeds} (streams only): byte error floors {best.Single:0e0} (one capture), {best.Agreed:0e0} (captures agreeing), after-gap factor {best.Factor}: ECE {best.Ece:0.0000} there.");
-        Console.WriteLine($"Defaults in use: {defaults.StreamByteErrorFloor:0e0}, {defaults.StreamAgreedByteErrorFloor:0e0}, {defaults.StreamAfterGapFactor}: ECE {atDefaults.Ece:0.0000} on the fit tapes.");
+        var atDefaults = fits.Find(f => f.Single == defaults.StreamByteErrorFloor && f.Factor == defaults.StreamAfterGapFactor);
+        Console.WriteLine($"Fit on the stream tapes of seeds 1 to {seeds} (streams only): byte error floor {best.Single:0e0} (one capture; k captures agreeing: its k-th power), after-gap factor {best.Factor}: ECE {best.Ece:0.0000} there.");
+        Console.WriteLine($"Defaults in use: {defaults.StreamByteErrorFloor:0e0}, {defaults.StreamAfterGapFactor}: ECE {atDefaults.Ece:0.0000} on the fit tapes.");
         var heldOut = Recovery.Decoded(work, 101, seeds);
         var tapes = heldOut.Select(t => RecoveryCorpus.Score(t)).ToList();
         var streamPositions = tapes.Where(t => IsStream(t.ProfileId)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right))).ToList();
-        var fitted = new TapeVault.Core.Merge.MergeOptions { StreamByteErrorFloor = best.Single, StreamAgreedByteErrorFloor = best.Agreed, StreamAfterGapFactor = best.Factor };
+        var fitted = new TapeVault.Core.Merge.MergeOptions { StreamByteErrorFloor = best.Single, StreamAfterGapFactor = best.Factor };
         double fittedEce = Ece([.. heldOut.Where(t => t.Profile.Layout.IsStream).Select(t => RecoveryCorpus.Score(t, fitted)).SelectMany(t => t.MergedBlocks.Select(b => (b.Confidence, b.Right)))]);
         Console.WriteLine($"Stream positions of the tapes from seed 101: ECE {Ece(streamPositions):0.0000} with the defaults, {fittedEce:0.0000} with the fit.");
         Console.WriteLine($"Calibration of merged confidence (tapes from seed 101, {seeds} per stream profile and level, {2 * seeds} per block profile and level)");

@@ -34,6 +34,8 @@ public static class Trust
 
     private static long s_makeTicks, s_decodeTicks, s_mergeTicks;
 
+    private static readonly MergeOptions s_mergeOptions = new() { CreatedUtc = DateTimeOffset.UnixEpoch };
+
     /// <summary>With TAPEVAULT_TRUST_DUMP set to a file path, every reading and position is written there as a row of tab-separated features.</summary>
     private static readonly ConcurrentQueue<string> s_dump = new();
     private static readonly string? s_dumpPath = Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_DUMP");
@@ -59,28 +61,30 @@ public static class Trust
 
     public static int Run(string work, string[] args)
     {
-        int blocks = 300, firstSeed = 1, jobs = 2;
+        int blocks = 300, firstSeed = 1, jobs = Environment.ProcessorCount;
         double minutes = double.PositiveInfinity;
         string? only = null;
         for (int i = 0; i + 1 < args.Length; i += 2)
         {
             switch (args[i])
             {
-                case "--blocks": blocks = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
+                case "--blocks" or "--blocks-per-family": blocks = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
                 case "--first-seed": firstSeed = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
                 case "--jobs": jobs = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
                 case "--profile": only = args[i + 1]; break;
                 case "--minutes": minutes = double.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
-                default: throw new ArgumentException($"Unknown option {args[i]}; trust takes --blocks N --first-seed S --jobs J --profile ID --minutes M.");
+                default: throw new ArgumentException($"Unknown option {args[i]}; trust takes --blocks-per-family N --first-seed S --jobs J --profile ID --minutes M.");
             }
         }
 
         var stopwatch = Stopwatch.StartNew();
-        string folder = Path.Combine(work, "trust");
+        // A folder of this process's own: two runs at once (of other seeds) never share a capture's file name.
+        string folder = Path.Combine(work, $"trust-{Environment.ProcessId}");
         Directory.CreateDirectory(folder);
         Subject[] subjects =
         [
             new("pulse-width", TrustProfiles.PulseBlocks),
+            new("pulse-width", ProfileCatalog.BuiltIn.Get("orrin-80")),
             new("fsk", TrustProfiles.ToneBlocks),
             new("fsk", ProfileCatalog.BuiltIn.Get("kcs-300")),
             new("fsk", ProfileCatalog.BuiltIn.Get("kcs-1200")),
@@ -116,6 +120,7 @@ public static class Trust
         }
 
         Console.WriteLine($"Trust on damage nobody tuned for: tapes of seeds {firstSeed} onwards, {PassesPerTape} passes each, {jobs} at a time, {tapes.Count} tapes{(double.IsFinite(minutes) ? $", no new tape after {minutes} min" : string.Empty)}.");
+        Console.WriteLine($"Load at start: {Load()} (1, 5, 15-minute load averages on {Environment.ProcessorCount} cores).");
         var outcomes = new ConcurrentBag<TapeOutcome>();
         int done = 0, skipped = 0;
         var cpu = Process.GetCurrentProcess().TotalProcessorTime;
@@ -146,6 +151,7 @@ public static class Trust
             Console.WriteLine($"Time limit reached: {skipped} of {tapes.Count} tapes not measured.");
         }
 
+        Directory.Delete(folder, recursive: true);
         Print([.. outcomes]);
         if (s_dumpPath is not null)
         {
@@ -153,6 +159,17 @@ public static class Trust
         }
         Console.WriteLine($"This process's CPU time {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:0} s (SoX and minimodem run as processes of their own, not counted).");
         Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s wall; wall time summed over workers: making captures {Stopwatch.GetElapsedTime(0, s_makeTicks).TotalSeconds:0} s, decoding {Stopwatch.GetElapsedTime(0, s_decodeTicks).TotalSeconds:0} s, merging {Stopwatch.GetElapsedTime(0, s_mergeTicks).TotalSeconds:0} s.");
+        Console.WriteLine($"Load at end: {Load()}.");
+
+        // What the asked-for count would take at this run's pace (block formats; streams are a few tapes each).
+        var measured = outcomes.Where(o => !o.Subject.Profile.Layout.IsStream).ToList();
+        int measuredBlocks = measured.Sum(o => o.WrittenBlocks);
+        int blockProfiles = subjects.Count(s => !s.Profile.Layout.IsStream && (only is null || s.Profile.Id == only));
+        if (measuredBlocks > 0 && skipped > 0)
+        {
+            double perBlock = stopwatch.Elapsed.TotalMinutes / Math.Max(1, outcomes.Sum(o => o.Subject.Profile.Layout.IsStream ? 0 : o.WrittenBlocks));
+            Console.WriteLine($"At this run's pace ({measuredBlocks} written blocks in {stopwatch.Elapsed.TotalMinutes:0.0} min with {jobs} workers, streams included), {blocks} blocks a profile for {blockProfiles} block profiles would take about {perBlock * blocks * blockProfiles:0} min.");
+        }
         Console.WriteLine();
         return 0;
     }
@@ -206,6 +223,8 @@ public static class Trust
 
         return files;
     }
+
+    private static string Load() => File.Exists("/proc/loadavg") ? string.Join(' ', File.ReadAllText("/proc/loadavg").Split(' ').Take(3)) : "unknown";
 
     private static int StableHash(string text)
     {
@@ -293,13 +312,14 @@ public static class Trust
             }
 
             long m0 = Stopwatch.GetTimestamp();
-            var image = TapeMerger.Merge(results, names, new MergeOptions { CreatedUtc = DateTimeOffset.UnixEpoch });
+            var image = TapeMerger.Merge(results, names, s_mergeOptions);
             Interlocked.Add(ref s_mergeTicks, Stopwatch.GetTimestamp() - m0);
             var positions = new List<Reading>();
             bool exact = image.Blocks.Length > 0;
             int rightBlocks = 0;
-            foreach (var block in image.Blocks)
+            for (int bi = 0; bi < image.Blocks.Length; bi++)
             {
+                var block = image.Blocks[bi];
                 if (block.Status == RecoveryStatus.Missing)
                 {
                     exact = false;
@@ -312,7 +332,10 @@ public static class Trust
                 if (s_dumpPath is not null)
                 {
                     s_dump.Enqueue(string.Join('\t', "pos", profile.Id, seed, -1, "-", "-", block.Status, 0, block.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0,
-                        block.AgreeingCaptures, block.Sources.Length, 0, 0, 0, 0, block.Payload.Length, 0, block.Position, 0, block.Key));
+                        block.AgreeingCaptures, block.Sources.Length, 0, 0, 0, 0, block.Payload.Length, 0, block.Position, 0, block.Key,
+                        bi > 0 && image.Blocks[bi - 1].Status == RecoveryStatus.Missing ? 1 : 0,
+                        bi + 1 < image.Blocks.Length && image.Blocks[bi + 1].Status == RecoveryStatus.Missing ? 1 : 0,
+                        profile.Layout.IsStream && !right ? StreamErrorWhere(block.Payload.AsSpan(), files) : "-"));
                 }
                 rightBlocks += right ? 1 : 0;
                 exact &= right && block.AgreeingCaptures >= 2 && (profile.Layout.IsStream || block.Status == RecoveryStatus.Clean);
@@ -327,6 +350,50 @@ public static class Trust
             // A decoder or merge that throws is a finding of its own: reported, and the run goes on.
             return new TapeOutcome(subject, seed, units, written.Count, bySource, best, [], null, examples, $"{profile.Id} seed {seed}: {e.GetType().Name}: {e.Message} {e.StackTrace?.Split('\n')[0]}");
         }
+    }
+
+    /// <summary>Where a wrong stream segment differs from the written bytes it lines up with best: at its first or last two characters (or past a file's end), inside, or both.</summary>
+    private static string StreamErrorWhere(ReadOnlySpan<byte> run, List<TapeFile> files)
+    {
+        int bestFile = 0, bestOffset = 0, bestCount = -1;
+        for (int f = 0; f < files.Count; f++)
+        {
+            var content = files[f].Content;
+            for (int o = -run.Length + 1; o < content.Length; o++)
+            {
+                int count = 0;
+                for (int i = Math.Max(0, -o); i < run.Length && o + i < content.Length; i++)
+                {
+                    count += run[i] == content[o + i] ? 1 : 0;
+                }
+
+                if (count > bestCount)
+                {
+                    (bestFile, bestOffset, bestCount) = (f, o, count);
+                }
+            }
+        }
+
+        var best = files[bestFile].Content;
+        bool edge = false, inside = false;
+        for (int i = 0; i < run.Length; i++)
+        {
+            int at = bestOffset + i;
+            bool wrong = at < 0 || at >= best.Length || run[i] != best[at];
+            if (wrong)
+            {
+                if (i < 2 || i >= run.Length - 2)
+                {
+                    edge = true;
+                }
+                else
+                {
+                    inside = true;
+                }
+            }
+        }
+
+        return edge && inside ? "both" : edge ? "edge" : inside ? "inside" : "none";
     }
 
     private static int Distance(string a, string b)

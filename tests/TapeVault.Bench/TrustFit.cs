@@ -59,14 +59,28 @@ public static class TrustFit
                 groups[key] = list = [];
             }
 
-            list.Add((double.Parse(f[^1], CultureInfo.InvariantCulture), f[9] == "1"));
+            var reading = (double.Parse(f[^1], CultureInfo.InvariantCulture), f[9] == "1");
+            list.Add(reading);
+
+            // A built-in profile's readings also make a curve of its own (used where it has enough); not for clean
+            // readings, which are right in every family alike and whose rate a smaller count only bounds more loosely.
+            if (TapeVault.Core.Formats.ProfileCatalog.BuiltIn.TryGet(f[1], out _) && f[^2] != nameof(TapeVault.Core.Blocks.ConfidenceGroup.Clean))
+            {
+                string own = $"{TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix}{f[1]}/{f[^2]}";
+                if (!groups.TryGetValue(own, out var ofProfile))
+                {
+                    groups[own] = ofProfile = [];
+                }
+
+                ofProfile.Add(reading);
+            }
         }
 
         // Each group pooled over every family too: the curve a family uses where its own readings are too few.
         foreach (var group in groups.Keys.Select(k => k[(k.IndexOf('/', StringComparison.Ordinal) + 1)..]).Distinct(StringComparer.Ordinal).ToList())
         {
             groups[TapeVault.Core.Blocks.ConfidenceMap.PooledFamily + "/" + group] =
-                [.. groups.Where(g => g.Key.EndsWith("/" + group, StringComparison.Ordinal)).SelectMany(g => g.Value)];
+                [.. groups.Where(g => g.Key.EndsWith("/" + group, StringComparison.Ordinal) && !g.Key.StartsWith(TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix, StringComparison.Ordinal)).SelectMany(g => g.Value)];
         }
 
         var curves = new JsonObject();

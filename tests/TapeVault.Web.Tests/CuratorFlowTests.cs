@@ -249,6 +249,9 @@ public sealed class CuratorFlowTests
             .Select(td => int.Parse(td.TextContent.Split(' ')[0], System.Globalization.CultureInfo.InvariantCulture)).ToList();
         Assert.True(positions.Count >= 2);
         Assert.Equal(positions.Order(), positions);
+
+        // A page that shows confidence says in one sentence what it means.
+        Assert.Contains(TapeVault.Core.Text.Vocabulary.ConfidenceSentence, page.Body!.TextContent, StringComparison.Ordinal);
     }
 
     private static async Task<IDocument> PageAsync(ApiClient client, string path)

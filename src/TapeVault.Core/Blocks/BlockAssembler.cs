@@ -40,7 +40,7 @@ public sealed partial class BlockAssembler : IBlockSink
     {
         ArgumentNullException.ThrowIfNull(profile);
         _layout = profile.Layout;
-        _scorer = new BlockScorer(_layout, profile.Family);
+        _scorer = new BlockScorer(_layout, profile.Family, profileId: profile.Id);
         _codec = BlockLayoutCodec.For(_layout);
         _kinds = new KindSequence(profile);
         _settingIndex = settingIndex;

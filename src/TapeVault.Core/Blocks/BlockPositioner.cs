@@ -207,16 +207,33 @@ public static class BlockPositioner
         for (int p = 0; p < places.Count; p++)
         {
             string key = placeKey[p];
+            string? overlapped = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored);
+            if (anchored)
+            {
+                // A stretch of tape that an anchored reading covers is that block's place: readings of other settings
+                // there are misreads of it, whatever identity their garbled headers share with misreads elsewhere.
+                foreach (int i in places[p])
+                {
+                    keyed[i] = (keyed[i].Candidate, overlapped!);
+                }
+
+                continue;
+            }
+
             if (placeSupport[p] <= 1)
             {
-                key = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0]) ?? key;
+                key = overlapped ?? key;
             }
 
             foreach (int i in places[p])
             {
                 // A header that other readings share is read right as far as anyone can tell: it keeps its identity.
-                string own = keyed[i].Candidate.Identity.Key;
-                keyed[i] = (keyed[i].Candidate, support[own] > 1 ? own : key);
+                // A reading cut short before its payload offers no bytes and names no block of its own, however many
+                // settings garbled its header alike: it belongs to the place it starts at.
+                var c = keyed[i].Candidate;
+                string own = c.Identity.Key;
+                bool nothingRead = c.Truncated && c.Payload.IsEmpty;
+                keyed[i] = (c, support[own] > 1 && !nothingRead ? own : key);
             }
         }
     }
@@ -226,8 +243,9 @@ public static class BlockPositioner
     /// reading overlaps: an anchored reading's key, or another place's.
     /// </summary>
     private static string? OverlappedKey(
-        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first)
+        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first, out bool anchored)
     {
+        anchored = false;
         var c = keyed[first].Candidate;
         string? best = null;
         int bestSupport = 1;
@@ -263,6 +281,7 @@ public static class BlockPositioner
             }
         }
 
+        anchored = bestSupport == int.MaxValue;
         return best;
     }
 
@@ -360,8 +379,11 @@ public static class BlockPositioner
     private static BlockCandidate? FindNeighbouringCopy(List<BlockCandidate> trusted, BlockCandidate c)
     {
         double length = Math.Max(c.EndSeconds - c.StartSeconds, 0.1);
+        // The fewest differing bytes, then the nearest on the tape: a header of sync bytes alone (a countdown every
+        // block of a kind repeats) matches every block of that kind, and the copy is the one next to the reading.
         BlockCandidate? best = null;
         int bestDifference = 3;
+        double bestGap = double.PositiveInfinity;
         foreach (var t in trusted)
         {
             double reach = 2 * Math.Max(length, t.EndSeconds - t.StartSeconds) + 0.5;
@@ -378,7 +400,7 @@ public static class BlockPositioner
             // A header cut short is compared over the bytes it has.
             int shared = Math.Min(t.Header.Length, c.Header.Length);
             int difference = 0;
-            for (int i = 0; i < shared && difference < bestDifference; i++)
+            for (int i = 0; i < shared && difference <= bestDifference; i++)
             {
                 if (t.Header[i] != c.Header[i])
                 {
@@ -386,10 +408,12 @@ public static class BlockPositioner
                 }
             }
 
-            if (difference < bestDifference)
+            double gap = Math.Max(t.StartSeconds - c.EndSeconds, c.StartSeconds - t.EndSeconds);
+            if (difference < bestDifference || (difference == bestDifference && best is not null && gap < bestGap))
             {
                 best = t;
                 bestDifference = difference;
+                bestGap = gap;
             }
         }
 

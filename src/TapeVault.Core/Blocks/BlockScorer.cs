@@ -104,13 +104,19 @@ public sealed class BlockScorer
     private readonly IBlockChecksum? _checksum;
     private readonly FormatFamily _family;
     private readonly ConfidenceMap _map;
+    private readonly string? _profileId;
 
-    /// <summary>A scorer for blocks of <paramref name="layout"/> in a format of <paramref name="family"/>, calibrated by <paramref name="map"/> (the embedded <see cref="ConfidenceMap.Default"/> unless given).</summary>
-    public BlockScorer(BlockLayout layout, FormatFamily family, ConfidenceMap? map = null)
+    /// <summary>
+    /// A scorer for blocks of <paramref name="layout"/> in a format of <paramref name="family"/>, calibrated by
+    /// <paramref name="map"/> (the embedded <see cref="ConfidenceMap.Default"/> unless given), by the curves of
+    /// <paramref name="profileId"/> where the map has them.
+    /// </summary>
+    public BlockScorer(BlockLayout layout, FormatFamily family, ConfidenceMap? map = null, string? profileId = null)
     {
         ArgumentNullException.ThrowIfNull(layout);
         _layout = layout;
         _family = family;
+        _profileId = profileId;
         _map = map ?? ConfidenceMap.Default;
         _codec = BlockLayoutCodec.For(layout);
         _checksum = _codec.Checksum;
@@ -301,7 +307,7 @@ public sealed class BlockScorer
         // reading whose check holds may so show high odds: its doubts say why it is not clean, and a second capture
         // that reads the same bytes proves it in the merge.
         double model = Math.Clamp(confidence, 0, 1);
-        confidence = Math.Clamp(_map.Map(_family, ConfidenceMap.GroupOf(status, doubts), model), 0, 1);
+        confidence = Math.Clamp(_map.Map(_profileId, _family, ConfidenceMap.GroupOf(status, doubts), model), 0, 1);
 
         // A failed block whose (damaged) header claims no payload has nothing that could be right, whatever the map says.
         if (_checksum is not null && status != BlockStatus.Clean && payloadEnd == headerBytes)

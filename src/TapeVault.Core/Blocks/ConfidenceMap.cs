@@ -27,8 +27,9 @@ public enum ConfidenceGroup
 /// and <see cref="ConfidenceGroup"/>. Each map is a monotone step function fitted by pool-adjacent-violators
 /// (isotonic regression) on the trust benchmark's readings of tuning seeds only; it is data, stored beside this type
 /// in Calibration/confidence-map.json with the seeds, the reading counts and the command that refits it. Between
-/// steps the map interpolates linearly; a family whose own curve for a group is missing (too few readings) takes the
-/// group's curve pooled over every family, and where that is missing too the model confidence stands.
+/// steps the map interpolates linearly. A built-in profile with enough readings of a group has a curve of its own
+/// (formats of one family differ: a three-class pair format's failed readings are not a one-cycle format's); else
+/// the family's curve stands, else the group's curve pooled over every family, else the model confidence.
 /// </summary>
 public sealed class ConfidenceMap
 {
@@ -78,6 +79,13 @@ public sealed class ConfidenceMap
     /// <summary>The family name of pooled curves.</summary>
     public const string PooledFamily = "all";
 
+    /// <summary>The key of one profile's own curve for a group.</summary>
+    public static string ProfileKey(string profileId, ConfidenceGroup group) =>
+        string.Create(CultureInfo.InvariantCulture, $"{ProfilePrefix}{profileId}/{group}");
+
+    /// <summary>What a profile's own curve's key starts with (family names and profile ids never meet).</summary>
+    public const string ProfilePrefix = "profile:";
+
     public static string FamilyName(FormatFamily family) => family switch
     {
         FormatFamily.PulseWidth => "pulse-width",
@@ -87,9 +95,14 @@ public sealed class ConfidenceMap
     };
 
     /// <summary>The calibrated confidence of a reading of <paramref name="family"/> in <paramref name="group"/> whose model said <paramref name="model"/>.</summary>
-    public double Map(FormatFamily family, ConfidenceGroup group, double model)
+    public double Map(FormatFamily family, ConfidenceGroup group, double model) => Map(null, family, group, model);
+
+    /// <summary>As <see cref="Map(FormatFamily, ConfidenceGroup, double)"/>, by <paramref name="profileId"/>'s own curve where the map has one.</summary>
+    public double Map(string? profileId, FormatFamily family, ConfidenceGroup group, double model)
     {
-        if (!_curves.TryGetValue(Key(family, group), out var curve) && !_curves.TryGetValue(PooledKey(group), out curve))
+        if ((profileId is null || !_curves.TryGetValue(ProfileKey(profileId, group), out var curve))
+            && !_curves.TryGetValue(Key(family, group), out curve)
+            && !_curves.TryGetValue(PooledKey(group), out curve))
         {
             return model;
         }

@@ -30,38 +30,20 @@ public sealed record MergeOptions
     public int MaximumTrials { get; init; } = 4096;
 
     /// <summary>
-    /// The least chance that a stream byte read by one capture is wrong, whatever its decision margins say; and the
-    /// least chance for a byte that two captures or more read alike. A decoder's per-byte odds do not see a
-    /// character framed on a false start bit after a dropout (its bits are then read cleanly, one bit off), so
-    /// without a floor a long stream claims more certainty than it has. The defaults were fitted on synthetic tapes
-    /// (seeds 1–4 of the benchmark's recovery corpus, `dotnet run --project tests/TapeVault.Bench -- calibration`)
-    /// by the smallest expected calibration error; the benchmark reports the error on tapes of seeds 101 onwards.
+    /// The least chance that a stream byte one capture read is wrong, whatever its decision margins say (a character
+    /// framed one bit off reads cleanly); captures that read a byte alike are all wrong only if each is, so for k of
+    /// them the floor is this to the power k. The default is <see cref="BlockScorer.UnseenByteError"/>, the floor every
+    /// unchecked byte gets from the block scorer.
     /// </summary>
     public double StreamByteErrorFloor { get; init; } = BlockScorer.UnseenByteError;
 
-    /// <inheritdoc cref="StreamByteErrorFloor"/>
-    public double StreamAgreedByteErrorFloor { get; init; } = 2e-4;
-
     /// <summary>
     /// The factor on the confidence of a stream segment that resumes after bytes no capture kept, for readings that
-    /// resume after a dropout framed on a false start bit more often than their margins show. Fitted with the floors
-    /// above: 1 since the FSK decoder takes a start bit after a loss of signal only on the character grid it kept
-    /// before (0.1 was the fit while it took any fall to space).
+    /// resume after a dropout framed on a false start bit more often than their margins show: 1 since the FSK decoder
+    /// takes a start bit after a loss of signal only on the character grid it kept before, and the characters at the
+    /// edge of what each capture read carry their own doubt (StreamMerge.EdgeCharacterError).
     /// </summary>
     public double StreamAfterGapFactor { get; init; } = 1;
-
-    /// <summary>
-    /// The most a stream segment may claim when some of its bytes one capture alone read, and when every byte was
-    /// read alike by two captures or more. Nothing checks a stream: a segment goes wrong as a whole (a character
-    /// invented at the edge of a dropout, a stretch framed a bit off, a byte lost between two slots) far more often
-    /// than its bytes' margins show, and on damage drawn from wide ranges (the trust benchmark's kcs-1200 tapes of
-    /// seeds 100–129, below the seeds it reports on) segments one capture carried were right 45 % of the time at
-    /// every confidence their bytes gave, and segments two captures agreed on 93 %. Fitted there, measured on others.
-    /// </summary>
-    public double StreamLoneSegmentCeiling { get; init; } = 0.45;
-
-    /// <inheritdoc cref="StreamLoneSegmentCeiling"/>
-    public double StreamAgreedSegmentCeiling { get; init; } = 0.93;
 
     /// <summary>The time the image records as its making; null for the clock's now.</summary>
     public DateTimeOffset? CreatedUtc { get; init; }

@@ -11,11 +11,29 @@ namespace TapeVault.Core.Merge;
 /// A slot survives only where its vote is more likely right than not, and clearly so where a capture that read
 /// that stretch of tape did not see it: a byte that framing invented inside one pass's dropout is neither.
 /// Where no capture kept a byte the stream is split and the gap listed as missing, never closed up.
+/// <para>
+/// A segment's confidence is the probability that its whole payload is right: the product over its characters of
+/// each one's vote, where every capture's reading of a character may be wrong in a way no margin shows
+/// (<see cref="MergeOptions.StreamByteErrorFloor"/>) and the first and last character of what a capture read (where its
+/// signal began or broke off: tone dying away, the edge of a dropout, a start with no lead-in) may be one it invented
+/// or framed off (<see cref="EdgeCharacterError"/>), and so may the character at each end of a segment, beside bytes
+/// no capture kept or at its stretch's end. Independent captures that read a character alike are all wrong
+/// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
+/// never lowers it, and a segment one capture alone carried claims what its ends allow.
+/// </para>
 /// </summary>
 internal sealed class StreamMerge
 {
     /// <summary>The vote a byte needs when some capture read that stretch of tape and did not see it.</summary>
     private const double LoneByteProbability = 0.9;
+
+    /// <summary>
+    /// The chance that the character at either end of one capture's reading (where its signal began or broke off)
+    /// is not the written one: invented from the tone dying away or the edge of a dropout, or framed on a false
+    /// start bit. Estimated by maximum likelihood on the trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds
+    /// 1000–1051 (segments one capture alone carried: 0.15 at each end); the benchmark reports on seeds from 20000.
+    /// </summary>
+    public const double EdgeCharacterError = 0.15;
 
     private readonly IReadOnlyList<MergePass> _passes;
     private readonly PassTimeline[] _timelines;
@@ -31,7 +49,7 @@ internal sealed class StreamMerge
         _bitsPerCharacter = Math.Max(1, bitsPerCharacter);
     }
 
-    private readonly record struct StreamByte(double Time, byte Value, float Error, int Pass, int Reader, int Candidate, int Index);
+    private readonly record struct StreamByte(double Time, byte Value, float Error, int Pass, int Reader, int Candidate, int Index, bool Edge);
 
     private sealed class Slot
     {
@@ -42,6 +60,12 @@ internal sealed class StreamMerge
         public byte Value { get; set; }
 
         public double Probability { get; set; }
+
+        /// <summary>The chance the slot holds the written character, its readers' edge doubt counted (<see cref="EdgeCharacterError"/>).</summary>
+        public double Confidence { get; set; }
+
+        /// <summary>The same where the slot ends a segment (beside bytes no capture kept, or the end of its stretch): every reader's character there counts as one at an edge.</summary>
+        public double EndConfidence { get; set; }
 
         public bool Unanimous { get; set; }
     }
@@ -133,7 +157,7 @@ internal sealed class StreamMerge
                     }
 
                     sinceBroken = c.ByteErrorOdds[i] >= 0.5f ? 0 : sinceBroken == int.MaxValue ? int.MaxValue : sinceBroken + 1;
-                    bytes.Add(new StreamByte(_timelines[p].Map(c.ByteSeconds[i]), c.Payload[i], error, p, r, ci, i));
+                    bytes.Add(new StreamByte(_timelines[p].Map(c.ByteSeconds[i]), c.Payload[i], error, p, r, ci, i, i == 0 || i == c.Payload.Length - 1));
                 }
 
                 // A capture counts as reading the tape a little beyond its first and last characters: a byte just past
@@ -166,10 +190,16 @@ internal sealed class StreamMerge
         {
             int covering = spans.Where(s => s.Start <= slot.Centre && slot.Centre <= s.End).Select(s => s.Pass).Distinct().Count();
             int supporting = slot.Bytes.Select(x => x.Pass).Distinct().Count();
-            Vote(slot);
+            (slot.Value, slot.Probability) = Vote(slot, edges: false);
+            slot.Unanimous = slot.Bytes.TrueForAll(x => x.Value == slot.Value);
+
+            // Each capture that read the value may be wrong in a way no margin shows; they are all wrong alike only if
+            // each is. The slot's confidence counts its readers' edge doubt too (the value stays the plain vote's).
             int alike = slot.Bytes.Where(x => x.Value == slot.Value).Select(x => x.Pass).Distinct().Count();
-            double floor = alike >= 2 ? _options.StreamAgreedByteErrorFloor : _options.StreamByteErrorFloor;
+            double floor = Math.Pow(_options.StreamByteErrorFloor, Math.Max(1, alike));
             slot.Probability = Math.Min(slot.Probability, 1 - floor);
+            slot.Confidence = Math.Min(Vote(slot, edges: true, of: slot.Value).Probability, slot.Probability);
+            slot.EndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, everyReaderAtEdge: true).Probability, slot.Confidence);
 
             // A byte that other captures reading this stretch did not see must be a confident one.
             if (slot.Probability > (supporting < covering ? LoneByteProbability : 0.5))
@@ -217,9 +247,11 @@ internal sealed class StreamMerge
 
     /// <summary>
     /// P(value | readings) with a uniform prior over the 256 values: each capture's likelihood of a value is the mean
-    /// over its settings of (1 − e) where the setting read that value and e / 255 where it read another.
+    /// over its settings of (1 − e) where the setting read that value and e / 255 where it read another. With
+    /// <paramref name="edges"/>, a reading's first and last character count as no surer than <see cref="EdgeCharacterError"/>.
+    /// Returns the likeliest value and its probability, or <paramref name="of"/>'s probability where given.
     /// </summary>
-    private static void Vote(Slot slot)
+    private static (byte Value, double Probability) Vote(Slot slot, bool edges, byte? of = null, bool everyReaderAtEdge = false)
     {
         var values = slot.Bytes.Select(b => b.Value).Distinct().ToArray();
         var logLikelihood = new double[values.Length + 1];
@@ -231,7 +263,8 @@ internal sealed class StreamMerge
                 double sum = 0;
                 foreach (var r in readings)
                 {
-                    sum += v < values.Length && r.Value == values[v] ? 1 - r.Error : r.Error / 255.0;
+                    double error = edges && (r.Edge || everyReaderAtEdge) ? Math.Max(r.Error, EdgeCharacterError) : r.Error;
+                    sum += v < values.Length && r.Value == values[v] ? 1 - error : error / 255.0;
                 }
 
                 logLikelihood[v] += Math.Log(sum / readings.Count);
@@ -249,15 +282,13 @@ internal sealed class StreamMerge
         int best = 0;
         for (int v = 1; v < values.Length; v++)
         {
-            if (logLikelihood[v] > logLikelihood[best])
+            if (of is { } value ? values[v] == value : logLikelihood[v] > logLikelihood[best])
             {
                 best = v;
             }
         }
 
-        slot.Value = values[best];
-        slot.Probability = Math.Exp(logLikelihood[best] - max) / total;
-        slot.Unanimous = values.Length == 1;
+        return (values[best], Math.Exp(logLikelihood[best] - max) / total);
     }
 
     private List<ImageBlock> Segments(List<Slot> slots, double character)
@@ -321,7 +352,15 @@ internal sealed class StreamMerge
     {
         var payload = slots.Select(s => s.Value).ToImmutableArray();
         int agreeing = slots.Count == 0 ? 0 : slots.Min(s => s.Bytes.Where(b => b.Value == s.Value).Select(b => b.Pass).Distinct().Count());
-        double logConfidence = slots.Sum(s => Math.Log(s.Probability));
+        // A segment's ends lie beside bytes no capture kept (or at its stretch's end): whatever each reader's own
+        // reading did there, the character at a segment's end is doubted as one at an edge.
+        double logConfidence = 0;
+        for (int i = 0; i < slots.Count; i++)
+        {
+            double p = i == 0 || i == slots.Count - 1 ? slots[i].EndConfidence : slots[i].Confidence;
+            logConfidence += Math.Log(Math.Max(p, 1e-300));
+        }
+
 
         // Provenance: per capture, the reading that gave most of the winning bytes; the capture that gave most first.
         var winning = slots.SelectMany(s => s.Bytes.Where(b => b.Value == s.Value)).ToList();
@@ -346,9 +385,7 @@ internal sealed class StreamMerge
             // same characters on the same false start bit): a stream is voted, never clean; its confidence and
             // agreeing captures say how far to trust it.
             Status = RecoveryStatus.Voted,
-            Confidence = Math.Min(
-                Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1),
-                agreeing >= 2 ? _options.StreamAgreedSegmentCeiling : _options.StreamLoneSegmentCeiling),
+            Confidence = Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1),
             Header = [],
             Payload = payload,
             Sources = sources,

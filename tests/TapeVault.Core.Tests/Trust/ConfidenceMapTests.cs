@@ -38,6 +38,21 @@ public sealed partial class ConfidenceMapTests
         Assert.Equal(0.31, map.Map(FormatFamily.Biphase, ConfidenceGroup.Unchecked, 0.31), 9);
     }
 
+    [Fact]
+    public void A_profile_with_a_curve_of_its_own_takes_it_and_other_profiles_of_its_family_take_the_familys()
+    {
+        // Formats of one family differ: a three-class pair format's failed readings are not a one-cycle format's.
+        var map = ConfidenceMap.Parse("""
+            { "curves": { "pulse-width/Broken": { "readings": 900, "x": [0.1], "y": [0.09] },
+                          "profile:three-class-pairs/Broken": { "readings": 500, "x": [0.1], "y": [0.01] } } }
+            """);
+
+        Assert.Equal(0.01, map.Map("three-class-pairs", FormatFamily.PulseWidth, ConfidenceGroup.Broken, 0.1), 9);
+        Assert.Equal(0.09, map.Map("one-cycle-bits", FormatFamily.PulseWidth, ConfidenceGroup.Broken, 0.1), 9);
+        Assert.Equal(0.09, map.Map(null, FormatFamily.PulseWidth, ConfidenceGroup.Broken, 0.1), 9);
+        Assert.Equal("profile:three-class-pairs/Broken", ConfidenceMap.ProfileKey("three-class-pairs", ConfidenceGroup.Broken));
+    }
+
     [Theory]
     [InlineData("""{ "curves": { "fsk/Clean": { "readings": 400, "x": [0.5, 0.4], "y": [0.1, 0.2] } } }""")]
     [InlineData("""{ "curves": { "fsk/Clean": { "readings": 400, "x": [0.4, 0.5], "y": [0.3, 0.2] } } }""")]

@@ -46,6 +46,30 @@ public sealed class PositionsMisreadTests
     }
 
     [Fact]
+    public void Readings_cut_short_before_their_payload_join_the_place_they_start_at_even_when_misread_alike()
+    {
+        // The capture ends inside block 5: two settings read its header and part of its payload; two settings that do
+        // not suit the capture garble the header alike (number 77) and stop before any payload byte. Seen on the
+        // three-class pair format at the end of a 30-minute capture: the garbled pair made positions of their own.
+        var written = Readings.Written(Profile, 5);
+        var garbled = (byte[])written.Clone();
+        garbled[0] = 77;
+        var readings = new[]
+        {
+            FailedReading(4, 1.500, "s0"),
+            Readings.Of(Profile, written, 3.000, 0, "s0", truncateTo: 20),
+            Readings.Of(Profile, written, 3.000, 0, "s1", truncateTo: 20),
+            Readings.Of(Profile, garbled, 3.000, 0, "s2", truncateTo: 0),
+            Readings.Of(Profile, garbled, 3.000, 0, "s3", truncateTo: 0),
+        };
+
+        var placed = BlockPositioner.Place(readings);
+
+        // Two blocks began on this stretch of tape, so two positions (before, the garbled pair made a third).
+        Assert.Equal(2, placed.Select(c => c.Position).Distinct().Count());
+    }
+
+    [Fact]
     public void A_misread_header_alone_at_its_place_is_still_a_position()
     {
         // Nothing else read block 6's place: its garbled reading is the only evidence of a block there.
