@@ -34,6 +34,9 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
     /// </summary>
     public const double RareClassShare = 0.0005;
 
+    /// <summary>How far (as a log ratio, about 8 %) a cycle may lie from its class's centre to count as close to it.</summary>
+    private const double CloseRatio = 0.077;
+
     public string Family => "pulse-width";
 
     public FamilyScore Score(StretchSurvey survey)
@@ -69,7 +72,16 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             }
 
             var symbols = IntervalClusters.Classify(cycles, clusters);
-            double share = (double)symbols.Count(s => s >= 0) / Math.Max(1, symbols.Length);
+
+            // Cycles close to their class's centre: a setting that measures from the other edge than the format's
+            // reads a pair of unequal classes as in-between lengths, which wide groups still hold but loosely.
+            int close = 0;
+            for (int i = 0; i < symbols.Length; i++)
+            {
+                close += symbols[i] >= 0 && Math.Abs(Math.Log(cycles[i] / clusters[symbols[i]].Seconds)) < CloseRatio ? 1 : 0;
+            }
+
+            double share = (double)close / Math.Max(1, symbols.Length);
             if (best is null || share > best.Value.Share)
             {
                 best = (setting, cycles, clusters, symbols, share);
@@ -131,6 +143,12 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         if (blocks.Count == 0)
         {
             return null;
+        }
+
+        // Bits as pairs of pulses with a marker before every byte: a structure of its own, read by PulsePairs.
+        if (!gapped && PulsePairs.Read(blocks, classesFound.Count, leadIn, cancellation) is { } pairs)
+        {
+            return ProposePairs(pairs, chosen.Setting, chosen.Share, classesFound, leadIn, leadRuns, blocks.Count);
         }
 
         // The bit classes: the two commonest inside blocks.
@@ -216,13 +234,160 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         return proposal;
     }
 
+    /// <summary>The sections and findings of a reading of pulse pairs with byte markers (<see cref="PulsePairs"/>).</summary>
+    private static FamilyProposal ProposePairs(PairReading r, DetectorSetting setting, double grouped, List<IntervalCluster> classesFound, int leadIn, List<(int Class, int Start, int Length)> leadRuns, int blockCount)
+    {
+        var used = new SortedSet<int> { leadIn, r.Marker, r.MarkerSecond, r.Zero.First, r.Zero.Second, r.One.First, r.One.Second };
+        if (r.EndSecond is { } e)
+        {
+            used.Add(e);
+        }
+
+        var kept = used.ToList();
+        var keptNames = kept.Count < ClassNames.Length ? ClassNames[kept.Count] : [.. Enumerable.Range(1, kept.Count).Select(i => $"class-{i}")];
+        string Name(int c) => keptNames[kept.IndexOf(c)];
+        JsonArray Sequence(params int[] classes) => new([.. classes.Select(c => (JsonNode)JsonValue.Create(Name(c))!)]);
+
+        var proposal = new FamilyProposal();
+        int shortestLeadIn = leadRuns.Min(x => x.Length);
+        int minimum = Math.Clamp((int)(0.25 * shortestLeadIn), 8, MostLeadIn);
+        var markers = new JsonObject { ["beforeByte"] = Sequence(r.Marker, r.MarkerSecond) };
+        if (r.EndSecond is { } end)
+        {
+            markers["endOfBlock"] = Sequence(r.Marker, end);
+        }
+
+        proposal.Sections["pulseWidth"] = new JsonObject
+        {
+            ["classes"] = new JsonArray([.. kept.Select(i => (JsonNode)new JsonObject { ["name"] = Name(i), ["microseconds"] = Math.Round(classesFound[i].Seconds * 1e6, 1) })]),
+            ["zero"] = Sequence(r.Zero.First, r.Zero.Second),
+            ["one"] = Sequence(r.One.First, r.One.Second),
+            ["leadIn"] = new JsonObject { ["class"] = Name(leadIn), ["minimumCount"] = minimum },
+            ["markers"] = markers,
+        };
+        string order = r.Order == BitOrder.LsbFirst ? "lsb-first" : "msb-first";
+        string parity = r.Parity.ToString().ToLowerInvariant();
+        proposal.Sections["framing"] = new JsonObject { ["dataBits"] = r.DataBits, ["bitOrder"] = order, ["startBits"] = string.Empty, ["stopBits"] = string.Empty, ["parity"] = parity };
+
+        var k = r.Kinds;
+        var sync = new JsonObject
+        {
+            ["name"] = "sync",
+            ["bytes"] = k.SyncBytes,
+            ["role"] = "sync",
+            ["expect"] = new JsonArray([.. k.SyncPerCopy.Select(v => (JsonNode)JsonValue.Create(BlockKindSearch.Hex(v))!)]),
+        };
+        var header = new JsonArray(sync.DeepClone());
+        var covered = new JsonArray();
+        var fields = new List<(int Offset, int Bytes, JsonObject Node)>();
+        var length = k.Length;
+        if (length.IsAddressPair)
+        {
+            fields.Add((length.Offset, 2, new JsonObject { ["name"] = "start", ["bytes"] = 2, ["endian"] = length.BigEndian ? "big" : "little" }));
+            fields.Add((length.EndOffset!.Value, 2, new JsonObject { ["name"] = "end", ["bytes"] = 2, ["endian"] = length.BigEndian ? "big" : "little" }));
+        }
+        else
+        {
+            var node = new JsonObject { ["name"] = "length", ["bytes"] = length.Bytes };
+            if (length.Bytes > 1)
+            {
+                node["endian"] = length.BigEndian ? "big" : "little";
+            }
+
+            fields.Add((length.Offset, length.Bytes, node));
+        }
+
+        if (k.Name is { } nameField)
+        {
+            fields.Add((nameField.Offset, nameField.Bytes, new JsonObject { ["name"] = "name", ["bytes"] = nameField.Bytes, ["role"] = "file-name" }));
+        }
+
+        int at = 0;
+        foreach (var (offset, bytes, node) in fields.OrderBy(f => f.Offset))
+        {
+            if (offset > at)
+            {
+                header.Add(new JsonObject { ["name"] = $"field-{at}", ["bytes"] = offset - at });
+                covered.Add($"field-{at}");
+            }
+
+            header.Add(node);
+            covered.Add(node["name"]!.GetValue<string>());
+            at = offset + bytes;
+        }
+
+        if (k.HeaderBodyBytes > at)
+        {
+            header.Add(new JsonObject { ["name"] = $"field-{at}", ["bytes"] = k.HeaderBodyBytes - at });
+            covered.Add($"field-{at}");
+        }
+
+        string endian = k.ChecksumBigEndian ? "big" : "little";
+        var payloadLength = length.IsAddressPair
+            ? new JsonObject { ["kind"] = "header", ["start"] = "start", ["end"] = "end", ["endIs"] = length.InclusiveEnd ? "inclusive" : "exclusive" }
+            : new JsonObject { ["kind"] = "header", ["field"] = "length" };
+        proposal.Sections["layout"] = new JsonObject
+        {
+            ["copies"] = k.Copies,
+            ["kinds"] = new JsonArray(
+                new JsonObject
+                {
+                    ["name"] = "header",
+                    ["header"] = header,
+                    ["payloadBytes"] = 0,
+                    ["checksum"] = new JsonObject { ["algorithm"] = k.Checksum.Name, ["covers"] = covered, ["endian"] = endian },
+                },
+                new JsonObject
+                {
+                    ["name"] = "data",
+                    ["header"] = new JsonArray(sync.DeepClone()),
+                    ["payloadLength"] = payloadLength,
+                    ["maximumPayloadBytes"] = 65536,
+                    ["checksum"] = new JsonObject { ["algorithm"] = k.Checksum.Name, ["covers"] = new JsonArray("payload"), ["endian"] = endian },
+                }),
+        };
+
+        string held = $"holds after the sync on {k.BlocksHolding} of {k.BlocksTried} blocks read";
+        proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select(i => $"{Name(i)} {Us(classesFound[i].Seconds)} µs")), 0.9,
+            $"groups of cycle lengths through setting {setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * grouped, "0.0")} % of cycles fall in one; lengths as the tape plays");
+        proposal.Measured("pulseWidth.leadIn.class", Name(leadIn), 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(x => x.Length)} {Name(leadIn)} cycles");
+        proposal.Measured("pulseWidth.leadIn.minimumCount", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortestLeadIn} cycles)");
+        proposal.Measured("pulseWidth.markers.beforeByte", $"{Name(r.Marker)} {Name(r.MarkerSecond)}", 0.9,
+            $"{Name(r.Marker)} comes every {2 + (2 * r.FrameBits)} pulses in {F(100 * r.MarkerShare, "0")} % of its places, {Name(r.MarkerSecond)} after it: a marker pair before each of {r.Frames} frames of {r.FrameBits} bit pairs");
+        if (r.EndSecond is { } endClass)
+        {
+            proposal.Measured("pulseWidth.markers.endOfBlock", $"{Name(r.Marker)} {Name(endClass)}", 0.85, $"after the last marker of most blocks {Name(endClass)} follows instead of {Name(r.MarkerSecond)}");
+        }
+
+        string bitEvidence = $"{F(100 * r.PairShare, "0.0")} % of the pairs in frames are {Name(r.Zero.First)} {Name(r.Zero.Second)} or {Name(r.One.First)} {Name(r.One.Second)}; "
+            + (r.Told ? "this way round the check holds and the header's text reads (the other way complements every byte)" : "which is 0 is not told by the check or by text");
+        proposal.Measured("pulseWidth.zero", $"{Name(r.Zero.First)} {Name(r.Zero.Second)}", r.Told ? 0.9 : 0.5, bitEvidence);
+        proposal.Measured("pulseWidth.one", $"{Name(r.One.First)} {Name(r.One.Second)}", r.Told ? 0.9 : 0.5, bitEvidence);
+        proposal.Measured("framing.parity", parity, r.Parity == Parity.None ? 0.6 : 0.9, $"{F(100 * r.ParityShare, "0.0")} % of frames of {r.FrameBits} bits have {(r.Parity == Parity.Even ? "an even" : "an odd")} number of ones");
+        proposal.Measured("framing.dataBits", F(r.DataBits), 0.9, $"{r.FrameBits} bit pairs between markers" + (r.Parity == Parity.None ? string.Empty : ", the last a parity bit"));
+        proposal.Measured("framing.startBits", "''", 0.9, "the marker pair frames each byte; no start or stop bits are left over between markers");
+        proposal.Measured("framing.stopBits", "''", 0.9, "as for the start bits");
+        proposal.Measured("framing.bitOrder", order, r.Told ? 0.85 : 0.5, r.Told ? "the header's text reads in this order (an XOR holds in both)" : "no text tells the order, and an XOR holds in both");
+        proposal.Measured("layout.checksum", $"{k.Checksum.Name}, {endian}-endian, over what follows the sync", 0.97, held);
+        proposal.Measured("layout.header", $"sync {k.SyncBytes} bytes ({string.Join(" / ", k.SyncPerCopy.Select(BlockKindSearch.Hex))})", 0.9,
+            $"every block begins with these bytes{(k.SyncPerCopy.Count > 1 ? ", one value for each copy" : string.Empty)}, and the check holds on what follows");
+        proposal.Measured("layout.copies", F(k.Copies), k.CopiesShare >= 0.6 ? 0.9 : 0.6, $"{F(100 * k.CopiesShare, "0")} % of the blocks read come in runs of {k.Copies} alike after the sync");
+        proposal.Measured("layout.kinds", $"header ({k.HeaderBodyBytes} bytes after the sync), data", 0.85,
+            $"{k.Files} times a block of {k.HeaderBodyBytes + k.Checksum.Width} bytes after the sync is followed by one of another length, which "
+            + (length.IsAddressPair ? $"its bytes {length.Offset}–{length.Offset + 3} give as start and {(length.InclusiveEnd ? "inclusive" : "exclusive")} end address, {(length.BigEndian ? "big" : "little")}-endian" : $"its bytes {length.Offset}–{length.Offset + length.Bytes - 1} give as a length")
+            + (k.Name is { } n ? $"; bytes {n.Offset}–{n.Offset + n.Bytes - 1} are printable text in every header block (the name)" : string.Empty)
+            + "; other header bytes' meaning is not known (written without a role)");
+        proposal.Notes.Add($"Read through detector setting {setting.Name}: {blockCount} blocks after lead-ins, bits as pairs of pulses with a marker before every byte.");
+        return proposal;
+    }
+
     /// <summary>Neighbouring classes closer than the profile language allows (25 %) are one class: the larger keeps its place.</summary>
     private static List<IntervalCluster> Separate(List<IntervalCluster> clusters)
     {
         var result = new List<IntervalCluster>();
         foreach (var cluster in clusters)
         {
-            if (result.Count > 0 && cluster.Seconds < result[^1].Seconds * 1.3)
+            if (result.Count > 0 && cluster.Seconds < result[^1].Seconds * 1.25)
             {
                 if (cluster.Count > result[^1].Count)
                 {
