@@ -25,7 +25,8 @@ public sealed record KindsFinding(
     int HeaderBodyBytes,
     (int Offset, int Bytes)? Name,
     LengthSource Length,
-    int Files)
+    int Files,
+    bool LengthApproximate = false)
 {
     public int SyncBytes => SyncPerCopy[0].Length;
 }
@@ -89,21 +90,50 @@ public static class BlockKindSearch
             }
 
             var kinds = Kinds(distinct, c.Checksum.Width);
-            if (Environment.GetEnvironmentVariable("TAPEVAULT_DRAFT_DEBUG") is not null)
+            bool approximate = false;
+            if (kinds is null)
             {
-                Console.Error.WriteLine($"sync {sync} check {c.Checksum.Name} holding {holding.Count} distinct {string.Join(",", distinct.Select(d => d.Length))} kinds {kinds}");
-                foreach (var d in distinct.Where(d => d.Length < 64))
+                // No data block held its check: the header blocks that did, and the length of the block read after
+                // each (its bytes damaged, its length about right), give where the length is, but not to the byte.
+                var after = new List<byte[]>();
+                int headerLength = holding.GroupBy(h => h.Body.Length).OrderByDescending(g => g.Count()).First().Key;
+                for (int i = 0; i < usable.Count; i++)
                 {
-                    Console.Error.WriteLine(Convert.ToHexString(d));
+                    var body = usable[i].Length > sync ? usable[i][sync..] : [];
+                    if (body.Length == headerLength && holding.Any(h => h.Body.AsSpan().SequenceEqual(body)))
+                    {
+                        int j = i + 1;
+                        while (j < usable.Count && usable[j].Length - sync == headerLength)
+                        {
+                            j++;
+                        }
+
+                        // The longest of the blocks up to the next header block: its copies lose frames to damage.
+                        int longest = j;
+                        for (int m = j; m < usable.Count && usable[m].Length - sync != headerLength; m++)
+                        {
+                            longest = usable[m].Length > usable[longest].Length ? m : longest;
+                        }
+
+                        if (j < usable.Count && (after.Count == 0 || !after[^2].AsSpan().SequenceEqual(body)))
+                        {
+                            after.Add(body);
+                            after.Add(usable[longest][sync..]);
+                        }
+                    }
                 }
+
+                kinds = Kinds(after, c.Checksum.Width, 3);
+                approximate = kinds is not null;
             }
+
 
             if (kinds is null)
             {
                 return null;
             }
 
-            return new KindsFinding(perCopy ?? [values[0]], copies, share, c.Checksum, c.BigEndian, usable.Count, holding.Count, kinds.Value.HeaderBody, kinds.Value.Name, kinds.Value.Length, kinds.Value.Files);
+            return new KindsFinding(perCopy ?? [values[0]], copies, share, c.Checksum, c.BigEndian, usable.Count, holding.Count, kinds.Value.HeaderBody, kinds.Value.Name, kinds.Value.Length, kinds.Value.Files, approximate);
         }
 
         return null;
@@ -225,7 +255,7 @@ public static class BlockKindSearch
     /// A header block of one length followed by a data block of another, file after file: the header's size, its
     /// name field and where it gives the data's length (which must hold for every header and data block read in turn).
     /// </summary>
-    private static (int HeaderBody, (int, int)? Name, LengthSource Length, int Files)? Kinds(List<byte[]> distinct, int checkBytes)
+    private static (int HeaderBody, (int, int)? Name, LengthSource Length, int Files)? Kinds(List<byte[]> distinct, int checkBytes, int tolerance = 0)
     {
         var byLength = distinct.GroupBy(b => b.Length).Where(g => g.Count() >= 2).OrderByDescending(g => g.Count()).ToList();
         foreach (var group in byLength)
@@ -248,7 +278,7 @@ public static class BlockKindSearch
             // One header and data block read in turn prove a length only in a field of two bytes or more (a
             // one-byte field matches by chance too often).
             int body = length - checkBytes;
-            var source = LengthIn(pairs, body);
+            var source = LengthIn(pairs, body, tolerance);
             if (source is null || (pairs.Count == 1 && source.Bytes < 2))
             {
                 continue;
@@ -260,8 +290,12 @@ public static class BlockKindSearch
         return null;
     }
 
-    private static LengthSource? LengthIn(List<(byte[] Header, int Payload)> pairs, int body)
+    private static LengthSource? LengthIn(List<(byte[] Header, int Payload)> pairs, int body, int tolerance)
     {
+        // Exact: every pair. Approximate (damaged data blocks): within a few bytes and a per cent, in half the pairs.
+        int needed = tolerance == 0 ? pairs.Count : Math.Max(1, (pairs.Count + 1) / 2);
+        int Slack(int payload) => tolerance == 0 ? 0 : tolerance + (payload / 100);
+
         // Start and end addresses side by side first: with a start of 0 an exclusive end is also a length, and the
         // address pair says what the header holds.
         foreach (bool big in new[] { false, true })
@@ -270,7 +304,7 @@ public static class BlockKindSearch
             {
                 foreach (bool inclusive in new[] { true, false })
                 {
-                    if (pairs.All(p => (long)LayoutSearch.Read(p.Header.AsSpan(offset + 2, 2), big) - LayoutSearch.Read(p.Header.AsSpan(offset, 2), big) + (inclusive ? 1 : 0) == p.Payload))
+                    if (pairs.Count(p => Math.Abs((long)LayoutSearch.Read(p.Header.AsSpan(offset + 2, 2), big) - LayoutSearch.Read(p.Header.AsSpan(offset, 2), big) + (inclusive ? 1 : 0) - p.Payload) <= Slack(p.Payload)) >= needed)
                     {
                         return new LengthSource(offset, 2, big, offset + 2, inclusive);
                     }
@@ -284,7 +318,7 @@ public static class BlockKindSearch
             {
                 for (int offset = 0; offset + width <= body; offset++)
                 {
-                    if (pairs.All(p => LayoutSearch.Read(p.Header.AsSpan(offset, width), big) == p.Payload))
+                    if (pairs.Count(p => Math.Abs(LayoutSearch.Read(p.Header.AsSpan(offset, width), big) - (long)p.Payload) <= Slack(p.Payload)) >= needed && (tolerance == 0 || width == 2))
                     {
                         return new LengthSource(offset, width, big, null, false);
                     }

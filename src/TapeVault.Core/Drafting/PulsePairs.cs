@@ -91,7 +91,6 @@ public static class PulsePairs
             }
         }
 
-        Debug($"marker {marker} spacing {spacing} share {markerShare} blocks {blocks.Count}");
         if (marker < 0)
         {
             return null;
@@ -165,7 +164,6 @@ public static class PulsePairs
             return null;
         }
 
-        Debug($"second {second} end {end} pairs {a} {b} share {pairShare} frames {frames}");
         PairReading? best = null;
         double bestPrintable = -1;
         double runnerUp = -1;
@@ -183,7 +181,6 @@ public static class PulsePairs
                 cancellation.ThrowIfCancellationRequested();
                 var bytes = blocks.Select(block => Bytes(block, marker, second, spacing, zero, one, dataBits, order)).Where(x => x.Length > 0).ToList();
                 var kinds = BlockKindSearch.Search(bytes);
-                Debug($"{zero} {order} {parity} kinds {kinds} first {string.Join(" | ", bytes.Take(6).Select(x => Convert.ToHexString(x.AsSpan(0, Math.Min(14, x.Length))) + "/" + x.Length))}");
                 if (kinds is null)
                 {
                     continue;
@@ -208,14 +205,6 @@ public static class PulsePairs
         return best is null ? null : best with { Told = bestPrintable - runnerUp >= 0.1 };
     }
 
-    private static void Debug(string text)
-    {
-        if (Environment.GetEnvironmentVariable("TAPEVAULT_DRAFT_DEBUG") is not null)
-        {
-            Console.Error.WriteLine(text);
-        }
-    }
-
     /// <summary>Where each frame begins (its marker) in a block: frame after frame at the marker's spacing, from the first marker.</summary>
     public static IEnumerable<int> FrameStarts(int[] block, int marker, int second, int spacing)
     {
@@ -226,8 +215,32 @@ public static class PulsePairs
             at++;
         }
 
-        while (at + spacing <= block.Length && block[at] == marker && block[at + 1] == second)
+        while (at + spacing <= block.Length)
         {
+            if (!(block[at] == marker && block[at + 1] == second))
+            {
+                // A pulse lost or split by damage: the frames go on from the next marker nearby, so that a damaged
+                // block keeps about its length (its check fails all the same).
+                int next = -1;
+                for (int d = 1; d <= spacing + 4 && next < 0; d++)
+                {
+                    foreach (int c in new[] { at - d, at + d })
+                    {
+                        if (c >= 0 && c + spacing <= block.Length && block[c] == marker && block[c + 1] == second && next < 0 && (d <= 3 || c > at))
+                        {
+                            next = c;
+                        }
+                    }
+                }
+
+                if (next < 0)
+                {
+                    yield break;
+                }
+
+                at = next;
+            }
+
             yield return at;
             at += spacing;
         }

@@ -37,6 +37,9 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
     /// <summary>How far (as a log ratio, about 8 %) a cycle may lie from its class's centre to count as close to it.</summary>
     private const double CloseRatio = 0.077;
 
+    /// <summary>What each class costs a setting's fit (see <see cref="Draft"/>).</summary>
+    private const double ClassCost = 0.03;
+
     public string Family => "pulse-width";
 
     public FamilyScore Score(StretchSurvey survey)
@@ -60,8 +63,12 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         ArgumentNullException.ThrowIfNull(survey);
         var stretch = survey.Stretch;
 
-        // Whole cycles: the setting (one edge a cycle) whose intervals group best.
-        (DetectorSetting Setting, double[] Cycles, List<IntervalCluster> Clusters, int[] Symbols, double Share)? best = null;
+        // Whole cycles through each setting that counts one edge a cycle. Two measures of fit: the share of cycles
+        // in a group, and the share close to their group's centre less a little for each group (a setting that
+        // measures from the other edge than the format's reads a pair of unequal classes as in-between lengths,
+        // which wide groups still hold but loosely, and which make tight groups of their own). The best by each is
+        // drafted, then the next; the first reading a check value proves wins, else the first reading.
+        var fits = new List<(DetectorSetting Setting, List<IntervalCluster> Clusters, int[] Symbols, double Grouped, double Close)>();
         foreach (var setting in DetectorBanks.Default.Where(s => s.Edges != EdgeSelection.Both))
         {
             var cycles = IntervalClusters.Intervals(stretch.Edges(setting, cancellation), stretch.SampleRate);
@@ -72,27 +79,46 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             }
 
             var symbols = IntervalClusters.Classify(cycles, clusters);
-
-            // Cycles close to their class's centre: a setting that measures from the other edge than the format's
-            // reads a pair of unequal classes as in-between lengths, which wide groups still hold but loosely.
             int close = 0;
             for (int i = 0; i < symbols.Length; i++)
             {
                 close += symbols[i] >= 0 && Math.Abs(Math.Log(cycles[i] / clusters[symbols[i]].Seconds)) < CloseRatio ? 1 : 0;
             }
 
-            double share = (double)close / Math.Max(1, symbols.Length);
-            if (best is null || share > best.Value.Share)
+            double grouped = (double)symbols.Count(x => x >= 0) / Math.Max(1, symbols.Length);
+            fits.Add((setting, clusters, symbols, grouped, ((double)close / Math.Max(1, symbols.Length)) - (ClassCost * clusters.Count)));
+        }
+
+        var order = new List<int>();
+        foreach (var ranked in new[] { fits.Select((f, i) => (f.Grouped, i)).OrderByDescending(x => x.Grouped), fits.Select((f, i) => (f.Close, i)).OrderByDescending(x => x.Close) })
+        {
+            foreach (var (_, i) in ranked.Take(2))
             {
-                best = (setting, cycles, clusters, symbols, share);
+                if (!order.Contains(i))
+                {
+                    order.Add(i);
+                }
             }
         }
 
-        if (best is not { } chosen)
+        FamilyProposal? first = null;
+        foreach (int i in order.Take(3))
         {
-            return null;
+            var proposal = DraftThrough(fits[i].Setting, fits[i].Clusters, fits[i].Symbols, fits[i].Grouped, cancellation);
+            if (proposal is not null && proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed))
+            {
+                return proposal;
+            }
+
+            first ??= proposal;
         }
 
+        return first;
+    }
+
+    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> clusters, int[] symbols, double grouped, CancellationToken cancellation)
+    {
+        var chosen = (Setting: setting, Clusters: clusters, Symbols: symbols);
         var classesFound = chosen.Clusters;
         var sym = chosen.Symbols;
 
@@ -148,7 +174,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         // Bits as pairs of pulses with a marker before every byte: a structure of its own, read by PulsePairs.
         if (!gapped && PulsePairs.Read(blocks, classesFound.Count, leadIn, cancellation) is { } pairs)
         {
-            return ProposePairs(pairs, chosen.Setting, chosen.Share, classesFound, leadIn, leadRuns, blocks.Count);
+            return ProposePairs(pairs, chosen.Setting, grouped, classesFound, leadIn, leadRuns, blocks.Count);
         }
 
         // The bit classes: the two commonest inside blocks.
@@ -217,7 +243,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         }
 
         proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select(i => $"{names[i]} {Us(classesFound[i].Seconds)} µs")), 0.9,
-            $"groups of cycle lengths through setting {chosen.Setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * chosen.Share, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)"
+            $"groups of cycle lengths through setting {chosen.Setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * grouped, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)"
             + (dropped.Count == 0 ? string.Empty : $"; left out, as no bit, lead-in or sync uses them: {string.Join(", ", dropped.Select(c => $"{Us(c.Seconds)} µs"))}"));
         proposal.Measured("pulseWidth.leadIn.class", names[leadIn], 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(r => r.Length)} {names[leadIn]} cycles");
         proposal.Measured("pulseWidth.leadIn.minimumCount", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortestLeadIn} cycles)");
@@ -230,8 +256,85 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         Layout(proposal, reading.Layout);
         AmbiguousOrder(proposal, reading);
         AbsorbedSync(proposal, reading, "pulseWidth.sync");
+        if (gapped || reading.Sync.Length >= 5)
+        {
+            SyncAsBytes(proposal, reading, leadIn);
+        }
         proposal.Notes.Add($"Read through detector setting {chosen.Setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync, mapping and framing held.");
         return proposal;
+    }
+
+    /// <summary>
+    /// Plain bytes (no start, stop or parity bits) after a sync whose pulses are bits, where the lead-in's pulses
+    /// are bits too: the sync is whole bytes whose first bits the lead-in took (a sync byte that begins with the
+    /// lead-in's bits), so it is written as a sync field of those bytes, which the reader searches for bit by bit,
+    /// lead-in bits included, and which is then part of each block as written. Done where the sync is long (five
+    /// pulses or more) or blocks follow one another after short gaps (where formats write a sync byte); a sync of a
+    /// few pulses after a lead-in stays a class sequence.
+    /// </summary>
+    private static void SyncAsBytes(FamilyProposal proposal, SyncReading reading, int leadIn)
+    {
+        var framing = reading.Framing;
+        int leadBit = reading.Mapping.Bit(leadIn);
+        if (!reading.Layout.HasChecksum || framing.BitsPerByte != framing.DataBits || leadBit < 0 || reading.Sync.Length == 0
+            || reading.Sync.Any(x => reading.Mapping.Bit(x) < 0)
+            || proposal.Sections["layout"] is not JsonObject layout || layout["header"] is not JsonArray header || layout["checksum"] is not JsonObject checksum)
+        {
+            return;
+        }
+
+        int count = (reading.Sync.Length + framing.DataBits - 1) / framing.DataBits;
+        int pad = (count * framing.DataBits) - reading.Sync.Length;
+        var bits = Enumerable.Repeat(leadBit, pad).Concat(reading.Sync.Select(reading.Mapping.Bit)).ToArray();
+        var bytes = new List<byte>();
+        for (int b = 0; b < count; b++)
+        {
+            int value = 0;
+            for (int d = 0; d < framing.DataBits; d++)
+            {
+                value |= bits[(b * framing.DataBits) + d] << framing.DataBitShift(d);
+            }
+
+            bytes.Add((byte)value);
+        }
+
+        // A sync field already there (constant bytes ahead of the check) follows these bytes in one field.
+        string? existing = null;
+        if (header.Count > 0 && header[0]?["role"]?.GetValue<string>() == "sync")
+        {
+            existing = header[0]!["expect"]![0]!.GetValue<string>();
+            header.RemoveAt(0);
+        }
+
+        var all = string.Join(' ', bytes.Select(x => x.ToString("X2", System.Globalization.CultureInfo.InvariantCulture)));
+        all = existing is null ? all : all + " " + existing;
+        int length = all.Split(' ').Length;
+        if (length > 16 || (length > 1 && all.Split(' ').Distinct().Count() == 1))
+        {
+            return;
+        }
+
+        // The check's coverage leaves the sync out: name the fields it covers.
+        if (checksum["covers"] is JsonValue covers && covers.GetValue<string>() == "header-and-payload")
+        {
+            var names = new JsonArray();
+            foreach (var field in header)
+            {
+                names.Add(field!["name"]!.GetValue<string>());
+            }
+
+            names.Add("payload");
+            checksum["covers"] = names;
+        }
+
+        header.Insert(0, new JsonObject { ["name"] = "sync", ["bytes"] = length, ["role"] = "sync", ["expect"] = new JsonArray(all) });
+        ((JsonObject)proposal.Sections["pulseWidth"]!).Remove("sync");
+        int at = proposal.Findings.FindIndex(f => f.Path == "pulseWidth.sync");
+        if (at >= 0)
+        {
+            var f = proposal.Findings[at];
+            proposal.Findings[at] = f with { Value = $"written as the sync field {all}", Evidence = f.Evidence + $"; with {pad} bits of the lead-in before it the sync is {length} whole byte(s), {all}, written as the layout's sync field" };
+        }
     }
 
     /// <summary>The sections and findings of a reading of pulse pairs with byte markers (<see cref="PulsePairs"/>).</summary>
@@ -372,11 +475,12 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         proposal.Measured("layout.header", $"sync {k.SyncBytes} bytes ({string.Join(" / ", k.SyncPerCopy.Select(BlockKindSearch.Hex))})", 0.9,
             $"every block begins with these bytes{(k.SyncPerCopy.Count > 1 ? ", one value for each copy" : string.Empty)}, and the check holds on what follows");
         proposal.Measured("layout.copies", F(k.Copies), k.CopiesShare >= 0.6 ? 0.9 : 0.6, $"{F(100 * k.CopiesShare, "0")} % of the blocks read come in runs of {k.Copies} alike after the sync");
-        proposal.Measured("layout.kinds", $"header ({k.HeaderBodyBytes} bytes after the sync), data", 0.85,
+        proposal.Findings.Add(new DraftFinding("layout.kinds", $"header ({k.HeaderBodyBytes} bytes after the sync), data", k.LengthApproximate, k.LengthApproximate ? 0.5 : 0.85,
+            (k.LengthApproximate ? "no data block read held its check, so the length its header gives is matched only to within a few bytes of the damaged blocks read (which field, and whether the end is inclusive, are guesses): " : string.Empty) +
             $"{k.Files} times a block of {k.HeaderBodyBytes + k.Checksum.Width} bytes after the sync is followed by one of another length, which "
             + (length.IsAddressPair ? $"its bytes {length.Offset}–{length.Offset + 3} give as start and {(length.InclusiveEnd ? "inclusive" : "exclusive")} end address, {(length.BigEndian ? "big" : "little")}-endian" : $"its bytes {length.Offset}–{length.Offset + length.Bytes - 1} give as a length")
             + (k.Name is { } n ? $"; bytes {n.Offset}–{n.Offset + n.Bytes - 1} are printable text in every header block (the name)" : string.Empty)
-            + "; other header bytes' meaning is not known (written without a role)");
+            + "; other header bytes' meaning is not known (written without a role)"));
         proposal.Notes.Add($"Read through detector setting {setting.Name}: {blockCount} blocks after lead-ins, bits as pairs of pulses with a marker before every byte.");
         return proposal;
     }
