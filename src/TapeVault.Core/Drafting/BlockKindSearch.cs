@@ -257,7 +257,9 @@ public static class BlockKindSearch
     /// </summary>
     private static (int HeaderBody, (int, int)? Name, LengthSource Length, int Files)? Kinds(List<byte[]> distinct, int checkBytes, int tolerance = 0)
     {
-        var byLength = distinct.GroupBy(b => b.Length).Where(g => g.Count() >= 2).OrderByDescending(g => g.Count()).ToList();
+        // The header kind's length: the commonest, then the shortest (a header block lost to damage leaves its
+        // file's data block with no header before it, so one header block read may be all there is).
+        var byLength = distinct.GroupBy(b => b.Length).OrderByDescending(g => g.Count()).ThenBy(g => g.Key).ToList();
         foreach (var group in byLength)
         {
             int length = group.Key;

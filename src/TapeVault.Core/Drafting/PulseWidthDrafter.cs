@@ -132,7 +132,9 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         int leadIn = longRuns.GroupBy(r => r.Class).OrderByDescending(g => g.Sum(r => r.Length)).First().Key;
         var leadRuns = longRuns.Where(r => r.Class == leadIn).ToList();
         double median = leadRuns.Select(r => (double)r.Length).Order().ElementAt(leadRuns.Count / 2);
-        int threshold = Math.Max(LeastLeadInCycles, (int)(0.25 * median));
+        // Where blocks follow one another after short gaps, most long runs may be gaps (their median one too): a
+        // lead-in is also a tenth of the longest run at least.
+        int threshold = Math.Max(LeastLeadInCycles, (int)Math.Max(0.25 * median, 0.1 * leadRuns.Max(r => r.Length)));
         leadRuns = [.. leadRuns.Where(r => r.Length >= threshold)];
 
         // Blocks that follow one another after a short run of the lead-in class (a block gap) instead of a lead-in:
