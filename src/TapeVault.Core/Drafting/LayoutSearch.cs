@@ -74,6 +74,9 @@ public static class LayoutSearch
         return list;
     });
 
+    /// <summary>The checksums a search tries: the catalogue's (one of each set of parameters) and a 16-bit additive sum.</summary>
+    internal static IReadOnlyList<IBlockChecksum> Checks => Candidates.Value;
+
     /// <summary>How many of <paramref name="blocks"/> some catalogue checksum holds on: the quick score of a way of reading them.</summary>
     public static LayoutFinding Search(IReadOnlyList<DraftBlock> blocks)
     {

@@ -34,6 +34,12 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
     /// </summary>
     public const double RareClassShare = 0.0005;
 
+    /// <summary>How far (as a log ratio, about 8 %) a cycle may lie from its class's centre to count as close to it.</summary>
+    private const double CloseRatio = 0.077;
+
+    /// <summary>What each class costs a setting's fit (see <see cref="Draft"/>).</summary>
+    private const double ClassCost = 0.03;
+
     public string Family => "pulse-width";
 
     public FamilyScore Score(StretchSurvey survey)
@@ -57,8 +63,12 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         ArgumentNullException.ThrowIfNull(survey);
         var stretch = survey.Stretch;
 
-        // Whole cycles: the setting (one edge a cycle) whose intervals group best.
-        (DetectorSetting Setting, double[] Cycles, List<IntervalCluster> Clusters, int[] Symbols, double Share)? best = null;
+        // Whole cycles through each setting that counts one edge a cycle. Two measures of fit: the share of cycles
+        // in a group, and the share close to their group's centre less a little for each group (a setting that
+        // measures from the other edge than the format's reads a pair of unequal classes as in-between lengths,
+        // which wide groups still hold but loosely, and which make tight groups of their own). The best by each is
+        // drafted, then the next; the first reading a check value proves wins, else the first reading.
+        var fits = new List<(DetectorSetting Setting, List<IntervalCluster> Clusters, int[] Symbols, double Grouped, double Close)>();
         foreach (var setting in DetectorBanks.Default.Where(s => s.Edges != EdgeSelection.Both))
         {
             var cycles = IntervalClusters.Intervals(stretch.Edges(setting, cancellation), stretch.SampleRate);
@@ -69,18 +79,46 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             }
 
             var symbols = IntervalClusters.Classify(cycles, clusters);
-            double share = (double)symbols.Count(s => s >= 0) / Math.Max(1, symbols.Length);
-            if (best is null || share > best.Value.Share)
+            int close = 0;
+            for (int i = 0; i < symbols.Length; i++)
             {
-                best = (setting, cycles, clusters, symbols, share);
+                close += symbols[i] >= 0 && Math.Abs(Math.Log(cycles[i] / clusters[symbols[i]].Seconds)) < CloseRatio ? 1 : 0;
+            }
+
+            double grouped = (double)symbols.Count(x => x >= 0) / Math.Max(1, symbols.Length);
+            fits.Add((setting, clusters, symbols, grouped, ((double)close / Math.Max(1, symbols.Length)) - (ClassCost * clusters.Count)));
+        }
+
+        var order = new List<int>();
+        foreach (var ranked in new[] { fits.Select((f, i) => (f.Grouped, i)).OrderByDescending(x => x.Grouped), fits.Select((f, i) => (f.Close, i)).OrderByDescending(x => x.Close) })
+        {
+            foreach (var (_, i) in ranked.Take(2))
+            {
+                if (!order.Contains(i))
+                {
+                    order.Add(i);
+                }
             }
         }
 
-        if (best is not { } chosen)
+        FamilyProposal? first = null;
+        foreach (int i in order.Take(3))
         {
-            return null;
+            var proposal = DraftThrough(fits[i].Setting, fits[i].Clusters, fits[i].Symbols, fits[i].Grouped, cancellation);
+            if (proposal is not null && proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed))
+            {
+                return proposal;
+            }
+
+            first ??= proposal;
         }
 
+        return first;
+    }
+
+    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> clusters, int[] symbols, double grouped, CancellationToken cancellation)
+    {
+        var chosen = (Setting: setting, Clusters: clusters, Symbols: symbols);
         var classesFound = chosen.Clusters;
         var sym = chosen.Symbols;
 
@@ -94,7 +132,9 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         int leadIn = longRuns.GroupBy(r => r.Class).OrderByDescending(g => g.Sum(r => r.Length)).First().Key;
         var leadRuns = longRuns.Where(r => r.Class == leadIn).ToList();
         double median = leadRuns.Select(r => (double)r.Length).Order().ElementAt(leadRuns.Count / 2);
-        int threshold = Math.Max(LeastLeadInCycles, (int)(0.25 * median));
+        // Where blocks follow one another after short gaps, most long runs may be gaps (their median one too): a
+        // lead-in is also a tenth of the longest run at least.
+        int threshold = Math.Max(LeastLeadInCycles, (int)Math.Max(0.25 * median, 0.1 * leadRuns.Max(r => r.Length)));
         leadRuns = [.. leadRuns.Where(r => r.Length >= threshold)];
 
         // Blocks that follow one another after a short run of the lead-in class (a block gap) instead of a lead-in:
@@ -131,6 +171,12 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         if (blocks.Count == 0)
         {
             return null;
+        }
+
+        // Bits as pairs of pulses with a marker before every byte: a structure of its own, read by PulsePairs.
+        if (!gapped && PulsePairs.Read(blocks, classesFound.Count, leadIn, cancellation) is { } pairs)
+        {
+            return ProposePairs(pairs, chosen.Setting, grouped, classesFound, leadIn, leadRuns, blocks.Count);
         }
 
         // The bit classes: the two commonest inside blocks.
@@ -199,7 +245,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         }
 
         proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select(i => $"{names[i]} {Us(classesFound[i].Seconds)} µs")), 0.9,
-            $"groups of cycle lengths through setting {chosen.Setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * chosen.Share, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)"
+            $"groups of cycle lengths through setting {chosen.Setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * grouped, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)"
             + (dropped.Count == 0 ? string.Empty : $"; left out, as no bit, lead-in or sync uses them: {string.Join(", ", dropped.Select(c => $"{Us(c.Seconds)} µs"))}"));
         proposal.Measured("pulseWidth.leadIn.class", names[leadIn], 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(r => r.Length)} {names[leadIn]} cycles");
         proposal.Measured("pulseWidth.leadIn.minimumCount", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortestLeadIn} cycles)");
@@ -212,7 +258,232 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         Layout(proposal, reading.Layout);
         AmbiguousOrder(proposal, reading);
         AbsorbedSync(proposal, reading, "pulseWidth.sync");
+        if (gapped || reading.Sync.Length >= 5)
+        {
+            SyncAsBytes(proposal, reading, leadIn);
+        }
         proposal.Notes.Add($"Read through detector setting {chosen.Setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync, mapping and framing held.");
+        return proposal;
+    }
+
+    /// <summary>
+    /// Plain bytes (no start, stop or parity bits) after a sync whose pulses are bits, where the lead-in's pulses
+    /// are bits too: the sync is whole bytes whose first bits the lead-in took (a sync byte that begins with the
+    /// lead-in's bits), so it is written as a sync field of those bytes, which the reader searches for bit by bit,
+    /// lead-in bits included, and which is then part of each block as written. Done where the sync is long (five
+    /// pulses or more) or blocks follow one another after short gaps (where formats write a sync byte); a sync of a
+    /// few pulses after a lead-in stays a class sequence.
+    /// </summary>
+    private static void SyncAsBytes(FamilyProposal proposal, SyncReading reading, int leadIn)
+    {
+        var framing = reading.Framing;
+        int leadBit = reading.Mapping.Bit(leadIn);
+        if (!reading.Layout.HasChecksum || framing.BitsPerByte != framing.DataBits || leadBit < 0 || reading.Sync.Length == 0
+            || reading.Sync.Any(x => reading.Mapping.Bit(x) < 0)
+            || proposal.Sections["layout"] is not JsonObject layout || layout["header"] is not JsonArray header || layout["checksum"] is not JsonObject checksum)
+        {
+            return;
+        }
+
+        int count = (reading.Sync.Length + framing.DataBits - 1) / framing.DataBits;
+        int pad = (count * framing.DataBits) - reading.Sync.Length;
+        var bits = Enumerable.Repeat(leadBit, pad).Concat(reading.Sync.Select(reading.Mapping.Bit)).ToArray();
+        var bytes = new List<byte>();
+        for (int b = 0; b < count; b++)
+        {
+            int value = 0;
+            for (int d = 0; d < framing.DataBits; d++)
+            {
+                value |= bits[(b * framing.DataBits) + d] << framing.DataBitShift(d);
+            }
+
+            bytes.Add((byte)value);
+        }
+
+        // A sync field already there (constant bytes ahead of the check) follows these bytes in one field.
+        string? existing = null;
+        if (header.Count > 0 && header[0]?["role"]?.GetValue<string>() == "sync")
+        {
+            existing = header[0]!["expect"]![0]!.GetValue<string>();
+            header.RemoveAt(0);
+        }
+
+        var all = string.Join(' ', bytes.Select(x => x.ToString("X2", System.Globalization.CultureInfo.InvariantCulture)));
+        all = existing is null ? all : all + " " + existing;
+        int length = all.Split(' ').Length;
+        if (length > 16 || (length > 1 && all.Split(' ').Distinct().Count() == 1))
+        {
+            return;
+        }
+
+        // The check's coverage leaves the sync out: name the fields it covers.
+        if (checksum["covers"] is JsonValue covers && covers.GetValue<string>() == "header-and-payload")
+        {
+            var names = new JsonArray();
+            foreach (var field in header)
+            {
+                names.Add(field!["name"]!.GetValue<string>());
+            }
+
+            names.Add("payload");
+            checksum["covers"] = names;
+        }
+
+        header.Insert(0, new JsonObject { ["name"] = "sync", ["bytes"] = length, ["role"] = "sync", ["expect"] = new JsonArray(all) });
+        ((JsonObject)proposal.Sections["pulseWidth"]!).Remove("sync");
+        int at = proposal.Findings.FindIndex(f => f.Path == "pulseWidth.sync");
+        if (at >= 0)
+        {
+            var f = proposal.Findings[at];
+            proposal.Findings[at] = f with { Value = $"written as the sync field {all}", Evidence = f.Evidence + $"; with {pad} bits of the lead-in before it the sync is {length} whole byte(s), {all}, written as the layout's sync field" };
+        }
+    }
+
+    /// <summary>The sections and findings of a reading of pulse pairs with byte markers (<see cref="PulsePairs"/>).</summary>
+    private static FamilyProposal ProposePairs(PairReading r, DetectorSetting setting, double grouped, List<IntervalCluster> classesFound, int leadIn, List<(int Class, int Start, int Length)> leadRuns, int blockCount)
+    {
+        var used = new SortedSet<int> { leadIn, r.Marker, r.MarkerSecond, r.Zero.First, r.Zero.Second, r.One.First, r.One.Second };
+        if (r.EndSecond is { } e)
+        {
+            used.Add(e);
+        }
+
+        var kept = used.ToList();
+        var keptNames = kept.Count < ClassNames.Length ? ClassNames[kept.Count] : [.. Enumerable.Range(1, kept.Count).Select(i => $"class-{i}")];
+        string Name(int c) => keptNames[kept.IndexOf(c)];
+        JsonArray Sequence(params int[] classes) => new([.. classes.Select(c => (JsonNode)JsonValue.Create(Name(c))!)]);
+
+        var proposal = new FamilyProposal();
+        int shortestLeadIn = leadRuns.Min(x => x.Length);
+        int minimum = Math.Clamp((int)(0.25 * shortestLeadIn), 8, MostLeadIn);
+        var markers = new JsonObject { ["beforeByte"] = Sequence(r.Marker, r.MarkerSecond) };
+        if (r.EndSecond is { } end)
+        {
+            markers["endOfBlock"] = Sequence(r.Marker, end);
+        }
+
+        proposal.Sections["pulseWidth"] = new JsonObject
+        {
+            ["classes"] = new JsonArray([.. kept.Select(i => (JsonNode)new JsonObject { ["name"] = Name(i), ["microseconds"] = Math.Round(classesFound[i].Seconds * 1e6, 1) })]),
+            ["zero"] = Sequence(r.Zero.First, r.Zero.Second),
+            ["one"] = Sequence(r.One.First, r.One.Second),
+            ["leadIn"] = new JsonObject { ["class"] = Name(leadIn), ["minimumCount"] = minimum },
+            ["markers"] = markers,
+        };
+        string order = r.Order == BitOrder.LsbFirst ? "lsb-first" : "msb-first";
+        string parity = r.Parity.ToString().ToLowerInvariant();
+        proposal.Sections["framing"] = new JsonObject { ["dataBits"] = r.DataBits, ["bitOrder"] = order, ["startBits"] = string.Empty, ["stopBits"] = string.Empty, ["parity"] = parity };
+
+        var k = r.Kinds;
+        var sync = new JsonObject
+        {
+            ["name"] = "sync",
+            ["bytes"] = k.SyncBytes,
+            ["role"] = "sync",
+            ["expect"] = new JsonArray([.. k.SyncPerCopy.Select(v => (JsonNode)JsonValue.Create(BlockKindSearch.Hex(v))!)]),
+        };
+        var header = new JsonArray(sync.DeepClone());
+        var covered = new JsonArray();
+        var fields = new List<(int Offset, int Bytes, JsonObject Node)>();
+        var length = k.Length;
+        if (length.IsAddressPair)
+        {
+            fields.Add((length.Offset, 2, new JsonObject { ["name"] = "start", ["bytes"] = 2, ["endian"] = length.BigEndian ? "big" : "little" }));
+            fields.Add((length.EndOffset!.Value, 2, new JsonObject { ["name"] = "end", ["bytes"] = 2, ["endian"] = length.BigEndian ? "big" : "little" }));
+        }
+        else
+        {
+            var node = new JsonObject { ["name"] = "length", ["bytes"] = length.Bytes };
+            if (length.Bytes > 1)
+            {
+                node["endian"] = length.BigEndian ? "big" : "little";
+            }
+
+            fields.Add((length.Offset, length.Bytes, node));
+        }
+
+        if (k.Name is { } nameField)
+        {
+            fields.Add((nameField.Offset, nameField.Bytes, new JsonObject { ["name"] = "name", ["bytes"] = nameField.Bytes, ["role"] = "file-name" }));
+        }
+
+        int at = 0;
+        foreach (var (offset, bytes, node) in fields.OrderBy(f => f.Offset))
+        {
+            if (offset > at)
+            {
+                header.Add(new JsonObject { ["name"] = $"field-{at}", ["bytes"] = offset - at });
+                covered.Add($"field-{at}");
+            }
+
+            header.Add(node);
+            covered.Add(node["name"]!.GetValue<string>());
+            at = offset + bytes;
+        }
+
+        if (k.HeaderBodyBytes > at)
+        {
+            header.Add(new JsonObject { ["name"] = $"field-{at}", ["bytes"] = k.HeaderBodyBytes - at });
+            covered.Add($"field-{at}");
+        }
+
+        string endian = k.ChecksumBigEndian ? "big" : "little";
+        var payloadLength = length.IsAddressPair
+            ? new JsonObject { ["kind"] = "header", ["start"] = "start", ["end"] = "end", ["endIs"] = length.InclusiveEnd ? "inclusive" : "exclusive" }
+            : new JsonObject { ["kind"] = "header", ["field"] = "length" };
+        proposal.Sections["layout"] = new JsonObject
+        {
+            ["copies"] = k.Copies,
+            ["kinds"] = new JsonArray(
+                new JsonObject
+                {
+                    ["name"] = "header",
+                    ["header"] = header,
+                    ["payloadBytes"] = 0,
+                    ["checksum"] = new JsonObject { ["algorithm"] = k.Checksum.Name, ["covers"] = covered, ["endian"] = endian },
+                },
+                new JsonObject
+                {
+                    ["name"] = "data",
+                    ["header"] = new JsonArray(sync.DeepClone()),
+                    ["payloadLength"] = payloadLength,
+                    ["maximumPayloadBytes"] = 65536,
+                    ["checksum"] = new JsonObject { ["algorithm"] = k.Checksum.Name, ["covers"] = new JsonArray("payload"), ["endian"] = endian },
+                }),
+        };
+
+        string held = $"holds after the sync on {k.BlocksHolding} of {k.BlocksTried} blocks read";
+        proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select(i => $"{Name(i)} {Us(classesFound[i].Seconds)} µs")), 0.9,
+            $"groups of cycle lengths through setting {setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * grouped, "0.0")} % of cycles fall in one; lengths as the tape plays");
+        proposal.Measured("pulseWidth.leadIn.class", Name(leadIn), 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(x => x.Length)} {Name(leadIn)} cycles");
+        proposal.Measured("pulseWidth.leadIn.minimumCount", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortestLeadIn} cycles)");
+        proposal.Measured("pulseWidth.markers.beforeByte", $"{Name(r.Marker)} {Name(r.MarkerSecond)}", 0.9,
+            $"{Name(r.Marker)} comes every {2 + (2 * r.FrameBits)} pulses in {F(100 * r.MarkerShare, "0")} % of its places, {Name(r.MarkerSecond)} after it: a marker pair before each of {r.Frames} frames of {r.FrameBits} bit pairs");
+        if (r.EndSecond is { } endClass)
+        {
+            proposal.Measured("pulseWidth.markers.endOfBlock", $"{Name(r.Marker)} {Name(endClass)}", 0.85, $"after the last marker of most blocks {Name(endClass)} follows instead of {Name(r.MarkerSecond)}");
+        }
+
+        string bitEvidence = $"{F(100 * r.PairShare, "0.0")} % of the pairs in frames are {Name(r.Zero.First)} {Name(r.Zero.Second)} or {Name(r.One.First)} {Name(r.One.Second)}; "
+            + (r.Told ? "this way round the check holds and the header's text reads (the other way complements every byte)" : "which is 0 is not told by the check or by text");
+        proposal.Measured("pulseWidth.zero", $"{Name(r.Zero.First)} {Name(r.Zero.Second)}", r.Told ? 0.9 : 0.5, bitEvidence);
+        proposal.Measured("pulseWidth.one", $"{Name(r.One.First)} {Name(r.One.Second)}", r.Told ? 0.9 : 0.5, bitEvidence);
+        proposal.Measured("framing.parity", parity, r.Parity == Parity.None ? 0.6 : 0.9, $"{F(100 * r.ParityShare, "0.0")} % of frames of {r.FrameBits} bits have {(r.Parity == Parity.Even ? "an even" : "an odd")} number of ones");
+        proposal.Measured("framing.dataBits", F(r.DataBits), 0.9, $"{r.FrameBits} bit pairs between markers" + (r.Parity == Parity.None ? string.Empty : ", the last a parity bit"));
+        proposal.Measured("framing.startBits", "''", 0.9, "the marker pair frames each byte; no start or stop bits are left over between markers");
+        proposal.Measured("framing.stopBits", "''", 0.9, "as for the start bits");
+        proposal.Measured("framing.bitOrder", order, r.Told ? 0.85 : 0.5, r.Told ? "the header's text reads in this order (an XOR holds in both)" : "no text tells the order, and an XOR holds in both");
+        proposal.Measured("layout.checksum", $"{k.Checksum.Name}, {endian}-endian, over what follows the sync", 0.97, held);
+        proposal.Measured("layout.header", $"sync {k.SyncBytes} bytes ({string.Join(" / ", k.SyncPerCopy.Select(BlockKindSearch.Hex))})", 0.9,
+            $"every block begins with these bytes{(k.SyncPerCopy.Count > 1 ? ", one value for each copy" : string.Empty)}, and the check holds on what follows");
+        proposal.Measured("layout.copies", F(k.Copies), k.CopiesShare >= 0.6 ? 0.9 : 0.6, $"{F(100 * k.CopiesShare, "0")} % of the blocks read come in runs of {k.Copies} alike after the sync");
+        proposal.Findings.Add(new DraftFinding("layout.kinds", $"header ({k.HeaderBodyBytes} bytes after the sync), data", k.LengthApproximate, k.LengthApproximate ? 0.5 : 0.85,
+            (k.LengthApproximate ? "no data block read held its check, so the length its header gives is matched only to within a few bytes of the damaged blocks read (which field, and whether the end is inclusive, are guesses): " : string.Empty) +
+            $"{k.Files} times a block of {k.HeaderBodyBytes + k.Checksum.Width} bytes after the sync is followed by one of another length, which "
+            + (length.IsAddressPair ? $"its bytes {length.Offset}–{length.Offset + 3} give as start and {(length.InclusiveEnd ? "inclusive" : "exclusive")} end address, {(length.BigEndian ? "big" : "little")}-endian" : $"its bytes {length.Offset}–{length.Offset + length.Bytes - 1} give as a length")
+            + (k.Name is { } n ? $"; bytes {n.Offset}–{n.Offset + n.Bytes - 1} are printable text in every header block (the name)" : string.Empty)
+            + "; other header bytes' meaning is not known (written without a role)"));
+        proposal.Notes.Add($"Read through detector setting {setting.Name}: {blockCount} blocks after lead-ins, bits as pairs of pulses with a marker before every byte.");
         return proposal;
     }
 
@@ -222,7 +493,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         var result = new List<IntervalCluster>();
         foreach (var cluster in clusters)
         {
-            if (result.Count > 0 && cluster.Seconds < result[^1].Seconds * 1.3)
+            if (result.Count > 0 && cluster.Seconds < result[^1].Seconds * 1.25)
             {
                 if (cluster.Count > result[^1].Count)
                 {
