@@ -43,7 +43,8 @@ public sealed class RestartTests
                 }
 
                 Assert.True(job.State is "queued" or "running", $"The job ended ({job.State}) before the app could be stopped; make the capture longer.");
-                Assert.True(clock.Elapsed < TimeSpan.FromSeconds(30), "The job did not start within 30 s.");
+                // A bound for a job that never starts, not a timing: a loaded machine may take a while.
+                Assert.True(clock.Elapsed < TimeSpan.FromSeconds(180), "The job did not start within 180 s.");
                 await Task.Delay(20);
             }
         }
@@ -63,8 +64,9 @@ public sealed class RestartTests
 
         await using var second = new ArchiveAppFactory(folder);
         using var again = await second.SignedInAsync(ArchiveAppFactory.CuratorName);
-        // The job decodes the thirty minutes again and surveys them for the plots (every setting, one more pass).
-        var finished = await again.WaitForJobAsync(jobId, TimeSpan.FromSeconds(120));
+        // The job decodes the thirty minutes again and surveys them for the plots (every setting, one more pass). The wait
+        // is a bound for a hung job, not a timing: a Debug build on a loaded machine took more than 120 s.
+        var finished = await again.WaitForJobAsync(jobId, TimeSpan.FromMinutes(10));
         Assert.True(finished.State == "done" || (finished.State == "failed" && !string.IsNullOrWhiteSpace(finished.Error)), $"The job ended {finished.State} without a reason.");
         Assert.Equal(2, finished.Attempts);
         await using (var db = folder.OpenDatabase())
