@@ -150,22 +150,61 @@ public sealed class FskDrafter : IFamilyDrafter
             }
         }
 
+        // A leader of repeated characters before each block (rather than mark tone): the blocks read as a stream
+        // begin with a long run of one character, and what follows it holds a check value after sync characters.
+        CharacterLeaderFinding? leader = null;
+        if (!layout.HasChecksum)
+        {
+            foreach (bool reverse in new[] { msb, !msb })
+            {
+                var order = reverse ? BitOrder.MsbFirst : BitOrder.LsbFirst;
+                leader = CharacterLeaderSearch.Find(reverse ? reversed : blockBytes, new ByteFraming(chosen.Data, order, "0", chosen.Stop, chosen.Parity));
+                if (leader is not null)
+                {
+                    msb = reverse;
+                    layout = leader.Layout;
+                    orderMeasured = true;
+                    orderEvidence = "the check value holds with this bit order after the leader";
+                    break;
+                }
+            }
+        }
+
         var framing = new ByteFraming(chosen.Data, msb ? BitOrder.MsbFirst : BitOrder.LsbFirst, "0", chosen.Stop, chosen.Parity);
         var proposal = new FamilyProposal();
-        proposal.Sections["fsk"] = new JsonObject
+        var fskSection = new JsonObject
         {
             ["markHz"] = Math.Round(markHz, 1),
             ["spaceHz"] = Math.Round(spaceHz, 1),
 
             // Rounded, the baud must still not pass the lower tone (one cycle a bit is the least).
             ["baud"] = Math.Min(Math.Round(baud, 2), Math.Min(Math.Round(markHz, 1), Math.Round(spaceHz, 1))),
-            ["leadInMinimumSeconds"] = Math.Round(leadIn, 3),
         };
+        int leaderMinimum = leader is null ? 0 : Math.Clamp(leader.ShortestRun / 4, 4, CharacterLeaderSearch.LeastRun);
+        if (leader is null)
+        {
+            fskSection["leadInMinimumSeconds"] = Math.Round(leadIn, 3);
+        }
+        else
+        {
+            fskSection["leadIn"] = new JsonObject { ["character"] = $"0x{leader.Character:X2}", ["minimumCount"] = leaderMinimum };
+        }
+
+        proposal.Sections["fsk"] = fskSection;
         string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays";
         proposal.Measured("fsk.markHz", F(markHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
         proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, toneEvidence);
         proposal.Measured("fsk.baud", F(baud, "0.00"), 0.9, $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower");
-        proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"a quarter of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");
+        if (leader is null)
+        {
+            proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"a quarter of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");
+        }
+        else
+        {
+            proposal.Measured("fsk.leadIn", $"character 0x{leader.Character:X2}, at least {leaderMinimum}", 0.9,
+                $"{leader.BlocksWithLeader} of {leader.BlocksRead} blocks read as a stream begin with a run of 0x{leader.Character:X2} (the shortest {leader.ShortestRun} characters), and the bytes after it hold a check value after {leader.Layout.CoverageStart} sync character(s) alike in every block; a quarter of the shortest run, at most {CharacterLeaderSearch.LeastRun}, so that a leader cut short still counts");
+        }
+
         var others = string.Join(", ", trials.Select(t => $"{t.Data}{t.Parity.ToString()[0]}{t.Stop.Length}: {F(100 * t.ErrorShare, "0.#")} %"));
         double framingConfidence = holding.Count == 1 ? 0.9 : 0.8;
         Framing(proposal, framing, layout.HasChecksum, 1 - chosen.ErrorShare, orderMeasured, orderEvidence);
