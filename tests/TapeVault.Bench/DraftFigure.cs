@@ -14,7 +14,7 @@ namespace TapeVault.Bench;
 /// draft [--count N] [--first-seed S] [--family F]: N captures per family (default 20), seeds S, S+1, ... (default
 /// 9001), of every family of <see cref="RandomFormats.Families"/> or of F alone; --damage none writes undamaged
 /// captures (to tell the drafter's faults from the read path's); --show failures prints the truth and the draft of
-/// each capture the draft reads less of.
+/// each capture the draft reads less of; --show all prints a line for every capture.
 /// </summary>
 public static class DraftFigure
 {
@@ -25,6 +25,7 @@ public static class DraftFigure
         string? only = null;
         bool undamaged = false;
         bool show = false;
+        bool showAll = false;
         for (int i = 0; i + 1 < args.Length; i += 2)
         {
             switch (args[i])
@@ -33,7 +34,7 @@ public static class DraftFigure
                 case "--first-seed": first = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
                 case "--family": only = args[i + 1]; break;
                 case "--damage": undamaged = args[i + 1] == "none"; break;
-                case "--show": show = args[i + 1] == "failures"; break;
+                case "--show": show = args[i + 1] == "failures"; showAll = args[i + 1] == "all"; break;
                 default: throw new ArgumentException($"Unknown option {args[i]}.");
             }
         }
@@ -58,7 +59,13 @@ public static class DraftFigure
                 guessed += result.Guessed.Count;
                 fields += result.Fields;
                 familyRight += result.DraftedFamily == RandomFormats.ProfileFamily(family) ? 1 : 0;
-                if (result.Failure is not null || result.RecoveredByConfirmedDraft < 0.95 * result.RecoveredByTruth)
+                bool readsLess = result.Failure is not null || result.RecoveredByConfirmedDraft < 0.95 * result.RecoveredByTruth;
+                if (showAll && !readsLess)
+                {
+                    Console.WriteLine($"  {family} seed {seed}: {result.RecoveredByConfirmedDraft}/{result.RecoveredByTruth}/{result.Written} drafted {result.DraftedFamily}; guessed {string.Join(", ", result.Guessed)}");
+                }
+
+                if (readsLess)
                 {
                     failed++;
                     if (show)

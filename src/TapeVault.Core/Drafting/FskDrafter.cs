@@ -65,7 +65,9 @@ public sealed class FskDrafter : IFamilyDrafter
         ArgumentNullException.ThrowIfNull(survey);
         if (Tones(survey) is not var (low, high, baud))
         {
-            return new FamilyScore(Family, 0, "the two main groups do not come in runs that make one bit time");
+            var top = survey.Dominant.Take(2).ToList();
+            return new FamilyScore(Family, 0, "the two main groups do not come in runs that make one bit time"
+                + (top.Count < 2 ? string.Empty : $" ({string.Join(", ", top.Select(g => $"{F(0.5 / survey.Clusters[g].Seconds, "0")} Hz, {F(100 * survey.Clusters[g].Share, "0")} % of intervals, runs of {survey.Runs[g].Granularity}"))})"));
         }
 
         return new FamilyScore(Family, 0.9 * survey.GroupedShare,
