@@ -30,6 +30,16 @@ public sealed class FamilyProposal
 
     public List<string> Notes { get; } = [];
 
+    /// <summary>The layout the proposal was written from (set by the common layout section), for weighing its proof.</summary>
+    public LayoutFinding? Layout { get; set; }
+
+    /// <summary>
+    /// Whether a check value proves the reading beyond chance: a check of 16 bits or more on three blocks, or any on
+    /// four (a one-byte check tried at several offsets, byte orders and block ends holds on two blocks by chance now
+    /// and then).
+    /// </summary>
+    public bool StronglyProven => Layout is { HasChecksum: true } l && (l.BlocksHolding >= 4 || (l.ChecksumBytes >= 2 && l.BlocksHolding >= 3));
+
     public void Measured(string path, string value, double confidence, string evidence) =>
         Findings.Add(new DraftFinding(path, value, confidence < DraftFinding.MeasuredThreshold, confidence, evidence));
 
@@ -97,6 +107,7 @@ internal static class CommonSections
 
     public static void Layout(FamilyProposal proposal, LayoutFinding layout)
     {
+        proposal.Layout = layout;
         if (!layout.HasChecksum)
         {
             proposal.Sections["layout"] = new JsonObject();

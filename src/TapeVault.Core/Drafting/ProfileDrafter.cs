@@ -33,6 +33,10 @@ public static class ProfileDrafter
 
         var scores = Families.Select(f => (Drafter: f, Score: f.Score(survey))).OrderByDescending(s => s.Score.Score).ToList();
         var refusals = new List<string>();
+
+        // The best-fitting family's reading stands unless no check value proves it and a later family's check value
+        // proves its own beyond chance (an alternating biphase preamble looks like two pulse classes, say).
+        (IFamilyDrafter Drafter, FamilyScore Score, FamilyProposal Proposal)? unproven = null;
         foreach (var (drafter, score) in scores)
         {
             if (score.Score <= 0)
@@ -58,6 +62,18 @@ public static class ProfileDrafter
                 continue;
             }
 
+            bool proofHere = proposal.Findings.Any(f => f.Path == "layout.checksum");
+            if (unproven is not null && !proposal.StronglyProven)
+            {
+                continue;
+            }
+
+            if (unproven is null && !proofHere)
+            {
+                unproven = (drafter, score, proposal);
+                continue;
+            }
+
             double runnerUp = scores.Where(s => s.Drafter != drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
             bool proven = proposal.Findings.Any(f => f.Path == "layout.checksum");
             double familyConfidence = proven ? 0.97 : Math.Clamp(0.5 + score.Score - runnerUp, 0.3, 0.95);
@@ -70,6 +86,19 @@ public static class ProfileDrafter
                 // What this family found cannot be written as a profile (a sync too short to be found, say): its
                 // reason is kept, and the next family is tried.
                 refusals.Add($"The {drafter.Family} reading found cannot be a profile: {e.Message}");
+            }
+        }
+
+        if (unproven is { } first)
+        {
+            double runnerUp = scores.Where(s => s.Drafter != first.Drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
+            try
+            {
+                return Assemble(stretch, first.Drafter.Family, Math.Clamp(0.5 + first.Score.Score - runnerUp, 0.3, 0.95), first.Score, first.Proposal, [.. scores.Select(s => s.Score)]);
+            }
+            catch (ProfileException e)
+            {
+                refusals.Add($"The {first.Drafter.Family} reading found cannot be a profile: {e.Message}");
             }
         }
 
