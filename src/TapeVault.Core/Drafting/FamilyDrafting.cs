@@ -34,11 +34,13 @@ public sealed class FamilyProposal
     public LayoutFinding? Layout { get; set; }
 
     /// <summary>
-    /// Whether a check value proves the reading beyond chance: a check of 16 bits or more on three blocks, or any on
-    /// four (a one-byte check tried at several offsets, byte orders and block ends holds on two blocks by chance now
-    /// and then).
+    /// Whether a check value proves the reading beyond chance: a check of 16 bits or more, its bit order told, holding
+    /// on three different blocks. A one-byte check tried at several offsets, byte orders and block ends holds by chance
+    /// now and then, the more so on the repetitive bytes another family's signal reads as.
     /// </summary>
-    public bool StronglyProven => Layout is { HasChecksum: true } l && (l.BlocksHolding >= 4 || (l.ChecksumBytes >= 2 && l.BlocksHolding >= 3));
+    public bool StronglyProven => Layout is { HasChecksum: true, ChecksumBytes: >= 2, BlocksHolding: >= 3 } l
+        && l.Blocks.Select(Convert.ToHexString).Distinct().Count() >= 3
+        && Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed);
 
     public void Measured(string path, string value, double confidence, string evidence) =>
         Findings.Add(new DraftFinding(path, value, confidence < DraftFinding.MeasuredThreshold, confidence, evidence));
