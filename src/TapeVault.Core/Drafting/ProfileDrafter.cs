@@ -79,7 +79,7 @@ public static class ProfileDrafter
             double familyConfidence = proven ? 0.97 : Math.Clamp(0.5 + score.Score - runnerUp, 0.3, 0.95);
             try
             {
-                return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)]);
+                return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)], refusals);
             }
             catch (ProfileException e)
             {
@@ -94,7 +94,7 @@ public static class ProfileDrafter
             double runnerUp = scores.Where(s => s.Drafter != first.Drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
             try
             {
-                return Assemble(stretch, first.Drafter.Family, Math.Clamp(0.5 + first.Score.Score - runnerUp, 0.3, 0.95), first.Score, first.Proposal, [.. scores.Select(s => s.Score)]);
+                return Assemble(stretch, first.Drafter.Family, Math.Clamp(0.5 + first.Score.Score - runnerUp, 0.3, 0.95), first.Score, first.Proposal, [.. scores.Select(s => s.Score)], refusals);
             }
             catch (ProfileException e)
             {
@@ -108,7 +108,7 @@ public static class ProfileDrafter
             + (refusals.Count == 0 ? string.Empty : " " + string.Join(" ", refusals)));
     }
 
-    private static ProfileDraft Assemble(CaptureStretch stretch, string family, double familyConfidence, FamilyScore score, FamilyProposal proposal, IReadOnlyList<FamilyScore> scores)
+    private static ProfileDraft Assemble(CaptureStretch stretch, string family, double familyConfidence, FamilyScore score, FamilyProposal proposal, IReadOnlyList<FamilyScore> scores, IReadOnlyList<string> refusals)
     {
         var findings = new List<DraftFinding>
         {
@@ -117,6 +117,7 @@ public static class ProfileDrafter
         };
         findings.AddRange(proposal.Findings);
         findings.Add(new DraftFinding("recording", "lead-in 1 s, gaps 0.3 s, trailer 0.3 s", true, 0.5, "how a writer lays blocks down, for synthesis only; reading does not use it"));
+        proposal.Notes.AddRange(refusals.Select(r => "Not drafted as another family: " + r));
         var guessed = findings.Where(f => f.Guessed).Select(f => f.Path).ToList();
         string id = Identifier(stretch.Source);
         var root = new JsonObject
