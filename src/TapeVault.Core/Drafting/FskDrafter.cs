@@ -56,7 +56,9 @@ public sealed class FskDrafter : IFamilyDrafter
         }
 
         // One cycle a bit is the least a tone can hold: measured just above the lower tone, the baud is that tone.
-        double baud = Math.Min(1 / Math.Sqrt(bitA * bitB), 0.5 / survey.Clusters[b].Seconds);
+        // Nor may it pass the tones' distance (a profile needs them a baud apart): tones of one and two cycles a bit
+        // measure a little under 2 : 1 now and then, and a baud a hair too high would make every trial profile void.
+        double baud = Math.Min(1 / Math.Sqrt(bitA * bitB), Math.Min(0.5 / survey.Clusters[b].Seconds, (0.5 / survey.Clusters[a].Seconds) - (0.5 / survey.Clusters[b].Seconds)));
         return (b, a, baud);
     }
 
@@ -190,7 +192,7 @@ public sealed class FskDrafter : IFamilyDrafter
             ["spaceHz"] = Math.Round(spaceHz, 1),
 
             // Rounded, the baud must still not pass the lower tone (one cycle a bit is the least).
-            ["baud"] = Math.Min(Math.Round(baud, 2), Math.Min(Math.Round(markHz, 1), Math.Round(spaceHz, 1))),
+            ["baud"] = Math.Min(Math.Min(Math.Round(baud, 2), Math.Abs(Math.Round(markHz, 1) - Math.Round(spaceHz, 1))), Math.Min(Math.Round(markHz, 1), Math.Round(spaceHz, 1))),
         };
         int leaderMinimum = leader is null ? 0 : Math.Clamp(leader.ShortestRun / 4, 4, CharacterLeaderSearch.LeastRun);
         if (leader is null)
