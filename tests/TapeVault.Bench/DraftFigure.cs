@@ -9,11 +9,12 @@ namespace TapeVault.Bench;
 /// The drafter's figure: on captures of random formats of each family (<see cref="RandomFormats"/>), with damage from
 /// wide ranges (<see cref="DraftTrials.Damage"/>) and, for every other capture, a SoX effect chain drawn from the seed
 /// (<see cref="OutsideDamage.SoxChain"/>), the share of written blocks the draft reads back once only its guessed
-/// fields are confirmed from the truth, beside the share the truth itself reads back.
+/// fields are confirmed from the truth, beside the share the truth itself reads back. Draft/truth counts the blocks
+/// both read (so it never passes 100 %); the blocks the draft read and the truth did not are counted apart.
 /// draft [--count N] [--first-seed S] [--family F]: N captures per family (default 20), seeds S, S+1, ... (default
 /// 9001), of every family of <see cref="RandomFormats.Families"/> or of F alone; --damage none writes undamaged
 /// captures (to tell the drafter's faults from the read path's); --show failures prints the truth and the draft of
-/// each capture the draft reads less of.
+/// each capture the draft reads less of; --show all prints a line for every capture.
 /// </summary>
 public static class DraftFigure
 {
@@ -24,6 +25,7 @@ public static class DraftFigure
         string? only = null;
         bool undamaged = false;
         bool show = false;
+        bool showAll = false;
         for (int i = 0; i + 1 < args.Length; i += 2)
         {
             switch (args[i])
@@ -32,7 +34,7 @@ public static class DraftFigure
                 case "--first-seed": first = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
                 case "--family": only = args[i + 1]; break;
                 case "--damage": undamaged = args[i + 1] == "none"; break;
-                case "--show": show = args[i + 1] == "failures"; break;
+                case "--show": show = args[i + 1] == "failures"; showAll = args[i + 1] == "all"; break;
                 default: throw new ArgumentException($"Unknown option {args[i]}.");
             }
         }
@@ -40,11 +42,11 @@ public static class DraftFigure
         // A folder of its own, so that runs side by side (one family each) never delete each other's captures.
         string folder = Directory.CreateDirectory(Path.Combine(work, $"draft-{Environment.ProcessId}")).FullName;
         Console.WriteLine($"Draft figure: {count} captures per family, seeds {first}–{first + count - 1}, SoX chain on every other one.");
-        Console.WriteLine($"{"family",-20} {"written",8} {"draft",8} {"truth",8} {"draft/written",14} {"draft/truth",12} {"guessed",8} {"family right",13} {"failed",7} {"s/draft",8}");
-        int allWritten = 0, allDraft = 0, allTruth = 0;
+        Console.WriteLine($"{"family",-20} {"written",8} {"draft",8} {"truth",8} {"draft/written",14} {"draft/truth",12} {"draft only",11} {"guessed",8} {"family right",13} {"failed",7} {"s/draft",8}");
+        int allWritten = 0, allDraft = 0, allTruth = 0, allBoth = 0;
         foreach (string family in RandomFormats.Families.Where(f => only is null || f == only))
         {
-            int written = 0, drafted = 0, truth = 0, guessed = 0, fields = 0, familyRight = 0, failed = 0;
+            int written = 0, drafted = 0, truth = 0, both = 0, guessed = 0, fields = 0, familyRight = 0, failed = 0;
             var time = Stopwatch.StartNew();
             for (int k = 0; k < count; k++)
             {
@@ -53,10 +55,17 @@ public static class DraftFigure
                 written += result.Written;
                 drafted += result.RecoveredByConfirmedDraft;
                 truth += result.RecoveredByTruth;
+                both += result.RecoveredByBoth;
                 guessed += result.Guessed.Count;
                 fields += result.Fields;
                 familyRight += result.DraftedFamily == RandomFormats.ProfileFamily(family) ? 1 : 0;
-                if (result.Failure is not null || result.RecoveredByConfirmedDraft < 0.95 * result.RecoveredByTruth)
+                bool readsLess = result.Failure is not null || result.RecoveredByConfirmedDraft < 0.95 * result.RecoveredByTruth;
+                if (showAll && !readsLess)
+                {
+                    Console.WriteLine($"  {family} seed {seed}: {result.RecoveredByConfirmedDraft}/{result.RecoveredByTruth}/{result.Written} drafted {result.DraftedFamily}; guessed {string.Join(", ", result.Guessed)}");
+                }
+
+                if (readsLess)
                 {
                     failed++;
                     if (show)
@@ -77,10 +86,11 @@ public static class DraftFigure
             allWritten += written;
             allDraft += drafted;
             allTruth += truth;
-            Console.WriteLine($"{family,-20} {written,8} {drafted,8} {truth,8} {Percent(drafted, written),14} {Percent(drafted, truth),12} {(fields == 0 ? "-" : $"{guessed}/{fields}"),8} {familyRight,6}/{count,-6} {failed,7} {time.Elapsed.TotalSeconds / count,8:0.0}");
+            allBoth += both;
+            Console.WriteLine($"{family,-20} {written,8} {drafted,8} {truth,8} {Percent(drafted, written),14} {Percent(both, truth),12} {drafted - both,11} {(fields == 0 ? "-" : $"{guessed}/{fields}"),8} {familyRight,6}/{count,-6} {failed,7} {time.Elapsed.TotalSeconds / count,8:0.0}");
         }
 
-        Console.WriteLine($"{"all",-20} {allWritten,8} {allDraft,8} {allTruth,8} {Percent(allDraft, allWritten),14} {Percent(allDraft, allTruth),12}");
+        Console.WriteLine($"{"all",-20} {allWritten,8} {allDraft,8} {allTruth,8} {Percent(allDraft, allWritten),14} {Percent(allBoth, allTruth),12} {allDraft - allBoth,11}");
         return 0;
     }
 

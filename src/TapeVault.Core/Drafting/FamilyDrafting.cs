@@ -30,6 +30,18 @@ public sealed class FamilyProposal
 
     public List<string> Notes { get; } = [];
 
+    /// <summary>The layout the proposal was written from (set by the common layout section), for weighing its proof.</summary>
+    public LayoutFinding? Layout { get; set; }
+
+    /// <summary>
+    /// Whether a check value proves the reading beyond chance: a check of 16 bits or more, its bit order told, holding
+    /// on three different blocks. A one-byte check tried at several offsets, byte orders and block ends holds by chance
+    /// now and then, the more so on the repetitive bytes another family's signal reads as.
+    /// </summary>
+    public bool StronglyProven => Layout is { HasChecksum: true, ChecksumBytes: >= 2, BlocksHolding: >= 3 } l
+        && l.Blocks.Select(Convert.ToHexString).Distinct().Count() >= 3
+        && Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed);
+
     public void Measured(string path, string value, double confidence, string evidence) =>
         Findings.Add(new DraftFinding(path, value, confidence < DraftFinding.MeasuredThreshold, confidence, evidence));
 
@@ -97,6 +109,7 @@ internal static class CommonSections
 
     public static void Layout(FamilyProposal proposal, LayoutFinding layout)
     {
+        proposal.Layout = layout;
         if (!layout.HasChecksum)
         {
             proposal.Sections["layout"] = new JsonObject();

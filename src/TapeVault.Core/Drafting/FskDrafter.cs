@@ -56,7 +56,9 @@ public sealed class FskDrafter : IFamilyDrafter
         }
 
         // One cycle a bit is the least a tone can hold: measured just above the lower tone, the baud is that tone.
-        double baud = Math.Min(1 / Math.Sqrt(bitA * bitB), 0.5 / survey.Clusters[b].Seconds);
+        // Nor may it pass the tones' distance (a profile needs them a baud apart): tones of one and two cycles a bit
+        // measure a little under 2 : 1 now and then, and a baud a hair too high would make every trial profile void.
+        double baud = Math.Min(1 / Math.Sqrt(bitA * bitB), Math.Min(0.5 / survey.Clusters[b].Seconds, (0.5 / survey.Clusters[a].Seconds) - (0.5 / survey.Clusters[b].Seconds)));
         return (b, a, baud);
     }
 
@@ -65,7 +67,9 @@ public sealed class FskDrafter : IFamilyDrafter
         ArgumentNullException.ThrowIfNull(survey);
         if (Tones(survey) is not var (low, high, baud))
         {
-            return new FamilyScore(Family, 0, "the two main groups do not come in runs that make one bit time");
+            var top = survey.Dominant.Take(2).ToList();
+            return new FamilyScore(Family, 0, "the two main groups do not come in runs that make one bit time"
+                + (top.Count < 2 ? string.Empty : $" ({string.Join(", ", top.Select(g => $"{F(0.5 / survey.Clusters[g].Seconds, "0")} Hz, {F(100 * survey.Clusters[g].Share, "0")} % of intervals, runs of {survey.Runs[g].Granularity}"))})"));
         }
 
         return new FamilyScore(Family, 0.9 * survey.GroupedShare,
@@ -113,6 +117,16 @@ public sealed class FskDrafter : IFamilyDrafter
         }
 
         var holding = trials.Where(t => t.ErrorShare <= 0.02 && t.Blocks.Sum(b => b.Payload.Length) > 0).ToList();
+
+        // A leader of repeated characters read as a stream is often misframed for its first characters, so a
+        // framing may fail a few in a hundred there: then the framings within two points of the fewest errors (at
+        // most 15 %) are weighed, and only a check value found later proves the one chosen.
+        bool relaxed = false;
+        if (holding.Count == 0 && trials.Where(t => t.Blocks.Sum(b => b.Payload.Length) > 0).Select(t => t.ErrorShare).DefaultIfEmpty(1).Min() is var fewest && fewest <= 0.15)
+        {
+            holding = [.. trials.Where(t => t.ErrorShare <= fewest + 0.02 && t.Blocks.Sum(b => b.Payload.Length) > 0)];
+            relaxed = true;
+        }
         if (holding.Count == 0)
         {
             throw new ProfileDraftException(
@@ -150,24 +164,63 @@ public sealed class FskDrafter : IFamilyDrafter
             }
         }
 
+        // A leader of repeated characters before each block (rather than mark tone): the blocks read as a stream
+        // begin with a long run of one character, and what follows it holds a check value after sync characters.
+        CharacterLeaderFinding? leader = null;
+        if (!layout.HasChecksum)
+        {
+            foreach (bool reverse in new[] { msb, !msb })
+            {
+                var order = reverse ? BitOrder.MsbFirst : BitOrder.LsbFirst;
+                leader = CharacterLeaderSearch.Find(reverse ? reversed : blockBytes, new ByteFraming(chosen.Data, order, "0", chosen.Stop, chosen.Parity));
+                if (leader is not null)
+                {
+                    msb = reverse;
+                    layout = leader.Layout;
+                    orderMeasured = true;
+                    orderEvidence = "the check value holds with this bit order after the leader";
+                    break;
+                }
+            }
+        }
+
         var framing = new ByteFraming(chosen.Data, msb ? BitOrder.MsbFirst : BitOrder.LsbFirst, "0", chosen.Stop, chosen.Parity);
         var proposal = new FamilyProposal();
-        proposal.Sections["fsk"] = new JsonObject
+        var fskSection = new JsonObject
         {
             ["markHz"] = Math.Round(markHz, 1),
             ["spaceHz"] = Math.Round(spaceHz, 1),
 
             // Rounded, the baud must still not pass the lower tone (one cycle a bit is the least).
-            ["baud"] = Math.Min(Math.Round(baud, 2), Math.Min(Math.Round(markHz, 1), Math.Round(spaceHz, 1))),
-            ["leadInMinimumSeconds"] = Math.Round(leadIn, 3),
+            ["baud"] = Math.Min(Math.Min(Math.Round(baud, 2), Math.Abs(Math.Round(markHz, 1) - Math.Round(spaceHz, 1))), Math.Min(Math.Round(markHz, 1), Math.Round(spaceHz, 1))),
         };
+        int leaderMinimum = leader is null ? 0 : Math.Clamp(leader.ShortestRun / 4, 4, CharacterLeaderSearch.LeastRun);
+        if (leader is null)
+        {
+            fskSection["leadInMinimumSeconds"] = Math.Round(leadIn, 3);
+        }
+        else
+        {
+            fskSection["leadIn"] = new JsonObject { ["character"] = $"0x{leader.Character:X2}", ["minimumCount"] = leaderMinimum };
+        }
+
+        proposal.Sections["fsk"] = fskSection;
         string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays";
         proposal.Measured("fsk.markHz", F(markHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
         proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, toneEvidence);
         proposal.Measured("fsk.baud", F(baud, "0.00"), 0.9, $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower");
-        proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"a quarter of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");
+        if (leader is null)
+        {
+            proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"a quarter of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");
+        }
+        else
+        {
+            proposal.Measured("fsk.leadIn", $"character 0x{leader.Character:X2}, at least {leaderMinimum}", 0.9,
+                $"{leader.BlocksWithLeader} of {leader.BlocksRead} blocks read as a stream begin with a run of 0x{leader.Character:X2} (the shortest {leader.ShortestRun} characters), and the bytes after it hold a check value after {leader.Layout.CoverageStart} sync character(s) alike in every block; a quarter of the shortest run, at most {CharacterLeaderSearch.LeastRun}, so that a leader cut short still counts");
+        }
+
         var others = string.Join(", ", trials.Select(t => $"{t.Data}{t.Parity.ToString()[0]}{t.Stop.Length}: {F(100 * t.ErrorShare, "0.#")} %"));
-        double framingConfidence = holding.Count == 1 ? 0.9 : 0.8;
+        double framingConfidence = relaxed && !layout.HasChecksum ? 0.6 : holding.Count == 1 ? 0.9 : 0.8;
         Framing(proposal, framing, layout.HasChecksum, 1 - chosen.ErrorShare, orderMeasured, orderEvidence);
         proposal.Findings.RemoveAll(f => f.Path is "framing.startBits" or "framing.stopBits" or "framing.parity" or "framing.dataBits");
         proposal.Measured("framing.startBits", "'0'", 0.9, "a fall from the idle mark tone starts each character");

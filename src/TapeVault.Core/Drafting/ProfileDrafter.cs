@@ -33,6 +33,10 @@ public static class ProfileDrafter
 
         var scores = Families.Select(f => (Drafter: f, Score: f.Score(survey))).OrderByDescending(s => s.Score.Score).ToList();
         var refusals = new List<string>();
+
+        // The best-fitting family's reading stands unless no check value proves it and a later family's check value
+        // proves its own beyond chance (an alternating biphase preamble looks like two pulse classes, say).
+        (IFamilyDrafter Drafter, FamilyScore Score, FamilyProposal Proposal)? unproven = null;
         foreach (var (drafter, score) in scores)
         {
             if (score.Score <= 0)
@@ -58,12 +62,24 @@ public static class ProfileDrafter
                 continue;
             }
 
+            bool proofHere = proposal.Findings.Any(f => f.Path == "layout.checksum");
+            if (unproven is not null && !proposal.StronglyProven)
+            {
+                continue;
+            }
+
+            if (unproven is null && !proofHere)
+            {
+                unproven = (drafter, score, proposal);
+                continue;
+            }
+
             double runnerUp = scores.Where(s => s.Drafter != drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
             bool proven = proposal.Findings.Any(f => f.Path == "layout.checksum");
             double familyConfidence = proven ? 0.97 : Math.Clamp(0.5 + score.Score - runnerUp, 0.3, 0.95);
             try
             {
-                return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)]);
+                return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)], refusals);
             }
             catch (ProfileException e)
             {
@@ -73,13 +89,26 @@ public static class ProfileDrafter
             }
         }
 
+        if (unproven is { } first)
+        {
+            double runnerUp = scores.Where(s => s.Drafter != first.Drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
+            try
+            {
+                return Assemble(stretch, first.Drafter.Family, Math.Clamp(0.5 + first.Score.Score - runnerUp, 0.3, 0.95), first.Score, first.Proposal, [.. scores.Select(s => s.Score)], refusals);
+            }
+            catch (ProfileException e)
+            {
+                refusals.Add($"The {first.Drafter.Family} reading found cannot be a profile: {e.Message}");
+            }
+        }
+
         throw new ProfileDraftException(
             $"No family reads the first {stretch.Seconds:0.#} s of {stretch.Source}: " +
             string.Join("; ", scores.Select(s => $"{s.Score.Family} {s.Score.Score:0.00} ({s.Score.Evidence})")) + "."
             + (refusals.Count == 0 ? string.Empty : " " + string.Join(" ", refusals)));
     }
 
-    private static ProfileDraft Assemble(CaptureStretch stretch, string family, double familyConfidence, FamilyScore score, FamilyProposal proposal, IReadOnlyList<FamilyScore> scores)
+    private static ProfileDraft Assemble(CaptureStretch stretch, string family, double familyConfidence, FamilyScore score, FamilyProposal proposal, IReadOnlyList<FamilyScore> scores, IReadOnlyList<string> refusals)
     {
         var findings = new List<DraftFinding>
         {
@@ -88,6 +117,7 @@ public static class ProfileDrafter
         };
         findings.AddRange(proposal.Findings);
         findings.Add(new DraftFinding("recording", "lead-in 1 s, gaps 0.3 s, trailer 0.3 s", true, 0.5, "how a writer lays blocks down, for synthesis only; reading does not use it"));
+        proposal.Notes.AddRange(refusals.Select(r => "Not drafted as another family: " + r));
         var guessed = findings.Where(f => f.Guessed).Select(f => f.Path).ToList();
         string id = Identifier(stretch.Source);
         var root = new JsonObject

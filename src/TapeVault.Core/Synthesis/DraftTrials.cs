@@ -20,7 +20,8 @@ public sealed record DraftTrialResult(
     string TruthJson,
     string? DraftJson,
     string? DraftProfileJson = null,
-    double Speed = 1)
+    double Speed = 1,
+    int RecoveredByBoth = 0)
 {
     public double DraftShare => Written == 0 ? 0 : (double)RecoveredByConfirmedDraft / Written;
 
@@ -62,7 +63,8 @@ public static class DraftTrials
             described += "; then " + chain;
         }
 
-        int truthRead = RandomFormats.Recovered(CaptureDecoder.Decode(path, truth), truth, capture.Blocks);
+        var truthBlocks = RandomFormats.RecoveredBlocks(CaptureDecoder.Decode(path, truth), truth, capture.Blocks);
+        int truthRead = truthBlocks.Count(r => r);
         ProfileDraft draft;
         try
         {
@@ -76,10 +78,13 @@ public static class DraftTrials
         string drafted = draft.Findings.First(f => f.Path == "family").Value;
         string confirmed = GuessConfirmation.Confirm(draft.Json, truthJson, draft.GuessedPaths);
         int read;
+        int both = 0;
         string? failure = null;
         try
         {
-            read = RandomFormats.Recovered(CaptureDecoder.Decode(path, ProfileLoader.Parse(confirmed, "confirmed")), truth, capture.Blocks);
+            var draftBlocks = RandomFormats.RecoveredBlocks(CaptureDecoder.Decode(path, ProfileLoader.Parse(confirmed, "confirmed")), truth, capture.Blocks);
+            read = draftBlocks.Count(r => r);
+            both = draftBlocks.Where((r, i) => r && truthBlocks[i]).Count();
         }
         catch (ProfileException e)
         {
@@ -87,7 +92,7 @@ public static class DraftTrials
             failure = "the confirmed draft does not load: " + e.Message;
         }
 
-        return new DraftTrialResult(seed, family, drafted, capture.Blocks.Count, read, truthRead, draft.GuessedPaths, draft.Findings.Count, draft.Confidence, described, failure, truthJson, draft.Json + "\n" + draft.SideListJson(), draft.Json, damage.Speed);
+        return new DraftTrialResult(seed, family, drafted, capture.Blocks.Count, read, truthRead, draft.GuessedPaths, draft.Findings.Count, draft.Confidence, described, failure, truthJson, draft.Json + "\n" + draft.SideListJson(), draft.Json, damage.Speed, both);
     }
 
     /// <summary>

@@ -203,14 +203,18 @@ public static class RandomFormats
     /// How many of the blocks written (<paramref name="written"/>: header, payload and check, under
     /// <paramref name="truth"/>) a decode read back exactly (header and payload) in a reading that is not failed.
     /// </summary>
-    public static int Recovered(DecodeResult result, FormatProfile truth, IReadOnlyList<byte[]> written)
+    public static int Recovered(DecodeResult result, FormatProfile truth, IReadOnlyList<byte[]> written) =>
+        RecoveredBlocks(result, truth, written).Count(r => r);
+
+    /// <summary>For each block written, whether a decode read it back exactly (see <see cref="Recovered"/>).</summary>
+    public static bool[] RecoveredBlocks(DecodeResult result, FormatProfile truth, IReadOnlyList<byte[]> written)
     {
         ArgumentNullException.ThrowIfNull(result);
         ArgumentNullException.ThrowIfNull(truth);
         ArgumentNullException.ThrowIfNull(written);
         int check = BlockLayoutCodec.For(truth.Layout).CheckBytes;
         var read = result.Candidates.Where(c => c.Status != BlockStatus.Failed).Select(c => Convert.ToHexStringLower([.. c.Header, .. c.Payload])).ToHashSet(StringComparer.Ordinal);
-        return written.Count(w => read.Contains(Convert.ToHexStringLower(w.AsSpan(0, w.Length - check))));
+        return [.. written.Select(w => read.Contains(Convert.ToHexStringLower(w.AsSpan(0, w.Length - check))))];
     }
 
     /// <summary>
