@@ -207,14 +207,18 @@ public static class BlockPositioner
         for (int p = 0; p < places.Count; p++)
         {
             string key = placeKey[p];
-            string? overlapped = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored);
+            string? overlapped = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored, out bool byClean);
             if (anchored)
             {
                 // A stretch of tape that an anchored reading covers is that block's place: readings of other settings
                 // there are misreads of it, whatever identity their garbled headers share with misreads elsewhere.
                 foreach (int i in places[p])
                 {
-                    keyed[i] = (keyed[i].Candidate, overlapped!);
+                    // Where only a failed reading keyed by a clean copy nearby covers the stretch, a header that other
+                    // readings share keeps its identity (as below): the stretch may be another block's that both misread.
+                    var c = keyed[i].Candidate;
+                    bool keepsOwn = !byClean && support[c.Identity.Key] > 1 && !(c.Truncated && c.Payload.IsEmpty);
+                    keyed[i] = (c, keepsOwn ? c.Identity.Key : overlapped!);
                 }
 
                 continue;
@@ -243,9 +247,10 @@ public static class BlockPositioner
     /// reading overlaps: an anchored reading's key, or another place's.
     /// </summary>
     private static string? OverlappedKey(
-        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first, out bool anchored)
+        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first, out bool anchored, out bool byClean)
     {
         anchored = false;
+        byClean = false;
         var c = keyed[first].Candidate;
         string? best = null;
         int bestSupport = 1;
@@ -269,9 +274,14 @@ public static class BlockPositioner
                 key = placeKey[placeOf[i]];
                 otherSupport = placeSupport[placeOf[i]];
             }
-            else
+            else if (other.Status == BlockStatus.Clean)
             {
                 otherSupport = int.MaxValue;
+            }
+            else
+            {
+                // A failed reading keyed by a clean copy nearby: it outweighs any place, but claims less than a clean one.
+                otherSupport = int.MaxValue - 1;
             }
 
             if (otherSupport > bestSupport)
@@ -281,7 +291,8 @@ public static class BlockPositioner
             }
         }
 
-        anchored = bestSupport == int.MaxValue;
+        anchored = bestSupport >= int.MaxValue - 1;
+        byClean = bestSupport == int.MaxValue;
         return best;
     }
 
