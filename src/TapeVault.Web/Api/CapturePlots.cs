@@ -96,8 +96,10 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
         ArgumentNullException.ThrowIfNull(run);
         return [.. run.Candidates.GroupBy(c => c.Position).Select(g =>
         {
+            // Ties go to the earliest reading, as in WholeCaptureSurveys.SpeedOf: the order rows come back in is the
+            // database's own (PostgreSQL's differs from SQLite's), and the kept survey is found by the speed this gives.
             static CandidatePoint best(IEnumerable<CandidatePoint> readings) =>
-                readings.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First();
+                readings.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).ThenBy(c => c.StartSeconds).First();
             var own = g.Where(c => c.SettingName == run.Setting.Name).ToList();
             var pick = best(own.Count > 0 ? own : g);
             return new BlockPositionView(g.Key, pick.IdentityKey, pick.Status, pick.Confidence, pick.StartSeconds, pick.EndSeconds, pick.SettingName, pick.Speed);
