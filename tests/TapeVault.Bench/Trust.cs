@@ -63,7 +63,7 @@ public static class Trust
     {
         int blocks = 300, firstSeed = 1, jobs = Environment.ProcessorCount;
         double minutes = double.PositiveInfinity;
-        string? only = null;
+        string[]? only = null;
         for (int i = 0; i + 1 < args.Length; i += 2)
         {
             switch (args[i])
@@ -71,9 +71,9 @@ public static class Trust
                 case "--blocks" or "--blocks-per-family": blocks = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
                 case "--first-seed": firstSeed = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
                 case "--jobs": jobs = int.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
-                case "--profile": only = args[i + 1]; break;
+                case "--profile": only = args[i + 1].Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries); break;
                 case "--minutes": minutes = double.Parse(args[i + 1], CultureInfo.InvariantCulture); break;
-                default: throw new ArgumentException($"Unknown option {args[i]}; trust takes --blocks-per-family N --first-seed S --jobs J --profile ID --minutes M.");
+                default: throw new ArgumentException($"Unknown option {args[i]}; trust takes --blocks-per-family N --first-seed S --jobs J --profile ID[,ID...] --minutes M.");
             }
         }
 
@@ -98,7 +98,7 @@ public static class Trust
         // Block formats: tapes from the first seed until the written blocks reach the count asked for. Streams: one
         // tape per 200 blocks asked for (each holds a few hundred bytes), at least two.
         var tapes = new List<(Subject Subject, int Seed, int Index)>();
-        foreach (var subject in subjects.Where(s => only is null || s.Profile.Id == only))
+        foreach (var subject in subjects.Where(s => only is null || only.Contains(s.Profile.Id)))
         {
             if (subject.Profile.Layout.IsStream)
             {
@@ -164,7 +164,7 @@ public static class Trust
         // What the asked-for count would take at this run's pace (block formats; streams are a few tapes each).
         var measured = outcomes.Where(o => !o.Subject.Profile.Layout.IsStream).ToList();
         int measuredBlocks = measured.Sum(o => o.WrittenBlocks);
-        int blockProfiles = subjects.Count(s => !s.Profile.Layout.IsStream && (only is null || s.Profile.Id == only));
+        int blockProfiles = subjects.Count(s => !s.Profile.Layout.IsStream && (only is null || only.Contains(s.Profile.Id)));
         if (measuredBlocks > 0 && skipped > 0)
         {
             double perBlock = stopwatch.Elapsed.TotalMinutes / Math.Max(1, outcomes.Sum(o => o.Subject.Profile.Layout.IsStream ? 0 : o.WrittenBlocks));

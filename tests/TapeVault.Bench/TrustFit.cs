@@ -22,7 +22,7 @@ public static class TrustFit
 
     public static int Run(string[] args)
     {
-        string? dump = null, output = null, note = null;
+        string? dump = null, output = null, note = null, keep = null;
         for (int i = 0; i + 1 < args.Length; i += 2)
         {
             switch (args[i])
@@ -30,7 +30,8 @@ public static class TrustFit
                 case "--dump": dump = args[i + 1]; break;
                 case "--out": output = args[i + 1]; break;
                 case "--note": note = args[i + 1]; break;
-                default: throw new ArgumentException($"Unknown option {args[i]}; trust-fit takes --dump FILE --out FILE --note TEXT.");
+                case "--keep": keep = args[i + 1]; break;
+                default: throw new ArgumentException($"Unknown option {args[i]}; trust-fit takes --dump FILE --out FILE --note TEXT [--keep MAP].");
             }
         }
 
@@ -83,7 +84,39 @@ public static class TrustFit
                 [.. groups.Where(g => g.Key.EndsWith("/" + group, StringComparison.Ordinal) && !g.Key.StartsWith(TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix, StringComparison.Ordinal)).SelectMany(g => g.Value)];
         }
 
+        // --keep MAP: only the built-in profiles in the dump get their own curves refitted; every other curve (the
+        // families', the pooled ones, other profiles') stays as MAP has it, fitted on the seeds its provenance names.
+        // For a tuning run restricted to a few profiles, whose readings alone would misfit the family curves.
+        JsonObject? kept = null;
+        var refitted = new SortedSet<string>(StringComparer.Ordinal);
+        if (keep is not null)
+        {
+            kept = JsonNode.Parse(File.ReadAllText(keep))!.AsObject();
+            foreach (string key in groups.Keys.Where(k => k.StartsWith(TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix, StringComparison.Ordinal)))
+            {
+                refitted.Add(key[TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix.Length..key.LastIndexOf('/')]);
+            }
+
+            foreach (string key in groups.Keys.Where(k => !k.StartsWith(TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix, StringComparison.Ordinal)).ToList())
+            {
+                groups.Remove(key);
+            }
+        }
+
         var curves = new JsonObject();
+        if (kept is not null)
+        {
+            foreach (var (key, curve) in kept["curves"]!.AsObject())
+            {
+                bool replaced = key.StartsWith(TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix, StringComparison.Ordinal)
+                    && refitted.Contains(key[TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix.Length..key.LastIndexOf('/')]);
+                if (!replaced)
+                {
+                    curves[key] = curve!.DeepClone();
+                }
+            }
+        }
+
         var counts = new StringBuilder();
         foreach (var (key, readings) in groups.OrderBy(g => g.Key, StringComparer.Ordinal))
         {
@@ -100,10 +133,20 @@ public static class TrustFit
             Console.WriteLine($"{key,-28} {readings.Count,7} readings, {readings.Count(r => r.Right),7} right, {x.Length,3} steps: {string.Join(' ', x.Zip(y).Select(p => $"{p.First:0.###}->{p.Second:0.###}"))}");
         }
 
+        string provenance = kept is null
+            ? $"Fitted by `dotnet run -c Release --project tests/TapeVault.Bench -- trust-fit --dump FILE --out FILE` on the trust benchmark's readings of tuning seeds {lowest}–{highest} (held-out seeds start at 20000). {note} Counts: {counts.ToString().TrimEnd(' ', ';')}."
+            : $"{kept["provenance"]?.GetValue<string>()} Then the own curves of {string.Join(", ", refitted)} refitted by `trust-fit --dump FILE --out FILE --keep MAP` (every other curve kept) on readings of tuning seeds {lowest}–{highest}. {note} Counts: {counts.ToString().TrimEnd(' ', ';')}.";
+        var ordered = new JsonObject();
+        foreach (var (key, curve) in curves.OrderBy(c => c.Key, StringComparer.Ordinal).ToList())
+        {
+            curves.Remove(key);
+            ordered[key] = curve;
+        }
+
         var root = new JsonObject
         {
-            ["provenance"] = $"Fitted by `dotnet run -c Release --project tests/TapeVault.Bench -- trust-fit --dump FILE --out FILE` on the trust benchmark's readings of tuning seeds {lowest}–{highest} (held-out seeds start at 20000). {note} Counts: {counts.ToString().TrimEnd(' ', ';')}.",
-            ["curves"] = curves,
+            ["provenance"] = provenance,
+            ["curves"] = ordered,
         };
         File.WriteAllText(output, root.ToJsonString(s_json) + "\n");
         Console.WriteLine($"Wrote {output}.");

@@ -55,8 +55,9 @@ public sealed class WeakCheckTests
         Assert.True(noisy.Doubts.HasFlag(BlockDoubts.Uncorroborated), $"doubts {noisy.Doubts}");
 
         // Its confidence is the rate at which such readings (failed, their check holding but unproven) were right
-        // on the tuning seeds, not the model's figure: one formula, through the family's calibration map.
-        Assert.Equal(ConfidenceMap.Default.Map(FormatFamily.Biphase, ConfidenceGroup.HoldsUnproven, noisy.ModelConfidence), noisy.Confidence, 9);
+        // on the tuning seeds, not the model's figure: one formula, through the calibration map (the profile's own curve
+        // where the map has one, as the product picks it).
+        Assert.Equal(ConfidenceMap.Default.Map(With(checksum).Id, FormatFamily.Biphase, ConfidenceGroup.HoldsUnproven, noisy.ModelConfidence), noisy.Confidence, 9);
 
         // The same decisions read well: the weak check and the margins together make it clean.
         var sure = Read(With(checksum), 0.9f, 0.02f);
@@ -84,7 +85,7 @@ public sealed class WeakCheckTests
         // Prior odds 0.06 that a block with one framing error is right, times 256 for a holding 8-bit check: 0.94 as
         // the model says; what it shows is the calibrated rate of such readings.
         Assert.Equal(0.06 * 256 / (1 + (0.06 * 256)), slipped.ModelConfidence, 2);
-        Assert.Equal(ConfidenceMap.Default.Map(FormatFamily.Biphase, ConfidenceGroup.HoldsUnproven, slipped.ModelConfidence), slipped.Confidence, 9);
+        Assert.Equal(ConfidenceMap.Default.Map(With("sum8").Id, FormatFamily.Biphase, ConfidenceGroup.HoldsUnproven, slipped.ModelConfidence), slipped.Confidence, 9);
     }
 
     [Fact]
