@@ -53,4 +53,32 @@ internal static class CliProcess
 
         return Start(workingDirectory, ((string[])["worker", .. archive, "--workers", "1"]).Concat(more), settings);
     }
+
+    /// <summary>
+    /// Kills <paramref name="process"/> (and its children) when disposed, if it still runs: a test that fails halfway
+    /// leaves no worker behind (disposing a <see cref="Process"/> alone does not end it), stopped (SIGSTOP) or not.
+    /// </summary>
+    public static IDisposable EndedWithTest(Process process)
+    {
+        ArgumentNullException.ThrowIfNull(process);
+        return new Ender(process);
+    }
+
+    private sealed class Ender(Process process) : IDisposable
+    {
+        public void Dispose()
+        {
+            try
+            {
+                if (!process.HasExited)
+                {
+                    process.Kill(entireProcessTree: true);
+                }
+            }
+            catch (InvalidOperationException)
+            {
+                // It ended in between.
+            }
+        }
+    }
 }

@@ -49,7 +49,7 @@ public static partial class Scale
         var options = Parse(args);
         string root = Path.Combine(work, $"scale-{options.Tapes}x{options.CapturesPerTape}-{options.CaptureKilobytes}k-{options.LongBlocks}b{(options.Provider == DatabaseProvider.PostgreSql ? "-pg" : string.Empty)}");
         Console.WriteLine($"== The archive at scale: {options.Tapes} tapes × {options.CapturesPerTape} captures of {options.CaptureKilobytes} KiB, one tape of {options.LongBlocks} blocks × 3 passes, on {options.Provider}");
-        Console.WriteLine($"archive folder {root}; load at start: {Load()}");
+        Console.WriteLine($"archive folder {root}; load at start: {MachineLoad.Averages()}");
         var built = Path.Combine(root, "built.txt");
 
         // On PostgreSQL the archive's database (and the job engine's schedule, clustered as several machines would
@@ -124,7 +124,7 @@ public static partial class Scale
             await MeasureFixityAsync(root);
         }
 
-        Console.WriteLine($"load at end: {Load()}");
+        Console.WriteLine($"load at end: {MachineLoad.Averages()}");
         Console.WriteLine();
         return 0;
     }
@@ -616,8 +616,6 @@ public static partial class Scale
         new Random(seed).NextBytes(wav.AsSpan(44));
         return wav;
     }
-
-    private static string Load() => File.Exists("/proc/loadavg") ? string.Join(' ', File.ReadAllText("/proc/loadavg").Split(' ').Take(3)) : "unknown";
 
     private static void MakeWritable(string folder)
     {

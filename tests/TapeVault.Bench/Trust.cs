@@ -120,7 +120,7 @@ public static class Trust
         }
 
         Console.WriteLine($"Trust on damage nobody tuned for: tapes of seeds {firstSeed} onwards, {PassesPerTape} passes each, {jobs} at a time, {tapes.Count} tapes{(double.IsFinite(minutes) ? $", no new tape after {minutes} min" : string.Empty)}.");
-        Console.WriteLine($"Load at start: {Load()} (1, 5, 15-minute load averages on {Environment.ProcessorCount} cores).");
+        Console.WriteLine($"Load at start: {MachineLoad.Averages()} (1, 5, 15-minute load averages on {Environment.ProcessorCount} cores).");
         var outcomes = new ConcurrentBag<TapeOutcome>();
         int done = 0, skipped = 0;
         var cpu = Process.GetCurrentProcess().TotalProcessorTime;
@@ -159,7 +159,7 @@ public static class Trust
         }
         Console.WriteLine($"This process's CPU time {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:0} s (SoX and minimodem run as processes of their own, not counted).");
         Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s wall; wall time summed over workers: making captures {Stopwatch.GetElapsedTime(0, s_makeTicks).TotalSeconds:0} s, decoding {Stopwatch.GetElapsedTime(0, s_decodeTicks).TotalSeconds:0} s, merging {Stopwatch.GetElapsedTime(0, s_mergeTicks).TotalSeconds:0} s.");
-        Console.WriteLine($"Load at end: {Load()}.");
+        Console.WriteLine($"Load at end: {MachineLoad.Averages()}.");
 
         // What the asked-for count would take at this run's pace (block formats; streams are a few tapes each).
         var measured = outcomes.Where(o => !o.Subject.Profile.Layout.IsStream).ToList();
@@ -167,7 +167,7 @@ public static class Trust
         int blockProfiles = subjects.Count(s => !s.Profile.Layout.IsStream && (only is null || only.Contains(s.Profile.Id)));
         if (measuredBlocks > 0 && skipped > 0)
         {
-            double perBlock = stopwatch.Elapsed.TotalMinutes / Math.Max(1, outcomes.Sum(o => o.Subject.Profile.Layout.IsStream ? 0 : o.WrittenBlocks));
+            double perBlock = stopwatch.Elapsed.TotalMinutes / measuredBlocks;
             Console.WriteLine($"At this run's pace ({measuredBlocks} written blocks in {stopwatch.Elapsed.TotalMinutes:0.0} min with {jobs} workers, streams included), {blocks} blocks a profile for {blockProfiles} block profiles would take about {perBlock * blocks * blockProfiles:0} min.");
         }
         Console.WriteLine();
@@ -223,8 +223,6 @@ public static class Trust
 
         return files;
     }
-
-    private static string Load() => File.Exists("/proc/loadavg") ? string.Join(' ', File.ReadAllText("/proc/loadavg").Split(' ').Take(3)) : "unknown";
 
     private static int StableHash(string text)
     {

@@ -81,12 +81,12 @@ public static class WholeCaptureSurveys
     /// The playback speed a setting's marks are placed for: the median over block positions of the speed of that
     /// setting's best reading there (clean first, then the most confident, then the earliest); 1 where it read no block.
     /// </summary>
-    public static double SpeedOf(IEnumerable<(int Position, string SettingName, BlockStatus Status, double Confidence, double Speed, double StartSeconds)> readings, string settingName)
+    public static double SpeedOf(IEnumerable<(int Position, string SettingName, bool Clean, double Confidence, double Speed, double StartSeconds)> readings, string settingName)
     {
         ArgumentNullException.ThrowIfNull(readings);
         var speeds = readings.Where(r => r.SettingName == settingName)
             .GroupBy(r => r.Position)
-            .Select(g => g.OrderByDescending(r => r.Status == BlockStatus.Clean).ThenByDescending(r => r.Confidence).ThenBy(r => r.StartSeconds).First().Speed)
+            .Select(g => g.OrderByDescending(r => r.Clean).ThenByDescending(r => r.Confidence).ThenBy(r => r.StartSeconds).First().Speed)
             .Where(v => v > 0 && double.IsFinite(v))
             .Order()
             .ToArray();
@@ -107,7 +107,7 @@ public static class WholeCaptureSurveys
         ArgumentNullException.ThrowIfNull(profile);
         ArgumentNullException.ThrowIfNull(settings);
         ArgumentNullException.ThrowIfNull(candidates);
-        var readings = candidates.Select(c => (c.Position, c.SettingName, c.Status, c.Confidence, c.Speed, c.StartSeconds)).ToList();
+        var readings = candidates.Select(c => (c.Position, c.SettingName, c.Status == BlockStatus.Clean, c.Confidence, c.Speed, c.StartSeconds)).ToList();
         if (counted is not null && counted.Count != settings.Count)
         {
             throw new ArgumentException("The decode counts one survey for each setting.", nameof(counted));

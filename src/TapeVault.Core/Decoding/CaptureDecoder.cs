@@ -289,23 +289,10 @@ public static class CaptureDecoder
             {
                 _decoders[i].OnEdges(work.Edges[i].Items);
                 _surveys?[i].AddIntervals(work.Edges[i].Items);
-                if (!_decoders[i].ReadsTones)
+                if (_decoders[i].ReadsTones)
                 {
-                    continue;
+                    _decoders[i].OnTones(work.Tones!.Lane(i, work.Length), work.Start);
                 }
-
-                int j = i + parts;
-                if (_decoders[i] is FskDecoder first && j < _decoders.Length && _decoders[j] is FskDecoder second)
-                {
-                    // Two FSK settings of this part go through the chunk side by side (see FskDecoder.OnTones).
-                    second.OnEdges(work.Edges[j].Items);
-                    _surveys?[j].AddIntervals(work.Edges[j].Items);
-                    FskDecoder.OnTones(first, work.Tones!.Lane(i, work.Length), second, work.Tones.Lane(j, work.Length), work.Start);
-                    i = j;
-                    continue;
-                }
-
-                _decoders[i].OnTones(work.Tones!.Lane(i, work.Length), work.Start);
             }
         }
 

@@ -36,6 +36,21 @@ public static class ProfileDrafter
 
         // The best-fitting family's reading stands unless no check value proves it and a later family's check value
         // proves its own beyond chance (an alternating biphase preamble looks like two pulse classes, say).
+        ProfileDraft? TryAssemble(IFamilyDrafter drafter, FamilyScore score, FamilyProposal proposal, double familyConfidence)
+        {
+            try
+            {
+                return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)], refusals);
+            }
+            catch (ProfileException e)
+            {
+                // What this family found cannot be written as a profile (a sync too short to be found, say): its
+                // reason is kept, and the next family is tried.
+                refusals.Add($"The {drafter.Family} reading found cannot be a profile: {e.Message}");
+                return null;
+            }
+        }
+
         (IFamilyDrafter Drafter, FamilyScore Score, FamilyProposal Proposal)? unproven = null;
         foreach (var (drafter, score) in scores)
         {
@@ -74,31 +89,20 @@ public static class ProfileDrafter
                 continue;
             }
 
-            double runnerUp = scores.Where(s => s.Drafter != drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
-            bool proven = proposal.Findings.Any(f => f.Path == "layout.checksum");
-            double familyConfidence = proven ? 0.97 : Math.Clamp(0.5 + score.Score - runnerUp, 0.3, 0.95);
-            try
+            // Every proposal that gets here has a check that holds on its blocks (the two tests above): the family is
+            // as sure as that check.
+            if (TryAssemble(drafter, score, proposal, 0.97) is { } proven)
             {
-                return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)], refusals);
-            }
-            catch (ProfileException e)
-            {
-                // What this family found cannot be written as a profile (a sync too short to be found, say): its
-                // reason is kept, and the next family is tried.
-                refusals.Add($"The {drafter.Family} reading found cannot be a profile: {e.Message}");
+                return proven;
             }
         }
 
         if (unproven is { } first)
         {
             double runnerUp = scores.Where(s => s.Drafter != first.Drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
-            try
+            if (TryAssemble(first.Drafter, first.Score, first.Proposal, Math.Clamp(0.5 + first.Score.Score - runnerUp, 0.3, 0.95)) is { } draft)
             {
-                return Assemble(stretch, first.Drafter.Family, Math.Clamp(0.5 + first.Score.Score - runnerUp, 0.3, 0.95), first.Score, first.Proposal, [.. scores.Select(s => s.Score)], refusals);
-            }
-            catch (ProfileException e)
-            {
-                refusals.Add($"The {first.Drafter.Family} reading found cannot be a profile: {e.Message}");
+                return draft;
             }
         }
 

@@ -116,12 +116,8 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         return first;
     }
 
-    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> clusters, int[] symbols, double grouped, CancellationToken cancellation)
+    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> classesFound, int[] sym, double grouped, CancellationToken cancellation)
     {
-        var chosen = (Setting: setting, Clusters: clusters, Symbols: symbols);
-        var classesFound = chosen.Clusters;
-        var sym = chosen.Symbols;
-
         // The lead-in: the class of the long runs.
         var longRuns = Runs(sym).Where(r => r.Class >= 0 && r.Length >= LeastLeadInCycles).ToList();
         if (longRuns.Count == 0)
@@ -176,7 +172,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         // Bits as pairs of pulses with a marker before every byte: a structure of its own, read by PulsePairs.
         if (!gapped && PulsePairs.Read(blocks, classesFound.Count, leadIn, cancellation) is { } pairs)
         {
-            return ProposePairs(pairs, chosen.Setting, grouped, classesFound, leadIn, leadRuns, blocks.Count);
+            return ProposePairs(pairs, setting, grouped, classesFound, leadIn, leadRuns, blocks.Count);
         }
 
         // The bit classes: the two commonest inside blocks.
@@ -245,7 +241,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         }
 
         proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select(i => $"{names[i]} {Us(classesFound[i].Seconds)} µs")), 0.9,
-            $"groups of cycle lengths through setting {chosen.Setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * grouped, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)"
+            $"groups of cycle lengths through setting {setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * grouped, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)"
             + (dropped.Count == 0 ? string.Empty : $"; left out, as no bit, lead-in or sync uses them: {string.Join(", ", dropped.Select(c => $"{Us(c.Seconds)} µs"))}"));
         proposal.Measured("pulseWidth.leadIn.class", names[leadIn], 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(r => r.Length)} {names[leadIn]} cycles");
         proposal.Measured("pulseWidth.leadIn.minimumCount", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortestLeadIn} cycles)");
@@ -262,7 +258,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         {
             SyncAsBytes(proposal, reading, leadIn);
         }
-        proposal.Notes.Add($"Read through detector setting {chosen.Setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync, mapping and framing held.");
+        proposal.Notes.Add($"Read through detector setting {setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync, mapping and framing held.");
         return proposal;
     }
 

@@ -361,7 +361,6 @@ internal sealed class StreamMerge
             logConfidence += Math.Log(Math.Max(p, 1e-300));
         }
 
-
         // Provenance: per capture, the reading that gave most of the winning bytes; the capture that gave most first.
         var winning = slots.SelectMany(s => s.Bytes.Where(b => b.Value == s.Value)).ToList();
         var sources = winning

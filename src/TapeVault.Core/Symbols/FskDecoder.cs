@@ -200,30 +200,6 @@ public sealed class FskDecoder : ISymbolDecoder
         _speed.EndChunk();
     }
 
-    /// <summary>
-    /// Two settings' decoders over the same chunk, sample by sample in turn. Each decoder's work hangs on its own last
-    /// sample (running levels and counts), and the two are independent, so the processor overlaps one's with the
-    /// other's: the same decisions as two <see cref="OnTones(ToneLane, long)"/> calls, in less time.
-    /// </summary>
-    public static void OnTones(FskDecoder first, ToneLane firstTones, FskDecoder second, ToneLane secondTones, long chunkStart)
-    {
-        ArgumentNullException.ThrowIfNull(first);
-        ArgumentNullException.ThrowIfNull(second);
-        if (firstTones.Length != secondTones.Length)
-        {
-            throw new ArgumentException("Both settings' tones must cover the same chunk.", nameof(secondTones));
-        }
-
-        for (int i = 0; i < firstTones.Length; i++)
-        {
-            first.Step(firstTones.Mark(i), firstTones.Space(i), chunkStart + i);
-            second.Step(secondTones.Mark(i), secondTones.Space(i), chunkStart + i);
-        }
-
-        first._speed.EndChunk();
-        second._speed.EndChunk();
-    }
-
     /// <summary>One sample: the mark and space energies of the window that ends at <paramref name="sample"/>.</summary>
     private void Step(double mark, double space, long sample)
     {

@@ -200,13 +200,9 @@ public static class RandomFormats
     }
 
     /// <summary>
-    /// How many of the blocks written (<paramref name="written"/>: header, payload and check, under
-    /// <paramref name="truth"/>) a decode read back exactly (header and payload) in a reading that is not failed.
+    /// For each block written (<paramref name="written"/>: header, payload and check, under <paramref name="truth"/>),
+    /// whether a decode read it back exactly (header and payload) in a reading that is not failed.
     /// </summary>
-    public static int Recovered(DecodeResult result, FormatProfile truth, IReadOnlyList<byte[]> written) =>
-        RecoveredBlocks(result, truth, written).Count(r => r);
-
-    /// <summary>For each block written, whether a decode read it back exactly (see <see cref="Recovered"/>).</summary>
     public static bool[] RecoveredBlocks(DecodeResult result, FormatProfile truth, IReadOnlyList<byte[]> written)
     {
         ArgumentNullException.ThrowIfNull(result);

@@ -16,8 +16,9 @@ public sealed partial class ArchiveQueries
     /// The tape timeline of an item, drawn, and whether it came from the drawings kept under the store's
     /// <c>derived/timelines</c> folder. A drawing depends only on the runs the merge takes (a run and its readings are
     /// written in one save and never changed), the newest image (content-addressed), the title, the links and the code
-    /// that draws it; all of them are in the file's name, so a new decode, a new merge, a renamed tape or a new build
-    /// of the app draws anew, and a long tape's thousands of readings are read from the database once, not per view.
+    /// that builds and draws it (the core's and this web app's builds); all of them are in the file's name, so a new
+    /// decode, a new merge, a renamed tape or a new build of the app draws anew, and a long tape's thousands of
+    /// readings are read from the database once, not per view.
     /// </summary>
     public async Task<(TimelineDrawing Drawing, bool Cached)> TimelineDrawingAsync(int itemId, string title, string? positionLinkPrefix, CancellationToken cancellation = default)
     {
@@ -28,6 +29,7 @@ public sealed partial class ArchiveQueries
         bool imageStored = newest is not null && store.Exists(newest);
         var identity = new StringBuilder()
             .Append(typeof(TimelineSvg).Assembly.ManifestModule.ModuleVersionId).Append('\n')
+            .Append(typeof(ArchiveQueries).Assembly.ManifestModule.ModuleVersionId).Append('\n')
             .Append(itemId).Append('\n')
             .Append(string.Join(',', runs.Select(r => r.Id))).Append('\n')
             .Append(imageStored ? newest : "-").Append('\n')
@@ -45,9 +47,9 @@ public sealed partial class ArchiveQueries
                     return (kept, true);
                 }
             }
-            catch (JsonException)
+            catch (Exception e) when (e is JsonException or IOException or UnauthorizedAccessException)
             {
-                // A damaged cache file is drawn anew and replaced below.
+                // A damaged or unreadable kept drawing is drawn anew (and replaced below, if the store lets us).
             }
         }
 
@@ -62,11 +64,21 @@ public sealed partial class ArchiveQueries
                 TimelineSvg.Render(timeline, timeline.Image is null || positionLinkPrefix is null ? null : p => $"{positionLinkPrefix}{p}", title: title),
                 folded > 0 ? TimelineSvg.Render(timeline, null, folded: true, title: "Settings that read nothing checkable") : null);
 
-        // Written beside, then moved into place: a reader sees the old file, none, or the whole new one.
-        Directory.CreateDirectory(Path.GetDirectoryName(cache)!);
-        string temporary = $"{cache}.{Guid.NewGuid():N}.tmp";
-        await File.WriteAllBytesAsync(temporary, JsonSerializer.SerializeToUtf8Bytes(drawing), cancellation).ConfigureAwait(false);
-        File.Move(temporary, cache, overwrite: true);
+        // Written in the store's temporary folder (which its sweep clears), then moved into place: a reader sees the old
+        // file, none, or the whole new one. The drawing is only kept to spare the next view; a store that cannot take
+        // it (disk full, read-only) costs that, not the page.
+        string temporary = Path.Combine(store.TempFolder, $"{Guid.NewGuid():N}.timeline.part");
+        try
+        {
+            Directory.CreateDirectory(Path.GetDirectoryName(cache)!);
+            await File.WriteAllBytesAsync(temporary, JsonSerializer.SerializeToUtf8Bytes(drawing), cancellation).ConfigureAwait(false);
+            File.Move(temporary, cache, overwrite: true);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            File.Delete(temporary);
+        }
+
         return (drawing, false);
     }
 }

@@ -96,12 +96,8 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
         ArgumentNullException.ThrowIfNull(run);
         return [.. run.Candidates.GroupBy(c => c.Position).Select(g =>
         {
-            // Ties go to the earliest reading, as in WholeCaptureSurveys.SpeedOf: the order rows come back in is the
-            // database's own (PostgreSQL's differs from SQLite's), and the kept survey is found by the speed this gives.
-            static CandidatePoint best(IEnumerable<CandidatePoint> readings) =>
-                readings.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).ThenBy(c => c.StartSeconds).First();
             var own = g.Where(c => c.SettingName == run.Setting.Name).ToList();
-            var pick = best(own.Count > 0 ? own : g);
+            var pick = Best(own.Count > 0 ? own : g);
             return new BlockPositionView(g.Key, pick.IdentityKey, pick.Status, pick.Confidence, pick.StartSeconds, pick.EndSeconds, pick.SettingName, pick.Speed);
         }).OrderBy(b => b.StartSeconds)];
     }
@@ -199,8 +195,10 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
             "whole" => true,
             _ => throw new ArchiveInputException("The histogram's scope is \"block\" or \"whole\"."),
         };
-        var mine = blocks.Where(b => b.Setting == run.Setting.Name).ToList();
-        double speed = Median(mine.Select(b => b.Speed)) ?? 1;
+        // The speed the marks are placed for is the one the decode job kept the whole-capture survey under: one rule.
+        double speed = WholeCaptureSurveys.SpeedOf(
+            run.Candidates.Select(c => (c.Position, c.SettingName, c.Status == "clean", c.Confidence, c.Speed, c.StartSeconds)),
+            run.Setting.Name);
         double from = 0, to = run.Capture.DurationSeconds;
         if (!whole)
         {
@@ -302,12 +300,19 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
         return Speed(run);
     }
 
+    /// <summary>
+    /// A position's best reading: clean first, then the most confident, then the earliest (as in
+    /// WholeCaptureSurveys.SpeedOf; the order rows come back in is the database's own, PostgreSQL's not SQLite's).
+    /// </summary>
+    private static CandidatePoint Best(IEnumerable<CandidatePoint> readings) =>
+        readings.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).ThenBy(c => c.StartSeconds).First();
+
     public static SpeedView Speed(ChosenRun run)
     {
         ArgumentNullException.ThrowIfNull(run);
         var points = run.Candidates.Where(c => c.SettingName == run.Setting.Name)
             .GroupBy(c => c.Position)
-            .Select(g => g.OrderByDescending(c => c.Status == "clean").ThenByDescending(c => c.Confidence).First())
+            .Select(Best)
             .OrderBy(c => c.StartSeconds)
             .Select(c => new SpeedPointView(c.Position, c.IdentityKey, c.StartSeconds, c.EndSeconds, c.Speed, c.Status))
             .ToList();

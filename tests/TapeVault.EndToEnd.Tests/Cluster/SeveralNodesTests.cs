@@ -118,10 +118,14 @@ public sealed class SeveralNodesTests(PostgreSqlServer server, ITestOutputHelper
         // The doomed worker starts first and alone, so that the one node in the schedule's state table is it.
         var worker = new Dictionary<string, string>(settings);
         using var doomed = CliProcess.StartWorker(Path.Combine(folder, "web"), ["--store", store], worker);
+        using var doomedEnds = CliProcess.EndedWithTest(doomed);
+        _ = doomed.StandardOutput.ReadToEndAsync();
+        _ = doomed.StandardError.ReadToEndAsync();
         string doomedNode = await WaitForValueAsync(
             () => ScalarAsync<string>(schedule, "SELECT instance_name FROM qrtz_scheduler_state WHERE sched_name = @s", ("s", SchedulerName)),
             "the first worker to check in to the clustered schedule");
         using var survivor = CliProcess.StartWorker(Path.Combine(folder, "web"), ["--store", store], worker);
+        using var survivorEnds = CliProcess.EndedWithTest(survivor);
         var survivorOutput = survivor.StandardOutput.ReadToEndAsync();
         var survivorError = survivor.StandardError.ReadToEndAsync();
 
