@@ -37,6 +37,23 @@ public sealed class CatalogueGatheringTests(SharedArchive shared)
         Assert.Equal(expected, Write(again with { PublishedUtc = batched.PublishedUtc }));
     }
 
+    [Fact]
+    public async Task PublishingReadsTheSurveysTheDecodeJobKeptAndMakesNoneOfItsOwn()
+    {
+        var archive = shared.Archive;
+        using var scope = archive.Services.CreateScope();
+        var site = await scope.ServiceProvider.GetRequiredService<CataloguePublisher>().SiteAsync(archive.CollectionId);
+        Assert.Contains(site.Items, i => i.Histogram is not null);
+
+        // The decode job keeps one survey per setting of its run; a histogram chosen by rules of the catalogue's own
+        // (another setting, speed or bin count) would have added files beside them.
+        await using var db = archive.NewContext();
+        var runs = await db.Runs.AsNoTracking().Where(r => r.Capture!.Item!.CollectionId == archive.CollectionId).Select(r => r.SettingsJson).ToListAsync();
+        int made = runs.Sum(r => Runs.SettingsJson.Read(r).Count);
+        var folder = Path.Combine(archive.Store.Root, "derived", "surveys");
+        Assert.Equal(made, Directory.EnumerateFiles(folder, "*.json", SearchOption.AllDirectories).Count());
+    }
+
     private static SortedDictionary<string, string> Write(CatalogueSite site)
     {
         var folder = Directory.CreateTempSubdirectory("tapevault-catalogue-").FullName;
@@ -59,7 +76,8 @@ public sealed class CatalogueGatheringTests(SharedArchive shared)
     /// <summary>
     /// The catalogue's items as gathered one tape at a time: a dossier per tape, its image's size, its histogram
     /// surveyed. A frozen copy of how the publisher gathered them before it worked in batches (its code at commit
-    /// c1bf7d1): the reference the batched gathering is held to, so it is kept as it was, not kept in step.
+    /// c1bf7d1): the reference the batched gathering is held to, so it is kept as it was, not kept in step, except
+    /// where the histogram's choice of setting and speed became the capture page's.
     /// </summary>
     private static async Task<List<CatalogueItem>> TapeByTapeAsync(ArchiveFixture archive)
     {
@@ -103,20 +121,21 @@ public sealed class CatalogueGatheringTests(SharedArchive shared)
             return null;
         }
 
-        var clean = await db.Candidates.AsNoTracking().Where(c => c.RunId == run.Id && c.Status == BlockStatus.Clean).OrderBy(c => c.SettingName)
-            .Select(c => new { c.SettingName, c.Speed }).ToListAsync();
+        // The histogram is the capture page's: its setting and speed by the rules the page shares (the one deliberate
+        // change to this copy), surveyed here from the audio itself rather than from any kept survey.
+        var readings = await db.Candidates.AsNoTracking().Where(c => c.RunId == run.Id)
+            .Select(c => new { c.Position, c.SettingName, c.Status, c.Confidence, c.Speed, c.StartSeconds }).ToListAsync();
         var settings = Runs.SettingsJson.Read(run.SettingsJson);
-        var best = clean.GroupBy(c => c.SettingName).OrderByDescending(g => g.Count()).FirstOrDefault();
-        var setting = settings.FirstOrDefault(s => s.Name == best?.Key) ?? (settings.Count > 0 ? settings[0] : null);
-        if (setting is null)
+        if (settings.Count == 0)
         {
             return null;
         }
 
-        double speed = best is null ? 1 : best.Select(c => c.Speed).Order().ElementAt(best.Count() / 2);
+        var setting = Runs.WholeCaptureSurveys.ShownSetting(settings, readings.Select(r => (r.SettingName, r.Status == BlockStatus.Clean)));
+        double speed = Runs.WholeCaptureSurveys.SpeedOf(readings.Select(r => (r.Position, r.SettingName, r.Status == BlockStatus.Clean, r.Confidence, r.Speed, r.StartSeconds)), setting.Name);
         var marks = PulseMarks.For(profile, setting, speed);
-        using var reader = CaptureReader.Open(archive.Store.PathOf(capture.Sha256));
-        var result = PulseSurvey.Measure(reader, setting, new Core.Pulses.PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, 120));
+        using var reader = CaptureReader.Open(archive.Store.PathOf(capture.Sha256), Runs.WholeCaptureSurveys.Channel);
+        var result = PulseSurvey.Measure(reader, setting, new Core.Pulses.PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, Runs.WholeCaptureSurveys.Bins));
         return new PulseHistogram(
             [.. result.BinEdgesSeconds.Select(e => e * 1e6)],
             [.. result.Counts],

@@ -12,20 +12,19 @@ using TapeVault.Core.Image;
 using TapeVault.Core.Pulses;
 using PulseHistogram = TapeVault.Core.Catalogue.PulseHistogram;
 
+using Reading = (int Position, string SettingName, bool Clean, double Confidence, double Speed, double StartSeconds);
+
 namespace TapeVault.Archive.Export;
 
 /// <summary>Gathers a collection's items from the archive into the catalogue model and writes the static site.</summary>
 public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, ArchiveOptions options, ProfileCatalog profiles)
 {
-    /// <summary>How many runs' readings one query asks for (the histograms' clean readings), so that a query's list stays small.</summary>
+    /// <summary>How many runs' readings one query asks for (the histograms' readings), so that a query's list stays small.</summary>
     private const int RunsPerQuery = 500;
-
-    /// <summary>The bins of a catalogue page's pulse-length histogram.</summary>
-    private const int HistogramBins = 120;
 
     /// <summary>
     /// The catalogue model of a collection. A collection of ten thousand tapes is gathered in a handful of queries (its
-    /// items, captures, runs and image records each in one, the histograms' clean readings a few hundred runs at a time),
+    /// items, captures, runs and image records each in one, the histograms' readings a few hundred runs at a time),
     /// not a round trip per tape; the tape images are read from the store and the histograms' pulse surveys run on
     /// every core, each tape's on its own.
     /// </summary>
@@ -57,18 +56,19 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
             return ValueTask.CompletedTask;
         }).ConfigureAwait(false);
 
-        // The histogram of each tape: which run it is read from, then those runs' clean readings in a few queries.
+        // The histogram of each tape: which run it is read from, then those runs' readings in a few queries.
         var sources = tapes.Select(HistogramSource).ToArray();
         var chosen = sources.Where(s => s is not null).Select(s => s!.Value.Run.Id).Distinct().ToList();
-        var clean = new Dictionary<int, List<(string Setting, double Speed)>>();
+        var readings = new Dictionary<int, List<Reading>>();
         for (int start = 0; start < chosen.Count; start += RunsPerQuery)
         {
             var batch = chosen.GetRange(start, Math.Min(RunsPerQuery, chosen.Count - start));
-            var rows = await db.Candidates.AsNoTracking().Where(c => batch.Contains(c.RunId) && c.Status == BlockStatus.Clean)
-                .Select(c => new { c.RunId, c.SettingName, c.Speed }).ToListAsync(cancellation).ConfigureAwait(false);
+            var rows = await db.Candidates.AsNoTracking().Where(c => batch.Contains(c.RunId))
+                .Select(c => new { c.RunId, c.Position, c.SettingName, c.Status, c.Confidence, c.Speed, c.StartSeconds }).ToListAsync(cancellation).ConfigureAwait(false);
             foreach (var row in rows)
             {
-                (clean.TryGetValue(row.RunId, out var list) ? list : clean[row.RunId] = []).Add((row.SettingName, row.Speed));
+                (readings.TryGetValue(row.RunId, out var list) ? list : readings[row.RunId] = [])
+                    .Add((row.Position, row.SettingName, row.Status == BlockStatus.Clean, row.Confidence, row.Speed, row.StartSeconds));
             }
         }
 
@@ -77,7 +77,7 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
         {
             if (sources[i] is { } source)
             {
-                histograms[i] = Histogram(source.Capture, source.Run, clean.GetValueOrDefault(source.Run.Id) ?? [], token);
+                histograms[i] = Histogram(source.Capture, source.Run, readings.GetValueOrDefault(source.Run.Id) ?? [], token);
             }
 
             return ValueTask.CompletedTask;
@@ -215,10 +215,11 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
     }
 
     /// <summary>
-    /// The pulse lengths of a capture, read by the setting of its run that found most clean blocks (the first by name
-    /// among equals), with the profile's marks placed at that capture's measured speed.
+    /// The pulse lengths of a capture as its capture page shows them: the setting and speed chosen by the rules the
+    /// page and the decode job share (<see cref="Runs.WholeCaptureSurveys"/>), so the survey the decode job kept is the
+    /// one published and a first publish reads no audio for captures decoded since surveys were kept.
     /// </summary>
-    private PulseHistogram? Histogram(Capture capture, DecodeRun run, List<(string Setting, double Speed)> clean, CancellationToken cancellation)
+    private PulseHistogram? Histogram(Capture capture, DecodeRun run, List<Reading> readings, CancellationToken cancellation)
     {
         if (!profiles.TryGet(run.ProfileId, out var profile))
         {
@@ -226,27 +227,19 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
         }
 
         var settings = Runs.SettingsJson.Read(run.SettingsJson);
-        var best = clean.GroupBy(c => c.Setting).OrderByDescending(g => g.Count()).ThenBy(g => g.Key, StringComparer.Ordinal).FirstOrDefault();
-        var setting = settings.FirstOrDefault(s => s.Name == best?.Key) ?? (settings.Count > 0 ? settings[0] : null);
-        if (setting is null)
+        if (settings.Count == 0)
         {
             return null;
         }
 
-        double speed = best is null ? 1 : best.Select(c => c.Speed).Order().ElementAt(best.Count() / 2);
-        var marks = PulseMarks.For(profile, setting, speed);
-        // A survey reads the whole capture; it is kept beside the others (its own bin count in its key), so publishing
-        // again reads only the captures decoded since.
-        string kept = Runs.WholeCaptureSurveys.CachePath(store, capture.Sha256, setting, marks, HistogramBins);
+        var setting = Runs.WholeCaptureSurveys.ShownSetting(settings, readings.Select(r => (r.SettingName, r.Clean)));
+        var marks = PulseMarks.For(profile, setting, Runs.WholeCaptureSurveys.SpeedOf(readings, setting.Name));
+        string kept = Runs.WholeCaptureSurveys.CachePath(store, capture.Sha256, setting, marks);
         var result = Runs.WholeCaptureSurveys.TryRead(kept);
         if (result is null)
         {
-            using (var reader = CaptureReader.Open(store.PathOf(capture.Sha256)))
-            {
-                result = PulseSurvey.Measure(reader, setting, new Core.Pulses.PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, HistogramBins), cancellation);
-            }
-
-            Runs.WholeCaptureSurveys.Write(store, kept, result);
+            // A run decoded before surveys were kept: read once, then kept for the page and the next publish.
+            result = Runs.WholeCaptureSurveys.MeasureAndKeep(store, store.PathOf(capture.Sha256), kept, setting, marks, cancellation);
         }
 
         return new PulseHistogram(

@@ -29,8 +29,8 @@ public static class WholeCaptureSurveys
 
     private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web);
 
-    /// <summary>Where the survey for these choices is kept (<paramref name="bins"/>: the published catalogue's histograms have their own).</summary>
-    public static string CachePath(ContentStore store, string captureSha256, DetectorSetting setting, PulseMarkSet marks, int bins = Bins)
+    /// <summary>Where the survey for these choices is kept.</summary>
+    public static string CachePath(ContentStore store, string captureSha256, DetectorSetting setting, PulseMarkSet marks)
     {
         ArgumentNullException.ThrowIfNull(store);
         ArgumentNullException.ThrowIfNull(setting);
@@ -40,7 +40,7 @@ public static class WholeCaptureSurveys
             throw new ArgumentException("Not a lower-case hex SHA-256.", nameof(captureSha256));
         }
 
-        string key = $"{captureSha256}|{SettingsJson.Write([setting])}|{marks.LowestSeconds:R}|{marks.HighestSeconds:R}|{bins}|{Channel}";
+        string key = $"{captureSha256}|{SettingsJson.Write([setting])}|{marks.LowestSeconds:R}|{marks.HighestSeconds:R}|{Bins}|{Channel}";
         string keyHash = Convert.ToHexStringLower(SHA256.HashData(Encoding.UTF8.GetBytes(key)))[..32];
         return Path.Combine(store.Root, "derived", "surveys", captureSha256[..2], $"{captureSha256}.{keyHash}.json");
     }
@@ -66,6 +66,20 @@ public static class WholeCaptureSurveys
         }
     }
 
+    /// <summary>Reads the capture once to survey one setting over all of it (mixed as the decoder reads it), and keeps the survey at <paramref name="path"/>.</summary>
+    public static PulseHistogramResult MeasureAndKeep(ContentStore store, string capturePath, string path, DetectorSetting setting, PulseMarkSet marks, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(marks);
+        PulseHistogramResult measured;
+        using (var reader = CaptureReader.Open(capturePath, Channel))
+        {
+            measured = PulseSurvey.Measure(reader, setting, new PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, Bins), cancellation);
+        }
+
+        Write(store, path, measured);
+        return measured;
+    }
+
     /// <summary>Keeps a survey: written aside in the store's temporary folder and renamed into place, so no reader sees half a file.</summary>
     public static void Write(ContentStore store, string path, PulseHistogramResult result)
     {
@@ -75,6 +89,24 @@ public static class WholeCaptureSurveys
         string temporary = Path.Combine(store.TempFolder, $"{Guid.NewGuid():N}.survey.part");
         File.WriteAllBytes(temporary, JsonSerializer.SerializeToUtf8Bytes(new Kept([.. result.BinEdgesSeconds], [.. result.Counts], result.Below, result.Above), Json));
         File.Move(temporary, path, overwrite: true);
+    }
+
+    /// <summary>
+    /// The setting a capture's plots and its catalogue histogram are shown for when nobody chose one: the one with most
+    /// clean readings, then most readings, then the first in the run's order.
+    /// </summary>
+    public static DetectorSetting ShownSetting(IReadOnlyList<DetectorSetting> settings, IEnumerable<(string SettingName, bool Clean)> readings)
+    {
+        ArgumentNullException.ThrowIfNull(settings);
+        ArgumentNullException.ThrowIfNull(readings);
+        if (settings.Count == 0)
+        {
+            throw new ArgumentException("A run has at least one detector setting.", nameof(settings));
+        }
+
+        var counts = readings.GroupBy(r => r.SettingName).ToDictionary(g => g.Key, g => (Clean: g.Count(r => r.Clean), All: g.Count()));
+        // OrderBy is stable, so equals stay in the run's order.
+        return settings.OrderByDescending(s => counts.GetValueOrDefault(s.Name).Clean).ThenByDescending(s => counts.GetValueOrDefault(s.Name).All).First();
     }
 
     /// <summary>

@@ -269,10 +269,7 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
 
         var survey = WholeCaptureHistograms.GetOrAdd(kept, _ => Task.Run(() =>
         {
-            using var reader = CaptureReader.Open(path, Channel);
-            var measured = PulseSurvey.Measure(reader, run.Setting, new PulseHistogram(marks.LowestSeconds, marks.HighestSeconds, HistogramBins));
-            WholeCaptureSurveys.Write(store, kept, measured);
-            return measured;
+            return WholeCaptureSurveys.MeasureAndKeep(store, path, kept, run.Setting, marks);
         }));
         try
         {
@@ -356,8 +353,7 @@ public sealed class CapturePlots(ArchiveDbContext db, ContentStore store, Profil
         }
         else
         {
-            chosen = settings.OrderByDescending(s => candidates.Count(c => c.SettingName == s.Name && c.Status == "clean"))
-                .ThenByDescending(s => candidates.Count(c => c.SettingName == s.Name)).First();
+            chosen = WholeCaptureSurveys.ShownSetting(settings, candidates.Select(c => (c.SettingName, c.Status == "clean")));
         }
 
         var choice = new PlotChoice(run.Id, profile.Id, profile.Family.ToString().ToLowerInvariant(), chosen.Name, chosen.Describe(),
