@@ -278,6 +278,13 @@ public sealed class BlockScorer
 
                 confidence = PosteriorGivenMatch(logPrior, _checksum.FalseMatchProbability);
             }
+            else if (match && NothingVouches(doubts))
+            {
+                // Neither a marked start nor a check that could have failed: nothing independent of the bytes says a
+                // block is here at all. This is the phantom of a stuck line or a steady tone after a loss of signal
+                // (thirteen zero bytes after a dropout make block 0, length 0 and a zero CRC-16/XMODEM).
+                confidence = 0;
+            }
             else if (match)
             {
                 // The check proves nothing here: the bytes are as likely right as what is known to be doubtful in them
@@ -289,14 +296,12 @@ public sealed class BlockScorer
             else
             {
                 // The payload is right only under its own header (a payload under a wrong block number or name is a
-                // wrong block), so given the mismatch, the error must lie in the check bytes alone.
+                // wrong block), so given the mismatch, the error must lie in the check bytes alone. A header that
+                // claims no payload is no exception: its empty payload is right exactly when the header is (its
+                // length field read as written), which is this same sum over the header's bytes; a length field
+                // misread as 0 leaves the check to be read from the payload's first bytes, so the mismatch itself
+                // weighs against the header, as much as the check bytes' own odds allow.
                 confidence = PayloadRightGivenMismatch(SumFloored(logModel, 0, payloadEnd), SumFloored(logModel, payloadEnd, byteCount));
-            }
-
-            // A failed block whose (damaged) header claims no payload has nothing that could be right.
-            if (status != BlockStatus.Clean && payloadEnd == headerBytes)
-            {
-                confidence = 0;
             }
         }
 
@@ -309,8 +314,9 @@ public sealed class BlockScorer
         double model = Math.Clamp(confidence, 0, 1);
         confidence = Math.Clamp(_map.Map(_profileId, _family, ConfidenceMap.GroupOf(status, doubts), model), 0, 1);
 
-        // A failed block whose (damaged) header claims no payload has nothing that could be right, whatever the map says.
-        if (_checksum is not null && status != BlockStatus.Clean && payloadEnd == headerBytes)
+        // A reading nothing vouches for stays at 0 whatever the map says: the map's lowest step is a rate over readings
+        // that had some evidence, and a profile whose tuning tapes held no phantom would lift one to it.
+        if (status != BlockStatus.Clean && NothingVouches(doubts))
         {
             confidence = 0;
         }
@@ -361,6 +367,14 @@ public sealed class BlockScorer
             SnrDb = 20 * Math.Log10(typicalScale / sigma),
         };
     }
+
+    /// <summary>
+    /// Whether nothing independent of the bytes themselves says a block is here: no start the format marks, and a check
+    /// that the bytes satisfy for free (all alike, or nothing covered). Whatever the header claims, even a length of 0,
+    /// such a reading is no evidence of a block.
+    /// </summary>
+    private static bool NothingVouches(BlockDoubts doubts) =>
+        (doubts & (BlockDoubts.NoStartEvidence | BlockDoubts.AllAlikeCheck)) == (BlockDoubts.NoStartEvidence | BlockDoubts.AllAlikeCheck);
 
     /// <summary>P(right | checksum holds) by Bayes: a wrong block passes with the checksum's false-match odds.</summary>
     public static double PosteriorGivenMatch(double logAllOk, double falseMatch)

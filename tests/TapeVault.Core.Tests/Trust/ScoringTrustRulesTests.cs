@@ -61,7 +61,12 @@ public sealed class ScoringTrustRulesTests
 
         Assert.NotEqual(BlockStatus.Clean, candidate.Status);
         Assert.True(candidate.Doubts.HasFlag(BlockDoubts.AllAlikeCheck), $"doubts {candidate.Doubts}");
-        Assert.Equal(0, candidate.Confidence);
+
+        // Begun on a lead-in and sync, the same bytes are also an empty file's block 0: the model counts only what is
+        // known to be doubtful in them (here nothing beyond the unseen-byte floor), not the check; begun on nothing,
+        // nothing vouches for them (EmptyClaimScoringTests).
+        Assert.Equal(Math.Pow(1 - BlockScorer.UnseenByteError, zeros.Length), candidate.ModelConfidence, 9);
+        Assert.Equal(0, Assemble(profile, zeros, BlockStartEvidence.None).Confidence);
     }
 
     [Theory]
