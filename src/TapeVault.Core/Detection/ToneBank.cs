@@ -106,25 +106,11 @@ public sealed class ToneBank
                 var (lower, higher) = Vector256.Widen(conditioned[n]);
                 var x = upper ? higher : lower;
 
-                // Each product is rounded to single precision (as the scalar form stores it), I and Q side by side.
-                var mark = Vector256.Narrow(x * Vector256.Create(oscillator.MarkCos), x * Vector256.Create(oscillator.MarkSin));
-                var space = Vector256.Narrow(x * Vector256.Create(oscillator.SpaceCos), x * Vector256.Create(oscillator.SpaceSin));
+                // Both tones' correlators: the operator's vector form (ToneCorrelator.Slide), the oscillators shared.
+                var markEnergy = ToneCorrelator.Slide(x, oscillator.MarkCos, oscillator.MarkSin, ref markRing[ring], ref sumMarkI, ref sumMarkQ);
+                var spaceEnergy = ToneCorrelator.Slide(x, oscillator.SpaceCos, oscillator.SpaceSin, ref spaceRing[ring], ref sumSpaceI, ref sumSpaceQ);
                 oscillator.Turn();
-
-                // Sliding sums: the new product in, the one a window old out (the difference in single precision, as
-                // in the scalar form, then added in double).
-                var (markInI, markInQ) = Vector256.Widen(mark - markRing[ring]);
-                var (spaceInI, spaceInQ) = Vector256.Widen(space - spaceRing[ring]);
-                markRing[ring] = mark;
-                spaceRing[ring] = space;
                 ring = ring + 1 == markRing.Length ? 0 : ring + 1;
-                sumMarkI += markInI;
-                sumMarkQ += markInQ;
-                sumSpaceI += spaceInI;
-                sumSpaceQ += spaceInQ;
-
-                var markEnergy = (sumMarkI * sumMarkI) + (sumMarkQ * sumMarkQ);
-                var spaceEnergy = (sumSpaceI * sumSpaceI) + (sumSpaceQ * sumSpaceQ);
                 target[2 * n] = markEnergy;
                 target[(2 * n) + 1] = spaceEnergy;
 
@@ -134,14 +120,13 @@ public sealed class ToneBank
                     | (pureSpace.ExtractMostSignificantBits() << (2 * LanesPerQuad)));
             }
 
-            _reference = reference;
-
             _oscillator = oscillator;
             _ring = ring;
             _sumMarkI = sumMarkI;
             _sumMarkQ = sumMarkQ;
             _sumSpaceI = sumSpaceI;
             _sumSpaceQ = sumSpaceQ;
+            _reference = reference;
         }
 
         public void EndChunk() => _oscillator.Renormalise();

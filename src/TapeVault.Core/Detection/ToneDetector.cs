@@ -106,7 +106,7 @@ public struct ToneDetector
     /// <see cref="QuotientMargin"/> of the midpoint between two floats: a few windows in a million, at D near zero).
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static float Balanced(double mark, double space, double balance)
+    internal static float Balanced(double mark, double space, double balance)
     {
         double weighted = space * balance;
         double quotient = (mark - weighted) / (mark + weighted);
@@ -114,8 +114,9 @@ public struct ToneDetector
         return below == (float)(quotient + QuotientMargin) ? below : Divided(mark, space, balance);
     }
 
+    /// <summary>The same D with both divisions: m = Em/balance, then (m − Es)/(m + Es).</summary>
     [MethodImpl(MethodImplOptions.NoInlining)]
-    private static float Divided(double mark, double space, double balance)
+    internal static float Divided(double mark, double space, double balance)
     {
         double m = mark / balance;
         return (float)((m - space) / (m + space));
