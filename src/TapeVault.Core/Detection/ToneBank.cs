@@ -11,10 +11,14 @@ namespace TapeVault.Core.Detection;
 /// product that leaves the window, O(1) a sample whatever the window). Every setting of a profile shares the tones,
 /// the window and so the oscillators: one phasor per tone turns for all lanes.
 /// <para>
+/// Each window's energies then pass the <see cref="ToneGate"/>'s vector form in the same lanes: whether the window holds
+/// a carrier and whether it holds one tone alone, the part of the tone detector no decoder state moves.
+/// </para>
+/// <para>
 /// The arithmetic is that of <see cref="ToneCorrelator"/>, which it calls for the oscillators and whose scalar form is
 /// the reference: products rounded to single precision as they enter the ring, sums in double precision, so that a
 /// setting's energies are bit for bit those its own scalar correlator would give. What the FSK decoder decides from
-/// them (carrier, tone levels, the soft decision) stays in its <see cref="ToneDetector"/>.
+/// them (tone levels, the soft decision) stays in its <see cref="ToneDetector"/>.
 /// </para>
 /// </summary>
 public sealed class ToneBank
@@ -31,7 +35,7 @@ public sealed class ToneBank
         _quads = new Quad[(settings + LanesPerQuad - 1) / LanesPerQuad];
         for (int q = 0; q < _quads.Length; q++)
         {
-            _quads[q] = new Quad(Window, markHz, spaceHz, sampleRate);
+            _quads[q] = new Quad(Window, markHz, spaceHz, sampleRate, new ToneGate(Window, sampleRate));
         }
     }
 
@@ -52,7 +56,7 @@ public sealed class ToneBank
             int quad = (firstSetting / LanesPerQuad) + half;
             if (quad < _quads.Length)
             {
-                _quads[quad].Process(conditioned, upper: half == 1, output.Quad(quad), outputOffset);
+                _quads[quad].Process(conditioned, upper: half == 1, output.Quad(quad), output.Gates(quad), outputOffset);
             }
         }
     }
@@ -67,16 +71,20 @@ public sealed class ToneBank
     }
 
     /// <summary>Four settings' correlators; lane i of every vector is setting 4·q + i.</summary>
-    private sealed class Quad(int window, double markHz, double spaceHz, double sampleRate)
+    private sealed class Quad(int window, double markHz, double spaceHz, double sampleRate, ToneGate gate)
     {
+        private readonly (Vector256<double> Silence, Vector256<double> Gain) _gate = gate.Lanes;
+        private Vector256<double> _reference;
         private readonly Vector256<float>[] _markRing = new Vector256<float>[window];
         private readonly Vector256<float>[] _spaceRing = new Vector256<float>[window];
         private ToneCorrelator.Oscillator _oscillator = new(markHz, spaceHz, sampleRate);
         private int _ring;
         private Vector256<double> _sumMarkI, _sumMarkQ, _sumSpaceI, _sumSpaceQ;
 
-        public void Process(ReadOnlySpan<Vector256<float>> conditioned, bool upper, Span<Vector256<double>> output, int outputOffset)
+        public void Process(ReadOnlySpan<Vector256<float>> conditioned, bool upper, Span<Vector256<double>> output, Span<int> gates, int outputOffset)
         {
+            var (silence, gain) = _gate;
+            var reference = _reference;
             var oscillator = _oscillator;
             var markRing = _markRing;
             var spaceRing = _spaceRing;
@@ -88,31 +96,28 @@ public sealed class ToneBank
 
             // Output: two vectors a sample, the four lanes' mark energies, then their space energies.
             var target = output.Slice(2 * outputOffset, 2 * conditioned.Length);
+
+            // And a word a sample of the gate's answers: lane i's carrier in bit i, pure mark in bit 4 + i, pure space
+            // in bit 8 + i.
+            var gated = gates.Slice(outputOffset, conditioned.Length);
             for (int n = 0; n < conditioned.Length; n++)
             {
                 // Widening single to double is exact: the same x as the scalar correlator's.
                 var (lower, higher) = Vector256.Widen(conditioned[n]);
                 var x = upper ? higher : lower;
 
-                // Each product is rounded to single precision (as the scalar form stores it), I and Q side by side.
-                var mark = Vector256.Narrow(x * Vector256.Create(oscillator.MarkCos), x * Vector256.Create(oscillator.MarkSin));
-                var space = Vector256.Narrow(x * Vector256.Create(oscillator.SpaceCos), x * Vector256.Create(oscillator.SpaceSin));
+                // Both tones' correlators: the operator's vector form (ToneCorrelator.Slide), the oscillators shared.
+                var markEnergy = ToneCorrelator.Slide(x, oscillator.MarkCos, oscillator.MarkSin, ref markRing[ring], ref sumMarkI, ref sumMarkQ);
+                var spaceEnergy = ToneCorrelator.Slide(x, oscillator.SpaceCos, oscillator.SpaceSin, ref spaceRing[ring], ref sumSpaceI, ref sumSpaceQ);
                 oscillator.Turn();
-
-                // Sliding sums: the new product in, the one a window old out (the difference in single precision, as
-                // in the scalar form, then added in double).
-                var (markInI, markInQ) = Vector256.Widen(mark - markRing[ring]);
-                var (spaceInI, spaceInQ) = Vector256.Widen(space - spaceRing[ring]);
-                markRing[ring] = mark;
-                spaceRing[ring] = space;
                 ring = ring + 1 == markRing.Length ? 0 : ring + 1;
-                sumMarkI += markInI;
-                sumMarkQ += markInQ;
-                sumSpaceI += spaceInI;
-                sumSpaceQ += spaceInQ;
+                target[2 * n] = markEnergy;
+                target[(2 * n) + 1] = spaceEnergy;
 
-                target[2 * n] = (sumMarkI * sumMarkI) + (sumMarkQ * sumMarkQ);
-                target[(2 * n) + 1] = (sumSpaceI * sumSpaceI) + (sumSpaceQ * sumSpaceQ);
+                var carrier = ToneGate.Next(markEnergy, spaceEnergy, ref reference, silence, gain, out var pureMark, out var pureSpace);
+                gated[n] = (int)(carrier.ExtractMostSignificantBits()
+                    | (pureMark.ExtractMostSignificantBits() << LanesPerQuad)
+                    | (pureSpace.ExtractMostSignificantBits() << (2 * LanesPerQuad)));
             }
 
             _oscillator = oscillator;
@@ -121,6 +126,7 @@ public sealed class ToneBank
             _sumMarkQ = sumMarkQ;
             _sumSpaceI = sumSpaceI;
             _sumSpaceQ = sumSpaceQ;
+            _reference = reference;
         }
 
         public void EndChunk() => _oscillator.Renormalise();
@@ -134,13 +140,16 @@ public sealed class ToneBank
 public sealed class ToneEnergies
 {
     private readonly Vector256<double>[][] _quads;
+    private readonly int[][] _gates;
 
     public ToneEnergies(int settings, int samples)
     {
         _quads = new Vector256<double>[(settings + ToneBank.LanesPerQuad - 1) / ToneBank.LanesPerQuad][];
+        _gates = new int[_quads.Length][];
         for (int q = 0; q < _quads.Length; q++)
         {
             _quads[q] = new Vector256<double>[2 * samples];
+            _gates[q] = new int[samples];
         }
 
         Capacity = samples;
@@ -150,20 +159,24 @@ public sealed class ToneEnergies
 
     internal Span<Vector256<double>> Quad(int quad) => _quads[quad];
 
+    internal Span<int> Gates(int quad) => _gates[quad];
+
     /// <summary>Setting <paramref name="setting"/>'s view of the chunk.</summary>
     public ToneLane Lane(int setting, int length) =>
-        new(_quads[setting / ToneBank.LanesPerQuad], setting % ToneBank.LanesPerQuad, length);
+        new(_quads[setting / ToneBank.LanesPerQuad], _gates[setting / ToneBank.LanesPerQuad], setting % ToneBank.LanesPerQuad, length);
 }
 
-/// <summary>One setting's mark and space energies over a chunk, sample by sample.</summary>
+/// <summary>One setting's mark and space energies over a chunk, and its <see cref="ToneGate"/>'s answers, sample by sample.</summary>
 public readonly ref struct ToneLane
 {
     private readonly ReadOnlySpan<double> _all;
+    private readonly ReadOnlySpan<int> _gates;
     private readonly int _lane;
 
-    public ToneLane(Vector256<double>[] quad, int lane, int length)
+    public ToneLane(Vector256<double>[] quad, int[] gates, int lane, int length)
     {
         _all = MemoryMarshal.Cast<Vector256<double>, double>(quad.AsSpan(0, 2 * length));
+        _gates = gates.AsSpan(0, length);
         _lane = lane;
         Length = length;
     }
@@ -175,4 +188,12 @@ public readonly ref struct ToneLane
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public double Space(int n) => _all[unchecked((2 * ToneBank.LanesPerQuad * n) + ToneBank.LanesPerQuad + _lane)];
+
+    /// <summary>The gate's answer for the window that ends at sample <paramref name="n"/>: <see cref="ToneGate.Carrier"/>, <see cref="ToneGate.PureMark"/> and <see cref="ToneGate.PureSpace"/> bits.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    public int Gate(int n)
+    {
+        int word = _gates[n] >> _lane;
+        return (word & 1) | ((word >> (ToneBank.LanesPerQuad - 1)) & 2) | ((word >> ((2 * ToneBank.LanesPerQuad) - 2)) & 4);
+    }
 }

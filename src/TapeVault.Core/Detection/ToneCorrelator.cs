@@ -1,11 +1,15 @@
 using System.Runtime.CompilerServices;
+using System.Runtime.Intrinsics;
 
 namespace TapeVault.Core.Detection;
 
 /// <summary>
 /// The scalar form of the tone correlators of <see cref="ToneBank"/>, for one setting: two sliding quadrature
-/// correlators one bit long, at the mark and at the space tone (a recursive sliding DFT, O(1) a sample). The bank runs
-/// the same arithmetic four settings to a vector; this form is its reference, and a test holds the two bit for bit.
+/// correlators one bit long, at the mark and at the space tone (a recursive sliding DFT, O(1) a sample). The arithmetic
+/// of one tone's correlator is written once, as an operator with a scalar form (<see cref="Slide(float, double, double, ref float, ref float, ref double, ref double)"/>,
+/// used here) and a vector form (four settings in the lanes of a <see cref="Vector256{T}"/>, used by the bank), in
+/// the manner of System.Numerics.Tensors' operators; this form is the bank's reference, and a test holds the two bit
+/// for bit.
 /// </summary>
 public struct ToneCorrelator
 {
@@ -34,23 +38,45 @@ public struct ToneCorrelator
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public void Next(float x, out double mark, out double space)
     {
-        // Products rounded to single precision, as they are kept in the ring.
-        float mi = (float)(x * _oscillator.MarkCos);
-        float mq = (float)(x * _oscillator.MarkSin);
-        float si = (float)(x * _oscillator.SpaceCos);
-        float sq = (float)(x * _oscillator.SpaceSin);
+        mark = Slide(x, _oscillator.MarkCos, _oscillator.MarkSin, ref _markI[_ring], ref _markQ[_ring], ref _sumMarkI, ref _sumMarkQ);
+        space = Slide(x, _oscillator.SpaceCos, _oscillator.SpaceSin, ref _spaceI[_ring], ref _spaceQ[_ring], ref _sumSpaceI, ref _sumSpaceQ);
         _oscillator.Turn();
-        _sumMarkI += mi - _markI[_ring];
-        _sumMarkQ += mq - _markQ[_ring];
-        _sumSpaceI += si - _spaceI[_ring];
-        _sumSpaceQ += sq - _spaceQ[_ring];
-        _markI[_ring] = mi;
-        _markQ[_ring] = mq;
-        _spaceI[_ring] = si;
-        _spaceQ[_ring] = sq;
         _ring = _ring + 1 == Window ? 0 : _ring + 1;
-        mark = (_sumMarkI * _sumMarkI) + (_sumMarkQ * _sumMarkQ);
-        space = (_sumSpaceI * _sumSpaceI) + (_sumSpaceQ * _sumSpaceQ);
+    }
+
+    /// <summary>
+    /// One sample <paramref name="x"/> through one tone's sliding correlator, the local oscillator at
+    /// (<paramref name="cos"/>, <paramref name="sin"/>): the products with it, rounded to single precision as they are
+    /// kept in the ring, go in; the ones a window old (<paramref name="ringI"/>, <paramref name="ringQ"/>, replaced by
+    /// the new) go out, the difference taken in single precision and added to the sums in double. Gives the energy
+    /// |X|² of the window that ends with <paramref name="x"/>.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    internal static double Slide(float x, double cos, double sin, ref float ringI, ref float ringQ, ref double sumI, ref double sumQ)
+    {
+        float i = (float)(x * cos);
+        float q = (float)(x * sin);
+        sumI += i - ringI;
+        sumQ += q - ringQ;
+        ringI = i;
+        ringQ = q;
+        return (sumI * sumI) + (sumQ * sumQ);
+    }
+
+    /// <summary>
+    /// The vector form of <see cref="Slide(float, double, double, ref float, ref float, ref double, ref double)"/>:
+    /// four settings' samples (widened to double, which is exact), one oscillator for all; the ring keeps the four
+    /// lanes' I products in its lower half and their Q products in its upper half.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    internal static Vector256<double> Slide(Vector256<double> x, double cos, double sin, ref Vector256<float> ring, ref Vector256<double> sumI, ref Vector256<double> sumQ)
+    {
+        var products = Vector256.Narrow(x * Vector256.Create(cos), x * Vector256.Create(sin));
+        var (inI, inQ) = Vector256.Widen(products - ring);
+        ring = products;
+        sumI += inI;
+        sumQ += inQ;
+        return (sumI * sumI) + (sumQ * sumQ);
     }
 
     /// <summary>Pulls the oscillators back onto the unit circle (once a chunk is enough).</summary>

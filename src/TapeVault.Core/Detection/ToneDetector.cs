@@ -6,8 +6,9 @@ namespace TapeVault.Core.Detection;
 /// The tone detector of an FSK setting: two sliding quadrature correlators, one bit long, measure the energy at the
 /// mark and space tones (<see cref="ToneBank"/>, every setting's in one vector; <see cref="ToneCorrelator"/>, the
 /// scalar form); their normalised difference D = (Em − Es)/(Em + Es) is the soft decision (the non-coherent
-/// binary FSK detector of the textbooks, e.g. Proakis, Digital Communications). It also says whether there is a
-/// carrier at all.
+/// binary FSK detector of the textbooks, e.g. Proakis, Digital Communications). Whether there is a carrier at all, and
+/// which windows hold one tone alone, come from the <see cref="ToneGate"/> (which hangs on the energies only, and so
+/// runs in the bank's vector lanes).
 /// <para>
 /// Em and Es are each divided by that tone's own level, learnt from the windows that hold one tone alone, so that a
 /// capture with high-frequency loss (the mark tone weaker than the space tone) still has D cross zero half a window
@@ -17,28 +18,18 @@ namespace TapeVault.Core.Detection;
 /// </summary>
 public struct ToneDetector
 {
-    /// <summary>|raw D| above this: the correlator window holds (almost) only one tone, whose level it then shows.</summary>
-    private const double PureTone = 0.9;
-
-    /// <summary>A hair inside <see cref="PureTone"/>: a difference of energies below this share of their total cannot make a raw D past it.</summary>
-    private const double PureToneBound = 0.8999;
-
     /// <summary>The largest energy ratio between the tones that is rebalanced: 16, i.e. 12 dB.</summary>
     private const double MaximumToneImbalance = 16;
 
     /// <summary>
-    /// Tone amplitude (full scale 1) below which a window holds no carrier, whatever the recent level: 1e-4, about
-    /// −80 dBFS, the same as the detector bank's hysteresis floor against digital silence. A converter's dither or idle
-    /// noise (±1 LSB of 16 bits is 3e-5) would otherwise become carrier once the running level has fallen to it, and
-    /// ten minutes of an idle input were read as one long block of noise.
+    /// How far D worked out with one division may lie from D worked out as m = Em/balance, (m − Es)/(m + Es): each is
+    /// within a few units in the last place of a double (about 1e-16, D being at most 1 in size) of the exact quotient,
+    /// so 1e-13 leaves a margin of several hundred times.
     /// </summary>
-    private const double SilenceAmplitude = 1e-4;
+    private const double QuotientMargin = 1e-13;
 
-    private readonly double _silenceEnergy;
-    private readonly double _referenceGain;
     private readonly double _levelGain;
     private readonly double _settledSamples;
-    private double _carrierReference;
     private double _markLevel;
     private double _spaceLevel;
     private double _markLevelSamples;
@@ -52,12 +43,7 @@ public struct ToneDetector
     {
         Window = ToneCorrelator.WindowFor(baud, sampleRate);
 
-        // A tone of amplitude A gives a correlator sum of about A·W/2 over a window of W samples.
-        _silenceEnergy = Math.Pow(0.5 * SilenceAmplitude * Window, 2);
-
-        // The carrier reference follows a quarter of a second; the tone levels about two bits' worth of windows that
-        // hold one tone alone.
-        _referenceGain = 1.0 / (0.25 * sampleRate);
+        // The tone levels follow about two bits' worth of windows that hold one tone alone.
         _levelGain = 1.0 / (2.0 * Window);
         _settledSamples = 2.0 * Window;
     }
@@ -70,28 +56,19 @@ public struct ToneDetector
 
     /// <summary>
     /// Takes the energies at the mark and space tones of the window that ends with one sample (from the setting's lane
-    /// of the <see cref="ToneBank"/>, or a <see cref="ToneCorrelator"/>) and returns D for that window (0 without
-    /// carrier). A window that holds mark alone teaches the mark level when <paramref name="learnMark"/>, one that
-    /// holds space alone the space level when <paramref name="learnSpace"/>: noise before a lead-in can look like either
-    /// tone, so only windows of the recording may teach.
+    /// of the <see cref="ToneBank"/>, or a <see cref="ToneCorrelator"/>) and the <see cref="ToneGate"/>'s answer for it,
+    /// and returns D for that window (0 without carrier). A window that holds mark alone teaches the mark level when
+    /// <paramref name="learnMark"/>, one that holds space alone the space level when <paramref name="learnSpace"/>:
+    /// noise before a lead-in can look like either tone, so only windows of the recording may teach.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public float Next(double mark, double space, bool learnMark, bool learnSpace)
+    public float Next(double mark, double space, int gate, bool learnMark, bool learnSpace)
     {
-        double total = mark + space;
-
-        // Below 2 % of the usual carrier energy there is no signal to decide on: a dropout, or silence.
-        bool carrier = total > 0.02 * _carrierReference && total > _silenceEnergy;
+        bool carrier = (gate & ToneGate.Carrier) != 0;
         Carrier = carrier;
         if (!carrier)
         {
             return 0;
-        }
-
-        _carrierReference += (total - _carrierReference) * _referenceGain;
-        if (_carrierReference < total * 0.05)
-        {
-            _carrierReference = total * 0.05;
         }
 
         // Each tone is measured against its own level, learnt where the window holds that tone alone (there the
@@ -100,41 +77,49 @@ public struct ToneDetector
         // space and late at every rise to mark, and the bit timing, which hangs on those crossings, would slip.
         // A level starts as the plain mean of what has been seen (the first windows that pass the test are the least
         // pure ones, at the edge of a lone bit) and becomes a running average once it has enough behind it.
-        //
-        // raw D = (mark − space)/total is past ±PureTone only where the difference is past ±PureTone·total, less
-        // rounding: the division is made only there (PureToneBound is a hair inside PureTone, far more than the
-        // rounding of one division), and so only for windows that may teach a level.
-        double difference = mark - space;
-        if (learnMark && difference > PureToneBound * total)
+        if (learnMark && (gate & ToneGate.PureMark) != 0)
         {
-            double raw = difference / total;
-            if (raw > PureTone)
-            {
-                _markLevelSamples++;
-                _markLevel += (mark - _markLevel) * LevelStep(_markLevelSamples);
-                KeepBalance();
-            }
+            _markLevelSamples++;
+            _markLevel += (mark - _markLevel) * LevelStep(_markLevelSamples);
+            KeepBalance();
         }
-        else if (learnSpace && difference < -PureToneBound * total)
+        else if (learnSpace && (gate & ToneGate.PureSpace) != 0)
         {
-            double raw = difference / total;
-            if (raw < -PureTone)
-            {
-                _spaceLevelSamples++;
-                _spaceLevel += (space - _spaceLevel) * LevelStep(_spaceLevelSamples);
-                KeepBalance();
-            }
+            _spaceLevelSamples++;
+            _spaceLevel += (space - _spaceLevel) * LevelStep(_spaceLevelSamples);
+            KeepBalance();
         }
 
         if (_markLevel <= 0 || _spaceLevel <= 0)
         {
             // Until both tones have been heard alone, assume they are balanced.
-            return (float)(difference / total);
+            return (float)((mark - space) / (mark + space));
         }
 
-        double m = mark / _balance;
-        double s = space;
-        return (float)((m - s) / (m + s));
+        return Balanced(mark, space, _balance);
+    }
+
+    /// <summary>
+    /// D with the mark energy divided by <paramref name="balance"/>: the float nearest (m − Es)/(m + Es), m = Em/balance.
+    /// The same quotient as (Em − Es·balance)/(Em + Es·balance) but for rounding, so that one division gives it, with
+    /// both divisions made only where the rounding to a float might tell the two apart (D within
+    /// <see cref="QuotientMargin"/> of the midpoint between two floats: a few windows in a million, at D near zero).
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    internal static float Balanced(double mark, double space, double balance)
+    {
+        double weighted = space * balance;
+        double quotient = (mark - weighted) / (mark + weighted);
+        float below = (float)(quotient - QuotientMargin);
+        return below == (float)(quotient + QuotientMargin) ? below : Divided(mark, space, balance);
+    }
+
+    /// <summary>The same D with both divisions: m = Em/balance, then (m − Es)/(m + Es).</summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
+    internal static float Divided(double mark, double space, double balance)
+    {
+        double m = mark / balance;
+        return (float)((m - space) / (m + space));
     }
 
     /// <summary>

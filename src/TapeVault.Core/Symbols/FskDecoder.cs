@@ -11,7 +11,7 @@ namespace TapeVault.Core.Symbols;
 /// <summary>
 /// Frequency-shift keying, framed like a serial line: the policy of when blocks begin and end, over the stages that
 /// do the work, each in its own folder: the <see cref="ToneDetector"/> (Detection: the soft decision D, positive for
-/// mark, and whether there is a carrier, from the <see cref="ToneBank"/>'s energies), the
+/// mark, from the <see cref="ToneBank"/>'s energies and its <see cref="ToneGate"/>: whether there is a carrier), the
 /// <see cref="MarkPeriodSpeedTracker"/> and <see cref="MarkToneRun"/> (Pulses: the playback speed from the mark tone's
 /// periods; how long the line has carried mark), and the <see cref="AsyncCharacterFramer"/>,
 /// <see cref="CharacterGrid"/>, <see cref="HeldCharacters"/>, <see cref="CharacterLeader"/> and
@@ -194,18 +194,18 @@ public sealed class FskDecoder : ISymbolDecoder
     {
         for (int i = 0; i < tones.Length; i++)
         {
-            Step(tones.Mark(i), tones.Space(i), chunkStart + i);
+            Step(tones.Mark(i), tones.Space(i), tones.Gate(i), chunkStart + i);
         }
 
         _speed.EndChunk();
     }
 
-    /// <summary>One sample: the mark and space energies of the window that ends at <paramref name="sample"/>.</summary>
-    private void Step(double mark, double space, long sample)
+    /// <summary>One sample: the mark and space energies of the window that ends at <paramref name="sample"/>, and the gate's answer for it.</summary>
+    private void Step(double mark, double space, int gate, long sample)
     {
         bool inChar = _framer.InCharacter;
         bool inLeader = InLeader;
-        float d = _tones.Next(mark, space, learnMark: inChar || _inBlock || inLeader || _mark.HeardLeadIn, learnSpace: inChar);
+        float d = _tones.Next(mark, space, gate, learnMark: inChar || _inBlock || inLeader || _mark.HeardLeadIn, learnSpace: inChar);
         double n = sample;
         _speed.Check(d, n);
         KeepTiming();

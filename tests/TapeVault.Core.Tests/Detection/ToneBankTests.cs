@@ -29,6 +29,8 @@ public sealed class ToneBankTests
         var edges = settings.Select(_ => new EdgeBuffer()).ToArray();
         var energies = new ToneEnergies(settings.Count, 5000);
         var scalar = settings.Select(_ => new ToneCorrelator(fsk.MarkHz, fsk.SpaceHz, fsk.Baud, SampleRate)).ToArray();
+        var gates = settings.Select(_ => new ToneGate(tones.Window, SampleRate)).ToArray();
+        var answers = new int[8];
         var conditioned = settings.Select(s => DetectorTrace.Run(signal, SampleRate, s).Conditioned).ToArray();
 
         // Chunks that do not line up with the bank's internal slices; the oscillators are renormalised after each.
@@ -45,6 +47,9 @@ public sealed class ToneBankTests
                     scalar[s].Next(conditioned[s][offset + n], out double mark, out double space);
                     Assert.Equal(mark, lane.Mark(n));
                     Assert.Equal(space, lane.Space(n));
+                    int answer = gates[s].Next(mark, space);
+                    Assert.Equal(answer, lane.Gate(n));
+                    answers[answer]++;
                     compared++;
                 }
 
@@ -53,6 +58,10 @@ public sealed class ToneBankTests
         }
 
         Assert.Equal(signal.Length * settings.Count, compared);
+
+        // The signal holds windows of each kind the gate tells apart: no carrier (in its dropout), carrier with
+        // both tones, mark alone, space alone.
+        Assert.All(new[] { 0, ToneGate.Carrier, ToneGate.Carrier | ToneGate.PureMark, ToneGate.Carrier | ToneGate.PureSpace }, a => Assert.True(answers[a] > 0, $"no window answered {a}"));
     }
 
     [Fact]
@@ -75,7 +84,7 @@ public sealed class ToneBankTests
         Assert.True(space < expected * 0.05, $"space energy {space} against mark {mark}");
     }
 
-    /// <summary>Random bits in the two tones, phase-continuous, with a level change and noise; seeded, so repeatable.</summary>
+    /// <summary>Random bits in the two tones, phase-continuous, with a level change, noise and a dropout of 50 ms; seeded, so repeatable.</summary>
     private static float[] NoisyFsk(double seconds, double markHz, double spaceHz, double baud)
     {
         var signal = new float[(int)(seconds * SampleRate)];
@@ -92,7 +101,8 @@ public sealed class ToneBankTests
 
             phase += 2 * Math.PI * (mark ? markHz : spaceHz) / SampleRate;
             double level = n < signal.Length / 2 ? 0.6 : 0.2;
-            signal[n] = (float)((level * Math.Sin(phase)) + ((random.NextDouble() - 0.5) * 0.1));
+            bool dropout = n >= 0.3 * SampleRate && n < 0.35 * SampleRate;
+            signal[n] = dropout ? 0 : (float)((level * Math.Sin(phase)) + ((random.NextDouble() - 0.5) * 0.1));
         }
 
         return signal;
