@@ -41,7 +41,7 @@ public sealed record MergeOptions
     /// The factor on the confidence of a stream segment that resumes after bytes no capture kept, for readings that
     /// resume after a dropout framed on a false start bit more often than their margins show: 1 since the FSK decoder
     /// takes a start bit after a loss of signal only on the character grid it kept before, and the characters at the
-    /// edge of what each capture read carry their own doubt (Bytes.CharacterEdge).
+    /// edge of what each capture read carry their own doubt (StreamMerge.EdgeCharacterError).
     /// </summary>
     public double StreamAfterGapFactor { get; init; } = 1;
 

@@ -1,6 +1,5 @@
 using System.Collections.Immutable;
 using TapeVault.Core.Blocks;
-using TapeVault.Core.Bytes;
 using TapeVault.Core.Image;
 
 namespace TapeVault.Core.Merge;
@@ -15,12 +14,12 @@ namespace TapeVault.Core.Merge;
 /// <para>
 /// A segment's confidence is the probability that its whole payload is right: the product over its characters of
 /// each one's vote, where every capture's reading of a character may be wrong in a way no margin shows
-/// (<see cref="MergeOptions.StreamByteErrorFloor"/>), and the first and last character of what a capture read (where its
-/// signal began or broke off) carry the doubt of a character at an edge (<see cref="CharacterEdge"/>, in their error
-/// odds from the block stage). So does the character at each end of a segment, beside bytes no capture kept or at its
-/// stretch's end, from every reader's own decisions there. Independent captures that read a character alike are all
-/// wrong alike only if each is, and then only by the chance that their wrong values agree: agreement raises the
-/// confidence, never lowers it, and a segment one capture alone carried claims what its ends' decisions allow.
+/// (<see cref="MergeOptions.StreamByteErrorFloor"/>) and the first and last character of what a capture read (where its
+/// signal began or broke off: tone dying away, the edge of a dropout, a start with no lead-in) may be one it invented
+/// or framed off (<see cref="EdgeCharacterError"/>), and so may the character at each end of a segment, beside bytes
+/// no capture kept or at its stretch's end. Independent captures that read a character alike are all wrong
+/// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
+/// never lowers it, and a segment one capture alone carried claims what its ends allow.
 /// </para>
 /// </summary>
 internal sealed class StreamMerge
@@ -28,25 +27,33 @@ internal sealed class StreamMerge
     /// <summary>The vote a byte needs when some capture read that stretch of tape and did not see it.</summary>
     private const double LoneByteProbability = 0.9;
 
+    /// <summary>
+    /// The chance that the character at either end of one capture's reading, or at a segment's end, is not the
+    /// written one. Estimated by maximum likelihood on the trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds
+    /// 1000–1051 (segments one capture alone carried: 0.15 at each end). What it stands for is mostly not the edge
+    /// characters' own reading: those carry their doubt in their error odds from the block stage
+    /// (<see cref="Bytes.CharacterEdge"/>, from their decisions and the baud), and where that doubt alone was used
+    /// here the merged segments beside bytes no capture kept were right about half the time at 0.99 and above (trust
+    /// benchmark, kcs-1200, tuning seeds 1400 onwards). It stands for the merge losing track of the captures' character
+    /// slots there, which no reading's decisions show; docs/performance.md has the figures.
+    /// </summary>
+    public const double EdgeCharacterError = 0.15;
+
     private readonly IReadOnlyList<MergePass> _passes;
     private readonly PassTimeline[] _timelines;
 
     private readonly int _bitsPerCharacter;
-    private readonly double? _baud;
     private readonly MergeOptions _options;
 
-    /// <summary>A merge of stream readings of characters of <paramref name="bitsPerCharacter"/> bits at <paramref name="baud"/> (null: from the characters' spacing).</summary>
-    public StreamMerge(IReadOnlyList<MergePass> passes, PassTimeline[] timelines, int bitsPerCharacter, double? baud, MergeOptions options)
+    public StreamMerge(IReadOnlyList<MergePass> passes, PassTimeline[] timelines, int bitsPerCharacter, MergeOptions options)
     {
         _options = options;
         _passes = passes;
         _timelines = timelines;
         _bitsPerCharacter = Math.Max(1, bitsPerCharacter);
-        _baud = baud;
     }
 
-    /// <summary>One reader's byte: its error odds as read, and those it has where it ends a segment (<see cref="CharacterEdge"/>).</summary>
-    private readonly record struct StreamByte(double Time, byte Value, float Error, float EdgeError, int Pass, int Reader, int Candidate, int Index);
+    private readonly record struct StreamByte(double Time, byte Value, float Error, int Pass, int Reader, int Candidate, int Index, bool Edge);
 
     private sealed class Slot
     {
@@ -58,10 +65,10 @@ internal sealed class StreamMerge
 
         public double Probability { get; set; }
 
-        /// <summary>The chance the slot holds the written character.</summary>
+        /// <summary>The chance the slot holds the written character, its readers' edge doubt counted (<see cref="EdgeCharacterError"/>).</summary>
         public double Confidence { get; set; }
 
-        /// <summary>The same where the slot ends a segment (beside bytes no capture kept, or the end of its stretch): every reader's character there counts as one at an edge (<see cref="CharacterEdge"/>).</summary>
+        /// <summary>The same where the slot ends a segment (beside bytes no capture kept, or the end of its stretch): every reader's character there counts as one at an edge.</summary>
         public double EndConfidence { get; set; }
 
         public bool Unanimous { get; set; }
@@ -119,7 +126,6 @@ internal sealed class StreamMerge
     public List<ImageBlock> Resolve()
     {
         double character = CharacterSeconds(_passes);
-        double baud = _baud ?? _bitsPerCharacter / character;
         var bytes = new List<StreamByte>();
         var spans = new List<(double Start, double End, int Pass)>();
         int reader = 0;
@@ -155,10 +161,7 @@ internal sealed class StreamMerge
                     }
 
                     sinceBroken = c.ByteErrorOdds[i] >= 0.5f ? 0 : sinceBroken == int.MaxValue ? int.MaxValue : sinceBroken + 1;
-                    // A reading's own first and last characters carry their edge doubt in their odds (the block stage
-                    // gives it); any other character may end a segment too, and is then doubted as one at an edge.
-                    float edgeError = Math.Max(error, (float)CharacterEdge.Error(c.ByteMargins[i], baud));
-                    bytes.Add(new StreamByte(_timelines[p].Map(c.ByteSeconds[i]), c.Payload[i], error, edgeError, p, r, ci, i));
+                    bytes.Add(new StreamByte(_timelines[p].Map(c.ByteSeconds[i]), c.Payload[i], error, p, r, ci, i, i == 0 || i == c.Payload.Length - 1));
                 }
 
                 // A capture counts as reading the tape a little beyond its first and last characters: a byte just past
@@ -195,12 +198,12 @@ internal sealed class StreamMerge
             slot.Unanimous = slot.Bytes.TrueForAll(x => x.Value == slot.Value);
 
             // Each capture that read the value may be wrong in a way no margin shows; they are all wrong alike only if
-            // each is. Where the slot ends a segment, every reader's character there is doubted as one at an edge.
+            // each is. The slot's confidence counts its readers' edge doubt too (the value stays the plain vote's).
             int alike = slot.Bytes.Where(x => x.Value == slot.Value).Select(x => x.Pass).Distinct().Count();
             double floor = Math.Pow(_options.StreamByteErrorFloor, Math.Max(1, alike));
             slot.Probability = Math.Min(slot.Probability, 1 - floor);
-            slot.Confidence = slot.Probability;
-            slot.EndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value).Probability, slot.Confidence);
+            slot.Confidence = Math.Min(Vote(slot, edges: true, of: slot.Value).Probability, slot.Probability);
+            slot.EndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, everyReaderAtEdge: true).Probability, slot.Confidence);
 
             // A byte that other captures reading this stretch did not see must be a confident one.
             if (slot.Probability > (supporting < covering ? LoneByteProbability : 0.5))
@@ -249,10 +252,10 @@ internal sealed class StreamMerge
     /// <summary>
     /// P(value | readings) with a uniform prior over the 256 values: each capture's likelihood of a value is the mean
     /// over its settings of (1 − e) where the setting read that value and e / 255 where it read another. With
-    /// <paramref name="edges"/>, every reading counts with the error odds of a character at an edge.
+    /// <paramref name="edges"/>, a reading's first and last character count as no surer than <see cref="EdgeCharacterError"/>.
     /// Returns the likeliest value and its probability, or <paramref name="of"/>'s probability where given.
     /// </summary>
-    private static (byte Value, double Probability) Vote(Slot slot, bool edges, byte? of = null)
+    private static (byte Value, double Probability) Vote(Slot slot, bool edges, byte? of = null, bool everyReaderAtEdge = false)
     {
         var values = slot.Bytes.Select(b => b.Value).Distinct().ToArray();
         var logLikelihood = new double[values.Length + 1];
@@ -264,7 +267,7 @@ internal sealed class StreamMerge
                 double sum = 0;
                 foreach (var r in readings)
                 {
-                    double error = edges ? r.EdgeError : r.Error;
+                    double error = edges && (r.Edge || everyReaderAtEdge) ? Math.Max(r.Error, EdgeCharacterError) : r.Error;
                     sum += v < values.Length && r.Value == values[v] ? 1 - error : error / 255.0;
                 }
 

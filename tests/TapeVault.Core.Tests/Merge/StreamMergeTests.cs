@@ -1,4 +1,3 @@
-using TapeVault.Core.Bytes;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Image;
 using TapeVault.Core.Merge;
@@ -91,8 +90,7 @@ public sealed class StreamMergeTests
     public void Stream_ASegmentNothingChecks_DoubtsTheEndsOneCaptureRead_AndAgreementRaisesIt()
     {
         // 200 characters read with error odds 1e-4 each. One capture alone: its first and last character (where its
-        // signal began and ended) may be invented or framed off, so the segment is no surer than both ends' decisions
-        // allow (here near certain ones, least decision distance 1 − 4·10⁻⁴).
+        // signal began and ended) may be invented or framed off, so the segment is no surer than both ends allow.
         var text = System.Text.Encoding.ASCII.GetBytes(string.Concat(Enumerable.Repeat("orrin tape stream ", 12))[..200]);
         double character = 11.0 / 1200;
         MergePass Pass(int n) => Readings.Pass(n, Readings.Stream(text, 0, 200, 1.0, character));
@@ -101,7 +99,7 @@ public sealed class StreamMergeTests
         var three = Assert.Single(TapeMerger.Merge([Pass(0), Pass(1), Pass(2)], Kcs).Blocks);
 
         double floor = new MergeOptions().StreamByteErrorFloor;
-        double ends = Math.Pow(1 - CharacterEdge.Error(1 - 4e-4, 1200), 2);
+        double ends = Math.Pow(1 - StreamMerge.EdgeCharacterError, 2);
         Assert.InRange(one.Confidence, ends * Math.Pow(1 - floor, 198) * 0.99, ends);
 
         // Captures that read every character alike are all wrong only if each is, and then only if their wrong values
