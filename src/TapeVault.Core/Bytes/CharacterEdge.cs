@@ -15,8 +15,10 @@ namespace TapeVault.Core.Bytes;
 /// bits; 1 = certain). Measured on the trust benchmark's kcs-300 and kcs-1200 readings of tuning seeds 1400–1547
 /// (our channel with random dropouts, SoX chains, minimodem's own FSK), last character of a reading by its least
 /// distance: at 1200 baud wrong 57 % below 0.2, 26 % at 0.2–0.4, 2.8 % at 0.4–0.6, 0.16 % above; at 300 baud 21 %
-/// below 0.2 and none of 4 757 above. The same bins inside readings are wrong 10 %, 1.3 %, 0.2 %, 0.04 %: a decision
-/// model for inner characters cannot price an edge.
+/// below 0.2 and none of 4 723 above. The same bins inside readings are wrong 10 %, 1.3 %, 0.2 %, 0.04 %: a decision
+/// model for inner characters cannot price an edge. How the reading ended matters too (at 1200 baud a weak last
+/// character before a file's end was wrong about half the time, before a dropout one time in twenty); this formula
+/// does not tell them apart yet, and is right on their mix (docs/performance.md).
 /// </para>
 /// </summary>
 public static class CharacterEdge
