@@ -40,6 +40,14 @@ public static class Trust
     private static readonly ConcurrentQueue<string> s_dump = new();
     private static readonly string? s_dumpPath = Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_DUMP");
 
+    /// <summary>
+    /// With TAPEVAULT_TRUST_CHARS set to a file path, every character of every stream reading is written there as a row:
+    /// where it lies in its reading, what the decoder knew of it and whether it is the written character (the reading
+    /// lined up with the written bytes where most of its bytes agree).
+    /// </summary>
+    private static readonly ConcurrentQueue<string> s_chars = new();
+    private static readonly string? s_charsPath = Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_CHARS");
+
     private sealed record Subject(string Family, FormatProfile Profile);
 
     private sealed record Reading(double Confidence, bool Right, bool WrongClean, bool Clean = false);
@@ -156,6 +164,11 @@ public static class Trust
         if (s_dumpPath is not null)
         {
             File.WriteAllLines(s_dumpPath, s_dump);
+        }
+
+        if (s_charsPath is not null)
+        {
+            File.WriteAllLines(s_charsPath, s_chars);
         }
         Console.WriteLine($"This process's CPU time {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:0} s (SoX and minimodem run as processes of their own, not counted).");
         Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s wall; wall time summed over workers: making captures {Stopwatch.GetElapsedTime(0, s_makeTicks).TotalSeconds:0} s, decoding {Stopwatch.GetElapsedTime(0, s_decodeTicks).TotalSeconds:0} s, merging {Stopwatch.GetElapsedTime(0, s_mergeTicks).TotalSeconds:0} s.");
@@ -303,6 +316,11 @@ public static class Trust
                     }
                 }
 
+                if (s_charsPath is not null && profile.Layout.IsStream)
+                {
+                    DumpCharacters(profile, seed, p, source, result, files);
+                }
+
                 foreach (var candidate in result.Best)
                 {
                     best.Add(new Reading(candidate.Confidence, judge(candidate.Header.AsSpan(), candidate.Payload.AsSpan()), false));
@@ -347,6 +365,59 @@ public static class Trust
         {
             // A decoder or merge that throws is a finding of its own: reported, and the run goes on.
             return new TapeOutcome(subject, seed, units, written.Count, bySource, best, [], null, examples, $"{profile.Id} seed {seed}: {e.GetType().Name}: {e.Message} {e.StackTrace?.Split('\n')[0]}");
+        }
+    }
+
+    /// <summary>One row per character of every stream reading of one pass (see <see cref="s_charsPath"/>).</summary>
+    private static void DumpCharacters(FormatProfile profile, int seed, int pass, string source, DecodeResult result, List<TapeFile> files)
+    {
+        double baud = profile.Fsk!.Baud;
+        double bitSamples = result.Capture.SampleRate / baud;
+        foreach (var bySetting in result.Candidates.GroupBy(c => c.SettingIndex))
+        {
+            var readings = bySetting.OrderBy(c => c.StartSeconds).ToList();
+            for (int k = 0; k < readings.Count; k++)
+            {
+                var c = readings[k];
+                var run = c.Payload.AsSpan();
+                if (run.IsEmpty)
+                {
+                    continue;
+                }
+
+                // The written bytes this reading lines up with best.
+                int bestFile = 0, bestOffset = 0, bestCount = -1;
+                for (int f = 0; f < files.Count; f++)
+                {
+                    var content = files[f].Content;
+                    for (int o = -run.Length + 1; o < content.Length; o++)
+                    {
+                        int count = 0;
+                        for (int i = Math.Max(0, -o); i < run.Length && o + i < content.Length; i++)
+                        {
+                            count += run[i] == content[o + i] ? 1 : 0;
+                        }
+
+                        if (count > bestCount)
+                        {
+                            (bestFile, bestOffset, bestCount) = (f, o, count);
+                        }
+                    }
+                }
+
+                var truth = files[bestFile].Content;
+                double gapBefore = k > 0 ? (c.StartSeconds - readings[k - 1].EndSeconds) * baud : -1;
+                double gapAfter = k + 1 < readings.Count ? (readings[k + 1].StartSeconds - c.EndSeconds) * baud : -1;
+                for (int i = 0; i < run.Length; i++)
+                {
+                    int at = bestOffset + i;
+                    bool wrong = at < 0 || at >= truth.Length || run[i] != truth[at];
+                    s_chars.Enqueue(string.Join('\t', profile.Id, seed, pass, source, c.SettingName, result.Capture.SampleRate, bitSamples.ToString("0.##", CultureInfo.InvariantCulture),
+                        i, run.Length - 1 - i, wrong ? 1 : 0, c.ByteErrorOdds[i].ToString("R", CultureInfo.InvariantCulture), c.ByteMargins[i].ToString("0.####", CultureInfo.InvariantCulture),
+                        gapBefore.ToString("0.#", CultureInfo.InvariantCulture), gapAfter.ToString("0.#", CultureInfo.InvariantCulture), bestCount == run.Length ? 1 : 0,
+                        c.Confidence.ToString("R", CultureInfo.InvariantCulture), (int)c.Doubts, c.SnrDb.ToString("0.#", CultureInfo.InvariantCulture), c.Speed.ToString("0.####", CultureInfo.InvariantCulture)));
+                }
+            }
         }
     }
 

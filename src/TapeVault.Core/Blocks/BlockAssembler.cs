@@ -40,7 +40,7 @@ public sealed partial class BlockAssembler : IBlockSink
     {
         ArgumentNullException.ThrowIfNull(profile);
         _layout = profile.Layout;
-        _scorer = new BlockScorer(_layout, profile.Family, profileId: profile.Id);
+        _scorer = new BlockScorer(_layout, profile.Family, profileId: profile.Id, characterBaud: profile.Fsk?.Baud);
         _codec = BlockLayoutCodec.For(_layout);
         _kinds = new KindSequence(profile);
         _settingIndex = settingIndex;

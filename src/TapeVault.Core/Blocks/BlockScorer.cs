@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using TapeVault.Core.Bytes;
 using TapeVault.Core.Checksums;
 using TapeVault.Core.Formats;
 
@@ -105,18 +106,22 @@ public sealed class BlockScorer
     private readonly FormatFamily _family;
     private readonly ConfidenceMap _map;
     private readonly string? _profileId;
+    private readonly double? _characterBaud;
 
     /// <summary>
     /// A scorer for blocks of <paramref name="layout"/> in a format of <paramref name="family"/>, calibrated by
     /// <paramref name="map"/> (the embedded <see cref="ConfidenceMap.Default"/> unless given), by the curves of
-    /// <paramref name="profileId"/> where the map has them.
+    /// <paramref name="profileId"/> where the map has them. <paramref name="characterBaud"/>: the baud of the
+    /// asynchronous characters a layout without a checksum is read in; the first and last character of such a block
+    /// carry the doubt of a character at an edge of what was read (<see cref="CharacterEdge"/>).
     /// </summary>
-    public BlockScorer(BlockLayout layout, FormatFamily family, ConfidenceMap? map = null, string? profileId = null)
+    public BlockScorer(BlockLayout layout, FormatFamily family, ConfidenceMap? map = null, string? profileId = null, double? characterBaud = null)
     {
         ArgumentNullException.ThrowIfNull(layout);
         _layout = layout;
         _family = family;
         _profileId = profileId;
+        _characterBaud = characterBaud;
         _map = map ?? ConfidenceMap.Default;
         _codec = BlockLayoutCodec.For(layout);
         _checksum = _codec.Checksum;
@@ -188,6 +193,13 @@ public sealed class BlockScorer
             {
                 // Nothing marked where the block began: its first characters may have been framed on a false start.
                 framing = Math.Min(framing, Math.Log(1 - DoubtfulFrameError));
+            }
+
+            if (_checksum is null && _characterBaud is { } baud && (b == 0 || b == byteCount - 1))
+            {
+                // Nothing checks these bytes, and the characters at the block's ends have no neighbour on one side to
+                // hold their frame: they may have been framed on the transient where the signal began or broke off.
+                framing = Math.Min(framing, Math.Log(1 - CharacterEdge.Error(minMargin, baud)));
             }
 
             logModel[b] = logOk + framing;

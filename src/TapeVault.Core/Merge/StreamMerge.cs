@@ -28,10 +28,14 @@ internal sealed class StreamMerge
     private const double LoneByteProbability = 0.9;
 
     /// <summary>
-    /// The chance that the character at either end of one capture's reading (where its signal began or broke off)
-    /// is not the written one: invented from the tone dying away or the edge of a dropout, or framed on a false
-    /// start bit. Estimated by maximum likelihood on the trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds
-    /// 1000–1051 (segments one capture alone carried: 0.15 at each end); the benchmark reports on seeds from 20000.
+    /// The chance that the character at either end of one capture's reading, or at a segment's end, is not the
+    /// written one. Estimated by maximum likelihood on the trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds
+    /// 1000–1051 (segments one capture alone carried: 0.15 at each end). What it stands for is mostly not the edge
+    /// characters' own reading: those carry their doubt in their error odds from the block stage
+    /// (<see cref="Bytes.CharacterEdge"/>, from their decisions and the baud), and where that doubt alone was used
+    /// here the merged segments beside bytes no capture kept were right about half the time at 0.99 and above (trust
+    /// benchmark, kcs-1200, tuning seeds 1400 onwards). It stands for the merge losing track of the captures' character
+    /// slots there, which no reading's decisions show; docs/performance.md has the figures.
     /// </summary>
     public const double EdgeCharacterError = 0.15;
 

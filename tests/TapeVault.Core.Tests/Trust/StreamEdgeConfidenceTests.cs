@@ -1,0 +1,115 @@
+using System.Globalization;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Bytes;
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Tests.OutsideChecks;
+using Xunit;
+using Xunit.Abstractions;
+
+namespace TapeVault.Core.Tests.Trust;
+
+/// <summary>
+/// The confidence of a Kansas City stream (BYTE, February 1976: no blocks, no checksum) where its signal breaks off.
+/// minimodem, a general-purpose software FSK modem, writes known text; SoX puts silence in place of the tape for a
+/// while (a full dropout). What a capture read up to the break and after it is right or not by the text minimodem was
+/// given, which its own receiver reads back from the same file. A character at the edge of what was read is doubted
+/// by the evidence the decoder has there (its decisions, the baud), not as if it stood inside a run of characters.
+/// </summary>
+public sealed class StreamEdgeConfidenceTests(OutsideTempFolder temp, ITestOutputHelper output) : IClassFixture<OutsideTempFolder>
+{
+    [Theory]
+    [InlineData(1200, 1.8)]
+    [InlineData(300, 2.2)]
+    public void The_characters_where_a_minimodem_stream_breaks_off_carry_the_doubt_of_an_edge(int baud, double cut)
+    {
+        var profile = ProfileCatalog.BuiltIn.Get($"kcs-{baud}");
+        string source = KcsCaptures.Write(temp.Root, $"edge-{baud}", baud, 48_000, stopBits: 2, amplitude: 0.5);
+        string damaged = WithSilence(source, $"edge-{baud}-{cut.ToString("0.0", CultureInfo.InvariantCulture)}", cut, 0.030);
+        string text = KcsCaptures.Hex(KcsCaptures.Text);
+
+        var result = CaptureDecoder.Decode(damaged, profile);
+        var best = result.Best.OrderBy(c => c.StartSeconds).ToList();
+        output.WriteLine(string.Join("; ", best.Select(c => $"{c.SettingName} {c.StartSeconds:0.000}-{c.EndSeconds:0.000} s {c.Payload.Length} B c={c.Confidence:0.0000}")));
+
+        // The silence split the stream: a reading up to the break and one after it, each a stretch of the text
+        // minimodem was given (the outside reference), at its start and at its end.
+        Assert.Equal(2, best.Count);
+        Assert.StartsWith(best[0].PayloadHex, text, StringComparison.Ordinal);
+        Assert.EndsWith(best[1].PayloadHex, text, StringComparison.Ordinal);
+
+        // The last character before the break and the first after it have no neighbour on that side to hold their
+        // frame: their error odds are at least what an edge character with their decisions has at this baud (before,
+        // only their decisions' own odds, as if they stood inside a run of characters).
+        foreach (var (reading, index) in new[] { (best[0], best[0].Payload.Length - 1), (best[1], 0) })
+        {
+            double edge = CharacterEdge.Error(reading.ByteMargins[index], baud);
+            output.WriteLine($"{reading.StartSeconds:0.000} s, character {index}: margin {reading.ByteMargins[index]:0.000}, odds {reading.ByteErrorOdds[index]:0.00000}, edge {edge:0.00000}");
+            Assert.True(reading.ByteErrorOdds[index] >= edge * 0.999, $"character {index}: odds {reading.ByteErrorOdds[index]} below an edge's {edge}");
+        }
+    }
+
+    [Fact]
+    public void A_weakly_framed_last_character_of_an_unchecked_stream_is_doubted_by_its_baud()
+    {
+        // Sixty characters of ten decisions each (start bit, eight data bits, stop bit, as the Kansas City Standard
+        // frames them, BYTE, February 1976), all decided cleanly but for the last character's start bit at 0.3:
+        // inside a run of characters one such bit is noise, at the end of what was read it is as likely the transient
+        // where the signal broke off. The same decisions at 1200 baud make the character less sure than at 300 (before,
+        // the baud made no difference: only the decisions counted).
+        static double LastOdds(int baud)
+        {
+            var profile = ProfileCatalog.BuiltIn.Get($"kcs-{baud}");
+            var scorer = new BlockScorer(profile.Layout, profile.Family, profileId: profile.Id, characterBaud: baud);
+            var decisions = new DecisionLog();
+            var first = new int[60];
+            var random = new Random(3);
+            for (int c = 0; c < 60; c++)
+            {
+                first[c] = decisions.Count;
+                for (int b = 0; b < 10; b++)
+                {
+                    float distance = c == 59 && b == 0 ? 0.3f : 0.9f + (0.1f * (float)random.NextDouble());
+                    decisions.Add(distance, 1 - distance, 1);
+                }
+            }
+
+            var score = scorer.Score(new byte[60], first, new float[60], decisions, 0, 0, BlockStartEvidence.LeadIn, truncated: false);
+            return score.PayloadErrorOdds[59];
+        }
+
+        double at1200 = LastOdds(1200);
+        double at300 = LastOdds(300);
+        Assert.True(at1200 >= CharacterEdge.Error(0.3, 1200) * 0.999, $"1200 baud: {at1200}");
+        Assert.True(at300 >= CharacterEdge.Error(0.3, 300) * 0.999, $"300 baud: {at300}");
+        Assert.True(at1200 > at300, $"1200 baud {at1200}, 300 baud {at300}");
+    }
+
+    [Fact]
+    public void The_doubt_of_an_edge_character_follows_the_baud_and_its_decisions()
+    {
+        // A transient of fixed length on tape fills four times as much of a bit at 1200 baud as at 300: at equal
+        // decisions the odds of an invented edge character are four times as high.
+        double odds300 = CharacterEdge.Error(0.3, 300) / (1 - CharacterEdge.Error(0.3, 300));
+        double odds1200 = CharacterEdge.Error(0.3, 1200) / (1 - CharacterEdge.Error(0.3, 1200));
+        Assert.Equal(4.0, odds1200 / odds300, 6);
+
+        // A cleanly decided edge character is near certain; one with a weak decision is not.
+        Assert.True(CharacterEdge.Error(1.0, 1200) < 0.001);
+        Assert.True(CharacterEdge.Error(0.1, 1200) > 0.5);
+    }
+
+    /// <summary>SoX cuts the capture at <paramref name="cut"/> seconds and puts <paramref name="seconds"/> of silence in place of what followed.</summary>
+    private string WithSilence(string source, string name, double cut, double seconds)
+    {
+        string before = temp.File($"{name}.before.wav");
+        string after = temp.File($"{name}.after.wav");
+        string gap = temp.File($"{name}.gap.wav");
+        string output = temp.File($"{name}.wav");
+        OutsideTool.Sox(source, before, "trim", "0", cut.ToString(CultureInfo.InvariantCulture));
+        OutsideTool.Sox(source, after, "trim", (cut + seconds).ToString(CultureInfo.InvariantCulture));
+        OutsideTool.Sox("-n", "-r", "48000", "-b", "16", "-c", "1", gap, "trim", "0", seconds.ToString(CultureInfo.InvariantCulture));
+        OutsideTool.Sox(before, gap, after, output);
+        return output;
+    }
+}
