@@ -29,6 +29,12 @@ public sealed record KindsFinding(
     bool LengthApproximate = false)
 {
     public int SyncBytes => SyncPerCopy[0].Length;
+
+    /// <summary>
+    /// The same finding as a layout (the check's coverage starting after the sync, the header kind's fields, the
+    /// blocks it holds on), so that its proof is weighed as any other reading's.
+    /// </summary>
+    public required LayoutFinding Layout { get; init; }
 }
 
 /// <summary>
@@ -63,44 +69,31 @@ public static class BlockKindSearch
                 continue;
             }
 
-            var bodies = usable.Where(b => b.Length > sync + 1 && values.Any(v => b.AsSpan(0, sync).SequenceEqual(v))).Select(b => b[sync..]).ToList();
-            var check = FindCheck(bodies);
-            if (check is not { } c)
+            var synced = usable.Where(b => b.Length > sync + 1 && values.Any(v => b.AsSpan(0, sync).SequenceEqual(v))).ToList();
+            var bodies = synced.Select(b => b[sync..]).ToList();
+            var (checksum, big, _, _, chosen) = LayoutSearch.FindChecksum([.. bodies.Select(b => new DraftBlock([b]))], 0);
+            if (checksum is null)
             {
                 continue;
             }
 
-            var holding = new List<(byte[] Block, byte[] Body)>();
-            foreach (var block in usable)
-            {
-                if (block.Length > sync + c.Checksum.Width && values.Any(v => block.AsSpan(0, sync).SequenceEqual(v)) && Holds(c.Checksum, c.BigEndian, block.AsSpan(sync)))
-                {
-                    holding.Add((block, block[sync..]));
-                }
-            }
-
+            // The blocks whose bodies the check held on, in their order (each check computed once, in the search).
+            var held = chosen.ToHashSet(ReferenceEqualityComparer.Instance);
+            var holding = synced.Where((_, i) => held.Contains(bodies[i])).ToList();
             var (copies, share, perCopy) = Copies(holding, sync);
-            var distinct = new List<byte[]>();
-            foreach (var (_, body) in holding)
-            {
-                if (distinct.Count == 0 || !distinct[^1].AsSpan().SequenceEqual(body))
-                {
-                    distinct.Add(body);
-                }
-            }
-
-            var kinds = Kinds(distinct, c.Checksum.Width);
+            var distinct = LayoutSearch.WithoutRepeats(holding.Select(b => b[sync..]));
+            var kinds = Kinds(distinct, checksum.Width);
             bool approximate = false;
             if (kinds is null)
             {
                 // No data block held its check: the header blocks that did, and the length of the block read after
                 // each (its bytes damaged, its length about right), give where the length is, but not to the byte.
                 var after = new List<byte[]>();
-                int headerLength = holding.GroupBy(h => h.Body.Length).OrderByDescending(g => g.Count()).First().Key;
+                int headerLength = distinct.GroupBy(b => b.Length).OrderByDescending(g => g.Count()).First().Key;
                 for (int i = 0; i < usable.Count; i++)
                 {
                     var body = usable[i].Length > sync ? usable[i][sync..] : [];
-                    if (body.Length == headerLength && holding.Any(h => h.Body.AsSpan().SequenceEqual(body)))
+                    if (body.Length == headerLength && distinct.Any(d => d.AsSpan().SequenceEqual(body)))
                     {
                         int j = i + 1;
                         while (j < usable.Count && usable[j].Length - sync == headerLength)
@@ -123,17 +116,31 @@ public static class BlockKindSearch
                     }
                 }
 
-                kinds = Kinds(after, c.Checksum.Width, 3);
+                kinds = Kinds(after, checksum.Width, 3);
                 approximate = kinds is not null;
             }
-
 
             if (kinds is null)
             {
                 return null;
             }
 
-            return new KindsFinding(perCopy ?? [values[0]], copies, share, c.Checksum, c.BigEndian, usable.Count, holding.Count, kinds.Value.HeaderBody, kinds.Value.Name, kinds.Value.Length, kinds.Value.Files, approximate);
+            var (headerBody, name, length, files) = kinds.Value;
+            var fields = new List<FoundField>();
+            if (name is { } n)
+            {
+                fields.Add(new FoundField(sync + n.Item1, n.Item2, "file-name", false, $"{n.Item2} bytes of printable text in every header block"));
+            }
+
+            // The header kind's length field (or address pair) gives the next block's length, not its own: no role.
+            string told = $"gives the length of the data block after it in {files} files";
+            fields.AddRange(length.IsAddressPair
+                ? [new FoundField(sync + length.Offset, 2, "other", length.BigEndian, "start address; " + told), new FoundField(sync + length.EndOffset!.Value, 2, "other", length.BigEndian, (length.InclusiveEnd ? "inclusive" : "exclusive") + " end address; " + told)]
+                : [new FoundField(sync + length.Offset, length.Bytes, "other", length.BigEndian, told)]);
+            fields.Sort((a, b) => a.Offset.CompareTo(b.Offset));
+            var layout = new LayoutFinding(checksum.Name, big, sync, checksum.Width, usable.Count, holding.Count, sync + headerBody, fields, null,
+                Math.Max(1, holding.Max(b => b.Length) - sync - checksum.Width), copies, share, holding);
+            return new KindsFinding(perCopy ?? [values[0]], copies, share, checksum, big, usable.Count, holding.Count, headerBody, name, length, files, approximate) { Layout = layout };
         }
 
         return null;
@@ -167,74 +174,13 @@ public static class BlockKindSearch
         return values.Count > 0 && covered >= 0.85 * blocks.Count ? values : null;
     }
 
-    private static (IBlockChecksum Checksum, bool BigEndian)? FindCheck(List<byte[]> bodies)
-    {
-        (IBlockChecksum Checksum, bool BigEndian)? best = null;
-        int bestHolding = 0;
-        int needed = Math.Max(2, (bodies.Count + 1) / 2);
-        foreach (var checksum in LayoutSearch.Checks)
-        {
-            foreach (bool big in checksum.Width == 1 ? new[] { true } : [true, false])
-            {
-                int holding = bodies.Count(b => b.Length > checksum.Width && Holds(checksum, big, b));
-
-                // On a tie the wider check wins (the low byte of a 16-bit sum is the 8-bit sum).
-                if (holding >= needed && (holding > bestHolding || (holding == bestHolding && best is { } b && checksum.Width > b.Checksum.Width)))
-                {
-                    best = (checksum, big);
-                    bestHolding = holding;
-                }
-            }
-        }
-
-        return best;
-    }
-
-    private static bool Holds(IBlockChecksum checksum, bool bigEndian, ReadOnlySpan<byte> body)
-    {
-        int w = checksum.Width;
-        if (body.Length <= w)
-        {
-            return false;
-        }
-
-        // A stored check of all zeros or all ones is no evidence (see LayoutSearch), nor is an all-zero body.
-        var stored = body[^w..];
-        var covered = body[..^w];
-        if (stored.IndexOfAnyExcept((byte)0) < 0 || stored.IndexOfAnyExcept((byte)0xFF) < 0 || covered.IndexOfAnyExcept((byte)0) < 0)
-        {
-            return false;
-        }
-
-        return checksum.Compute(covered) == LayoutSearch.Read(stored, bigEndian);
-    }
-
     /// <summary>
     /// How many copies of a block are written (runs of equal bodies), the share of blocks in runs of that length,
     /// and the sync before each copy where the copies' syncs differ (null where every copy has the same).
     /// </summary>
-    private static (int Copies, double Share, List<byte[]>? PerCopy) Copies(List<(byte[] Block, byte[] Body)> holding, int sync)
+    private static (int Copies, double Share, List<byte[]>? PerCopy) Copies(List<byte[]> holding, int sync)
     {
-        var runs = new List<(int Start, int Length)>();
-        int start = 0;
-        for (int i = 1; i <= holding.Count; i++)
-        {
-            if (i < holding.Count && holding[i].Body.AsSpan().SequenceEqual(holding[i - 1].Body))
-            {
-                continue;
-            }
-
-            runs.Add((start, i - start));
-            start = i;
-        }
-
-        if (runs.Count == 0)
-        {
-            return (1, 0, null);
-        }
-
-        int copies = Math.Clamp(runs.GroupBy(r => r.Length).OrderByDescending(g => g.Count() * g.Key).ThenBy(g => g.Key).First().Key, 1, 8);
-        double share = (double)runs.Where(r => r.Length == copies).Sum(r => r.Length) / holding.Count;
+        var (copies, share, runs) = LayoutSearch.Copies([.. holding.Select(b => b[sync..])]);
         if (copies == 1)
         {
             return (1, share, null);
@@ -244,8 +190,8 @@ public static class BlockKindSearch
         var perCopy = new List<byte[]>();
         for (int k = 0; k < copies; k++)
         {
-            var value = runs.Where(r => r.Length == copies).GroupBy(r => Convert.ToHexString(holding[r.Start + k].Block, 0, sync)).OrderByDescending(g => g.Count()).First();
-            perCopy.Add(holding[value.First().Start + k].Block[..sync]);
+            var value = runs.Where(r => r.Length == copies).GroupBy(r => Convert.ToHexString(holding[r.Start + k], 0, sync)).OrderByDescending(g => g.Count()).First();
+            perCopy.Add(holding[value.First().Start + k][..sync]);
         }
 
         return (copies, share, perCopy.Skip(1).All(p => p.AsSpan().SequenceEqual(perCopy[0])) ? null : perCopy);
@@ -334,24 +280,7 @@ public static class BlockKindSearch
     private static (int, int)? NameIn(List<byte[]> headers, int body, LengthSource length)
     {
         int lengthEnd = length.EndOffset is { } e ? e + 2 : length.Offset + length.Bytes;
-        bool free(int i) => i < length.Offset || i >= lengthEnd;
-        int bestStart = -1;
-        int bestLength = 0;
-        for (int start = 0; start < body; start++)
-        {
-            int n = 0;
-            while (start + n < body && free(start + n) && headers.All(h => h[start + n] is >= 0x20 and < 0x7f))
-            {
-                n++;
-            }
-
-            if (n > bestLength)
-            {
-                (bestStart, bestLength) = (start, n);
-            }
-        }
-
-        return bestLength >= 3 ? (bestStart, bestLength) : null;
+        return LayoutSearch.FindName(headers, 0, body, i => i < length.Offset || i >= lengthEnd);
     }
 
     public static string Hex(byte[] bytes) => string.Join(' ', bytes.Select(b => b.ToString("X2", CultureInfo.InvariantCulture)));

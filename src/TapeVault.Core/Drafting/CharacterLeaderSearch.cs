@@ -66,7 +66,9 @@ public static class CharacterLeaderSearch
             }
         }
 
-        var layout = LayoutSearch.Search(after);
+        // The bytes before the check's coverage are the sync characters a reader waits for, no header fields: the
+        // header's fields are looked for from where the coverage starts.
+        var layout = LayoutSearch.Search(after, fieldsInCoverage: true);
         if (!layout.HasChecksum || layout.CoverageStart == 0 || layout.Blocks.Count < 2)
         {
             return null;
@@ -87,15 +89,7 @@ public static class CharacterLeaderSearch
             return null;
         }
 
-        // The sync characters are no field of the header: a printable name found reaching back into them starts
-        // where the check's coverage does, and a field inside them is dropped.
-        int sync = layout.CoverageStart;
-        var fields = layout.Fields
-            .Where(f => f.Offset + f.Bytes > sync)
-            .Select(f => f.Offset >= sync ? f : f with { Offset = sync, Bytes = f.Offset + f.Bytes - sync })
-            .Where(f => f.Role != "file-name" || f.Bytes >= 3)
-            .ToList();
-        return new CharacterLeaderFinding(character, byCharacter.Min(r => r.Length), byCharacter.Count(), blocks.Count, layout with { Fields = fields });
+        return new CharacterLeaderFinding(character, byCharacter.Min(r => r.Length), byCharacter.Count(), blocks.Count, layout);
     }
 
     /// <summary>The first run of at least <see cref="LeastRun"/> equal bytes that begins within the block's first few.</summary>

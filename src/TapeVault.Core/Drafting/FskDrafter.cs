@@ -134,10 +134,16 @@ public sealed class FskDrafter : IFamilyDrafter
                 string.Join(", ", trials.Select(t => $"{t.Data}{t.Parity.ToString()[0]}{t.Stop.Length} {t.Blocks.Sum(b => b.Payload.Length)} characters, {F(100 * t.ErrorShare, "0.#")} % framing errors")) + ".");
         }
 
+        // A receiver decides only the first stop bit (common practice for serial lines), so a trial with two stop
+        // bits frames as well as one with one: the framings are weighed by their data and parity bits, the one-stop
+        // trial kept, and the stop bits told from the characters' spacing.
         var chosen = holding
-            .OrderByDescending(t => 1 + t.Data + (t.Parity == Parity.None ? 0 : 1) + t.Stop.Length)
+            .OrderByDescending(t => t.Data + (t.Parity == Parity.None ? 0 : 1))
             .ThenByDescending(t => t.Parity == Parity.None ? 0 : 1)
+            .ThenBy(t => t.Stop.Length)
             .First();
+        var spacing = CharacterSpacing.Measure(chosen.Blocks.Select(b => (IReadOnlyList<double>)b.ByteSeconds), baud, 1 + chosen.Data + (chosen.Parity == Parity.None ? 0 : 1));
+        chosen = chosen with { Stop = spacing.StopBits };
         var blockBytes = chosen.Blocks.OrderBy(b => b.StartSeconds).Select(b => b.Payload.ToArray()).Where(b => b.Length > 0).ToList();
 
         // Bit order: the check value tells it where there is one; else the share of printable text.
@@ -224,8 +230,16 @@ public sealed class FskDrafter : IFamilyDrafter
         Framing(proposal, framing, layout.HasChecksum, 1 - chosen.ErrorShare, orderMeasured, orderEvidence);
         proposal.Findings.RemoveAll(f => f.Path is "framing.startBits" or "framing.stopBits" or "framing.parity" or "framing.dataBits");
         proposal.Measured("framing.startBits", "'0'", 0.9, "a fall from the idle mark tone starts each character");
-        proposal.Measured("framing.stopBits", $"'{chosen.Stop}'", framingConfidence, $"framing errors per framing tried (data bits, parity, stop bits): {others}; the longest frame that holds is drafted");
-        proposal.Measured("framing.parity", chosen.Parity.ToString().ToLowerInvariant(), framingConfidence, $"framing errors per framing tried: {others}");
+        if (spacing.Told)
+        {
+            proposal.Measured("framing.stopBits", $"'{chosen.Stop}'", 0.9, spacing.Evidence);
+        }
+        else
+        {
+            proposal.Guessed("framing.stopBits", $"'{chosen.Stop}'", 0.5, spacing.Evidence);
+        }
+
+        proposal.Measured("framing.parity", chosen.Parity.ToString().ToLowerInvariant(), framingConfidence, $"framing errors per framing tried (data bits, parity, stop bits): {others}; the most data and parity bits that hold are drafted");
         proposal.Measured("framing.dataBits", F(chosen.Data), layout.HasChecksum ? 0.9 : framingConfidence - 0.1, $"framing errors per framing tried: {others}");
         Layout(proposal, layout);
         proposal.Notes.Add($"Framing told by {trials.Count} trial decodes of the first {F(Math.Min(TrialSeconds, survey.Stretch.Seconds), "0")} s with the read path's FSK decoder; {blockBytes.Count} blocks read with the framing chosen.");

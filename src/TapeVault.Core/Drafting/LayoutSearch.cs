@@ -78,11 +78,17 @@ public static class LayoutSearch
     internal static IReadOnlyList<IBlockChecksum> Checks => Candidates.Value;
 
     /// <summary>How many of <paramref name="blocks"/> some catalogue checksum holds on: the quick score of a way of reading them.</summary>
-    public static LayoutFinding Search(IReadOnlyList<DraftBlock> blocks)
+    /// <param name="blocks">The blocks as read.</param>
+    /// <param name="fieldsInCoverage">
+    /// Whether the bytes before the check's coverage are known to be no header fields (sync characters after a leader,
+    /// say): then the length, counter and name are looked for from where the coverage starts.
+    /// </param>
+    public static LayoutFinding Search(IReadOnlyList<DraftBlock> blocks, bool fieldsInCoverage = false)
     {
         ArgumentNullException.ThrowIfNull(blocks);
         var tried = blocks.Where(b => b.First.Length >= 3).Take(MaximumBlocks).ToList();
-        var (checksum, big, start, holding, chosen) = FindChecksum(tried);
+        var (checksum, big, start, holding, chosen) = FindChecksum(tried, MaximumCoverageStart);
+        int fieldsFrom = fieldsInCoverage ? start : 0;
         var lengths = chosen.Select(b => b.Length).ToList();
         int width = checksum?.Width ?? 0;
         var fields = new List<FoundField>();
@@ -91,7 +97,7 @@ public static class LayoutSearch
         var good = chosen.Where(b => b.Length > width + start).ToList();
         if (checksum is not null && good.Count > 0)
         {
-            var lengthField = good.Select(b => b.Length).Distinct().Count() >= 2 ? FindLengthField(good, width, start) : null;
+            var lengthField = good.Select(b => b.Length).Distinct().Count() >= 2 ? FindLengthField(good, width, start, fieldsFrom) : null;
             if (lengthField is { } lf)
             {
                 header = lf.Header;
@@ -102,16 +108,22 @@ public static class LayoutSearch
                 fixedPayload = good.GroupBy(b => b.Length).OrderByDescending(g => g.Count()).First().Key - width - header;
             }
 
-            fields.AddRange(FindCounterAndName(good, header, fields));
+            fields.AddRange(FindCounterAndName(good, fieldsFrom, header, fields));
         }
 
         fields.Sort((a, b) => a.Offset.CompareTo(b.Offset));
         int maximum = Math.Max(1, good.Count > 0 ? good.Max(b => b.Length) - width - header : 1);
-        var (copies, share) = Copies(checksum is null ? [.. tried.Select(b => b.First)] : chosen);
+        var (copies, share, _) = Copies(checksum is null ? [.. tried.Select(b => b.First)] : chosen);
         return new LayoutFinding(checksum?.Name, big, start, width, tried.Count, holding, header, fields, fixedPayload, maximum, copies, share, chosen);
     }
 
-    private static (IBlockChecksum? Checksum, bool BigEndian, int Start, int Holding, List<byte[]> Chosen) FindChecksum(List<DraftBlock> blocks)
+    /// <summary>
+    /// The catalogue checksum (<see cref="Checks"/>) that holds on the most of <paramref name="blocks"/> (at least half,
+    /// and two), stored at each block's end in either byte order, its coverage starting at most
+    /// <paramref name="maximumStart"/> bytes in; on a tie the wider check, else the first tried. With the blocks (the
+    /// first reading of each that holds) it holds on.
+    /// </summary>
+    internal static (IBlockChecksum? Checksum, bool BigEndian, int Start, int Holding, List<byte[]> Chosen) FindChecksum(IReadOnlyList<DraftBlock> blocks, int maximumStart)
     {
         IBlockChecksum? best = null;
         bool bestBig = true;
@@ -121,8 +133,7 @@ public static class LayoutSearch
         int needed = Math.Max(2, (blocks.Count + 1) / 2);
         foreach (var checksum in Candidates.Value)
         {
-            int w = checksum.Width;
-            for (int start = 0; start <= MaximumCoverageStart; start++)
+            for (int start = 0; start <= maximumStart; start++)
             {
                 int holdBig = 0;
                 int holdLittle = 0;
@@ -138,28 +149,14 @@ public static class LayoutSearch
 
                     foreach (var reading in blocks[i].Readings)
                     {
-                        if (reading.Length < start + w + 1 || AllZero(reading.AsSpan(start, reading.Length - w - start)))
-                        {
-                            continue;
-                        }
-
-                        // A stored check of all zeros or all ones is no evidence: a reading lengthened by lead-in
-                        // bits ends in such bytes, and a CRC over a message with its own CRC after it leaves a
-                        // constant (zero where nothing is xored out), so the check would "hold" one field too late.
-                        var stored = reading.AsSpan(reading.Length - w);
-                        if (stored.IndexOfAnyExcept((byte)0) < 0 || stored.IndexOfAnyExcept((byte)0xFF) < 0)
-                        {
-                            continue;
-                        }
-
-                        uint value = checksum.Compute(reading.AsSpan(start, reading.Length - w - start));
-                        if (chosenBig[i] is null && value == Read(stored, true))
+                        var (big, little) = Holds(checksum, reading, start);
+                        if (chosenBig[i] is null && big)
                         {
                             chosenBig[i] = reading;
                             holdBig++;
                         }
 
-                        if (chosenLittle[i] is null && w > 1 && value == Read(stored, false))
+                        if (chosenLittle[i] is null && little)
                         {
                             chosenLittle[i] = reading;
                             holdLittle++;
@@ -171,7 +168,7 @@ public static class LayoutSearch
                 {
                     // On a tie the wider check wins: the low byte of a 16-bit sum is the 8-bit sum of the same
                     // bytes, so the narrower check holds wherever the wider one does, one byte short.
-                    if (holding >= needed && (holding > bestHolding || (holding == bestHolding && best is not null && w > best.Width)))
+                    if (holding >= needed && (holding > bestHolding || (holding == bestHolding && best is not null && checksum.Width > best.Width)))
                     {
                         best = checksum;
                         bestBig = big;
@@ -186,12 +183,46 @@ public static class LayoutSearch
         return (best, bestBig, bestStart, bestHolding, bestChosen);
     }
 
-    private static (FoundField Field, int Header)? FindLengthField(List<byte[]> blocks, int checkBytes, int coverageStart)
+    /// <summary>
+    /// Whether <paramref name="checksum"/>, computed once over <paramref name="reading"/> from <paramref name="start"/>
+    /// up to the check value stored at its end, equals that value read big-endian and little-endian (a one-byte value
+    /// has one order). A stored check of all zeros or all ones is no evidence: a reading lengthened by lead-in bits ends
+    /// in such bytes, and a CRC over a message with its own CRC after it leaves a constant (zero where nothing is xored
+    /// out), so the check would "hold" one field too late; nor are covered bytes that are all zero.
+    /// </summary>
+    internal static (bool Big, bool Little) Holds(IBlockChecksum checksum, ReadOnlySpan<byte> reading, int start = 0)
+    {
+        ArgumentNullException.ThrowIfNull(checksum);
+        int w = checksum.Width;
+        if (reading.Length < start + w + 1)
+        {
+            return default;
+        }
+
+        var covered = reading[start..^w];
+        var stored = reading[^w..];
+        if (AllZero(covered) || stored.IndexOfAnyExcept((byte)0) < 0 || stored.IndexOfAnyExcept((byte)0xFF) < 0)
+        {
+            return default;
+        }
+
+        uint value = checksum.Compute(covered);
+        return (value == Read(stored, true), w > 1 && value == Read(stored, false));
+    }
+
+    /// <summary>Whether <paramref name="checksum"/> holds on <paramref name="reading"/>, its value stored at the end in the order given (see <see cref="Holds(IBlockChecksum, ReadOnlySpan{byte}, int)"/>).</summary>
+    internal static bool Holds(IBlockChecksum checksum, bool bigEndian, ReadOnlySpan<byte> reading, int start = 0)
+    {
+        var (big, little) = Holds(checksum, reading, start);
+        return bigEndian ? big : little;
+    }
+
+    private static (FoundField Field, int Header)? FindLengthField(List<byte[]> blocks, int checkBytes, int coverageStart, int fieldsFrom)
     {
         const int maximumHeader = 24;
         for (int header = Math.Max(1, coverageStart); header <= maximumHeader; header++)
         {
-            for (int offset = 0; offset < header; offset++)
+            for (int offset = fieldsFrom; offset < header; offset++)
             {
                 foreach (int width in new[] { 1, 2 })
                 {
@@ -239,39 +270,14 @@ public static class LayoutSearch
         return null;
     }
 
-    private static IEnumerable<FoundField> FindCounterAndName(List<byte[]> blocks, int header, List<FoundField> taken)
+    private static IEnumerable<FoundField> FindCounterAndName(List<byte[]> blocks, int from, int header, List<FoundField> taken)
     {
         bool free(int offset, int bytes) => !taken.Any(f => offset < f.Offset + f.Bytes && f.Offset < offset + bytes);
-        var distinct = new List<byte[]>();
-        foreach (var block in blocks)
-        {
-            if (distinct.Count == 0 || !distinct[^1].AsSpan().SequenceEqual(block))
-            {
-                distinct.Add(block);
-            }
-        }
-
-        // A printable name: the longest run of header bytes that are printable text in every block.
-        int bestStart = -1;
-        int bestLength = 0;
-        for (int start = 0; start < header; start++)
-        {
-            int length = 0;
-            while (start + length < header && free(start + length, 1) && blocks.All(b => b[start + length] is >= 0x20 and < 0x7f))
-            {
-                length++;
-            }
-
-            if (length > bestLength)
-            {
-                (bestStart, bestLength) = (start, length);
-            }
-        }
-
+        var distinct = WithoutRepeats(blocks);
         var found = new List<FoundField>();
-        if (bestLength >= 3)
+        if (FindName(blocks, from, header, i => free(i, 1)) is { } name)
         {
-            found.Add(new FoundField(bestStart, bestLength, "file-name", false, $"{bestLength} bytes of printable text in every block"));
+            found.Add(new FoundField(name.Offset, name.Bytes, "file-name", false, $"{name.Bytes} bytes of printable text in every block"));
         }
 
         // A block counter: a field that goes up by one from each block to the next in most steps.
@@ -279,7 +285,7 @@ public static class LayoutSearch
         {
             FoundField? counter = null;
             double bestShare = 0.6;
-            for (int offset = 0; offset < header; offset++)
+            for (int offset = from; offset < header; offset++)
             {
                 foreach (int width in new[] { 2, 1 })
                 {
@@ -318,31 +324,76 @@ public static class LayoutSearch
         return found;
     }
 
-    private static (int Copies, double Share) Copies(IReadOnlyList<byte[]> blocks)
+    /// <summary>
+    /// How many copies of a block the tape holds: the blocks in runs of equal ones, the run length that covers the most
+    /// blocks (the shorter on a tie, at most eight), the share of blocks in runs of that length, and the runs.
+    /// </summary>
+    internal static (int Copies, double Share, List<(int Start, int Length)> Runs) Copies(IReadOnlyList<byte[]> blocks)
     {
+        var runs = new List<(int Start, int Length)>();
         if (blocks.Count < 2)
         {
-            return (1, 0);
+            runs.AddRange(blocks.Count == 1 ? [(0, 1)] : []);
+            return (1, 0, runs);
         }
 
-        var runs = new List<int>();
-        int run = 1;
+        int start = 0;
         for (int i = 1; i <= blocks.Count; i++)
         {
             if (i < blocks.Count && blocks[i].AsSpan().SequenceEqual(blocks[i - 1]))
             {
-                run++;
                 continue;
             }
 
-            runs.Add(run);
-            run = 1;
+            runs.Add((start, i - start));
+            start = i;
         }
 
-        int copies = runs.GroupBy(r => r).OrderByDescending(g => g.Count() * g.Key).ThenBy(g => g.Key).First().Key;
+        int copies = runs.GroupBy(r => r.Length).OrderByDescending(g => g.Count() * g.Key).ThenBy(g => g.Key).First().Key;
         copies = Math.Clamp(copies, 1, 8);
-        double share = (double)runs.Where(r => r == copies).Sum() / blocks.Count;
-        return (copies, share);
+        double share = (double)runs.Where(r => r.Length == copies).Sum(r => r.Length) / blocks.Count;
+        return (copies, share, runs);
+    }
+
+    /// <summary>The blocks with each run of equal ones (the copies of a block) kept once.</summary>
+    internal static List<byte[]> WithoutRepeats(IEnumerable<byte[]> blocks)
+    {
+        var distinct = new List<byte[]>();
+        foreach (var block in blocks)
+        {
+            if (distinct.Count == 0 || !distinct[^1].AsSpan().SequenceEqual(block))
+            {
+                distinct.Add(block);
+            }
+        }
+
+        return distinct;
+    }
+
+    /// <summary>
+    /// A printable name: the longest run (three bytes or more; the first of equal ones) of offsets from
+    /// <paramref name="from"/> up to <paramref name="to"/>, each <paramref name="free"/>, that hold printable text in
+    /// every block.
+    /// </summary>
+    internal static (int Offset, int Bytes)? FindName(IReadOnlyList<byte[]> blocks, int from, int to, Func<int, bool> free)
+    {
+        int bestStart = -1;
+        int bestLength = 0;
+        for (int start = from; start < to; start++)
+        {
+            int length = 0;
+            while (start + length < to && free(start + length) && blocks.All(b => b[start + length] is >= 0x20 and < 0x7f))
+            {
+                length++;
+            }
+
+            if (length > bestLength)
+            {
+                (bestStart, bestLength) = (start, length);
+            }
+        }
+
+        return bestLength >= 3 ? (bestStart, bestLength) : null;
     }
 
     private static bool AllZero(ReadOnlySpan<byte> bytes) => bytes.IndexOfAnyExcept((byte)0) < 0;

@@ -132,19 +132,19 @@ public static class PulsePairs
             return null;
         }
 
-        // The bit pairs inside frames.
+        // The bit pairs inside frames: each block's frames walked once, and what follows read from them.
         int pairsPerFrame = (spacing - 2) / 2;
+        var framed = blocks.Select(block => Frames(block, marker, second, spacing)).ToList();
         var pairCounts = new Dictionary<(int, int), int>();
         int frames = 0;
         int pairs = 0;
-        foreach (var block in blocks)
+        foreach (var blockFrames in framed)
         {
-            foreach (int at in FrameStarts(block, marker, second, spacing))
+            foreach (var frame in blockFrames)
             {
                 frames++;
-                for (int k = 0; k < pairsPerFrame; k++)
+                foreach (var pair in frame)
                 {
-                    var pair = (block[at + 2 + (2 * k)], block[at + 3 + (2 * k)]);
                     pairCounts[pair] = pairCounts.GetValueOrDefault(pair) + 1;
                     pairs++;
                 }
@@ -169,7 +169,7 @@ public static class PulsePairs
         double runnerUp = -1;
         foreach (var (zero, one) in new[] { (a, b), (b, a) })
         {
-            var (parity, parityShare) = ParityOf(blocks, marker, second, spacing, zero, one);
+            var (parity, parityShare) = ParityOf(framed, zero, one);
             int dataBits = parity == Parity.None ? pairsPerFrame : pairsPerFrame - 1;
             if (dataBits is < 5 or > 8)
             {
@@ -179,7 +179,7 @@ public static class PulsePairs
             foreach (var order in new[] { BitOrder.LsbFirst, BitOrder.MsbFirst })
             {
                 cancellation.ThrowIfCancellationRequested();
-                var bytes = blocks.Select(block => Bytes(block, marker, second, spacing, zero, one, dataBits, order)).Where(x => x.Length > 0).ToList();
+                var bytes = framed.Select(blockFrames => Bytes(blockFrames, zero, one, dataBits, order)).Where(x => x.Length > 0).ToList();
                 var kinds = BlockKindSearch.Search(bytes);
                 if (kinds is null)
                 {
@@ -246,44 +246,61 @@ public static class PulsePairs
         }
     }
 
-    /// <summary>The bytes of one block: a byte from each frame, the parity bit left out.</summary>
-    public static byte[] Bytes(int[] block, int marker, int second, int spacing, (int, int) zero, (int, int) one, int dataBits, BitOrder order)
+    /// <summary>The bit pairs of each frame of a block (the marker left out), frame after frame as <see cref="FrameStarts"/> finds them.</summary>
+    public static (int First, int Second)[][] Frames(int[] block, int marker, int second, int spacing)
     {
         ArgumentNullException.ThrowIfNull(block);
-        var result = new List<byte>();
+        int pairsPerFrame = (spacing - 2) / 2;
+        var frames = new List<(int, int)[]>();
         foreach (int at in FrameStarts(block, marker, second, spacing))
+        {
+            var frame = new (int, int)[pairsPerFrame];
+            for (int k = 0; k < pairsPerFrame; k++)
+            {
+                frame[k] = (block[at + 2 + (2 * k)], block[at + 3 + (2 * k)]);
+            }
+
+            frames.Add(frame);
+        }
+
+        return [.. frames];
+    }
+
+    /// <summary>The bytes of one block's frames: a byte from each frame, its first <paramref name="dataBits"/> pairs in the order given (a parity bit after them left out).</summary>
+    public static byte[] Bytes(IReadOnlyList<(int First, int Second)[]> frames, (int, int) zero, (int, int) one, int dataBits, BitOrder order)
+    {
+        ArgumentNullException.ThrowIfNull(frames);
+        var result = new byte[frames.Count];
+        for (int f = 0; f < frames.Count; f++)
         {
             int value = 0;
             for (int d = 0; d < dataBits; d++)
             {
-                var pair = (block[at + 2 + (2 * d)], block[at + 3 + (2 * d)]);
-                if (pair == one)
+                if (frames[f][d] == one)
                 {
                     value |= 1 << (order == BitOrder.LsbFirst ? d : dataBits - 1 - d);
                 }
             }
 
-            result.Add((byte)value);
+            result[f] = (byte)value;
         }
 
-        return [.. result];
+        return result;
     }
 
-    /// <summary>The parity that the frames' ones hold in nearly every frame (95 %), or none, with the share of frames that have it.</summary>
-    private static (Parity Parity, double Share) ParityOf(IReadOnlyList<int[]> blocks, int marker, int second, int spacing, (int, int) zero, (int, int) one)
+    /// <summary>The parity that the frames' ones hold in nearly every frame (95 %), or none, with the share of frames that have it; frames with a pair that is no bit are left out.</summary>
+    private static (Parity Parity, double Share) ParityOf(List<(int First, int Second)[][]> framed, (int, int) zero, (int, int) one)
     {
-        int bits = (spacing - 2) / 2;
         int odd = 0;
         int frames = 0;
-        foreach (var block in blocks)
+        foreach (var blockFrames in framed)
         {
-            foreach (int at in FrameStarts(block, marker, second, spacing))
+            foreach (var frame in blockFrames)
             {
                 int ones = 0;
                 bool whole = true;
-                for (int k = 0; k < bits; k++)
+                foreach (var pair in frame)
                 {
-                    var pair = (block[at + 2 + (2 * k)], block[at + 3 + (2 * k)]);
                     ones += pair == one ? 1 : 0;
                     whole &= pair == one || pair == zero;
                 }

@@ -349,7 +349,8 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         string Name(int c) => keptNames[kept.IndexOf(c)];
         JsonArray Sequence(params int[] classes) => new([.. classes.Select(c => (JsonNode)JsonValue.Create(Name(c))!)]);
 
-        var proposal = new FamilyProposal();
+        // The layout the kinds search found, so that the check's proof is weighed as for any other reading.
+        var proposal = new FamilyProposal { Layout = r.Kinds.Layout };
         int shortestLeadIn = leadRuns.Min(x => x.Length);
         int minimum = Math.Clamp((int)(0.25 * shortestLeadIn), 8, MostLeadIn);
         var markers = new JsonObject { ["beforeByte"] = Sequence(r.Marker, r.MarkerSecond) };

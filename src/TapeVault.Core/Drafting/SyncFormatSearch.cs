@@ -87,31 +87,51 @@ public static class SyncFormatSearch
                 break;
             }
 
-            // Both bit orders: a reflected CRC over bit-reversed bytes can hold as well as the plain one over the
-            // bytes as written, so a check holding in one order proves the order only when it fails in the other.
-            var found = new List<(ByteFraming Framing, LayoutFinding Layout)>();
-            foreach (var order in new[] { BitOrder.LsbFirst, BitOrder.MsbFirst })
-            {
-                searches++;
-                cancellation.ThrowIfCancellationRequested();
-                var framing = candidate.Framing with { BitOrder = order };
-                var layout = LayoutSearch.Search(Blocks(usable, candidate.Sync, candidate.Mapping, framing, leadInSymbol));
-                if (layout.HasChecksum)
-                {
-                    found.Add((framing, layout));
-                }
-            }
-
+            var found = Readings(candidate.Sync, candidate.Framing);
             if (found.Count == 0)
             {
                 continue;
+            }
+
+            // A CRC that starts from zero and xors nothing out holds as well when the sync's last 0 bits are read as
+            // leading data bits (leading zeros leave it unchanged, and the 0 bit after a block ends its check): the
+            // longer syncs the blocks share, up to a byte more, are weighed too, and the one whose reading has the
+            // most header fields, then the most text, wins; on a tie the shorter.
+            int sync = candidate.Sync;
+            for (int longer = candidate.Sync + 1; longer < candidate.Sync + candidate.Framing.BitsPerByte && longer <= Math.Min(prefix, MaximumSync) && searches < MaximumLayoutSearches; longer++)
+            {
+                var more = Readings(longer, candidate.Framing);
+                if (more.Count > 0 && Score(more).CompareTo(Score(found)) > 0)
+                {
+                    (sync, found) = (longer, more);
+                }
             }
 
             var best = found.OrderByDescending(f => f.Layout.Fields.Count).ThenByDescending(f => CommonSections.PrintableShare(f.Layout.Blocks)).First();
             bool ambiguous = found.Count == 2
                 && found[0].Layout.Fields.Count == found[1].Layout.Fields.Count
                 && Math.Abs(CommonSections.PrintableShare(found[0].Layout.Blocks) - CommonSections.PrintableShare(found[1].Layout.Blocks)) < 0.3;
-            return Absorb(usable, candidate.Sync, candidate.Mapping, best.Framing, candidate.Share, best.Layout, prefix, ordered.Count, leadInSymbol, ambiguous);
+            return Absorb(usable, sync, candidate.Mapping, best.Framing, candidate.Share, best.Layout, prefix, ordered.Count, leadInSymbol, ambiguous);
+
+            // Both bit orders: a reflected CRC over bit-reversed bytes can hold as well as the plain one over the
+            // bytes as written, so a check holding in one order proves the order only when it fails in the other.
+            List<(ByteFraming Framing, LayoutFinding Layout)> Readings(int syncLength, ByteFraming framing)
+            {
+                var readings = new List<(ByteFraming Framing, LayoutFinding Layout)>();
+                foreach (var order in new[] { BitOrder.LsbFirst, BitOrder.MsbFirst })
+                {
+                    searches++;
+                    cancellation.ThrowIfCancellationRequested();
+                    var framed = framing with { BitOrder = order };
+                    var layout = LayoutSearch.Search(Blocks(usable, syncLength, candidate.Mapping, framed, leadInSymbol));
+                    if (layout.HasChecksum)
+                    {
+                        readings.Add((framed, layout));
+                    }
+                }
+
+                return readings;
+            }
         }
 
         if (first is not { } f)
@@ -121,6 +141,13 @@ public static class SyncFormatSearch
 
         var plain = LayoutSearch.Search(Blocks(usable, f.Sync, f.Mapping, f.Framing, leadInSymbol));
         return new SyncReading(Majority(usable, f.Sync), f.Mapping, f.Framing, f.Share, plain, prefix, ordered.Count, OrderAmbiguous: true);
+    }
+
+    /// <summary>How well the readings of one sync length hold: blocks the check holds on, then header fields, then text.</summary>
+    private static (int Holding, int Fields, double Text) Score(List<(ByteFraming Framing, LayoutFinding Layout)> readings)
+    {
+        var best = readings.OrderByDescending(r => r.Layout.BlocksHolding).ThenByDescending(r => r.Layout.Fields.Count).ThenByDescending(r => CommonSections.PrintableShare(r.Layout.Blocks)).First().Layout;
+        return (best.BlocksHolding, best.Fields.Count, Math.Round(CommonSections.PrintableShare(best.Blocks), 1));
     }
 
     /// <summary>

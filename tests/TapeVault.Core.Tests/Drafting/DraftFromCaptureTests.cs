@@ -36,7 +36,7 @@ public sealed class DraftFromCaptureTests(OutsideTempFolder folder, ITestOutputH
     [InlineData("biphase", 603, false)]
     [InlineData("three-class-pairs", 604, true)]
     [InlineData("one-cycle-bits", 605, false)]
-    [InlineData("fsk-sync", 606, true, Skip = "Not met yet: the draft names FSK, the leader, sync characters and CRC, but its confirmed profile reads none of the blocks back (docs/performance.md)")]
+    [InlineData("fsk-sync", 606, true)]
     [InlineData("biphase-alternating", 607, false)]
     public void A_draft_names_the_family_and_its_timing_and_once_confirmed_reads_the_blocks(string family, int seed, bool sox)
     {
