@@ -238,39 +238,91 @@ public static class EventChain
             events = events.Where(e => e.Id <= through);
         }
 
-        string previous = Genesis;
-        long previousId = 0;
-        int count = 0;
-        ChainHead? head = null;
+        // Read in order on this thread, a chunk at a time; each chunk's hashes are recomputed on every core while the
+        // next chunk is read. Every link is still checked, in id order, against the event before it.
+        var walk = new Walk();
+        Task<ChainBreak?>? checking = null;
+        var chunk = new List<ArchiveEvent>(WalkChunk);
         await foreach (var e in events.OrderBy(e => e.Id).AsAsyncEnumerable().WithCancellation(cancellation).ConfigureAwait(false))
         {
-            count++;
-            string before = previousId == 0 ? "the start of the log" : $"event {previousId}";
-            string? problem = null;
-            if (e.Sha256 is null || e.PreviousSha256 is null)
+            chunk.Add(e);
+            if (chunk.Count < WalkChunk)
             {
-                problem = $"Event {e.Id} carries no place in the chain: it was added outside the archive.";
-            }
-            else if (!string.Equals(e.PreviousSha256, previous, StringComparison.Ordinal))
-            {
-                problem = $"Event {e.Id} names {e.PreviousSha256} as the event before it, but {before} has {previous}: an event was removed, inserted or reordered here.";
-            }
-            else if (!HashMatches(e, previous, e.Sha256))
-            {
-                problem = $"Event {e.Id} ({e.EventType} {e.ObjectType} {e.ObjectId}, {e.OccurredUtc.UtcDateTime:yyyy-MM-dd HH:mm:ss} UTC) does not match its SHA-256 {e.Sha256}: it was edited after it was recorded.";
+                continue;
             }
 
-            if (problem is not null)
+            if (checking is not null && await checking.ConfigureAwait(false) is { } broken)
             {
-                return new ChainReport(count, head, new ChainBreak(e.Id, problem));
+                return new ChainReport(walk.Count, walk.Head, broken);
             }
 
-            previous = e.Sha256!;
-            previousId = e.Id;
-            head = new ChainHead(e.Id, e.Sha256!);
+            var full = chunk;
+            chunk = new List<ArchiveEvent>(WalkChunk);
+            checking = Task.Run(() => walk.Check(full, cancellation), cancellation);
         }
 
-        return new ChainReport(count, head, null);
+        if (checking is not null && await checking.ConfigureAwait(false) is { } late)
+        {
+            return new ChainReport(walk.Count, walk.Head, late);
+        }
+
+        return walk.Check(chunk, cancellation) is { } last ? new ChainReport(walk.Count, walk.Head, last) : new ChainReport(walk.Count, walk.Head, null);
+    }
+
+    /// <summary>How many events the chain's walk reads before handing them to be checked.</summary>
+    private const int WalkChunk = 4096;
+
+    /// <summary>Where a walk along the chain stands: the last event whose link held, and how many events it has looked at.</summary>
+    private sealed class Walk
+    {
+        private string previous = Genesis;
+        private long previousId;
+
+        public int Count { get; private set; }
+
+        public ChainHead? Head { get; private set; }
+
+        /// <summary>Checks the next events in id order; returns the first broken link among them, or null.</summary>
+        public ChainBreak? Check(List<ArchiveEvent> events, CancellationToken cancellation)
+        {
+            // Each event's hash over the content and the "previous" it names, on every core; a link holds only when
+            // that "previous" is also the hash of the event before it, checked in order below.
+            var holds = new bool[events.Count];
+            Parallel.For(0, events.Count, new ParallelOptions { CancellationToken = cancellation }, i =>
+            {
+                var e = events[i];
+                holds[i] = e.Sha256 is not null && e.PreviousSha256 is not null && HashMatches(e, e.PreviousSha256, e.Sha256);
+            });
+            for (int i = 0; i < events.Count; i++)
+            {
+                var e = events[i];
+                Count++;
+                string? problem = null;
+                if (e.Sha256 is null || e.PreviousSha256 is null)
+                {
+                    problem = $"Event {e.Id} carries no place in the chain: it was added outside the archive.";
+                }
+                else if (!string.Equals(e.PreviousSha256, previous, StringComparison.Ordinal))
+                {
+                    problem = $"Event {e.Id} names {e.PreviousSha256} as the event before it, but {(previousId == 0 ? "the start of the log" : $"event {previousId}")} has {previous}: an event was removed, inserted or reordered here.";
+                }
+                else if (!holds[i])
+                {
+                    problem = $"Event {e.Id} ({e.EventType} {e.ObjectType} {e.ObjectId}, {e.OccurredUtc.UtcDateTime:yyyy-MM-dd HH:mm:ss} UTC) does not match its SHA-256 {e.Sha256}: it was edited after it was recorded.";
+                }
+
+                if (problem is not null)
+                {
+                    return new ChainBreak(e.Id, problem);
+                }
+
+                previous = e.Sha256!;
+                previousId = e.Id;
+                Head = new ChainHead(e.Id, e.Sha256!);
+            }
+
+            return null;
+        }
     }
 
     /// <summary>Reads a head as bags, catalogues and <c>verify</c> write it ("event 42 sha256:…"); null when it is not one.</summary>
