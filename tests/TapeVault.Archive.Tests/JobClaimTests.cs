@@ -57,6 +57,76 @@ public sealed class JobClaimTests
         }
     }
 
+    [Theory]
+    [InlineData(JobKinds.Bag)]
+    [InlineData(JobKinds.Publish)]
+    public async Task AFiringWhoseExportJobWasResumedElsewhere_RecordsNoExport_AndTheResumingFiringRecordsOne(string kind)
+    {
+        await using var archive = await JobArchive.CreateAsync();
+        using var pages = archive.PagesNode();
+        var (captureId, _) = await QueueDecodeAsync(pages, archive.Root, queue: false);
+        int itemId, collectionId;
+        await using (var db = archive.NewContext())
+        {
+            var capture = await db.Captures.AsNoTracking().Include(c => c.Item).SingleAsync(c => c.Id == captureId);
+            (itemId, collectionId) = (capture.ItemId, capture.Item!.CollectionId);
+        }
+
+        var scope = kind == JobKinds.Bag ? new ScopeParameters(null, itemId) : new ScopeParameters(collectionId, null);
+        int jobId = await archive.EnqueueAsync(kind, scope.ToJson(), kind == JobKinds.Bag ? itemId : null);
+        var queue = pages.GetRequiredService<JobQueue>();
+        var handler = pages.GetServices<IJobHandler>().Single(h => h.Kind == kind);
+        var first = await queue.ClaimAsync(jobId, resuming: false);
+        Assert.NotNull(first);
+        var second = await queue.ClaimAsync(jobId, resuming: true);
+        Assert.NotNull(second);
+
+        // The node taken for dead wakes and finishes its export: its claim is gone, so it records nothing (no export
+        // row, no export event) and leaves the job to the node holding it.
+        await Assert.ThrowsAsync<JobTakenOverException>(() => handler.RunAsync(first, (_, _) => Task.FromResult(false), CancellationToken.None));
+        await using (var db = archive.NewContext())
+        {
+            Assert.Equal(0, await db.Exports.CountAsync());
+            Assert.Equal(0, await db.Events.CountAsync(e => e.EventType == EventTypes.Export));
+            Assert.Equal(JobState.Running, (await db.Jobs.AsNoTracking().SingleAsync(j => j.Id == jobId)).State);
+        }
+
+        // The node holding the job records the export and ends the job in the same commit.
+        var outcome = await handler.RunAsync(second, (_, _) => Task.FromResult(false), CancellationToken.None);
+        await using (var db = archive.NewContext())
+        {
+            var export = await db.Exports.AsNoTracking().SingleAsync();
+            var job = await db.Jobs.AsNoTracking().SingleAsync(j => j.Id == jobId);
+            Assert.Equal(JobState.Done, job.State);
+            Assert.Equal(export.Id, job.ResultId);
+            Assert.Equal(outcome.ResultId, export.Id);
+            Assert.Equal(outcome.Summary, job.ProgressText);
+            Assert.True(await db.Events.CountAsync(e => e.EventType == EventTypes.Export) >= 1);
+        }
+    }
+
+    [Fact]
+    public async Task AFiringWhoseJobWasResumedElsewhere_LeavesItsProgressAlone_AndIsToldToStop()
+    {
+        await using var archive = await JobArchive.CreateAsync();
+        using var pages = archive.PagesNode();
+        int jobId = await archive.EnqueueAsync(JobKinds.Fixity, new ScopeParameters(null, null).ToJson());
+        var queue = pages.GetRequiredService<JobQueue>();
+        var first = await queue.ClaimAsync(jobId, resuming: false);
+        Assert.NotNull(first);
+        Assert.False(await queue.ReportAsync(jobId, first.Attempts, 0.3, "first node at 30 %"));
+        var second = await queue.ClaimAsync(jobId, resuming: true);
+        Assert.NotNull(second);
+        Assert.False(await queue.ReportAsync(jobId, second.Attempts, 0.1, "second node at 10 %"));
+
+        // The stale firing's report changes nothing and tells it to stop; the holder's progress stands.
+        Assert.True(await queue.ReportAsync(jobId, first.Attempts, 0.9, "first node at 90 %"));
+        var job = await archive.JobAsync(jobId);
+        Assert.Equal("second node at 10 %", job.ProgressText);
+        Assert.Equal(0.1, job.Progress, 6);
+        Assert.Equal(JobState.Running, job.State);
+    }
+
     [Fact]
     public async Task AWorkersJobsRunsAndImages_TakeTheirTimesFromTheHostClock()
     {

@@ -407,16 +407,26 @@ public static partial class Scale
 
         if (options.Measures("long"))
         {
-            // Drawn anew: the kept drawings are removed before each view (as a new decode or merge makes them stale).
+            // The curator's first view after a merge: the merge job (run by the app's own worker, not timed) draws the
+            // page's timeline when it stores the image, so the page reads a finished drawing.
             var kept = Path.Combine(root, "store", "derived", "timelines");
-            await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings, first view", _ => Forget(kept, $"/items/{facts.LongItem}"), Math.Max(5, options.Requests / 4));
+            await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings, first view after a merge", _ => $"/items/{facts.LongItem}", Math.Max(5, options.Requests / 4),
+                before: async () =>
+                {
+                    await api.PostJsonAsync($"/api/items/{facts.LongItem}/merge");
+                    await api.WaitForJobsAsync(TimeSpan.FromMinutes(10));
+                });
+
+            // Drawn by the page: the kept drawings are removed before each view (as when they are lost or the app's
+            // build changed since the jobs drew them).
+            await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings, first view, nothing kept", _ => Forget(kept, $"/items/{facts.LongItem}"), Math.Max(5, options.Requests / 4));
             await PageAsync(api, $"tape of {options.LongBlocks} blocks, 3 passes × 8 settings, later views", _ => $"/items/{facts.LongItem}", options.Requests);
         }
 
         Console.WriteLine("(page times are whole requests on loopback; the tape page tells its timeline's own server time in a Server-Timing header)");
     }
 
-    private static async Task PageAsync(ApiSession api, string name, Func<int, string> path, int requests, bool optional = false)
+    private static async Task PageAsync(ApiSession api, string name, Func<int, string> path, int requests, bool optional = false, Func<Task>? before = null)
     {
         var times = new List<double>(requests);
         long size = 0;
@@ -425,6 +435,11 @@ public static partial class Scale
         var drawnTimes = new List<double>();
         for (int r = -3; r < requests; r++)
         {
+            if (before is not null)
+            {
+                await before();
+            }
+
             string url = path(r);
             var started = Stopwatch.GetTimestamp();
             var response = await api.Http.GetAsync(url);

@@ -49,31 +49,168 @@ public static class EventChain
     {
         ArgumentNullException.ThrowIfNull(e);
         ArgumentNullException.ThrowIfNull(previousSha256);
-        var b = new StringBuilder(256 + e.Detail.Length);
-        b.Append("{\"agent\":");
-        AppendString(b, e.Agent);
-        b.Append(",\"detail\":");
-        AppendString(b, e.Detail);
-        b.Append(",\"eventType\":");
-        AppendString(b, e.EventType);
-        b.Append(CultureInfo.InvariantCulture, $",\"id\":{e.Id}");
-        b.Append(",\"itemId\":").Append(e.ItemId is { } item ? item.ToString(CultureInfo.InvariantCulture) : "null");
-        b.Append(",\"objectId\":");
-        AppendString(b, e.ObjectId);
-        b.Append(",\"objectType\":");
-        AppendString(b, e.ObjectType);
-        b.Append(",\"occurredUtc\":");
-        AppendString(b, e.OccurredUtc.UtcDateTime.ToString("yyyy-MM-dd'T'HH:mm:ss.fffffff'Z'", CultureInfo.InvariantCulture));
-        b.Append(",\"outcome\":");
-        AppendString(b, e.Outcome);
-        b.Append(",\"previous\":");
-        AppendString(b, previousSha256);
-        b.Append(CultureInfo.InvariantCulture, $",\"version\":{Version}}}");
-        return new UTF8Encoding(encoderShouldEmitUTF8Identifier: false, throwOnInvalidBytes: true).GetBytes(b.ToString());
+        var writer = CanonicalWriter.ForThisThread;
+        writer.Write(e, previousSha256);
+        return writer.Written.ToArray();
     }
 
     /// <summary>SHA-256 (FIPS 180-4) of the canonical content, lower-case hex.</summary>
-    public static string HashOf(ArchiveEvent e, string previousSha256) => Convert.ToHexStringLower(SHA256.HashData(CanonicalBytes(e, previousSha256)));
+    public static string HashOf(ArchiveEvent e, string previousSha256)
+    {
+        Span<byte> hash = stackalloc byte[SHA256.HashSizeInBytes];
+        HashInto(e, previousSha256, hash);
+        return Convert.ToHexStringLower(hash);
+    }
+
+    /// <summary>
+    /// Whether <paramref name="expectedSha256"/> is, character for character, the lower-case hex SHA-256 of the event's
+    /// canonical content: <see cref="HashOf"/> compared with it, without a string per event (the chain's walk).
+    /// </summary>
+    public static bool HashMatches(ArchiveEvent e, string previousSha256, string expectedSha256)
+    {
+        ArgumentNullException.ThrowIfNull(expectedSha256);
+        Span<byte> hash = stackalloc byte[SHA256.HashSizeInBytes];
+        HashInto(e, previousSha256, hash);
+        Span<char> hex = stackalloc char[2 * SHA256.HashSizeInBytes];
+        return Convert.TryToHexStringLower(hash, hex, out int written) && hex[..written].SequenceEqual(expectedSha256);
+    }
+
+    private static void HashInto(ArchiveEvent e, string previousSha256, Span<byte> hash)
+    {
+        ArgumentNullException.ThrowIfNull(e);
+        ArgumentNullException.ThrowIfNull(previousSha256);
+        var writer = CanonicalWriter.ForThisThread;
+        writer.Write(e, previousSha256);
+        SHA256.HashData(writer.Written, hash);
+    }
+
+    /// <summary>
+    /// Writes an event's canonical content (see <see cref="CanonicalBytes"/>) as UTF-8 straight into a buffer it keeps
+    /// for the next event, one per thread: walking a long chain makes no string or array per event.
+    /// </summary>
+    private sealed class CanonicalWriter
+    {
+        [ThreadStatic]
+        private static CanonicalWriter? perThread;
+
+        /// <summary>The characters JSON must escape in a string (RFC 8785 / RFC 8259): the quote, the backslash and U+0000–U+001F.</summary>
+        private static readonly System.Buffers.SearchValues<char> Escaped = System.Buffers.SearchValues.Create(
+            "\"\\\u0000\u0001\u0002\u0003\u0004\u0005\u0006\u0007\b\t\n\u000b\f\r\u000e\u000f\u0010\u0011\u0012\u0013\u0014\u0015\u0016\u0017\u0018\u0019\u001a\u001b\u001c\u001d\u001e\u001f");
+
+        /// <summary>Strict UTF-8: a lone surrogate throws rather than being written as U+FFFD.</summary>
+        private static readonly UTF8Encoding Strict = new(encoderShouldEmitUTF8Identifier: false, throwOnInvalidBytes: true);
+
+        private byte[] buffer = new byte[1024];
+        private int length;
+
+        public static CanonicalWriter ForThisThread => perThread ??= new CanonicalWriter();
+
+        public ReadOnlySpan<byte> Written => buffer.AsSpan(0, length);
+
+        public void Write(ArchiveEvent e, string previous)
+        {
+            length = 0;
+            Ascii("{\"agent\":"u8);
+            String(e.Agent);
+            Ascii(",\"detail\":"u8);
+            String(e.Detail);
+            Ascii(",\"eventType\":"u8);
+            String(e.EventType);
+            Ascii(",\"id\":"u8);
+            Number(e.Id);
+            Ascii(",\"itemId\":"u8);
+            if (e.ItemId is { } item)
+            {
+                Number(item);
+            }
+            else
+            {
+                Ascii("null"u8);
+            }
+
+            Ascii(",\"objectId\":"u8);
+            String(e.ObjectId);
+            Ascii(",\"objectType\":"u8);
+            String(e.ObjectType);
+            Ascii(",\"occurredUtc\":\""u8);
+            Room(32);
+            if (!e.OccurredUtc.UtcDateTime.TryFormat(buffer.AsSpan(length), out int written, "yyyy-MM-dd'T'HH:mm:ss.fffffff'Z'", CultureInfo.InvariantCulture))
+            {
+                throw new InvalidOperationException("An event time did not fit its canonical form.");
+            }
+
+            length += written;
+            Ascii("\",\"outcome\":"u8);
+            String(e.Outcome);
+            Ascii(",\"previous\":"u8);
+            String(previous);
+            Ascii(",\"version\":"u8);
+            Number(Version);
+            Ascii("}"u8);
+        }
+
+        private void Room(int more)
+        {
+            if (length + more > buffer.Length)
+            {
+                Array.Resize(ref buffer, Math.Max(buffer.Length * 2, length + more));
+            }
+        }
+
+        private void Ascii(ReadOnlySpan<byte> text)
+        {
+            Room(text.Length);
+            text.CopyTo(buffer.AsSpan(length));
+            length += text.Length;
+        }
+
+        private void Number(long value)
+        {
+            Room(24);
+            value.TryFormat(buffer.AsSpan(length), out int written, default, CultureInfo.InvariantCulture);
+            length += written;
+        }
+
+        private void Utf8(ReadOnlySpan<char> text)
+        {
+            Room(Strict.GetMaxByteCount(text.Length));
+            length += Strict.GetBytes(text, buffer.AsSpan(length));
+        }
+
+        /// <summary>A JSON string: the short escapes \b \f \n \r \t, other controls as \u00xx in lower-case hex.</summary>
+        private void String(string value)
+        {
+            Ascii("\""u8);
+            ReadOnlySpan<char> rest = value;
+            int next;
+            while ((next = rest.IndexOfAny(Escaped)) >= 0)
+            {
+                Utf8(rest[..next]);
+                char c = rest[next];
+                switch (c)
+                {
+                    case '"': Ascii("\\\""u8); break;
+                    case '\\': Ascii("\\\\"u8); break;
+                    case '\b': Ascii("\\b"u8); break;
+                    case '\f': Ascii("\\f"u8); break;
+                    case '\n': Ascii("\\n"u8); break;
+                    case '\r': Ascii("\\r"u8); break;
+                    case '\t': Ascii("\\t"u8); break;
+                    default:
+                        Ascii("\\u00"u8);
+                        Room(2);
+                        buffer[length++] = (byte)"0123456789abcdef"[c >> 4];
+                        buffer[length++] = (byte)"0123456789abcdef"[c & 0xF];
+                        break;
+                }
+
+                rest = rest[(next + 1)..];
+            }
+
+            Utf8(rest);
+            Ascii("\""u8);
+        }
+    }
 
     /// <summary>The newest event's id and hash; null for an empty log.</summary>
     public static async Task<ChainHead?> HeadAsync(ArchiveDbContext db, CancellationToken cancellation = default)
@@ -85,42 +222,107 @@ public static class EventChain
     }
 
     /// <summary>Walks the whole log in id order, recomputing every link; stops at the first that does not hold.</summary>
-    public static async Task<ChainReport> VerifyAsync(ArchiveDbContext db, CancellationToken cancellation = default)
+    public static Task<ChainReport> VerifyAsync(ArchiveDbContext db, CancellationToken cancellation = default) =>
+        VerifyAsync(db, throughEventId: null, cancellation);
+
+    /// <summary>
+    /// Walks the log in id order up to event <paramref name="throughEventId"/> (a head read earlier: what was chained
+    /// then, whatever was added since), recomputing every link; stops at the first that does not hold.
+    /// </summary>
+    public static async Task<ChainReport> VerifyAsync(ArchiveDbContext db, long? throughEventId, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(db);
-        string previous = Genesis;
-        long previousId = 0;
-        int count = 0;
-        ChainHead? head = null;
-        await foreach (var e in db.Events.AsNoTracking().OrderBy(e => e.Id).AsAsyncEnumerable().WithCancellation(cancellation).ConfigureAwait(false))
+        var events = db.Events.AsNoTracking();
+        if (throughEventId is { } through)
         {
-            count++;
-            string before = previousId == 0 ? "the start of the log" : $"event {previousId}";
-            string? problem = null;
-            if (e.Sha256 is null || e.PreviousSha256 is null)
-            {
-                problem = $"Event {e.Id} carries no place in the chain: it was added outside the archive.";
-            }
-            else if (!string.Equals(e.PreviousSha256, previous, StringComparison.Ordinal))
-            {
-                problem = $"Event {e.Id} names {e.PreviousSha256} as the event before it, but {before} has {previous}: an event was removed, inserted or reordered here.";
-            }
-            else if (!string.Equals(HashOf(e, previous), e.Sha256, StringComparison.Ordinal))
-            {
-                problem = $"Event {e.Id} ({e.EventType} {e.ObjectType} {e.ObjectId}, {e.OccurredUtc.UtcDateTime:yyyy-MM-dd HH:mm:ss} UTC) does not match its SHA-256 {e.Sha256}: it was edited after it was recorded.";
-            }
-
-            if (problem is not null)
-            {
-                return new ChainReport(count, head, new ChainBreak(e.Id, problem));
-            }
-
-            previous = e.Sha256!;
-            previousId = e.Id;
-            head = new ChainHead(e.Id, e.Sha256!);
+            events = events.Where(e => e.Id <= through);
         }
 
-        return new ChainReport(count, head, null);
+        // Read in order on this thread, a chunk at a time; each chunk's hashes are recomputed on every core while the
+        // next chunk is read. Every link is still checked, in id order, against the event before it.
+        var walk = new Walk();
+        Task<ChainBreak?>? checking = null;
+        var chunk = new List<ArchiveEvent>(WalkChunk);
+        await foreach (var e in events.OrderBy(e => e.Id).AsAsyncEnumerable().WithCancellation(cancellation).ConfigureAwait(false))
+        {
+            chunk.Add(e);
+            if (chunk.Count < WalkChunk)
+            {
+                continue;
+            }
+
+            if (checking is not null && await checking.ConfigureAwait(false) is { } broken)
+            {
+                return new ChainReport(walk.Count, walk.Head, broken);
+            }
+
+            var full = chunk;
+            chunk = new List<ArchiveEvent>(WalkChunk);
+            checking = Task.Run(() => walk.Check(full, cancellation), cancellation);
+        }
+
+        if (checking is not null && await checking.ConfigureAwait(false) is { } late)
+        {
+            return new ChainReport(walk.Count, walk.Head, late);
+        }
+
+        return walk.Check(chunk, cancellation) is { } last ? new ChainReport(walk.Count, walk.Head, last) : new ChainReport(walk.Count, walk.Head, null);
+    }
+
+    /// <summary>How many events the chain's walk reads before handing them to be checked.</summary>
+    private const int WalkChunk = 4096;
+
+    /// <summary>Where a walk along the chain stands: the last event whose link held, and how many events it has looked at.</summary>
+    private sealed class Walk
+    {
+        private string previous = Genesis;
+        private long previousId;
+
+        public int Count { get; private set; }
+
+        public ChainHead? Head { get; private set; }
+
+        /// <summary>Checks the next events in id order; returns the first broken link among them, or null.</summary>
+        public ChainBreak? Check(List<ArchiveEvent> events, CancellationToken cancellation)
+        {
+            // Each event's hash over the content and the "previous" it names, on every core; a link holds only when
+            // that "previous" is also the hash of the event before it, checked in order below.
+            var holds = new bool[events.Count];
+            Parallel.For(0, events.Count, new ParallelOptions { CancellationToken = cancellation }, i =>
+            {
+                var e = events[i];
+                holds[i] = e.Sha256 is not null && e.PreviousSha256 is not null && HashMatches(e, e.PreviousSha256, e.Sha256);
+            });
+            for (int i = 0; i < events.Count; i++)
+            {
+                var e = events[i];
+                Count++;
+                string? problem = null;
+                if (e.Sha256 is null || e.PreviousSha256 is null)
+                {
+                    problem = $"Event {e.Id} carries no place in the chain: it was added outside the archive.";
+                }
+                else if (!string.Equals(e.PreviousSha256, previous, StringComparison.Ordinal))
+                {
+                    problem = $"Event {e.Id} names {e.PreviousSha256} as the event before it, but {(previousId == 0 ? "the start of the log" : $"event {previousId}")} has {previous}: an event was removed, inserted or reordered here.";
+                }
+                else if (!holds[i])
+                {
+                    problem = $"Event {e.Id} ({e.EventType} {e.ObjectType} {e.ObjectId}, {e.OccurredUtc.UtcDateTime:yyyy-MM-dd HH:mm:ss} UTC) does not match its SHA-256 {e.Sha256}: it was edited after it was recorded.";
+                }
+
+                if (problem is not null)
+                {
+                    return new ChainBreak(e.Id, problem);
+                }
+
+                previous = e.Sha256!;
+                previousId = e.Id;
+                Head = new ChainHead(e.Id, e.Sha256!);
+            }
+
+            return null;
+        }
     }
 
     /// <summary>Reads a head as bags, catalogues and <c>verify</c> write it ("event 42 sha256:…"); null when it is not one.</summary>
@@ -226,26 +428,4 @@ public static class EventChain
 
     /// <summary>A string as SQLite gives it back: UTF-8 cannot hold a lone surrogate, which becomes U+FFFD on the way in.</summary>
     private static string Scrub(string value) => Encoding.UTF8.GetString(Encoding.UTF8.GetBytes(value));
-
-    private static void AppendString(StringBuilder b, string value)
-    {
-        b.Append('"');
-        foreach (char c in value)
-        {
-            switch (c)
-            {
-                case '"': b.Append("\\\""); break;
-                case '\\': b.Append("\\\\"); break;
-                case '\b': b.Append("\\b"); break;
-                case '\f': b.Append("\\f"); break;
-                case '\n': b.Append("\\n"); break;
-                case '\r': b.Append("\\r"); break;
-                case '\t': b.Append("\\t"); break;
-                case < ' ': b.Append(CultureInfo.InvariantCulture, $"\\u{(int)c:x4}"); break;
-                default: b.Append(c); break;
-            }
-        }
-
-        b.Append('"');
-    }
 }

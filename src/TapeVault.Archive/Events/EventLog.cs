@@ -1,3 +1,8 @@
+using System.Data.Common;
+using Microsoft.EntityFrameworkCore;
+using Microsoft.EntityFrameworkCore.Infrastructure;
+using Microsoft.EntityFrameworkCore.Metadata;
+using Microsoft.EntityFrameworkCore.Storage;
 using TapeVault.Archive.Entities;
 
 namespace TapeVault.Archive.Events;
@@ -31,7 +36,24 @@ public static class EventLog
         int? itemId = null)
     {
         ArgumentNullException.ThrowIfNull(db);
-        var entry = new ArchiveEvent
+        var entry = New(db, eventType, agent, objectType, objectId, outcome, detail, itemId);
+        db.Events.Add(entry);
+        return entry;
+    }
+
+    /// <summary>An event stamped with the context's clock, not yet added (for <see cref="AppendAsync"/>).</summary>
+    public static ArchiveEvent New(
+        ArchiveDbContext db,
+        string eventType,
+        string agent,
+        string objectType,
+        string objectId,
+        string outcome,
+        string detail = "",
+        int? itemId = null)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        return new ArchiveEvent
         {
             EventType = eventType,
             OccurredUtc = db.Clock.GetUtcNow(),
@@ -42,7 +64,113 @@ public static class EventLog
             Detail = detail,
             ItemId = itemId,
         };
-        db.Events.Add(entry);
-        return entry;
     }
+
+    /// <summary>
+    /// Appends many events at once (a fixity audit's one per stored object) and commits them, chained exactly as
+    /// <see cref="ArchiveDbContext.SaveChangesAsync(bool, CancellationToken)"/> chains them: under the write lock, after
+    /// the head read then, each linked to the one before. They are inserted with one parameterised statement (one
+    /// batch where the provider takes batches) instead of EF Core's change tracking, which costs about a millisecond
+    /// an event on SQLite under load. The columns and their conversions are the model's own.
+    /// </summary>
+    public static async Task AppendAsync(ArchiveDbContext db, IReadOnlyList<ArchiveEvent> events, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(db);
+        ArgumentNullException.ThrowIfNull(events);
+        if (events.Count == 0)
+        {
+            return;
+        }
+
+        var entity = db.Model.FindEntityType(typeof(ArchiveEvent)) ?? throw new InvalidOperationException("The model has no event log.");
+        var table = StoreObjectIdentifier.Table(entity.GetTableName()!, entity.GetSchema());
+        var sql = db.GetService<ISqlGenerationHelper>();
+        var properties = entity.GetProperties().ToArray();
+        var converters = properties.Select(p => p.GetTypeMapping().Converter).ToArray();
+        string text = $"INSERT INTO {sql.DelimitIdentifier(table.Name, table.Schema)} ({string.Join(", ", properties.Select(p => sql.DelimitIdentifier(p.GetColumnName(table)!)))}) "
+            + $"VALUES ({string.Join(", ", properties.Select((_, i) => $"@p{i}"))})";
+
+        var own = db.Database.CurrentTransaction is null ? await db.Database.BeginTransactionAsync(cancellation).ConfigureAwait(false) : null;
+        try
+        {
+            await ArchiveDatabase.LockEventsForAppendAsync(db, cancellation).ConfigureAwait(false);
+            var head = await db.Events.AsNoTracking().OrderByDescending(e => e.Id).Select(e => new { e.Id, e.Sha256 })
+                .FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+            EventChain.Link(events, head?.Id ?? 0, head?.Sha256);
+            var connection = db.Database.GetDbConnection();
+            var transaction = db.Database.CurrentTransaction!.GetDbTransaction();
+            void Fill(DbParameterCollection parameters, Func<DbParameter> make, ArchiveEvent e)
+            {
+                for (int i = 0; i < properties.Length; i++)
+                {
+                    object? value = ValueOf(e, properties[i].Name);
+                    if (value is not null && converters[i] is { } converter)
+                    {
+                        value = converter.ConvertToProvider(value);
+                    }
+
+                    var parameter = make();
+                    parameter.ParameterName = $"@p{i}";
+                    parameter.Value = value ?? DBNull.Value;
+                    parameters.Add(parameter);
+                }
+            }
+
+            if (connection.CanCreateBatch)
+            {
+                await using var batch = connection.CreateBatch();
+                batch.Transaction = transaction;
+                foreach (var e in events)
+                {
+                    var command = batch.CreateBatchCommand();
+                    command.CommandText = text;
+                    Fill(command.Parameters, command.CreateParameter, e);
+                    batch.BatchCommands.Add(command);
+                }
+
+                await batch.ExecuteNonQueryAsync(cancellation).ConfigureAwait(false);
+            }
+            else
+            {
+                await using var command = connection.CreateCommand();
+                command.Transaction = transaction;
+                command.CommandText = text;
+                foreach (var e in events)
+                {
+                    command.Parameters.Clear();
+                    Fill(command.Parameters, command.CreateParameter, e);
+                    await command.ExecuteNonQueryAsync(cancellation).ConfigureAwait(false);
+                }
+            }
+
+            if (own is not null)
+            {
+                await own.CommitAsync(cancellation).ConfigureAwait(false);
+            }
+        }
+        finally
+        {
+            if (own is not null)
+            {
+                await own.DisposeAsync().ConfigureAwait(false);
+            }
+        }
+    }
+
+    /// <summary>An event's value for one column of the model; a column this does not know fails rather than being left empty.</summary>
+    private static object? ValueOf(ArchiveEvent e, string property) => property switch
+    {
+        nameof(ArchiveEvent.Id) => e.Id,
+        nameof(ArchiveEvent.EventType) => e.EventType,
+        nameof(ArchiveEvent.OccurredUtc) => e.OccurredUtc,
+        nameof(ArchiveEvent.Agent) => e.Agent,
+        nameof(ArchiveEvent.ObjectType) => e.ObjectType,
+        nameof(ArchiveEvent.ObjectId) => e.ObjectId,
+        nameof(ArchiveEvent.ItemId) => e.ItemId,
+        nameof(ArchiveEvent.Outcome) => e.Outcome,
+        nameof(ArchiveEvent.Detail) => e.Detail,
+        nameof(ArchiveEvent.Sha256) => e.Sha256,
+        nameof(ArchiveEvent.PreviousSha256) => e.PreviousSha256,
+        _ => throw new InvalidOperationException($"The event log has a column '{property}' that EventLog.AppendAsync does not fill."),
+    };
 }

@@ -1,5 +1,6 @@
 using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive.Entities;
+using TapeVault.Archive.Jobs;
 using TapeVault.Archive.Storage;
 
 namespace TapeVault.Archive.Export;
@@ -7,7 +8,14 @@ namespace TapeVault.Archive.Export;
 /// <summary>Bags and catalogues made in the web app: written into the content store and recorded, so they can be downloaded and audited.</summary>
 public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExport bags, CataloguePublisher catalogues)
 {
-    public async Task<ExportRecord> StoreBagAsync(BagScope scope, string agent, CancellationToken cancellation = default)
+    public Task<ExportRecord> StoreBagAsync(BagScope scope, string agent, CancellationToken cancellation = default) =>
+        StoreBagAsync(scope, agent, heldJob: null, cancellation);
+
+    /// <summary>
+    /// Makes and records a bag; with <paramref name="heldJob"/>, the export and the job's end are one commit, made only
+    /// while this firing still holds the job (else <see cref="JobTakenOverException"/>, and nothing is recorded).
+    /// </summary>
+    public async Task<ExportRecord> StoreBagAsync(BagScope scope, string agent, JobRecord? heldJob, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(scope);
         BagResult? result = null;
@@ -21,21 +29,48 @@ public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExpo
         }, cancellation).ConfigureAwait(false);
         var bag = result!;
         return await RecordAsync(staged, "bag", scope.CollectionId, scope.ItemId, $"{bag.Name}.zip", agent,
-            () => bags.RecordExported(bag, agent, "kept in the archive for download"), cancellation).ConfigureAwait(false);
+            () => bags.RecordExported(bag, agent, "kept in the archive for download"), heldJob, BagSummary, cancellation).ConfigureAwait(false);
     }
 
-    public async Task<ExportRecord> StoreCatalogueAsync(int collectionId, string agent, CancellationToken cancellation = default)
+    public Task<ExportRecord> StoreCatalogueAsync(int collectionId, string agent, CancellationToken cancellation = default) =>
+        StoreCatalogueAsync(collectionId, agent, heldJob: null, cancellation);
+
+    /// <summary>
+    /// Publishes and records a collection's catalogue; with <paramref name="heldJob"/>, the export and the job's end are
+    /// one commit, made only while this firing still holds the job (else <see cref="JobTakenOverException"/>).
+    /// </summary>
+    public async Task<ExportRecord> StoreCatalogueAsync(int collectionId, string agent, JobRecord? heldJob, CancellationToken cancellation = default)
     {
         int files = 0;
         using var staged = await store.StageAsync(async stream => files = await catalogues.PublishZipAsync(collectionId, stream, cancellation).ConfigureAwait(false), cancellation).ConfigureAwait(false);
         string fileName = $"catalogue-collection-{collectionId}.zip";
         var itemIds = await catalogues.ItemIdsAsync(collectionId, cancellation).ConfigureAwait(false);
         return await RecordAsync(staged, "catalogue", collectionId, null, fileName, agent,
-            () => catalogues.RecordPublished(collectionId, itemIds, $"Catalogue published as '{fileName}', kept in the archive for download ({files} files).", agent), cancellation).ConfigureAwait(false);
+            () => catalogues.RecordPublished(collectionId, itemIds, $"Catalogue published as '{fileName}', kept in the archive for download ({files} files).", agent),
+            heldJob, CatalogueSummary, cancellation).ConfigureAwait(false);
     }
 
-    private async Task<ExportRecord> RecordAsync(StagedObject staged, string kind, int? collectionId, int? itemId, string fileName, string agent, Action recordEvents, CancellationToken cancellation)
+    /// <summary>The bag job's summary of what it made.</summary>
+    public static string BagSummary(ExportRecord record)
     {
+        ArgumentNullException.ThrowIfNull(record);
+        return $"Bag {record.FileName} ready ({record.Sha256[..12]}…).";
+    }
+
+    /// <summary>The publish job's summary of what it made.</summary>
+    public static string CatalogueSummary(ExportRecord record)
+    {
+        ArgumentNullException.ThrowIfNull(record);
+        return $"Catalogue {record.FileName} ready ({record.Sha256[..12]}…).";
+    }
+
+    private async Task<ExportRecord> RecordAsync(
+        StagedObject staged, string kind, int? collectionId, int? itemId, string fileName, string agent, Action recordEvents,
+        JobRecord? heldJob, Func<ExportRecord, string> summary, CancellationToken cancellation)
+    {
+        // A job's export and the job's end are one commit (the events with them), and only while its firing still holds
+        // the job: an export is recorded once, even when a node taken for dead wakes up after another finished its job.
+        await using var transaction = heldJob is null ? null : await db.Database.BeginTransactionAsync(CancellationToken.None).ConfigureAwait(false);
         bool known = await db.Objects.AnyAsync(o => o.Sha256 == staged.Sha256, cancellation).ConfigureAwait(false);
         if (!known)
         {
@@ -59,7 +94,16 @@ public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExpo
         staged.Commit();
         try
         {
-            await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
+            await db.SaveChangesAsync(heldJob is null ? cancellation : CancellationToken.None).ConfigureAwait(false);
+            if (heldJob is not null)
+            {
+                if (!await JobQueue.FinishHeldAsync(db, heldJob, summary(record), record.Id).ConfigureAwait(false))
+                {
+                    throw new JobTakenOverException(heldJob.Id);
+                }
+
+                await transaction!.CommitAsync(CancellationToken.None).ConfigureAwait(false);
+            }
         }
         catch
         {

@@ -24,7 +24,7 @@ public readonly record struct FixityProgress(int Done, int Total);
 /// must agree on SHA-256 and size); and reports files in the store that no row names, and object rows nothing uses.
 /// Records one fixity-check event per object. It only reads: nothing is repaired, replaced, moved or removed.
 /// </summary>
-public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
+public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<ArchiveDbContext> contexts, ContentStore store)
 {
     public const string Ok = "ok";
     public const string Mismatch = "mismatch";
@@ -93,19 +93,46 @@ public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
         IProgress<FixityProgress>? progress,
         CancellationToken cancellation)
     {
-        // The chain first, before this audit adds events of its own.
+        // The chain as it stood before this audit added events of its own (up to the head now), walked on a
+        // connection of its own while the objects' outcomes are recorded on this one: each link is recomputed, and the
+        // walk overlaps the audit's writes instead of coming before them.
         var problems = new List<FixityFinding>();
-        var chain = await EventChain.VerifyAsync(db, cancellation).ConfigureAwait(false);
-        if (chain.FirstBreak is { } broken)
+        var headBefore = await EventChain.HeadAsync(db, cancellation).ConfigureAwait(false);
+        using var stopWalking = CancellationTokenSource.CreateLinkedTokenSource(cancellation);
+        var walking = Task.Run(
+            async () =>
+            {
+                await using var reader = await contexts.CreateDbContextAsync(stopWalking.Token).ConfigureAwait(false);
+                return await EventChain.VerifyAsync(reader, headBefore?.EventId ?? 0, stopWalking.Token).ConfigureAwait(false);
+            },
+            CancellationToken.None);
+        try
         {
-            var stored = await db.Events.AsNoTracking().Where(e => e.Id == broken.EventId).Select(e => e.Sha256).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
-            problems.Add(new FixityFinding(stored ?? string.Empty, ChainBroken, "event", null, null, $"event {broken.EventId}", broken.Reason));
+            return await RecordAsync(collectionId, agent, started, places, objects, recorded, found, hashed, progress, problems, walking, cancellation).ConfigureAwait(false);
         }
+        finally
+        {
+            await stopWalking.CancelAsync().ConfigureAwait(false);
+            await Task.WhenAny(walking).ConfigureAwait(false);
+        }
+    }
 
-        EventLog.Add(db, EventTypes.FixityCheck, agent, "event-log", "chain", chain.Intact ? Ok : ChainBroken,
-            chain.FirstBreak is { } b ? $"First broken link: {b.Reason}" : $"{chain.Events} event(s) chained; head {chain.Head?.ToString() ?? "none"}.");
-
+    private async Task<FixityReport> RecordAsync(
+        int? collectionId,
+        string agent,
+        DateTimeOffset started,
+        Dictionary<string, List<Place>> places,
+        List<Entities.StoredObject> objects,
+        Dictionary<string, Entities.StoredObject> recorded,
+        FileFacts[] found,
+        TaskCompletionSource[] hashed,
+        IProgress<FixityProgress>? progress,
+        List<FixityFinding> problems,
+        Task<ChainReport> walking,
+        CancellationToken cancellation)
+    {
         int good = 0;
+        var checks = new List<Entities.ArchiveEvent>(EventsPerSave);
         for (int i = 0; i < objects.Count; i++)
         {
             if (i % HashBatch == 0)
@@ -155,15 +182,27 @@ public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
                 problems.AddRange(uses.Select(u => new FixityFinding(stored.Sha256, outcome, u.Kind, u.Collection, u.Item, u.File, detail)));
             }
 
-            EventLog.Add(db, EventTypes.FixityCheck, agent, "object", stored.Sha256, outcome,
-                $"{uses[0].Kind} {uses[0].File}{(uses.Count > 1 ? $" (and {uses.Count - 1} more use(s))" : string.Empty)}: {detail}", uses[0].ItemId);
-            if (i % EventsPerSave == EventsPerSave - 1)
+            checks.Add(EventLog.New(db, EventTypes.FixityCheck, agent, "object", stored.Sha256, outcome,
+                $"{uses[0].Kind} {uses[0].File}{(uses.Count > 1 ? $" (and {uses.Count - 1} more use(s))" : string.Empty)}: {detail}", uses[0].ItemId));
+            if (checks.Count == EventsPerSave)
             {
-                await SaveEventsAsync(cancellation).ConfigureAwait(false);
+                await EventLog.AppendAsync(db, checks, cancellation).ConfigureAwait(false);
+                checks.Clear();
             }
 
             progress?.Report(new FixityProgress(i + 1, objects.Count));
         }
+
+        await EventLog.AppendAsync(db, checks, cancellation).ConfigureAwait(false);
+        var chain = await walking.WaitAsync(cancellation).ConfigureAwait(false);
+        if (chain.FirstBreak is { } broken)
+        {
+            var stored = await db.Events.AsNoTracking().Where(e => e.Id == broken.EventId).Select(e => e.Sha256).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+            problems.Insert(0, new FixityFinding(stored ?? string.Empty, ChainBroken, "event", null, null, $"event {broken.EventId}", broken.Reason));
+        }
+
+        EventLog.Add(db, EventTypes.FixityCheck, agent, "event-log", "chain", chain.Intact ? Ok : ChainBroken,
+            chain.FirstBreak is { } b ? $"First broken link: {b.Reason}" : $"{chain.Events} event(s) chained; head {chain.Head?.ToString() ?? "none"}.");
 
         problems.AddRange(await CrossCheckCapturesAsync(collectionId, recorded, cancellation).ConfigureAwait(false));
         problems.AddRange(await UnrecordedFilesAsync(collectionId, recorded, places, cancellation).ConfigureAwait(false));
@@ -177,21 +216,8 @@ public sealed partial class FixityAudit(ArchiveDbContext db, ContentStore store)
         return new FixityReport(objects.Count, good, problems, started, db.Clock.GetUtcNow(), chain, headAfter);
     }
 
-    /// <summary>How many of the audit's events are saved at a time.</summary>
+    /// <summary>How many of the audit's per-object events are appended (and committed) at a time.</summary>
     private const int EventsPerSave = 500;
-
-    /// <summary>
-    /// Saves the events added so far and stops tracking them: an audit of ten thousand files adds as many events, and
-    /// each save would otherwise look over every event saved before it again.
-    /// </summary>
-    private async Task SaveEventsAsync(CancellationToken cancellation)
-    {
-        await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
-        foreach (var saved in db.ChangeTracker.Entries<Entities.ArchiveEvent>().Where(e => e.State == EntityState.Unchanged).ToList())
-        {
-            saved.State = EntityState.Detached;
-        }
-    }
 
     /// <summary>How many stored files are hashed ahead at a time.</summary>
     private const int HashBatch = 64;

@@ -39,13 +39,13 @@ public sealed partial class ArchiveJobExecution(JobQueue queue, IEnumerable<IJob
         using var cancel = CancellationTokenSource.CreateLinkedTokenSource(cancellationToken);
         async Task<bool> Report(double fraction, string text)
         {
-            bool cancelAsked = await queue.ReportAsync(job.Id, fraction, text, CancellationToken.None).ConfigureAwait(false);
-            if (cancelAsked)
+            bool stop = await queue.ReportAsync(job.Id, job.Attempts, fraction, text, CancellationToken.None).ConfigureAwait(false);
+            if (stop)
             {
                 await cancel.CancelAsync().ConfigureAwait(false);
             }
 
-            return cancelAsked;
+            return stop;
         }
 
         try
@@ -66,7 +66,12 @@ public sealed partial class ArchiveJobExecution(JobQueue queue, IEnumerable<IJob
         }
         catch (OperationCanceledException)
         {
-            await queue.FinishAsync(job.Id, job.Attempts, JobState.Cancelled, "Cancelled by a curator; nothing was stored.").ConfigureAwait(false);
+            // Stopped at a progress report: a curator's cancel, or this firing no longer holds the job (the fenced end
+            // then changes nothing).
+            if (!await queue.FinishAsync(job.Id, job.Attempts, JobState.Cancelled, "Cancelled by a curator; nothing was stored.").ConfigureAwait(false))
+            {
+                LogTakenOver(logger, job.Id);
+            }
         }
         catch (JobNotReadyException e)
         {

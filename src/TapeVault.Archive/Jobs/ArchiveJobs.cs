@@ -51,7 +51,7 @@ public sealed class FixityJob(IServiceScopeFactory scopes) : IJobHandler
     }
 }
 
-/// <summary>A bag of an item or a collection, made into the content store for download.</summary>
+/// <summary>A bag of an item or a collection, made into the content store for download; recorded in the commit that ends the job.</summary>
 public sealed class BagJob(IServiceScopeFactory scopes) : IJobHandler
 {
     public string Kind => JobKinds.Bag;
@@ -64,12 +64,12 @@ public sealed class BagJob(IServiceScopeFactory scopes) : IJobHandler
         await progress(0.1, "Writing the bag.").ConfigureAwait(false);
         await using var services = scopes.CreateAsyncScope();
         var exports = services.ServiceProvider.GetRequiredService<ExportStore>();
-        var record = await exports.StoreBagAsync(new BagScope(scope.ItemId, scope.CollectionId), job.CreatedBy, cancellation).ConfigureAwait(false);
-        return new JobOutcome(record.Id, $"Bag {record.FileName} ready ({record.Sha256[..12]}…).");
+        var record = await exports.StoreBagAsync(new BagScope(scope.ItemId, scope.CollectionId), job.CreatedBy, job, cancellation).ConfigureAwait(false);
+        return new JobOutcome(record.Id, ExportStore.BagSummary(record));
     }
 }
 
-/// <summary>A collection's catalogue as a zip in the content store.</summary>
+/// <summary>A collection's catalogue as a zip in the content store; recorded in the commit that ends the job.</summary>
 public sealed class PublishJob(IServiceScopeFactory scopes) : IJobHandler
 {
     public string Kind => JobKinds.Publish;
@@ -83,8 +83,8 @@ public sealed class PublishJob(IServiceScopeFactory scopes) : IJobHandler
         await progress(0.1, "Writing the catalogue.").ConfigureAwait(false);
         await using var services = scopes.CreateAsyncScope();
         var exports = services.ServiceProvider.GetRequiredService<ExportStore>();
-        var record = await exports.StoreCatalogueAsync(collectionId, job.CreatedBy, cancellation).ConfigureAwait(false);
-        return new JobOutcome(record.Id, $"Catalogue {record.FileName} ready ({record.Sha256[..12]}…).");
+        var record = await exports.StoreCatalogueAsync(collectionId, job.CreatedBy, job, cancellation).ConfigureAwait(false);
+        return new JobOutcome(record.Id, ExportStore.CatalogueSummary(record));
     }
 }
 

@@ -4,10 +4,12 @@ using TapeVault.Archive.Entities;
 using TapeVault.Archive.Events;
 using TapeVault.Archive.Runs;
 using TapeVault.Archive.Storage;
+using TapeVault.Archive.Timeline;
 using TapeVault.Core.Audio;
 using TapeVault.Core.Decoding;
 using TapeVault.Core.Detection;
 using TapeVault.Core.Formats;
+using TapeVault.Core.Image;
 
 namespace TapeVault.Archive.Jobs;
 
@@ -140,6 +142,8 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
                 : " The plots were not made ahead; the capture page makes them when asked.";
         }
 
+        using var timeline = await StageTimelineAsync(capture, run, cancellation).ConfigureAwait(false);
+
         await progress(0.98, "Storing the blocks.").ConfigureAwait(false);
         await using var write = await contexts.CreateDbContextAsync(CancellationToken.None).ConfigureAwait(false);
         await using var transaction = await write.Database.BeginTransactionAsync(CancellationToken.None).ConfigureAwait(false);
@@ -164,8 +168,61 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
             throw new JobTakenOverException(job.Id);
         }
 
+        timeline?.Place();
         await transaction.CommitAsync(CancellationToken.None).ConfigureAwait(false);
+        timeline?.Committed();
         return new JobOutcome(run.Id, summary);
+    }
+
+    /// <summary>
+    /// The tape page's timeline with the new run, drawn before the write transaction from the run in memory and the
+    /// tape's stored runs and newest image as they are now, so the write lock is not held for it; put in place just
+    /// before the commit, so that the curator's first view reads it. Not when a merge of the tape waits to run after
+    /// this decode: the merge changes the timeline again and draws it then.
+    /// </summary>
+    private async Task<StagedTimeline?> StageTimelineAsync(Capture capture, DecodeRun run, CancellationToken cancellation)
+    {
+        await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
+        bool mergeWaits = await db.Jobs.AsNoTracking()
+            .AnyAsync(j => j.ItemId == capture.ItemId && j.Kind == JobKinds.Merge && (j.State == JobState.Queued || j.State == JobState.Running), cancellation)
+            .ConfigureAwait(false);
+        string? accession = await db.Items.AsNoTracking().Where(i => i.Id == capture.ItemId).Select(i => i.AccessionNumber)
+            .FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        if (mergeWaits || accession is null)
+        {
+            return null;
+        }
+
+        var stored = await db.Runs.AsNoTracking().Include(r => r.Capture)
+            .Where(r => r.Capture!.ItemId == capture.ItemId).OrderByDescending(r => r.Id)
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        var runs = MergeJob.RunsToMerge([run, .. stored]);
+        var captures = stored.Select(r => r.Capture!).Append(capture).DistinctBy(c => c.Id).ToDictionary(c => c.Id);
+        var storedIds = runs.Where(r => !ReferenceEquals(r, run)).Select(r => r.Id).ToList();
+        var readings = run.Candidates.Select(c => TimelineDrawings.ReadingOf(capture.Sha256, c)).ToList();
+        var rows = await db.Candidates.AsNoTracking().Where(c => storedIds.Contains(c.RunId))
+            .Select(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed })
+            .ToListAsync(cancellation).ConfigureAwait(false);
+        var shaOfRun = runs.ToDictionary(r => r.Id, r => captures[r.CaptureId].Sha256);
+        readings.AddRange(rows.Select(c => TimelineDrawings.ReadingOf(shaOfRun[c.RunId], c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed)));
+
+        string? newest = await db.Images.AsNoTracking().Where(i => i.ItemId == capture.ItemId).OrderByDescending(i => i.Version)
+            .Select(i => i.Sha256).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        TapeImage? image = null;
+        try
+        {
+            if (newest is not null && store.Exists(newest))
+            {
+                image = await TimelineDrawings.ReadStoredImageAsync(store, newest, cancellation).ConfigureAwait(false);
+            }
+
+            return await TimelineDrawings.StageForPageAsync(store, capture.ItemId, accession, runs, captures, readings, image, newest, cancellation).ConfigureAwait(false);
+        }
+        catch (Exception e) when (e is IOException or ArchiveNotFoundException or ArchiveConflictException)
+        {
+            // The drawing is a cache: the page draws the timeline (and tells what is wrong with the image) when asked.
+            return null;
+        }
     }
 
     /// <summary>The columns of the capture page's overview of this capture (no more than it has frames).</summary>

@@ -130,15 +130,20 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
         return [.. rows.Select(r => (r.Id, r.State, r.Kind))];
     }
 
-    /// <summary>Records progress and says whether a cancel was asked for.</summary>
-    public async Task<bool> ReportAsync(int jobId, double progress, string text, CancellationToken cancellation = default)
+    /// <summary>
+    /// Records the progress of the firing holding claim <paramref name="attempts"/> and says whether it should stop: a
+    /// cancel was asked for, or the firing no longer holds the job (its node was taken for dead and another resumed the
+    /// job). The claim fences the report, so a stale firing never overwrites the progress of the one holding the job.
+    /// </summary>
+    public async Task<bool> ReportAsync(int jobId, int attempts, double progress, string text, CancellationToken cancellation = default)
     {
         await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
         double clamped = Math.Clamp(progress, 0, 1);
-        await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running)
+        int held = await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running && j.Attempts == attempts)
             .ExecuteUpdateAsync(s => s.SetProperty(j => j.Progress, clamped).SetProperty(j => j.ProgressText, text), cancellation)
             .ConfigureAwait(false);
-        return await db.Jobs.AsNoTracking().Where(j => j.Id == jobId).Select(j => j.CancelRequested).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        return held == 0
+            || await db.Jobs.AsNoTracking().Where(j => j.Id == jobId).Select(j => j.CancelRequested).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
     }
 
     /// <summary>

@@ -4,9 +4,11 @@ using TapeVault.Archive.Entities;
 using TapeVault.Archive.Events;
 using TapeVault.Archive.Runs;
 using TapeVault.Archive.Storage;
+using TapeVault.Archive.Timeline;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Image;
 using TapeVault.Core.Merge;
+using TapeVault.Core.Timeline;
 
 namespace TapeVault.Archive.Jobs;
 
@@ -34,13 +36,20 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
         var runs = await db.Runs.AsNoTracking().Include(r => r.Capture)
             .Where(r => r.Capture!.ItemId == itemId).OrderByDescending(r => r.Id)
             .ToListAsync(cancellation).ConfigureAwait(false);
-        if (runs.Count == 0)
+        return RunsToMerge(runs);
+    }
+
+    /// <summary>Of an item's runs, newest first, the ones a merge takes: per capture the newest run with the newest run's profile.</summary>
+    public static List<DecodeRun> RunsToMerge(IReadOnlyList<DecodeRun> newestFirst)
+    {
+        ArgumentNullException.ThrowIfNull(newestFirst);
+        if (newestFirst.Count == 0)
         {
             return [];
         }
 
-        string profileId = runs[0].ProfileId;
-        return [.. runs.Where(r => r.ProfileId == profileId).GroupBy(r => r.CaptureId).Select(g => g.First()).OrderBy(r => r.CaptureId)];
+        string profileId = newestFirst[0].ProfileId;
+        return [.. newestFirst.Where(r => r.ProfileId == profileId).GroupBy(r => r.CaptureId).Select(g => g.First()).OrderBy(r => r.CaptureId)];
     }
 
     /// <summary>
@@ -71,13 +80,14 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
         var parameters = MergeJobParameters.FromJson(job.Parameters);
         await EnsureEarlierDecodesFinishedAsync(job, parameters.ItemId, cancellation).ConfigureAwait(false);
         List<DecodeRun> runs;
+        string accession;
         var passes = new List<MergePass>();
+        var readings = new List<TimelineReading>();
         await using (var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false))
         {
-            if (!await db.Items.AnyAsync(i => i.Id == parameters.ItemId, cancellation).ConfigureAwait(false))
-            {
-                throw new JobFailedException($"Item {parameters.ItemId} no longer exists.");
-            }
+            accession = await db.Items.AsNoTracking().Where(i => i.Id == parameters.ItemId).Select(i => i.AccessionNumber)
+                .FirstOrDefaultAsync(cancellation).ConfigureAwait(false)
+                ?? throw new JobFailedException($"Item {parameters.ItemId} no longer exists.");
 
             runs = await RunsToMergeAsync(db, parameters.ItemId, cancellation).ConfigureAwait(false);
             if (runs.Count == 0)
@@ -89,6 +99,7 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
             {
                 var records = await db.Candidates.AsNoTracking().Where(c => c.RunId == run.Id).OrderBy(c => c.Id).ToListAsync(cancellation).ConfigureAwait(false);
                 var capture = run.Capture!;
+                readings.AddRange(records.Select(c => TimelineDrawings.ReadingOf(capture.Sha256, c)));
                 passes.Add(new MergePass(
                     new ImageSource(capture.Sha256, capture.OriginalFileName, capture.SampleRate, capture.Channels, capture.DurationSeconds),
                     [.. records.Select(RunStore.ToCandidate)],
@@ -111,6 +122,11 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
             TapeImageContainer.Write(stream, image);
             return Task.CompletedTask;
         }, cancellation).ConfigureAwait(false);
+
+        // The tape page's timeline with the new image, drawn now from what the merge holds, outside the write
+        // transaction, and put in place just before the commit, so that the curator's first view reads it.
+        using var timeline = await TimelineDrawings.StageForPageAsync(
+            store, parameters.ItemId, accession, runs, runs.ToDictionary(r => r.CaptureId, r => r.Capture!), readings, image, staged.Sha256, cancellation).ConfigureAwait(false);
 
         await using var write = await contexts.CreateDbContextAsync(CancellationToken.None).ConfigureAwait(false);
         await using var transaction = await write.Database.BeginTransactionAsync(CancellationToken.None).ConfigureAwait(false);
@@ -154,7 +170,9 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
                 throw new JobTakenOverException(job.Id);
             }
 
+            timeline?.Place();
             await transaction.CommitAsync(CancellationToken.None).ConfigureAwait(false);
+            timeline?.Committed();
             return new JobOutcome(record.Id, summary);
         }
         catch

@@ -7,6 +7,7 @@ using TapeVault.Archive.Ingest;
 using TapeVault.Archive.Jobs;
 using TapeVault.Archive.Runs;
 using TapeVault.Archive.Storage;
+using TapeVault.Archive.Timeline;
 using TapeVault.Core.Image;
 using TapeVault.Core.Detection;
 using TapeVault.Core.Formats;
@@ -290,33 +291,8 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
     /// The tape timeline of an item: the newest decode of each capture (as the merge takes them), one lane per
     /// setting, and the newest image on top when there is one.
     /// </summary>
-    public async Task<TapeTimeline> TimelineAsync(int itemId, CancellationToken cancellation = default)
-    {
-        if (!await db.Items.AnyAsync(i => i.Id == itemId, cancellation).ConfigureAwait(false))
-        {
-            throw new ArchiveNotFoundException($"There is no item {itemId}.");
-        }
-
-        var runs = await MergeJob.RunsToMergeAsync(db, itemId, cancellation).ConfigureAwait(false);
-        var runIds = runs.Select(r => r.Id).ToList();
-        var rows = await db.Candidates.AsNoTracking().Where(c => runIds.Contains(c.RunId))
-            .Select(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed })
-            .ToListAsync(cancellation).ConfigureAwait(false);
-        var captureOfRun = runs.ToDictionary(r => r.Id, r => r.Capture!.Sha256);
-        var readings = rows.Select(c => new TimelineReading(captureOfRun[c.RunId], c.SettingName, c.IdentityKey, Vocabulary.Of(c.Status).Name, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed)).ToList();
-        var captures = runs.Select(r => (r.Capture!.Sha256, $"Capture {r.CaptureId} · {r.Capture.OriginalFileName}")).ToList();
-        var settings = runs.ToDictionary(r => r.Capture!.Sha256, r => (IReadOnlyList<string>)[.. SettingsJson.Read(r.SettingsJson).Select(s => s.Name)], StringComparer.Ordinal);
-
-        IReadOnlyList<TimelinePosition>? positions = null;
-        var newest = await db.Images.AsNoTracking().Where(i => i.ItemId == itemId).OrderByDescending(i => i.Version).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
-        if (newest is not null && store.Exists(newest.Sha256))
-        {
-            var image = await ReadImageAsync(newest.Sha256, cancellation).ConfigureAwait(false);
-            positions = [.. image.Blocks.Select(b => new TimelinePosition(b.Position, b.Key, Vocabulary.Of(b.Status).Name, b.Confidence))];
-        }
-
-        return TapeTimeline.Build(captures, readings, settings, positions);
-    }
+    public Task<TapeTimeline> TimelineAsync(int itemId, CancellationToken cancellation = default) =>
+        TimelineDrawings.TimelineAsync(db, store, itemId, ReadImageAsync, cancellation);
 
     /// <summary>Every reading of one position of the newest image, side by side: which capture and setting, what it read, how sure.</summary>
     public async Task<PositionReadings> PositionAsync(int itemId, int position, CancellationToken cancellation = default)
@@ -361,23 +337,8 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
         return image;
     }
 
-    private async Task<TapeImage> ReadStoredImageAsync(string sha256, CancellationToken cancellation)
-    {
-        if (!store.Exists(sha256))
-        {
-            throw new ArchiveNotFoundException("The tape image's file is missing from the content store; run a fixity audit.");
-        }
-
-        await using var stream = store.OpenRead(sha256);
-        try
-        {
-            return TapeImageContainer.Read(stream);
-        }
-        catch (ImageFormatException e)
-        {
-            throw new ArchiveConflictException($"The stored tape image is damaged: {e.Message}");
-        }
-    }
+    private Task<TapeImage> ReadStoredImageAsync(string sha256, CancellationToken cancellation) =>
+        TimelineDrawings.ReadStoredImageAsync(store, sha256, cancellation);
 
     public static ImageSummary ToSummary(TapeImageRecord i)
     {

@@ -1,6 +1,7 @@
 using Microsoft.AspNetCore.Mvc;
 using TapeVault.Archive.Curation;
 using TapeVault.Archive.Jobs;
+using TapeVault.Archive.Timeline;
 using TapeVault.Web.Api;
 
 namespace TapeVault.Web.Pages.Items;
@@ -102,7 +103,7 @@ public sealed class ItemModel(ArchiveQueries queries, CuratorActions actions, Jo
         // The timeline first, so that its time (told in a Server-Timing header, W3C Server Timing) includes reading
         // the newest image when it is drawn anew; a drawing kept from an earlier view says so in the header.
         long started = System.Diagnostics.Stopwatch.GetTimestamp();
-        var (timeline, cached) = await queries.TimelineDrawingAsync(id, $"Tape timeline of {Item!.AccessionNumber}", $"/items/{id}/positions/", HttpContext.RequestAborted).ConfigureAwait(false);
+        var (timeline, cached) = await queries.TimelineDrawingAsync(id, TimelineDrawings.PageTitle(Item!.AccessionNumber), TimelineDrawings.PagePositionLinks(id), HttpContext.RequestAborted).ConfigureAwait(false);
         Timeline = timeline;
         double milliseconds = System.Diagnostics.Stopwatch.GetElapsedTime(started).TotalMilliseconds;
         string how = cached ? "tape timeline drawn earlier, read" : "tape timeline read and drawn";

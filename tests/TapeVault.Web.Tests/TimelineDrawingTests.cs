@@ -1,0 +1,82 @@
+using System.Net;
+using System.Net.Http.Json;
+using AngleSharp.Dom;
+using AngleSharp.Html.Parser;
+using TapeVault.Web.Api;
+using TapeVault.Web.Tests.Support;
+using Xunit;
+
+namespace TapeVault.Web.Tests;
+
+/// <summary>The tape page's timeline drawn by the decode and merge jobs, and the same drawing made by the page itself.</summary>
+public sealed class TimelineDrawingTests
+{
+    private static readonly TimeSpan JobLimit = TimeSpan.FromSeconds(60);
+
+    [Fact]
+    public async Task DecodeAndMergeJobs_KeepThePagesTimeline_OneDrawingPerTape_ByteForByteAsThePageDrawsIt()
+    {
+        using var folder = new ArchiveFolder();
+        await using var app = new ArchiveAppFactory(folder);
+        await app.AddCuratorAndViewerAsync();
+        using var curator = await app.SignedInAsync(ArchiveAppFactory.CuratorName);
+        var (_, itemId) = await curator.NewItemAsync("TL-0001");
+        string kept = Path.Combine(folder.StorePath, "derived", "timelines", itemId.ToString(System.Globalization.CultureInfo.InvariantCulture));
+        string? previous = null;
+        foreach (int seed in new[] { 31, 32 })
+        {
+            var capture = SynthCaptures.Orrin(folder.Root, $"pass{seed}", files: 2, bytesPerFile: 80, seed: seed);
+            using var upload = await curator.UploadRawAsync(itemId, capture.Bytes, $"pass{seed}.wav", extraQuery: $"&decodeProfile={SynthCaptures.Profile}");
+            await ApiClient.EnsureAsync(upload, HttpStatusCode.Created);
+            var uploaded = (await upload.Content.ReadFromJsonAsync<UploadResult>(ApiClient.Json))!;
+            Assert.Equal("done", (await curator.WaitForJobAsync(uploaded.DecodeJob!.Id, JobLimit)).State);
+
+            // Each decode keeps the drawing with its run and removes the tape's older one; the first view reads it (the
+            // page says which in its Server-Timing header, W3C Server Timing).
+            string drawing = Assert.Single(Directory.EnumerateFiles(kept, "*.json"));
+            Assert.NotEqual(previous, drawing);
+            previous = drawing;
+            var (_, timing) = await PageAsync(curator, $"/items/{itemId}");
+            Assert.Contains("drawn earlier", timing, StringComparison.Ordinal);
+        }
+
+        var merge = await curator.PostAsync<JobView>($"/api/items/{itemId}/merge", new { }, HttpStatusCode.Accepted);
+        Assert.Equal("done", (await curator.WaitForJobAsync(merge.Id, JobLimit)).State);
+
+        // The first view after the merge reads the drawing the merge kept, the only one of the tape.
+        var byMerge = Assert.Single(Directory.EnumerateFiles(kept, "*.json"));
+        Assert.NotEqual(previous, byMerge);
+        var (first, firstTiming) = await PageAsync(curator, $"/items/{itemId}");
+        Assert.Contains("drawn earlier", firstTiming, StringComparison.Ordinal);
+        Assert.NotNull(first.QuerySelector("#timeline"));
+        byte[] byJob = await File.ReadAllBytesAsync(byMerge);
+
+        // With nothing kept, the page draws the timeline itself: the same file, byte for byte, and the same page.
+        Directory.Delete(kept, recursive: true);
+        var (fresh, freshTiming) = await PageAsync(curator, $"/items/{itemId}");
+        Assert.Contains("read and drawn", freshTiming, StringComparison.Ordinal);
+        var only = Assert.Single(Directory.EnumerateFiles(kept, "*.json"));
+        Assert.Equal(Path.GetFileName(byMerge), Path.GetFileName(only));
+        Assert.Equal(byJob, await File.ReadAllBytesAsync(only));
+        Assert.Equal(MainContent(first), MainContent(fresh));
+    }
+
+    /// <summary>The page's main content without its per-request anti-forgery tokens.</summary>
+    private static string MainContent(IDocument page)
+    {
+        foreach (var token in page.QuerySelectorAll("input[name=__RequestVerificationToken]").ToList())
+        {
+            token.Remove();
+        }
+
+        return page.QuerySelector("main")!.OuterHtml;
+    }
+
+    private static async Task<(IDocument Page, string Timing)> PageAsync(ApiClient client, string path)
+    {
+        using var response = await client.Http.GetAsync(new Uri(path, UriKind.Relative));
+        await ApiClient.EnsureAsync(response, HttpStatusCode.OK);
+        string timing = response.Headers.TryGetValues("Server-Timing", out var values) ? string.Join(",", values) : string.Empty;
+        return (await new HtmlParser().ParseDocumentAsync(await response.Content.ReadAsStringAsync()), timing);
+    }
+}
