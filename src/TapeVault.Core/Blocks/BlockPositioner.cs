@@ -207,18 +207,14 @@ public static class BlockPositioner
         for (int p = 0; p < places.Count; p++)
         {
             string key = placeKey[p];
-            string? overlapped = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored, out bool byClean);
+            string? overlapped = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored);
             if (anchored)
             {
                 // A stretch of tape that an anchored reading covers is that block's place: readings of other settings
                 // there are misreads of it, whatever identity their garbled headers share with misreads elsewhere.
                 foreach (int i in places[p])
                 {
-                    // Where only a failed reading keyed by a clean copy nearby covers the stretch, a header that other
-                    // readings share keeps its identity (as below): the stretch may be another block's that both misread.
-                    var c = keyed[i].Candidate;
-                    bool keepsOwn = !byClean && support[c.Identity.Key] > 1 && !(c.Truncated && c.Payload.IsEmpty);
-                    keyed[i] = (c, keepsOwn ? c.Identity.Key : overlapped!);
+                    keyed[i] = (keyed[i].Candidate, overlapped!);
                 }
 
                 continue;
@@ -243,14 +239,16 @@ public static class BlockPositioner
     }
 
     /// <summary>
-    /// The key of the best-supported reading that overlaps most of the place's first reading, or most of which that
-    /// reading overlaps: an anchored reading's key, or another place's.
+    /// The key of the best-supported reading that lies on the place's first reading: an anchored reading's key, or
+    /// another place's. A reading's start is where its sync was read; its end is proven only by a checksum that holds
+    /// (a misread length runs on over the blocks after it, a loss of signal stops short). So a clean reading claims
+    /// the readings that overlap most of it or most of which it overlaps, as other places do; a failed reading keyed by
+    /// a clean copy nearby claims only the readings that start at its sync: the same copy of that block, however its
+    /// header was garbled.
     /// </summary>
     private static string? OverlappedKey(
-        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first, out bool anchored, out bool byClean)
+        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first, out bool anchored)
     {
-        anchored = false;
-        byClean = false;
         var c = keyed[first].Candidate;
         string? best = null;
         int bestSupport = 1;
@@ -262,7 +260,7 @@ public static class BlockPositioner
                 break;
             }
 
-            if (placeOf[i] == place || !MostlyOverlaps(c, other))
+            if (placeOf[i] == place)
             {
                 continue;
             }
@@ -278,13 +276,19 @@ public static class BlockPositioner
             {
                 otherSupport = int.MaxValue;
             }
-            else
+            else if (SameSync(c, other))
             {
-                // A failed reading keyed by a clean copy nearby: it outweighs any place, but claims less than a clean one.
+                // A failed reading keyed by a clean copy nearby, read from this place's sync: it outweighs any place, but
+                // claims less than a clean one.
                 otherSupport = int.MaxValue - 1;
             }
+            else
+            {
+                // The same failed reading from another sync: where it ends is its length field's word, not the tape's.
+                continue;
+            }
 
-            if (otherSupport > bestSupport)
+            if (otherSupport > bestSupport && MostlyOverlaps(c, other))
             {
                 best = key;
                 bestSupport = otherSupport;
@@ -292,7 +296,6 @@ public static class BlockPositioner
         }
 
         anchored = bestSupport >= int.MaxValue - 1;
-        byClean = bestSupport == int.MaxValue;
         return best;
     }
 
