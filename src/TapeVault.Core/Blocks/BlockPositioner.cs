@@ -366,18 +366,21 @@ public static class BlockPositioner
 
         // Candidates before lo start before c ends; blocks are short, so only the last few can still overlap it. A
         // misread that ran on past its block's end (a damaged length) overlaps the next block too: it belongs to the
-        // one it shares the most tape with.
+        // block whose sync it starts at, and where it starts at none, to the one it shares the most tape with.
         BlockCandidate? best = null;
         double bestOverlap = double.NegativeInfinity;
+        bool bestAtSync = false;
         for (int i = lo - 1; i >= 0 && i >= lo - 64; i--)
         {
             if (Overlaps(trusted[i].StartSeconds, trusted[i].EndSeconds, c.StartSeconds, c.EndSeconds))
             {
+                bool atSync = SameSync(trusted[i], c);
                 double overlap = Math.Min(trusted[i].EndSeconds, c.EndSeconds) - Math.Max(trusted[i].StartSeconds, c.StartSeconds);
-                if (overlap > bestOverlap)
+                if ((atSync && !bestAtSync) || (atSync == bestAtSync && overlap > bestOverlap))
                 {
                     best = trusted[i];
                     bestOverlap = overlap;
+                    bestAtSync = atSync;
                 }
             }
         }
