@@ -57,7 +57,7 @@ public static class BlockPositioner
             keyed.Add((c, key));
         }
 
-        KeyUnanchoredReadings(keyed);
+        var stray = KeyUnanchoredReadings(keyed);
 
         // A position is one identity over one stretch of tape: copies and other settings' readings overlap or follow
         // closely; the same identity much later (a block number reused by the next file) is a new position. Copies
@@ -69,9 +69,17 @@ public static class BlockPositioner
         var readings = new List<(double Start, double End, int Stretch)>();
         var positionOf = new int[keyed.Count];
         var wholeBySetting = new Dictionary<(int Stretch, int Setting), int>();
+        int lastStretch = -1;
         for (int i = 0; i < keyed.Count; i++)
         {
             var (candidate, key) = keyed[i];
+            if (stray[i] && lastStretch >= 0)
+            {
+                // No block: it joins the stretch it follows, and neither ends that stretch nor stands between its copies.
+                positionOf[i] = lastStretch;
+                continue;
+            }
+
             double reach = Math.Max(1.0, 1.5 * (candidate.EndSeconds - candidate.StartSeconds));
             if (!stretchesByKey.TryGetValue(key, out var ofKey))
             {
@@ -104,6 +112,7 @@ public static class BlockPositioner
             // Candidates arrive in order of start (keyed was built so), so these starts ascend.
             readings.Add((candidate.StartSeconds, candidate.EndSeconds, found));
             positionOf[i] = found;
+            lastStretch = found;
         }
 
         // Whether a block of another stretch was read wholly after stretch s ended and before `start` (only the last
@@ -138,8 +147,15 @@ public static class BlockPositioner
     /// readings of its place agree on, or, when none does, that of the place it overlaps: a setting that does not suit
     /// the capture garbles headers and may run past a block's end on a misread length, and neither makes a new block.
     /// </summary>
-    private static void KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed)
+    /// <returns>
+    /// Per reading, whether it is no block at all: a place that only failed readings of identities nobody else read
+    /// make, overlapping no other reading, whose headers agree with no header read near it over even half their bytes.
+    /// A misread of a real block keeps most of its header (the file's name, a block number near its neighbours'); such
+    /// a place is noise read as data, typically in the lead-in between two blocks or two copies of one.
+    /// </returns>
+    private static bool[] KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed)
     {
+        var stray = new bool[keyed.Count];
         var support = new Dictionary<string, int>(StringComparer.Ordinal);
         foreach (var (candidate, key) in keyed)
         {
@@ -223,6 +239,13 @@ public static class BlockPositioner
             if (placeSupport[p] <= 1)
             {
                 key = overlapped ?? key;
+                if (overlapped is null && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, i, placeOf)))
+                {
+                    foreach (int i in places[p])
+                    {
+                        stray[i] = true;
+                    }
+                }
             }
 
             foreach (int i in places[p])
@@ -236,6 +259,46 @@ public static class BlockPositioner
                 keyed[i] = (c, support[own] > 1 && !nothingRead ? own : key);
             }
         }
+
+        return stray;
+    }
+
+    /// <summary>
+    /// Whether reading <paramref name="index"/>'s header agrees over at least half the bytes both have with the header
+    /// of a reading of another place within two block lengths of it.
+    /// </summary>
+    private static bool ResemblesANeighbour(List<(BlockCandidate Candidate, string Key)> keyed, int index, int[] placeOf)
+    {
+        var c = keyed[index].Candidate;
+        double length = Math.Max(c.EndSeconds - c.StartSeconds, 0.1);
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var other = keyed[i].Candidate;
+            double reach = 2 * Math.Max(length, other.EndSeconds - other.StartSeconds) + 0.5;
+            if (other.StartSeconds > c.EndSeconds + reach)
+            {
+                break;
+            }
+
+            if (other.EndSeconds < c.StartSeconds - reach || (placeOf[i] >= 0 && placeOf[i] == placeOf[index]))
+            {
+                continue;
+            }
+
+            int shared = Math.Min(other.Header.Length, c.Header.Length);
+            int agree = 0;
+            for (int b = 0; b < shared; b++)
+            {
+                agree += other.Header[b] == c.Header[b] ? 1 : 0;
+            }
+
+            if (shared > 0 && 2 * agree >= shared)
+            {
+                return true;
+            }
+        }
+
+        return false;
     }
 
     /// <summary>
