@@ -156,6 +156,12 @@ public static class BlockPositioner
     private static bool[] KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed)
     {
         var stray = new bool[keyed.Count];
+        var vouched = new bool[keyed.Count];
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            vouched[i] = keyed[i].Key.Length > 0;
+        }
+
         var support = new Dictionary<string, int>(StringComparer.Ordinal);
         foreach (var (candidate, key) in keyed)
         {
@@ -239,7 +245,7 @@ public static class BlockPositioner
             if (placeSupport[p] <= 1)
             {
                 key = overlapped ?? key;
-                if (overlapped is null && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, i, placeOf)))
+                if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, places[p]) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, i, placeOf)))
                 {
                     foreach (int i in places[p])
                     {
@@ -261,6 +267,34 @@ public static class BlockPositioner
         }
 
         return stray;
+    }
+
+    /// <summary>
+    /// Whether the place lies in the gap between two readings that clean readings vouch for (keyed before any place
+    /// was): the last reading to end before it and the first to start after it. Where its neighbours are not vouched
+    /// for (a capture no setting suits), the place may be a block that only one setting read, however garbled.
+    /// </summary>
+    private static bool BetweenVouchedBlocks(List<(BlockCandidate Candidate, string Key)> keyed, bool[] vouched, List<int> place)
+    {
+        double start = keyed[place[0]].Candidate.StartSeconds;
+        double end = place.Max(i => keyed[i].Candidate.EndSeconds);
+        int before = -1, after = -1;
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var c = keyed[i].Candidate;
+            if (c.EndSeconds <= start && (before < 0 || c.EndSeconds > keyed[before].Candidate.EndSeconds))
+            {
+                before = i;
+            }
+
+            if (c.StartSeconds >= end)
+            {
+                after = i;
+                break;
+            }
+        }
+
+        return before >= 0 && after >= 0 && vouched[before] && vouched[after];
     }
 
     /// <summary>
