@@ -4,6 +4,9 @@ namespace TapeVault.Core.Blocks;
 /// Gives every candidate of one capture its position on the tape. Settings read the same capture, so their blocks
 /// line up in time: a candidate whose header may be damaged takes the identity of a clean candidate that overlaps
 /// it, and candidates with one identity share a position. Copies of a block written k times share it too.
+/// Where a reading starts is where its sync was read; where it ends is proven only by a checksum that holds (a
+/// misread length runs on over the blocks after it). So a failed reading belongs to the block whose sync it starts at
+/// before the one it overlaps most, and claims other readings only at its own sync.
 /// </summary>
 public static class BlockPositioner
 {
