@@ -63,6 +63,7 @@ public static class Trust
         Dictionary<string, List<Reading>> ReadingsBySource,
         List<Reading> Best,
         List<Reading> Positions,
+        List<int> PositionsPerCapture,
         double? ExactImageConfidence,
         List<WrongExample> Examples,
         string? Error);
@@ -257,6 +258,7 @@ public static class Trust
         var judge = Judge(profile, files, written, out int units);
         var bySource = new Dictionary<string, List<Reading>>();
         var best = new List<Reading>();
+        var perCapture = new List<int>();
         var examples = new List<WrongExample>();
         var results = new List<DecodeResult>();
         var names = new List<string>();
@@ -325,6 +327,13 @@ public static class Trust
                 {
                     best.Add(new Reading(candidate.Confidence, judge(candidate.Header.AsSpan(), candidate.Payload.AsSpan()), false));
                 }
+
+                // A position is a place on the tape: one capture of a block format should have one per written block.
+                perCapture.Add(result.Best.Count);
+                if (s_dumpPath is not null)
+                {
+                    s_dump.Enqueue(string.Join('\t', "capture", profile.Id, seed, p, source, written.Count, result.Best.Count, result.Best.Count(b => b.Status == BlockStatus.Clean)));
+                }
             }
 
             long m0 = Stopwatch.GetTimestamp();
@@ -359,12 +368,12 @@ public static class Trust
 
             // Byte-exact: every written block once (a stream: its bytes in as many segments as files).
             exact &= rightBlocks == written.Count && image.Blocks.Length == written.Count;
-            return new TapeOutcome(subject, seed, units, written.Count, bySource, best, positions, exact ? image.OverallConfidence : null, examples, null);
+            return new TapeOutcome(subject, seed, units, written.Count, bySource, best, positions, perCapture, exact ? image.OverallConfidence : null, examples, null);
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {
             // A decoder or merge that throws is a finding of its own: reported, and the run goes on.
-            return new TapeOutcome(subject, seed, units, written.Count, bySource, best, [], null, examples, $"{profile.Id} seed {seed}: {e.GetType().Name}: {e.Message} {e.StackTrace?.Split('\n')[0]}");
+            return new TapeOutcome(subject, seed, units, written.Count, bySource, best, [], perCapture, null, examples, $"{profile.Id} seed {seed}: {e.GetType().Name}: {e.Message} {e.StackTrace?.Split('\n')[0]}");
         }
     }
 
@@ -635,6 +644,21 @@ public static class Trust
         {
             var readings = group.SelectMany(x => x.Readings).ToList();
             Console.WriteLine($"{group.Key.Family,-11} {group.Key.Source,-14} {readings.Count,8} {readings.Count(r => r.Right),7} {readings.Count(r => r.WrongClean),11} {Ece(readings),8:0.0000}");
+        }
+
+        Console.WriteLine();
+        Console.WriteLine("Positions per capture (block formats): captures whose count of positions is the count of blocks written, and those with fewer or more:");
+        Console.WriteLine($"{"profile",-18} {"captures",8} {"matching",8} {"fewer",6} {"more",6} {"extra positions",15}");
+        var blockOutcomes = outcomes.Where(o => !o.Subject.Profile.Layout.IsStream).ToList();
+        foreach (var group in blockOutcomes.GroupBy(o => o.Subject.Profile.Id).OrderBy(g => g.Key, StringComparer.Ordinal).Append(blockOutcomes.GroupBy(_ => "all").FirstOrDefault()))
+        {
+            if (group is null)
+            {
+                continue;
+            }
+
+            var counts = group.SelectMany(o => o.PositionsPerCapture.Select(n => n - o.WrittenBlocks)).ToList();
+            Console.WriteLine($"{group.Key,-18} {counts.Count,8} {counts.Count(d => d == 0),8} {counts.Count(d => d < 0),6} {counts.Count(d => d > 0),6} {counts.Where(d => d > 0).Sum(),15}");
         }
 
         var errors = outcomes.Where(o => o.Error is not null).ToList();

@@ -4,6 +4,9 @@ namespace TapeVault.Core.Blocks;
 /// Gives every candidate of one capture its position on the tape. Settings read the same capture, so their blocks
 /// line up in time: a candidate whose header may be damaged takes the identity of a clean candidate that overlaps
 /// it, and candidates with one identity share a position. Copies of a block written k times share it too.
+/// Where a reading starts is where its sync was read; where it ends is proven only by a checksum that holds (a
+/// misread length runs on over the blocks after it). So a failed reading belongs to the block whose sync it starts at
+/// before the one it overlaps most, and claims other readings only at its own sync.
 /// </summary>
 public static class BlockPositioner
 {
@@ -57,7 +60,7 @@ public static class BlockPositioner
             keyed.Add((c, key));
         }
 
-        KeyUnanchoredReadings(keyed);
+        var stray = KeyUnanchoredReadings(keyed);
 
         // A position is one identity over one stretch of tape: copies and other settings' readings overlap or follow
         // closely; the same identity much later (a block number reused by the next file) is a new position. Copies
@@ -69,9 +72,17 @@ public static class BlockPositioner
         var readings = new List<(double Start, double End, int Stretch)>();
         var positionOf = new int[keyed.Count];
         var wholeBySetting = new Dictionary<(int Stretch, int Setting), int>();
+        int lastStretch = -1;
         for (int i = 0; i < keyed.Count; i++)
         {
             var (candidate, key) = keyed[i];
+            if (stray[i] && lastStretch >= 0)
+            {
+                // No block: it joins the stretch it follows, and neither ends that stretch nor stands between its copies.
+                positionOf[i] = lastStretch;
+                continue;
+            }
+
             double reach = Math.Max(1.0, 1.5 * (candidate.EndSeconds - candidate.StartSeconds));
             if (!stretchesByKey.TryGetValue(key, out var ofKey))
             {
@@ -104,6 +115,7 @@ public static class BlockPositioner
             // Candidates arrive in order of start (keyed was built so), so these starts ascend.
             readings.Add((candidate.StartSeconds, candidate.EndSeconds, found));
             positionOf[i] = found;
+            lastStretch = found;
         }
 
         // Whether a block of another stretch was read wholly after stretch s ended and before `start` (only the last
@@ -138,8 +150,21 @@ public static class BlockPositioner
     /// readings of its place agree on, or, when none does, that of the place it overlaps: a setting that does not suit
     /// the capture garbles headers and may run past a block's end on a misread length, and neither makes a new block.
     /// </summary>
-    private static void KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed)
+    /// <returns>
+    /// Per reading, whether it is no block at all: a place that only failed readings of identities nobody else read
+    /// make, overlapping no other reading, whose headers agree with no header read near it over even half their bytes.
+    /// A misread of a real block keeps most of its header (the file's name, a block number near its neighbours'); such
+    /// a place is noise read as data, typically in the lead-in between two blocks or two copies of one.
+    /// </returns>
+    private static bool[] KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed)
     {
+        var stray = new bool[keyed.Count];
+        var vouched = new bool[keyed.Count];
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            vouched[i] = keyed[i].Key.Length > 0;
+        }
+
         var support = new Dictionary<string, int>(StringComparer.Ordinal);
         foreach (var (candidate, key) in keyed)
         {
@@ -207,18 +232,14 @@ public static class BlockPositioner
         for (int p = 0; p < places.Count; p++)
         {
             string key = placeKey[p];
-            string? overlapped = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored, out bool byClean);
+            string? overlapped = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored);
             if (anchored)
             {
                 // A stretch of tape that an anchored reading covers is that block's place: readings of other settings
                 // there are misreads of it, whatever identity their garbled headers share with misreads elsewhere.
                 foreach (int i in places[p])
                 {
-                    // Where only a failed reading keyed by a clean copy nearby covers the stretch, a header that other
-                    // readings share keeps its identity (as below): the stretch may be another block's that both misread.
-                    var c = keyed[i].Candidate;
-                    bool keepsOwn = !byClean && support[c.Identity.Key] > 1 && !(c.Truncated && c.Payload.IsEmpty);
-                    keyed[i] = (c, keepsOwn ? c.Identity.Key : overlapped!);
+                    keyed[i] = (keyed[i].Candidate, overlapped!);
                 }
 
                 continue;
@@ -227,6 +248,13 @@ public static class BlockPositioner
             if (placeSupport[p] <= 1)
             {
                 key = overlapped ?? key;
+                if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, places[p]) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, i, placeOf)))
+                {
+                    foreach (int i in places[p])
+                    {
+                        stray[i] = true;
+                    }
+                }
             }
 
             foreach (int i in places[p])
@@ -240,17 +268,87 @@ public static class BlockPositioner
                 keyed[i] = (c, support[own] > 1 && !nothingRead ? own : key);
             }
         }
+
+        return stray;
     }
 
     /// <summary>
-    /// The key of the best-supported reading that overlaps most of the place's first reading, or most of which that
-    /// reading overlaps: an anchored reading's key, or another place's.
+    /// Whether the place lies in the gap between two readings that clean readings vouch for (keyed before any place
+    /// was): the last reading to end before it and the first to start after it. Where its neighbours are not vouched
+    /// for (a capture no setting suits), the place may be a block that only one setting read, however garbled.
+    /// </summary>
+    private static bool BetweenVouchedBlocks(List<(BlockCandidate Candidate, string Key)> keyed, bool[] vouched, List<int> place)
+    {
+        double start = keyed[place[0]].Candidate.StartSeconds;
+        double end = place.Max(i => keyed[i].Candidate.EndSeconds);
+        int before = -1, after = -1;
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var c = keyed[i].Candidate;
+            if (c.EndSeconds <= start && (before < 0 || c.EndSeconds > keyed[before].Candidate.EndSeconds))
+            {
+                before = i;
+            }
+
+            if (c.StartSeconds >= end)
+            {
+                after = i;
+                break;
+            }
+        }
+
+        return before >= 0 && after >= 0 && vouched[before] && vouched[after];
+    }
+
+    /// <summary>
+    /// Whether reading <paramref name="index"/>'s header agrees over at least half the bytes both have with the header
+    /// of a reading of another place within two block lengths of it.
+    /// </summary>
+    private static bool ResemblesANeighbour(List<(BlockCandidate Candidate, string Key)> keyed, int index, int[] placeOf)
+    {
+        var c = keyed[index].Candidate;
+        double length = Math.Max(c.EndSeconds - c.StartSeconds, 0.1);
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var other = keyed[i].Candidate;
+            double reach = 2 * Math.Max(length, other.EndSeconds - other.StartSeconds) + 0.5;
+            if (other.StartSeconds > c.EndSeconds + reach)
+            {
+                break;
+            }
+
+            if (other.EndSeconds < c.StartSeconds - reach || (placeOf[i] >= 0 && placeOf[i] == placeOf[index]))
+            {
+                continue;
+            }
+
+            int shared = Math.Min(other.Header.Length, c.Header.Length);
+            int agree = 0;
+            for (int b = 0; b < shared; b++)
+            {
+                agree += other.Header[b] == c.Header[b] ? 1 : 0;
+            }
+
+            if (shared > 0 && 2 * agree >= shared)
+            {
+                return true;
+            }
+        }
+
+        return false;
+    }
+
+    /// <summary>
+    /// The key of the best-supported reading that lies on the place's first reading: an anchored reading's key, or
+    /// another place's. A reading's start is where its sync was read; its end is proven only by a checksum that holds
+    /// (a misread length runs on over the blocks after it, a loss of signal stops short). So a clean reading claims
+    /// the readings that overlap most of it or most of which it overlaps, as other places do; a failed reading keyed by
+    /// a clean copy nearby claims only the readings that start at its sync: the same copy of that block, however its
+    /// header was garbled.
     /// </summary>
     private static string? OverlappedKey(
-        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first, out bool anchored, out bool byClean)
+        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first, out bool anchored)
     {
-        anchored = false;
-        byClean = false;
         var c = keyed[first].Candidate;
         string? best = null;
         int bestSupport = 1;
@@ -262,7 +360,7 @@ public static class BlockPositioner
                 break;
             }
 
-            if (placeOf[i] == place || !MostlyOverlaps(c, other))
+            if (placeOf[i] == place)
             {
                 continue;
             }
@@ -278,13 +376,19 @@ public static class BlockPositioner
             {
                 otherSupport = int.MaxValue;
             }
-            else
+            else if (SameSync(c, other))
             {
-                // A failed reading keyed by a clean copy nearby: it outweighs any place, but claims less than a clean one.
+                // A failed reading keyed by a clean copy nearby, read from this place's sync: it outweighs any place, but
+                // claims less than a clean one.
                 otherSupport = int.MaxValue - 1;
             }
+            else
+            {
+                // The same failed reading from another sync: where it ends is its length field's word, not the tape's.
+                continue;
+            }
 
-            if (otherSupport > bestSupport)
+            if (otherSupport > bestSupport && MostlyOverlaps(c, other))
             {
                 best = key;
                 bestSupport = otherSupport;
@@ -292,7 +396,6 @@ public static class BlockPositioner
         }
 
         anchored = bestSupport >= int.MaxValue - 1;
-        byClean = bestSupport == int.MaxValue;
         return best;
     }
 
@@ -363,18 +466,21 @@ public static class BlockPositioner
 
         // Candidates before lo start before c ends; blocks are short, so only the last few can still overlap it. A
         // misread that ran on past its block's end (a damaged length) overlaps the next block too: it belongs to the
-        // one it shares the most tape with.
+        // block whose sync it starts at, and where it starts at none, to the one it shares the most tape with.
         BlockCandidate? best = null;
         double bestOverlap = double.NegativeInfinity;
+        bool bestAtSync = false;
         for (int i = lo - 1; i >= 0 && i >= lo - 64; i--)
         {
             if (Overlaps(trusted[i].StartSeconds, trusted[i].EndSeconds, c.StartSeconds, c.EndSeconds))
             {
+                bool atSync = SameSync(trusted[i], c);
                 double overlap = Math.Min(trusted[i].EndSeconds, c.EndSeconds) - Math.Max(trusted[i].StartSeconds, c.StartSeconds);
-                if (overlap > bestOverlap)
+                if ((atSync && !bestAtSync) || (atSync == bestAtSync && overlap > bestOverlap))
                 {
                     best = trusted[i];
                     bestOverlap = overlap;
+                    bestAtSync = atSync;
                 }
             }
         }

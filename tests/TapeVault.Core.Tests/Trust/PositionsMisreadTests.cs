@@ -84,4 +84,53 @@ public sealed class PositionsMisreadTests
 
         Assert.Equal(2, placed.Select(c => c.Position).Distinct().Count());
     }
+
+    [Fact]
+    public void A_reading_of_noise_between_two_blocks_is_no_position()
+    {
+        // In the lead-in between blocks 5 and 6 one setting read noise as a short block whose header agrees with no
+        // header read near it (neither number nor length). Seen at random damage on formats that write each block
+        // twice: the noise made a position, and as a block read between two copies it parted them into two more.
+        var written = Readings.Written(Profile, 5);
+        var noise = (byte[])written.Clone();
+        noise[0] = 0xC3;
+        noise[1] = 0x3C;
+        var readings = new[]
+        {
+            Readings.Of(Profile, written, 3.000, 0, "s0"),
+            Readings.Of(Profile, written, 3.000, 0, "s1"),
+            Readings.Of(Profile, noise, 3.550, 0, "s2", truncateTo: 2),
+            Readings.Of(Profile, Readings.Written(Profile, 6), 4.500, 0, "s0"),
+        };
+
+        var placed = BlockPositioner.Place(readings);
+
+        // Two blocks were written, so two positions (before, the noise made a third).
+        Assert.Equal(2, placed.Select(c => c.Position).Distinct().Count());
+    }
+
+    [Fact]
+    public void A_failed_reading_that_starts_at_a_clean_blocks_sync_belongs_to_it_however_far_it_ran_on()
+    {
+        // A setting that does not suit the capture garbled block 5's length and ran on over the whole of block 6, which
+        // it overlaps more than block 5: where it starts is where its sync was read; where it ended, a misread length's.
+        var garbled = BlockWriter.Build(Profile.Layout, string.Empty, 0, 5, new byte[200]);
+        garbled[0] = 0xC3;
+        var longer = BlockWriter.Build(Profile.Layout, string.Empty, 0, 6, new byte[100]);
+        var readings = new[]
+        {
+            Readings.Of(Profile, Readings.Written(Profile, 5), 3.000, 0, "s0"),
+            Readings.Of(Profile, Readings.Written(Profile, 5), 3.000, 0, "s1"),
+            Readings.Of(Profile, garbled, 3.001, 0, "s2", changedPayload: new Dictionary<int, byte> { [0] = 0xFF }),
+            Readings.Of(Profile, longer, 3.600, 0, "s0"),
+            Readings.Of(Profile, longer, 3.600, 0, "s1"),
+        };
+
+        var placed = BlockPositioner.Place(readings);
+
+        var runOn = placed.Single(c => c.SettingName == "s2");
+        Assert.True(runOn.EndSeconds > 4.3, "the garbled reading runs on over block 6");
+        Assert.Equal(placed.First(c => c.SettingName == "s0").Position, runOn.Position);
+        Assert.Equal(2, placed.Select(c => c.Position).Distinct().Count());
+    }
 }
