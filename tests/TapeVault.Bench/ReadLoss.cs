@@ -15,6 +15,11 @@ namespace TapeVault.Bench;
 /// lost block. The causes, first that applies:
 /// <list type="bullet">
 /// <item>speed: the capture plays more than 12 % off nominal (channel speed times SoX's), past the lead-in search;</item>
+/// <item>dead channel: SoX's remix kept the channel the damage left dead, so the file holds no signal;</item>
+/// <item>filtered out: a SoX sinc band-pass removes the fundamental of one of the format's patterns (a pulse class,
+/// a run of equal or alternating biphase bits, a tone);</item>
+/// <item>weak pattern: azimuth loss (Mee and Daniel's 20·log10|sin x / x|, <see cref="ChannelModel.AzimuthLossDb"/>)
+/// and the deck's second-order low-pass at that fundamental leave it less than 6 dB over the noise the SNR draw sets;</item>
 /// <item>dropout, no reading / dropout, cut short / dropout, wrong bytes: a dropout overlaps the block, and the signal
 /// under it stands less than 6 dB over the noise (the drawn SNR less the dropout's depth): no decoder reads that;</item>
 /// <item>readable dropout, ...: the same with 6 dB or more left under the dropout;</item>
@@ -108,6 +113,7 @@ public static class ReadLoss
         double snr = damage.SnrDb ?? 60;
         double Capture(double tape) => (damage.MarginSeconds + (tape / damage.Speed)) / outsideSpeed;
         int check = BlockLayoutCodec.For(trial.Truth.Layout).CheckBytes;
+        var signal = SignalGone(trial, snr);
 
         for (int b = 0; b < blocks.Count; b++)
         {
@@ -121,6 +127,12 @@ public static class ReadLoss
             if (Math.Abs(speed - 1) > 0.12)
             {
                 yield return (b, "speed beyond ±12 %", $"speed {speed:0.000}");
+                continue;
+            }
+
+            if (signal is not null)
+            {
+                yield return (b, signal.Value.Cause, signal.Value.Detail);
                 continue;
             }
 
@@ -193,6 +205,64 @@ public static class ReadLoss
             yield return (b, dropout + kind,
                 $"best of {overlapping.Count} readings {best.SettingName} {best.Status} {best.Doubts}: {same}/{bytes.Length} bytes right, {got.Length} read, {wrong} wrong from {firstWrong} to {lastWrong}, " +
                 $"{best.Decisions} decisions {best.AmbiguousDecisions} ambiguous, decision SNR {best.SnrDb:0.0} dB, speed read {best.Speed:0.000} of {speed:0.000}, {best.StartSeconds:0.000}–{best.EndSeconds:0.000} s; dropout {dropoutText}");
+        }
+    }
+
+    /// <summary>Why no decoder could read any block of the capture, where the damage drawn says so; else null.</summary>
+    private static (string Cause, string Detail)? SignalGone(DraftTrialCapture trial, double snr)
+    {
+        var damage = trial.Damage;
+        string chain = trial.OutsideDamage ?? string.Empty;
+        if ((damage.Channels == CaptureChannels.LeftDead && chain.Contains("remix 1 ", StringComparison.Ordinal)) ||
+            (damage.Channels == CaptureChannels.RightDead && chain.Contains("remix 2 ", StringComparison.Ordinal)))
+        {
+            return ("dead channel kept by SoX", $"{damage.Channels}, {chain}");
+        }
+
+        var sinc = Regex.Match(chain, @"\bsinc ([0-9.]+)-([0-9.]+)");
+        (string Cause, string Detail)? worst = null;
+        double worstLeft = double.PositiveInfinity;
+        foreach (var (name, hz) in Patterns(trial.Truth))
+        {
+            if (sinc.Success && (hz < double.Parse(sinc.Groups[1].Value, CultureInfo.InvariantCulture) / 1.05 || hz > double.Parse(sinc.Groups[2].Value, CultureInfo.InvariantCulture) * 1.05))
+            {
+                return ("filtered out by SoX", $"{name} at {hz:0} Hz outside {sinc.Value}");
+            }
+
+            double azimuth = ChannelModel.AzimuthLossDb(damage, hz);
+            double deck = damage.DeckLowPassHz is { } lp ? -10 * Math.Log10(1 + Math.Pow(hz / lp, 4)) : 0;
+            double left = snr + azimuth + deck;
+            if (left < ReadableResidualSnrDb && left < worstLeft)
+            {
+                worstLeft = left;
+                worst = ("weak pattern (azimuth, deck band)", $"{name} at {hz:0} Hz: azimuth {azimuth:0.0} dB, deck {deck:0.0} dB, {left:0.0} dB over the noise");
+            }
+        }
+
+        return worst;
+    }
+
+    /// <summary>The fundamentals a format's patterns write on the tape, by name.</summary>
+    private static IEnumerable<(string Name, double Hz)> Patterns(Core.Formats.FormatProfile profile)
+    {
+        if (profile.PulseWidth is { } pulses)
+        {
+            foreach (var c in pulses.Classes)
+            {
+                yield return ($"class {c.Name}", 1 / (pulses.HalfCycles ? 2 * c.Seconds : c.Seconds));
+            }
+        }
+
+        if (profile.Biphase is { } biphase)
+        {
+            yield return ("equal bits", 1 / biphase.CellSeconds);
+            yield return ("alternating bits", 1 / (2 * biphase.CellSeconds));
+        }
+
+        if (profile.Fsk is { } fsk)
+        {
+            yield return ("mark", fsk.MarkHz);
+            yield return ("space", fsk.SpaceHz);
         }
     }
 
