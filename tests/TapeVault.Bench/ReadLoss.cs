@@ -76,7 +76,9 @@ public static class ReadLoss
 
                 if (show)
                 {
-                    Console.WriteLine($"  {family} seed {seed}: {recovered.Count(r => r)}/{recovered.Length} read; {trial.Described}");
+                    // Each pattern's loss to azimuth and the deck band: patterns far apart in level meet one relative threshold.
+                    string losses = string.Join(", ", Patterns(trial.Truth).Select(p => $"{p.Name} {PatternLossDb(trial.Damage, p.Hz):0.0} dB"));
+                    Console.WriteLine($"  {family} seed {seed}: {recovered.Count(r => r)}/{recovered.Length} read; {losses}; {trial.Described}");
                 }
 
                 foreach (string file in Directory.EnumerateFiles(folder))
@@ -230,7 +232,7 @@ public static class ReadLoss
             }
 
             double azimuth = ChannelModel.AzimuthLossDb(damage, hz);
-            double deck = damage.DeckLowPassHz is { } lp ? -10 * Math.Log10(1 + Math.Pow(hz / lp, 4)) : 0;
+            double deck = PatternLossDb(damage, hz) - azimuth;
             double left = snr + azimuth + deck;
             if (left < ReadableResidualSnrDb && left < worstLeft)
             {
@@ -241,6 +243,10 @@ public static class ReadLoss
 
         return worst;
     }
+
+    /// <summary>A fundamental's loss to azimuth and to the deck's second-order Butterworth low-pass, in dB (at most 0).</summary>
+    private static double PatternLossDb(ChannelDamage damage, double hz) =>
+        ChannelModel.AzimuthLossDb(damage, hz) + (damage.DeckLowPassHz is { } lp ? -10 * Math.Log10(1 + Math.Pow(hz / lp, 4)) : 0);
 
     /// <summary>The fundamentals a format's patterns write on the tape, by name.</summary>
     private static IEnumerable<(string Name, double Hz)> Patterns(Core.Formats.FormatProfile profile)
