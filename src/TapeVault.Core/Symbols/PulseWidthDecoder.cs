@@ -73,6 +73,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     // The pulse before this one, as measured and as classified (-1: none worth pairing with).
     private double _previousSeconds;
     private int _previousClass = -1;
+    private int _dataPulses;
 
     public PulseWidthDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, IBlockSink blocks)
     {
@@ -337,6 +338,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _recentInvalid = 0;
         _framer.Reset();
         _leadIn.Reset();
+        _dataPulses = 0;
         _blocks.Begin(endSample, evidence);
     }
 
@@ -466,7 +468,10 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _blocks.NoteLevel(level);
         var decision = _classifier.Classify(seconds, _speed.Speed);
         double moved = _previousClass >= 0 ? (_previousSeconds * _speed.Speed) - _classifier.NominalSeconds(_previousClass) : 0;
-        bool shifted = ShiftedEdge(ref decision, seconds);
+
+        // Only the block's first pulse, after the sync's (or the lead-in's) last: that edge follows the longest or the
+        // most regular stretch, which a band-limited chain moves most; inside the data the pulses keep to their classes.
+        bool shifted = _dataPulses++ == 0 && ShiftedEdge(ref decision, seconds);
 
         // A pulse whose first edge moved is remembered as it would have read without the move, so that the edge it
         // shares with the next pulse is judged on its own.
