@@ -96,7 +96,8 @@ public static class DraftFigure
 
     private static string Percent(int part, int whole) => whole == 0 ? "-" : (100.0 * part / whole).ToString("0.0", CultureInfo.InvariantCulture) + " %";
 
-    private static (string Path, string Description) Sox(string path, Random rng)
+    /// <summary>The SoX chain of the figure's even seeds, drawn from the trial's random numbers.</summary>
+    internal static (string Path, string Description) Sox(string path, Random rng)
     {
         int rate;
         int channels;

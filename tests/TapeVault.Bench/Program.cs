@@ -32,6 +32,12 @@ if (section == "draft")
     return DraftFigure.Run(work, args[1..]);
 }
 
+if (section == "read-loss")
+{
+    // read-loss --count N --first-seed S [--family F] [--show lost]: where the truth loses the draft figure's blocks.
+    return ReadLoss.Run(work, args[1..]);
+}
+
 if (section == "trust-fit")
 {
     // trust-fit --dump FILE --out FILE --note TEXT: fits the confidence map from a trust run's dump (TAPEVAULT_TRUST_DUMP) of tuning seeds.

@@ -39,6 +39,10 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     // recovery benchmark.
     private const int MidsToResynchronise = 8;
 
+    // Edges off the cell grid a run of the bridge steps over between two of its transitions: one pair of noise
+    // crossings (a glitch goes up and comes back down). Our choice, checked by the recovery benchmark.
+    private const int GlitchesToStepOver = 2;
+
     // Longer than the longest dropout worth bridging; past it the clock has drifted too far to place bits.
     private const double LongestBridgeCells = 120;
 
@@ -66,6 +70,7 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     private readonly BridgeEdge[] _bridge = new BridgeEdge[(2 * MidsToResynchronise) + 2];
     private int _bridgeCount;
     private int _bridgeMids;
+    private int _bridgeSkipped;
 
     public BiphaseDecoder(FormatProfile profile, double sampleRate, IBlockSink blocks)
     {
@@ -327,11 +332,13 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     }
 
     /// <summary>Bridging counts from the clock as it stood at the break: nothing moves it until the signal is back.</summary>
+
     private void StartBridge()
     {
         _bridging = true;
         _bridgeCount = 0;
         _bridgeMids = 0;
+        _bridgeSkipped = 0;
     }
 
     /// <summary>
@@ -349,29 +356,37 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         }
 
         long k = (long)Math.Round(halfCells);
-        if (k <= 0 || Math.Abs(halfCells - k) > GridTolerance)
-        {
-            _bridgeCount = 0;
-            _bridgeMids = 0;
-            return;
-        }
-
+        bool onGrid = k > 0 && Math.Abs(halfCells - k) <= GridTolerance;
         bool mid = (k & 1) == 0;
         if (_bridgeCount > 0)
         {
-            long previous = _bridge[_bridgeCount - 1].HalfCell;
+            var previousEdge = _bridge[_bridgeCount - 1];
+            long previous = previousEdge.HalfCell;
             bool previousMid = (previous & 1) == 0;
 
             // After a mid-cell transition comes the next cell's (two halves on) or a boundary (one half on); after a
-            // boundary, the mid-cell transition of the same cell.
+            // boundary, the mid-cell transition of the same cell; and transitions alternate in direction.
             bool follows = previousMid ? k == previous + 2 || k == previous + 1 : mid && k == previous + 1;
-            if (!follows)
+            if (!onGrid || !follows || previousEdge.Bit == bit)
             {
+                // Not the run's next transition: noise, such as a pair of crossings in the quiet middle of a whole
+                // cell, which the run steps over. More than that between two of its transitions, and it starts again.
+                if (++_bridgeSkipped <= GlitchesToStepOver)
+                {
+                    return;
+                }
+
                 _bridgeCount = 0;
                 _bridgeMids = 0;
             }
         }
 
+        if (!onGrid)
+        {
+            return;
+        }
+
+        _bridgeSkipped = 0;
         if (_bridgeCount == 0 && !mid)
         {
             // A run starts on a mid-cell transition, so that its first bit has a transition of its own.

@@ -19,6 +19,12 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 {
     private const int InvalidPulsesToLoseBlock = 4;
 
+    // How far (a fraction of its nominal) a pulse must read off before the edge it shares with the next one counts as
+    // moved. Band-limited playback (a high-pass after a long pulse, for one) moves the crossing between two pulses:
+    // one reads short by what the other reads long, and only their sum keeps its length. Our choice, above the
+    // jitter of a healthy capture, checked by the recovery benchmark.
+    private const double ShiftedEdgeFraction = 0.1;
+
     // The bits (and the pulses that made them) kept while a sync field's bits are searched: more than the longest
     // sync field's framed bits (16 bytes of at most 17 bits).
     private const int RingBits = 512;
@@ -63,6 +69,11 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private double _lastEdge = double.NaN;
     private double _glitchCarry;
     private double _pendingHalf = double.NaN;
+
+    // The pulse before this one, as measured and as classified (-1: none worth pairing with).
+    private double _previousSeconds;
+    private int _previousClass = -1;
+    private int _dataPulses;
 
     public PulseWidthDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, IBlockSink blocks)
     {
@@ -209,6 +220,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
     private void LoseSignal(double sample)
     {
+        _previousClass = -1;
         if (_mode == Mode.Data)
         {
             _blocks.End(sample);
@@ -229,6 +241,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 if (_leadIn.Add(seconds) && _leadIn.Found)
                 {
                     _speed.Calibrate(_leadIn.Speed);
+                    Remember(seconds, _leadInClass);
                     if (_mode == Mode.Hunting)
                     {
                         _pulsesSeen = 0;
@@ -251,15 +264,13 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
                 break;
             case Mode.Sync:
-                OnSyncPulse(_classifier.ClassOf(seconds, _speed.Speed), endSample);
+                OnSyncPulse(seconds, endSample);
                 break;
             case Mode.SyncSearch:
-                OnSearchPulse(_classifier.Classify(seconds, _speed.Speed), endSample);
+                OnSearchPulse(seconds, endSample);
                 break;
             case Mode.Data:
-                // Data pulses alone need the distances (a logarithm each).
-                _blocks.NoteLevel(level);
-                OnDataPulse(_classifier.Classify(seconds, _speed.Speed), seconds, endSample);
+                DataPulse(seconds, endSample, level);
                 break;
         }
     }
@@ -276,21 +287,20 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         {
             _syncIndex = 0;
             _mode = Mode.Sync;
-            OnSyncPulse(_classifier.ClassOf(seconds, _speed.Speed), endSample);
+            OnSyncPulse(seconds, endSample);
         }
         else if (_searchesSyncBits)
         {
             _mode = Mode.SyncSearch;
             _searchBits = 0;
             _patternLength = 0;
-            OnSearchPulse(_classifier.Classify(seconds, _speed.Speed), endSample);
+            OnSearchPulse(seconds, endSample);
         }
         else if (_runCount >= _encoding.LeadInMinimum)
         {
             // The first byte's marker follows the lead-in; a sync field after it is checked when the block is whole.
             StartData(endSample, BlockLeadInEvidence());
-            _blocks.NoteLevel(level);
-            OnDataPulse(_classifier.Classify(seconds, _speed.Speed), seconds, endSample);
+            DataPulse(seconds, endSample, level);
         }
         else
         {
@@ -301,8 +311,10 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
     private BlockStartEvidence BlockLeadInEvidence() => _hasSyncField ? BlockStartEvidence.LeadInAndSync : BlockStartEvidence.LeadIn;
 
-    private void OnSyncPulse(int pulseClass, double endSample)
+    private void OnSyncPulse(double seconds, double endSample)
     {
+        int pulseClass = _classifier.ClassOf(seconds, _speed.Speed);
+        Remember(seconds, pulseClass);
         if (pulseClass != _sync[_syncIndex])
         {
             // Not the sync: a lead-in must be found again, as long as the format demands, before the next sync.
@@ -326,6 +338,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _recentInvalid = 0;
         _framer.Reset();
         _leadIn.Reset();
+        _dataPulses = 0;
         _blocks.Begin(endSample, evidence);
     }
 
@@ -344,8 +357,10 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
     // A sync field's bits are searched one bit at a time after the run: they may begin with the run's own bits, so
     // the decoder cannot wait for the first pulse of another class.
-    private void OnSearchPulse(PulseDecision decision, double endSample)
+    private void OnSearchPulse(double seconds, double endSample)
     {
+        var decision = _classifier.Classify(seconds, _speed.Speed);
+        Remember(seconds, decision.Class);
         if (!decision.IsValid)
         {
             _mode = Mode.Hunting;
@@ -441,7 +456,84 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _patternLength = 0;
     }
 
-    private void OnDataPulse(PulseDecision decision, double seconds, double endSample)
+    private void Remember(double seconds, int pulseClass)
+    {
+        _previousSeconds = seconds;
+        _previousClass = pulseClass;
+    }
+
+    /// <summary>A pulse of a block's data: classified (data pulses alone need the distances, a logarithm each), its shared edge checked, decided.</summary>
+    private void DataPulse(double seconds, double endSample, float level)
+    {
+        _blocks.NoteLevel(level);
+        var decision = _classifier.Classify(seconds, _speed.Speed);
+        double moved = _previousClass >= 0 ? (_previousSeconds * _speed.Speed) - _classifier.NominalSeconds(_previousClass) : 0;
+
+        // Only the block's first pulse, after the sync's (or the lead-in's) last: that edge follows the longest or the
+        // most regular stretch, which a band-limited chain moves most; inside the data the pulses keep to their classes.
+        bool shifted = _dataPulses++ == 0 && ShiftedEdge(ref decision, seconds);
+
+        // A pulse whose first edge moved is remembered as it would have read without the move, so that the edge it
+        // shares with the next pulse is judged on its own.
+        Remember(shifted ? seconds + (moved / _speed.Speed) : seconds, decision.Class);
+        OnDataPulse(decision, seconds, endSample, trackSpeed: !shifted);
+    }
+
+    /// <summary>
+    /// Where the pulse before this one read well off its class (by <see cref="ShiftedEdgeFraction"/> or more) and this
+    /// one reads off the other way by about as much, the edge between them moved, and the sum of the two is the
+    /// measurement left: when the sum is nearer the previous class plus another class than plus the one this pulse
+    /// classified as, this pulse is that other class, decided on the sum (its margin is the sum's distance from the
+    /// boundary between the two pairs' sums). Returns whether it changed the decision.
+    /// </summary>
+    private bool ShiftedEdge(ref PulseDecision decision, double seconds)
+    {
+        if (!decision.IsValid || _previousClass < 0)
+        {
+            return false;
+        }
+
+        double speed = _speed.Speed;
+        double previousNominal = _classifier.NominalSeconds(_previousClass);
+        double previousError = (_previousSeconds * speed) - previousNominal;
+        if (Math.Abs(previousError) < ShiftedEdgeFraction * previousNominal)
+        {
+            return false;
+        }
+
+        double sum = (_previousSeconds + seconds) * speed;
+        double asRead = previousNominal + _classifier.NominalSeconds(decision.Class);
+        int best = -1;
+        double bestSum = 0;
+        for (int c = 0; c < _encoding.Classes.Count; c++)
+        {
+            double pair = previousNominal + _classifier.NominalSeconds(c);
+            double error = (seconds * speed) - _classifier.NominalSeconds(c);
+
+            // The other way by about as much: the same edge moved, by between half and twice the previous pulse's error.
+            bool mirrors = Math.Sign(error) == -Math.Sign(previousError) && Math.Abs(error) >= 0.5 * Math.Abs(previousError) && Math.Abs(error) <= 2 * Math.Abs(previousError);
+            if (c != decision.Class && mirrors && Math.Abs(Math.Log(sum / pair)) < Math.Abs(Math.Log(sum / asRead)) &&
+                (best < 0 || Math.Abs(Math.Log(sum / pair)) < Math.Abs(Math.Log(sum / bestSum))))
+            {
+                best = c;
+                bestSum = pair;
+            }
+        }
+
+        if (best < 0)
+        {
+            return false;
+        }
+
+        // Decided on the sum, in the classifier's units: the boundary between the two pairs' sums lies at their geometric mean.
+        double boundary = 0.5 * (Math.Log(bestSum) + Math.Log(asRead));
+        double distance = Math.Abs(Math.Log(sum) - boundary);
+        double scale = Math.Abs(Math.Log(bestSum) - boundary);
+        decision = new PulseDecision(best, (float)distance, (float)(Math.Log(sum) - Math.Log(bestSum)), (float)scale);
+        return true;
+    }
+
+    private void OnDataPulse(PulseDecision decision, double seconds, double endSample, bool trackSpeed = true)
     {
         if (_patternLength == 0)
         {
@@ -463,7 +555,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
         _recentInvalid = Math.Max(0, _recentInvalid - 1);
         _blocks.AddDecision(decision.Distance, decision.Residual, decision.Scale);
-        if (decision.Distance > 0.5 * decision.Scale)
+        if (trackSpeed && decision.Distance > 0.5 * decision.Scale)
         {
             _speed.Track(seconds, _classifier.NominalSeconds(decision.Class));
         }

@@ -99,6 +99,9 @@ public sealed class ChannelModel
 
     public double NoiseSigma => _noiseSigma;
 
+    /// <summary>Every dropout of the capture, given and drawn, in order of start (seconds of capture time).</summary>
+    public IReadOnlyList<Dropout> Dropouts => _dropouts;
+
     /// <summary>1 for a mono capture, 2 for a stereo one.</summary>
     public int Channels => _damage.Channels == CaptureChannels.Mono ? 1 : 2;
 

@@ -29,6 +29,12 @@ public sealed record DraftTrialResult(
 }
 
 /// <summary>
+/// A trial's capture: the truth profile, the damage drawn, the blocks as written, the capture's path (after any outside
+/// damage), the damage in one line, and the outside tool's part of it alone (null when none was applied).
+/// </summary>
+public sealed record DraftTrialCapture(string Family, int Seed, string TruthJson, FormatProfile Truth, ChannelDamage Damage, SynthesizedCapture Written, string Path, string Described, string? OutsideDamage);
+
+/// <summary>
 /// One measurement of the drafter: a random profile of a family (<see cref="RandomFormats"/>), files written through
 /// the channel model with damage drawn from wide ranges, optionally damaged further by an outside tool, a draft from
 /// the capture, the draft's guesses confirmed from the truth (<see cref="GuessConfirmation"/>), and both the
@@ -38,31 +44,12 @@ public static class DraftTrials
 {
     public static DraftTrialResult Run(string family, int seed, string folder, Func<string, Random, (string Path, string Description)>? outsideDamage = null, ChannelDamage? damageGiven = null)
     {
-        ArgumentNullException.ThrowIfNull(folder);
-        var rng = new Random(seed);
-        string truthJson = RandomFormats.Draw(family, rng);
-        var truth = ProfileLoader.Parse(truthJson, "truth");
-        // The damage is drawn whether or not one is given, so that a seed's files are the same either way.
-        var damage = Damage(rng);
-        if (damageGiven is not null)
-        {
-            damage = damageGiven with { Seed = damage.Seed };
-        }
-
-        // A stream is one block per file: several short files give it blocks to count.
-        var files = truth.Layout.IsStream
-            ? RandomFormats.Files(rng, 6, 120)
-            : RandomFormats.Files(rng, 2, truth.Family == FormatFamily.Fsk && truth.Fsk!.Baud < 600 ? 300 : 700);
-        string path = Path.Combine(folder, $"draft-{family}-{seed}.wav");
-        var capture = CaptureSynthesizer.Write(path, truth, files, damage);
-        string described = RandomDamage.Describe(damage);
-        if (outsideDamage is not null)
-        {
-            var (damaged, chain) = outsideDamage(path, rng);
-            path = damaged;
-            described += "; then " + chain;
-        }
-
+        var trial = Capture(family, seed, folder, outsideDamage, damageGiven);
+        string truthJson = trial.TruthJson;
+        var truth = trial.Truth;
+        var capture = trial.Written;
+        string path = trial.Path;
+        string described = trial.Described;
         var truthBlocks = RandomFormats.RecoveredBlocks(CaptureDecoder.Decode(path, truth), truth, capture.Blocks);
         int truthRead = truthBlocks.Count(r => r);
         ProfileDraft draft;
@@ -92,7 +79,44 @@ public static class DraftTrials
             failure = "the confirmed draft does not load: " + e.Message;
         }
 
-        return new DraftTrialResult(seed, family, drafted, capture.Blocks.Count, read, truthRead, draft.GuessedPaths, draft.Findings.Count, draft.Confidence, described, failure, truthJson, draft.Json + "\n" + draft.SideListJson(), draft.Json, damage.Speed, both);
+        return new DraftTrialResult(seed, family, drafted, capture.Blocks.Count, read, truthRead, draft.GuessedPaths, draft.Findings.Count, draft.Confidence, described, failure, truthJson, draft.Json + "\n" + draft.SideListJson(), draft.Json, trial.Damage.Speed, both);
+    }
+
+    /// <summary>
+    /// A trial's capture alone: the random profile of <paramref name="family"/> drawn from <paramref name="seed"/>, its
+    /// files written through the channel model with the drawn damage (or <paramref name="damageGiven"/>), and the
+    /// outside damage after, exactly as <see cref="Run"/> makes it; nothing is drafted or decoded.
+    /// </summary>
+    public static DraftTrialCapture Capture(string family, int seed, string folder, Func<string, Random, (string Path, string Description)>? outsideDamage = null, ChannelDamage? damageGiven = null)
+    {
+        ArgumentNullException.ThrowIfNull(folder);
+        var rng = new Random(seed);
+        string truthJson = RandomFormats.Draw(family, rng);
+        var truth = ProfileLoader.Parse(truthJson, "truth");
+        // The damage is drawn whether or not one is given, so that a seed's files are the same either way.
+        var damage = Damage(rng);
+        if (damageGiven is not null)
+        {
+            damage = damageGiven with { Seed = damage.Seed };
+        }
+
+        // A stream is one block per file: several short files give it blocks to count.
+        var files = truth.Layout.IsStream
+            ? RandomFormats.Files(rng, 6, 120)
+            : RandomFormats.Files(rng, 2, truth.Family == FormatFamily.Fsk && truth.Fsk!.Baud < 600 ? 300 : 700);
+        string path = Path.Combine(folder, $"draft-{family}-{seed}.wav");
+        var capture = CaptureSynthesizer.Write(path, truth, files, damage);
+        string described = RandomDamage.Describe(damage);
+        string? outside = null;
+        if (outsideDamage is not null)
+        {
+            var (damaged, chain) = outsideDamage(path, rng);
+            path = damaged;
+            outside = chain;
+            described += "; then " + chain;
+        }
+
+        return new DraftTrialCapture(family, seed, truthJson, truth, damage, capture, path, described, outside);
     }
 
     /// <summary>

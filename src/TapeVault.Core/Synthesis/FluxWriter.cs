@@ -8,15 +8,16 @@ namespace TapeVault.Core.Synthesis;
 /// </summary>
 public static class FluxWriter
 {
-    public static IEnumerable<double> Reversals(FormatProfile profile, IReadOnlyList<byte[]> blocks)
+    /// <param name="spans">When given, each block copy's place on the tape is added to it as the reversals are enumerated.</param>
+    public static IEnumerable<double> Reversals(FormatProfile profile, IReadOnlyList<byte[]> blocks, ICollection<WrittenSpan>? spans = null)
     {
         ArgumentNullException.ThrowIfNull(profile);
         ArgumentNullException.ThrowIfNull(blocks);
         return profile.Family switch
         {
-            FormatFamily.PulseWidth => PulseWidth(profile, blocks),
-            FormatFamily.Fsk => Fsk(profile, blocks),
-            FormatFamily.Biphase => Biphase(profile, blocks),
+            FormatFamily.PulseWidth => PulseWidth(profile, blocks, spans),
+            FormatFamily.Fsk => Fsk(profile, blocks, spans),
+            FormatFamily.Biphase => Biphase(profile, blocks, spans),
             _ => throw new ArgumentOutOfRangeException(nameof(profile)),
         };
     }
@@ -28,7 +29,7 @@ public static class FluxWriter
         return BitPatterns.Frame(framing, value);
     }
 
-    private static IEnumerable<double> PulseWidth(FormatProfile profile, IReadOnlyList<byte[]> blocks)
+    private static IEnumerable<double> PulseWidth(FormatProfile profile, IReadOnlyList<byte[]> blocks, ICollection<WrittenSpan>? spans)
     {
         var encoding = profile.PulseWidth!;
         var byName = encoding.Classes.ToDictionary(c => c.Name, c => c.Seconds, StringComparer.Ordinal);
@@ -58,19 +59,22 @@ public static class FluxWriter
             }
         }
 
-        foreach (var written in blocks)
+        for (int b = 0; b < blocks.Count; b++)
         {
             // Blocks of several kinds come in the order a file writes them (BlockWriter.Blocks).
+            var written = blocks[b];
             var codec = Blocks.BlockLayoutCodec.For(kinds[index++ % kinds.Count]);
             for (int copy = 0; copy < profile.Layout.Copies; copy++)
             {
                 var block = codec.ForCopy(written, copy);
+                double start = t;
                 for (int i = 0, n = first ? leadInCycles : gapCycles; i < n; i++)
                 {
                     foreach (double r in Pulses([encoding.LeadInClass])) yield return r;
                 }
 
                 first = false;
+                double data = t;
                 foreach (double r in Pulses(encoding.Sync)) yield return r;
                 foreach (byte value in block)
                 {
@@ -84,6 +88,7 @@ public static class FluxWriter
                 }
 
                 foreach (double r in Pulses(encoding.EndOfBlock)) yield return r;
+                spans?.Add(new WrittenSpan(b, copy, start, data, t));
             }
         }
 
@@ -94,7 +99,7 @@ public static class FluxWriter
         }
     }
 
-    private static IEnumerable<double> Fsk(FormatProfile profile, IReadOnlyList<byte[]> blocks)
+    private static IEnumerable<double> Fsk(FormatProfile profile, IReadOnlyList<byte[]> blocks, ICollection<WrittenSpan>? spans)
     {
         var fsk = profile.Fsk!;
         double bit = fsk.BitSeconds;
@@ -143,11 +148,13 @@ public static class FluxWriter
         }
 
         var codec = Blocks.BlockLayoutCodec.For(profile.Layout);
-        foreach (var written in blocks)
+        for (int b = 0; b < blocks.Count; b++)
         {
+            var written = blocks[b];
             for (int copy = 0; copy < profile.Layout.Copies; copy++)
             {
                 var block = codec.ForCopy(written, copy);
+                double start = t;
                 if (fsk.LeadInCharacters is { } leader)
                 {
                     // Before the first block the leader alone; before each later one a gap of mark tone, then the leader.
@@ -164,10 +171,13 @@ public static class FluxWriter
                 }
 
                 first = false;
+                double data = t;
                 foreach (byte value in block)
                 {
                     foreach (double r in Character(value)) yield return r;
                 }
+
+                spans?.Add(new WrittenSpan(b, copy, start, data, t));
             }
         }
 
@@ -175,7 +185,7 @@ public static class FluxWriter
         yield return t;
     }
 
-    private static IEnumerable<double> Biphase(FormatProfile profile, IReadOnlyList<byte[]> blocks)
+    private static IEnumerable<double> Biphase(FormatProfile profile, IReadOnlyList<byte[]> blocks, ICollection<WrittenSpan>? spans)
     {
         var biphase = profile.Biphase!;
         double cell = biphase.CellSeconds;
@@ -211,10 +221,13 @@ public static class FluxWriter
             }
         }
 
-        foreach (var block in blocks)
+        for (int b = 0; b < blocks.Count; b++)
         {
+            var block = blocks[b];
+            double start = t;
             foreach (double r in LeadIn(first ? profile.Recording.LeadInSeconds : profile.Recording.BlockGapSeconds, biphase.LeadInMinimumBits * 2)) yield return r;
             first = false;
+            double data = t;
             foreach (char c in biphase.SyncBits)
             {
                 foreach (double r in Bit(c == '1')) yield return r;
@@ -222,13 +235,22 @@ public static class FluxWriter
 
             foreach (byte value in block)
             {
-                foreach (bool b in FramedBits(profile.Framing, value))
+                foreach (bool bit in FramedBits(profile.Framing, value))
                 {
-                    foreach (double r in Bit(b)) yield return r;
+                    foreach (double r in Bit(bit)) yield return r;
                 }
             }
+
+            spans?.Add(new WrittenSpan(b, 0, start, data, t));
         }
 
         foreach (double r in LeadIn(profile.Recording.TrailerSeconds, 16)) yield return r;
     }
 }
+
+/// <summary>
+/// Where one copy of a written block lies on the tape, in seconds of tape at nominal speed: its lead-in (or the gap
+/// before it) starts at <paramref name="StartSeconds"/>, its sync and bytes at <paramref name="DataSeconds"/>, and it
+/// ends at <paramref name="EndSeconds"/>.
+/// </summary>
+public readonly record struct WrittenSpan(int Block, int Copy, double StartSeconds, double DataSeconds, double EndSeconds);
