@@ -395,24 +395,7 @@ public static class Trust
                 }
 
                 // The written bytes this reading lines up with best.
-                int bestFile = 0, bestOffset = 0, bestCount = -1;
-                for (int f = 0; f < files.Count; f++)
-                {
-                    var content = files[f].Content;
-                    for (int o = -run.Length + 1; o < content.Length; o++)
-                    {
-                        int count = 0;
-                        for (int i = Math.Max(0, -o); i < run.Length && o + i < content.Length; i++)
-                        {
-                            count += run[i] == content[o + i] ? 1 : 0;
-                        }
-
-                        if (count > bestCount)
-                        {
-                            (bestFile, bestOffset, bestCount) = (f, o, count);
-                        }
-                    }
-                }
+                var (bestFile, bestOffset, bestCount) = BestAlignment(run, files);
 
                 var truth = files[bestFile].Content;
                 double gapBefore = k > 0 ? (c.StartSeconds - readings[k - 1].EndSeconds) * baud : -1;
@@ -430,8 +413,8 @@ public static class Trust
         }
     }
 
-    /// <summary>Where a wrong stream segment differs from the written bytes it lines up with best: at its first or last two characters (or past a file's end), inside, or both.</summary>
-    private static string StreamErrorWhere(ReadOnlySpan<byte> run, List<TapeFile> files)
+    /// <summary>The written file and offset a stream segment lines up with best, and how many of its characters agree there.</summary>
+    private static (int File, int Offset, int Count) BestAlignment(ReadOnlySpan<byte> run, List<TapeFile> files)
     {
         int bestFile = 0, bestOffset = 0, bestCount = -1;
         for (int f = 0; f < files.Count; f++)
@@ -452,6 +435,13 @@ public static class Trust
             }
         }
 
+        return (bestFile, bestOffset, bestCount);
+    }
+
+    /// <summary>Where a wrong stream segment differs from the written bytes it lines up with best: at its first or last two characters (or past a file's end), inside, or both.</summary>
+    private static string StreamErrorWhere(ReadOnlySpan<byte> run, List<TapeFile> files)
+    {
+        var (bestFile, bestOffset, _) = BestAlignment(run, files);
         var best = files[bestFile].Content;
         bool edge = false, inside = false;
         for (int i = 0; i < run.Length; i++)
