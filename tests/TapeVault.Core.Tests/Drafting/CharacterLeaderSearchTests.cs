@@ -35,7 +35,7 @@ public sealed class CharacterLeaderSearchTests
         {
             var payload = new byte[10 + rng.Next(20)];
             rng.NextBytes(payload);
-            byte[] covered = [(byte)n, .. Encoding.ASCII.GetBytes("PRG"), (byte)payload.Length, 0, .. payload];
+            byte[] covered = [(byte)n, .. Encoding.ASCII.GetBytes("ORB"), (byte)payload.Length, 0, .. payload];
             var run = Enumerable.Repeat((byte)leader, 20 + rng.Next(30));
             blocks.Add([.. run, .. sync, .. DraftBlockSamples.WithCheck(covered, crc, false)]);
         }
