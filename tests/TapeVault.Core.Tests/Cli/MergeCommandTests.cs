@@ -27,15 +27,8 @@ public sealed class MergeCaptures : IDisposable
 
     private string WithSilence(string source, double cut)
     {
-        string name = $"silence-{cut.ToString("0.0", CultureInfo.InvariantCulture)}";
-        string before = Temp.File($"{name}.before.wav");
-        string after = Temp.File($"{name}.after.wav");
-        string gap = Temp.File($"{name}.gap.wav");
-        string output = Temp.File($"{name}.wav");
-        OutsideTool.Sox(source, before, "trim", "0", cut.ToString(CultureInfo.InvariantCulture));
-        OutsideTool.Sox(source, after, "trim", (cut + 0.2).ToString(CultureInfo.InvariantCulture));
-        OutsideTool.Sox("-n", "-r", "44100", "-b", "16", "-c", "1", gap, "trim", "0", "0.2");
-        OutsideTool.Sox(before, gap, after, output);
+        string output = Temp.File($"silence-{cut.ToString("0.0", CultureInfo.InvariantCulture)}.wav");
+        OutsideTool.SoxSilence(source, output, cut, 0.2);
         return output;
     }
 

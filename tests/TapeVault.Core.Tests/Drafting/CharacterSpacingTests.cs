@@ -39,24 +39,17 @@ public sealed class CharacterSpacingTests
         return result;
     }
 
-    [Fact]
-    public void Characters_eleven_bit_times_apart_after_nine_bits_have_one_stop_bit()
+    [Theory]
+    [InlineData(11, 1, "1")]
+    [InlineData(12, 2, "11")]
+    public void Characters_back_to_back_after_nine_bits_tell_their_stop_bits_by_their_spacing(int frameBits, int seed, string stopBits)
     {
-        var spacing = CharacterSpacing.Measure(Blocks(11, 3, 40, 1), Baud, 10);
+        var spacing = CharacterSpacing.Measure(Blocks(frameBits, 3, 40, seed), Baud, 10);
 
         Assert.True(spacing.Told);
-        Assert.Equal("1", spacing.StopBits);
-        Assert.Equal(3 * 39, spacing.OneStop);
-    }
-
-    [Fact]
-    public void Characters_twelve_bit_times_apart_after_nine_bits_have_two_stop_bits()
-    {
-        var spacing = CharacterSpacing.Measure(Blocks(12, 3, 40, 2), Baud, 10);
-
-        Assert.True(spacing.Told);
-        Assert.Equal("11", spacing.StopBits);
-        Assert.Equal(3 * 39, spacing.TwoStops);
+        Assert.Equal(stopBits, spacing.StopBits);
+        // Every pair of neighbours in each block (39 of 40 characters) counted for the stop bits they show.
+        Assert.Equal(3 * 39, stopBits == "1" ? spacing.OneStop : spacing.TwoStops);
     }
 
     [Fact]

@@ -66,15 +66,8 @@ public sealed class OutsideCaptureMergeTests : IClassFixture<OutsideTempFolder>
     /// <summary>SoX cuts the capture at <paramref name="cut"/> seconds and puts 0.1 s of silence in place of the next 0.1 s.</summary>
     private string WithSilence(string source, double cut)
     {
-        string name = $"silence-{cut.ToString("0.0", CultureInfo.InvariantCulture)}";
-        string before = temp.File($"{name}.before.wav");
-        string after = temp.File($"{name}.after.wav");
-        string gap = temp.File($"{name}.gap.wav");
-        string output = temp.File($"{name}.wav");
-        OutsideTool.Sox(source, before, "trim", "0", cut.ToString(CultureInfo.InvariantCulture));
-        OutsideTool.Sox(source, after, "trim", (cut + 0.1).ToString(CultureInfo.InvariantCulture));
-        OutsideTool.Sox("-n", "-r", "44100", "-b", "16", "-c", "1", gap, "trim", "0", "0.1");
-        OutsideTool.Sox(before, gap, after, output);
+        string output = temp.File($"silence-{cut.ToString("0.0", CultureInfo.InvariantCulture)}.wav");
+        OutsideTool.SoxSilence(source, output, cut, 0.1);
         return output;
     }
 }

@@ -93,6 +93,23 @@ internal static class OutsideTool
     /// <summary>Runs SoX with <c>-R</c> (SoX's repeatable random numbers, so dither and noise are the same every run).</summary>
     public static void Sox(params string[] arguments) => Run(SoxPath, ["-R", .. arguments]);
 
+    /// <summary>
+    /// A full dropout made by SoX: <paramref name="output"/> is <paramref name="source"/> with the <paramref name="seconds"/>
+    /// after <paramref name="at"/> seconds replaced by digital silence of the source's rate, width and channels. The
+    /// pieces are written beside <paramref name="output"/>.
+    /// </summary>
+    public static void SoxSilence(string source, string output, double at, double seconds)
+    {
+        string invariant(double x) => x.ToString("R", CultureInfo.InvariantCulture);
+        string before = output + ".before.wav";
+        string after = output + ".after.wav";
+        string gap = output + ".gap.wav";
+        Sox(source, before, "trim", "0", invariant(at));
+        Sox(source, after, "trim", invariant(at + seconds));
+        Sox("-n", "-r", SoxInfo("-r", source), "-b", SoxInfo("-b", source), "-c", SoxInfo("-c", source), gap, "trim", "0", invariant(seconds));
+        Sox(before, gap, after, output);
+    }
+
     /// <summary><c>sox --i -X file</c>: SoX's own reading of a file's header.</summary>
     public static string SoxInfo(string option, string path) => Run(SoxPath, ["--i", option, path]).StandardOutput.Trim();
 
@@ -157,6 +174,22 @@ internal static class KcsCaptures
     public static string Write(string folder, string name, int baud, int sampleRate, int stopBits, double amplitude = 1.0)
     {
         string invariant(double x) => x.ToString(CultureInfo.InvariantCulture);
+        string tones = WriteTones(folder, name, baud, sampleRate, stopBits, amplitude);
+        string leadIn = Path.Combine(folder, $"{name}.lead-in.wav");
+        OutsideTool.Sox("-n", "-r", invariant(sampleRate), "-b", "16", "-c", "1", leadIn,
+            "synth", invariant(LeadInSeconds), "sine", "2400", "vol", invariant(Math.Min(amplitude, 0.99)));
+        string capture = Path.Combine(folder, $"{name}.wav");
+        OutsideTool.Sox(leadIn, tones, capture);
+        return capture;
+    }
+
+    /// <summary>
+    /// Writes what minimodem alone sends for the text, with no lead-in added: <paramref name="name"/>.minimodem.wav,
+    /// checked as <see cref="Write"/> describes.
+    /// </summary>
+    public static string WriteTones(string folder, string name, int baud, int sampleRate, int stopBits, double amplitude = 1.0)
+    {
+        string invariant(double x) => x.ToString(CultureInfo.InvariantCulture);
         string tones = Path.Combine(folder, $"{name}.minimodem.wav");
         OutsideTool.Run(
             OutsideTool.MinimodemPath,
@@ -179,13 +212,7 @@ internal static class KcsCaptures
         Assert.Equal(0, samples % samplesPerBit);
         Assert.InRange((samples / samplesPerBit) - frames, 0, 8);
         Assert.Equal(Hex(Text), Hex(OutsideTool.MinimodemReceive(tones, baud)));
-
-        string leadIn = Path.Combine(folder, $"{name}.lead-in.wav");
-        OutsideTool.Sox("-n", "-r", invariant(sampleRate), "-b", "16", "-c", "1", leadIn,
-            "synth", invariant(LeadInSeconds), "sine", "2400", "vol", invariant(Math.Min(amplitude, 0.99)));
-        string capture = Path.Combine(folder, $"{name}.wav");
-        OutsideTool.Sox(leadIn, tones, capture);
-        return capture;
+        return tones;
     }
 
     /// <summary>Seconds per character frame.</summary>

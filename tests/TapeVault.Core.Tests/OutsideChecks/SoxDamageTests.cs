@@ -279,13 +279,7 @@ public sealed class SoxDamageTests : IClassFixture<KcsDamageSources>
                 break;
             case "dropout of 0.1 s":
                 // SoX cuts the capture 4 s in and puts 0.1 s of silence in place of the next 0.1 s of tape.
-                string before = sources.Temp.File($"{name}.before.wav");
-                string after = sources.Temp.File($"{name}.after.wav");
-                string gap = sources.Temp.File($"{name}.gap.wav");
-                OutsideTool.Sox(source, before, "trim", "0", "4");
-                OutsideTool.Sox(source, after, "trim", "4.1");
-                OutsideTool.Sox("-n", "-r", sampleRate.ToString(CultureInfo.InvariantCulture), "-b", "16", "-c", "1", gap, "trim", "0", "0.1");
-                OutsideTool.Sox(before, gap, after, output);
+                OutsideTool.SoxSilence(source, output, 4, 0.1);
                 break;
             default:
                 throw new ArgumentOutOfRangeException(nameof(damage), damage, "Unknown damage.");

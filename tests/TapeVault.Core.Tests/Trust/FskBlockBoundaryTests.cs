@@ -62,16 +62,9 @@ public sealed class FskBlockBoundaryTests(RoundTripFolder folder, ITestOutputHel
         double at = PayloadByteSeconds(31, 40);
         string clean = folder.NewCapture("boundary-clean");
         CaptureSynthesizer.WriteBlocks(clean, FskBlockFormat.Profile, Written, new ChannelDamage { Seed = 31, SnrDb = 40 });
-        string before = folder.NewCapture("before");
-        string after = folder.NewCapture("after");
-        string gap = folder.NewCapture("gap");
         string cut = folder.NewCapture("cut");
         string damaged = folder.NewCapture("damaged");
-        string invariant(double x) => x.ToString("R", CultureInfo.InvariantCulture);
-        OutsideTool.Sox(clean, before, "trim", "0", invariant(at));
-        OutsideTool.Sox(clean, after, "trim", invariant(at + 0.015));
-        OutsideTool.Sox("-n", "-r", "44100", "-b", "16", "-c", "1", gap, "trim", "0", "0.015");
-        OutsideTool.Sox(before, gap, after, cut);
+        OutsideTool.SoxSilence(clean, cut, at, 0.015);
         switch (effects)
         {
             case "lowpass 3000, gain -n -3, white noise at -30 dB":

@@ -102,14 +102,8 @@ public sealed class StreamEdgeConfidenceTests(OutsideTempFolder temp, ITestOutpu
     /// <summary>SoX cuts the capture at <paramref name="cut"/> seconds and puts <paramref name="seconds"/> of silence in place of what followed.</summary>
     private string WithSilence(string source, string name, double cut, double seconds)
     {
-        string before = temp.File($"{name}.before.wav");
-        string after = temp.File($"{name}.after.wav");
-        string gap = temp.File($"{name}.gap.wav");
         string output = temp.File($"{name}.wav");
-        OutsideTool.Sox(source, before, "trim", "0", cut.ToString(CultureInfo.InvariantCulture));
-        OutsideTool.Sox(source, after, "trim", (cut + seconds).ToString(CultureInfo.InvariantCulture));
-        OutsideTool.Sox("-n", "-r", "48000", "-b", "16", "-c", "1", gap, "trim", "0", seconds.ToString(CultureInfo.InvariantCulture));
-        OutsideTool.Sox(before, gap, after, output);
+        OutsideTool.SoxSilence(source, output, cut, seconds);
         return output;
     }
 }
