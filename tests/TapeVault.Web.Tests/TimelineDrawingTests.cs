@@ -2,6 +2,8 @@ using System.Net;
 using System.Net.Http.Json;
 using AngleSharp.Dom;
 using AngleSharp.Html.Parser;
+using TapeVault.Archive.Entities;
+using TapeVault.Archive.Timeline;
 using TapeVault.Web.Api;
 using TapeVault.Web.Tests.Support;
 using Xunit;
@@ -38,6 +40,15 @@ public sealed class TimelineDrawingTests
             previous = drawing;
             var (_, timing) = await PageAsync(curator, $"/items/{itemId}");
             Assert.Contains("drawn earlier", timing, StringComparison.Ordinal);
+
+            // The decode job drew it from the run in memory; the page, with nothing kept, draws it from the stored rows:
+            // the same file, byte for byte.
+            byte[] byDecode = await File.ReadAllBytesAsync(drawing);
+            Directory.Delete(kept, recursive: true);
+            var (_, redrawn) = await PageAsync(curator, $"/items/{itemId}");
+            Assert.Contains("read and drawn", redrawn, StringComparison.Ordinal);
+            Assert.Equal(Path.GetFileName(drawing), Path.GetFileName(Assert.Single(Directory.EnumerateFiles(kept, "*.json"))));
+            Assert.Equal(byDecode, await File.ReadAllBytesAsync(drawing));
         }
 
         var merge = await curator.PostAsync<JobView>($"/api/items/{itemId}/merge", new { }, HttpStatusCode.Accepted);
@@ -59,6 +70,22 @@ public sealed class TimelineDrawingTests
         Assert.Equal(Path.GetFileName(byMerge), Path.GetFileName(only));
         Assert.Equal(byJob, await File.ReadAllBytesAsync(only));
         Assert.Equal(MainContent(first), MainContent(fresh));
+    }
+
+    [Fact]
+    public void A_run_id_used_again_by_another_decode_of_the_same_capture_names_another_drawing()
+    {
+        // SQLite may give a rolled-back run's id to the next run; a drawing kept under the first must not be shown for
+        // a decode with another profile, other settings or another build.
+        static DecodeRun Run(string profile, string settings, string code) =>
+            new() { Id = 7, CaptureId = 3, ProfileId = profile, SettingsJson = settings, CodeVersion = code, Outcome = "done" };
+        string Key(DecodeRun run) => TimelineDrawings.KeyOf(5, [run], null, "/items/5/positions/", "TL-0001");
+
+        string first = Key(Run("orrin-80", "[{\"name\":\"a\"}]", "1"));
+        Assert.Equal(first, Key(Run("orrin-80", "[{\"name\":\"a\"}]", "1")));
+        Assert.NotEqual(first, Key(Run("kcs-300", "[{\"name\":\"a\"}]", "1")));
+        Assert.NotEqual(first, Key(Run("orrin-80", "[{\"name\":\"b\"}]", "1")));
+        Assert.NotEqual(first, Key(Run("orrin-80", "[{\"name\":\"a\"}]", "2")));
     }
 
     /// <summary>The page's main content without its per-request anti-forgery tokens.</summary>

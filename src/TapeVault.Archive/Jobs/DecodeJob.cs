@@ -182,45 +182,36 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
     /// </summary>
     private async Task<StagedTimeline?> StageTimelineAsync(Capture capture, DecodeRun run, CancellationToken cancellation)
     {
-        await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
-        bool mergeWaits = await db.Jobs.AsNoTracking()
-            .AnyAsync(j => j.ItemId == capture.ItemId && j.Kind == JobKinds.Merge && (j.State == JobState.Queued || j.State == JobState.Running), cancellation)
-            .ConfigureAwait(false);
-        string? accession = await db.Items.AsNoTracking().Where(i => i.Id == capture.ItemId).Select(i => i.AccessionNumber)
-            .FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
-        if (mergeWaits || accession is null)
-        {
-            return null;
-        }
-
-        var stored = await db.Runs.AsNoTracking().Include(r => r.Capture)
-            .Where(r => r.Capture!.ItemId == capture.ItemId).OrderByDescending(r => r.Id)
-            .ToListAsync(cancellation).ConfigureAwait(false);
-        var runs = MergeJob.RunsToMerge([run, .. stored]);
-        var captures = stored.Select(r => r.Capture!).Append(capture).DistinctBy(c => c.Id).ToDictionary(c => c.Id);
-        var storedIds = runs.Where(r => !ReferenceEquals(r, run)).Select(r => r.Id).ToList();
-        var readings = run.Candidates.Select(c => TimelineDrawings.ReadingOf(capture.Sha256, c)).ToList();
-        var rows = await db.Candidates.AsNoTracking().Where(c => storedIds.Contains(c.RunId))
-            .Select(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed })
-            .ToListAsync(cancellation).ConfigureAwait(false);
-        var shaOfRun = runs.ToDictionary(r => r.Id, r => captures[r.CaptureId].Sha256);
-        readings.AddRange(rows.Select(c => TimelineDrawings.ReadingOf(shaOfRun[c.RunId], c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed)));
-
-        string? newest = await db.Images.AsNoTracking().Where(i => i.ItemId == capture.ItemId).OrderByDescending(i => i.Version)
-            .Select(i => i.Sha256).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
-        TapeImage? image = null;
         try
         {
-            if (newest is not null && store.Exists(newest))
+            await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
+            bool mergeWaits = await db.Jobs.AsNoTracking()
+                .AnyAsync(j => j.ItemId == capture.ItemId && j.Kind == JobKinds.Merge && (j.State == JobState.Queued || j.State == JobState.Running), cancellation)
+                .ConfigureAwait(false);
+            string? accession = await db.Items.AsNoTracking().Where(i => i.Id == capture.ItemId).Select(i => i.AccessionNumber)
+                .FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+            if (mergeWaits || accession is null)
             {
-                image = await TimelineDrawings.ReadStoredImageAsync(store, newest, cancellation).ConfigureAwait(false);
+                return null;
             }
 
+            var stored = await db.Runs.AsNoTracking().Include(r => r.Capture)
+                .Where(r => r.Capture!.ItemId == capture.ItemId).OrderByDescending(r => r.Id)
+                .ToListAsync(cancellation).ConfigureAwait(false);
+            var runs = MergeJob.RunsToMerge([run, .. stored]);
+            var captures = stored.Select(r => r.Capture!).Append(capture).DistinctBy(c => c.Id).ToDictionary(c => c.Id);
+            var readings = run.Candidates.Select(c => TimelineDrawings.ReadingOf(capture.Sha256, c)).ToList();
+            var storedRuns = runs.Where(r => !ReferenceEquals(r, run)).ToDictionary(r => r.Id, r => captures[r.CaptureId].Sha256);
+            readings.AddRange(await TimelineDrawings.StoredReadingsAsync(db, storedRuns, cancellation).ConfigureAwait(false));
+
+            string? newest = await TimelineDrawings.NewestImageAsync(db, store, capture.ItemId, cancellation).ConfigureAwait(false);
+            TapeImage? image = newest is null ? null : await TimelineDrawings.ReadStoredImageAsync(store, newest, cancellation).ConfigureAwait(false);
             return await TimelineDrawings.StageForPageAsync(store, capture.ItemId, accession, runs, captures, readings, image, newest, cancellation).ConfigureAwait(false);
         }
-        catch (Exception e) when (e is IOException or ArchiveNotFoundException or ArchiveConflictException)
+        catch (Exception e) when (e is not OperationCanceledException)
         {
-            // The drawing is a cache: the page draws the timeline (and tells what is wrong with the image) when asked.
+            // The drawing is a cache: whatever stops it (a damaged image, unreadable settings, the database), the decode
+            // stands and the page draws the timeline (and tells what is wrong) when asked.
             return null;
         }
     }

@@ -131,8 +131,9 @@ public static class TimelineDrawings
     /// Draws the tape page's timeline as it will be once a job commits what it made, from what the job holds in memory
     /// (no database lock is needed: <paramref name="runs"/> are the runs the merge will take, the new one among them
     /// possibly not stored yet, whose id is read when the drawing is put in place), and stages it in the store's
-    /// temporary folder. Returns null when the store cannot take it: the drawing is a cache, and the job's result
-    /// stands whatever happens to it.
+    /// temporary folder. Returns null when it cannot be drawn (say, a run's settings no longer read) or the store cannot
+    /// take it: the drawing is a cache, and the job's result stands whatever happens to it; the page draws the
+    /// timeline, or tells what is wrong, when asked.
     /// </summary>
     public static async Task<StagedTimeline?> StageForPageAsync(
         ContentStore store, int itemId, string accessionNumber, IReadOnlyList<DecodeRun> runs, IReadOnlyDictionary<int, Capture> captures,
@@ -144,7 +145,16 @@ public static class TimelineDrawings
         ArgumentNullException.ThrowIfNull(readings);
         string title = PageTitle(accessionNumber);
         string links = PagePositionLinks(itemId);
-        var drawing = Draw(Build(runs, captures, readings, image), title, links);
+        TimelineDrawing drawing;
+        try
+        {
+            drawing = Draw(Build(runs, captures, readings, image), title, links);
+        }
+        catch (Exception e) when (e is not OperationCanceledException)
+        {
+            return null;
+        }
+
         string temporary = await StageAsync(store, drawing, cancellation).ConfigureAwait(false);
         return temporary.Length == 0 ? null : new StagedTimeline(store, itemId, [.. runs], image is null ? null : imageSha256, links, title, temporary);
     }
@@ -161,8 +171,9 @@ public static class TimelineDrawings
         new(captureSha256, setting, identity, Vocabulary.Of(status).Name, confidence, start, end, speed);
 
     /// <summary>
-    /// The name of a drawing: a SHA-256 of everything it depends on. A run is named by its id and its capture's, so a
-    /// run id used again after a rolled-back run (SQLite may reuse one) names the same capture's decode.
+    /// The name of a drawing: a SHA-256 of everything it depends on. A run is named by its id, its capture's, its
+    /// profile, settings and code version, so a run id used again after a rolled-back run (SQLite may reuse one) names
+    /// a drawing of that decode only if it is the same decode of the same capture, which reads the same blocks.
     /// </summary>
     public static string KeyOf(int itemId, IEnumerable<DecodeRun> runs, string? storedImageSha256, string? positionLinkPrefix, string title)
     {
@@ -172,7 +183,7 @@ public static class TimelineDrawings
             .Append(typeof(TimelineSvg).Assembly.ManifestModule.ModuleVersionId).Append('\n')
             .Append(typeof(TimelineDrawings).Assembly.ManifestModule.ModuleVersionId).Append('\n')
             .Append(itemId).Append('\n')
-            .AppendJoin(',', runs.Select(r => $"{r.Id}:{r.CaptureId}")).Append('\n')
+            .AppendJoin(',', runs.Select(r => $"{r.Id}:{r.CaptureId}:{r.ProfileId}:{r.CodeVersion}:{Convert.ToHexStringLower(SHA256.HashData(Encoding.UTF8.GetBytes(r.SettingsJson)))}")).Append('\n')
             .Append(storedImageSha256 ?? "-").Append('\n')
             .Append(positionLinkPrefix ?? "-").Append('\n')
             .Append(title);
@@ -221,7 +232,8 @@ public static class TimelineDrawings
         }
     }
 
-    private static async Task<string?> NewestImageAsync(ArchiveDbContext db, ContentStore store, int itemId, CancellationToken cancellation)
+    /// <summary>The SHA-256 of the tape's newest image, when the store has its file.</summary>
+    internal static async Task<string?> NewestImageAsync(ArchiveDbContext db, ContentStore store, int itemId, CancellationToken cancellation)
     {
         var newest = await db.Images.AsNoTracking().Where(i => i.ItemId == itemId).OrderByDescending(i => i.Version)
             .Select(i => i.Sha256).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
@@ -230,13 +242,18 @@ public static class TimelineDrawings
 
     private static async Task<TapeTimeline> TimelineOfRunsAsync(ArchiveDbContext db, List<DecodeRun> runs, TapeImage? image, CancellationToken cancellation)
     {
-        var runIds = runs.Select(r => r.Id).ToList();
+        var readings = await StoredReadingsAsync(db, runs.ToDictionary(r => r.Id, r => r.Capture!.Sha256), cancellation).ConfigureAwait(false);
+        return Build(runs, runs.ToDictionary(r => r.CaptureId, r => r.Capture!), readings, image);
+    }
+
+    /// <summary>The timeline's readings of stored runs, each run given with its capture's SHA-256.</summary>
+    internal static async Task<List<TimelineReading>> StoredReadingsAsync(ArchiveDbContext db, IReadOnlyDictionary<int, string> captureOfRun, CancellationToken cancellation)
+    {
+        var runIds = captureOfRun.Keys.ToList();
         var rows = await db.Candidates.AsNoTracking().Where(c => runIds.Contains(c.RunId))
             .Select(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed })
             .ToListAsync(cancellation).ConfigureAwait(false);
-        var captureOfRun = runs.ToDictionary(r => r.Id, r => r.Capture!.Sha256);
-        var readings = rows.Select(c => ReadingOf(captureOfRun[c.RunId], c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed)).ToList();
-        return Build(runs, runs.ToDictionary(r => r.CaptureId, r => r.Capture!), readings, image);
+        return [.. rows.Select(c => ReadingOf(captureOfRun[c.RunId], c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed))];
     }
 
     /// <summary>
