@@ -107,12 +107,7 @@ public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExpo
         }
         catch
         {
-            if (!known)
-            {
-                staged.Rollback();
-            }
-
-            db.ChangeTracker.Clear();
+            await StagedObjectUndo.WithdrawUnlessNamedAsync(db, transaction, staged).ConfigureAwait(false);
             throw;
         }
 

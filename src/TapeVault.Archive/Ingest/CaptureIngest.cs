@@ -100,12 +100,7 @@ public sealed class CaptureIngest(ArchiveDbContext db, ContentStore store, Archi
         }
         catch
         {
-            if (!objectKnown)
-            {
-                staged.Rollback();
-            }
-
-            db.ChangeTracker.Clear();
+            await StagedObjectUndo.WithdrawUnlessNamedAsync(db, transaction, staged).ConfigureAwait(false);
             throw;
         }
 

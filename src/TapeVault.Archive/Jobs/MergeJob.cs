@@ -177,11 +177,7 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
         }
         catch
         {
-            if (!known)
-            {
-                staged.Rollback();
-            }
-
+            await StagedObjectUndo.WithdrawUnlessNamedAsync(write, transaction, staged).ConfigureAwait(false);
             throw;
         }
     }
