@@ -30,7 +30,6 @@ public sealed class ToneDetectorTests
         // drawn so that mark ≈ space·balance to within 1e-3 … 1e-12, and near the midpoints between floats of
         // D ≈ 0.5 (the spacing of floats there is 2⁻²⁴ ≈ 6e-8).
         var random = new Random(40_002);
-        int cases = 0;
         for (int i = 0; i < 500_000; i++)
         {
             double balance = Math.Pow(16, (random.NextDouble() * 2) - 1);
@@ -43,9 +42,6 @@ public sealed class ToneDetectorTests
             double d = 0.5 + ((random.Next(-1000, 1000) + 0.5) * Math.Pow(2, -24)) + (random.NextDouble() - 0.5) * 1e-14;
             double markNearMidpoint = space * balance * (1 + d) / (1 - d);
             Assert.Equal(ToneDetector.Divided(markNearMidpoint, space, balance), ToneDetector.Balanced(markNearMidpoint, space, balance));
-            cases += 2;
         }
-
-        Assert.Equal(1_000_000, cases);
     }
 }
