@@ -286,8 +286,10 @@ public sealed class BlockScorer
                     logPrior = Math.Min(logPrior, Math.Log(odds / (1 + odds)));
                 }
 
-                // The chance of two or more wrong bytes, under each prior as they are mixed: the errors a weak check can cancel.
-                double multiple = (PlainPriorWeight * MultipleWrong(logPlain)) + ((1 - PlainPriorWeight) * MultipleWrong(logModel));
+                // The chance of two or more bytes wrong where the decisions show doubt: misread bits a weak check can
+                // cancel in pairs. Errors no margin shows (the plain prior's floor: a frame slipped, bytes wrong alike
+                // from there on) are no such pairs, and pass it with its false-match odds alone.
+                double multiple = (1 - PlainPriorWeight) * MultipleWrong(logModel);
                 posterior = PosteriorGivenMatch(logPrior, multiple, _checksum.FalseMatchProbability, _checksum.MultipleErrorMatchProbability);
             }
 
