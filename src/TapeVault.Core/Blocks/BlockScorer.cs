@@ -49,7 +49,8 @@ public sealed record BlockScore
 /// <para>
 /// Clean needs three things: the block began where the format marks a block start (lead-in or sync), its check value
 /// matches the bytes, and that match is evidence (the bytes are not all alike in a way that satisfies the check for
-/// free, and not so many bits were guessed that some guess was bound to satisfy it).
+/// free, not so many bits were guessed that some guess was bound to satisfy it, and, for a check weaker than 12 bits,
+/// the decisions make a wrong block that passes it rarer than <see cref="WeakCheckCleanLeast"/> allows).
 /// </para>
 /// <para>
 /// Each decision's odds of being wrong come from <see cref="DecisionLog"/> (a Gaussian tail over the block's spread).
@@ -58,7 +59,9 @@ public sealed record BlockScore
 /// prior that a block is right is therefore an even mixture of that model and a plain one that counts only what is
 /// known to be doubtful (guessed decisions, framing doubts and bytes wrong in ways no margin shows, at
 /// <see cref="UnseenByteError"/> each). A block is then right given a holding check by Bayes, a wrong block passing
-/// with the check's false-match odds; a strong check dominates whenever the reading is plausible.
+/// with the check's false-match odds (2^-w for w bits), and one wrong in two bytes or more with the odds that the check
+/// cancels such errors (a sum or an xor cancels the same bit misread in two bytes: one pair in eight); a strong check
+/// dominates whenever the reading is plausible, a weak one only where few bytes are in doubt.
 /// </para>
 /// </summary>
 public sealed class BlockScorer
@@ -85,6 +88,14 @@ public sealed class BlockScorer
     /// An 8-bit sum or xor passes a randomly damaged block with odds 2^-8 (common practice).
     /// </summary>
     public const double WeakCheckFalseMatch = 1.0 / 4096;
+
+    /// <summary>
+    /// The least chance, by Bayes over its decisions (<see cref="PosteriorGivenMatch(double, double, double, double)"/>),
+    /// that a block whose weak check holds is right, for it to be clean: a wrong block passing in fewer than one reading
+    /// of a thousand. Our choice: a tape read eight settings a pass, three passes, gives a few hundred readings of a block
+    /// format's tape, and a reading below it waits for a second capture that reads the same bytes.
+    /// </summary>
+    public const double WeakCheckCleanLeast = 0.999;
 
     /// <summary>
     /// The prior odds that a block read with one framing error (a start or stop bit where none should be) is right,
@@ -263,11 +274,33 @@ public sealed class BlockScorer
             }
 
             double logModelAll = Sum(logModel, 0, byteCount);
+            double logPlainAll = Sum(logPlain, 0, byteCount);
+            double posterior = 0;
+            if (match && (doubts & BlockDoubts.AllAlikeCheck) == 0)
+            {
+                double logPrior = LogMix(logModelAll, logPlainAll);
+                if (framingErrors > 0)
+                {
+                    // A framing error says a character was misread somewhere, whatever the margins say.
+                    double odds = FramingSlipPriorOdds / framingErrors;
+                    logPrior = Math.Min(logPrior, Math.Log(odds / (1 + odds)));
+                }
+
+                // The chance of two or more bytes wrong where the decisions show doubt: misread bits a weak check can
+                // cancel in pairs. Errors no margin shows (the plain prior's floor: a frame slipped, bytes wrong alike
+                // from there on) are no such pairs, and pass it with its false-match odds alone.
+                double multiple = (1 - PlainPriorWeight) * MultipleWrong(logModel);
+                posterior = PosteriorGivenMatch(logPrior, multiple, _checksum.FalseMatchProbability, _checksum.MultipleErrorMatchProbability);
+            }
+
             bool weak = _checksum.FalseMatchProbability > WeakCheckFalseMatch;
             bool lengthDoubtful = lengthUnproven && ambiguous > 0;
-            if (match && (framingErrors > 0 || (weak && (lengthDoubtful || guessedDecisions > 0 || logModelAll < Math.Log(0.5)))))
+            if (match && (framingErrors > 0 || (weak && (lengthDoubtful || guessedDecisions > 0 || logModelAll < Math.Log(0.5) || posterior < WeakCheckCleanLeast))))
             {
-                // A weak check proves a block only beside decisions that already make it more likely right than not.
+                // A weak check proves a block only beside decisions that already make it more likely right than not,
+                // and only where, by Bayes over those decisions, a wrong block passing is rarer than one reading in
+                // a thousand: two doubtful bytes whose errors cancel in a sum or an xor (the same bit misread in a byte and in
+                // the check) pass it as often as one pair in eight.
                 // Where only its end marker gave its length, every decision must vouch for itself: one ambiguous
                 // pulse may have ended the block early or late, and the check over the bytes before holds by chance.
                 // A framing error says a character was misread: a check of any strength that holds across it may be
@@ -280,15 +313,7 @@ public sealed class BlockScorer
 
             if (match && (doubts & BlockDoubts.AllAlikeCheck) == 0)
             {
-                double logPrior = LogMix(logModelAll, Sum(logPlain, 0, byteCount));
-                if (framingErrors > 0)
-                {
-                    // A framing error says a character was misread somewhere, whatever the margins say.
-                    double odds = FramingSlipPriorOdds / framingErrors;
-                    logPrior = Math.Min(logPrior, Math.Log(odds / (1 + odds)));
-                }
-
-                confidence = PosteriorGivenMatch(logPrior, _checksum.FalseMatchProbability);
+                confidence = posterior;
             }
             else if (match && NothingVouches(doubts))
             {
@@ -303,7 +328,7 @@ public sealed class BlockScorer
                 // says (guesses, framing, what no margin shows). Begun where the format marks a block, such a block is
                 // mostly a real one of all-alike bytes (an empty file, a run of zeros): on the trust benchmark's
                 // biphase tapes of seeds 100–143, 149 of 151 were right, where the decision model gave them near 0.
-                confidence = Math.Exp(Sum(logPlain, 0, byteCount));
+                confidence = Math.Exp(logPlainAll);
             }
             else
             {
@@ -325,6 +350,15 @@ public sealed class BlockScorer
         // that reads the same bytes proves it in the merge.
         double model = Math.Clamp(confidence, 0, 1);
         confidence = Math.Clamp(_map.Map(_profileId, _family, ConfidenceMap.GroupOf(status, doubts), model), 0, 1);
+
+        // A clean reading is no surer than Bayes over its own check and decisions says. The map's clean curve is one
+        // rate over clean readings of every check, most of them CRCs that a wrong block passes once in 2^16 or more; it
+        // lifted a reading whose 8-bit sum held over two doubtful bytes (the same bit misread in a byte and in the sum)
+        // from the model's 0.9989 to 0.9998, and a check of 8 bits cannot make us that sure of such a reading.
+        if (status == BlockStatus.Clean)
+        {
+            confidence = Math.Min(confidence, model);
+        }
 
         // A reading nothing vouches for stays at 0 whatever the map says: the map's lowest step is a rate over readings
         // that had some evidence, and a profile whose tuning tapes held no phantom would lift one to it.
@@ -389,10 +423,37 @@ public sealed class BlockScorer
         (doubts & (BlockDoubts.NoStartEvidence | BlockDoubts.AllAlikeCheck)) == (BlockDoubts.NoStartEvidence | BlockDoubts.AllAlikeCheck);
 
     /// <summary>P(right | checksum holds) by Bayes: a wrong block passes with the checksum's false-match odds.</summary>
-    public static double PosteriorGivenMatch(double logAllOk, double falseMatch)
+    public static double PosteriorGivenMatch(double logAllOk, double falseMatch) => PosteriorGivenMatch(logAllOk, 0, falseMatch, falseMatch);
+
+    /// <summary>
+    /// P(right | checksum holds) by Bayes, over a prior that the block is right (e^<paramref name="logAllOk"/>) and
+    /// that two or more of its bytes are wrong (<paramref name="multipleWrong"/>): a block wrong in one byte passes with
+    /// <paramref name="falseMatch"/> (2^-w for a check of w bits), one wrong in several with
+    /// <paramref name="multipleMatch"/> (the same for a CRC; one pair in eight for a sum or an xor, which cancel two
+    /// errors at one bit position). A check of any width thus makes us at most as sure as its odds and the decisions allow.
+    /// </summary>
+    public static double PosteriorGivenMatch(double logAllOk, double multipleWrong, double falseMatch, double multipleMatch)
     {
         double ok = Math.Exp(logAllOk);
-        return ok / (ok + ((1 - ok) * falseMatch));
+        double multiple = Math.Clamp(multipleWrong, 0, 1 - ok);
+        double wrongPasses = ((1 - ok) * falseMatch) + (multiple * Math.Max(0, multipleMatch - falseMatch));
+        return ok / (ok + wrongPasses);
+    }
+
+    /// <summary>The chance that two or more bytes are wrong, each byte right with odds e^<paramref name="logRight"/>[b] independently.</summary>
+    private static double MultipleWrong(double[] logRight)
+    {
+        // Over the bytes in turn: the chance that none, exactly one, and two or more of those so far are wrong.
+        double none = 1, one = 0, more = 0;
+        foreach (double log in logRight)
+        {
+            double right = Math.Exp(log);
+            more += one * (1 - right);
+            one = (one * right) + (none * (1 - right));
+            none *= right;
+        }
+
+        return more;
     }
 
     /// <summary>P(block right | checksum fails), <paramref name="logPayloadOk"/> over the bytes that must be right: the error must then lie in the rest (the check bytes).</summary>

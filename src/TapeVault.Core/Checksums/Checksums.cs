@@ -147,6 +147,9 @@ public sealed class SumChecksum : IBlockChecksum
     /// </summary>
     public double FalseMatchProbability => 1.0 / 256;
 
+    /// <inheritdoc/>
+    public double MultipleErrorMatchProbability => IBlockChecksum.PairCancellingOdds;
+
     public uint Compute(ReadOnlySpan<byte> data)
     {
         var p = Parameters;
@@ -202,6 +205,9 @@ public sealed class XorChecksum : IBlockChecksum
     public XorParameters Parameters { get; } = new();
 
     public int Width => 1;
+
+    /// <summary>Any two errors at one bit position cancel in an xor (see <see cref="IBlockChecksum.MultipleErrorMatchProbability"/>).</summary>
+    public double MultipleErrorMatchProbability => IBlockChecksum.PairCancellingOdds;
 
     public uint Compute(ReadOnlySpan<byte> data)
     {
