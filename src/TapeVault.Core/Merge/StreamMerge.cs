@@ -126,6 +126,8 @@ internal sealed class StreamMerge
     public List<ImageBlock> Resolve()
     {
         double character = CharacterSeconds(_passes);
+        var lines = ReadingLines(character);
+        double On(int p, int ci, double seconds) => (lines[p][ci].Scale * _timelines[p].Map(seconds)) + lines[p][ci].Offset;
         var bytes = new List<StreamByte>();
         var spans = new List<(double Start, double End, int Pass)>();
         int reader = 0;
@@ -161,12 +163,12 @@ internal sealed class StreamMerge
                     }
 
                     sinceBroken = c.ByteErrorOdds[i] >= 0.5f ? 0 : sinceBroken == int.MaxValue ? int.MaxValue : sinceBroken + 1;
-                    bytes.Add(new StreamByte(_timelines[p].Map(c.ByteSeconds[i]), c.Payload[i], error, p, r, ci, i, i == 0 || i == c.Payload.Length - 1));
+                    bytes.Add(new StreamByte(On(p, ci, c.ByteSeconds[i]), c.Payload[i], error, p, r, ci, i, i == 0 || i == c.Payload.Length - 1));
                 }
 
                 // A capture counts as reading the tape a little beyond its first and last characters: a byte just past
                 // the end of what the others read (the tone dying away at the end of a stretch) is a lone one.
-                spans.Add((_timelines[p].Map(c.ByteSeconds[0]) - (2 * character), _timelines[p].Map(c.ByteSeconds[^1]) + (2 * character), p));
+                spans.Add((On(p, ci, c.ByteSeconds[0]) - (2 * character), On(p, ci, c.ByteSeconds[^1]) + (2 * character), p));
             }
         }
 
@@ -228,6 +230,84 @@ internal sealed class StreamMerge
         }
 
         return Segments(kept, character);
+    }
+
+    /// <summary>
+    /// Where each reading lies on the common timeline, found from its own characters: a line from its pass's timeline
+    /// onto the others. One straight line per capture does not hold over a whole tape: the silence before a stretch of
+    /// tone, between files, differs from one recording of the same files to another, and a capture's speed wanders more
+    /// than one line follows over the seconds of a stream. A reading off by a character or more puts its bytes between
+    /// and onto the characters of the others, where they clash and one of each pair is dropped: the segments beside such
+    /// holes were then right about half the time (trust benchmark, kcs-300 and kcs-1200, tuning seeds 3000 onwards). So
+    /// each reading is fitted onto the others by its runs of four confident characters (<see cref="Anchors"/>), as a
+    /// pass is (<see cref="PassTimeline.Fit"/>): the passes are taken reference first, and a reading is fitted to the
+    /// readings of the passes placed before it where at least <see cref="MinimumReadingPairs"/> of its runs agree. A
+    /// reading with fewer keeps its pass's line.
+    /// </summary>
+    private (double Scale, double Offset)[][] ReadingLines(double character)
+    {
+        var lines = new (double Scale, double Offset)[_passes.Count][];
+        var features = new List<(long Feature, double Time)>[_passes.Count][];
+        for (int p = 0; p < _passes.Count; p++)
+        {
+            var candidates = _passes[p].Candidates;
+            lines[p] = new (double, double)[candidates.Count];
+            features[p] = new List<(long, double)>[candidates.Count];
+            for (int ci = 0; ci < candidates.Count; ci++)
+            {
+                lines[p][ci] = (1, 0);
+                features[p][ci] = ReadingAnchors(candidates[ci], _timelines[p], character);
+            }
+        }
+
+        // The reference pass (the line the others were fitted to, with no scale or offset of its own) stays as it is.
+        int reference = Math.Max(0, Array.FindIndex(_timelines, t => t.Scale == 1 && t.Offset == 0));
+        var order = Enumerable.Range(0, _passes.Count).OrderBy(p => p == reference ? 0 : 1).ThenByDescending(p => features[p].Sum(f => f.Count)).ToList();
+        var placed = new List<(long Feature, double Time)>(features[reference].SelectMany(f => f));
+        foreach (int p in order.Skip(1))
+        {
+            for (int ci = 0; ci < features[p].Length; ci++)
+            {
+                var (scale, offset, inliers) = PassTimeline.Fit(placed, features[p][ci], character, 0, minimumSpread: 40 * character);
+                if (inliers >= MinimumReadingPairs)
+                {
+                    lines[p][ci] = (scale, offset);
+                }
+            }
+
+            for (int ci = 0; ci < features[p].Length; ci++)
+            {
+                var (scale, offset) = lines[p][ci];
+                placed.AddRange(features[p][ci].Select(f => (f.Feature, (scale * f.Time) + offset)));
+            }
+        }
+
+        return lines;
+    }
+
+    /// <summary>The least number of a reading's runs of confident characters that must agree on where it lies.</summary>
+    private const int MinimumReadingPairs = 3;
+
+    /// <summary>Runs of four confident characters of one reading, each at the time of its first on its pass's line.</summary>
+    private static List<(long Feature, double Time)> ReadingAnchors(BlockCandidate c, PassTimeline timeline, double character)
+    {
+        var anchors = new List<(long, double)>();
+        for (int i = 0; i + 3 < c.Payload.Length; i++)
+        {
+            bool confident = true;
+            for (int k = 0; k < 4 && confident; k++)
+            {
+                confident = c.ByteErrorOdds[i + k] < 0.05 && (k == 0 || timeline.Map(c.ByteSeconds[i + k]) - timeline.Map(c.ByteSeconds[i + k - 1]) < 1.5 * character);
+            }
+
+            if (confident)
+            {
+                long feature = (uint)c.Payload[i] | ((uint)c.Payload[i + 1] << 8) | ((uint)c.Payload[i + 2] << 16) | ((uint)c.Payload[i + 3] << 24);
+                anchors.Add((feature, timeline.Map(c.ByteSeconds[i])));
+            }
+        }
+
+        return anchors;
     }
 
     /// <summary>
