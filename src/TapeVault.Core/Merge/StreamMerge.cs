@@ -17,7 +17,7 @@ namespace TapeVault.Core.Merge;
 /// (<see cref="MergeOptions.StreamByteErrorFloor"/>) and the first and last character of what a capture read (where its
 /// signal began or broke off: tone dying away, the edge of a dropout, a start with no lead-in) may be one it invented
 /// or framed off (<see cref="EdgeCharacterError"/>), and so may the character at each end of a segment, beside bytes
-/// no capture kept or at its stretch's end. Independent captures that read a character alike are all wrong
+/// no capture kept (<see cref="GapEndError"/>) or at its stretch's start or end (<see cref="StretchEndError"/>). Independent captures that read a character alike are all wrong
 /// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
 /// never lowers it, and a segment one capture alone carried claims what its ends allow.
 /// </para>
@@ -28,16 +28,29 @@ internal sealed class StreamMerge
     private const double LoneByteProbability = 0.9;
 
     /// <summary>
-    /// The chance that the character at either end of one capture's reading, or at a segment's end, is not the
-    /// written one. Estimated by maximum likelihood on the trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds
-    /// 1000–1051 (segments one capture alone carried: 0.15 at each end). What it stands for is mostly not the edge
-    /// characters' own reading: those carry their doubt in their error odds from the block stage
-    /// (<see cref="Bytes.CharacterEdge"/>, from their decisions and the baud), and where that doubt alone was used
-    /// here the merged segments beside bytes no capture kept were right about half the time at 0.99 and above (trust
-    /// benchmark, kcs-1200, tuning seeds 1400 onwards). It stands for the merge losing track of the captures' character
-    /// slots there, which no reading's decisions show; docs/performance.md has the figures.
+    /// The chance that the character at either end of one capture's reading, inside a segment that other captures read
+    /// on, is not the written one. Estimated by maximum likelihood on the trust benchmark's kcs-300 and kcs-1200 tapes of
+    /// tuning seeds 1000–1051. The edge characters' own reading carries its doubt in their error odds from the block
+    /// stage too (<see cref="Bytes.CharacterEdge"/>, from their decisions and the baud).
     /// </summary>
     public const double EdgeCharacterError = 0.15;
+
+    /// <summary>
+    /// The chance that the character at a segment's end beside bytes no capture kept is not the written one, whatever
+    /// its readers' decisions say: each reader's character there counts as no surer. Before each reading was placed by
+    /// its own characters (<see cref="ReadingLines"/>) the merge lost track of the character slots there and such
+    /// segments were right about half the time; since, estimated by maximum likelihood over the merged segments of the
+    /// trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds 3000–3039 (both profiles together; segments carried
+    /// by one capture, each end by what lies beside it): 0.10.
+    /// </summary>
+    public const double GapEndError = 0.10;
+
+    /// <summary>
+    /// The same at a segment's end where its stretch of tone began or ended (the first or last character of a file):
+    /// 0.06, from the same fit. The tone stopping, or a start with little lead-in, frames a false character less often
+    /// than the break beside a hole in what was kept.
+    /// </summary>
+    public const double StretchEndError = 0.06;
 
     private readonly IReadOnlyList<MergePass> _passes;
     private readonly PassTimeline[] _timelines;
@@ -68,8 +81,11 @@ internal sealed class StreamMerge
         /// <summary>The chance the slot holds the written character, its readers' edge doubt counted (<see cref="EdgeCharacterError"/>).</summary>
         public double Confidence { get; set; }
 
-        /// <summary>The same where the slot ends a segment (beside bytes no capture kept, or the end of its stretch): every reader's character there counts as one at an edge.</summary>
-        public double EndConfidence { get; set; }
+        /// <summary>The same where the slot ends a segment beside bytes no capture kept: every reader's character there is no surer than <see cref="GapEndError"/>.</summary>
+        public double GapEndConfidence { get; set; }
+
+        /// <summary>The same where the slot ends a segment at its stretch's start or end (<see cref="StretchEndError"/>).</summary>
+        public double StretchEndConfidence { get; set; }
 
         public bool Unanimous { get; set; }
     }
@@ -205,7 +221,8 @@ internal sealed class StreamMerge
             double floor = Math.Pow(_options.StreamByteErrorFloor, Math.Max(1, alike));
             slot.Probability = Math.Min(slot.Probability, 1 - floor);
             slot.Confidence = Math.Min(Vote(slot, edges: true, of: slot.Value).Probability, slot.Probability);
-            slot.EndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, everyReaderAtEdge: true).Probability, slot.Confidence);
+            slot.GapEndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, endError: GapEndError).Probability, slot.Probability);
+            slot.StretchEndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, endError: StretchEndError).Probability, slot.Probability);
 
             // A byte that other captures reading this stretch did not see must be a confident one.
             if (slot.Probability > (supporting < covering ? LoneByteProbability : 0.5))
@@ -332,10 +349,11 @@ internal sealed class StreamMerge
     /// <summary>
     /// P(value | readings) with a uniform prior over the 256 values: each capture's likelihood of a value is the mean
     /// over its settings of (1 − e) where the setting read that value and e / 255 where it read another. With
-    /// <paramref name="edges"/>, a reading's first and last character count as no surer than <see cref="EdgeCharacterError"/>.
+    /// <paramref name="edges"/>, a reading's first and last character count as no surer than <see cref="EdgeCharacterError"/>,
+    /// or, with <paramref name="endError"/>, every reading's character as no surer than that (a segment's end).
     /// Returns the likeliest value and its probability, or <paramref name="of"/>'s probability where given.
     /// </summary>
-    private static (byte Value, double Probability) Vote(Slot slot, bool edges, byte? of = null, bool everyReaderAtEdge = false)
+    private static (byte Value, double Probability) Vote(Slot slot, bool edges, byte? of = null, double? endError = null)
     {
         var values = slot.Bytes.Select(b => b.Value).Distinct().ToArray();
         var logLikelihood = new double[values.Length + 1];
@@ -347,7 +365,7 @@ internal sealed class StreamMerge
                 double sum = 0;
                 foreach (var r in readings)
                 {
-                    double error = edges && (r.Edge || everyReaderAtEdge) ? Math.Max(r.Error, EdgeCharacterError) : r.Error;
+                    double error = !edges ? r.Error : endError is { } end ? Math.Max(r.Error, end) : r.Edge ? Math.Max(r.Error, EdgeCharacterError) : r.Error;
                     sum += v < values.Length && r.Value == values[v] ? 1 - error : error / 255.0;
                 }
 
@@ -384,6 +402,7 @@ internal sealed class StreamMerge
         var segment = new List<Slot>();
         int segmentOffset = 0;
         bool split = false;
+        bool afterGap = false;
         var stretchBlocks = new List<ImageBlock>();
         for (int k = 0; k <= slots.Count; k++)
         {
@@ -391,7 +410,7 @@ internal sealed class StreamMerge
             int lost = gap > stretchGap ? -1 : Math.Max(0, (int)Math.Round(gap / character) - 1);
             if (k > 0 && lost != 0)
             {
-                stretchBlocks.Add(Segment(segment, stretch, segmentOffset));
+                stretchBlocks.Add(Segment(segment, stretch, segmentOffset, afterGap, beforeGap: lost > 0));
                 segment.Clear();
                 if (lost > 0)
                 {
@@ -423,6 +442,7 @@ internal sealed class StreamMerge
             if (segment.Count == 0)
             {
                 segmentOffset = offset;
+                afterGap = lost > 0;
             }
 
             segment.Add(slots[k]);
@@ -432,16 +452,19 @@ internal sealed class StreamMerge
         return blocks;
     }
 
-    private ImageBlock Segment(List<Slot> slots, int stretch, int offset)
+    private ImageBlock Segment(List<Slot> slots, int stretch, int offset, bool afterGap, bool beforeGap)
     {
         var payload = slots.Select(s => s.Value).ToImmutableArray();
         int agreeing = slots.Count == 0 ? 0 : slots.Min(s => s.Bytes.Where(b => b.Value == s.Value).Select(b => b.Pass).Distinct().Count());
-        // A segment's ends lie beside bytes no capture kept (or at its stretch's end): whatever each reader's own
-        // reading did there, the character at a segment's end is doubted as one at an edge.
+        // A segment's ends lie beside bytes no capture kept or at its stretch's start or end: whatever each reader's own
+        // reading did there, the character at a segment's end is doubted by what lies beside it.
         double logConfidence = 0;
         for (int i = 0; i < slots.Count; i++)
         {
-            double p = i == 0 || i == slots.Count - 1 ? slots[i].EndConfidence : slots[i].Confidence;
+            double first = afterGap ? slots[i].GapEndConfidence : slots[i].StretchEndConfidence;
+            double last = beforeGap ? slots[i].GapEndConfidence : slots[i].StretchEndConfidence;
+            double p = i == 0 && i == slots.Count - 1 ? Math.Min(first, last) : i == 0 ? first : i == slots.Count - 1 ? last : slots[i].Confidence;
+
             logConfidence += Math.Log(Math.Max(p, 1e-300));
         }
 
