@@ -171,6 +171,11 @@ public static class Trust
         {
             File.WriteAllLines(s_charsPath, s_chars);
         }
+
+        if (s_slotsPath is not null)
+        {
+            File.WriteAllLines(s_slotsPath, s_slots);
+        }
         Console.WriteLine($"This process's CPU time {(Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:0} s (SoX and minimodem run as processes of their own, not counted).");
         Console.WriteLine($"{stopwatch.Elapsed.TotalSeconds:0} s wall; wall time summed over workers: making captures {Stopwatch.GetElapsedTime(0, s_makeTicks).TotalSeconds:0} s, decoding {Stopwatch.GetElapsedTime(0, s_decodeTicks).TotalSeconds:0} s, merging {Stopwatch.GetElapsedTime(0, s_mergeTicks).TotalSeconds:0} s.");
         Console.WriteLine($"Load at end: {MachineLoad.Averages()}.");
@@ -336,6 +341,11 @@ public static class Trust
                 }
             }
 
+            if (s_slotsPath is not null && profile.Layout.IsStream)
+            {
+                DumpSlots(profile, seed, results, names, files);
+            }
+
             long m0 = Stopwatch.GetTimestamp();
             var image = TapeMerger.Merge(results, names, s_mergeOptions);
             Interlocked.Add(ref s_mergeTicks, Stopwatch.GetTimestamp() - m0);
@@ -374,6 +384,78 @@ public static class Trust
         {
             // A decoder or merge that throws is a finding of its own: reported, and the run goes on.
             return new TapeOutcome(subject, seed, units, written.Count, bySource, best, [], perCapture, null, examples, $"{profile.Id} seed {seed}: {e.GetType().Name}: {e.Message} {e.StackTrace?.Split('\n')[0]}");
+        }
+    }
+
+    /// <summary>
+    /// With TAPEVAULT_TRUST_SLOTS set to a file path, every byte of every stream reading is written there as a row: its
+    /// time on the merge's common timeline and, where its reading lines up with the written bytes, the written
+    /// character's index and the expected time of that index (a line fitted per file over every capture's right bytes),
+    /// so that a capture whose bytes sit whole characters off where they were written shows.
+    /// </summary>
+    private static readonly ConcurrentQueue<string> s_slots = new();
+    private static readonly string? s_slotsPath = Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_SLOTS");
+
+    private static void DumpSlots(FormatProfile profile, int seed, List<DecodeResult> results, List<string> names, List<TapeFile> files)
+    {
+        var passes = results.Select((r, i) => MergePass.From(r, names[i])).ToList();
+        var timelines = TapeMerger.Align(passes, profile);
+        var rows = new List<(int Pass, int Setting, int Candidate, int Index, int Length, double Time, byte Value, float Error, int File, int At, bool Right)>();
+        for (int p = 0; p < passes.Count; p++)
+        {
+            for (int ci = 0; ci < passes[p].Candidates.Count; ci++)
+            {
+                var c = passes[p].Candidates[ci];
+                if (c.Payload.IsEmpty)
+                {
+                    continue;
+                }
+
+                var (f, o, count) = BestAlignment(c.Payload.AsSpan(), files);
+                bool placed = count * 2 > c.Payload.Length;
+                for (int i = 0; i < c.Payload.Length; i++)
+                {
+                    int at = o + i;
+                    bool right = placed && at >= 0 && at < files[f].Content.Length && files[f].Content[at] == c.Payload[i];
+                    rows.Add((p, c.SettingIndex, ci, i, c.Payload.Length, timelines[p].Map(c.ByteSeconds[i]), c.Payload[i], c.ByteErrorOdds[i], placed ? f : -1, at, right));
+                }
+            }
+        }
+
+        // Per file: time = a + b * index, fitted on the right bytes (median of pairwise slopes over a sample, then median intercept).
+        foreach (var byFile in rows.Where(r => r.File >= 0).GroupBy(r => r.File))
+        {
+            var right = byFile.Where(r => r.Right).ToList();
+            if (right.Count < 4)
+            {
+                continue;
+            }
+
+            var slopes = new List<double>();
+            for (int k = 0; k < 400; k++)
+            {
+                var x = right[(k * 7919) % right.Count];
+                var y = right[(k * 104729 + 13) % right.Count];
+                if (Math.Abs(x.At - y.At) > 10)
+                {
+                    slopes.Add((x.Time - y.Time) / (x.At - y.At));
+                }
+            }
+
+            if (slopes.Count == 0)
+            {
+                continue;
+            }
+
+            slopes.Sort();
+            double b = slopes[slopes.Count / 2];
+            var intercepts = right.Select(r => r.Time - (b * r.At)).Order().ToList();
+            double a = intercepts[intercepts.Count / 2];
+            foreach (var r in byFile)
+            {
+                s_slots.Enqueue(string.Join('\t', profile.Id, seed, r.Pass, r.Setting, r.Candidate, r.Index, r.Length, r.File, r.At, r.Right ? 1 : 0,
+                    ((r.Time - (a + (b * r.At))) / b).ToString("0.###", CultureInfo.InvariantCulture), r.Error.ToString("0.#####", CultureInfo.InvariantCulture), r.Time.ToString("0.#####", CultureInfo.InvariantCulture)));
+            }
         }
     }
 

@@ -15,14 +15,16 @@ public readonly record struct PassTimeline(double Speed, double Scale, double Of
     /// Fits <paramref name="pass"/> to <paramref name="reference"/> from anchors: features (a block's identity, a run
     /// of confident bytes) at times in nominal tape seconds. Every pair of equal features votes for an offset; the
     /// offset most pairs agree on, within <paramref name="tolerance"/>, picks the pairs that then fit the line. With
-    /// no agreeing pairs, <paramref name="fallbackOffset"/> stands.
+    /// no agreeing pairs, <paramref name="fallbackOffset"/> stands. A slope is fitted only where the anchors span more
+    /// than <paramref name="minimumSpread"/> seconds.
     /// </summary>
     public static (double Scale, double Offset, int Inliers) Fit(
         IReadOnlyList<(long Feature, double Time)> reference,
         IReadOnlyList<(long Feature, double Time)> pass,
         double tolerance,
         double fallbackOffset,
-        int maximumRepeats = 8)
+        int maximumRepeats = 8,
+        double minimumSpread = 2)
     {
         ArgumentNullException.ThrowIfNull(reference);
         ArgumentNullException.ThrowIfNull(pass);
@@ -111,7 +113,7 @@ public readonly record struct PassTimeline(double Speed, double Scale, double Of
 
             // A slope needs anchors spread over some seconds of tape; it is bounded to the few per cent a speed
             // measurement can be off, so that a bad set of pairs cannot fold the timeline.
-            if (sw >= 3 && maxX - minX > 2 && variance > 0)
+            if (sw >= 3 && maxX - minX > minimumSpread && variance > 0)
             {
                 double slope = ((sxy / sw) - ((sx / sw) * (sy / sw))) / variance;
                 scale = Math.Clamp(slope, 0.97, 1.03);

@@ -17,7 +17,7 @@ namespace TapeVault.Core.Merge;
 /// (<see cref="MergeOptions.StreamByteErrorFloor"/>) and the first and last character of what a capture read (where its
 /// signal began or broke off: tone dying away, the edge of a dropout, a start with no lead-in) may be one it invented
 /// or framed off (<see cref="EdgeCharacterError"/>), and so may the character at each end of a segment, beside bytes
-/// no capture kept or at its stretch's end. Independent captures that read a character alike are all wrong
+/// no capture kept (<see cref="GapEndError"/>) or at its stretch's start or end (<see cref="StretchEndError"/>). Independent captures that read a character alike are all wrong
 /// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
 /// never lowers it, and a segment one capture alone carried claims what its ends allow.
 /// </para>
@@ -28,16 +28,29 @@ internal sealed class StreamMerge
     private const double LoneByteProbability = 0.9;
 
     /// <summary>
-    /// The chance that the character at either end of one capture's reading, or at a segment's end, is not the
-    /// written one. Estimated by maximum likelihood on the trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds
-    /// 1000–1051 (segments one capture alone carried: 0.15 at each end). What it stands for is mostly not the edge
-    /// characters' own reading: those carry their doubt in their error odds from the block stage
-    /// (<see cref="Bytes.CharacterEdge"/>, from their decisions and the baud), and where that doubt alone was used
-    /// here the merged segments beside bytes no capture kept were right about half the time at 0.99 and above (trust
-    /// benchmark, kcs-1200, tuning seeds 1400 onwards). It stands for the merge losing track of the captures' character
-    /// slots there, which no reading's decisions show; docs/performance.md has the figures.
+    /// The chance that the character at either end of one capture's reading, inside a segment that other captures read
+    /// on, is not the written one. Estimated by maximum likelihood on the trust benchmark's kcs-300 and kcs-1200 tapes of
+    /// tuning seeds 1000–1051. The edge characters' own reading carries its doubt in their error odds from the block
+    /// stage too (<see cref="Bytes.CharacterEdge"/>, from their decisions and the baud).
     /// </summary>
     public const double EdgeCharacterError = 0.15;
+
+    /// <summary>
+    /// The chance that the character at a segment's end beside bytes no capture kept is not the written one, whatever
+    /// its readers' decisions say: each reader's character there counts as no surer. Before each reading was placed by
+    /// its own characters (<see cref="ReadingLines"/>) the merge lost track of the character slots there and such
+    /// segments were right about half the time; since, estimated by maximum likelihood over the merged segments of the
+    /// trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds 3000–3039 (both profiles together; segments carried
+    /// by one capture, each end by what lies beside it): 0.10.
+    /// </summary>
+    public const double GapEndError = 0.10;
+
+    /// <summary>
+    /// The same at a segment's end where its stretch of tone began or ended (the first or last character of a file):
+    /// 0.06, from the same fit. The tone stopping, or a start with little lead-in, frames a false character less often
+    /// than the break beside a hole in what was kept.
+    /// </summary>
+    public const double StretchEndError = 0.06;
 
     private readonly IReadOnlyList<MergePass> _passes;
     private readonly PassTimeline[] _timelines;
@@ -68,8 +81,11 @@ internal sealed class StreamMerge
         /// <summary>The chance the slot holds the written character, its readers' edge doubt counted (<see cref="EdgeCharacterError"/>).</summary>
         public double Confidence { get; set; }
 
-        /// <summary>The same where the slot ends a segment (beside bytes no capture kept, or the end of its stretch): every reader's character there counts as one at an edge.</summary>
-        public double EndConfidence { get; set; }
+        /// <summary>The same where the slot ends a segment beside bytes no capture kept: every reader's character there is no surer than <see cref="GapEndError"/>.</summary>
+        public double GapEndConfidence { get; set; }
+
+        /// <summary>The same where the slot ends a segment at its stretch's start or end (<see cref="StretchEndError"/>).</summary>
+        public double StretchEndConfidence { get; set; }
 
         public bool Unanimous { get; set; }
     }
@@ -126,6 +142,8 @@ internal sealed class StreamMerge
     public List<ImageBlock> Resolve()
     {
         double character = CharacterSeconds(_passes);
+        var lines = ReadingLines(character);
+        double On(int p, int ci, double seconds) => (lines[p][ci].Scale * _timelines[p].Map(seconds)) + lines[p][ci].Offset;
         var bytes = new List<StreamByte>();
         var spans = new List<(double Start, double End, int Pass)>();
         int reader = 0;
@@ -161,12 +179,12 @@ internal sealed class StreamMerge
                     }
 
                     sinceBroken = c.ByteErrorOdds[i] >= 0.5f ? 0 : sinceBroken == int.MaxValue ? int.MaxValue : sinceBroken + 1;
-                    bytes.Add(new StreamByte(_timelines[p].Map(c.ByteSeconds[i]), c.Payload[i], error, p, r, ci, i, i == 0 || i == c.Payload.Length - 1));
+                    bytes.Add(new StreamByte(On(p, ci, c.ByteSeconds[i]), c.Payload[i], error, p, r, ci, i, i == 0 || i == c.Payload.Length - 1));
                 }
 
                 // A capture counts as reading the tape a little beyond its first and last characters: a byte just past
                 // the end of what the others read (the tone dying away at the end of a stretch) is a lone one.
-                spans.Add((_timelines[p].Map(c.ByteSeconds[0]) - (2 * character), _timelines[p].Map(c.ByteSeconds[^1]) + (2 * character), p));
+                spans.Add((On(p, ci, c.ByteSeconds[0]) - (2 * character), On(p, ci, c.ByteSeconds[^1]) + (2 * character), p));
             }
         }
 
@@ -203,7 +221,8 @@ internal sealed class StreamMerge
             double floor = Math.Pow(_options.StreamByteErrorFloor, Math.Max(1, alike));
             slot.Probability = Math.Min(slot.Probability, 1 - floor);
             slot.Confidence = Math.Min(Vote(slot, edges: true, of: slot.Value).Probability, slot.Probability);
-            slot.EndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, everyReaderAtEdge: true).Probability, slot.Confidence);
+            slot.GapEndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, endError: GapEndError).Probability, slot.Probability);
+            slot.StretchEndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, endError: StretchEndError).Probability, slot.Probability);
 
             // A byte that other captures reading this stretch did not see must be a confident one.
             if (slot.Probability > (supporting < covering ? LoneByteProbability : 0.5))
@@ -231,6 +250,84 @@ internal sealed class StreamMerge
     }
 
     /// <summary>
+    /// Where each reading lies on the common timeline, found from its own characters: a line from its pass's timeline
+    /// onto the others. One straight line per capture does not hold over a whole tape: the silence before a stretch of
+    /// tone, between files, differs from one recording of the same files to another, and a capture's speed wanders more
+    /// than one line follows over the seconds of a stream. A reading off by a character or more puts its bytes between
+    /// and onto the characters of the others, where they clash and one of each pair is dropped: the segments beside such
+    /// holes were then right about half the time (trust benchmark, kcs-300 and kcs-1200, tuning seeds 3000 onwards). So
+    /// each reading is fitted onto the others by its runs of four confident characters (<see cref="Anchors"/>), as a
+    /// pass is (<see cref="PassTimeline.Fit"/>): the passes are taken reference first, and a reading is fitted to the
+    /// readings of the passes placed before it where at least <see cref="MinimumReadingPairs"/> of its runs agree. A
+    /// reading with fewer keeps its pass's line.
+    /// </summary>
+    private (double Scale, double Offset)[][] ReadingLines(double character)
+    {
+        var lines = new (double Scale, double Offset)[_passes.Count][];
+        var features = new List<(long Feature, double Time)>[_passes.Count][];
+        for (int p = 0; p < _passes.Count; p++)
+        {
+            var candidates = _passes[p].Candidates;
+            lines[p] = new (double, double)[candidates.Count];
+            features[p] = new List<(long, double)>[candidates.Count];
+            for (int ci = 0; ci < candidates.Count; ci++)
+            {
+                lines[p][ci] = (1, 0);
+                features[p][ci] = ReadingAnchors(candidates[ci], _timelines[p], character);
+            }
+        }
+
+        // The reference pass (the line the others were fitted to, with no scale or offset of its own) stays as it is.
+        int reference = Math.Max(0, Array.FindIndex(_timelines, t => t.Scale == 1 && t.Offset == 0));
+        var order = Enumerable.Range(0, _passes.Count).OrderBy(p => p == reference ? 0 : 1).ThenByDescending(p => features[p].Sum(f => f.Count)).ToList();
+        var placed = new List<(long Feature, double Time)>(features[reference].SelectMany(f => f));
+        foreach (int p in order.Skip(1))
+        {
+            for (int ci = 0; ci < features[p].Length; ci++)
+            {
+                var (scale, offset, inliers) = PassTimeline.Fit(placed, features[p][ci], character, 0, minimumSpread: 40 * character);
+                if (inliers >= MinimumReadingPairs)
+                {
+                    lines[p][ci] = (scale, offset);
+                }
+            }
+
+            for (int ci = 0; ci < features[p].Length; ci++)
+            {
+                var (scale, offset) = lines[p][ci];
+                placed.AddRange(features[p][ci].Select(f => (f.Feature, (scale * f.Time) + offset)));
+            }
+        }
+
+        return lines;
+    }
+
+    /// <summary>The least number of a reading's runs of confident characters that must agree on where it lies.</summary>
+    private const int MinimumReadingPairs = 3;
+
+    /// <summary>Runs of four confident characters of one reading, each at the time of its first on its pass's line.</summary>
+    private static List<(long Feature, double Time)> ReadingAnchors(BlockCandidate c, PassTimeline timeline, double character)
+    {
+        var anchors = new List<(long, double)>();
+        for (int i = 0; i + 3 < c.Payload.Length; i++)
+        {
+            bool confident = true;
+            for (int k = 0; k < 4 && confident; k++)
+            {
+                confident = c.ByteErrorOdds[i + k] < 0.05 && (k == 0 || timeline.Map(c.ByteSeconds[i + k]) - timeline.Map(c.ByteSeconds[i + k - 1]) < 1.5 * character);
+            }
+
+            if (confident)
+            {
+                long feature = (uint)c.Payload[i] | ((uint)c.Payload[i + 1] << 8) | ((uint)c.Payload[i + 2] << 16) | ((uint)c.Payload[i + 3] << 24);
+                anchors.Add((feature, timeline.Map(c.ByteSeconds[i])));
+            }
+        }
+
+        return anchors;
+    }
+
+    /// <summary>
     /// The weight of evidence for a slot against a clashing one: the log odds, summed over the captures that read its
     /// value, that each read a true character there. Two captures that each may well have framed on a false start
     /// bit weigh less than one that read cleanly, where a count of captures would let them outvote it.
@@ -252,10 +349,11 @@ internal sealed class StreamMerge
     /// <summary>
     /// P(value | readings) with a uniform prior over the 256 values: each capture's likelihood of a value is the mean
     /// over its settings of (1 − e) where the setting read that value and e / 255 where it read another. With
-    /// <paramref name="edges"/>, a reading's first and last character count as no surer than <see cref="EdgeCharacterError"/>.
+    /// <paramref name="edges"/>, a reading's first and last character count as no surer than <see cref="EdgeCharacterError"/>,
+    /// or, with <paramref name="endError"/>, every reading's character as no surer than that (a segment's end).
     /// Returns the likeliest value and its probability, or <paramref name="of"/>'s probability where given.
     /// </summary>
-    private static (byte Value, double Probability) Vote(Slot slot, bool edges, byte? of = null, bool everyReaderAtEdge = false)
+    private static (byte Value, double Probability) Vote(Slot slot, bool edges, byte? of = null, double? endError = null)
     {
         var values = slot.Bytes.Select(b => b.Value).Distinct().ToArray();
         var logLikelihood = new double[values.Length + 1];
@@ -267,7 +365,7 @@ internal sealed class StreamMerge
                 double sum = 0;
                 foreach (var r in readings)
                 {
-                    double error = edges && (r.Edge || everyReaderAtEdge) ? Math.Max(r.Error, EdgeCharacterError) : r.Error;
+                    double error = !edges ? r.Error : endError is { } end ? Math.Max(r.Error, end) : r.Edge ? Math.Max(r.Error, EdgeCharacterError) : r.Error;
                     sum += v < values.Length && r.Value == values[v] ? 1 - error : error / 255.0;
                 }
 
@@ -304,6 +402,7 @@ internal sealed class StreamMerge
         var segment = new List<Slot>();
         int segmentOffset = 0;
         bool split = false;
+        bool afterGap = false;
         var stretchBlocks = new List<ImageBlock>();
         for (int k = 0; k <= slots.Count; k++)
         {
@@ -311,7 +410,7 @@ internal sealed class StreamMerge
             int lost = gap > stretchGap ? -1 : Math.Max(0, (int)Math.Round(gap / character) - 1);
             if (k > 0 && lost != 0)
             {
-                stretchBlocks.Add(Segment(segment, stretch, segmentOffset));
+                stretchBlocks.Add(Segment(segment, stretch, segmentOffset, afterGap, beforeGap: lost > 0));
                 segment.Clear();
                 if (lost > 0)
                 {
@@ -343,6 +442,7 @@ internal sealed class StreamMerge
             if (segment.Count == 0)
             {
                 segmentOffset = offset;
+                afterGap = lost > 0;
             }
 
             segment.Add(slots[k]);
@@ -352,16 +452,19 @@ internal sealed class StreamMerge
         return blocks;
     }
 
-    private ImageBlock Segment(List<Slot> slots, int stretch, int offset)
+    private ImageBlock Segment(List<Slot> slots, int stretch, int offset, bool afterGap, bool beforeGap)
     {
         var payload = slots.Select(s => s.Value).ToImmutableArray();
         int agreeing = slots.Count == 0 ? 0 : slots.Min(s => s.Bytes.Where(b => b.Value == s.Value).Select(b => b.Pass).Distinct().Count());
-        // A segment's ends lie beside bytes no capture kept (or at its stretch's end): whatever each reader's own
-        // reading did there, the character at a segment's end is doubted as one at an edge.
+        // A segment's ends lie beside bytes no capture kept or at its stretch's start or end: whatever each reader's own
+        // reading did there, the character at a segment's end is doubted by what lies beside it.
         double logConfidence = 0;
         for (int i = 0; i < slots.Count; i++)
         {
-            double p = i == 0 || i == slots.Count - 1 ? slots[i].EndConfidence : slots[i].Confidence;
+            double first = afterGap ? slots[i].GapEndConfidence : slots[i].StretchEndConfidence;
+            double last = beforeGap ? slots[i].GapEndConfidence : slots[i].StretchEndConfidence;
+            double p = i == 0 && i == slots.Count - 1 ? Math.Min(first, last) : i == 0 ? first : i == slots.Count - 1 ? last : slots[i].Confidence;
+
             logConfidence += Math.Log(Math.Max(p, 1e-300));
         }
 

@@ -99,7 +99,7 @@ public sealed class StreamMergeTests
         var three = Assert.Single(TapeMerger.Merge([Pass(0), Pass(1), Pass(2)], Kcs).Blocks);
 
         double floor = new MergeOptions().StreamByteErrorFloor;
-        double ends = Math.Pow(1 - StreamMerge.EdgeCharacterError, 2);
+        double ends = Math.Pow(1 - StreamMerge.StretchEndError, 2);
         Assert.InRange(one.Confidence, ends * Math.Pow(1 - floor, 198) * 0.99, ends);
 
         // Captures that read every character alike are all wrong only if each is, and then only if their wrong values
