@@ -52,14 +52,16 @@ public static class PositionReplay
             throw new ArgumentException("positions needs --candidates FOLDER (a trust run's TAPEVAULT_TRUST_CANDIDATES).");
         }
 
-        var rows = new List<(string Profile, int Written, int Positions, int Merged, bool AnyClean)>();
+        var rows = new List<(string Profile, int Written, int Before, int Positions, int Merged, bool AnyClean)>();
         var watch = System.Diagnostics.Stopwatch.StartNew();
         foreach (string file in Directory.GetFiles(folder, "*.json").Order(StringComparer.Ordinal))
         {
             var saved = JsonSerializer.Deserialize<Saved>(File.ReadAllText(file), s_json)!;
             var profile = ProfileCatalog.BuiltIn.Get(saved.Profile);
             var written = saved.Written.Select(Convert.FromHexString).ToList();
-            var placed = BlockPositioner.Place(saved.Candidates.Select(c => c with { Position = -1 }).ToList(), profile.Layout.Copies);
+            var unplaced = saved.Candidates.Select(c => c with { Position = -1 }).ToList();
+            int before = PositionerBefore.Place(unplaced, profile.Layout.Copies).Select(c => c.Position).Distinct().Count();
+            var placed = BlockPositioner.Place(unplaced, profile.Layout.Copies);
             int positions = placed.Select(c => c.Position).Distinct().Count();
 
             // Which written block a reading is, where its bytes are exactly one's (copies share their bytes but the sync).
@@ -80,14 +82,16 @@ public static class PositionReplay
             }
 
             bool anyClean = placed.Any(c => c.Status == BlockStatus.Clean);
-            rows.Add((saved.Profile, written.Count, positions, merged, anyClean));
+            rows.Add((saved.Profile, written.Count, before, positions, merged, anyClean));
             if (show && positions != written.Count)
             {
-                Console.WriteLine($"{Path.GetFileName(file)}: written {written.Count}, positions {positions}, two blocks in one {merged}, clean readings {placed.Count(c => c.Status == BlockStatus.Clean)}");
+                Console.WriteLine($"{Path.GetFileName(file)}: written {written.Count}, positions {positions} (before {before}), two blocks in one {merged}, clean readings {placed.Count(c => c.Status == BlockStatus.Clean)}");
             }
         }
 
-        Console.WriteLine($"{"profile",-18} {"captures",8} {"matching",8} {"fewer",6} {"more",6} {"extra",6} {"extra, no clean",15} {"blocks joined",13}");
+        Console.WriteLine("Per profile, the positioner before (at da9f600) and now on the same readings: captures, those whose positions are as many as the blocks");
+        Console.WriteLine("written, fewer, more, the extra positions (and of them, on captures with no clean reading), and positions holding clean readings of two written blocks.");
+        Console.WriteLine($"{"profile",-18} {"",6} {"captures",8} {"matching",8} {"fewer",6} {"more",6} {"extra",6} {"extra, no clean",15} {"blocks joined",13}");
         foreach (var group in rows.GroupBy(r => r.Profile).OrderBy(g => g.Key, StringComparer.Ordinal).Append(rows.GroupBy(_ => "all").FirstOrDefault()))
         {
             if (group is null)
@@ -95,9 +99,12 @@ public static class PositionReplay
                 continue;
             }
 
-            var d = group.Select(r => (Diff: r.Positions - r.Written, r.AnyClean, r.Merged)).ToList();
-            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"{group.Key,-18} {d.Count,8} {d.Count(x => x.Diff == 0),8} {d.Count(x => x.Diff < 0),6} {d.Count(x => x.Diff > 0),6} {d.Where(x => x.Diff > 0).Sum(x => x.Diff),6} {d.Where(x => x.Diff > 0 && !x.AnyClean).Sum(x => x.Diff),15} {d.Sum(x => x.Merged),13}"));
+            foreach (bool now in new[] { false, true })
+            {
+                var d = group.Select(r => (Diff: (now ? r.Positions : r.Before) - r.Written, r.AnyClean)).ToList();
+                Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                    $"{group.Key,-18} {(now ? "now" : "before"),6} {d.Count,8} {d.Count(x => x.Diff == 0),8} {d.Count(x => x.Diff < 0),6} {d.Count(x => x.Diff > 0),6} {d.Where(x => x.Diff > 0).Sum(x => x.Diff),6} {d.Where(x => x.Diff > 0 && !x.AnyClean).Sum(x => x.Diff),15} {(now ? group.Sum(r => r.Merged).ToString(CultureInfo.InvariantCulture) : "-"),13}"));
+            }
         }
 
         Console.WriteLine($"{watch.Elapsed.TotalSeconds:0.0} s");

@@ -155,25 +155,25 @@ public static class BlockPositioner
     /// position spans no more syncs than the format writes copies and holds no two clean blocks. Where the format writes
     /// each block k times, a run of places read at one sync each, none clean, between positions that hold all k copies
     /// of their block (or the capture's ends), whose length is a multiple of k, is k copies of each block in turn,
-    /// unless two of the places that would be joined hold headers read alike elsewhere, or by one setting, that name
+    /// unless two of the places that would be joined hold headers that two settings or more read alike and that name
     /// different blocks.
     /// </summary>
     private static void JoinPlacesOfOneBlock(List<(BlockCandidate Candidate, string Key)> keyed, int[] positionOf, bool[] stray, int stretches, int copies)
     {
-        if (stretches < 2)
+        if (keyed.Count < 2)
         {
             return;
         }
 
         // The sync each reading starts at (readings are in order of start), and each stretch's syncs and cleanliness.
+        int limit = Math.Max(1, copies);
         var syncOf = new int[keyed.Count];
-        var syncs = new List<int>[stretches];
-        var clean = new bool[stretches];
-        var parent = new int[stretches];
+        var syncList = new List<List<int>>();
+        var cleanList = new List<bool>();
         for (int s = 0; s < stretches; s++)
         {
-            syncs[s] = [];
-            parent[s] = s;
+            syncList.Add([]);
+            cleanList.Add(false);
         }
 
         int sync = -1;
@@ -188,18 +188,25 @@ public static class BlockPositioner
             }
 
             syncOf[i] = sync;
-            if (stray[i])
+            if (!stray[i])
             {
-                continue;
-            }
+                var own = syncList[positionOf[i]];
+                if (own.Count == 0 || own[^1] != sync)
+                {
+                    own.Add(sync);
+                }
 
-            var own = syncs[positionOf[i]];
-            if (own.Count == 0 || own[^1] != sync)
-            {
-                own.Add(sync);
+                cleanList[positionOf[i]] |= c.Status == BlockStatus.Clean;
             }
+        }
 
-            clean[positionOf[i]] |= c.Status == BlockStatus.Clean;
+        int count = syncList.Count;
+        var syncs = syncList.ToArray();
+        var clean = cleanList.ToArray();
+        var parent = new int[count];
+        for (int s = 0; s < count; s++)
+        {
+            parent[s] = s;
         }
 
         int Root(int s)
@@ -215,7 +222,6 @@ public static class BlockPositioner
 
         void Join(int a, int b)
         {
-            // The lower number is the stretch read first, so roots stay in tape order.
             int low = Math.Min(a, b), high = Math.Max(a, b);
             parent[high] = low;
             foreach (int k in syncs[high])
@@ -229,8 +235,6 @@ public static class BlockPositioner
             syncs[low].Sort();
             clean[low] |= clean[high];
         }
-
-        int limit = Math.Max(1, copies);
 
         // Stretches that share a sync.
         for (int i = 0, first = -1; i < keyed.Count; i++)
@@ -258,21 +262,19 @@ public static class BlockPositioner
             PairLoneCopies(keyed, positionOf, stray, syncOf, syncs, clean, Root, Join, copies);
         }
 
-        // Positions in tape order: each joined stretch takes the number of the first stretch read.
-        var number = new int[stretches];
+        // Positions in tape order of their first reading (readings are in order of start).
+        var number = new int[count];
         Array.Fill(number, -1);
         int next = 0;
-        for (int s = 0; s < stretches; s++)
-        {
-            if (Root(s) == s)
-            {
-                number[s] = next++;
-            }
-        }
-
         for (int i = 0; i < keyed.Count; i++)
         {
-            positionOf[i] = number[Root(positionOf[i])];
+            int r = Root(positionOf[i]);
+            if (number[r] < 0)
+            {
+                number[r] = next++;
+            }
+
+            positionOf[i] = number[r];
         }
     }
 
@@ -338,11 +340,23 @@ public static class BlockPositioner
             units.Add((kind, r));
         }
 
-        var support = new Dictionary<string, int>(StringComparer.Ordinal);
+        // How many settings read each identity: a setting misreads the copies of one block alike, so only other settings' agreement vouches for a header.
+        var settingsOf = new Dictionary<string, HashSet<int>>(StringComparer.Ordinal);
         foreach (var (candidate, _) in keyed)
         {
             string key = candidate.Identity.Key;
-            support[key] = support.GetValueOrDefault(key) + 1;
+            if (!settingsOf.TryGetValue(key, out var settings))
+            {
+                settingsOf[key] = settings = [];
+            }
+
+            settings.Add(candidate.SettingIndex);
+        }
+
+        var support = new Dictionary<string, int>(StringComparer.Ordinal);
+        foreach (var (key, settings) in settingsOf)
+        {
+            support[key] = settings.Count;
         }
 
         for (int u = 0; u < units.Count;)
@@ -377,8 +391,7 @@ public static class BlockPositioner
 
     /// <summary>
     /// Whether two places that would be taken for copies of one block hold readings that name different blocks and are
-    /// to be believed: headers read far enough to name a block, by one setting (which reads the same bytes alike) or
-    /// each read alike by another reading.
+    /// to be believed: headers read far enough to name a block, each read alike by two settings or more.
     /// </summary>
     private static bool AnyNamesTwoBlocks(
         List<(BlockCandidate Candidate, string Key)> keyed, Dictionary<int, List<int>> readingsOf, List<(int Kind, int Root)> units, int from, int to, int copies,
@@ -396,8 +409,7 @@ public static class BlockPositioner
                         {
                             var x = keyed[i].Candidate;
                             var y = keyed[j].Candidate;
-                            if (NamesItself(x) && NamesItself(y) && !x.Payload.IsEmpty && !y.Payload.IsEmpty && x.Identity.Key != y.Identity.Key
-                                && (x.SettingIndex == y.SettingIndex || (support[x.Identity.Key] > 1 && support[y.Identity.Key] > 1)))
+                            if (NamesItself(x) && NamesItself(y) && x.Identity.Key != y.Identity.Key && support[x.Identity.Key] > 1 && support[y.Identity.Key] > 1)
                             {
                                 return true;
                             }
