@@ -50,6 +50,12 @@ if (section == "trust")
     return Trust.Run(work, args[1..]);
 }
 
+if (section == "positions")
+{
+    // positions --candidates FOLDER: places again the readings a trust run saved (TAPEVAULT_TRUST_CANDIDATES) and counts positions per capture.
+    return PositionReplay.Run(args[1..]);
+}
+
 if (section == "scale")
 {
     // scale [--tapes N] [--captures N] [--capture-kb N] [--blocks N] [--requests N] [--rebuild]: see Scale and docs/performance.md.

@@ -287,6 +287,7 @@ public static class Trust
 
                 results.Add(result);
                 names.Add(Path.GetFileName(path));
+                PositionReplay.Save(profile, seed, p, source, written, result.Candidates);
                 if (!bySource.TryGetValue(source, out var readings))
                 {
                     bySource[source] = readings = [];

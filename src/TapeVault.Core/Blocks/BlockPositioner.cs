@@ -133,6 +133,8 @@ public static class BlockPositioner
             return false;
         }
 
+        JoinPlacesOfOneBlock(keyed, positionOf, stray, stretchEnd.Count, copies);
+
         var placed = new List<BlockCandidate>(keyed.Count);
         for (int i = 0; i < keyed.Count; i++)
         {
@@ -141,6 +143,283 @@ public static class BlockPositioner
 
         placed.Sort((a, b) => a.Position != b.Position ? a.Position.CompareTo(b.Position) : a.StartSeconds.CompareTo(b.StartSeconds));
         return placed;
+    }
+
+    /// <summary>Starts closer than this are one sync, read by several settings (blocks and copies are whole lead-ins apart).</summary>
+    private const double SyncSeconds = 0.03;
+
+    /// <summary>
+    /// Joins stretches that are one block on the tape, where identities could not say so (garbled headers, no clean
+    /// reading to vouch for the place). A sync is a place where readings start: readings of different settings that
+    /// start at one sync are one copy of one block, so stretches that share a sync are one position, as long as that
+    /// position spans no more syncs than the format writes copies and holds no two clean blocks. Where the format writes
+    /// each block k times, a run of places read at one sync each, none clean, between positions that hold all k copies
+    /// of their block (or the capture's ends), whose length is a multiple of k, is k copies of each block in turn,
+    /// unless two of the places that would be joined hold headers that two settings or more read alike and that name
+    /// different blocks.
+    /// </summary>
+    private static void JoinPlacesOfOneBlock(List<(BlockCandidate Candidate, string Key)> keyed, int[] positionOf, bool[] stray, int stretches, int copies)
+    {
+        if (keyed.Count < 2)
+        {
+            return;
+        }
+
+        // The sync each reading starts at (readings are in order of start), and each stretch's syncs and cleanliness.
+        int limit = Math.Max(1, copies);
+        var syncOf = new int[keyed.Count];
+        var syncList = new List<List<int>>();
+        var cleanList = new List<bool>();
+        for (int s = 0; s < stretches; s++)
+        {
+            syncList.Add([]);
+            cleanList.Add(false);
+        }
+
+        int sync = -1;
+        double syncStart = double.NegativeInfinity;
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var c = keyed[i].Candidate;
+            if (c.StartSeconds - syncStart > SyncSeconds)
+            {
+                sync++;
+                syncStart = c.StartSeconds;
+            }
+
+            syncOf[i] = sync;
+            if (!stray[i])
+            {
+                var own = syncList[positionOf[i]];
+                if (own.Count == 0 || own[^1] != sync)
+                {
+                    own.Add(sync);
+                }
+
+                cleanList[positionOf[i]] |= c.Status == BlockStatus.Clean;
+            }
+        }
+
+        int count = syncList.Count;
+        var syncs = syncList.ToArray();
+        var clean = cleanList.ToArray();
+        var parent = new int[count];
+        for (int s = 0; s < count; s++)
+        {
+            parent[s] = s;
+        }
+
+        int Root(int s)
+        {
+            while (parent[s] != s)
+            {
+                parent[s] = parent[parent[s]];
+                s = parent[s];
+            }
+
+            return s;
+        }
+
+        void Join(int a, int b)
+        {
+            int low = Math.Min(a, b), high = Math.Max(a, b);
+            parent[high] = low;
+            foreach (int k in syncs[high])
+            {
+                if (!syncs[low].Contains(k))
+                {
+                    syncs[low].Add(k);
+                }
+            }
+
+            syncs[low].Sort();
+            clean[low] |= clean[high];
+        }
+
+        // Stretches that share a sync.
+        for (int i = 0, first = -1; i < keyed.Count; i++)
+        {
+            if (stray[i])
+            {
+                continue;
+            }
+
+            if (first < 0 || syncOf[first] != syncOf[i])
+            {
+                first = i;
+                continue;
+            }
+
+            int a = Root(positionOf[first]), b = Root(positionOf[i]);
+            if (a != b && !(clean[a] && clean[b]) && syncs[a].Union(syncs[b]).Count() <= limit)
+            {
+                Join(a, b);
+            }
+        }
+
+        if (copies > 1)
+        {
+            PairLoneCopies(keyed, positionOf, stray, syncOf, syncs, clean, Root, Join, copies);
+        }
+
+        // Positions in tape order of their first reading (readings are in order of start).
+        var number = new int[count];
+        Array.Fill(number, -1);
+        int next = 0;
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            int r = Root(positionOf[i]);
+            if (number[r] < 0)
+            {
+                number[r] = next++;
+            }
+
+            positionOf[i] = number[r];
+        }
+    }
+
+    /// <summary>
+    /// The second half of <see cref="JoinPlacesOfOneBlock"/>: a run of places read at one sync each, none clean, between
+    /// positions that hold all copies of their block (or the capture's ends), taken k at a time as the copies of one
+    /// block when the run's length is a multiple of k.
+    /// </summary>
+    private static void PairLoneCopies(
+        List<(BlockCandidate Candidate, string Key)> keyed, int[] positionOf, bool[] stray, int[] syncOf, List<int>[] syncs, bool[] clean,
+        Func<int, int> root, Action<int, int> join, int copies)
+    {
+        // Per sync in order: the position that alone reads there (-1 where several do or none).
+        int syncCount = keyed.Count == 0 ? 0 : syncOf[^1] + 1;
+        var owner = new int[syncCount];
+        Array.Fill(owner, -2);
+        var readingsOf = new Dictionary<int, List<int>>();
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            if (stray[i])
+            {
+                continue;
+            }
+
+            int r = root(positionOf[i]);
+            int k = syncOf[i];
+            owner[k] = owner[k] == -2 || owner[k] == r ? r : -1;
+            if (!readingsOf.TryGetValue(r, out var list))
+            {
+                readingsOf[r] = list = [];
+            }
+
+            list.Add(i);
+        }
+
+        // Units along the tape: a lone place (one sync, not clean), a whole block (all its copies at consecutive
+        // syncs), or anything else, which bounds no run.
+        const int Lone = 0, Whole = 1, Other = 2;
+        var units = new List<(int Kind, int Root)>();
+        for (int k = 0; k < syncCount; k++)
+        {
+            int r = owner[k];
+            if (r == -2)
+            {
+                continue;
+            }
+
+            if (r < 0)
+            {
+                units.Add((Other, -1));
+                continue;
+            }
+
+            if (units.Count > 0 && units[^1].Root == r)
+            {
+                continue;
+            }
+
+            var own = syncs[r];
+            int kind = own.Count == 1 && !clean[r] ? Lone
+                : own.Count == copies && own[^1] - own[0] == copies - 1 ? Whole
+                : Other;
+            units.Add((kind, r));
+        }
+
+        // How many settings read each identity: a setting misreads the copies of one block alike, so only other settings' agreement vouches for a header.
+        var settingsOf = new Dictionary<string, HashSet<int>>(StringComparer.Ordinal);
+        foreach (var (candidate, _) in keyed)
+        {
+            string key = candidate.Identity.Key;
+            if (!settingsOf.TryGetValue(key, out var settings))
+            {
+                settingsOf[key] = settings = [];
+            }
+
+            settings.Add(candidate.SettingIndex);
+        }
+
+        var support = new Dictionary<string, int>(StringComparer.Ordinal);
+        foreach (var (key, settings) in settingsOf)
+        {
+            support[key] = settings.Count;
+        }
+
+        for (int u = 0; u < units.Count;)
+        {
+            if (units[u].Kind != Lone)
+            {
+                u++;
+                continue;
+            }
+
+            int end = u;
+            while (end < units.Count && units[end].Kind == Lone)
+            {
+                end++;
+            }
+
+            bool bounded = (u == 0 || units[u - 1].Kind == Whole) && (end == units.Count || units[end].Kind == Whole);
+            if (bounded && (end - u) % copies == 0 && !AnyNamesTwoBlocks(keyed, readingsOf, units, u, end, copies, support))
+            {
+                for (int first = u; first < end; first += copies)
+                {
+                    for (int other = first + 1; other < first + copies; other++)
+                    {
+                        join(root(units[first].Root), root(units[other].Root));
+                    }
+                }
+            }
+
+            u = end;
+        }
+    }
+
+    /// <summary>
+    /// Whether two places that would be taken for copies of one block hold readings that name different blocks and are
+    /// to be believed: headers read far enough to name a block, each read alike by two settings or more.
+    /// </summary>
+    private static bool AnyNamesTwoBlocks(
+        List<(BlockCandidate Candidate, string Key)> keyed, Dictionary<int, List<int>> readingsOf, List<(int Kind, int Root)> units, int from, int to, int copies,
+        Dictionary<string, int> support)
+    {
+        for (int first = from; first < to; first += copies)
+        {
+            for (int a = first; a < first + copies; a++)
+            {
+                for (int b = a + 1; b < first + copies; b++)
+                {
+                    foreach (int i in readingsOf[units[a].Root])
+                    {
+                        foreach (int j in readingsOf[units[b].Root])
+                        {
+                            var x = keyed[i].Candidate;
+                            var y = keyed[j].Candidate;
+                            if (NamesItself(x) && NamesItself(y) && x.Identity.Key != y.Identity.Key && support[x.Identity.Key] > 1 && support[y.Identity.Key] > 1)
+                            {
+                                return true;
+                            }
+                        }
+                    }
+                }
+            }
+        }
+
+        return false;
     }
 
     /// <summary>
@@ -160,10 +439,21 @@ public static class BlockPositioner
     {
         var stray = new bool[keyed.Count];
         var vouched = new bool[keyed.Count];
+        var starts = new double[keyed.Count];
+        var byEnd = new int[keyed.Count];
         for (int i = 0; i < keyed.Count; i++)
         {
             vouched[i] = keyed[i].Key.Length > 0;
+            starts[i] = keyed[i].Candidate.StartSeconds;
+            byEnd[i] = i;
         }
+
+        // By end, and among equal ends the later reading first, so that the last of a run of equal ends is the first read.
+        Array.Sort(byEnd, (a, b) =>
+        {
+            int order = keyed[a].Candidate.EndSeconds.CompareTo(keyed[b].Candidate.EndSeconds);
+            return order != 0 ? order : b.CompareTo(a);
+        });
 
         var support = new Dictionary<string, int>(StringComparer.Ordinal);
         foreach (var (candidate, key) in keyed)
@@ -248,7 +538,7 @@ public static class BlockPositioner
             if (placeSupport[p] <= 1)
             {
                 key = overlapped ?? key;
-                if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, places[p]) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, i, placeOf)))
+                if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, starts, byEnd, places[p]) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, i, placeOf)))
                 {
                     foreach (int i in places[p])
                     {
@@ -276,28 +566,55 @@ public static class BlockPositioner
     /// Whether the place lies in the gap between two readings that clean readings vouch for (keyed before any place
     /// was): the last reading to end before it and the first to start after it. Where its neighbours are not vouched
     /// for (a capture no setting suits), the place may be a block that only one setting read, however garbled.
+    /// Both neighbours are found by binary search: <paramref name="starts"/> holds the readings' starts in their order
+    /// (ascending), <paramref name="byEnd"/> the readings' indices by end, and among equal ends the first reading last.
     /// </summary>
-    private static bool BetweenVouchedBlocks(List<(BlockCandidate Candidate, string Key)> keyed, bool[] vouched, List<int> place)
+    private static bool BetweenVouchedBlocks(
+        List<(BlockCandidate Candidate, string Key)> keyed, bool[] vouched, double[] starts, int[] byEnd, List<int> place)
     {
         double start = keyed[place[0]].Candidate.StartSeconds;
-        double end = place.Max(i => keyed[i].Candidate.EndSeconds);
-        int before = -1, after = -1;
-        for (int i = 0; i < keyed.Count; i++)
+        double end = double.NegativeInfinity;
+        foreach (int i in place)
         {
-            var c = keyed[i].Candidate;
-            if (c.EndSeconds <= start && (before < 0 || c.EndSeconds > keyed[before].Candidate.EndSeconds))
-            {
-                before = i;
-            }
+            end = Math.Max(end, keyed[i].Candidate.EndSeconds);
+        }
 
-            if (c.StartSeconds >= end)
+        // The first reading to start at or after the place's end.
+        int after = LowerBound(starts.Length, i => starts[i] >= end);
+        if (after >= starts.Length)
+        {
+            return false;
+        }
+
+        // The reading that ends last at or before the place's start (the first such in order of start).
+        int firstEndingLater = LowerBound(byEnd.Length, i => keyed[byEnd[i]].Candidate.EndSeconds > start);
+        if (firstEndingLater == 0)
+        {
+            return false;
+        }
+
+        int before = byEnd[firstEndingLater - 1];
+        return vouched[before] && vouched[after];
+    }
+
+    /// <summary>The first index in [0, count) at which <paramref name="atOrPast"/> holds, for a predicate false and then true.</summary>
+    private static int LowerBound(int count, Func<int, bool> atOrPast)
+    {
+        int lo = 0, hi = count;
+        while (lo < hi)
+        {
+            int mid = lo + ((hi - lo) / 2);
+            if (atOrPast(mid))
             {
-                after = i;
-                break;
+                hi = mid;
+            }
+            else
+            {
+                lo = mid + 1;
             }
         }
 
-        return before >= 0 && after >= 0 && vouched[before] && vouched[after];
+        return lo;
     }
 
     /// <summary>

@@ -1,0 +1,571 @@
+using TapeVault.Core.Blocks;
+
+namespace TapeVault.Bench;
+
+/// <summary>
+/// The positioner as it was before places without a clean reading were grouped by sync and copies (commit da9f600),
+/// kept here only so that <see cref="PositionReplay"/> counts positions before and after on the same readings.
+/// Gives every candidate of one capture its position on the tape. Settings read the same capture, so their blocks
+/// line up in time: a candidate whose header may be damaged takes the identity of a clean candidate that overlaps
+/// it, and candidates with one identity share a position. Copies of a block written k times share it too.
+/// Where a reading starts is where its sync was read; where it ends is proven only by a checksum that holds (a
+/// misread length runs on over the blocks after it). So a failed reading belongs to the block whose sync it starts at
+/// before the one it overlaps most, and claims other readings only at its own sync.
+/// </summary>
+internal static class PositionerBefore
+{
+    /// <param name="copies">How many times the format writes each block in a row (the layout's copies).</param>
+    public static List<BlockCandidate> Place(IReadOnlyList<BlockCandidate> candidates, int copies = 1)
+    {
+        ArgumentNullException.ThrowIfNull(candidates);
+        var trusted = new List<BlockCandidate>();
+        foreach (var c in candidates)
+        {
+            if (c.Status == BlockStatus.Clean)
+            {
+                trusted.Add(c);
+            }
+        }
+
+        trusted.Sort((a, b) => a.StartSeconds.CompareTo(b.StartSeconds));
+
+        // Streams have no identity but their order: a stream block's key is the order of its start among all streams
+        // found, merged across settings by overlap in time.
+        var keyed = new List<(BlockCandidate Candidate, string Key)>(candidates.Count);
+        var streamAnchors = new List<(double Start, double End, string Key)>();
+        foreach (var c in candidates.OrderBy(c => c.StartSeconds))
+        {
+            string key;
+            // A block cut short inside its header still belongs to a format with headers, even if no field was read whole.
+            bool hasHeader = !c.Header.IsEmpty || c.Identity.FileName is not null || c.Identity.FileId is not null || c.Identity.BlockNumber is not null;
+            if (!hasHeader)
+            {
+                int anchor = streamAnchors.FindLastIndex(a => Overlaps(a.Start, a.End, c.StartSeconds, c.EndSeconds));
+                if (anchor < 0)
+                {
+                    streamAnchors.Add((c.StartSeconds, c.EndSeconds, $"#{streamAnchors.Count}"));
+                    anchor = streamAnchors.Count - 1;
+                }
+
+                key = streamAnchors[anchor].Key;
+            }
+            else if (c.Status == BlockStatus.Clean)
+            {
+                key = c.Identity.Key;
+            }
+            else
+            {
+                key = FindOverlapping(trusted, c)?.Identity.Key
+                    ?? (copies > 1 ? FindNeighbouringCopy(trusted, c)?.Identity.Key : null)
+                    ?? (c.Truncated && c.Payload.IsEmpty && !NamesItself(c) ? FindNearest(trusted, c)?.Identity.Key : null)
+                    ?? string.Empty;
+            }
+
+            keyed.Add((c, key));
+        }
+
+        var stray = KeyUnanchoredReadings(keyed);
+
+        // A position is one identity over one stretch of tape: copies and other settings' readings overlap or follow
+        // closely; the same identity much later (a block number reused by the next file) is a new position. Copies
+        // are written back to back, so the same identity after a block read in between is a new position too, however
+        // close: two short files whose headers carry only a block number both start at block 0.
+        // Stretches are numbered in order of their first reading, which makes them the positions in tape order.
+        var stretchEnd = new List<double>();
+        var stretchesByKey = new Dictionary<string, List<int>>(StringComparer.Ordinal);
+        var readings = new List<(double Start, double End, int Stretch)>();
+        var positionOf = new int[keyed.Count];
+        var wholeBySetting = new Dictionary<(int Stretch, int Setting), int>();
+        int lastStretch = -1;
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var (candidate, key) = keyed[i];
+            if (stray[i] && lastStretch >= 0)
+            {
+                // No block: it joins the stretch it follows, and neither ends that stretch nor stands between its copies.
+                positionOf[i] = lastStretch;
+                continue;
+            }
+
+            double reach = Math.Max(1.0, 1.5 * (candidate.EndSeconds - candidate.StartSeconds));
+            if (!stretchesByKey.TryGetValue(key, out var ofKey))
+            {
+                ofKey = [];
+                stretchesByKey.Add(key, ofKey);
+            }
+
+            // One setting reads each copy of a block whole once: another whole reading of the same identity by the
+            // same setting, after as many as the format writes, is another block whose header was misread alike.
+            int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnd[ofKey[^1]] + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds)
+                && (candidate.Truncated || wholeBySetting.GetValueOrDefault((ofKey[^1], candidate.SettingIndex)) < Math.Max(1, copies))
+                ? ofKey[^1]
+                : -1;
+            if (found < 0)
+            {
+                stretchEnd.Add(candidate.EndSeconds);
+                found = stretchEnd.Count - 1;
+                ofKey.Add(found);
+            }
+            else
+            {
+                stretchEnd[found] = Math.Max(stretchEnd[found], candidate.EndSeconds);
+            }
+
+            if (!candidate.Truncated)
+            {
+                wholeBySetting[(found, candidate.SettingIndex)] = wholeBySetting.GetValueOrDefault((found, candidate.SettingIndex)) + 1;
+            }
+
+            // Candidates arrive in order of start (keyed was built so), so these starts ascend.
+            readings.Add((candidate.StartSeconds, candidate.EndSeconds, found));
+            positionOf[i] = found;
+            lastStretch = found;
+        }
+
+        // Whether a block of another stretch was read wholly after stretch s ended and before `start` (only the last
+        // few readings can have begun after s ended).
+        bool ReadInBetween(int s, double start)
+        {
+            for (int r = readings.Count - 1; r >= 0 && readings[r].Start > stretchEnd[s]; r--)
+            {
+                if (readings[r].Stretch != s && readings[r].End <= start)
+                {
+                    return true;
+                }
+            }
+
+            return false;
+        }
+
+        var placed = new List<BlockCandidate>(keyed.Count);
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            placed.Add(keyed[i].Candidate with { Position = positionOf[i] });
+        }
+
+        placed.Sort((a, b) => a.Position != b.Position ? a.Position.CompareTo(b.Position) : a.StartSeconds.CompareTo(b.StartSeconds));
+        return placed;
+    }
+
+    /// <summary>
+    /// Failed readings that no clean reading anchors (the empty key) are places on the tape all the same: readings of
+    /// different settings that start at the same sync are one place. A header that other readings of the capture share
+    /// keeps its identity; a header nobody else read is a misread, not a block of its own, and takes the identity most
+    /// readings of its place agree on, or, when none does, that of the place it overlaps: a setting that does not suit
+    /// the capture garbles headers and may run past a block's end on a misread length, and neither makes a new block.
+    /// </summary>
+    /// <returns>
+    /// Per reading, whether it is no block at all: a place that only failed readings of identities nobody else read
+    /// make, overlapping no other reading, whose headers agree with no header read near it over even half their bytes.
+    /// A misread of a real block keeps most of its header (the file's name, a block number near its neighbours'); such
+    /// a place is noise read as data, typically in the lead-in between two blocks or two copies of one.
+    /// </returns>
+    private static bool[] KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed)
+    {
+        var stray = new bool[keyed.Count];
+        var vouched = new bool[keyed.Count];
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            vouched[i] = keyed[i].Key.Length > 0;
+        }
+
+        var support = new Dictionary<string, int>(StringComparer.Ordinal);
+        foreach (var (candidate, key) in keyed)
+        {
+            string own = candidate.Identity.Key;
+            support[own] = support.GetValueOrDefault(own) + 1;
+        }
+
+        // Places in order of start: the first reading of each, and the readings that joined it.
+        var places = new List<List<int>>();
+        var placeOf = new int[keyed.Count];
+        Array.Fill(placeOf, -1);
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            if (keyed[i].Key.Length > 0)
+            {
+                continue;
+            }
+
+            var c = keyed[i].Candidate;
+            List<int>? joined = null;
+            for (int p = places.Count - 1; p >= 0 && p >= places.Count - 16; p--)
+            {
+                var first = keyed[places[p][0]].Candidate;
+                if (SameSync(first, c))
+                {
+                    joined = places[p];
+                    break;
+                }
+            }
+
+            if (joined is null)
+            {
+                places.Add([i]);
+                placeOf[i] = places.Count - 1;
+            }
+            else
+            {
+                joined.Add(i);
+                placeOf[i] = placeOf[joined[0]];
+            }
+        }
+
+        // Each place's identity: the one most readings of the capture carry; then the most confident reading's.
+        var placeKey = new string[places.Count];
+        var placeSupport = new int[places.Count];
+        for (int p = 0; p < places.Count; p++)
+        {
+            int best = places[p][0];
+            foreach (int i in places[p])
+            {
+                var c = keyed[i].Candidate;
+                var b = keyed[best].Candidate;
+                int sc = support[c.Identity.Key];
+                int sb = support[b.Identity.Key];
+                if (sc > sb || (sc == sb && c.Confidence > b.Confidence))
+                {
+                    best = i;
+                }
+            }
+
+            placeKey[p] = keyed[best].Candidate.Identity.Key;
+            placeSupport[p] = support[placeKey[p]];
+        }
+
+        for (int p = 0; p < places.Count; p++)
+        {
+            string key = placeKey[p];
+            string? overlapped = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored);
+            if (anchored)
+            {
+                // A stretch of tape that an anchored reading covers is that block's place: readings of other settings
+                // there are misreads of it, whatever identity their garbled headers share with misreads elsewhere.
+                foreach (int i in places[p])
+                {
+                    keyed[i] = (keyed[i].Candidate, overlapped!);
+                }
+
+                continue;
+            }
+
+            if (placeSupport[p] <= 1)
+            {
+                key = overlapped ?? key;
+                if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, places[p]) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, i, placeOf)))
+                {
+                    foreach (int i in places[p])
+                    {
+                        stray[i] = true;
+                    }
+                }
+            }
+
+            foreach (int i in places[p])
+            {
+                // A header that other readings share is read right as far as anyone can tell: it keeps its identity.
+                // A reading cut short before its payload offers no bytes and names no block of its own, however many
+                // settings garbled its header alike: it belongs to the place it starts at.
+                var c = keyed[i].Candidate;
+                string own = c.Identity.Key;
+                bool nothingRead = c.Truncated && c.Payload.IsEmpty;
+                keyed[i] = (c, support[own] > 1 && !nothingRead ? own : key);
+            }
+        }
+
+        return stray;
+    }
+
+    /// <summary>
+    /// Whether the place lies in the gap between two readings that clean readings vouch for (keyed before any place
+    /// was): the last reading to end before it and the first to start after it. Where its neighbours are not vouched
+    /// for (a capture no setting suits), the place may be a block that only one setting read, however garbled.
+    /// </summary>
+    private static bool BetweenVouchedBlocks(List<(BlockCandidate Candidate, string Key)> keyed, bool[] vouched, List<int> place)
+    {
+        double start = keyed[place[0]].Candidate.StartSeconds;
+        double end = place.Max(i => keyed[i].Candidate.EndSeconds);
+        int before = -1, after = -1;
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var c = keyed[i].Candidate;
+            if (c.EndSeconds <= start && (before < 0 || c.EndSeconds > keyed[before].Candidate.EndSeconds))
+            {
+                before = i;
+            }
+
+            if (c.StartSeconds >= end)
+            {
+                after = i;
+                break;
+            }
+        }
+
+        return before >= 0 && after >= 0 && vouched[before] && vouched[after];
+    }
+
+    /// <summary>
+    /// Whether reading <paramref name="index"/>'s header agrees over at least half the bytes both have with the header
+    /// of a reading of another place within two block lengths of it.
+    /// </summary>
+    private static bool ResemblesANeighbour(List<(BlockCandidate Candidate, string Key)> keyed, int index, int[] placeOf)
+    {
+        var c = keyed[index].Candidate;
+        double length = Math.Max(c.EndSeconds - c.StartSeconds, 0.1);
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var other = keyed[i].Candidate;
+            double reach = 2 * Math.Max(length, other.EndSeconds - other.StartSeconds) + 0.5;
+            if (other.StartSeconds > c.EndSeconds + reach)
+            {
+                break;
+            }
+
+            if (other.EndSeconds < c.StartSeconds - reach || (placeOf[i] >= 0 && placeOf[i] == placeOf[index]))
+            {
+                continue;
+            }
+
+            int shared = Math.Min(other.Header.Length, c.Header.Length);
+            int agree = 0;
+            for (int b = 0; b < shared; b++)
+            {
+                agree += other.Header[b] == c.Header[b] ? 1 : 0;
+            }
+
+            if (shared > 0 && 2 * agree >= shared)
+            {
+                return true;
+            }
+        }
+
+        return false;
+    }
+
+    /// <summary>
+    /// The key of the best-supported reading that lies on the place's first reading: an anchored reading's key, or
+    /// another place's. A reading's start is where its sync was read; its end is proven only by a checksum that holds
+    /// (a misread length runs on over the blocks after it, a loss of signal stops short). So a clean reading claims
+    /// the readings that overlap most of it or most of which it overlaps, as other places do; a failed reading keyed by
+    /// a clean copy nearby claims only the readings that start at its sync: the same copy of that block, however its
+    /// header was garbled.
+    /// </summary>
+    private static string? OverlappedKey(
+        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first, out bool anchored)
+    {
+        var c = keyed[first].Candidate;
+        string? best = null;
+        int bestSupport = 1;
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var other = keyed[i].Candidate;
+            if (other.StartSeconds >= c.EndSeconds)
+            {
+                break;
+            }
+
+            if (placeOf[i] == place)
+            {
+                continue;
+            }
+
+            string key = keyed[i].Key;
+            int otherSupport;
+            if (placeOf[i] >= 0)
+            {
+                key = placeKey[placeOf[i]];
+                otherSupport = placeSupport[placeOf[i]];
+            }
+            else if (other.Status == BlockStatus.Clean)
+            {
+                otherSupport = int.MaxValue;
+            }
+            else if (SameSync(c, other))
+            {
+                // A failed reading keyed by a clean copy nearby, read from this place's sync: it outweighs any place, but
+                // claims less than a clean one.
+                otherSupport = int.MaxValue - 1;
+            }
+            else
+            {
+                // The same failed reading from another sync: where it ends is its length field's word, not the tape's.
+                continue;
+            }
+
+            if (otherSupport > bestSupport && MostlyOverlaps(c, other))
+            {
+                best = key;
+                bestSupport = otherSupport;
+            }
+        }
+
+        anchored = bestSupport >= int.MaxValue - 1;
+        return best;
+    }
+
+    /// <summary>Two readings of one block by different settings start at the same sync: within a quarter of the shorter, and 50 ms.</summary>
+    private static bool SameSync(BlockCandidate a, BlockCandidate b)
+    {
+        double shorter = Math.Min(a.EndSeconds - a.StartSeconds, b.EndSeconds - b.StartSeconds);
+        return Math.Abs(a.StartSeconds - b.StartSeconds) <= Math.Min(0.05, 0.25 * Math.Max(shorter, 0));
+    }
+
+    /// <summary>Whether the two readings overlap over at least half of the shorter one.</summary>
+    private static bool MostlyOverlaps(BlockCandidate a, BlockCandidate b)
+    {
+        double overlap = Math.Min(a.EndSeconds, b.EndSeconds) - Math.Max(a.StartSeconds, b.StartSeconds);
+        double shorter = Math.Min(a.EndSeconds - a.StartSeconds, b.EndSeconds - b.StartSeconds);
+        return overlap > 0 && overlap >= 0.5 * shorter;
+    }
+
+    /// <summary>Per position: a clean candidate of highest confidence, else the most confident of any status.</summary>
+    public static List<BlockCandidate> BestPerPosition(IReadOnlyList<BlockCandidate> placed)
+    {
+        ArgumentNullException.ThrowIfNull(placed);
+        var best = new SortedDictionary<int, BlockCandidate>();
+        foreach (var c in placed)
+        {
+            if (!best.TryGetValue(c.Position, out var current) || Better(c, current))
+            {
+                best[c.Position] = c;
+            }
+        }
+
+        return [.. best.Values];
+    }
+
+    private static bool Better(BlockCandidate a, BlockCandidate b)
+    {
+        int rank(BlockCandidate c) => c.Status switch
+        {
+            BlockStatus.Clean => 2,
+            BlockStatus.Unchecked => 1,
+            _ => 0,
+        };
+
+        if (rank(a) != rank(b))
+        {
+            return rank(a) > rank(b);
+        }
+
+        return a.Confidence > b.Confidence || (a.Confidence == b.Confidence && a.Payload.Length > b.Payload.Length);
+    }
+
+    /// <summary>A trusted candidate (sorted by start) overlapping <paramref name="c"/> in time, by binary search.</summary>
+    private static BlockCandidate? FindOverlapping(List<BlockCandidate> trusted, BlockCandidate c)
+    {
+        int lo = 0, hi = trusted.Count;
+        while (lo < hi)
+        {
+            int mid = (lo + hi) / 2;
+            if (trusted[mid].StartSeconds < c.EndSeconds)
+            {
+                lo = mid + 1;
+            }
+            else
+            {
+                hi = mid;
+            }
+        }
+
+        // Candidates before lo start before c ends; blocks are short, so only the last few can still overlap it. A
+        // misread that ran on past its block's end (a damaged length) overlaps the next block too: it belongs to the
+        // block whose sync it starts at, and where it starts at none, to the one it shares the most tape with.
+        BlockCandidate? best = null;
+        double bestOverlap = double.NegativeInfinity;
+        bool bestAtSync = false;
+        for (int i = lo - 1; i >= 0 && i >= lo - 64; i--)
+        {
+            if (Overlaps(trusted[i].StartSeconds, trusted[i].EndSeconds, c.StartSeconds, c.EndSeconds))
+            {
+                bool atSync = SameSync(trusted[i], c);
+                double overlap = Math.Min(trusted[i].EndSeconds, c.EndSeconds) - Math.Max(trusted[i].StartSeconds, c.StartSeconds);
+                if ((atSync && !bestAtSync) || (atSync == bestAtSync && overlap > bestOverlap))
+                {
+                    best = trusted[i];
+                    bestOverlap = overlap;
+                    bestAtSync = atSync;
+                }
+            }
+        }
+
+        return best;
+    }
+
+    /// <summary>
+    /// A clean copy of the same block next to a failed candidate: within two block lengths of it on the tape, with a
+    /// header that differs from the candidate's in at most two of the bytes both have. Only formats that write each block more than
+    /// once have such neighbours; elsewhere the block next door is a different block.
+    /// </summary>
+    private static BlockCandidate? FindNeighbouringCopy(List<BlockCandidate> trusted, BlockCandidate c)
+    {
+        double length = Math.Max(c.EndSeconds - c.StartSeconds, 0.1);
+        // The fewest differing bytes, then the nearest on the tape: a header of sync bytes alone (a countdown every
+        // block of a kind repeats) matches every block of that kind, and the copy is the one next to the reading.
+        BlockCandidate? best = null;
+        int bestDifference = 3;
+        double bestGap = double.PositiveInfinity;
+        foreach (var t in trusted)
+        {
+            double reach = 2 * Math.Max(length, t.EndSeconds - t.StartSeconds) + 0.5;
+            if (t.StartSeconds > c.EndSeconds + reach)
+            {
+                break;
+            }
+
+            if (t.EndSeconds < c.StartSeconds - reach || c.Header.IsEmpty)
+            {
+                continue;
+            }
+
+            // A header cut short is compared over the bytes it has.
+            int shared = Math.Min(t.Header.Length, c.Header.Length);
+            int difference = 0;
+            for (int i = 0; i < shared && difference <= bestDifference; i++)
+            {
+                if (t.Header[i] != c.Header[i])
+                {
+                    difference++;
+                }
+            }
+
+            double gap = Math.Max(t.StartSeconds - c.EndSeconds, c.StartSeconds - t.EndSeconds);
+            if (difference < bestDifference || (difference == bestDifference && best is not null && gap < bestGap))
+            {
+                best = t;
+                bestDifference = difference;
+                bestGap = gap;
+            }
+        }
+
+        return best;
+    }
+
+    /// <summary>Whether a reading's header was read far enough to give a field of its identity: then it keeps that identity rather than a neighbour's.</summary>
+    private static bool NamesItself(BlockCandidate c) => c.Identity.BlockNumber is not null || c.Identity.FileId is not null || c.Identity.FileName is not null;
+
+    /// <summary>
+    /// For a reading cut off inside its header (so it has no identity to go by, and no payload to offer): the clean
+    /// block nearest to it in time, within two block lengths.
+    /// </summary>
+    private static BlockCandidate? FindNearest(List<BlockCandidate> trusted, BlockCandidate c)
+    {
+        BlockCandidate? best = null;
+        double bestGap = double.PositiveInfinity;
+        foreach (var t in trusted)
+        {
+            double gap = Math.Max(t.StartSeconds - c.EndSeconds, c.StartSeconds - t.EndSeconds);
+            double reach = 2 * (t.EndSeconds - t.StartSeconds) + 0.5;
+            if (gap <= reach && gap < bestGap)
+            {
+                best = t;
+                bestGap = gap;
+            }
+        }
+
+        return best;
+    }
+
+    private static bool Overlaps(double aStart, double aEnd, double bStart, double bEnd) =>
+        aStart < bEnd && bStart < aEnd;
+}

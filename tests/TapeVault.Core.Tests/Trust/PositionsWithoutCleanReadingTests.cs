@@ -1,0 +1,145 @@
+using System.Collections.Immutable;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Tests.Merge;
+using Xunit;
+
+namespace TapeVault.Core.Tests.Trust;
+
+/// <summary>
+/// Positions on a capture where no setting reads any block clean, so no clean reading vouches for a place. A position
+/// is still a place on the tape: readings of different settings that start at one sync are one copy of one block, and
+/// where the format writes each block twice, consecutive places are the copies of one block. The format is the
+/// biphase reference profile written twice (block number and length in the header, CRC-16/XMODEM); block timings are
+/// common practice for such formats (copies back to back, half a second apart here).
+/// </summary>
+public sealed class PositionsWithoutCleanReadingTests
+{
+    private static readonly FormatProfile Profile = WrittenTwice();
+
+    private static FormatProfile WrittenTwice()
+    {
+        var profile = ProfileCatalog.BuiltIn.Get("biphase-1200");
+        return profile with { Layout = profile.Layout with { Copies = 2 } };
+    }
+
+    /// <summary>Where copy <paramref name="copy"/> of block <paramref name="block"/> starts: copies 0.5 s apart, blocks 1 s apart.</summary>
+    private static double Sync(int block, int copy) => 1.5 + block + (0.5 * copy);
+
+    /// <summary>A whole reading whose header (all three bytes) a setting garbled from <paramref name="header"/> and whose payload is wrong too (so it fails).</summary>
+    private static BlockCandidate Garbled(int block, int copy, string setting, byte header)
+    {
+        var written = Readings.Written(Profile, block);
+        written[0] = header;
+        written[1] = (byte)(header ^ 0x5A);
+        written[2] = (byte)(header ^ 0x33);
+        var payloadByte = written[Profile.Layout.HeaderBytes];
+        return Readings.Of(Profile, written, Sync(block, copy) + 0.001, 0, setting, changedPayload: new Dictionary<int, byte> { [0] = (byte)(payloadByte ^ 0x21) });
+    }
+
+    /// <summary>A reading cut short after one byte of its header: no field of an identity, nothing of the payload.</summary>
+    private static BlockCandidate CutInHeader(int block, int copy, string setting, int ordinal)
+    {
+        var reading = Readings.Of(Profile, Readings.Written(Profile, block), Sync(block, copy), 0, setting, truncateTo: 0);
+        return reading with
+        {
+            Header = [0xFF],
+            Identity = new BlockIdentity(null, null, null, ordinal),
+            EndSeconds = reading.StartSeconds + 0.025,
+        };
+    }
+
+    private static int Positions(IEnumerable<BlockCandidate> readings) =>
+        BlockPositioner.Place([.. readings], Profile.Layout.Copies).Select(c => c.Position).Distinct().Count();
+
+    [Fact]
+    public void Copies_that_every_setting_garbled_differently_are_one_position_per_block()
+    {
+        // Four blocks, each written twice; two settings read every copy, each garbling every header its own way. Seen on
+        // the Orrin format at random damage: 8 positions for 4 blocks, one per copy, because no identity repeats.
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < 4; block++)
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
+                readings.Add(Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)));
+            }
+        }
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        Assert.Equal(4, placed.Select(c => c.Position).Distinct().Count());
+        for (int block = 0; block < 4; block++)
+        {
+            // Both copies of one block, read by both settings, share a position, and no other block's reading is there.
+            var there = placed.Where(c => c.StartSeconds >= Sync(block, 0) && c.StartSeconds < Sync(block + 1, 0)).Select(c => c.Position).Distinct();
+            Assert.Single(there);
+        }
+    }
+
+    [Fact]
+    public void Readings_cut_short_at_a_sync_join_the_block_read_there_even_when_their_ordinals_agree()
+    {
+        // Two blocks, each written twice. One setting misreads both copies of each block alike (a header that two
+        // readings share); three settings stop after one byte of every header, and as each counts its readings alike
+        // their keys agree too (#0 at the first sync of all three, #1 at the second...). Seen on the Orrin format: such
+        // cut readings made a position at every sync beside the block's own.
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < 2; block++)
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                readings.Add(Garbled(block, copy, "s3", (byte)(0xA0 + block)));
+                for (int setting = 0; setting < 3; setting++)
+                {
+                    readings.Add(CutInHeader(block, copy, $"s{setting}", (block * 2) + copy));
+                }
+            }
+        }
+
+        Assert.Equal(2, Positions(readings));
+    }
+
+    [Fact]
+    public void Places_whose_headers_two_settings_read_alike_as_different_blocks_are_not_taken_for_copies()
+    {
+        // Two blocks whose second copies nobody read: two settings read each first copy's header alike (block numbers 0
+        // and 1), the payloads wrong. Two lone places in a row are not the copies of one block when their headers,
+        // vouched for by two settings each, name two blocks.
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < 2; block++)
+        {
+            var written = Readings.Written(Profile, block);
+            var wrong = new Dictionary<int, byte> { [5] = (byte)(written[Profile.Layout.HeaderBytes + 5] ^ 0x08) };
+            readings.Add(Readings.Of(Profile, written, Sync(block, 0), 0, "s0", changedPayload: wrong));
+            readings.Add(Readings.Of(Profile, written, Sync(block, 0) + 0.002, 0, "s1", changedPayload: wrong));
+        }
+
+        Assert.Equal(2, Positions(readings));
+    }
+
+    [Fact]
+    public void A_clean_block_keeps_its_own_position_beside_garbled_places()
+    {
+        // Block 1 was read clean at its first copy; blocks 0 and 2 only garbled. The clean block's position holds
+        // nothing read at another block's sync, and the garbled blocks' copies pair up around it.
+        var readings = new List<BlockCandidate>();
+        foreach (int block in new[] { 0, 2 })
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
+            }
+        }
+
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 1), Sync(1, 0), 0, "s1"));
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 1), Sync(1, 1), 0, "s1"));
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        Assert.Equal(3, placed.Select(c => c.Position).Distinct().Count());
+        var clean = placed.Where(c => c.Status == BlockStatus.Clean).Select(c => c.Position).Distinct().Single();
+        Assert.All(placed.Where(c => c.Position == clean), c => Assert.Equal(BlockStatus.Clean, c.Status));
+    }
+}
