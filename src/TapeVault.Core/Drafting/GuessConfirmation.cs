@@ -132,7 +132,17 @@ public static class GuessConfirmation
             coverageStart ??= offset;
         }
 
-        layout["header"] = confirmed.DeepClone();
+        // A sync the draft measured and wrote as the header's first field (a sync of whole bytes) is the sync's, not
+        // the header's: where the reference writes its sync elsewhere (as pulse classes, say), it stays.
+        var header = (JsonArray)confirmed.DeepClone();
+        if (layout["header"] is JsonArray own && own.Count > 0 && own[0]?["role"]?.GetValue<string>() == "sync"
+            && !header.Any(f => f?["role"]?.GetValue<string>() == "sync"))
+        {
+            header.Insert(0, own[0]!.DeepClone());
+        }
+
+        confirmed = header;
+        layout["header"] = header;
         if (coverageStart is { } start && layout["checksum"] is JsonObject checksum)
         {
             var named = new JsonArray();

@@ -158,7 +158,8 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
                 matched[c] = near.Seconds;
             }
 
-            if (!all || matched.Zip(matched.Skip(1)).Any(p => p.Second <= p.First))
+            // The lengths must still make a profile: neighbouring classes 25 % apart at least (as Separate keeps them).
+            if (!all || matched.Zip(matched.Skip(1)).Any(p => p.Second < p.First * 1.25))
             {
                 continue;
             }

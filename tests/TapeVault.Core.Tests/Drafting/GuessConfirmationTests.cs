@@ -84,4 +84,25 @@ public sealed class GuessConfirmationTests
         Assert.Equal(100, confirmed["layout"]!["maximumPayloadBytes"]!.GetValue<int>());
         ProfileLoader.Parse(confirmed.ToJsonString(), "confirmed");
     }
+
+    [Fact]
+    public void A_guessed_header_keeps_the_sync_field_the_draft_measured_where_the_reference_writes_its_sync_as_pulses()
+    {
+        // The reference writes its sync as pulse classes; the draft measured the same sync as whole bytes (the lead-in's
+        // bits before it) and wrote it as the header's first field, with no class sequence.
+        string truth = RandomFormats.Draw("pulse-width", new Random(14));
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        ((JsonObject)draft["pulseWidth"]!).Remove("sync");
+        var header = (JsonArray)draft["layout"]!["header"]!;
+        var names = new JsonArray([.. header.Select(f => (JsonNode)JsonValue.Create(f!["name"]!.GetValue<string>())!), JsonValue.Create("payload")]);
+        header.Insert(0, new JsonObject { ["name"] = "sync", ["bytes"] = 1, ["role"] = "sync", ["expect"] = new JsonArray("A5") });
+        draft["layout"]!["checksum"]!["covers"] = names;
+
+        string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["layout.header"]);
+
+        var node = JsonNode.Parse(confirmed)!;
+        Assert.Equal("sync", node["layout"]!["header"]![0]!["role"]!.GetValue<string>());
+        Assert.DoesNotContain("\"sync\"", node["layout"]!["checksum"]!["covers"]!.ToJsonString(), StringComparison.Ordinal);
+        ProfileLoader.Parse(confirmed, "confirmed");
+    }
 }

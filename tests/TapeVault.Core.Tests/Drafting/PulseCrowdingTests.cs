@@ -42,6 +42,19 @@ public sealed class PulseCrowdingTests
         Assert.Equal(found, lengths);
     }
 
+    [Fact]
+    public void Lengths_that_would_put_two_classes_closer_than_a_profile_allows_are_not_taken()
+    {
+        // The language wants neighbouring classes 25 % apart: the rare class kept at its own 1000 µs (the other
+        // setting has none near it) would lie 19 % above a bit class moved to 840 µs, and the draft would not load.
+        List<IntervalCluster> found = [new(500e-6, 0.6, 600), new(760e-6, 0.39, 390), new(1000e-6, 0.01, 10)];
+        List<IntervalCluster> wider = [new(480e-6, 0.6, 600), new(840e-6, 0.4, 400)];
+
+        var lengths = PulseWidthDrafter.Uncrowded(found, [wider]);
+
+        Assert.Equal(found, lengths);
+    }
+
     /// <summary>
     /// Tuning seed 10055 of the draft figure (a line-output capture through a 4.7 kHz deck low-pass, 0.95 of nominal
     /// speed, no outside tool): the drafted classes read 1.48 : 1 where the tape holds 1.63 : 1, and the draft, every
