@@ -9,8 +9,10 @@ namespace TapeVault.Bench;
 /// The drafter's figure: on captures of random formats of each family (<see cref="RandomFormats"/>), with damage from
 /// wide ranges (<see cref="DraftTrials.Damage"/>) and, for every other capture, a SoX effect chain drawn from the seed
 /// (<see cref="OutsideDamage.SoxChain"/>), the share of written blocks the draft reads back once only its guessed
-/// fields are confirmed from the truth, beside the share the truth itself reads back. Draft/truth counts the blocks
-/// both read (so it never passes 100 %); the blocks the draft read and the truth did not are counted apart.
+/// fields are confirmed from the truth (<see cref="TapeVault.Core.Drafting.ConfirmationRule.GuessedFieldsOnly"/>),
+/// beside the share the truth itself reads back. Draft/truth counts the blocks both read (so it never passes 100 %);
+/// the blocks the draft read and the truth did not are counted apart. "earlier" is draft/truth by the earlier rule,
+/// under which a guessed family took the truth's whole encoding section (for comparison with older figures).
 /// draft [--count N] [--first-seed S] [--family F]: N captures per family (default 20), seeds S, S+1, ... (default
 /// 9001), of every family of <see cref="RandomFormats.Families"/> or of F alone; --damage none writes undamaged
 /// captures (to tell the drafter's faults from the read path's); --show failures prints the truth and the draft of
@@ -42,11 +44,11 @@ public static class DraftFigure
         // A folder of its own, so that runs side by side (one family each) never delete each other's captures.
         string folder = Directory.CreateDirectory(Path.Combine(work, $"draft-{Environment.ProcessId}")).FullName;
         Console.WriteLine($"Draft figure: {count} captures per family, seeds {first}–{first + count - 1}, SoX chain on every other one.");
-        Console.WriteLine($"{"family",-20} {"written",8} {"draft",8} {"truth",8} {"draft/written",14} {"draft/truth",12} {"draft only",11} {"guessed",8} {"family right",13} {"failed",7} {"s/draft",8}");
-        int allWritten = 0, allDraft = 0, allTruth = 0, allBoth = 0;
+        Console.WriteLine($"{"family",-20} {"written",8} {"draft",8} {"truth",8} {"draft/written",14} {"draft/truth",12} {"earlier",8} {"draft only",11} {"guessed",8} {"family right",13} {"failed",7} {"s/draft",8}");
+        int allWritten = 0, allDraft = 0, allTruth = 0, allBoth = 0, allEarlier = 0;
         foreach (string family in RandomFormats.Families.Where(f => only is null || f == only))
         {
-            int written = 0, drafted = 0, truth = 0, both = 0, guessed = 0, fields = 0, familyRight = 0, failed = 0;
+            int written = 0, drafted = 0, truth = 0, both = 0, earlier = 0, guessed = 0, fields = 0, familyRight = 0, failed = 0;
             var time = Stopwatch.StartNew();
             for (int k = 0; k < count; k++)
             {
@@ -56,13 +58,14 @@ public static class DraftFigure
                 drafted += result.RecoveredByConfirmedDraft;
                 truth += result.RecoveredByTruth;
                 both += result.RecoveredByBoth;
+                earlier += result.RecoveredByBothEarlierRule;
                 guessed += result.Guessed.Count;
                 fields += result.Fields;
                 familyRight += result.DraftedFamily == RandomFormats.ProfileFamily(family) ? 1 : 0;
                 bool readsLess = result.Failure is not null || result.RecoveredByConfirmedDraft < 0.95 * result.RecoveredByTruth;
                 if (showAll && !readsLess)
                 {
-                    Console.WriteLine($"  {family} seed {seed}: {result.RecoveredByConfirmedDraft}/{result.RecoveredByTruth}/{result.Written} drafted {result.DraftedFamily}; guessed {string.Join(", ", result.Guessed)}");
+                    Console.WriteLine($"  {family} seed {seed}: {result.RecoveredByConfirmedDraft}/{result.RecoveredByTruth}/{result.Written} (earlier rule {result.RecoveredByEarlierRule}) drafted {result.DraftedFamily}; guessed {string.Join(", ", result.Guessed)}");
                 }
 
                 if (readsLess)
@@ -74,7 +77,7 @@ public static class DraftFigure
                         Console.WriteLine(result.DraftJson);
                     }
 
-                    Console.WriteLine($"  {family} seed {seed}: {result.RecoveredByConfirmedDraft}/{result.RecoveredByTruth}/{result.Written} drafted {result.DraftedFamily}; guessed {string.Join(", ", result.Guessed)}; {result.Failure}; {result.Damage}");
+                    Console.WriteLine($"  {family} seed {seed}: {result.RecoveredByConfirmedDraft}/{result.RecoveredByTruth}/{result.Written} (earlier rule {result.RecoveredByEarlierRule}) drafted {result.DraftedFamily}; guessed {string.Join(", ", result.Guessed)}; {result.Failure}; {result.Damage}");
                 }
 
                 foreach (string file in Directory.EnumerateFiles(folder))
@@ -87,10 +90,11 @@ public static class DraftFigure
             allDraft += drafted;
             allTruth += truth;
             allBoth += both;
-            Console.WriteLine($"{family,-20} {written,8} {drafted,8} {truth,8} {Percent(drafted, written),14} {Percent(both, truth),12} {drafted - both,11} {(fields == 0 ? "-" : $"{guessed}/{fields}"),8} {familyRight,6}/{count,-6} {failed,7} {time.Elapsed.TotalSeconds / count,8:0.0}");
+            allEarlier += earlier;
+            Console.WriteLine($"{family,-20} {written,8} {drafted,8} {truth,8} {Percent(drafted, written),14} {Percent(both, truth),12} {Percent(earlier, truth),8} {drafted - both,11} {(fields == 0 ? "-" : $"{guessed}/{fields}"),8} {familyRight,6}/{count,-6} {failed,7} {time.Elapsed.TotalSeconds / count,8:0.0}");
         }
 
-        Console.WriteLine($"{"all",-20} {allWritten,8} {allDraft,8} {allTruth,8} {Percent(allDraft, allWritten),14} {Percent(allBoth, allTruth),12} {allDraft - allBoth,11}");
+        Console.WriteLine($"{"all",-20} {allWritten,8} {allDraft,8} {allTruth,8} {Percent(allDraft, allWritten),14} {Percent(allBoth, allTruth),12} {Percent(allEarlier, allTruth),8} {allDraft - allBoth,11}");
         return 0;
     }
 

@@ -2,49 +2,88 @@ using System.Text.Json.Nodes;
 
 namespace TapeVault.Core.Drafting;
 
+/// <summary>Which fields confirming a draft's guesses may take from the reference (see <see cref="GuessConfirmation"/>).</summary>
+public enum ConfirmationRule
+{
+    /// <summary>
+    /// Only the fields the draft marked as guesses: a guessed family confirms the family's name, and the draft keeps
+    /// its own encoding sections, so a draft whose family was wrong has no section for the right one and reads
+    /// nothing. What a curator who only confirms the guesses gets.
+    /// </summary>
+    GuessedFieldsOnly,
+
+    /// <summary>
+    /// The earlier measure, kept only so that figures taken with it can be compared: a guessed family brought the
+    /// reference's whole encoding section (tones, classes or cell the draft never marked as guesses), and a guessed
+    /// header the reference's payload length and coverage. It overstates a draft whose family was guessed.
+    /// </summary>
+    Earlier,
+}
+
 /// <summary>
 /// Confirms a draft's guesses from a reference profile, as a curator who knows the format would: each guessed field
-/// takes the reference's value and every measured field keeps the draft's. Used to measure how good a draft's
-/// measured fields are (the guesses are then right by construction). Pulse class names are the draft's: a class the
-/// reference names is the draft's class nearest to it in length. A guessed header brings the payload length with it
-/// (the two decide one another) and a coverage that names header fields, and a guessed family brings the family's own
-/// section.
+/// takes the reference's value and every field the draft did not mark keeps the draft's value. Used to measure how
+/// good a draft's measured fields are (the guesses are then right by construction). Pulse class names are the
+/// draft's: a class the reference names is the draft's class nearest to it in length. A guessed payload length is the
+/// payload's length however the reference writes it (fixed, or a maximum with a length field); a guessed header keeps
+/// the draft's coverage start and its rule for the largest payload, applied to the reference's fields. A guessed
+/// family confirms the family's name only (<see cref="ConfirmationRule.GuessedFieldsOnly"/>).
 /// </summary>
 public static class GuessConfirmation
 {
     private static readonly string[] FamilySections = ["pulseWidth", "fsk", "biphase"];
 
-    public static string Confirm(string draftJson, string referenceJson, IEnumerable<string> guessedPaths)
+    private static readonly string[] PayloadLength = ["payloadBytes", "maximumPayloadBytes", "payloadLength"];
+
+    public static string Confirm(string draftJson, string referenceJson, IEnumerable<string> guessedPaths, ConfirmationRule rule = ConfirmationRule.GuessedFieldsOnly)
     {
         ArgumentNullException.ThrowIfNull(guessedPaths);
         var draft = JsonNode.Parse(draftJson)!.AsObject();
         var reference = JsonNode.Parse(referenceJson)!.AsObject();
-        foreach (string path in guessedPaths)
+        var paths = guessedPaths.ToList();
+
+        // The family first: with the whole-section rule the other guesses are then taken into the reference's section.
+        if (paths.Contains("family"))
+        {
+            draft["family"] = reference["family"]!.DeepClone();
+            if (rule == ConfirmationRule.Earlier)
+            {
+                foreach (string section in FamilySections)
+                {
+                    draft.Remove(section);
+                    if (reference[section] is { } node)
+                    {
+                        draft[section] = node.DeepClone();
+                    }
+                }
+            }
+        }
+
+        foreach (string path in paths)
         {
             switch (path)
             {
                 case "family":
-                    foreach (string section in FamilySections)
-                    {
-                        draft.Remove(section);
-                        if (reference[section] is { } node)
-                        {
-                            draft[section] = node.DeepClone();
-                        }
-                    }
-
-                    draft["family"] = reference["family"]!.DeepClone();
                     break;
-                case "layout.header":
+                case "layout.header" when rule == ConfirmationRule.Earlier:
                     foreach (string part in new[] { "header", "payloadBytes", "maximumPayloadBytes" })
                     {
                         Replace(draft, reference, $"layout.{part}");
                     }
 
-                    // A coverage that names header fields names the draft's fields: it goes with the header.
                     if (draft["layout"]?["checksum"]?["covers"] is JsonArray && reference["layout"]?["checksum"]?["covers"] is { } covers)
                     {
                         draft["layout"]!["checksum"]!["covers"] = covers.DeepClone();
+                    }
+
+                    break;
+                case "layout.header":
+                    ConfirmHeader(draft, reference);
+                    break;
+                case "layout.payloadBytes" when rule == ConfirmationRule.GuessedFieldsOnly:
+                    foreach (string part in PayloadLength)
+                    {
+                        Replace(draft, reference, $"layout.{part}");
                     }
 
                     break;
@@ -59,6 +98,77 @@ public static class GuessConfirmation
         }
 
         return draft.ToJsonString(ProfileDraft.Indented);
+    }
+
+    /// <summary>
+    /// The reference's header fields in place of the draft's. What the draft measured around the header stays its
+    /// own: the check's coverage starts at the same byte (named now by the reference's fields there), and the largest
+    /// payload follows the confirmed length field by the drafter's own rule (<see cref="CommonSections.Layout"/>).
+    /// </summary>
+    private static void ConfirmHeader(JsonObject draft, JsonObject reference)
+    {
+        if (draft["layout"] is not JsonObject layout || reference["layout"]?["header"] is not JsonArray confirmed)
+        {
+            Replace(draft, reference, "layout.header");
+            return;
+        }
+
+        int? coverageStart = null;
+        if (layout["checksum"]?["covers"] is JsonArray covers && layout["header"] is JsonArray drafted)
+        {
+            var names = covers.Select(c => c!.GetValue<string>()).ToHashSet(StringComparer.Ordinal);
+            int offset = 0;
+            foreach (var field in drafted)
+            {
+                if (names.Contains(field!["name"]!.GetValue<string>()))
+                {
+                    coverageStart = offset;
+                    break;
+                }
+
+                offset += field["bytes"]!.GetValue<int>();
+            }
+
+            coverageStart ??= offset;
+        }
+
+        // A sync the draft measured and wrote as the header's first field (a sync of whole bytes) is the sync's, not
+        // the header's: where the reference writes its sync elsewhere (as pulse classes, say), it stays.
+        var header = (JsonArray)confirmed.DeepClone();
+        if (layout["header"] is JsonArray own && own.Count > 0 && own[0]?["role"]?.GetValue<string>() == "sync"
+            && !header.Any(f => f?["role"]?.GetValue<string>() == "sync"))
+        {
+            header.Insert(0, own[0]!.DeepClone());
+        }
+
+        confirmed = header;
+        layout["header"] = header;
+        if (coverageStart is { } start && layout["checksum"] is JsonObject checksum)
+        {
+            var named = new JsonArray();
+            int offset = 0;
+            foreach (var field in confirmed)
+            {
+                if (offset >= start)
+                {
+                    named.Add(field!["name"]!.GetValue<string>());
+                }
+
+                offset += field!["bytes"]!.GetValue<int>();
+            }
+
+            named.Add("payload");
+            checksum["covers"] = named;
+        }
+
+        var length = confirmed.FirstOrDefault(f => f?["role"]?.GetValue<string>() == "payload-length");
+        if (length is not null && layout["payloadBytes"] is not null)
+        {
+            // A fixed length the draft measured, and a length field now confirmed: the field decides, up to its
+            // largest value (as the drafter writes it).
+            layout.Remove("payloadBytes");
+            layout["maximumPayloadBytes"] = length["zeroMeans"]?.GetValue<int>() ?? (length["bytes"]!.GetValue<int>() == 1 ? 255 : 65535);
+        }
     }
 
     private static void Replace(JsonObject draft, JsonObject reference, string path)

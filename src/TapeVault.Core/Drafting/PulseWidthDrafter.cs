@@ -104,7 +104,8 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         FamilyProposal? first = null;
         foreach (int i in order.Take(3))
         {
-            var proposal = DraftThrough(fits[i].Setting, fits[i].Clusters, fits[i].Symbols, fits[i].Grouped, cancellation);
+            var lengths = Uncrowded(fits[i].Clusters, fits.Select(f => f.Clusters));
+            var proposal = DraftThrough(fits[i].Setting, fits[i].Clusters, lengths, fits[i].Symbols, fits[i].Grouped, cancellation);
             if (proposal is not null && proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed))
             {
                 return proposal;
@@ -116,7 +117,64 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         return first;
     }
 
-    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> classesFound, int[] sym, double grouped, CancellationToken cancellation)
+    /// <summary>
+    /// The classes' lengths from the setting that reads them farthest apart. Neighbouring transitions crowd one
+    /// another's read-back pulses (pulse crowding, or peak shift: Mee and Daniel, <i>Magnetic Recording Technology</i>),
+    /// so a setting that times cycles by the pulses' peaks reads a short cycle beside a long one longer and the long one
+    /// shorter, and a setting timing from the other edge than the format's reads in-between lengths: both pull the two
+    /// bit classes together, never apart. A tape-speed error moves every class alike and leaves their ratio. So where
+    /// other settings find the same classes (each within 15 %), the one whose two commonest classes lie farthest apart
+    /// gives the lengths; the reading itself (which pulse is which class) stays the given setting's. Lengths pulled
+    /// together put the boundary between the bit classes off centre, and on a capture whose cycles the deck's
+    /// equalisation times truly a profile with such lengths misreads every block (a 1.48 : 1 pair for 1.63 : 1).
+    /// </summary>
+    internal static List<IntervalCluster> Uncrowded(List<IntervalCluster> found, IEnumerable<List<IntervalCluster>> others)
+    {
+        if (found.Count < 2)
+        {
+            return found;
+        }
+
+        var common = Enumerable.Range(0, found.Count).OrderByDescending(c => found[c].Count).Take(2).Order().ToArray();
+        double Spread(IReadOnlyList<double> lengths) => Math.Log(lengths[common[1]] / lengths[common[0]]);
+        var best = found.Select(c => c.Seconds).ToArray();
+        double widest = Spread(best);
+        foreach (var other in others)
+        {
+            // Every class of the reading has one of the other setting's within 15 % (rare classes may be missing
+            // there: they keep their own length), the commonest two included.
+            var matched = new double[found.Count];
+            bool all = true;
+            for (int c = 0; c < found.Count; c++)
+            {
+                var near = other.Where(o => Math.Abs(Math.Log(o.Seconds / found[c].Seconds)) < IntervalClusters.Reach).OrderBy(o => Math.Abs(Math.Log(o.Seconds / found[c].Seconds))).FirstOrDefault();
+                if (near is null)
+                {
+                    all &= !common.Contains(c);
+                    matched[c] = found[c].Seconds;
+                    continue;
+                }
+
+                matched[c] = near.Seconds;
+            }
+
+            // The lengths must still make a profile: neighbouring classes 25 % apart at least (as Separate keeps them).
+            if (!all || matched.Zip(matched.Skip(1)).Any(p => p.Second < p.First * 1.25))
+            {
+                continue;
+            }
+
+            if (Spread(matched) > widest + 1e-9)
+            {
+                widest = Spread(matched);
+                best = matched;
+            }
+        }
+
+        return [.. found.Select((c, i) => c with { Seconds = best[i] })];
+    }
+
+    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> classesFound, List<IntervalCluster> lengths, int[] sym, double grouped, CancellationToken cancellation)
     {
         // The lead-in: the class of the long runs.
         var longRuns = Runs(sym).Where(r => r.Class >= 0 && r.Length >= LeastLeadInCycles).ToList();
@@ -225,7 +283,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         var sync = reading.Sync.Select(s => names[s]).ToList();
         proposal.Sections["pulseWidth"] = new JsonObject
         {
-            ["classes"] = new JsonArray([.. kept.Select(i => (JsonNode)new JsonObject { ["name"] = names[i], ["microseconds"] = Math.Round(classesFound[i].Seconds * 1e6, 1) })]),
+            ["classes"] = new JsonArray([.. kept.Select(i => (JsonNode)new JsonObject { ["name"] = names[i], ["microseconds"] = Math.Round(lengths[i].Seconds * 1e6, 1) })]),
             ["zero"] = new JsonArray(JsonValue.Create(names[reading.Mapping.ZeroSymbol])),
             ["one"] = new JsonArray(JsonValue.Create(names[reading.Mapping.OneSymbol])),
             ["leadIn"] = new JsonObject { ["class"] = names[leadIn], ["minimumCount"] = minimum },
@@ -240,9 +298,10 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
                 $"{gaps.Count} runs of {shortestGap}–{gaps.Max(r => r.Length)} {names[leadIn]} cycles, too short for a lead-in, come before blocks: blocks that follow one another without a lead-in");
         }
 
-        proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select(i => $"{names[i]} {Us(classesFound[i].Seconds)} µs")), 0.9,
+        proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select(i => $"{names[i]} {Us(lengths[i].Seconds)} µs")), 0.9,
             $"groups of cycle lengths through setting {setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * grouped, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)"
-            + (dropped.Count == 0 ? string.Empty : $"; left out, as no bit, lead-in or sync uses them: {string.Join(", ", dropped.Select(c => $"{Us(c.Seconds)} µs"))}"));
+            + (dropped.Count == 0 ? string.Empty : $"; left out, as no bit, lead-in or sync uses them: {string.Join(", ", dropped.Select(c => $"{Us(c.Seconds)} µs"))}")
+            + (lengths.SequenceEqual(classesFound) ? string.Empty : $"; lengths from the setting that reads the bit classes farthest apart (neighbouring pulses crowd one another: {string.Join(", ", kept.Select(i => $"{Us(classesFound[i].Seconds)} → {Us(lengths[i].Seconds)} µs"))})"));
         proposal.Measured("pulseWidth.leadIn.class", names[leadIn], 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(r => r.Length)} {names[leadIn]} cycles");
         proposal.Measured("pulseWidth.leadIn.minimumCount", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortestLeadIn} cycles)");
         string bitEvidence = proven ? "the check value holds with this mapping" : $"{names[bitClasses[0]]} and {names[bitClasses[1]]} are the commonest classes inside blocks; which is 0 is not proven (drafted: {reading.Mapping.Name})";

@@ -21,7 +21,9 @@ public sealed record DraftTrialResult(
     string? DraftJson,
     string? DraftProfileJson = null,
     double Speed = 1,
-    int RecoveredByBoth = 0)
+    int RecoveredByBoth = 0,
+    int RecoveredByEarlierRule = 0,
+    int RecoveredByBothEarlierRule = 0)
 {
     public double DraftShare => Written == 0 ? 0 : (double)RecoveredByConfirmedDraft / Written;
 
@@ -37,8 +39,9 @@ public sealed record DraftTrialCapture(string Family, int Seed, string TruthJson
 /// <summary>
 /// One measurement of the drafter: a random profile of a family (<see cref="RandomFormats"/>), files written through
 /// the channel model with damage drawn from wide ranges, optionally damaged further by an outside tool, a draft from
-/// the capture, the draft's guesses confirmed from the truth (<see cref="GuessConfirmation"/>), and both the
-/// confirmed draft and the truth decoding the whole capture.
+/// the capture, the draft's guesses confirmed from the truth (<see cref="GuessConfirmation"/>: the guessed fields
+/// only, and apart from that by the earlier rule, for comparison), and the confirmed drafts and the truth decoding
+/// the whole capture.
 /// </summary>
 public static class DraftTrials
 {
@@ -63,23 +66,29 @@ public static class DraftTrials
         }
 
         string drafted = draft.Findings.First(f => f.Path == "family").Value;
-        string confirmed = GuessConfirmation.Confirm(draft.Json, truthJson, draft.GuessedPaths);
-        int read;
-        int both = 0;
-        string? failure = null;
-        try
+        // Confirmed by the guessed fields alone; and by the earlier rule (a guessed family took the truth's whole
+        // encoding section), decoded only where the two differ, so that figures taken either way can be compared.
+        string confirmedJson = GuessConfirmation.Confirm(draft.Json, truthJson, draft.GuessedPaths);
+        var (read, both, failure) = ReadConfirmed(confirmedJson);
+        string earlierJson = GuessConfirmation.Confirm(draft.Json, truthJson, draft.GuessedPaths, ConfirmationRule.Earlier);
+        var (earlierRead, earlierBoth, _) = earlierJson == confirmedJson
+            ? (read, both, failure)
+            : ReadConfirmed(earlierJson);
+
+        (int Read, int Both, string? Failure) ReadConfirmed(string confirmed)
         {
-            var draftBlocks = RandomFormats.RecoveredBlocks(CaptureDecoder.Decode(path, ProfileLoader.Parse(confirmed, "confirmed")), truth, capture.Blocks);
-            read = draftBlocks.Count(r => r);
-            both = draftBlocks.Where((r, i) => r && truthBlocks[i]).Count();
-        }
-        catch (ProfileException e)
-        {
-            read = 0;
-            failure = "the confirmed draft does not load: " + e.Message;
+            try
+            {
+                var draftBlocks = RandomFormats.RecoveredBlocks(CaptureDecoder.Decode(path, ProfileLoader.Parse(confirmed, "confirmed")), truth, capture.Blocks);
+                return (draftBlocks.Count(r => r), draftBlocks.Where((r, i) => r && truthBlocks[i]).Count(), null);
+            }
+            catch (ProfileException e)
+            {
+                return (0, 0, "the confirmed draft does not load: " + e.Message);
+            }
         }
 
-        return new DraftTrialResult(seed, family, drafted, capture.Blocks.Count, read, truthRead, draft.GuessedPaths, draft.Findings.Count, draft.Confidence, described, failure, truthJson, draft.Json + "\n" + draft.SideListJson(), draft.Json, trial.Damage.Speed, both);
+        return new DraftTrialResult(seed, family, drafted, capture.Blocks.Count, read, truthRead, draft.GuessedPaths, draft.Findings.Count, draft.Confidence, described, failure, truthJson, draft.Json + "\n" + draft.SideListJson(), draft.Json, trial.Damage.Speed, both, earlierRead, earlierBoth);
     }
 
     /// <summary>

@@ -1,0 +1,108 @@
+using System.Text.Json.Nodes;
+using TapeVault.Core.Drafting;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Synthesis;
+using Xunit;
+
+namespace TapeVault.Core.Tests.Drafting;
+
+/// <summary>
+/// Confirming a draft's guesses, the measure of the draft figure: the claim the figure makes is the one the format
+/// language's requirements state ("decodes ... after no more than the fields it marked as guesses are confirmed"), so
+/// confirming may change only what the draft marked as guessed and must never bring in a field the draft measured.
+/// The reference profiles here are drawn by <see cref="RandomFormats"/>; the drafts are the reference with one
+/// measured field set otherwise, so that whatever comes from the reference is seen.
+/// </summary>
+public sealed class GuessConfirmationTests
+{
+    [Fact]
+    public void A_guessed_family_that_was_right_keeps_the_tones_and_baud_the_draft_measured()
+    {
+        string truth = RandomFormats.Draw("fsk-sync", new Random(11));
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        double markHz = draft["fsk"]!["markHz"]!.GetValue<double>() * 1.04;
+        double baud = draft["fsk"]!["baud"]!.GetValue<double>() * 1.04;
+        draft["fsk"]!["markHz"] = markHz;
+        draft["fsk"]!["spaceHz"] = draft["fsk"]!["spaceHz"]!.GetValue<double>() * 1.04;
+        draft["fsk"]!["baud"] = baud;
+
+        var confirmed = ProfileLoader.Parse(GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["family"]), "confirmed");
+
+        Assert.Equal(FormatFamily.Fsk, confirmed.Family);
+        Assert.Equal(markHz, confirmed.Fsk!.MarkHz, 6);
+        Assert.Equal(baud, confirmed.Fsk.Baud, 6);
+    }
+
+    [Fact]
+    public void A_guessed_family_that_was_wrong_leaves_a_draft_with_no_section_for_the_right_family()
+    {
+        string truth = RandomFormats.Draw("fsk-sync", new Random(12));
+        string draft = RandomFormats.Draw("pulse-width", new Random(12));
+
+        string confirmed = GuessConfirmation.Confirm(draft, truth, ["family"]);
+
+        // The family's name is confirmed, the tones were never measured: the draft cannot be read as FSK.
+        Assert.Equal("fsk", JsonNode.Parse(confirmed)!["family"]!.GetValue<string>());
+        Assert.Null(JsonNode.Parse(confirmed)!["fsk"]);
+        Assert.Throws<ProfileException>(() => ProfileLoader.Parse(confirmed, "confirmed"));
+    }
+
+    [Fact]
+    public void The_earlier_rule_is_kept_only_for_comparison_and_takes_the_reference_section()
+    {
+        string truth = RandomFormats.Draw("fsk-sync", new Random(11));
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        draft["fsk"]!["markHz"] = draft["fsk"]!["markHz"]!.GetValue<double>() * 1.04;
+
+        var confirmed = ProfileLoader.Parse(GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["family"], ConfirmationRule.Earlier), "confirmed");
+
+        Assert.Equal(ProfileLoader.Parse(truth, "truth").Fsk!.MarkHz, confirmed.Fsk!.MarkHz);
+    }
+
+    [Fact]
+    public void A_guessed_header_keeps_where_the_draft_measured_the_check_to_start()
+    {
+        string truth = RandomFormats.Draw("fsk-sync", new Random(13));
+        var reference = JsonNode.Parse(truth)!.AsObject();
+
+        // The reference's check covers the name on; the draft measured it from the block number on, with the name
+        // bytes as one unknown field ahead of it.
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        draft["layout"]!["header"] = new JsonArray(
+            new JsonObject { ["name"] = "sync", ["bytes"] = 3, ["role"] = "sync", ["expect"] = reference["layout"]!["header"]![0]!["expect"]!.DeepClone() },
+            new JsonObject { ["name"] = "field-3", ["bytes"] = 8, ["role"] = "other" },
+            new JsonObject { ["name"] = "block", ["bytes"] = 1, ["role"] = "other" },
+            new JsonObject { ["name"] = "length", ["bytes"] = 2, ["role"] = "payload-length", ["endian"] = "little" });
+        draft["layout"]!["checksum"]!["covers"] = new JsonArray("block", "length", "payload");
+        draft["layout"]!["maximumPayloadBytes"] = 100;
+
+        var confirmed = JsonNode.Parse(GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["layout.header"]))!;
+
+        // The header is the reference's; the check still starts at byte 11, where the draft found it holding.
+        Assert.Equal(reference["layout"]!["header"]!.ToJsonString(), confirmed["layout"]!["header"]!.ToJsonString());
+        Assert.Equal("[\"block\",\"length\",\"payload\"]", confirmed["layout"]!["checksum"]!["covers"]!.ToJsonString());
+        Assert.Equal(100, confirmed["layout"]!["maximumPayloadBytes"]!.GetValue<int>());
+        ProfileLoader.Parse(confirmed.ToJsonString(), "confirmed");
+    }
+
+    [Fact]
+    public void A_guessed_header_keeps_the_sync_field_the_draft_measured_where_the_reference_writes_its_sync_as_pulses()
+    {
+        // The reference writes its sync as pulse classes; the draft measured the same sync as whole bytes (the lead-in's
+        // bits before it) and wrote it as the header's first field, with no class sequence.
+        string truth = RandomFormats.Draw("pulse-width", new Random(14));
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        ((JsonObject)draft["pulseWidth"]!).Remove("sync");
+        var header = (JsonArray)draft["layout"]!["header"]!;
+        var names = new JsonArray([.. header.Select(f => (JsonNode)JsonValue.Create(f!["name"]!.GetValue<string>())!), JsonValue.Create("payload")]);
+        header.Insert(0, new JsonObject { ["name"] = "sync", ["bytes"] = 1, ["role"] = "sync", ["expect"] = new JsonArray("A5") });
+        draft["layout"]!["checksum"]!["covers"] = names;
+
+        string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["layout.header"]);
+
+        var node = JsonNode.Parse(confirmed)!;
+        Assert.Equal("sync", node["layout"]!["header"]![0]!["role"]!.GetValue<string>());
+        Assert.DoesNotContain("\"sync\"", node["layout"]!["checksum"]!["covers"]!.ToJsonString(), StringComparison.Ordinal);
+        ProfileLoader.Parse(confirmed, "confirmed");
+    }
+}
