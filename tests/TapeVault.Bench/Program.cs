@@ -38,6 +38,12 @@ if (section == "read-loss")
     return ReadLoss.Run(work, args[1..]);
 }
 
+if (section == "stages")
+{
+    // stages [PROFILE [MINUTES [ROUNDS]]]: where a decode's processor time goes, stage by stage (Stages).
+    return Stages.Run(work, args[1..]);
+}
+
 if (section == "trust-fit")
 {
     // trust-fit --dump FILE --out FILE --note TEXT: fits the confidence map from a trust run's dump (TAPEVAULT_TRUST_DUMP) of tuning seeds.

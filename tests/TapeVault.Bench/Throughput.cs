@@ -39,7 +39,7 @@ public static class Throughput
         // The outside references, measured first and again at the end so a change of load between shows.
         var reference = MeasureReferences(kcs);
         Console.WriteLine();
-        Console.WriteLine($"{"profile",-18} {"family",-12} {"scan s",7} {"bank s",7} {"vs scan",8} {"vs mm",6} {"x real",7} {"Ms/s",6} {"cpu s",6} {"cpu/scan",8} {"cpu/mm",6} {"scan MB",8} {"bank MB",8} {"blocks",14}");
+        Console.WriteLine($"{"profile",-18} {"family",-12} {"scan s",7} {"sox s",6} {"bank s",7} {"vs scan",8} {"vs sox",7} {"vs mm",6} {"x real",7} {"Ms/s",6} {"cpu s",6} {"cpu/scan",8} {"cpu/mm",6} {"scan MB",8} {"bank MB",8} {"blocks",14}");
         Row(reference.MinimodemCapture, "kcs-300", minutes, reference);
         foreach (string id in Profiles)
         {
@@ -65,7 +65,7 @@ public static class Throughput
         Console.WriteLine($"Load at end: {Load()}");
         var again = MeasureReferences(kcs);
         Console.WriteLine("cpu: user + system seconds of the whole process (GNU time); on a shared machine the CPU ratios move less than the wall-clock ones.");
-        Console.WriteLine($"Ratios are against the scan of the same file and against minimodem --rx on the minimodem KCS file, both measured in this run.");
+        Console.WriteLine($"Ratios are against our own scan and SoX's stat of the same file, and against minimodem --rx on the minimodem KCS file, all measured in this run.");
         Console.WriteLine($"minimodem at the start {reference.Minimodem.Seconds:0.00} s, at the end {again.Minimodem.Seconds:0.00} s (the load moved by their ratio).");
         Console.WriteLine("Goals: vs scan <= 4, vs minimodem < 1 (FSK), >= 1000x real time on 2 cores, peak memory < 300 MB and flat with length.");
         Console.WriteLine();
@@ -88,12 +88,14 @@ public static class Throughput
     {
         var profile = ProfileCatalog.BuiltIn.Get(id);
         var scan = Median(() => Child("scan", path, id));
+        // SoX's stat over the same file (read, convert, sum): the outside tool's bare scan beside our own.
+        var sox = Median(() => Measure(OutsideDamage.SoxPath, [path, "-n", "stat"]));
         var bank = Median(() => Child("bank", path, id));
         double seconds = DurationSeconds(path);
         double samples = seconds * 44_100;
         string label = path == reference.MinimodemCapture ? $"{id} minimodem" : $"{id} {minutes}'";
         Console.WriteLine(
-            $"{label,-18} {profile.Family.ToString().ToLowerInvariant(),-12} {scan.Seconds,7:0.00} {bank.Seconds,7:0.00} {bank.Seconds / scan.Seconds,8:0.00} " +
+            $"{label,-18} {profile.Family.ToString().ToLowerInvariant(),-12} {scan.Seconds,7:0.00} {sox.Seconds,6:0.00} {bank.Seconds,7:0.00} {bank.Seconds / scan.Seconds,8:0.00} {bank.Seconds / sox.Seconds,7:0.00} " +
             $"{bank.Seconds / reference.Minimodem.Seconds,6:0.00} {seconds / bank.Seconds,7:0} {samples / bank.Seconds / 1e6,6:0.0} {bank.CpuSeconds,6:0.00} {bank.CpuSeconds / scan.CpuSeconds,8:0.00} {bank.CpuSeconds / reference.Minimodem.CpuSeconds,6:0.00} " +
             $"{scan.PeakMegabytes,8:0} {bank.PeakMegabytes,8:0} {bank.Note,14}");
     }

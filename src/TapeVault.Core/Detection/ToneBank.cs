@@ -100,24 +100,29 @@ public sealed class ToneBank
             // And a word a sample of the gate's answers: lane i's carrier in bit i, pure mark in bit 4 + i, pure space
             // in bit 8 + i.
             var gated = gates.Slice(outputOffset, conditioned.Length);
-            for (int n = 0; n < conditioned.Length; n++)
+
+            // Counters here stay below the chunk length: unchecked keeps the loop free of overflow tests.
+            unchecked
             {
-                // Widening single to double is exact: the same x as the scalar correlator's.
-                var (lower, higher) = Vector256.Widen(conditioned[n]);
-                var x = upper ? higher : lower;
+                for (int n = 0; n < conditioned.Length; n++)
+                {
+                    // Widening single to double is exact: the same x as the scalar correlator's.
+                    var (lower, higher) = Vector256.Widen(conditioned[n]);
+                    var x = upper ? higher : lower;
 
-                // Both tones' correlators: the operator's vector form (ToneCorrelator.Slide), the oscillators shared.
-                var markEnergy = ToneCorrelator.Slide(x, oscillator.MarkCos, oscillator.MarkSin, ref markRing[ring], ref sumMarkI, ref sumMarkQ);
-                var spaceEnergy = ToneCorrelator.Slide(x, oscillator.SpaceCos, oscillator.SpaceSin, ref spaceRing[ring], ref sumSpaceI, ref sumSpaceQ);
-                oscillator.Turn();
-                ring = ring + 1 == markRing.Length ? 0 : ring + 1;
-                target[2 * n] = markEnergy;
-                target[(2 * n) + 1] = spaceEnergy;
+                    // Both tones' correlators: the operator's vector form (ToneCorrelator.Slide), the oscillators shared.
+                    var markEnergy = ToneCorrelator.Slide(x, oscillator.MarkCos, oscillator.MarkSin, ref markRing[ring], ref sumMarkI, ref sumMarkQ);
+                    var spaceEnergy = ToneCorrelator.Slide(x, oscillator.SpaceCos, oscillator.SpaceSin, ref spaceRing[ring], ref sumSpaceI, ref sumSpaceQ);
+                    oscillator.Turn();
+                    ring = ring + 1 == markRing.Length ? 0 : ring + 1;
+                    target[2 * n] = markEnergy;
+                    target[(2 * n) + 1] = spaceEnergy;
 
-                var carrier = ToneGate.Next(markEnergy, spaceEnergy, ref reference, silence, gain, out var pureMark, out var pureSpace);
-                gated[n] = (int)(carrier.ExtractMostSignificantBits()
-                    | (pureMark.ExtractMostSignificantBits() << LanesPerQuad)
-                    | (pureSpace.ExtractMostSignificantBits() << (2 * LanesPerQuad)));
+                    var carrier = ToneGate.Next(markEnergy, spaceEnergy, ref reference, silence, gain, out var pureMark, out var pureSpace);
+                    gated[n] = (int)(carrier.ExtractMostSignificantBits()
+                        | (pureMark.ExtractMostSignificantBits() << LanesPerQuad)
+                        | (pureSpace.ExtractMostSignificantBits() << (2 * LanesPerQuad)));
+                }
             }
 
             _oscillator = oscillator;

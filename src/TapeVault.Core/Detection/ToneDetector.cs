@@ -77,26 +77,42 @@ public struct ToneDetector
         // space and late at every rise to mark, and the bit timing, which hangs on those crossings, would slip.
         // A level starts as the plain mean of what has been seen (the first windows that pass the test are the least
         // pure ones, at the edge of a lone bit) and becomes a running average once it has enough behind it.
+        // The levels and the balance are carried in locals from the fields' load to D and stored once: D hangs on the
+        // level just learnt through two divisions, and a field written and read back would put the store's round trip
+        // twice on that path. The arithmetic is that of the fields, operation for operation.
+        double markLevel = _markLevel;
+        double spaceLevel = _spaceLevel;
+        double balance = _balance;
         if (learnMark && (gate & ToneGate.PureMark) != 0)
         {
-            _markLevelSamples++;
-            _markLevel += (mark - _markLevel) * LevelStep(_markLevelSamples);
-            KeepBalance();
+            double samples = _markLevelSamples + 1;
+            _markLevelSamples = samples;
+            markLevel += (mark - markLevel) * LevelStep(samples);
+            _markLevel = markLevel;
+            if (Rebalance(markLevel, spaceLevel, ref balance))
+            {
+                _balance = balance;
+            }
         }
         else if (learnSpace && (gate & ToneGate.PureSpace) != 0)
         {
-            _spaceLevelSamples++;
-            _spaceLevel += (space - _spaceLevel) * LevelStep(_spaceLevelSamples);
-            KeepBalance();
+            double samples = _spaceLevelSamples + 1;
+            _spaceLevelSamples = samples;
+            spaceLevel += (space - spaceLevel) * LevelStep(samples);
+            _spaceLevel = spaceLevel;
+            if (Rebalance(markLevel, spaceLevel, ref balance))
+            {
+                _balance = balance;
+            }
         }
 
-        if (_markLevel <= 0 || _spaceLevel <= 0)
+        if (markLevel <= 0 || spaceLevel <= 0)
         {
             // Until both tones have been heard alone, assume they are balanced.
             return (float)((mark - space) / (mark + space));
         }
 
-        return Balanced(mark, space, _balance);
+        return Balanced(mark, space, balance);
     }
 
     /// <summary>
@@ -131,15 +147,21 @@ public struct ToneDetector
     private readonly double LevelStep(double samples) => samples > _settledSamples ? _levelGain : Math.Max(_levelGain, 1.0 / samples);
 
     /// <summary>
-    /// Rebalancing is bounded: past 12 dB between the tones (more than any deck's high-frequency loss, common
-    /// practice) the weaker tone is mostly gone, and lifting it further would lift noise into confident decisions.
+    /// The mark level over the space level, kept whenever a level changes and both are known. Rebalancing is bounded:
+    /// past 12 dB between the tones (more than any deck's high-frequency loss, common practice) the weaker tone is
+    /// mostly gone, and lifting it further would lift noise into confident decisions. Gives whether
+    /// <paramref name="balance"/> was set.
     /// </summary>
-    private void KeepBalance()
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static bool Rebalance(double markLevel, double spaceLevel, ref double balance)
     {
-        if (_markLevel > 0 && _spaceLevel > 0)
+        if (markLevel > 0 && spaceLevel > 0)
         {
-            _balance = Math.Clamp(_markLevel / _spaceLevel, 1.0 / MaximumToneImbalance, MaximumToneImbalance);
+            balance = Math.Clamp(markLevel / spaceLevel, 1.0 / MaximumToneImbalance, MaximumToneImbalance);
+            return true;
         }
+
+        return false;
     }
 
     /// <summary>A new recording learns its own tone balance: the space level starts again from the next pure window.</summary>
