@@ -67,6 +67,14 @@ public sealed class ArchiveOptions
     [Range(1, 64)]
     public int Workers { get; set; } = 2;
 
+    /// <summary>
+    /// How old the last walk along the whole event chain may be before a fixity audit walks it whole again, in days; in
+    /// between, an audit walks only the events after the last audit's verified head (docs/event-chain.md, "Checkpoints").
+    /// 0: every audit walks the whole chain.
+    /// </summary>
+    [Range(0, 3650)]
+    public int WholeChainWalkDays { get; set; } = 7;
+
     /// <summary>How many times a job interrupted by a restart is started again before it is failed.</summary>
     [Range(1, 100)]
     public int MaxAttempts { get; set; } = 3;

@@ -56,8 +56,9 @@ public sealed class ArchiveFixture : IAsyncDisposable
     /// <summary>
     /// Builds the archive on the PostgreSQL database <paramref name="postgreSql"/> names; without one, on the test
     /// run's provider (<see cref="TestDatabase"/>): an SQLite file in the folder, or a fresh PostgreSQL database.
+    /// <paramref name="clock"/>, when given, is the archive's clock in place of the system's.
     /// </summary>
-    public static async Task<ArchiveFixture> CreateAsync(string conditionNotes = "Slight oxide shedding.", string? postgreSql = null)
+    public static async Task<ArchiveFixture> CreateAsync(string conditionNotes = "Slight oxide shedding.", string? postgreSql = null, TimeProvider? clock = null)
     {
         var root = Directory.CreateTempSubdirectory("tapevault-archive-test-").FullName;
         var options = new ArchiveOptions { BaseFolder = root, DatabasePath = "archive.db", StorePath = "store" };
@@ -72,6 +73,11 @@ public sealed class ArchiveFixture : IAsyncDisposable
 
         var collection = new ServiceCollection();
         collection.AddLogging();
+        if (clock is not null)
+        {
+            collection.AddSingleton(clock);
+        }
+
         options.Organisation = new Organisation { Name = "Test Archive", Address = "1 Test Street\nTestford", ContactEmail = "archive@example.org" };
         collection.AddTapeVaultArchive(options, ProfileCatalog.BuiltIn);
         var fixture = new ArchiveFixture(root, collection.BuildServiceProvider(), ownDatabase);

@@ -213,7 +213,7 @@ public sealed class TamperTests
     /// Drops every trigger on Events, runs the edit, and puts the triggers back exactly as they were (on PostgreSQL:
     /// disables the table's own triggers for the edit, ALTER TABLE … DISABLE TRIGGER USER, and enables them again).
     /// </summary>
-    private static void TamperBehindTriggers(ArchiveFixture archive, string edit)
+    internal static void TamperBehindTriggers(ArchiveFixture archive, string edit)
     {
         if (archive.Options.Provider == DatabaseProvider.PostgreSql)
         {

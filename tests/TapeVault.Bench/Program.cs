@@ -62,6 +62,12 @@ if (section == "positions")
     return PositionReplay.Run(args[1..]);
 }
 
+if (section == "memory")
+{
+    // memory [PROFILE ...] [--minutes 30,60,120]: peak memory of the decode over long captures; see LongCaptureMemory.
+    return LongCaptureMemory.Run(work, args[1..]);
+}
+
 if (section == "scale")
 {
     // scale [--tapes N] [--captures N] [--capture-kb N] [--blocks N] [--requests N] [--rebuild]: see Scale and docs/performance.md.

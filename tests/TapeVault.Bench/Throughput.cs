@@ -223,7 +223,7 @@ public static class Throughput
         Console.WriteLine($"(made {Path.GetFileName(path)} with minimodem and SoX in {clock.Elapsed.TotalSeconds:0} s)");
     }
 
-    private readonly record struct Measured(double Seconds, double CpuSeconds, double PeakMegabytes, string Note);
+    internal readonly record struct Measured(double Seconds, double CpuSeconds, double PeakMegabytes, string Note);
 
     // This machine's speed wanders from run to run: each figure is the median of three runs.
     private static Measured Median(Func<Measured> run)
@@ -239,7 +239,7 @@ public static class Throughput
     }
 
     /// <summary>A benchmark child process: the whole process is timed, start-up included.</summary>
-    private static Measured Child(string mode, string path, string profile) =>
+    internal static Measured Child(string mode, string path, string profile) =>
         Measure(Environment.ProcessPath!, ["--child", mode, path, profile]);
 
     /// <summary>

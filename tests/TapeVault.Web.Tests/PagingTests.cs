@@ -1,7 +1,11 @@
+using System.Buffers.Binary;
 using System.Net;
 using AngleSharp.Html.Parser;
 using Microsoft.Extensions.DependencyInjection;
+using TapeVault.Archive;
 using TapeVault.Archive.Curation;
+using TapeVault.Archive.Entities;
+using TapeVault.Archive.Ingest;
 using TapeVault.Web.Tests.Support;
 using Xunit;
 
@@ -45,6 +49,69 @@ public sealed class PagingTests
         // A page past the end shows the last page rather than an empty list.
         var past = await PageAsync(viewer, $"/collections/{collectionId}?tapes=5000");
         Assert.Equal(5, past.QuerySelectorAll("table.grid tbody tr").Length);
+    }
+
+    [Fact]
+    public async Task CollectionPage_CountsEachTapesOwnCapturesAndDecodeRuns()
+    {
+        using var folder = new ArchiveFolder();
+        await using var app = new ArchiveAppFactory(folder);
+        await app.AddCuratorAndViewerAsync();
+        using var viewer = await app.SignedInAsync(ArchiveAppFactory.ViewerName);
+        int collectionId;
+
+        // Three tapes with 2, 1 and 0 captures; the first capture of the first tape decoded twice, the second tape's once.
+        int[] captures = [2, 1, 0];
+        int[] runs = [2, 1, 0];
+        await using (var scope = app.Scope())
+        {
+            var actions = scope.ServiceProvider.GetRequiredService<CuratorActions>();
+            var ingest = scope.ServiceProvider.GetRequiredService<CaptureIngest>();
+            var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+            collectionId = (await actions.CreateCollectionAsync("Counted shelf", null, "curator")).Id;
+            for (int t = 0; t < captures.Length; t++)
+            {
+                int item = (await actions.CreateItemAsync(collectionId, $"CNT-{t + 1}", $"Tape {t + 1}", null, null, null, "curator")).Id;
+                var ids = new List<int>();
+                for (int p = 0; p < captures[t]; p++)
+                {
+                    using var body = new MemoryStream(SilentWav(100 + (10 * t) + p));
+                    ids.Add((await ingest.IngestAsync(body, new IngestRequest { ItemId = item, FileName = $"pass-{p + 1}.wav", ContentType = "audio/wav", Agent = "curator" })).Capture.Id);
+                }
+
+                for (int r = 0; r < runs[t]; r++)
+                {
+                    db.Runs.Add(new DecodeRun { CaptureId = ids[0], ProfileId = "orrin-80", SettingsJson = "[]", CodeVersion = "test", Outcome = "nothing read" });
+                }
+            }
+
+            await db.SaveChangesAsync();
+        }
+
+        var page = await PageAsync(viewer, $"/collections/{collectionId}");
+        var rows = page.QuerySelectorAll("table.grid tbody tr").Select(r => r.QuerySelectorAll("td").Select(d => d.TextContent.Trim()).ToArray()).ToList();
+        Assert.Equal(["CNT-1", "CNT-2", "CNT-3"], rows.Select(r => r[0]));
+        Assert.Equal(captures.Select(c => c.ToString(System.Globalization.CultureInfo.InvariantCulture)), rows.Select(r => r[3]));
+        Assert.Equal(runs.Select(c => c.ToString(System.Globalization.CultureInfo.InvariantCulture)), rows.Select(r => r[4]));
+    }
+
+    /// <summary>A 16-bit mono 8 kHz PCM WAV of <paramref name="samples"/> zero samples (its length makes it distinct).</summary>
+    private static byte[] SilentWav(int samples)
+    {
+        var wav = new byte[44 + (2 * samples)];
+        "RIFF"u8.CopyTo(wav);
+        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(4), wav.Length - 8);
+        "WAVEfmt "u8.CopyTo(wav.AsSpan(8));
+        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(16), 16);
+        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(20), 1);
+        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(22), 1);
+        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(24), 8000);
+        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(28), 16_000);
+        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(32), 2);
+        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(34), 16);
+        "data"u8.CopyTo(wav.AsSpan(36));
+        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(40), 2 * samples);
+        return wav;
     }
 
     private static async Task<AngleSharp.Dom.IDocument> PageAsync(ApiClient client, string path)

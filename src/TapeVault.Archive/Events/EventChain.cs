@@ -17,7 +17,11 @@ public sealed record ChainHead(long EventId, string Sha256)
 public sealed record ChainBreak(long EventId, string Reason);
 
 /// <summary>What a walk along the chain found: how many events, the head, and the first broken link (null when none).</summary>
-public sealed record ChainReport(int Events, ChainHead? Head, ChainBreak? FirstBreak)
+/// <param name="From">
+/// The verified head the walk started after (a checkpoint, docs/event-chain.md): the events up to it were not walked
+/// again. Null when the walk started at the first event.
+/// </param>
+public sealed record ChainReport(int Events, ChainHead? Head, ChainBreak? FirstBreak, ChainHead? From = null)
 {
     public bool Intact => FirstBreak is null;
 }
@@ -229,7 +233,16 @@ public static class EventChain
     /// Walks the log in id order up to event <paramref name="throughEventId"/> (a head read earlier: what was chained
     /// then, whatever was added since), recomputing every link; stops at the first that does not hold.
     /// </summary>
-    public static async Task<ChainReport> VerifyAsync(ArchiveDbContext db, long? throughEventId, CancellationToken cancellation = default)
+    public static Task<ChainReport> VerifyAsync(ArchiveDbContext db, long? throughEventId, CancellationToken cancellation = default) =>
+        VerifyAsync(db, from: null, throughEventId, cancellation);
+
+    /// <summary>
+    /// Walks the log in id order after the verified head <paramref name="from"/> (null: from the first event) up to event
+    /// <paramref name="throughEventId"/>, recomputing every link; stops at the first that does not hold. From a head,
+    /// the event it names must still be there with its hash, and the first event after it must name that hash: an
+    /// edit at or after the head is found, one before it is left to a walk of the whole chain (docs/event-chain.md).
+    /// </summary>
+    public static async Task<ChainReport> VerifyAsync(ArchiveDbContext db, ChainHead? from, long? throughEventId, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(db);
         var events = db.Events.AsNoTracking();
@@ -238,9 +251,21 @@ public static class EventChain
             events = events.Where(e => e.Id <= through);
         }
 
+        var walk = new Walk();
+        if (from is not null)
+        {
+            if (await CheckKeptHeadAsync(db, from, cancellation).ConfigureAwait(false) is { } moved)
+            {
+                return new ChainReport(0, null, new ChainBreak(from.EventId, $"The head an earlier audit verified no longer holds. {moved}"), from);
+            }
+
+            walk.StartAfter(from);
+            long after = from.EventId;
+            events = events.Where(e => e.Id > after);
+        }
+
         // Read in order on this thread, a chunk at a time; each chunk's hashes are recomputed on every core while the
         // next chunk is read. Every link is still checked, in id order, against the event before it.
-        var walk = new Walk();
         Task<ChainBreak?>? checking = null;
         var chunk = new List<ArchiveEvent>(WalkChunk);
         await foreach (var e in events.OrderBy(e => e.Id).AsAsyncEnumerable().WithCancellation(cancellation).ConfigureAwait(false))
@@ -253,7 +278,7 @@ public static class EventChain
 
             if (checking is not null && await checking.ConfigureAwait(false) is { } broken)
             {
-                return new ChainReport(walk.Count, walk.Head, broken);
+                return new ChainReport(walk.Count, walk.Head, broken, from);
             }
 
             var full = chunk;
@@ -263,10 +288,11 @@ public static class EventChain
 
         if (checking is not null && await checking.ConfigureAwait(false) is { } late)
         {
-            return new ChainReport(walk.Count, walk.Head, late);
+            return new ChainReport(walk.Count, walk.Head, late, from);
         }
 
-        return walk.Check(chunk, cancellation) is { } last ? new ChainReport(walk.Count, walk.Head, last) : new ChainReport(walk.Count, walk.Head, null);
+        var last = walk.Check(chunk, cancellation);
+        return new ChainReport(walk.Count, walk.Head, last, from);
     }
 
     /// <summary>How many events the chain's walk reads before handing them to be checked.</summary>
@@ -281,6 +307,14 @@ public static class EventChain
         public int Count { get; private set; }
 
         public ChainHead? Head { get; private set; }
+
+        /// <summary>Starts the walk after a verified head instead of at the first event.</summary>
+        public void StartAfter(ChainHead head)
+        {
+            previous = head.Sha256;
+            previousId = head.EventId;
+            Head = head;
+        }
 
         /// <summary>Checks the next events in id order; returns the first broken link among them, or null.</summary>
         public ChainBreak? Check(List<ArchiveEvent> events, CancellationToken cancellation)

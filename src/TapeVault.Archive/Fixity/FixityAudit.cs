@@ -15,6 +15,19 @@ public sealed record FixityReport(int Checked, int Good, IReadOnlyList<FixityFin
     public bool AllGood => Problems.Count == 0;
 }
 
+/// <summary>How much of the event chain an audit walks.</summary>
+public enum ChainWalk
+{
+    /// <summary>
+    /// From the head the last audit verified (its checkpoint) on, unless the last walk of the whole chain is older than
+    /// <see cref="ArchiveOptions.WholeChainWalkDays"/> or there is none: then the whole chain (the scheduled audit's walk).
+    /// </summary>
+    WhenDue,
+
+    /// <summary>The whole chain from its first event (<c>tapevault verify</c>'s walk).</summary>
+    Whole,
+}
+
 /// <summary>How far an audit has got, for progress bars.</summary>
 public readonly record struct FixityProgress(int Done, int Total);
 
@@ -24,7 +37,7 @@ public readonly record struct FixityProgress(int Done, int Total);
 /// must agree on SHA-256 and size); and reports files in the store that no row names, and object rows nothing uses.
 /// Records one fixity-check event per object. It only reads: nothing is repaired, replaced, moved or removed.
 /// </summary>
-public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<ArchiveDbContext> contexts, ContentStore store)
+public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<ArchiveDbContext> contexts, ContentStore store, ArchiveOptions options)
 {
     public const string Ok = "ok";
     public const string Mismatch = "mismatch";
@@ -42,7 +55,17 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
     /// <summary>A link of the event chain that does not hold.</summary>
     public const string ChainBroken = "chain-broken";
 
-    public async Task<FixityReport> RunAsync(int? collectionId, string agent, IProgress<FixityProgress>? progress = null, CancellationToken cancellation = default)
+    /// <summary>The event that records a walk of the whole chain (its object id; older audits recorded only this kind).</summary>
+    public const string WholeChain = "chain";
+
+    /// <summary>The event that records a walk from the last audit's checkpoint on (its object id).</summary>
+    public const string ChainSinceCheckpoint = "chain-since-checkpoint";
+
+    /// <summary>Audits with the scheduled audit's walk along the chain (<see cref="ChainWalk.WhenDue"/>).</summary>
+    public Task<FixityReport> RunAsync(int? collectionId, string agent, IProgress<FixityProgress>? progress = null, CancellationToken cancellation = default) =>
+        RunAsync(collectionId, agent, ChainWalk.WhenDue, progress, cancellation);
+
+    public async Task<FixityReport> RunAsync(int? collectionId, string agent, ChainWalk walk, IProgress<FixityProgress>? progress = null, CancellationToken cancellation = default)
     {
         var started = db.Clock.GetUtcNow();
         if (collectionId is { } id && !await db.Collections.AnyAsync(c => c.Id == id, cancellation).ConfigureAwait(false))
@@ -72,7 +95,8 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
         var hashing = Task.Run(() => HashAllAsync(objects, found, hashed, stopHashing.Token), CancellationToken.None);
         try
         {
-            return await AuditAsync(collectionId, agent, started, places, objects, recorded, found, hashed, progress, cancellation).ConfigureAwait(false);
+            var run = new AuditRun(collectionId, agent, walk, started, places, objects, recorded, found, hashed, progress);
+            return await AuditAsync(run, cancellation).ConfigureAwait(false);
         }
         finally
         {
@@ -81,34 +105,42 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
         }
     }
 
-    private async Task<FixityReport> AuditAsync(
-        int? collectionId,
-        string agent,
-        DateTimeOffset started,
-        Dictionary<string, List<Place>> places,
-        List<Entities.StoredObject> objects,
-        Dictionary<string, Entities.StoredObject> recorded,
-        FileFacts[] found,
-        TaskCompletionSource[] hashed,
-        IProgress<FixityProgress>? progress,
-        CancellationToken cancellation)
+    /// <summary>
+    /// One audit's fixed facts, handed from stage to stage: its scope and agent, how much of the chain it walks, when it
+    /// started, where each object is used, the objects it checks (and every object row, by hash), and the hashing
+    /// running ahead of it (each file's facts, and each batch's end).
+    /// </summary>
+    private sealed record AuditRun(
+        int? CollectionId,
+        string Agent,
+        ChainWalk Walk,
+        DateTimeOffset Started,
+        Dictionary<string, List<Place>> Places,
+        List<Entities.StoredObject> Objects,
+        Dictionary<string, Entities.StoredObject> Recorded,
+        FileFacts[] Found,
+        TaskCompletionSource[] Hashed,
+        IProgress<FixityProgress>? Progress);
+
+    private async Task<FixityReport> AuditAsync(AuditRun run, CancellationToken cancellation)
     {
         // The chain as it stood before this audit added events of its own (up to the head now), walked on a
         // connection of its own while the objects' outcomes are recorded on this one: each link is recomputed, and the
-        // walk overlaps the audit's writes instead of coming before them.
-        var problems = new List<FixityFinding>();
+        // walk overlaps the audit's writes instead of coming before them. From the last audit's checkpoint on, unless a
+        // walk of the whole chain is asked for or due.
         var headBefore = await EventChain.HeadAsync(db, cancellation).ConfigureAwait(false);
+        var from = await CheckpointAsync(run.Walk, headBefore, cancellation).ConfigureAwait(false);
         using var stopWalking = CancellationTokenSource.CreateLinkedTokenSource(cancellation);
         var walking = Task.Run(
             async () =>
             {
                 await using var reader = await contexts.CreateDbContextAsync(stopWalking.Token).ConfigureAwait(false);
-                return await EventChain.VerifyAsync(reader, headBefore?.EventId ?? 0, stopWalking.Token).ConfigureAwait(false);
+                return await EventChain.VerifyAsync(reader, from, headBefore?.EventId ?? 0, stopWalking.Token).ConfigureAwait(false);
             },
             CancellationToken.None);
         try
         {
-            return await RecordAsync(collectionId, agent, started, places, objects, recorded, found, hashed, progress, problems, walking, cancellation).ConfigureAwait(false);
+            return await RecordAsync(run, walking, cancellation).ConfigureAwait(false);
         }
         finally
         {
@@ -117,20 +149,46 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
         }
     }
 
-    private async Task<FixityReport> RecordAsync(
-        int? collectionId,
-        string agent,
-        DateTimeOffset started,
-        Dictionary<string, List<Place>> places,
-        List<Entities.StoredObject> objects,
-        Dictionary<string, Entities.StoredObject> recorded,
-        FileFacts[] found,
-        TaskCompletionSource[] hashed,
-        IProgress<FixityProgress>? progress,
-        List<FixityFinding> problems,
-        Task<ChainReport> walking,
-        CancellationToken cancellation)
+    /// <summary>
+    /// Where this audit's walk starts: after the head the newest intact walk verified (recorded in its chain event), or
+    /// null for the whole chain: when asked, when there is no such walk, or when the newest walk of the whole chain is
+    /// older than <see cref="ArchiveOptions.WholeChainWalkDays"/>. The checkpoint's own event lies after the head it
+    /// names, so the walk from that head re-hashes it: a checkpoint edited to skip events breaks its own link.
+    /// </summary>
+    private async Task<ChainHead?> CheckpointAsync(ChainWalk walk, ChainHead? headBefore, CancellationToken cancellation)
     {
+        if (walk == ChainWalk.Whole || options.WholeChainWalkDays == 0 || headBefore is null)
+        {
+            return null;
+        }
+
+        var walks = db.Events.AsNoTracking()
+            .Where(e => e.EventType == EventTypes.FixityCheck && e.ObjectType == ChainObjectType && e.Outcome == Ok && e.Id <= headBefore.EventId);
+        var whole = await walks.Where(e => e.ObjectId == WholeChain).OrderByDescending(e => e.Id)
+            .Select(e => new { e.Id, e.OccurredUtc }).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+        if (whole is null || db.Clock.GetUtcNow() - whole.OccurredUtc > TimeSpan.FromDays(options.WholeChainWalkDays))
+        {
+            return null;
+        }
+
+        var newest = await walks.Where(e => e.ObjectId == WholeChain || e.ObjectId == ChainSinceCheckpoint).OrderByDescending(e => e.Id)
+            .Select(e => new { e.Id, e.Detail }).FirstAsync(cancellation).ConfigureAwait(false);
+        return WalkedHead().Match(newest.Detail) is { Success: true } said && EventChain.ParseHead(said.Groups["head"].Value) is { } head && head.EventId < newest.Id
+            ? head
+            : null;
+    }
+
+    /// <summary>The object type of the events that record a walk along the chain.</summary>
+    private const string ChainObjectType = "event-log";
+
+    /// <summary>The head a walk verified, as its event's detail ends: "…; head event N sha256:H.".</summary>
+    [System.Text.RegularExpressions.GeneratedRegex(@"; head (?<head>event [0-9]+ sha256:[0-9a-f]{64})\.$", System.Text.RegularExpressions.RegexOptions.CultureInvariant)]
+    private static partial System.Text.RegularExpressions.Regex WalkedHead();
+
+    private async Task<FixityReport> RecordAsync(AuditRun run, Task<ChainReport> walking, CancellationToken cancellation)
+    {
+        var (collectionId, agent, _, started, places, objects, recorded, found, hashed, progress) = run;
+        var problems = new List<FixityFinding>();
         int good = 0;
         var checks = new List<Entities.ArchiveEvent>(EventsPerSave);
         for (int i = 0; i < objects.Count; i++)
@@ -201,8 +259,9 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
             problems.Insert(0, new FixityFinding(stored ?? string.Empty, ChainBroken, "event", null, null, $"event {broken.EventId}", broken.Reason));
         }
 
-        EventLog.Add(db, EventTypes.FixityCheck, agent, "event-log", "chain", chain.Intact ? Ok : ChainBroken,
-            chain.FirstBreak is { } b ? $"First broken link: {b.Reason}" : $"{chain.Events} event(s) chained; head {chain.Head?.ToString() ?? "none"}.");
+        string walked = chain.From is { } checkpoint ? $"from the last audit's checkpoint, {checkpoint}, on" : "the whole chain";
+        EventLog.Add(db, EventTypes.FixityCheck, agent, ChainObjectType, chain.From is null ? WholeChain : ChainSinceCheckpoint, chain.Intact ? Ok : ChainBroken,
+            chain.FirstBreak is { } b ? $"Walked {walked}. First broken link: {b.Reason}" : $"Walked {walked}: {chain.Events} event(s) chained; head {chain.Head?.ToString() ?? "none"}.");
 
         problems.AddRange(await CrossCheckCapturesAsync(collectionId, recorded, cancellation).ConfigureAwait(false));
         problems.AddRange(await UnrecordedFilesAsync(collectionId, recorded, places, cancellation).ConfigureAwait(false));

@@ -40,7 +40,7 @@ public sealed class FixityJob(IServiceScopeFactory scopes) : IJobHandler
         await pending.ConfigureAwait(false);
         string chain = report.Chain.FirstBreak is { } broken
             ? $"The event chain is broken at event {broken.EventId}: {broken.Reason}"
-            : $"Event chain intact ({report.Chain.Events} events); head now {report.HeadAfter?.ToString() ?? "none"}.";
+            : $"Event chain intact ({report.Chain.Events} events{(report.Chain.From is { } from ? $" walked from the last audit's checkpoint, {from}" : string.Empty)}); head now {report.HeadAfter?.ToString() ?? "none"}.";
         if (report.AllGood)
         {
             return new JobOutcome(null, $"Fixity audit: all {report.Checked} stored object(s) match their recorded SHA-256 and their records agree. {chain}");

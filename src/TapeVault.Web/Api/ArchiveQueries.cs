@@ -42,10 +42,19 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
         var c = await db.Collections.AsNoTracking().FirstOrDefaultAsync(c => c.Id == id, cancellation).ConfigureAwait(false)
             ?? throw new ArchiveNotFoundException($"There is no collection {id}.");
         int total = await db.Items.CountAsync(i => i.CollectionId == id, cancellation).ConfigureAwait(false);
-        var items = await db.Items.AsNoTracking().Where(i => i.CollectionId == id).OrderBy(i => i.AccessionNumber)
+
+        // The page's tapes first, then the counts of those tapes alone: counted in the same query, the database works
+        // them out for every tape of the collection before it sorts and cuts the page (about 230 ms for 10 000 tapes).
+        var page = await db.Items.AsNoTracking().Where(i => i.CollectionId == id).OrderBy(i => i.AccessionNumber)
             .Skip(Math.Max(0, from)).Take(Math.Max(1, take))
-            .Select(i => new ItemSummary(i.Id, i.AccessionNumber, i.Title, i.Side, i.Captures.Count, i.Captures.SelectMany(x => x.Runs).Count()))
+            .Select(i => new { i.Id, i.AccessionNumber, i.Title, i.Side })
             .ToListAsync(cancellation).ConfigureAwait(false);
+        var ids = page.Select(i => i.Id).ToList();
+        var captures = await db.Captures.AsNoTracking().Where(x => ids.Contains(x.ItemId)).GroupBy(x => x.ItemId)
+            .Select(g => new { g.Key, Count = g.Count() }).ToDictionaryAsync(g => g.Key, g => g.Count, cancellation).ConfigureAwait(false);
+        var runs = await db.Runs.AsNoTracking().Where(r => ids.Contains(r.Capture!.ItemId)).GroupBy(r => r.Capture!.ItemId)
+            .Select(g => new { g.Key, Count = g.Count() }).ToDictionaryAsync(g => g.Key, g => g.Count, cancellation).ConfigureAwait(false);
+        var items = page.Select(i => new ItemSummary(i.Id, i.AccessionNumber, i.Title, i.Side, captures.GetValueOrDefault(i.Id), runs.GetValueOrDefault(i.Id))).ToList();
         return (new CollectionDetail(c.Id, c.Name, c.Description, c.CreatedUtc, items), total);
     }
 

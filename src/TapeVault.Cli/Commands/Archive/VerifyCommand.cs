@@ -44,7 +44,7 @@ public sealed class VerifyCommand : CliCommand
         FixityReport report;
         using (var bar = new ProgressBar("verifying"))
         {
-            report = ArchiveWork.Run(() => session.Get<FixityAudit>().RunAsync(collection, ArchiveSession.Agent, new InlineProgress<FixityProgress>(p => bar.Report((double)p.Done / Math.Max(1, p.Total)))));
+            report = ArchiveWork.Run(() => session.Get<FixityAudit>().RunAsync(collection, ArchiveSession.Agent, ChainWalk.Whole, new InlineProgress<FixityProgress>(p => bar.Report((double)p.Done / Math.Max(1, p.Total)))));
         }
 
         foreach (var p in report.Problems)
