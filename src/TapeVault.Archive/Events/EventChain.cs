@@ -268,22 +268,37 @@ public static class EventChain
         // next chunk is read. Every link is still checked, in id order, against the event before it.
         Task<ChainBreak?>? checking = null;
         var chunk = new List<ArchiveEvent>(WalkChunk);
-        await foreach (var e in events.OrderBy(e => e.Id).AsAsyncEnumerable().WithCancellation(cancellation).ConfigureAwait(false))
+        try
         {
-            chunk.Add(e);
-            if (chunk.Count < WalkChunk)
+            await foreach (var e in events.OrderBy(e => e.Id).AsAsyncEnumerable().WithCancellation(cancellation).ConfigureAwait(false))
             {
-                continue;
+                chunk.Add(e);
+                if (chunk.Count < WalkChunk)
+                {
+                    continue;
+                }
+
+                if (checking is not null && await checking.ConfigureAwait(false) is { } broken)
+                {
+                    return new ChainReport(walk.Count, walk.Head, broken, from);
+                }
+
+                var full = chunk;
+                chunk = new List<ArchiveEvent>(WalkChunk);
+                checking = Task.Run(() => walk.Check(full, cancellation), cancellation);
+            }
+        }
+        catch
+        {
+            // Reading the log failed or was cancelled part way: the check already handed out is waited for, and its own
+            // outcome observed, so no hashing outlives the walk; the read's error is the one reported.
+            if (checking is not null)
+            {
+                await Task.WhenAny(checking).ConfigureAwait(false);
+                _ = checking.Exception;
             }
 
-            if (checking is not null && await checking.ConfigureAwait(false) is { } broken)
-            {
-                return new ChainReport(walk.Count, walk.Head, broken, from);
-            }
-
-            var full = chunk;
-            chunk = new List<ArchiveEvent>(WalkChunk);
-            checking = Task.Run(() => walk.Check(full, cancellation), cancellation);
+            throw;
         }
 
         if (checking is not null && await checking.ConfigureAwait(false) is { } late)
