@@ -52,7 +52,7 @@ public static class PositionReplay
             throw new ArgumentException("positions needs --candidates FOLDER (a trust run's TAPEVAULT_TRUST_CANDIDATES).");
         }
 
-        var rows = new List<(string Profile, int Written, int Before, int Positions, int Merged, bool AnyClean)>();
+        var rows = new List<(string Profile, int Written, int Positions, int Merged, bool AnyClean)>();
         var watch = System.Diagnostics.Stopwatch.StartNew();
         foreach (string file in Directory.GetFiles(folder, "*.json").Order(StringComparer.Ordinal))
         {
@@ -60,7 +60,6 @@ public static class PositionReplay
             var profile = ProfileCatalog.BuiltIn.Get(saved.Profile);
             var written = saved.Written.Select(Convert.FromHexString).ToList();
             var unplaced = saved.Candidates.Select(c => c with { Position = -1 }).ToList();
-            int before = PositionerBefore.Place(unplaced, profile.Layout.Copies).Select(c => c.Position).Distinct().Count();
             var placed = BlockPositioner.Place(unplaced, profile.Layout.Copies);
             int positions = placed.Select(c => c.Position).Distinct().Count();
 
@@ -82,16 +81,16 @@ public static class PositionReplay
             }
 
             bool anyClean = placed.Any(c => c.Status == BlockStatus.Clean);
-            rows.Add((saved.Profile, written.Count, before, positions, merged, anyClean));
+            rows.Add((saved.Profile, written.Count, positions, merged, anyClean));
             if (show && positions != written.Count)
             {
-                Console.WriteLine($"{Path.GetFileName(file)}: written {written.Count}, positions {positions} (before {before}), two blocks in one {merged}, clean readings {placed.Count(c => c.Status == BlockStatus.Clean)}");
+                Console.WriteLine($"{Path.GetFileName(file)}: written {written.Count}, positions {positions}, two blocks in one {merged}, clean readings {placed.Count(c => c.Status == BlockStatus.Clean)}");
             }
         }
 
-        Console.WriteLine("Per profile, the positioner before (at da9f600) and now on the same readings: captures, those whose positions are as many as the blocks");
+        Console.WriteLine("Per profile (run this command at another commit to compare positioners on the same saved readings): captures, those whose positions are as many as the blocks");
         Console.WriteLine("written, fewer, more, the extra positions (and of them, on captures with no clean reading), and positions holding clean readings of two written blocks.");
-        Console.WriteLine($"{"profile",-18} {"",6} {"captures",8} {"matching",8} {"fewer",6} {"more",6} {"extra",6} {"extra, no clean",15} {"blocks joined",13}");
+        Console.WriteLine($"{"profile",-18} {"captures",8} {"matching",8} {"fewer",6} {"more",6} {"extra",6} {"extra, no clean",15} {"blocks joined",13}");
         foreach (var group in rows.GroupBy(r => r.Profile).OrderBy(g => g.Key, StringComparer.Ordinal).Append(rows.GroupBy(_ => "all").FirstOrDefault()))
         {
             if (group is null)
@@ -99,12 +98,9 @@ public static class PositionReplay
                 continue;
             }
 
-            foreach (bool now in new[] { false, true })
-            {
-                var d = group.Select(r => (Diff: (now ? r.Positions : r.Before) - r.Written, r.AnyClean)).ToList();
-                Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                    $"{group.Key,-18} {(now ? "now" : "before"),6} {d.Count,8} {d.Count(x => x.Diff == 0),8} {d.Count(x => x.Diff < 0),6} {d.Count(x => x.Diff > 0),6} {d.Where(x => x.Diff > 0).Sum(x => x.Diff),6} {d.Where(x => x.Diff > 0 && !x.AnyClean).Sum(x => x.Diff),15} {(now ? group.Sum(r => r.Merged).ToString(CultureInfo.InvariantCulture) : "-"),13}"));
-            }
+            var d = group.Select(r => (Diff: r.Positions - r.Written, r.AnyClean)).ToList();
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"{group.Key,-18} {d.Count,8} {d.Count(x => x.Diff == 0),8} {d.Count(x => x.Diff < 0),6} {d.Count(x => x.Diff > 0),6} {d.Where(x => x.Diff > 0).Sum(x => x.Diff),6} {d.Where(x => x.Diff > 0 && !x.AnyClean).Sum(x => x.Diff),15} {group.Sum(r => r.Merged),13}"));
         }
 
         Console.WriteLine($"{watch.Elapsed.TotalSeconds:0.0} s");
