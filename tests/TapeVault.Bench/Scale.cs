@@ -1,4 +1,3 @@
-using System.Buffers.Binary;
 using System.Diagnostics;
 using System.Globalization;
 using Microsoft.EntityFrameworkCore;
@@ -640,23 +639,15 @@ public static partial class Scale
     /// <summary>A 16-bit mono 8 kHz PCM WAV of the given size holding noise from its own seed, so every file is distinct.</summary>
     private static byte[] NoiseWav(int size, int seed)
     {
-        size -= size % 2;
-        var wav = new byte[size];
-        int data = size - 44;
-        "RIFF"u8.CopyTo(wav);
-        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(4), size - 8);
-        "WAVEfmt "u8.CopyTo(wav.AsSpan(8));
-        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(16), 16);
-        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(20), 1);
-        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(22), 1);
-        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(24), 8000);
-        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(28), 16_000);
-        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(32), 2);
-        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(34), 16);
-        "data"u8.CopyTo(wav.AsSpan(36));
-        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(40), data);
-        new Random(seed).NextBytes(wav.AsSpan(44));
-        return wav;
+        var noise = new byte[Math.Max(0, size - 44) & ~1];
+        new Random(seed).NextBytes(noise);
+        using var bytes = new MemoryStream();
+        using (var writer = new NAudio.Wave.WaveFileWriter(bytes, new NAudio.Wave.WaveFormat(8000, 16, 1)))
+        {
+            writer.Write(noise, 0, noise.Length);
+        }
+
+        return bytes.ToArray();
     }
 
     private static void MakeWritable(string folder)

@@ -1,4 +1,3 @@
-using System.Buffers.Binary;
 using System.Net;
 using AngleSharp.Html.Parser;
 using Microsoft.Extensions.DependencyInjection;
@@ -98,20 +97,13 @@ public sealed class PagingTests
     /// <summary>A 16-bit mono 8 kHz PCM WAV of <paramref name="samples"/> zero samples (its length makes it distinct).</summary>
     private static byte[] SilentWav(int samples)
     {
-        var wav = new byte[44 + (2 * samples)];
-        "RIFF"u8.CopyTo(wav);
-        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(4), wav.Length - 8);
-        "WAVEfmt "u8.CopyTo(wav.AsSpan(8));
-        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(16), 16);
-        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(20), 1);
-        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(22), 1);
-        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(24), 8000);
-        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(28), 16_000);
-        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(32), 2);
-        BinaryPrimitives.WriteInt16LittleEndian(wav.AsSpan(34), 16);
-        "data"u8.CopyTo(wav.AsSpan(36));
-        BinaryPrimitives.WriteInt32LittleEndian(wav.AsSpan(40), 2 * samples);
-        return wav;
+        using var bytes = new MemoryStream();
+        using (var writer = new NAudio.Wave.WaveFileWriter(bytes, new NAudio.Wave.WaveFormat(8000, 16, 1)))
+        {
+            writer.Write(new byte[2 * samples], 0, 2 * samples);
+        }
+
+        return bytes.ToArray();
     }
 
     private static async Task<AngleSharp.Dom.IDocument> PageAsync(ApiClient client, string path)
