@@ -44,7 +44,11 @@ public sealed class Browser : IAsyncDisposable
             ViewportSize = new ViewportSize { Width = 1280, Height = 900 },
         });
         contexts.Add((context, profile));
-        context.SetDefaultTimeout(30_000);
+        // A step waits up to 90 s: on two cores busy with a build or a bench beside the run, one page view of the app
+        // (a process started cold, its first views compiled by the JIT) has taken longer than 30 s. A page that never
+        // comes still fails the test.
+        context.SetDefaultTimeout(90_000);
+        context.SetDefaultNavigationTimeout(90_000);
         return context.Pages.Count > 0 ? context.Pages[0] : await context.NewPageAsync();
     }
 
