@@ -244,9 +244,9 @@ public static class ReadLoss
         return worst;
     }
 
-    /// <summary>A fundamental's loss to azimuth and to the deck's second-order Butterworth low-pass, in dB (at most 0).</summary>
+    /// <summary>A fundamental's loss to azimuth and to the deck's low-pass (the channel's own filter), in dB.</summary>
     private static double PatternLossDb(ChannelDamage damage, double hz) =>
-        ChannelModel.AzimuthLossDb(damage, hz) + (damage.DeckLowPassHz is { } lp ? -10 * Math.Log10(1 + Math.Pow(hz / lp, 4)) : 0);
+        ChannelModel.AzimuthLossDb(damage, hz) + ChannelModel.DeckLowPassLossDb(damage, hz);
 
     /// <summary>The fundamentals a format's patterns write on the tape, by name.</summary>
     private static IEnumerable<(string Name, double Hz)> Patterns(Core.Formats.FormatProfile profile)

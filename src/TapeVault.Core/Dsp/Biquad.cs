@@ -24,6 +24,19 @@ public readonly record struct BiquadCoefficients(float B0, float B1, float B2, f
             (float)(-2 * cos / a0),
             (float)((1 - alpha) / a0));
     }
+
+    /// <summary>
+    /// The section's gain in dB at a frequency: 20·log10|H(e^jω)|, ω = 2πf/fs, with
+    /// H(z) = (b0 + b1·z⁻¹ + b2·z⁻²) / (1 + a1·z⁻¹ + a2·z⁻²).
+    /// </summary>
+    public double GainDb(double frequencyHz, double sampleRate)
+    {
+        double w = 2 * Math.PI * frequencyHz / sampleRate;
+        double c1 = Math.Cos(w), s1 = Math.Sin(w), c2 = Math.Cos(2 * w), s2 = Math.Sin(2 * w);
+        double numRe = B0 + (B1 * c1) + (B2 * c2), numIm = -(B1 * s1) - (B2 * s2);
+        double denRe = 1 + (A1 * c1) + (A2 * c2), denIm = -(A1 * s1) - (A2 * s2);
+        return 10 * Math.Log10(((numRe * numRe) + (numIm * numIm)) / ((denRe * denRe) + (denIm * denIm)));
+    }
 }
 
 /// <summary>A streaming second-order section (transposed direct form II): state is two numbers.</summary>

@@ -65,7 +65,7 @@ public sealed class ChannelModel
         _pw50 = damage.Pw50Microseconds * 1e-6;
         _halfPw50Inverse = 2 / _pw50;
         _leak = Math.Exp(-2 * Math.PI * 10.0 / damage.SampleRate);
-        _deckLowPass = new Biquad(damage.DeckLowPassHz is { } lp ? BiquadCoefficients.ButterworthLowPass(lp, damage.SampleRate) : BiquadCoefficients.PassThrough);
+        _deckLowPass = new Biquad(DeckLowPass(damage));
         _noiseRandom = new Random(damage.Seed);
         TotalSamples = (long)Math.Ceiling((tapeSeconds / damage.Speed + 2 * damage.MarginSeconds) * damage.SampleRate);
         _dropouts = [.. damage.Dropouts];
@@ -120,6 +120,17 @@ public sealed class ChannelModel
         double x = Math.PI * damage.TrackWidthMm * 0.1 * Math.Tan(damage.AzimuthDegrees * Math.PI / 180) / wavelengthCm;
         return x == 0 ? 0 : 20 * Math.Log10(Math.Abs(Math.Sin(x) / x));
     }
+
+    /// <summary>The deck's band limit: a second-order Butterworth low-pass at <see cref="ChannelDamage.DeckLowPassHz"/>, or none.</summary>
+    public static BiquadCoefficients DeckLowPass(ChannelDamage damage)
+    {
+        ArgumentNullException.ThrowIfNull(damage);
+        return damage.DeckLowPassHz is { } lp ? BiquadCoefficients.ButterworthLowPass(lp, damage.SampleRate) : BiquadCoefficients.PassThrough;
+    }
+
+    /// <summary>The deck's band limit's loss in dB at a frequency of the capture (at most 0 below the cut-off's region).</summary>
+    public static double DeckLowPassLossDb(ChannelDamage damage, double frequencyHz) =>
+        DeckLowPass(damage).GainDb(frequencyHz, damage.SampleRate);
 
     /// <summary>Tape time (nominal seconds) at capture time t: ∫ speed·(1 + wow + flutter) dt.</summary>
     public double TapeTime(double t)

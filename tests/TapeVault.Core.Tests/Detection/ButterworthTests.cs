@@ -39,6 +39,22 @@ public sealed class ButterworthTests
         Assert.Equal(expected, gain, 1);
     }
 
+    [Theory]
+    [InlineData(5000.0, 500.0)]
+    [InlineData(5000.0, 10000.0)]
+    [InlineData(9000.0, 3000.0)]
+    [InlineData(4000.0, 2400.0)]
+    public void The_gain_the_coefficients_give_is_the_bilinear_butterworth_magnitude_and_what_a_tone_measures(double cutoffHz, double toneHz)
+    {
+        double gain = BiquadCoefficients.ButterworthLowPass(cutoffHz, SampleRate).GainDb(toneHz, SampleRate);
+
+        // Butterworth |H|² = 1 / (1 + (Ω/Ω0)⁴) with the bilinear transform's prewarping Ω = tan(πf/fs) (RBJ Audio EQ
+        // Cookbook); the coefficients are single precision, so the two agree to a few thousandths of a dB.
+        double ratio = Math.Tan(Math.PI * toneHz / SampleRate) / Math.Tan(Math.PI * cutoffHz / SampleRate);
+        Assert.Equal(-10 * Math.Log10(1 + Math.Pow(ratio, 4)), gain, 2);
+        Assert.Equal(MeasuredGainDb(cutoffHz, toneHz), gain, 1);
+    }
+
     [Fact]
     public void The_butterworth_low_pass_passes_a_steady_level_unchanged()
     {
