@@ -55,6 +55,9 @@ public struct AsyncCharacterFramer
     /// <summary>The bits decided so far (0 = the start bit).</summary>
     public int BitsDecided => _bitIndex;
 
+    /// <summary>The sample from which <see cref="Step"/> decides the next bit; before it, a sample with no change of tone does nothing.</summary>
+    public readonly double NextBitTime => _nextBitTime;
+
     /// <summary>The completed character's value.</summary>
     public int Value { get; private set; }
 

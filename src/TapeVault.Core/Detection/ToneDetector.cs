@@ -35,9 +35,11 @@ public struct ToneDetector
     private double _markLevelSamples;
     private double _spaceLevelSamples;
 
-    // The mark level over the space level, bounded (see Next); kept whenever a level changes, valid while both are
-    // known, so that a window costs no division for it.
+    // The mark level over the space level, bounded (see Next), valid while both are known and _balanceStale is false:
+    // worked out only for a window that teaches no level, the first after one that did (a window that teaches one
+    // takes D from the levels themselves, see FromLevels), so that most windows cost no division for it.
     private double _balance;
+    private bool _balanceStale;
 
     public ToneDetector(double baud, double sampleRate)
     {
@@ -80,19 +82,18 @@ public struct ToneDetector
         // The levels and the balance are carried in locals from the fields' load to D and stored once: D hangs on the
         // level just learnt through two divisions, and a field written and read back would put the store's round trip
         // twice on that path. The arithmetic is that of the fields, operation for operation.
+        // A window that teaches a level leaves the balance to be worked out again (Rebalance) when a window needs it; the
+        // window itself takes D from the levels (FromLevels), which is the same float without the balance's division.
         double markLevel = _markLevel;
         double spaceLevel = _spaceLevel;
-        double balance = _balance;
+        bool taught = false;
         if (learnMark && (gate & ToneGate.PureMark) != 0)
         {
             double samples = _markLevelSamples + 1;
             _markLevelSamples = samples;
             markLevel += (mark - markLevel) * LevelStep(samples);
             _markLevel = markLevel;
-            if (Rebalance(markLevel, spaceLevel, ref balance))
-            {
-                _balance = balance;
-            }
+            taught = true;
         }
         else if (learnSpace && (gate & ToneGate.PureSpace) != 0)
         {
@@ -100,19 +101,68 @@ public struct ToneDetector
             _spaceLevelSamples = samples;
             spaceLevel += (space - spaceLevel) * LevelStep(samples);
             _spaceLevel = spaceLevel;
-            if (Rebalance(markLevel, spaceLevel, ref balance))
-            {
-                _balance = balance;
-            }
+            taught = true;
         }
 
         if (markLevel <= 0 || spaceLevel <= 0)
         {
             // Until both tones have been heard alone, assume they are balanced.
+            _balanceStale |= taught;
             return (float)((mark - space) / (mark + space));
         }
 
-        return Balanced(mark, space, balance);
+        if (taught)
+        {
+            _balanceStale = true;
+            float d = FromLevels(mark, space, markLevel, spaceLevel);
+            if (!float.IsNaN(d))
+            {
+                return d;
+            }
+        }
+
+        if (_balanceStale)
+        {
+            _balance = Rebalance(markLevel, spaceLevel);
+            _balanceStale = false;
+        }
+
+        return Balanced(mark, space, _balance);
+    }
+
+    /// <summary>
+    /// How far D worked out from the levels, (Em·S − Es·M)/(Em·S + Es·M), may lie from the quotient of
+    /// <see cref="Balanced"/> with the balance rounded, M/S: each is within a few units in the last place of 1 (about
+    /// 1e-16) of the exact D, the rounding of the balance moving D by at most half its own (|dD/d ln b| ≤ 1/2), so
+    /// 1e-14 leaves a margin of about ten times.
+    /// </summary>
+    private const double LevelsMargin = 1e-14;
+
+    /// <summary>
+    /// D with the mark energy divided by the balance M/S of the levels <paramref name="markLevel"/> and
+    /// <paramref name="spaceLevel"/> (both positive), without working the balance out: the float
+    /// <see cref="Balanced"/> gives with the balance <see cref="Rebalance"/> gives, where the levels' ratio is inside
+    /// the bounds by more than its rounding and where the quotient, widened by <see cref="QuotientMargin"/> and
+    /// <see cref="LevelsMargin"/>, rounds to one float (then Balanced's own quotient, within the narrower margin of
+    /// the same point, rounds to it as well); NaN elsewhere, where the caller works the balance out.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    internal static float FromLevels(double mark, double space, double markLevel, double spaceLevel)
+    {
+        // Multiplying by 16 is exact; the factor 1 ∓ 1e-12 keeps M/S, rounded, strictly inside the bounds.
+        if (markLevel < MaximumToneImbalance * spaceLevel * (1 - 1e-12) && markLevel * MaximumToneImbalance > spaceLevel * (1 + 1e-12))
+        {
+            double markWeighted = mark * spaceLevel;
+            double spaceWeighted = space * markLevel;
+            double quotient = (markWeighted - spaceWeighted) / (markWeighted + spaceWeighted);
+            float below = (float)(quotient - (QuotientMargin + LevelsMargin));
+            if (below == (float)(quotient + (QuotientMargin + LevelsMargin)))
+            {
+                return below;
+            }
+        }
+
+        return float.NaN;
     }
 
     /// <summary>
@@ -147,22 +197,13 @@ public struct ToneDetector
     private readonly double LevelStep(double samples) => samples > _settledSamples ? _levelGain : Math.Max(_levelGain, 1.0 / samples);
 
     /// <summary>
-    /// The mark level over the space level, kept whenever a level changes and both are known. Rebalancing is bounded:
-    /// past 12 dB between the tones (more than any deck's high-frequency loss, common practice) the weaker tone is
-    /// mostly gone, and lifting it further would lift noise into confident decisions. Gives whether
-    /// <paramref name="balance"/> was set.
+    /// The mark level over the space level (both positive), bounded: past 12 dB between the tones (more than any deck's
+    /// high-frequency loss, common practice) the weaker tone is mostly gone, and lifting it further would lift noise
+    /// into confident decisions.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private static bool Rebalance(double markLevel, double spaceLevel, ref double balance)
-    {
-        if (markLevel > 0 && spaceLevel > 0)
-        {
-            balance = Math.Clamp(markLevel / spaceLevel, 1.0 / MaximumToneImbalance, MaximumToneImbalance);
-            return true;
-        }
-
-        return false;
-    }
+    internal static double Rebalance(double markLevel, double spaceLevel) =>
+        Math.Clamp(markLevel / spaceLevel, 1.0 / MaximumToneImbalance, MaximumToneImbalance);
 
     /// <summary>A new recording learns its own tone balance: the space level starts again from the next pure window.</summary>
     public void ForgetSpaceLevel()

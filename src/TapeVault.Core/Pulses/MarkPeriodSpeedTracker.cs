@@ -95,6 +95,9 @@ public struct MarkPeriodSpeedTracker
         }
     }
 
+    /// <summary>The sample from which <see cref="Check"/> next has an interval to weigh (infinity while none waits); until then it does nothing.</summary>
+    public readonly double NextCheck => _pendingHead < _pendingCount ? _pending[_pendingHead].CheckAt : double.PositiveInfinity;
+
     /// <summary>Feeds the estimate with the intervals whose centred window ends at sample <paramref name="n"/>, if its D calls it pure mark.</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public void Check(float d, double n)

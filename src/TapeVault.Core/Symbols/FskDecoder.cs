@@ -192,12 +192,151 @@ public sealed class FskDecoder : ISymbolDecoder
 
     public void OnTones(ToneLane tones, long chunkStart)
     {
-        for (int i = 0; i < tones.Length; i++)
+        int i = 0;
+        while (i < tones.Length)
         {
+            // Where no leader is being hunted (the hunt looks at every sample), the stretches between events run on
+            // their own loops; each leaves the sample that needs more to Step.
+            if (!_hasLeader || _inBlock || _leader.InLeader)
+            {
+                i = _framer.InCharacter ? WithinCharacter(tones, i, chunkStart) : BetweenCharacters(tones, i, chunkStart);
+                if (i == tones.Length)
+                {
+                    break;
+                }
+            }
+
             Step(tones.Mark(i), tones.Space(i), tones.Gate(i), chunkStart + i);
+            i++;
         }
 
         _speed.EndChunk();
+    }
+
+    /// <summary>
+    /// The samples of a character between its events, from <paramref name="i"/>: most of a character's samples only
+    /// move the tone levels and D, and <see cref="Step"/> would find nothing else to do for them (a carrier, no change
+    /// of tone, no bit due, no mark period due for the speed, no leader being hunted). They run here with the tone
+    /// detector in a local, so that its state stays in registers from one sample to the next; the first sample that
+    /// is not such goes to <see cref="AfterTones"/> once its D is known (a change of tone), or is left whole to
+    /// <see cref="Step"/> (a bit or a mark period due, no carrier). Returns the next sample to step.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
+    private int WithinCharacter(ToneLane tones, int i, long chunkStart)
+    {
+        var detector = _tones;
+        float previousD = _previousD;
+        double nextBit = _framer.NextBitTime;
+        double nextCheck = _speed.NextCheck;
+        int start = i;
+        bool changed = false;
+        float d = 0;
+        for (; i < tones.Length; i++)
+        {
+            double n = chunkStart + i;
+            int gate = tones.Gate(i);
+            if ((gate & ToneGate.Carrier) == 0 || n >= nextBit || n >= nextCheck)
+            {
+                break;
+            }
+
+            // Inside a character both tones may teach their levels (see Step).
+            d = detector.Next(tones.Mark(i), tones.Space(i), gate, learnMark: true, learnSpace: true);
+            if ((d < 0) != (previousD < 0))
+            {
+                changed = true;
+                break;
+            }
+
+            previousD = d;
+        }
+
+        _tones = detector;
+        _previousD = previousD;
+        if (i > start)
+        {
+            // Each of these samples had a carrier.
+            _noCarrierRun = 0;
+        }
+
+        if (changed)
+        {
+            AfterTones(d, chunkStart + i, inChar: true, inLeader: InLeader);
+            i++;
+        }
+
+        return i;
+    }
+
+    /// <summary>
+    /// The samples between characters from <paramref name="i"/>, like <see cref="WithinCharacter"/>: most of them only
+    /// move the tone levels, D and the run of mark tone, and <see cref="Step"/> would find nothing else to do for them
+    /// (a carrier, no fall of D through zero, no mark period due, no idle-line or frame test near). Returns the next
+    /// sample to step.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
+    private int BetweenCharacters(ToneLane tones, int i, long chunkStart)
+    {
+        var detector = _tones;
+        var mark = _mark;
+        float previousD = _previousD;
+        double nextCheck = _speed.NextCheck;
+        double bitSamples = BitSamples;
+        bool learnMark = _inBlock || InLeader;
+
+        // Step's tests of the time since the last character (n − last ≥ length) act from about last + length on; this
+        // loop stops a sample before that, so that Step makes each of those tests itself, with its own rounding.
+        double deadline = double.PositiveInfinity;
+        if (_inBlock)
+        {
+            deadline = _lastCharEnd + IdleLineSamples - 1;
+        }
+
+        if (_held.Count > 0 || InLeader)
+        {
+            deadline = Math.Min(deadline, _lastCharEnd + FrameSamples - 1);
+        }
+
+        int start = i;
+        bool fell = false;
+        float d = 0;
+        for (; i < tones.Length; i++)
+        {
+            double n = chunkStart + i;
+            int gate = tones.Gate(i);
+            if ((gate & ToneGate.Carrier) == 0 || n >= nextCheck || n >= deadline)
+            {
+                break;
+            }
+
+            // Outside a character only the mark level may learn (see Step).
+            d = detector.Next(tones.Mark(i), tones.Space(i), gate, learnMark: learnMark || mark.HeardLeadIn, learnSpace: false);
+            if (d < 0 && previousD >= 0)
+            {
+                fell = true;
+                break;
+            }
+
+            mark.Step(d, bitSamples);
+            previousD = d;
+        }
+
+        _tones = detector;
+        _mark = mark;
+        _previousD = previousD;
+        if (i > start)
+        {
+            // Each of these samples had a carrier.
+            _noCarrierRun = 0;
+        }
+
+        if (fell)
+        {
+            AfterTones(d, chunkStart + i, inChar: false, inLeader: InLeader);
+            i++;
+        }
+
+        return i;
     }
 
     /// <summary>One sample: the mark and space energies of the window that ends at <paramref name="sample"/>, and the gate's answer for it.</summary>
@@ -206,6 +345,12 @@ public sealed class FskDecoder : ISymbolDecoder
         bool inChar = _framer.InCharacter;
         bool inLeader = InLeader;
         float d = _tones.Next(mark, space, gate, learnMark: inChar || _inBlock || inLeader || _mark.HeardLeadIn, learnSpace: inChar);
+        AfterTones(d, sample, inChar, inLeader);
+    }
+
+    /// <summary>The rest of a sample's <see cref="Step"/> once its D is known; <paramref name="inChar"/> and <paramref name="inLeader"/> as they were before it.</summary>
+    private void AfterTones(float d, long sample, bool inChar, bool inLeader)
+    {
         double n = sample;
         _speed.Check(d, n);
         KeepTiming();
