@@ -46,7 +46,8 @@ if (section == "stages")
 
 if (section == "trust-fit")
 {
-    // trust-fit --dump FILE --out FILE --note TEXT: fits the confidence map from a trust run's dump (TAPEVAULT_TRUST_DUMP) of tuning seeds.
+    // trust-fit --dump FILE --out FILE --note TEXT [--keep MAP]: fits the confidence map from a trust run's dump (TAPEVAULT_TRUST_DUMP) of
+    // tuning seeds; with --keep, only the curves whose readings the dump holds in full (a family's where it has every profile of the family).
     return TrustFit.Run(args[1..]);
 }
 

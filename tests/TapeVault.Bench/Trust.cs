@@ -48,7 +48,22 @@ public static class Trust
     private static readonly ConcurrentQueue<string> s_chars = new();
     private static readonly string? s_charsPath = Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_CHARS");
 
-    private sealed record Subject(string Family, FormatProfile Profile);
+    internal sealed record Subject(string Family, FormatProfile Profile);
+
+    /// <summary>Every profile the trust bench measures, with its family; trust-fit checks a dump's coverage against it.</summary>
+    internal static Subject[] Subjects { get; } =
+    [
+        new("pulse-width", TrustProfiles.PulseBlocks),
+        new("pulse-width", ProfileCatalog.BuiltIn.Get("orrin-80")),
+        new("fsk", TrustProfiles.ToneBlocks),
+        new("fsk", ProfileCatalog.BuiltIn.Get("kcs-300")),
+        new("fsk", ProfileCatalog.BuiltIn.Get("kcs-1200")),
+        new("biphase", ProfileCatalog.BuiltIn.Get("biphase-1200")),
+        new("biphase", ProfileCatalog.BuiltIn.Get("biphase-1500")),
+        new("fsk", ProfileCatalog.BuiltIn.Get("fsk-sync-1200")),
+        new("pulse-width", ProfileCatalog.BuiltIn.Get("three-class-pairs")),
+        new("pulse-width", ProfileCatalog.BuiltIn.Get("one-cycle-bits")),
+    ];
 
     private sealed record Reading(double Confidence, bool Right, bool WrongClean, bool Clean = false);
 
@@ -90,19 +105,7 @@ public static class Trust
         // A folder of this process's own: two runs at once (of other seeds) never share a capture's file name.
         string folder = Path.Combine(work, $"trust-{Environment.ProcessId}");
         Directory.CreateDirectory(folder);
-        Subject[] subjects =
-        [
-            new("pulse-width", TrustProfiles.PulseBlocks),
-            new("pulse-width", ProfileCatalog.BuiltIn.Get("orrin-80")),
-            new("fsk", TrustProfiles.ToneBlocks),
-            new("fsk", ProfileCatalog.BuiltIn.Get("kcs-300")),
-            new("fsk", ProfileCatalog.BuiltIn.Get("kcs-1200")),
-            new("biphase", ProfileCatalog.BuiltIn.Get("biphase-1200")),
-            new("biphase", ProfileCatalog.BuiltIn.Get("biphase-1500")),
-            new("fsk", ProfileCatalog.BuiltIn.Get("fsk-sync-1200")),
-            new("pulse-width", ProfileCatalog.BuiltIn.Get("three-class-pairs")),
-            new("pulse-width", ProfileCatalog.BuiltIn.Get("one-cycle-bits")),
-        ];
+        Subject[] subjects = Subjects;
 
         // Block formats: tapes from the first seed until the written blocks reach the count asked for. Streams: one
         // tape per 200 blocks asked for (each holds a few hundred bytes), at least two.

@@ -11,7 +11,9 @@ namespace TapeVault.Bench;
 /// group: readings sorted by model confidence, pooled into bins of equal count (at most <see cref="Bins"/>, at least
 /// <see cref="LeastPerBin"/> readings each), then pool-adjacent-violators makes the rate of right readings a function
 /// that never falls as the model confidence rises. Each step's rate is (right + 1) / (readings + 2) (Laplace's rule of
-/// succession), so that no step claims certainty its readings cannot show.
+/// succession), so that no step claims certainty its readings cannot show. With --keep MAP, only the curves whose
+/// readings the dump holds in full are fitted again (<see cref="Covers"/>), a family's and the pooled ones included
+/// when the dump has every profile they pool; the rest stay as MAP has them.
 /// </summary>
 public static class TrustFit
 {
@@ -23,6 +25,7 @@ public static class TrustFit
     public static int Run(string[] args)
     {
         string? dump = null, output = null, note = null, keep = null;
+        HashSet<string>? only = null;
         for (int i = 0; i + 1 < args.Length; i += 2)
         {
             switch (args[i])
@@ -31,8 +34,14 @@ public static class TrustFit
                 case "--out": output = args[i + 1]; break;
                 case "--note": note = args[i + 1]; break;
                 case "--keep": keep = args[i + 1]; break;
-                default: throw new ArgumentException($"Unknown option {args[i]}; trust-fit takes --dump FILE --out FILE --note TEXT [--keep MAP].");
+                case "--groups": only = [.. args[i + 1].Split(',', StringSplitOptions.RemoveEmptyEntries | StringSplitOptions.TrimEntries).Select(g => Enum.Parse<TapeVault.Core.Blocks.ConfidenceGroup>(g).ToString())]; break;
+                default: throw new ArgumentException($"Unknown option {args[i]}; trust-fit takes --dump FILE --out FILE --note TEXT [--keep MAP [--groups GROUP,...]].");
             }
+        }
+
+        if (only is not null && keep is null)
+        {
+            throw new ArgumentException("trust-fit --groups needs --keep MAP: the curves of the other groups come from it.");
         }
 
         if (dump is null || output is null)
@@ -42,6 +51,7 @@ public static class TrustFit
 
         // Reading rows: read, profile, seed, ..., right at 9, ..., family, group, model confidence as the last three.
         var groups = new Dictionary<string, List<(double Model, bool Right)>>(StringComparer.Ordinal);
+        var dumpedProfiles = new HashSet<string>(StringComparer.Ordinal);
         int lowest = int.MaxValue, highest = int.MinValue;
         foreach (string line in File.ReadLines(dump))
         {
@@ -52,6 +62,7 @@ public static class TrustFit
             }
 
             int seed = int.Parse(f[2], CultureInfo.InvariantCulture);
+            dumpedProfiles.Add(f[1]);
             lowest = Math.Min(lowest, seed);
             highest = Math.Max(highest, seed);
             string key = $"{f[^3]}/{f[^2]}";
@@ -84,20 +95,21 @@ public static class TrustFit
                 [.. groups.Where(g => g.Key.EndsWith("/" + group, StringComparison.Ordinal) && !g.Key.StartsWith(TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix, StringComparison.Ordinal)).SelectMany(g => g.Value)];
         }
 
-        // --keep MAP: only the built-in profiles in the dump get their own curves refitted; every other curve (the
-        // families', the pooled ones, other profiles') stays as MAP has it, fitted on the seeds its provenance names.
-        // For a tuning run restricted to a few profiles, whose readings alone would misfit the family curves.
+        // --keep MAP: a curve is refitted only where the dump holds every kind of reading it pools (see Covers): a
+        // profile's own curves where the dump has that profile, a family's curve of a group where it has every profile
+        // of the family that the trust bench measures and that can give the group, the pooled curve where it has them
+        // for every family. Every other curve stays as MAP has it, fitted on the seeds its provenance names, and so does
+        // a covered curve of which the dump holds too few readings to fit it again (named as such in the provenance and
+        // on the console: a run too short for it, not a reason to fall back to a curve pooled over other formats).
+        // --groups G,...: only those groups' curves are refitted (the groups whose readings a scorer change moved).
         JsonObject? kept = null;
+        bool Refits(string key) => Covers(key, dumpedProfiles) && (only is null || only.Contains(key[(key.LastIndexOf('/') + 1)..]));
         var refitted = new SortedSet<string>(StringComparer.Ordinal);
+        var tooFew = new SortedSet<string>(StringComparer.Ordinal);
         if (keep is not null)
         {
             kept = JsonNode.Parse(File.ReadAllText(keep))!.AsObject();
-            foreach (string key in groups.Keys.Where(k => k.StartsWith(TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix, StringComparison.Ordinal)))
-            {
-                refitted.Add(key[TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix.Length..key.LastIndexOf('/')]);
-            }
-
-            foreach (string key in groups.Keys.Where(k => !k.StartsWith(TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix, StringComparison.Ordinal)).ToList())
+            foreach (string key in groups.Keys.Where(k => !Refits(k)).ToList())
             {
                 groups.Remove(key);
             }
@@ -108,11 +120,14 @@ public static class TrustFit
         {
             foreach (var (key, curve) in kept["curves"]!.AsObject())
             {
-                bool replaced = key.StartsWith(TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix, StringComparison.Ordinal)
-                    && refitted.Contains(key[TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix.Length..key.LastIndexOf('/')]);
-                if (!replaced)
+                bool refit = Refits(key);
+                if (!refit || !groups.TryGetValue(key, out var readings) || readings.Count < TapeVault.Core.Blocks.ConfidenceMap.LeastReadings)
                 {
                     curves[key] = curve!.DeepClone();
+                    if (refit)
+                    {
+                        tooFew.Add(key);
+                    }
                 }
             }
         }
@@ -128,6 +143,7 @@ public static class TrustFit
             }
 
             var (x, y) = Fit(readings);
+            refitted.Add(key);
             curves[key] = new JsonObject { ["readings"] = readings.Count, ["x"] = new JsonArray([.. x.Select(v => (JsonNode)Math.Round(v, 6))]), ["y"] = new JsonArray([.. y.Select(v => (JsonNode)Math.Round(v, 6))]) };
             counts.Append(CultureInfo.InvariantCulture, $"{key} {readings.Count} readings ({readings.Count(r => r.Right)} right); ");
             Console.WriteLine($"{key,-28} {readings.Count,7} readings, {readings.Count(r => r.Right),7} right, {x.Length,3} steps: {string.Join(' ', x.Zip(y).Select(p => $"{p.First:0.###}->{p.Second:0.###}"))}");
@@ -135,7 +151,7 @@ public static class TrustFit
 
         string provenance = kept is null
             ? $"Fitted by `dotnet run -c Release --project tests/TapeVault.Bench -- trust-fit --dump FILE --out FILE` on the trust benchmark's readings of tuning seeds {lowest}–{highest} (held-out seeds start at 20000). {note} Counts: {counts.ToString().TrimEnd(' ', ';')}."
-            : $"{kept["provenance"]?.GetValue<string>()} Then the own curves of {string.Join(", ", refitted)} refitted by `trust-fit --dump FILE --out FILE --keep MAP` (every other curve kept) on readings of tuning seeds {lowest}–{highest}. {note} Counts: {counts.ToString().TrimEnd(' ', ';')}.";
+            : $"{kept["provenance"]?.GetValue<string>()} Then the curves {string.Join(", ", refitted)} refitted by `trust-fit --dump FILE --out FILE --keep MAP` (every curve{(only is null ? string.Empty : $" of {string.Join(", ", only.Order(StringComparer.Ordinal))}")} whose readings the dump holds in full; every other curve kept){(tooFew.Count > 0 ? $", {string.Join(", ", tooFew)} kept (too few of its readings in the dump to fit it again)" : string.Empty)} on readings of tuning seeds {lowest}–{highest}. {note} Counts: {counts.ToString().TrimEnd(' ', ';')}.";
         var ordered = new JsonObject();
         foreach (var (key, curve) in curves.OrderBy(c => c.Key, StringComparer.Ordinal).ToList())
         {
@@ -148,10 +164,44 @@ public static class TrustFit
             ["provenance"] = provenance,
             ["curves"] = ordered,
         };
+        foreach (string key in tooFew)
+        {
+            Console.WriteLine($"{key,-28} kept as it was: the dump covers it but holds too few readings to fit it again");
+        }
+
         File.WriteAllText(output, root.ToJsonString(s_json) + "\n");
         Console.WriteLine($"Wrote {output}.");
         return 0;
     }
+
+    /// <summary>
+    /// Whether a dump of <paramref name="dumped"/> profiles holds every kind of reading the curve <paramref name="key"/>
+    /// pools: a profile's own curve, its profile; a family's curve ("family/Group"), every profile of the family that
+    /// the trust bench measures (<see cref="Trust.Subjects"/>) and that can give the group; the pooled curve
+    /// ("all/Group"), every such profile of every family. A format with no check gives only unchecked readings and,
+    /// cut short, broken ones; a format with a check never gives unchecked readings (<see cref="TapeVault.Core.Blocks.ConfidenceMap.GroupOf"/>).
+    /// </summary>
+    public static bool Covers(string key, IReadOnlySet<string> dumped)
+    {
+        string prefix = TapeVault.Core.Blocks.ConfidenceMap.ProfilePrefix;
+        int slash = key.LastIndexOf('/');
+        if (key.StartsWith(prefix, StringComparison.Ordinal))
+        {
+            return dumped.Contains(key[prefix.Length..slash]);
+        }
+
+        string family = key[..slash];
+        var group = Enum.Parse<TapeVault.Core.Blocks.ConfidenceGroup>(key[(slash + 1)..]);
+        return Trust.Subjects
+            .Where(s => family == TapeVault.Core.Blocks.ConfidenceMap.PooledFamily || TapeVault.Core.Blocks.ConfidenceMap.FamilyName(s.Profile.Family) == family)
+            .Where(s => CanGive(s.Profile, group))
+            .All(s => dumped.Contains(s.Profile.Id));
+    }
+
+    private static bool CanGive(TapeVault.Core.Formats.FormatProfile profile, TapeVault.Core.Blocks.ConfidenceGroup group) =>
+        profile.Layout.Checksum is null
+            ? group is TapeVault.Core.Blocks.ConfidenceGroup.Unchecked or TapeVault.Core.Blocks.ConfidenceGroup.Broken
+            : group is not TapeVault.Core.Blocks.ConfidenceGroup.Unchecked;
 
     /// <summary>The step function: bins of equal count, pooled where a later bin is right less often, Laplace-smoothed, never falling.</summary>
     public static (double[] X, double[] Y) Fit(List<(double Model, bool Right)> readings)

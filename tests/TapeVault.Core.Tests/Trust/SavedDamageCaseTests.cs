@@ -88,8 +88,44 @@ public sealed class SavedDamageCaseTests(SynthesisFolder folder) : IClassFixture
         Assert.All(result.Candidates.Where(c => c.Status == BlockStatus.Clean), c => Assert.True(c.Confidence <= c.ModelConfidence, $"[{c.SettingName}] {c.Identity}: {c.Confidence} above {c.ModelConfidence}"));
     }
 
+    /// <summary>
+    /// The same pass of held-out seed 50384: its wrong reading, whose 8-bit sum held over the two misread bytes, is now
+    /// failed as a weak check's unproven reading, but at 0.9957 it was still shown as near certain: the map's curve for
+    /// such readings (pulse-width, check holds but unproven) was fitted on readings the scorer made before a weak check
+    /// stopped making them clean, when they were right 1534 times in 1671. A confidence is the probability that the
+    /// payload is right, and a wrong reading at 0.99 or more is one of the misses that probability promises to keep
+    /// rarer than one in a hundred; the map refitted on the scorer's own readings must show this one lower.
+    /// </summary>
+    [Fact]
+    public void A_wrong_reading_whose_weak_check_holds_is_not_shown_as_near_certain()
+    {
+        var saved = Load("pulse-msb-pair.json");
+        var (result, truth) = Decode(BenchPulseBlocks, saved, "saved-pulse-msb-pair-unproven.wav");
+
+        var wrongUnproven = result.Candidates
+            .Where(c => ConfidenceMap.GroupOf(c.Status, c.Doubts) == ConfidenceGroup.HoldsUnproven && !truth.Contains(Convert.ToHexString([.. c.Header, .. c.Payload])))
+            .ToList();
+        Assert.NotEmpty(wrongUnproven);
+        Assert.All(wrongUnproven, c => Assert.True(c.Confidence < 0.99, $"[{c.SettingName}] {c.Identity}: wrong, check held unproven, at {c.Confidence} (model {c.ModelConfidence})"));
+    }
+
     /// <summary>Makes the saved pass again, decodes it with the default bank and finds no clean reading that was not written.</summary>
     private DecodeResult AssertNoWrongReadingIsClean(FormatProfile profile, SavedCase saved, string fileName)
+    {
+        var (result, truth) = Decode(profile, saved, fileName);
+        var clean = result.Candidates.Where(c => c.Status == BlockStatus.Clean).ToList();
+        var wrong = clean.Where(c => !truth.Contains(Convert.ToHexString([.. c.Header, .. c.Payload]))).ToList();
+        Assert.True(
+            wrong.Count == 0,
+            $"{wrong.Count} wrong readings clean, e.g. " + string.Join("; ", wrong.Take(3).Select(c => $"[{c.SettingName}] {c.Identity} at {c.StartSeconds:0.000} s")));
+
+        // The capture is not read as nothing: the test would prove little if no reading were clean at all.
+        Assert.NotEmpty(clean);
+        return result;
+    }
+
+    /// <summary>Makes the saved pass again and decodes it with the default bank; with what was written, as header and payload.</summary>
+    private (DecodeResult Result, HashSet<string> Truth) Decode(FormatProfile profile, SavedCase saved, string fileName)
     {
         var written = saved.Blocks.Select(Convert.FromHexString).ToList();
         string path = folder.File(fileName);
@@ -101,15 +137,7 @@ public sealed class SavedDamageCaseTests(SynthesisFolder folder) : IClassFixture
         // check width; the check value is what the decoder tests).
         var widths = profile.BlockKinds.Select(k => BlockLayoutCodec.For(k).CheckBytes).Distinct().ToList();
         var truth = written.SelectMany(b => widths.Where(w => w <= b.Length).Select(w => Convert.ToHexString(b.AsSpan(0, b.Length - w)))).ToHashSet(StringComparer.Ordinal);
-        var clean = result.Candidates.Where(c => c.Status == BlockStatus.Clean).ToList();
-        var wrong = clean.Where(c => !truth.Contains(Convert.ToHexString([.. c.Header, .. c.Payload]))).ToList();
-        Assert.True(
-            wrong.Count == 0,
-            $"{wrong.Count} wrong readings clean, e.g. " + string.Join("; ", wrong.Take(3).Select(c => $"[{c.SettingName}] {c.Identity} at {c.StartSeconds:0.000} s")));
-
-        // The capture is not read as nothing: the test would prove little if no reading were clean at all.
-        Assert.NotEmpty(clean);
-        return result;
+        return (result, truth);
     }
 
     private static SavedCase Load(string name)
