@@ -19,7 +19,7 @@ public sealed class ScoringTrustRulesTests
     }
 
     /// <summary>Feeds <paramref name="bytes"/> to an assembler after a start on <paramref name="evidence"/>, every bit read well.</summary>
-    internal static BlockCandidate Assemble(FormatProfile profile, byte[] bytes, BlockStartEvidence evidence)
+    internal static BlockCandidate Assemble(FormatProfile profile, byte[] bytes, BlockStartEvidence evidence, int misframedByte = -1)
     {
         var output = new List<BlockCandidate>();
         var assembler = new BlockAssembler(profile, 0, "s0", 44_100, output);
@@ -32,7 +32,7 @@ public sealed class ScoringTrustRulesTests
                 assembler.AddDecision(0.9f, 0.02f, 1);
             }
 
-            if (assembler.AddByte(bytes[b], first, framingOk: true, sample: 100 * (b + 1)))
+            if (assembler.AddByte(bytes[b], first, framingOk: b != misframedByte, sample: 100 * (b + 1)))
             {
                 break;
             }
@@ -40,6 +40,29 @@ public sealed class ScoringTrustRulesTests
 
         assembler.End(100 * (bytes.Length + 1));
         return Assert.Single(output);
+    }
+
+    [Theory]
+    [InlineData("xor8")]
+    [InlineData("sum8")]
+    [InlineData("crc16-xmodem")]
+    public void A_block_of_alike_bytes_read_across_a_framing_error_is_no_likelier_right_than_the_framing_error_allows(string checksum)
+    {
+        var profile = BiphaseWith(checksum);
+        var check = ChecksumCatalog.Get(checksum);
+
+        // Zeros check as zero for free: xor8 and sum8 by their definitions (common practice), CRC-16/XMODEM by its init
+        // and xorout of 0x0000 (CRC catalogue, reveng). A start or stop bit out of place in the second byte says a
+        // character was misread there; the check, holding over alike bytes, cannot say the reading is right after all.
+        var zeros = new byte[profile.Layout.HeaderBytes + check.Width];
+        Assert.Equal(0u, check.Compute(zeros.AsSpan(0, profile.Layout.HeaderBytes)));
+
+        var candidate = Assemble(profile, zeros, BlockStartEvidence.LeadInAndSync, misframedByte: 1);
+
+        Assert.NotEqual(BlockStatus.Clean, candidate.Status);
+        Assert.True(candidate.Doubts.HasFlag(BlockDoubts.AllAlikeCheck | BlockDoubts.FramingErrors), $"doubts {candidate.Doubts}");
+        double odds = BlockScorer.FramingSlipPriorOdds;
+        Assert.True(candidate.ModelConfidence <= odds / (1 + odds), $"model {candidate.ModelConfidence}");
     }
 
     [Theory]
