@@ -19,7 +19,8 @@ namespace TapeVault.Core.Merge;
 /// or framed off (<see cref="EdgeCharacterError"/>), and so may the character at each end of a segment, beside bytes
 /// no capture kept (<see cref="GapEndError"/>) or at its stretch's start or end (<see cref="StretchEndError"/>). Independent captures that read a character alike are all wrong
 /// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
-/// never lowers it, and a segment one capture alone carried claims what its ends allow.
+/// never lowers it, and a segment one capture alone carried claims what its ends allow, and beside bytes no capture
+/// kept no more than pieces of its length were right (<see cref="LonePieceGenuine"/>).
 /// </para>
 /// </summary>
 internal sealed class StreamMerge
@@ -490,6 +491,9 @@ internal sealed class StreamMerge
             logConfidence += Math.Log(Math.Max(p, 1e-300));
         }
 
+        // A piece one capture alone carried beside bytes no capture kept may be a false frame's invention as a whole.
+        double genuine = agreeing == 1 && (afterGap || beforeGap) ? LonePieceGenuine(slots.Count) : 1;
+
         // Provenance: per capture, the reading that gave most of the winning bytes; the capture that gave most first.
         var winning = slots.SelectMany(s => s.Bytes.Where(b => b.Value == s.Value)).ToList();
         var sources = winning
@@ -513,7 +517,7 @@ internal sealed class StreamMerge
             // same characters on the same false start bit): a stream is voted, never clean; its confidence and
             // agreeing captures say how far to trust it.
             Status = RecoveryStatus.Voted,
-            Confidence = Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1) * (agreeing == 1 && (afterGap || beforeGap) ? LonePieceGenuine(slots.Count) : 1),
+            Confidence = Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1) * genuine,
             Header = [],
             Payload = payload,
             Sources = sources,
