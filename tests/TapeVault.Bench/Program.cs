@@ -63,6 +63,12 @@ if (section == "positions")
     return PositionReplay.Run(args[1..]);
 }
 
+if (section == "stream-merge")
+{
+    // stream-merge --streams FOLDER [--dump FILE]: merges again the stream tapes a trust run saved (TAPEVAULT_TRUST_STREAMS).
+    return StreamReplay.Run(args[1..]);
+}
+
 if (section == "memory")
 {
     // memory [PROFILE ...] [--minutes 30,60,120]: peak memory of the decode over long captures; see LongCaptureMemory.

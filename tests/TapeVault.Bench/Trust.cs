@@ -270,6 +270,7 @@ public static class Trust
         var examples = new List<WrongExample>();
         var results = new List<DecodeResult>();
         var names = new List<string>();
+        var sources = new List<string>();
         var rng = new Random(unchecked((seed * 7_919) + StableHash(profile.Id)));
         try
         {
@@ -290,6 +291,7 @@ public static class Trust
 
                 results.Add(result);
                 names.Add(Path.GetFileName(path));
+                sources.Add(source);
                 PositionReplay.Save(profile, seed, p, source, written, result.Candidates);
                 if (!bySource.TryGetValue(source, out var readings))
                 {
@@ -350,6 +352,7 @@ public static class Trust
                 DumpSlots(profile, seed, results, names, files);
             }
 
+            StreamReplay.Save(profile, seed, files, sources, [.. results.Select((r, i) => MergePass.From(r, names[i]))]);
             long m0 = Stopwatch.GetTimestamp();
             var image = TapeMerger.Merge(results, names, s_mergeOptions);
             Interlocked.Add(ref s_mergeTicks, Stopwatch.GetTimestamp() - m0);
@@ -365,7 +368,7 @@ public static class Trust
                     continue;
                 }
 
-                bool right = judge(block.Header.AsSpan(), block.Payload.AsSpan());
+                bool right = judge(block.Header.AsSpan(), block.Payload.AsSpan()) && (!profile.Layout.IsStream || ShortSegmentInPlace(block.Key, block.Payload.AsSpan(), files));
                 bool wrongClean = !right && (profile.Layout.IsStream ? block.Confidence >= StreamConfidentWrong : block.Status == RecoveryStatus.Clean);
                 positions.Add(new Reading(block.Confidence, right, wrongClean));
                 if (s_dumpPath is not null)
@@ -525,7 +528,40 @@ public static class Trust
     }
 
     /// <summary>Where a wrong stream segment differs from the written bytes it lines up with best: at its first or last two characters (or past a file's end), inside, or both.</summary>
-    private static string StreamErrorWhere(ReadOnlySpan<byte> run, List<TapeFile> files)
+    /// <summary>
+    /// Whether a merged stream segment of fewer than four bytes is the written bytes where its key puts it (stretch s is
+    /// the s-th file; its offset, which counts the bytes no capture kept from the gap's length, within two characters).
+    /// Lined up anywhere in the files, as longer segments are, one or two bytes match by chance: a garbage byte of a
+    /// thousand-byte tape is some written byte somewhere more often than not. Longer segments: true (judged by lining up).
+    /// </summary>
+    internal static bool ShortSegmentInPlace(string key, ReadOnlySpan<byte> payload, List<TapeFile> files)
+    {
+        if (payload.Length >= 4)
+        {
+            return true;
+        }
+
+        var parts = key.TrimStart('#').Split('+');
+        int stretch = int.Parse(parts[0], CultureInfo.InvariantCulture);
+        int offset = parts.Length > 1 ? int.Parse(parts[1], CultureInfo.InvariantCulture) : 0;
+        if (stretch < 0 || stretch >= files.Count)
+        {
+            return false;
+        }
+
+        var content = files[stretch].Content;
+        for (int at = offset - 2; at <= offset + 2; at++)
+        {
+            if (at >= 0 && at + payload.Length <= content.Length && content.AsSpan(at, payload.Length).SequenceEqual(payload))
+            {
+                return true;
+            }
+        }
+
+        return false;
+    }
+
+    internal static string StreamErrorWhere(ReadOnlySpan<byte> run, List<TapeFile> files)
     {
         var (bestFile, bestOffset, _) = BestAlignment(run, files);
         var best = files[bestFile].Content;

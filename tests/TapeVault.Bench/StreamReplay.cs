@@ -1,0 +1,127 @@
+using System.Globalization;
+using System.Text.Json;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Image;
+using TapeVault.Core.Merge;
+
+namespace TapeVault.Bench;
+
+/// <summary>
+/// The stream merge on readings already made: with TAPEVAULT_TRUST_STREAMS set to a folder, the trust bench saves every
+/// stream tape's passes there (one JSON file per tape: the files written and each capture's readings); <c>stream-merge
+/// --streams FOLDER [--dump FILE]</c> merges them again with the merge of this build and reports, per profile, the
+/// merged positions, those wrong at 0.99 or more, the ECE (10 equal bins), the exact images and the reliability bins.
+/// Decoding is by far the slow part of the trust bench, so this is how a change to the stream merge is tried; the
+/// figures are the trust bench's own for the same tapes (the same judge: <see cref="RecoveryCorpus.Place"/>).
+/// </summary>
+public static class StreamReplay
+{
+    private static readonly string? s_folder = Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_STREAMS");
+
+    private static readonly JsonSerializerOptions s_json = new() { NumberHandling = System.Text.Json.Serialization.JsonNumberHandling.AllowNamedFloatingPointLiterals };
+
+    private sealed record SavedFile(string Name, string Content);
+
+    private sealed record SavedTape(string Profile, int Seed, List<SavedFile> Files, List<string> Sources, List<MergePass> Passes);
+
+    public static void Save(FormatProfile profile, int seed, List<TapeFile> files, List<string> sources, List<MergePass> passes)
+    {
+        if (s_folder is null || !profile.Layout.IsStream)
+        {
+            return;
+        }
+
+        Directory.CreateDirectory(s_folder);
+        var saved = new SavedTape(profile.Id, seed, [.. files.Select(f => new SavedFile(f.Name, Convert.ToHexString(f.Content)))], sources, passes);
+        File.WriteAllText(Path.Combine(s_folder, $"{profile.Id}-{seed}.json"), JsonSerializer.Serialize(saved, s_json));
+    }
+
+    public static int Run(string[] args)
+    {
+        string? folder = null, dump = null;
+        for (int i = 0; i < args.Length; i++)
+        {
+            switch (args[i])
+            {
+                case "--streams": folder = args[++i]; break;
+                case "--dump": dump = args[++i]; break;
+                default: throw new ArgumentException($"Unknown option {args[i]}; stream-merge takes --streams FOLDER [--dump FILE].");
+            }
+        }
+
+        if (folder is null)
+        {
+            throw new ArgumentException("stream-merge needs --streams FOLDER (a trust run's TAPEVAULT_TRUST_STREAMS).");
+        }
+
+        var options = new MergeOptions { CreatedUtc = DateTimeOffset.UnixEpoch };
+        var rows = new List<(string Profile, double Confidence, bool Right, bool Anywhere)>();
+        var exactTapes = new Dictionary<string, (int Tapes, int Exact, double Least)>();
+        var lines = new List<string>();
+        var watch = System.Diagnostics.Stopwatch.StartNew();
+        foreach (string file in Directory.GetFiles(folder, "*.json").Order(StringComparer.Ordinal))
+        {
+            var saved = JsonSerializer.Deserialize<SavedTape>(File.ReadAllText(file), s_json)!;
+            var profile = ProfileCatalog.BuiltIn.Get(saved.Profile);
+            var files = saved.Files.Select(f => new TapeFile(f.Name, Convert.FromHexString(f.Content))).ToList();
+            var bases = new int[files.Count];
+            for (int f = 1; f < files.Count; f++)
+            {
+                bases[f] = bases[f - 1] + files[f - 1].Content.Length;
+            }
+
+            var image = TapeMerger.Merge(saved.Passes, profile, options);
+            bool exact = image.Blocks.Length == files.Count;
+            for (int bi = 0; bi < image.Blocks.Length; bi++)
+            {
+                var block = image.Blocks[bi];
+                if (block.Status == RecoveryStatus.Missing)
+                {
+                    exact = false;
+                    continue;
+                }
+
+                // Right as the trust bench judges: lined up with the written bytes, a short segment where its key puts it;
+                // and, for comparison with figures before that rule, lined up anywhere.
+                bool anywhere = RecoveryCorpus.Place(block.Payload.AsSpan(), files, bases, null);
+                bool right = anywhere && Trust.ShortSegmentInPlace(block.Key, block.Payload.AsSpan(), files);
+                exact &= right && block.AgreeingCaptures >= 2;
+                rows.Add((saved.Profile, block.Confidence, right, anywhere));
+                bool gapBefore = bi > 0 && image.Blocks[bi - 1].Status == RecoveryStatus.Missing;
+                bool gapAfter = bi + 1 < image.Blocks.Length && image.Blocks[bi + 1].Status == RecoveryStatus.Missing;
+                lines.Add(string.Join('\t', saved.Profile, saved.Seed, block.Key, block.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0,
+                    block.AgreeingCaptures, block.Sources.Length, block.Payload.Length, gapBefore ? 1 : 0, gapAfter ? 1 : 0,
+                    string.Join(',', block.Sources.Select(s => s.Confidence.ToString("0.###", CultureInfo.InvariantCulture))),
+                    right ? "-" : Trust.StreamErrorWhere(block.Payload.AsSpan(), files), anywhere ? 1 : 0, Convert.ToHexString(block.Payload.AsSpan())));
+            }
+
+            var t = exactTapes.GetValueOrDefault(saved.Profile, (Tapes: 0, Exact: 0, Least: 1.0));
+            exactTapes[saved.Profile] = (t.Tapes + 1, t.Exact + (exact ? 1 : 0), exact ? Math.Min(t.Least, image.OverallConfidence) : t.Least);
+        }
+
+        Console.WriteLine("Right: lined up with the written bytes, a segment of fewer than four bytes where its key puts it (Trust.ShortSegmentInPlace);");
+        Console.WriteLine("ECE anywhere: short segments lined up anywhere in the files, as the trust bench judged them before that rule.");
+        Console.WriteLine($"{"profile",-10} {"tapes",5} {"positions",9} {"wrong ≥0.99",11} {"ECE merged",10} {"ECE anywhere",12} {"exact",5} {"least exact",11}");
+        foreach (var group in rows.GroupBy(r => r.Profile).OrderBy(g => g.Key, StringComparer.Ordinal))
+        {
+            var items = group.Select(r => (r.Confidence, r.Right)).ToList();
+            var (tapes, exact, least) = exactTapes[group.Key];
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"{group.Key,-10} {tapes,5} {items.Count,9} {items.Count(i => !i.Right && i.Confidence >= Trust.StreamConfidentWrong),11} {Calibration.EqualBinEce(items),10:0.0000} {Calibration.EqualBinEce([.. group.Select(r => (r.Confidence, r.Anywhere))]),12:0.0000} {exact,5} {least,11:0.0000}"));
+            foreach (var bin in items.GroupBy(i => Math.Clamp((int)(i.Confidence * 10), 0, 9)).OrderBy(b => b.Key))
+            {
+                Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                    $"    [{bin.Key / 10.0:0.0}, {(bin.Key + 1) / 10.0:0.0}): {bin.Count(),4} positions, mean confidence {bin.Average(i => i.Confidence):0.000}, right {bin.Count(i => i.Right) / (double)bin.Count():0.000}"));
+            }
+        }
+
+        if (dump is not null)
+        {
+            File.WriteAllLines(dump, lines);
+        }
+
+        Console.WriteLine($"{watch.Elapsed.TotalSeconds:0.0} s");
+        return 0;
+    }
+}
