@@ -85,6 +85,14 @@ public static class PositionReplay
             if (show && positions != written.Count)
             {
                 Console.WriteLine($"{Path.GetFileName(file)}: written {written.Count}, positions {positions}, two blocks in one {merged}, clean readings {placed.Count(c => c.Status == BlockStatus.Clean)}");
+                {
+                    // Every reading, with the written blocks whose header it carries.
+                    foreach (var c in placed)
+                    {
+                        Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                            $"  pos {c.Position,3} {c.StartSeconds,9:0.000}-{c.EndSeconds,9:0.000} {c.SettingName,-4} {c.Status,-9} {(c.Truncated ? "cut" : "   ")} key {c.Identity.Key,-24} header of {string.Join(",", HeaderOf(profile, written, c))}"));
+                    }
+                }
             }
         }
 
@@ -105,6 +113,20 @@ public static class PositionReplay
 
         Console.WriteLine($"{watch.Elapsed.TotalSeconds:0.0} s");
         return 0;
+    }
+
+    /// <summary>The written blocks whose header (after the sync field) the reading carries as read.</summary>
+    private static IEnumerable<int> HeaderOf(FormatProfile profile, List<byte[]> written, BlockCandidate c)
+    {
+        int syncBytes = profile.Layout.Header.TakeWhile(f => f.Role == FieldRole.Sync).Sum(f => f.Bytes);
+        int h = c.Header.Length;
+        for (int w = 0; w < written.Count; w++)
+        {
+            if (h > syncBytes && written[w].Length >= h && c.Header.AsSpan()[syncBytes..].SequenceEqual(written[w].AsSpan(syncBytes, h - syncBytes)))
+            {
+                yield return w;
+            }
+        }
     }
 
     private static int WrittenIndex(FormatProfile profile, List<byte[]> written, BlockCandidate c)

@@ -24,6 +24,7 @@ public static class BlockPositioner
         }
 
         trusted.Sort((a, b) => a.StartSeconds.CompareTo(b.StartSeconds));
+        double? copyGap = copies > 1 ? GapBetweenCopies(trusted) : null;
 
         // Streams have no identity but their order: a stream block's key is the order of its start among all streams
         // found, merged across settings by overlap in time.
@@ -52,8 +53,8 @@ public static class BlockPositioner
             else
             {
                 key = FindOverlapping(trusted, c)?.Identity.Key
-                    ?? (copies > 1 ? FindNeighbouringCopy(trusted, c)?.Identity.Key : null)
-                    ?? (c.Truncated && c.Payload.IsEmpty && !NamesItself(c) ? FindNearest(trusted, c)?.Identity.Key : null)
+                    ?? (copies > 1 ? FindNeighbouringCopy(trusted, c, copies, copyGap)?.Identity.Key : null)
+                    ?? (c.Truncated && c.Payload.IsEmpty && !NamesItself(c) ? FindNearest(trusted, c, copies, copyGap)?.Identity.Key : null)
                     ?? string.Empty;
             }
 
@@ -67,7 +68,7 @@ public static class BlockPositioner
         // are written back to back, so the same identity after a block read in between is a new position too, however
         // close: two short files whose headers carry only a block number both start at block 0.
         // Stretches are numbered in order of their first reading, which makes them the positions in tape order.
-        var stretchEnd = new List<double>();
+        var stretchEnds = new List<ProvenSpan>();
         var stretchesByKey = new Dictionary<string, List<int>>(StringComparer.Ordinal);
         var readings = new List<(double Start, double End, int Stretch)>();
         var positionOf = new int[keyed.Count];
@@ -92,19 +93,19 @@ public static class BlockPositioner
 
             // One setting reads each copy of a block whole once: another whole reading of the same identity by the
             // same setting, after as many as the format writes, is another block whose header was misread alike.
-            int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnd[ofKey[^1]] + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds)
+            int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnds[ofKey[^1]].End + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds)
                 && (candidate.Truncated || wholeBySetting.GetValueOrDefault((ofKey[^1], candidate.SettingIndex)) < Math.Max(1, copies))
                 ? ofKey[^1]
                 : -1;
             if (found < 0)
             {
-                stretchEnd.Add(candidate.EndSeconds);
-                found = stretchEnd.Count - 1;
+                stretchEnds.Add(ProvenSpan.Empty.With(candidate));
+                found = stretchEnds.Count - 1;
                 ofKey.Add(found);
             }
             else
             {
-                stretchEnd[found] = Math.Max(stretchEnd[found], candidate.EndSeconds);
+                stretchEnds[found] = stretchEnds[found].With(candidate);
             }
 
             if (!candidate.Truncated)
@@ -122,7 +123,7 @@ public static class BlockPositioner
         // few readings can have begun after s ended).
         bool ReadInBetween(int s, double start)
         {
-            for (int r = readings.Count - 1; r >= 0 && readings[r].Start > stretchEnd[s]; r--)
+            for (int r = readings.Count - 1; r >= 0 && readings[r].Start > stretchEnds[s].End; r--)
             {
                 if (readings[r].Stretch != s && readings[r].End <= start)
                 {
@@ -133,7 +134,7 @@ public static class BlockPositioner
             return false;
         }
 
-        JoinPlacesOfOneBlock(keyed, positionOf, stray, stretchEnd.Count, copies);
+        JoinPlacesOfOneBlock(keyed, positionOf, stray, stretchEnds.Count, copies);
 
         var placed = new List<BlockCandidate>(keyed.Count);
         for (int i = 0; i < keyed.Count; i++)
@@ -455,6 +456,8 @@ public static class BlockPositioner
             return order != 0 ? order : b.CompareTo(a);
         });
 
+        var index = new ReadingIndex(keyed);
+        var near = new List<int>();
         var support = new Dictionary<string, int>(StringComparer.Ordinal);
         foreach (var (candidate, key) in keyed)
         {
@@ -522,7 +525,7 @@ public static class BlockPositioner
         for (int p = 0; p < places.Count; p++)
         {
             string key = placeKey[p];
-            string? overlapped = OverlappedKey(keyed, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored);
+            string? overlapped = OverlappedKey(keyed, index, near, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored);
             if (anchored)
             {
                 // A stretch of tape that an anchored reading covers is that block's place: readings of other settings
@@ -538,7 +541,7 @@ public static class BlockPositioner
             if (placeSupport[p] <= 1)
             {
                 key = overlapped ?? key;
-                if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, starts, byEnd, places[p]) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, i, placeOf)))
+                if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, starts, byEnd, places[p]) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, index, near, i, placeOf)))
                 {
                     foreach (int i in places[p])
                     {
@@ -597,6 +600,67 @@ public static class BlockPositioner
         return vouched[before] && vouched[after];
     }
 
+    /// <summary>
+    /// The readings in order of start, for finding those near one reading without a scan from the first. Most readings
+    /// are about a block long; a reading longer than <see cref="LongBound"/> (a misread length that ran on) is kept in a
+    /// short list of its own and offered to every look-up, so a look-up reads only the readings that start within the
+    /// bound of where it asks, and the long ones.
+    /// </summary>
+    private sealed class ReadingIndex
+    {
+        private readonly double[] _starts;
+        private readonly List<int> _long = [];
+
+        public ReadingIndex(List<(BlockCandidate Candidate, string Key)> keyed)
+        {
+            _starts = new double[keyed.Count];
+            var lengths = new double[keyed.Count];
+            for (int i = 0; i < keyed.Count; i++)
+            {
+                _starts[i] = keyed[i].Candidate.StartSeconds;
+                lengths[i] = keyed[i].Candidate.EndSeconds - keyed[i].Candidate.StartSeconds;
+            }
+
+            // Twice the length that nine readings in ten stay within, and a second at least: run-ons are far fewer.
+            Array.Sort(lengths);
+            LongBound = Math.Max(1.0, lengths.Length == 0 ? 0 : 2 * lengths[(int)(0.9 * (lengths.Length - 1))]);
+            for (int i = 0; i < keyed.Count; i++)
+            {
+                if (keyed[i].Candidate.EndSeconds - keyed[i].Candidate.StartSeconds > LongBound)
+                {
+                    _long.Add(i);
+                }
+            }
+        }
+
+        /// <summary>No reading outside the long list is longer than this (seconds).</summary>
+        public double LongBound { get; }
+
+        /// <summary>
+        /// Into <paramref name="near"/> (cleared first), in ascending order: every reading before <paramref name="before"/>
+        /// that starts at or after <paramref name="earliest"/> or is a long one.
+        /// </summary>
+        public void Near(int before, double earliest, List<int> near)
+        {
+            near.Clear();
+            int from = LowerBound(before, i => _starts[i] >= earliest);
+            foreach (int i in _long)
+            {
+                if (i >= from || i >= before)
+                {
+                    break;
+                }
+
+                near.Add(i);
+            }
+
+            for (int i = from; i < before; i++)
+            {
+                near.Add(i);
+            }
+        }
+    }
+
     /// <summary>The first index in [0, count) at which <paramref name="atOrPast"/> holds, for a predicate false and then true.</summary>
     private static int LowerBound(int count, Func<int, bool> atOrPast)
     {
@@ -619,40 +683,60 @@ public static class BlockPositioner
 
     /// <summary>
     /// Whether reading <paramref name="index"/>'s header agrees over at least half the bytes both have with the header
-    /// of a reading of another place within two block lengths of it.
+    /// of a reading of another place within two block lengths of it. The readings before it come from the index (only
+    /// those near enough, and the few long ones); after it, the scan stops at the first reading out of reach.
     /// </summary>
-    private static bool ResemblesANeighbour(List<(BlockCandidate Candidate, string Key)> keyed, int index, int[] placeOf)
+    private static bool ResemblesANeighbour(List<(BlockCandidate Candidate, string Key)> keyed, ReadingIndex readings, List<int> near, int index, int[] placeOf)
     {
         var c = keyed[index].Candidate;
         double length = Math.Max(c.EndSeconds - c.StartSeconds, 0.1);
-        for (int i = 0; i < keyed.Count; i++)
+
+        // A reading before this one is in reach when its end is no more than twice the longer length (and half a
+        // second) before this start; one no longer than the index's long bound starts at most that bound before its end.
+        double bound = readings.LongBound;
+        readings.Near(index, c.StartSeconds - bound - (2 * Math.Max(length, bound)) - 0.5, near);
+        foreach (int i in near)
         {
-            var other = keyed[i].Candidate;
-            double reach = 2 * Math.Max(length, other.EndSeconds - other.StartSeconds) + 0.5;
-            if (other.StartSeconds > c.EndSeconds + reach)
-            {
-                break;
-            }
-
-            if (other.EndSeconds < c.StartSeconds - reach || (placeOf[i] >= 0 && placeOf[i] == placeOf[index]))
-            {
-                continue;
-            }
-
-            int shared = Math.Min(other.Header.Length, c.Header.Length);
-            int agree = 0;
-            for (int b = 0; b < shared; b++)
-            {
-                agree += other.Header[b] == c.Header[b] ? 1 : 0;
-            }
-
-            if (shared > 0 && 2 * agree >= shared)
+            if (Resembles(c, keyed[i].Candidate, length, index, i, placeOf) is true)
             {
                 return true;
             }
         }
 
+        for (int i = index; i < keyed.Count; i++)
+        {
+            switch (Resembles(c, keyed[i].Candidate, length, index, i, placeOf))
+            {
+                case true: return true;
+                case null: return false;
+            }
+        }
+
         return false;
+    }
+
+    /// <summary>Whether <paramref name="other"/>'s header agrees with <paramref name="c"/>'s as <see cref="ResemblesANeighbour"/> asks; null once <paramref name="other"/> starts out of reach after it.</summary>
+    private static bool? Resembles(BlockCandidate c, BlockCandidate other, double length, int index, int i, int[] placeOf)
+    {
+        double reach = 2 * Math.Max(length, other.EndSeconds - other.StartSeconds) + 0.5;
+        if (other.StartSeconds > c.EndSeconds + reach)
+        {
+            return null;
+        }
+
+        if (other.EndSeconds < c.StartSeconds - reach || (placeOf[i] >= 0 && placeOf[i] == placeOf[index]))
+        {
+            return false;
+        }
+
+        int shared = Math.Min(other.Header.Length, c.Header.Length);
+        int agree = 0;
+        for (int b = 0; b < shared; b++)
+        {
+            agree += other.Header[b] == c.Header[b] ? 1 : 0;
+        }
+
+        return shared > 0 && 2 * agree >= shared;
     }
 
     /// <summary>
@@ -664,19 +748,19 @@ public static class BlockPositioner
     /// header was garbled.
     /// </summary>
     private static string? OverlappedKey(
-        List<(BlockCandidate Candidate, string Key)> keyed, int place, int[] placeOf, string[] placeKey, int[] placeSupport, int first, out bool anchored)
+        List<(BlockCandidate Candidate, string Key)> keyed, ReadingIndex readings, List<int> near, int place, int[] placeOf, string[] placeKey, int[] placeSupport,
+        int first, out bool anchored)
     {
         var c = keyed[first].Candidate;
         string? best = null;
         int bestSupport = 1;
-        for (int i = 0; i < keyed.Count; i++)
+
+        // The readings that start before this one ends and may end after it starts, in order of start.
+        int before = LowerBound(keyed.Count, i => keyed[i].Candidate.StartSeconds >= c.EndSeconds);
+        readings.Near(before, c.StartSeconds - readings.LongBound, near);
+        foreach (int i in near)
         {
             var other = keyed[i].Candidate;
-            if (other.StartSeconds >= c.EndSeconds)
-            {
-                break;
-            }
-
             if (placeOf[i] == place)
             {
                 continue;
@@ -810,7 +894,7 @@ public static class BlockPositioner
     /// header that differs from the candidate's in at most two of the bytes both have. Only formats that write each block more than
     /// once have such neighbours; elsewhere the block next door is a different block.
     /// </summary>
-    private static BlockCandidate? FindNeighbouringCopy(List<BlockCandidate> trusted, BlockCandidate c)
+    private static BlockCandidate? FindNeighbouringCopy(List<BlockCandidate> trusted, BlockCandidate c, int copies, double? copyGap)
     {
         double length = Math.Max(c.EndSeconds - c.StartSeconds, 0.1);
         // The fewest differing bytes, then the nearest on the tape: a header of sync bytes alone (a countdown every
@@ -826,7 +910,7 @@ public static class BlockPositioner
                 break;
             }
 
-            if (t.EndSeconds < c.StartSeconds - reach || c.Header.IsEmpty)
+            if (t.EndSeconds < c.StartSeconds - reach || c.Header.IsEmpty || !WithinCopies(t, c, copies, copyGap))
             {
                 continue;
             }
@@ -854,6 +938,55 @@ public static class BlockPositioner
         return best;
     }
 
+    /// <summary>
+    /// Whether <paramref name="c"/> starts where a copy of the block that <paramref name="t"/> (clean) read can start:
+    /// the format writes each block <paramref name="copies"/> times back to back, so every copy starts within k − 1 copy
+    /// spacings of any other, a spacing being the block's length and the gap before the next copy. The gap is the one
+    /// this capture shows between clean copies (<see cref="GapBetweenCopies"/>), with a quarter more and a sync's
+    /// width for slack; where no two clean copies show it, any reading nearby may be a copy. A reading two spacings
+    /// after a clean copy of a block written twice is the next block, however alike its header (the file's name, a
+    /// block number one apart).
+    /// </summary>
+    private static bool WithinCopies(BlockCandidate t, BlockCandidate c, int copies, double? copyGap)
+    {
+        if (copyGap is not { } gap)
+        {
+            return true;
+        }
+
+        double spacing = (t.EndSeconds - t.StartSeconds) + (1.25 * gap) + SyncSeconds;
+        return Math.Abs(c.StartSeconds - t.StartSeconds) <= (Math.Max(1, copies) - 1) * spacing + SyncSeconds;
+    }
+
+    /// <summary>
+    /// The gap between the end of a copy and the start of the next, as this capture shows it: the median over clean
+    /// readings of one identity by one setting that follow each other (the copies of a block; a block number reused by
+    /// the next file lies many blocks later and barely moves the median). Null where no setting read two copies clean.
+    /// </summary>
+    private static double? GapBetweenCopies(List<BlockCandidate> trusted)
+    {
+        var last = new Dictionary<(int Setting, string Key), BlockCandidate>();
+        var gaps = new List<double>();
+        foreach (var t in trusted)
+        {
+            var at = (t.SettingIndex, t.Identity.Key);
+            if (last.TryGetValue(at, out var before) && t.StartSeconds > before.EndSeconds)
+            {
+                gaps.Add(t.StartSeconds - before.EndSeconds);
+            }
+
+            last[at] = t;
+        }
+
+        if (gaps.Count == 0)
+        {
+            return null;
+        }
+
+        gaps.Sort();
+        return gaps[gaps.Count / 2];
+    }
+
     /// <summary>Whether a reading's header was read far enough to give a field of its identity: then it keeps that identity rather than a neighbour's.</summary>
     private static bool NamesItself(BlockCandidate c) => c.Identity.BlockNumber is not null || c.Identity.FileId is not null || c.Identity.FileName is not null;
 
@@ -861,7 +994,7 @@ public static class BlockPositioner
     /// For a reading cut off inside its header (so it has no identity to go by, and no payload to offer): the clean
     /// block nearest to it in time, within two block lengths.
     /// </summary>
-    private static BlockCandidate? FindNearest(List<BlockCandidate> trusted, BlockCandidate c)
+    private static BlockCandidate? FindNearest(List<BlockCandidate> trusted, BlockCandidate c, int copies, double? copyGap)
     {
         BlockCandidate? best = null;
         double bestGap = double.PositiveInfinity;
@@ -869,7 +1002,7 @@ public static class BlockPositioner
         {
             double gap = Math.Max(t.StartSeconds - c.EndSeconds, c.StartSeconds - t.EndSeconds);
             double reach = 2 * (t.EndSeconds - t.StartSeconds) + 0.5;
-            if (gap <= reach && gap < bestGap)
+            if (gap <= reach && gap < bestGap && (copies <= 1 || WithinCopies(t, c, copies, copyGap)))
             {
                 best = t;
                 bestGap = gap;

@@ -149,7 +149,20 @@ internal sealed class BlockMerge
                 var trusted = readings.Where(c => c.Status == BlockStatus.Clean).MaxBy(c => c.Confidence);
                 string key = readings.Where(c => !c.Header.IsEmpty).GroupBy(c => c.Identity.Key).MaxBy(g => g.Count())?.Key
                     ?? readings[0].Identity.Key;
-                entries.Add(new Entry(p, readings, timeline.Map(readings.Min(c => c.StartSeconds)), timeline.Map(readings.Max(c => c.EndSeconds)))
+                // The position's stretch of tape is what its clean readings and those that agree with its identity
+                // prove: a reading with another header (a stray one that joined the stretch it follows, a misread that
+                // ran on) would stretch it over the next block and draw other passes' readings of that block in.
+                var span = ProvenSpan.Empty;
+                string agreed = trusted?.Identity.Key ?? key;
+                foreach (var c in readings)
+                {
+                    if (c.Status == BlockStatus.Clean || c.Identity.Key == agreed)
+                    {
+                        span = span.With(c);
+                    }
+                }
+
+                entries.Add(new Entry(p, readings, timeline.Map(span.Start), timeline.Map(span.End))
                 {
                     TrustedKey = trusted?.Identity.Key,
                     TrustedContent = trusted is null ? null : Convert.ToHexString(trusted.Header.AsSpan()) + trusted.PayloadHex,
