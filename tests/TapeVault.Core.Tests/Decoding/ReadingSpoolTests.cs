@@ -3,6 +3,7 @@ using System.Collections.Immutable;
 using TapeVault.Core.Audio;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Decoding;
+using TapeVault.Core.Detection;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
 using TapeVault.Core.Tests.RoundTrip;
@@ -19,16 +20,27 @@ public sealed class ReadingSpoolTests(RoundTripFolder folder) : IClassFixture<Ro
     [Theory]
     [InlineData("orrin-80")]
     [InlineData("biphase-1200")]
-    [InlineData("kcs-1200")]
+    [InlineData("three-class-pairs")]
     public void Session_HandsReadingsToItsSpool_BeforeTheCaptureEnds(string profileId)
     {
         var profile = ProfileCatalog.BuiltIn.Get(profileId);
         string path = folder.NewCapture("spool-" + profileId);
-        CaptureSynthesizer.Write(path, profile, RoundTrips.Files(profile), new ChannelDamage());
+
+        // Two files of many blocks each (these formats write blocks of a few hundred bytes at most).
+        var random = new Random(4242);
+        var files = new List<TapeFile>();
+        foreach (string name in new[] { "FIRST", "SECOND" })
+        {
+            var content = new byte[1500];
+            random.NextBytes(content);
+            files.Add(new TapeFile(name, content));
+        }
+
+        CaptureSynthesizer.Write(path, profile, files, new ChannelDamage());
 
         using var spool = ReadingSpool.InMemory();
         using var reader = CaptureReader.Open(path);
-        var settings = CaptureDecoder.BankFor(profile, Detection.DetectorBanks.Default);
+        var settings = CaptureDecoder.BankFor(profile, DetectorBanks.Default);
         var session = new CaptureDecoder.DecodeSession(profile, settings, reader.SampleRate, spool: spool);
         long half = reader.FrameCount / 2;
         int spooledByHalf = -1;
@@ -45,7 +57,7 @@ public sealed class ReadingSpoolTests(RoundTripFolder folder) : IClassFixture<Ro
 
         var (candidates, best) = session.FinishSpooled();
 
-        // The files are several blocks each, so blocks are finished within the capture's first half.
+        // The capture holds many blocks one after the other, so blocks are finished within its first half.
         Assert.True(spooledByHalf > 0, $"no reading was spooled by the middle of the capture ({spool.Count} at the end)");
         Assert.True(spooledByHalf < spool.Count, "every reading was spooled by the middle of the capture");
         Assert.Equal(spool.Count, candidates.Count);
