@@ -10,7 +10,7 @@ namespace TapeVault.Bench;
 /// </summary>
 public static class LongCaptureMemory
 {
-    /// <summary>memory [PROFILE ...] [--minutes 30,60,120]: orrin-80 and kcs-300 unless profiles are named.</summary>
+    /// <summary>memory [PROFILE ...] [--minutes 30,60,120]: one profile of each family unless profiles are named.</summary>
     public static int Run(string work, string[] args)
     {
         var profiles = new List<string>();
@@ -29,7 +29,7 @@ public static class LongCaptureMemory
 
         if (profiles.Count == 0)
         {
-            profiles.AddRange(["orrin-80", "kcs-300"]);
+            profiles.AddRange(["orrin-80", "three-class-pairs", "one-cycle-bits", "biphase-1200", "kcs-300"]);
         }
 
         Console.WriteLine($"Peak memory of the decode (default bank, 44.1 kHz 16-bit mono, whole child process, peak resident set by GNU time); load at start: {MachineLoad.Averages()}");

@@ -312,6 +312,13 @@ public static class Throughput
             note = clean > 0 || unread == 0
                 ? $"{clean}/{result.Best.Count} clean"
                 : $"{result.Best.Sum(b => b.Payload.Length)} B read";
+
+            // A look at the heap with the result still held: how many readings it keeps, the per-byte data they carry
+            // (payload, margins, error odds, times), and the managed heap after a full collection.
+            long perByte = result.Candidates.Sum(c => (long)c.Payload.Length * (sizeof(byte) + sizeof(float) + sizeof(float) + sizeof(double)));
+            long heap = GC.GetTotalMemory(forceFullCollection: true);
+            note += $"; {result.Candidates.Count} readings, {perByte / 1e6:0.0} MB per-byte data, heap {heap / 1e6:0.0} MB";
+            GC.KeepAlive(result);
         }
 
         Console.WriteLine(note);

@@ -20,7 +20,7 @@ public sealed partial class BlockAssembler : IBlockSink
     private readonly int _settingIndex;
     private readonly string _settingName;
     private readonly double _sampleRate;
-    private readonly List<BlockCandidate> _output;
+    private readonly Action<BlockCandidate> _finished;
     private readonly List<byte> _bytes = new(512);
     private readonly List<int> _byteFirstDecision = new(512);
     private readonly List<double> _byteSample = new(512);
@@ -37,8 +37,15 @@ public sealed partial class BlockAssembler : IBlockSink
     private int _ordinal;
 
     public BlockAssembler(FormatProfile profile, int settingIndex, string settingName, double sampleRate, List<BlockCandidate> output)
+        : this(profile, settingIndex, settingName, sampleRate, (output ?? throw new ArgumentNullException(nameof(output))).Add)
+    {
+    }
+
+    /// <param name="finished">Takes each block the moment it is finished (from the thread that decodes this setting).</param>
+    public BlockAssembler(FormatProfile profile, int settingIndex, string settingName, double sampleRate, Action<BlockCandidate> finished)
     {
         ArgumentNullException.ThrowIfNull(profile);
+        ArgumentNullException.ThrowIfNull(finished);
         _layout = profile.Layout;
         _scorer = new BlockScorer(_layout, profile.Family, profileId: profile.Id, characterBaud: profile.Fsk?.Baud);
         _codec = BlockLayoutCodec.For(_layout);
@@ -46,7 +53,7 @@ public sealed partial class BlockAssembler : IBlockSink
         _settingIndex = settingIndex;
         _settingName = settingName;
         _sampleRate = sampleRate;
-        _output = output;
+        _finished = finished;
 
         // A format that marks each block's end on tape: a block is complete at its end marker, not at its layout's length.
         _endMarked = profile.PulseWidth is { EndOfBlock.Count: > 0 };
@@ -219,7 +226,7 @@ public sealed partial class BlockAssembler : IBlockSink
         }
 
         double level = _levelCount > 0 ? _levelSum / _levelCount : 0;
-        _output.Add(new BlockCandidate
+        _finished(new BlockCandidate
         {
             SettingIndex = _settingIndex,
             SettingName = _settingName,

@@ -13,6 +13,22 @@ public static class BlockPositioner
     /// <param name="copies">How many times the format writes each block in a row (the layout's copies).</param>
     public static List<BlockCandidate> Place(IReadOnlyList<BlockCandidate> candidates, int copies = 1)
     {
+        var order = PlaceInOrder(candidates, copies);
+        var placed = new List<BlockCandidate>(order.Length);
+        foreach (var (reading, position) in order)
+        {
+            placed.Add(candidates[reading] with { Position = position });
+        }
+
+        return placed;
+    }
+
+    /// <summary>
+    /// What <see cref="Place"/> does, told as each placed reading's index in <paramref name="candidates"/> and its
+    /// position, in the placed order (by position, then start), for a caller that keeps the readings elsewhere.
+    /// </summary>
+    public static (int Reading, int Position)[] PlaceInOrder(IReadOnlyList<BlockCandidate> candidates, int copies = 1)
+    {
         ArgumentNullException.ThrowIfNull(candidates);
         var trusted = new List<BlockCandidate>();
         foreach (var c in candidates)
@@ -30,8 +46,11 @@ public static class BlockPositioner
         // found, merged across settings by overlap in time.
         var keyed = new List<(BlockCandidate Candidate, string Key)>(candidates.Count);
         var streamAnchors = new List<(double Start, double End, string Key)>();
-        foreach (var c in candidates.OrderBy(c => c.StartSeconds))
+        var inputOf = new List<int>(candidates.Count);
+        foreach (int index in Enumerable.Range(0, candidates.Count).OrderBy(i => candidates[i].StartSeconds))
         {
+            var c = candidates[index];
+            inputOf.Add(index);
             string key;
             // A block cut short inside its header still belongs to a format with headers, even if no field was read whole.
             bool hasHeader = !c.Header.IsEmpty || c.Identity.FileName is not null || c.Identity.FileId is not null || c.Identity.BlockNumber is not null;
@@ -136,14 +155,20 @@ public static class BlockPositioner
 
         JoinPlacesOfOneBlock(keyed, positionOf, stray, stretchEnds.Count, copies);
 
-        var placed = new List<BlockCandidate>(keyed.Count);
+        var placed = new (int Reading, int Position, double Start)[keyed.Count];
         for (int i = 0; i < keyed.Count; i++)
         {
-            placed.Add(keyed[i].Candidate with { Position = positionOf[i] });
+            placed[i] = (inputOf[i], positionOf[i], keyed[i].Candidate.StartSeconds);
         }
 
-        placed.Sort((a, b) => a.Position != b.Position ? a.Position.CompareTo(b.Position) : a.StartSeconds.CompareTo(b.StartSeconds));
-        return placed;
+        placed.AsSpan().Sort((a, b) => a.Position != b.Position ? a.Position.CompareTo(b.Position) : a.Start.CompareTo(b.Start));
+        var order = new (int Reading, int Position)[placed.Length];
+        for (int i = 0; i < placed.Length; i++)
+        {
+            order[i] = (placed[i].Reading, placed[i].Position);
+        }
+
+        return order;
     }
 
     /// <summary>Starts closer than this are one sync, read by several settings (blocks and copies are whole lead-ins apart).</summary>
@@ -818,13 +843,38 @@ public static class BlockPositioner
     /// <summary>Per position: a clean candidate of highest confidence, else the most confident of any status.</summary>
     public static List<BlockCandidate> BestPerPosition(IReadOnlyList<BlockCandidate> placed)
     {
-        ArgumentNullException.ThrowIfNull(placed);
-        var best = new SortedDictionary<int, BlockCandidate>();
-        foreach (var c in placed)
+        var best = new List<BlockCandidate>();
+        foreach (int i in BestIndexPerPosition(placed))
         {
-            if (!best.TryGetValue(c.Position, out var current) || Better(c, current))
+            best.Add(placed[i]);
+        }
+
+        return best;
+    }
+
+    /// <summary>What <see cref="BestPerPosition"/> chooses, told as indices in <paramref name="placed"/>, in order of position.</summary>
+    public static List<int> BestIndexPerPosition(IReadOnlyList<BlockCandidate> placed)
+    {
+        ArgumentNullException.ThrowIfNull(placed);
+        return BestIndexPerPosition(placed, i => placed[i].Position);
+    }
+
+    /// <summary>
+    /// What <see cref="BestPerPosition"/> chooses among <paramref name="readings"/> placed at <paramref name="positionOf"/>
+    /// (of each reading's index), whatever their own <see cref="BlockCandidate.Position"/> says; indices in order of position.
+    /// </summary>
+    public static List<int> BestIndexPerPosition(IReadOnlyList<BlockCandidate> readings, Func<int, int> positionOf)
+    {
+        ArgumentNullException.ThrowIfNull(readings);
+        ArgumentNullException.ThrowIfNull(positionOf);
+        var best = new SortedDictionary<int, int>();
+        for (int i = 0; i < readings.Count; i++)
+        {
+            var c = readings[i];
+            int position = positionOf(i);
+            if (!best.TryGetValue(position, out int current) || Better(c, readings[current]))
             {
-                best[c.Position] = c;
+                best[position] = i;
             }
         }
 

@@ -31,7 +31,23 @@ public static class CaptureDecoder
         ArgumentNullException.ThrowIfNull(profile);
         options ??= new DecodeOptions();
         var bank = BankFor(profile, settings ?? DetectorBanks.Default);
-        var session = new DecodeSession(profile, bank, reader.SampleRate, options.SurveyIntervals);
+
+        // Each reading goes to a spool file the moment its block is finished; the decode keeps only their summaries.
+        var spool = ReadingSpool.InTemporaryFile();
+        try
+        {
+            return Decode(reader, profile, bank, options, spool);
+        }
+        catch
+        {
+            spool.Dispose();
+            throw;
+        }
+    }
+
+    private static DecodeResult Decode(CaptureReader reader, FormatProfile profile, IReadOnlyList<DetectorSetting> bank, DecodeOptions options, ReadingSpool spool)
+    {
+        var session = new DecodeSession(profile, bank, reader.SampleRate, options.SurveyIntervals, spool);
         long total = reader.FrameCount;
         var overview = options.OverviewColumns > 0 && total > 0 ? new WaveformOverview.Builder(total, options.OverviewColumns) : null;
 
@@ -139,8 +155,8 @@ public static class CaptureDecoder
 
         options.Cancellation.ThrowIfCancellationRequested();
         var capture = reader.Complete();
-        var candidates = session.Finish();
-        return new DecodeResult(capture, profile, bank, candidates, BlockPositioner.BestPerPosition(candidates), CodeVersion)
+        var (candidates, best) = session.FinishSpooled();
+        return new DecodeResult(capture, profile, bank, candidates, best, CodeVersion)
         {
             Surveys = session.Surveys,
             Overview = overview?.Finish(reader.SampleRate),
@@ -199,24 +215,35 @@ public static class CaptureDecoder
         private readonly DetectorBank _bank;
         private readonly ToneBank? _tones;
         private readonly ISymbolDecoder[] _decoders;
-        private readonly List<BlockCandidate>[] _candidates;
+        private readonly ReadingSpool _spool;
+        private readonly List<BlockCandidate>[] _summaries;
+        private readonly List<int>[] _records;
         private readonly IntervalSurvey[]? _surveys;
         private readonly int _copies;
         private ChunkWork? _single;
 
         /// <param name="surveyIntervals">Count each setting's edge intervals as well, for the plots' pulse-length histograms.</param>
-        public DecodeSession(FormatProfile profile, IReadOnlyList<DetectorSetting> settings, int sampleRate, bool surveyIntervals = false)
+        /// <param name="spool">Where each reading goes as its block is finished; by default a spool in memory (for short stretches).</param>
+        public DecodeSession(FormatProfile profile, IReadOnlyList<DetectorSetting> settings, int sampleRate, bool surveyIntervals = false, ReadingSpool? spool = null)
         {
             ArgumentNullException.ThrowIfNull(profile);
             ArgumentNullException.ThrowIfNull(settings);
             _bank = new DetectorBank(settings, sampleRate);
             _decoders = new ISymbolDecoder[settings.Count];
-            _candidates = new List<BlockCandidate>[settings.Count];
+            _spool = spool ?? ReadingSpool.InMemory();
+            _summaries = new List<BlockCandidate>[settings.Count];
+            _records = new List<int>[settings.Count];
             _copies = profile.Layout.Copies;
             for (int i = 0; i < settings.Count; i++)
             {
-                _candidates[i] = [];
-                var assembler = new BlockAssembler(profile, i, settings[i].Name, sampleRate, _candidates[i]);
+                var summaries = _summaries[i] = [];
+                var records = _records[i] = [];
+                var assembler = new BlockAssembler(profile, i, settings[i].Name, sampleRate, reading =>
+                {
+                    // Only this setting's worker adds to its lists; the spool takes every worker's readings.
+                    records.Add(_spool.Add(reading));
+                    summaries.Add(_spool.Summarize(reading));
+                });
                 bool both = settings[i].Edges == EdgeSelection.Both;
                 _decoders[i] = profile.Family switch
                 {
@@ -310,20 +337,50 @@ public static class CaptureDecoder
             Decode(_single);
         }
 
-        public List<BlockCandidate> Finish()
+        /// <summary>Ends the decode: every reading, placed and read back from the spool whole.</summary>
+        public List<BlockCandidate> Finish() => [.. FinishSpooled().Candidates];
+
+        /// <summary>
+        /// Ends the decode: every reading placed (by position, then start) and the best per position, both read back
+        /// from the spool a reading at a time as they are asked for.
+        /// </summary>
+        public (SpooledReadings Candidates, SpooledReadings Best) FinishSpooled()
         {
             foreach (var decoder in _decoders)
             {
                 decoder.Finish(_bank.SamplesSeen);
             }
 
-            var all = new List<BlockCandidate>();
-            foreach (var list in _candidates)
+            // The settings' readings one after the other, as the positioner has always been given them.
+            var summaries = new List<BlockCandidate>();
+            var records = new List<int>();
+            for (int i = 0; i < _summaries.Length; i++)
             {
-                all.AddRange(list);
+                summaries.AddRange(_summaries[i]);
+                records.AddRange(_records[i]);
             }
 
-            return BlockPositioner.Place(all, _copies);
+            var order = BlockPositioner.PlaceInOrder(summaries, _copies);
+            var placedRecords = new int[order.Length];
+            var placedPositions = new int[order.Length];
+            var placed = new List<BlockCandidate>(order.Length);
+            for (int i = 0; i < order.Length; i++)
+            {
+                placedRecords[i] = records[order[i].Reading];
+                placedPositions[i] = order[i].Position;
+                placed.Add(summaries[order[i].Reading]);
+            }
+
+            var best = BlockPositioner.BestIndexPerPosition(placed, i => placedPositions[i]);
+            var bestRecords = new int[best.Count];
+            var bestPositions = new int[best.Count];
+            for (int i = 0; i < best.Count; i++)
+            {
+                bestRecords[i] = placedRecords[best[i]];
+                bestPositions[i] = placedPositions[best[i]];
+            }
+
+            return (new SpooledReadings(_spool, placedRecords, placedPositions), new SpooledReadings(_spool, bestRecords, bestPositions));
         }
     }
 }

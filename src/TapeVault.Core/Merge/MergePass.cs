@@ -16,7 +16,8 @@ public sealed record MergePass(ImageSource Capture, IReadOnlyList<BlockCandidate
     {
         ArgumentNullException.ThrowIfNull(result);
         var c = result.Capture;
-        return new MergePass(new ImageSource(c.Sha256, fileName, c.SampleRate, c.Channels, c.DurationSeconds), result.Candidates, result.CodeVersion);
+        // The merge looks at the readings again and again: they are read back from the decode's spool once, here.
+        return new MergePass(new ImageSource(c.Sha256, fileName, c.SampleRate, c.Channels, c.DurationSeconds), [.. result.Candidates], result.CodeVersion);
     }
 }
 

@@ -55,33 +55,42 @@ public static class DecodeReport
         output.WriteLine($"Profile  {result.Profile.Id} ({result.Profile.Name}); bank of {result.Settings.Count} settings");
         output.WriteLine();
         output.WriteLine($"{"pos",4}  {"block",-16} {"status",-9} {"confidence",10}  {"bytes",5}  {"margin",6}  {"speed",8}  {"won by",-12} {"agree",5}");
-        foreach (var best in result.Best)
+        // The readings are read back from the decode's spool: once for the best of each position, once for the rest.
+        var bests = result.Best.ToList();
+        var bestAt = new Dictionary<int, int>(bests.Count);
+        for (int b = 0; b < bests.Count; b++)
         {
-            int agreeing = 0;
-            int readers = 0;
-            foreach (var candidate in result.Candidates)
-            {
-                if (candidate.Position != best.Position)
-                {
-                    continue;
-                }
-
-                readers++;
-                if (candidate.Status == best.Status && candidate.Payload.AsSpan().SequenceEqual(best.Payload.AsSpan()))
-                {
-                    agreeing++;
-                }
-            }
-
-            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"{best.Position,4}  {Truncate(best.Identity.Key, 16),-16} {Status(best.Status),-9} {best.Confidence,10:0.0000}  {best.Payload.Length,5}  {best.MinimumMargin,6:0.00}  {Vocabulary.SpeedPercent(best.Speed),8}  {best.SettingName,-12} {agreeing,2}/{readers,-2}"));
+            bestAt[bests[b].Position] = b;
         }
 
-        int clean = result.Best.Count(b => b.Status == BlockStatus.Clean);
-        int failed = result.Best.Count(b => b.Status == BlockStatus.Failed);
-        int unchecked_ = result.Best.Count(b => b.Status == BlockStatus.Unchecked);
+        var readers = new int[bests.Count];
+        var agreeing = new int[bests.Count];
+        foreach (var candidate in result.Candidates)
+        {
+            if (!bestAt.TryGetValue(candidate.Position, out int b))
+            {
+                continue;
+            }
+
+            readers[b]++;
+            if (candidate.Status == bests[b].Status && candidate.Payload.AsSpan().SequenceEqual(bests[b].Payload.AsSpan()))
+            {
+                agreeing[b]++;
+            }
+        }
+
+        for (int b = 0; b < bests.Count; b++)
+        {
+            var best = bests[b];
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"{best.Position,4}  {Truncate(best.Identity.Key, 16),-16} {Status(best.Status),-9} {best.Confidence,10:0.0000}  {best.Payload.Length,5}  {best.MinimumMargin,6:0.00}  {Vocabulary.SpeedPercent(best.Speed),8}  {best.SettingName,-12} {agreeing[b],2}/{readers[b],-2}"));
+        }
+
+        int clean = bests.Count(b => b.Status == BlockStatus.Clean);
+        int failed = bests.Count(b => b.Status == BlockStatus.Failed);
+        int unchecked_ = bests.Count(b => b.Status == BlockStatus.Unchecked);
         output.WriteLine();
-        output.WriteLine($"{result.Best.Count} positions: {clean} clean, {failed} failed, {unchecked_} unchecked.");
+        output.WriteLine($"{bests.Count} positions: {clean} clean, {failed} failed, {unchecked_} unchecked.");
         output.WriteLine(Vocabulary.ConfidenceSentence);
         output.WriteLine("margin: how far the least certain decision was from a wrong one (0 to 1). agree: readings of the position with");
         output.WriteLine("the same status and bytes, of all.");
