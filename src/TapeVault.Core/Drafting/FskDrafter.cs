@@ -28,6 +28,13 @@ public sealed class FskDrafter : IFamilyDrafter
     public string Family => "fsk";
 
     /// <summary>
+    /// The score of tones the spectrum shows but whose runs make no one bit time: under a pulse-width reading whose
+    /// runs do not fit either (0.3 of the grouped share), so that where no draft's check holds, the proposal stays
+    /// the one it was before tones were drafted from the spectrum (a pulse format's harmonics show as two tones).
+    /// </summary>
+    public const double UnprovenToneShare = 0.25;
+
+    /// <summary>
     /// The two tones (the groups of their half cycles) and the bauds they may run at. Where both tones' runs step by
     /// whole cycles that make one bit time, that bit time alone (measured from runs). Else, where the spectrum shows
     /// both tones, every bit time the runs leave possible: a filtered or noisy tone's half cycles fall in and out of
@@ -109,7 +116,7 @@ public sealed class FskDrafter : IFamilyDrafter
         string tones = $"half cycles of {F(0.5 / survey.Clusters[high].Seconds, "0")} Hz come in runs of {survey.Runs[high].Granularity} and of {F(0.5 / survey.Clusters[low].Seconds, "0")} Hz in runs of {survey.Runs[low].Granularity}";
         return fromRuns
             ? new FamilyScore(Family, 0.9 * survey.GroupedShare, $"{tones}: one bit time of {Us(1 / bauds[0])} µs either way")
-            : new FamilyScore(Family, 0.4 * survey.GroupedShare, $"{tones}, which make no one bit time, but the spectrum shows both tones: bauds {string.Join(", ", bauds.Select(x => F(x, "0")))} tried");
+            : new FamilyScore(Family, UnprovenToneShare * survey.GroupedShare, $"{tones}, which make no one bit time, but the spectrum shows both tones: bauds {string.Join(", ", bauds.Select(x => F(x, "0")))} tried");
     }
 
     public FamilyProposal? Draft(StretchSurvey survey, CancellationToken cancellation)

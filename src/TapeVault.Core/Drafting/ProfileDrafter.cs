@@ -118,8 +118,11 @@ public static class ProfileDrafter
             // A check of the catalogue holding on blocks read through the whole stretch proves the family, when no
             // other family's draft reads as many, and a one-byte check (which holds by chance now and then) holds
             // on three blocks or more than another family's reading.
+            // A check that holds in both bit orders (its finding a guess) proves nothing about the family: a reflected
+            // CRC over bit-reversed bytes is another CRC, and another family's reading of a tone pair finds such pairs.
             double runnerUp = rivals.Select(d => d.Reading).DefaultIfEmpty(0).Max();
-            bool beyondChance = chosen.Proposal.StronglyProven || (chosen.Check.Clean >= 3 && chosen.Reading >= 3 * runnerUp);
+            bool checkMeasured = chosen.Proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed);
+            bool beyondChance = chosen.Proposal.StronglyProven || (checkMeasured && chosen.Check.Clean >= 3 && chosen.Reading >= 3 * runnerUp);
             familyConfidence = chosen.Reading > 2 * runnerUp && beyondChance ? 0.97 : 0.6;
             familyEvidence = familyConfidence >= 0.97
                 ? $"; a check value of the catalogue holds on {chosen.Check.Clean} block(s) read this way through the stretch ({weighed})"
