@@ -27,7 +27,22 @@ public sealed class FskDrafter : IFamilyDrafter
 
     public string Family => "fsk";
 
-    private static (int Low, int High, double Baud)? Tones(StretchSurvey survey)
+    /// <summary>
+    /// The score of tones the spectrum shows but whose runs make no one bit time: under a pulse-width reading whose
+    /// runs do not fit either (0.3 of the grouped share), so that where no draft's check holds, the proposal stays
+    /// the one it was before tones were drafted from the spectrum (a pulse format's harmonics show as two tones).
+    /// </summary>
+    public const double UnprovenToneShare = 0.25;
+
+    /// <summary>
+    /// The two tones (the groups of their half cycles) and the bauds they may run at. Where both tones' runs step by
+    /// whole cycles that make one bit time, that bit time alone (measured from runs). Else, where the spectrum shows
+    /// both tones, every bit time the runs leave possible: a filtered or noisy tone's half cycles fall in and out of
+    /// their group (a low-passed lower tone of one cycle a bit reads in runs of 1), so each tone whose runs step by two
+    /// or more gives the even counts next to its step, and one cycle of the lower tone a bit is always a candidate;
+    /// trial decodes choose among them.
+    /// </summary>
+    private static (int Low, int High, IReadOnlyList<double> Bauds, bool FromRuns)? Tones(StretchSurvey survey)
     {
         var top = survey.Dominant.Take(2).ToList();
         if (top.Count < 2 || survey.Clusters[top[1]].Share < 0.05)
@@ -39,47 +54,75 @@ public sealed class FskDrafter : IFamilyDrafter
         int b = Math.Max(top[0], top[1]);
         var ra = survey.Runs[a];
         var rb = survey.Runs[b];
-        if (ra.Granularity < 2 || rb.Granularity < 2)
-        {
-            return null;
-        }
-
-        // A tone holds whole cycles a bit, so its runs step by an even count of half cycles: of the even counts next to
-        // each measured step, the pair that makes the two bit times agree best.
-        static IEnumerable<int> Even(int g) => new[] { g - 1, g, g + 1 }.Where(x => x >= 2 && x % 2 == 0);
-        var (bitA, bitB) = Even(ra.Granularity)
-            .SelectMany(ga => Even(rb.Granularity).Select(gb => (A: ga * survey.Clusters[a].Seconds, B: gb * survey.Clusters[b].Seconds)))
-            .MinBy(p => Math.Abs(Math.Log(p.A / p.B)));
-        if (bitA == 0 || Math.Abs(Math.Log(bitA / bitB)) > 0.12)
-        {
-            return null;
-        }
+        double highHz = 0.5 / survey.Clusters[a].Seconds;
+        double lowHz = 0.5 / survey.Clusters[b].Seconds;
 
         // One cycle a bit is the least a tone can hold: measured just above the lower tone, the baud is that tone.
         // Nor may it pass the tones' distance (a profile needs them a baud apart): tones of one and two cycles a bit
         // measure a little under 2 : 1 now and then, and a baud a hair too high would make every trial profile void.
-        double baud = Math.Min(1 / Math.Sqrt(bitA * bitB), Math.Min(0.5 / survey.Clusters[b].Seconds, (0.5 / survey.Clusters[a].Seconds) - (0.5 / survey.Clusters[b].Seconds)));
-        return (b, a, baud);
+        double Fit(double baud) => Math.Min(baud, Math.Min(lowHz, highHz - lowHz));
+
+        // A tone holds whole cycles a bit, so its runs step by an even count of half cycles: of the even counts next to
+        // each measured step, the pair that makes the two bit times agree best.
+        static IEnumerable<int> Even(int g) => new[] { g - 1, g, g + 1 }.Where(x => x >= 2 && x % 2 == 0);
+        if (ra.Granularity >= 2 && rb.Granularity >= 2)
+        {
+            var (bitA, bitB) = Even(ra.Granularity)
+                .SelectMany(ga => Even(rb.Granularity).Select(gb => (A: ga * survey.Clusters[a].Seconds, B: gb * survey.Clusters[b].Seconds)))
+                .MinBy(p => Math.Abs(Math.Log(p.A / p.B)));
+            if (bitA > 0 && Math.Abs(Math.Log(bitA / bitB)) <= 0.12)
+            {
+                return (b, a, [Fit(1 / Math.Sqrt(bitA * bitB))], true);
+            }
+        }
+
+        // Two tones FSK uses lie between 1.15 : 1 and 3.5 : 1 apart (common practice), and both show in the spectrum.
+        double ratio = highHz / lowHz;
+        if (ratio is < 1.15 or > 3.5 || survey.Stretch.Spectrum() is var spectrum && (!SpectrumShows(spectrum, lowHz) || !SpectrumShows(spectrum, highHz)))
+        {
+            return null;
+        }
+
+        var bauds = new List<double> { Fit(lowHz) };
+        foreach (int g in new[] { a, b })
+        {
+            foreach (int cycles in Even(survey.Runs[g].Granularity))
+            {
+                double baud = Fit(1 / (cycles * survey.Clusters[g].Seconds));
+                if (bauds.All(x => Math.Abs(Math.Log(x / baud)) > 0.05))
+                {
+                    bauds.Add(baud);
+                }
+            }
+        }
+
+        return (b, a, bauds, false);
     }
+
+    /// <summary>Whether the spectrum has a peak of at least a tenth of the strongest (−10 dB) within 8 % of a frequency.</summary>
+    private static bool SpectrumShows(IReadOnlyList<(double Hz, double Power)> spectrum, double hz) =>
+        spectrum.Any(p => Math.Abs(Math.Log(p.Hz / hz)) < 0.08 && p.Power >= 0.1);
 
     public FamilyScore Score(StretchSurvey survey)
     {
         ArgumentNullException.ThrowIfNull(survey);
-        if (Tones(survey) is not var (low, high, baud))
+        if (Tones(survey) is not var (low, high, bauds, fromRuns))
         {
             var top = survey.Dominant.Take(2).ToList();
-            return new FamilyScore(Family, 0, "the two main groups do not come in runs that make one bit time"
+            return new FamilyScore(Family, 0, "the two main groups do not come in runs that make one bit time, nor does the spectrum show two tones"
                 + (top.Count < 2 ? string.Empty : $" ({string.Join(", ", top.Select(g => $"{F(0.5 / survey.Clusters[g].Seconds, "0")} Hz, {F(100 * survey.Clusters[g].Share, "0")} % of intervals, runs of {survey.Runs[g].Granularity}"))})"));
         }
 
-        return new FamilyScore(Family, 0.9 * survey.GroupedShare,
-            $"half cycles of {F(0.5 / survey.Clusters[high].Seconds, "0")} Hz come in runs of {survey.Runs[high].Granularity} and of {F(0.5 / survey.Clusters[low].Seconds, "0")} Hz in runs of {survey.Runs[low].Granularity}: one bit time of {Us(1 / baud)} µs either way");
+        string tones = $"half cycles of {F(0.5 / survey.Clusters[high].Seconds, "0")} Hz come in runs of {survey.Runs[high].Granularity} and of {F(0.5 / survey.Clusters[low].Seconds, "0")} Hz in runs of {survey.Runs[low].Granularity}";
+        return fromRuns
+            ? new FamilyScore(Family, 0.9 * survey.GroupedShare, $"{tones}: one bit time of {Us(1 / bauds[0])} µs either way")
+            : new FamilyScore(Family, UnprovenToneShare * survey.GroupedShare, $"{tones}, which make no one bit time, but the spectrum shows both tones: bauds {string.Join(", ", bauds.Select(x => F(x, "0")))} tried");
     }
 
     public FamilyProposal? Draft(StretchSurvey survey, CancellationToken cancellation)
     {
         ArgumentNullException.ThrowIfNull(survey);
-        if (Tones(survey) is not var (low, high, baud))
+        if (Tones(survey) is not var (low, high, bauds, fromRuns))
         {
             return null;
         }
@@ -87,9 +130,11 @@ public sealed class FskDrafter : IFamilyDrafter
         double highHz = 0.5 / survey.Clusters[high].Seconds;
         double lowHz = 0.5 / survey.Clusters[low].Seconds;
 
-        // The mark is the tone of the idle line: told by decoding both ways (8 data bits, no parity, one stop bit).
-        var asHigh = Trial(survey.Stretch, highHz, lowHz, baud, 0.05, 8, Parity.None, "1", cancellation);
-        var asLow = Trial(survey.Stretch, lowHz, highHz, baud, 0.05, 8, Parity.None, "1", cancellation);
+        // The mark is the tone of the idle line: told by decoding both ways (8 data bits, no parity, one stop bit);
+        // where the runs left the baud open, each baud is tried so too, and the one that reads most is kept.
+        var (baud, asHigh, asLow) = bauds
+            .Select(x => (Baud: x, High: Trial(survey.Stretch, highHz, lowHz, x, 0.05, 8, Parity.None, "1", cancellation), Low: Trial(survey.Stretch, lowHz, highHz, x, 0.05, 8, Parity.None, "1", cancellation)))
+            .MaxBy(t => Math.Max(t.High.Score, t.Low.Score));
         bool highIsMark = asHigh.Score >= asLow.Score;
         int markGroup = highIsMark ? high : low;
         double markHz = highIsMark ? highHz : lowHz;
@@ -214,7 +259,16 @@ public sealed class FskDrafter : IFamilyDrafter
         string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays";
         proposal.Measured("fsk.markHz", F(markHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
         proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, toneEvidence);
-        proposal.Measured("fsk.baud", F(baud, "0.00"), 0.9, $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower");
+        if (fromRuns)
+        {
+            proposal.Measured("fsk.baud", F(baud, "0.00"), 0.9, $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower");
+        }
+        else
+        {
+            proposal.Measured("fsk.baud", F(baud, "0.00"), layout.HasChecksum ? 0.85 : 0.6,
+                $"the tones' runs make no one bit time (runs of {survey.Runs[high].Granularity} and {survey.Runs[low].Granularity} half cycles); of the bauds {string.Join(", ", bauds.Select(x => F(x, "0")))} the trial decodes read most characters at this one" + (layout.HasChecksum ? ", and a check value holds on the blocks read at it" : string.Empty));
+        }
+
         if (leader is null)
         {
             proposal.Measured("fsk.leadInMinimumSeconds", F(leadIn), 0.85, leadIns.Count > 0 ? $"a quarter of the shortest run of mark tone before a block ({F(leadIns.Min())} s)" : "no long run of mark tone seen; the usual 0.1 s");

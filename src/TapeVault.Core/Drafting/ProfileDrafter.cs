@@ -25,7 +25,8 @@ public static class ProfileDrafter
     public static ProfileDraft Draft(CaptureStretch stretch, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(stretch);
-        var survey = StretchSurvey.Take(stretch, cancellation);
+        var surveys = StretchSurvey.TakeEach(stretch, cancellation);
+        var survey = surveys[0];
         if (survey.Clusters.Count < 2)
         {
             throw new ProfileDraftException($"The first {stretch.Seconds:0.#} s of {stretch.Source} hold no groups of interval lengths: silence, noise, or no recording.");
@@ -33,43 +34,46 @@ public static class ProfileDrafter
 
         var scores = Families.Select(f => (Drafter: f, Score: f.Score(survey))).OrderByDescending(s => s.Score.Score).ToList();
         var refusals = new List<string>();
+        var allScores = scores.Select(s => s.Score).ToList();
 
-        // The best-fitting family's reading stands unless no check value proves it and a later family's check value
-        // proves its own beyond chance (an alternating biphase preamble looks like two pulse classes, say).
-        ProfileDraft? TryAssemble(IFamilyDrafter drafter, FamilyScore score, FamilyProposal proposal, double familyConfidence)
+        // Every family the evidence allows is drafted (tones in the spectrum, a 1 : 2 pair of interval lengths,
+        // classes of whole cycles), and each draft is checked against the stretch with the read path (ProfileCheck):
+        // the run steps that score a family can mislead (a filtered tone's half cycles fall in and out of their group,
+        // an alternating preamble looks like two pulse classes), where the blocks a draft reads and the check values
+        // that hold on them do not.
+        var drafts = new List<Drafted>();
+        for (int rank = 0; rank < scores.Count; rank++)
         {
-            try
-            {
-                return Assemble(stretch, drafter.Family, familyConfidence, score, proposal, [.. scores.Select(s => s.Score)], refusals);
-            }
-            catch (ProfileException e)
-            {
-                // What this family found cannot be written as a profile (a sync too short to be found, say): its
-                // reason is kept, and the next family is tried.
-                refusals.Add($"The {drafter.Family} reading found cannot be a profile: {e.Message}");
-                return null;
-            }
-        }
-
-        (IFamilyDrafter Drafter, FamilyScore Score, FamilyProposal Proposal)? unproven = null;
-        foreach (var (drafter, score) in scores)
-        {
-            if (score.Score <= 0)
-            {
-                continue;
-            }
+            var drafter = scores[rank].Drafter;
 
             // A family that fits the intervals may still read nothing (biphase's half and whole cells look like two
-            // tones): its reason is kept, and the next family is tried.
-            FamilyProposal? proposal;
-            try
+            // tones): its reason is kept, and the family is tried through the next setting's survey where that one
+            // sees the family otherwise (other groups or runs), then the next family.
+            FamilyProposal? proposal = null;
+            FamilyScore score = scores[rank].Score;
+            var seen = new HashSet<string>();
+            foreach (var through in surveys.Take(MostSurveys))
             {
-                proposal = drafter.Draft(survey, cancellation);
-            }
-            catch (ProfileDraftException e)
-            {
-                refusals.Add(e.Message);
-                continue;
+                var fit = through == survey ? scores[rank].Score : drafter.Score(through);
+                if (fit.Score <= 0 || !seen.Add(fit.Evidence))
+                {
+                    continue;
+                }
+
+                try
+                {
+                    proposal = drafter.Draft(through, cancellation);
+                }
+                catch (ProfileDraftException e)
+                {
+                    refusals.Add(e.Message);
+                }
+
+                if (proposal is not null)
+                {
+                    score = fit;
+                    break;
+                }
             }
 
             if (proposal is null)
@@ -77,39 +81,84 @@ public static class ProfileDrafter
                 continue;
             }
 
-            bool proofHere = proposal.Findings.Any(f => f.Path == "layout.checksum");
-            if (unproven is not null && !proposal.StronglyProven)
+            ProfileDraft draft;
+            try
             {
+                draft = Assemble(stretch, drafter.Family, 0.5, score, proposal, allScores, []);
+            }
+            catch (ProfileException e)
+            {
+                // What this family found cannot be written as a profile (a sync too short to be found, say): its
+                // reason is kept, and the next family is tried.
+                refusals.Add($"The {drafter.Family} reading found cannot be a profile: {e.Message}");
                 continue;
             }
 
-            if (unproven is null && !proofHere)
-            {
-                unproven = (drafter, score, proposal);
-                continue;
-            }
-
-            // Every proposal that gets here has a check that holds on its blocks (the two tests above): the family is
-            // as sure as that check.
-            if (TryAssemble(drafter, score, proposal, 0.97) is { } proven)
-            {
-                return proven;
-            }
+            var check = ProfileCheck.Run(draft.Load(), CheckStretch(stretch), cancellation);
+            drafts.Add(new Drafted(drafter, score, proposal, check, rank));
         }
 
-        if (unproven is { } first)
+        if (drafts.Count == 0)
         {
-            double runnerUp = scores.Where(s => s.Drafter != first.Drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
-            if (TryAssemble(first.Drafter, first.Score, first.Proposal, Math.Clamp(0.5 + first.Score.Score - runnerUp, 0.3, 0.95)) is { } draft)
-            {
-                return draft;
-            }
+            throw new ProfileDraftException(
+                $"No family reads the first {stretch.Seconds:0.#} s of {stretch.Source}: " +
+                string.Join("; ", scores.Select(s => $"{s.Score.Family} {s.Score.Score:0.00} ({s.Score.Evidence})")) + "."
+                + (refusals.Count == 0 ? string.Empty : " " + string.Join(" ", refusals)));
         }
 
-        throw new ProfileDraftException(
-            $"No family reads the first {stretch.Seconds:0.#} s of {stretch.Source}: " +
-            string.Join("; ", scores.Select(s => $"{s.Score.Family} {s.Score.Score:0.00} ({s.Score.Evidence})")) + "."
-            + (refusals.Count == 0 ? string.Empty : " " + string.Join(" ", refusals)));
+        // The draft whose check reads most (the bytes of the different blocks whose check holds, times the share of
+        // checked blocks that hold), then (no draft proven) the family that fits the intervals best, as before.
+        var chosen = drafts.OrderByDescending(d => d.Reading).ThenBy(d => d.Rank).First();
+        var rivals = drafts.Where(d => d != chosen).ToList();
+        string weighed = string.Join("; ", drafts.Select(d => $"{d.Drafter.Family}: {d.Check.Positions} block(s), the check holds on {d.Check.Clean}, {d.Check.CleanBytes} different bytes"));
+        double familyConfidence;
+        string familyEvidence;
+        if (chosen.Proven)
+        {
+            // A check of the catalogue holding on blocks read through the whole stretch proves the family, when no
+            // other family's draft reads as many, and a one-byte check (which holds by chance now and then) holds
+            // on three blocks or more than another family's reading.
+            // A check that holds in both bit orders (its finding a guess) proves nothing about the family: a reflected
+            // CRC over bit-reversed bytes is another CRC, and another family's reading of a tone pair finds such pairs.
+            double runnerUp = rivals.Select(d => d.Reading).DefaultIfEmpty(0).Max();
+            bool checkMeasured = chosen.Proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed);
+            bool beyondChance = chosen.Proposal.StronglyProven || (checkMeasured && chosen.Check.Clean >= 3 && chosen.Reading >= 3 * runnerUp);
+            familyConfidence = chosen.Reading > 2 * runnerUp && beyondChance ? 0.97 : 0.6;
+            familyEvidence = familyConfidence >= 0.97
+                ? $"; a check value of the catalogue holds on {chosen.Check.Clean} block(s) read this way through the stretch ({weighed})"
+                : $"; a check value holds on {chosen.Check.Clean} block(s) read this way, not enough more than another family's reading to tell the family beyond chance ({weighed})";
+        }
+        else
+        {
+            double runnerUp = scores.Where(s => s.Drafter != chosen.Drafter).Select(s => s.Score.Score).DefaultIfEmpty(0).Max();
+            familyConfidence = Math.Clamp(0.5 + chosen.Score.Score - runnerUp, 0.3, 0.95);
+            familyEvidence = drafts.Count > 1 ? $"; no draft's check value holds on the stretch ({weighed})" : string.Empty;
+        }
+
+        refusals.AddRange(rivals.Select(d => $"The {d.Drafter.Family} draft reads {d.Check.Positions} block(s) of the stretch, its check holding on {d.Check.Clean}."));
+        return Assemble(stretch, chosen.Drafter.Family, familyConfidence, chosen.Score with { Evidence = chosen.Score.Evidence + familyEvidence }, chosen.Proposal, allScores, refusals);
+    }
+
+    /// <summary>The most surveys (one a setting that counts both edges) a family is drafted through before the next family is tried.</summary>
+    public const int MostSurveys = 3;
+
+    /// <summary>The seconds of the stretch a family's draft is checked on: enough for dozens of blocks of any family.</summary>
+    public const double CheckSeconds = 60;
+
+    private static CaptureStretch CheckStretch(CaptureStretch stretch)
+    {
+        int limit = (int)Math.Min(stretch.Samples.Length, (long)(CheckSeconds * stretch.SampleRate));
+        return limit == stretch.Samples.Length ? stretch : CaptureStretch.FromSamples(stretch.Samples[..limit], stretch.SampleRate, stretch.Source);
+    }
+
+    /// <summary>One family's draft and what checking it against the stretch read.</summary>
+    private sealed record Drafted(IFamilyDrafter Drafter, FamilyScore Score, FamilyProposal Proposal, ProfileCheckReport Check, int Rank)
+    {
+        /// <summary>The draft found a check value (not a stream), and the check holds on blocks of the stretch.</summary>
+        public bool Proven => Reading > 0;
+
+        /// <summary>What the draft reads with its check holding (<see cref="ProfileCheckReport.CheckedReading"/>): two clean blocks at least, a quarter of those checked.</summary>
+        public double Reading => Proposal.Findings.Any(f => f.Path == "layout.checksum") && Check.Clean >= 2 && Check.Clean * 4 >= Check.Clean + Check.Failed ? Check.CheckedReading : 0;
     }
 
     private static ProfileDraft Assemble(CaptureStretch stretch, string family, double familyConfidence, FamilyScore score, FamilyProposal proposal, IReadOnlyList<FamilyScore> scores, IReadOnlyList<string> refusals)
@@ -117,11 +166,11 @@ public static class ProfileDrafter
         var findings = new List<DraftFinding>
         {
             new("family", family, familyConfidence < DraftFinding.MeasuredThreshold, familyConfidence,
-                score.Evidence + (familyConfidence >= 0.97 ? "; a check value of the catalogue holds on the blocks read this way" : string.Empty)),
+                score.Evidence),
         };
         findings.AddRange(proposal.Findings);
         findings.Add(new DraftFinding("recording", "lead-in 1 s, gaps 0.3 s, trailer 0.3 s", true, 0.5, "how a writer lays blocks down, for synthesis only; reading does not use it"));
-        proposal.Notes.AddRange(refusals.Select(r => "Not drafted as another family: " + r));
+        var notes = proposal.Notes.Concat(refusals.Select(r => "Not drafted as another family: " + r)).ToList();
         var guessed = findings.Where(f => f.Guessed).Select(f => f.Path).ToList();
         string id = Identifier(stretch.Source);
         var root = new JsonObject
@@ -131,10 +180,10 @@ public static class ProfileDrafter
             ["description"] = $"Drafted by TapeVault from the first {stretch.Seconds.ToString("0.#", CultureInfo.InvariantCulture)} s of {stretch.Source}; not yet confirmed. Guessed: {(guessed.Count == 0 ? "nothing" : string.Join(", ", guessed))}.",
             ["family"] = family,
         };
-        foreach (var (name, node) in proposal.Sections.ToList())
+        // Copied, not moved: a family's proposal is assembled once to be checked and again when it is chosen.
+        foreach (var (name, node) in proposal.Sections)
         {
-            proposal.Sections.Remove(name);
-            root[name] = node;
+            root[name] = node?.DeepClone();
         }
 
         root["recording"] = new JsonObject { ["leadInSeconds"] = 1.0, ["blockGapSeconds"] = 0.3, ["trailerSeconds"] = 0.3 };
@@ -143,7 +192,7 @@ public static class ProfileDrafter
         // A draft is a profile: it must load, or the drafter wrote something the language cannot hold.
         ProfileLoader.Parse(json, "draft");
         double geometric = Math.Exp(findings.Average(f => Math.Log(Math.Max(0.01, f.Confidence))));
-        return new ProfileDraft(json, findings, scores, familyConfidence * geometric, stretch.Seconds, proposal.Notes);
+        return new ProfileDraft(json, findings, scores, familyConfidence * geometric, stretch.Seconds, notes);
     }
 
     /// <summary>A profile id from a capture's file name: lower-case letters, digits and hyphens.</summary>

@@ -43,26 +43,28 @@ public sealed class StretchSurvey
     /// <summary>The settings that count both edges, of the default bank.</summary>
     public static IEnumerable<DetectorSetting> BothEdgeSettings => DetectorBanks.Default.Where(s => s.Edges == EdgeSelection.Both);
 
-    public static StretchSurvey Take(CaptureStretch stretch, CancellationToken cancellation = default)
+    /// <summary>The survey through the setting whose intervals group best.</summary>
+    public static StretchSurvey Take(CaptureStretch stretch, CancellationToken cancellation = default) => TakeEach(stretch, cancellation)[0];
+
+    /// <summary>
+    /// A survey through every setting that counts both edges, the one whose intervals group best first (the first of
+    /// equals in the bank's order). Filtering and equalisation treat the settings differently, so a family whose
+    /// structure one setting blurs (a tone's half cycles falling out of their group) may show through another.
+    /// </summary>
+    public static IReadOnlyList<StretchSurvey> TakeEach(CaptureStretch stretch, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(stretch);
-        StretchSurvey? best = null;
-        double bestScore = -1;
+        var surveys = new List<StretchSurvey>();
         foreach (var setting in BothEdgeSettings)
         {
             var edges = stretch.Edges(setting, cancellation);
             var intervals = IntervalClusters.Intervals(edges, stretch.SampleRate);
             var clusters = IntervalClusters.Find(intervals);
             var classes = IntervalClusters.Classify(intervals, clusters);
-            double score = classes.Length == 0 ? 0 : (double)classes.Count(c => c >= 0) / classes.Length;
-            if (score > bestScore)
-            {
-                bestScore = score;
-                best = new StretchSurvey(stretch, setting, edges, intervals, clusters, classes);
-            }
+            surveys.Add(new StretchSurvey(stretch, setting, edges, intervals, clusters, classes));
         }
 
-        return best!;
+        return [.. surveys.Select((s, i) => (Survey: s, Index: i)).OrderByDescending(x => x.Survey.GroupedShare).ThenBy(x => x.Index).Select(x => x.Survey)];
     }
 
     /// <summary>The share of intervals that fall in a group.</summary>
