@@ -100,6 +100,8 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
             throw new JobFailedException($"The stored capture could not be read: {e.Message}");
         }
 
+        // The decode's readings are read back from its spool file until the run is made of them; the file goes with the job.
+        using var readings = result;
         await pending.ConfigureAwait(false);
         cancellation.ThrowIfCancellationRequested();
         if (!string.Equals(result.Capture.Sha256, capture.Sha256, StringComparison.Ordinal))

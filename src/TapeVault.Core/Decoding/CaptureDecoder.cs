@@ -158,6 +158,7 @@ public static class CaptureDecoder
         var (candidates, best) = session.FinishSpooled();
         return new DecodeResult(capture, profile, bank, candidates, best, CodeVersion)
         {
+            Spool = spool,
             Surveys = session.Surveys,
             Overview = overview?.Finish(reader.SampleRate),
         };

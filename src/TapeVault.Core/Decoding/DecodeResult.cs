@@ -35,15 +35,25 @@ public sealed record DecodeOptions
     public CancellationToken Cancellation { get; init; }
 }
 
-/// <summary>Everything one capture × one bank produced: every candidate of every setting, and the best per position.</summary>
+/// <summary>
+/// Everything one capture × one bank produced: every candidate of every setting, and the best per position. A decode of
+/// a capture file reads its candidates back from a spool file (<see cref="ReadingSpool"/>) that the result owns:
+/// dispose of the result when done with its candidates, so the spool's file is given back at once rather than when the
+/// collector next finalises it.
+/// </summary>
 public sealed record DecodeResult(
     CaptureInfo Capture,
     FormatProfile Profile,
     IReadOnlyList<DetectorSetting> Settings,
     IReadOnlyList<BlockCandidate> Candidates,
     IReadOnlyList<BlockCandidate> Best,
-    string CodeVersion)
+    string CodeVersion) : IDisposable
 {
+    /// <summary>The spool the candidates are read back from, when they are; closed by <see cref="Dispose"/>.</summary>
+    public ReadingSpool? Spool { get; init; }
+
+    public void Dispose() => Spool?.Dispose();
+
     /// <summary>Each setting's edge intervals over the whole capture, when the decode was asked to count them.</summary>
     public IReadOnlyList<Pulses.IntervalSurvey>? Surveys { get; init; }
 

@@ -62,7 +62,7 @@ public static class ProfileCheck
     public static ProfileCheckReport Run(FormatProfile profile, string path, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(profile);
-        var result = CaptureDecoder.Decode(path, profile, options: new DecodeOptions { Cancellation = cancellation });
+        using var result = CaptureDecoder.Decode(path, profile, options: new DecodeOptions { Cancellation = cancellation });
         return Report(profile, result.Best, result.Capture.DurationSeconds);
     }
 

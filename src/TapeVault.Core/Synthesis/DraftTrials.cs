@@ -53,7 +53,12 @@ public static class DraftTrials
         var capture = trial.Written;
         string path = trial.Path;
         string described = trial.Described;
-        var truthBlocks = RandomFormats.RecoveredBlocks(CaptureDecoder.Decode(path, truth), truth, capture.Blocks);
+        bool[] truthBlocks;
+        using (var truthDecode = CaptureDecoder.Decode(path, truth))
+        {
+            truthBlocks = RandomFormats.RecoveredBlocks(truthDecode, truth, capture.Blocks);
+        }
+
         int truthRead = truthBlocks.Count(r => r);
         ProfileDraft draft;
         try
@@ -79,7 +84,8 @@ public static class DraftTrials
         {
             try
             {
-                var draftBlocks = RandomFormats.RecoveredBlocks(CaptureDecoder.Decode(path, ProfileLoader.Parse(confirmed, "confirmed")), truth, capture.Blocks);
+                using var draftRead = CaptureDecoder.Decode(path, ProfileLoader.Parse(confirmed, "confirmed"));
+                var draftBlocks = RandomFormats.RecoveredBlocks(draftRead, truth, capture.Blocks);
                 return (draftBlocks.Count(r => r), draftBlocks.Where((r, i) => r && truthBlocks[i]).Count(), null);
             }
             catch (ProfileException e)

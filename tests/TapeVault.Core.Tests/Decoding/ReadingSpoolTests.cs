@@ -75,11 +75,28 @@ public sealed class ReadingSpoolTests(RoundTripFolder folder) : IClassFixture<Ro
         var damage = new ChannelDamage { SnrDb = 14, WowPercent = 0.3, RandomDropoutsPerMinute = 20, Seed = 11 };
         CaptureSynthesizer.Write(path, profile, RoundTrips.Files(profile), damage);
 
-        var result = CaptureDecoder.Decode(path, profile);
+        using var result = CaptureDecoder.Decode(path, profile);
         var whole = result.Candidates.ToList();
 
         Assert.Equal(Describe(BlockPositioner.BestPerPosition(whole)), Describe(result.Best));
         Assert.Equal(whole.Count, whole.Select(c => (c.SettingIndex, c.StartSeconds, c.EndSeconds)).Distinct().Count());
+    }
+
+    [Fact]
+    public void A_disposed_decode_result_has_closed_its_spool()
+    {
+        var profile = ProfileCatalog.BuiltIn.Get("orrin-80");
+        string path = folder.NewCapture("closed");
+        CaptureSynthesizer.Write(path, profile, RoundTrips.Files(profile), new ChannelDamage());
+
+        var result = CaptureDecoder.Decode(path, profile);
+        Assert.NotEmpty(result.Candidates);
+        Assert.NotNull(result.Spool);
+
+        // The spool's file is given back when the result is disposed, not when the collector finalises it: a reading
+        // asked for afterwards finds its stream closed.
+        result.Dispose();
+        Assert.Throws<ObjectDisposedException>(() => result.Candidates[0]);
     }
 
     [Fact]

@@ -62,6 +62,8 @@ public sealed class DecodeCommand : CliCommand
             bar.Report(1);
         }
 
+        using var readings = result;
+
         // Outputs are written only after the decode succeeded: all to temporary files first, then moved into place.
         var writers = new List<(string Path, Action<Stream> Write)>(2);
         if (jsonPath is not null)

@@ -51,7 +51,10 @@ public sealed class DemoCommand : CliCommand
                     });
                 }
 
-                DecodeReport.WriteTable(output, result);
+                using (result)
+                {
+                    DecodeReport.WriteTable(output, result);
+                }
             }
 
             output.WriteLine();

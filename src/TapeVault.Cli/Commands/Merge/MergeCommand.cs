@@ -68,6 +68,7 @@ public sealed class MergeCommand : CliCommand
 
         // Every capture is decoded with the default bank; one bar runs over all of them.
         var results = new List<DecodeResult>(captures.Length);
+        using var readings = new Disposables(results);
         using (var bar = new ProgressBar($"decoding {captures.Length} captures"))
         {
             for (int i = 0; i < captures.Length; i++)
@@ -227,3 +228,15 @@ internal sealed record ReportFile(string Name, long Length, int FirstPosition, i
 [JsonSourceGenerationOptions(PropertyNamingPolicy = JsonKnownNamingPolicy.CamelCase, WriteIndented = true)]
 [JsonSerializable(typeof(MergeReport))]
 internal sealed partial class MergeReportJson : JsonSerializerContext;
+
+/// <summary>Disposes every decode result of a list (each owns the spool its readings are read back from).</summary>
+internal sealed class Disposables(List<DecodeResult> results) : IDisposable
+{
+    public void Dispose()
+    {
+        foreach (var result in results)
+        {
+            result.Dispose();
+        }
+    }
+}
