@@ -195,7 +195,7 @@ public static class Throughput
     /// A Kansas City Standard stream written by minimodem (300 baud, the standard's tones, two stop bits) carrying
     /// printable text for <paramref name="minutes"/>, after a 2-second lead-in of mark tone that SoX makes.
     /// </summary>
-    private static void EnsureMinimodemCapture(string path, int minutes)
+    internal static void EnsureMinimodemCapture(string path, int minutes)
     {
         if (File.Exists(path))
         {
