@@ -75,6 +75,37 @@ public sealed class MigrationTests
         Assert.Equal("1", Scalar(connection, "SELECT COUNT(*) FROM \"Events\" WHERE \"Detail\" = 'Written to test the triggers.';"));
     }
 
+    [SqliteOnlyFact("the plan is read with SQLite's EXPLAIN QUERY PLAN")]
+    public async Task The_newest_fixity_audits_are_read_through_the_index_on_kind_and_id_not_by_reading_every_job()
+    {
+        using var folder = new ArchiveFolder(emptyDatabase: true);
+        await using var app = new ArchiveAppFactory(folder);
+        await using var scope = app.Scope();
+        var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+
+        // The collection page's query as EF sends it (its parameters left unbound: the plan does not depend on them).
+        string sql = TapeVault.Web.Api.ArchiveQueries.NewestFixityAudits(db).ToQueryString();
+        string select = sql[sql.IndexOf("SELECT", StringComparison.Ordinal)..];
+        await using var connection = new SqliteConnection(ArchiveDatabase.ConnectionString(folder.DatabasePath));
+        await connection.OpenAsync();
+        await using var command = connection.CreateCommand();
+        command.CommandText = "EXPLAIN QUERY PLAN " + select;
+        var plan = new List<string>();
+        await using (var reader = await command.ExecuteReaderAsync())
+        {
+            while (await reader.ReadAsync())
+            {
+                plan.Add(reader.GetString(3));
+            }
+        }
+
+        // sqlite.org, "EXPLAIN QUERY PLAN": a row "SEARCH t USING INDEX i (a=?)" reads the rows the index gives; "SCAN t"
+        // reads the whole table, and "USE TEMP B-TREE FOR ORDER BY" sorts what it read.
+        string all = string.Join(" | ", plan);
+        Assert.Contains(plan, row => row.Contains("SEARCH", StringComparison.Ordinal) && row.Contains("IX_Jobs_Kind_Id", StringComparison.Ordinal));
+        Assert.DoesNotContain("TEMP B-TREE", all, StringComparison.Ordinal);
+    }
+
     private static string? Scalar(DbConnection connection, string sql)
     {
         using var command = connection.CreateCommand();

@@ -663,6 +663,8 @@ namespace TapeVault.Migrations.PostgreSql.Migrations
 
                     b.HasIndex("State");
 
+                    b.HasIndex("Kind", "Id");
+
                     b.ToTable("Jobs");
                 });
 

@@ -638,6 +638,8 @@ namespace TapeVault.Migrations.Migrations
 
                     b.HasIndex("State");
 
+                    b.HasIndex("Kind", "Id");
+
                     b.ToTable("Jobs");
                 });
 

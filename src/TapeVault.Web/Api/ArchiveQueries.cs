@@ -110,11 +110,14 @@ public sealed partial class ArchiveQueries(ArchiveDbContext db, ProfileCatalog p
         (await NamedAsync([await db.Jobs.AsNoTracking().FirstOrDefaultAsync(j => j.Id == id, cancellation).ConfigureAwait(false)
             ?? throw new ArchiveNotFoundException($"There is no job {id}.")], cancellation).ConfigureAwait(false))[0];
 
+    /// <summary>The 200 newest fixity audits of the whole archive, newest first (read by the index on kind and id).</summary>
+    public static IQueryable<JobRecord> NewestFixityAudits(ArchiveDbContext db) =>
+        db.Jobs.AsNoTracking().Where(j => j.Kind == JobKinds.Fixity).OrderByDescending(j => j.Id).Take(200);
+
     /// <summary>The newest fixity audits of a collection (or of the whole store, which covers it too), newest first.</summary>
     public async Task<IReadOnlyList<JobView>> FixityAuditsAsync(int collectionId, int take = 3, CancellationToken cancellation = default)
     {
-        var audits = await db.Jobs.AsNoTracking().Where(j => j.Kind == JobKinds.Fixity).OrderByDescending(j => j.Id).Take(200)
-            .ToListAsync(cancellation).ConfigureAwait(false);
+        var audits = await NewestFixityAudits(db).ToListAsync(cancellation).ConfigureAwait(false);
         var ofCollection = audits.Where(j => ScopeOf(j) is var scope && (scope.CollectionId == collectionId || scope is { CollectionId: null, ItemId: null }))
             .Take(Math.Clamp(take, 1, 50)).ToList();
         return await NamedAsync(ofCollection, cancellation).ConfigureAwait(false);
