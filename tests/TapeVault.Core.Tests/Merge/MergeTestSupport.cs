@@ -25,6 +25,36 @@ internal static class Readings
         return BlockWriter.Build(profile.Layout, string.Empty, 0, blockNumber, payload);
     }
 
+    /// <summary>
+    /// <paramref name="bytes"/> fed to an assembler after a start on <paramref name="evidence"/>, eight decisions a byte,
+    /// decision k of byte b at the distance from its boundary and residual from nominal that <paramref name="decision"/>
+    /// gives; the byte at <paramref name="misframedByte"/> (if any) with its framing out of place. Its one reading.
+    /// </summary>
+    public static BlockCandidate Assembled(
+        FormatProfile profile, byte[] bytes, BlockStartEvidence evidence, Func<int, int, (float Distance, float Residual)> decision, int misframedByte = -1)
+    {
+        var output = new List<BlockCandidate>();
+        var assembler = new BlockAssembler(profile, 0, "s0", 44_100, output);
+        assembler.Begin(0, evidence);
+        for (int b = 0; b < bytes.Length; b++)
+        {
+            int first = assembler.DecisionCount;
+            for (int k = 0; k < 8; k++)
+            {
+                var (distance, residual) = decision(b, k);
+                assembler.AddDecision(distance, residual, 1);
+            }
+
+            if (assembler.AddByte(bytes[b], first, framingOk: b != misframedByte, sample: 100 * (b + 1)))
+            {
+                break;
+            }
+        }
+
+        assembler.End(100 * (bytes.Length + 1));
+        return Xunit.Assert.Single(output);
+    }
+
     public static ImageSource Capture(int n) => new(new string((char)('a' + n), 64), $"pass-{n}.wav", 44_100, 1, 60);
 
     public static MergePass Pass(int n, params BlockCandidate[] candidates) => new(Capture(n), candidates, "test");

@@ -21,29 +21,8 @@ public sealed class CheckStrengthTests
     /// <paramref name="bytes"/> fed to an assembler after a lead-in and sync, eight decisions a byte at a good margin,
     /// but the bytes at <paramref name="doubtful"/> each with one decision close to its boundary.
     /// </summary>
-    private static BlockCandidate Read(FormatProfile profile, byte[] bytes, params int[] doubtful)
-    {
-        var output = new List<BlockCandidate>();
-        var assembler = new BlockAssembler(profile, 0, "s0", 44_100, output);
-        assembler.Begin(0, BlockStartEvidence.LeadInAndSync);
-        for (int b = 0; b < bytes.Length; b++)
-        {
-            int first = assembler.DecisionCount;
-            for (int k = 0; k < 8; k++)
-            {
-                bool close = k == 7 && doubtful.Contains(b);
-                assembler.AddDecision(close ? 0.15f : 0.9f, close ? 0.85f : 0.02f, 1);
-            }
-
-            if (assembler.AddByte(bytes[b], first, framingOk: true, sample: 100 * (b + 1)))
-            {
-                break;
-            }
-        }
-
-        assembler.End(100 * (bytes.Length + 1));
-        return Assert.Single(output);
-    }
+    private static BlockCandidate Read(FormatProfile profile, byte[] bytes, params int[] doubtful) =>
+        Readings.Assembled(profile, bytes, BlockStartEvidence.LeadInAndSync, (b, k) => k == 7 && doubtful.Contains(b) ? (0.15f, 0.85f) : (0.9f, 0.02f));
 
     [Theory]
     [InlineData("sum8")]

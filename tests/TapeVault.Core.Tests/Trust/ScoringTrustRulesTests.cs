@@ -1,6 +1,7 @@
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Checksums;
 using TapeVault.Core.Formats;
+using TapeVault.Core.Tests.Merge;
 using Xunit;
 
 namespace TapeVault.Core.Tests.Trust;
@@ -11,36 +12,11 @@ namespace TapeVault.Core.Tests.Trust;
 /// </summary>
 public sealed class ScoringTrustRulesTests
 {
-    /// <summary>The biphase reference profile (block number, length, check over header and payload) with another checksum.</summary>
-    private static FormatProfile BiphaseWith(string checksum)
-    {
-        var profile = ProfileCatalog.BuiltIn.Get("biphase-1200");
-        return profile with { Layout = profile.Layout with { Checksum = profile.Layout.Checksum! with { Algorithm = checksum } } };
-    }
+    private static FormatProfile BiphaseWith(string checksum) => Readings.BiphaseWith(checksum);
 
     /// <summary>Feeds <paramref name="bytes"/> to an assembler after a start on <paramref name="evidence"/>, every bit read well.</summary>
-    internal static BlockCandidate Assemble(FormatProfile profile, byte[] bytes, BlockStartEvidence evidence, int misframedByte = -1)
-    {
-        var output = new List<BlockCandidate>();
-        var assembler = new BlockAssembler(profile, 0, "s0", 44_100, output);
-        assembler.Begin(0, evidence);
-        for (int b = 0; b < bytes.Length; b++)
-        {
-            int first = assembler.DecisionCount;
-            for (int k = 0; k < 8; k++)
-            {
-                assembler.AddDecision(0.9f, 0.02f, 1);
-            }
-
-            if (assembler.AddByte(bytes[b], first, framingOk: b != misframedByte, sample: 100 * (b + 1)))
-            {
-                break;
-            }
-        }
-
-        assembler.End(100 * (bytes.Length + 1));
-        return Assert.Single(output);
-    }
+    internal static BlockCandidate Assemble(FormatProfile profile, byte[] bytes, BlockStartEvidence evidence, int misframedByte = -1) =>
+        Readings.Assembled(profile, bytes, evidence, (_, _) => (0.9f, 0.02f), misframedByte);
 
     [Theory]
     [InlineData("xor8")]

@@ -18,29 +18,8 @@ public sealed class WeakCheckTests
     private static FormatProfile With(string checksum) => Readings.BiphaseWith(checksum);
 
     /// <summary>A written block fed to an assembler after a lead-in and sync, each decision at <paramref name="distance"/> from its boundary with <paramref name="residual"/> from nominal.</summary>
-    private static BlockCandidate Read(FormatProfile profile, float distance, float residual, int badFrame = -1)
-    {
-        var bytes = Readings.Written(profile, 3);
-        var output = new List<BlockCandidate>();
-        var assembler = new BlockAssembler(profile, 0, "s0", 44_100, output);
-        assembler.Begin(0, BlockStartEvidence.LeadInAndSync);
-        for (int b = 0; b < bytes.Length; b++)
-        {
-            int first = assembler.DecisionCount;
-            for (int k = 0; k < 8; k++)
-            {
-                assembler.AddDecision(distance, residual, 1);
-            }
-
-            if (assembler.AddByte(bytes[b], first, framingOk: b != badFrame, sample: 100 * (b + 1)))
-            {
-                break;
-            }
-        }
-
-        assembler.End(100 * (bytes.Length + 1));
-        return Assert.Single(output);
-    }
+    private static BlockCandidate Read(FormatProfile profile, float distance, float residual, int badFrame = -1) =>
+        Readings.Assembled(profile, Readings.Written(profile, 3), BlockStartEvidence.LeadInAndSync, (_, _) => (distance, residual), badFrame);
 
     [Theory]
     [InlineData("sum8")]
