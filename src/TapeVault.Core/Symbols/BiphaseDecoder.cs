@@ -40,7 +40,9 @@ public sealed class BiphaseDecoder : ISymbolDecoder
     private const int MidsToResynchronise = 8;
 
     // Edges off the cell grid a run of the bridge steps over between two of its transitions: one pair of noise
-    // crossings (a glitch goes up and comes back down). Our choice, checked by the recovery benchmark.
+    // crossings (a glitch goes up and comes back down). Our choice, checked by the recovery benchmark: on tuning seed
+    // 9003's head-fall reading the wrong bytes of a block went from 15 to 4 (docs/performance.md, "Noise crossings in
+    // the quiet middle of a whole biphase cell"); no block of seeds 9001–9010 came out whole that did not before.
     private const int GlitchesToStepOver = 2;
 
     // Longer than the longest dropout worth bridging; past it the clock has drifted too far to place bits.
