@@ -17,7 +17,9 @@ namespace TapeVault.Core.Merge;
 /// (<see cref="MergeOptions.StreamByteErrorFloor"/>) and the first and last character of what a capture read (where its
 /// signal began or broke off: tone dying away, the edge of a dropout, a start with no lead-in) may be one it invented
 /// or framed off (<see cref="EdgeCharacterError"/>), and so may the character at each end of a segment, beside bytes
-/// no capture kept (<see cref="GapEndError"/>) or at its stretch's start or end (<see cref="StretchEndError"/>). Independent captures that read a character alike are all wrong
+/// no capture kept (<see cref="GapEndError"/>) or at its stretch's start or end (<see cref="StretchEndError"/>); there, part of
+/// the doubt is the tape's own, which every capture shares (<see cref="SharedGapEndError"/>, <see cref="SharedStretchEndError"/>).
+/// Elsewhere, independent captures that read a character alike are all wrong
 /// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
 /// never lowers it, and a segment one capture alone carried claims what its ends allow, and beside bytes no capture
 /// kept no more than pieces of its length were right (<see cref="LonePieceGenuine"/>).
@@ -52,6 +54,26 @@ internal sealed class StreamMerge
     /// than the break beside a hole in what was kept.
     /// </summary>
     public const double StretchEndError = 0.06;
+
+    /// <summary>
+    /// The chance that the character at a segment's end beside bytes no capture kept is a false one that every capture
+    /// read alike. The damage that made the hole is on the tape, so every capture meets it the same way, and a false frame
+    /// it makes (a start bit read in the noise, the bits after it) is the same character in each: this part of the end's
+    /// doubt does not shrink when captures agree, where <see cref="GapEndError"/> (each capture's own) does. Counted on the
+    /// merged segments of the trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds 3000–3031 and 5000–5025: of the
+    /// ends beside a hole of segments of four or more characters that two or more captures read alike, 4 of 49 were not
+    /// the written character (0.082), where the vote of independent captures had put them at 0.99 and more.
+    /// </summary>
+    public const double SharedGapEndError = 0.08;
+
+    /// <summary>
+    /// The same at a stretch's start or end: the tone beginning or stopping is the same on every capture of the tape, and
+    /// a false character framed there (the mark tone's end read as a start bit and ones after it: 0xFF) is framed alike.
+    /// Counted on the same segments (four or more characters): of the stretch ends two or more captures read alike, 4 of
+    /// 382 were not the written character (0.010); the vote had put such segments at 0.999 (kcs-1200, seeds 3008 and 5011:
+    /// a 0xFF after the file's last character, read by two captures).
+    /// </summary>
+    public const double SharedStretchEndError = 0.01;
 
     /// <summary>
     /// The chance that a piece of <paramref name="characters"/> characters that one capture alone carried beside bytes no
@@ -104,10 +126,13 @@ internal sealed class StreamMerge
         /// <summary>The chance the slot holds the written character, its readers' edge doubt counted (<see cref="EdgeCharacterError"/>).</summary>
         public double Confidence { get; set; }
 
-        /// <summary>The same where the slot ends a segment beside bytes no capture kept: every reader's character there is no surer than <see cref="GapEndError"/>.</summary>
+        /// <summary>
+        /// The same where the slot ends a segment beside bytes no capture kept: every reader's character there is no surer
+        /// than <see cref="GapEndError"/>, and all of them may be the same false one (<see cref="SharedGapEndError"/>).
+        /// </summary>
         public double GapEndConfidence { get; set; }
 
-        /// <summary>The same where the slot ends a segment at its stretch's start or end (<see cref="StretchEndError"/>).</summary>
+        /// <summary>The same where the slot ends a segment at its stretch's start or end (<see cref="StretchEndError"/>, <see cref="SharedStretchEndError"/>).</summary>
         public double StretchEndConfidence { get; set; }
 
         public bool Unanimous { get; set; }
@@ -244,8 +269,9 @@ internal sealed class StreamMerge
             double floor = Math.Pow(_options.StreamByteErrorFloor, Math.Max(1, alike));
             slot.Probability = Math.Min(slot.Probability, 1 - floor);
             slot.Confidence = Math.Min(Vote(slot, edges: true, of: slot.Value).Probability, slot.Probability);
-            slot.GapEndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, endError: GapEndError).Probability, slot.Probability);
-            slot.StretchEndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, endError: StretchEndError).Probability, slot.Probability);
+            // At a segment's end part of the doubt is the tape's own, the same for every capture: agreement cannot outvote it.
+            slot.GapEndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, endError: GapEndError).Probability, slot.Probability) * (1 - SharedGapEndError);
+            slot.StretchEndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, endError: StretchEndError).Probability, slot.Probability) * (1 - SharedStretchEndError);
 
             // A byte that other captures reading this stretch did not see must be a confident one.
             if (slot.Probability > (supporting < covering ? LoneByteProbability : 0.5))
