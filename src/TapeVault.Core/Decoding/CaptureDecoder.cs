@@ -319,7 +319,7 @@ public static class CaptureDecoder
                 _surveys?[i].AddIntervals(work.Edges[i].Items);
                 if (_decoders[i].ReadsTones)
                 {
-                    _decoders[i].OnTones(work.Tones!.Lane(i, work.Length), work.Start);
+                    _decoders[i].OnTones(work.Tones!.Lane(i), work.Tones.FirstReading);
                 }
             }
         }

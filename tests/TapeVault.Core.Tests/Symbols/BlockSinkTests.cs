@@ -71,7 +71,7 @@ public sealed class BlockSinkTests : IClassFixture<OutsideTempFolder>
             edges[0].Clear();
             bank.Process(samples.AsSpan(0, read), edges, tones, energies);
             decoder.OnEdges(edges[0].Items);
-            decoder.OnTones(energies.Lane(0, read), start);
+            decoder.OnTones(energies.Lane(0), energies.FirstReading);
             start += read;
         }
 
