@@ -132,7 +132,8 @@ public sealed class FskDecoder : ISymbolDecoder
 
         // The speed tracker times edges, in samples.
         _speed = new MarkPeriodSpeedTracker(sampleRate / _fsk.MarkHz * (countsBothEdges ? 0.5 : 1), _correlatorWindow);
-        _framer = new AsyncCharacterFramer(_framing);
+        // Bits decided at the reading nearest their centre but for half a sample (see AsyncCharacterFramer).
+        _framer = new AsyncCharacterFramer(_framing, decisionLead: 0.5 - (0.5 / _stride));
         _grid = new CharacterGrid(_framing);
         _alignment = new FrameAlignment(_framing);
         _held = new HeldCharacters(HeldCharacterCount, _framer.FrameBits);
