@@ -12,7 +12,7 @@ namespace TapeVault.Core.Detection;
 /// the window and so the oscillators: one phasor per tone turns for all lanes.
 /// <para>
 /// Every <see cref="Stride"/>-th window (the windows that end at samples s with s + 1 a multiple of the stride; every
-/// window at 1200 baud, every fourth at 300: <see cref="ToneCorrelator.StrideFor"/>) is read: its energies pass the
+/// window unless a sparser reading is asked for, at most every fourth at 300 baud: <see cref="ToneCorrelator.StrideFor"/>) is read: its energies pass the
 /// <see cref="ToneGate"/>'s vector form in the same lanes (whether the window holds a carrier and whether it holds one
 /// tone alone, the part of the tone detector no decoder state moves) and go to the decoders. The correlators themselves
 /// take every sample.
@@ -30,12 +30,15 @@ public sealed class ToneBank
 
     private readonly Quad[] _quads;
 
-    public ToneBank(int settings, double markHz, double spaceHz, double baud, double sampleRate)
+    /// <param name="stride">Every how many samples a window is read: 1 (every sample), or at most <see cref="ToneCorrelator.StrideFor"/>.</param>
+    public ToneBank(int settings, double markHz, double spaceHz, double baud, double sampleRate, int stride = 1)
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(settings, 1);
+        ArgumentOutOfRangeException.ThrowIfLessThan(stride, 1);
+        ArgumentOutOfRangeException.ThrowIfGreaterThan(stride, ToneCorrelator.StrideFor(baud, sampleRate));
         Settings = settings;
         Window = ToneCorrelator.WindowFor(baud, sampleRate);
-        Stride = ToneCorrelator.StrideFor(baud, sampleRate);
+        Stride = stride;
         _quads = new Quad[(settings + LanesPerQuad - 1) / LanesPerQuad];
         for (int q = 0; q < _quads.Length; q++)
         {

@@ -45,9 +45,8 @@ public struct ToneCorrelator
     public const int MinimumReadingsPerWindow = 32;
 
     /// <summary>
-    /// Every how many samples the decoders read a window of this length: 1 up to twice
-    /// <see cref="MinimumReadingsPerWindow"/> samples (1200 baud at 44.1 kHz: every sample), then the window over it
-    /// (300 baud at 44.1 kHz, 147 samples: every fourth).
+    /// The sparsest the decoders may read windows of this length (a decode's sparse tone readings, off by default): every sample up to twice <see cref="MinimumReadingsPerWindow"/> samples (1200 baud at 44.1 kHz),
+    /// then every (window over it) samples (300 baud at 44.1 kHz, 147 samples: every fourth).
     /// </summary>
     public static int StrideFor(double baud, double sampleRate) => Math.Max(1, WindowFor(baud, sampleRate) / MinimumReadingsPerWindow);
 

@@ -116,8 +116,10 @@ public sealed class FskDecoder : ISymbolDecoder
     // Whether the block in progress is still finding out from its own characters where they may be framed.
     private bool _checkingAlignment;
 
-    public FskDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, IBlockSink blocks)
+    /// <param name="readingStride">Every how many samples the tone bank reads a window (<see cref="ToneBank.Stride"/>); 1 by default.</param>
+    public FskDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, IBlockSink blocks, int readingStride = 1)
     {
+        ArgumentOutOfRangeException.ThrowIfLessThan(readingStride, 1);
         ArgumentNullException.ThrowIfNull(profile);
         _fsk = profile.Fsk ?? throw new ArgumentException("The profile is not an FSK profile.", nameof(profile));
         _framing = profile.Framing;
@@ -125,7 +127,7 @@ public sealed class FskDecoder : ISymbolDecoder
         _blocks = blocks;
 
         // Lengths in readings: the rate at which the tone bank reads windows.
-        _stride = ToneCorrelator.StrideFor(_fsk.Baud, sampleRate);
+        _stride = readingStride;
         _correlatorWindow = ToneCorrelator.WindowFor(_fsk.Baud, sampleRate);
         _readingRate = sampleRate / _stride;
         _tones = new ToneDetector(_fsk.Baud, _readingRate);

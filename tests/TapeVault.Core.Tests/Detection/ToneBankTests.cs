@@ -65,7 +65,7 @@ public sealed class ToneBankTests
     }
 
     [Fact]
-    public void At_300_baud_the_bank_reads_every_fourth_window_and_gives_bit_for_bit_the_scalar_correlator_s_energies_there()
+    public void At_300_baud_a_sparse_bank_reads_every_fourth_window_and_gives_bit_for_bit_the_scalar_correlator_s_energies_there()
     {
         // 300 baud at 44.1 kHz: a window of 147 samples, read every fourth sample (147 / 32 = 4). Reading r is the
         // window that ends at sample 4r + 3, whatever the chunks (here of an odd length, so that they begin at every
@@ -76,7 +76,7 @@ public sealed class ToneBankTests
         float[] signal = NoisyFsk(seconds: 0.5, fsk.MarkHz, fsk.SpaceHz, fsk.Baud);
 
         var bank = new DetectorBank(settings, SampleRate);
-        var tones = new ToneBank(settings.Count, fsk.MarkHz, fsk.SpaceHz, fsk.Baud, SampleRate);
+        var tones = new ToneBank(settings.Count, fsk.MarkHz, fsk.SpaceHz, fsk.Baud, SampleRate, ToneCorrelator.StrideFor(fsk.Baud, SampleRate));
         Assert.Equal(147, tones.Window);
         Assert.Equal(4, tones.Stride);
         var edges = settings.Select(_ => new EdgeBuffer()).ToArray();
