@@ -306,7 +306,8 @@ public static class Throughput
         }
         else
         {
-            var result = CaptureDecoder.Decode(path, ProfileCatalog.BuiltIn.Get(args[2]));
+            // bank-sparse: the tone windows read every few samples (DecodeOptions.SparseToneReadings).
+            var result = CaptureDecoder.Decode(path, ProfileCatalog.BuiltIn.Get(args[2]), options: new DecodeOptions { SparseToneReadings = mode == "bank-sparse" });
             int clean = result.Best.Count(b => b.Status == BlockStatus.Clean);
             int unread = result.Best.Count(b => b.Status == BlockStatus.Unchecked);
             note = clean > 0 || unread == 0

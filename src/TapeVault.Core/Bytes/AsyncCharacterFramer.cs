@@ -33,13 +33,25 @@ public struct AsyncCharacterFramer
     private const double PhaseLoopGain = 0.5;
 
     private readonly ByteFraming _framing;
+    private readonly double _decisionLead;
     private readonly float[] _levels;
     private int _bitIndex;
     private double _nextBitTime;
 
-    public AsyncCharacterFramer(ByteFraming framing)
+    /// <param name="framing">The character's frame.</param>
+    /// <param name="decisionLead">
+    /// How far before a bit's centre, in the decoder's steps, a step may decide it (0 when D is read every sample: the
+    /// first step at or after the centre). Where D is read only every few samples (<see cref="Detection.ToneBank.Stride"/>),
+    /// the first reading at or after the centre lies up to a whole stride after it; a lead of half a reading less half a
+    /// sample centres the readings that decide on the centre as closely as reading every sample does (on average half a
+    /// sample late).
+    /// </param>
+    public AsyncCharacterFramer(ByteFraming framing, double decisionLead = 0)
     {
+        ArgumentOutOfRangeException.ThrowIfNegative(decisionLead);
+        ArgumentOutOfRangeException.ThrowIfGreaterThanOrEqual(decisionLead, 0.5);
         _framing = framing ?? throw new ArgumentNullException(nameof(framing));
+        _decisionLead = decisionLead;
         FrameBits = 1 + framing.DataBits + (framing.Parity == Parity.None ? 0 : 1) + 1;
         _levels = new float[FrameBits];
     }
@@ -55,7 +67,7 @@ public struct AsyncCharacterFramer
     /// <summary>The bits decided so far (0 = the start bit).</summary>
     public int BitsDecided => _bitIndex;
 
-    /// <summary>The sample from which <see cref="Step"/> decides the next bit; before it, a sample with no change of tone does nothing.</summary>
+    /// <summary>The step from which <see cref="Step"/> decides the next bit (its centre less the decision lead); before it, a step with no change of tone does nothing.</summary>
     public readonly double NextBitTime => _nextBitTime;
 
     /// <summary>The completed character's value.</summary>
@@ -72,7 +84,7 @@ public struct AsyncCharacterFramer
         InCharacter = true;
         _bitIndex = 0;
         Start = crossing;
-        _nextBitTime = crossing + 0.5 * bitSamples;
+        _nextBitTime = crossing + 0.5 * bitSamples - _decisionLead;
     }
 
     /// <summary>The signal was lost: the character in progress is void.</summary>
@@ -133,7 +145,7 @@ public struct AsyncCharacterFramer
         }
 
         _bitIndex++;
-        _nextBitTime = Start + (_bitIndex + 0.5) * bitSamples;
+        _nextBitTime = Start + (_bitIndex + 0.5) * bitSamples - _decisionLead;
         if (_bitIndex < FrameBits)
         {
             return CharacterStep.Reading;

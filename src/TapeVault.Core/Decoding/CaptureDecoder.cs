@@ -47,7 +47,7 @@ public static class CaptureDecoder
 
     private static DecodeResult Decode(CaptureReader reader, FormatProfile profile, IReadOnlyList<DetectorSetting> bank, DecodeOptions options, ReadingSpool spool)
     {
-        var session = new DecodeSession(profile, bank, reader.SampleRate, options.SurveyIntervals, spool);
+        var session = new DecodeSession(profile, bank, reader.SampleRate, options.SurveyIntervals, spool, options.SparseToneReadings);
         long total = reader.FrameCount;
         var overview = options.OverviewColumns > 0 && total > 0 ? new WaveformOverview.Builder(total, options.OverviewColumns) : null;
 
@@ -225,10 +225,12 @@ public static class CaptureDecoder
 
         /// <param name="surveyIntervals">Count each setting's edge intervals as well, for the plots' pulse-length histograms.</param>
         /// <param name="spool">Where each reading goes as its block is finished; by default a spool in memory (for short stretches).</param>
-        public DecodeSession(FormatProfile profile, IReadOnlyList<DetectorSetting> settings, int sampleRate, bool surveyIntervals = false, ReadingSpool? spool = null)
+        /// <param name="sparseToneReadings">Read a slow tone format's windows every few samples (<see cref="DecodeOptions.SparseToneReadings"/>).</param>
+        public DecodeSession(FormatProfile profile, IReadOnlyList<DetectorSetting> settings, int sampleRate, bool surveyIntervals = false, ReadingSpool? spool = null, bool sparseToneReadings = false)
         {
             ArgumentNullException.ThrowIfNull(profile);
             ArgumentNullException.ThrowIfNull(settings);
+            int toneStride = sparseToneReadings && profile.Fsk is { } tones ? ToneCorrelator.StrideFor(tones.Baud, sampleRate) : 1;
             _bank = new DetectorBank(settings, sampleRate);
             _decoders = new ISymbolDecoder[settings.Count];
             _spool = spool ?? ReadingSpool.InMemory();
@@ -250,7 +252,7 @@ public static class CaptureDecoder
                 {
                     FormatFamily.PulseWidth => new PulseWidthDecoder(profile, both, sampleRate, assembler),
                     FormatFamily.Biphase => new BiphaseDecoder(profile, sampleRate, assembler),
-                    FormatFamily.Fsk => new FskDecoder(profile, both, sampleRate, assembler),
+                    FormatFamily.Fsk => new FskDecoder(profile, both, sampleRate, assembler, toneStride),
                     _ => throw new ArgumentOutOfRangeException(nameof(profile)),
                 };
             }
@@ -258,7 +260,7 @@ public static class CaptureDecoder
             if (Array.Exists(_decoders, d => d.ReadsTones))
             {
                 var fsk = profile.Fsk ?? throw new ArgumentException("Only a tone format's decoders read tones.", nameof(profile));
-                _tones = new ToneBank(settings.Count, fsk.MarkHz, fsk.SpaceHz, fsk.Baud, sampleRate);
+                _tones = new ToneBank(settings.Count, fsk.MarkHz, fsk.SpaceHz, fsk.Baud, sampleRate, toneStride);
             }
 
             if (surveyIntervals)
@@ -319,7 +321,7 @@ public static class CaptureDecoder
                 _surveys?[i].AddIntervals(work.Edges[i].Items);
                 if (_decoders[i].ReadsTones)
                 {
-                    _decoders[i].OnTones(work.Tones!.Lane(i, work.Length), work.Start);
+                    _decoders[i].OnTones(work.Tones!.Lane(i), work.Tones.FirstReading);
                 }
             }
         }

@@ -29,6 +29,14 @@ public sealed record DecodeOptions
     /// <summary>Count every setting's edge intervals as the decode goes (<see cref="DecodeResult.Surveys"/>), so the plots' pulse-length histograms need no pass of their own.</summary>
     public bool SurveyIntervals { get; init; }
 
+    /// <summary>
+    /// Read the tone windows of a slow FSK profile every few samples rather than every sample
+    /// (<see cref="Detection.ToneCorrelator.StrideFor"/>: every fourth at 300 baud and 44.1 kHz): about half the
+    /// decode's processor time. It changes what a decode finds, and on held-out trust seeds it has not been shown to
+    /// keep every wrong reading short of clean (docs/performance.md), so it is off unless asked for.
+    /// </summary>
+    public bool SparseToneReadings { get; init; }
+
     /// <summary>Columns of a min/max waveform overview made from the samples as they are read (<see cref="DecodeResult.Overview"/>); 0 for none.</summary>
     public int OverviewColumns { get; init; }
 

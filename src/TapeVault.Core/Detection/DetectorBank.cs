@@ -67,14 +67,21 @@ public sealed class DetectorBank
             throw new ArgumentException("Tone correlators need one lane per setting and room for the chunk's energies.", nameof(energies));
         }
 
+        long chunkStart = _samplesSeen;
+        if (tones is not null)
+        {
+            (energies!.FirstReading, energies.Readings) = tones.Readings(chunkStart, samples.Length);
+        }
+
         // Crossing times are interpolated in single precision relative to the start of what a group is given; slices
         // of at most SliceSamples keep them within a thousandth of a sample however long the caller's chunk is.
         for (int offset = 0; offset < samples.Length; offset += SliceSamples)
         {
             var slice = samples.Slice(offset, Math.Min(SliceSamples, samples.Length - offset));
+            int readingOffset = tones is null ? 0 : tones.Readings(chunkStart, offset).Count;
             for (int g = 0; g < _groups.Length; g++)
             {
-                _groups[g].Process(slice, _samplesSeen, edges, tones, energies, offset);
+                _groups[g].Process(slice, _samplesSeen, edges, tones, energies, readingOffset);
             }
 
             _samplesSeen += slice.Length;
@@ -167,7 +174,7 @@ public sealed class DetectorBank
             };
         }
 
-        public void Process(ReadOnlySpan<float> samples, long chunkStart, EdgeBuffer[] edges, ToneBank? tones, ToneEnergies? energies, int offset)
+        public void Process(ReadOnlySpan<float> samples, long chunkStart, EdgeBuffer[] edges, ToneBank? tones, ToneEnergies? energies, int readingOffset)
         {
             // State into locals so the JIT keeps it in registers for the loop.
             float previousSample = _previousSample;
@@ -254,7 +261,7 @@ public sealed class DetectorBank
             if (tones is not null)
             {
                 // The tone correlators of these eight settings read the conditioned signal just kept, still in its lanes.
-                tones.Process(_firstSetting, eventConditioned.AsSpan(0, samples.Length), energies!, offset);
+                tones.Process(_firstSetting, eventConditioned.AsSpan(0, samples.Length), chunkStart, energies!, readingOffset);
             }
 
             // The slice's counted switches become edges, outside the sample loop.

@@ -11,8 +11,11 @@ namespace TapeVault.Core.Detection;
 /// product that leaves the window, O(1) a sample whatever the window). Every setting of a profile shares the tones,
 /// the window and so the oscillators: one phasor per tone turns for all lanes.
 /// <para>
-/// Each window's energies then pass the <see cref="ToneGate"/>'s vector form in the same lanes: whether the window holds
-/// a carrier and whether it holds one tone alone, the part of the tone detector no decoder state moves.
+/// Every <see cref="Stride"/>-th window (the windows that end at samples s with s + 1 a multiple of the stride; every
+/// window unless a sparser reading is asked for, at most every fourth at 300 baud: <see cref="ToneCorrelator.StrideFor"/>) is read: its energies pass the
+/// <see cref="ToneGate"/>'s vector form in the same lanes (whether the window holds a carrier and whether it holds one
+/// tone alone, the part of the tone detector no decoder state moves) and go to the decoders. The correlators themselves
+/// take every sample.
 /// </para>
 /// <para>
 /// The arithmetic is that of <see cref="ToneCorrelator"/>, which it calls for the oscillators and whose scalar form is
@@ -27,17 +30,31 @@ public sealed class ToneBank
 
     private readonly Quad[] _quads;
 
-    public ToneBank(int settings, double markHz, double spaceHz, double baud, double sampleRate)
+    /// <param name="stride">Every how many samples a window is read: 1 (every sample), or at most <see cref="ToneCorrelator.StrideFor"/>.</param>
+    public ToneBank(int settings, double markHz, double spaceHz, double baud, double sampleRate, int stride = 1)
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(settings, 1);
+        ArgumentOutOfRangeException.ThrowIfLessThan(stride, 1);
+        ArgumentOutOfRangeException.ThrowIfGreaterThan(stride, ToneCorrelator.StrideFor(baud, sampleRate));
         Settings = settings;
         Window = ToneCorrelator.WindowFor(baud, sampleRate);
+        Stride = stride;
         _quads = new Quad[(settings + LanesPerQuad - 1) / LanesPerQuad];
         for (int q = 0; q < _quads.Length; q++)
         {
-            _quads[q] = new Quad(Window, markHz, spaceHz, sampleRate, new ToneGate(Window, sampleRate));
+            // The gate's carrier reference moves once a window read, so it follows the same time at the rate they are read.
+            _quads[q] = new Quad(Window, Stride, markHz, spaceHz, sampleRate, new ToneGate(Window, sampleRate / Stride));
         }
     }
+
+    /// <summary>
+    /// Every how many samples a window is read (<see cref="ToneCorrelator.StrideFor"/>): reading r is of the window
+    /// that ends at sample r·stride + stride − 1.
+    /// </summary>
+    public int Stride { get; }
+
+    /// <summary>The readings of the samples [<paramref name="start"/>, <paramref name="start"/> + <paramref name="length"/>): the first one's index and how many.</summary>
+    public (long First, int Count) Readings(long start, int length) => (start / Stride, (int)(((start + length) / Stride) - (start / Stride)));
 
     public int Settings { get; }
 
@@ -46,17 +63,20 @@ public sealed class ToneBank
 
     /// <summary>
     /// Advances the correlators of settings <paramref name="firstSetting"/> onwards (a multiple of four) over a slice of
-    /// the bank's conditioned signal, one vector of eight settings' lanes a sample, writing each setting's energies to
-    /// <paramref name="output"/> from <paramref name="outputOffset"/>.
+    /// the bank's conditioned signal whose first sample is <paramref name="sliceStart"/>, one vector of eight settings'
+    /// lanes a sample, writing each setting's readings to <paramref name="output"/> from reading
+    /// <paramref name="outputOffset"/> of the chunk.
     /// </summary>
-    internal void Process(int firstSetting, ReadOnlySpan<Vector256<float>> conditioned, ToneEnergies output, int outputOffset)
+    internal void Process(int firstSetting, ReadOnlySpan<Vector256<float>> conditioned, long sliceStart, ToneEnergies output, int outputOffset)
     {
+        // The slice's first sample whose window is read: the first s with s + 1 a multiple of the stride.
+        int first = (int)((Stride - 1) - (sliceStart % Stride));
         for (int half = 0; half < 2; half++)
         {
             int quad = (firstSetting / LanesPerQuad) + half;
             if (quad < _quads.Length)
             {
-                _quads[quad].Process(conditioned, upper: half == 1, output.Quad(quad), output.Gates(quad), outputOffset);
+                _quads[quad].Process(conditioned, upper: half == 1, first, output.Quad(quad), output.Gates(quad), outputOffset);
             }
         }
     }
@@ -71,7 +91,7 @@ public sealed class ToneBank
     }
 
     /// <summary>Four settings' correlators; lane i of every vector is setting 4·q + i.</summary>
-    private sealed class Quad(int window, double markHz, double spaceHz, double sampleRate, ToneGate gate)
+    private sealed class Quad(int window, int stride, double markHz, double spaceHz, double sampleRate, ToneGate gate)
     {
         private readonly (Vector256<double> Silence, Vector256<double> Gain) _gate = gate.Lanes;
         private Vector256<double> _reference;
@@ -81,7 +101,7 @@ public sealed class ToneBank
         private int _ring;
         private Vector256<double> _sumMarkI, _sumMarkQ, _sumSpaceI, _sumSpaceQ;
 
-        public void Process(ReadOnlySpan<Vector256<float>> conditioned, bool upper, Span<Vector256<double>> output, Span<int> gates, int outputOffset)
+        public void Process(ReadOnlySpan<Vector256<float>> conditioned, bool upper, int firstRead, Span<Vector256<double>> output, Span<int> gates, int outputOffset)
         {
             var (silence, gain) = _gate;
             var reference = _reference;
@@ -94,12 +114,15 @@ public sealed class ToneBank
             var sumSpaceI = _sumSpaceI;
             var sumSpaceQ = _sumSpaceQ;
 
-            // Output: two vectors a sample, the four lanes' mark energies, then their space energies.
-            var target = output.Slice(2 * outputOffset, 2 * conditioned.Length);
+            // Output: two vectors a reading, the four lanes' mark energies, then their space energies.
+            int readings = firstRead < conditioned.Length ? ((conditioned.Length - 1 - firstRead) / stride) + 1 : 0;
+            var target = output.Slice(2 * outputOffset, 2 * readings);
 
-            // And a word a sample of the gate's answers: lane i's carrier in bit i, pure mark in bit 4 + i, pure space
+            // And a word a reading of the gate's answers: lane i's carrier in bit i, pure mark in bit 4 + i, pure space
             // in bit 8 + i.
-            var gated = gates.Slice(outputOffset, conditioned.Length);
+            var gated = gates.Slice(outputOffset, readings);
+            int read = 0;
+            int nextRead = firstRead;
 
             // Counters here stay below the chunk length: unchecked keeps the loop free of overflow tests.
             unchecked
@@ -110,18 +133,28 @@ public sealed class ToneBank
                     var (lower, higher) = Vector256.Widen(conditioned[n]);
                     var x = upper ? higher : lower;
 
-                    // Both tones' correlators: the operator's vector form (ToneCorrelator.Slide), the oscillators shared.
-                    var markEnergy = ToneCorrelator.Slide(x, oscillator.MarkCos, oscillator.MarkSin, ref markRing[ring], ref sumMarkI, ref sumMarkQ);
-                    var spaceEnergy = ToneCorrelator.Slide(x, oscillator.SpaceCos, oscillator.SpaceSin, ref spaceRing[ring], ref sumSpaceI, ref sumSpaceQ);
+                    // Both tones' correlators: the operator's vector form (ToneCorrelator.Slide, in its two halves), the
+                    // oscillators shared.
+                    ToneCorrelator.Accumulate(x, oscillator.MarkCos, oscillator.MarkSin, ref markRing[ring], ref sumMarkI, ref sumMarkQ);
+                    ToneCorrelator.Accumulate(x, oscillator.SpaceCos, oscillator.SpaceSin, ref spaceRing[ring], ref sumSpaceI, ref sumSpaceQ);
                     oscillator.Turn();
                     ring = ring + 1 == markRing.Length ? 0 : ring + 1;
-                    target[2 * n] = markEnergy;
-                    target[(2 * n) + 1] = spaceEnergy;
+                    if (n != nextRead)
+                    {
+                        continue;
+                    }
+
+                    nextRead += stride;
+                    var markEnergy = ToneCorrelator.Energy(sumMarkI, sumMarkQ);
+                    var spaceEnergy = ToneCorrelator.Energy(sumSpaceI, sumSpaceQ);
+                    target[2 * read] = markEnergy;
+                    target[(2 * read) + 1] = spaceEnergy;
 
                     var carrier = ToneGate.Next(markEnergy, spaceEnergy, ref reference, silence, gain, out var pureMark, out var pureSpace);
-                    gated[n] = (int)(carrier.ExtractMostSignificantBits()
+                    gated[read] = (int)(carrier.ExtractMostSignificantBits()
                         | (pureMark.ExtractMostSignificantBits() << LanesPerQuad)
                         | (pureSpace.ExtractMostSignificantBits() << (2 * LanesPerQuad)));
+                    read++;
                 }
             }
 
@@ -140,7 +173,8 @@ public sealed class ToneBank
 
 /// <summary>
 /// The mark and space energies of every setting of a <see cref="ToneBank"/> over one chunk: per group of four settings,
-/// two vectors a sample (mark, then space), lane i for setting 4·q + i.
+/// two vectors a reading (mark, then space), lane i for setting 4·q + i; the chunk's readings are
+/// <see cref="FirstReading"/> onwards, <see cref="Readings"/> of them.
 /// </summary>
 public sealed class ToneEnergies
 {
@@ -162,16 +196,25 @@ public sealed class ToneEnergies
 
     public int Capacity { get; }
 
+    /// <summary>The index of the chunk's first reading (see <see cref="ToneBank.Stride"/>).</summary>
+    public long FirstReading { get; internal set; }
+
+    /// <summary>How many windows of the chunk were read.</summary>
+    public int Readings { get; internal set; }
+
     internal Span<Vector256<double>> Quad(int quad) => _quads[quad];
 
     internal Span<int> Gates(int quad) => _gates[quad];
 
-    /// <summary>Setting <paramref name="setting"/>'s view of the chunk.</summary>
+    /// <summary>Setting <paramref name="setting"/>'s view of the chunk's readings.</summary>
+    public ToneLane Lane(int setting) => Lane(setting, Readings);
+
+    /// <summary>Setting <paramref name="setting"/>'s view of the chunk's first <paramref name="length"/> readings.</summary>
     public ToneLane Lane(int setting, int length) =>
         new(_quads[setting / ToneBank.LanesPerQuad], _gates[setting / ToneBank.LanesPerQuad], setting % ToneBank.LanesPerQuad, length);
 }
 
-/// <summary>One setting's mark and space energies over a chunk, and its <see cref="ToneGate"/>'s answers, sample by sample.</summary>
+/// <summary>One setting's mark and space energies over a chunk, and its <see cref="ToneGate"/>'s answers, reading by reading.</summary>
 public readonly ref struct ToneLane
 {
     private readonly ReadOnlySpan<double> _all;
@@ -194,7 +237,7 @@ public readonly ref struct ToneLane
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public double Space(int n) => _all[unchecked((2 * ToneBank.LanesPerQuad * n) + ToneBank.LanesPerQuad + _lane)];
 
-    /// <summary>The gate's answer for the window that ends at sample <paramref name="n"/>: <see cref="ToneGate.Carrier"/>, <see cref="ToneGate.PureMark"/> and <see cref="ToneGate.PureSpace"/> bits.</summary>
+    /// <summary>The gate's answer for reading <paramref name="n"/> of the chunk: <see cref="ToneGate.Carrier"/>, <see cref="ToneGate.PureMark"/> and <see cref="ToneGate.PureSpace"/> bits.</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public int Gate(int n)
     {

@@ -34,6 +34,22 @@ public struct ToneCorrelator
     /// <summary>One bit at nominal speed, in whole samples (at least two).</summary>
     public static int WindowFor(double baud, double sampleRate) => Math.Max(2, (int)Math.Round(sampleRate / baud));
 
+    /// <summary>
+    /// The fewest windows a decoder reads per bit: a window of more samples than this is read every
+    /// <see cref="StrideFor"/> samples rather than every sample. D moves smoothly over a one-bit window (a triangle from
+    /// one bit's centre to the next), so at 32 readings a bit its zero crossings, interpolated between readings, and its
+    /// value at a bit's centre, read at most a stride late (under 1/32 of a bit, where D has fallen by at most 1/16),
+    /// are what the reading of every sample gives, at a fraction of the decoder's work (our estimate, checked by the
+    /// trust bench on held-out seeds).
+    /// </summary>
+    public const int MinimumReadingsPerWindow = 32;
+
+    /// <summary>
+    /// The sparsest the decoders may read windows of this length (a decode's sparse tone readings, off by default): every sample up to twice <see cref="MinimumReadingsPerWindow"/> samples (1200 baud at 44.1 kHz),
+    /// then every (window over it) samples (300 baud at 44.1 kHz, 147 samples: every fourth).
+    /// </summary>
+    public static int StrideFor(double baud, double sampleRate) => Math.Max(1, WindowFor(baud, sampleRate) / MinimumReadingsPerWindow);
+
     /// <summary>Takes one sample; gives the energies at the mark and space tones of the window that ends with it.</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public void Next(float x, out double mark, out double space)
@@ -71,13 +87,28 @@ public struct ToneCorrelator
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     internal static Vector256<double> Slide(Vector256<double> x, double cos, double sin, ref Vector256<float> ring, ref Vector256<double> sumI, ref Vector256<double> sumQ)
     {
+        Accumulate(x, cos, sin, ref ring, ref sumI, ref sumQ);
+        return Energy(sumI, sumQ);
+    }
+
+    /// <summary>
+    /// The first half of the vector form of <see cref="Slide(Vector256{double}, double, double, ref Vector256{float}, ref Vector256{double}, ref Vector256{double})"/>:
+    /// the sample's products in, the ones a window old out; for a sample whose window no one reads (the bank reads every
+    /// <see cref="ToneBank.Stride"/>-th), this is all there is to do.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    internal static void Accumulate(Vector256<double> x, double cos, double sin, ref Vector256<float> ring, ref Vector256<double> sumI, ref Vector256<double> sumQ)
+    {
         var products = Vector256.Narrow(x * Vector256.Create(cos), x * Vector256.Create(sin));
         var (inI, inQ) = Vector256.Widen(products - ring);
         ring = products;
         sumI += inI;
         sumQ += inQ;
-        return (sumI * sumI) + (sumQ * sumQ);
     }
+
+    /// <summary>The second half: the energy |X|² of the window the sums hold.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    internal static Vector256<double> Energy(Vector256<double> sumI, Vector256<double> sumQ) => (sumI * sumI) + (sumQ * sumQ);
 
     /// <summary>Pulls the oscillators back onto the unit circle (once a chunk is enough).</summary>
     public void Renormalise() => _oscillator.Renormalise();

@@ -19,6 +19,12 @@ namespace TapeVault.Core.Symbols;
 /// are read one bit period apart from it; where characters may start; a block's first characters; a leader of
 /// characters). Decisions and bytes go to the block stage through <see cref="IBlockSink"/>.
 /// <para>
+/// The decoder reads the windows the <see cref="ToneBank"/> reads, one every <see cref="ToneBank.Stride"/> samples
+/// (<see cref="ToneCorrelator.StrideFor"/>), and counts its time in readings: every length it works with (a bit, a
+/// frame, a lead-in, the tone levels' memory) is in readings, as if the capture had been sampled at the sample rate over
+/// the stride, and only what it tells the block stage and the speed tracker (which hangs on edges) goes back to samples.
+/// </para>
+/// <para>
 /// A block begins only where the recording says one may: after a lead-in (mostly mark tone for the profile's minimum
 /// lead-in, ending in a whole character of unbroken mark, longer than any character holds) or after an idle line (a
 /// run of mark tone of <see cref="IdleLineCharacters"/> character times, where a block's characters would follow back
@@ -81,7 +87,10 @@ public sealed class FskDecoder : ISymbolDecoder
     private readonly ByteFraming _framing;
     private readonly bool _isStream;
     private readonly IBlockSink _blocks;
-    private readonly double _sampleRate;
+    /// <summary>Readings a second: the sample rate over the tone bank's stride.</summary>
+    private readonly double _readingRate;
+    private readonly int _stride;
+    private readonly int _correlatorWindow;
     private readonly bool _hasLeader;
     private CharacterLeader _leader;
     private ToneDetector _tones;
@@ -107,26 +116,35 @@ public sealed class FskDecoder : ISymbolDecoder
     // Whether the block in progress is still finding out from its own characters where they may be framed.
     private bool _checkingAlignment;
 
-    public FskDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, IBlockSink blocks)
+    /// <param name="readingStride">Every how many samples the tone bank reads a window (<see cref="ToneBank.Stride"/>); 1 by default.</param>
+    public FskDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, IBlockSink blocks, int readingStride = 1)
     {
+        ArgumentOutOfRangeException.ThrowIfLessThan(readingStride, 1);
         ArgumentNullException.ThrowIfNull(profile);
         _fsk = profile.Fsk ?? throw new ArgumentException("The profile is not an FSK profile.", nameof(profile));
         _framing = profile.Framing;
         _isStream = profile.Layout.IsStream;
         _blocks = blocks;
-        _sampleRate = sampleRate;
-        _tones = new ToneDetector(_fsk.Baud, sampleRate);
-        _speed = new MarkPeriodSpeedTracker(sampleRate / _fsk.MarkHz * (countsBothEdges ? 0.5 : 1), _tones.Window);
-        _framer = new AsyncCharacterFramer(_framing);
+
+        // Lengths in readings: the rate at which the tone bank reads windows.
+        _stride = readingStride;
+        _correlatorWindow = ToneCorrelator.WindowFor(_fsk.Baud, sampleRate);
+        _readingRate = sampleRate / _stride;
+        _tones = new ToneDetector(_fsk.Baud, _readingRate);
+
+        // The speed tracker times edges, in samples.
+        _speed = new MarkPeriodSpeedTracker(sampleRate / _fsk.MarkHz * (countsBothEdges ? 0.5 : 1), _correlatorWindow);
+        // Bits decided at the reading nearest their centre but for half a sample (see AsyncCharacterFramer).
+        _framer = new AsyncCharacterFramer(_framing, decisionLead: 0.5 - (0.5 / _stride));
         _grid = new CharacterGrid(_framing);
         _alignment = new FrameAlignment(_framing);
         _held = new HeldCharacters(HeldCharacterCount, _framer.FrameBits);
-        _mark = new MarkToneRun(Math.Max(_fsk.LeadInMinimumSeconds * sampleRate, 2.0 * _tones.Window));
+        _mark = new MarkToneRun(Math.Max(_fsk.LeadInMinimumSeconds * _readingRate, 2.0 * _tones.Window));
         if (_fsk.LeadInCharacters is { } leader)
         {
             _hasLeader = true;
             byte[] syncFirstBytes = BlockLayoutCodec.For(profile.Layout).SyncField is { } sync ? [.. sync.Expected.Select(e => e[0])] : [];
-            _leader = new CharacterLeader(_framing, leader, _fsk.Baud, sampleRate, syncFirstBytes);
+            _leader = new CharacterLeader(_framing, leader, _fsk.Baud, _readingRate, syncFirstBytes);
         }
 
         KeepTiming();
@@ -173,11 +191,19 @@ public sealed class FskDecoder : ISymbolDecoder
         if (_speed.Speed != _timingSpeed)
         {
             _timingSpeed = _speed.Speed;
-            BitSamples = _sampleRate / (_fsk.Baud * _speed.Speed);
+            BitSamples = _readingRate / (_fsk.Baud * _speed.Speed);
             FrameSamples = _framing.BitsPerByte * BitSamples;
             IdleLineSamples = IdleLineCharacters * FrameSamples;
         }
     }
+
+    /// <summary>The sample at which the window of reading <paramref name="reading"/> (or a time between readings) ends.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private double ToSample(double reading) => (reading * _stride) + (_stride - 1);
+
+    /// <summary>The reading (a fraction between two) whose window ends at sample <paramref name="sample"/>.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private double ToReading(double sample) => (sample - (_stride - 1)) / _stride;
 
     /// <summary>Edges only calibrate the speed, from the mark tone (and give the level the block notes).</summary>
     public void OnEdges(ReadOnlySpan<Edge> edges)
@@ -227,7 +253,7 @@ public sealed class FskDecoder : ISymbolDecoder
         var detector = _tones;
         float previousD = _previousD;
         double nextBit = _framer.NextBitTime;
-        double nextCheck = _speed.NextCheck;
+        double nextCheck = ToReading(_speed.NextCheck);
         int start = i;
         bool changed = false;
         float d = 0;
@@ -280,7 +306,7 @@ public sealed class FskDecoder : ISymbolDecoder
         var detector = _tones;
         var mark = _mark;
         float previousD = _previousD;
-        double nextCheck = _speed.NextCheck;
+        double nextCheck = ToReading(_speed.NextCheck);
         double bitSamples = BitSamples;
         bool learnMark = _inBlock || InLeader;
 
@@ -352,7 +378,7 @@ public sealed class FskDecoder : ISymbolDecoder
     private void AfterTones(float d, long sample, bool inChar, bool inLeader)
     {
         double n = sample;
-        _speed.Check(d, n);
+        _speed.Check(d, ToSample(n));
         KeepTiming();
         if (_hasLeader && !_inBlock && !inLeader && _leader.Hunt(d, _previousD, n, BitSamples))
         {
@@ -391,7 +417,7 @@ public sealed class FskDecoder : ISymbolDecoder
             {
                 // The line is idle while the block still expects characters: the block ends here, and the mark
                 // tone that follows may be the next block's lead-in.
-                _blocks.End(_lastCharEnd);
+                _blocks.End(ToSample(_lastCharEnd));
                 _inBlock = false;
             }
 
@@ -415,7 +441,7 @@ public sealed class FskDecoder : ISymbolDecoder
     {
         if (_inBlock)
         {
-            _blocks.End(_lastCharEnd);
+            _blocks.End(ToSample(_lastCharEnd));
             _inBlock = false;
         }
     }
@@ -520,7 +546,7 @@ public sealed class FskDecoder : ISymbolDecoder
 
         if (_inBlock)
         {
-            _blocks.End(_lastCharEnd);
+            _blocks.End(ToSample(_lastCharEnd));
             _inBlock = false;
             _resuming = _isStream;
         }
@@ -622,7 +648,7 @@ public sealed class FskDecoder : ISymbolDecoder
     /// </summary>
     private void BeginBlock(double start, BlockStart evidence, bool confirmed)
     {
-        _blocks.Begin(start - 0.5 * _tones.Window, EvidenceOf(evidence, confirmed));
+        _blocks.Begin(ToSample(start) - 0.5 * _correlatorWindow, EvidenceOf(evidence, confirmed));
         _inBlock = true;
         _resuming = false;
         if (evidence == BlockStart.Leader)
@@ -681,7 +707,7 @@ public sealed class FskDecoder : ISymbolDecoder
 
         _blocks.NoteLevel(_level);
         _blocks.NoteSpeed(_speed.Speed);
-        if (_blocks.AddByte((byte)value, first, framingOk, start, confirmed ? 0 : UnconfirmedFramingDoubt))
+        if (_blocks.AddByte((byte)value, first, framingOk, ToSample(start), confirmed ? 0 : UnconfirmedFramingDoubt))
         {
             _inBlock = false;
         }

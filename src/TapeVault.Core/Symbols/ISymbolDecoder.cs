@@ -15,7 +15,10 @@ public interface ISymbolDecoder
 
     void OnEdges(ReadOnlySpan<Edge> edges);
 
-    /// <summary>The setting's tone energies over the chunk whose first sample is <paramref name="chunkStart"/>; only tone decoders read them.</summary>
+    /// <summary>
+    /// The setting's tone energies over a chunk, whose first reading (<see cref="ToneBank.Stride"/>) is
+    /// <paramref name="chunkStart"/>; only tone decoders read them.
+    /// </summary>
     void OnTones(ToneLane tones, long chunkStart)
     {
     }

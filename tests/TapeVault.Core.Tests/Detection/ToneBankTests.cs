@@ -65,6 +65,62 @@ public sealed class ToneBankTests
     }
 
     [Fact]
+    public void At_300_baud_a_sparse_bank_reads_every_fourth_window_and_gives_bit_for_bit_the_scalar_correlator_s_energies_there()
+    {
+        // 300 baud at 44.1 kHz: a window of 147 samples, read every fourth sample (147 / 32 = 4). Reading r is the
+        // window that ends at sample 4r + 3, whatever the chunks (here of an odd length, so that they begin at every
+        // phase of the stride); the gate runs on the windows read, its reference at the rate they are read.
+        var profile = ProfileCatalog.BuiltIn.Get("kcs-300");
+        var fsk = profile.Fsk!;
+        var settings = CaptureDecoder.BankFor(profile, DetectorBanks.Default);
+        float[] signal = NoisyFsk(seconds: 0.5, fsk.MarkHz, fsk.SpaceHz, fsk.Baud);
+
+        var bank = new DetectorBank(settings, SampleRate);
+        var tones = new ToneBank(settings.Count, fsk.MarkHz, fsk.SpaceHz, fsk.Baud, SampleRate, ToneCorrelator.StrideFor(fsk.Baud, SampleRate));
+        Assert.Equal(147, tones.Window);
+        Assert.Equal(4, tones.Stride);
+        var edges = settings.Select(_ => new EdgeBuffer()).ToArray();
+        const int chunk = 4999;
+        var energies = new ToneEnergies(settings.Count, chunk);
+        var scalar = settings.Select(_ => new ToneCorrelator(fsk.MarkHz, fsk.SpaceHz, fsk.Baud, SampleRate)).ToArray();
+        var gates = settings.Select(_ => new ToneGate(tones.Window, SampleRate / 4.0)).ToArray();
+        var conditioned = settings.Select(s => DetectorTrace.Run(signal, SampleRate, s).Conditioned).ToArray();
+
+        long readings = 0;
+        for (int offset = 0; offset < signal.Length; offset += chunk)
+        {
+            int length = Math.Min(chunk, signal.Length - offset);
+            bank.Process(signal.AsSpan(offset, length), edges, tones, energies);
+            Assert.Equal(readings, energies.FirstReading);
+            for (int s = 0; s < settings.Count; s++)
+            {
+                var lane = energies.Lane(s);
+                int r = 0;
+                for (int n = offset; n < offset + length; n++)
+                {
+                    scalar[s].Next(conditioned[s][n], out double mark, out double space);
+                    if ((n + 1) % 4 != 0)
+                    {
+                        continue;
+                    }
+
+                    Assert.Equal(mark, lane.Mark(r));
+                    Assert.Equal(space, lane.Space(r));
+                    Assert.Equal(gates[s].Next(mark, space), lane.Gate(r));
+                    r++;
+                }
+
+                Assert.Equal(energies.Readings, r);
+                scalar[s].Renormalise();
+            }
+
+            readings += energies.Readings;
+        }
+
+        Assert.Equal(signal.Length / 4, readings);
+    }
+
+    [Fact]
     public void A_pure_tone_gives_the_energy_of_a_sinusoid_in_its_own_correlator_and_almost_none_in_the_other()
     {
         // A sinusoid of amplitude A over a window of W samples at its own frequency gives |X| = A·W/2 (the DFT of a

@@ -24,15 +24,16 @@ public sealed class BlockSinkTests : IClassFixture<OutsideTempFolder>
     }
 
     [Theory]
-    [InlineData(300)]
-    [InlineData(1200)]
-    public void FskDecoder_HandsEachCharacterToTheSink_AsItsFrameDecisionsThenItsByte(int baud)
+    [InlineData(300, false)]
+    [InlineData(300, true)]
+    [InlineData(1200, false)]
+    public void FskDecoder_HandsEachCharacterToTheSink_AsItsFrameDecisionsThenItsByte(int baud, bool sparse)
     {
         string capture = KcsCaptures.Write(temp.Root, $"sink-kcs-{baud}", baud, 44_100, stopBits: 2);
         var profile = ProfileCatalog.BuiltIn.Get($"kcs-{baud}");
         var sink = new RecordingSink();
 
-        Run(capture, profile, sink);
+        Run(capture, profile, sink, sparse);
 
         // Outside reference: the bytes minimodem was given to send (and read back itself, see KcsCaptures.Write).
         var begun = Assert.Single(sink.Begun);
@@ -53,17 +54,19 @@ public sealed class BlockSinkTests : IClassFixture<OutsideTempFolder>
     }
 
     /// <summary>The read path of one setting by hand: the bank's edges and tone energies, then the decoder, into <paramref name="sink"/>.</summary>
-    private static void Run(string capture, FormatProfile profile, IBlockSink sink)
+    private static void Run(string capture, FormatProfile profile, IBlockSink sink, bool sparse)
     {
         using var reader = CaptureReader.Open(capture);
         var setting = CaptureDecoder.BankFor(profile, DetectorBanks.Default)[0];
         var bank = new DetectorBank([setting], reader.SampleRate);
         var fsk = profile.Fsk!;
-        var tones = new ToneBank(1, fsk.MarkHz, fsk.SpaceHz, fsk.Baud, reader.SampleRate);
+        // Sparse: the windows read every few samples (ToneCorrelator.StrideFor), the decoder counting in readings.
+        int stride = sparse ? ToneCorrelator.StrideFor(fsk.Baud, reader.SampleRate) : 1;
+        var tones = new ToneBank(1, fsk.MarkHz, fsk.SpaceHz, fsk.Baud, reader.SampleRate, stride);
         var samples = new float[4096];
         var energies = new ToneEnergies(1, samples.Length);
         var edges = new[] { new EdgeBuffer() };
-        var decoder = new FskDecoder(profile, setting.Edges == EdgeSelection.Both, reader.SampleRate, sink);
+        var decoder = new FskDecoder(profile, setting.Edges == EdgeSelection.Both, reader.SampleRate, sink, stride);
         long start = 0;
         int read;
         while ((read = reader.Read(samples)) > 0)
@@ -71,7 +74,7 @@ public sealed class BlockSinkTests : IClassFixture<OutsideTempFolder>
             edges[0].Clear();
             bank.Process(samples.AsSpan(0, read), edges, tones, energies);
             decoder.OnEdges(edges[0].Items);
-            decoder.OnTones(energies.Lane(0, read), start);
+            decoder.OnTones(energies.Lane(0), energies.FirstReading);
             start += read;
         }
 
