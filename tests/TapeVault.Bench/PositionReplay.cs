@@ -57,7 +57,8 @@ public static class PositionReplay
         foreach (string file in Directory.GetFiles(folder, "*.json").Order(StringComparer.Ordinal))
         {
             var saved = JsonSerializer.Deserialize<Saved>(File.ReadAllText(file), s_json)!;
-            var profile = ProfileCatalog.BuiltIn.Get(saved.Profile);
+            // The trust bench's own profiles are not built in: take every profile from the bench's list.
+            var profile = Trust.Subjects.Select(s => s.Profile).First(p => p.Id == saved.Profile);
             var written = saved.Written.Select(Convert.FromHexString).ToList();
             var unplaced = saved.Candidates.Select(c => c with { Position = -1 }).ToList();
             var placed = BlockPositioner.Place(unplaced, profile.Layout.Copies);

@@ -208,6 +208,8 @@ public sealed partial class BlockAssembler : IBlockSink
             _kinds.Read(all, truncated);
         }
 
+        // The copy read, before the sync is made the first copy's.
+        int? syncCopy = _codec.SyncCopyRead(all);
         if (_codec.SyncField is not null && !_codec.NormalizeSync(all, truncated ? -1 : all.Length - _codec.HeaderBytes - _codec.CheckBytes))
         {
             // The sync bytes are the format's mark of a block start: read wrong, they mark nothing.
@@ -254,6 +256,7 @@ public sealed partial class BlockAssembler : IBlockSink
             StartSeconds = _startSample / _sampleRate,
             EndSeconds = endSample / _sampleRate,
             Truncated = truncated,
+            SyncCopy = syncCopy,
         });
         _ordinal++;
     }

@@ -100,5 +100,13 @@ public sealed record BlockCandidate
     /// <summary>The block ended before its layout said it would (dropout or lost sync).</summary>
     public required bool Truncated { get; init; }
 
+    /// <summary>
+    /// Which copy of its block the reading began at, as the sync read tells it, where the format writes each block k
+    /// times with a sync that differs from copy to copy (0 the first copy); null where the sync says nothing (copies
+    /// alike, too few sync bytes read, or bytes of no copy). The header keeps the first copy's sync whatever was read,
+    /// so that copies agree byte for byte; this is where the copy read is kept. Null in readings stored before it was.
+    /// </summary>
+    public int? SyncCopy { get; init; }
+
     public string PayloadHex => Convert.ToHexStringLower(Payload.AsSpan());
 }

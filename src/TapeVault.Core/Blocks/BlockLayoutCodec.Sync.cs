@@ -37,6 +37,42 @@ public sealed partial class BlockLayoutCodec
         return -1;
     }
 
+    /// <summary>
+    /// Which copy a reading began at, as far as its sync bytes tell: where the copies' expected syncs differ, the one
+    /// copy whose sync agrees with every sync byte read, once at least two were read (a single byte misread in one bit
+    /// may name the other copy of a sync such as 89/09). Null without a sync field that differs from copy to copy, with
+    /// fewer than two sync bytes read, or when the bytes agree with no copy or with several.
+    /// </summary>
+    public int? SyncCopyRead(ReadOnlySpan<byte> block)
+    {
+        if (SyncField is not { Expected.Count: > 1 } sync)
+        {
+            return null;
+        }
+
+        int read = Math.Min(block.Length, sync.Bytes);
+        if (read < 2)
+        {
+            return null;
+        }
+
+        int? found = null;
+        for (int c = 0; c < sync.Expected.Count; c++)
+        {
+            if (block[..read].SequenceEqual(sync.Expected[c].AsSpan(0, read)))
+            {
+                if (found is not null)
+                {
+                    return null;
+                }
+
+                found = c;
+            }
+        }
+
+        return found;
+    }
+
     /// <summary>The expected sync bytes of copy <paramref name="copy"/> (empty without a sync field).</summary>
     public ReadOnlySpan<byte> SyncOfCopy(int copy)
     {

@@ -8,7 +8,7 @@ namespace TapeVault.Core.Blocks;
 /// misread length runs on over the blocks after it). So a failed reading belongs to the block whose sync it starts at
 /// before the one it overlaps most, and claims other readings only at its own sync.
 /// </summary>
-public static class BlockPositioner
+public static partial class BlockPositioner
 {
     /// <param name="copies">How many times the format writes each block in a row (the layout's copies).</param>
     public static List<BlockCandidate> Place(IReadOnlyList<BlockCandidate> candidates, int copies = 1)
@@ -154,6 +154,7 @@ public static class BlockPositioner
         }
 
         JoinPlacesOfOneBlock(keyed, positionOf, stray, stretchEnds.Count, copies);
+        OrderCopiesBySync(keyed, positionOf, stray, copies, copyGap);
 
         var placed = new (int Reading, int Position, double Start)[keyed.Count];
         for (int i = 0; i < keyed.Count; i++)

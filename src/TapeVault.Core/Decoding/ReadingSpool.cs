@@ -154,6 +154,8 @@ public sealed class ReadingSpool : IDisposable
         w.Write(c.StartSeconds);
         w.Write(c.EndSeconds);
         w.Write(c.Truncated);
+        w.Write(c.SyncCopy.HasValue);
+        w.Write(c.SyncCopy.GetValueOrDefault());
     }
 
     private static BlockCandidate ReadCandidate(BinaryReader r, int position)
@@ -194,7 +196,15 @@ public sealed class ReadingSpool : IDisposable
             StartSeconds = r.ReadDouble(),
             EndSeconds = r.ReadDouble(),
             Truncated = r.ReadBoolean(),
+            SyncCopy = r.ReadBoolean() ? r.ReadInt32() : DiscardInt32(r),
         };
+    }
+
+    /// <summary>Reads the value written beside an absent optional number, which stands for nothing.</summary>
+    private static int? DiscardInt32(BinaryReader r)
+    {
+        r.ReadInt32();
+        return null;
     }
 
     private static void WriteOptional(BinaryWriter w, string? value)

@@ -132,6 +132,7 @@ public sealed class ReadingSpoolTests(RoundTripFolder folder) : IClassFixture<Ro
             StartSeconds = 12.345,
             EndSeconds = 13.5,
             Truncated = true,
+            SyncCopy = 1,
         };
         foreach (var property in typeof(BlockCandidate).GetProperties())
         {
@@ -151,6 +152,7 @@ public sealed class ReadingSpoolTests(RoundTripFolder folder) : IClassFixture<Ro
             ByteErrorOdds = [],
             ByteSeconds = [],
             Truncated = false,
+            SyncCopy = null,
         };
 
         using var spool = ReadingSpool.InTemporaryFile(folder.Root);
