@@ -46,21 +46,9 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
             return base.SaveChanges(acceptAllChangesOnSuccess);
         }
 
-        // The head is read and the new events inserted under one write lock, so the chain cannot fork.
-        var own = Database.CurrentTransaction is null ? Database.BeginTransaction() : null;
-        try
-        {
-            ArchiveDatabase.LockEventsForAppend(this);
-            var head = Events.AsNoTracking().OrderByDescending(e => e.Id).Select(e => new { e.Id, e.Sha256 }).FirstOrDefault();
-            EventChain.Link(added, head?.Id ?? 0, head?.Sha256);
-            int saved = base.SaveChanges(acceptAllChangesOnSuccess);
-            own?.Commit();
-            return saved;
-        }
-        finally
-        {
-            own?.Dispose();
-        }
+        // The chain's one way in, run synchronously: every step completes before it returns.
+        var saving = EventLog.ChainAsync(this, added, synchronously: true, _ => ValueTask.FromResult(base.SaveChanges(acceptAllChangesOnSuccess)), CancellationToken.None);
+        return saving.IsCompleted ? saving.GetAwaiter().GetResult() : throw new InvalidOperationException("The event log's synchronous save did not complete synchronously.");
     }
 
     public override async Task<int> SaveChangesAsync(bool acceptAllChangesOnSuccess, CancellationToken cancellationToken = default)
@@ -71,28 +59,8 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
             return await base.SaveChangesAsync(acceptAllChangesOnSuccess, cancellationToken).ConfigureAwait(false);
         }
 
-        var own = Database.CurrentTransaction is null ? await Database.BeginTransactionAsync(cancellationToken).ConfigureAwait(false) : null;
-        try
-        {
-            await ArchiveDatabase.LockEventsForAppendAsync(this, cancellationToken).ConfigureAwait(false);
-            var head = await Events.AsNoTracking().OrderByDescending(e => e.Id).Select(e => new { e.Id, e.Sha256 })
-                .FirstOrDefaultAsync(cancellationToken).ConfigureAwait(false);
-            EventChain.Link(added, head?.Id ?? 0, head?.Sha256);
-            int saved = await base.SaveChangesAsync(acceptAllChangesOnSuccess, cancellationToken).ConfigureAwait(false);
-            if (own is not null)
-            {
-                await own.CommitAsync(cancellationToken).ConfigureAwait(false);
-            }
-
-            return saved;
-        }
-        finally
-        {
-            if (own is not null)
-            {
-                await own.DisposeAsync().ConfigureAwait(false);
-            }
-        }
+        return await EventLog.ChainAsync(this, added, synchronously: false,
+            async token => await base.SaveChangesAsync(acceptAllChangesOnSuccess, token).ConfigureAwait(false), cancellationToken).ConfigureAwait(false);
     }
 
     protected override void ConfigureConventions(ModelConfigurationBuilder configurationBuilder)

@@ -67,6 +67,91 @@ public sealed class EventChainTests
         }
     }
 
+    /// <summary>
+    /// Events reach the log three ways: the context's save (asynchronous and synchronous) and the bulk append of the
+    /// fixity audit. All three go through one chaining step, and the bulk append writes the columns itself: the same
+    /// event saved each way must be stored column for column alike (the time cut to the column's step, a lone
+    /// surrogate made U+FFFD, no item as NULL), each linked to the one before, and the chain must verify. This checks
+    /// the paths against each other; the canonical form itself is checked against Python and GNU sha256sum above.
+    /// </summary>
+    [Fact]
+    public async Task EventSavedByTheContextAndAppendedInBulkIsStoredAndChainedAlike()
+    {
+        await using var archive = await ArchiveFixture.CreateAsync();
+        var when = new DateTimeOffset(2026, 12, 4, 1, 2, 3, TimeSpan.FromHours(2)).AddTicks(4_567);
+        foreach (int? item in new int?[] { archive.ItemId, null })
+        {
+            await using var db = archive.NewContext();
+            ArchiveEvent Make() => new()
+            {
+                EventType = "test-event",
+                OccurredUtc = when,
+                Agent = "curator \"ü\"",
+                ObjectType = "object",
+                ObjectId = "abc",
+                ItemId = item,
+                Outcome = "ok",
+                Detail = "lone \uD800 surrogate, tab\t, bell\u0007, ✓",
+            };
+
+            var saved = Make();
+            db.Events.Add(saved);
+            await db.SaveChangesAsync();
+            var savedSync = Make();
+            db.Events.Add(savedSync);
+            db.SaveChanges();
+            var appended = Make();
+            await TapeVault.Archive.Events.EventLog.AppendAsync(db, [appended]);
+
+            Assert.Equal(saved.Id + 1, savedSync.Id);
+            Assert.Equal(savedSync.Id + 1, appended.Id);
+            Assert.Equal(saved.Sha256, savedSync.PreviousSha256);
+            Assert.Equal(savedSync.Sha256, appended.PreviousSha256);
+
+            var rows = new List<Dictionary<string, object?>>();
+            foreach (long id in new[] { saved.Id, savedSync.Id, appended.Id })
+            {
+                rows.Add(await RawRowAsync(db, id));
+            }
+
+            foreach (var column in rows[0].Keys.Where(c => c is not ("Id" or "Sha256" or "PreviousSha256")))
+            {
+                Assert.Equal(rows[0][column], rows[1][column]);
+                Assert.Equal(rows[0][column], rows[2][column]);
+            }
+
+            // What was hashed is what is stored: each event read back hashes to its own Sha256 after its predecessor.
+            var back = await db.Events.AsNoTracking().Where(e => e.Id >= saved.Id && e.Id <= appended.Id).OrderBy(e => e.Id).ToListAsync();
+            Assert.Equal(3, back.Count);
+            Assert.All(back, e => Assert.Equal(e.Sha256, EventChain.HashOf(e, e.PreviousSha256!)));
+            // The column keeps 1000-tick steps (docs/event-chain.md, "Two rules").
+            Assert.Equal(new DateTimeOffset(when.UtcTicks - (when.UtcTicks % 1000), TimeSpan.Zero), back[0].OccurredUtc);
+            Assert.Equal("lone \uFFFD surrogate, tab\t, bell\u0007, ✓", back[0].Detail);
+            Assert.Equal(item, back[2].ItemId);
+        }
+
+        await using var check = archive.NewContext();
+        var report = await EventChain.VerifyAsync(check);
+        Assert.True(report.Intact, report.FirstBreak?.Reason);
+    }
+
+    private static async Task<Dictionary<string, object?>> RawRowAsync(ArchiveDbContext db, long id)
+    {
+        await db.Database.OpenConnectionAsync();
+        var connection = db.Database.GetDbConnection();
+        await using var command = connection.CreateCommand();
+        command.CommandText = $"SELECT * FROM \"Events\" WHERE \"Id\" = {id.ToString(CultureInfo.InvariantCulture)}";
+        await using var reader = await command.ExecuteReaderAsync();
+        Assert.True(await reader.ReadAsync());
+        var row = new Dictionary<string, object?>(StringComparer.Ordinal);
+        for (int i = 0; i < reader.FieldCount; i++)
+        {
+            row[reader.GetName(i)] = reader.IsDBNull(i) ? null : reader.GetValue(i);
+        }
+
+        return row;
+    }
+
     // The PostgreSQL schema began with the chain, so no PostgreSQL database has unsealed events; its triggers are
     // checked by PostgreSqlArchiveTests.The_event_log_on_PostgreSql_refuses_update_delete_truncate_and_unchained_rows.
     [SqliteOnlyFact("seals the events of an SQLite database made by a release before the event chain")]

@@ -603,41 +603,61 @@ public static partial class Scale
         var files = Directory.EnumerateFiles(objects, "*", SearchOption.AllDirectories).ToList();
         long bytes = files.Sum(f => new FileInfo(f).Length);
 
-        // GNU sha256sum over the same files: once to warm the page cache for both, then timed.
+        // GNU sha256sum over the same files: once to warm the page cache for both, then timed: its wall-clock time, and
+        // its processor time (user + system, from the shell's `times`) beside it, since the machine is shared.
+        var cpus = new List<double>();
         double Sha256sum()
         {
             var list = Path.Combine(root, "objects.list");
             File.WriteAllLines(list, files);
-            var start = new ProcessStartInfo("sh", ["-c", $"xargs -a '{list}' -d '\\n' sha256sum > /dev/null"]) { UseShellExecute = false };
+            var start = new ProcessStartInfo("sh", ["-c", $"xargs -a '{list}' -d '\\n' sha256sum > /dev/null; times"]) { UseShellExecute = false, RedirectStandardOutput = true };
             var clock = Stopwatch.StartNew();
             using var process = Process.Start(start)!;
+            string times = process.StandardOutput.ReadToEnd();
             process.WaitForExit();
             if (process.ExitCode != 0)
             {
                 throw new InvalidOperationException("sha256sum failed.");
             }
 
+            // `times` prints the shell's user and system time, then its children's: "0m1.234s 0m0.567s".
+            var children = ShellTimes().Matches(times).Skip(2).Select(m => (60 * double.Parse(m.Groups[1].Value, CultureInfo.InvariantCulture)) + double.Parse(m.Groups[2].Value, CultureInfo.InvariantCulture)).ToList();
+            cpus.Add(children.Sum());
             return clock.Elapsed.TotalSeconds;
         }
 
+        static double Cpu() => Process.GetCurrentProcess().TotalProcessorTime.TotalSeconds;
         Sha256sum();
+        cpus.Clear();
         double outside = Sha256sum();
         await using var services = Services(root);
 
         // The audit as `tapevault verify` runs it (the whole event chain walked), then as the scheduled audit runs it
         // (the chain walked from the checkpoint the one before recorded), each with sha256sum run again after it.
-        async Task<(double Seconds, FixityReport Report)> AuditAsync(ChainWalk walk)
+        async Task<(double Seconds, double Cpu, FixityReport Report)> AuditAsync(ChainWalk walk)
         {
             await using var scope = services.CreateAsyncScope();
             var audit = scope.ServiceProvider.GetRequiredService<FixityAudit>();
+            double cpu = Cpu();
             var clock = Stopwatch.StartNew();
             var report = await audit.RunAsync(null, Agent, walk);
-            return (clock.Elapsed.TotalSeconds, report);
+            return (clock.Elapsed.TotalSeconds, Cpu() - cpu, report);
         }
 
-        var (whole, wholeReport) = await AuditAsync(ChainWalk.Whole);
+        // The walk along the whole chain alone (EventChain.VerifyAsync, as the audit calls it, on a context of its own).
+        double walkCpu = Cpu();
+        var walkClock = Stopwatch.StartNew();
+        ChainReport walked;
+        await using (var walkScope = services.CreateAsyncScope())
+        {
+            walked = await EventChain.VerifyAsync(walkScope.ServiceProvider.GetRequiredService<ArchiveDbContext>());
+        }
+
+        double walkSeconds = walkClock.Elapsed.TotalSeconds;
+        walkCpu = Cpu() - walkCpu;
+        var (whole, wholeCpu, wholeReport) = await AuditAsync(ChainWalk.Whole);
         double outside2 = Sha256sum();
-        var (due, dueReport) = await AuditAsync(ChainWalk.WhenDue);
+        var (due, dueCpu, dueReport) = await AuditAsync(ChainWalk.WhenDue);
         double outside3 = Sha256sum();
 
         // The audit's own hashing of the same files alone (ContentStore.HashStoredAsync on every core, as the audit
@@ -645,20 +665,30 @@ public static partial class Scale
         await using var hashScope = services.CreateAsyncScope();
         var store = hashScope.ServiceProvider.GetRequiredService<TapeVault.Archive.Storage.ContentStore>();
         var names = files.Select(Path.GetFileName).ToList();
+        double hashCpu = Cpu();
         var hashClock = Stopwatch.StartNew();
         await Parallel.ForEachAsync(names, new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount }, async (name, token) => await store.HashStoredAsync(name!, token));
         double hashing = hashClock.Elapsed.TotalSeconds;
+        hashCpu = Cpu() - hashCpu;
         double outside4 = Sha256sum();
         double[] references = [outside, outside2, outside3, outside4];
         double reference = references.Min();
-        string Audit(string name, double seconds, FixityReport report) =>
+        double cpuReference = cpus.Min();
+        string Audit(string name, double seconds, double cpu, FixityReport report) =>
             $"{name}: {seconds:0.00} s ({bytes / 1e6 / seconds:0} MB/s, {files.Count / seconds:0} files/s; {report.Good}/{report.Checked} good, {report.Problems.Count} problem(s); "
-            + $"{report.Chain.Events} events walked{(report.Chain.From is { } from ? $" after the checkpoint, {from.EventId}" : " (whole chain)")}); ratio to sha256sum {seconds / reference:0.00} (to its slowest run {seconds / references.Max():0.00})";
-        Console.WriteLine($"fixity over {files.Count} files, {bytes / 1e6:0} MB; GNU sha256sum {string.Join(", ", references.Select(r => r.ToString("0.00", CultureInfo.InvariantCulture)))} s ({bytes / 1e6 / reference:0} MB/s at best)");
-        Console.WriteLine("  " + Audit("audit walking the whole chain (verify)", whole, wholeReport));
-        Console.WriteLine("  " + Audit("audit walking from the last checkpoint (scheduled)", due, dueReport));
-        Console.WriteLine($"  its hashing alone {hashing:0.00} s, ratio to sha256sum {hashing / reference:0.00}");
+            + $"{report.Chain.Events} events walked{(report.Chain.From is { } from ? $" after the checkpoint, {from.EventId}" : " (whole chain)")}); ratio to sha256sum {seconds / reference:0.00} (to its slowest run {seconds / references.Max():0.00}); "
+            + $"processor time {cpu:0.00} s, ratio {cpu / cpuReference:0.00}";
+        Console.WriteLine($"fixity over {files.Count} files, {bytes / 1e6:0} MB; GNU sha256sum {string.Join(", ", references.Select(r => r.ToString("0.00", CultureInfo.InvariantCulture)))} s ({bytes / 1e6 / reference:0} MB/s at best), "
+            + $"processor time {string.Join(", ", cpus.Select(r => r.ToString("0.00", CultureInfo.InvariantCulture)))} s; load {MachineLoad.Averages()}");
+        Console.WriteLine("  " + Audit("audit walking the whole chain (verify)", whole, wholeCpu, wholeReport));
+        Console.WriteLine("  " + Audit("audit walking from the last checkpoint (scheduled)", due, dueCpu, dueReport));
+        Console.WriteLine($"  its hashing alone {hashing:0.00} s, ratio to sha256sum {hashing / reference:0.00}; processor time {hashCpu:0.00} s");
+        Console.WriteLine($"  the walk along the whole chain alone (EventChain.VerifyAsync, before the audits): {walked.Events} events in {walkSeconds:0.00} s, processor time {walkCpu:0.00} s ({(walked.Intact ? "intact" : "broken")})");
     }
+
+    /// <summary>One time as the shell's <c>times</c> prints it: "1m2.345s".</summary>
+    [System.Text.RegularExpressions.GeneratedRegex(@"(\d+)m([0-9.]+)s")]
+    private static partial System.Text.RegularExpressions.Regex ShellTimes();
 
     [System.Text.RegularExpressions.GeneratedRegex(@"timeline;desc=""([^""]*)"";dur=([0-9.]+)")]
     private static partial System.Text.RegularExpressions.Regex ServerTimingDuration();

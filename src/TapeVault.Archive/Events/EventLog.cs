@@ -67,11 +67,11 @@ public static class EventLog
     }
 
     /// <summary>
-    /// Appends many events at once (a fixity audit's one per stored object) and commits them, chained exactly as
-    /// <see cref="ArchiveDbContext.SaveChangesAsync(bool, CancellationToken)"/> chains them: under the write lock, after
-    /// the head read then, each linked to the one before. They are inserted with one parameterised statement (one
-    /// batch where the provider takes batches) instead of EF Core's change tracking, which costs about a millisecond
-    /// an event on SQLite under load. The columns and their conversions are the model's own.
+    /// Appends many events at once (a fixity audit's one per stored object) and commits them, chained by the same code
+    /// as <see cref="ArchiveDbContext.SaveChangesAsync(bool, CancellationToken)"/> chains them (<see cref="ChainAsync"/>):
+    /// under the write lock, after the head read then, each linked to the one before. They are inserted with one
+    /// parameterised statement (one batch where the provider takes batches) instead of EF Core's change tracking, which
+    /// costs about a millisecond an event on SQLite under load. The columns and their conversions are the model's own.
     /// </summary>
     public static async Task AppendAsync(ArchiveDbContext db, IReadOnlyList<ArchiveEvent> events, CancellationToken cancellation = default)
     {
@@ -90,13 +90,8 @@ public static class EventLog
         string text = $"INSERT INTO {sql.DelimitIdentifier(table.Name, table.Schema)} ({string.Join(", ", properties.Select(p => sql.DelimitIdentifier(p.GetColumnName(table)!)))}) "
             + $"VALUES ({string.Join(", ", properties.Select((_, i) => $"@p{i}"))})";
 
-        var own = db.Database.CurrentTransaction is null ? await db.Database.BeginTransactionAsync(cancellation).ConfigureAwait(false) : null;
-        try
+        await ChainAsync(db, events, synchronously: false, async token =>
         {
-            await ArchiveDatabase.LockEventsForAppendAsync(db, cancellation).ConfigureAwait(false);
-            var head = await db.Events.AsNoTracking().OrderByDescending(e => e.Id).Select(e => new { e.Id, e.Sha256 })
-                .FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
-            EventChain.Link(events, head?.Id ?? 0, head?.Sha256);
             var connection = db.Database.GetDbConnection();
             var transaction = db.Database.CurrentTransaction!.GetDbTransaction();
             void Fill(DbParameterCollection parameters, Func<DbParameter> make, ArchiveEvent e)
@@ -122,37 +117,90 @@ public static class EventLog
                 batch.Transaction = transaction;
                 foreach (var e in events)
                 {
-                    var command = batch.CreateBatchCommand();
-                    command.CommandText = text;
-                    Fill(command.Parameters, command.CreateParameter, e);
-                    batch.BatchCommands.Add(command);
+                    var one = batch.CreateBatchCommand();
+                    one.CommandText = text;
+                    Fill(one.Parameters, one.CreateParameter, e);
+                    batch.BatchCommands.Add(one);
                 }
 
-                await batch.ExecuteNonQueryAsync(cancellation).ConfigureAwait(false);
+                return await batch.ExecuteNonQueryAsync(token).ConfigureAwait(false);
+            }
+
+            await using var command = connection.CreateCommand();
+            command.Transaction = transaction;
+            command.CommandText = text;
+            int inserted = 0;
+            foreach (var e in events)
+            {
+                command.Parameters.Clear();
+                Fill(command.Parameters, command.CreateParameter, e);
+                inserted += await command.ExecuteNonQueryAsync(token).ConfigureAwait(false);
+            }
+
+            return inserted;
+        }, cancellation).ConfigureAwait(false);
+    }
+
+    /// <summary>
+    /// The one way events join the chain, for the context's saves and for <see cref="AppendAsync"/> alike: inside a
+    /// transaction (the caller's, or one of its own committed at the end) it takes the write lock on the log, reads
+    /// the head, links <paramref name="added"/> after it in order (<see cref="EventChain.Link"/>), and calls
+    /// <paramref name="insert"/> to write them. Run <paramref name="synchronously"/> (for
+    /// <see cref="ArchiveDbContext.SaveChanges(bool)"/>, whose insert is synchronous too), every step completes before
+    /// it returns.
+    /// </summary>
+    internal static async ValueTask<T> ChainAsync<T>(
+        ArchiveDbContext db,
+        IReadOnlyList<ArchiveEvent> added,
+        bool synchronously,
+        Func<CancellationToken, ValueTask<T>> insert,
+        CancellationToken cancellation)
+    {
+        var own = db.Database.CurrentTransaction is not null ? null
+            : synchronously ? db.Database.BeginTransaction()
+            : await db.Database.BeginTransactionAsync(cancellation).ConfigureAwait(false);
+        try
+        {
+            // The head is read and the new events inserted under one write lock, so the chain cannot fork.
+            var newest = db.Events.AsNoTracking().OrderByDescending(e => e.Id).Select(e => new { e.Id, e.Sha256 });
+            if (synchronously)
+            {
+                ArchiveDatabase.LockEventsForAppend(db);
             }
             else
             {
-                await using var command = connection.CreateCommand();
-                command.Transaction = transaction;
-                command.CommandText = text;
-                foreach (var e in events)
+                await ArchiveDatabase.LockEventsForAppendAsync(db, cancellation).ConfigureAwait(false);
+            }
+
+            var head = synchronously ? newest.FirstOrDefault() : await newest.FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
+            EventChain.Link(added, head?.Id ?? 0, head?.Sha256);
+            var result = await insert(cancellation).ConfigureAwait(false);
+            if (own is not null)
+            {
+                if (synchronously)
                 {
-                    command.Parameters.Clear();
-                    Fill(command.Parameters, command.CreateParameter, e);
-                    await command.ExecuteNonQueryAsync(cancellation).ConfigureAwait(false);
+                    own.Commit();
+                }
+                else
+                {
+                    await own.CommitAsync(cancellation).ConfigureAwait(false);
                 }
             }
 
-            if (own is not null)
-            {
-                await own.CommitAsync(cancellation).ConfigureAwait(false);
-            }
+            return result;
         }
         finally
         {
             if (own is not null)
             {
-                await own.DisposeAsync().ConfigureAwait(false);
+                if (synchronously)
+                {
+                    own.Dispose();
+                }
+                else
+                {
+                    await own.DisposeAsync().ConfigureAwait(false);
+                }
             }
         }
     }
