@@ -68,7 +68,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         // measures from the other edge than the format's reads a pair of unequal classes as in-between lengths,
         // which wide groups still hold but loosely, and which make tight groups of their own). The best by each is
         // drafted, then the next; the first reading a check value proves wins, else the first reading.
-        var fits = new List<(DetectorSetting Setting, List<IntervalCluster> Clusters, int[] Symbols, double Grouped, double Close)>();
+        var fits = new List<(DetectorSetting Setting, List<IntervalCluster> Clusters, double[] Cycles, int[] Symbols, double Grouped, double Close)>();
         foreach (var setting in DetectorBanks.Default.Where(s => s.Edges != EdgeSelection.Both))
         {
             var cycles = IntervalClusters.Intervals(stretch.Edges(setting, cancellation), stretch.SampleRate);
@@ -86,7 +86,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             }
 
             double grouped = (double)symbols.Count(x => x >= 0) / Math.Max(1, symbols.Length);
-            fits.Add((setting, clusters, symbols, grouped, ((double)close / Math.Max(1, symbols.Length)) - (ClassCost * clusters.Count)));
+            fits.Add((setting, clusters, cycles, symbols, grouped, ((double)close / Math.Max(1, symbols.Length)) - (ClassCost * clusters.Count)));
         }
 
         var order = new List<int>();
@@ -105,7 +105,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         foreach (int i in order.Take(3))
         {
             var lengths = Uncrowded(fits[i].Clusters, fits.Select(f => f.Clusters));
-            var proposal = DraftThrough(fits[i].Setting, fits[i].Clusters, lengths, fits[i].Symbols, fits[i].Grouped, cancellation);
+            var proposal = DraftThrough(fits[i].Setting, fits[i].Clusters, lengths, fits[i].Cycles, fits[i].Symbols, fits[i].Grouped, cancellation);
             if (proposal is not null && proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed))
             {
                 return proposal;
@@ -174,7 +174,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         return [.. found.Select((c, i) => c with { Seconds = best[i] })];
     }
 
-    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> classesFound, List<IntervalCluster> lengths, int[] sym, double grouped, CancellationToken cancellation)
+    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> classesFound, List<IntervalCluster> lengths, double[] cycles, int[] sym, double grouped, CancellationToken cancellation)
     {
         // The lead-in: the class of the long runs.
         var longRuns = Runs(sym).Where(r => r.Class >= 0 && r.Length >= LeastLeadInCycles).ToList();
@@ -230,7 +230,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         // Bits as pairs of pulses with a marker before every byte: a structure of its own, read by PulsePairs.
         if (!gapped && PulsePairs.Read(blocks, classesFound.Count, leadIn, cancellation) is { } pairs)
         {
-            return ProposePairs(pairs, setting, grouped, classesFound, leadIn, leadRuns, blocks.Count);
+            return ProposePairs(pairs, setting, grouped, classesFound, LeadInLength(cycles, leadRuns), leadIn, leadRuns, blocks.Count);
         }
 
         // The bit classes: the two commonest inside blocks.
@@ -281,9 +281,11 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         int shortestLeadIn = leadRuns.Min(r => r.Length);
         int minimum = Math.Clamp((int)(0.25 * shortestLeadIn), 8, MostLeadIn);
         var sync = reading.Sync.Select(s => names[s]).ToList();
+        var read = kept.Select(i => lengths[i].Seconds).ToList();
+        var written = LeadInAnchored(read, kept.IndexOf(leadIn), LeadInLength(cycles, leadRuns));
         proposal.Sections["pulseWidth"] = new JsonObject
         {
-            ["classes"] = new JsonArray([.. kept.Select(i => (JsonNode)new JsonObject { ["name"] = names[i], ["microseconds"] = Math.Round(lengths[i].Seconds * 1e6, 1) })]),
+            ["classes"] = new JsonArray([.. kept.Select((i, at) => (JsonNode)new JsonObject { ["name"] = names[i], ["microseconds"] = Math.Round(written[at] * 1e6, 1) })]),
             ["zero"] = new JsonArray(JsonValue.Create(names[reading.Mapping.ZeroSymbol])),
             ["one"] = new JsonArray(JsonValue.Create(names[reading.Mapping.OneSymbol])),
             ["leadIn"] = new JsonObject { ["class"] = names[leadIn], ["minimumCount"] = minimum },
@@ -298,10 +300,11 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
                 $"{gaps.Count} runs of {shortestGap}–{gaps.Max(r => r.Length)} {names[leadIn]} cycles, too short for a lead-in, come before blocks: blocks that follow one another without a lead-in");
         }
 
-        proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select(i => $"{names[i]} {Us(lengths[i].Seconds)} µs")), 0.9,
+        proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select((i, at) => $"{names[i]} {Us(written[at])} µs")), 0.9,
             $"groups of cycle lengths through setting {setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * grouped, "0.0")} % of cycles fall in one; lengths as the tape plays (a tape off speed moves them all alike)"
             + (dropped.Count == 0 ? string.Empty : $"; left out, as no bit, lead-in or sync uses them: {string.Join(", ", dropped.Select(c => $"{Us(c.Seconds)} µs"))}")
-            + (lengths.SequenceEqual(classesFound) ? string.Empty : $"; lengths from the setting that reads the bit classes farthest apart (neighbouring pulses crowd one another: {string.Join(", ", kept.Select(i => $"{Us(classesFound[i].Seconds)} → {Us(lengths[i].Seconds)} µs"))})"));
+            + (lengths.SequenceEqual(classesFound) ? string.Empty : $"; lengths from the setting that reads the bit classes farthest apart (neighbouring pulses crowd one another: {string.Join(", ", kept.Select(i => $"{Us(classesFound[i].Seconds)} → {Us(lengths[i].Seconds)} µs"))})")
+            + Anchoring(read, written));
         proposal.Measured("pulseWidth.leadIn.class", names[leadIn], 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(r => r.Length)} {names[leadIn]} cycles");
         proposal.Measured("pulseWidth.leadIn.minimumCount", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortestLeadIn} cycles)");
         string bitEvidence = proven ? "the check value holds with this mapping" : $"{names[bitClasses[0]]} and {names[bitClasses[1]]} are the commonest classes inside blocks; which is 0 is not proven (drafted: {reading.Mapping.Name})";
@@ -395,7 +398,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
     }
 
     /// <summary>The sections and findings of a reading of pulse pairs with byte markers (<see cref="PulsePairs"/>).</summary>
-    private static FamilyProposal ProposePairs(PairReading r, DetectorSetting setting, double grouped, List<IntervalCluster> classesFound, int leadIn, List<(int Class, int Start, int Length)> leadRuns, int blockCount)
+    private static FamilyProposal ProposePairs(PairReading r, DetectorSetting setting, double grouped, List<IntervalCluster> classesFound, double leadInSeconds, int leadIn, List<(int Class, int Start, int Length)> leadRuns, int blockCount)
     {
         var used = new SortedSet<int> { leadIn, r.Marker, r.MarkerSecond, r.Zero.First, r.Zero.Second, r.One.First, r.One.Second };
         if (r.EndSecond is { } e)
@@ -406,6 +409,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         var kept = used.ToList();
         var keptNames = kept.Count < ClassNames.Length ? ClassNames[kept.Count] : [.. Enumerable.Range(1, kept.Count).Select(i => $"class-{i}")];
         string Name(int c) => keptNames[kept.IndexOf(c)];
+        var written = LeadInAnchored([.. kept.Select(i => classesFound[i].Seconds)], kept.IndexOf(leadIn), leadInSeconds);
         JsonArray Sequence(params int[] classes) => new([.. classes.Select(c => (JsonNode)JsonValue.Create(Name(c))!)]);
 
         // The layout the kinds search found, so that the check's proof is weighed as for any other reading.
@@ -420,7 +424,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
 
         proposal.Sections["pulseWidth"] = new JsonObject
         {
-            ["classes"] = new JsonArray([.. kept.Select(i => (JsonNode)new JsonObject { ["name"] = Name(i), ["microseconds"] = Math.Round(classesFound[i].Seconds * 1e6, 1) })]),
+            ["classes"] = new JsonArray([.. kept.Select((i, at) => (JsonNode)new JsonObject { ["name"] = Name(i), ["microseconds"] = Math.Round(written[at] * 1e6, 1) })]),
             ["zero"] = Sequence(r.Zero.First, r.Zero.Second),
             ["one"] = Sequence(r.One.First, r.One.Second),
             ["leadIn"] = new JsonObject { ["class"] = Name(leadIn), ["minimumCount"] = minimum },
@@ -509,8 +513,9 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         };
 
         string held = $"holds after the sync on {k.BlocksHolding} of {k.BlocksTried} blocks read";
-        proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select(i => $"{Name(i)} {Us(classesFound[i].Seconds)} µs")), 0.9,
-            $"groups of cycle lengths through setting {setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * grouped, "0.0")} % of cycles fall in one; lengths as the tape plays");
+        proposal.Measured("pulseWidth.classes", string.Join(", ", kept.Select((i, at) => $"{Name(i)} {Us(written[at])} µs")), 0.9,
+            $"groups of cycle lengths through setting {setting.Name}: {string.Join(", ", classesFound.Select(c => $"{Us(c.Seconds)} µs ({F(100 * c.Share, "0.0")} %)"))}; {F(100 * grouped, "0.0")} % of cycles fall in one; lengths as the tape plays"
+            + Anchoring([.. kept.Select(i => classesFound[i].Seconds)], written));
         proposal.Measured("pulseWidth.leadIn.class", Name(leadIn), 0.9, $"{leadRuns.Count} runs of {shortestLeadIn}–{leadRuns.Max(x => x.Length)} {Name(leadIn)} cycles");
         proposal.Measured("pulseWidth.leadIn.minimumCount", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortestLeadIn} cycles)");
         proposal.Measured("pulseWidth.markers.beforeByte", $"{Name(r.Marker)} {Name(r.MarkerSecond)}", 0.9,
@@ -542,6 +547,80 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         proposal.Notes.Add($"Read through detector setting {setting.Name}: {blockCount} blocks after lead-ins, bits as pairs of pulses with a marker before every byte.");
         return proposal;
     }
+
+    /// <summary>
+    /// The lead-in class's length as its lead-ins play it: the geometric mean of the lead-in runs' cycles, the first
+    /// and last few of each (whose neighbours are of other classes) left out. A lead-in's cycles are all alike, so no
+    /// neighbour crowds them (see <see cref="Uncrowded"/>); the same class inside blocks reads longer or shorter.
+    /// </summary>
+    internal static double LeadInLength(double[] cycles, IReadOnlyList<(int Class, int Start, int Length)> leadRuns)
+    {
+        ArgumentNullException.ThrowIfNull(cycles);
+        ArgumentNullException.ThrowIfNull(leadRuns);
+        double logSum = 0;
+        long count = 0;
+        foreach (var run in leadRuns)
+        {
+            for (int i = run.Start + LeadInEdgeCycles; i < run.Start + run.Length - LeadInEdgeCycles; i++)
+            {
+                logSum += Math.Log(cycles[i]);
+                count++;
+            }
+        }
+
+        return count == 0 ? double.NaN : Math.Exp(logSum / count);
+    }
+
+    /// <summary>Cycles at each end of a lead-in run left out of its length.</summary>
+    private const int LeadInEdgeCycles = 4;
+
+    /// <summary>
+    /// Class lengths for the read path, which sets its speed from the lead-in (its cycles over the lead-in class's
+    /// length) and puts the boundary between neighbouring classes at their geometric mean (<c>PulseClassifier</c>).
+    /// Lengths taken from the blocks' cycles, where pulse crowding moves a class, set the speed from a lead-in class
+    /// length the lead-in does not play, and so move every boundary away from where the blocks' cycles put it (three
+    /// classes read 306, 413 and 599 µs, the lead-in 291 µs: every boundary 5 % low, and the shorter data cycles read
+    /// as the next class). So the lead-in class gets its lead-in's length, and each other class, outwards from it, the
+    /// length that keeps its boundary with the class before it where the blocks' groups put it (b² = cᵢ·cᵢ₊₁). Where
+    /// that would put two classes under 25 % apart (the profile language's rule) the lengths stay as read.
+    /// </summary>
+    internal static double[] LeadInAnchored(IReadOnlyList<double> read, int leadIn, double leadInSeconds)
+    {
+        ArgumentNullException.ThrowIfNull(read);
+        var result = read.ToArray();
+        if (leadIn < 0 || leadIn >= read.Count || !double.IsFinite(leadInSeconds) || leadInSeconds <= 0)
+        {
+            return result;
+        }
+
+        result[leadIn] = leadInSeconds;
+        for (int i = leadIn + 1; i < read.Count; i++)
+        {
+            result[i] = read[i - 1] * read[i] / result[i - 1];
+        }
+
+        for (int i = leadIn - 1; i >= 0; i--)
+        {
+            result[i] = read[i] * read[i + 1] / result[i + 1];
+        }
+
+        for (int i = 1; i < result.Length; i++)
+        {
+            if (result[i] < result[i - 1] * LeastClassRatio)
+            {
+                return [.. read];
+            }
+        }
+
+        return result;
+    }
+
+    /// <summary>The profile language's least ratio of neighbouring classes, with room for rounding to 0.1 µs.</summary>
+    private const double LeastClassRatio = 1.252;
+
+    private static string Anchoring(IReadOnlyList<double> read, IReadOnlyList<double> written) =>
+        read.SequenceEqual(written) ? string.Empty
+        : $"; the lead-in class as its lead-ins play it, the others keeping their boundaries with it where the blocks' cycles put them: {string.Join(", ", read.Select((r, i) => $"{Us(r)} → {Us(written[i])} µs"))}";
 
     /// <summary>Neighbouring classes closer than the profile language allows (25 %) are one class: the larger keeps its place.</summary>
     private static List<IntervalCluster> Separate(List<IntervalCluster> clusters)
