@@ -166,19 +166,12 @@ public sealed class FskDrafter : IFamilyDrafter
         // The mark is the tone of the idle line: told by decoding both ways, with eight data bits and one stop bit
         // (and, where those do not hold, with a parity bit of either kind, whose place the stop bit would take); each
         // baud is tried so in turn, likeliest first, until one frames cleanly, and the one that reads most is kept.
-        // The bit time the tones' runs make is measured, not guessed: it is kept unless its characters fail more
-        // often than a damaged capture's would (15 %, as for the framings below).
         var tried = new List<(double Baud, TrialResult High, TrialResult Low)>();
         foreach (double candidate in bauds)
         {
             var t = (Baud: candidate, High: Selection(survey.Stretch, highHz, lowHz, candidate, cancellation), Low: Selection(survey.Stretch, lowHz, highHz, candidate, cancellation));
             tried.Add(t);
             if (t.High.Clean || t.Low.Clean)
-            {
-                break;
-            }
-
-            if (fromRuns && tried.Count == 1 && new[] { t.High, t.Low }.Any(x => x.Characters >= 50 && x.ErrorShare <= 0.15))
             {
                 break;
             }
