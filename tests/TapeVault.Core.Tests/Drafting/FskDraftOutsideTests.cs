@@ -79,7 +79,7 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
         {
             bits.Append('1', Baud / 2);
             ushort crc = CrcXmodem(block);
-            foreach (byte c in block.Append((byte)(crc >> 8)).Append((byte)crc))
+            foreach (byte c in block.Append((byte)(crc >> 8)).Append(unchecked((byte)crc)))
             {
                 bits.Append('0');
                 int ones = 0;
