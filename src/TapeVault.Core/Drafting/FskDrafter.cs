@@ -35,12 +35,14 @@ public sealed class FskDrafter : IFamilyDrafter
     public const double UnprovenToneShare = 0.25;
 
     /// <summary>
-    /// The two tones (the groups of their half cycles) and the bauds they may run at. Where both tones' runs step by
-    /// whole cycles that make one bit time, that bit time alone (measured from runs). Else, where the spectrum shows
-    /// both tones, every bit time the runs leave possible: a filtered or noisy tone's half cycles fall in and out of
-    /// their group (a low-passed lower tone of one cycle a bit reads in runs of 1), so each tone whose runs step by two
-    /// or more gives the even counts next to its step, and one cycle of the lower tone a bit is always a candidate;
-    /// trial decodes choose among them.
+    /// The two tones (the groups of their half cycles) and the bauds they may run at, likeliest first. Where both
+    /// tones' runs step by whole cycles that make one bit time, that bit time first (measured from runs). Else, where
+    /// the spectrum shows two of the main groups as tones, every bit time the runs leave possible: a filtered or noisy
+    /// tone's half cycles fall in and out of their group (a low-passed lower tone of one cycle a bit reads in runs of
+    /// 1), so each tone whose runs step by two or more gives the even counts next to its step, and one cycle of the
+    /// lower tone a bit is always a candidate. Either way the lower tone's whole cycles a bit (<see cref="LowerToneCycles"/>)
+    /// follow, since half cycles between the tones (a change of tone read through a filter) break the runs and
+    /// mislead their step; trial decodes choose among them.
     /// </summary>
     private static (int Low, int High, IReadOnlyList<double> Bauds, bool FromRuns)? Tones(StretchSurvey survey)
     {
@@ -54,13 +56,6 @@ public sealed class FskDrafter : IFamilyDrafter
         int b = Math.Max(top[0], top[1]);
         var ra = survey.Runs[a];
         var rb = survey.Runs[b];
-        double highHz = 0.5 / survey.Clusters[a].Seconds;
-        double lowHz = 0.5 / survey.Clusters[b].Seconds;
-
-        // One cycle a bit is the least a tone can hold: measured just above the lower tone, the baud is that tone.
-        // Nor may it pass the tones' distance (a profile needs them a baud apart): tones of one and two cycles a bit
-        // measure a little under 2 : 1 now and then, and a baud a hair too high would make every trial profile void.
-        double Fit(double baud) => Math.Min(baud, Math.Min(lowHz, highHz - lowHz));
 
         // A tone holds whole cycles a bit, so its runs step by an even count of half cycles: of the even counts next to
         // each measured step, the pair that makes the two bit times agree best.
@@ -72,31 +67,69 @@ public sealed class FskDrafter : IFamilyDrafter
                 .MinBy(p => Math.Abs(Math.Log(p.A / p.B)));
             if (bitA > 0 && Math.Abs(Math.Log(bitA / bitB)) <= 0.12)
             {
-                return (b, a, [Fit(1 / Math.Sqrt(bitA * bitB))], true);
+                return (b, a, Bauds(survey, a, b, [1 / Math.Sqrt(bitA * bitB)]), true);
             }
         }
 
         // Two tones FSK uses lie between 1.15 : 1 and 3.5 : 1 apart (common practice), and both show in the spectrum.
-        double ratio = highHz / lowHz;
-        if (ratio is < 1.15 or > 3.5 || survey.Stretch.Spectrum() is var spectrum && (!SpectrumShows(spectrum, lowHz) || !SpectrumShows(spectrum, highHz)))
+        // The two largest groups first; but a head amplifier's capture or a filter may put a group of half cycles that
+        // is no tone (between the tones, or above them) before the lower tone's, so the pairs of the main groups are
+        // tried, the pair holding most intervals first.
+        var spectrum = survey.Stretch.Spectrum();
+        var main = survey.Dominant.Take(MostToneGroups).Where(g => survey.Clusters[g].Share >= 0.05).ToList();
+        var pairs = main.SelectMany(x => main.Where(y => y > x).Select(y => (High: x, Low: y)))
+            .OrderByDescending(p => survey.Clusters[p.High].Share + survey.Clusters[p.Low].Share);
+        foreach (var (high, low) in pairs)
         {
-            return null;
-        }
-
-        var bauds = new List<double> { Fit(lowHz) };
-        foreach (int g in new[] { a, b })
-        {
-            foreach (int cycles in Even(survey.Runs[g].Granularity))
+            double ratio = survey.Clusters[low].Seconds / survey.Clusters[high].Seconds;
+            if (ratio is >= 1.15 and <= 3.5 && SpectrumShows(spectrum, 0.5 / survey.Clusters[low].Seconds) && SpectrumShows(spectrum, 0.5 / survey.Clusters[high].Seconds))
             {
-                double baud = Fit(1 / (cycles * survey.Clusters[g].Seconds));
-                if (bauds.All(x => Math.Abs(Math.Log(x / baud)) > 0.05))
+                var fromSteps = new List<double> { 0.5 / survey.Clusters[low].Seconds };
+                foreach (int g in new[] { high, low })
                 {
-                    bauds.Add(baud);
+                    fromSteps.AddRange(Even(survey.Runs[g].Granularity).Select(cycles => 1 / (cycles * survey.Clusters[g].Seconds)));
                 }
+
+                return (low, high, Bauds(survey, high, low, fromSteps), false);
             }
         }
 
-        return (b, a, bauds, false);
+        return null;
+    }
+
+    /// <summary>The most groups of half cycles (the largest) whose pairs are tried as the two tones.</summary>
+    public const int MostToneGroups = 4;
+
+    /// <summary>
+    /// The whole cycles of the lower tone a bit that are tried after the bauds the runs give: serial tape formats of
+    /// the period put 1 to 4 cycles of the lower tone in a bit (common practice; the Kansas City Standard 4 at 300 baud
+    /// and 1 at its 1200-baud variant, BYTE, February 1976).
+    /// </summary>
+    public static IReadOnlyList<int> LowerToneCycles { get; } = [1, 2, 3, 4];
+
+    /// <summary>
+    /// The bauds <paramref name="first"/> gives, then those of <see cref="LowerToneCycles"/>, each kept within what the
+    /// tones allow and once (within 5 %).
+    /// </summary>
+    private static List<double> Bauds(StretchSurvey survey, int high, int low, IEnumerable<double> first)
+    {
+        double highHz = 0.5 / survey.Clusters[high].Seconds;
+        double lowHz = 0.5 / survey.Clusters[low].Seconds;
+
+        // One cycle a bit is the least a tone can hold: measured just above the lower tone, the baud is that tone.
+        // Nor may it pass the tones' distance (a profile needs them a baud apart): tones of one and two cycles a bit
+        // measure a little under 2 : 1 now and then, and a baud a hair too high would make every trial profile void.
+        double Fit(double baud) => Math.Min(baud, Math.Min(lowHz, highHz - lowHz));
+        var bauds = new List<double>();
+        foreach (double baud in first.Concat(LowerToneCycles.Select(c => lowHz / c)).Select(Fit))
+        {
+            if (bauds.All(x => Math.Abs(Math.Log(x / baud)) > 0.05))
+            {
+                bauds.Add(baud);
+            }
+        }
+
+        return bauds;
     }
 
     /// <summary>Whether the spectrum has a peak of at least a tenth of the strongest (−10 dB) within 8 % of a frequency.</summary>
@@ -130,11 +163,21 @@ public sealed class FskDrafter : IFamilyDrafter
         double highHz = 0.5 / survey.Clusters[high].Seconds;
         double lowHz = 0.5 / survey.Clusters[low].Seconds;
 
-        // The mark is the tone of the idle line: told by decoding both ways (8 data bits, no parity, one stop bit);
-        // where the runs left the baud open, each baud is tried so too, and the one that reads most is kept.
-        var (baud, asHigh, asLow) = bauds
-            .Select(x => (Baud: x, High: Trial(survey.Stretch, highHz, lowHz, x, 0.05, 8, Parity.None, "1", cancellation), Low: Trial(survey.Stretch, lowHz, highHz, x, 0.05, 8, Parity.None, "1", cancellation)))
-            .MaxBy(t => Math.Max(t.High.Score, t.Low.Score));
+        // The mark is the tone of the idle line: told by decoding both ways, with eight data bits and one stop bit
+        // (and, where those do not hold, with a parity bit of either kind, whose place the stop bit would take); each
+        // baud is tried so in turn, likeliest first, until one frames cleanly, and the one that reads most is kept.
+        var tried = new List<(double Baud, TrialResult High, TrialResult Low)>();
+        foreach (double candidate in bauds)
+        {
+            var t = (Baud: candidate, High: Selection(survey.Stretch, highHz, lowHz, candidate, cancellation), Low: Selection(survey.Stretch, lowHz, highHz, candidate, cancellation));
+            tried.Add(t);
+            if (t.High.Clean || t.Low.Clean)
+            {
+                break;
+            }
+        }
+
+        var (baud, asHigh, asLow) = tried.MaxBy(t => Math.Max(t.High.Score, t.Low.Score));
         bool highIsMark = asHigh.Score >= asLow.Score;
         int markGroup = highIsMark ? high : low;
         double markHz = highIsMark ? highHz : lowHz;
@@ -259,14 +302,14 @@ public sealed class FskDrafter : IFamilyDrafter
         string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays";
         proposal.Measured("fsk.markHz", F(markHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
         proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, toneEvidence);
-        if (fromRuns)
+        if (fromRuns && baud == bauds[0])
         {
             proposal.Measured("fsk.baud", F(baud, "0.00"), 0.9, $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower");
         }
         else
         {
             proposal.Measured("fsk.baud", F(baud, "0.00"), layout.HasChecksum ? 0.85 : 0.6,
-                $"the tones' runs make no one bit time (runs of {survey.Runs[high].Granularity} and {survey.Runs[low].Granularity} half cycles); of the bauds {string.Join(", ", bauds.Select(x => F(x, "0")))} the trial decodes read most characters at this one" + (layout.HasChecksum ? ", and a check value holds on the blocks read at it" : string.Empty));
+                $"the tones' runs make no one bit time that frames (runs of {survey.Runs[high].Granularity} and {survey.Runs[low].Granularity} half cycles); of the bauds {string.Join(", ", tried.Select(t => F(t.Baud, "0")))} the trial decodes read most characters at this one" + (layout.HasChecksum ? ", and a check value holds on the blocks read at it" : string.Empty));
         }
 
         if (leader is null)
@@ -304,6 +347,33 @@ public sealed class FskDrafter : IFamilyDrafter
     private sealed record TrialResult(List<BlockCandidate> Blocks, int Characters, double ErrorShare)
     {
         public double Score => Characters * (1 - (4 * ErrorShare));
+
+        /// <summary>Framed cleanly: no more than 2 % framing errors over 50 characters or more.</summary>
+        public bool Clean => Characters >= 50 && ErrorShare <= 0.02;
+    }
+
+    /// <summary>
+    /// The trial that reads most at one baud and mark: eight data bits and a stop bit, then, unless that frames
+    /// cleanly, eight data bits with even and with odd parity (a parity bit sits where the stop bit of the first would).
+    /// </summary>
+    private static TrialResult Selection(CaptureStretch stretch, double markHz, double spaceHz, double baud, CancellationToken cancellation)
+    {
+        var best = Trial(stretch, markHz, spaceHz, baud, 0.05, 8, Parity.None, "1", cancellation);
+        if (best.Clean)
+        {
+            return best;
+        }
+
+        foreach (var parity in new[] { Parity.Even, Parity.Odd })
+        {
+            var trial = Trial(stretch, markHz, spaceHz, baud, 0.05, 8, parity, "1", cancellation);
+            if (trial.Score > best.Score)
+            {
+                best = trial;
+            }
+        }
+
+        return best;
     }
 
     private static TrialResult Trial(CaptureStretch stretch, double markHz, double spaceHz, double baud, double leadIn, int data, Parity parity, string stop, CancellationToken cancellation)

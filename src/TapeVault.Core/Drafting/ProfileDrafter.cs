@@ -106,9 +106,13 @@ public static class ProfileDrafter
                 + (refusals.Count == 0 ? string.Empty : " " + string.Join(" ", refusals)));
         }
 
-        // The draft whose check reads most (the bytes of the different blocks whose check holds, times the share of
-        // checked blocks that hold), then (no draft proven) the family that fits the intervals best, as before.
-        var chosen = drafts.OrderByDescending(d => d.Reading).ThenBy(d => d.Rank).First();
+        // A draft proven beyond chance (a check of 16 bits or more, its bit order told, holding on three different
+        // blocks) first: another family's misreading of the same signal (biphase cells over FSK tones) finds hundreds
+        // of short blocks, some of which hold a one-byte check in both bit orders and outweigh it in bytes. Then the
+        // draft whose check reads most (the bytes of the different blocks whose check holds, times the share of
+        // checked blocks that hold), then (no draft proven) the family that fits the intervals best through the
+        // survey it was drafted from (a family the first survey blurs and the next one shows is scored by that one).
+        var chosen = drafts.OrderByDescending(d => d.Proven && d.Proposal.StronglyProven).ThenByDescending(d => d.Reading).ThenByDescending(d => d.Score.Score).ThenBy(d => d.Rank).First();
         var rivals = drafts.Where(d => d != chosen).ToList();
         string weighed = string.Join("; ", drafts.Select(d => $"{d.Drafter.Family}: {d.Check.Positions} block(s), the check holds on {d.Check.Clean}, {d.Check.CleanBytes} different bytes"));
         double familyConfidence;

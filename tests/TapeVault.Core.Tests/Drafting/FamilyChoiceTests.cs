@@ -48,6 +48,39 @@ public sealed class FamilyChoiceTests(OutsideTempFolder folder, ITestOutputHelpe
         Assert.True(result.RecoveredByBoth >= 0.9 * result.RecoveredByTruth, $"the confirmed draft read {result.RecoveredByBoth} of the truth's {result.RecoveredByTruth} blocks");
     }
 
+    /// <summary>
+    /// Tuning seed 10005: fsk at 812 baud, tones of two and four cycles a bit, a line-output capture 5 % fast. Half
+    /// cycles between the tones (a change of tone through the deck) break the tones' runs, which then step by 5 and 3
+    /// half cycles: read as one cycle of the lower tone a bit, no framing held, and the draft was an unproven
+    /// pulse-width reading. The lower tone's cycles a bit are now tried until one frames cleanly.
+    /// </summary>
+    [Fact]
+    public void Tones_whose_runs_mislead_the_baud_are_drafted_at_the_baud_that_frames()
+    {
+        var result = DraftTrials.Run("fsk", 10005, folder.Root);
+        Report(result);
+
+        Assert.True(result.RecoveredByTruth >= 5, $"the truth read {result.RecoveredByTruth}");
+        Assert.Equal("fsk", result.DraftedFamily);
+        Assert.True(result.RecoveredByBoth >= 0.9 * result.RecoveredByTruth, $"the confirmed draft read {result.RecoveredByBoth} of the truth's {result.RecoveredByTruth} blocks");
+    }
+
+    /// <summary>
+    /// Tuning seed 10007: fsk at 855 baud, a head-amplifier capture with hum, 48 kHz. The second largest group of half
+    /// cycles (near 2.9 kHz) is no tone, and the lower tone's group was never paired with the mark's: FSK scored 0 and
+    /// the draft was an unproven pulse-width reading. The pairs of the main groups that the spectrum shows are now tried.
+    /// </summary>
+    [Fact]
+    public void A_tone_pair_behind_a_group_that_is_no_tone_is_drafted_as_fsk()
+    {
+        var result = DraftTrials.Run("fsk", 10007, folder.Root);
+        Report(result);
+
+        Assert.True(result.RecoveredByTruth >= 10, $"the truth read {result.RecoveredByTruth}");
+        Assert.Equal("fsk", result.DraftedFamily);
+        Assert.True(result.RecoveredByBoth >= 0.9 * result.RecoveredByTruth, $"the confirmed draft read {result.RecoveredByBoth} of the truth's {result.RecoveredByTruth} blocks");
+    }
+
     private void Report(DraftTrialResult result) =>
         output.WriteLine($"{result.Family} seed {result.Seed}: drafted {result.DraftedFamily}, {result.RecoveredByBoth} of the truth's {result.RecoveredByTruth} ({result.Written} written); guessed {string.Join(", ", result.Guessed)}; {result.Damage}; {result.Failure}");
 }

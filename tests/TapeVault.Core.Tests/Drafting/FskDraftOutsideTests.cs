@@ -1,0 +1,138 @@
+using System.Globalization;
+using System.Text;
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Decoding;
+using TapeVault.Core.Drafting;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Tests.OutsideChecks;
+using Xunit;
+using Xunit.Abstractions;
+
+namespace TapeVault.Core.Tests.Drafting;
+
+/// <summary>
+/// A draft of FSK blocks whose tones minimodem wrote (a general-purpose software FSK modem that shares no code with
+/// TapeVault), played through a SoX low-pass (sox(1), a general-purpose audio tool) as a dull deck would: the draft
+/// must propose FSK with the tones, baud and framing minimodem was told to use, and read back every block written.
+/// The characters are framed here (a start bit 0, eight data bits least significant first, odd parity, a stop bit 1)
+/// and each block ends in a CRC-16/XMODEM worked out here and held against the CRC catalogue's check value; nothing
+/// of TapeVault's writes them.
+/// </summary>
+public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHelper output) : IClassFixture<OutsideTempFolder>
+{
+    private const int Baud = 300;
+
+    /// <summary>
+    /// Before: the biphase drafter read the low-passed tones as hundreds of short blocks, a one-byte XOR holding on a
+    /// third of them in both bit orders, and that reading outweighed the FSK draft whose CRC held on every block.
+    /// </summary>
+    [Fact]
+    public void Low_passed_minimodem_blocks_are_drafted_as_fsk_and_read_back()
+    {
+        // CRC catalogue (reveng), CRC-16/XMODEM: check value 0x31C3 over the ASCII string "123456789".
+        Assert.Equal(0x31C3, CrcXmodem(Encoding.ASCII.GetBytes("123456789")));
+
+        var random = new Random(7);
+        var blocks = new List<byte[]>();
+        for (int n = 0; n < 12; n++)
+        {
+            var block = new byte[2 + 100];
+            block[0] = (byte)n;
+            block[1] = 100;
+            random.NextBytes(block.AsSpan(2));
+            blocks.Add(block);
+        }
+
+        string tones = folder.File("fsk-300-odd.minimodem.wav");
+        MinimodemWrite(blocks, tones);
+        string capture = folder.File("fsk-300-odd.lowpass.wav");
+        OutsideTool.Sox(tones, capture, "lowpass", "1700");
+
+        var draft = ProfileDrafter.Draft(capture);
+        output.WriteLine(draft.Json);
+        output.WriteLine(draft.SideListJson());
+        var profile = draft.Load();
+
+        Assert.Equal(FormatFamily.Fsk, profile.Family);
+
+        // Outside reference: minimodem's arguments (--tx 300 --mark 2400 --space 1200).
+        Assert.InRange(profile.Fsk!.MarkHz, 2400 * 0.98, 2400 * 1.02);
+        Assert.InRange(profile.Fsk.SpaceHz, 1200 * 0.98, 1200 * 1.02);
+        Assert.InRange(profile.Fsk.Baud, Baud * 0.98, Baud * 1.02);
+        Assert.Equal(8, profile.Framing.DataBits);
+        Assert.Equal(Parity.Odd, profile.Framing.Parity);
+
+        using var result = CaptureDecoder.Decode(capture, profile);
+        var read = result.Candidates.Where(c => c.Status == BlockStatus.Clean).Select(c => Convert.ToHexString([.. c.Header, .. c.Payload])).ToHashSet(StringComparer.Ordinal);
+        int found = blocks.Count(b => read.Contains(Convert.ToHexString(b)));
+        Assert.True(found == blocks.Count, $"{found} of {blocks.Count} blocks read back clean");
+    }
+
+    /// <summary>
+    /// minimodem writes the recording as tones from raw bits (no start or stop bits of its own, eight bits a byte least
+    /// significant first): half a second of mark before each block and after the last, each character framed 8O1.
+    /// </summary>
+    private static void MinimodemWrite(List<byte[]> blocks, string path)
+    {
+        var bits = new StringBuilder();
+        foreach (var block in blocks)
+        {
+            bits.Append('1', Baud / 2);
+            ushort crc = CrcXmodem(block);
+            foreach (byte c in block.Append((byte)(crc >> 8)).Append(unchecked((byte)crc)))
+            {
+                bits.Append('0');
+                int ones = 0;
+                for (int i = 0; i < 8; i++)
+                {
+                    int bit = (c >> i) & 1;
+                    ones += bit;
+                    bits.Append(bit == 1 ? '1' : '0');
+                }
+
+                // Odd parity: the parity bit makes the count of ones odd.
+                bits.Append(ones % 2 == 0 ? '1' : '0');
+                bits.Append('1');
+            }
+        }
+
+        bits.Append('1', Baud / 2);
+        while (bits.Length % 8 != 0)
+        {
+            bits.Append('1');
+        }
+
+        var packed = new byte[bits.Length / 8];
+        for (int i = 0; i < bits.Length; i++)
+        {
+            if (bits[i] == '1')
+            {
+                packed[i / 8] |= (byte)(1 << (i % 8));
+            }
+        }
+
+        OutsideTool.Run(
+            OutsideTool.MinimodemPath,
+            ["--tx", Baud.ToString(CultureInfo.InvariantCulture), "--mark", "2400", "--space", "1200", "--startbits", "0", "--stopbits", "0",
+             "--volume", "0.5", "-R", "44100", "-f", path],
+            packed);
+        Assert.Equal(44_100, OutsideTool.SoxSampleRate(path));
+    }
+
+    /// <summary>CRC-16/XMODEM bit by bit (polynomial 0x1021, initial value 0, no reflection, no final XOR: the CRC catalogue's parameters).</summary>
+    private static ushort CrcXmodem(IEnumerable<byte> bytes)
+    {
+        int crc = 0;
+        foreach (byte b in bytes)
+        {
+            crc ^= b << 8;
+            for (int i = 0; i < 8; i++)
+            {
+                crc = (crc & 0x8000) != 0 ? (crc << 1) ^ 0x1021 : crc << 1;
+                crc &= 0xFFFF;
+            }
+        }
+
+        return (ushort)crc;
+    }
+}
