@@ -335,10 +335,7 @@ internal sealed class BlockMerge
             .GroupBy(r => Convert.ToHexString(r.Candidate.Header.AsSpan()) + ":" + r.Candidate.PayloadHex)
             .Select(g =>
             {
-                var witnesses = g.GroupBy(r => _passes[r.Pass].Capture.CaptureSha256)
-                    .Select(w => w.MaxBy(r => r.Candidate.Confidence))
-                    .OrderByDescending(r => r.Candidate.Confidence)
-                    .ToList();
+                var witnesses = CaptureWitnesses(g);
                 return (Witnesses: witnesses, Chance: AnyRight(witnesses.Select(w => w.Candidate.Confidence)));
             })
             .OrderByDescending(c => c.Witnesses.Count)
@@ -367,6 +364,13 @@ internal sealed class BlockMerge
             ConflictingPayloads = conflicts,
         };
     }
+
+    /// <summary>Each capture's most confident reading among <paramref name="readings"/> (of one content), most confident first.</summary>
+    private List<(BlockCandidate Candidate, int Pass)> CaptureWitnesses(IEnumerable<(BlockCandidate Candidate, int Pass)> readings) =>
+        readings.GroupBy(r => _passes[r.Pass].Capture.CaptureSha256)
+            .Select(w => w.MaxBy(r => r.Candidate.Confidence))
+            .OrderByDescending(r => r.Candidate.Confidence)
+            .ToList();
 
     /// <summary>
     /// No valid reading: the payload length most complete readings agree on, a bit vote over the readings of that
@@ -431,6 +435,18 @@ internal sealed class BlockMerge
             return IsEvidence(used) ? Missing(fallbackIdentity, sources) : null;
         }
 
+        var status = outcome.Trials == 1 ? RecoveryStatus.Voted : RecoveryStatus.Repaired;
+        if (BlockLayoutCodec.For(Layout).CoveredAllAlike(outcome.Bytes, payloadLength))
+        {
+            // The check holds over bytes all alike for free (the scorer's AllAlikeCheck: a run of zeros from a lead-in
+            // of zeros is block 0, length 0 and a zero CRC-16/XMODEM), so the search's odds, which count on the check,
+            // say nothing. The bytes are only as likely as the readings of them say, each capture a witness.
+            var alike = used.Where(r => !r.Candidate.Truncated && FullBytes(r.Candidate, complete: true).AsSpan().SequenceEqual(outcome.Bytes)).ToList();
+            return alike.Count == 0 || AnyRight(CaptureWitnesses(alike).Select(w => w.Candidate.Confidence)).Right < MinimumRepairConfidence
+                ? Missing(fallbackIdentity, sources)
+                : ResolveClean(alike, status);
+        }
+
         // A pattern that holds is still more likely a false match than the block: keeping it would be filling in.
         if (outcome.Confidence < MinimumRepairConfidence)
         {
@@ -440,7 +456,6 @@ internal sealed class BlockMerge
         var header = outcome.Bytes.AsSpan(0, Layout.HeaderBytes).ToArray();
         var payload = outcome.Bytes.AsSpan(Layout.HeaderBytes, payloadLength).ToArray();
         var identity = BlockAssembler.ReadIdentity(Layout, header, fallbackIdentity.Ordinal);
-        var status = outcome.Trials == 1 ? RecoveryStatus.Voted : RecoveryStatus.Repaired;
         return Block([.. header], [.. payload], status, outcome.Confidence, sources, 0, identity);
 
         // The check value holds and the length field agrees (BlockLayoutCodec.CheckHolds).
