@@ -440,11 +440,13 @@ internal sealed class BlockMerge
         {
             // The check holds over bytes all alike for free (the scorer's AllAlikeCheck: a run of zeros from a lead-in
             // of zeros is block 0, length 0 and a zero CRC-16/XMODEM), so the search's odds, which count on the check,
-            // say nothing. The bytes are only as likely as the readings of them say, each capture a witness.
+            // say nothing. The bytes are only as likely as the readings of them say, each capture a witness, and never
+            // likelier than the vote itself.
             var alike = used.Where(r => !r.Candidate.Truncated && FullBytes(r.Candidate, complete: true).AsSpan().SequenceEqual(outcome.Bytes)).ToList();
-            return alike.Count == 0 || AnyRight(CaptureWitnesses(alike).Select(w => w.Candidate.Confidence)).Right < MinimumRepairConfidence
+            double chance = alike.Count == 0 ? 0 : Math.Min(outcome.Confidence, AnyRight(CaptureWitnesses(alike).Select(w => w.Candidate.Confidence)).Right);
+            return chance < MinimumRepairConfidence
                 ? Missing(fallbackIdentity, sources)
-                : ResolveClean(alike, status);
+                : ResolveClean(alike, status) with { Confidence = chance };
         }
 
         // A pattern that holds is still more likely a false match than the block: keeping it would be filling in.
