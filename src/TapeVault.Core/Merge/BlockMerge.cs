@@ -130,6 +130,13 @@ internal sealed class BlockMerge
         }
 
         public double Overlap(Entry e) => Math.Min(End, e.End) - Math.Max(Start, e.Start);
+
+        /// <summary>
+        /// Whether the entry shares most of the group's stretch of tape, as readings of one block in different passes
+        /// do: more than a quarter of the shorter stretch (the gap to the next block can be shorter than the slack that
+        /// same bytes are allowed, and a short block's stretch shorter than that gap).
+        /// </summary>
+        public bool Shares(Entry e) => Overlap(e) > 0.25 * Math.Min(e.End - e.Start, End - Start);
     }
 
     /// <summary>
@@ -152,11 +159,16 @@ internal sealed class BlockMerge
                 // The position's stretch of tape is what its clean readings and those that agree with its identity
                 // prove: a reading with another header (a stray one that joined the stretch it follows, a misread that
                 // ran on) would stretch it over the next block and draw other passes' readings of that block in.
+                // Nor does a failed reading that starts after every clean reading of the position has ended: a block's
+                // readings start at its sync, so it is a reading of tape further on (the next block, where headers
+                // that carry only a block number give every file's block the same identity), which the pass's
+                // positioner put here.
                 var span = ProvenSpan.Empty;
                 string agreed = trusted?.Identity.Key ?? key;
+                double cleanEnd = readings.Where(c => c.Status == BlockStatus.Clean).Select(c => c.EndSeconds).DefaultIfEmpty(double.PositiveInfinity).Max();
                 foreach (var c in readings)
                 {
-                    if (c.Status == BlockStatus.Clean || c.Identity.Key == agreed)
+                    if (c.Status == BlockStatus.Clean || (c.Identity.Key == agreed && c.StartSeconds < cleanEnd))
                     {
                         span = span.With(c);
                     }
@@ -178,8 +190,7 @@ internal sealed class BlockMerge
             // same position only with the same bytes (the copies of a block written twice, which one pass may have
             // placed apart): headers that carry only a block number repeat it in the next file, with other bytes.
             var match = groups.LastOrDefault(g => g.TrustedKey == entry.TrustedKey);
-            double reach = Math.Max(1.0, 1.5 * (entry.End - entry.Start));
-            if (match is not null && match.Overlap(entry) <= -OverlapSlack && (entry.Start > match.End + reach || !match.Contents.Contains(entry.TrustedContent!)))
+            if (match is not null && !SamePosition(match, entry))
             {
                 match = null;
             }
@@ -210,13 +221,12 @@ internal sealed class BlockMerge
             {
                 // Readings of one block in different passes share most of its stretch of tape; the gap to the next
                 // block can be shorter than the slack that identities are allowed.
-                double overlap = g.Overlap(entry);
-                if (overlap <= 0.25 * Math.Min(entry.End - entry.Start, g.End - g.Start))
+                if (!g.Shares(entry))
                 {
                     continue;
                 }
 
-                double score = overlap + (g.Entries[0].Key == entry.Key ? 10 : 0);
+                double score = g.Overlap(entry) + (g.Entries[0].Key == entry.Key ? 10 : 0);
                 if (score > bestScore)
                 {
                     best = g;
@@ -247,6 +257,24 @@ internal sealed class BlockMerge
         // Tape order by the median start of a group's entries: one entry that spans two blocks (a pass whose
         // readings ran together) must not pull its group ahead of the block before it.
         return [.. groups.OrderBy(g => Median(g.Entries.Select(e => e.Start)))];
+    }
+
+    /// <summary>
+    /// Whether a trusted entry is the position of a group with its identity. With the same bytes: over the same stretch
+    /// of tape give or take <see cref="OverlapSlack"/>, or a little apart (the copies of a block written twice, which one
+    /// pass may have placed apart). With other bytes, only over a shared stretch: the two cannot both be right, and
+    /// headers that carry only a block number repeat it in every file, so the next file's block (a block gap later,
+    /// which the slack can reach) is another position, not a conflicting reading of this one.
+    /// </summary>
+    private static bool SamePosition(Group group, Entry entry)
+    {
+        if (!group.Contents.Contains(entry.TrustedContent!))
+        {
+            return group.Shares(entry);
+        }
+
+        double reach = Math.Max(1.0, 1.5 * (entry.End - entry.Start));
+        return group.Overlap(entry) > -OverlapSlack || entry.Start <= group.End + reach;
     }
 
     /// <summary>An identity key with neither file name nor file id (a block of a later kind read without its header).</summary>
@@ -307,10 +335,7 @@ internal sealed class BlockMerge
             .GroupBy(r => Convert.ToHexString(r.Candidate.Header.AsSpan()) + ":" + r.Candidate.PayloadHex)
             .Select(g =>
             {
-                var witnesses = g.GroupBy(r => _passes[r.Pass].Capture.CaptureSha256)
-                    .Select(w => w.MaxBy(r => r.Candidate.Confidence))
-                    .OrderByDescending(r => r.Candidate.Confidence)
-                    .ToList();
+                var witnesses = CaptureWitnesses(g);
                 return (Witnesses: witnesses, Chance: AnyRight(witnesses.Select(w => w.Candidate.Confidence)));
             })
             .OrderByDescending(c => c.Witnesses.Count)
@@ -339,6 +364,13 @@ internal sealed class BlockMerge
             ConflictingPayloads = conflicts,
         };
     }
+
+    /// <summary>Each capture's most confident reading among <paramref name="readings"/> (of one content), most confident first.</summary>
+    private List<(BlockCandidate Candidate, int Pass)> CaptureWitnesses(IEnumerable<(BlockCandidate Candidate, int Pass)> readings) =>
+        readings.GroupBy(r => _passes[r.Pass].Capture.CaptureSha256)
+            .Select(w => w.MaxBy(r => r.Candidate.Confidence))
+            .OrderByDescending(r => r.Candidate.Confidence)
+            .ToList();
 
     /// <summary>
     /// No valid reading: the payload length most complete readings agree on, a bit vote over the readings of that
@@ -403,6 +435,20 @@ internal sealed class BlockMerge
             return IsEvidence(used) ? Missing(fallbackIdentity, sources) : null;
         }
 
+        var status = outcome.Trials == 1 ? RecoveryStatus.Voted : RecoveryStatus.Repaired;
+        if (BlockLayoutCodec.For(Layout).CoveredAllAlike(outcome.Bytes, payloadLength))
+        {
+            // The check holds over bytes all alike for free (the scorer's AllAlikeCheck: a run of zeros from a lead-in
+            // of zeros is block 0, length 0 and a zero CRC-16/XMODEM), so the search's odds, which count on the check,
+            // say nothing. The bytes are only as likely as the readings of them say, each capture a witness, and never
+            // likelier than the vote itself.
+            var alike = used.Where(r => !r.Candidate.Truncated && FullBytes(r.Candidate, complete: true).AsSpan().SequenceEqual(outcome.Bytes)).ToList();
+            double chance = alike.Count == 0 ? 0 : Math.Min(outcome.Confidence, AnyRight(CaptureWitnesses(alike).Select(w => w.Candidate.Confidence)).Right);
+            return chance < MinimumRepairConfidence
+                ? Missing(fallbackIdentity, sources)
+                : ResolveClean(alike, status) with { Confidence = chance };
+        }
+
         // A pattern that holds is still more likely a false match than the block: keeping it would be filling in.
         if (outcome.Confidence < MinimumRepairConfidence)
         {
@@ -412,7 +458,6 @@ internal sealed class BlockMerge
         var header = outcome.Bytes.AsSpan(0, Layout.HeaderBytes).ToArray();
         var payload = outcome.Bytes.AsSpan(Layout.HeaderBytes, payloadLength).ToArray();
         var identity = BlockAssembler.ReadIdentity(Layout, header, fallbackIdentity.Ordinal);
-        var status = outcome.Trials == 1 ? RecoveryStatus.Voted : RecoveryStatus.Repaired;
         return Block([.. header], [.. payload], status, outcome.Confidence, sources, 0, identity);
 
         // The check value holds and the length field agrees (BlockLayoutCodec.CheckHolds).

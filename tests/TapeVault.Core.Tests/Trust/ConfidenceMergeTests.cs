@@ -51,6 +51,32 @@ public sealed class ConfidenceMergeTests
     }
 
     [Fact]
+    public void A_vote_over_bytes_all_alike_is_only_as_sure_as_the_readings_of_them()
+    {
+        // Block 0, length 0, check 0x0000: CRC-16/XMODEM (the CRC catalogue's parameters: init 0x0000, no final xor) of
+        // zero bytes is zero, so a run of zeros (this format's lead-in is zeros) passes for that block whatever the
+        // check's strength. The scorer leaves such a reading unproven (AllAlikeCheck) at the rate its group was right.
+        // A vote over that one reading proves nothing more; before, the repair search counted the CRC's 1-in-65 536
+        // false-match odds and voted the position at 0.995 (bench: 2 such positions of 9 read by one capture were wrong).
+        var crc = ProfileCatalog.BuiltIn.Get("biphase-1200");
+        var zeros = new byte[crc.Layout.HeaderBytes + 2];
+        var phantom = Readings.Of(crc, zeros, 2.0, 1) with
+        {
+            Status = BlockStatus.Failed,
+            Doubts = BlockDoubts.AllAlikeCheck,
+            Confidence = 0.8,
+            HeaderErrorOdds = [1e-4f, 1e-4f, 1e-4f],
+            ChecksumErrorOdds = [1e-4f, 1e-4f],
+        };
+
+        var merged = TapeMerger.Merge([ThreeBlocks(crc, 0, phantom)], crc).Blocks[1];
+
+        Assert.Equal(RecoveryStatus.Voted, merged.Status);
+        Assert.Empty(merged.Payload);
+        Assert.Equal(0.8, merged.Confidence, 9);
+    }
+
+    [Fact]
     public void A_byte_identical_image_of_clean_agreed_positions_is_trusted_whole()
     {
         // Two captures of one tape (a little hiss, of different seeds), each band-limited by SoX (the outside reference: "lowpass 3000 highpass 200"),
