@@ -320,15 +320,8 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
         var options = new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount, CancellationToken = cancellation };
         await Parallel.ForAsync(first, end, options, async (k, token) =>
         {
-            var path = store.PathOf(objects[k].Sha256);
-            if (!File.Exists(path))
-            {
-                found[k] = new FileFacts(false, null, 0);
-                return;
-            }
-
-            string? actual = await store.HashStoredAsync(objects[k].Sha256, token).ConfigureAwait(false);
-            found[k] = actual is null ? new FileFacts(false, null, 0) : new FileFacts(true, actual, new FileInfo(path).Length);
+            var facts = await store.MeasureStoredAsync(objects[k].Sha256, token).ConfigureAwait(false);
+            found[k] = facts is null ? new FileFacts(false, null, 0) : new FileFacts(true, facts.Sha256, facts.Length);
         }).ConfigureAwait(false);
     }
 
@@ -420,8 +413,9 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
                 continue;
             }
 
-            string actual = await store.HashStoredAsync(name, cancellation).ConfigureAwait(false) ?? "(gone)";
-            long size = File.Exists(store.PathOf(name)) ? new FileInfo(store.PathOf(name)).Length : 0;
+            var facts = await store.MeasureStoredAsync(name, cancellation).ConfigureAwait(false);
+            string actual = facts?.Sha256 ?? "(gone)";
+            long size = facts?.Length ?? 0;
             string detail = $"The file {store.RelativePath(name)} ({size} bytes, SHA-256 {actual}{(actual == name ? ", as its name says" : ", not what its name says")}) is in the store, but no object row names it; it was left where it is.";
             if (uses is null)
             {
