@@ -97,19 +97,7 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
         }
 
         bits.Append('1', Baud / 2);
-        while (bits.Length % 8 != 0)
-        {
-            bits.Append('1');
-        }
-
-        var packed = new byte[bits.Length / 8];
-        for (int i = 0; i < bits.Length; i++)
-        {
-            if (bits[i] == '1')
-            {
-                packed[i / 8] |= (byte)(1 << (i % 8));
-            }
-        }
+        var packed = OutsideTool.MinimodemRawBits(bits);
 
         OutsideTool.Run(
             OutsideTool.MinimodemPath,

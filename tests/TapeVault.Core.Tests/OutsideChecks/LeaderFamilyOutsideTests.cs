@@ -215,19 +215,7 @@ public sealed class LeaderFamilyOutsideTests(LeaderFamilySources sources) : ICla
         }
 
         bits.Append('1', 120);
-        while (bits.Length % 8 != 0)
-        {
-            bits.Append('1');
-        }
-
-        var packed = new byte[bits.Length / 8];
-        for (int i = 0; i < bits.Length; i++)
-        {
-            if (bits[i] == '1')
-            {
-                packed[i / 8] |= (byte)(1 << (i % 8));
-            }
-        }
+        var packed = OutsideTool.MinimodemRawBits(bits);
 
         Assert.Equal(1200.0, profile.Fsk!.Baud);
         string path = sources.Temp.File($"{name}.wav");
