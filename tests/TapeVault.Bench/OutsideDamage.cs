@@ -107,16 +107,78 @@ public static class OutsideDamage
     /// before each (a lead-in of <paramref name="leadInSeconds"/>, then the profile's block gap) and after the last,
     /// as a tape writer would; minimodem's own phase restarts at each block. For a stream the "blocks" are the files.
     /// </summary>
-    /// <summary>Whether minimodem can write the profile's characters (one start bit 0, eight data bits LSB first, no parity).</summary>
-    public static bool MinimodemWrites(FormatProfile profile) =>
-        profile.Fsk is not null && profile.Framing.StartBits == "0" && profile.Framing.DataBits == 8 && profile.Framing.BitOrder == BitOrder.LsbFirst && profile.Framing.Parity == Parity.None;
+    /// <summary>
+    /// Whether minimodem writes the profile's captures: any FSK profile of one copy a block. Characters of one start bit
+    /// 0, eight data bits LSB first and no parity, after a lead-in of mark tone, are minimodem's own framing; any other
+    /// framing, or a lead-in of repeated characters, minimodem writes from raw bits (<see cref="FramedBits"/>).
+    /// </summary>
+    public static bool MinimodemWrites(FormatProfile profile) => profile.Fsk is not null && profile.Layout.Copies == 1;
+
+    /// <summary>Whether minimodem's own framing (start bit 0, eight data bits LSB first, no parity) is the profile's.</summary>
+    private static bool MinimodemFrames(FormatProfile profile) =>
+        profile.Framing.StartBits == "0" && profile.Framing.DataBits == 8 && profile.Framing.BitOrder == BitOrder.LsbFirst && profile.Framing.Parity == Parity.None
+        && profile.Fsk?.LeadInCharacters is null;
+
+    /// <summary>
+    /// Characters of a lead-in of repeated characters that minimodem writes before each block: twice the count a reader
+    /// needs, as a tape writer that pads its leader would (a value of the bench's own, not a format's rule).
+    /// </summary>
+    public static int LeaderCharacters(FormatProfile profile) => 2 * (profile.Fsk?.LeadInCharacters?.MinimumCount ?? 0);
+
+    /// <summary>
+    /// One character framed as the profile's framing declares it, written here apart from the decoder's code: the start
+    /// bits as given, the data bits in the declared order, a parity bit that makes the count of ones even (or odd), the
+    /// stop bits as given (asynchronous serial framing, common practice). '1' is mark.
+    /// </summary>
+    public static void FramedBits(ByteFraming framing, byte value, System.Text.StringBuilder bits)
+    {
+        bits.Append(framing.StartBits);
+        int ones = 0;
+        for (int i = 0; i < framing.DataBits; i++)
+        {
+            int bit = framing.BitOrder == BitOrder.LsbFirst ? (value >> i) & 1 : (value >> (framing.DataBits - 1 - i)) & 1;
+            ones += bit;
+            bits.Append(bit == 1 ? '1' : '0');
+        }
+
+        if (framing.Parity != Parity.None)
+        {
+            bool even = ones % 2 == 0;
+            bits.Append((framing.Parity == Parity.Even) == even ? '0' : '1');
+        }
+
+        bits.Append(framing.StopBits);
+    }
+
+    /// <summary>
+    /// Bits as 0/1 text, padded with mark to whole bytes and packed eight a byte least significant first: what
+    /// minimodem's transmitter takes with <c>--startbits 0 --stopbits 0</c> (no framing of its own; minimodem(1)).
+    /// </summary>
+    private static byte[] PackRawBits(System.Text.StringBuilder bits)
+    {
+        while (bits.Length % 8 != 0)
+        {
+            bits.Append('1');
+        }
+
+        var packed = new byte[bits.Length / 8];
+        for (int i = 0; i < bits.Length; i++)
+        {
+            if (bits[i] == '1')
+            {
+                packed[i / 8] |= (byte)(1 << (i % 8));
+            }
+        }
+
+        return packed;
+    }
 
     public static void MinimodemCapture(string path, FormatProfile profile, IReadOnlyList<byte[]> blocks, int sampleRate, double leadInSeconds, double volume)
     {
         var fsk = profile.Fsk ?? throw new ArgumentException("minimodem writes FSK profiles only.", nameof(profile));
-        if (profile.Framing.StartBits != "0" || profile.Framing.DataBits != 8 || profile.Framing.BitOrder != BitOrder.LsbFirst || profile.Framing.Parity != Parity.None)
+        if (!MinimodemWrites(profile))
         {
-            throw new ArgumentException("minimodem writes one start bit 0, eight data bits LSB first, no parity.", nameof(profile));
+            throw new ArgumentException("minimodem writes FSK profiles of one copy a block.", nameof(profile));
         }
 
         string folder = Path.GetDirectoryName(path)!;
@@ -148,8 +210,32 @@ public static class OutsideDamage
             }
 
             string tones = Path.Combine(folder, $"{stem}.block{b}.wav");
-            Run(MinimodemPath, ["--tx", F(fsk.Baud), "--mark", F(fsk.MarkHz), "--space", F(fsk.SpaceHz), "--stopbits", profile.Framing.StopBits.Length.ToString(CultureInfo.InvariantCulture),
-                "--volume", F(volume), "-R", r, "-f", tones], blocks[b]);
+            if (MinimodemFrames(profile))
+            {
+                Run(MinimodemPath, ["--tx", F(fsk.Baud), "--mark", F(fsk.MarkHz), "--space", F(fsk.SpaceHz), "--stopbits", profile.Framing.StopBits.Length.ToString(CultureInfo.InvariantCulture),
+                    "--volume", F(volume), "-R", r, "-f", tones], blocks[b]);
+            }
+            else
+            {
+                // Outside reference: minimodem writes the tones of raw bits framed here (the leader's characters, then the block's).
+                var bits = new System.Text.StringBuilder();
+                if (fsk.LeadInCharacters is { } leader)
+                {
+                    for (int i = 0; i < LeaderCharacters(profile); i++)
+                    {
+                        FramedBits(profile.Framing, (byte)leader.Character, bits);
+                    }
+                }
+
+                foreach (byte value in blocks[b])
+                {
+                    FramedBits(profile.Framing, value, bits);
+                }
+
+                Run(MinimodemPath, ["--tx", F(fsk.Baud), "--mark", F(fsk.MarkHz), "--space", F(fsk.SpaceHz), "--startbits", "0", "--stopbits", "0",
+                    "--volume", F(volume), "-R", r, "-f", tones], PackRawBits(bits));
+            }
+
             parts.Add(tones);
         }
 

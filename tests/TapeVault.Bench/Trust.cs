@@ -675,7 +675,7 @@ public static class Trust
             string noise = stem + ".noise.wav";
 
             // SoX's white noise at "vol 1" has an RMS of about 0.54 (measured with SoX's stat); the tones' RMS is volume/√2.
-            double seconds = leadIn + profile.Recording.TrailerSeconds + 1 + written.Sum(b => (b.Length * profile.Framing.BitsPerByte / profile.Fsk!.Baud) + profile.Recording.BlockGapSeconds);
+            double seconds = leadIn + profile.Recording.TrailerSeconds + 1 + written.Sum(b => ((b.Length + OutsideDamage.LeaderCharacters(profile)) * profile.Framing.BitsPerByte / profile.Fsk!.Baud) + profile.Recording.BlockGapSeconds);
             double noiseVolume = volume / Math.Sqrt(2) * Math.Pow(10, -snr / 20) / 0.54;
             OutsideDamage.ApplySox("-n", noise, ["-r", sampleRate.ToString(CultureInfo.InvariantCulture), "-b", "16", "-c", "1"], ["synth", seconds.ToString("0.###", CultureInfo.InvariantCulture), "whitenoise", "vol", noiseVolume.ToString("0.######", CultureInfo.InvariantCulture)]);
             string mixed = stem + ".mixed.wav";
