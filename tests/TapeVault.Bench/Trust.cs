@@ -29,7 +29,10 @@ public static class Trust
 {
     public const int PassesPerTape = 3;
 
-    /// <summary>The stream confidence above which a wrong stream reading counts with the wrong clean ones.</summary>
+    /// <summary>
+    /// The confidence at or above which a wrong result is confidently wrong: a wrong stream reading counts with the
+    /// wrong clean ones, and a wrong merged position of any format in the "wrong >= 0.99" column.
+    /// </summary>
     public const double StreamConfidentWrong = 0.99;
 
     private static long s_makeTicks, s_decodeTicks, s_mergeTicks;
@@ -717,8 +720,9 @@ public static class Trust
         Console.WriteLine();
         Console.WriteLine("Per profile. units: written blocks (bytes for a stream); readings: every setting's block candidates of every pass;");
         Console.WriteLine("wrong clean: readings (and merged positions) marked clean that are not a written block (streams: wrong at confidence >= 0.99);");
-        Console.WriteLine("ECE: 10 equal bins; exact images: byte-exact merges with every position clean (stream: read) and agreed by >= 2 captures.");
-        Console.WriteLine($"{"family",-11} {"profile",-18} {"tapes",5} {"units",6} {"readings",8} {"clean",6} {"wrong clean",11} {"ECE read",8} {"ECE best",8} {"positions",9} {"wrong pos",9} {"ECE merged",10} {"exact",5} {"min conf",8} {"< 0.99",6}");
+        Console.WriteLine("ECE: 10 equal bins; wrong >= 0.99: merged positions not a written block at confidence >= 0.99, whatever their status;");
+        Console.WriteLine("exact images: byte-exact merges with every position clean (stream: read) and agreed by >= 2 captures.");
+        Console.WriteLine($"{"family",-11} {"profile",-18} {"tapes",5} {"units",6} {"readings",8} {"clean",6} {"wrong clean",11} {"ECE read",8} {"ECE best",8} {"positions",9} {"wrong pos",9} {"ECE merged",10} {"wrong >= 0.99",13} {"exact",5} {"min conf",8} {"< 0.99",6}");
         foreach (var group in outcomes.GroupBy(o => (o.Subject.Family, o.Subject.Profile.Id)).OrderBy(g => g.Key.Family, StringComparer.Ordinal).ThenBy(g => g.Key.Id, StringComparer.Ordinal))
         {
             var readings = group.SelectMany(o => o.ReadingsBySource.Values.SelectMany(r => r)).ToList();
@@ -730,7 +734,7 @@ public static class Trust
             Console.WriteLine(
                 $"{group.Key.Family,-11} {group.Key.Id,-18} {group.Count(),5} {units,6} {readings.Count,8} {(stream ? "-" : readings.Count(r => r.Clean).ToString(CultureInfo.InvariantCulture)),6} " +
                 $"{readings.Count(r => r.WrongClean),11} {Ece(readings),8:0.0000} {Ece(best),8:0.0000} {positions.Count,9} {positions.Count(r => r.WrongClean),9} " +
-                $"{Ece(positions),10:0.0000} {exact.Count,5} {(exact.Count > 0 ? exact.Min().ToString("0.0000", CultureInfo.InvariantCulture) : "-"),8} {exact.Count(c => c < 0.99),6}");
+                $"{Ece(positions),10:0.0000} {positions.Count(r => !r.Right && r.Confidence >= StreamConfidentWrong),13} {exact.Count,5} {(exact.Count > 0 ? exact.Min().ToString("0.0000", CultureInfo.InvariantCulture) : "-"),8} {exact.Count(c => c < 0.99),6}");
         }
 
         Console.WriteLine();
