@@ -11,7 +11,7 @@ namespace TapeVault.Bench;
 /// The stream merge on readings already made: with TAPEVAULT_TRUST_STREAMS set to a folder, the trust bench saves every
 /// stream tape's passes there (one JSON file per tape: the files written and each capture's readings); <c>stream-merge
 /// --streams FOLDER [--dump FILE]</c> merges them again with the merge of this build and reports, per profile, the
-/// merged positions, those wrong at 0.99 or more, the ECE (10 equal bins), the exact images and the reliability bins.
+/// merged positions, those wrong at 0.99 or more, the log-likelihood of right and wrong under the confidences (what a fit of the merge's constants maximises), the ECE (10 equal bins), the exact images and the reliability bins.
 /// Decoding is by far the slow part of the trust bench, so this is how a change to the stream merge is tried; the
 /// figures are the trust bench's own for the same tapes (the same judge: <see cref="RecoveryCorpus.Place"/>).
 /// </summary>
@@ -107,6 +107,8 @@ public static class StreamReplay
         {
             var items = group.Select(r => (r.Confidence, r.Right)).ToList();
             var (tapes, exact, least) = exactTapes[group.Key];
+            double logLikelihood = items.Sum(i => Math.Log(Math.Clamp(i.Right ? i.Confidence : 1 - i.Confidence, 1e-9, 1)));
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{group.Key}: log-likelihood of right and wrong {logLikelihood:0.0}"));
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"{group.Key,-10} {tapes,5} {items.Count,9} {items.Count(i => !i.Right && i.Confidence >= Trust.StreamConfidentWrong),11} {Calibration.EqualBinEce(items),10:0.0000} {Calibration.EqualBinEce([.. group.Select(r => (r.Confidence, r.Anywhere))]),12:0.0000} {exact,5} {least,11:0.0000}"));
             foreach (var bin in items.GroupBy(i => Math.Clamp((int)(i.Confidence * 10), 0, 9)).OrderBy(b => b.Key))
