@@ -645,7 +645,7 @@ public static partial class Scale
         await using var reading = services.CreateAsyncScope();
         var job = await reading.ServiceProvider.GetRequiredService<ArchiveDbContext>().Jobs.AsNoTracking().FirstAsync(j => j.Id == jobId);
         double seconds = job.FinishedUtc is { } f && job.StartedUtc is { } s ? (f - s).TotalSeconds : double.NaN;
-        Console.WriteLine($"catalogue published by a publish job (stored, recorded with {facts.Tapes + 1} events): {seconds:0.0} s from start to finish ({job.State}: {job.ProgressText}); the job runner's whole run {runner:0.0} s");
+        Console.WriteLine($"catalogue published by a publish job (stored, recorded with one event on the collection): {seconds:0.0} s from start to finish ({job.State}: {job.ProgressText}); the job runner's whole run {runner:0.0} s");
     }
 
     private static async Task MeasureFixityAsync(string root)
