@@ -143,8 +143,11 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
         }
     }
 
-    /// <summary>Writes the catalogue as a zip (its single top folder is the site) to <paramref name="output"/>; records nothing.</summary>
-    public async Task<int> PublishZipAsync(int collectionId, Stream output, CancellationToken cancellation = default)
+    /// <summary>
+    /// Writes the catalogue as a zip (its single top folder is the site) to <paramref name="output"/>; records nothing.
+    /// Returns how many files it holds and the SHA-256 of its <c>SHA256SUMS</c> (see <see cref="ManifestSha256"/>).
+    /// </summary>
+    public async Task<(int Files, string ManifestSha256)> PublishZipAsync(int collectionId, Stream output, CancellationToken cancellation = default)
     {
         ArgumentNullException.ThrowIfNull(output);
         var site = await SiteAsync(collectionId, cancellation).ConfigureAwait(false);
@@ -164,7 +167,7 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
                 }
             }
 
-            return files.Count;
+            return (files.Count, ManifestSha256(temp));
         }
         finally
         {
@@ -175,26 +178,36 @@ public sealed class CataloguePublisher(ArchiveDbContext db, ContentStore store, 
         }
     }
 
-    /// <summary>The ids of a collection's items (whose histories a publication is recorded in).</summary>
-    public Task<List<int>> ItemIdsAsync(int collectionId, CancellationToken cancellation = default) =>
-        db.Items.Where(i => i.CollectionId == collectionId).Select(i => i.Id).ToListAsync(cancellation);
-
-    /// <summary>Records a finished publication on the collection and every item, and saves.</summary>
-    public async Task RecordPublishedAsync(int collectionId, string detail, string agent, CancellationToken cancellation = default)
+    /// <summary>
+    /// The SHA-256 of a written catalogue's <c>SHA256SUMS</c>, which lists the SHA-256 of every other file of the site:
+    /// recorded in the event chain, it proves what one publication held, file by file (check a copy with
+    /// <c>sha256sum SHA256SUMS</c>, then <c>sha256sum -c SHA256SUMS</c>).
+    /// </summary>
+    public static string ManifestSha256(string folder)
     {
-        RecordPublished(collectionId, await ItemIdsAsync(collectionId, cancellation).ConfigureAwait(false), detail, agent);
+        ArgumentNullException.ThrowIfNull(folder);
+        using var manifest = File.OpenRead(Path.Combine(folder, CatalogueWriter.ChecksumFile));
+        return Convert.ToHexStringLower(System.Security.Cryptography.SHA256.HashData(manifest));
+    }
+
+    /// <summary>Records a finished publication on the collection, and saves.</summary>
+    public async Task RecordPublishedAsync(int collectionId, string detail, string manifestSha256, string agent, CancellationToken cancellation = default)
+    {
+        RecordPublished(collectionId, detail, manifestSha256, agent);
         await db.SaveChangesAsync(cancellation).ConfigureAwait(false);
     }
 
-    /// <summary>Adds a publication's events to the context, unsaved, for the caller to commit with what it records.</summary>
-    public void RecordPublished(int collectionId, IReadOnlyList<int> itemIds, string detail, string agent)
+    /// <summary>
+    /// Adds a publication's event to the context, unsaved, for the caller to commit with what it records: one event on
+    /// the collection, however many tapes it has, naming the SHA-256 of the site's <c>SHA256SUMS</c>, so the chain
+    /// holds what was published without an event per tape (each lengthened every later whole-chain audit).
+    /// </summary>
+    public void RecordPublished(int collectionId, string detail, string manifestSha256, string agent)
     {
-        ArgumentNullException.ThrowIfNull(itemIds);
-        EventLog.Add(db, EventTypes.Export, agent, "collection", collectionId.ToString(CultureInfo.InvariantCulture), "success", detail);
-        foreach (var itemId in itemIds)
-        {
-            EventLog.Add(db, EventTypes.Export, agent, "item", itemId.ToString(CultureInfo.InvariantCulture), "success", detail, itemId);
-        }
+        ArgumentNullException.ThrowIfNull(detail);
+        ArgumentException.ThrowIfNullOrWhiteSpace(manifestSha256);
+        EventLog.Add(db, EventTypes.Export, agent, "collection", collectionId.ToString(CultureInfo.InvariantCulture), "success",
+            $"{detail} Its {CatalogueWriter.ChecksumFile} has SHA-256 {manifestSha256}.");
     }
 
     /// <summary>

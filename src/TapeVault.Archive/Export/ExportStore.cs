@@ -41,12 +41,11 @@ public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExpo
     /// </summary>
     public async Task<ExportRecord> StoreCatalogueAsync(int collectionId, string agent, JobRecord? heldJob, CancellationToken cancellation = default)
     {
-        int files = 0;
-        using var staged = await store.StageAsync(async stream => files = await catalogues.PublishZipAsync(collectionId, stream, cancellation).ConfigureAwait(false), cancellation).ConfigureAwait(false);
+        (int Files, string ManifestSha256) written = (0, string.Empty);
+        using var staged = await store.StageAsync(async stream => written = await catalogues.PublishZipAsync(collectionId, stream, cancellation).ConfigureAwait(false), cancellation).ConfigureAwait(false);
         string fileName = $"catalogue-collection-{collectionId}.zip";
-        var itemIds = await catalogues.ItemIdsAsync(collectionId, cancellation).ConfigureAwait(false);
         return await RecordAsync(staged, "catalogue", collectionId, null, fileName, agent,
-            () => catalogues.RecordPublished(collectionId, itemIds, $"Catalogue published as '{fileName}', kept in the archive for download ({files} files).", agent),
+            () => catalogues.RecordPublished(collectionId, $"Catalogue published as '{fileName}', kept in the archive for download ({written.Files} files).", written.ManifestSha256, agent),
             heldJob, CatalogueSummary, cancellation).ConfigureAwait(false);
     }
 

@@ -250,10 +250,20 @@ public static class TimelineDrawings
     internal static async Task<List<TimelineReading>> StoredReadingsAsync(ArchiveDbContext db, IReadOnlyDictionary<int, string> captureOfRun, CancellationToken cancellation)
     {
         var runIds = captureOfRun.Keys.ToList();
-        var rows = await db.Candidates.AsNoTracking().Where(c => runIds.Contains(c.RunId))
-            .Select(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed })
-            .ToListAsync(cancellation).ConfigureAwait(false);
-        return [.. rows.Select(c => ReadingOf(captureOfRun[c.RunId], c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed))];
+        var query = db.Candidates.AsNoTracking().Where(c => runIds.Contains(c.RunId))
+            .Select(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed });
+
+        // SQLite's provider has no asynchronous I/O: its asynchronous calls run synchronously, and reading row by row
+        // through them only adds a state machine per row (Microsoft.Data.Sqlite, "Async limitations"); a long tape's
+        // tens of thousands of readings are read synchronously there, and asynchronously from a server.
+        var rows = db.Database.IsSqlite() ? query.ToList() : await query.ToListAsync(cancellation).ConfigureAwait(false);
+        var readings = new List<TimelineReading>(rows.Count);
+        foreach (var c in rows)
+        {
+            readings.Add(ReadingOf(captureOfRun[c.RunId], c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed));
+        }
+
+        return readings;
     }
 
     /// <summary>
@@ -262,17 +272,28 @@ public static class TimelineDrawings
     /// </summary>
     private static TapeTimeline Build(IReadOnlyList<DecodeRun> runs, IReadOnlyDictionary<int, Capture> captures, IReadOnlyList<TimelineReading> readings, TapeImage? image)
     {
-        var ordered = readings
-            .OrderBy(r => r.CaptureKey, StringComparer.Ordinal).ThenBy(r => r.Setting, StringComparer.Ordinal)
-            .ThenBy(r => r.StartSeconds).ThenBy(r => r.EndSeconds).ThenBy(r => r.Key, StringComparer.Ordinal)
-            .ThenBy(r => r.Status, StringComparer.Ordinal).ThenBy(r => r.Confidence).ThenBy(r => r.Speed)
-            .ToList();
+        // Every field is a key, so readings that compare equal are alike in every field and their order cannot show.
+        var ordered = new List<TimelineReading>(readings);
+        ordered.Sort(CompareReadings);
         var lanes = runs.Select(r => (captures[r.CaptureId].Sha256, $"Capture {r.CaptureId} · {captures[r.CaptureId].OriginalFileName}")).ToList();
         var settings = runs.ToDictionary(r => captures[r.CaptureId].Sha256, r => (IReadOnlyList<string>)[.. SettingsJson.Read(r.SettingsJson).Select(s => s.Name)], StringComparer.Ordinal);
         IReadOnlyList<TimelinePosition>? positions = image is null
             ? null
             : [.. image.Blocks.Select(b => new TimelinePosition(b.Position, b.Key, Vocabulary.Of(b.Status).Name, b.Confidence))];
         return TapeTimeline.Build(lanes, ordered, settings, positions);
+    }
+
+    /// <summary>The one order of a timeline's readings: capture, setting, start, end, identity, outcome, confidence, speed.</summary>
+    private static int CompareReadings(TimelineReading a, TimelineReading b)
+    {
+        int c = string.CompareOrdinal(a.CaptureKey, b.CaptureKey);
+        c = c != 0 ? c : string.CompareOrdinal(a.Setting, b.Setting);
+        c = c != 0 ? c : a.StartSeconds.CompareTo(b.StartSeconds);
+        c = c != 0 ? c : a.EndSeconds.CompareTo(b.EndSeconds);
+        c = c != 0 ? c : string.CompareOrdinal(a.Key, b.Key);
+        c = c != 0 ? c : string.CompareOrdinal(a.Status, b.Status);
+        c = c != 0 ? c : a.Confidence.CompareTo(b.Confidence);
+        return c != 0 ? c : a.Speed.CompareTo(b.Speed);
     }
 
     private static TimelineDrawing Draw(TapeTimeline timeline, string title, string? positionLinkPrefix)

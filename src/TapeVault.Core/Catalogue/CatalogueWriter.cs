@@ -20,6 +20,9 @@ public static class CatalogueWriter
 {
     public const string ConfidenceExplanation = Vocabulary.ConfidenceSentence;
 
+    /// <summary>The site's checksum file: the SHA-256 of every other file, in GNU sha256sum's format.</summary>
+    public const string ChecksumFile = "SHA256SUMS";
+
     private static readonly CultureInfo Invariant = CultureInfo.InvariantCulture;
     private static readonly UTF8Encoding Utf8 = new(encoderShouldEmitUTF8Identifier: false);
     private static readonly JsonSerializerOptions Json = new(JsonSerializerDefaults.Web) { WriteIndented = true };
@@ -61,8 +64,8 @@ public static class CatalogueWriter
             sums.Append(Invariant, $"{hash}  {relative}\n");
         }
 
-        File.WriteAllText(Path.Combine(root, "SHA256SUMS"), sums.ToString(), Utf8);
-        files.Add("SHA256SUMS");
+        File.WriteAllText(Path.Combine(root, ChecksumFile), sums.ToString(), Utf8);
+        files.Add(ChecksumFile);
         return files;
     }
 

@@ -76,20 +76,36 @@ public sealed record TapeTimeline(double Start, double End, TimelineLane? Image,
             maps[key] = (speed, offset);
         }
 
-        double Map(TimelineReading r, double seconds) => maps.TryGetValue(r.CaptureKey, out var m) ? (seconds * m.Speed) + m.Offset : seconds;
-
+        // A long tape has tens of thousands of readings: each is looked at a fixed number of times below (its capture's
+        // time map found once per capture, its setting's lane once per capture), so drawing one grows with its readings.
         var lanesOf = new List<TimelineCapture>();
         foreach (var (key, title) in captures)
         {
             var own = byCapture.GetValueOrDefault(key) ?? [];
+            var (speed, offset) = maps[key];
+            var bySetting = new Dictionary<string, List<TimelineReading>>(StringComparer.Ordinal);
+            foreach (var r in own)
+            {
+                if (!bySetting.TryGetValue(r.Setting, out var list))
+                {
+                    bySetting[r.Setting] = list = [];
+                }
+
+                list.Add(r);
+            }
+
             var lanes = new List<TimelineLane>();
             var folded = new List<TimelineLane>();
             var names = settings.GetValueOrDefault(key) ?? [.. own.Select(r => r.Setting).Distinct()];
             foreach (var setting in names)
             {
-                var spans = own.Where(r => r.Setting == setting).OrderBy(r => r.StartSeconds)
-                    .Select(r => new TimelineSpan(Map(r, r.StartSeconds), Map(r, Math.Max(r.EndSeconds, r.StartSeconds)), r.Status, r.Confidence, r.Key, null))
-                    .ToList();
+                var read = InStartOrder(bySetting.GetValueOrDefault(setting) ?? []);
+                var spans = new List<TimelineSpan>(read.Count);
+                foreach (var r in read)
+                {
+                    spans.Add(new TimelineSpan((r.StartSeconds * speed) + offset, (Math.Max(r.EndSeconds, r.StartSeconds) * speed) + offset, r.Status, r.Confidence, r.Key, null));
+                }
+
                 var lane = new TimelineLane(setting, spans);
 
                 // A setting that read nothing its format could check (only failed readings, or none) did not suit the capture.
@@ -100,11 +116,32 @@ public sealed record TapeTimeline(double Start, double End, TimelineLane? Image,
             lanesOf.Add(new TimelineCapture(key, title, lanes, folded));
         }
 
-        TimelineLane? imageLane = image is null ? null : new TimelineLane("Image", PlacePositions(image, readings, Map));
-        var all = lanesOf.SelectMany(c => c.Lanes.Concat(c.Folded)).SelectMany(l => l.Spans).Concat(imageLane?.Spans ?? []).ToList();
-        double start = all.Count > 0 ? all.Min(s => s.Start) : 0;
-        double end = all.Count > 0 ? all.Max(s => s.End) : 1;
+        TimelineLane? imageLane = image is null ? null : new TimelineLane("Image", PlacePositions(image, byCapture, maps));
+        double start = 0, end = 1;
+        bool any = false;
+        foreach (var s in lanesOf.SelectMany(c => c.Lanes.Concat(c.Folded)).SelectMany(l => l.Spans).Concat(imageLane?.Spans ?? []))
+        {
+            // As Enumerable.Min and Max of doubles: a NaN start wins the minimum, a NaN end loses the maximum.
+            start = !any || s.Start < start || double.IsNaN(s.Start) ? s.Start : start;
+            end = !any || s.End > end || double.IsNaN(end) ? s.End : end;
+            any = true;
+        }
+
         return new TapeTimeline(start, Math.Max(end, start + 0.001), imageLane, lanesOf);
+    }
+
+    /// <summary>One setting's readings by start, in a stable order: as they came when they came so (the usual case).</summary>
+    private static IReadOnlyList<TimelineReading> InStartOrder(List<TimelineReading> readings)
+    {
+        for (int i = 1; i < readings.Count; i++)
+        {
+            if (readings[i - 1].StartSeconds.CompareTo(readings[i].StartSeconds) > 0)
+            {
+                return [.. readings.OrderBy(r => r.StartSeconds)];
+            }
+        }
+
+        return readings;
     }
 
     /// <summary>
@@ -163,19 +200,42 @@ public sealed record TapeTimeline(double Start, double End, TimelineLane? Image,
     /// Each image position spans the readings of its identity; one that no reading places (a missing block between
     /// two read ones) is drawn in the gap between its neighbours, at a small width, so that it is seen, not hidden.
     /// </summary>
-    private static List<TimelineSpan> PlacePositions(IReadOnlyList<TimelinePosition> image, IReadOnlyList<TimelineReading> readings, Func<TimelineReading, double, double> map)
+    private static List<TimelineSpan> PlacePositions(IReadOnlyList<TimelinePosition> image, Dictionary<string, List<TimelineReading>> byCapture, Dictionary<string, (double Speed, double Offset)> maps)
     {
-        var byKey = readings.GroupBy(r => r.Key).ToDictionary(g => g.Key, g => g.ToList(), StringComparer.Ordinal);
+        // Each identity's readings, on tape time (a capture not drawn keeps its own times), gathered in one pass.
+        var byKey = new Dictionary<string, (List<double> Starts, List<double> Ends)>(StringComparer.Ordinal);
+        foreach (var (capture, own) in byCapture)
+        {
+            var (speed, offset) = maps.TryGetValue(capture, out var m) ? m : (1.0, 0.0);
+            bool drawn = maps.ContainsKey(capture);
+            foreach (var r in own)
+            {
+                if (!byKey.TryGetValue(r.Key, out var times))
+                {
+                    byKey[r.Key] = times = ([], []);
+                }
+
+                times.Starts.Add(drawn ? (r.StartSeconds * speed) + offset : r.StartSeconds);
+                times.Ends.Add(drawn ? (r.EndSeconds * speed) + offset : r.EndSeconds);
+            }
+        }
+
+        var placedOf = new Dictionary<string, (double Start, double End)>(StringComparer.Ordinal);
         var placed = new (double Start, double End)?[image.Count];
         for (int i = 0; i < image.Count; i++)
         {
-            if (byKey.TryGetValue(image[i].Key, out var own))
+            if (placedOf.TryGetValue(image[i].Key, out var known))
+            {
+                placed[i] = known;
+            }
+            else if (byKey.TryGetValue(image[i].Key, out var own))
             {
                 // The readings of one copy agree on its start; a format that writes blocks twice has readings a block
                 // apart, and the first copy's stretch is where the position starts.
-                var starts = own.Select(r => map(r, r.StartSeconds)).Order().ToList();
-                var ends = own.Select(r => map(r, r.EndSeconds)).Order().ToList();
-                placed[i] = (starts[starts.Count / 2], Math.Max(ends[ends.Count / 2], starts[starts.Count / 2] + 0.01));
+                own.Starts.Sort();
+                own.Ends.Sort();
+                double first = own.Starts[own.Starts.Count / 2];
+                placed[i] = placedOf[image[i].Key] = (first, Math.Max(own.Ends[own.Ends.Count / 2], first + 0.01));
             }
         }
 

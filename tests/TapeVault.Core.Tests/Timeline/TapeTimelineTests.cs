@@ -138,4 +138,79 @@ public sealed class TapeTimelineTests
         Assert.Contains(svg.Descendants(ns + "title"), e => e.Value.Contains("Image, 800 positions", StringComparison.Ordinal) && e.Value.Contains("8 missing", StringComparison.Ordinal));
         Assert.True(text.Length < 20_000, $"{text.Length} characters");
     }
+    [Fact]
+    public void ALongTapesLayout_IsTheLayoutWorkedOutReadingByReading_WhateverOrderTheReadingsCome()
+    {
+        // Three passes × 8 settings of a 400-block tape, with times whose arithmetic is exact in binary (multiples of
+        // 1/4 s, speeds 1 and 2), so the expected layout is worked out here reading by reading, independently of how
+        // Build gets there: capture b played at twice the speed and 4 s earlier on the tape than its own clock says;
+        // capture z is not drawn (its readings only help place positions, on its own times). Readings come shuffled,
+        // some starts tie within a lane (a stable order keeps them as they came), one listed setting read nothing,
+        // one position's identity was never read, and one identity is at two positions.
+        var rng = new Random(14);
+        var readings = new List<TimelineReading>();
+        foreach (var (capture, speed) in new[] { ("a", 1.0), ("b", 2.0), ("z", 1.0) })
+        {
+            for (int s = 0; s < 8; s++)
+            {
+                for (int k = 0; k < 400; k++)
+                {
+                    double tape = 2.5 * k, length = 2.25;
+                    double start = capture == "b" ? (tape - 4) / 2 : tape;
+                    double end = capture == "b" ? (tape + length - 4) / 2 : tape + length;
+                    string status = s < 5 ? (rng.Next(10) < 8 ? "clean" : "failed") : "failed";
+                    readings.Add(new TimelineReading(capture, $"setting {s}", $"F:{k}", status, rng.Next(100) / 100.0, start, k % 50 == 3 ? start - 0.25 : end, speed));
+                    if (k % 40 == 5)
+                    {
+                        readings.Add(new TimelineReading(capture, $"setting {s}", $"F?:{k}", "failed", 0.25, start, start + 0.5, speed));
+                    }
+                }
+            }
+        }
+
+        readings = [.. readings.OrderBy(_ => rng.Next())];
+        var captures = new[] { ("a", "Capture 1"), ("b", "Capture 2") };
+        var settings = new Dictionary<string, IReadOnlyList<string>>
+        {
+            ["a"] = [.. Enumerable.Range(0, 8).Select(s => $"setting {s}"), "silent"],
+            ["b"] = [.. Enumerable.Range(0, 8).Select(s => $"setting {s}")],
+        };
+        var image = Enumerable.Range(0, 400).Select(k => new TimelinePosition(k, k == 17 ? "F:unread" : $"F:{k}", k == 17 ? "missing" : "clean", 0.999))
+            .Append(new TimelinePosition(400, "F:0", "clean", 0.999)).ToList();
+
+        var t = TapeTimeline.Build(captures, readings, settings, image);
+
+        double Tape(string capture, double seconds) => capture == "b" ? (seconds * 2) + 4 : seconds;
+        foreach (var (capture, title) in captures)
+        {
+            var drawn = t.Captures.Single(c => c.Key == capture);
+            Assert.Equal(title, drawn.Title);
+            var expected = settings[capture].Select(setting => new TimelineLane(setting, [.. readings
+                .Where(r => r.CaptureKey == capture && r.Setting == setting).OrderBy(r => r.StartSeconds)
+                .Select(r => new TimelineSpan(Tape(capture, r.StartSeconds), Tape(capture, Math.Max(r.EndSeconds, r.StartSeconds)), r.Status, r.Confidence, r.Key, null))])).ToList();
+            var useful = expected.Where(l => l.Spans.Any(s => s.Status is "clean" or "unchecked")).ToList();
+            Assert.Equal(useful.Select(l => l.Title), drawn.Lanes.Select(l => l.Title));
+            Assert.Equal(expected.Except(useful).Select(l => l.Title), drawn.Folded.Select(l => l.Title));
+            foreach (var (want, got) in useful.Concat(expected.Except(useful)).Zip(drawn.Lanes.Concat(drawn.Folded)))
+            {
+                Assert.Equal(want.Spans, got.Spans);
+            }
+        }
+
+        // A read position spans the median start and end of its identity's readings on tape time (at least 0.01 s).
+        var positions = t.Image!.Spans;
+        Assert.Equal(401, positions.Count);
+        foreach (var p in positions.Where(p => p.Key != "F:unread"))
+        {
+            var own = readings.Where(r => r.Key == p.Key).ToList();
+            var starts = own.Select(r => r.CaptureKey == "z" ? r.StartSeconds : Tape(r.CaptureKey, r.StartSeconds)).Order().ToList();
+            var ends = own.Select(r => r.CaptureKey == "z" ? r.EndSeconds : Tape(r.CaptureKey, r.EndSeconds)).Order().ToList();
+            Assert.Equal((starts[starts.Count / 2], Math.Max(ends[ends.Count / 2], starts[starts.Count / 2] + 0.01)), (p.Start, p.End));
+        }
+
+        // The unread one lies between its neighbours; the extent is every drawn span's.
+        Assert.Equal(positions[16].End, positions[17].Start);
+        var all = t.Captures.SelectMany(c => c.Lanes.Concat(c.Folded)).SelectMany(l => l.Spans).Concat(positions).ToList();
+        Assert.Equal((all.Min(s => s.Start), all.Max(s => s.End)), (t.Start, t.End));
+    }
 }

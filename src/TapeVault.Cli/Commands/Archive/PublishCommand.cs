@@ -50,12 +50,13 @@ public sealed class PublishCommand : CliCommand
                 Directory.Delete(target);
             }
 
+            string manifest = CataloguePublisher.ManifestSha256(temp);
             Directory.Move(temp, target);
 
             // The event names the folder the catalogue ended in, never the temporary one it was written to.
             ArchiveWork.Run(async () =>
             {
-                await publisher.RecordPublishedAsync(collection, $"Catalogue published by the command line to the folder '{Path.GetFileName(target)}' ({files.Count} files).", ArchiveSession.Agent).ConfigureAwait(false);
+                await publisher.RecordPublishedAsync(collection, $"Catalogue published by the command line to the folder '{Path.GetFileName(target)}' ({files.Count} files).", manifest, ArchiveSession.Agent).ConfigureAwait(false);
                 return 0;
             });
             if (!ArchiveWork.Run(() => OrganisationSettings.CurrentAsync(session.Get<ArchiveDbContext>(), session.Options)).IsSet)
