@@ -92,6 +92,7 @@ public static partial class BlockPositioner
         var readings = new List<(double Start, double End, int Stretch)>();
         var positionOf = new int[keyed.Count];
         var wholeBySetting = new Dictionary<(int Stretch, int Setting), int>();
+        var cleanOf = new Dictionary<int, List<BlockCandidate>>();
         int lastStretch = -1;
         for (int i = 0; i < keyed.Count; i++)
         {
@@ -111,9 +112,12 @@ public static partial class BlockPositioner
             }
 
             // One setting reads each copy of a block whole once: another whole reading of the same identity by the
-            // same setting, after as many as the format writes, is another block whose header was misread alike.
+            // same setting, after as many as the format writes, is another block whose header was misread alike. And
+            // a clean reading is another block than a clean reading of other bytes that it does not overlap on the
+            // tape, whichever setting read them: headers that carry only a block number repeat from file to file.
             int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnds[ofKey[^1]].End + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds)
                 && (candidate.Truncated || wholeBySetting.GetValueOrDefault((ofKey[^1], candidate.SettingIndex)) < Math.Max(1, copies))
+                && !(candidate.Status == BlockStatus.Clean && cleanOf.TryGetValue(ofKey[^1], out var cleanThere) && cleanThere.Exists(t => OtherBlock(t, candidate)))
                 ? ofKey[^1]
                 : -1;
             if (found < 0)
@@ -125,6 +129,16 @@ public static partial class BlockPositioner
             else
             {
                 stretchEnds[found] = stretchEnds[found].With(candidate);
+            }
+
+            if (candidate.Status == BlockStatus.Clean)
+            {
+                if (!cleanOf.TryGetValue(found, out var cleanHere))
+                {
+                    cleanOf.Add(found, cleanHere = []);
+                }
+
+                cleanHere.Add(candidate);
             }
 
             if (!candidate.Truncated)
@@ -832,6 +846,15 @@ public static partial class BlockPositioner
         double shorter = Math.Min(a.EndSeconds - a.StartSeconds, b.EndSeconds - b.StartSeconds);
         return Math.Abs(a.StartSeconds - b.StartSeconds) <= Math.Min(0.05, 0.25 * Math.Max(shorter, 0));
     }
+
+    /// <summary>
+    /// Whether two clean readings are of two blocks: their bytes (header and payload) differ and they share no tape. Copies
+    /// of a block agree byte for byte (a header keeps the first copy's sync whatever copy was read), and readings of
+    /// one copy by several settings overlap.
+    /// </summary>
+    private static bool OtherBlock(BlockCandidate a, BlockCandidate b) =>
+        !Overlaps(a.StartSeconds, a.EndSeconds, b.StartSeconds, b.EndSeconds)
+        && !(a.Header.AsSpan().SequenceEqual(b.Header.AsSpan()) && a.Payload.AsSpan().SequenceEqual(b.Payload.AsSpan()));
 
     /// <summary>Whether the two readings overlap over at least half of the shorter one.</summary>
     private static bool MostlyOverlaps(BlockCandidate a, BlockCandidate b)
