@@ -47,6 +47,8 @@ public static partial class BlockPositioner
         var keyed = new List<(BlockCandidate Candidate, string Key)>(candidates.Count);
         var streamAnchors = new List<(double Start, double End, string Key)>();
         var inputOf = new List<int>(candidates.Count);
+        var anchors = new List<(int Reading, BlockCandidate Clean)>();
+        var headersRead = copies > 1 ? HeadersRead(candidates) : null;
         foreach (int index in Enumerable.Range(0, candidates.Count).OrderBy(i => candidates[i].StartSeconds))
         {
             var c = candidates[index];
@@ -71,13 +73,27 @@ public static partial class BlockPositioner
             }
             else
             {
-                key = FindOverlapping(trusted, c)?.Identity.Key
-                    ?? (copies > 1 ? FindNeighbouringCopy(trusted, c, copies, copyGap)?.Identity.Key : null)
+                var overlapping = FindOverlapping(trusted, c);
+                if (overlapping is not null)
+                {
+                    anchors.Add((keyed.Count, overlapping));
+                }
+
+                // A header that another setting read alike at the same sync names its own block: it does not take
+                // the identity of a clean neighbour whose header differs from it in a byte or two (the next file's
+                // name, the next block number).
+                key = overlapping?.Identity.Key
+                    ?? (copies > 1 && !(NamesItself(c) && ReadAlikeElsewhere(c, headersRead)) ? FindNeighbouringCopy(trusted, c, copies, copyGap)?.Identity.Key : null)
                     ?? (c.Truncated && c.Payload.IsEmpty && !NamesItself(c) ? FindNearest(trusted, c, copies, copyGap)?.Identity.Key : null)
                     ?? string.Empty;
             }
 
             keyed.Add((c, key));
+        }
+
+        if (copies > 1)
+        {
+            KeyCopiesMisreadAlike(keyed, anchors, copies, copyGap);
         }
 
         var stray = KeyUnanchoredReadings(keyed);
@@ -92,14 +108,17 @@ public static partial class BlockPositioner
         var readings = new List<(double Start, double End, int Stretch)>();
         var positionOf = new int[keyed.Count];
         var wholeBySetting = new Dictionary<(int Stretch, int Setting), int>();
+        var cleanOf = new Dictionary<int, List<BlockCandidate>>();
         int lastStretch = -1;
+        bool anyBlock = Array.IndexOf(stray, false) >= 0;
         for (int i = 0; i < keyed.Count; i++)
         {
             var (candidate, key) = keyed[i];
-            if (stray[i] && lastStretch >= 0)
+            if (stray[i] && (lastStretch >= 0 || anyBlock))
             {
-                // No block: it joins the stretch it follows, and neither ends that stretch nor stands between its copies.
-                positionOf[i] = lastStretch;
+                // No block: it joins the stretch it follows (before the first, the first, which the next reading that
+                // is a block makes: stretch 0), and neither ends that stretch nor stands between its copies.
+                positionOf[i] = Math.Max(lastStretch, 0);
                 continue;
             }
 
@@ -111,9 +130,12 @@ public static partial class BlockPositioner
             }
 
             // One setting reads each copy of a block whole once: another whole reading of the same identity by the
-            // same setting, after as many as the format writes, is another block whose header was misread alike.
+            // same setting, after as many as the format writes, is another block whose header was misread alike. And
+            // a clean reading is another block than a clean reading of other bytes that it does not overlap on the
+            // tape, whichever setting read them: headers that carry only a block number repeat from file to file.
             int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnds[ofKey[^1]].End + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds)
                 && (candidate.Truncated || wholeBySetting.GetValueOrDefault((ofKey[^1], candidate.SettingIndex)) < Math.Max(1, copies))
+                && !(candidate.Status == BlockStatus.Clean && cleanOf.TryGetValue(ofKey[^1], out var cleanThere) && cleanThere.Exists(t => OtherBlock(t, candidate)))
                 ? ofKey[^1]
                 : -1;
             if (found < 0)
@@ -125,6 +147,16 @@ public static partial class BlockPositioner
             else
             {
                 stretchEnds[found] = stretchEnds[found].With(candidate);
+            }
+
+            if (candidate.Status == BlockStatus.Clean)
+            {
+                if (!cleanOf.TryGetValue(found, out var cleanHere))
+                {
+                    cleanOf.Add(found, cleanHere = []);
+                }
+
+                cleanHere.Add(candidate);
             }
 
             if (!candidate.Truncated)
@@ -170,6 +202,93 @@ public static partial class BlockPositioner
         }
 
         return order;
+    }
+
+    /// <summary>
+    /// A setting that misreads a block misreads its copies alike (a bit slip, an inverted level: the same wrong header
+    /// bytes each time). Where one copy's misread lies on a clean reading of another setting, and so took its identity,
+    /// a failed reading that no clean reading anchors, with the very same header bytes and starting where another copy
+    /// of that clean block can start (<see cref="WithinCopies"/>, and within two block lengths), is that block's other
+    /// copy, not a block of its own.
+    /// </summary>
+    private static void KeyCopiesMisreadAlike(List<(BlockCandidate Candidate, string Key)> keyed, List<(int Reading, BlockCandidate Clean)> anchors, int copies, double? copyGap)
+    {
+        var byHeader = new Dictionary<string, List<(int Reading, BlockCandidate Clean)>>(StringComparer.Ordinal);
+        foreach (var anchor in anchors)
+        {
+            var c = keyed[anchor.Reading].Candidate;
+            if (NamesItself(c) && c.Identity.Key != keyed[anchor.Reading].Key)
+            {
+                string header = Convert.ToHexString(c.Header.AsSpan());
+                if (!byHeader.TryGetValue(header, out var list))
+                {
+                    byHeader.Add(header, list = []);
+                }
+
+                list.Add(anchor);
+            }
+        }
+
+        if (byHeader.Count == 0)
+        {
+            return;
+        }
+
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var c = keyed[i].Candidate;
+            if (keyed[i].Key.Length > 0 || !NamesItself(c) || !byHeader.TryGetValue(Convert.ToHexString(c.Header.AsSpan()), out var alike))
+            {
+                continue;
+            }
+
+            foreach (var (reading, clean) in alike)
+            {
+                double reach = 2 * Math.Max(c.EndSeconds - c.StartSeconds, clean.EndSeconds - clean.StartSeconds) + 0.5;
+                if (!SameSync(c, keyed[reading].Candidate) && Math.Abs(c.StartSeconds - clean.StartSeconds) <= reach && WithinCopies(clean, c, copies, copyGap))
+                {
+                    keyed[i] = (c, keyed[reading].Key);
+                    break;
+                }
+            }
+        }
+    }
+
+    /// <summary>Each header read, as hexadecimal, with the starts and settings of the readings that carry it.</summary>
+    private static Dictionary<string, List<(double Start, int Setting)>> HeadersRead(IReadOnlyList<BlockCandidate> candidates)
+    {
+        var read = new Dictionary<string, List<(double Start, int Setting)>>(StringComparer.Ordinal);
+        foreach (var c in candidates)
+        {
+            string header = Convert.ToHexString(c.Header.AsSpan());
+            if (!read.TryGetValue(header, out var list))
+            {
+                read.Add(header, list = []);
+            }
+
+            list.Add((c.StartSeconds, c.SettingIndex));
+        }
+
+        return read;
+    }
+
+    /// <summary>Whether another setting read the very header of <paramref name="c"/> at its sync.</summary>
+    private static bool ReadAlikeElsewhere(BlockCandidate c, Dictionary<string, List<(double Start, int Setting)>>? headersRead)
+    {
+        if (headersRead is null || !headersRead.TryGetValue(Convert.ToHexString(c.Header.AsSpan()), out var list))
+        {
+            return false;
+        }
+
+        foreach (var (start, setting) in list)
+        {
+            if (setting != c.SettingIndex && Math.Abs(start - c.StartSeconds) <= SyncSeconds)
+            {
+                return true;
+            }
+        }
+
+        return false;
     }
 
     /// <summary>Starts closer than this are one sync, read by several settings (blocks and copies are whole lead-ins apart).</summary>
@@ -564,10 +683,14 @@ public static partial class BlockPositioner
                 continue;
             }
 
-            if (placeSupport[p] <= 1)
+            // Whole failed readings that claim no payload (a false mark in a lead-in or a gap, then the lead-in's run
+            // read as an empty block's header) offer nothing: that settings read such a header alike, or one setting at several
+            // places, vouches for no block. At the capture's start there is no block before them to bound them.
+            bool claimsNothing = places[p].TrueForAll(i => keyed[i].Candidate is { Status: BlockStatus.Failed, Truncated: false, Payload.IsEmpty: true });
+            if (placeSupport[p] <= 1 || claimsNothing)
             {
                 key = overlapped ?? key;
-                if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, starts, byEnd, places[p]) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, index, near, i, placeOf)))
+                if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, starts, byEnd, places[p], atStartToo: claimsNothing) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: claimsNothing)))
                 {
                     foreach (int i in places[p])
                     {
@@ -599,7 +722,7 @@ public static partial class BlockPositioner
     /// (ascending), <paramref name="byEnd"/> the readings' indices by end, and among equal ends the first reading last.
     /// </summary>
     private static bool BetweenVouchedBlocks(
-        List<(BlockCandidate Candidate, string Key)> keyed, bool[] vouched, double[] starts, int[] byEnd, List<int> place)
+        List<(BlockCandidate Candidate, string Key)> keyed, bool[] vouched, double[] starts, int[] byEnd, List<int> place, bool atStartToo)
     {
         double start = keyed[place[0]].Candidate.StartSeconds;
         double end = double.NegativeInfinity;
@@ -619,7 +742,8 @@ public static partial class BlockPositioner
         int firstEndingLater = LowerBound(byEnd.Length, i => keyed[byEnd[i]].Candidate.EndSeconds > start);
         if (firstEndingLater == 0)
         {
-            return false;
+            // Nothing read before it: the capture's start bounds it, where the caller allows it.
+            return atStartToo && vouched[after];
         }
 
         int before = byEnd[firstEndingLater - 1];
@@ -709,10 +833,11 @@ public static partial class BlockPositioner
 
     /// <summary>
     /// Whether reading <paramref name="index"/>'s header agrees over at least half the bytes both have with the header
-    /// of a reading of another place within two block lengths of it. The readings before it come from the index (only
+    /// of a reading of another place within two block lengths of it (with <paramref name="onlyClaims"/>, of a reading
+    /// that offers bytes: lead-in runs read as headers agree with each other in their zeros, and vouch for nothing). The readings before it come from the index (only
     /// those near enough, and the few long ones); after it, the scan stops at the first reading out of reach.
     /// </summary>
-    private static bool ResemblesANeighbour(List<(BlockCandidate Candidate, string Key)> keyed, ReadingIndex readings, List<int> near, int index, int[] placeOf)
+    private static bool ResemblesANeighbour(List<(BlockCandidate Candidate, string Key)> keyed, ReadingIndex readings, List<int> near, int index, int[] placeOf, bool onlyClaims)
     {
         var c = keyed[index].Candidate;
         double length = Math.Max(c.EndSeconds - c.StartSeconds, 0.1);
@@ -723,7 +848,7 @@ public static partial class BlockPositioner
         readings.Near(index, c.StartSeconds - bound - (2 * Math.Max(length, bound)) - 0.5, near);
         foreach (int i in near)
         {
-            if (Resembles(c, keyed[i].Candidate, length, index, i, placeOf) is true)
+            if ((!onlyClaims || ClaimsBytes(keyed[i].Candidate)) && Resembles(c, keyed[i].Candidate, length, index, i, placeOf) is true)
             {
                 return true;
             }
@@ -731,7 +856,7 @@ public static partial class BlockPositioner
 
         for (int i = index; i < keyed.Count; i++)
         {
-            switch (Resembles(c, keyed[i].Candidate, length, index, i, placeOf))
+            switch (onlyClaims && !ClaimsBytes(keyed[i].Candidate) ? false : Resembles(c, keyed[i].Candidate, length, index, i, placeOf))
             {
                 case true: return true;
                 case null: return false;
@@ -740,6 +865,9 @@ public static partial class BlockPositioner
 
         return false;
     }
+
+    /// <summary>Whether a reading offers bytes as a block's: clean, or with a payload read (a lead-in read as an empty block's header does not).</summary>
+    private static bool ClaimsBytes(BlockCandidate c) => c.Status == BlockStatus.Clean || !c.Payload.IsEmpty;
 
     /// <summary>Whether <paramref name="other"/>'s header agrees with <paramref name="c"/>'s as <see cref="ResemblesANeighbour"/> asks; null once <paramref name="other"/> starts out of reach after it.</summary>
     private static bool? Resembles(BlockCandidate c, BlockCandidate other, double length, int index, int i, int[] placeOf)
@@ -832,6 +960,15 @@ public static partial class BlockPositioner
         double shorter = Math.Min(a.EndSeconds - a.StartSeconds, b.EndSeconds - b.StartSeconds);
         return Math.Abs(a.StartSeconds - b.StartSeconds) <= Math.Min(0.05, 0.25 * Math.Max(shorter, 0));
     }
+
+    /// <summary>
+    /// Whether two clean readings are of two blocks: their bytes (header and payload) differ and they share no tape. Copies
+    /// of a block agree byte for byte (a header keeps the first copy's sync whatever copy was read), and readings of
+    /// one copy by several settings overlap.
+    /// </summary>
+    private static bool OtherBlock(BlockCandidate a, BlockCandidate b) =>
+        !Overlaps(a.StartSeconds, a.EndSeconds, b.StartSeconds, b.EndSeconds)
+        && !(a.Header.AsSpan().SequenceEqual(b.Header.AsSpan()) && a.Payload.AsSpan().SequenceEqual(b.Payload.AsSpan()));
 
     /// <summary>Whether the two readings overlap over at least half of the shorter one.</summary>
     private static bool MostlyOverlaps(BlockCandidate a, BlockCandidate b)
