@@ -42,6 +42,14 @@ public sealed class FamilyProposal
         && l.Blocks.Select(Convert.ToHexString).Distinct().Count() >= 3
         && Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed);
 
+    /// <summary>
+    /// Whether the reading's own framing proves it beyond chance: serial characters whose start, stop and parity bits
+    /// hold on all but 2 % of 50 characters or more (random bits fit one start and one stop bit a quarter of the time,
+    /// so fifty framed characters in a row are no accident). Set by the FSK drafter; a stream has no check value to
+    /// prove it otherwise.
+    /// </summary>
+    public bool FramingHolds { get; set; }
+
     public void Measured(string path, string value, double confidence, string evidence) =>
         Findings.Add(new DraftFinding(path, value, confidence < DraftFinding.MeasuredThreshold, confidence, evidence));
 

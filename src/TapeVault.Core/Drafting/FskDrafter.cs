@@ -279,7 +279,7 @@ public sealed class FskDrafter : IFamilyDrafter
         }
 
         var framing = new ByteFraming(chosen.Data, msb ? BitOrder.MsbFirst : BitOrder.LsbFirst, "0", chosen.Stop, chosen.Parity);
-        var proposal = new FamilyProposal();
+        var proposal = new FamilyProposal { FramingHolds = !relaxed && chosen.Blocks.Sum(b => b.Payload.Length) >= 50 && chosen.ErrorShare <= 0.02 };
         var fskSection = new JsonObject
         {
             ["markHz"] = Math.Round(markHz, 1),

@@ -112,7 +112,10 @@ public static class ProfileDrafter
         // draft whose check reads most (the bytes of the different blocks whose check holds, times the share of
         // checked blocks that hold), then (no draft proven) the family that fits the intervals best through the
         // survey it was drafted from (a family the first survey blurs and the next one shows is scored by that one).
-        var chosen = drafts.OrderByDescending(d => d.Proven && d.Proposal.StronglyProven).ThenByDescending(d => d.Reading).ThenByDescending(d => d.Score.Score).ThenBy(d => d.Rank).First();
+        // A reading whose serial framing holds comes before one proven only by a narrower check: a pair of tones at one
+        // and two cycles a bit read as biphase is every FSK bit doubled, bytes of 16 values, on which a one-byte check
+        // holds on one block in sixteen, and an FSK stream has no check value to answer with.
+        var chosen = drafts.OrderByDescending(d => d.Proven && d.Proposal.StronglyProven).ThenByDescending(d => d.Proposal.FramingHolds).ThenByDescending(d => d.Reading).ThenByDescending(d => d.Score.Score).ThenBy(d => d.Rank).First();
         var rivals = drafts.Where(d => d != chosen).ToList();
         string weighed = string.Join("; ", drafts.Select(d => $"{d.Drafter.Family}: {d.Check.Positions} block(s), the check holds on {d.Check.Clean}, {d.Check.CleanBytes} different bytes"));
         double familyConfidence;

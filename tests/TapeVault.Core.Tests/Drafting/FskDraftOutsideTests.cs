@@ -44,7 +44,7 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
         }
 
         string tones = folder.File("fsk-300-odd.minimodem.wav");
-        MinimodemWrite(blocks, tones);
+        MinimodemWrite(blocks, tones, withCrc: true);
         string capture = folder.File("fsk-300-odd.lowpass.wav");
         OutsideTool.Sox(tones, capture, "lowpass", "1700");
 
@@ -69,17 +69,54 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
     }
 
     /// <summary>
-    /// minimodem writes the recording as tones from raw bits (no start or stop bits of its own, eight bits a byte least
-    /// significant first): half a second of mark before each block and after the last, each character framed 8O1.
+    /// The same tones as a stream: blocks of bytes with no check value, as a stream format writes them. Before: the biphase
+    /// reading of the tones (each FSK bit two equal biphase bits) found hundreds of short blocks, a one-byte check held on
+    /// enough of them to count as proof, and the draft was biphase with the family measured; the FSK draft, whose 8O1
+    /// framing held on every character, had no check value to answer with.
     /// </summary>
-    private static void MinimodemWrite(List<byte[]> blocks, string path)
+    [Fact]
+    public void Low_passed_minimodem_stream_is_drafted_as_fsk()
+    {
+        var random = new Random(7);
+        var blocks = new List<byte[]>();
+        for (int n = 0; n < 12; n++)
+        {
+            var block = new byte[100];
+            random.NextBytes(block);
+            blocks.Add(block);
+        }
+
+        string tones = folder.File("fsk-300-stream.minimodem.wav");
+        MinimodemWrite(blocks, tones, withCrc: false);
+        string capture = folder.File("fsk-300-stream.lowpass.wav");
+        OutsideTool.Sox(tones, capture, "lowpass", "1700");
+
+        var draft = ProfileDrafter.Draft(capture);
+        output.WriteLine(draft.Json);
+        output.WriteLine(draft.SideListJson());
+        var profile = draft.Load();
+
+        // Outside reference: minimodem's arguments (--tx 300 --mark 2400 --space 1200), and the 8O1 framing given it.
+        Assert.Equal(FormatFamily.Fsk, profile.Family);
+        Assert.InRange(profile.Fsk!.MarkHz, 2400 * 0.98, 2400 * 1.02);
+        Assert.InRange(profile.Fsk.SpaceHz, 1200 * 0.98, 1200 * 1.02);
+        Assert.InRange(profile.Fsk.Baud, Baud * 0.98, Baud * 1.02);
+        Assert.Equal(Parity.Odd, profile.Framing.Parity);
+    }
+
+    /// <summary>
+    /// minimodem writes the recording as tones from raw bits (no start or stop bits of its own, eight bits a byte least
+    /// significant first): half a second of mark before each block and after the last, each character framed 8O1, each
+    /// block followed by its CRC-16/XMODEM when <paramref name="withCrc"/>.
+    /// </summary>
+    private static void MinimodemWrite(List<byte[]> blocks, string path, bool withCrc)
     {
         var bits = new StringBuilder();
         foreach (var block in blocks)
         {
             bits.Append('1', Baud / 2);
             ushort crc = CrcXmodem(block);
-            foreach (byte c in block.Append((byte)(crc >> 8)).Append(unchecked((byte)crc)))
+            foreach (byte c in withCrc ? block.Append((byte)(crc >> 8)).Append(unchecked((byte)crc)) : block)
             {
                 bits.Append('0');
                 int ones = 0;
