@@ -1,4 +1,5 @@
 using System.Text.Json.Nodes;
+using TapeVault.Core.Formats;
 using TapeVault.Core.Pulses;
 using static TapeVault.Core.Drafting.CommonSections;
 
@@ -29,10 +30,17 @@ public sealed class BiphaseDrafter : IFamilyDrafter
 
         var h = survey.Runs[half];
         var w = survey.Runs[whole];
-        bool fits = h.Granularity == 2 && h.OddShare < 0.25 && w.OddShare >= 0.35 && w.MeanLength < 3;
+        bool fits = h.Granularity == 2 && h.OddShare < 0.25 && w.OddShare >= 0.35 && BlockRunMean(survey, whole) < 3;
         double score = fits ? 0.9 * survey.GroupedShare : 0.1;
         return new FamilyScore(Family, score, $"halves at {Us(survey.Clusters[half].Seconds)} µs come in runs of {h.Granularity} most often; wholes at {Us(survey.Clusters[whole].Seconds)} µs come alone most often, in odd runs in {F(100 * w.OddShare, "0")} % of runs");
     }
+
+    /// <summary>
+    /// The mean length of a group's runs shorter than a preamble of alternating bits: such a preamble is one long run
+    /// of wholes before every block, which would lift the mean of the wholes' runs past what the blocks' bits make.
+    /// </summary>
+    internal static double BlockRunMean(StretchSurvey survey, int group) =>
+        survey.AllRuns().Where(r => r.Class == group && r.Length < LeastLeadInHalves / 2).Select(r => (double)r.Length).DefaultIfEmpty(0).Average();
 
     private static (int Half, int Whole)? Pair(StretchSurvey survey)
     {
@@ -155,6 +163,25 @@ public sealed class BiphaseDrafter : IFamilyDrafter
         int shortest = alternating ? leadRuns.Min(r => r.Length) : leadRuns.Min(r => r.Length) / 2;
         int minimum = Math.Clamp((int)(0.25 * shortest), 8, MostLeadIn);
         string syncBits = string.Concat(reading.Sync.Select(b => reading.Mapping.Bit(b) == 1 ? '1' : '0'));
+        bool syncLengthened = false;
+        if (alternating && !proven && BitPatterns.FirstMatch(BitPatterns.Alternating, syncBits) < syncBits.Length)
+        {
+            // With no check value to place the bytes, the shortest sync whose framing holds may be the preamble's last
+            // bit alone, which the preamble itself plays: the sync drafted is then the bits the blocks share up to
+            // where they first break the preamble's alternation, so that the draft is a profile whose guesses can be
+            // confirmed (a draft that does not load proposes nothing).
+            string shared = string.Concat(SharedBits(blocks).Select(b => reading.Mapping.Bit(b) == 1 ? '1' : '0'));
+            for (int length = syncBits.Length + 1; length <= shared.Length; length++)
+            {
+                if (BitPatterns.FirstMatch(BitPatterns.Alternating, shared[..length]) >= length)
+                {
+                    syncBits = shared[..length];
+                    syncLengthened = true;
+                    break;
+                }
+            }
+        }
+
         bool risingFirst = risingOnes * 2 >= firstOnes;
         string oneIs = risingFirst == (reading.Mapping.OneSymbol == 1) ? "rising" : "falling";
         var proposal = new FamilyProposal();
@@ -186,13 +213,26 @@ public sealed class BiphaseDrafter : IFamilyDrafter
             proposal.Measured("biphase.leadInMinimumBits", F(minimum), 0.85, $"a quarter (at most {MostLeadIn}) of the shortest lead-in seen ({shortest} zeros)");
         }
         proposal.Measured("biphase.syncBits", syncBits, proven ? 0.9 : 0.4,
-            $"{blocks.Count} blocks begin alike for {reading.CommonPrefix} bits from the {(alternating ? "preamble's last bit" : "first 1 after their lead-in")}; " + (proven ? "the check value holds when bytes start after this sync" : "the shortest sync whose framing holds is drafted"));
+            $"{blocks.Count} blocks begin alike for {reading.CommonPrefix} bits from the {(alternating ? "preamble's last bit" : "first 1 after their lead-in")}; " + (proven ? "the check value holds when bytes start after this sync" : syncLengthened ? "no check value places the bytes; drafted up to the first bit that breaks the preamble's alternation" : "the shortest sync whose framing holds is drafted"));
         Framing(proposal, reading.Framing, proven, reading.FramingShare, proven && !reading.OrderAmbiguous, OrderEvidence(reading));
         Layout(proposal, reading.Layout);
         AmbiguousOrder(proposal, reading);
         AbsorbedSync(proposal, reading, "biphase.syncBits");
         proposal.Notes.Add($"Read through detector setting {survey.Setting.Name}: {blocks.Count} blocks after {(alternating ? "alternating preambles" : "lead-ins of equal bits")}; {reading.Candidates} readings of sync and framing held.");
         return proposal;
+    }
+
+    /// <summary>The symbols most blocks share from their start, up to where fewer than seven in ten agree (at most 64).</summary>
+    private static int[] SharedBits(List<int[]> blocks)
+    {
+        int length = Math.Min(64, SyncFormatSearch.CommonPrefix(blocks));
+        var shared = new int[length];
+        for (int i = 0; i < length; i++)
+        {
+            shared[i] = blocks.Where(b => b.Length > i).GroupBy(b => b[i]).OrderByDescending(g => g.Count()).First().Key;
+        }
+
+        return shared;
     }
 
     /// <summary>Runs of at least <paramref name="least"/> intervals of one kind (0 half, 1 whole), as (start, length).</summary>
