@@ -49,10 +49,7 @@ public static class ProfileDrafter
             // A family that fits the intervals may still read nothing (biphase's half and whole cells look like two
             // tones): its reason is kept, and the family is tried through the next setting's survey where that one
             // sees the family otherwise (other groups or runs), then the next family.
-            // A reading that cannot be written as a profile (a sync too short to be found, say) is a refusal of that
-            // survey only: the edges another setting gives may read the same blocks whole.
             FamilyProposal? proposal = null;
-            ProfileDraft? draft = null;
             FamilyScore score = scores[rank].Score;
             var seen = new HashSet<string>();
             foreach (var through in surveys.Take(MostSurveys))
@@ -66,27 +63,34 @@ public static class ProfileDrafter
                 try
                 {
                     proposal = drafter.Draft(through, cancellation);
-                    if (proposal is not null)
-                    {
-                        draft = Assemble(stretch, drafter.Family, 0.5, fit, proposal, allScores, []);
-                        score = fit;
-                        break;
-                    }
                 }
                 catch (ProfileDraftException e)
                 {
                     refusals.Add(e.Message);
                 }
-                catch (ProfileException e)
-                {
-                    refusals.Add($"The {drafter.Family} reading found through setting {through.Setting.Name} cannot be a profile: {e.Message}");
-                }
 
-                proposal = null;
+                if (proposal is not null)
+                {
+                    score = fit;
+                    break;
+                }
             }
 
-            if (proposal is null || draft is null)
+            if (proposal is null)
             {
+                continue;
+            }
+
+            ProfileDraft draft;
+            try
+            {
+                draft = Assemble(stretch, drafter.Family, 0.5, score, proposal, allScores, []);
+            }
+            catch (ProfileException e)
+            {
+                // What this family found cannot be written as a profile (a sync too short to be found, say): its
+                // reason is kept, and the next family is tried.
+                refusals.Add($"The {drafter.Family} reading found cannot be a profile: {e.Message}");
                 continue;
             }
 
