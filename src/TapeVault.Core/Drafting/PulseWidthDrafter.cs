@@ -29,12 +29,10 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
     public const int LeastGapCycles = 16;
 
     /// <summary>
-    /// A class may be rare: a sync pulse comes once a block, one cycle in a thousand or so, and fewer where lead-ins and
-    /// blocks are long (a lead-in of a second of 390 µs cycles before 150 bytes of eleven bits: one sync cycle in about
-    /// 4000, a share of 0.00025). Groups this small count here, where the survey (which judges structure) leaves them out; a group must
-    /// still hold four cycles (<see cref="IntervalClusters.Find"/>).
+    /// A class may be rare: a sync pulse comes once a block, one cycle in a thousand or so. Groups this small count
+    /// here, where the survey (which judges structure) leaves them out.
     /// </summary>
-    public const double RareClassShare = 0.0002;
+    public const double RareClassShare = 0.0005;
 
     /// <summary>How far (as a log ratio, about 8 %) a cycle may lie from its class's centre to count as close to it.</summary>
     private const double CloseRatio = 0.077;
