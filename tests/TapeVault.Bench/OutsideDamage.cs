@@ -1,6 +1,7 @@
 using System.Diagnostics;
 using System.Globalization;
 using TapeVault.Core.Formats;
+using TapeVault.Tests.Shared;
 
 namespace TapeVault.Bench;
 
@@ -150,29 +151,6 @@ public static class OutsideDamage
         bits.Append(framing.StopBits);
     }
 
-    /// <summary>
-    /// Bits as 0/1 text, padded with mark to whole bytes and packed eight a byte least significant first: what
-    /// minimodem's transmitter takes with <c>--startbits 0 --stopbits 0</c> (no framing of its own; minimodem(1)).
-    /// </summary>
-    private static byte[] PackRawBits(System.Text.StringBuilder bits)
-    {
-        while (bits.Length % 8 != 0)
-        {
-            bits.Append('1');
-        }
-
-        var packed = new byte[bits.Length / 8];
-        for (int i = 0; i < bits.Length; i++)
-        {
-            if (bits[i] == '1')
-            {
-                packed[i / 8] |= (byte)(1 << (i % 8));
-            }
-        }
-
-        return packed;
-    }
-
     public static void MinimodemCapture(string path, FormatProfile profile, IReadOnlyList<byte[]> blocks, int sampleRate, double leadInSeconds, double volume)
     {
         var fsk = profile.Fsk ?? throw new ArgumentException("minimodem writes FSK profiles only.", nameof(profile));
@@ -233,7 +211,7 @@ public static class OutsideDamage
                 }
 
                 Run(MinimodemPath, ["--tx", F(fsk.Baud), "--mark", F(fsk.MarkHz), "--space", F(fsk.SpaceHz), "--startbits", "0", "--stopbits", "0",
-                    "--volume", F(volume), "-R", r, "-f", tones], PackRawBits(bits));
+                    "--volume", F(volume), "-R", r, "-f", tones], MinimodemRawBits.Pack(bits));
             }
 
             parts.Add(tones);

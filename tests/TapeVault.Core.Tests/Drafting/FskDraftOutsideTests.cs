@@ -5,6 +5,7 @@ using TapeVault.Core.Decoding;
 using TapeVault.Core.Drafting;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Tests.OutsideChecks;
+using TapeVault.Tests.Shared;
 using Xunit;
 using Xunit.Abstractions;
 
@@ -134,7 +135,7 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
         }
 
         bits.Append('1', Baud / 2);
-        var packed = OutsideTool.MinimodemRawBits(bits);
+        var packed = MinimodemRawBits.Pack(bits);
 
         OutsideTool.Run(
             OutsideTool.MinimodemPath,

@@ -6,6 +6,7 @@ using TapeVault.Core.Blocks;
 using TapeVault.Core.Decoding;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
+using TapeVault.Tests.Shared;
 using Xunit;
 
 namespace TapeVault.Core.Tests.OutsideChecks;
@@ -215,7 +216,7 @@ public sealed class LeaderFamilyOutsideTests(LeaderFamilySources sources) : ICla
         }
 
         bits.Append('1', 120);
-        var packed = OutsideTool.MinimodemRawBits(bits);
+        var packed = MinimodemRawBits.Pack(bits);
 
         Assert.Equal(1200.0, profile.Fsk!.Baud);
         string path = sources.Temp.File($"{name}.wav");

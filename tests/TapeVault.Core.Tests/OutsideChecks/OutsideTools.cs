@@ -91,29 +91,6 @@ internal static class OutsideTool
     }
 
     /// <summary>Runs SoX with <c>-R</c> (SoX's repeatable random numbers, so dither and noise are the same every run).</summary>
-    /// <summary>
-    /// Bits written as 0/1 text, padded with mark (1) to a whole byte and packed eight a byte least significant first:
-    /// what minimodem's transmitter takes as raw bits with no start or stop bits of its own.
-    /// </summary>
-    public static byte[] MinimodemRawBits(System.Text.StringBuilder bits)
-    {
-        while (bits.Length % 8 != 0)
-        {
-            bits.Append('1');
-        }
-
-        var packed = new byte[bits.Length / 8];
-        for (int i = 0; i < bits.Length; i++)
-        {
-            if (bits[i] == '1')
-            {
-                packed[i / 8] |= (byte)(1 << (i % 8));
-            }
-        }
-
-        return packed;
-    }
-
     public static void Sox(params string[] arguments) => Run(SoxPath, ["-R", .. arguments]);
 
     /// <summary>
