@@ -44,15 +44,7 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
             blocks.Add(block);
         }
 
-        string tones = folder.File("fsk-300-odd.minimodem.wav");
-        MinimodemWrite(blocks, tones, withCrc: true);
-        string capture = folder.File("fsk-300-odd.lowpass.wav");
-        OutsideTool.Sox(tones, capture, "lowpass", "1700");
-
-        var draft = ProfileDrafter.Draft(capture);
-        output.WriteLine(draft.Json);
-        output.WriteLine(draft.SideListJson());
-        var profile = draft.Load();
+        var (capture, profile) = DraftOfLowPassedTones(blocks, "fsk-300-odd", withCrc: true);
 
         Assert.Equal(FormatFamily.Fsk, profile.Family);
 
@@ -87,15 +79,7 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
             blocks.Add(block);
         }
 
-        string tones = folder.File("fsk-300-stream.minimodem.wav");
-        MinimodemWrite(blocks, tones, withCrc: false);
-        string capture = folder.File("fsk-300-stream.lowpass.wav");
-        OutsideTool.Sox(tones, capture, "lowpass", "1700");
-
-        var draft = ProfileDrafter.Draft(capture);
-        output.WriteLine(draft.Json);
-        output.WriteLine(draft.SideListJson());
-        var profile = draft.Load();
+        var (_, profile) = DraftOfLowPassedTones(blocks, "fsk-300-stream", withCrc: false);
 
         // Outside reference: minimodem's arguments (--tx 300 --mark 2400 --space 1200), and the 8O1 framing given it.
         Assert.Equal(FormatFamily.Fsk, profile.Family);
@@ -103,6 +87,23 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
         Assert.InRange(profile.Fsk.SpaceHz, 1200 * 0.98, 1200 * 1.02);
         Assert.InRange(profile.Fsk.Baud, Baud * 0.98, Baud * 1.02);
         Assert.Equal(Parity.Odd, profile.Framing.Parity);
+    }
+
+    /// <summary>
+    /// minimodem's tones of <paramref name="blocks"/> (<see cref="MinimodemWrite"/>) through SoX's low-pass at 1.7 kHz,
+    /// drafted; the draft and its side list are written to the test's output. Returns the capture and the draft loaded.
+    /// </summary>
+    private (string Capture, FormatProfile Profile) DraftOfLowPassedTones(List<byte[]> blocks, string name, bool withCrc)
+    {
+        string tones = folder.File($"{name}.minimodem.wav");
+        MinimodemWrite(blocks, tones, withCrc);
+        string capture = folder.File($"{name}.lowpass.wav");
+        OutsideTool.Sox(tones, capture, "lowpass", "1700");
+
+        var draft = ProfileDrafter.Draft(capture);
+        output.WriteLine(draft.Json);
+        output.WriteLine(draft.SideListJson());
+        return (capture, draft.Load());
     }
 
     /// <summary>
