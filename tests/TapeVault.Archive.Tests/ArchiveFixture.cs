@@ -13,6 +13,7 @@ using TapeVault.Archive.Tests.PostgreSql;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
+using Xunit;
 
 namespace TapeVault.Archive.Tests;
 
@@ -110,6 +111,18 @@ public sealed class ArchiveFixture : IAsyncDisposable
         }
 
         Directory.Delete(Root, recursive: true);
+    }
+
+    /// <summary>The SHA-256 GNU sha256sum gives one file (the first field of its line): the outside reference.</summary>
+    public static string Sha256Sum(string path)
+    {
+        var start = new ProcessStartInfo("/usr/bin/sha256sum") { RedirectStandardOutput = true, RedirectStandardError = true };
+        start.ArgumentList.Add(path);
+        using var process = Process.Start(start)!;
+        string output = process.StandardOutput.ReadToEnd();
+        process.WaitForExit();
+        Assert.Equal(0, process.ExitCode);
+        return output.Split(' ', 2)[0];
     }
 
     /// <summary>Runs GNU sha256sum -c on a checksum file in <paramref name="folder"/>; returns its exit code and output.</summary>

@@ -1,4 +1,3 @@
-using System.Diagnostics;
 using System.Globalization;
 using System.IO.Compression;
 using Microsoft.EntityFrameworkCore;
@@ -54,7 +53,7 @@ public sealed class PublicationEventTests
             var published = Assert.Single(events);
             Assert.Equal(EventTypes.Export, published.EventType);
             Assert.Equal(("collection", archive.CollectionId.ToString(CultureInfo.InvariantCulture), (int?)null), (published.ObjectType, published.ObjectId, published.ItemId));
-            Assert.Contains($"SHA256SUMS has SHA-256 {GnuSha256(folder, "SHA256SUMS")}.", published.Detail, StringComparison.Ordinal);
+            Assert.Contains($"SHA256SUMS has SHA-256 {ArchiveFixture.Sha256Sum(Path.Combine(folder, "SHA256SUMS"))}.", published.Detail, StringComparison.Ordinal);
             Assert.Equal(0, ArchiveFixture.Sha256SumCheck(folder, "SHA256SUMS").ExitCode);
         }
 
@@ -79,17 +78,5 @@ public sealed class PublicationEventTests
     {
         await using var db = archive.NewContext();
         return await db.Events.AsNoTracking().Where(e => e.Id > id).OrderBy(e => e.Id).ToListAsync();
-    }
-
-    /// <summary>The SHA-256 GNU sha256sum gives a file (the first field of its line).</summary>
-    private static string GnuSha256(string folder, string file)
-    {
-        var start = new ProcessStartInfo("/usr/bin/sha256sum") { WorkingDirectory = folder, RedirectStandardOutput = true };
-        start.ArgumentList.Add(file);
-        using var process = Process.Start(start)!;
-        string line = process.StandardOutput.ReadToEnd();
-        process.WaitForExit();
-        Assert.Equal(0, process.ExitCode);
-        return line.Split(' ', 2)[0];
     }
 }

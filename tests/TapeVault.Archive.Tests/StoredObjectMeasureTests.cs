@@ -1,4 +1,3 @@
-using System.Diagnostics;
 using TapeVault.Archive.Storage;
 using Xunit;
 
@@ -26,7 +25,7 @@ public sealed class StoredObjectMeasureTests
         // Outside reference: GNU coreutils' sha256sum over the stored file (FIPS 180-4 SHA-256), and the file's length as
         // the file system gives it.
         Assert.NotNull(facts);
-        Assert.Equal(Sha256Sum(store.PathOf(staged.Sha256)), facts.Sha256);
+        Assert.Equal(ArchiveFixture.Sha256Sum(store.PathOf(staged.Sha256)), facts.Sha256);
         Assert.Equal(new FileInfo(store.PathOf(staged.Sha256)).Length, facts.Length);
         Assert.Equal(bytes.LongLength, facts.Length);
         Assert.Equal(facts.Sha256, await store.HashStoredAsync(staged.Sha256));
@@ -34,16 +33,5 @@ public sealed class StoredObjectMeasureTests
         File.Delete(store.PathOf(staged.Sha256));
         Assert.Null(await store.MeasureStoredAsync(staged.Sha256));
         Assert.Null(await store.HashStoredAsync(staged.Sha256));
-    }
-
-    private static string Sha256Sum(string path)
-    {
-        var start = new ProcessStartInfo("/usr/bin/sha256sum") { RedirectStandardOutput = true, RedirectStandardError = true };
-        start.ArgumentList.Add(path);
-        using var process = Process.Start(start)!;
-        string output = process.StandardOutput.ReadToEnd();
-        process.WaitForExit();
-        Assert.Equal(0, process.ExitCode);
-        return output.Split(' ', 2)[0];
     }
 }

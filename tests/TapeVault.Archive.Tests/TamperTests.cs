@@ -169,7 +169,7 @@ public sealed class TamperTests
         Assert.Contains(Lines(output, "CONTRADICTION"), l => l.Contains($"capture {captureId} ", StringComparison.Ordinal) && l.Contains("no object row", StringComparison.Ordinal));
 
         // The file no row names is reported with its hash (GNU sha256sum's, outside the project) and the capture it holds.
-        string actual = Sha256Sum(archive.Store.PathOf(sha));
+        string actual = ArchiveFixture.Sha256Sum(archive.Store.PathOf(sha));
         Assert.Equal(sha, actual);
         Assert.Contains(Lines(output, "UNRECORDED"), l => l.Contains($"capture {captureId} ", StringComparison.Ordinal) && l.Contains($"SHA-256 {actual}", StringComparison.Ordinal));
         Assert.True(File.Exists(archive.Store.PathOf(sha)), "The audit must not move or remove the file.");
@@ -265,14 +265,4 @@ public sealed class TamperTests
 
     private static List<string> Lines(string output, string problem) =>
         [.. output.Split('\n').Where(l => l.StartsWith(problem, StringComparison.Ordinal))];
-
-    private static string Sha256Sum(string path)
-    {
-        var start = new System.Diagnostics.ProcessStartInfo("/usr/bin/sha256sum") { RedirectStandardOutput = true };
-        start.ArgumentList.Add(path);
-        using var process = System.Diagnostics.Process.Start(start)!;
-        string line = process.StandardOutput.ReadToEnd();
-        process.WaitForExit();
-        return line.Split(' ')[0];
-    }
 }
