@@ -46,12 +46,7 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
 
         var (capture, profile) = DraftOfLowPassedTones(blocks, "fsk-300-odd", withCrc: true);
 
-        Assert.Equal(FormatFamily.Fsk, profile.Family);
-
-        // Outside reference: minimodem's arguments (--tx 300 --mark 2400 --space 1200).
-        Assert.InRange(profile.Fsk!.MarkHz, 2400 * 0.98, 2400 * 1.02);
-        Assert.InRange(profile.Fsk.SpaceHz, 1200 * 0.98, 1200 * 1.02);
-        Assert.InRange(profile.Fsk.Baud, Baud * 0.98, Baud * 1.02);
+        AssertMinimodemTones(profile);
         Assert.Equal(8, profile.Framing.DataBits);
         Assert.Equal(Parity.Odd, profile.Framing.Parity);
 
@@ -81,12 +76,17 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
 
         var (_, profile) = DraftOfLowPassedTones(blocks, "fsk-300-stream", withCrc: false);
 
-        // Outside reference: minimodem's arguments (--tx 300 --mark 2400 --space 1200), and the 8O1 framing given it.
+        AssertMinimodemTones(profile);
+        Assert.Equal(Parity.Odd, profile.Framing.Parity);
+    }
+
+    /// <summary>The draft is FSK at minimodem's tones and rate (outside reference: its arguments --tx 300 --mark 2400 --space 1200).</summary>
+    private static void AssertMinimodemTones(FormatProfile profile)
+    {
         Assert.Equal(FormatFamily.Fsk, profile.Family);
         Assert.InRange(profile.Fsk!.MarkHz, 2400 * 0.98, 2400 * 1.02);
         Assert.InRange(profile.Fsk.SpaceHz, 1200 * 0.98, 1200 * 1.02);
         Assert.InRange(profile.Fsk.Baud, Baud * 0.98, Baud * 1.02);
-        Assert.Equal(Parity.Odd, profile.Framing.Parity);
     }
 
     /// <summary>
