@@ -45,6 +45,6 @@ public sealed partial class BlockAssembler
         // A length nothing gave (an earlier block that was not read) is what the marker says.
         bool shortOfLayout = _bytes.Count < _layout.HeaderBytes + _scorer.ChecksumBytes
             || (_expectedTotal != int.MaxValue && _bytes.Count < _expectedTotal);
-        Emit(sample, truncated: !_layout.IsStream && shortOfLayout);
+        Emit(sample, truncated: !_layout.IsStream && shortOfLayout, atMarker: true);
     }
 }

@@ -187,19 +187,29 @@ public sealed partial class BlockAssembler : IBlockSink
         Emit(sample, truncated: !_layout.IsStream);
     }
 
-    private void Emit(double endSample, bool truncated)
+    /// <param name="atMarker">The block ended at the end marker its format writes.</param>
+    private void Emit(double endSample, bool truncated, bool atMarker = false)
     {
         InBlock = false;
         var all = _bytes.ToArray();
         var evidence = _evidence;
         int framingErrors = _framingErrors;
-        bool lengthUnproven = _kinds.Many && !truncated && _layout.LengthRule is not null && _kinds.PayloadFromRule() is null;
-        if (_kinds.Many && !truncated && _layout.LengthRule is not null && _kinds.PayloadFromRule() is { } given
-            && given != all.Length - _layout.HeaderBytes - _scorer.ChecksumBytes)
+        var end = BlockEndEvidence.OwnBytes;
+        if (_kinds.Many && !truncated && _layout.LengthRule is not null)
         {
-            // A kind whose length an earlier block gives, ended at a marker at another length: a marker was lost or
-            // gained on the way, a framing error.
-            framingErrors++;
+            long? given = _kinds.PayloadFromRule();
+            end = given is null ? BlockEndEvidence.MarkerOnly : BlockEndEvidence.OwnBytes;
+            if (given is { } length && length != all.Length - _layout.HeaderBytes - _scorer.ChecksumBytes)
+            {
+                // A kind whose length an earlier block gives, ended at a marker at another length: a marker was lost or
+                // gained on the way, a framing error.
+                framingErrors++;
+            }
+            else if (given is not null && atMarker)
+            {
+                // Ended at its marker, where the earlier block said it would.
+                end = BlockEndEvidence.MarkerAtGivenLength;
+            }
         }
 
         if (_kinds.Many)
@@ -216,7 +226,7 @@ public sealed partial class BlockAssembler : IBlockSink
             evidence = BlockStartEvidence.None;
         }
 
-        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, framingErrors, _guessedDecisions, evidence, truncated, lengthUnproven);
+        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, framingErrors, _guessedDecisions, evidence, truncated, end);
         int headerBytes = score.HeaderBytes;
         int payloadEnd = score.PayloadEnd;
         var header = all.AsSpan(0, headerBytes);

@@ -22,6 +22,22 @@ public enum BlockStartEvidence
     SelfAligned,
 }
 
+/// <summary>What, beside the block's own bytes, said where a block ends.</summary>
+public enum BlockEndEvidence
+{
+    /// <summary>Nothing but its own bytes: the layout's fixed length, or a length field among the bytes read.</summary>
+    OwnBytes,
+
+    /// <summary>Only the format's end marker: a kind whose length an earlier block gives, read without that block.</summary>
+    MarkerOnly,
+
+    /// <summary>
+    /// The format's end marker, read where an earlier block's length field said the block would end: two marks on tape,
+    /// neither of them this block's bytes, that agree.
+    /// </summary>
+    MarkerAtGivenLength,
+}
+
 /// <summary>Why a block is not clean, or what lowers the trust in it; several may hold at once.</summary>
 [Flags]
 public enum BlockDoubts
@@ -39,7 +55,9 @@ public enum BlockDoubts
 
     /// <summary>
     /// The check holds, but over bytes that give it for free: every covered byte and every check byte alike (a zero-init
-    /// CRC, xor8 or sum8 over zeros), or nothing covered at all. A stuck line or a steady tone reads as such a run.
+    /// CRC, xor8 or sum8 over zeros), or nothing covered at all. A stuck line or a steady tone reads as such a run. Not
+    /// a doubt where marks on tape that are not the block's bytes place it (a sync the format declares, read whole, and
+    /// an end marker where an earlier block's length said the block ends): a stuck line makes neither.
     /// </summary>
     AllAlikeCheck = 8,
 
