@@ -71,10 +71,11 @@ internal sealed class BlockMerge
     public List<ImageBlock> Resolve()
     {
         var groups = GroupEntries();
+        var readsClean = ReadsClean(groups);
         var blocks = new List<ImageBlock>(groups.Count);
         foreach (var group in groups)
         {
-            if (ResolvePosition(group) is { } block)
+            if (ResolvePosition(group, readsClean) is { } block)
             {
                 blocks.Add(block);
             }
@@ -280,7 +281,57 @@ internal sealed class BlockMerge
     /// <summary>An identity key with neither file name nor file id (a block of a later kind read without its header).</summary>
     private static bool Unnamed(string key) => key.StartsWith(':');
 
-    private ImageBlock? ResolvePosition(Group group)
+    /// <summary>
+    /// Per pass, the chance that it reads a block of this tape clean, as the tape shows it: of the positions some pass
+    /// read clean, the share that this pass read clean too (with one position read and one missed added, so that a
+    /// tape of few positions says little either way).
+    /// </summary>
+    private double[] ReadsClean(List<Group> groups)
+    {
+        var hits = new int[_passes.Count];
+        int tries = 0;
+        foreach (var group in groups)
+        {
+            if (!group.Entries.Exists(e => e.Readings.Exists(c => c.Status == BlockStatus.Clean)))
+            {
+                continue;
+            }
+
+            tries++;
+            foreach (int pass in group.Entries.Where(e => e.Readings.Exists(c => c.Status == BlockStatus.Clean)).Select(e => e.Pass).Distinct())
+            {
+                hits[pass]++;
+            }
+        }
+
+        return [.. hits.Select(h => (h + 1.0) / (tries + 2.0))];
+    }
+
+    /// <summary>
+    /// The chance that a content no two captures proved is right, given the other passes, none of which read it with a
+    /// check that holds. Its witnesses' confidence is the rate at which such readings are right over all readings, most
+    /// of them of positions that another capture then proved; a block that is there is read by most passes (each with
+    /// its odds <paramref name="readsClean"/> on this tape), a wrong or phantom one by none, so each pass that missed
+    /// the content weighs against it by Bayes.
+    /// </summary>
+    private static double Unconfirmed(double confidence, IEnumerable<int> witnessPasses, double[] readsClean)
+    {
+        var witnesses = witnessPasses.ToHashSet();
+        double logMissed = 0;
+        for (int pass = 0; pass < readsClean.Length; pass++)
+        {
+            if (!witnesses.Contains(pass))
+            {
+                logMissed += Math.Log(1 - readsClean[pass]);
+            }
+        }
+
+        double right = Math.Clamp(confidence, 0, 1) * Math.Exp(logMissed);
+        double wrong = 1 - Math.Clamp(confidence, 0, 1);
+        return right + wrong <= 0 ? 0 : right / (right + wrong);
+    }
+
+    private ImageBlock? ResolvePosition(Group group, double[] readsClean)
     {
         var readings = new List<(BlockCandidate Candidate, int Pass)>();
         foreach (var e in group.Entries)
@@ -313,7 +364,14 @@ internal sealed class BlockMerge
         // as voted at its own confidence rather than listed missing.
         var voted = ResolveByVote(readings);
         var weak = readings.Where(r => IsOnlyUncorroborated(r.Candidate)).ToList();
-        return voted is { Status: not RecoveryStatus.Missing } || weak.Count == 0 ? voted : ResolveClean(weak, RecoveryStatus.Voted);
+        if (voted is { Status: not RecoveryStatus.Missing } || weak.Count == 0)
+        {
+            return voted;
+        }
+
+        var kept = ResolveClean(weak, RecoveryStatus.Voted);
+        var witnessPasses = weak.Where(r => r.Candidate.Header.SequenceEqual(kept.Header) && r.Candidate.Payload.SequenceEqual(kept.Payload)).Select(r => r.Pass);
+        return kept with { Confidence = Unconfirmed(kept.Confidence, witnessPasses, readsClean) };
     }
 
     /// <summary>A reading whose weak check holds and that nothing but a want of corroboration keeps from being clean.</summary>

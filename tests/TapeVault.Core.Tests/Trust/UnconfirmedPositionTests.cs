@@ -1,0 +1,59 @@
+using TapeVault.Core.Blocks;
+using TapeVault.Core.Formats;
+using TapeVault.Core.Image;
+using TapeVault.Core.Merge;
+using TapeVault.Core.Tests.Merge;
+using Xunit;
+
+namespace TapeVault.Core.Tests.Trust;
+
+/// <summary>
+/// A position that no two captures proved, kept from one capture's reading whose weak check holds. That reading's
+/// confidence is the rate at which such readings are right over all of them, and most of those are of blocks that the
+/// other captures read too. A block that is there is read by most passes; a wrong or phantom reading by none. So the
+/// passes that read the tape's other blocks clean and not this one weigh against it, and a failed position does not
+/// claim the near certainty of a proven one.
+/// </summary>
+public sealed class UnconfirmedPositionTests
+{
+    private static readonly FormatProfile Sum8 = Readings.BiphaseWith("sum8");
+
+    /// <summary>Block 1 as one capture read it: its 8-bit sum holds, its decisions are doubtful (a byte in five), nothing corroborates it.</summary>
+    private static BlockCandidate Unproven() =>
+        Readings.Of(Sum8, Readings.Written(Sum8, 1), 2.0, 1, baseError: 0.2f) with { Status = BlockStatus.Failed, Doubts = BlockDoubts.Uncorroborated, Confidence = 0.9974 };
+
+    private static MergePass Pass(int capture, bool withBlock1) =>
+        Readings.Pass(capture, [
+            Readings.Of(Sum8, Readings.Written(Sum8, 0), 1.0, 0),
+            .. withBlock1 ? new[] { Unproven() } : [],
+            Readings.Of(Sum8, Readings.Written(Sum8, 2), 3.0, withBlock1 ? 2 : 1),
+        ]);
+
+    [Fact]
+    public void A_block_one_capture_of_three_read_under_a_weak_check_is_not_shown_near_certain()
+    {
+        // Three captures read blocks 0 and 2 clean; only the first read anything of block 1.
+        var image = TapeMerger.Merge([Pass(0, withBlock1: true), Pass(1, withBlock1: false), Pass(2, withBlock1: false)], Sum8);
+
+        var block = image.Blocks.Single(b => b.BlockNumber == 1);
+        Assert.Equal(RecoveryStatus.Voted, block.Status);
+        Assert.True(block.Confidence < 0.99, $"a failed position at {block.Confidence}");
+
+        // By Bayes: each other pass read 2 of the tape's 2 proven blocks, so (2 + 1) / (2 + 2) = 3/4 by the merge's
+        // estimate; both missing block 1 is 1/16 as likely if it is there as if it is not.
+        double right = 0.9974 / 16;
+        Assert.Equal(right / (right + (1 - 0.9974)), block.Confidence, 6);
+        Assert.All(image.Blocks.Where(b => b.BlockNumber != 1), b => Assert.Equal(RecoveryStatus.Clean, b.Status));
+    }
+
+    [Fact]
+    public void A_block_of_a_tape_read_once_keeps_its_reading_s_confidence()
+    {
+        // No other capture looked: nothing weighs against the reading.
+        var image = TapeMerger.Merge([Pass(0, withBlock1: true)], Sum8);
+
+        var block = image.Blocks.Single(b => b.BlockNumber == 1);
+        Assert.Equal(RecoveryStatus.Voted, block.Status);
+        Assert.Equal(0.9974, block.Confidence, 9);
+    }
+}
