@@ -255,8 +255,8 @@ public sealed class CuratorJourneyTests(ITestOutputHelper log)
         await page.GotoAsync(jobsPage);
 
         // The wait is on the jobs' own state, within one step's timeout (each wait took 2–5 s at a load average of 70
-        // on 2 cores); a job that fails ends the wait at once and the checks below say why. Polled on a timer, not on
-        // animation frames.
+        // on 2 cores, 8–22 s at 100); a job that fails ends the wait at once and the checks below say why. Polled on a
+        // timer, not on animation frames.
         await page.WaitForFunctionAsync(
             """
             count => {
