@@ -18,6 +18,13 @@ public sealed class Browser : IAsyncDisposable
 
     private Browser(IPlaywright playwright) => this.playwright = playwright;
 
+    /// <summary>
+    /// How long one step waits (a page view, an element, an action): on two cores busy with a build or a bench beside
+    /// the run, one page view of the app (a process started cold, its first views compiled by the JIT) has taken longer
+    /// than 30 s. A page that never comes still fails the test.
+    /// </summary>
+    public static readonly TimeSpan StepTimeout = TimeSpan.FromSeconds(90);
+
     /// <summary>Screenshots go here (the test results folder at the top of the repository), one per step, for people to look at.</summary>
     public static string ScreenshotFolder { get; } = Directory.CreateDirectory(Path.Combine(AppProcess.RepositoryRoot(), "TestResults", "browser")).FullName;
 
@@ -44,11 +51,8 @@ public sealed class Browser : IAsyncDisposable
             ViewportSize = new ViewportSize { Width = 1280, Height = 900 },
         });
         contexts.Add((context, profile));
-        // A step waits up to 90 s: on two cores busy with a build or a bench beside the run, one page view of the app
-        // (a process started cold, its first views compiled by the JIT) has taken longer than 30 s. A page that never
-        // comes still fails the test.
-        context.SetDefaultTimeout(90_000);
-        context.SetDefaultNavigationTimeout(90_000);
+        context.SetDefaultTimeout((float)StepTimeout.TotalMilliseconds);
+        context.SetDefaultNavigationTimeout((float)StepTimeout.TotalMilliseconds);
         return context.Pages.Count > 0 ? context.Pages[0] : await context.NewPageAsync();
     }
 

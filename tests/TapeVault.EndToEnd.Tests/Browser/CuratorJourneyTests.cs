@@ -1,3 +1,4 @@
+using System.Diagnostics;
 using System.IO.Compression;
 using System.Security.Cryptography;
 using System.Text;
@@ -6,11 +7,16 @@ using TapeVault.Core.Blocks;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
 using Xunit;
+using Xunit.Abstractions;
 
 namespace TapeVault.EndToEnd.Tests;
 
-/// <summary>The whole job as a new curator does it, in a real browser against the app running as a real process.</summary>
-public sealed class CuratorJourneyTests
+/// <summary>
+/// The whole job as a new curator does it, in a real browser against the app running as a real process. The app's
+/// pages reload themselves (the tape's page after an upload, and once the jobs it follows are over); every step waits
+/// for such a reload to land, or acts on a page that has none to come, so that no step straddles one.
+/// </summary>
+public sealed class CuratorJourneyTests(ITestOutputHelper log)
 {
     private const string Collection = "Browser test shelf";
     private const string Accession = "WEB-0001";
@@ -42,17 +48,38 @@ public sealed class CuratorJourneyTests
         await page.WaitForURLAsync("**/items/*");
         var itemUrl = page.Url;
 
-        foreach (var capture in captures)
+        var storedCaptures = page.Locator("table.grid >> tbody >> tr:has(a[download])");
+        for (int stored = 0; stored < captures.Count; stored++)
         {
+            var capture = captures[stored];
             await page.SetInputFilesAsync("#file", capture);
             await page.FillAsync("#deck", "bench deck");
 
             // The form decodes with the whole bank unless told not to; this journey decodes by hand below.
             Assert.NotEqual(string.Empty, await page.InputValueAsync("#decodeProfile"));
             await page.SelectOptionAsync("#decodeProfile", string.Empty);
+
+            // What the upload's progress line and bar say when it ends, read by the page itself the moment they change:
+            // 1.2 s later the page reloads to list the new capture, so a look taken after that could find them gone.
+            await page.EvaluateAsync(
+                """
+                () => {
+                  const text = document.getElementById('upload-text');
+                  window.uploadEnded = new Promise(resolve => new MutationObserver(() => {
+                    if (/Stored as capture|Not stored|cut off/.test(text.textContent)) {
+                      resolve([text.textContent, String(document.getElementById('upload-bar').value)]);
+                    }
+                  }).observe(text, { childList: true, characterData: true, subtree: true }));
+                }
+                """);
+            var ended = page.EvaluateAsync<string[]>("() => window.uploadEnded");
             await page.ClickAsync("#upload button[type=submit]");
-            await page.WaitForFunctionAsync("() => document.getElementById('upload-text')?.textContent.includes('Stored as capture')");
-            Assert.Equal("100", await page.GetAttributeAsync("#upload-bar", "value") ?? await page.EvalOnSelectorAsync<string>("#upload-bar", "e => String(e.value)"));
+            var said = await ended.WaitAsync(Browser.StepTimeout);
+            Assert.Contains("Stored as capture", said[0], StringComparison.Ordinal);
+            Assert.Equal("100", said[1]);
+
+            // The page's own reload lists the new capture; the screenshot and the steps below come after it.
+            await storedCaptures.Nth(stored).WaitForAsync();
             await Browser.ShotAsync(page, $"02-uploaded-{Path.GetFileNameWithoutExtension(capture)}");
             await page.GotoAsync(itemUrl);
 
@@ -67,19 +94,20 @@ public sealed class CuratorJourneyTests
             Assert.Equal(0, await notice.CountAsync());
         }
 
-        Assert.Equal(2, await page.Locator("table.grid >> tbody >> tr:has(a[download])").CountAsync());
+        Assert.Equal(2, await storedCaptures.CountAsync());
 
-        // Decode each capture with the whole default bank (every setting ticked).
+        // Decode each capture with the whole default bank (every setting ticked), one after the other: the tape's page
+        // follows its running jobs and reloads itself when they end, which would undo a choice made on it meanwhile.
+        int queued = 0;
         foreach (var option in await page.Locator("#captureId option").AllAsync())
         {
             await page.SelectOptionAsync("#captureId", (await option.GetAttributeAsync("value"))!);
             await page.SelectOptionAsync("#profile", "orrin-80");
             Assert.Equal(8, await page.Locator("fieldset input[type=checkbox]:checked").CountAsync());
             await page.ClickAsync("button:has-text('Start decode')");
-            await page.WaitForURLAsync(itemUrl);
+            await WaitForJobsAsync(page, app, ++queued, $"03-jobs-decoded-{queued}");
+            await page.GotoAsync(itemUrl);
         }
-
-        await WaitForJobsAsync(page, app, "03-jobs-decoded");
 
         // The tape timeline before a merge: both captures have lanes, and the settings that read nothing checkable
         // are folded away behind a count rather than drawn.
@@ -106,7 +134,7 @@ public sealed class CuratorJourneyTests
 
         // Merge, then download the image and check its SHA-256 against the one the page shows.
         await page.ClickAsync("button:has-text('Merge all passes')");
-        await WaitForJobsAsync(page, app, "05-jobs-merged");
+        await WaitForJobsAsync(page, app, ++queued, "05-jobs-merged");
         await page.GotoAsync(itemUrl);
         var shown = (await page.InnerTextAsync("[data-image-sha256]")).Trim();
         var download = await page.RunAndWaitForDownloadAsync(() => page.ClickAsync("[data-image-download]"));
@@ -128,7 +156,7 @@ public sealed class CuratorJourneyTests
         // Publish the catalogue, download it and open it from disk.
         await page.ClickAsync($"a:has-text('{Collection}')");
         await page.ClickAsync("button:has-text('Publish the catalogue')");
-        await WaitForJobsAsync(page, app, "07-jobs-published");
+        await WaitForJobsAsync(page, app, ++queued, "07-jobs-published");
         await page.GotoAsync(new Uri(app.Address, "/collections/1").ToString());
         var zip = await page.RunAndWaitForDownloadAsync(() => page.ClickAsync("a[data-export=catalogue]"));
         var zipPath = Path.Combine(app.Root, "catalogue.zip");
@@ -215,22 +243,38 @@ public sealed class CuratorJourneyTests
         await page.WaitForSelectorAsync("h1:has-text('Collections')");
     }
 
-    /// <summary>Opens the jobs page and waits, watching the live progress, until every job is done at 100 %.</summary>
-    private static async Task WaitForJobsAsync(IPage page, AppProcess app, string shot)
+    /// <summary>
+    /// Opens the jobs page and watches the live progress until it lists the <paramref name="count"/> jobs the journey
+    /// has queued so far and each has ended (done, failed or cancelled); then each must be done at 100 %, or the test
+    /// fails with what the job said.
+    /// </summary>
+    private async Task WaitForJobsAsync(IPage page, AppProcess app, int count, string shot)
     {
-        await page.GotoAsync(new Uri(app.Address, "/jobs").ToString());
+        var jobsPage = new Uri(app.Address, "/jobs").ToString();
+        var clock = Stopwatch.StartNew();
+        await page.GotoAsync(jobsPage);
+
+        // The wait is on the jobs' own state, within one step's timeout (each wait took 2–5 s at a load average of 70
+        // on 2 cores, 8–22 s at 100); a job that fails ends the wait at once and the checks below say why. Polled on a
+        // timer, not on animation frames.
         await page.WaitForFunctionAsync(
-            "() => { const rows = [...document.querySelectorAll('tr[data-job]')]; return rows.length > 0 && rows.every(r => r.querySelector('.job-state').textContent.trim() === 'done' && r.querySelector('progress').value === 1); }",
-            null,
-            new PageWaitForFunctionOptions { Timeout = 90_000 });
+            """
+            count => {
+              const states = [...document.querySelectorAll('tr[data-job] .job-state')].map(s => s.textContent.trim());
+              return states.length >= count && states.every(s => s === 'done' || s === 'failed' || s === 'cancelled');
+            }
+            """,
+            count,
+            new PageWaitForFunctionOptions { PollingInterval = 250 });
+        log.WriteLine($"{shot}: {count} job(s) ended {clock.Elapsed.TotalSeconds:0.0} s after the jobs page was asked for");
 
         // The page reloads itself once its jobs are over; open it afresh (again if that reload cut in) so the
-        // screenshot sees a settled page.
+        // screenshot and the checks below see a settled page.
         for (int attempt = 0; ; attempt++)
         {
             try
             {
-                await page.GotoAsync(new Uri(app.Address, "/jobs").ToString());
+                await page.GotoAsync(jobsPage);
                 break;
             }
             catch (PlaywrightException) when (attempt < 3)
@@ -240,6 +284,15 @@ public sealed class CuratorJourneyTests
         }
 
         await Browser.ShotAsync(page, shot);
+        var rows = await page.Locator("tr[data-job]").AllAsync();
+        Assert.Equal(count, rows.Count);
+        foreach (var row in rows)
+        {
+            string state = (await row.Locator(".job-state").InnerTextAsync()).Trim();
+            string text = (await row.Locator(".job-text").InnerTextAsync()).Trim();
+            Assert.True(state == "done", $"job {await row.GetAttributeAsync("data-job")} ended {state}: {text}");
+            Assert.Equal(1.0, await row.Locator("progress").EvaluateAsync<double>("bar => bar.value"));
+        }
     }
 
     /// <summary>Two passes of one orrin-80 tape from the channel model (the written bytes are the ground truth).</summary>
