@@ -65,7 +65,7 @@ public static class SegmentFit
         double Mapped(Segment s) => curves.TryGetValue(Cell(s), out var c) ? TapeVault.Core.Blocks.ConfidenceMap.Interpolate(c.X, c.Y, s.Confidence) : s.Confidence;
         Console.WriteLine();
         Console.WriteLine($"{"file",-36} {"profile",-9} {"segments",8} {"ECE before",10} {"after",6} {"log-likelihood before",21} {"after",7} {"wrong >= 0.99",13} {"after",5}");
-        foreach (string file in fit.Select(f => (File: f, Kind: "fit")).Concat(check.Select(f => (File: f, Kind: "check"))).Select(x => x.File).Distinct(StringComparer.Ordinal))
+        foreach (string file in fit.Concat(check).Distinct(StringComparer.Ordinal))
         {
             foreach (var group in Read(file).GroupBy(s => s.Profile).OrderBy(g => g.Key, StringComparer.Ordinal))
             {

@@ -173,11 +173,8 @@ internal sealed class StreamPlaces
         return best;
     }
 
-    /// <summary>The fractional written index a capture time lies at in file <paramref name="file"/>, if the file has a line.</summary>
-    public double? IndexIn(int file, double seconds) => _lines[file] is { } line ? (seconds - line.Start) / line.Spacing : null;
-
-    /// <summary>The best file and offset a run lines up with, its count of agreeing characters, and the best count at any other offset.</summary>
-    private static (int File, int Offset, int Count, int Second) Alignments(ReadOnlySpan<byte> run, List<TapeFile> files)
+    /// <summary>The best file and offset a run lines up with (the first of equals), its count of agreeing characters, and the best count at any other offset.</summary>
+    internal static (int File, int Offset, int Count, int Second) Alignments(ReadOnlySpan<byte> run, List<TapeFile> files)
     {
         int bestFile = 0, bestOffset = 0, bestCount = -1, second = -1;
         for (int f = 0; f < files.Count; f++)

@@ -535,26 +535,8 @@ public static class Trust
     /// <summary>The written file and offset a stream segment lines up with best, and how many of its characters agree there.</summary>
     private static (int File, int Offset, int Count) BestAlignment(ReadOnlySpan<byte> run, List<TapeFile> files)
     {
-        int bestFile = 0, bestOffset = 0, bestCount = -1;
-        for (int f = 0; f < files.Count; f++)
-        {
-            var content = files[f].Content;
-            for (int o = -run.Length + 1; o < content.Length; o++)
-            {
-                int count = 0;
-                for (int i = Math.Max(0, -o); i < run.Length && o + i < content.Length; i++)
-                {
-                    count += run[i] == content[o + i] ? 1 : 0;
-                }
-
-                if (count > bestCount)
-                {
-                    (bestFile, bestOffset, bestCount) = (f, o, count);
-                }
-            }
-        }
-
-        return (bestFile, bestOffset, bestCount);
+        var (file, offset, count, _) = StreamPlaces.Alignments(run, files);
+        return (file, offset, count);
     }
 
     /// <summary>Where a wrong stream segment differs from the written bytes it lines up with best: at its first or last two characters (or past a file's end), inside, or both.</summary>
