@@ -63,6 +63,13 @@ if (section == "positions")
     return PositionReplay.Run(args[1..]);
 }
 
+if (section == "segment-fit")
+{
+    // segment-fit --fit DUMPS --check DUMPS [--cells ah|ahl] [--per-profile] [--least N]: whether a map over merged stream
+    // segments' features, fitted on stream-merge dumps of tuning seeds, holds on others (see SegmentFit).
+    return SegmentFit.Run(args[1..]);
+}
+
 if (section == "stream-merge")
 {
     // stream-merge --streams FOLDER [--dump FILE]: merges again the stream tapes a trust run saved (TAPEVAULT_TRUST_STREAMS).

@@ -201,28 +201,7 @@ public static class RecoveryCorpus
             return false;
         }
 
-        int bestFile = -1, bestOffset = 0, bestCount = -1;
-        for (int f = 0; f < files.Count; f++)
-        {
-            var content = files[f].Content;
-            for (int o = -run.Length + 1; o < content.Length; o++)
-            {
-                int count = 0;
-                for (int i = Math.Max(0, -o); i < run.Length && o + i < content.Length; i++)
-                {
-                    if (run[i] == content[o + i])
-                    {
-                        count++;
-                    }
-                }
-
-                if (count > bestCount)
-                {
-                    (bestFile, bestOffset, bestCount) = (f, o, count);
-                }
-            }
-        }
-
+        var (bestFile, bestOffset, bestCount, _) = StreamPlaces.Alignments(run, files);
         var best = files[bestFile].Content;
         bool all = bestOffset >= 0 && bestOffset + run.Length <= best.Length && bestCount == run.Length;
         if (run.Length >= 4)

@@ -13,7 +13,11 @@ namespace TapeVault.Bench;
 /// --streams FOLDER [--dump FILE]</c> merges them again with the merge of this build and reports, per profile, the
 /// merged positions, those wrong at 0.99 or more, the log-likelihood of right and wrong under the confidences (what a fit of the merge's constants maximises), the ECE (10 equal bins), the exact images and the reliability bins.
 /// Decoding is by far the slow part of the trust bench, so this is how a change to the stream merge is tried; the
-/// figures are the trust bench's own for the same tapes (the same judge: <see cref="RecoveryCorpus.Place"/>).
+/// figures are the trust bench's own for the same tapes (the same judges: <see cref="RecoveryCorpus.Place"/> for merged
+/// segments, <see cref="StreamPlaces"/> for single readings). With --reads FILE every single reading is written as the
+/// trust bench's dump writes it (judged at its place), for trust-fit; with --remap each single reading's confidence is
+/// its model confidence mapped by this build's confidence map (what a decode by this build would give it), so that a
+/// refit of the map is measured on readings decoded before it.
 /// </summary>
 public static class StreamReplay
 {
@@ -39,14 +43,17 @@ public static class StreamReplay
 
     public static int Run(string[] args)
     {
-        string? folder = null, dump = null;
+        string? folder = null, dump = null, reads = null;
+        bool remap = false;
         for (int i = 0; i < args.Length; i++)
         {
             switch (args[i])
             {
                 case "--streams": folder = args[++i]; break;
                 case "--dump": dump = args[++i]; break;
-                default: throw new ArgumentException($"Unknown option {args[i]}; stream-merge takes --streams FOLDER [--dump FILE].");
+                case "--reads": reads = args[++i]; break;
+                case "--remap": remap = true; break;
+                default: throw new ArgumentException($"Unknown option {args[i]}; stream-merge takes --streams FOLDER [--dump FILE] [--reads FILE] [--remap].");
             }
         }
 
@@ -57,6 +64,8 @@ public static class StreamReplay
 
         var options = new MergeOptions { CreatedUtc = DateTimeOffset.UnixEpoch };
         var rows = new List<(string Profile, double Confidence, bool Right, bool Anywhere)>();
+        var singles = new List<(string Profile, double Confidence, bool Right, bool Anywhere, bool Unplaced)>();
+        var readRows = new List<string>();
         var exactTapes = new Dictionary<string, (int Tapes, int Exact, double Least)>();
         var lines = new List<string>();
         var watch = System.Diagnostics.Stopwatch.StartNew();
@@ -69,6 +78,25 @@ public static class StreamReplay
             for (int f = 1; f < files.Count; f++)
             {
                 bases[f] = bases[f - 1] + files[f - 1].Content.Length;
+            }
+
+            // Single readings, judged at the place their time claims (as the trust bench judges them) and lined up anywhere.
+            for (int p = 0; p < saved.Passes.Count; p++)
+            {
+                var places = StreamPlaces.Fit(saved.Passes[p].Candidates, files);
+                foreach (var saving in saved.Passes[p].Candidates)
+                {
+                    // --remap: the confidence this build's map gives the reading's model confidence, as its block scorer
+                    // would (a stream reading is never clean, and its format has no check that could hold over nothing).
+                    var c = remap
+                        ? saving with { Confidence = Math.Clamp(ConfidenceMap.Default.Map(profile.Id, profile.Family, ConfidenceMap.GroupOf(saving.Status, saving.Doubts), saving.ModelConfidence), 0, 1) }
+                        : saving;
+                    bool anywhere = RecoveryCorpus.Place(c.Payload.AsSpan(), files, bases, null);
+                    var verdict = places.Judge(c);
+                    bool right = Trust.JudgeStream(places, c, _ => anywhere);
+                    singles.Add((saved.Profile, c.Confidence, right, anywhere, verdict == StreamPlaces.Verdict.Unplaced));
+                    readRows.Add(Trust.ReadRow(profile, saved.Seed, p, saved.Sources[p], c, right));
+                }
             }
 
             var image = TapeMerger.Merge(saved.Passes, profile, options);
@@ -118,9 +146,24 @@ public static class StreamReplay
             }
         }
 
+        Console.WriteLine();
+        Console.WriteLine("Single readings (every setting of every capture), right at the place their time claims (StreamPlaces), and lined up anywhere:");
+        Console.WriteLine($"{"profile",-10} {"readings",8} {"unplaced",8} {"ECE read",8} {"ECE anywhere",12} {"wrong ≥0.99",11} {"anywhere",8}");
+        foreach (var group in singles.GroupBy(r => r.Profile).OrderBy(g => g.Key, StringComparer.Ordinal))
+        {
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"{group.Key,-10} {group.Count(),8} {group.Count(r => r.Unplaced),8} {Calibration.EqualBinEce([.. group.Select(r => (r.Confidence, r.Right))]),8:0.0000} {Calibration.EqualBinEce([.. group.Select(r => (r.Confidence, r.Anywhere))]),12:0.0000} " +
+                $"{group.Count(r => !r.Right && r.Confidence >= Trust.StreamConfidentWrong),11} {group.Count(r => !r.Anywhere && r.Confidence >= Trust.StreamConfidentWrong),8}"));
+        }
+
         if (dump is not null)
         {
             File.WriteAllLines(dump, lines);
+        }
+
+        if (reads is not null)
+        {
+            File.WriteAllLines(reads, readRows);
         }
 
         Console.WriteLine($"{watch.Elapsed.TotalSeconds:0.0} s");

@@ -22,8 +22,10 @@ namespace TapeVault.Bench;
 /// detector setting (not only the best); (b) the expected calibration error (10 equal bins) of every reading's
 /// confidence, of each pass's best reading per position, and of the merged positions; (c) for merged images that are
 /// byte-exact with every position clean and read alike by two captures or more, the image's overall confidence.
-/// For a stream (no checksum, so nothing is ever clean) a reading is right when all its bytes are the written bytes
-/// where they line up best; (a) counts stream readings at confidence 0.99 or more that are wrong instead.
+/// For a stream (no checksum, so nothing is ever clean) a reading is right when its bytes are the written bytes at the
+/// place its time claims (<see cref="StreamPlaces"/>), a merged segment when its bytes are the written bytes where they
+/// line up best (fewer than four: where its key puts it); (a) counts stream readings at confidence 0.99 or more that
+/// are wrong instead.
 /// </summary>
 public static class Trust
 {
@@ -68,7 +70,31 @@ public static class Trust
         new("pulse-width", ProfileCatalog.BuiltIn.Get("one-cycle-bits")),
     ];
 
-    private sealed record Reading(double Confidence, bool Right, bool WrongClean, bool Clean = false);
+    /// <summary>A reading as a row of the dump (TAPEVAULT_TRUST_DUMP): what trust-fit reads is its right at 9 and family, group and model confidence as the last three.</summary>
+    internal static string ReadRow(FormatProfile profile, int seed, int pass, string source, BlockCandidate candidate, bool right) =>
+        string.Join('\t', "read", profile.Id, seed, pass, source, candidate.SettingName, candidate.Status, (int)candidate.Doubts, candidate.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0,
+            candidate.MinimumMargin.ToString("0.####", CultureInfo.InvariantCulture), candidate.MeanMargin.ToString("0.####", CultureInfo.InvariantCulture), candidate.AmbiguousDecisions, candidate.Decisions, candidate.FramingErrors,
+            candidate.SnrDb.ToString("0.##", CultureInfo.InvariantCulture), candidate.Payload.Length, candidate.Truncated ? 1 : 0, candidate.Position, candidate.StartSeconds.ToString("0.###", CultureInfo.InvariantCulture), candidate.Identity.Key,
+            candidate.HeaderErrorOdds.Concat(candidate.ByteErrorOdds).Concat(candidate.ChecksumErrorOdds).Sum(e => Math.Log(1 - Math.Min(e, 0.999999))).ToString("0.####", CultureInfo.InvariantCulture),
+            ConfidenceMap.FamilyName(profile.Family), ConfidenceMap.GroupOf(candidate.Status, candidate.Doubts), candidate.ModelConfidence.ToString("R", CultureInfo.InvariantCulture));
+
+    /// <summary>One reading or position; for a stream reading also whether its bytes line up anywhere in the files (the judgement before readings were judged at their place) and whether it could not be placed.</summary>
+    private sealed record Reading(double Confidence, bool Right, bool WrongClean, bool Clean = false, bool? Anywhere = null, bool Unplaced = false);
+
+    /// <summary>
+    /// A stream reading is right when it is the written bytes at the place its time claims (<see cref="StreamPlaces"/>);
+    /// one that cannot be placed (its capture read none of the file its time may lie in in full) is judged lined up
+    /// anywhere in the files, as <paramref name="anywhere"/> says.
+    /// </summary>
+    internal static bool JudgeStream(StreamPlaces places, BlockCandidate reading, Func<BlockCandidate, bool> anywhere) => places.Judge(reading) switch
+    {
+        StreamPlaces.Verdict.Right => true,
+        StreamPlaces.Verdict.Wrong => false,
+        _ => anywhere(reading),
+    };
+
+    private static bool JudgeStream(StreamPlaces places, BlockCandidate reading, Judgement anywhere) =>
+        JudgeStream(places, reading, c => anywhere(c.Header.AsSpan(), c.Payload.AsSpan()));
 
     private sealed record WrongExample(string Profile, int Seed, int Pass, string Source, string Setting, BlockStatus Status, double Confidence, int PayloadBytes, string Damage);
 
@@ -301,18 +327,19 @@ public static class Trust
                     bySource[source] = readings = [];
                 }
 
+                // A stream reading is judged at the place its time claims (StreamPlaces), a block by its header and payload.
+                var places = profile.Layout.IsStream ? StreamPlaces.Fit(result.Candidates, files) : null;
+                bool Right(BlockCandidate c) => places is null ? judge(c.Header.AsSpan(), c.Payload.AsSpan()) : JudgeStream(places, c, judge);
                 foreach (var candidate in result.Candidates)
                 {
-                    bool right = judge(candidate.Header.AsSpan(), candidate.Payload.AsSpan());
+                    bool right = Right(candidate);
                     bool wrongClean = !right && (profile.Layout.IsStream ? candidate.Confidence >= StreamConfidentWrong : candidate.Status == BlockStatus.Clean);
-                    readings.Add(new Reading(candidate.Confidence, right, wrongClean, candidate.Status == BlockStatus.Clean));
+                    readings.Add(new Reading(candidate.Confidence, right, wrongClean, candidate.Status == BlockStatus.Clean,
+                        places is null ? null : judge(candidate.Header.AsSpan(), candidate.Payload.AsSpan()),
+                        places is not null && places.Judge(candidate) == StreamPlaces.Verdict.Unplaced));
                     if (s_dumpPath is not null)
                     {
-                        s_dump.Enqueue(string.Join('\t', "read", profile.Id, seed, p, source, candidate.SettingName, candidate.Status, (int)candidate.Doubts, candidate.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0,
-                            candidate.MinimumMargin.ToString("0.####", CultureInfo.InvariantCulture), candidate.MeanMargin.ToString("0.####", CultureInfo.InvariantCulture), candidate.AmbiguousDecisions, candidate.Decisions, candidate.FramingErrors,
-                            candidate.SnrDb.ToString("0.##", CultureInfo.InvariantCulture), candidate.Payload.Length, candidate.Truncated ? 1 : 0, candidate.Position, candidate.StartSeconds.ToString("0.###", CultureInfo.InvariantCulture), candidate.Identity.Key,
-                            candidate.HeaderErrorOdds.Concat(candidate.ByteErrorOdds).Concat(candidate.ChecksumErrorOdds).Sum(e => Math.Log(1 - Math.Min(e, 0.999999))).ToString("0.####", CultureInfo.InvariantCulture),
-                            ConfidenceMap.FamilyName(profile.Family), ConfidenceMap.GroupOf(candidate.Status, candidate.Doubts), candidate.ModelConfidence.ToString("R", CultureInfo.InvariantCulture)));
+                        s_dump.Enqueue(ReadRow(profile, seed, p, source, candidate, right));
                     }
                     if (wrongClean)
                     {
@@ -339,7 +366,7 @@ public static class Trust
 
                 foreach (var candidate in result.Best)
                 {
-                    best.Add(new Reading(candidate.Confidence, judge(candidate.Header.AsSpan(), candidate.Payload.AsSpan()), false));
+                    best.Add(new Reading(candidate.Confidence, Right(candidate), false));
                 }
 
                 // A position is a place on the tape: one capture of a block format should have one per written block.
@@ -508,26 +535,8 @@ public static class Trust
     /// <summary>The written file and offset a stream segment lines up with best, and how many of its characters agree there.</summary>
     private static (int File, int Offset, int Count) BestAlignment(ReadOnlySpan<byte> run, List<TapeFile> files)
     {
-        int bestFile = 0, bestOffset = 0, bestCount = -1;
-        for (int f = 0; f < files.Count; f++)
-        {
-            var content = files[f].Content;
-            for (int o = -run.Length + 1; o < content.Length; o++)
-            {
-                int count = 0;
-                for (int i = Math.Max(0, -o); i < run.Length && o + i < content.Length; i++)
-                {
-                    count += run[i] == content[o + i] ? 1 : 0;
-                }
-
-                if (count > bestCount)
-                {
-                    (bestFile, bestOffset, bestCount) = (f, o, count);
-                }
-            }
-        }
-
-        return (bestFile, bestOffset, bestCount);
+        var (file, offset, count, _) = StreamPlaces.Alignments(run, files);
+        return (file, offset, count);
     }
 
     /// <summary>Where a wrong stream segment differs from the written bytes it lines up with best: at its first or last two characters (or past a file's end), inside, or both.</summary>
@@ -735,6 +744,23 @@ public static class Trust
                 $"{group.Key.Family,-11} {group.Key.Id,-18} {group.Count(),5} {units,6} {readings.Count,8} {(stream ? "-" : readings.Count(r => r.Clean).ToString(CultureInfo.InvariantCulture)),6} " +
                 $"{readings.Count(r => r.WrongClean),11} {Ece(readings),8:0.0000} {Ece(best),8:0.0000} {positions.Count,9} {positions.Count(r => r.WrongClean),9} " +
                 $"{Ece(positions),10:0.0000} {positions.Count(r => !r.Right && r.Confidence >= StreamConfidentWrong),13} {exact.Count,5} {(exact.Count > 0 ? exact.Min().ToString("0.0000", CultureInfo.InvariantCulture) : "-"),8} {exact.Count(c => c < 0.99),6}");
+        }
+
+        var streams = outcomes.Where(o => o.Subject.Profile.Layout.IsStream).ToList();
+        if (streams.Count > 0)
+        {
+            Console.WriteLine();
+            Console.WriteLine("Stream readings judged at the place their time claims, and lined up anywhere in the files (the judgement before);");
+            Console.WriteLine("unplaced: in no fitted file's span while some file has no line (judged lined up anywhere).");
+            Console.WriteLine($"{"profile",-18} {"readings",8} {"unplaced",8} {"right",6} {"anywhere",8} {"ECE read",8} {"ECE anywhere",12} {"wrong >= 0.99",13} {"anywhere",8}");
+            foreach (var group in streams.GroupBy(o => o.Subject.Profile.Id).OrderBy(g => g.Key, StringComparer.Ordinal))
+            {
+                var readings = group.SelectMany(o => o.ReadingsBySource.Values.SelectMany(r => r)).ToList();
+                var anywhere = readings.Select(r => (r.Confidence, r.Anywhere ?? r.Right)).ToList();
+                Console.WriteLine(
+                    $"{group.Key,-18} {readings.Count,8} {readings.Count(r => r.Unplaced),8} {readings.Count(r => r.Right),6} {anywhere.Count(r => r.Item2),8} {Ece(readings),8:0.0000} {Calibration.EqualBinEce(anywhere),12:0.0000} " +
+                    $"{readings.Count(r => !r.Right && r.Confidence >= StreamConfidentWrong),13} {anywhere.Count(r => !r.Item2 && r.Confidence >= StreamConfidentWrong),8}");
+            }
         }
 
         Console.WriteLine();

@@ -204,10 +204,13 @@ public static class TrustFit
             : group is not TapeVault.Core.Blocks.ConfidenceGroup.Unchecked;
 
     /// <summary>The step function: bins of equal count, pooled where a later bin is right less often, Laplace-smoothed, never falling.</summary>
-    public static (double[] X, double[] Y) Fit(List<(double Model, bool Right)> readings)
+    public static (double[] X, double[] Y) Fit(List<(double Model, bool Right)> readings) => Fit(readings, Bins, LeastPerBin);
+
+    /// <summary>As <see cref="Fit(List{ValueTuple{double, bool}})"/>, with at most <paramref name="bins"/> bins of at least <paramref name="leastPerBin"/> readings.</summary>
+    public static (double[] X, double[] Y) Fit(List<(double Model, bool Right)> readings, int bins, int leastPerBin)
     {
         var sorted = readings.OrderBy(r => r.Model).ToList();
-        int bins = Math.Clamp(sorted.Count / LeastPerBin, 1, Bins);
+        bins = Math.Clamp(sorted.Count / leastPerBin, 1, bins);
 
         // Bins of equal count; readings of one model value stay in one bin.
         var pools = new List<(double SumModel, int Right, int Count)>();

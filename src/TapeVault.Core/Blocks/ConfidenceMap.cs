@@ -107,7 +107,14 @@ public sealed class ConfidenceMap
             return model;
         }
 
-        var (x, y) = curve;
+        return Interpolate(curve.X, curve.Y, model);
+    }
+
+    /// <summary>A curve's value at <paramref name="model"/>: linear between its steps (<paramref name="x"/> rising), flat beyond its ends.</summary>
+    public static double Interpolate(double[] x, double[] y, double model)
+    {
+        ArgumentNullException.ThrowIfNull(x);
+        ArgumentNullException.ThrowIfNull(y);
         if (model <= x[0])
         {
             return y[0];
