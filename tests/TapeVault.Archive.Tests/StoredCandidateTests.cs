@@ -74,9 +74,43 @@ public sealed class StoredCandidateTests(SharedArchive shared)
         Assert.False(TimelineReadingsValue.TryRead([.. value, 0], "capture", into));
         Assert.False(TimelineReadingsValue.TryRead([(byte)(value[0] + 1), .. value[1..]], "capture", into));
         Assert.False(TimelineReadingsValue.TryRead([], "capture", into));
+
+        // A count of readings far beyond what the value holds (here the largest a 7-bit encoded count can say) is
+        // refused before anything is made for them.
+        int tables = TablesLength(value);
+        Assert.False(TimelineReadingsValue.TryRead([.. value[..tables], 0xFF, 0xFF, 0xFF, 0xFF, 0x07, .. value[(tables + CountLength(value, tables))..]], "capture", into));
         Assert.Single(into);
         Assert.True(TimelineReadingsValue.TryRead(value, "capture", into));
         Assert.True(into.Count > 2);
+    }
+
+    /// <summary>Where a value's count of readings starts: after its format byte and its three tables of names.</summary>
+    private static int TablesLength(byte[] value)
+    {
+        using var reader = new BinaryReader(new MemoryStream(value), System.Text.Encoding.UTF8);
+        reader.ReadByte();
+        for (int table = 0; table < 3; table++)
+        {
+            int names = reader.Read7BitEncodedInt();
+            for (int i = 0; i < names; i++)
+            {
+                reader.ReadString();
+            }
+        }
+
+        return (int)reader.BaseStream.Position;
+    }
+
+    /// <summary>How many bytes the 7-bit encoded count at <paramref name="at"/> takes (each but the last has its top bit set).</summary>
+    private static int CountLength(byte[] value, int at)
+    {
+        int length = 1;
+        while ((value[at + length - 1] & 0x80) != 0)
+        {
+            length++;
+        }
+
+        return length;
     }
 
     private static List<TimelineReading> Ordered(List<TimelineReading> readings) =>

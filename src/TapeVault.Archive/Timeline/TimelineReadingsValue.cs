@@ -20,6 +20,9 @@ public static class TimelineReadingsValue
     /// <summary>The format of the value; one this build does not know is not read (the run's rows are).</summary>
     private const byte Format = 1;
 
+    /// <summary>The fewest bytes a reading takes: three one-byte indexes and four binary64 numbers.</summary>
+    private const int ReadingBytes = 3 + (4 * sizeof(double));
+
     /// <summary>The value for a run's readings.</summary>
     public static byte[] Write(IEnumerable<CandidateRecord> candidates)
     {
@@ -84,6 +87,11 @@ public static class TimelineReadingsValue
             var identities = ReadTable(reader);
             var outcomes = ReadTable(reader).Select(name => Vocabulary.Of(Enum.Parse<BlockStatus>(name)).Name).ToArray();
             int count = reader.Read7BitEncodedInt();
+            if (count < 0 || count > (reader.BaseStream.Length - reader.BaseStream.Position) / ReadingBytes)
+            {
+                throw new FormatException("The value counts more readings than it holds.");
+            }
+
             into.Capacity = Math.Max(into.Capacity, before + count);
             for (int i = 0; i < count; i++)
             {
