@@ -113,4 +113,40 @@ public static class ArchiveDatabase
             await db.Database.ExecuteSqlRawAsync("LOCK TABLE \"Events\" IN EXCLUSIVE MODE;", cancellation).ConfigureAwait(false);
         }
     }
+
+    /// <summary>
+    /// A query's rows as a list, read synchronously on SQLite, asynchronously from a server: SQLite's provider has no
+    /// asynchronous I/O (its asynchronous calls run synchronously), and reading row by row through them only adds EF
+    /// Core's asynchronous machinery to every row (Microsoft.Data.Sqlite, "Async limitations").
+    /// </summary>
+    internal static async Task<List<T>> ListAsync<T>(ArchiveDbContext db, IQueryable<T> query, CancellationToken cancellation)
+    {
+        if (db.Database.IsSqlite())
+        {
+            cancellation.ThrowIfCancellationRequested();
+            return query.ToList();
+        }
+
+        return await query.ToListAsync(cancellation).ConfigureAwait(false);
+    }
+
+    /// <summary>A query's rows one by one, read as <see cref="ListAsync"/> reads them (synchronously on SQLite).</summary>
+    internal static async IAsyncEnumerable<T> RowsAsync<T>(ArchiveDbContext db, IQueryable<T> query, [System.Runtime.CompilerServices.EnumeratorCancellation] CancellationToken cancellation = default)
+    {
+        if (db.Database.IsSqlite())
+        {
+            foreach (var row in query.AsEnumerable())
+            {
+                cancellation.ThrowIfCancellationRequested();
+                yield return row;
+            }
+
+            yield break;
+        }
+
+        await foreach (var row in query.AsAsyncEnumerable().WithCancellation(cancellation).ConfigureAwait(false))
+        {
+            yield return row;
+        }
+    }
 }

@@ -25,6 +25,8 @@ public sealed class ArchiveDbContext(DbContextOptions<ArchiveDbContext> options)
 
     public DbSet<CandidateRecord> Candidates => Set<CandidateRecord>();
 
+    public DbSet<RunTimeline> RunTimelines => Set<RunTimeline>();
+
     public DbSet<TapeImageRecord> Images => Set<TapeImageRecord>();
 
     public DbSet<ArchiveEvent> Events => Set<ArchiveEvent>();

@@ -1,5 +1,7 @@
 using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive.Runs;
+using TapeVault.Archive.Timeline;
+using TapeVault.Core.Timeline;
 using Xunit;
 
 namespace TapeVault.Archive.Tests;
@@ -44,4 +46,74 @@ public sealed class StoredCandidateTests(SharedArchive shared)
         Assert.Empty(candidate.HeaderErrorOdds);
         Assert.Empty(candidate.ChecksumErrorOdds);
     }
+
+    [Fact]
+    public async Task A_runs_kept_timeline_readings_are_the_readings_of_its_rows()
+    {
+        await using var db = shared.Archive.NewContext();
+        var runs = await db.Runs.AsNoTracking().Include(r => r.Timeline).Include(r => r.Candidates).ToListAsync();
+        Assert.Contains(runs, r => r.Candidates.Count > 1);
+        foreach (var run in runs)
+        {
+            // Written with the run by the decode job, once; read back, every field of every reading is its row's.
+            Assert.NotNull(run.Timeline);
+            var kept = new List<TimelineReading>();
+            Assert.True(TimelineReadingsValue.TryRead(run.Timeline.Readings, "capture", kept));
+            var rows = run.Candidates.Select(c => TimelineDrawings.ReadingOf("capture", c)).ToList();
+            Assert.Equal(Ordered(rows), Ordered(kept));
+        }
+    }
+
+    [Fact]
+    public async Task A_kept_timeline_value_cut_short_or_of_an_unknown_format_is_not_read()
+    {
+        await using var db = shared.Archive.NewContext();
+        var value = (await db.RunTimelines.AsNoTracking().Where(t => t.Run!.Candidates.Count > 1).FirstAsync()).Readings;
+        var into = new List<TimelineReading> { new("other", "s", "k", "clean", 1, 0, 1, 1) };
+        Assert.False(TimelineReadingsValue.TryRead(value[..^1], "capture", into));
+        Assert.False(TimelineReadingsValue.TryRead([.. value, 0], "capture", into));
+        Assert.False(TimelineReadingsValue.TryRead([(byte)(value[0] + 1), .. value[1..]], "capture", into));
+        Assert.False(TimelineReadingsValue.TryRead([], "capture", into));
+
+        // A count of readings far beyond what the value holds (here the largest a 7-bit encoded count can say) is
+        // refused before anything is made for them.
+        int tables = TablesLength(value);
+        Assert.False(TimelineReadingsValue.TryRead([.. value[..tables], 0xFF, 0xFF, 0xFF, 0xFF, 0x07, .. value[(tables + CountLength(value, tables))..]], "capture", into));
+        Assert.Single(into);
+        Assert.True(TimelineReadingsValue.TryRead(value, "capture", into));
+        Assert.True(into.Count > 2);
+    }
+
+    /// <summary>Where a value's count of readings starts: after its format byte and its three tables of names.</summary>
+    private static int TablesLength(byte[] value)
+    {
+        using var reader = new BinaryReader(new MemoryStream(value), System.Text.Encoding.UTF8);
+        reader.ReadByte();
+        for (int table = 0; table < 3; table++)
+        {
+            int names = reader.Read7BitEncodedInt();
+            for (int i = 0; i < names; i++)
+            {
+                reader.ReadString();
+            }
+        }
+
+        return (int)reader.BaseStream.Position;
+    }
+
+    /// <summary>How many bytes the 7-bit encoded count at <paramref name="at"/> takes (each but the last has its top bit set).</summary>
+    private static int CountLength(byte[] value, int at)
+    {
+        int length = 1;
+        while ((value[at + length - 1] & 0x80) != 0)
+        {
+            length++;
+        }
+
+        return length;
+    }
+
+    private static List<TimelineReading> Ordered(List<TimelineReading> readings) =>
+        [.. readings.OrderBy(r => r.Setting, StringComparer.Ordinal).ThenBy(r => r.StartSeconds).ThenBy(r => r.EndSeconds).ThenBy(r => r.Key, StringComparer.Ordinal)
+            .ThenBy(r => r.Status, StringComparer.Ordinal).ThenBy(r => r.Confidence).ThenBy(r => r.Speed)];
 }

@@ -2,6 +2,9 @@ using System.Net;
 using System.Net.Http.Json;
 using AngleSharp.Dom;
 using AngleSharp.Html.Parser;
+using Microsoft.EntityFrameworkCore;
+using Microsoft.Extensions.DependencyInjection;
+using TapeVault.Archive;
 using TapeVault.Archive.Entities;
 using TapeVault.Archive.Timeline;
 using TapeVault.Web.Api;
@@ -70,6 +73,21 @@ public sealed class TimelineDrawingTests
         Assert.Equal(Path.GetFileName(byMerge), Path.GetFileName(only));
         Assert.Equal(byJob, await File.ReadAllBytesAsync(only));
         Assert.Equal(MainContent(first), MainContent(fresh));
+
+        // The page drew that from the readings each run keeps in one row (written with the run). A run stored before
+        // they were kept has only its readings' rows: drawn from those, the same file, byte for byte.
+        await using (var scope = app.Scope())
+        {
+            var db = scope.ServiceProvider.GetRequiredService<ArchiveDbContext>();
+            var runIds = await db.Runs.Where(r => r.Capture!.ItemId == itemId).Select(r => r.Id).ToListAsync();
+            Assert.Equal(2, runIds.Count);
+            Assert.Equal(2, await db.RunTimelines.Where(t => runIds.Contains(t.RunId)).ExecuteDeleteAsync());
+        }
+
+        Directory.Delete(kept, recursive: true);
+        var (_, rowsTiming) = await PageAsync(curator, $"/items/{itemId}");
+        Assert.Contains("read and drawn", rowsTiming, StringComparison.Ordinal);
+        Assert.Equal(byJob, await File.ReadAllBytesAsync(Assert.Single(Directory.EnumerateFiles(kept, "*.json"))));
     }
 
     [Fact]

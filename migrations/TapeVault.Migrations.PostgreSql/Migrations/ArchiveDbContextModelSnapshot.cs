@@ -710,6 +710,20 @@ namespace TapeVault.Migrations.PostgreSql.Migrations
                     b.ToTable("Organisation", (string)null);
                 });
 
+            modelBuilder.Entity("TapeVault.Archive.Entities.RunTimeline", b =>
+                {
+                    b.Property<int>("RunId")
+                        .HasColumnType("integer");
+
+                    b.Property<byte[]>("Readings")
+                        .IsRequired()
+                        .HasColumnType("bytea");
+
+                    b.HasKey("RunId");
+
+                    b.ToTable("RunTimelines");
+                });
+
             modelBuilder.Entity("TapeVault.Archive.Entities.StoredObject", b =>
                 {
                     b.Property<string>("Sha256")
@@ -947,6 +961,17 @@ namespace TapeVault.Migrations.PostgreSql.Migrations
                     b.Navigation("StoredFile");
                 });
 
+            modelBuilder.Entity("TapeVault.Archive.Entities.RunTimeline", b =>
+                {
+                    b.HasOne("TapeVault.Archive.Entities.DecodeRun", "Run")
+                        .WithOne("Timeline")
+                        .HasForeignKey("TapeVault.Archive.Entities.RunTimeline", "RunId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired();
+
+                    b.Navigation("Run");
+                });
+
             modelBuilder.Entity("TapeVault.Archive.Entities.TapeImageRecord", b =>
                 {
                     b.HasOne("TapeVault.Archive.Entities.TapeItem", "Item")
@@ -990,6 +1015,8 @@ namespace TapeVault.Migrations.PostgreSql.Migrations
             modelBuilder.Entity("TapeVault.Archive.Entities.DecodeRun", b =>
                 {
                     b.Navigation("Candidates");
+
+                    b.Navigation("Timeline");
                 });
 
             modelBuilder.Entity("TapeVault.Archive.Entities.TapeItem", b =>

@@ -685,6 +685,20 @@ namespace TapeVault.Migrations.Migrations
                     b.ToTable("Organisation", (string)null);
                 });
 
+            modelBuilder.Entity("TapeVault.Archive.Entities.RunTimeline", b =>
+                {
+                    b.Property<int>("RunId")
+                        .HasColumnType("INTEGER");
+
+                    b.Property<byte[]>("Readings")
+                        .IsRequired()
+                        .HasColumnType("BLOB");
+
+                    b.HasKey("RunId");
+
+                    b.ToTable("RunTimelines");
+                });
+
             modelBuilder.Entity("TapeVault.Archive.Entities.StoredObject", b =>
                 {
                     b.Property<string>("Sha256")
@@ -917,6 +931,17 @@ namespace TapeVault.Migrations.Migrations
                     b.Navigation("StoredFile");
                 });
 
+            modelBuilder.Entity("TapeVault.Archive.Entities.RunTimeline", b =>
+                {
+                    b.HasOne("TapeVault.Archive.Entities.DecodeRun", "Run")
+                        .WithOne("Timeline")
+                        .HasForeignKey("TapeVault.Archive.Entities.RunTimeline", "RunId")
+                        .OnDelete(DeleteBehavior.Cascade)
+                        .IsRequired();
+
+                    b.Navigation("Run");
+                });
+
             modelBuilder.Entity("TapeVault.Archive.Entities.TapeImageRecord", b =>
                 {
                     b.HasOne("TapeVault.Archive.Entities.TapeItem", "Item")
@@ -960,6 +985,8 @@ namespace TapeVault.Migrations.Migrations
             modelBuilder.Entity("TapeVault.Archive.Entities.DecodeRun", b =>
                 {
                     b.Navigation("Candidates");
+
+                    b.Navigation("Timeline");
                 });
 
             modelBuilder.Entity("TapeVault.Archive.Entities.TapeItem", b =>

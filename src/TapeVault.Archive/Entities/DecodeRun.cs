@@ -30,6 +30,23 @@ public sealed class DecodeRun
     public int CleanPositions { get; set; }
 
     public List<CandidateRecord> Candidates { get; set; } = [];
+
+    /// <summary>Its readings as the tape timeline draws them, written with the run (null for runs stored before they were kept).</summary>
+    public RunTimeline? Timeline { get; set; }
+}
+
+/// <summary>
+/// A run's readings as the tape timeline draws them (setting, identity, outcome, confidence, start, end and speed of
+/// each), in one compact value written with the run and never changed (<see cref="TapeVault.Archive.Timeline.TimelineReadingsValue"/>):
+/// a long tape's timeline reads one row a run instead of one row a reading.
+/// </summary>
+public sealed class RunTimeline
+{
+    public int RunId { get; set; }
+
+    public DecodeRun? Run { get; set; }
+
+    public required byte[] Readings { get; set; }
 }
 
 /// <summary>A stored block candidate: enough of it to show, to judge and to rebuild it for a merge.</summary>

@@ -270,7 +270,7 @@ public static class EventChain
         var chunk = new List<ArchiveEvent>(WalkChunk);
         try
         {
-            await foreach (var e in events.OrderBy(e => e.Id).AsAsyncEnumerable().WithCancellation(cancellation).ConfigureAwait(false))
+            await foreach (var e in ArchiveDatabase.RowsAsync(db, events.OrderBy(e => e.Id), cancellation).ConfigureAwait(false))
             {
                 chunk.Add(e);
                 if (chunk.Count < WalkChunk)

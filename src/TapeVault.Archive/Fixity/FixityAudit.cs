@@ -74,7 +74,7 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
         }
 
         var places = await PlacesAsync(collectionId, cancellation).ConfigureAwait(false);
-        var objects = await db.Objects.AsNoTracking().OrderBy(o => o.Sha256).ToListAsync(cancellation).ConfigureAwait(false);
+        var objects = await ArchiveDatabase.ListAsync(db, db.Objects.AsNoTracking().OrderBy(o => o.Sha256), cancellation).ConfigureAwait(false);
         var recorded = objects.ToDictionary(o => o.Sha256, StringComparer.Ordinal);
         if (collectionId is not null)
         {
@@ -85,14 +85,14 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
         // each batch's outcome is judged and recorded in order: reading and hashing overlap the database's work
         // instead of waiting for it.
         var found = new FileFacts[objects.Count];
-        var hashed = new TaskCompletionSource[(objects.Count + HashBatch - 1) / HashBatch];
+        var hashed = new TaskCompletionSource[(objects.Count + HashBatchSize - 1) / HashBatchSize];
         for (int k = 0; k < hashed.Length; k++)
         {
             hashed[k] = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
         }
 
         using var stopHashing = CancellationTokenSource.CreateLinkedTokenSource(cancellation);
-        var hashing = Task.Run(() => HashAllAsync(objects, found, hashed, stopHashing.Token), CancellationToken.None);
+        var hashing = Task.Run(() => HashAll(objects, found, hashed, stopHashing.Token), CancellationToken.None);
         try
         {
             var run = new AuditRun(collectionId, agent, walk, started, places, objects, recorded, found, hashed, progress);
@@ -193,9 +193,9 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
         var checks = new List<Entities.ArchiveEvent>(EventsPerSave);
         for (int i = 0; i < objects.Count; i++)
         {
-            if (i % HashBatch == 0)
+            if (i % HashBatchSize == 0)
             {
-                await hashed[i / HashBatch].Task.WaitAsync(cancellation).ConfigureAwait(false);
+                await hashed[i / HashBatchSize].Task.WaitAsync(cancellation).ConfigureAwait(false);
             }
 
             var stored = objects[i];
@@ -279,23 +279,25 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
     private const int EventsPerSave = 500;
 
     /// <summary>How many stored files are hashed ahead at a time.</summary>
-    private const int HashBatch = 64;
+    private const int HashBatchSize = 64;
 
     /// <summary>What the store holds under an object's name: whether the file is there, its SHA-256 and its size.</summary>
     private readonly record struct FileFacts(bool Exists, string? Sha256, long Size);
 
     /// <summary>Hashes every object's file, batch after batch, telling each batch's end; a failure is told to the batches left.</summary>
-    private async Task HashAllAsync(List<Entities.StoredObject> objects, FileFacts[] found, TaskCompletionSource[] hashed, CancellationToken cancellation)
+    private void HashAll(List<Entities.StoredObject> objects, FileFacts[] found, TaskCompletionSource[] hashed, CancellationToken cancellation)
     {
         for (int k = 0; k < hashed.Length; k++)
         {
             try
             {
-                await HashBatchAsync(objects, k * HashBatch, found, cancellation).ConfigureAwait(false);
+                HashBatch(objects, k * HashBatchSize, found, cancellation);
                 hashed[k].SetResult();
             }
-            catch (Exception e)
+            catch (Exception caught)
             {
+                // A file that cannot be read fails the audit with its own error, not the parallel loop's wrapper.
+                var e = caught is AggregateException { InnerExceptions.Count: > 0 } all ? all.InnerExceptions[0] : caught;
                 for (int rest = k; rest < hashed.Length; rest++)
                 {
                     if (e is OperationCanceledException)
@@ -314,15 +316,15 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
     }
 
     /// <summary>Hashes the next batch of objects' files from <paramref name="first"/>, as many at once as there are cores.</summary>
-    private async Task HashBatchAsync(List<Entities.StoredObject> objects, int first, FileFacts[] found, CancellationToken cancellation)
+    private void HashBatch(List<Entities.StoredObject> objects, int first, FileFacts[] found, CancellationToken cancellation)
     {
-        int end = Math.Min(objects.Count, first + HashBatch);
+        int end = Math.Min(objects.Count, first + HashBatchSize);
         var options = new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount, CancellationToken = cancellation };
-        await Parallel.ForAsync(first, end, options, async (k, token) =>
+        Parallel.For(first, end, options, k =>
         {
-            var facts = await store.MeasureStoredAsync(objects[k].Sha256, token).ConfigureAwait(false);
+            var facts = store.MeasureStored(objects[k].Sha256, cancellation);
             found[k] = facts is null ? new FileFacts(false, null, 0) : new FileFacts(true, facts.Sha256, facts.Length);
-        }).ConfigureAwait(false);
+        });
     }
 
     /// <summary>Files in the store named like objects that no object row names (found at start and by the audit; never moved).</summary>
@@ -342,16 +344,14 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
     private async Task<List<FixityFinding>> CrossCheckCapturesAsync(int? collectionId, Dictionary<string, Entities.StoredObject> recorded, CancellationToken cancellation)
     {
         var findings = new List<FixityFinding>();
-        var captures = await db.Captures.AsNoTracking()
+        var captures = await ArchiveDatabase.ListAsync(db, db.Captures.AsNoTracking()
             .Where(c => collectionId == null || c.Item!.CollectionId == collectionId)
             .OrderBy(c => c.Id)
-            .Select(c => new { c.Id, c.Sha256, c.Size, c.OriginalFileName, c.Item!.AccessionNumber, Collection = c.Item.Collection!.Name })
-            .ToListAsync(cancellation).ConfigureAwait(false);
-        var ingests = await db.Events.AsNoTracking()
+            .Select(c => new { c.Id, c.Sha256, c.Size, c.OriginalFileName, c.Item!.AccessionNumber, Collection = c.Item.Collection!.Name }), cancellation).ConfigureAwait(false);
+        var ingests = await ArchiveDatabase.ListAsync(db, db.Events.AsNoTracking()
             .Where(e => e.EventType == EventTypes.Ingest && e.ObjectType == "capture" && (e.Outcome == "success" || e.Outcome == "linked"))
             .OrderBy(e => e.Id)
-            .Select(e => new { e.ObjectId, e.Detail })
-            .ToListAsync(cancellation).ConfigureAwait(false);
+            .Select(e => new { e.ObjectId, e.Detail }), cancellation).ConfigureAwait(false);
         var firstIngest = new Dictionary<string, string>(StringComparer.Ordinal);
         foreach (var e in ingests)
         {
@@ -413,7 +413,7 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
                 continue;
             }
 
-            var facts = await store.MeasureStoredAsync(name, cancellation).ConfigureAwait(false);
+            var facts = store.MeasureStored(name, cancellation);
             string actual = facts?.Sha256 ?? "(gone)";
             long size = facts?.Length ?? 0;
             string detail = $"The file {store.RelativePath(name)} ({size} bytes, SHA-256 {actual}{(actual == name ? ", as its name says" : ", not what its name says")}) is in the store, but no object row names it; it was left where it is.";
@@ -449,28 +449,26 @@ public sealed partial class FixityAudit(ArchiveDbContext db, IDbContextFactory<A
             list.Add(place);
         }
 
-        var captures = await db.Captures.AsNoTracking()
+        var captures = await ArchiveDatabase.ListAsync(db, db.Captures.AsNoTracking()
             .Where(c => collectionId == null || c.Item!.CollectionId == collectionId)
-            .Select(c => new { c.Sha256, c.Id, c.OriginalFileName, c.ItemId, c.Item!.AccessionNumber, Collection = c.Item.Collection!.Name })
-            .ToListAsync(cancellation).ConfigureAwait(false);
+            .Select(c => new { c.Sha256, c.Id, c.OriginalFileName, c.ItemId, c.Item!.AccessionNumber, Collection = c.Item.Collection!.Name }), cancellation).ConfigureAwait(false);
         foreach (var c in captures)
         {
             Add(c.Sha256, new Place("original", c.Collection, c.AccessionNumber, c.ItemId, $"capture {c.Id} '{c.OriginalFileName}'"));
         }
 
-        var images = await db.Images.AsNoTracking()
+        var images = await ArchiveDatabase.ListAsync(db, db.Images.AsNoTracking()
             .Where(i => collectionId == null || i.Item!.CollectionId == collectionId)
-            .Select(i => new { i.Sha256, i.Version, i.ItemId, i.Item!.AccessionNumber, Collection = i.Item.Collection!.Name })
-            .ToListAsync(cancellation).ConfigureAwait(false);
+            .Select(i => new { i.Sha256, i.Version, i.ItemId, i.Item!.AccessionNumber, Collection = i.Item.Collection!.Name }), cancellation).ConfigureAwait(false);
         foreach (var i in images)
         {
             Add(i.Sha256, new Place("image", i.Collection, i.AccessionNumber, i.ItemId, $"tape image version {i.Version}"));
         }
 
-        var exports = await db.Exports.AsNoTracking().ToListAsync(cancellation).ConfigureAwait(false);
-        var itemCollections = await db.Items.AsNoTracking().Select(i => new { i.Id, i.CollectionId, i.AccessionNumber, Collection = i.Collection!.Name })
-            .ToDictionaryAsync(i => i.Id, cancellation).ConfigureAwait(false);
-        var collections = await db.Collections.AsNoTracking().ToDictionaryAsync(c => c.Id, c => c.Name, cancellation).ConfigureAwait(false);
+        var exports = await ArchiveDatabase.ListAsync(db, db.Exports.AsNoTracking(), cancellation).ConfigureAwait(false);
+        var itemCollections = (await ArchiveDatabase.ListAsync(db, db.Items.AsNoTracking().Select(i => new { i.Id, i.CollectionId, i.AccessionNumber, Collection = i.Collection!.Name }), cancellation)
+            .ConfigureAwait(false)).ToDictionary(i => i.Id);
+        var collections = (await ArchiveDatabase.ListAsync(db, db.Collections.AsNoTracking().Select(c => new { c.Id, c.Name }), cancellation).ConfigureAwait(false)).ToDictionary(c => c.Id, c => c.Name);
         foreach (var e in exports)
         {
             int? owner = e.CollectionId ?? (e.ItemId is { } itemId && itemCollections.TryGetValue(itemId, out var ic) ? ic.CollectionId : null);

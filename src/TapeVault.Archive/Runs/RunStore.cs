@@ -2,6 +2,7 @@ using System.Collections.Immutable;
 using System.Runtime.InteropServices;
 using System.Security.Cryptography;
 using TapeVault.Archive.Entities;
+using TapeVault.Archive.Timeline;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Decoding;
 using TapeVault.Core.Text;
@@ -38,6 +39,7 @@ public static class RunStore
             run.Candidates.Add(ToRecord(c));
         }
 
+        run.Timeline = new RunTimeline { Readings = TimelineReadingsValue.Write(run.Candidates) };
         return run;
     }
 

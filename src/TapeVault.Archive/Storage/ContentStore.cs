@@ -138,48 +138,74 @@ public sealed class ContentStore
     }
 
     /// <summary>Re-hashes a stored object; null when the object's file is gone.</summary>
-    public async Task<string?> HashStoredAsync(string sha256, CancellationToken cancellation = default) =>
-        (await MeasureStoredAsync(sha256, cancellation).ConfigureAwait(false))?.Sha256;
+    public string? HashStored(string sha256, CancellationToken cancellation = default) => MeasureStored(sha256, cancellation)?.Sha256;
 
     /// <summary>
     /// Re-hashes a stored object and counts its bytes, from one open of its file (no look-up before it, no size
     /// asked after it: on an audit of thousands of small files the path look-ups cost as much as the hashing); null
-    /// when the object's file is gone.
+    /// when the object's file is gone. It reads synchronously, on the caller's thread (an audit hashes on every core at
+    /// once): a stored object is a local file, and an asynchronous read of one is a synchronous read on a pool thread.
     /// </summary>
-    public async Task<StoredFacts?> MeasureStoredAsync(string sha256, CancellationToken cancellation = default)
+    public StoredFacts? MeasureStored(string sha256, CancellationToken cancellation = default)
     {
-        FileStream stream;
+        Microsoft.Win32.SafeHandles.SafeFileHandle file;
         try
         {
-            stream = new FileStream(PathOf(sha256), FileMode.Open, FileAccess.Read, FileShare.Read, bufferSize: 0, FileOptions.Asynchronous | FileOptions.SequentialScan);
+            file = File.OpenHandle(PathOf(sha256), FileMode.Open, FileAccess.Read, FileShare.Read, FileOptions.SequentialScan);
         }
         catch (Exception e) when (e is FileNotFoundException or DirectoryNotFoundException)
         {
             return null;
         }
 
-        // Read in large pieces, straight into the hash (the stream's own buffer would only add a copy).
-        await using (stream.ConfigureAwait(false))
+        using (file)
         {
-            using var hash = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
             var buffer = System.Buffers.ArrayPool<byte>.Shared.Rent(HashBufferBytes);
-            long length = 0;
             try
             {
-                int read;
-                while ((read = await stream.ReadAsync(buffer.AsMemory(0, HashBufferBytes), cancellation).ConfigureAwait(false)) > 0)
+                // A file that fits in the buffer (a tape image, most exports, a short capture) is hashed in one call; a
+                // longer one (a capture of minutes) piece by piece.
+                Span<byte> digest = stackalloc byte[SHA256.HashSizeInBytes];
+                int read = Fill(file, buffer, 0);
+                long length = read;
+                if (read < HashBufferBytes)
                 {
-                    hash.AppendData(buffer, 0, read);
-                    length += read;
+                    SHA256.HashData(buffer.AsSpan(0, read), digest);
                 }
+                else
+                {
+                    using var hash = IncrementalHash.CreateHash(HashAlgorithmName.SHA256);
+                    do
+                    {
+                        cancellation.ThrowIfCancellationRequested();
+                        hash.AppendData(buffer, 0, read);
+                        read = Fill(file, buffer, length);
+                        length += read;
+                    }
+                    while (read > 0);
+                    hash.GetHashAndReset(digest);
+                }
+
+                return new StoredFacts(Convert.ToHexStringLower(digest), length);
             }
             finally
             {
                 System.Buffers.ArrayPool<byte>.Shared.Return(buffer);
             }
-
-            return new StoredFacts(Convert.ToHexStringLower(hash.GetHashAndReset()), length);
         }
+    }
+
+    /// <summary>Reads from <paramref name="offset"/> until the hash's buffer is full or the file ends; how many bytes it read.</summary>
+    private static int Fill(Microsoft.Win32.SafeHandles.SafeFileHandle file, byte[] buffer, long offset)
+    {
+        int filled = 0;
+        int read;
+        while (filled < HashBufferBytes && (read = RandomAccess.Read(file, buffer.AsSpan(filled, HashBufferBytes - filled), offset + filled)) > 0)
+        {
+            filled += read;
+        }
+
+        return filled;
     }
 
     /// <summary>

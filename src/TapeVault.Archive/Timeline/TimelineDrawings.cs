@@ -246,18 +246,36 @@ public static class TimelineDrawings
         return Build(runs, runs.ToDictionary(r => r.CaptureId, r => r.Capture!), readings, image);
     }
 
-    /// <summary>The timeline's readings of stored runs, each run given with its capture's SHA-256.</summary>
+    /// <summary>
+    /// The timeline's readings of stored runs, each run given with its capture's SHA-256: from the value each run keeps
+    /// of them (<see cref="TimelineReadingsValue"/>, one row a run), or from its readings' rows for a run stored before
+    /// those were kept. Runs are taken in their captures' order, so readings read from the values come in the
+    /// timeline's own order.
+    /// </summary>
     internal static async Task<List<TimelineReading>> StoredReadingsAsync(ArchiveDbContext db, IReadOnlyDictionary<int, string> captureOfRun, CancellationToken cancellation)
     {
         var runIds = captureOfRun.Keys.ToList();
-        var query = db.Candidates.AsNoTracking().Where(c => runIds.Contains(c.RunId))
-            .Select(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed });
+        var values = await ArchiveDatabase.ListAsync(db, db.RunTimelines.AsNoTracking().Where(t => runIds.Contains(t.RunId)).Select(t => new { t.RunId, t.Readings }), cancellation).ConfigureAwait(false);
+        var readings = new List<TimelineReading>();
+        var fromRows = new List<int>();
+        var valueOf = values.ToDictionary(v => v.RunId, v => v.Readings);
+        foreach (int runId in runIds.OrderBy(r => captureOfRun[r], StringComparer.Ordinal).ThenBy(r => r))
+        {
+            if (!valueOf.TryGetValue(runId, out var value) || !TimelineReadingsValue.TryRead(value, captureOfRun[runId], readings))
+            {
+                fromRows.Add(runId);
+            }
+        }
 
-        // SQLite's provider has no asynchronous I/O: its asynchronous calls run synchronously, and reading row by row
-        // through them only adds a state machine per row (Microsoft.Data.Sqlite, "Async limitations"); a long tape's
-        // tens of thousands of readings are read synchronously there, and asynchronously from a server.
-        var rows = db.Database.IsSqlite() ? query.ToList() : await query.ToListAsync(cancellation).ConfigureAwait(false);
-        var readings = new List<TimelineReading>(rows.Count);
+        if (fromRows.Count == 0)
+        {
+            return readings;
+        }
+
+        var query = db.Candidates.AsNoTracking().Where(c => fromRows.Contains(c.RunId))
+            .Select(c => new { c.RunId, c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed });
+        var rows = await ArchiveDatabase.ListAsync(db, query, cancellation).ConfigureAwait(false);
+        readings.Capacity = readings.Count + rows.Count;
         foreach (var c in rows)
         {
             readings.Add(ReadingOf(captureOfRun[c.RunId], c.SettingName, c.IdentityKey, c.Status, c.Confidence, c.StartSeconds, c.EndSeconds, c.Speed));
@@ -274,7 +292,11 @@ public static class TimelineDrawings
     {
         // Every field is a key, so readings that compare equal are alike in every field and their order cannot show.
         var ordered = new List<TimelineReading>(readings);
-        ordered.Sort(CompareReadings);
+        if (!InOrder(ordered))
+        {
+            ordered.Sort(CompareReadings);
+        }
+
         var lanes = runs.Select(r => (captures[r.CaptureId].Sha256, $"Capture {r.CaptureId} · {captures[r.CaptureId].OriginalFileName}")).ToList();
         var settings = runs.ToDictionary(r => captures[r.CaptureId].Sha256, r => (IReadOnlyList<string>)[.. SettingsJson.Read(r.SettingsJson).Select(s => s.Name)], StringComparer.Ordinal);
         IReadOnlyList<TimelinePosition>? positions = image is null
@@ -283,8 +305,22 @@ public static class TimelineDrawings
         return TapeTimeline.Build(lanes, ordered, settings, positions);
     }
 
+    /// <summary>Whether readings are already in the timeline's order (as a long tape's come from its runs' kept values).</summary>
+    private static bool InOrder(List<TimelineReading> readings)
+    {
+        for (int i = 1; i < readings.Count; i++)
+        {
+            if (CompareReadings(readings[i - 1], readings[i]) > 0)
+            {
+                return false;
+            }
+        }
+
+        return true;
+    }
+
     /// <summary>The one order of a timeline's readings: capture, setting, start, end, identity, outcome, confidence, speed.</summary>
-    private static int CompareReadings(TimelineReading a, TimelineReading b)
+    internal static int CompareReadings(TimelineReading a, TimelineReading b)
     {
         int c = string.CompareOrdinal(a.CaptureKey, b.CaptureKey);
         c = c != 0 ? c : string.CompareOrdinal(a.Setting, b.Setting);
