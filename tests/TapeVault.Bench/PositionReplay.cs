@@ -1,7 +1,9 @@
 using System.Globalization;
 using System.Text.Json;
+using System.Text.RegularExpressions;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Formats;
+using TapeVault.Core.Synthesis;
 
 namespace TapeVault.Bench;
 
@@ -19,9 +21,15 @@ public static class PositionReplay
 
     private static readonly JsonSerializerOptions s_json = new() { NumberHandling = System.Text.Json.Serialization.JsonNumberHandling.AllowNamedFloatingPointLiterals };
 
-    private sealed record Saved(string Profile, int Seed, int Pass, string Source, string[] Written, List<BlockCandidate> Candidates);
+    /// <summary>
+    /// One capture's readings and the blocks written; <paramref name="Copies"/>, where the pass came from our channel model
+    /// (then SoX or not), is where each copy of each written block lies in the capture (seconds: from its lead-in or gap,
+    /// from its sync, to its end), from the damage's speed and margin and SoX's speed; wow and flutter move it by a few
+    /// milliseconds at most. Null in older saves and for minimodem's passes.
+    /// </summary>
+    private sealed record Saved(string Profile, int Seed, int Pass, string Source, string[] Written, List<BlockCandidate> Candidates, List<WrittenSpan>? Copies = null);
 
-    public static void Save(FormatProfile profile, int seed, int pass, string source, List<byte[]> written, IReadOnlyList<BlockCandidate> candidates)
+    public static void Save(FormatProfile profile, int seed, int pass, string source, List<byte[]> written, IReadOnlyList<BlockCandidate> candidates, (ChannelDamage Damage, string Description)? damage)
     {
         if (s_folder is null || profile.Layout.IsStream)
         {
@@ -29,7 +37,22 @@ public static class PositionReplay
         }
 
         Directory.CreateDirectory(s_folder);
-        var saved = new Saved(profile.Id, seed, pass, source, [.. written.Select(Convert.ToHexString)], [.. candidates]);
+        List<WrittenSpan>? copies = null;
+        if (damage is { } d)
+        {
+            var spans = new List<WrittenSpan>();
+            foreach (double _ in FluxWriter.Reversals(profile, written, spans))
+            {
+            }
+
+            // SoX's speed effect, where its chain (after our channel's description, which gives the channel's own speed) has one.
+            int chain = d.Description.IndexOf("; sox ", StringComparison.Ordinal);
+            double sox = chain >= 0 && Regex.Match(d.Description[chain..], @"\bspeed ([0-9.]+)") is { Success: true } m ? double.Parse(m.Groups[1].Value, CultureInfo.InvariantCulture) : 1;
+            double Capture(double tape) => (d.Damage.MarginSeconds + (tape / d.Damage.Speed)) / sox;
+            copies = [.. spans.Select(s => s with { StartSeconds = Capture(s.StartSeconds), DataSeconds = Capture(s.DataSeconds), EndSeconds = Capture(s.EndSeconds) })];
+        }
+
+        var saved = new Saved(profile.Id, seed, pass, source, [.. written.Select(Convert.ToHexString)], [.. candidates], copies);
         File.WriteAllText(Path.Combine(s_folder, $"{profile.Id}-{seed}-{pass}.json"), JsonSerializer.Serialize(saved, s_json));
     }
 
@@ -53,6 +76,7 @@ public static class PositionReplay
         }
 
         var rows = new List<(string Profile, int Written, int Positions, int Merged, bool AnyClean)>();
+        var layoutRows = new List<(string Profile, LayoutTally Tally)>();
         var watch = System.Diagnostics.Stopwatch.StartNew();
         foreach (string file in Directory.GetFiles(folder, "*.json").Order(StringComparer.Ordinal))
         {
@@ -83,15 +107,28 @@ public static class PositionReplay
 
             bool anyClean = placed.Any(c => c.Status == BlockStatus.Clean);
             rows.Add((saved.Profile, written.Count, positions, merged, anyClean));
+            var copies = saved.Copies is { } layout ? Refined(layout, placed) : null;
+            var tally = copies is not null ? Tally(placed, copies) : null;
+            if (tally is not null)
+            {
+                layoutRows.Add((saved.Profile, tally));
+            }
+
             if (show && positions != written.Count)
             {
                 Console.WriteLine($"{Path.GetFileName(file)}: written {written.Count}, positions {positions}, two blocks in one {merged}, clean readings {placed.Count(c => c.Status == BlockStatus.Clean)}");
                 {
                     // Every reading, with the written blocks whose header it carries.
+                    if (tally is not null)
+                    {
+                        Console.WriteLine($"  layout: blocks read {tally.BlocksRead}, positions of none {tally.NoBlock}, split {tally.Split}, joined {tally.Joined}");
+                    }
+
                     foreach (var c in placed)
                     {
+                        string at = copies is not null && StartsAt(c, copies) is { } w ? $"{w.Block}.{w.Copy}{(w.Inside ? " in" : string.Empty)}" : "-";
                         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                            $"  pos {c.Position,3} {c.StartSeconds,9:0.000}-{c.EndSeconds,9:0.000} {c.SettingName,-4} {c.Status,-9} {(c.Truncated ? "cut" : "   ")} key {c.Identity.Key,-24} header of {string.Join(",", HeaderOf(profile, written, c))}"));
+                            $"  pos {c.Position,3} {c.StartSeconds,9:0.000}-{c.EndSeconds,9:0.000} {at,-7} {c.SettingName,-4} {c.Status,-9} {(c.Truncated ? "cut" : "   ")} key {c.Identity.Key,-24} header of {string.Join(",", HeaderOf(profile, written, c))}"));
                     }
                 }
             }
@@ -112,8 +149,123 @@ public static class PositionReplay
                 $"{group.Key,-18} {d.Count,8} {d.Count(x => x.Diff == 0),8} {d.Count(x => x.Diff < 0),6} {d.Count(x => x.Diff > 0),6} {d.Where(x => x.Diff > 0).Sum(x => x.Diff),6} {d.Where(x => x.Diff > 0 && !x.AnyClean).Sum(x => x.Diff),15} {group.Sum(r => r.Merged),13}"));
         }
 
+        if (layoutRows.Count > 0)
+        {
+            Console.WriteLine();
+            Console.WriteLine("Against the written layout (passes of our channel model, with or without SoX: where each copy lies in the capture): each reading");
+            Console.WriteLine("belongs to the written block whose copy's sync it starts at (within 50 ms), or whose copy it starts inside; blocks read: blocks");
+            Console.WriteLine("with a reading; positions of none: positions with no reading of a block; split: positions more than blocks read, over");
+            Console.WriteLine("the blocks read in two positions or more; joined: positions holding readings of two blocks or more (one per block over one).");
+            Console.WriteLine($"{"profile",-18} {"captures",8} {"written",8} {"read",6} {"positions",9} {"of none",7} {"split",6} {"joined",6}");
+            foreach (var group in layoutRows.GroupBy(r => r.Profile).OrderBy(g => g.Key, StringComparer.Ordinal))
+            {
+                var t = group.Select(r => r.Tally).ToList();
+                Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                    $"{group.Key,-18} {t.Count,8} {t.Sum(x => x.Written),8} {t.Sum(x => x.BlocksRead),6} {t.Sum(x => x.Positions),9} {t.Sum(x => x.NoBlock),7} {t.Sum(x => x.Split),6} {t.Sum(x => x.Joined),6}"));
+            }
+        }
+
         Console.WriteLine($"{watch.Elapsed.TotalSeconds:0.0} s");
         return 0;
+    }
+
+    /// <summary>
+    /// The written layout moved onto the readings: an affine map of its times (offset and scale) fitted by least squares to
+    /// the readings' starts, each matched to the nearest copy's sync, six times over. Wow and flutter, which the saved
+    /// layout leaves out, move a copy by a few milliseconds; readings made before the SoX speed was read right need it.
+    /// </summary>
+    private static List<WrittenSpan> Refined(List<WrittenSpan> layout, List<BlockCandidate> readings)
+    {
+        var spans = layout;
+        for (int round = 0; round < 6 && readings.Count > 1; round++)
+        {
+            double n = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
+            foreach (var c in readings)
+            {
+                var nearest = spans.MinBy(s => Math.Abs(s.DataSeconds - c.StartSeconds));
+                if (Math.Abs(nearest.DataSeconds - c.StartSeconds) > 0.1)
+                {
+                    continue;
+                }
+
+                int k = spans.IndexOf(nearest);
+                double x = layout[k].DataSeconds;
+                n++;
+                sx += x;
+                sy += c.StartSeconds;
+                sxx += x * x;
+                sxy += x * c.StartSeconds;
+            }
+
+            double det = (n * sxx) - (sx * sx);
+            if (n < 2 || Math.Abs(det) < 1e-9)
+            {
+                break;
+            }
+
+            double scale = ((n * sxy) - (sx * sy)) / det;
+            double offset = (sy - (scale * sx)) / n;
+            spans = [.. layout.Select(s => s with { StartSeconds = offset + (scale * s.StartSeconds), DataSeconds = offset + (scale * s.DataSeconds), EndSeconds = offset + (scale * s.EndSeconds) })];
+        }
+
+        return spans;
+    }
+
+    /// <summary>One capture against its written layout (see the table <see cref="Run"/> prints).</summary>
+    private sealed record LayoutTally(int Written, int BlocksRead, int Positions, int NoBlock, int Split, int Joined);
+
+    private static LayoutTally Tally(List<BlockCandidate> placed, List<WrittenSpan> layout)
+    {
+        var blocksOf = new Dictionary<int, HashSet<int>>();
+        var positionsOf = new Dictionary<int, HashSet<int>>();
+        foreach (var c in placed)
+        {
+            if (!blocksOf.TryGetValue(c.Position, out var blocks))
+            {
+                blocksOf[c.Position] = blocks = [];
+            }
+
+            if (StartsAt(c, layout) is { } w)
+            {
+                blocks.Add(w.Block);
+                if (!positionsOf.TryGetValue(w.Block, out var positions))
+                {
+                    positionsOf[w.Block] = positions = [];
+                }
+
+                positions.Add(c.Position);
+            }
+        }
+
+        return new LayoutTally(
+            layout.Select(s => s.Block).Distinct().Count(),
+            positionsOf.Count,
+            blocksOf.Count,
+            blocksOf.Values.Count(b => b.Count == 0),
+            positionsOf.Values.Sum(p => p.Count - 1),
+            blocksOf.Values.Sum(b => Math.Max(0, b.Count - 1)));
+    }
+
+    /// <summary>The written copy whose sync the reading starts at (within 50 ms), else the one it starts inside; null in a gap or lead-in.</summary>
+    private static (int Block, int Copy, bool Inside)? StartsAt(BlockCandidate c, List<WrittenSpan> layout)
+    {
+        foreach (var s in layout)
+        {
+            if (Math.Abs(c.StartSeconds - s.DataSeconds) <= 0.05)
+            {
+                return (s.Block, s.Copy, false);
+            }
+        }
+
+        foreach (var s in layout)
+        {
+            if (c.StartSeconds > s.DataSeconds && c.StartSeconds < s.EndSeconds)
+            {
+                return (s.Block, s.Copy, true);
+            }
+        }
+
+        return null;
     }
 
     /// <summary>The written blocks whose header (after the sync field) the reading carries as read.</summary>

@@ -321,7 +321,7 @@ public static class Trust
                 results.Add(result);
                 names.Add(Path.GetFileName(path));
                 sources.Add(source);
-                PositionReplay.Save(profile, seed, p, source, written, result.Candidates);
+                PositionReplay.Save(profile, seed, p, source, written, result.Candidates, t_passDamage);
                 if (!bySource.TryGetValue(source, out var readings))
                 {
                     bySource[source] = readings = [];
@@ -644,6 +644,10 @@ public static class Trust
     [ThreadStatic]
     private static ChannelDamage? t_channelDamage;
 
+    /// <summary>The channel damage of the last pass this thread made from our channel model, with or without SoX after it (null for minimodem's).</summary>
+    [ThreadStatic]
+    private static (ChannelDamage Damage, string Description)? t_passDamage;
+
     /// <summary>
     /// With TAPEVAULT_TRUST_CASES set to a folder, a pass of our channel model alone that gave a wrong clean reading is
     /// saved there as a case (profile, damage, written blocks), so that a test can make the same capture again.
@@ -673,6 +677,7 @@ public static class Trust
         bool sox = minimodem || draw >= 0.65;
         string path = stem + ".wav";
         string description;
+        t_passDamage = null;
         int channels = 1;
         int sampleRate;
         if (minimodem)
@@ -699,6 +704,7 @@ public static class Trust
 
         var damage = RandomDamage.Draw(rng);
         description = RandomDamage.Describe(damage);
+        t_passDamage = (damage, description);
         if (!sox)
         {
             t_channelDamage = damage;
@@ -710,6 +716,7 @@ public static class Trust
         CaptureSynthesizer.WriteBlocks(ours, profile, written, damage);
         channels = damage.Channels == CaptureChannels.Mono ? 1 : 2;
         path = Chain(ours, path, channels, damage.SampleRate, rng, ref description);
+        t_passDamage = (damage, description);
         return (path, "channel+sox", description);
     }
 

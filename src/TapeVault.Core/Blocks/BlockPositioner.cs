@@ -96,7 +96,7 @@ public static partial class BlockPositioner
             KeyCopiesMisreadAlike(keyed, anchors, copies, copyGap);
         }
 
-        var stray = KeyUnanchoredReadings(keyed);
+        var stray = KeyUnanchoredReadings(keyed, copies);
 
         // A position is one identity over one stretch of tape: copies and other settings' readings overlap or follow
         // closely; the same identity much later (a block number reused by the next file) is a new position. Copies
@@ -433,8 +433,16 @@ public static partial class BlockPositioner
         List<(BlockCandidate Candidate, string Key)> keyed, int[] positionOf, bool[] stray, int[] syncOf, List<int>[] syncs, bool[] clean,
         Func<int, int> root, Action<int, int> join, int copies)
     {
-        // Per sync in order: the position that alone reads there (-1 where several do or none).
         int syncCount = keyed.Count == 0 ? 0 : syncOf[^1] + 1;
+
+        // Where each sync is: the start of its first reading (readings are in order of start).
+        var syncStart = new double[syncCount];
+        for (int i = keyed.Count - 1; i >= 0; i--)
+        {
+            syncStart[syncOf[i]] = keyed[i].Candidate.StartSeconds;
+        }
+
+        // Per sync in order: the position that alone reads there (-1 where several do or none).
         var owner = new int[syncCount];
         Array.Fill(owner, -2);
         var readingsOf = new Dictionary<int, List<int>>();
@@ -459,7 +467,7 @@ public static partial class BlockPositioner
         // Units along the tape: a lone place (one sync, not clean), a whole block (all its copies at consecutive
         // syncs), or anything else, which bounds no run.
         const int Lone = 0, Whole = 1, Other = 2;
-        var units = new List<(int Kind, int Root)>();
+        var units = new List<(int Kind, int Root, int Sync)>();
         for (int k = 0; k < syncCount; k++)
         {
             int r = owner[k];
@@ -470,7 +478,7 @@ public static partial class BlockPositioner
 
             if (r < 0)
             {
-                units.Add((Other, -1));
+                units.Add((Other, -1, k));
                 continue;
             }
 
@@ -483,7 +491,7 @@ public static partial class BlockPositioner
             int kind = own.Count == 1 && !clean[r] ? Lone
                 : own.Count == copies && own[^1] - own[0] == copies - 1 ? Whole
                 : Other;
-            units.Add((kind, r));
+            units.Add((kind, r, k));
         }
 
         // How many settings read each identity: a setting misreads the copies of one block alike, so only other settings' agreement vouches for a header.
@@ -519,19 +527,79 @@ public static partial class BlockPositioner
                 end++;
             }
 
+            // A run bounded by whole blocks whose length is a multiple of k is k copies of each block in turn, unless
+            // the places' timing says otherwise (below).
             bool bounded = (u == 0 || units[u - 1].Kind == Whole) && (end == units.Count || units[end].Kind == Whole);
-            if (bounded && (end - u) % copies == 0 && !AnyNamesTwoBlocks(keyed, readingsOf, units, u, end, copies, support))
+            bool timed = true;
+            for (int first = u; first + copies <= end && timed; first += copies)
+            {
+                timed = first + copies >= units.Count || SpansAlike(first);
+            }
+
+            if (bounded && timed && (end - u) % copies == 0 && !AnyNamesTwoBlocks(keyed, readingsOf, units, u, end, copies, support))
             {
                 for (int first = u; first < end; first += copies)
                 {
-                    for (int other = first + 1; other < first + copies; other++)
-                    {
-                        join(root(units[first].Root), root(units[other].Root));
-                    }
+                    JoinCopies(first);
+                }
+
+                u = end;
+                continue;
+            }
+
+            // Otherwise (a copy nobody read, a place that is no block, the run's first place not a first copy), the
+            // places' timing tells the copies: copies of one block are one length and follow each other after the
+            // same gap, so the k spans from each of its copies' syncs to the next sync read are alike. From the run's
+            // first place, k places whose spans are alike are one block's copies; a place whose span is not that of the
+            // places after it stands alone. Where the place before has that span too and is not known to end a block
+            // (consecutive blocks of one length), the place may as well be its block's last copy: it stands alone.
+            for (int first = u, groupEnd = u; first + copies <= end;)
+            {
+                bool startsBlock = first == groupEnd || units[first - 1].Kind == Whole || !Alike(first - 1, first);
+                if (first + copies < units.Count && startsBlock && SpansAlike(first) && !AnyNamesTwoBlocks(keyed, readingsOf, units, first, first + copies, copies, support))
+                {
+                    JoinCopies(first);
+                    first += copies;
+                    groupEnd = first;
+                }
+                else
+                {
+                    first++;
                 }
             }
 
             u = end;
+        }
+
+        void JoinCopies(int first)
+        {
+            for (int other = first + 1; other < first + copies; other++)
+            {
+                join(root(units[first].Root), root(units[other].Root));
+            }
+        }
+
+        // Whether the spans from the syncs of units first..first+k-1 to each next unit's sync are alike.
+        bool SpansAlike(int first)
+        {
+            for (int u = first + 1; u < first + copies; u++)
+            {
+                if (!Alike(first, u))
+                {
+                    return false;
+                }
+            }
+
+            return true;
+        }
+
+        // Whether the spans from the syncs of units a and b to the next unit's sync are alike: within 1 % (wow and
+        // flutter, common practice) and 10 ms (where settings' readings of one sync start).
+        bool Alike(int a, int b)
+        {
+            double x = syncStart[units[a + 1].Sync] - syncStart[units[a].Sync];
+            double y = syncStart[units[b + 1].Sync] - syncStart[units[b].Sync];
+            return Math.Abs(x - y) <= (0.01 * Math.Max(x, y)) + 0.01;
         }
     }
 
@@ -540,7 +608,7 @@ public static partial class BlockPositioner
     /// to be believed: headers read far enough to name a block, each read alike by two settings or more.
     /// </summary>
     private static bool AnyNamesTwoBlocks(
-        List<(BlockCandidate Candidate, string Key)> keyed, Dictionary<int, List<int>> readingsOf, List<(int Kind, int Root)> units, int from, int to, int copies,
+        List<(BlockCandidate Candidate, string Key)> keyed, Dictionary<int, List<int>> readingsOf, List<(int Kind, int Root, int Sync)> units, int from, int to, int copies,
         Dictionary<string, int> support)
     {
         for (int first = from; first < to; first += copies)
@@ -581,7 +649,7 @@ public static partial class BlockPositioner
     /// A misread of a real block keeps most of its header (the file's name, a block number near its neighbours'); such
     /// a place is noise read as data, typically in the lead-in between two blocks or two copies of one.
     /// </returns>
-    private static bool[] KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed)
+    private static bool[] KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed, int copies)
     {
         var stray = new bool[keyed.Count];
         var vouched = new bool[keyed.Count];
@@ -645,7 +713,10 @@ public static partial class BlockPositioner
             }
         }
 
-        // Each place's identity: the one most readings of the capture carry; then the most confident reading's.
+        // Each place's identity: the one most readings of the capture carry; then the most confident reading's. A
+        // reading cut short inside the first field of its header names no block (its identity is its setting's count
+        // of readings, which other settings' counts match by chance): it vouches for nothing, and a place where no
+        // reading names a block is known by itself alone, vouched for by the readings that start at its sync.
         var placeKey = new string[places.Count];
         var placeSupport = new int[places.Count];
         for (int p = 0; p < places.Count; p++)
@@ -655,17 +726,20 @@ public static partial class BlockPositioner
             {
                 var c = keyed[i].Candidate;
                 var b = keyed[best].Candidate;
-                int sc = support[c.Identity.Key];
-                int sb = support[b.Identity.Key];
+                int sc = Support(c);
+                int sb = Support(b);
                 if (sc > sb || (sc == sb && c.Confidence > b.Confidence))
                 {
                     best = i;
                 }
             }
 
-            placeKey[p] = keyed[best].Candidate.Identity.Key;
-            placeSupport[p] = support[placeKey[p]];
+            var named = keyed[best].Candidate;
+            placeKey[p] = NamesItself(named) ? named.Identity.Key : $"place {p}";
+            placeSupport[p] = NamesItself(named) ? Support(named) : places[p].Count;
         }
+
+        int Support(BlockCandidate c) => NamesItself(c) ? support[c.Identity.Key] : 0;
 
         for (int p = 0; p < places.Count; p++)
         {
@@ -689,7 +763,13 @@ public static partial class BlockPositioner
             bool claimsNothing = places[p].TrueForAll(i => keyed[i].Candidate is { Status: BlockStatus.Failed, Truncated: false, Payload.IsEmpty: true });
             if (placeSupport[p] <= 1 || claimsNothing)
             {
-                key = overlapped ?? key;
+                // A header read at a sync of its own that resembles its neighbours' (the file's name, a block number
+                // near theirs) names a block that a failed reading from another sync ran over on a misread length:
+                // it keeps its identity. Where the format writes each block more than once, such a header is as
+                // likely the other copy of the block run over, and takes its identity.
+                bool ownBlock = copies <= 1 && !claimsNothing
+                    && places[p].Exists(i => NamesItself(keyed[i].Candidate) && ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: false));
+                key = ownBlock ? key : overlapped ?? key;
                 if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, starts, byEnd, places[p], atStartToo: claimsNothing) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: claimsNothing)))
                 {
                     foreach (int i in places[p])
@@ -707,7 +787,7 @@ public static partial class BlockPositioner
                 var c = keyed[i].Candidate;
                 string own = c.Identity.Key;
                 bool nothingRead = c.Truncated && c.Payload.IsEmpty;
-                keyed[i] = (c, support[own] > 1 && !nothingRead ? own : key);
+                keyed[i] = (c, Support(c) > 1 && !nothingRead ? own : key);
             }
         }
 
