@@ -94,17 +94,9 @@ public sealed class FamilyChoiceTests(OutsideTempFolder folder, ITestOutputHelpe
     [Fact]
     public void Biphase_whose_transitions_read_a_quarter_cell_late_is_drafted_as_biphase()
     {
-        var result = DraftTrials.Run("biphase-alternating", 10002, folder.Root, SeedChain);
+        var result = DraftTrials.Run("biphase-alternating", 10002, folder.Root,
+            DraftFromCaptureSox.Printed("highpass", "294.2222", "equalizer", "3170.1285", "0.6579q", "-11.8819", "vol", "-1", "gain", "-7.2354", "rate", "96000", "dither"));
         AssertDraftedAs(result, "biphase", truthAtLeast: 5);
-    }
-
-    /// <summary>The draft figure's SoX chain for tuning seed 10002, as that benchmark printed it.</summary>
-    private static (string Path, string Description) SeedChain(string path, Random rng)
-    {
-        string[] effects = ["highpass", "294.2222", "equalizer", "3170.1285", "0.6579q", "-11.8819", "vol", "-1", "gain", "-7.2354", "rate", "96000", "dither"];
-        string output = Path.ChangeExtension(path, ".sox.wav");
-        OutsideTool.Sox(["-V1", path, "-b", "16", output, .. effects]);
-        return (output, "sox " + string.Join(' ', effects));
     }
 
     /// <summary>
