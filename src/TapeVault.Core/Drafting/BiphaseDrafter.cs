@@ -1,4 +1,5 @@
 using System.Text.Json.Nodes;
+using TapeVault.Core.Edges;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Pulses;
 using static TapeVault.Core.Drafting.CommonSections;
@@ -100,45 +101,14 @@ public sealed class BiphaseDrafter : IFamilyDrafter
                 continue;
             }
 
-            var bits = new List<int> { 1 };
-            int bit = 1;
-            int i;
-            if (alternating)
-            {
-                // The last whole of the preamble ends on a mid-cell transition of a bit whose value the preamble
-                // cannot tell (its phase depends on the polarity): it is read as 1 here, and the search tries the
-                // reading with every bit inverted too. The edge is that bit's transition.
-                firstOnes++;
-                risingOnes += survey.Edges[at].Rising ? 1 : 0;
-                i = at;
-            }
-            else
-            {
-                // The edge that ends the first whole is the first 1's mid-cell transition: its direction is a 1's.
-                firstOnes++;
-                risingOnes += survey.Edges[at + 1].Rising ? 1 : 0;
-                i = at + 1;
-            }
-
-            while (i < limit)
-            {
-                if (kind[i] == 1)
-                {
-                    bit ^= 1;
-                    i++;
-                }
-                else if (kind[i] == 0 && i + 1 < limit && kind[i + 1] == 0)
-                {
-                    i += 2;
-                }
-                else
-                {
-                    break;
-                }
-
-                bits.Add(bit);
-            }
-
+            // The edge that begins the walk is a mid-cell transition read as a 1: in an alternating preamble the last
+            // whole ends on one (its bit's value the preamble cannot tell: its phase depends on the polarity, so the
+            // search tries the reading with every bit inverted too); after a lead-in of zeros the edge that ends the
+            // first whole is the first 1's, and its direction is a 1's.
+            int anchor = alternating ? at : at + 1;
+            firstOnes++;
+            risingOnes += survey.Edges[anchor].Rising ? 1 : 0;
+            var bits = CellWalk(survey.Edges, anchor, limit, cell * survey.Stretch.SampleRate);
             if (bits.Count >= 24)
             {
                 blocks.Add([.. bits]);
@@ -221,6 +191,81 @@ public sealed class BiphaseDrafter : IFamilyDrafter
         proposal.Notes.Add($"Read through detector setting {survey.Setting.Name}: {blocks.Count} blocks after {(alternating ? "alternating preambles" : "lead-ins of equal bits")}; {reading.Candidates} readings of sync and framing held.");
         return proposal;
     }
+
+    /// <summary>How far, in cells, a mid-cell transition may stray from the walk's cell clock and still keep time.</summary>
+    private const double ClockTolerance = 0.4;
+
+    /// <summary>Cells a walk bridges between two mid-cell transitions (the transitions between them lost); more ends the block.</summary>
+    private const int MostCellsBridged = 3;
+
+    /// <summary>
+    /// A block's bits from its first mid-cell transition (<paramref name="anchor"/>, read as a 1) on, walked on a cell
+    /// clock as the read path's decoder walks it, not interval by interval: a transition moved by a quarter cell (a
+    /// crossing after a whole read late, so that a half and a whole read as two lengths between them) still falls
+    /// nearer its place on the clock than any other, and a cell whose transitions were lost is bridged with a bit
+    /// guessed (the count kept, so that the bytes after it stay in place). A transition after a mid-cell one is a
+    /// boundary where it comes about half a cell on (where it could be either, the one after it tells: a boundary is
+    /// followed by the mid-cell transition a cell after the last, a mid-cell one by a transition later than that),
+    /// else the next cell's; each mid-cell transition's direction is its bit. The block ends at a transition off the
+    /// clock, a glitch, or a gap longer than <see cref="MostCellsBridged"/> cells.
+    /// </summary>
+    internal static List<int> CellWalk(IReadOnlyList<Edge> edges, int anchor, int limit, double cellSamples)
+    {
+        ArgumentNullException.ThrowIfNull(edges);
+        var bits = new List<int> { 1 };
+        bool oneRising = edges[anchor].Rising;
+        double lastMid = edges[anchor].Sample;
+        double cell = cellSamples;
+        bool afterBoundary = false;
+        int end = Math.Min(limit, edges.Count - 1);
+        for (int e = anchor + 1; e <= end; e++)
+        {
+            double halves = 2 * (edges[e].Sample - lastMid) / cell;
+            if (!afterBoundary)
+            {
+                bool boundary = halves < 1.25
+                    || (halves < 1.75 && e + 1 <= end && 2 * (edges[e + 1].Sample - lastMid) / cell < 2.5);
+                if (halves < 0.5)
+                {
+                    break;
+                }
+
+                if (boundary)
+                {
+                    afterBoundary = true;
+                    continue;
+                }
+            }
+            else if (halves < 1.5)
+            {
+                break;
+            }
+
+            int cells = Math.Max(1, (int)Math.Round(halves / 2));
+            double error = edges[e].Sample - (lastMid + (cells * cell));
+            if (cells > MostCellsBridged || Math.Abs(error) > ClockTolerance * cell)
+            {
+                break;
+            }
+
+            for (int bridged = 1; bridged < cells; bridged++)
+            {
+                bits.Add(bits[^1]);
+            }
+
+            bits.Add(edges[e].Rising == oneRising ? 1 : 0);
+            lastMid += (cells * cell) + (ClockPhaseGain * error);
+            cell += ClockPeriodGain * error / cells;
+            afterBoundary = false;
+        }
+
+        return bits;
+    }
+
+    /// <summary>How much of a mid-cell transition's error moves the walk's clock, in phase and in period (a first-order loop, as the decoder's).</summary>
+    private const double ClockPhaseGain = 0.25;
+
+    private const double ClockPeriodGain = 0.02;
 
     /// <summary>The symbols most blocks share from their start, up to where fewer than seven in ten agree (at most 64).</summary>
     private static int[] SharedBits(List<int[]> blocks)

@@ -106,7 +106,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         {
             var lengths = Uncrowded(fits[i].Clusters, fits.Select(f => f.Clusters));
             var proposal = DraftThrough(fits[i].Setting, fits[i].Clusters, lengths, fits[i].Cycles, fits[i].Symbols, fits[i].Grouped, cancellation);
-            if (proposal is not null && proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed))
+            if (proposal is not null && Proven(proposal))
             {
                 return proposal;
             }
@@ -116,6 +116,9 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
 
         return first;
     }
+
+    /// <summary>A reading a check value proves (its checksum measured, not guessed).</summary>
+    private static bool Proven(FamilyProposal proposal) => proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed);
 
     /// <summary>
     /// The classes' lengths from the setting that reads them farthest apart. Neighbouring transitions crowd one
@@ -174,7 +177,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         return [.. found.Select((c, i) => c with { Seconds = best[i] })];
     }
 
-    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> classesFound, List<IntervalCluster> lengths, double[] cycles, int[] sym, double grouped, CancellationToken cancellation)
+    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> classesFound, List<IntervalCluster> lengths, double[] cycles, int[] sym, double grouped, CancellationToken cancellation, bool syncClassAdded = false)
     {
         // The lead-in: the class of the long runs.
         var longRuns = Runs(sym).Where(r => r.Class >= 0 && r.Length >= LeastLeadInCycles).ToList();
@@ -225,6 +228,24 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         if (blocks.Count == 0)
         {
             return null;
+        }
+
+        // A sync pulse comes once a block, right after its lead-in: too rare for a group of its own (a few cycles in
+        // ten thousand), so every block would begin with a cycle in no class and no sync would be found. Where most
+        // lead-ins are followed by such a cycle, and those cycles are alike, they are a class of their own.
+        if (!syncClassAdded && SyncClassAfterLeadIns(cycles, sym, leadRuns, classesFound) is { } syncClass)
+        {
+            var withSync = classesFound.Append(syncClass).OrderBy(c => c.Seconds).ToList();
+            var lengthsWithSync = lengths.Append(syncClass).OrderBy(c => c.Seconds).ToList();
+            var resymbolled = IntervalClusters.Classify(cycles, withSync);
+            var withClass = DraftThrough(setting, withSync, lengthsWithSync, cycles, resymbolled, grouped, cancellation, syncClassAdded: true);
+            if (withClass is not null && Proven(withClass))
+            {
+                return withClass;
+            }
+
+            var without = DraftThrough(setting, classesFound, lengths, cycles, sym, grouped, cancellation, syncClassAdded: true);
+            return without is not null && Proven(without) ? without : withClass ?? without;
         }
 
         // Bits as pairs of pulses with a marker before every byte: a structure of its own, read by PulsePairs.
@@ -547,6 +568,38 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         proposal.Notes.Add($"Read through detector setting {setting.Name}: {blockCount} blocks after lead-ins, bits as pairs of pulses with a marker before every byte.");
         return proposal;
     }
+
+    /// <summary>
+    /// The class of the cycle right after the lead-ins, where it is in none of the classes found: at least six in ten
+    /// lead-ins are followed by a cycle in no class, and six in ten by one within the group's reach of their
+    /// geometric mean, which lies 25 % or more from every class found (the profile language's rule). Null otherwise.
+    /// </summary>
+    internal static IntervalCluster? SyncClassAfterLeadIns(double[] cycles, int[] sym, IReadOnlyList<(int Class, int Start, int Length)> leadRuns, IReadOnlyList<IntervalCluster> classes)
+    {
+        ArgumentNullException.ThrowIfNull(cycles);
+        ArgumentNullException.ThrowIfNull(sym);
+        ArgumentNullException.ThrowIfNull(leadRuns);
+        ArgumentNullException.ThrowIfNull(classes);
+        var after = leadRuns.Select(r => r.Start + r.Length).Where(i => i < sym.Length && sym[i] < 0).Select(i => cycles[i]).Order().ToList();
+        int least = (int)Math.Ceiling(SyncClassShare * leadRuns.Count);
+        if (leadRuns.Count < 2 || after.Count < Math.Max(2, least))
+        {
+            return null;
+        }
+
+        double median = after[after.Count / 2];
+        var near = after.Where(x => Math.Abs(Math.Log(x / median)) < Math.Log(1 + IntervalClusters.Reach)).ToList();
+        double centre = Math.Exp(near.Average(Math.Log));
+        if (near.Count < Math.Max(2, least) || classes.Any(c => Math.Max(c.Seconds, centre) < 1.25 * Math.Min(c.Seconds, centre)))
+        {
+            return null;
+        }
+
+        return new IntervalCluster(centre, (double)near.Count / cycles.Length, near.Count);
+    }
+
+    /// <summary>The share of lead-ins a cycle in no class must follow, alike, to be a class (<see cref="SyncClassAfterLeadIns"/>).</summary>
+    private const double SyncClassShare = 0.6;
 
     /// <summary>
     /// The lead-in class's length as its lead-ins play it: the geometric mean of the lead-in runs' cycles, the first

@@ -93,4 +93,12 @@ internal static class DraftFromCaptureSox
         OutsideTool.Sox([path, "-b", "16", output, .. effects]);
         return (output, "sox " + string.Join(' ', effects));
     }
+
+    /// <summary>A fixed chain (a seed's chain as the draft figure printed it), written at 16 bits as the figure writes it.</summary>
+    public static Func<string, Random, (string Path, string Description)> Printed(params string[] effects) => (path, _) =>
+    {
+        string output = Path.ChangeExtension(path, ".sox.wav");
+        OutsideTool.Sox(["-V1", path, "-b", "16", output, .. effects]);
+        return (output, "sox " + string.Join(' ', effects));
+    };
 }

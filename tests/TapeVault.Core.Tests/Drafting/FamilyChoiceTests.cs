@@ -83,6 +83,23 @@ public sealed class FamilyChoiceTests(OutsideTempFolder folder, ITestOutputHelpe
     }
 
     /// <summary>
+    /// Tuning seed 10002: biphase after a preamble of alternating bits, a line-output capture clipped at +12 dB drive,
+    /// then the draft figure's SoX chain for that seed (a 294 Hz high-pass, a dip at 3.2 kHz, inversion, a gain, 96 kHz,
+    /// dithered to 16 bits: sox(1), a general-purpose audio tool that shares no code with TapeVault). The crossing after
+    /// a whole cell reads a quarter cell late, so a half then a whole read as two lengths between them, and the
+    /// drafter's walk, which took each interval's class, broke every block within its first bits: no check was found,
+    /// biphase scored 0.1 and an unproven pulse-width draft that read none of the truth's 8 blocks was proposed. The
+    /// walk now keeps a cell clock, as the read path's decoder does.
+    /// </summary>
+    [Fact]
+    public void Biphase_whose_transitions_read_a_quarter_cell_late_is_drafted_as_biphase()
+    {
+        var result = DraftTrials.Run("biphase-alternating", 10002, folder.Root,
+            DraftFromCaptureSox.Printed("highpass", "294.2222", "equalizer", "3170.1285", "0.6579q", "-11.8819", "vol", "-1", "gain", "-7.2354", "rate", "96000", "dither"));
+        AssertDraftedAs(result, "biphase", truthAtLeast: 5);
+    }
+
+    /// <summary>
     /// The truth profile read at least <paramref name="truthAtLeast"/> blocks (else the damage, not the draft, is
     /// tested), the draft is of <paramref name="family"/>, and once confirmed it reads 90 % of the truth's blocks.
     /// </summary>
