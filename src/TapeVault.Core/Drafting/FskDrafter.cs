@@ -42,14 +42,19 @@ public sealed class FskDrafter : IFamilyDrafter
     /// 1), so each tone whose runs step by two or more gives the even counts next to its step, and one cycle of the
     /// lower tone a bit is always a candidate. Either way the lower tone's whole cycles a bit (<see cref="LowerToneCycles"/>)
     /// follow, since half cycles between the tones (a change of tone read through a filter) break the runs and
-    /// mislead their step; trial decodes choose among them.
+    /// mislead their step; trial decodes choose among them. The likeliest pair comes first, then the other pairs of
+    /// main groups the spectrum shows as tones (at most <see cref="MostTonePairs"/> in all), which the draft tries where
+    /// the likeliest frames no character cleanly: a group of half cycles that is no tone (those at a change of tone,
+    /// which a one-cycle bit's neighbours pull between the tones) can hold more intervals than the lower tone, and the
+    /// pair it makes with the higher tone is then the likeliest.
     /// </summary>
-    private static (int Low, int High, IReadOnlyList<double> Bauds, bool FromRuns)? Tones(StretchSurvey survey)
+    private static List<(int Low, int High, IReadOnlyList<double> Bauds, bool FromRuns)> Tones(StretchSurvey survey)
     {
+        var candidates = new List<(int Low, int High, IReadOnlyList<double> Bauds, bool FromRuns)>();
         var top = survey.Dominant.Take(2).ToList();
         if (top.Count < 2 || survey.Clusters[top[1]].Share < 0.05)
         {
-            return null;
+            return candidates;
         }
 
         int a = Math.Min(top[0], top[1]);
@@ -67,7 +72,7 @@ public sealed class FskDrafter : IFamilyDrafter
                 .MinBy(p => Math.Abs(Math.Log(p.A / p.B)));
             if (bitA > 0 && Math.Abs(Math.Log(bitA / bitB)) <= 0.12)
             {
-                return (b, a, Bauds(survey, a, b, [1 / Math.Sqrt(bitA * bitB)]), true);
+                candidates.Add((b, a, Bauds(survey, a, b, [1 / Math.Sqrt(bitA * bitB)]), true));
             }
         }
 
@@ -81,8 +86,14 @@ public sealed class FskDrafter : IFamilyDrafter
             .OrderByDescending(p => survey.Clusters[p.High].Share + survey.Clusters[p.Low].Share);
         foreach (var (high, low) in pairs)
         {
+            if (candidates.Count >= MostTonePairs)
+            {
+                break;
+            }
+
             double ratio = survey.Clusters[low].Seconds / survey.Clusters[high].Seconds;
-            if (ratio is >= 1.15 and <= 3.5 && SpectrumShows(spectrum, 0.5 / survey.Clusters[low].Seconds) && SpectrumShows(spectrum, 0.5 / survey.Clusters[high].Seconds))
+            if (ratio is >= 1.15 and <= 3.5 && SpectrumShows(spectrum, 0.5 / survey.Clusters[low].Seconds) && SpectrumShows(spectrum, 0.5 / survey.Clusters[high].Seconds)
+                && !candidates.Exists(c => c.Low == low && c.High == high))
             {
                 var fromSteps = new List<double> { 0.5 / survey.Clusters[low].Seconds };
                 foreach (int g in new[] { high, low })
@@ -90,12 +101,15 @@ public sealed class FskDrafter : IFamilyDrafter
                     fromSteps.AddRange(Even(survey.Runs[g].Granularity).Select(cycles => 1 / (cycles * survey.Clusters[g].Seconds)));
                 }
 
-                return (low, high, Bauds(survey, high, low, fromSteps), false);
+                candidates.Add((low, high, Bauds(survey, high, low, fromSteps), false));
             }
         }
 
-        return null;
+        return candidates;
     }
+
+    /// <summary>The most pairs of groups tried as the tones, the likeliest first.</summary>
+    public const int MostTonePairs = 3;
 
     /// <summary>The most groups of half cycles (the largest) whose pairs are tried as the two tones.</summary>
     public const int MostToneGroups = 4;
@@ -139,13 +153,15 @@ public sealed class FskDrafter : IFamilyDrafter
     public FamilyScore Score(StretchSurvey survey)
     {
         ArgumentNullException.ThrowIfNull(survey);
-        if (Tones(survey) is not var (low, high, bauds, fromRuns))
+        var candidates = Tones(survey);
+        if (candidates.Count == 0)
         {
             var top = survey.Dominant.Take(2).ToList();
             return new FamilyScore(Family, 0, "the two main groups do not come in runs that make one bit time, nor does the spectrum show two tones"
                 + (top.Count < 2 ? string.Empty : $" ({string.Join(", ", top.Select(g => $"{F(0.5 / survey.Clusters[g].Seconds, "0")} Hz, {F(100 * survey.Clusters[g].Share, "0")} % of intervals, runs of {survey.Runs[g].Granularity}"))})"));
         }
 
+        var (low, high, bauds, fromRuns) = candidates[0];
         string tones = $"half cycles of {F(0.5 / survey.Clusters[high].Seconds, "0")} Hz come in runs of {survey.Runs[high].Granularity} and of {F(0.5 / survey.Clusters[low].Seconds, "0")} Hz in runs of {survey.Runs[low].Granularity}";
         return fromRuns
             ? new FamilyScore(Family, 0.9 * survey.GroupedShare, $"{tones}: one bit time of {Us(1 / bauds[0])} µs either way")
@@ -155,29 +171,49 @@ public sealed class FskDrafter : IFamilyDrafter
     public FamilyProposal? Draft(StretchSurvey survey, CancellationToken cancellation)
     {
         ArgumentNullException.ThrowIfNull(survey);
-        if (Tones(survey) is not var (low, high, bauds, fromRuns))
+        var candidates = Tones(survey);
+        if (candidates.Count == 0)
         {
             return null;
         }
 
-        double highHz = 0.5 / survey.Clusters[high].Seconds;
-        double lowHz = 0.5 / survey.Clusters[low].Seconds;
-
         // The mark is the tone of the idle line: told by decoding both ways, with eight data bits and one stop bit
         // (and, where those do not hold, with a parity bit of either kind, whose place the stop bit would take); each
         // baud is tried so in turn, likeliest first, until one frames cleanly, and the one that reads most is kept.
+        // Where no baud of the likeliest tones frames cleanly, the next pair of tones is tried so too.
         var tried = new List<(double Baud, TrialResult High, TrialResult Low)>();
-        foreach (double candidate in bauds)
+        (int Low, int High, IReadOnlyList<double> Bauds, bool FromRuns, double Baud, TrialResult AsHigh, TrialResult AsLow)? best = null;
+        foreach (var (lowGroup, highGroup, candidateBauds, candidateFromRuns) in candidates)
         {
-            var t = (Baud: candidate, High: Selection(survey.Stretch, highHz, lowHz, candidate, cancellation), Low: Selection(survey.Stretch, lowHz, highHz, candidate, cancellation));
-            tried.Add(t);
-            if (t.High.Clean || t.Low.Clean)
+            var pairTried = new List<(double Baud, TrialResult High, TrialResult Low)>();
+            double higherHz = 0.5 / survey.Clusters[highGroup].Seconds;
+            double lowerHz = 0.5 / survey.Clusters[lowGroup].Seconds;
+            foreach (double candidate in candidateBauds)
+            {
+                var t = (Baud: candidate, High: Selection(survey.Stretch, higherHz, lowerHz, candidate, cancellation), Low: Selection(survey.Stretch, lowerHz, higherHz, candidate, cancellation));
+                pairTried.Add(t);
+                if (t.High.Clean || t.Low.Clean)
+                {
+                    break;
+                }
+            }
+
+            var top = pairTried.MaxBy(t => Math.Max(t.High.Score, t.Low.Score));
+            if (best is null || Math.Max(top.High.Score, top.Low.Score) > Math.Max(best.Value.AsHigh.Score, best.Value.AsLow.Score))
+            {
+                best = (lowGroup, highGroup, candidateBauds, candidateFromRuns, top.Baud, top.High, top.Low);
+                tried = pairTried;
+            }
+
+            if (top.High.Clean || top.Low.Clean)
             {
                 break;
             }
         }
 
-        var (baud, asHigh, asLow) = tried.MaxBy(t => Math.Max(t.High.Score, t.Low.Score));
+        var (low, high, bauds, fromRuns, baud, asHigh, asLow) = best!.Value;
+        double highHz = 0.5 / survey.Clusters[high].Seconds;
+        double lowHz = 0.5 / survey.Clusters[low].Seconds;
         bool highIsMark = asHigh.Score >= asLow.Score;
         int markGroup = highIsMark ? high : low;
         double markHz = highIsMark ? highHz : lowHz;
@@ -339,6 +375,13 @@ public sealed class FskDrafter : IFamilyDrafter
         proposal.Measured("framing.parity", chosen.Parity.ToString().ToLowerInvariant(), framingConfidence, $"framing errors per framing tried (data bits, parity, stop bits): {others}; the most data and parity bits that hold are drafted");
         proposal.Measured("framing.dataBits", F(chosen.Data), layout.HasChecksum ? 0.9 : framingConfidence - 0.1, $"framing errors per framing tried: {others}");
         Layout(proposal, layout);
+        if (candidates[0].Low != low || candidates[0].High != high)
+        {
+            var (firstLow, firstHigh, _, _) = candidates[0];
+            proposal.Notes.Add($"The likeliest pair of tones, {F(0.5 / survey.Clusters[firstHigh].Seconds, "0")} Hz and {F(0.5 / survey.Clusters[firstLow].Seconds, "0")} Hz, framed no character cleanly at any baud tried; "
+                + $"{F(highHz, "0")} Hz and {F(lowHz, "0")} Hz, among the next {candidates.Count - 1} pair(s) of main groups the spectrum shows, read most.");
+        }
+
         proposal.Notes.Add($"Framing told by {trials.Count} trial decodes of the first {F(Math.Min(TrialSeconds, survey.Stretch.Seconds), "0")} s with the read path's FSK decoder; {blockBytes.Count} blocks read with the framing chosen.");
         return proposal;
     }

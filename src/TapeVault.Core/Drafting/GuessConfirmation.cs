@@ -78,7 +78,7 @@ public static class GuessConfirmation
 
                     break;
                 case "layout.header":
-                    ConfirmHeader(draft, reference);
+                    ConfirmHeader(draft, reference, checksumGuessed: paths.Contains("layout.checksum"));
                     break;
                 case "layout.payloadBytes" when rule == ConfirmationRule.GuessedFieldsOnly:
                     foreach (string part in PayloadLength)
@@ -104,33 +104,24 @@ public static class GuessConfirmation
     /// The reference's header fields in place of the draft's. What the draft measured around the header stays its
     /// own: the check's coverage starts at the same byte (named now by the reference's fields there), and the largest
     /// payload follows the confirmed length field by the drafter's own rule (<see cref="CommonSections.Layout"/>).
+    /// Where the reference's blocks are of several kinds (a header block that gives the next block's length), its
+    /// kinds are the confirmed header (see <see cref="ConfirmKinds"/>).
     /// </summary>
-    private static void ConfirmHeader(JsonObject draft, JsonObject reference)
+    private static void ConfirmHeader(JsonObject draft, JsonObject reference, bool checksumGuessed)
     {
+        if (draft["layout"] is JsonObject drafted && drafted["kinds"] is null && reference["layout"]?["kinds"] is JsonArray kinds)
+        {
+            ConfirmKinds(drafted, kinds, checksumGuessed);
+            return;
+        }
+
         if (draft["layout"] is not JsonObject layout || reference["layout"]?["header"] is not JsonArray confirmed)
         {
             Replace(draft, reference, "layout.header");
             return;
         }
 
-        int? coverageStart = null;
-        if (layout["checksum"]?["covers"] is JsonArray covers && layout["header"] is JsonArray drafted)
-        {
-            var names = covers.Select(c => c!.GetValue<string>()).ToHashSet(StringComparer.Ordinal);
-            int offset = 0;
-            foreach (var field in drafted)
-            {
-                if (names.Contains(field!["name"]!.GetValue<string>()))
-                {
-                    coverageStart = offset;
-                    break;
-                }
-
-                offset += field["bytes"]!.GetValue<int>();
-            }
-
-            coverageStart ??= offset;
-        }
+        int? coverageStart = CoverageStart(layout);
 
         // A sync the draft measured and wrote as the header's first field (a sync of whole bytes) is the sync's, not
         // the header's: where the reference writes its sync elsewhere (as pulse classes, say), it stays.
@@ -145,20 +136,7 @@ public static class GuessConfirmation
         layout["header"] = header;
         if (coverageStart is { } start && layout["checksum"] is JsonObject checksum)
         {
-            var named = new JsonArray();
-            int offset = 0;
-            foreach (var field in confirmed)
-            {
-                if (offset >= start)
-                {
-                    named.Add(field!["name"]!.GetValue<string>());
-                }
-
-                offset += field!["bytes"]!.GetValue<int>();
-            }
-
-            named.Add("payload");
-            checksum["covers"] = named;
+            checksum["covers"] = Covered(confirmed, start);
         }
 
         var length = confirmed.FirstOrDefault(f => f?["role"]?.GetValue<string>() == "payload-length");
@@ -169,6 +147,94 @@ public static class GuessConfirmation
             layout.Remove("payloadBytes");
             layout["maximumPayloadBytes"] = length["zeroMeans"]?.GetValue<int>() ?? (length["bytes"]!.GetValue<int>() == 1 ? 255 : 65535);
         }
+    }
+
+    /// <summary>
+    /// The reference's block kinds in place of the draft's one layout: a draft that read every block alike (each block
+    /// at one length, say) guessed its header and payload length, and the reference answers both with its kinds, each
+    /// with its header and its rule for the payload's length. The check the draft measured stays its own in every
+    /// kind (its algorithm and byte order, its coverage from the same byte on), and so do its copies; a guessed check
+    /// is each kind's as the reference writes it.
+    /// </summary>
+    private static void ConfirmKinds(JsonObject layout, JsonArray referenceKinds, bool checksumGuessed)
+    {
+        int? coverageStart = CoverageStart(layout, bySection: true);
+        var measured = checksumGuessed ? null : layout["checksum"] as JsonObject;
+        var kinds = (JsonArray)referenceKinds.DeepClone();
+        if (measured is not null)
+        {
+            foreach (var kind in kinds.OfType<JsonObject>())
+            {
+                var check = (JsonObject)measured.DeepClone();
+                if (coverageStart is { } start && kind["header"] is JsonArray header)
+                {
+                    check["covers"] = Covered(header, start);
+                }
+
+                kind["checksum"] = check;
+            }
+        }
+
+        // The kinds replace the one layout's header, payload length and check (the language allows them in the kinds only).
+        foreach (string part in new[] { "header", "checksum" }.Concat(PayloadLength))
+        {
+            layout.Remove(part);
+        }
+
+        layout["kinds"] = kinds;
+    }
+
+    /// <summary>
+    /// The byte of the header the draft's check coverage starts at: where the first field it names begins, or, with
+    /// <paramref name="bySection"/>, also the start (header-and-payload) or the end (payload) of the draft's header.
+    /// Null where the draft has no check or its coverage says no place.
+    /// </summary>
+    private static int? CoverageStart(JsonObject layout, bool bySection = false)
+    {
+        var drafted = layout["header"] as JsonArray ?? [];
+        var coverage = layout["checksum"]?["covers"];
+        if (bySection && coverage is JsonValue section)
+        {
+            return section.GetValue<string>() == "payload" ? drafted.Sum(f => f!["bytes"]!.GetValue<int>()) : 0;
+        }
+
+        if (coverage is not JsonArray covers || layout["header"] is not JsonArray)
+        {
+            return null;
+        }
+
+        var names = covers.Select(c => c!.GetValue<string>()).ToHashSet(StringComparer.Ordinal);
+        int offset = 0;
+        foreach (var field in drafted)
+        {
+            if (names.Contains(field!["name"]!.GetValue<string>()))
+            {
+                return offset;
+            }
+
+            offset += field["bytes"]!.GetValue<int>();
+        }
+
+        return offset;
+    }
+
+    /// <summary>The names of a header's fields from byte <paramref name="start"/> on, and the payload: a check's coverage.</summary>
+    private static JsonArray Covered(JsonArray header, int start)
+    {
+        var named = new JsonArray();
+        int offset = 0;
+        foreach (var field in header)
+        {
+            if (offset >= start)
+            {
+                named.Add(field!["name"]!.GetValue<string>());
+            }
+
+            offset += field!["bytes"]!.GetValue<int>();
+        }
+
+        named.Add("payload");
+        return named;
     }
 
     private static void Replace(JsonObject draft, JsonObject reference, string path)

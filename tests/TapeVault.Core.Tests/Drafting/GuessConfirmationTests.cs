@@ -105,4 +105,44 @@ public sealed class GuessConfirmationTests
         Assert.DoesNotContain("\"sync\"", node["layout"]!["checksum"]!["covers"]!.ToJsonString(), StringComparison.Ordinal);
         ProfileLoader.Parse(confirmed, "confirmed");
     }
+
+    [Fact]
+    public void A_guessed_header_of_a_format_whose_header_block_gives_the_data_length_is_the_references_block_kinds()
+    {
+        // The reference: a header block whose start and end addresses give the length of the data block after it.
+        // The draft read every block as one kind: the nine sync bytes (a countdown that differs between the copies,
+        // so no sync field) as an unknown field before the check, a fixed payload, and the check it measured.
+        string truth = RandomFormats.Draw("three-class-pairs", new Random(15));
+        var reference = JsonNode.Parse(truth)!.AsObject();
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        draft["layout"] = new JsonObject
+        {
+            ["header"] = new JsonArray(new JsonObject { ["name"] = "field-0", ["bytes"] = 9, ["role"] = "other" }),
+            ["payloadBytes"] = 30,
+            ["checksum"] = new JsonObject { ["algorithm"] = "xor8", ["covers"] = "payload", ["endian"] = "big" },
+            ["copies"] = 2,
+        };
+
+        string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["layout.header", "layout.payloadBytes"]);
+
+        // It loads (the kinds bring each block's header and length rule), every kind keeps the draft's check, from
+        // the byte after the sync on, and the copies the draft measured.
+        var profile = ProfileLoader.Parse(confirmed, "confirmed");
+        var node = JsonNode.Parse(confirmed)!["layout"]!;
+        var kinds = (JsonArray)node["kinds"]!;
+        var referenceKinds = (JsonArray)reference["layout"]!["kinds"]!;
+        Assert.Equal(referenceKinds.Count, kinds.Count);
+        for (int i = 0; i < kinds.Count; i++)
+        {
+            Assert.Equal(referenceKinds[i]!["header"]!.ToJsonString(), kinds[i]!["header"]!.ToJsonString());
+            Assert.Equal("xor8", kinds[i]!["checksum"]!["algorithm"]!.GetValue<string>());
+            Assert.DoesNotContain("countdown", kinds[i]!["checksum"]!["covers"]!.ToJsonString(), StringComparison.Ordinal);
+        }
+
+        Assert.Equal("[\"type\",\"name\",\"start\",\"end\",\"payload\"]", kinds[0]!["checksum"]!["covers"]!.ToJsonString());
+        Assert.Equal("[\"payload\"]", kinds[1]!["checksum"]!["covers"]!.ToJsonString());
+        Assert.Equal(2, profile.Layout.Copies);
+        Assert.Null(node["header"]);
+        Assert.Null(node["payloadBytes"]);
+    }
 }
