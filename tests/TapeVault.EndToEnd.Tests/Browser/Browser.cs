@@ -25,6 +25,13 @@ public sealed class Browser : IAsyncDisposable
     /// </summary>
     public static readonly TimeSpan StepTimeout = TimeSpan.FromSeconds(90);
 
+    /// <summary>
+    /// How a step that follows a form's redirect waits for the new page: until its document is parsed, not until every
+    /// resource has loaded. The next step waits for the element it acts on anyway; the page's load event has once not
+    /// been seen within <see cref="StepTimeout"/> on two cores at a load of 130, though all its requests had ended.
+    /// </summary>
+    public static PageWaitForURLOptions Arrived => new() { WaitUntil = WaitUntilState.DOMContentLoaded };
+
     /// <summary>Screenshots go here (the test results folder at the top of the repository), one per step, for people to look at.</summary>
     public static string ScreenshotFolder { get; } = Directory.CreateDirectory(Path.Combine(AppProcess.RepositoryRoot(), "TestResults", "browser")).FullName;
 

@@ -40,12 +40,12 @@ public sealed class CuratorJourneyTests(ITestOutputHelper log)
         await page.FillAsync("#name", Collection);
         await page.FillAsync("#description", "Made by the browser test.");
         await page.ClickAsync("button:has-text('Create collection')");
-        await page.WaitForURLAsync("**/collections/*");
+        await page.WaitForURLAsync("**/collections/*", Browser.Arrived);
         await page.FillAsync("#accession", Accession);
         await page.FillAsync("#title", "Browser test tape");
         await page.FillAsync("#condition", "Clean shell, no mould seen.");
         await page.ClickAsync("button:has-text('Add tape')");
-        await page.WaitForURLAsync("**/items/*");
+        await page.WaitForURLAsync("**/items/*", Browser.Arrived);
         var itemUrl = page.Url;
 
         var storedCaptures = page.Locator("table.grid >> tbody >> tr:has(a[download])");
@@ -120,7 +120,10 @@ public sealed class CuratorJourneyTests(ITestOutputHelper log)
 
         // The capture page: the waveform, the zoom with the detector's decisions, the pulse lengths and the speed,
         // each a figure with a table behind it for those who cannot see the plot.
+        // Its sections are counted once the whole document is parsed: the first heading appears while the rest of the
+        // page (its plots) is still arriving.
         await page.ClickAsync("a[href$='/captures/1']");
+        await page.WaitForURLAsync("**/captures/1", Browser.Arrived);
         await page.WaitForSelectorAsync("h2#overview");
         foreach (var section in new[] { "overview", "zoom", "pulses", "speed" })
         {
@@ -181,11 +184,11 @@ public sealed class CuratorJourneyTests(ITestOutputHelper log)
         await SignInAsync(curator, app, "curator", app.CuratorPassword);
         await curator.FillAsync("#name", Collection);
         await curator.ClickAsync("button:has-text('Create collection')");
-        await curator.WaitForURLAsync("**/collections/*");
+        await curator.WaitForURLAsync("**/collections/*", Browser.Arrived);
         await curator.FillAsync("#accession", Accession);
         await curator.FillAsync("#title", "Browser test tape");
         await curator.ClickAsync("button:has-text('Add tape')");
-        await curator.WaitForURLAsync("**/items/*");
+        await curator.WaitForURLAsync("**/items/*", Browser.Arrived);
         var itemUrl = curator.Url;
 
         await curator.GotoAsync(new Uri(app.Address, "/users").ToString());
@@ -198,11 +201,11 @@ public sealed class CuratorJourneyTests(ITestOutputHelper log)
         // The shown password is for the first sign-in only: the form to choose one's own comes first.
         var viewer = await browser.NewPageAsync();
         await viewer.GotoAsync(app.Address.ToString());
-        await viewer.WaitForURLAsync("**/signin**");
+        await viewer.WaitForURLAsync("**/signin**", Browser.Arrived);
         await viewer.FillAsync("#userName", "volunteer");
         await viewer.FillAsync("#password", password);
         await viewer.ClickAsync("button:has-text('Sign in')");
-        await viewer.WaitForURLAsync("**/account/password");
+        await viewer.WaitForURLAsync("**/account/password", Browser.Arrived);
         await Browser.ShotAsync(viewer, "11-one-time-password");
         await viewer.FillAsync("#currentPassword", password);
         await viewer.FillAsync("#newPassword", "brass hinges on a cedar box");
@@ -236,7 +239,7 @@ public sealed class CuratorJourneyTests(ITestOutputHelper log)
     private static async Task SignInAsync(IPage page, AppProcess app, string user, string password)
     {
         await page.GotoAsync(app.Address.ToString());
-        await page.WaitForURLAsync("**/signin**");
+        await page.WaitForURLAsync("**/signin**", Browser.Arrived);
         await page.FillAsync("#userName", user);
         await page.FillAsync("#password", password);
         await page.ClickAsync("button:has-text('Sign in')");
