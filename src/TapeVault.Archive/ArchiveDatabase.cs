@@ -170,7 +170,7 @@ public static class ArchiveDatabase
     /// <summary>
     /// Whether <paramref name="e"/>, or an exception it wraps, is SQLite refusing a statement the lock it needs: SQLITE_BUSY
     /// (5), another connection held the write lock past the busy wait, or SQLITE_LOCKED (6) (sqlite.org, "Result and
-    /// Error Codes"). Such a statement changed nothing.
+    /// Error Codes", from memory). Such a statement changed nothing.
     /// </summary>
     public static bool IsBusy(Exception e)
     {

@@ -15,7 +15,7 @@ namespace TapeVault.Archive.Tests;
 /// <summary>
 /// SQLite lets one writer at a time hold the database's write lock; another writer waits for it (the connection's busy
 /// wait) and is then refused with "database is locked" (SQLite result code 5, SQLITE_BUSY: sqlite.org, "Result and
-/// Error Codes"). A job must not fail only because another writer held the lock longer than that wait. Here a second
+/// Error Codes", from memory). A job must not fail only because another writer held the lock longer than that wait. Here a second
 /// connection on the same archive file holds the lock (BEGIN IMMEDIATE) while a job writes, with the job's busy wait
 /// cut to one second so the refusal comes quickly; the lock is let go only once the job has been refused at least once.
 /// </summary>
