@@ -88,13 +88,10 @@ public sealed class BusyDatabaseTests
     public async Task A_progress_report_refused_the_write_lock_lets_the_job_go_on_and_the_next_report_is_recorded()
     {
         await using var archive = await JobArchive.CreateAsync();
-        int jobId = await archive.EnqueueAsync(JobKinds.Fixity, new ScopeParameters(null, null).ToJson());
         var refusals = new BusyRefusals();
         await using var node = ShortBusyWaitNode(archive, refusals);
-        var queue = node.GetRequiredService<JobQueue>();
-        var job = await queue.ClaimAsync(jobId, resuming: false);
-        Assert.NotNull(job);
-
+        var (queue, job) = await ClaimedJobAsync(archive, node);
+        int jobId = job.Id;
         await using var other = OpenOtherWriter(archive);
         using (var held = other.BeginTransaction(deferred: false))
         {
@@ -114,13 +111,10 @@ public sealed class BusyDatabaseTests
     public async Task A_jobs_end_refused_the_write_lock_is_recorded_once_the_lock_is_free()
     {
         await using var archive = await JobArchive.CreateAsync();
-        int jobId = await archive.EnqueueAsync(JobKinds.Fixity, new ScopeParameters(null, null).ToJson());
         var refusals = new BusyRefusals();
         await using var node = ShortBusyWaitNode(archive, refusals);
-        var queue = node.GetRequiredService<JobQueue>();
-        var job = await queue.ClaimAsync(jobId, resuming: false);
-        Assert.NotNull(job);
-
+        var (queue, job) = await ClaimedJobAsync(archive, node);
+        int jobId = job.Id;
         await using var other = OpenOtherWriter(archive);
         using var held = other.BeginTransaction(deferred: false);
         var finishing = queue.FinishAsync(jobId, job.Attempts, JobState.Done, "Done.");
@@ -143,6 +137,16 @@ public sealed class BusyDatabaseTests
         string shortWait = new SqliteConnectionStringBuilder(ArchiveDatabase.ConnectionString(archive.DatabasePath)) { DefaultTimeout = 1 }.ToString();
         services.ConfigureDbContext<ArchiveDbContext>((_, options) => options.UseSqlite(shortWait).AddInterceptors(refusals));
         return services.BuildServiceProvider();
+    }
+
+    /// <summary>A fixity job queued and claimed through <paramref name="node"/>'s job queue.</summary>
+    private static async Task<(JobQueue Queue, JobRecord Job)> ClaimedJobAsync(JobArchive archive, ServiceProvider node)
+    {
+        int jobId = await archive.EnqueueAsync(JobKinds.Fixity, new ScopeParameters(null, null).ToJson());
+        var queue = node.GetRequiredService<JobQueue>();
+        var job = await queue.ClaimAsync(jobId, resuming: false);
+        Assert.NotNull(job);
+        return (queue, job);
     }
 
     /// <summary>A second writer on the archive's file, outside the app's pool.</summary>
