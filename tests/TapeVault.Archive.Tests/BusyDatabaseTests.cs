@@ -91,18 +91,17 @@ public sealed class BusyDatabaseTests
         var refusals = new BusyRefusals();
         await using var node = ShortBusyWaitNode(archive, refusals);
         var (queue, job) = await ClaimedJobAsync(archive, node);
-        int jobId = job.Id;
         await using var other = OpenOtherWriter(archive);
         using (var held = other.BeginTransaction(deferred: false))
         {
             // Refused the lock: the report is dropped, and the job is not told to stop (nor failed).
-            Assert.False(await queue.ReportAsync(jobId, job.Attempts, 0.4, "at 40 %"));
+            Assert.False(await queue.ReportAsync(job.Id, job.Attempts, 0.4, "at 40 %"));
             Assert.True(refusals.First.IsCompleted);
             held.Rollback();
         }
 
-        Assert.False(await queue.ReportAsync(jobId, job.Attempts, 0.5, "at 50 %"));
-        var row = await archive.JobAsync(jobId);
+        Assert.False(await queue.ReportAsync(job.Id, job.Attempts, 0.5, "at 50 %"));
+        var row = await archive.JobAsync(job.Id);
         Assert.Equal("at 50 %", row.ProgressText);
         Assert.Equal(JobState.Running, row.State);
     }
@@ -114,16 +113,15 @@ public sealed class BusyDatabaseTests
         var refusals = new BusyRefusals();
         await using var node = ShortBusyWaitNode(archive, refusals);
         var (queue, job) = await ClaimedJobAsync(archive, node);
-        int jobId = job.Id;
         await using var other = OpenOtherWriter(archive);
         using var held = other.BeginTransaction(deferred: false);
-        var finishing = queue.FinishAsync(jobId, job.Attempts, JobState.Done, "Done.");
+        var finishing = queue.FinishAsync(job.Id, job.Attempts, JobState.Done, "Done.");
         await Task.WhenAny(refusals.First, finishing).WaitAsync(TimeSpan.FromMinutes(5));
         Assert.True(refusals.First.IsCompleted, "the job's end was never refused the lock the other writer held");
         held.Rollback();
 
         Assert.True(await finishing);
-        var row = await archive.JobAsync(jobId);
+        var row = await archive.JobAsync(job.Id);
         Assert.Equal(JobState.Done, row.State);
         Assert.Equal("Done.", row.ProgressText);
     }
