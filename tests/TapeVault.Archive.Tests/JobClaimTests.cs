@@ -187,7 +187,7 @@ public sealed class JobClaimTests
     }
 
     /// <summary>Ingests a short synthesised capture of the demo format and queues its decode (unless told not to: job id 0).</summary>
-    private static async Task<(int CaptureId, int JobId)> QueueDecodeAsync(ServiceProvider pages, string root, bool queue = true)
+    internal static async Task<(int CaptureId, int JobId)> QueueDecodeAsync(ServiceProvider pages, string root, bool queue = true)
     {
         await using var scope = pages.CreateAsyncScope();
         var actions = scope.ServiceProvider.GetRequiredService<CuratorActions>();

@@ -1,4 +1,5 @@
 using Microsoft.EntityFrameworkCore;
+using TapeVault.Archive.Entities;
 using TapeVault.Archive.Runs;
 using TapeVault.Archive.Timeline;
 using TapeVault.Core.Timeline;
@@ -82,6 +83,43 @@ public sealed class StoredCandidateTests(SharedArchive shared)
         Assert.Single(into);
         Assert.True(TimelineReadingsValue.TryRead(value, "capture", into));
         Assert.True(into.Count > 2);
+    }
+
+    [Fact]
+    public async Task A_decode_jobs_rows_hold_every_field_of_every_reading_the_decoder_made_in_its_order()
+    {
+        // The job writes its readings with one statement of the model's columns, not through EF Core's tracking: each
+        // row must hold what the decoder made, column by column, as the run store's record of the reading has it.
+        await using var db = shared.Archive.NewContext();
+        var runs = await db.Runs.AsNoTracking().Include(r => r.Capture).OrderBy(r => r.Id).ToListAsync();
+        Assert.NotEmpty(runs);
+        var columns = db.Model.FindEntityType(typeof(CandidateRecord))!.GetProperties()
+            .Where(p => p.Name is not nameof(CandidateRecord.Id) and not nameof(CandidateRecord.RunId)).ToList();
+        foreach (var run in runs)
+        {
+            var rows = await db.Candidates.AsNoTracking().Where(c => c.RunId == run.Id).OrderBy(c => c.Id).ToListAsync();
+            using var decoded = TapeVault.Core.Decoding.CaptureDecoder.Decode(
+                shared.Archive.Store.PathOf(run.Capture!.Sha256), TapeVault.Core.Formats.ProfileCatalog.BuiltIn.Get(run.ProfileId));
+            var made = decoded.Candidates.Select(RunStore.ToRecord).ToList();
+            Assert.Equal(made.Count, rows.Count);
+            Assert.True(rows.Count > 1);
+            for (int i = 0; i < rows.Count; i++)
+            {
+                foreach (var column in columns)
+                {
+                    object? want = column.GetGetter().GetClrValue(made[i]);
+                    object? got = column.GetGetter().GetClrValue(rows[i]);
+                    if (want is byte[] bytes)
+                    {
+                        Assert.True(got is byte[] stored && bytes.AsSpan().SequenceEqual(stored), $"run {run.Id}, reading {i}: {column.Name}");
+                    }
+                    else
+                    {
+                        Assert.True(Equals(want, got), $"run {run.Id}, reading {i}: {column.Name} {want} stored as {got}");
+                    }
+                }
+            }
+        }
     }
 
     /// <summary>Where a value's count of readings starts: after its format byte and its three tables of names.</summary>

@@ -47,7 +47,7 @@ public static partial class Scale
     private static int buildJobs = 4;
 
     /// <summary>The measurements --only may name.</summary>
-    private static readonly string[] Sections = ["build", "pages", "long", "drawing", "merge", "publish", "fixity"];
+    private static readonly string[] Sections = ["build", "pages", "long", "drawing", "store", "merge", "publish", "fixity"];
 
     public static async Task<int> RunAsync(string work, string[] args)
     {
@@ -123,6 +123,11 @@ public static partial class Scale
         if (options.Measures("drawing"))
         {
             await MeasureDrawingAsync(root, facts, options);
+        }
+
+        if (options.Measures("store"))
+        {
+            await MeasureStoreAsync(root, facts);
         }
 
         if (options.Measures("merge"))
@@ -646,6 +651,76 @@ public static partial class Scale
         cpus.Sort();
         Console.WriteLine($"the long tape's timeline drawn anew in this process ({options.Requests} views after 3 warm-up, kept drawings removed before each): " +
             $"wall p50 {Percentile(walls, 0.50):0.0} ms, p95 {Percentile(walls, 0.95):0.0} ms; processor p50 {Percentile(cpus, 0.50):0.0} ms, p95 {Percentile(cpus, 0.95):0.0} ms; SVG {size / 1024.0:0.0} KB, SHA-256 of the drawing and its folded lanes {digest[..16]}…");
+    }
+
+    /// <summary>
+    /// The long tape's first run stored again as a decode job stores it, inside a write transaction that is rolled back
+    /// (the archive is left as it was): how long the write lock is held from its begin to the last row written, by
+    /// EF Core's change tracking of every reading (as the decode job stored it before) and by
+    /// <see cref="RunStore.SaveAsync"/> (the run's row through EF Core, its readings with one statement), alternating,
+    /// three rounds each. Every other writer of the archive waits that long.
+    /// </summary>
+    private static async Task MeasureStoreAsync(string root, Facts facts)
+    {
+        await using var services = Services(root);
+        var contexts = services.GetRequiredService<IDbContextFactory<ArchiveDbContext>>();
+        int runId;
+        await using (var db = await contexts.CreateDbContextAsync())
+        {
+            runId = await db.Runs.Where(r => facts.LongCaptures.Contains(r.CaptureId)).OrderBy(r => r.Id).Select(r => r.Id).FirstAsync();
+        }
+
+        // A fresh copy of the run and its readings, as the run store makes them (no ids yet).
+        async Task<DecodeRun> CopyAsync()
+        {
+            await using var db = await contexts.CreateDbContextAsync();
+            var run = await db.Runs.AsNoTracking().SingleAsync(r => r.Id == runId);
+            var rows = await db.Candidates.AsNoTracking().Where(c => c.RunId == runId).OrderBy(c => c.Id).ToListAsync();
+            foreach (var row in rows)
+            {
+                row.Id = 0;
+                row.RunId = 0;
+            }
+
+            run.Id = 0;
+            run.Candidates = rows;
+            run.Timeline = new RunTimeline { Readings = TapeVault.Archive.Timeline.TimelineReadingsValue.Write(rows) };
+            return run;
+        }
+
+        static double Cpu() => Process.GetCurrentProcess().TotalProcessorTime.TotalMilliseconds;
+        var rounds = new Dictionary<string, List<(double Wall, double Cpu)>> { ["EF Core change tracking of every reading (before)"] = [], ["RunStore.SaveAsync (after)"] = [] };
+        int readings = 0;
+        for (int round = 0; round < 3; round++)
+        {
+            foreach (var (name, times) in rounds)
+            {
+                var run = await CopyAsync();
+                readings = run.Candidates.Count;
+                await using var write = await contexts.CreateDbContextAsync();
+                await using var transaction = await ArchiveDatabase.BeginWriteAsync(write);
+                double cpu = Cpu();
+                var clock = Stopwatch.StartNew();
+                if (name.StartsWith("EF", StringComparison.Ordinal))
+                {
+                    write.Runs.Add(run);
+                    await write.SaveChangesAsync();
+                }
+                else
+                {
+                    await RunStore.SaveAsync(write, run);
+                }
+
+                times.Add((clock.Elapsed.TotalMilliseconds, Cpu() - cpu));
+                await transaction.RollbackAsync();
+            }
+        }
+
+        Console.WriteLine($"the long tape's first run ({readings} readings) stored as a decode job stores it, rolled back; the write lock held from its begin to the last row (3 rounds each, alternating; load {MachineLoad.Averages()}):");
+        foreach (var (name, times) in rounds)
+        {
+            Console.WriteLine($"  {name}: wall {string.Join(", ", times.Select(t => t.Wall.ToString("0", CultureInfo.InvariantCulture)))} ms; processor {string.Join(", ", times.Select(t => t.Cpu.ToString("0", CultureInfo.InvariantCulture)))} ms");
+        }
     }
 
     private static async Task MeasureMergeAsync(string root, Facts facts)

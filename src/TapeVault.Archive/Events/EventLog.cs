@@ -1,8 +1,4 @@
-using System.Data.Common;
 using Microsoft.EntityFrameworkCore;
-using Microsoft.EntityFrameworkCore.Infrastructure;
-using Microsoft.EntityFrameworkCore.Metadata;
-using Microsoft.EntityFrameworkCore.Storage;
 using TapeVault.Archive.Entities;
 
 namespace TapeVault.Archive.Events;
@@ -70,8 +66,7 @@ public static class EventLog
     /// Appends many events at once (a fixity audit's one per stored object) and commits them, chained by the same code
     /// as <see cref="ArchiveDbContext.SaveChangesAsync(bool, CancellationToken)"/> chains them (<see cref="ChainAsync"/>):
     /// under the write lock, after the head read then, each linked to the one before. They are inserted with one
-    /// parameterised statement (one batch where the provider takes batches) instead of EF Core's change tracking, which
-    /// costs about a millisecond an event on SQLite under load. The columns and their conversions are the model's own.
+    /// parameterised statement (<see cref="ArchiveDatabase.InsertRowsAsync"/>) instead of EF Core's change tracking.
     /// </summary>
     public static async Task AppendAsync(ArchiveDbContext db, IReadOnlyList<ArchiveEvent> events, CancellationToken cancellation = default)
     {
@@ -82,63 +77,8 @@ public static class EventLog
             return;
         }
 
-        var entity = db.Model.FindEntityType(typeof(ArchiveEvent)) ?? throw new InvalidOperationException("The model has no event log.");
-        var table = StoreObjectIdentifier.Table(entity.GetTableName()!, entity.GetSchema());
-        var sql = db.GetService<ISqlGenerationHelper>();
-        var properties = entity.GetProperties().ToArray();
-        var converters = properties.Select(p => p.GetTypeMapping().Converter).ToArray();
-        string text = $"INSERT INTO {sql.DelimitIdentifier(table.Name, table.Schema)} ({string.Join(", ", properties.Select(p => sql.DelimitIdentifier(p.GetColumnName(table)!)))}) "
-            + $"VALUES ({string.Join(", ", properties.Select((_, i) => $"@p{i}"))})";
-
-        await ChainAsync(db, events, synchronously: false, async token =>
-        {
-            var connection = db.Database.GetDbConnection();
-            var transaction = db.Database.CurrentTransaction!.GetDbTransaction();
-            void Fill(DbParameterCollection parameters, Func<DbParameter> make, ArchiveEvent e)
-            {
-                for (int i = 0; i < properties.Length; i++)
-                {
-                    object? value = ValueOf(e, properties[i].Name);
-                    if (value is not null && converters[i] is { } converter)
-                    {
-                        value = converter.ConvertToProvider(value);
-                    }
-
-                    var parameter = make();
-                    parameter.ParameterName = $"@p{i}";
-                    parameter.Value = value ?? DBNull.Value;
-                    parameters.Add(parameter);
-                }
-            }
-
-            if (connection.CanCreateBatch)
-            {
-                await using var batch = connection.CreateBatch();
-                batch.Transaction = transaction;
-                foreach (var e in events)
-                {
-                    var one = batch.CreateBatchCommand();
-                    one.CommandText = text;
-                    Fill(one.Parameters, one.CreateParameter, e);
-                    batch.BatchCommands.Add(one);
-                }
-
-                return await batch.ExecuteNonQueryAsync(token).ConfigureAwait(false);
-            }
-
-            await using var command = connection.CreateCommand();
-            command.Transaction = transaction;
-            command.CommandText = text;
-            int inserted = 0;
-            foreach (var e in events)
-            {
-                command.Parameters.Clear();
-                Fill(command.Parameters, command.CreateParameter, e);
-                inserted += await command.ExecuteNonQueryAsync(token).ConfigureAwait(false);
-            }
-
-            return inserted;
-        }, cancellation).ConfigureAwait(false);
+        await ChainAsync(db, events, synchronously: false, async token => await ArchiveDatabase.InsertRowsAsync(db, events, withKey: true, token).ConfigureAwait(false), cancellation)
+            .ConfigureAwait(false);
     }
 
     /// <summary>
@@ -158,7 +98,7 @@ public static class EventLog
     {
         var own = db.Database.CurrentTransaction is not null ? null
             : synchronously ? db.Database.BeginTransaction()
-            : await db.Database.BeginTransactionAsync(cancellation).ConfigureAwait(false);
+            : await ArchiveDatabase.BeginWriteAsync(db, cancellation).ConfigureAwait(false);
         try
         {
             // The head is read and the new events inserted under one write lock, so the chain cannot fork.
@@ -204,21 +144,4 @@ public static class EventLog
             }
         }
     }
-
-    /// <summary>An event's value for one column of the model; a column this does not know fails rather than being left empty.</summary>
-    private static object? ValueOf(ArchiveEvent e, string property) => property switch
-    {
-        nameof(ArchiveEvent.Id) => e.Id,
-        nameof(ArchiveEvent.EventType) => e.EventType,
-        nameof(ArchiveEvent.OccurredUtc) => e.OccurredUtc,
-        nameof(ArchiveEvent.Agent) => e.Agent,
-        nameof(ArchiveEvent.ObjectType) => e.ObjectType,
-        nameof(ArchiveEvent.ObjectId) => e.ObjectId,
-        nameof(ArchiveEvent.ItemId) => e.ItemId,
-        nameof(ArchiveEvent.Outcome) => e.Outcome,
-        nameof(ArchiveEvent.Detail) => e.Detail,
-        nameof(ArchiveEvent.Sha256) => e.Sha256,
-        nameof(ArchiveEvent.PreviousSha256) => e.PreviousSha256,
-        _ => throw new InvalidOperationException($"The event log has a column '{property}' that EventLog.AppendAsync does not fill."),
-    };
 }

@@ -69,7 +69,7 @@ public sealed class ExportStore(ArchiveDbContext db, ContentStore store, BagExpo
     {
         // A job's export and the job's end are one commit (the events with them), and only while its firing still holds
         // the job: an export is recorded once, even when a node taken for dead wakes up after another finished its job.
-        await using var transaction = heldJob is null ? null : await db.Database.BeginTransactionAsync(CancellationToken.None).ConfigureAwait(false);
+        await using var transaction = heldJob is null ? null : await ArchiveDatabase.BeginWriteAsync(db, CancellationToken.None).ConfigureAwait(false);
         bool known = await db.Objects.AnyAsync(o => o.Sha256 == staged.Sha256, cancellation).ConfigureAwait(false);
         if (!known)
         {

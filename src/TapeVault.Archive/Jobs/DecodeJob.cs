@@ -148,9 +148,10 @@ public sealed class DecodeJob(IDbContextFactory<ArchiveDbContext> contexts, Cont
 
         await progress(0.98, "Storing the blocks.").ConfigureAwait(false);
         await using var write = await contexts.CreateDbContextAsync(CancellationToken.None).ConfigureAwait(false);
-        await using var transaction = await write.Database.BeginTransactionAsync(CancellationToken.None).ConfigureAwait(false);
-        write.Runs.Add(run);
-        await write.SaveChangesAsync(CancellationToken.None).ConfigureAwait(false);
+        // The write lock is held from here to the commit: taken again after a pause while another writer holds it, and
+        // held for no more than the rows themselves (the run's readings go in with one statement).
+        await using var transaction = await ArchiveDatabase.BeginWriteAsync(write, CancellationToken.None).ConfigureAwait(false);
+        await RunStore.SaveAsync(write, run, CancellationToken.None).ConfigureAwait(false);
         EventLog.Add(write, EventTypes.Decode, job.CreatedBy, "run", run.Id.ToString(), "success",
             $"Capture {capture.Id} with profile {profile.Id} and {result.Settings.Count} detector setting(s), code {result.CodeVersion}: {run.Outcome}", capture.ItemId);
         if (result.Capture.FixityFinding is { } finding)

@@ -15,9 +15,11 @@ public static class JobKinds
 /// <summary>
 /// The job table: the user's record of every job (kind, progress, cancel, outcome, error). The job engine
 /// (<see cref="JobEngine"/>) decides when and where a job runs; claiming here is one conditional UPDATE, so two firings
-/// never both run the same job.
+/// never both run the same job. On SQLite a change of a job's row that finds another writer holding the write lock past
+/// the busy wait is made again after a pause (<see cref="ArchiveDatabase.WhileBusyAsync"/>), and a progress report so
+/// refused is dropped: a job never fails only because another writer held the lock.
 /// </summary>
-public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, ArchiveOptions options)
+public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, ArchiveOptions options, TimeProvider clock)
 {
     public static JobRecord Enqueue(ArchiveDbContext db, string kind, string parameters, string agent, int? itemId = null, int? captureId = null)
     {
@@ -46,7 +48,10 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
     /// ends cancelled when a cancel was asked for before the stop. Its attempt count is the claim's version: of two
     /// firings that resume the same cut-off, only one moves it on.
     /// </summary>
-    public async Task<JobRecord?> ClaimAsync(int jobId, bool resuming, CancellationToken cancellation = default)
+    public Task<JobRecord?> ClaimAsync(int jobId, bool resuming, CancellationToken cancellation = default) =>
+        ArchiveDatabase.WhileBusyAsync(clock, () => ClaimOnceAsync(jobId, resuming, cancellation), cancellation);
+
+    private async Task<JobRecord?> ClaimOnceAsync(int jobId, bool resuming, CancellationToken cancellation)
     {
         await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
         var job = await db.Jobs.AsNoTracking().FirstOrDefaultAsync(j => j.Id == jobId, cancellation).ConfigureAwait(false);
@@ -106,12 +111,12 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
     public async Task<bool> DeferAsync(int jobId, int attempts, string text, CancellationToken cancellation = default)
     {
         await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
-        int deferred = await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running && j.Attempts == attempts && !j.CancelRequested)
+        int deferred = await ArchiveDatabase.WhileBusyAsync(clock, () => db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running && j.Attempts == attempts && !j.CancelRequested)
             .ExecuteUpdateAsync(s => s
                 .SetProperty(j => j.State, JobState.Queued)
                 .SetProperty(j => j.Attempts, attempts - 1)
                 .SetProperty(j => j.Progress, 0.0)
-                .SetProperty(j => j.ProgressText, text), cancellation).ConfigureAwait(false);
+                .SetProperty(j => j.ProgressText, text), cancellation), cancellation).ConfigureAwait(false);
         if (deferred == 0)
         {
             // A cancel came in while the job was looking: it ends cancelled rather than waiting on.
@@ -133,15 +138,26 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
     /// <summary>
     /// Records the progress of the firing holding claim <paramref name="attempts"/> and says whether it should stop: a
     /// cancel was asked for, or the firing no longer holds the job (its node was taken for dead and another resumed the
-    /// job). The claim fences the report, so a stale firing never overwrites the progress of the one holding the job.
+    /// job). The claim fences the report, so a stale firing never overwrites the progress of the one holding the job. A
+    /// report refused the write lock (<see cref="ArchiveDatabase.IsBusy"/>) is dropped and the job goes on: the next
+    /// report, or the job's end, records where it is, and is fenced in its turn.
     /// </summary>
     public async Task<bool> ReportAsync(int jobId, int attempts, double progress, string text, CancellationToken cancellation = default)
     {
         await using var db = await contexts.CreateDbContextAsync(cancellation).ConfigureAwait(false);
         double clamped = Math.Clamp(progress, 0, 1);
-        int held = await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running && j.Attempts == attempts)
-            .ExecuteUpdateAsync(s => s.SetProperty(j => j.Progress, clamped).SetProperty(j => j.ProgressText, text), cancellation)
-            .ConfigureAwait(false);
+        int held;
+        try
+        {
+            held = await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running && j.Attempts == attempts)
+                .ExecuteUpdateAsync(s => s.SetProperty(j => j.Progress, clamped).SetProperty(j => j.ProgressText, text), cancellation)
+                .ConfigureAwait(false);
+        }
+        catch (Exception e) when (ArchiveDatabase.IsBusy(e))
+        {
+            return false;
+        }
+
         return held == 0
             || await db.Jobs.AsNoTracking().Where(j => j.Id == jobId).Select(j => j.CancelRequested).FirstOrDefaultAsync(cancellation).ConfigureAwait(false);
     }
@@ -156,15 +172,14 @@ public sealed class JobQueue(IDbContextFactory<ArchiveDbContext> contexts, Archi
         await using var db = await contexts.CreateDbContextAsync().ConfigureAwait(false);
         var now = db.Clock.GetUtcNow();
         double progress = state == JobState.Done ? 1 : 0;
-        return 1 == await db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running && j.Attempts == attempts)
+        return 1 == await ArchiveDatabase.WhileBusyAsync(clock, () => db.Jobs.Where(j => j.Id == jobId && j.State == JobState.Running && j.Attempts == attempts)
             .ExecuteUpdateAsync(s => s
                 .SetProperty(j => j.State, state)
                 .SetProperty(j => j.FinishedUtc, now)
                 .SetProperty(j => j.ProgressText, text)
                 .SetProperty(j => j.Error, error)
                 .SetProperty(j => j.ResultId, resultId)
-                .SetProperty(j => j.Progress, j => state == JobState.Done ? progress : j.Progress))
-            .ConfigureAwait(false);
+                .SetProperty(j => j.Progress, j => state == JobState.Done ? progress : j.Progress))).ConfigureAwait(false);
     }
 
     /// <summary>

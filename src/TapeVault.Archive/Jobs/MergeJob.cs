@@ -129,7 +129,7 @@ public sealed class MergeJob(IDbContextFactory<ArchiveDbContext> contexts, Conte
             store, parameters.ItemId, accession, runs, runs.ToDictionary(r => r.CaptureId, r => r.Capture!), readings, image, staged.Sha256, cancellation).ConfigureAwait(false);
 
         await using var write = await contexts.CreateDbContextAsync(CancellationToken.None).ConfigureAwait(false);
-        await using var transaction = await write.Database.BeginTransactionAsync(CancellationToken.None).ConfigureAwait(false);
+        await using var transaction = await ArchiveDatabase.BeginWriteAsync(write, CancellationToken.None).ConfigureAwait(false);
         bool known = await write.Objects.AnyAsync(o => o.Sha256 == staged.Sha256, CancellationToken.None).ConfigureAwait(false);
         if (!known)
         {

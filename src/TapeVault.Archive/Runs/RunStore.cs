@@ -1,6 +1,7 @@
 using System.Collections.Immutable;
 using System.Runtime.InteropServices;
 using System.Security.Cryptography;
+using Microsoft.EntityFrameworkCore;
 using TapeVault.Archive.Entities;
 using TapeVault.Archive.Timeline;
 using TapeVault.Core.Blocks;
@@ -41,6 +42,44 @@ public static class RunStore
 
         run.Timeline = new RunTimeline { Readings = TimelineReadingsValue.Write(run.Candidates) };
         return run;
+    }
+
+    /// <summary>
+    /// Stores <paramref name="run"/> inside <paramref name="write"/>'s transaction: its row and its kept timeline through
+    /// EF Core, its readings (nine thousand for a long tape read by a bank of eight) with one statement
+    /// (<see cref="ArchiveDatabase.InsertRowsAsync"/>), which holds the write lock a fraction of the time EF Core's change
+    /// tracking of every reading takes. Afterwards the run has its id and is not tracked by <paramref name="write"/>;
+    /// its readings are numbered by the database and not read back.
+    /// </summary>
+    public static async Task SaveAsync(ArchiveDbContext write, DecodeRun run, CancellationToken cancellation = default)
+    {
+        ArgumentNullException.ThrowIfNull(write);
+        ArgumentNullException.ThrowIfNull(run);
+        var readings = run.Candidates;
+        run.Candidates = [];
+        try
+        {
+            write.Runs.Add(run);
+            await write.SaveChangesAsync(cancellation).ConfigureAwait(false);
+
+            // Untracked before its readings are given back, so no later save of this context writes them a second time.
+            write.Entry(run).State = EntityState.Detached;
+            if (run.Timeline is { } timeline)
+            {
+                write.Entry(timeline).State = EntityState.Detached;
+            }
+        }
+        finally
+        {
+            run.Candidates = readings;
+        }
+
+        foreach (var reading in readings)
+        {
+            reading.RunId = run.Id;
+        }
+
+        await ArchiveDatabase.InsertRowsAsync(write, readings, withKey: false, cancellation).ConfigureAwait(false);
     }
 
     public static CandidateRecord ToRecord(BlockCandidate c)
