@@ -26,14 +26,14 @@ public sealed class PositionCopySpacingTests
         var (capture, placed) = SavedCapture.PlaceAgain("orrin-80-no-header-read-one-pass.json");
 
         // Each block whose two copies were read, with the next sync read after them, is one position.
-        var syncs = placed.Select(c => WrittenAt(capture, c)).Where(w => w is not null).Select(w => w!.Value).ToList();
+        var syncs = placed.Select(c => capture.WrittenAt(c)).Where(w => w is not null).Select(w => w!.Value).ToList();
         foreach (var block in syncs.GroupBy(w => w.Block))
         {
             bool bothCopies = block.Any(w => w.Copy == 0) && block.Any(w => w.Copy == 1);
             bool nextRead = syncs.Exists(w => w.Block == block.Key + 1 && w.Copy == 0);
             if (bothCopies && nextRead)
             {
-                var positions = placed.Where(c => WrittenAt(capture, c) is { } w && w.Block == block.Key).Select(c => c.Position).Distinct().ToList();
+                var positions = placed.Where(c => capture.WrittenAt(c) is { } w && w.Block == block.Key).Select(c => c.Position).Distinct().ToList();
                 Assert.True(positions.Count == 1, $"block {block.Key}'s copies are at positions {string.Join(", ", positions)}");
             }
         }
@@ -47,24 +47,10 @@ public sealed class PositionCopySpacingTests
         // readings carried the same identity (#21), and block 11's first copy joined block 10's position.
         var (capture, placed) = SavedCapture.PlaceAgain("orrin-80-no-header-read-one-pass.json");
 
-        var tenth = placed.Where(c => WrittenAt(capture, c) is { Block: 10 }).Select(c => c.Position).Distinct().ToList();
-        var eleventh = placed.Where(c => WrittenAt(capture, c) is { Block: 11 }).Select(c => c.Position).Distinct().ToList();
+        var tenth = placed.Where(c => capture.WrittenAt(c) is { Block: 10 }).Select(c => c.Position).Distinct().ToList();
+        var eleventh = placed.Where(c => capture.WrittenAt(c) is { Block: 11 }).Select(c => c.Position).Distinct().ToList();
         Assert.NotEmpty(tenth);
         Assert.NotEmpty(eleventh);
         Assert.Empty(tenth.Intersect(eleventh));
-    }
-
-    /// <summary>The written copy whose sync the reading starts at (within 30 ms), or null (a reading in a lead-in or gap, or from within a block).</summary>
-    private static WrittenSpan? WrittenAt(SavedCapture capture, BlockCandidate c)
-    {
-        foreach (var span in capture.WrittenCopies)
-        {
-            if (Math.Abs(span.DataSeconds - c.StartSeconds) <= 0.03)
-            {
-                return span;
-            }
-        }
-
-        return null;
     }
 }

@@ -33,4 +33,18 @@ internal sealed record SavedCapture(string Profile, int Seed, int Pass, string S
     /// <summary>Where the synthesiser wrote each copy; a case saved without them cannot be judged by place.</summary>
     public IReadOnlyList<WrittenSpan> WrittenCopies =>
         Copies ?? throw new InvalidOperationException($"the saved pass of {Profile} seed {Seed} holds no written copies.");
+
+    /// <summary>The written copy whose sync the reading starts at (within 30 ms), or null (a reading in a lead-in or gap, or from within a block).</summary>
+    public WrittenSpan? WrittenAt(BlockCandidate c)
+    {
+        foreach (var span in WrittenCopies)
+        {
+            if (Math.Abs(span.DataSeconds - c.StartSeconds) <= 0.03)
+            {
+                return span;
+            }
+        }
+
+        return null;
+    }
 }
