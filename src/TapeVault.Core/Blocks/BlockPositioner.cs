@@ -1258,7 +1258,6 @@ public static partial class BlockPositioner
         return gaps[gaps.Count / 2];
     }
 
-    /// <summary>Whether a reading's header was read far enough to give a field of its identity: then it keeps that identity rather than a neighbour's.</summary>
     /// <summary>
     /// Where the format writes each block more than once, the readings cut short before their payload whose identity
     /// holds a block number and no file take the identity of a reading that named nothing (their ordinal): such a number
@@ -1287,6 +1286,7 @@ public static partial class BlockPositioner
         return renamed ?? candidates;
     }
 
+    /// <summary>Whether a reading's header was read far enough to give a field of its identity: then it keeps that identity rather than a neighbour's.</summary>
     private static bool NamesItself(BlockCandidate c) => c.Identity.BlockNumber is not null || c.Identity.FileId is not null || c.Identity.FileName is not null;
 
     /// <summary>

@@ -590,6 +590,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         {
             RecordPulse(decision);
         }
+
         if (trackSpeed && decision.Distance > 0.5 * decision.Scale)
         {
             _speed.Track(seconds, _classifier.NominalSeconds(decision.Class));
@@ -777,6 +778,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             if (_readBitsInRow >= gapSync.Length && EndsWith(gapSync))
             {
                 // The block ends where the gap's first bit ended: its data cannot run on over the next block's gap.
+                // The gap is the run before the sync: as long as the format's gap, which says what evidence it is.
                 _blocks.End(_ringBitEnd[(_bitsSeen - gapSync.Length) % RingBits]);
                 _runCount = _encoding.BlockGap;
                 BeginAtSyncBits(_syncBits[c], endSample);
