@@ -30,6 +30,8 @@ public static partial class BlockPositioner
     public static (int Reading, int Position)[] PlaceInOrder(IReadOnlyList<BlockCandidate> candidates, int copies = 1)
     {
         ArgumentNullException.ThrowIfNull(candidates);
+        var asRead = candidates;
+        candidates = WithoutUnreadNumbers(candidates, copies);
         var trusted = new List<BlockCandidate>();
         foreach (var c in candidates)
         {
@@ -55,7 +57,8 @@ public static partial class BlockPositioner
             inputOf.Add(index);
             string key;
             // A block cut short inside its header still belongs to a format with headers, even if no field was read whole.
-            bool hasHeader = !c.Header.IsEmpty || c.Identity.FileName is not null || c.Identity.FileId is not null || c.Identity.BlockNumber is not null;
+            var read = asRead[index].Identity;
+            bool hasHeader = !c.Header.IsEmpty || read.FileName is not null || read.FileId is not null || read.BlockNumber is not null;
             if (!hasHeader)
             {
                 int anchor = streamAnchors.FindLastIndex(a => Overlaps(a.Start, a.End, c.StartSeconds, c.EndSeconds));
@@ -1253,6 +1256,34 @@ public static partial class BlockPositioner
 
         gaps.Sort();
         return gaps[gaps.Count / 2];
+    }
+
+    /// <summary>
+    /// Where the format writes each block more than once, the readings cut short before their payload whose identity
+    /// holds a block number and no file take the identity of a reading that named nothing (their ordinal): such a number
+    /// was not read from a field that tells blocks apart (a format of several kinds numbers each kind by its place in the
+    /// file, so every such reading of one kind carries the same number, whichever file it is of). Their places and the
+    /// copies' timing tell them apart instead, as for readings cut inside their header's first field.
+    /// </summary>
+    private static IReadOnlyList<BlockCandidate> WithoutUnreadNumbers(IReadOnlyList<BlockCandidate> candidates, int copies)
+    {
+        if (copies <= 1)
+        {
+            return candidates;
+        }
+
+        List<BlockCandidate>? renamed = null;
+        for (int i = 0; i < candidates.Count; i++)
+        {
+            var c = candidates[i];
+            if (c is { Truncated: true, Payload.IsEmpty: true, Identity: { FileName: null, FileId: null, BlockNumber: not null } })
+            {
+                renamed ??= [.. candidates];
+                renamed[i] = c with { Identity = new BlockIdentity(null, null, null, c.Identity.Ordinal) };
+            }
+        }
+
+        return renamed ?? candidates;
     }
 
     /// <summary>Whether a reading's header was read far enough to give a field of its identity: then it keeps that identity rather than a neighbour's.</summary>

@@ -13,7 +13,10 @@ namespace TapeVault.Core.Symbols;
 /// classified. A block then begins where the profile says: at its class sync, at its sync field's bits searched
 /// bit by bit (a sync byte may begin with the lead-in's own bits), or at its first byte marker. Each bit is a short
 /// sequence of classes; markers before and after each byte and at the end of a block are sequences too. Where the
-/// profile has a block gap, a run as short as the gap, followed by the sync, starts a block without a lead-in.
+/// profile has a block gap, a run as short as the gap, followed by the sync, starts a block without a lead-in; and
+/// the gap and the sync read whole inside a block's data end that block there and begin the next, whatever the first
+/// block's length field said: a length misread (or bits lost to a dropout the block was carried over) must not carry
+/// a block on over the gaps and syncs of the blocks after it.
 /// </summary>
 public sealed class PulseWidthDecoder : ISymbolDecoder
 {
@@ -50,11 +53,16 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private readonly bool _searchesSyncBits;
     private readonly bool _hasSyncField;
     private readonly bool[][] _syncBits;
+
+    // Where blocks follow each other after a short gap: the gap's run of lead-in bits and then each sync's bits, which
+    // read whole inside a block's data mark the next block's start (empty where the format has no such gap).
+    private readonly bool[][] _gapSyncBits;
     private readonly int _longestSyncBits;
     private readonly int _leadBit;
     private readonly PulseDecision[] _ringPulse = new PulseDecision[RingPulses];
     private readonly bool[] _ringBit = new bool[RingBits];
     private readonly long[] _ringBitFirstPulse = new long[RingBits];
+    private readonly double[] _ringBitEnd = new double[RingBits];
     private SpeedTracker _speed = new();
     private Mode _mode = Mode.Hunting;
     private Phase _phase;
@@ -68,6 +76,9 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private long _pulsesSeen;
     private long _bitsSeen;
     private int _searchBits;
+
+    // Bits of the block being read, in a row, that were read (not guessed) and recorded in the ring.
+    private int _readBitsInRow;
     private double _lastEdge = double.NaN;
     private double _glitchCarry;
     private double _pendingHalf = double.NaN;
@@ -131,6 +142,21 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
         // The bit a lead-in pulse stands for, where a bit is that one pulse (-1 where it is not a bit).
         _leadBit = _zero is [var z] && z == _leadInClass ? 0 : _one is [var o] && o == _leadInClass ? 1 : -1;
+
+        // A gap of lead-in bits and the sync between blocks, searched inside a block's data too, where every pulse of the
+        // data is a bit (no markers around bytes or at the block's end that the search would have to step over).
+        _gapSyncBits = [];
+        if (_searchesSyncBits && _leadBit >= 0 && _encoding.BlockGap > 0 && _after.Length == 0 && _end.Length == 0)
+        {
+            _gapSyncBits = new bool[_syncBits.Length][];
+            for (int c = 0; c < _syncBits.Length; c++)
+            {
+                var bits = new bool[_encoding.BlockGap + _syncBits[c].Length];
+                bits.AsSpan(0, _encoding.BlockGap).Fill(_leadBit == 1);
+                _syncBits[c].CopyTo(bits, _encoding.BlockGap);
+                _gapSyncBits[c] = bits;
+            }
+        }
     }
 
     private enum Mode
@@ -204,6 +230,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                     if (_mode == Mode.Data)
                     {
                         _blocks.AddGuessedDecision();
+                        _readBitsInRow = 0;
                     }
 
                     _pendingHalf = seconds;
@@ -341,6 +368,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _framer.Reset();
         _leadIn.Reset();
         _dataPulses = 0;
+        _readBitsInRow = 0;
         _blocks.Begin(endSample, evidence);
     }
 
@@ -350,10 +378,11 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _pulsesSeen++;
     }
 
-    private void RecordBit(bool bit, long firstPulse)
+    private void RecordBit(bool bit, long firstPulse, double endSample = double.NaN)
     {
         _ringBit[_bitsSeen % RingBits] = bit;
         _ringBitFirstPulse[_bitsSeen % RingBits] = firstPulse;
+        _ringBitEnd[_bitsSeen % RingBits] = endSample;
         _bitsSeen++;
     }
 
@@ -557,6 +586,11 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
         _recentInvalid = Math.Max(0, _recentInvalid - 1);
         _blocks.AddDecision(decision.Distance, decision.Residual, decision.Scale);
+        if (_gapSyncBits.Length > 0)
+        {
+            RecordPulse(decision);
+        }
+
         if (trackSpeed && decision.Distance > 0.5 * decision.Scale)
         {
             _speed.Track(seconds, _classifier.NominalSeconds(decision.Class));
@@ -648,17 +682,17 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     {
         if (Matches(_zero))
         {
-            CompleteBit(false, endSample);
+            CompleteBit(false, endSample, read: true);
         }
         else if (Matches(_one))
         {
-            CompleteBit(true, endSample);
+            CompleteBit(true, endSample, read: true);
         }
         else if (!IsPrefixOf(_zero) && !IsPrefixOf(_one))
         {
             // No bit begins like this: the decision nearest a bit is a guess with no margin.
             _blocks.AddGuessedDecision();
-            CompleteBit(GuessBit(decision), endSample);
+            CompleteBit(GuessBit(decision), endSample, read: false);
         }
     }
 
@@ -685,7 +719,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                     _phase = Phase.Bits;
                 }
 
-                CompleteBit(GuessBit(decision), endSample);
+                CompleteBit(GuessBit(decision), endSample, read: false);
                 break;
         }
     }
@@ -701,10 +735,15 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         return Math.Abs(decision.Class - _one[0]) < Math.Abs(decision.Class - _zero[0]);
     }
 
-    private void CompleteBit(bool bit, double endSample)
+    private void CompleteBit(bool bit, double endSample, bool read)
     {
         // A byte's decisions begin with the marker before it.
         int firstDecision = _framer.AtByteStart ? _byteFirstDecision : _patternFirstDecision;
+        if (_gapSyncBits.Length > 0 && BeginsNextBlock(bit, endSample, read))
+        {
+            return;
+        }
+
         _patternLength = 0;
         if (_framer.AddBit(bit, firstDecision, endSample))
         {
@@ -717,6 +756,37 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         {
             _phase = _after.Length > 0 ? Phase.After : Phase.Boundary;
         }
+    }
+
+    /// <summary>
+    /// Records a bit of a block's data and, where it completes the gap and a sync read whole (every bit of them read,
+    /// none guessed), ends the block before the gap and begins the next at the sync. Returns whether it did.
+    /// </summary>
+    private bool BeginsNextBlock(bool bit, double endSample, bool read)
+    {
+        if (!read)
+        {
+            _readBitsInRow = 0;
+            return false;
+        }
+
+        RecordBit(bit, _pulsesSeen - _patternLength, endSample);
+        _readBitsInRow++;
+        for (int c = 0; c < _gapSyncBits.Length; c++)
+        {
+            var gapSync = _gapSyncBits[c];
+            if (_readBitsInRow >= gapSync.Length && EndsWith(gapSync))
+            {
+                // The block ends where the gap's first bit ended: its data cannot run on over the next block's gap.
+                // The gap is the run before the sync: as long as the format's gap, which says what evidence it is.
+                _blocks.End(_ringBitEnd[(_bitsSeen - gapSync.Length) % RingBits]);
+                _runCount = _encoding.BlockGap;
+                BeginAtSyncBits(_syncBits[c], endSample);
+                return true;
+            }
+        }
+
+        return false;
     }
 
     private bool Matches(int[] sequence) => sequence.Length > 0 && _patternLength == sequence.Length && IsPrefixOf(sequence);

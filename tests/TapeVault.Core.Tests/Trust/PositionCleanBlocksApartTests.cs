@@ -1,7 +1,5 @@
 using System.Collections.Immutable;
-using System.Text.Json;
 using TapeVault.Core.Blocks;
-using TapeVault.Core.Formats;
 using Xunit;
 
 namespace TapeVault.Core.Tests.Trust;
@@ -14,10 +12,6 @@ namespace TapeVault.Core.Tests.Trust;
 /// </summary>
 public sealed class PositionCleanBlocksApartTests
 {
-    private static readonly JsonSerializerOptions CaseJson = new() { NumberHandling = System.Text.Json.Serialization.JsonNumberHandling.AllowNamedFloatingPointLiterals };
-
-    private sealed record SavedCapture(string Profile, int Seed, int Pass, string Source, string[] Written, List<BlockCandidate> Candidates);
-
     [Fact]
     public void Clean_readings_of_two_files_block_0_a_gap_apart_are_two_positions()
     {
@@ -26,7 +20,7 @@ public sealed class PositionCleanBlocksApartTests
         // 8.7 s on, one setting read block 17 clean and the other did not; the other's clean reading of block 18 then
         // joined block 17's position (the same identity, and that setting had read nothing whole there yet), and so on
         // down the tape: before, three positions each held the clean readings of two written blocks.
-        var (capture, placed) = PlaceAgain("biphase-1200-block-0-files-one-pass.json");
+        var (capture, placed) = SavedCapture.PlaceAgain("biphase-1200-block-0-files-one-pass.json");
         var written = capture.Written.Select(Convert.FromHexString).ToList();
 
         // Which written block each clean reading is, by its bytes (the written block holds header, payload, check).
@@ -54,7 +48,7 @@ public sealed class PositionCleanBlocksApartTests
         // 4.117 s, and the slipped reading of that copy lies on it. The first copy, at 3.853 s, was read by the slipping
         // settings alone, with the same bytes: before, it stood as a position of its own (21 positions for 17 blocks).
         // Block 5's two clean copies still stand apart in this capture (not examined here).
-        var (capture, placed) = PlaceAgain("orrin-80-copies-misread-alike-one-pass.json");
+        var (capture, placed) = SavedCapture.PlaceAgain("orrin-80-copies-misread-alike-one-pass.json");
 
         var clean = placed.Single(c => c.Status == BlockStatus.Clean && Math.Abs(c.StartSeconds - 4.117) < 0.01);
         var firstCopy = placed.Where(c => Math.Abs(c.StartSeconds - 3.853) < 0.01).ToList();
@@ -70,7 +64,7 @@ public sealed class PositionCleanBlocksApartTests
         // its failed readings took the identity of the clean block before, whose header differs from theirs in one byte
         // (the file's name: F0263 taken for F0262, F0265 for F0264), although two settings or more read their own
         // header alike at the same sync; so two blocks shared a position, twice (before: 16 positions).
-        var (capture, placed) = PlaceAgain("orrin-80-next-file-header-read-alike-one-pass.json");
+        var (capture, placed) = SavedCapture.PlaceAgain("orrin-80-next-file-header-read-alike-one-pass.json");
 
         Assert.Equal(capture.Written.Length, placed.Select(c => c.Position).Distinct().Count());
         AssertEachCleanBlockOnePosition(capture, placed);
@@ -83,7 +77,7 @@ public sealed class PositionCleanBlocksApartTests
         // Settings that take a false mark in a lead-in or a gap read the zeros after it as the header of an empty
         // block (block 0, length 0, a failed check); several settings, or one at several places, read such headers
         // alike, which kept them as positions of their own (before: 15 positions).
-        var (capture, placed) = PlaceAgain("orrin-80-lead-in-read-as-empty-blocks-one-pass.json");
+        var (capture, placed) = SavedCapture.PlaceAgain("orrin-80-lead-in-read-as-empty-blocks-one-pass.json");
 
         Assert.Equal(capture.Written.Length, placed.Select(c => c.Position).Distinct().Count());
         AssertEachCleanBlockOnePosition(capture, placed);
@@ -111,19 +105,4 @@ public sealed class PositionCleanBlocksApartTests
         written.Length >= header.Length + payload.Length
         && written.AsSpan(0, header.Length).SequenceEqual(header.AsSpan())
         && written.AsSpan(header.Length, payload.Length).SequenceEqual(payload.AsSpan());
-
-    /// <summary>A saved capture's readings, their positions cleared, placed again by the positioner with its profile's copies.</summary>
-    private static (SavedCapture Capture, List<BlockCandidate> Placed) PlaceAgain(string name)
-    {
-        var capture = Load(name);
-        var profile = ProfileCatalog.BuiltIn.Get(capture.Profile);
-        return (capture, BlockPositioner.Place(capture.Candidates.Select(c => c with { Position = -1 }).ToList(), profile.Layout.Copies));
-    }
-
-    private static SavedCapture Load(string name)
-    {
-        string path = Path.Combine(AppContext.BaseDirectory, "Trust", "Cases", name);
-        return JsonSerializer.Deserialize<SavedCapture>(File.ReadAllText(path), CaseJson)
-            ?? throw new InvalidOperationException($"{name} holds no case.");
-    }
 }

@@ -1,6 +1,4 @@
-using System.Text.Json;
 using TapeVault.Core.Blocks;
-using TapeVault.Core.Formats;
 using TapeVault.Core.Synthesis;
 using Xunit;
 
@@ -17,10 +15,6 @@ namespace TapeVault.Core.Tests.Trust;
 /// </summary>
 public sealed class PositionCopySpacingTests
 {
-    private static readonly JsonSerializerOptions CaseJson = new() { NumberHandling = System.Text.Json.Serialization.JsonNumberHandling.AllowNamedFloatingPointLiterals };
-
-    private sealed record SavedCapture(string Profile, int Seed, int Pass, string Source, string[] Written, List<BlockCandidate> Candidates, List<WrittenSpan> Copies);
-
     [Fact]
     public void Copies_no_setting_read_past_the_header_s_first_byte_are_one_position_per_block()
     {
@@ -29,17 +23,17 @@ public sealed class PositionCopySpacingTests
         // garble it and read no payload, so no reading names a block and none is clean. Before, nearly every sync read
         // was a position of its own (36 positions): the run of lone places was not a multiple of two (two copies
         // were not read), so no two places were taken for copies.
-        var (capture, placed) = PlaceAgain("orrin-80-no-header-read-one-pass.json");
+        var (capture, placed) = SavedCapture.PlaceAgain("orrin-80-no-header-read-one-pass.json");
 
         // Each block whose two copies were read, with the next sync read after them, is one position.
-        var syncs = placed.Select(c => WrittenAt(capture, c)).Where(w => w is not null).Select(w => w!.Value).ToList();
+        var syncs = placed.Select(c => capture.WrittenAt(c)).Where(w => w is not null).Select(w => w!.Value).ToList();
         foreach (var block in syncs.GroupBy(w => w.Block))
         {
             bool bothCopies = block.Any(w => w.Copy == 0) && block.Any(w => w.Copy == 1);
             bool nextRead = syncs.Exists(w => w.Block == block.Key + 1 && w.Copy == 0);
             if (bothCopies && nextRead)
             {
-                var positions = placed.Where(c => WrittenAt(capture, c) is { } w && w.Block == block.Key).Select(c => c.Position).Distinct().ToList();
+                var positions = placed.Where(c => capture.WrittenAt(c) is { } w && w.Block == block.Key).Select(c => c.Position).Distinct().ToList();
                 Assert.True(positions.Count == 1, $"block {block.Key}'s copies are at positions {string.Join(", ", positions)}");
             }
         }
@@ -51,36 +45,12 @@ public sealed class PositionCopySpacingTests
         // The same capture: at 9.380 s (block 10's second copy) one setting, and at 9.797 s (block 11's first) the
         // other, stopped inside the header; each setting counts its readings, and both were its 21st, so the two
         // readings carried the same identity (#21), and block 11's first copy joined block 10's position.
-        var (capture, placed) = PlaceAgain("orrin-80-no-header-read-one-pass.json");
+        var (capture, placed) = SavedCapture.PlaceAgain("orrin-80-no-header-read-one-pass.json");
 
-        var tenth = placed.Where(c => WrittenAt(capture, c) is { Block: 10 }).Select(c => c.Position).Distinct().ToList();
-        var eleventh = placed.Where(c => WrittenAt(capture, c) is { Block: 11 }).Select(c => c.Position).Distinct().ToList();
+        var tenth = placed.Where(c => capture.WrittenAt(c) is { Block: 10 }).Select(c => c.Position).Distinct().ToList();
+        var eleventh = placed.Where(c => capture.WrittenAt(c) is { Block: 11 }).Select(c => c.Position).Distinct().ToList();
         Assert.NotEmpty(tenth);
         Assert.NotEmpty(eleventh);
         Assert.Empty(tenth.Intersect(eleventh));
-    }
-
-    /// <summary>The written copy whose sync the reading starts at (within 30 ms), or null (a reading in a lead-in or gap, or from within a block).</summary>
-    private static WrittenSpan? WrittenAt(SavedCapture capture, BlockCandidate c)
-    {
-        foreach (var span in capture.Copies)
-        {
-            if (Math.Abs(span.DataSeconds - c.StartSeconds) <= 0.03)
-            {
-                return span;
-            }
-        }
-
-        return null;
-    }
-
-    /// <summary>A saved capture's readings, their positions cleared, placed again by the positioner with its profile's copies.</summary>
-    private static (SavedCapture Capture, List<BlockCandidate> Placed) PlaceAgain(string name)
-    {
-        string path = Path.Combine(AppContext.BaseDirectory, "Trust", "Cases", name);
-        var capture = JsonSerializer.Deserialize<SavedCapture>(File.ReadAllText(path), CaseJson)
-            ?? throw new InvalidOperationException($"{name} holds no case.");
-        var profile = ProfileCatalog.BuiltIn.Get(capture.Profile);
-        return (capture, BlockPositioner.Place(capture.Candidates.Select(c => c with { Position = -1 }).ToList(), profile.Layout.Copies));
     }
 }
