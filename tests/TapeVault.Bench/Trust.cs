@@ -225,6 +225,10 @@ public static class Trust
         return 0;
     }
 
+    // The shortest file: empty, where the format can write an empty block (not where its length field reads 0 as 256).
+    private static int EmptyFileBytes(FormatProfile profile) =>
+        profile.Layout.PayloadBytes is null && profile.Layout.FieldWithRole(FieldRole.PayloadLength) is { ZeroMeans: not null } ? 1 : 0;
+
     /// <summary>
     /// A tape's files, of random bytes, runs of zeros, one repeated byte or text, so that blocks of all-equal bytes
     /// (which some checksums pass whatever their length) are common. A block format gets 8–24 files, most of them
@@ -242,7 +246,7 @@ public static class Trust
         {
             double kind = rng.NextDouble();
             int length = stream ? 1 + rng.Next(profile.Fsk is { Baud: < 600 } ? 150 : 500)
-                : kind < 0.04 ? 0
+                : kind < 0.04 ? EmptyFileBytes(profile)
                 : kind < 0.85 ? 1 + rng.Next(40)
                 : 1 + rng.Next(2 * blockBytes);
             var content = new byte[length];

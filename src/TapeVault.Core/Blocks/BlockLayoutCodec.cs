@@ -148,14 +148,23 @@ public sealed partial class BlockLayoutCodec
 
     /// <summary>
     /// Writes <paramref name="value"/> into a field in its byte order (bits above the field's width are dropped); the
-    /// value a stored 0 stands for (<see cref="HeaderField.ZeroMeans"/>) is written as 0.
+    /// value a stored 0 stands for (<see cref="HeaderField.ZeroMeans"/>) is written as 0, and 0 itself cannot be written
+    /// into such a field (it would read back as that value).
     /// </summary>
     public void WriteField(Span<byte> block, HeaderField field, ulong value)
     {
         ArgumentNullException.ThrowIfNull(field);
-        if (field.ZeroMeans is { } zeroMeans && value == (ulong)zeroMeans)
+        if (field.ZeroMeans is { } zeroMeans)
         {
-            value = 0;
+            if (value == 0)
+            {
+                throw new ArgumentException($"The field '{field.Name}' cannot hold 0: a stored 0 reads as {zeroMeans}.", nameof(value));
+            }
+
+            if (value == (ulong)zeroMeans)
+            {
+                value = 0;
+            }
         }
 
         WriteUnsigned(block.Slice(FieldOffset(field), field.Bytes), value, field.BigEndian);

@@ -41,6 +41,13 @@ public static class BlockWriter
             int size = layout.PayloadBytes
                 ?? (int?)layout.FieldWithRole(FieldRole.PayloadLength)?.ZeroMeans
                 ?? Math.Min(DefaultPayloadBytes, layout.MaximumPayloadBytes);
+            if (file.Content.Length == 0 && layout.PayloadBytes is null && layout.FieldWithRole(FieldRole.PayloadLength) is { ZeroMeans: { } zeroMeans } lengthField)
+            {
+                throw new ArgumentException(
+                    $"The file '{file.Name}' is empty, and the format cannot write an empty block: its field '{lengthField.Name}' reads a stored 0 as {zeroMeans}.",
+                    nameof(files));
+            }
+
             int count = Math.Max(1, (file.Content.Length + size - 1) / size);
             for (int b = 0; b < count; b++)
             {

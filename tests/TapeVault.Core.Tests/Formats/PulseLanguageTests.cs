@@ -52,6 +52,26 @@ public sealed class PulseLanguageTests
         Assert.True(codec.CheckHolds(full[0], 256));
     }
 
+    [Fact]
+    public void An_empty_file_is_refused_where_the_length_field_reads_a_stored_0_as_a_full_block()
+    {
+        // The family's description (the format-language issue): "length where 0 means 256" — so no block of this format
+        // says it is empty, and writing one would put on tape a block that reads back as 256 bytes it does not hold.
+        var oneCycle = ProfileCatalog.BuiltIn.Get("one-cycle-bits");
+        var length = oneCycle.Layout.FieldWithRole(FieldRole.PayloadLength)!;
+
+        var error = Assert.Throws<ArgumentException>(() => BlockWriter.Blocks(oneCycle, [new TapeFile("NOTHING", [])]));
+        Assert.Contains("'NOTHING' is empty", error.Message, StringComparison.Ordinal);
+        Assert.Contains($"'{length.Name}' reads a stored 0 as 256", error.Message, StringComparison.Ordinal);
+
+        var block = new byte[BlockLayoutCodec.For(oneCycle.Layout).HeaderBytes];
+        Assert.Throws<ArgumentException>(() => BlockLayoutCodec.For(oneCycle.Layout).WriteField(block, length, 0));
+
+        // One byte is the shortest file it writes, and it reads back as one byte.
+        var one = BlockWriter.Blocks(oneCycle, [new TapeFile("ONE", [0x41])]);
+        Assert.Equal(1, BlockLayoutCodec.For(oneCycle.Layout).ReadField(one[0], length));
+    }
+
     [Theory]
     [InlineData("pulseWidth.pulses", "\"quarters\"", "pulseWidth.pulses must be cycles or half-cycles")]
     [InlineData("pulseWidth.markers", "{}", "pulseWidth.markers must give beforeByte, afterByte or endOfBlock")]
