@@ -80,8 +80,8 @@ public static class CharacterLeaderSearch
             .Where(b => b.Length > layout.CoverageStart)
             .GroupBy(b => Convert.ToHexString(b, 0, layout.CoverageStart))
             .OrderByDescending(g => g.Count())
-            .First();
-        if (sync.Count() < Math.Max(2, LeastSyncShare * layout.Blocks.Count) || sync.First()[0] == character)
+            .FirstOrDefault();
+        if (sync is null || sync.Count() < Math.Max(2, LeastSyncShare * layout.Blocks.Count) || sync.First()[0] == character)
         {
             return null;
         }
