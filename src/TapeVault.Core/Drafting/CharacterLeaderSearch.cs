@@ -12,7 +12,7 @@ public sealed record CharacterLeaderFinding(int Character, int ShortestRun, int 
 /// FSK formats that announce a block with a leader of one character repeated (rather than with mark tone) read, in a
 /// trial decode as a stream, as blocks that each begin with a long run of one byte. The search takes the byte most
 /// blocks begin with a long run of, cuts each block's run off, and searches what follows for a layout. The leader is
-/// proposed only when that layout has a check value of the catalogue and begins with bytes alike in every block
+/// proposed only when that layout has a check value of the catalogue and begins with bytes alike in most blocks
 /// outside the check (the sync characters a reader waits for after the leader): a plain stream, whose text may well
 /// repeat a character, never has that, so it keeps its mark-tone lead-in.
 /// </summary>
@@ -74,23 +74,24 @@ public static class CharacterLeaderSearch
             return null;
         }
 
-        // The sync characters: alike in every block whose check holds, and not the leader's own character.
-        var first = layout.Blocks[0];
-        for (int i = 0; i < layout.CoverageStart; i++)
-        {
-            if (layout.Blocks.Any(b => b.Length <= i || b[i] != first[i]))
-            {
-                return null;
-            }
-        }
-
-        if (first[0] == character)
+        // The sync characters: alike in three in four of the blocks whose check holds (the check does not cover them,
+        // so a block whose sync was misread by a bit still holds it), and not the leader's own character.
+        var sync = layout.Blocks
+            .Where(b => b.Length > layout.CoverageStart)
+            .GroupBy(b => Convert.ToHexString(b, 0, layout.CoverageStart))
+            .OrderByDescending(g => g.Count())
+            .FirstOrDefault();
+        if (sync is null || sync.Count() < Math.Max(2, LeastSyncShare * layout.Blocks.Count) || sync.First()[0] == character)
         {
             return null;
         }
 
-        return new CharacterLeaderFinding(character, byCharacter.Min(r => r.Length), byCharacter.Count(), blocks.Count, layout);
+        return new CharacterLeaderFinding(character, byCharacter.Min(r => r.Length), byCharacter.Count(), blocks.Count,
+            layout with { Sync = sync.First()[..layout.CoverageStart] });
     }
+
+    /// <summary>The least share of the blocks whose check holds that must begin with the same sync characters.</summary>
+    public const double LeastSyncShare = 0.75;
 
     /// <summary>The first run of at least <see cref="LeastRun"/> equal bytes that begins within the block's first few.</summary>
     private static (int Character, int Length, int End)? FirstRun(byte[] block)

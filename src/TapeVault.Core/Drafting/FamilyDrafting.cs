@@ -129,18 +129,22 @@ internal static class CommonSections
         var header = new JsonArray();
         int at = 0;
 
-        // Bytes before the check's coverage that every block holds alike are a sync field (sync characters the
-        // check leaves out); a field's name goes into the coverage when it starts inside it.
+        // Bytes before the check's coverage that every block holds alike (or that a search proved the sync, see
+        // LayoutFinding.Sync) are a sync field (sync characters the check leaves out); a field's name goes into the
+        // coverage when it starts inside it.
         var covered = new JsonArray();
-        if (layout.CoverageStart > 0 && layout.Blocks.Count >= 2 && layout.Blocks.All(b => b.Length > layout.CoverageStart && b.AsSpan(0, layout.CoverageStart).SequenceEqual(layout.Blocks[0].AsSpan(0, layout.CoverageStart)))
-            && !layout.Fields.Any(f => f.Offset < layout.CoverageStart))
+        byte[]? sync = layout.Sync
+            ?? (layout.CoverageStart > 0 && layout.Blocks.Count >= 2 && layout.Blocks.All(b => b.Length > layout.CoverageStart && b.AsSpan(0, layout.CoverageStart).SequenceEqual(layout.Blocks[0].AsSpan(0, layout.CoverageStart)))
+                ? layout.Blocks[0][..layout.CoverageStart]
+                : null);
+        if (sync is not null && !layout.Fields.Any(f => f.Offset < layout.CoverageStart))
         {
             header.Add(new JsonObject
             {
                 ["name"] = "sync",
                 ["bytes"] = layout.CoverageStart,
                 ["role"] = "sync",
-                ["expect"] = new JsonArray(string.Join(' ', layout.Blocks[0].Take(layout.CoverageStart).Select(b => b.ToString("X2", CultureInfo.InvariantCulture)))),
+                ["expect"] = new JsonArray(string.Join(' ', sync.Select(b => b.ToString("X2", CultureInfo.InvariantCulture)))),
             });
             at = layout.CoverageStart;
         }

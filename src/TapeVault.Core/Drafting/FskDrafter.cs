@@ -355,7 +355,7 @@ public sealed class FskDrafter : IFamilyDrafter
         else
         {
             proposal.Measured("fsk.leadIn", $"character 0x{leader.Character:X2}, at least {leaderMinimum}", 0.9,
-                $"{leader.BlocksWithLeader} of {leader.BlocksRead} blocks read as a stream begin with a run of 0x{leader.Character:X2} (the shortest {leader.ShortestRun} characters), and the bytes after it hold a check value after {leader.Layout.CoverageStart} sync character(s) alike in every block; a quarter of the shortest run, at most {CharacterLeaderSearch.LeastRun}, so that a leader cut short still counts");
+                $"{leader.BlocksWithLeader} of {leader.BlocksRead} blocks read as a stream begin with a run of 0x{leader.Character:X2} (the shortest {leader.ShortestRun} characters), and the bytes after it hold a check value after {leader.Layout.CoverageStart} sync character(s) alike in most blocks; a quarter of the shortest run, at most {CharacterLeaderSearch.LeastRun}, so that a leader cut short still counts");
         }
 
         var others = string.Join(", ", trials.Select(t => $"{t.Data}{t.Parity.ToString()[0]}{t.Stop.Length}: {F(100 * t.ErrorShare, "0.#")} %"));

@@ -35,6 +35,13 @@ public sealed record LayoutFinding(
 
     /// <summary>Whether every header byte belongs to a field whose role was told from the blocks.</summary>
     public bool HeaderExplained => Fields.Sum(f => f.Bytes) == HeaderBytes && Fields.All(f => f.Role != "other");
+
+    /// <summary>
+    /// The sync characters before the check's coverage where a search proved them otherwise than by every block
+    /// holding them alike (<see cref="CharacterLeaderSearch"/>: the characters after a leader that most blocks share);
+    /// null where the sync, if any, is the bytes every block holds alike before the coverage.
+    /// </summary>
+    public byte[]? Sync { get; init; }
 }
 
 /// <summary>

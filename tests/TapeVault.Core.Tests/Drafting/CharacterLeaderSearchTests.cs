@@ -68,6 +68,38 @@ public sealed class CharacterLeaderSearchTests
     }
 
     [Fact]
+    public void A_sync_character_misread_in_one_block_leaves_the_leader_and_the_sync_most_blocks_share()
+    {
+        // The check does not cover the sync characters, so a block whose sync was misread by one bit still holds its
+        // check: the sync proposed is what the other blocks share, and the leader is still found.
+        var blocks = Blocks(0xAA, "SYN"u8.ToArray(), 24);
+        var misread = blocks[3];
+        int at = misread.AsSpan().IndexOf("SYN"u8);
+        misread[at + 2] ^= 0x80;
+
+        var found = CharacterLeaderSearch.Find(blocks, EightOddOne);
+
+        Assert.NotNull(found);
+        Assert.Equal(0xAA, found.Character);
+        Assert.Equal(6, found.Layout.BlocksHolding);
+        Assert.Equal("SYN"u8.ToArray(), found.Layout.Sync);
+    }
+
+    [Fact]
+    public void Sync_characters_that_differ_in_half_the_blocks_are_no_sync()
+    {
+        // Bytes outside the check that half the blocks hold one way and half another are a field, not a sync a
+        // reader could wait for.
+        var blocks = Blocks(0xAA, "SYN"u8.ToArray(), 25);
+        foreach (var block in blocks.Where((_, i) => i % 2 == 1))
+        {
+            block[block.AsSpan().IndexOf("SYN"u8) + 1] = (byte)'X';
+        }
+
+        Assert.Null(CharacterLeaderSearch.Find(blocks, EightOddOne));
+    }
+
+    [Fact]
     public void A_leader_whose_blocks_have_no_sync_characters_before_the_check_is_not_proposed()
     {
         // With no characters outside the check there is nothing a reader could wait for after the leader.
