@@ -29,10 +29,12 @@ namespace TapeVault.Core.Bytes;
 /// 0xFF). Its decisions may all be clean. So an edge character also carries <see cref="OffGridError"/> of how far its
 /// start lies from one frame beside its neighbour's (<see cref="OffsetBits"/>). Measured on the stream readings of the
 /// trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds 17000–19079 (edge characters of readings of three or
-/// more characters, judged at the place their time claims): an edge character off by under a tenth of a bit was wrong
-/// 1.5 % (kcs-1200) and 0.6 % (kcs-300) of the time, as its decisions said; by 0.1–0.5 bit 5 % and 1 %; by 0.6 bit or
-/// more, every one of 112. Half-offset and power fitted by maximum likelihood over those characters with the decision
-/// model as it was (log-likelihood −2993 before, −2521 after; each profile on its own gives the same).
+/// more characters, judged at the place their time claims; those of least decision distance 0.5 or more): an edge
+/// character off by under a tenth of a bit was wrong 1.6 % (kcs-1200) and 0.6 % (kcs-300) of the time, about as its
+/// decisions said; by 0.1–0.5 bit 5 % and 2 %; by 0.6 bit or more 87 times in 91, where its decisions said 14 %.
+/// Half-offset and power fitted by maximum likelihood over the edge characters of every reading of two or more
+/// characters, whatever their decisions, with the decision model as it was (log-likelihood −2993 before, −2521 after;
+/// each profile on its own gives the same).
 /// </para>
 /// </summary>
 public static class CharacterEdge
