@@ -89,8 +89,8 @@ internal sealed class StreamMerge
     /// (log-likelihood −269 before, −135.5 after; refitting the end doubt too gave 0.15 and −134.6, no better).
     /// It holds for a piece that several captures read alike too: the damage that made the hole is the tape's, and the
     /// false characters framed in it are the same on each capture. Of the pieces of one to three characters that two
-    /// captures read alike beside a hole, on the merged segments of tuning seeds 16000–16177 and 17000–19079 (kcs-1200),
-    /// 1 of 26 was the written characters, where the vote of the two had put them at 0.77–0.86.
+    /// captures read alike beside a hole, on the merged segments of tuning seeds 16000–16088 and 17000–19079 (kcs-1200),
+    /// 1 of 26 was the written characters, where the vote of the two had put them at 0.86 and 0.77 on average.
     /// </summary>
     public static double LonePieceGenuine(int characters)
     {
