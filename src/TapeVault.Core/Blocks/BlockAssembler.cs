@@ -47,7 +47,7 @@ public sealed partial class BlockAssembler : IBlockSink
         ArgumentNullException.ThrowIfNull(profile);
         ArgumentNullException.ThrowIfNull(finished);
         _layout = profile.Layout;
-        _scorer = new BlockScorer(_layout, profile.Family, profileId: profile.Id, characterBaud: profile.Fsk?.Baud);
+        _scorer = new BlockScorer(_layout, profile.Family, profileId: profile.Id, characterBaud: profile.Fsk?.Baud, characterBits: profile.Framing.BitsPerByte);
         _codec = BlockLayoutCodec.For(_layout);
         _kinds = new KindSequence(profile);
         _settingIndex = settingIndex;
@@ -226,7 +226,7 @@ public sealed partial class BlockAssembler : IBlockSink
             evidence = BlockStartEvidence.None;
         }
 
-        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, framingErrors, _guessedDecisions, evidence, truncated, end);
+        var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, framingErrors, _guessedDecisions, evidence, truncated, end, CollectionsMarshal.AsSpan(_byteSample));
         int headerBytes = score.HeaderBytes;
         int payloadEnd = score.PayloadEnd;
         var header = all.AsSpan(0, headerBytes);

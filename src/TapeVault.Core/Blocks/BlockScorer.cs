@@ -112,6 +112,9 @@ public sealed class BlockScorer
         return odds / (1 + odds);
     }
 
+    /// <summary>The most doubt an edge character carries: a character off its neighbours' grid is near certainly false, and is kept as a byte of odds like one no decision vouches for.</summary>
+    private const double MostEdgeError = 0.99;
+
     /// <summary>The weight of the plain prior (only known doubts) beside the decision model's: even, for want of knowing which is nearer.</summary>
     private const double PlainPriorWeight = 0.5;
 
@@ -125,21 +128,24 @@ public sealed class BlockScorer
     private readonly ConfidenceMap _map;
     private readonly string? _profileId;
     private readonly double? _characterBaud;
+    private readonly int _characterBits;
 
     /// <summary>
     /// A scorer for blocks of <paramref name="layout"/> in a format of <paramref name="family"/>, calibrated by
     /// <paramref name="map"/> (the embedded <see cref="ConfidenceMap.Default"/> unless given), by the curves of
     /// <paramref name="profileId"/> where the map has them. <paramref name="characterBaud"/>: the baud of the
-    /// asynchronous characters a layout without a checksum is read in; the first and last character of such a block
-    /// carry the doubt of a character at an edge of what was read (<see cref="CharacterEdge"/>).
+    /// asynchronous characters a layout without a checksum is read in, <paramref name="characterBits"/> the bits of
+    /// their frame; the first and last character of such a block carry the doubt of a character at an edge of what was
+    /// read (<see cref="CharacterEdge"/>).
     /// </summary>
-    public BlockScorer(BlockLayout layout, FormatFamily family, ConfidenceMap? map = null, string? profileId = null, double? characterBaud = null)
+    public BlockScorer(BlockLayout layout, FormatFamily family, ConfidenceMap? map = null, string? profileId = null, double? characterBaud = null, int characterBits = 0)
     {
         ArgumentNullException.ThrowIfNull(layout);
         _layout = layout;
         _family = family;
         _profileId = profileId;
         _characterBaud = characterBaud;
+        _characterBits = characterBits;
         _map = map ?? ConfidenceMap.Default;
         _codec = BlockLayoutCodec.For(layout);
         _checksum = _codec.Checksum;
@@ -153,7 +159,9 @@ public sealed class BlockScorer
     /// <paramref name="byteFirstDecision"/>[b] up to the next byte's first (the last byte's run to the end of
     /// <paramref name="decisions"/>); <paramref name="byteFramingDoubt"/>[b] is the chance, beyond its decisions, that
     /// it was framed in the wrong place. <paramref name="guessedDecisions"/> decisions were guesses (erased bits).
-    /// <paramref name="end"/>: what, beside its bytes, said where the block ends.
+    /// <paramref name="end"/>: what, beside its bytes, said where the block ends. <paramref name="byteSamples"/>: where
+    /// each byte began in the capture (its start bit), which tells whether an edge character stands on its neighbours'
+    /// grid (empty: not known).
     /// </summary>
     public BlockScore Score(
         ReadOnlySpan<byte> bytes,
@@ -164,7 +172,8 @@ public sealed class BlockScorer
         int guessedDecisions,
         BlockStartEvidence evidence,
         bool truncated,
-        BlockEndEvidence end = BlockEndEvidence.OwnBytes)
+        BlockEndEvidence end = BlockEndEvidence.OwnBytes,
+        ReadOnlySpan<double> byteSamples = default)
     {
         ArgumentNullException.ThrowIfNull(decisions);
         int byteCount = bytes.Length;
@@ -215,8 +224,10 @@ public sealed class BlockScorer
             if (_checksum is null && _characterBaud is { } baud && (b == 0 || b == byteCount - 1))
             {
                 // Nothing checks these bytes, and the characters at the block's ends have no neighbour on one side to
-                // hold their frame: they may have been framed on the transient where the signal began or broke off.
-                framing = Math.Min(framing, Math.Log(1 - CharacterEdge.Error(minMargin, baud)));
+                // hold their frame: they may have been framed on the transient where the signal began or broke off,
+                // and more likely so where they stand off the grid their neighbours keep.
+                double offset = byteSamples.Length == byteCount ? CharacterEdge.OffsetBits(byteSamples, first: b == 0, _characterBits) : 0;
+                framing = Math.Min(framing, Math.Log(1 - Math.Min(CharacterEdge.Error(minMargin, baud, offset), MostEdgeError)));
             }
 
             logModel[b] = logOk + framing;

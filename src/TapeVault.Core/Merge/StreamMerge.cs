@@ -21,8 +21,8 @@ namespace TapeVault.Core.Merge;
 /// the doubt is the tape's own, which every capture shares (<see cref="SharedGapEndError"/>, <see cref="SharedStretchEndError"/>).
 /// Elsewhere, independent captures that read a character alike are all wrong
 /// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
-/// never lowers it, and a segment one capture alone carried claims what its ends allow, and beside bytes no capture
-/// kept no more than pieces of its length were right (<see cref="LonePieceGenuine"/>).
+/// never lowers it, and a segment claims what its ends allow, and beside bytes no capture kept no more than pieces of
+/// its length were right, however many captures read it alike (<see cref="LonePieceGenuine"/>).
 /// </para>
 /// </summary>
 internal sealed class StreamMerge
@@ -87,6 +87,10 @@ internal sealed class StreamMerge
     /// sixteen or more 39 of 55, against a confidence from their characters' own odds of 0.64, 0.45, 0.28, 0.30 and 0.71.
     /// Half-length and power fitted by maximum likelihood over those segments with <see cref="GapEndError"/> as it was
     /// (log-likelihood −269 before, −135.5 after; refitting the end doubt too gave 0.15 and −134.6, no better).
+    /// It holds for a piece that several captures read alike too: the damage that made the hole is the tape's, and the
+    /// false characters framed in it are the same on each capture. Of the pieces of one to three characters that two
+    /// captures read alike beside a hole, on the merged segments of tuning seeds 16000–16088 and 17000–19079 (kcs-1200),
+    /// 1 of 26 was the written characters, where the vote of the two had put them at 0.86 and 0.77 on average.
     /// </summary>
     public static double LonePieceGenuine(int characters)
     {
@@ -517,8 +521,9 @@ internal sealed class StreamMerge
             logConfidence += Math.Log(Math.Max(p, 1e-300));
         }
 
-        // A piece one capture alone carried beside bytes no capture kept may be a false frame's invention as a whole.
-        double genuine = agreeing == 1 && (afterGap || beforeGap) ? LonePieceGenuine(slots.Count) : 1;
+        // A piece beside bytes no capture kept may be a false frame's invention as a whole, whether one capture carried
+        // it or several: the damage that made the hole is on the tape, and captures frame the same false characters in it.
+        double genuine = afterGap || beforeGap ? LonePieceGenuine(slots.Count) : 1;
 
         // Provenance: per capture, the reading that gave most of the winning bytes; the capture that gave most first.
         var winning = slots.SelectMany(s => s.Bytes.Where(b => b.Value == s.Value)).ToList();
