@@ -63,6 +63,12 @@ internal static class BitVote
     /// Null when no pattern holds.
     /// </summary>
     /// <param name="tieBreak">The bytes of the most trusted reading: a bit the vote leaves even takes its value.</param>
+    /// <param name="falseMatch">
+    /// The chance that one wrong pattern passes the check. A wrong pattern that passes differs from the block in two bits
+    /// or more (every check catches a single bit), so this is the check's odds for multiple errors
+    /// (<see cref="Checksums.IBlockChecksum.MultipleErrorMatchProbability"/>): a sum or an xor cancels two misread bits at
+    /// one bit position about one pair in eight, far more often than its width says.
+    /// </param>
     public static VoteOutcome? Search(
         IReadOnlyList<VoteReading> readings,
         int length,
@@ -124,7 +130,7 @@ internal static class BitVote
                 // Bayes over "this pattern is the block" against "the block is none of the patterns tried, and this
                 // one matched by chance". The bit odds come from per-byte estimates and do not order the patterns
                 // reliably, so the search's multiplicity is charged explicitly: trying n patterns against a check
-                // gives n chances of a false match.
+                // gives n chances of a false match, each at the odds of a wrong pattern (see falseMatch).
                 double elsewhere = Math.Max(0, 1 - triedMass) * Math.Min(1, trials * falseMatch);
                 double confidence = elsewhere <= 0 ? 1 : 1 / (1 + Math.Exp(Math.Log(elsewhere) - logPattern));
                 return new VoteOutcome([.. bytes], trials, confidence);
