@@ -63,12 +63,6 @@ internal static class BitVote
     /// Null when no pattern holds.
     /// </summary>
     /// <param name="tieBreak">The bytes of the most trusted reading: a bit the vote leaves even takes its value.</param>
-    /// <param name="falseMatch">
-    /// The chance that one wrong pattern passes the check. A wrong pattern that passes differs from the block in two bits
-    /// or more (every check catches a single bit), so this is the check's odds for multiple errors
-    /// (<see cref="Checksums.IBlockChecksum.MultipleErrorMatchProbability"/>): a sum or an xor cancels two misread bits at
-    /// one bit position about one pair in eight, far more often than its width says.
-    /// </param>
     public static VoteOutcome? Search(
         IReadOnlyList<VoteReading> readings,
         int length,
@@ -115,7 +109,7 @@ internal static class BitVote
             cost[mask] = cost[mask & (mask - 1)] + certainty[weakest[low]];
         }
 
-        var order = Enumerable.Range(0, patterns).OrderBy(m => cost[m]).ThenBy(m => System.Numerics.BitOperations.PopCount((uint)m)).Take(maximumTrials);
+        var order = Enumerable.Range(0, patterns).OrderBy(m => cost[m]).ThenBy(m => System.Numerics.BitOperations.PopCount((uint)m)).Take(maximumTrials).ToArray();
         double triedMass = 0;
         int trials = 0;
         foreach (int mask in order)
@@ -127,13 +121,30 @@ internal static class BitVote
             triedMass += pattern;
             if (holds(bytes))
             {
-                // Bayes over "this pattern is the block" against "the block is none of the patterns tried, and this
-                // one matched by chance". The bit odds come from per-byte estimates and do not order the patterns
-                // reliably, so the search's multiplicity is charged explicitly: trying n patterns against a check
-                // gives n chances of a false match, each at the odds of a wrong pattern (see falseMatch).
-                double elsewhere = Math.Max(0, 1 - triedMass) * Math.Min(1, trials * falseMatch);
+                // Bayes over "this pattern is the block" against "the block is another pattern of the search that
+                // holds too" and "the block is none of the patterns tried, and this one matched by chance". The
+                // patterns after it that hold are found by trying every one the search would have tried: a weak check
+                // (an xor or a sum, which two misread bits at one bit position pass) lets several through, each as
+                // likely the block as its bit odds say. The bit odds come from per-byte estimates and do not order
+                // the patterns reliably, so the search's multiplicity is charged explicitly too: trying n patterns
+                // against a check gives n chances of a false match.
+                var found = bytes.ToArray();
+                Flip(bytes, weakest, mask);
+                double others = 0;
+                for (int i = trials; i < order.Length; i++)
+                {
+                    Flip(bytes, weakest, order[i]);
+                    if (holds(bytes))
+                    {
+                        others += Math.Exp(logVote - cost[order[i]]);
+                    }
+
+                    Flip(bytes, weakest, order[i]);
+                }
+
+                double elsewhere = others + (Math.Max(0, 1 - triedMass) * Math.Min(1, trials * falseMatch));
                 double confidence = elsewhere <= 0 ? 1 : 1 / (1 + Math.Exp(Math.Log(elsewhere) - logPattern));
-                return new VoteOutcome([.. bytes], trials, confidence);
+                return new VoteOutcome(found, trials, confidence);
             }
 
             Flip(bytes, weakest, mask);

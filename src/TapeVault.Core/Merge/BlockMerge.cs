@@ -296,21 +296,6 @@ internal sealed class BlockMerge
     {
         var hits = new int[_passes.Count];
         int tries = 0;
-        foreach (var group in groups)
-        {
-            if (!group.Entries.Exists(e => e.Readings.Exists(c => c.Status == BlockStatus.Clean)))
-            {
-                continue;
-            }
-
-            tries++;
-            foreach (int pass in group.Entries.Where(e => e.Readings.Exists(c => c.Status == BlockStatus.Clean)).Select(e => e.Pass).Distinct())
-            {
-                hits[pass]++;
-            }
-        }
-
-        // Misses of one position by two passes: the tape's own damage, which every capture shares.
         int pairs = 0;
         int both = 0;
         foreach (var group in groups)
@@ -321,14 +306,17 @@ internal sealed class BlockMerge
                 continue;
             }
 
-            for (int missed = 0; missed < _passes.Count; missed++)
+            tries++;
+            foreach (int pass in clean)
             {
-                if (!clean.Contains(missed))
-                {
-                    pairs += _passes.Count - 1;
-                    both += _passes.Count - clean.Count - 1;
-                }
+                hits[pass]++;
             }
+
+            // Each pass that missed this proven position, paired with every other pass: both missed it where the
+            // tape's own damage, which every capture shares, made them.
+            int missed = _passes.Count - clean.Count;
+            pairs += missed * (_passes.Count - 1);
+            both += missed * (missed - 1);
         }
 
         return new PassOdds([.. hits.Select(h => (h + 1.0) / (tries + 2.0))], both / (pairs + 1.0));
@@ -515,7 +503,7 @@ internal sealed class BlockMerge
         }
 
         var best = whole.MaxBy(r => r.Candidate.Confidence + (1 - MeanError(r.Candidate)));
-        var outcome = BitVote.Search(voters, length, FullBytes(best.Candidate, complete: true), Holds, _checksum.MultipleErrorMatchProbability, _options.RepairBits, _options.MaximumTrials);
+        var outcome = BitVote.Search(voters, length, FullBytes(best.Candidate, complete: true), Holds, _checksum.FalseMatchProbability, _options.RepairBits, _options.MaximumTrials);
         var sources = used.OrderByDescending(r => r.Candidate.Confidence).Select(r => Provenance(r.Candidate, r.Pass)).ToImmutableArray();
         if (outcome is null)
         {
