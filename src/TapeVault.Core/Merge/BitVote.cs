@@ -59,8 +59,8 @@ internal static class BitVote
 
     /// <summary>
     /// The vote's bytes, then up to <paramref name="maximumTrials"/> patterns of flips over the
-    /// <paramref name="repairBits"/> least certain bits, cheapest first, until <paramref name="holds"/> accepts one.
-    /// Null when no pattern holds.
+    /// <paramref name="repairBits"/> least certain bits, cheapest first, until <paramref name="holds"/> accepts one; the
+    /// patterns left after it are tried too, for its confidence. Null when no pattern holds.
     /// </summary>
     /// <param name="tieBreak">The bytes of the most trusted reading: a bit the vote leaves even takes its value.</param>
     public static VoteOutcome? Search(
