@@ -19,7 +19,7 @@ public static class PositionReplay
 {
     private static readonly string? s_folder = Environment.GetEnvironmentVariable("TAPEVAULT_TRUST_CANDIDATES");
 
-    private static readonly JsonSerializerOptions s_json = new() { NumberHandling = System.Text.Json.Serialization.JsonNumberHandling.AllowNamedFloatingPointLiterals };
+    internal static readonly JsonSerializerOptions Json = new() { NumberHandling = System.Text.Json.Serialization.JsonNumberHandling.AllowNamedFloatingPointLiterals };
 
     /// <summary>
     /// One capture's readings and the blocks written; <paramref name="Copies"/>, where the pass came from our channel model
@@ -27,7 +27,7 @@ public static class PositionReplay
     /// from its sync, to its end), from the damage's speed and margin and SoX's speed; wow and flutter move it by a few
     /// milliseconds at most. Null in older saves and for minimodem's passes.
     /// </summary>
-    private sealed record Saved(string Profile, int Seed, int Pass, string Source, string[] Written, List<BlockCandidate> Candidates, List<WrittenSpan>? Copies = null);
+    internal sealed record Saved(string Profile, int Seed, int Pass, string Source, string[] Written, List<BlockCandidate> Candidates, List<WrittenSpan>? Copies = null);
 
     public static void Save(FormatProfile profile, int seed, int pass, string source, List<byte[]> written, IReadOnlyList<BlockCandidate> candidates, (ChannelDamage Damage, string Description)? damage)
     {
@@ -53,7 +53,7 @@ public static class PositionReplay
         }
 
         var saved = new Saved(profile.Id, seed, pass, source, [.. written.Select(Convert.ToHexString)], [.. candidates], copies);
-        File.WriteAllText(Path.Combine(s_folder, $"{profile.Id}-{seed}-{pass}.json"), JsonSerializer.Serialize(saved, s_json));
+        File.WriteAllText(Path.Combine(s_folder, $"{profile.Id}-{seed}-{pass}.json"), JsonSerializer.Serialize(saved, Json));
     }
 
     public static int Run(string[] args)
@@ -80,7 +80,7 @@ public static class PositionReplay
         var watch = System.Diagnostics.Stopwatch.StartNew();
         foreach (string file in Directory.GetFiles(folder, "*.json").Order(StringComparer.Ordinal))
         {
-            var saved = JsonSerializer.Deserialize<Saved>(File.ReadAllText(file), s_json)!;
+            var saved = JsonSerializer.Deserialize<Saved>(File.ReadAllText(file), Json)!;
             // The trust bench's own profiles are not built in: take every profile from the bench's list.
             var profile = Trust.Subjects.Select(s => s.Profile).First(p => p.Id == saved.Profile);
             var written = saved.Written.Select(Convert.FromHexString).ToList();

@@ -63,6 +63,12 @@ if (section == "positions")
     return PositionReplay.Run(args[1..]);
 }
 
+if (section == "merge-replay")
+{
+    // merge-replay --candidates FOLDER [--dump FILE]: merges again the block tapes a trust run saved (TAPEVAULT_TRUST_CANDIDATES) and judges the positions.
+    return MergeReplay.Run(args[1..]);
+}
+
 if (section == "segment-fit")
 {
     // segment-fit --fit DUMPS --check DUMPS [--cells ah|ahl] [--per-profile] [--least N]: whether a map over merged stream

@@ -613,10 +613,10 @@ public static class Trust
         return d;
     }
 
-    private delegate bool Judgement(ReadOnlySpan<byte> header, ReadOnlySpan<byte> payload);
+    internal delegate bool Judgement(ReadOnlySpan<byte> header, ReadOnlySpan<byte> payload);
 
     /// <summary>Whether a reading is right: a written block's header and payload, or for a stream, written bytes where they line up best.</summary>
-    private static Judgement Judge(FormatProfile profile, List<TapeFile> files, List<byte[]> written, out int units)
+    internal static Judgement Judge(FormatProfile profile, List<TapeFile> files, List<byte[]> written, out int units)
     {
         if (profile.Layout.IsStream)
         {

@@ -59,8 +59,8 @@ internal static class BitVote
 
     /// <summary>
     /// The vote's bytes, then up to <paramref name="maximumTrials"/> patterns of flips over the
-    /// <paramref name="repairBits"/> least certain bits, cheapest first, until <paramref name="holds"/> accepts one.
-    /// Null when no pattern holds.
+    /// <paramref name="repairBits"/> least certain bits, cheapest first, until <paramref name="holds"/> accepts one; the
+    /// patterns left after it are tried too, for its confidence. Null when no pattern holds.
     /// </summary>
     /// <param name="tieBreak">The bytes of the most trusted reading: a bit the vote leaves even takes its value.</param>
     public static VoteOutcome? Search(
@@ -109,7 +109,7 @@ internal static class BitVote
             cost[mask] = cost[mask & (mask - 1)] + certainty[weakest[low]];
         }
 
-        var order = Enumerable.Range(0, patterns).OrderBy(m => cost[m]).ThenBy(m => System.Numerics.BitOperations.PopCount((uint)m)).Take(maximumTrials);
+        var order = Enumerable.Range(0, patterns).OrderBy(m => cost[m]).ThenBy(m => System.Numerics.BitOperations.PopCount((uint)m)).Take(maximumTrials).ToArray();
         double triedMass = 0;
         int trials = 0;
         foreach (int mask in order)
@@ -121,13 +121,30 @@ internal static class BitVote
             triedMass += pattern;
             if (holds(bytes))
             {
-                // Bayes over "this pattern is the block" against "the block is none of the patterns tried, and this
-                // one matched by chance". The bit odds come from per-byte estimates and do not order the patterns
-                // reliably, so the search's multiplicity is charged explicitly: trying n patterns against a check
-                // gives n chances of a false match.
-                double elsewhere = Math.Max(0, 1 - triedMass) * Math.Min(1, trials * falseMatch);
+                // Bayes over "this pattern is the block" against "the block is another pattern of the search that
+                // holds too" and "the block is none of the patterns tried, and this one matched by chance". The
+                // patterns after it that hold are found by trying every one the search would have tried: a weak check
+                // (an xor or a sum, which two misread bits at one bit position pass) lets several through, each as
+                // likely the block as its bit odds say. The bit odds come from per-byte estimates and do not order
+                // the patterns reliably, so the search's multiplicity is charged explicitly too: trying n patterns
+                // against a check gives n chances of a false match.
+                var found = bytes.ToArray();
+                Flip(bytes, weakest, mask);
+                double others = 0;
+                for (int i = trials; i < order.Length; i++)
+                {
+                    Flip(bytes, weakest, order[i]);
+                    if (holds(bytes))
+                    {
+                        others += Math.Exp(logVote - cost[order[i]]);
+                    }
+
+                    Flip(bytes, weakest, order[i]);
+                }
+
+                double elsewhere = others + (Math.Max(0, 1 - triedMass) * Math.Min(1, trials * falseMatch));
                 double confidence = elsewhere <= 0 ? 1 : 1 / (1 + Math.Exp(Math.Log(elsewhere) - logPattern));
-                return new VoteOutcome([.. bytes], trials, confidence);
+                return new VoteOutcome(found, trials, confidence);
             }
 
             Flip(bytes, weakest, mask);

@@ -71,11 +71,11 @@ internal sealed class BlockMerge
     public List<ImageBlock> Resolve()
     {
         var groups = GroupEntries();
-        var readsClean = ReadsClean(groups);
+        var odds = Odds(groups);
         var blocks = new List<ImageBlock>(groups.Count);
         foreach (var group in groups)
         {
-            if (ResolvePosition(group, readsClean) is { } block)
+            if (ResolvePosition(group, odds) is { } block)
             {
                 blocks.Add(block);
             }
@@ -282,47 +282,64 @@ internal sealed class BlockMerge
     private static bool Unnamed(string key) => key.StartsWith(':');
 
     /// <summary>
-    /// Per pass, the chance that it reads a block of this tape clean, as the tape shows it: of the positions some pass
-    /// read clean, the share that this pass read clean too (with one position read and one missed added, so that a
-    /// tape of few positions says little either way).
+    /// How the passes read this tape's blocks, as the tape shows it. <paramref name="ReadsClean"/>: per pass, the chance
+    /// that it reads a block clean, of the positions some pass read clean the share that this pass read clean too (with
+    /// one position read and one missed added, so that a tape of few positions says little either way).
+    /// <paramref name="MissedWithAnother"/>: the chance that a pass misses a block that another pass missed, of the
+    /// positions some pass read clean, over every pair of a pass that missed one and another pass (with one pair added
+    /// where the other read it, so that a tape whose passes missed nothing shows no shared misses).
     /// </summary>
-    private double[] ReadsClean(List<Group> groups)
+    private sealed record PassOdds(double[] ReadsClean, double MissedWithAnother);
+
+    /// <summary>The passes' odds on this tape (<see cref="PassOdds"/>).</summary>
+    private PassOdds Odds(List<Group> groups)
     {
         var hits = new int[_passes.Count];
         int tries = 0;
+        int pairs = 0;
+        int both = 0;
         foreach (var group in groups)
         {
-            if (!group.Entries.Exists(e => e.Readings.Exists(c => c.Status == BlockStatus.Clean)))
+            var clean = group.Entries.Where(e => e.Readings.Exists(c => c.Status == BlockStatus.Clean)).Select(e => e.Pass).ToHashSet();
+            if (clean.Count == 0)
             {
                 continue;
             }
 
             tries++;
-            foreach (int pass in group.Entries.Where(e => e.Readings.Exists(c => c.Status == BlockStatus.Clean)).Select(e => e.Pass).Distinct())
+            foreach (int pass in clean)
             {
                 hits[pass]++;
             }
+
+            // Each pass that missed this proven position, paired with every other pass: both missed it where the
+            // tape's own damage, which every capture shares, made them.
+            int missed = _passes.Count - clean.Count;
+            pairs += missed * (_passes.Count - 1);
+            both += missed * (missed - 1);
         }
 
-        return [.. hits.Select(h => (h + 1.0) / (tries + 2.0))];
+        return new PassOdds([.. hits.Select(h => (h + 1.0) / (tries + 2.0))], both / (pairs + 1.0));
     }
 
     /// <summary>
     /// The chance that a content no two captures proved is right, given the other passes, none of which read it with a
     /// check that holds. Its witnesses' confidence is the rate at which such readings are right over all readings, most
-    /// of them of positions that another capture then proved; a block that is there is read by most passes (each with
-    /// its odds <paramref name="readsClean"/> on this tape), a wrong or phantom one by none, so each pass that missed
-    /// the content weighs against it by Bayes.
+    /// of them of positions that another capture then proved; a block that is there is read by most passes, a wrong or
+    /// phantom one by none, so each pass that missed the content weighs against it by Bayes, at the odds that it misses
+    /// a block that is there. The witnesses did not read it clean either: where the tape's own damage made them miss, it
+    /// makes the others miss too, so a pass misses such a block at least as often as it missed, on this tape, the blocks
+    /// another pass missed (<see cref="PassOdds.MissedWithAnother"/>), not only at its share of all blocks.
     /// </summary>
-    private static double Unconfirmed(double confidence, IEnumerable<int> witnessPasses, double[] readsClean)
+    private static double Unconfirmed(double confidence, IEnumerable<int> witnessPasses, PassOdds odds)
     {
         var witnesses = witnessPasses.ToHashSet();
         double logMissed = 0;
-        for (int pass = 0; pass < readsClean.Length; pass++)
+        for (int pass = 0; pass < odds.ReadsClean.Length; pass++)
         {
             if (!witnesses.Contains(pass))
             {
-                logMissed += Math.Log(1 - readsClean[pass]);
+                logMissed += Math.Log(Math.Max(1 - odds.ReadsClean[pass], odds.MissedWithAnother));
             }
         }
 
@@ -331,7 +348,7 @@ internal sealed class BlockMerge
         return right + wrong <= 0 ? 0 : right / (right + wrong);
     }
 
-    private ImageBlock? ResolvePosition(Group group, double[] readsClean)
+    private ImageBlock? ResolvePosition(Group group, PassOdds odds)
     {
         var readings = new List<(BlockCandidate Candidate, int Pass)>();
         foreach (var e in group.Entries)
@@ -362,7 +379,7 @@ internal sealed class BlockMerge
 
         // Nothing proven and no vote that holds: a reading whose weak check holds is still the likeliest content, kept
         // as voted at its own confidence rather than listed missing.
-        var voted = ResolveByVote(readings);
+        var voted = ResolveByVote(readings, odds);
         var weak = readings.Where(r => IsOnlyUncorroborated(r.Candidate)).ToList();
         if (voted is { Status: not RecoveryStatus.Missing } || weak.Count == 0)
         {
@@ -371,7 +388,7 @@ internal sealed class BlockMerge
 
         var kept = ResolveClean(weak, RecoveryStatus.Voted);
         var witnessPasses = weak.Where(r => r.Candidate.Header.SequenceEqual(kept.Header) && r.Candidate.Payload.SequenceEqual(kept.Payload)).Select(r => r.Pass);
-        return kept with { Confidence = Unconfirmed(kept.Confidence, witnessPasses, readsClean) };
+        return kept with { Confidence = Unconfirmed(kept.Confidence, witnessPasses, odds) };
     }
 
     /// <summary>A reading whose weak check holds and that nothing but a want of corroboration keeps from being clean.</summary>
@@ -434,7 +451,7 @@ internal sealed class BlockMerge
     /// No valid reading: the payload length most complete readings agree on, a bit vote over the readings of that
     /// length (and the prefixes of readings cut short), then the repair search. Nothing that holds: missing.
     /// </summary>
-    private ImageBlock? ResolveByVote(List<(BlockCandidate Candidate, int Pass)> readings)
+    private ImageBlock? ResolveByVote(List<(BlockCandidate Candidate, int Pass)> readings, PassOdds odds)
     {
         var fallbackIdentity = readings.Select(r => r.Candidate).Where(c => !c.Header.IsEmpty).GroupBy(c => c.Identity.Key).MaxBy(g => g.Count())?.First().Identity
             ?? readings[0].Candidate.Identity;
@@ -499,9 +516,14 @@ internal sealed class BlockMerge
             // The check holds over bytes all alike for free (the scorer's AllAlikeCheck: a run of zeros from a lead-in
             // of zeros is block 0, length 0 and a zero CRC-16/XMODEM), so the search's odds, which count on the check,
             // say nothing. The bytes are only as likely as the readings of them say, each capture a witness, and never
-            // likelier than the vote itself.
+            // likelier than the vote itself; and, as for any content no check proved, each pass that read none of
+            // them weighs against them (a run of zeros inside a block's payload read as a block of its own by one
+            // capture, where the others read the block it lies in).
             var alike = used.Where(r => !r.Candidate.Truncated && FullBytes(r.Candidate, complete: true).AsSpan().SequenceEqual(outcome.Bytes)).ToList();
-            double chance = alike.Count == 0 ? 0 : Math.Min(outcome.Confidence, AnyRight(CaptureWitnesses(alike).Select(w => w.Candidate.Confidence)).Right);
+            double chance = alike.Count == 0 ? 0 : Unconfirmed(
+                Math.Min(outcome.Confidence, AnyRight(CaptureWitnesses(alike).Select(w => w.Candidate.Confidence)).Right),
+                alike.Select(r => r.Pass),
+                odds);
             return chance < MinimumRepairConfidence
                 ? Missing(fallbackIdentity, sources)
                 : ResolveClean(alike, status) with { Confidence = chance };

@@ -56,4 +56,36 @@ public sealed class UnconfirmedPositionTests
         Assert.Equal(RecoveryStatus.Voted, block.Status);
         Assert.Equal(0.9974, block.Confidence, 9);
     }
+
+    [Fact]
+    public void Passes_that_miss_blocks_together_weigh_less_against_a_block_they_missed()
+    {
+        // Five blocks. The first capture reads block 2 only under its weak check and every other block clean; the
+        // other two read blocks 0, 1 and 4 clean and both miss block 3 too: this tape's damage there, which every
+        // capture shares, not each pass's own.
+        MergePass Other(int capture) => Readings.Pass(capture, [
+            Readings.Of(Sum8, Readings.Written(Sum8, 0), 1.0, 0),
+            Readings.Of(Sum8, Readings.Written(Sum8, 1), 2.0, 1),
+            Readings.Of(Sum8, Readings.Written(Sum8, 4), 5.0, 2),
+        ]);
+        var first = Readings.Pass(0, [
+            Readings.Of(Sum8, Readings.Written(Sum8, 0), 1.0, 0),
+            Readings.Of(Sum8, Readings.Written(Sum8, 1), 2.0, 1),
+            Readings.Of(Sum8, Readings.Written(Sum8, 2), 3.0, 2, baseError: 0.2f) with { Status = BlockStatus.Failed, Doubts = BlockDoubts.Uncorroborated, Confidence = 0.9974 },
+            Readings.Of(Sum8, Readings.Written(Sum8, 3), 4.0, 3),
+            Readings.Of(Sum8, Readings.Written(Sum8, 4), 5.0, 4),
+        ]);
+        var image = TapeMerger.Merge([first, Other(1), Other(2)], Sum8);
+
+        var block = image.Blocks.Single(b => b.BlockNumber == 2);
+        Assert.Equal(RecoveryStatus.Voted, block.Status);
+
+        // Each other pass read 3 of the 4 proven blocks, (3 + 1) / (4 + 2): it misses a block at 1/3. But of the pairs of
+        // a pass that missed a proven block and another pass (block 3: the second with the first and the third, the third
+        // with the first and the second), 2 of 4 missed it too, 2 / (4 + 1) = 0.4 with one pair added: a block the
+        // first capture did not read clean either is missed by each of the others at 0.4, and by both at 0.16.
+        double right = 0.9974 * 0.4 * 0.4;
+        Assert.Equal(right / (right + (1 - 0.9974)), block.Confidence, 6);
+        Assert.True(block.Confidence < 0.99, $"a failed position at {block.Confidence}");
+    }
 }
