@@ -226,8 +226,7 @@ public static class Trust
     }
 
     // The shortest file: empty, where the format can write an empty block (not where its length field reads 0 as 256).
-    private static int EmptyFileBytes(FormatProfile profile) =>
-        profile.Layout.PayloadBytes is null && profile.Layout.FieldWithRole(FieldRole.PayloadLength) is { ZeroMeans: not null } ? 1 : 0;
+    private static int EmptyFileBytes(FormatProfile profile) => BlockWriter.LengthWithoutZero(profile.Layout) is null ? 0 : 1;
 
     /// <summary>
     /// A tape's files, of random bytes, runs of zeros, one repeated byte or text, so that blocks of all-equal bytes

@@ -41,10 +41,10 @@ public static class BlockWriter
             int size = layout.PayloadBytes
                 ?? (int?)layout.FieldWithRole(FieldRole.PayloadLength)?.ZeroMeans
                 ?? Math.Min(DefaultPayloadBytes, layout.MaximumPayloadBytes);
-            if (file.Content.Length == 0 && layout.PayloadBytes is null && layout.FieldWithRole(FieldRole.PayloadLength) is { ZeroMeans: { } zeroMeans } lengthField)
+            if (file.Content.Length == 0 && LengthWithoutZero(layout) is { } lengthField)
             {
                 throw new ArgumentException(
-                    $"The file '{file.Name}' is empty, and the format cannot write an empty block: its field '{lengthField.Name}' reads a stored 0 as {zeroMeans}.",
+                    $"The file '{file.Name}' is empty, and the format cannot write an empty block: its field '{lengthField.Name}' reads a stored 0 as {lengthField.ZeroMeans}.",
                     nameof(files));
             }
 
@@ -64,6 +64,16 @@ public static class BlockWriter
         }
 
         return blocks;
+    }
+
+    /// <summary>
+    /// The length field of a layout whose blocks say their own length in a field where a stored 0 stands for a full
+    /// block (0 means 256): no block of it can be empty, so an empty file cannot be written. Null where one can.
+    /// </summary>
+    public static HeaderField? LengthWithoutZero(BlockLayout layout)
+    {
+        ArgumentNullException.ThrowIfNull(layout);
+        return layout.PayloadBytes is null && layout.FieldWithRole(FieldRole.PayloadLength) is { ZeroMeans: not null } field ? field : null;
     }
 
     /// <summary>

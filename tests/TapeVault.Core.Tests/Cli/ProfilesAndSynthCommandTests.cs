@@ -133,4 +133,21 @@ public sealed class ProfilesAndSynthCommandTests : IClassFixture<OutsideTempFold
         Assert.All(best, b => Assert.Equal("clean", b.GetProperty("status").GetString()));
         Assert.Equal(KcsCaptures.Hex(KcsCaptures.Text), KcsCaptures.Hex(File.ReadAllBytes(payload)));
     }
+
+    [Fact]
+    public void Synth_RefusesAnEmptyFileWhereTheLengthFieldReadsAStoredZeroAsAFullBlock()
+    {
+        // one-cycle-bits' length field reads 0 as 256 (the format-language issue's description of the family), so no
+        // block can say it is empty: a usage error (exit 2, one line) rather than a capture that reads back 256 bytes.
+        string empty = temp.File("empty.bin");
+        File.WriteAllBytes(empty, []);
+        string wav = temp.File("synth-empty.wav");
+
+        var synth = CliRun.Run("synth", wav, "--profile", "one-cycle-bits", "--file", empty);
+
+        Assert.True(synth.ExitCode == 2, synth.ToString());
+        Assert.Single(synth.ErrorLines);
+        Assert.Contains("cannot write an empty file", synth.Error, StringComparison.Ordinal);
+        Assert.False(File.Exists(wav));
+    }
 }

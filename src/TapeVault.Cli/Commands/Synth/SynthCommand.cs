@@ -94,6 +94,11 @@ public sealed class SynthCommand : CliCommand
             throw new UsageException($"The folder for {outPath} does not exist.");
         }
 
+        if (bytes.Length == 0 && BlockWriter.LengthWithoutZero(format.Layout) is { } length)
+        {
+            throw new UsageException($"Profile {format.Id} cannot write an empty file: its field '{length.Name}' reads a stored 0 as {length.ZeroMeans}. Give at least one byte.");
+        }
+
         var result = CaptureSynthesizer.Write(path, format, [new TapeFile(fileName, bytes)], damage, sampleEncoding);
         run.Output.WriteLine($"Wrote {path}: {result.Blocks.Count} blocks, {result.TapeSeconds:0.0} s of tape, profile {format.Id}.");
         return 0;
