@@ -113,18 +113,23 @@ public static class RecoveryCorpus
 
     private static ScoredTape ScoreBlocks(DecodedTape tape, TapeImage image)
     {
-        var profile = tape.Profile;
-        int header = profile.Layout.HeaderBytes;
-        int check = ChecksumCatalog.Get(profile.Layout.Checksum!.Algorithm).Width;
-        var truth = BlockWriter.Blocks(profile, tape.Files).Select(b => (Header: b[..header], Payload: b[header..^check])).ToList();
+        // A written block of any kind is its header and payload followed by its check value, and kinds may differ in
+        // header and check width: a reading is that block where its header and payload are the block's bytes before a
+        // check of one of the widths.
+        var truth = BlockWriter.Blocks(tape.Profile, tape.Files);
+        var widths = CheckWidths(tape.Profile);
         bool Find(ReadOnlySpan<byte> h, ReadOnlySpan<byte> p, HashSet<int>? right)
         {
             for (int i = 0; i < truth.Count; i++)
             {
-                if (h.SequenceEqual(truth[i].Header) && p.SequenceEqual(truth[i].Payload))
+                foreach (int w in widths)
                 {
-                    right?.Add(i);
-                    return true;
+                    var block = truth[i].AsSpan();
+                    if (block.Length - w == h.Length + p.Length && block[..h.Length].SequenceEqual(h) && block.Slice(h.Length, p.Length).SequenceEqual(p))
+                    {
+                        right?.Add(i);
+                        return true;
+                    }
                 }
             }
 
@@ -134,6 +139,9 @@ public static class RecoveryCorpus
         // A pass recovers a block alone only where its reading is clean.
         return Tally(tape, image, truth.Count, Find, aloneNeedsClean: true);
     }
+
+    /// <summary>The widths of the check values a block of the profile ends with, one per kind where kinds differ.</summary>
+    internal static List<int> CheckWidths(FormatProfile profile) => [.. profile.BlockKinds.Select(k => BlockLayoutCodec.For(k).CheckBytes).Distinct()];
 
     private static ScoredTape ScoreStream(DecodedTape tape, TapeImage image)
     {

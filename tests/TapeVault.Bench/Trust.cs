@@ -630,7 +630,7 @@ public static class Trust
         }
 
         // A block of any kind, without its check value (kinds may differ in header and check width).
-        var widths = profile.BlockKinds.Select(k => BlockLayoutCodec.For(k).CheckBytes).Distinct().ToList();
+        var widths = RecoveryCorpus.CheckWidths(profile);
         var truth = written.SelectMany(b => widths.Where(w => w <= b.Length).Select(w => Convert.ToHexString(b.AsSpan(0, b.Length - w)))).ToHashSet(StringComparer.Ordinal);
         units = written.Count;
         return (h, p) =>
