@@ -113,35 +113,50 @@ public static class RecoveryCorpus
 
     private static ScoredTape ScoreBlocks(DecodedTape tape, TapeImage image)
     {
-        // A written block of any kind is its header and payload followed by its check value, and kinds may differ in
-        // header and check width: a reading is that block where its header and payload are the block's bytes before a
-        // check of one of the widths.
-        var truth = BlockWriter.Blocks(tape.Profile, tape.Files);
-        var widths = CheckWidths(tape.Profile);
+        var truth = WrittenIndex(tape.Profile, BlockWriter.Blocks(tape.Profile, tape.Files));
         bool Find(ReadOnlySpan<byte> h, ReadOnlySpan<byte> p, HashSet<int>? right)
         {
-            for (int i = 0; i < truth.Count; i++)
+            if (!truth.TryGetValue(HeaderAndPayload(h, p), out int i))
             {
-                foreach (int w in widths)
-                {
-                    var block = truth[i].AsSpan();
-                    if (block.Length - w == h.Length + p.Length && block[..h.Length].SequenceEqual(h) && block.Slice(h.Length, p.Length).SequenceEqual(p))
-                    {
-                        right?.Add(i);
-                        return true;
-                    }
-                }
+                return false;
             }
 
-            return false;
+            right?.Add(i);
+            return true;
         }
 
         // A pass recovers a block alone only where its reading is clean.
         return Tally(tape, image, truth.Count, Find, aloneNeedsClean: true);
     }
 
-    /// <summary>The widths of the check values a block of the profile ends with, one per kind where kinds differ.</summary>
-    internal static List<int> CheckWidths(FormatProfile profile) => [.. profile.BlockKinds.Select(k => BlockLayoutCodec.For(k).CheckBytes).Distinct()];
+    /// <summary>
+    /// Each written block by its header and payload (hex, as <see cref="HeaderAndPayload"/> gives a reading's): a block of
+    /// any kind is those bytes followed by its check value, and kinds may differ in header and check width, so each
+    /// block is keyed without a check of every width the profile's kinds have.
+    /// </summary>
+    internal static Dictionary<string, int> WrittenIndex(FormatProfile profile, IReadOnlyList<byte[]> written)
+    {
+        var widths = profile.BlockKinds.Select(k => BlockLayoutCodec.For(k).CheckBytes).Distinct().ToList();
+        var index = new Dictionary<string, int>(StringComparer.Ordinal);
+        for (int i = 0; i < written.Count; i++)
+        {
+            foreach (int w in widths.Where(w => w <= written[i].Length))
+            {
+                index.TryAdd(Convert.ToHexString(written[i].AsSpan(0, written[i].Length - w)), i);
+            }
+        }
+
+        return index;
+    }
+
+    /// <summary>A reading's header and payload as one key of <see cref="WrittenIndex"/>.</summary>
+    internal static string HeaderAndPayload(ReadOnlySpan<byte> header, ReadOnlySpan<byte> payload)
+    {
+        var joined = new byte[header.Length + payload.Length];
+        header.CopyTo(joined);
+        payload.CopyTo(joined.AsSpan(header.Length));
+        return Convert.ToHexString(joined);
+    }
 
     private static ScoredTape ScoreStream(DecodedTape tape, TapeImage image)
     {

@@ -630,16 +630,9 @@ public static class Trust
         }
 
         // A block of any kind, without its check value (kinds may differ in header and check width).
-        var widths = RecoveryCorpus.CheckWidths(profile);
-        var truth = written.SelectMany(b => widths.Where(w => w <= b.Length).Select(w => Convert.ToHexString(b.AsSpan(0, b.Length - w)))).ToHashSet(StringComparer.Ordinal);
+        var truth = RecoveryCorpus.WrittenIndex(profile, written);
         units = written.Count;
-        return (h, p) =>
-        {
-            var joined = new byte[h.Length + p.Length];
-            h.CopyTo(joined);
-            p.CopyTo(joined.AsSpan(h.Length));
-            return truth.Contains(Convert.ToHexString(joined));
-        };
+        return (h, p) => truth.ContainsKey(RecoveryCorpus.HeaderAndPayload(h, p));
     }
 
     /// <summary>One pass: its capture file, its source and a description of its damage.</summary>
