@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 using TapeVault.Core.Formats;
 
@@ -10,7 +11,9 @@ namespace TapeVault.Core.Blocks;
 /// next loss of signal. The symbol decoders reach it only through <see cref="IBlockSink"/>: they say where a block
 /// begins and on what evidence, hand over each decision (read or guessed) and byte, and say when the signal is lost;
 /// what is missing after a loss of signal is the next block's doubt (it begins on no evidence). <see cref="BlockScorer"/>
-/// judges each finished block.
+/// judges each finished block. Where a block begins inside the data of another (<see cref="BeginInside"/>), a second
+/// assembler of the same setting (<see cref="Alongside"/>) reads it while the first reads on, and the first's check
+/// says which of the two is handed on.
 /// </summary>
 public sealed partial class BlockAssembler : IBlockSink
 {
@@ -34,7 +37,24 @@ public sealed partial class BlockAssembler : IBlockSink
     private int _levelCount;
     private double _speedSum;
     private int _speedCount;
-    private int _ordinal;
+
+    // The order of the blocks read, shared with the assembler alongside.
+    private readonly StrongBox<int> _ordinal;
+    private readonly FormatProfile _profile;
+    private BlockAssembler? _alongside;
+
+    // Where a block was begun inside this one's data (the first such): what this block held there, so that it ends
+    // there if its check does not hold.
+    private Cut? _cut;
+
+    // This block began inside the data of the block alongside, whose check has yet to say whether this one is a block.
+    private bool _awaitsOuter;
+
+    // The block alongside held its check over this one: this one is its data, and is not handed on.
+    private bool _isData;
+
+    // Blocks read inside the block alongside and finished before it: handed on, or dropped, once its check says.
+    private readonly List<BlockCandidate> _held = [];
 
     public BlockAssembler(FormatProfile profile, int settingIndex, string settingName, double sampleRate, List<BlockCandidate> output)
         : this(profile, settingIndex, settingName, sampleRate, (output ?? throw new ArgumentNullException(nameof(output))).Add)
@@ -46,6 +66,8 @@ public sealed partial class BlockAssembler : IBlockSink
     {
         ArgumentNullException.ThrowIfNull(profile);
         ArgumentNullException.ThrowIfNull(finished);
+        _profile = profile;
+        _ordinal = new StrongBox<int>();
         _layout = profile.Layout;
         _scorer = new BlockScorer(_layout, profile.Family, profileId: profile.Id, characterBaud: profile.Fsk?.Baud, characterBits: profile.Framing.BitsPerByte);
         _codec = BlockLayoutCodec.For(_layout);
@@ -58,6 +80,38 @@ public sealed partial class BlockAssembler : IBlockSink
         // A format that marks each block's end on tape: a block is complete at its end marker, not at its layout's length.
         _endMarked = profile.PulseWidth is { EndOfBlock.Count: > 0 };
     }
+
+    // The assembler alongside another: the same setting and output, the same order of blocks.
+    private BlockAssembler(BlockAssembler other)
+        : this(other._profile, other._settingIndex, other._settingName, other._sampleRate, other._finished)
+    {
+        _ordinal = other._ordinal;
+        _alongside = other;
+    }
+
+    /// <summary>The assembler that reads a block begun inside this one's block while this one reads on (made when first asked for).</summary>
+    public IBlockSink Alongside => _alongside ??= new BlockAssembler(this);
+
+    /// <summary>
+    /// A block begins at <paramref name="sample"/> inside the data of the block that <see cref="Alongside"/> reads, and
+    /// both read on by their own lengths. Where that block's check holds, this one is its data and is not handed on;
+    /// where it does not, that block ends at <paramref name="cutSample"/>, holding what it held when this one began.
+    /// </summary>
+    public void BeginInside(double sample, BlockStartEvidence evidence, double cutSample)
+    {
+        var outer = _alongside ?? throw new InvalidOperationException("No block is read alongside this assembler's.");
+        if (!outer.InBlock || InBlock)
+        {
+            throw new InvalidOperationException("A block begins inside another only while that one is read and this assembler is free.");
+        }
+
+        outer._cut ??= outer.CutHere(cutSample);
+        Begin(sample, evidence);
+        _awaitsOuter = true;
+    }
+
+    private Cut CutHere(double sample) =>
+        new(_bytes.Count, Decisions.Count, _framingErrors, _guessedDecisions, _levelSum, _levelCount, _speedSum, _speedCount, sample);
 
     /// <summary>The decisions of the block being read; decoders hand them over through <see cref="AddDecision"/> and <see cref="AddGuessedDecision"/> only.</summary>
     private DecisionLog Decisions { get; } = new();
@@ -74,6 +128,9 @@ public sealed partial class BlockAssembler : IBlockSink
     public void Begin(double sample, BlockStartEvidence evidence)
     {
         InBlock = true;
+        _cut = null;
+        _awaitsOuter = false;
+        _isData = false;
         _startSample = sample;
         _evidence = evidence;
         _bytes.Clear();
@@ -191,6 +248,59 @@ public sealed partial class BlockAssembler : IBlockSink
     private void Emit(double endSample, bool truncated, bool atMarker = false)
     {
         InBlock = false;
+        var reading = Build(endSample, truncated, atMarker);
+        if (_cut is { } cut)
+        {
+            // A block began inside this one. Read by its length, this one holds its check (and is no block's data
+            // itself): what began inside is its data. Else this one ends where the block inside began.
+            _cut = null;
+            bool holds = reading.Status == BlockStatus.Clean && !_isData;
+            if (!holds)
+            {
+                cut.Restore(this);
+                reading = Build(cut.Sample, truncated: !_layout.IsStream, atMarker: false);
+            }
+
+            _alongside!.OuterChecked(holds);
+        }
+
+        if (_isData)
+        {
+            return;
+        }
+
+        if (_awaitsOuter)
+        {
+            _held.Add(reading);
+            return;
+        }
+
+        _finished(reading);
+    }
+
+    // The block alongside, that this one's began inside, is finished: its check held over this one (which is then its
+    // data), or it did not (and this one is a block).
+    private void OuterChecked(bool holds)
+    {
+        if (!holds)
+        {
+            foreach (var held in _held)
+            {
+                _finished(held);
+            }
+        }
+
+        _held.Clear();
+        if (InBlock && _awaitsOuter)
+        {
+            _isData = holds;
+        }
+
+        _awaitsOuter = false;
+    }
+
+    private BlockCandidate Build(double endSample, bool truncated, bool atMarker)
+    {
         var all = _bytes.ToArray();
         var evidence = _evidence;
         int framingErrors = _framingErrors;
@@ -238,11 +348,12 @@ public sealed partial class BlockAssembler : IBlockSink
         }
 
         double level = _levelCount > 0 ? _levelSum / _levelCount : 0;
-        _finished(new BlockCandidate
+        int ordinal = _ordinal.Value++;
+        return new BlockCandidate
         {
             SettingIndex = _settingIndex,
             SettingName = _settingName,
-            Identity = _kinds.Many ? _kinds.Identity(header, _ordinal) : ReadIdentity(_layout, header, _ordinal),
+            Identity = _kinds.Many ? _kinds.Identity(header, ordinal) : ReadIdentity(_layout, header, ordinal),
             Header = [.. header],
             Payload = [.. payload],
             StoredChecksum = score.StoredChecksum,
@@ -267,8 +378,28 @@ public sealed partial class BlockAssembler : IBlockSink
             EndSeconds = endSample / _sampleRate,
             Truncated = truncated,
             SyncCopy = syncCopy,
-        });
-        _ordinal++;
+        };
+    }
+
+    /// <summary>What a block held where another began inside it, and where that was.</summary>
+    private readonly record struct Cut(int Bytes, int Decisions, int FramingErrors, int Guessed, double LevelSum, int LevelCount, double SpeedSum, int SpeedCount, double Sample)
+    {
+        /// <summary>Puts <paramref name="assembler"/>'s block back as it stood here.</summary>
+        public void Restore(BlockAssembler assembler)
+        {
+            int extra = assembler._bytes.Count - Bytes;
+            assembler._bytes.RemoveRange(Bytes, extra);
+            assembler._byteFirstDecision.RemoveRange(Bytes, extra);
+            assembler._byteSample.RemoveRange(Bytes, extra);
+            assembler._byteFramingDoubt.RemoveRange(Bytes, extra);
+            assembler.Decisions.Truncate(Decisions);
+            assembler._framingErrors = FramingErrors;
+            assembler._guessedDecisions = Guessed;
+            assembler._levelSum = LevelSum;
+            assembler._levelCount = LevelCount;
+            assembler._speedSum = SpeedSum;
+            assembler._speedCount = SpeedCount;
+        }
     }
 
     /// <summary>The identity the header's fields give, as far as <paramref name="header"/> holds them whole.</summary>

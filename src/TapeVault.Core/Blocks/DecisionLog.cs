@@ -23,6 +23,14 @@ public sealed class DecisionLog
 
     public void Clear() => Count = 0;
 
+    /// <summary>Keeps the first <paramref name="count"/> decisions only.</summary>
+    public void Truncate(int count)
+    {
+        ArgumentOutOfRangeException.ThrowIfNegative(count);
+        ArgumentOutOfRangeException.ThrowIfGreaterThan(count, Count);
+        Count = count;
+    }
+
     public void Add(float distance, float residual, float scale)
     {
         if (Count == _distance.Length)

@@ -21,6 +21,20 @@ public interface IBlockSink
     void Begin(double sample, BlockStartEvidence evidence);
 
     /// <summary>
+    /// The sink that reads a block begun inside the data of this one's block while that block reads on (and whose
+    /// block this one reads on over when the roles turn): null where blocks are read one at a time.
+    /// </summary>
+    IBlockSink? Alongside { get; }
+
+    /// <summary>
+    /// A block begins at <paramref name="sample"/> inside the data of the block that <see cref="Alongside"/> is reading
+    /// (a gap and a sync read whole there), and both read on, each by its own length. Each one's check chooses: where
+    /// the block read on over this one holds its check, this one is its data, not a block, and is not handed on; where
+    /// it does not, it ends at <paramref name="cutSample"/> (where the gap began) and this one is a block of its own.
+    /// </summary>
+    void BeginInside(double sample, BlockStartEvidence evidence, double cutSample);
+
+    /// <summary>
     /// One decision that was read (pulse class, bit, tone): its distance to the decision boundary, its residual from
     /// the nominal value, and the distance from nominal to the boundary, all in one unit.
     /// </summary>

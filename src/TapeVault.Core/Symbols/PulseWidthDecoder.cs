@@ -14,9 +14,11 @@ namespace TapeVault.Core.Symbols;
 /// bit by bit (a sync byte may begin with the lead-in's own bits), or at its first byte marker. Each bit is a short
 /// sequence of classes; markers before and after each byte and at the end of a block are sequences too. Where the
 /// profile has a block gap, a run as short as the gap, followed by the sync, starts a block without a lead-in; and
-/// the gap and the sync read whole inside a block's data end that block there and begin the next, whatever the first
-/// block's length field said: a length misread (or bits lost to a dropout the block was carried over) must not carry
-/// a block on over the gaps and syncs of the blocks after it.
+/// the gap and the sync read whole inside a block's data begin a block there, read alongside the first, which reads on
+/// by its own length field: a length misread (or bits lost to a dropout the block was carried over) must not carry a
+/// block on over the gaps and syncs of the blocks after it, and a payload may hold the gap's zeros and the sync byte
+/// (zero-filled memory does). Each reading's check chooses (<see cref="IBlockSink.BeginInside"/>). Where the sink
+/// reads one block at a time, the first block ends where the gap begins.
 /// </summary>
 public sealed class PulseWidthDecoder : ISymbolDecoder
 {
@@ -40,8 +42,10 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private readonly double _sampleRate;
     private readonly bool _pairHalves;
     private readonly bool _inert;
-    private readonly IBlockSink _blocks;
-    private readonly SyncByteFramer _framer;
+
+    // The blocks being read: one, and where gaps and syncs are searched inside a block's data and the sink can read a
+    // second block alongside, two. A lane is reading while its sink is in a block.
+    private readonly Lane[] _lanes;
     private readonly int _leadInClass;
     private readonly int[] _sync;
     private readonly int[] _zero;
@@ -70,8 +74,12 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private int _runCount;
     private int _syncIndex;
     private int _patternLength;
-    private int _patternFirstDecision;
-    private int _byteFirstDecision;
+    private long _patternFirstDecision;
+    private long _byteFirstDecision;
+
+    // Decisions taken while reading blocks: every reading lane holds each, at its index less the lane's base.
+    private long _decisions;
+    private long _begins;
     private int _recentInvalid;
     private long _pulsesSeen;
     private long _bitsSeen;
@@ -106,8 +114,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         // edges; a setting that counts one direction sees only sums of two pulses and reads nothing.
         _pairHalves = countsBothEdges && !_encoding.HalfCycles;
         _inert = _encoding.HalfCycles && !countsBothEdges;
-        _blocks = blocks;
-        _framer = new SyncByteFramer(profile.Framing, blocks);
+        ArgumentNullException.ThrowIfNull(blocks);
         _leadInClass = IndexOf(_encoding.LeadInClass);
         _leadIn = LeadInFinder.ForClass(_classifier, _leadInClass, _encoding.ShortestRun);
         _sync = Indices(_encoding.Sync);
@@ -157,6 +164,11 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 _gapSyncBits[c] = bits;
             }
         }
+
+        var alongside = _gapSyncBits.Length > 0 ? blocks.Alongside : null;
+        _lanes = alongside is null
+            ? [new Lane(blocks, new SyncByteFramer(profile.Framing, blocks))]
+            : [new Lane(blocks, new SyncByteFramer(profile.Framing, blocks)), new Lane(alongside, new SyncByteFramer(profile.Framing, alongside))];
     }
 
     private enum Mode
@@ -229,7 +241,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                     // bit may have changed there, so the block carries a guess that its margins would not show.
                     if (_mode == Mode.Data)
                     {
-                        _blocks.AddGuessedDecision();
+                        AddGuessedDecision();
                         _readBitsInRow = 0;
                     }
 
@@ -252,7 +264,10 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _previousClass = -1;
         if (_mode == Mode.Data)
         {
-            _blocks.End(sample);
+            foreach (var lane in _lanes)
+            {
+                lane.Blocks.End(sample);
+            }
         }
 
         _mode = Mode.Hunting;
@@ -365,11 +380,82 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         _phase = Phase.Boundary;
         _patternLength = 0;
         _recentInvalid = 0;
-        _framer.Reset();
         _leadIn.Reset();
         _dataPulses = 0;
         _readBitsInRow = 0;
-        _blocks.Begin(endSample, evidence);
+        var lane = _lanes[0];
+        lane.Framer.Reset();
+        lane.Blocks.Begin(endSample, evidence);
+        Started(lane);
+    }
+
+    // A lane's block has begun (and taken any decisions handed to it alone): the decisions taken from now on are its too.
+    private void Started(Lane lane)
+    {
+        lane.Base = _decisions - lane.Blocks.DecisionCount;
+        lane.Begun = ++_begins;
+    }
+
+    private void AddDecision(PulseDecision d)
+    {
+        _decisions++;
+        foreach (var lane in _lanes)
+        {
+            if (lane.Blocks.InBlock)
+            {
+                lane.Blocks.AddDecision(d.Distance, d.Residual, d.Scale);
+            }
+        }
+    }
+
+    private void AddGuessedDecision()
+    {
+        _decisions++;
+        foreach (var lane in _lanes)
+        {
+            if (lane.Blocks.InBlock)
+            {
+                lane.Blocks.AddGuessedDecision();
+            }
+        }
+    }
+
+    private void NoteFramingError()
+    {
+        foreach (var lane in _lanes)
+        {
+            if (lane.Blocks.InBlock)
+            {
+                lane.Framer.NoteFramingError();
+            }
+        }
+    }
+
+    private void EndAtMarker(double endSample, bool asWritten = true)
+    {
+        foreach (var lane in _lanes)
+        {
+            lane.Blocks.EndAtMarker(endSample, asWritten);
+        }
+    }
+
+    // The framer of the block begun first among those being read: the one whose bytes the markers around bytes frame
+    // (where a second block is read alongside, the format has no such markers and every pulse is a bit).
+    private SyncByteFramer Framer
+    {
+        get
+        {
+            Lane? first = null;
+            foreach (var lane in _lanes)
+            {
+                if (lane.Blocks.InBlock && (first is null || lane.Begun < first.Begun))
+                {
+                    first = lane;
+                }
+            }
+
+            return (first ?? _lanes[0]).Framer;
+        }
     }
 
     private void RecordPulse(PulseDecision decision)
@@ -467,24 +553,32 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private void BeginAtSyncBits(bool[] bits, double endSample)
     {
         StartData(endSample, RunEvidence(synced: true));
+        HandSyncBits(_lanes[0], bits, endSample);
+        _phase = _lanes[0].Framer.AtByteStart ? Phase.Boundary : Phase.Bits;
+        _patternLength = 0;
+    }
+
+    // The sync's bits, the last read, to the lane whose block begins with them, each bit with its own pulses' decisions
+    // (a block read alongside took them already as its data's).
+    private void HandSyncBits(Lane lane, bool[] bits, double endSample)
+    {
         long first = _bitsSeen - bits.Length;
         for (int i = 0; i < bits.Length; i++)
         {
             long bit = first + i;
             long pulseStart = _ringBitFirstPulse[bit % RingBits];
             long pulseEnd = bit + 1 < _bitsSeen ? _ringBitFirstPulse[(bit + 1) % RingBits] : _pulsesSeen;
-            int decisionIndex = _blocks.DecisionCount;
+            int decisionIndex = lane.Blocks.DecisionCount;
             for (long p = pulseStart; p < pulseEnd; p++)
             {
                 var d = _ringPulse[p % RingPulses];
-                _blocks.AddDecision(d.Distance, d.Residual, d.Scale);
+                lane.Blocks.AddDecision(d.Distance, d.Residual, d.Scale);
             }
 
-            _framer.AddBit(bits[i], decisionIndex, endSample);
+            lane.Framer.AddBit(bits[i], decisionIndex, endSample);
         }
 
-        _phase = _framer.AtByteStart ? Phase.Boundary : Phase.Bits;
-        _patternLength = 0;
+        Started(lane);
     }
 
     private void Remember(double seconds, int pulseClass)
@@ -496,7 +590,14 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     /// <summary>A pulse of a block's data: classified (data pulses alone need the distances, a logarithm each), its shared edge checked, decided.</summary>
     private void DataPulse(double seconds, double endSample, float level)
     {
-        _blocks.NoteLevel(level);
+        foreach (var lane in _lanes)
+        {
+            if (lane.Blocks.InBlock)
+            {
+                lane.Blocks.NoteLevel(level);
+            }
+        }
+
         var decision = _classifier.Classify(seconds, _speed.Speed);
         double moved = _previousClass >= 0 ? (_previousSeconds * _speed.Speed) - _classifier.NominalSeconds(_previousClass) : 0;
 
@@ -568,12 +669,12 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     {
         if (_patternLength == 0)
         {
-            _patternFirstDecision = _blocks.DecisionCount;
+            _patternFirstDecision = _decisions;
         }
 
         if (!decision.IsValid)
         {
-            _blocks.AddGuessedDecision();
+            AddGuessedDecision();
             if (++_recentInvalid >= InvalidPulsesToLoseBlock)
             {
                 LoseSignal(endSample);
@@ -585,7 +686,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         }
 
         _recentInvalid = Math.Max(0, _recentInvalid - 1);
-        _blocks.AddDecision(decision.Distance, decision.Residual, decision.Scale);
+        AddDecision(decision);
         if (_gapSyncBits.Length > 0)
         {
             RecordPulse(decision);
@@ -596,7 +697,14 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             _speed.Track(seconds, _classifier.NominalSeconds(decision.Class));
         }
 
-        _blocks.NoteSpeed(_speed.Speed);
+        foreach (var lane in _lanes)
+        {
+            if (lane.Blocks.InBlock)
+            {
+                lane.Blocks.NoteSpeed(_speed.Speed);
+            }
+        }
+
         _pattern[_patternLength++] = decision.Class;
         switch (_phase)
         {
@@ -612,7 +720,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
                 else if (!IsPrefixOf(_after))
                 {
                     // Not the marker the format writes after a byte: a framing error on the next byte, read on.
-                    _framer.NoteFramingError();
+                    NoteFramingError();
                     _patternLength = 0;
                     _phase = Phase.Boundary;
                 }
@@ -629,7 +737,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         if (_end.Length > 0 && Matches(_end))
         {
             // The block's end, as the format marks it.
-            _blocks.EndAtMarker(endSample);
+            EndAtMarker(endSample);
             _mode = Mode.Hunting;
             _leadIn.Reset();
             return;
@@ -641,7 +749,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             {
                 // A lead-in pulse where a marker should be: the block ended without its end marker (or was cut), and
                 // the next lead-in begins here. Where the format writes an end marker, its absence is a framing error.
-                _blocks.EndAtMarker(endSample, asWritten: _end.Length == 0);
+                EndAtMarker(endSample, asWritten: _end.Length == 0);
                 _mode = Mode.Hunting;
                 _leadIn.Reset();
                 _leadIn.Add(seconds);
@@ -657,8 +765,8 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             else if (!IsPrefixOf(_before) && !(_end.Length > 0 && IsPrefixOf(_end)))
             {
                 // No marker begins like this: take it for the marker, a guess with no margin and a framing error.
-                _blocks.AddGuessedDecision();
-                _framer.NoteFramingError();
+                AddGuessedDecision();
+                NoteFramingError();
                 _byteFirstDecision = _patternFirstDecision;
                 _patternLength = 0;
                 _phase = Phase.Bits;
@@ -691,7 +799,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         else if (!IsPrefixOf(_zero) && !IsPrefixOf(_one))
         {
             // No bit begins like this: the decision nearest a bit is a guess with no margin.
-            _blocks.AddGuessedDecision();
+            AddGuessedDecision();
             CompleteBit(GuessBit(decision), endSample, read: false);
         }
     }
@@ -702,13 +810,13 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         switch (_phase)
         {
             case Phase.Boundary when _before.Length > 0:
-                _framer.NoteFramingError();
+                NoteFramingError();
                 _byteFirstDecision = _patternFirstDecision;
                 _patternLength = 0;
                 _phase = Phase.Bits;
                 break;
             case Phase.After:
-                _framer.NoteFramingError();
+                NoteFramingError();
                 _patternLength = 0;
                 _phase = Phase.Boundary;
                 break;
@@ -737,56 +845,107 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
     private void CompleteBit(bool bit, double endSample, bool read)
     {
-        // A byte's decisions begin with the marker before it.
-        int firstDecision = _framer.AtByteStart ? _byteFirstDecision : _patternFirstDecision;
-        if (_gapSyncBits.Length > 0 && BeginsNextBlock(bit, endSample, read))
+        // A byte's decisions begin with the marker before it; without such markers, with its first bit.
+        long byteFirst = _byteFirstDecision;
+        long patternFirst = _patternFirstDecision;
+        int gapSync = _gapSyncBits.Length > 0 ? GapSyncEndingHere(bit, endSample, read) : -1;
+        _patternLength = 0;
+        double gapStart = 0;
+        if (gapSync >= 0)
         {
+            // Where no lane is free, the block begun last (inside the other's data, or the only one) ends where the
+            // gap's first bit ended: its data cannot run on over the next block's gap.
+            gapStart = _ringBitEnd[(_bitsSeen - _gapSyncBits[gapSync].Length) % RingBits];
+            if (FreeLane() is null)
+            {
+                NewestLane().Blocks.End(gapStart);
+            }
+        }
+
+        bool reading = false;
+        foreach (var lane in _lanes)
+        {
+            if (lane.Blocks.InBlock)
+            {
+                long first = _before.Length > 0 && lane.Framer.AtByteStart ? byteFirst : patternFirst;
+                bool complete = lane.Framer.AddBit(bit, (int)(first - lane.Base), endSample);
+                reading |= !complete && lane.Blocks.InBlock;
+            }
+        }
+
+        if (gapSync >= 0)
+        {
+            // The gap is the run before the sync: as long as the format's gap, which says what evidence it is.
+            _runCount = _encoding.BlockGap;
+            if (reading)
+            {
+                // A block read on by its length holds these bits as data: the next is read alongside it from the sync.
+                var lane = FreeLane()!;
+                lane.Framer.Reset();
+                lane.Blocks.BeginInside(endSample, RunEvidence(synced: true), gapStart);
+                HandSyncBits(lane, _syncBits[gapSync], endSample);
+                _readBitsInRow = 0;
+            }
+            else
+            {
+                BeginAtSyncBits(_syncBits[gapSync], endSample);
+            }
+
             return;
         }
 
-        _patternLength = 0;
-        if (_framer.AddBit(bit, firstDecision, endSample))
+        if (!reading)
         {
             _mode = Mode.Hunting;
             _leadIn.Reset();
             return;
         }
 
-        if (_framer.AtByteStart)
+        if (Framer.AtByteStart)
         {
             _phase = _after.Length > 0 ? Phase.After : Phase.Boundary;
         }
     }
 
+    private Lane? FreeLane() => Array.Find(_lanes, l => !l.Blocks.InBlock);
+
+    private Lane NewestLane()
+    {
+        Lane? newest = null;
+        foreach (var lane in _lanes)
+        {
+            if (lane.Blocks.InBlock && (newest is null || lane.Begun > newest.Begun))
+            {
+                newest = lane;
+            }
+        }
+
+        return newest ?? _lanes[0];
+    }
+
     /// <summary>
-    /// Records a bit of a block's data and, where it completes the gap and a sync read whole (every bit of them read,
-    /// none guessed), ends the block before the gap and begins the next at the sync. Returns whether it did.
+    /// Records a bit of a block's data; where it completes the gap and a sync read whole (every bit of them read, none
+    /// guessed), returns which sync (else -1).
     /// </summary>
-    private bool BeginsNextBlock(bool bit, double endSample, bool read)
+    private int GapSyncEndingHere(bool bit, double endSample, bool read)
     {
         if (!read)
         {
             _readBitsInRow = 0;
-            return false;
+            return -1;
         }
 
         RecordBit(bit, _pulsesSeen - _patternLength, endSample);
         _readBitsInRow++;
         for (int c = 0; c < _gapSyncBits.Length; c++)
         {
-            var gapSync = _gapSyncBits[c];
-            if (_readBitsInRow >= gapSync.Length && EndsWith(gapSync))
+            if (_readBitsInRow >= _gapSyncBits[c].Length && EndsWith(_gapSyncBits[c]))
             {
-                // The block ends where the gap's first bit ended: its data cannot run on over the next block's gap.
-                // The gap is the run before the sync: as long as the format's gap, which says what evidence it is.
-                _blocks.End(_ringBitEnd[(_bitsSeen - gapSync.Length) % RingBits]);
-                _runCount = _encoding.BlockGap;
-                BeginAtSyncBits(_syncBits[c], endSample);
-                return true;
+                return c;
             }
         }
 
-        return false;
+        return -1;
     }
 
     private bool Matches(int[] sequence) => sequence.Length > 0 && _patternLength == sequence.Length && IsPrefixOf(sequence);
@@ -831,5 +990,19 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         }
 
         return result;
+    }
+
+    /// <summary>One block being read: where its bytes go, its framer, and how its decisions' indices stand to all taken.</summary>
+    private sealed class Lane(IBlockSink blocks, SyncByteFramer framer)
+    {
+        public IBlockSink Blocks { get; } = blocks;
+
+        public SyncByteFramer Framer { get; } = framer;
+
+        /// <summary>The count of all decisions taken when this lane's block began: its index of a decision is the overall index less this.</summary>
+        public long Base { get; set; }
+
+        /// <summary>When the block began, in order among all begun (larger is later).</summary>
+        public long Begun { get; set; }
     }
 }

@@ -103,6 +103,11 @@ public sealed class BlockSinkTests : IClassFixture<OutsideTempFolder>
             InBlock = true;
         }
 
+        public IBlockSink? Alongside => null;
+
+        public void BeginInside(double sample, BlockStartEvidence evidence, double cutSample) =>
+            throw new InvalidOperationException("This sink reads one block at a time.");
+
         public void AddDecision(float distance, float residual, float scale) => Decisions++;
 
         public void AddGuessedDecision()

@@ -63,6 +63,62 @@ public sealed class GapSyncAfterLengthRunOnTests(RoundTripFolder folder, ITestOu
         AssertBlocksAfterTheDamageAreClean(CaptureDecoder.Decode(damaged, Profile));
     }
 
+    [Theory]
+    [InlineData("none")]
+    [InlineData("speed 0.95, highpass 120")]
+    [InlineData("lowpass 4500, gain -n -6, 8-bit")]
+    public void A_payload_that_holds_the_gap_and_the_sync_is_read_whole_by_its_length(string effects)
+    {
+        // The second file's payload holds four zero bytes and then the sync byte (zero-filled memory followed by that
+        // byte): read bit by bit, exactly the gap's 32 zeros and the sync that begin a block. The block is whole on the
+        // tape and its length field is right: it must read clean, and what its payload holds must not become a
+        // position of its own. Our synthesiser writes the blocks; SoX (the outside reference for the damage) plays
+        // them off speed, filters them and re-quantises them.
+        var written = BlockWriter.Blocks(Profile, [new TapeFile("F0", Content(0)), new TapeFile("ZEROS", ZeroRunThenSync()), new TapeFile("F2", Content(2))]);
+        string clean = folder.NewCapture("gap-sync-in-payload");
+        CaptureSynthesizer.WriteBlocks(clean, Profile, written, new ChannelDamage { Seed = 73, SnrDb = 30 });
+        string damaged = folder.NewCapture("gap-sync-in-payload-damaged");
+        switch (effects)
+        {
+            case "none":
+                damaged = clean;
+                break;
+            case "speed 0.95, highpass 120":
+                OutsideTool.Sox(clean, damaged, "speed", "0.95", "highpass", "120");
+                break;
+            case "lowpass 4500, gain -n -6, 8-bit":
+                OutsideTool.Sox(clean, "-b", "8", damaged, "lowpass", "4500", "gain", "-n", "-6");
+                Assert.Equal("8", OutsideTool.SoxInfo("-b", damaged));
+                break;
+            default:
+                throw new ArgumentOutOfRangeException(nameof(effects), effects, "Unknown damage.");
+        }
+
+        var result = CaptureDecoder.Decode(damaged, Profile);
+        output.WriteLine(RoundTrips.Describe(result));
+        var truth = RoundTrips.Truth(Profile, written);
+        foreach (var c in result.Candidates.Where(c => c.Status == BlockStatus.Clean))
+        {
+            Assert.True(truth.Exists(t => t.Matches(c)), $"{c.SettingName} read a clean block {c.Identity} at {c.StartSeconds:0.000} s that was never written.");
+        }
+
+        // Every written block reads clean, each at a position of its own, and there is no other position.
+        Assert.Equal(truth.Count, result.Best.Count);
+        for (int block = 0; block < truth.Count; block++)
+        {
+            Assert.True(result.Best[block].Status == BlockStatus.Clean && truth[block].Matches(result.Best[block]), $"block {block} is not read clean at its position: {RoundTrips.Describe(result)}");
+        }
+    }
+
+    // A payload of 60 bytes whose bytes 20 to 23 are zero and byte 24 the profile's sync byte.
+    private static byte[] ZeroRunThenSync()
+    {
+        var content = Content(1)[..30].Concat(Content(3)[..30]).ToArray();
+        Array.Clear(content, 20, 4);
+        content[24] = BlockLayoutCodec.For(Profile.Layout).SyncField!.Expected[0][0];
+        return content;
+    }
+
     // The written blocks with the first one's length byte (after the sync, the 8-byte name and the block number) at 200.
     private static byte[][] LengthClaimsMore()
     {
