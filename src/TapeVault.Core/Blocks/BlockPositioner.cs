@@ -51,6 +51,7 @@ public static partial class BlockPositioner
         var inputOf = new List<int>(candidates.Count);
         var anchors = new List<(int Reading, BlockCandidate Clean)>();
         var headersRead = copies > 1 ? HeadersRead(candidates) : null;
+        var named = NamedStarts(candidates);
         foreach (int index in Enumerable.Range(0, candidates.Count).OrderBy(i => candidates[i].StartSeconds))
         {
             var c = candidates[index];
@@ -84,10 +85,14 @@ public static partial class BlockPositioner
 
                 // A header that another setting read alike at the same sync names its own block: it does not take
                 // the identity of a clean neighbour whose header differs from it in a byte or two (the next file's
-                // name, the next block number).
+                // name, the next block number). Nor does a reading that names nothing where two other settings'
+                // readings from the same sync name one block alike: it is a reading of that place, whatever is clean
+                // nearby.
+                bool placeNamed = !NamesItself(c) && NamedAtSync(named, c);
                 key = overlapping?.Identity.Key
-                    ?? (copies > 1 && !(NamesItself(c) && ReadAlikeElsewhere(c, headersRead)) ? FindNeighbouringCopy(trusted, c, copies, copyGap)?.Identity.Key : null)
-                    ?? (c.Truncated && c.Payload.IsEmpty && !NamesItself(c) ? FindNearest(trusted, c, copies, copyGap)?.Identity.Key : null)
+                    ?? (copies > 1 ? FindCopyOfPartial(trusted, c, copies, copyGap)?.Identity.Key : null)
+                    ?? (copies > 1 && !placeNamed && !(NamesItself(c) && ReadAlikeElsewhere(c, headersRead)) ? FindNeighbouringCopy(trusted, c, copies, copyGap)?.Identity.Key : null)
+                    ?? (c.Truncated && c.Payload.IsEmpty && !NamesItself(c) && !placeNamed ? FindNearest(trusted, c, copies, copyGap)?.Identity.Key : null)
                     ?? string.Empty;
             }
 
@@ -288,6 +293,85 @@ public static partial class BlockPositioner
             if (setting != c.SettingIndex && Math.Abs(start - c.StartSeconds) <= SyncSeconds)
             {
                 return true;
+            }
+        }
+
+        return false;
+    }
+
+    /// <summary>
+    /// For a reading cut short inside its header after a field that names its block but before its block number: the
+    /// clean block within reach of a copy of it whose identity agrees with every field the reading has, where only one
+    /// block does. Such a reading names its file, not which block of the file; the clean copy beside it does.
+    /// </summary>
+    private static BlockCandidate? FindCopyOfPartial(List<BlockCandidate> trusted, BlockCandidate c, int copies, double? copyGap)
+    {
+        var read = c.Identity;
+        if (!c.Truncated || !c.Payload.IsEmpty || read.BlockNumber is not null || (read.FileName is null && read.FileId is null))
+        {
+            return null;
+        }
+
+        BlockCandidate? found = null;
+        double length = Math.Max(c.EndSeconds - c.StartSeconds, 0.1);
+        foreach (var t in trusted)
+        {
+            double reach = 2 * Math.Max(length, t.EndSeconds - t.StartSeconds) + 0.5;
+            if (t.StartSeconds > c.EndSeconds + reach)
+            {
+                break;
+            }
+
+            bool agrees = t.Identity.BlockNumber is not null
+                && (read.FileName is null || read.FileName == t.Identity.FileName)
+                && (read.FileId is null || read.FileId == t.Identity.FileId);
+            if (!agrees || t.EndSeconds < c.StartSeconds - reach || !WithinCopies(t, c, copies, copyGap))
+            {
+                continue;
+            }
+
+            if (found is not null && found.Identity.Key != t.Identity.Key)
+            {
+                return null;
+            }
+
+            found = t;
+        }
+
+        return found;
+    }
+
+    /// <summary>The starts, settings and identities of the readings that name a block, in order of start.</summary>
+    private static List<(double Start, int Setting, string Key)> NamedStarts(IReadOnlyList<BlockCandidate> candidates)
+    {
+        var named = new List<(double Start, int Setting, string Key)>();
+        foreach (var c in candidates)
+        {
+            if (NamesItself(c))
+            {
+                named.Add((c.StartSeconds, c.SettingIndex, c.Identity.Key));
+            }
+        }
+
+        named.Sort((a, b) => a.Start.CompareTo(b.Start));
+        return named;
+    }
+
+    /// <summary>
+    /// Whether two settings' readings that start at the sync of <paramref name="c"/> name one block alike (one setting's
+    /// garbled header names nothing that anyone can vouch for).
+    /// </summary>
+    private static bool NamedAtSync(List<(double Start, int Setting, string Key)> named, BlockCandidate c)
+    {
+        int from = LowerBound(named.Count, i => named[i].Start >= c.StartSeconds - SyncSeconds);
+        for (int i = from; i < named.Count && named[i].Start <= c.StartSeconds + SyncSeconds; i++)
+        {
+            for (int j = i + 1; j < named.Count && named[j].Start <= c.StartSeconds + SyncSeconds; j++)
+            {
+                if (named[j].Setting != named[i].Setting && named[j].Key == named[i].Key)
+                {
+                    return true;
+                }
             }
         }
 

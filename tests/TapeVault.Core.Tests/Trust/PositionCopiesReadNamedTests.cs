@@ -1,0 +1,59 @@
+using Xunit;
+
+namespace TapeVault.Core.Tests.Trust;
+
+/// <summary>
+/// Positions of the copies of a block that readings name only in part, or that no setting read clean, checked against
+/// where each copy of each block was written. Readings cut short at a sync before any field that names a block are
+/// readings of that place, like the readings of other settings that start there and name it alike: they must not take
+/// the identity of a clean block nearby, which would carry the copy's place into that block's position. And a copy read
+/// only as far as its file's name (not which block of the file) is the copy of the clean block beside it whose
+/// identity agrees, where only one does. The cases are readings the trust benchmark saved (`TAPEVAULT_TRUST_CANDIDATES=folder`: one pass of our channel model, its readings
+/// by every setting, the blocks written, and where the synthesiser wrote each copy, on the capture's time base).
+/// </summary>
+public sealed class PositionCopiesReadNamedTests
+{
+    [Fact]
+    public void The_copies_of_a_block_read_named_but_never_clean_are_one_position()
+    {
+        // three-class-pairs, tuning seed 15002, pass 2 (our channel model), the readings that start from block 28 to the
+        // first copy of block 31. Block 29 (a data block) is read at both copies by three settings that name it and stop
+        // a few bytes into its payload; the other settings stop inside the countdown and name nothing. Blocks 28 and 30
+        // are read clean, both copies. Before, block 29's copies were two positions: the cut readings at each copy's
+        // sync took the identity of the clean block nearest to them (28 before the first copy, 30 after the second).
+        var (capture, placed) = SavedCapture.PlaceAgain("three-class-pairs-data-copies-cut-one-pass.json");
+
+        var positionsOf = placed.Where(c => capture.WrittenAt(c) is not null)
+            .GroupBy(c => capture.WrittenAt(c)!.Value.Block)
+            .ToDictionary(g => g.Key, g => g.Select(c => c.Position).Distinct().ToList());
+        Assert.Contains(29, positionsOf.Keys);
+        foreach (var (block, positions) in positionsOf)
+        {
+            Assert.True(positions.Count == 1, $"block {block}'s readings lie in positions {string.Join(", ", positions)}");
+        }
+
+        // One position per block: no two blocks share one.
+        Assert.Equal(positionsOf.Count, positionsOf.Values.Select(p => p[0]).Distinct().Count());
+    }
+
+    [Fact]
+    public void A_copy_read_as_far_as_its_file_name_is_the_position_of_the_clean_copy_beside_it()
+    {
+        // orrin-80, tuning seed 15001, pass 0 (our channel model), the readings that start from block 9 to the first copy
+        // of block 12. Block 10's first copy is read clean; at its second copy four settings lose the signal after the
+        // file's name, before the block number. Before, that copy was a position of its own (its file name read alike by
+        // four settings kept it from the clean copy's identity).
+        var (capture, placed) = SavedCapture.PlaceAgain("orrin-80-copy-cut-after-file-name-one-pass.json");
+
+        var positionsOf = placed.Where(c => capture.WrittenAt(c) is not null)
+            .GroupBy(c => capture.WrittenAt(c)!.Value.Block)
+            .ToDictionary(g => g.Key, g => g.Select(c => c.Position).Distinct().ToList());
+        Assert.Contains(10, positionsOf.Keys);
+        foreach (var (block, positions) in positionsOf)
+        {
+            Assert.True(positions.Count == 1, $"block {block}'s readings lie in positions {string.Join(", ", positions)}");
+        }
+
+        Assert.Equal(positionsOf.Count, positionsOf.Values.Select(p => p[0]).Distinct().Count());
+    }
+}
