@@ -48,7 +48,10 @@ public static class ProfileDrafter
 
             // A family that fits the intervals may still read nothing (biphase's half and whole cells look like two
             // tones): its reason is kept, and the family is tried through the next setting's survey where that one
-            // sees the family otherwise (other groups or runs), then the next family.
+            // sees the family otherwise (other groups or runs), then the next family. A reading no check value
+            // proves gives way to the next survey's too (a setting that loses some of a preamble's edges reads its
+            // blocks with no check holding, where one that keeps them finds the check): the first proven reading
+            // is drafted, else the first reading.
             FamilyProposal? proposal = null;
             FamilyScore score = scores[rank].Score;
             var seen = new HashSet<string>();
@@ -60,18 +63,23 @@ public static class ProfileDrafter
                     continue;
                 }
 
+                FamilyProposal? reading = null;
                 try
                 {
-                    proposal = drafter.Draft(through, cancellation);
+                    reading = drafter.Draft(through, cancellation);
                 }
                 catch (ProfileDraftException e)
                 {
                     refusals.Add(e.Message);
                 }
 
-                if (proposal is not null)
+                if (reading is not null && (proposal is null || CheckMeasured(reading)))
                 {
-                    score = fit;
+                    (proposal, score) = (reading, fit);
+                }
+
+                if (proposal is not null && CheckMeasured(proposal))
+                {
                     break;
                 }
             }
@@ -128,7 +136,7 @@ public static class ProfileDrafter
             // A check that holds in both bit orders (its finding a guess) proves nothing about the family: a reflected
             // CRC over bit-reversed bytes is another CRC, and another family's reading of a tone pair finds such pairs.
             double runnerUp = rivals.Select(d => d.Reading).DefaultIfEmpty(0).Max();
-            bool checkMeasured = chosen.Proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed);
+            bool checkMeasured = CheckMeasured(chosen.Proposal);
             bool beyondChance = chosen.Proposal.StronglyProven || (checkMeasured && chosen.Check.Clean >= 3 && chosen.Reading >= 3 * runnerUp);
             familyConfidence = chosen.Reading > 2 * runnerUp && beyondChance ? 0.97 : 0.6;
             familyEvidence = familyConfidence >= 0.97
@@ -145,6 +153,9 @@ public static class ProfileDrafter
         refusals.AddRange(rivals.Select(d => $"The {d.Drafter.Family} draft reads {d.Check.Positions} block(s) of the stretch, its check holding on {d.Check.Clean}."));
         return Assemble(stretch, chosen.Drafter.Family, familyConfidence, chosen.Score with { Evidence = chosen.Score.Evidence + familyEvidence }, chosen.Proposal, allScores, refusals);
     }
+
+    /// <summary>Whether a reading's check value was measured (found holding in one bit order), not guessed or absent.</summary>
+    private static bool CheckMeasured(FamilyProposal proposal) => proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed);
 
     /// <summary>The most surveys (one a setting that counts both edges) a family is drafted through before the next family is tried.</summary>
     public const int MostSurveys = 3;

@@ -277,6 +277,14 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             return null;
         }
 
+        // The lead-in's last cycle, lengthened by the long sync pulse after it, may read as a class of its own that
+        // every block begins with: it is the lead-in's, and the read path, which times that cycle otherwise, finds
+        // no sync that begins with it.
+        int stretched = StretchedLeadInCycles(reading.Sync, leadIn, reading.Mapping, classesFound);
+        string stretchedEvidence = stretched == 0 ? string.Empty
+            : $"; the {Us(classesFound[reading.Sync[0]].Seconds)} µs cycle every block begins with is the lead-in's last cycle ({Us(classesFound[leadIn].Seconds)} µs) lengthened by the sync pulse after it (no class lies between them, no bit uses it): left out of the sync";
+        reading = reading with { Sync = reading.Sync[stretched..] };
+
         // Only the classes the reading uses (bits, lead-in, sync) go into the profile: a rare group of noise or
         // dropout edges written as a class would take pulses from the classes beside it when the profile reads.
         // Where no check proves the reading, every class stays: the curator's bit mapping may need the others.
@@ -332,7 +340,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         proposal.Measured("pulseWidth.zero", names[reading.Mapping.ZeroSymbol], proven ? 0.9 : 0.5, bitEvidence);
         proposal.Measured("pulseWidth.one", names[reading.Mapping.OneSymbol], proven ? 0.9 : 0.5, bitEvidence);
         proposal.Measured("pulseWidth.sync", string.Join(" ", sync), proven ? 0.9 : 0.4,
-            $"{blocks.Count} blocks begin alike for {reading.CommonPrefix} cycles after their lead-in; " + (proven ? "the check value holds when bytes start after this sync" : "the shortest sync whose framing holds is drafted"));
+            $"{blocks.Count} blocks begin alike for {reading.CommonPrefix} cycles after their lead-in; " + (proven ? "the check value holds when bytes start after this sync" : "the shortest sync whose framing holds is drafted") + stretchedEvidence);
         Framing(proposal, reading.Framing, proven, reading.FramingShare, proven && !reading.OrderAmbiguous, OrderEvidence(reading));
         Layout(proposal, reading.Layout);
         AmbiguousOrder(proposal, reading);
@@ -344,6 +352,40 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         proposal.Notes.Add($"Read through detector setting {setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync, mapping and framing held.");
         return proposal;
     }
+
+    /// <summary>
+    /// How many of the sync's first cycles are the lead-in's last cycle read long: a cycle before a long pulse reads
+    /// longer (neighbouring transitions crowd one another's read-back pulses: Mee and Daniel, <i>Magnetic Recording
+    /// Technology</i>), so a setting may time the lead-in's last cycle as a group of its own just above the lead-in
+    /// class, which every block then begins with. Such a cycle is in the sync only where it is the class next above the
+    /// lead-in's, within <see cref="StretchedLeadIn"/> of it, no bit and nothing later in the sync uses it, and a
+    /// cycle of the sync is left after it.
+    /// </summary>
+    internal static int StretchedLeadInCycles(IReadOnlyList<int> sync, int leadIn, BitMapping mapping, IReadOnlyList<IntervalCluster> classes)
+    {
+        ArgumentNullException.ThrowIfNull(sync);
+        ArgumentNullException.ThrowIfNull(mapping);
+        ArgumentNullException.ThrowIfNull(classes);
+        double lead = classes[leadIn].Seconds;
+        int n = 0;
+        while (n < sync.Count - 1)
+        {
+            int c = sync[n];
+            double length = classes[c].Seconds;
+            bool nextAbove = classes.All(k => k.Seconds <= lead || k.Seconds >= length);
+            if (c == leadIn || mapping.Bit(c) >= 0 || sync.Skip(n + 1).Contains(c) || length <= lead || length > StretchedLeadIn * lead || !nextAbove)
+            {
+                break;
+            }
+
+            n++;
+        }
+
+        return n;
+    }
+
+    /// <summary>How much longer than a lead-in cycle (as a ratio) its last one may read before a long sync pulse.</summary>
+    private const double StretchedLeadIn = 1.4;
 
     /// <summary>
     /// Plain bytes (no start, stop or parity bits) after a sync whose pulses are bits, where the lead-in's pulses
