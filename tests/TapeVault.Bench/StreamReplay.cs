@@ -11,7 +11,8 @@ namespace TapeVault.Bench;
 /// The stream merge on readings already made: with TAPEVAULT_TRUST_STREAMS set to a folder, the trust bench saves every
 /// stream tape's passes there (one JSON file per tape: the files written and each capture's readings); <c>stream-merge
 /// --streams FOLDER [--dump FILE]</c> merges them again with the merge of this build and reports, per profile, the
-/// merged positions, those wrong at 0.99 or more, the log-likelihood of right and wrong under the confidences (what a fit of the merge's constants maximises), the ECE (10 equal bins), the exact images and the reliability bins.
+/// merged positions, those wrong at 0.99 or more, the log-likelihood of right and wrong under the confidences (what a fit of the merge's constants maximises), the ECE (10 equal bins), the exact images and the reliability bins,
+/// and how much such an ECE can show on so few tapes (<see cref="EceSpread"/>).
 /// Decoding is by far the slow part of the trust bench, so this is how a change to the stream merge is tried; the
 /// figures are the trust bench's own for the same tapes (the same judges: <see cref="RecoveryCorpus.Place"/> for merged
 /// segments, <see cref="StreamPlaces"/> for single readings). With --reads FILE every single reading is written as the
@@ -41,6 +42,40 @@ public static class StreamReplay
         File.WriteAllText(Path.Combine(s_folder, $"{profile.Id}-{seed}.json"), JsonSerializer.Serialize(saved, s_json));
     }
 
+    /// <summary>
+    /// How far the ECE of a few hundred merged positions says anything: the mean ECE if each position were right with
+    /// exactly the chance its confidence claims (outcomes drawn <see cref="SpreadDraws"/> times), and the 10th and 90th
+    /// percentile of the ECE over sets of the same number of tapes drawn again from these (a tape's positions together: a
+    /// damaged tape gives many alike). Seeded, so a run prints the same figures.
+    /// </summary>
+    private static (double Floor, double Low, double High) EceSpread(List<(int Tape, double Confidence, bool Right)> items)
+    {
+        var random = new Random(1);
+        double floor = 0;
+        for (int d = 0; d < SpreadDraws; d++)
+        {
+            floor += Calibration.EqualBinEce([.. items.Select(i => (i.Confidence, random.NextDouble() < i.Confidence))]);
+        }
+
+        var tapes = items.GroupBy(i => i.Tape).Select(g => g.Select(i => (i.Confidence, i.Right)).ToList()).ToList();
+        var drawn = new List<double>(SpreadDraws);
+        for (int d = 0; d < SpreadDraws; d++)
+        {
+            var set = new List<(double, bool)>();
+            for (int t = 0; t < tapes.Count; t++)
+            {
+                set.AddRange(tapes[random.Next(tapes.Count)]);
+            }
+
+            drawn.Add(set.Count == 0 ? 0 : Calibration.EqualBinEce(set));
+        }
+
+        drawn.Sort();
+        return (floor / SpreadDraws, drawn[SpreadDraws / 10], drawn[(SpreadDraws * 9) / 10]);
+    }
+
+    private const int SpreadDraws = 200;
+
     public static int Run(string[] args)
     {
         string? folder = null, dump = null, reads = null;
@@ -63,7 +98,7 @@ public static class StreamReplay
         }
 
         var options = new MergeOptions { CreatedUtc = DateTimeOffset.UnixEpoch };
-        var rows = new List<(string Profile, double Confidence, bool Right, bool Anywhere)>();
+        var rows = new List<(string Profile, int Seed, double Confidence, bool Right, bool Anywhere)>();
         var singles = new List<(string Profile, double Confidence, bool Right, bool Anywhere, bool Unplaced)>();
         var readRows = new List<string>();
         var exactTapes = new Dictionary<string, (int Tapes, int Exact, double Least)>();
@@ -115,7 +150,7 @@ public static class StreamReplay
                 bool anywhere = RecoveryCorpus.Place(block.Payload.AsSpan(), files, bases, null);
                 bool right = anywhere && Trust.ShortSegmentInPlace(block.Key, block.Payload.AsSpan(), files);
                 exact &= right && block.AgreeingCaptures >= 2;
-                rows.Add((saved.Profile, block.Confidence, right, anywhere));
+                rows.Add((saved.Profile, saved.Seed, block.Confidence, right, anywhere));
                 bool gapBefore = bi > 0 && image.Blocks[bi - 1].Status == RecoveryStatus.Missing;
                 bool gapAfter = bi + 1 < image.Blocks.Length && image.Blocks[bi + 1].Status == RecoveryStatus.Missing;
                 lines.Add(string.Join('\t', saved.Profile, saved.Seed, block.Key, block.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0,
@@ -139,6 +174,9 @@ public static class StreamReplay
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{group.Key}: log-likelihood of right and wrong {logLikelihood:0.0}"));
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"{group.Key,-10} {tapes,5} {items.Count,9} {items.Count(i => !i.Right && i.Confidence >= Trust.StreamConfidentWrong),11} {Calibration.EqualBinEce(items),10:0.0000} {Calibration.EqualBinEce([.. group.Select(r => (r.Confidence, r.Anywhere))]),12:0.0000} {exact,5} {least,11:0.0000}"));
+            var (floor, low, high) = EceSpread([.. group.Select(r => (r.Seed, r.Confidence, r.Right))]);
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"{group.Key}: ECE a calibrated merge would show on these positions {floor:0.0000}; tapes drawn again, 10–90 % {low:0.0000}–{high:0.0000}"));
             foreach (var bin in items.GroupBy(i => Math.Clamp((int)(i.Confidence * 10), 0, 9)).OrderBy(b => b.Key))
             {
                 Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
