@@ -174,86 +174,119 @@ public struct ToneDetector
         bool previousNegative = previousD < 0;
         bool taughtAny = false;
 
-        // The last reading taken: its energies, whether it taught, and the levels after it.
-        double lastMark = 0, lastSpace = 0, lastMarkLevel = 0, lastSpaceLevel = 0;
-        bool lastTaught = false;
+        // The levels before the reading at n (after the one before it), for D of that one if n is the reading stopped at.
+        double markBefore = markLevel, spaceBefore = spaceLevel;
         int n = i;
         bool changed = false;
         d = 0;
         unchecked
         {
-            for (; n < end; n++)
+            while (n < end)
             {
-                int gate = tones.Gate(n);
-                if ((gate & ToneGate.Carrier) == 0)
-                {
-                    break;
-                }
-
-                double mark = tones.Mark(n);
-                double space = tones.Space(n);
+                // The readings whose sign is beyond doubt run here, with nothing called; a doubt or a stop leaves the loop.
+                bool doubt = false;
+                double mark = 0, space = 0;
                 bool taught = false;
-                if ((gate & ToneGate.PureMark) != 0)
+                for (; n < end; n++)
                 {
-                    markSamples += 1;
-                    markLevel += (mark - markLevel) * LevelStep(markSamples, settled, levelGain);
-                    taught = true;
-                }
-                else if ((gate & ToneGate.PureSpace) != 0)
-                {
-                    spaceSamples += 1;
-                    spaceLevel += (space - spaceLevel) * LevelStep(spaceSamples, settled, levelGain);
-                    taught = true;
+                    int gate = tones.Gate(n);
+                    if ((gate & ToneGate.Carrier) == 0)
+                    {
+                        break;
+                    }
+
+                    mark = tones.Mark(n);
+                    space = tones.Space(n);
+                    markBefore = markLevel;
+                    spaceBefore = spaceLevel;
+                    taught = (gate & (ToneGate.PureMark | ToneGate.PureSpace)) != 0;
+                    if ((gate & ToneGate.PureMark) != 0)
+                    {
+                        markSamples += 1;
+                        markLevel += (mark - markLevel) * LevelStep(markSamples, settled, levelGain);
+                    }
+                    else if (taught)
+                    {
+                        spaceSamples += 1;
+                        spaceLevel += (space - spaceLevel) * LevelStep(spaceSamples, settled, levelGain);
+                    }
+
+                    taughtAny |= taught;
+
+                    // D's numerator and denominator for the balance the levels give (bounded as Rebalance bounds it).
+                    // The energies are sums of squares, so the denominator is not negative.
+                    double numerator, denominator;
+                    if (markLevel <= 0 || spaceLevel <= 0)
+                    {
+                        numerator = mark - space;
+                        denominator = mark + space;
+                    }
+                    else if (markLevel >= MaximumToneImbalance * spaceLevel)
+                    {
+                        numerator = mark - (space * MaximumToneImbalance);
+                        denominator = mark + (space * MaximumToneImbalance);
+                    }
+                    else if (markLevel * MaximumToneImbalance <= spaceLevel)
+                    {
+                        numerator = mark - (space / MaximumToneImbalance);
+                        denominator = mark + (space / MaximumToneImbalance);
+                    }
+                    else
+                    {
+                        double markWeighted = mark * spaceLevel;
+                        double spaceWeighted = space * markLevel;
+                        numerator = markWeighted - spaceWeighted;
+                        denominator = markWeighted + spaceWeighted;
+                    }
+
+                    if (!(Math.Abs(numerator) > denominator * SignMargin))
+                    {
+                        doubt = true;
+                        break;
+                    }
+
+                    if ((numerator < 0) != previousNegative)
+                    {
+                        changed = true;
+                        break;
+                    }
                 }
 
-                taughtAny |= taught;
+                if (doubt)
+                {
+                    // D near zero (or not a number): its sign from D itself.
+                    float exact = Decision(mark, space, markLevel, spaceLevel, taught);
+                    if ((exact < 0) != previousNegative)
+                    {
+                        d = exact;
+                        changed = true;
+                        break;
+                    }
 
-                // D's numerator and denominator for the balance the levels give (bounded as Rebalance bounds it).
-                double numerator, denominator;
-                if (markLevel <= 0 || spaceLevel <= 0)
-                {
-                    numerator = mark - space;
-                    denominator = mark + space;
-                }
-                else if (markLevel >= MaximumToneImbalance * spaceLevel)
-                {
-                    numerator = mark - (space * MaximumToneImbalance);
-                    denominator = mark + (space * MaximumToneImbalance);
-                }
-                else if (markLevel * MaximumToneImbalance <= spaceLevel)
-                {
-                    numerator = mark - (space / MaximumToneImbalance);
-                    denominator = mark + (space / MaximumToneImbalance);
-                }
-                else
-                {
-                    double markWeighted = mark * spaceLevel;
-                    double spaceWeighted = space * markLevel;
-                    numerator = markWeighted - spaceWeighted;
-                    denominator = markWeighted + spaceWeighted;
+                    n++;
+                    continue;
                 }
 
-                bool negative = Math.Abs(numerator) > denominator * SignMargin
-                    ? numerator < 0
-                    : Decision(mark, space, markLevel, spaceLevel, taught) < 0;
-                if (negative != previousNegative)
+                if (changed)
                 {
                     d = Decision(mark, space, markLevel, spaceLevel, taught);
-                    changed = true;
-                    break;
                 }
 
-                (lastMark, lastSpace, lastTaught, lastMarkLevel, lastSpaceLevel) = (mark, space, taught, markLevel, spaceLevel);
+                break;
             }
         }
 
         if (n > i)
         {
-            previousD = Decision(lastMark, lastSpace, lastMarkLevel, lastSpaceLevel, lastTaught);
+            // D of the last reading taken before the stop, from the levels after it.
+            int last = n - 1;
+            double lastMarkLevel = changed ? markBefore : markLevel;
+            double lastSpaceLevel = changed ? spaceBefore : spaceLevel;
+            bool lastTaught = (tones.Gate(last) & (ToneGate.PureMark | ToneGate.PureSpace)) != 0;
+            previousD = Decision(tones.Mark(last), tones.Space(last), lastMarkLevel, lastSpaceLevel, lastTaught);
         }
 
         Carrier |= n > i || changed;
-
         _markLevel = markLevel;
         _spaceLevel = spaceLevel;
         _markLevelSamples = markSamples;
