@@ -242,10 +242,11 @@ public sealed class FskDecoder : ISymbolDecoder
     /// <summary>
     /// The samples of a character between its events, from <paramref name="i"/>: most of a character's samples only
     /// move the tone levels and D, and <see cref="Step"/> would find nothing else to do for them (a carrier, no change
-    /// of tone, no bit due, no mark period due for the speed, no leader being hunted). They run here with the tone
-    /// detector in a local, so that its state stays in registers from one sample to the next; the first sample that
-    /// is not such goes to <see cref="AfterTones"/> once its D is known (a change of tone), or is left whole to
-    /// <see cref="Step"/> (a bit or a mark period due, no carrier). Returns the next sample to step.
+    /// of tone, no bit due, no mark period due for the speed, no leader being hunted). They run in the tone detector's
+    /// own loop (<see cref="ToneDetector.UntilToneChanges"/>), up to the first sample at which a bit or a mark period
+    /// falls due; the first sample that is not such goes to <see cref="AfterTones"/> once its D is known (a change of
+    /// tone), or is left whole to <see cref="Step"/> (a bit or a mark period due, no carrier). Returns the next sample
+    /// to step.
     /// </summary>
     [MethodImpl(MethodImplOptions.NoInlining)]
     private int WithinCharacter(ToneLane tones, int i, long chunkStart)
