@@ -1,4 +1,3 @@
-using System.Collections.Concurrent;
 using TapeVault.Core.Audio;
 using TapeVault.Core.Blocks;
 using TapeVault.Core.Detection;
@@ -58,33 +57,34 @@ public static class CaptureDecoder
         // every worker is done with it; a bounded number of chunk buffers bounds the memory whatever the length.
         int workers = Math.Clamp(Math.Min(Environment.ProcessorCount, options.DecoderThreads), 1, Math.Max(1, Math.Min(2, session.Settings)));
         int buffers = 2 + workers;
-        using var free = new BlockingCollection<ChunkWork>(boundedCapacity: buffers);
-        var full = new BlockingCollection<ChunkWork>[workers];
+
+        // A decoder that throws stops its worker, which then returns no buffers: the token frees this thread too.
+        using var stop = CancellationTokenSource.CreateLinkedTokenSource(options.Cancellation);
+        using var free = new ChunkQueue(buffers, stop.Token);
+        var full = new ChunkQueue[workers];
         for (int i = 0; i < buffers; i++)
         {
             free.Add(session.NewChunk(options.ChunkSamples));
         }
 
-        // A decoder that throws stops its worker, which then returns no buffers: the token frees this thread too.
         // Workers block on their queues for the whole decode, so each gets a thread of its own rather than one of the
         // pool's, which a web app needs for its requests.
-        using var stop = CancellationTokenSource.CreateLinkedTokenSource(options.Cancellation);
         var running = new Task[workers];
         for (int w = 0; w < workers; w++)
         {
-            var queue = full[w] = new BlockingCollection<ChunkWork>(boundedCapacity: buffers);
+            var queue = full[w] = new ChunkQueue(buffers, stop.Token);
             int part = w;
             running[w] = Task.Factory.StartNew(
                 () =>
             {
                 try
                 {
-                    foreach (var work in queue.GetConsumingEnumerable(stop.Token))
+                    while (queue.TryTake(out var work))
                     {
                         session.Decode(work, part, workers);
                         if (Interlocked.Decrement(ref work.Pending) == 0)
                         {
-                            free.Add(work, stop.Token);
+                            free.Add(work);
                         }
                     }
                 }
@@ -103,7 +103,11 @@ public static class CaptureDecoder
         {
             while (true)
             {
-                var work = free.Take(stop.Token);
+                if (!free.TryTake(out var work))
+                {
+                    break;
+                }
+
                 work.Length = reader.Read(work.Samples);
                 if (work.Length == 0)
                 {
@@ -115,7 +119,7 @@ public static class CaptureDecoder
                 work.Pending = workers;
                 foreach (var queue in full)
                 {
-                    queue.Add(work, stop.Token);
+                    queue.Add(work);
                 }
 
                 options.Progress?.Report(new DecodeProgress(session.SamplesSeen, total));

@@ -91,7 +91,7 @@ public struct ToneDetector
         {
             double samples = _markLevelSamples + 1;
             _markLevelSamples = samples;
-            markLevel += (mark - markLevel) * LevelStep(samples);
+            markLevel += (mark - markLevel) * LevelStep(samples, _settledSamples, _levelGain);
             _markLevel = markLevel;
             taught = true;
         }
@@ -99,21 +99,33 @@ public struct ToneDetector
         {
             double samples = _spaceLevelSamples + 1;
             _spaceLevelSamples = samples;
-            spaceLevel += (space - spaceLevel) * LevelStep(samples);
+            spaceLevel += (space - spaceLevel) * LevelStep(samples, _settledSamples, _levelGain);
             _spaceLevel = spaceLevel;
             taught = true;
         }
 
+        return Decide(mark, space, markLevel, spaceLevel, taught, ref _balance, ref _balanceStale);
+    }
+
+    /// <summary>
+    /// D of a window with carrier, once its levels are learnt (<paramref name="taught"/>: whether the window taught
+    /// one): the balance the levels give, <paramref name="balance"/>, is worked out again only where a window needs it
+    /// and <paramref name="balanceStale"/> says the levels moved since (a window that teaches a level takes D from the
+    /// levels themselves, <see cref="FromLevels"/>, the same float without the balance's division).
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static float Decide(double mark, double space, double markLevel, double spaceLevel, bool taught, ref double balance, ref bool balanceStale)
+    {
         if (markLevel <= 0 || spaceLevel <= 0)
         {
             // Until both tones have been heard alone, assume they are balanced.
-            _balanceStale |= taught;
+            balanceStale |= taught;
             return (float)((mark - space) / (mark + space));
         }
 
         if (taught)
         {
-            _balanceStale = true;
+            balanceStale = true;
             float d = FromLevels(mark, space, markLevel, spaceLevel);
             if (!float.IsNaN(d))
             {
@@ -121,13 +133,178 @@ public struct ToneDetector
             }
         }
 
-        if (_balanceStale)
+        if (balanceStale)
         {
-            _balance = Rebalance(markLevel, spaceLevel);
-            _balanceStale = false;
+            balance = Rebalance(markLevel, spaceLevel);
+            balanceStale = false;
         }
 
-        return Balanced(mark, space, _balance);
+        return Balanced(mark, space, balance);
+    }
+
+    /// <summary>
+    /// How far from zero the sign of D is taken without its division: where the numerator of D, worked out to within a
+    /// few units in the last place of its denominator (about 1e-16 of it), is more than 2^-24 of the denominator, D
+    /// itself is (every way of working it out above lies within about 1e-12 of the same quotient), so the float D
+    /// rounds to is of the numerator's sign and not zero.
+    /// </summary>
+    private const double SignMargin = 1.0 / (1 << 24);
+
+    /// <summary>
+    /// <see cref="Next"/> over the readings of a character from <paramref name="i"/> (both tones teach), for as long as
+    /// nothing but the tone levels and the sign of D moves: stops before the first reading without carrier or at
+    /// <paramref name="end"/> (<paramref name="i"/> left there, false), or at the first reading whose D is of the
+    /// other sign than <paramref name="previousD"/> (<paramref name="i"/> left there, that D in <paramref name="d"/>,
+    /// true). <paramref name="previousD"/> becomes D of the last reading taken before the one stopped at.
+    /// <para>
+    /// Every reading moves the levels as <see cref="Next"/> does, operation for operation, but only the sign of its D
+    /// is needed until the stop: where the sign is beyond doubt (<see cref="SignMargin"/>) it comes from D's numerator
+    /// alone, without the divisions; D itself is worked out, as Next works it out, for the reading stopped at and the
+    /// one before it. The levels and their counts stay in locals for the whole run.
+    /// </para>
+    /// </summary>
+    public bool UntilToneChanges(ToneLane tones, ref int i, int end, ref float previousD, out float d)
+    {
+        double markLevel = _markLevel;
+        double spaceLevel = _spaceLevel;
+        double markSamples = _markLevelSamples;
+        double spaceSamples = _spaceLevelSamples;
+        double levelGain = _levelGain;
+        double settled = _settledSamples;
+        bool previousNegative = previousD < 0;
+        bool taughtAny = false;
+
+        // The levels before the reading at n (after the one before it), for D of that one if n is the reading stopped at.
+        double markBefore = markLevel, spaceBefore = spaceLevel;
+        int n = i;
+        bool changed = false;
+        d = 0;
+        unchecked
+        {
+            while (n < end)
+            {
+                // The readings whose sign is beyond doubt run here, with nothing called; a doubt or a stop leaves the loop.
+                bool doubt = false;
+                double mark = 0, space = 0;
+                bool taught = false;
+                for (; n < end; n++)
+                {
+                    int gate = tones.Gate(n);
+                    if ((gate & ToneGate.Carrier) == 0)
+                    {
+                        break;
+                    }
+
+                    mark = tones.Mark(n);
+                    space = tones.Space(n);
+                    markBefore = markLevel;
+                    spaceBefore = spaceLevel;
+                    taught = (gate & (ToneGate.PureMark | ToneGate.PureSpace)) != 0;
+                    if ((gate & ToneGate.PureMark) != 0)
+                    {
+                        markSamples += 1;
+                        markLevel += (mark - markLevel) * LevelStep(markSamples, settled, levelGain);
+                    }
+                    else if (taught)
+                    {
+                        spaceSamples += 1;
+                        spaceLevel += (space - spaceLevel) * LevelStep(spaceSamples, settled, levelGain);
+                    }
+
+                    taughtAny |= taught;
+
+                    // D's numerator and denominator for the balance the levels give (bounded as Rebalance bounds it).
+                    // The energies are sums of squares, so the denominator is not negative.
+                    double numerator, denominator;
+                    if (markLevel <= 0 || spaceLevel <= 0)
+                    {
+                        numerator = mark - space;
+                        denominator = mark + space;
+                    }
+                    else if (markLevel >= MaximumToneImbalance * spaceLevel)
+                    {
+                        numerator = mark - (space * MaximumToneImbalance);
+                        denominator = mark + (space * MaximumToneImbalance);
+                    }
+                    else if (markLevel * MaximumToneImbalance <= spaceLevel)
+                    {
+                        numerator = mark - (space / MaximumToneImbalance);
+                        denominator = mark + (space / MaximumToneImbalance);
+                    }
+                    else
+                    {
+                        double markWeighted = mark * spaceLevel;
+                        double spaceWeighted = space * markLevel;
+                        numerator = markWeighted - spaceWeighted;
+                        denominator = markWeighted + spaceWeighted;
+                    }
+
+                    if (!(Math.Abs(numerator) > denominator * SignMargin))
+                    {
+                        doubt = true;
+                        break;
+                    }
+
+                    if ((numerator < 0) != previousNegative)
+                    {
+                        changed = true;
+                        break;
+                    }
+                }
+
+                if (doubt)
+                {
+                    // D near zero (or not a number): its sign from D itself.
+                    float exact = Decision(mark, space, markLevel, spaceLevel, taught);
+                    if ((exact < 0) != previousNegative)
+                    {
+                        d = exact;
+                        changed = true;
+                        break;
+                    }
+
+                    n++;
+                    continue;
+                }
+
+                if (changed)
+                {
+                    d = Decision(mark, space, markLevel, spaceLevel, taught);
+                }
+
+                break;
+            }
+        }
+
+        if (n > i)
+        {
+            // D of the last reading taken before the stop, from the levels after it.
+            int last = n - 1;
+            double lastMarkLevel = changed ? markBefore : markLevel;
+            double lastSpaceLevel = changed ? spaceBefore : spaceLevel;
+            bool lastTaught = (tones.Gate(last) & (ToneGate.PureMark | ToneGate.PureSpace)) != 0;
+            previousD = Decision(tones.Mark(last), tones.Space(last), lastMarkLevel, lastSpaceLevel, lastTaught);
+        }
+
+        Carrier |= n > i || changed;
+        _markLevel = markLevel;
+        _spaceLevel = spaceLevel;
+        _markLevelSamples = markSamples;
+        _spaceLevelSamples = spaceSamples;
+
+        // The balance kept is worked out again from the levels where a window next needs it (Decide), as if each
+        // reading here had gone through Next: it is the levels' own whenever they have not moved since it was.
+        _balanceStale |= taughtAny;
+        i = n;
+        return changed;
+    }
+
+    /// <summary>D of one window as <see cref="Next"/> gives it, from the levels after it and whether it taught one; the balance worked out afresh.</summary>
+    private static float Decision(double mark, double space, double markLevel, double spaceLevel, bool taught)
+    {
+        double balance = 0;
+        bool stale = true;
+        return Decide(mark, space, markLevel, spaceLevel, taught, ref balance, ref stale);
     }
 
     /// <summary>
@@ -194,7 +371,7 @@ public struct ToneDetector
     /// rounding, so the division is left out there.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    private readonly double LevelStep(double samples) => samples > _settledSamples ? _levelGain : Math.Max(_levelGain, 1.0 / samples);
+    private static double LevelStep(double samples, double settled, double gain) => samples > settled ? gain : Math.Max(gain, 1.0 / samples);
 
     /// <summary>
     /// The mark level over the space level (both positive), bounded: past 12 dB between the tones (more than any deck's

@@ -242,42 +242,20 @@ public sealed class FskDecoder : ISymbolDecoder
     /// <summary>
     /// The samples of a character between its events, from <paramref name="i"/>: most of a character's samples only
     /// move the tone levels and D, and <see cref="Step"/> would find nothing else to do for them (a carrier, no change
-    /// of tone, no bit due, no mark period due for the speed, no leader being hunted). They run here with the tone
-    /// detector in a local, so that its state stays in registers from one sample to the next; the first sample that
-    /// is not such goes to <see cref="AfterTones"/> once its D is known (a change of tone), or is left whole to
-    /// <see cref="Step"/> (a bit or a mark period due, no carrier). Returns the next sample to step.
+    /// of tone, no bit due, no mark period due for the speed, no leader being hunted). They run in the tone detector's
+    /// own loop (<see cref="ToneDetector.UntilToneChanges"/>), up to the first sample at which a bit or a mark period
+    /// falls due; the first sample that is not such goes to <see cref="AfterTones"/> once its D is known (a change of
+    /// tone), or is left whole to <see cref="Step"/> (a bit or a mark period due, no carrier). Returns the next sample
+    /// to step.
     /// </summary>
     [MethodImpl(MethodImplOptions.NoInlining)]
     private int WithinCharacter(ToneLane tones, int i, long chunkStart)
     {
-        var detector = _tones;
-        float previousD = _previousD;
-        double nextBit = _framer.NextBitTime;
-        double nextCheck = ToReading(_speed.NextCheck);
+        // Inside a character both tones may teach their levels (see Step).
+        int end = Math.Min(FirstAtOrAfter(_framer.NextBitTime, chunkStart, i, tones.Length), FirstAtOrAfter(ToReading(_speed.NextCheck), chunkStart, i, tones.Length));
         int start = i;
-        bool changed = false;
-        float d = 0;
-        for (; i < tones.Length; i++)
-        {
-            double n = chunkStart + i;
-            int gate = tones.Gate(i);
-            if ((gate & ToneGate.Carrier) == 0 || n >= nextBit || n >= nextCheck)
-            {
-                break;
-            }
-
-            // Inside a character both tones may teach their levels (see Step).
-            d = detector.Next(tones.Mark(i), tones.Space(i), gate, learnMark: true, learnSpace: true);
-            if ((d < 0) != (previousD < 0))
-            {
-                changed = true;
-                break;
-            }
-
-            previousD = d;
-        }
-
-        _tones = detector;
+        float previousD = _previousD;
+        bool changed = _tones.UntilToneChanges(tones, ref i, end, ref previousD, out float d);
         _previousD = previousD;
         if (i > start)
         {
@@ -292,6 +270,21 @@ public sealed class FskDecoder : ISymbolDecoder
         }
 
         return i;
+    }
+
+    /// <summary>
+    /// The first of the chunk's readings from <paramref name="i"/> (up to <paramref name="length"/>, where none is)
+    /// whose index n = <paramref name="chunkStart"/> + i is at or after <paramref name="time"/>: n ≥ time, as a
+    /// reading's loop would test it (n is a whole number, exact as a double).
+    /// </summary>
+    private static int FirstAtOrAfter(double time, long chunkStart, int i, int length)
+    {
+        if (double.IsNaN(time) || time > chunkStart + (length - 1.0))
+        {
+            return length;
+        }
+
+        return time <= chunkStart + i ? i : (int)(Math.Ceiling(time) - chunkStart);
     }
 
     /// <summary>

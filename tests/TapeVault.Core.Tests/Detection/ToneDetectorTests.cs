@@ -93,6 +93,89 @@ public sealed class ToneDetectorTests
         Assert.Equal(ToneDetector.Divided(3.0, 1.0, 2.0), ToneDetector.FromLevels(3.0, 1.0, 2.0, 1.0));
     }
 
+    [Fact]
+    public void A_run_within_a_character_stops_where_Next_reading_by_reading_stops_and_leaves_the_same_detector()
+    {
+        // The reference is Next itself, one reading at a time, stopped where the decoder's loop over a character stops:
+        // before a reading without carrier or at the end given, or at the first D of the other sign (taken). Energies
+        // drawn so that D is often near zero (its sign then needs the division), the tones up to 30 dB apart (the
+        // balance at its bounds), and the first readings before either level is known.
+        var random = new Random(40_003);
+        for (int capture = 0; capture < 200; capture++)
+        {
+            const int length = 4000;
+            var quad = new System.Runtime.Intrinsics.Vector256<double>[2 * length];
+            var gates = new int[length];
+            double imbalance = Math.Pow(10, ((random.NextDouble() * 6) - 3) / 2);
+            bool markTone = true;
+            for (int r = 0; r < length; r++)
+            {
+                markTone ^= random.Next(40) == 0;
+                double level = Math.Pow(10, (random.NextDouble() * 0.4) - 0.2);
+                double mark = (markTone ? level * imbalance : level * 0.01) * (1 + (random.NextDouble() * 0.1));
+                double space = markTone ? level * 0.01 : level;
+                if (random.Next(8) == 0)
+                {
+                    // Near D = 0: the mark energy a hair from the space energy times a balance in the bounds.
+                    space = mark / (imbalance * (1 + ((random.NextDouble() - 0.5) * Math.Pow(10, -random.Next(3, 16)))));
+                }
+
+                quad[2 * r] = System.Runtime.Intrinsics.Vector256.Create(mark, 0, 0, 0);
+                quad[(2 * r) + 1] = System.Runtime.Intrinsics.Vector256.Create(space, 0, 0, 0);
+                int carrier = random.Next(300) == 0 ? 0 : ToneGate.Carrier;
+                int pure = random.Next(4) == 0 ? 0 : markTone ? ToneGate.PureMark : ToneGate.PureSpace;
+                gates[r] = carrier | (pure == ToneGate.PureMark ? 1 << ToneBank.LanesPerQuad : pure == ToneGate.PureSpace ? 1 << (2 * ToneBank.LanesPerQuad) : 0);
+            }
+
+            var lane = new ToneLane(quad, gates, 0, length);
+            var run = new ToneDetector(300, 44_100);
+            var reference = new ToneDetector(300, 44_100);
+            float runPrevious = 0, referencePrevious = 0;
+            int i = 0;
+            while (i < length)
+            {
+                int end = Math.Min(length, i + random.Next(1, 400));
+                int start = i;
+                bool changed = run.UntilToneChanges(lane, ref i, end, ref runPrevious, out float d);
+
+                int n = start;
+                bool referenceChanged = false;
+                float referenceD = 0;
+                for (; n < end && (lane.Gate(n) & ToneGate.Carrier) != 0; n++)
+                {
+                    float next = reference.Next(lane.Mark(n), lane.Space(n), lane.Gate(n), learnMark: true, learnSpace: true);
+                    if ((next < 0) != (referencePrevious < 0))
+                    {
+                        referenceChanged = true;
+                        referenceD = next;
+                        break;
+                    }
+
+                    referencePrevious = next;
+                }
+
+                Assert.Equal(n, i);
+                Assert.Equal(referenceChanged, changed);
+                Assert.Equal(referencePrevious, runPrevious);
+                Assert.Equal(referenceD, d);
+                Assert.Equal(reference.Carrier, run.Carrier);
+                if (i == length)
+                {
+                    break;
+                }
+
+                // The reading stopped at goes through Next in both, as the decoder's full step takes it; learning only
+                // the mark level now and then, as between characters.
+                bool learnSpace = random.Next(2) == 0;
+                float stepRun = run.Next(lane.Mark(i), lane.Space(i), lane.Gate(i), learnMark: true, learnSpace);
+                float stepReference = reference.Next(lane.Mark(i), lane.Space(i), lane.Gate(i), learnMark: true, learnSpace);
+                Assert.Equal(stepReference, stepRun);
+                runPrevious = referencePrevious = stepRun;
+                i++;
+            }
+        }
+    }
+
     /// <summary>Mark energy that puts D within a hair of a midpoint between two floats near 0.5 (spacing 2⁻²⁴ there).</summary>
     private static double NearMidpoint(double space, double balance, Random random)
     {
