@@ -518,7 +518,7 @@ internal sealed class BlockMerge
         }
 
         var best = whole.MaxBy(r => r.Candidate.Confidence + (1 - MeanError(r.Candidate)));
-        var outcome = BitVote.Search(voters, length, FullBytes(best.Candidate, complete: true), Holds, _checksum.FalseMatchProbability, _options.RepairBits, _options.MaximumTrials);
+        var outcome = BitVote.Search(voters, length, FullBytes(best.Candidate, complete: true), Holds, _checksum.FalseMatchProbability, _options.RepairBits, _options.MaximumTrials, _options.TrialsAfterHit);
         var sources = used.OrderByDescending(r => r.Candidate.Confidence).Select(r => Provenance(r.Candidate, r.Pass)).ToImmutableArray();
         if (outcome is null)
         {
