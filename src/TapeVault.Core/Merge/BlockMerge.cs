@@ -308,11 +308,11 @@ internal sealed class BlockMerge
     private sealed record PassOdds(double[] ReadsClean, double MissedWithAnother);
 
     /// <summary>
-    /// The shared misses <see cref="PassOdds.MissedWithAnother"/> starts from before a tape shows its own: one in four pairs
-    /// (<see cref="PairsBefore"/>). Over the trust benchmark's saved readings of tuning seeds (12000 onwards, 15000 onwards and 16000 onwards:
-    /// the blocks written that some pass read clean, three passes a tape), a pass missed a block another pass missed in
-    /// 0.29 of the pairs for one-cycle-bits, 0.37 for bench-pulse-blocks, 0.36 for three-class-pairs and 0.15 for
-    /// orrin-80; a quarter lies below the formats of weak checks, whose unproven positions this weighs.
+    /// The shared misses <see cref="PassOdds.MissedWithAnother"/> starts from before a tape shows its own: one in four
+    /// pairs (<see cref="PairsBefore"/>). Over the trust benchmark's saved readings of tuning seeds (12000, 15000 and
+    /// 16000 onwards: the blocks written that some pass read clean, three passes a tape), a pass missed a block another
+    /// pass missed in 0.29 of the pairs for one-cycle-bits, 0.37 for bench-pulse-blocks, 0.36 for three-class-pairs and
+    /// 0.15 for orrin-80; a quarter lies below the formats of weak checks, whose unproven positions this weighs.
     /// </summary>
     private const double SharedMissesBefore = 1;
 
