@@ -13,23 +13,24 @@ namespace TapeVault.Bench;
 /// <see cref="PositionReplay"/>), and judges its positions as the trust bench does: per profile, the positions, those
 /// wrong and clean, the merged ECE and the positions wrong at confidence 0.99 or more. Decoding is by far the slow part
 /// of the trust bench, and the merge reads nothing but the saved readings, so a change to the merge is tried on many
-/// tapes in seconds. With --dump, every position is written as a row (profile, seed, status, confidence, right, key).
+/// tapes in seconds. With --dump, every position is written as a row (profile, seed, status, confidence, right, key);
+/// --trials-after-hit N bounds the repair search's patterns after one that holds (MergeOptions.TrialsAfterHit).
 /// </summary>
 public static class MergeReplay
 {
-    private static readonly MergeOptions s_options = new() { CreatedUtc = DateTimeOffset.UnixEpoch };
-
     public static int Run(string[] args)
     {
         string? folder = null;
         string? dump = null;
+        var options = new MergeOptions { CreatedUtc = DateTimeOffset.UnixEpoch };
         for (int i = 0; i < args.Length; i++)
         {
             switch (args[i])
             {
                 case "--candidates": folder = args[++i]; break;
                 case "--dump": dump = args[++i]; break;
-                default: throw new ArgumentException($"Unknown option {args[i]}; merge-replay takes --candidates FOLDER [--dump FILE].");
+                case "--trials-after-hit": options = options with { TrialsAfterHit = int.Parse(args[++i], CultureInfo.InvariantCulture) }; break;
+                default: throw new ArgumentException($"Unknown option {args[i]}; merge-replay takes --candidates FOLDER [--dump FILE] [--trials-after-hit N].");
             }
         }
 
@@ -47,6 +48,7 @@ public static class MergeReplay
         var rows = new List<(string Profile, int Seed, RecoveryStatus Status, double Confidence, bool Right)>();
         var lines = new List<string>();
         var watch = System.Diagnostics.Stopwatch.StartNew();
+        var cpu = System.Diagnostics.Process.GetCurrentProcess().TotalProcessorTime;
         foreach (var tape in saved)
         {
             var profile = Trust.Subjects.Select(s => s.Profile).First(p => p.Id == tape.Key.Profile);
@@ -56,7 +58,7 @@ public static class MergeReplay
                 "replay")).ToList();
             var written = tape.First().Written.Select(Convert.FromHexString).ToList();
             var judge = Trust.Judge(profile, [], written, out _);
-            var image = TapeMerger.Merge(passes, profile, s_options);
+            var image = TapeMerger.Merge(passes, profile, options);
             foreach (var block in image.Blocks.Where(b => b.Status != RecoveryStatus.Missing))
             {
                 bool right = judge(block.Header.AsSpan(), block.Payload.AsSpan());
@@ -88,7 +90,7 @@ public static class MergeReplay
                 $"{Calibration.EqualBinEce([.. items.Select(r => (r.Confidence, r.Right))]),10:0.0000} {items.Count(r => !r.Right && r.Confidence >= Trust.StreamConfidentWrong),13}  {statuses}"));
         }
 
-        Console.WriteLine($"{saved.Count} tapes merged in {watch.Elapsed.TotalSeconds:0.0} s");
+        Console.WriteLine($"{saved.Count} tapes merged in {watch.Elapsed.TotalSeconds:0.0} s wall, {(System.Diagnostics.Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:0.0} s processor time (load {MachineLoad.Averages()})");
         return 0;
     }
 

@@ -60,7 +60,8 @@ internal static class BitVote
     /// <summary>
     /// The vote's bytes, then up to <paramref name="maximumTrials"/> patterns of flips over the
     /// <paramref name="repairBits"/> least certain bits, cheapest first, until <paramref name="holds"/> accepts one; the
-    /// patterns left after it are tried too, for its confidence. Null when no pattern holds.
+    /// patterns left after it are tried too, for its confidence, up to <paramref name="trialsAfterHit"/> of them or until
+    /// those left are together too unlikely to matter. Null when no pattern holds.
     /// </summary>
     /// <param name="tieBreak">The bytes of the most trusted reading: a bit the vote leaves even takes its value.</param>
     public static VoteOutcome? Search(
@@ -70,7 +71,8 @@ internal static class BitVote
         Func<byte[], bool> holds,
         double falseMatch,
         int repairBits,
-        int maximumTrials)
+        int maximumTrials,
+        int trialsAfterHit)
     {
         ArgumentNullException.ThrowIfNull(holds);
         var evidence = BitEvidence(readings, length);
@@ -128,22 +130,41 @@ internal static class BitVote
                 // likely the block as its bit odds say. The bit odds come from per-byte estimates and do not order
                 // the patterns reliably, so the search's multiplicity is charged explicitly too: trying n patterns
                 // against a check gives n chances of a false match.
+                // The patterns not tried are counted as if each held (their whole chance goes to "another pattern"),
+                // so that stopping early never makes the confidence higher than trying them all would: the search stops
+                // when they weigh too little to move it (UntriedShare of the found pattern's chance) or after
+                // trialsAfterHit of them.
+                // The chances of the other patterns are kept as shares of this one's, which stay in range where each
+                // chance alone is too small for a double (a long block of doubtful bits).
                 var found = bytes.ToArray();
                 Flip(bytes, weakest, mask);
+                var untried = new double[order.Length + 1];
+                for (int i = order.Length - 1; i >= trials; i--)
+                {
+                    untried[i] = untried[i + 1] + Math.Exp(cost[mask] - cost[order[i]]);
+                }
+
                 double others = 0;
                 for (int i = trials; i < order.Length; i++)
                 {
+                    if (untried[i] <= UntriedShare || i - trials >= trialsAfterHit)
+                    {
+                        others += untried[i];
+                        break;
+                    }
+
                     Flip(bytes, weakest, order[i]);
                     if (holds(bytes))
                     {
-                        others += Math.Exp(logVote - cost[order[i]]);
+                        others += Math.Exp(cost[mask] - cost[order[i]]);
                     }
 
                     Flip(bytes, weakest, order[i]);
                 }
 
-                double elsewhere = others + (Math.Max(0, 1 - triedMass) * Math.Min(1, trials * falseMatch));
-                double confidence = elsewhere <= 0 ? 1 : 1 / (1 + Math.Exp(Math.Log(elsewhere) - logPattern));
+                double byChance = Math.Max(0, 1 - triedMass) * Math.Min(1, trials * falseMatch);
+                double elsewhere = others + (byChance <= 0 ? 0 : Math.Exp(Math.Log(byChance) - logPattern));
+                double confidence = 1 / (1 + elsewhere);
                 return new VoteOutcome(found, trials, confidence);
             }
 
@@ -152,6 +173,12 @@ internal static class BitVote
 
         return null;
     }
+
+    /// <summary>
+    /// The chance, as a share of the found pattern's, below which the patterns left after a hit are not tried (a bound
+    /// on how much they could lower its confidence: it moves it by 1e-6 at most).
+    /// </summary>
+    private const double UntriedShare = 1e-6;
 
     /// <summary>log(1 + e^x) without overflow.</summary>
     public static double Softplus(double x) => x > 30 ? x : Math.Log(1 + Math.Exp(x));

@@ -31,6 +31,13 @@ public sealed record MergeOptions
     public int MaximumTrials { get; init; } = 4096;
 
     /// <summary>
+    /// The most patterns the repair search tries after one that holds, for its confidence; the chance of those it does
+    /// not try is counted against the one that holds, so a smaller bound makes the merge faster and its voted positions
+    /// less sure, never surer.
+    /// </summary>
+    public int TrialsAfterHit { get; init; } = 4096;
+
+    /// <summary>
     /// The least chance that a stream byte one capture read is wrong, whatever its decision margins say (a character
     /// framed one bit off reads cleanly); captures that read a byte alike are all wrong only if each is, so for k of
     /// them the floor is this to the power k. The default is <see cref="BlockScorer.UnseenByteError"/>, the floor every

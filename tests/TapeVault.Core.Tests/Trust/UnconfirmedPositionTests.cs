@@ -58,6 +58,29 @@ public sealed class UnconfirmedPositionTests
     }
 
     [Fact]
+    public void A_block_of_a_long_tape_the_passes_read_clean_elsewhere_is_not_shown_near_wrong()
+    {
+        // Twenty blocks, every one read clean by all three captures but block 10, which only the first read, under its
+        // weak check. The passes missed no other block, so the tape shows nothing of how often they miss one together;
+        // taking that for never (each other pass then misses a block at 1 / 21, its share of the 19 proven ones with one
+        // read and one missed added) put the block at 0.47. Each of the others misses it at 1 / 4 now: the shared misses
+        // in four pairs the estimate starts from, as no pair of this tape says otherwise.
+        MergePass Capture(int capture) => Readings.Pass(capture, [.. Enumerable.Range(0, 20)
+            .Where(b => capture == 0 || b != 10)
+            .Select((b, position) => b == 10
+                ? Readings.Of(Sum8, Readings.Written(Sum8, b), b + 1.0, position, baseError: 0.2f) with { Status = BlockStatus.Failed, Doubts = BlockDoubts.Uncorroborated, Confidence = 0.9974 }
+                : Readings.Of(Sum8, Readings.Written(Sum8, b), b + 1.0, position))]);
+
+        var image = TapeMerger.Merge([Capture(0), Capture(1), Capture(2)], Sum8);
+
+        var block = image.Blocks.Single(b => b.BlockNumber == 10);
+        Assert.Equal(RecoveryStatus.Voted, block.Status);
+        double right = 0.9974 * 0.25 * 0.25;
+        Assert.Equal(right / (right + (1 - 0.9974)), block.Confidence, 6);
+        Assert.True(block.Confidence < 0.99, $"a failed position at {block.Confidence}");
+    }
+
+    [Fact]
     public void Passes_that_miss_blocks_together_weigh_less_against_a_block_they_missed()
     {
         // Five blocks. The first capture reads block 2 only under its weak check and every other block clean; the
@@ -82,9 +105,9 @@ public sealed class UnconfirmedPositionTests
 
         // Each other pass read 3 of the 4 proven blocks, (3 + 1) / (4 + 2): it misses a block at 1/3. But of the pairs of
         // a pass that missed a proven block and another pass (block 3: the second with the first and the third, the third
-        // with the first and the second), 2 of 4 missed it too, 2 / (4 + 1) = 0.4 with one pair added: a block the
-        // first capture did not read clean either is missed by each of the others at 0.4, and by both at 0.16.
-        double right = 0.9974 * 0.4 * 0.4;
+        // with the first and the second), 2 of 4 missed it too, (2 + 1) / (4 + 4) = 0.375 from one shared miss in four
+        // pairs before: a block the first capture did not read clean either is missed by each of the others at 0.375.
+        double right = 0.9974 * 0.375 * 0.375;
         Assert.Equal(right / (right + (1 - 0.9974)), block.Confidence, 6);
         Assert.True(block.Confidence < 0.99, $"a failed position at {block.Confidence}");
     }
