@@ -355,7 +355,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
 
     /// <summary>
     /// How many of the sync's first cycles are the lead-in's last cycle read long: a cycle before a long pulse reads
-    /// longer (neighbouring transitions crowd one another's read-back pulses: Mee and Daniel, <i>Magnetic Recording
+    /// longer (neighbouring transitions crowd one another's read-back pulses; from memory: Mee and Daniel, <i>Magnetic Recording
     /// Technology</i>), so a setting may time the lead-in's last cycle as a group of its own just above the lead-in
     /// class, which every block then begins with. Such a cycle is in the sync only where it is the class next above the
     /// lead-in's, within <see cref="StretchedLeadIn"/> of it, no bit and nothing later in the sync uses it, and a
