@@ -46,19 +46,7 @@ public sealed class GapSyncAfterLengthRunOnTests(RoundTripFolder folder, ITestOu
         // them and re-quantises them.
         string clean = folder.NewCapture("gap-sync-claims-more");
         CaptureSynthesizer.WriteBlocks(clean, Profile, LengthClaimsMore(), new ChannelDamage { Seed = 72, SnrDb = 30 });
-        string damaged = folder.NewCapture("gap-sync-claims-more-damaged");
-        switch (effects)
-        {
-            case "speed 0.95, highpass 120":
-                OutsideTool.Sox(clean, damaged, "speed", "0.95", "highpass", "120");
-                break;
-            case "lowpass 4500, gain -n -6, 8-bit":
-                OutsideTool.Sox(clean, "-b", "8", damaged, "lowpass", "4500", "gain", "-n", "-6");
-                Assert.Equal("8", OutsideTool.SoxInfo("-b", damaged));
-                break;
-            default:
-                throw new ArgumentOutOfRangeException(nameof(effects), effects, "Unknown damage.");
-        }
+        string damaged = SoxDamage(clean, folder.NewCapture("gap-sync-claims-more-damaged"), effects);
 
         AssertBlocksAfterTheDamageAreClean(CaptureDecoder.Decode(damaged, Profile));
     }
@@ -77,22 +65,7 @@ public sealed class GapSyncAfterLengthRunOnTests(RoundTripFolder folder, ITestOu
         var written = BlockWriter.Blocks(Profile, [new TapeFile("F0", Content(0)), new TapeFile("ZEROS", ZeroRunThenSync()), new TapeFile("F2", Content(2))]);
         string clean = folder.NewCapture("gap-sync-in-payload");
         CaptureSynthesizer.WriteBlocks(clean, Profile, written, new ChannelDamage { Seed = 73, SnrDb = 30 });
-        string damaged = folder.NewCapture("gap-sync-in-payload-damaged");
-        switch (effects)
-        {
-            case "none":
-                damaged = clean;
-                break;
-            case "speed 0.95, highpass 120":
-                OutsideTool.Sox(clean, damaged, "speed", "0.95", "highpass", "120");
-                break;
-            case "lowpass 4500, gain -n -6, 8-bit":
-                OutsideTool.Sox(clean, "-b", "8", damaged, "lowpass", "4500", "gain", "-n", "-6");
-                Assert.Equal("8", OutsideTool.SoxInfo("-b", damaged));
-                break;
-            default:
-                throw new ArgumentOutOfRangeException(nameof(effects), effects, "Unknown damage.");
-        }
+        string damaged = effects == "none" ? clean : SoxDamage(clean, folder.NewCapture("gap-sync-in-payload-damaged"), effects);
 
         var result = CaptureDecoder.Decode(damaged, Profile);
         output.WriteLine(RoundTrips.Describe(result));
@@ -108,6 +81,25 @@ public sealed class GapSyncAfterLengthRunOnTests(RoundTripFolder folder, ITestOu
         {
             Assert.True(result.Best[block].Status == BlockStatus.Clean && truth[block].Matches(result.Best[block]), $"block {block} is not read clean at its position: {RoundTrips.Describe(result)}");
         }
+    }
+
+    // The capture played through one of the tests' SoX chains (SoX: the outside reference for the damage).
+    private static string SoxDamage(string clean, string damaged, string effects)
+    {
+        switch (effects)
+        {
+            case "speed 0.95, highpass 120":
+                OutsideTool.Sox(clean, damaged, "speed", "0.95", "highpass", "120");
+                break;
+            case "lowpass 4500, gain -n -6, 8-bit":
+                OutsideTool.Sox(clean, "-b", "8", damaged, "lowpass", "4500", "gain", "-n", "-6");
+                Assert.Equal("8", OutsideTool.SoxInfo("-b", damaged));
+                break;
+            default:
+                throw new ArgumentOutOfRangeException(nameof(effects), effects, "Unknown damage.");
+        }
+
+        return damaged;
     }
 
     // A payload of 60 bytes whose bytes 20 to 23 are zero and byte 24 the profile's sync byte.

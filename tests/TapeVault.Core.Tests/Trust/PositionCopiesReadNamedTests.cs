@@ -21,19 +21,7 @@ public sealed class PositionCopiesReadNamedTests
         // a few bytes into its payload; the other settings stop inside the countdown and name nothing. Blocks 28 and 30
         // are read clean, both copies. Before, block 29's copies were two positions: the cut readings at each copy's
         // sync took the identity of the clean block nearest to them (28 before the first copy, 30 after the second).
-        var (capture, placed) = SavedCapture.PlaceAgain("three-class-pairs-data-copies-cut-one-pass.json");
-
-        var positionsOf = placed.Where(c => capture.WrittenAt(c) is not null)
-            .GroupBy(c => capture.WrittenAt(c)!.Value.Block)
-            .ToDictionary(g => g.Key, g => g.Select(c => c.Position).Distinct().ToList());
-        Assert.Contains(29, positionsOf.Keys);
-        foreach (var (block, positions) in positionsOf)
-        {
-            Assert.True(positions.Count == 1, $"block {block}'s readings lie in positions {string.Join(", ", positions)}");
-        }
-
-        // One position per block: no two blocks share one.
-        Assert.Equal(positionsOf.Count, positionsOf.Values.Select(p => p[0]).Distinct().Count());
+        AssertOnePositionPerBlock("three-class-pairs-data-copies-cut-one-pass.json", block: 29);
     }
 
     [Fact]
@@ -43,17 +31,27 @@ public sealed class PositionCopiesReadNamedTests
         // of block 12. Block 10's first copy is read clean; at its second copy four settings lose the signal after the
         // file's name, before the block number. Before, that copy was a position of its own (its file name read alike by
         // four settings kept it from the clean copy's identity).
-        var (capture, placed) = SavedCapture.PlaceAgain("orrin-80-copy-cut-after-file-name-one-pass.json");
+        AssertOnePositionPerBlock("orrin-80-copy-cut-after-file-name-one-pass.json", block: 10);
+    }
+
+    /// <summary>
+    /// Placed again, the case's readings of each written block (where the synthesiser wrote its copies) lie in one
+    /// position, no two blocks share one, and <paramref name="block"/> is among those read.
+    /// </summary>
+    private static void AssertOnePositionPerBlock(string caseFile, int block)
+    {
+        var (capture, placed) = SavedCapture.PlaceAgain(caseFile);
 
         var positionsOf = placed.Where(c => capture.WrittenAt(c) is not null)
             .GroupBy(c => capture.WrittenAt(c)!.Value.Block)
             .ToDictionary(g => g.Key, g => g.Select(c => c.Position).Distinct().ToList());
-        Assert.Contains(10, positionsOf.Keys);
-        foreach (var (block, positions) in positionsOf)
+        Assert.Contains(block, positionsOf.Keys);
+        foreach (var (written, positions) in positionsOf)
         {
-            Assert.True(positions.Count == 1, $"block {block}'s readings lie in positions {string.Join(", ", positions)}");
+            Assert.True(positions.Count == 1, $"block {written}'s readings lie in positions {string.Join(", ", positions)}");
         }
 
+        // One position per block: no two blocks share one.
         Assert.Equal(positionsOf.Count, positionsOf.Values.Select(p => p[0]).Distinct().Count());
     }
 }
