@@ -469,25 +469,35 @@ public static partial class BlockPositioner
             clean[low] |= clean[high];
         }
 
-        // Stretches that share a sync.
-        for (int i = 0, first = -1; i < keyed.Count; i++)
+        // Stretches that share a sync: each reading's stretch joins the first stretch read at that sync that it may join
+        // (not only the first reading's: where that one may not, because it reaches other syncs, the rest are still
+        // one copy).
+        var atSync = new List<int>();
+        for (int i = 0, current = -1; i < keyed.Count; i++)
         {
             if (stray[i])
             {
                 continue;
             }
 
-            if (first < 0 || syncOf[first] != syncOf[i])
+            if (syncOf[i] != current)
             {
-                first = i;
-                continue;
+                current = syncOf[i];
+                atSync.Clear();
             }
 
-            int a = Root(positionOf[first]), b = Root(positionOf[i]);
-            if (a != b && !(clean[a] && clean[b]) && syncs[a].Union(syncs[b]).Count() <= limit)
+            int b = Root(positionOf[i]);
+            foreach (int seen in atSync)
             {
-                Join(a, b);
+                int a = Root(seen);
+                if (a != b && !(clean[a] && clean[b]) && syncs[a].Union(syncs[b]).Count() <= limit)
+                {
+                    Join(a, b);
+                    b = Root(b);
+                }
             }
+
+            atSync.Add(positionOf[i]);
         }
 
         if (copies > 1)
@@ -725,26 +735,35 @@ public static partial class BlockPositioner
 
     /// <summary>
     /// Failed readings that no clean reading anchors (the empty key) are places on the tape all the same: readings of
-    /// different settings that start at the same sync are one place. A header that other readings of the capture share
-    /// keeps its identity; a header nobody else read is a misread, not a block of its own, and takes the identity most
-    /// readings of its place agree on, or, when none does, that of the place it overlaps: a setting that does not suit
-    /// the capture garbles headers and may run past a block's end on a misread length, and neither makes a new block.
+    /// different settings that start at the same sync are one place. A header that another setting read alike at the
+    /// same place keeps its identity; a header no other setting read there is a misread, not a block of its own (a
+    /// setting that does not suit the capture misreads every block alike, so its own readings elsewhere vouch for
+    /// nothing), and takes the identity of its place, or, when none names it, that of the place it overlaps: such a
+    /// setting garbles headers and may run past a block's end on a misread length, and neither makes a new block. A
+    /// place is named by an identity only where that identity is read at no more syncs of the capture than the format
+    /// writes copies, or another setting read it alike there: an identity read all along the capture (a kind's number
+    /// with no file, one setting's garble of every header) names no one place, and would carry the place into the
+    /// position of another block.
     /// </summary>
     /// <returns>
     /// Per reading, whether it is no block at all: a place that only failed readings of identities nobody else read
     /// make, overlapping no other reading, whose headers agree with no header read near it over even half their bytes.
     /// A misread of a real block keeps most of its header (the file's name, a block number near its neighbours'); such
-    /// a place is noise read as data, typically in the lead-in between two blocks or two copies of one.
+    /// a place is noise read as data, typically in the lead-in between two blocks or two copies of one. A place that
+    /// claims nothing (whole failed readings with no payload: the lead-in's run read as an empty header) may also lie
+    /// between places where two settings or more read a sync, vouched for or not: no block reads as nothing alone.
     /// </returns>
     private static bool[] KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed, int copies)
     {
         var stray = new bool[keyed.Count];
         var vouched = new bool[keyed.Count];
+        var vouchedSync = new bool[keyed.Count];
         var starts = new double[keyed.Count];
         var byEnd = new int[keyed.Count];
         for (int i = 0; i < keyed.Count; i++)
         {
             vouched[i] = keyed[i].Key.Length > 0;
+            vouchedSync[i] = vouched[i] || SettingsAtSync(keyed, i) > 1;
             starts[i] = keyed[i].Candidate.StartSeconds;
             byEnd[i] = i;
         }
@@ -763,6 +782,29 @@ public static partial class BlockPositioner
         {
             string own = candidate.Identity.Key;
             support[own] = support.GetValueOrDefault(own) + 1;
+        }
+
+        // How many syncs of the capture each identity is read at (readings are in order of start).
+        var placesOfKey = new Dictionary<string, int>(StringComparer.Ordinal);
+        {
+            var lastSyncOf = new Dictionary<string, int>(StringComparer.Ordinal);
+            double syncStart = double.NegativeInfinity;
+            int syncIndex = -1;
+            foreach (var (candidate, _) in keyed)
+            {
+                if (candidate.StartSeconds - syncStart > SyncSeconds)
+                {
+                    syncIndex++;
+                    syncStart = candidate.StartSeconds;
+                }
+
+                string own = candidate.Identity.Key;
+                if (lastSyncOf.GetValueOrDefault(own, -1) != syncIndex)
+                {
+                    lastSyncOf[own] = syncIndex;
+                    placesOfKey[own] = placesOfKey.GetValueOrDefault(own) + 1;
+                }
+            }
         }
 
         // Places in order of start: the first reading of each, and the readings that joined it.
@@ -822,11 +864,20 @@ public static partial class BlockPositioner
             }
 
             var named = keyed[best].Candidate;
-            placeKey[p] = NamesItself(named) ? named.Identity.Key : $"place {p}";
+            bool namesThisPlace = placesOfKey[named.Identity.Key] <= Math.Max(1, copies) || ReadAlikeAtPlace(best);
+            placeKey[p] = NamesItself(named) && namesThisPlace ? named.Identity.Key : $"place {p}";
             placeSupport[p] = NamesItself(named) ? Support(named) : places[p].Count;
         }
 
         int Support(BlockCandidate c) => NamesItself(c) ? support[c.Identity.Key] : 0;
+
+        // Whether another setting read reading i's header alike at its place: a setting misreads every block alike (an
+        // inverted level, a slipped bit), so only another setting's reading there vouches for it.
+        bool ReadAlikeAtPlace(int i)
+        {
+            var c = keyed[i].Candidate;
+            return places[placeOf[i]].Exists(j => keyed[j].Candidate.SettingIndex != c.SettingIndex && keyed[j].Candidate.Identity.Key == c.Identity.Key);
+        }
 
         for (int p = 0; p < places.Count; p++)
         {
@@ -857,7 +908,7 @@ public static partial class BlockPositioner
                 bool ownBlock = copies <= 1 && !claimsNothing
                     && places[p].Exists(i => NamesItself(keyed[i].Candidate) && ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: false));
                 key = ownBlock ? key : overlapped ?? key;
-                if (overlapped is null && BetweenVouchedBlocks(keyed, vouched, starts, byEnd, places[p], atStartToo: claimsNothing) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: claimsNothing)))
+                if (overlapped is null && BetweenVouchedBlocks(keyed, claimsNothing ? vouchedSync : vouched, starts, byEnd, places[p], atStartToo: claimsNothing) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: claimsNothing)))
                 {
                     foreach (int i in places[p])
                     {
@@ -874,7 +925,7 @@ public static partial class BlockPositioner
                 var c = keyed[i].Candidate;
                 string own = c.Identity.Key;
                 bool nothingRead = c.Truncated && c.Payload.IsEmpty;
-                keyed[i] = (c, Support(c) > 1 && !nothingRead ? own : key);
+                keyed[i] = (c, ReadAlikeAtPlace(i) && !nothingRead ? own : key);
             }
         }
 
@@ -1393,6 +1444,24 @@ public static partial class BlockPositioner
         }
 
         return best;
+    }
+
+    /// <summary>How many settings' readings start at the sync of reading <paramref name="index"/> (readings in order of start).</summary>
+    private static int SettingsAtSync(List<(BlockCandidate Candidate, string Key)> keyed, int index)
+    {
+        double start = keyed[index].Candidate.StartSeconds;
+        var settings = new HashSet<int>();
+        for (int i = index; i >= 0 && keyed[i].Candidate.StartSeconds >= start - SyncSeconds; i--)
+        {
+            settings.Add(keyed[i].Candidate.SettingIndex);
+        }
+
+        for (int i = index + 1; i < keyed.Count && keyed[i].Candidate.StartSeconds <= start + SyncSeconds; i++)
+        {
+            settings.Add(keyed[i].Candidate.SettingIndex);
+        }
+
+        return settings.Count;
     }
 
     private static bool Overlaps(double aStart, double aEnd, double bStart, double bEnd) =>

@@ -38,7 +38,7 @@ public sealed class PositionCopiesReadNamedTests
     /// Placed again, the case's readings of each written block (where the synthesiser wrote its copies) lie in one
     /// position, no two blocks share one, and <paramref name="block"/> is among those read.
     /// </summary>
-    private static void AssertOnePositionPerBlock(string caseFile, int block)
+    internal static void AssertOnePositionPerBlock(string caseFile, int block)
     {
         var (capture, placed) = SavedCapture.PlaceAgain(caseFile);
 
