@@ -219,6 +219,8 @@ public sealed class DetectorBank
                 throw new ArgumentException($"A lane group takes at most {eventUp.Length} samples at a time.", nameof(samples));
             }
 
+            bool keepConditioned = tones is not null;
+
             // The index of the previous sample, kept as a vector so the loop converts no integer per sample.
             var sampleBefore = Vector256.Create(-1f);
 
@@ -244,8 +246,12 @@ public sealed class DetectorBank
                     lastCrossing = Vector256.ConditionalSelect(crossed, crossingTime, lastCrossing);
                     previousConditioned = c;
 
-                    // Kept for the tone correlators, which run over the slice after this loop when the bank has them.
-                    eventConditioned[n] = c;
+                    // Kept for the tone correlators, which run over the slice after this loop when the bank has them (the
+                    // branch goes the same way the whole slice).
+                    if (keepConditioned)
+                    {
+                        eventConditioned[n] = c;
+                    }
 
                     // Schmitt trigger: low goes high above +band, high goes low below −band.
                     state = ReadChainStep.Trigger(c, band, state, out var goUp, out var goDown);
