@@ -247,11 +247,10 @@ public static class Throughput
     /// its apphost (<c>TapeVault.Bench</c>, <c>dotnet run</c>), its assembly's path when the process is the dotnet host
     /// (<c>dotnet TapeVault.Bench.dll</c>), which would otherwise take <c>--child</c> for an option of its own.
     /// </summary>
-    internal static string[] SelfArguments()
-    {
-        string entry = typeof(Throughput).Assembly.Location;
-        return Path.GetFileNameWithoutExtension(Environment.ProcessPath) == Path.GetFileNameWithoutExtension(entry) ? [] : [entry];
-    }
+    internal static string[] SelfArguments() =>
+        string.Equals(Path.GetFileNameWithoutExtension(Environment.ProcessPath), "dotnet", StringComparison.OrdinalIgnoreCase)
+            ? [typeof(Throughput).Assembly.Location]
+            : [];
 
     /// <summary>
     /// Runs <paramref name="program"/> under GNU time (outside reference for peak resident memory and CPU time) and
