@@ -240,7 +240,17 @@ public static class Throughput
 
     /// <summary>A benchmark child process: the whole process is timed, start-up included.</summary>
     internal static Measured Child(string mode, string path, string profile) =>
-        Measure(Environment.ProcessPath!, ["--child", mode, path, profile]);
+        Measure(Environment.ProcessPath!, [.. SelfArguments(), "--child", mode, path, profile]);
+
+    /// <summary>
+    /// What the benchmark's own process needs before its arguments to start again as it was started: nothing through
+    /// its apphost (<c>TapeVault.Bench</c>, <c>dotnet run</c>), its assembly's path when the process is the dotnet host
+    /// (<c>dotnet TapeVault.Bench.dll</c>), which would otherwise take <c>--child</c> for an option of its own.
+    /// </summary>
+    internal static string[] SelfArguments() =>
+        string.Equals(Path.GetFileNameWithoutExtension(Environment.ProcessPath), "dotnet", StringComparison.OrdinalIgnoreCase)
+            ? [typeof(Throughput).Assembly.Location]
+            : [];
 
     /// <summary>
     /// Runs <paramref name="program"/> under GNU time (outside reference for peak resident memory and CPU time) and

@@ -110,6 +110,9 @@ public sealed class DetectorBank
         private Vector256<float>[] _eventCrossing, _eventEnvelope, _eventConditioned;
         private uint[] _eventUp, _eventDown;
 
+        // Per slice: each counted lane's edge array, reserved for the slice's switches (so the edges go in without a call each).
+        private Edge[][] _laneEdges;
+
         // State.
         private float _previousSample;
         private Vector256<float> _hpY, _z1, _z2, _previousFiltered, _previousConditioned, _envelope, _state, _lastCrossing;
@@ -171,6 +174,7 @@ public sealed class DetectorBank
                 _eventConditioned = new Vector256<float>[SliceSamples],
                 _eventUp = new uint[SliceSamples],
                 _eventDown = new uint[SliceSamples],
+                _laneEdges = new Edge[LanesPerGroup][],
             };
         }
 
@@ -215,6 +219,8 @@ public sealed class DetectorBank
                 throw new ArgumentException($"A lane group takes at most {eventUp.Length} samples at a time.", nameof(samples));
             }
 
+            bool keepConditioned = tones is not null;
+
             // The index of the previous sample, kept as a vector so the loop converts no integer per sample.
             var sampleBefore = Vector256.Create(-1f);
 
@@ -240,8 +246,12 @@ public sealed class DetectorBank
                     lastCrossing = Vector256.ConditionalSelect(crossed, crossingTime, lastCrossing);
                     previousConditioned = c;
 
-                    // Kept for the tone correlators, which run over the slice after this loop when the bank has them.
-                    eventConditioned[n] = c;
+                    // Kept for the tone correlators, which run over the slice after this loop when the bank has them (the
+                    // branch goes the same way the whole slice).
+                    if (keepConditioned)
+                    {
+                        eventConditioned[n] = c;
+                    }
 
                     // Schmitt trigger: low goes high above +band, high goes low below −band.
                     state = ReadChainStep.Trigger(c, band, state, out var goUp, out var goDown);
@@ -264,7 +274,19 @@ public sealed class DetectorBank
                 tones.Process(_firstSetting, eventConditioned.AsSpan(0, samples.Length), chunkStart, energies!, readingOffset);
             }
 
-            // The slice's counted switches become edges, outside the sample loop.
+            // The slice's counted switches become edges, outside the sample loop: each counted lane's buffer has room
+            // for all of them reserved first, and its count is kept here until the last.
+            var laneEdges = _laneEdges;
+            Span<int> laneCounts = stackalloc int[LanesPerGroup];
+            uint counting = countRising | countFalling;
+            for (uint lanes = counting; lanes != 0; lanes &= lanes - 1)
+            {
+                int lane = BitOperations.TrailingZeroCount(lanes);
+                var buffer = edges[_firstSetting + lane];
+                laneEdges[lane] = buffer.Reserve(events);
+                laneCounts[lane] = buffer.Count;
+            }
+
             for (int e = 0; e < events; e++)
             {
                 eventCrossing[e].CopyTo(crossingLanes);
@@ -275,12 +297,20 @@ public sealed class DetectorBank
                 {
                     int lane = BitOperations.TrailingZeroCount(counted);
                     counted &= counted - 1;
-                    edges[_firstSetting + lane].Add(new Edge(
+                    laneEdges[lane][laneCounts[lane]++] = new Edge(
                         chunkStart + (double)crossingLanes[lane],
                         (up & (1u << lane)) != 0,
-                        envelopeLanes[lane]));
+                        envelopeLanes[lane]);
                 }
             }
+
+            for (uint lanes = counting; lanes != 0; lanes &= lanes - 1)
+            {
+                int lane = BitOperations.TrailingZeroCount(lanes);
+                edges[_firstSetting + lane].Added(laneCounts[lane]);
+            }
+
+            Array.Clear(laneEdges);
 
             // Crossing times are kept relative to the chunk start; move them to the next chunk's frame.
             lastCrossing -= Vector256.Create((float)samples.Length);

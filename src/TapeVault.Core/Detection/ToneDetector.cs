@@ -116,7 +116,7 @@ public struct ToneDetector
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     private static float Decide(double mark, double space, double markLevel, double spaceLevel, bool taught, ref double balance, ref bool balanceStale)
     {
-        if (markLevel <= 0 || spaceLevel <= 0)
+        if (Unknown(markLevel, spaceLevel))
         {
             // Until both tones have been heard alone, assume they are balanced.
             balanceStale |= taught;
@@ -213,31 +213,13 @@ public struct ToneDetector
 
                     taughtAny |= taught;
 
-                    // D's numerator and denominator for the balance the levels give (bounded as Rebalance bounds it).
+                    // D's numerator and denominator for the balance the levels give, bounded (Weights).
                     // The energies are sums of squares, so the denominator is not negative.
-                    double numerator, denominator;
-                    if (markLevel <= 0 || spaceLevel <= 0)
-                    {
-                        numerator = mark - space;
-                        denominator = mark + space;
-                    }
-                    else if (markLevel >= MaximumToneImbalance * spaceLevel)
-                    {
-                        numerator = mark - (space * MaximumToneImbalance);
-                        denominator = mark + (space * MaximumToneImbalance);
-                    }
-                    else if (markLevel * MaximumToneImbalance <= spaceLevel)
-                    {
-                        numerator = mark - (space / MaximumToneImbalance);
-                        denominator = mark + (space / MaximumToneImbalance);
-                    }
-                    else
-                    {
-                        double markWeighted = mark * spaceLevel;
-                        double spaceWeighted = space * markLevel;
-                        numerator = markWeighted - spaceWeighted;
-                        denominator = markWeighted + spaceWeighted;
-                    }
+                    var weights = Weights(markLevel, spaceLevel);
+                    double markWeighted = mark * weights.Mark;
+                    double spaceWeighted = space * weights.Space;
+                    double numerator = markWeighted - spaceWeighted;
+                    double denominator = markWeighted + spaceWeighted;
 
                     if (!(Math.Abs(numerator) > denominator * SignMargin))
                     {
@@ -316,30 +298,23 @@ public struct ToneDetector
     private const double LevelsMargin = 1e-14;
 
     /// <summary>
-    /// D with the mark energy divided by the balance M/S of the levels <paramref name="markLevel"/> and
+    /// D with the mark energy divided by the balance of the levels <paramref name="markLevel"/> and
     /// <paramref name="spaceLevel"/> (both positive), without working the balance out: the float
-    /// <see cref="Balanced"/> gives with the balance <see cref="Rebalance"/> gives, where the levels' ratio is inside
-    /// the bounds by more than its rounding and where the quotient, widened by <see cref="QuotientMargin"/> and
-    /// <see cref="LevelsMargin"/>, rounds to one float (then Balanced's own quotient, within the narrower margin of
-    /// the same point, rounds to it as well); NaN elsewhere, where the caller works the balance out.
+    /// <see cref="Balanced"/> gives with the balance <see cref="Rebalance"/> gives, where the quotient of the levels'
+    /// weights (<see cref="Weights"/>), widened by <see cref="QuotientMargin"/> and <see cref="LevelsMargin"/>, rounds
+    /// to one float (then Balanced's own quotient, within the narrower margin of the same point, rounds to it as well:
+    /// past the bounds the weights are the bound's, which Rebalance gives exactly); NaN elsewhere, where the caller
+    /// works the balance out.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     internal static float FromLevels(double mark, double space, double markLevel, double spaceLevel)
     {
-        // Multiplying by 16 is exact; the factor 1 ∓ 1e-12 keeps M/S, rounded, strictly inside the bounds.
-        if (markLevel < MaximumToneImbalance * spaceLevel * (1 - 1e-12) && markLevel * MaximumToneImbalance > spaceLevel * (1 + 1e-12))
-        {
-            double markWeighted = mark * spaceLevel;
-            double spaceWeighted = space * markLevel;
-            double quotient = (markWeighted - spaceWeighted) / (markWeighted + spaceWeighted);
-            float below = (float)(quotient - (QuotientMargin + LevelsMargin));
-            if (below == (float)(quotient + (QuotientMargin + LevelsMargin)))
-            {
-                return below;
-            }
-        }
-
-        return float.NaN;
+        var weights = Weights(markLevel, spaceLevel);
+        double markWeighted = mark * weights.Mark;
+        double spaceWeighted = space * weights.Space;
+        double quotient = (markWeighted - spaceWeighted) / (markWeighted + spaceWeighted);
+        float below = (float)(quotient - (QuotientMargin + LevelsMargin));
+        return below == (float)(quotient + (QuotientMargin + LevelsMargin)) ? below : float.NaN;
     }
 
     /// <summary>
@@ -374,13 +349,51 @@ public struct ToneDetector
     private static double LevelStep(double samples, double settled, double gain) => samples > settled ? gain : Math.Max(gain, 1.0 / samples);
 
     /// <summary>
-    /// The mark level over the space level (both positive), bounded: past 12 dB between the tones (more than any deck's
-    /// high-frequency loss, common practice) the weaker tone is mostly gone, and lifting it further would lift noise
-    /// into confident decisions.
+    /// The weights on the mark and space energies in D for the tone levels <paramref name="markLevel"/> and
+    /// <paramref name="spaceLevel"/>: D = (Em·Mark − Es·Space)/(Em·Mark + Es·Space), the balance being Space/Mark. Inside
+    /// 12 dB between the tones the levels themselves (S on Em, M on Es); past it the bound's (1 on Em, 16 or 1/16 on Es):
+    /// past 12 dB (more than any deck's high-frequency loss, common practice) the weaker tone is mostly gone, and lifting
+    /// it further would lift noise into confident decisions. Until both levels are known (either not above 0), 1 and 1:
+    /// the tones taken as balanced. The one place the bounds are applied: the balance (<see cref="Rebalance"/>), D from
+    /// the levels (<see cref="FromLevels"/>) and the sign of D in the loop within a character all take them from here.
+    /// Multiplying by 16 or 1/16 is exact, so the comparisons are those of the levels' exact ratio with the bounds.
     /// </summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    internal static double Rebalance(double markLevel, double spaceLevel) =>
-        Math.Clamp(markLevel / spaceLevel, 1.0 / MaximumToneImbalance, MaximumToneImbalance);
+    private static (double Mark, double Space) Weights(double markLevel, double spaceLevel)
+    {
+        if (Unknown(markLevel, spaceLevel))
+        {
+            return (1, 1);
+        }
+
+        if (markLevel >= MaximumToneImbalance * spaceLevel)
+        {
+            return (1, MaximumToneImbalance);
+        }
+
+        if (markLevel * MaximumToneImbalance <= spaceLevel)
+        {
+            return (1, 1 / MaximumToneImbalance);
+        }
+
+        return (spaceLevel, markLevel);
+    }
+
+    /// <summary>Whether a tone level is not known yet (0 until a window that holds that tone alone taught it).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static bool Unknown(double markLevel, double spaceLevel) => markLevel <= 0 || spaceLevel <= 0;
+
+    /// <summary>
+    /// The mark level over the space level (both positive), bounded (<see cref="Weights"/>): the levels' ratio rounded,
+    /// or the bound it is past. The same double as clamping the rounded ratio to the bounds, since rounding is monotone
+    /// and the bounds are doubles.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    internal static double Rebalance(double markLevel, double spaceLevel)
+    {
+        var weights = Weights(markLevel, spaceLevel);
+        return weights.Space / weights.Mark;
+    }
 
     /// <summary>A new recording learns its own tone balance: the space level starts again from the next pure window.</summary>
     public void ForgetSpaceLevel()

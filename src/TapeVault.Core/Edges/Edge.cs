@@ -26,4 +26,27 @@ public sealed class EdgeBuffer
 
         _items[Count++] = edge;
     }
+
+    /// <summary>
+    /// Room for <paramref name="more"/> edges after those held, for a writer that appends many at once without a call
+    /// each: the array to write them into from <see cref="Count"/> on, then <see cref="Added"/> with the new count.
+    /// </summary>
+    internal Edge[] Reserve(int more)
+    {
+        int needed = Count + more;
+        if (needed > _items.Length)
+        {
+            Array.Resize(ref _items, Math.Max(_items.Length * 2, needed));
+        }
+
+        return _items;
+    }
+
+    /// <summary>The edges written after <see cref="Reserve"/>: the buffer now holds <paramref name="count"/>.</summary>
+    internal void Added(int count)
+    {
+        ArgumentOutOfRangeException.ThrowIfLessThan(count, Count);
+        ArgumentOutOfRangeException.ThrowIfGreaterThan(count, _items.Length);
+        Count = count;
+    }
 }

@@ -101,7 +101,7 @@ internal static class BitVote
         }
 
         // The least certain bits, and every pattern of flips over them, cheapest (most probable) first.
-        int k = Math.Min(Math.Min(repairBits, certainty.Length), 30);
+        int k = Math.Min(Math.Min(repairBits, certainty.Length), MergeOptions.MostRepairBits);
         var weakest = Enumerable.Range(0, certainty.Length).OrderBy(i => certainty[i]).Take(k).ToArray();
         int patterns = 1 << k;
         var cost = new double[patterns];
