@@ -166,29 +166,37 @@ internal sealed class StreamMerge
         return spacings[spacings.Count / 2];
     }
 
-    /// <summary>Anchors for aligning passes: runs of four confident bytes, each at the time of its first, in nominal tape seconds.</summary>
+    /// <summary>Anchors for aligning passes: runs of four confident bytes, each at the time of its first, in nominal tape seconds (<see cref="AddAnchors"/>).</summary>
     public static List<(long Feature, double Time)> Anchors(MergePass pass, double speed, double character)
     {
         var anchors = new List<(long, double)>();
         foreach (var c in pass.Candidates)
         {
-            for (int i = 0; i + 3 < c.Payload.Length; i++)
-            {
-                bool confident = true;
-                for (int k = 0; k < 4 && confident; k++)
-                {
-                    confident = c.ByteErrorOdds[i + k] < 0.05 && (k == 0 || (c.ByteSeconds[i + k] - c.ByteSeconds[i + k - 1]) * speed < 1.5 * character);
-                }
-
-                if (confident)
-                {
-                    long feature = (uint)c.Payload[i] | ((uint)c.Payload[i + 1] << 8) | ((uint)c.Payload[i + 2] << 16) | ((uint)c.Payload[i + 3] << 24);
-                    anchors.Add((feature, speed * c.ByteSeconds[i]));
-                }
-            }
+            AddAnchors(c, seconds => speed * seconds, character, anchors);
         }
 
         return anchors;
+    }
+
+    /// <summary>
+    /// Adds one reading's anchors: each run of four confident characters that follow one another back to back, at the
+    /// time (<paramref name="time"/> of its capture's seconds) of its first.
+    /// </summary>
+    private static void AddAnchors(BlockCandidate c, Func<double, double> time, double character, List<(long Feature, double Time)> anchors)
+    {
+        for (int i = 0; i + 3 < c.Payload.Length; i++)
+        {
+            bool confident = true;
+            for (int k = 0; k < 4 && confident; k++)
+            {
+                confident = c.ByteErrorOdds[i + k] < 0.05 && (k == 0 || time(c.ByteSeconds[i + k]) - time(c.ByteSeconds[i + k - 1]) < 1.5 * character);
+            }
+
+            if (confident)
+            {
+                anchors.Add((Feature(c.Payload.AsSpan(i, 4)), time(c.ByteSeconds[i])));
+            }
+        }
     }
 
     public List<ImageBlock> Resolve()
@@ -334,11 +342,20 @@ internal sealed class StreamMerge
         int reference = Math.Max(0, Array.FindIndex(_timelines, t => t.Scale == 1 && t.Offset == 0));
         var order = Enumerable.Range(0, _passes.Count).OrderBy(p => p == reference ? 0 : 1).ThenByDescending(p => features[p].Sum(f => f.Count)).ToList();
         var placed = new List<(long Feature, double Time)>(features[reference].SelectMany(f => f));
+        var placedEnds = new List<(long Feature, double Time)>(_passes[reference].Candidates.SelectMany(c => ReadingEnds(c, _timelines[reference])));
         foreach (int p in order.Skip(1))
         {
+            var candidates = _passes[p].Candidates;
             for (int ci = 0; ci < features[p].Length; ci++)
             {
                 var (scale, offset, inliers) = PassTimeline.Fit(placed, features[p][ci], character, 0, minimumSpread: 40 * character);
+                if (inliers < MinimumReadingPairs)
+                {
+                    // Too few runs of its own to place it (a file of one byte repeated, a short reading): it lies where
+                    // other readings that begin or end with its characters begin and end.
+                    (scale, offset, inliers) = PassTimeline.Fit(placedEnds, [.. ReadingEnds(candidates[ci], _timelines[p])], character, 0, minimumSpread: 40 * character);
+                }
+
                 if (inliers >= MinimumReadingPairs)
                 {
                     lines[p][ci] = (scale, offset);
@@ -349,34 +366,50 @@ internal sealed class StreamMerge
             {
                 var (scale, offset) = lines[p][ci];
                 placed.AddRange(features[p][ci].Select(f => (f.Feature, (scale * f.Time) + offset)));
+                placedEnds.AddRange(ReadingEnds(candidates[ci], _timelines[p]).Select(f => (f.Feature, (scale * f.Time) + offset)));
             }
         }
 
         return lines;
     }
 
+    /// <summary>
+    /// A reading's first and last four characters, each marked as its start or its end, at the time of their first on its
+    /// pass's line. A reading without enough runs of its own to be fitted (<see cref="MinimumReadingPairs"/>) is placed by
+    /// these where at least as many ends of the readings placed before it agree: the tone of a stretch begins and ends on
+    /// every capture at the same characters, whatever the silence before it was on each recording. A file of one byte
+    /// repeated has no run that says where along it a reading lies, and its pass's line, fitted on the other files, is
+    /// off by as much as the silences between files differ: the run then reads longer than it was written, its extra
+    /// characters one capture's alone.
+    /// </summary>
+    private static IEnumerable<(long Feature, double Time)> ReadingEnds(BlockCandidate c, PassTimeline timeline)
+    {
+        if (c.Payload.Length < 4)
+        {
+            yield break;
+        }
+
+        yield return (Feature(c.Payload.AsSpan(0, 4)) | ReadingStartMark, timeline.Map(c.ByteSeconds[0]));
+        yield return (Feature(c.Payload.AsSpan(c.Payload.Length - 4, 4)) | ReadingEndMark, timeline.Map(c.ByteSeconds[^4]));
+    }
+
+    /// <summary>Marks a feature as a reading's first four characters (features are four bytes: bits 0–31).</summary>
+    private const long ReadingStartMark = 1L << 40;
+
+    /// <summary>Marks a feature as a reading's last four characters.</summary>
+    private const long ReadingEndMark = 1L << 41;
+
+    /// <summary>Four characters as one feature.</summary>
+    private static long Feature(ReadOnlySpan<byte> four) => (uint)four[0] | ((uint)four[1] << 8) | ((uint)four[2] << 16) | ((uint)four[3] << 24);
+
     /// <summary>The least number of a reading's runs of confident characters that must agree on where it lies.</summary>
     private const int MinimumReadingPairs = 3;
 
-    /// <summary>Runs of four confident characters of one reading, each at the time of its first on its pass's line.</summary>
+    /// <summary>Runs of four confident characters of one reading, each at the time of its first on its pass's line (<see cref="AddAnchors"/>).</summary>
     private static List<(long Feature, double Time)> ReadingAnchors(BlockCandidate c, PassTimeline timeline, double character)
     {
         var anchors = new List<(long, double)>();
-        for (int i = 0; i + 3 < c.Payload.Length; i++)
-        {
-            bool confident = true;
-            for (int k = 0; k < 4 && confident; k++)
-            {
-                confident = c.ByteErrorOdds[i + k] < 0.05 && (k == 0 || timeline.Map(c.ByteSeconds[i + k]) - timeline.Map(c.ByteSeconds[i + k - 1]) < 1.5 * character);
-            }
-
-            if (confident)
-            {
-                long feature = (uint)c.Payload[i] | ((uint)c.Payload[i + 1] << 8) | ((uint)c.Payload[i + 2] << 16) | ((uint)c.Payload[i + 3] << 24);
-                anchors.Add((feature, timeline.Map(c.ByteSeconds[i])));
-            }
-        }
-
+        AddAnchors(c, timeline.Map, character, anchors);
         return anchors;
     }
 

@@ -55,6 +55,33 @@ public sealed class StreamMergeOutsideTests(OutsideTempFolder temp, ITestOutputH
         Assert.Equal(2, image.Blocks[0].AgreeingCaptures);
     }
 
+    [Fact]
+    public void Stream_AFileOfOneByteRepeated_MergesToItsWrittenLength_WhereTheRecordingsLeaveDifferentSilenceAfterIt()
+    {
+        // The first file is zero fill: any four of its characters are the same four, so none says where along it a reading
+        // lies, and a capture's reading of it can only be placed by where it begins and ends. (Zero frames only one way:
+        // nine spaces, then the two stop bits.)
+        byte[] first = new byte[60];
+        byte[] second = KcsCaptures.Text[..100];
+        string firstTones = Tones("fill", first);
+        string secondTones = Tones("fill-second", second);
+
+        // Capture A: 0.7 s of silence between the files; capture B: 0.8 s.
+        string a = temp.File("fill-capture-a.wav");
+        string b = temp.File("fill-capture-b.wav");
+        OutsideTool.Sox(LeadIn(), firstTones, Silence("fill-gap-a", 0.7), LeadIn(), secondTones, Silence("fill-end-a", 0.3), a);
+        OutsideTool.Sox(LeadIn(), firstTones, Silence("fill-gap-b", 0.8), LeadIn(), secondTones, Silence("fill-end-b", 0.3), b);
+
+        var profile = ProfileCatalog.BuiltIn.Get("kcs-1200");
+        var results = new[] { CaptureDecoder.Decode(a, profile), CaptureDecoder.Decode(b, profile) };
+        var image = TapeMerger.Merge(results, ["fill-capture-a.wav", "fill-capture-b.wav"]);
+        output.WriteLine(string.Join("\n", image.Blocks.Select(x => $"{x.Key} {x.Status} {x.Confidence:0.0000} agree {x.AgreeingCaptures}: {KcsCaptures.Hex(x.Payload.AsSpan())}")));
+
+        // Outside reference: the two files minimodem was given, each whole and no longer, read alike by both captures.
+        Assert.Equal([KcsCaptures.Hex(first), KcsCaptures.Hex(second)], image.Blocks.Select(x => KcsCaptures.Hex(x.Payload.AsSpan())));
+        Assert.All(image.Blocks, x => Assert.Equal(2, x.AgreeingCaptures));
+    }
+
     /// <summary>minimodem's Kansas City tones of <paramref name="text"/>, checked by minimodem's own receiver.</summary>
     private string Tones(string name, byte[] text)
     {

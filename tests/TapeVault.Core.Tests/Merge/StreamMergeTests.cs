@@ -110,6 +110,33 @@ public sealed class StreamMergeTests
     }
 
     [Fact]
+    public void Stream_AFileOfOneByteRepeated_IsPlacedByItsEnds_WhereTheSilenceBeforeTheNextFileDiffers()
+    {
+        // Two files, each after a second of idle tone: sixty characters of one byte (a fill byte: four characters of it
+        // are the same four wherever along the run they stand, so they say nothing of where a reading lies), then text.
+        // The second capture was recorded with a tenth of a second more idle tone between the files (eleven characters
+        // at 1200 baud): its pass's line, which only the text can fit, puts its reading of the fill eleven characters late.
+        var fill = Enumerable.Repeat((byte)0xFC, 60).ToArray();
+        var text = Text();
+        // Each capture is read by two detector settings alike.
+        MergePass Capture(int capture, double start, double pause) => Readings.Pass(
+            capture,
+            [.. new[] { "s0", "s1" }.SelectMany(setting => new[]
+            {
+                Readings.Stream(fill, 0, fill.Length, start, Character, setting),
+                Readings.Stream(text, 0, text.Length, start + (fill.Length * Character) + pause, Character, setting, position: 1),
+            })]);
+
+        var image = TapeMerger.Merge([Capture(0, 1.0, 1.0), Capture(1, 1.3, 1.1)], Kcs);
+
+        // Each file as written (the bytes the readings were built from, KCS framing as above): the fill is read whole and
+        // no longer, by both captures (before, the run read longer than written: the second capture's reading of it lay
+        // where its pass's line put it, eleven characters late).
+        Assert.Equal([Hex(fill), Hex(text)], image.Blocks.Select(b => Hex(b.Payload)));
+        Assert.All(image.Blocks, b => Assert.Equal(2, b.AgreeingCaptures));
+    }
+
+    [Fact]
     public void Stream_ADropoutInEveryPass_LeavesAMissingGap_NeverClosedUp()
     {
         var text = Text();
