@@ -90,6 +90,32 @@ public sealed class SavedMergeCaseTests
         }
     }
 
+    [Fact]
+    public void A_pass_that_read_no_block_clean_joins_the_position_its_readings_mostly_name()
+    {
+        // one-cycle-bits, seed 126335: ten one-block files. The third pass read every block but one clean; the SoX pass
+        // read none. Its position over the second block holds four garbled readings with four identities, two of them
+        // block number 0 (the block's) and two misframed ones carrying 64 and 20; the first of them, number 64, was
+        // taken for the position's identity, which kept it from the second block's position, and its one reading whose
+        // 16-bit sum holds (two header bytes and the stored sum's high byte misread alike) stood alone as a voted block
+        // at 0.994 that was never written.
+        var tape = Load("one-cycle-bits-garbled-headers-three-passes.json");
+        var profile = ProfileCatalog.BuiltIn.Get(tape.Profile);
+        var written = tape.Written.Select(Convert.FromHexString).ToList();
+        var passes = tape.Passes.Select((p, i) => Readings.Pass(i, [.. p.Candidates])).ToList();
+        var readClean = written.Where(w => passes.Any(p => p.Candidates.Any(c => c.Status == BlockStatus.Clean && IsBlock(profile, c, w)))).ToList();
+
+        var image = TapeMerger.Merge(passes, profile);
+
+        // Ground truth: the blocks the synthesiser wrote. A position the merge is sure of is one of them, and every
+        // written block some pass read clean is a clean position of its own.
+        var sure = image.Blocks.Where(b => b.Status != RecoveryStatus.Missing && b.Confidence >= 0.99).ToList();
+        Assert.All(sure, b => Assert.True(written.Exists(w => IsBlock(profile, b.Header, b.Payload, w)), $"position {b.Position} ({b.Key}, {b.Status} at {b.Confidence}) was never written"));
+        var clean = image.Blocks.Where(b => b.Status == RecoveryStatus.Clean).ToList();
+        Assert.Equal(readClean.Count, clean.Count);
+        Assert.All(readClean, w => Assert.Contains(clean, b => IsBlock(profile, b.Header, b.Payload, w)));
+    }
+
     /// <summary>The written copy of the pass whose sync a reading that starts at <paramref name="start"/> starts at (within 30 ms), or null.</summary>
     private static WrittenSpan? WrittenAt(SavedPass pass, double start) =>
         pass.Copies!.Cast<WrittenSpan?>().FirstOrDefault(w => Math.Abs(w!.Value.DataSeconds - start) <= 0.03);
