@@ -13,7 +13,10 @@ namespace TapeVault.Bench;
 /// <see cref="PositionReplay"/>), and judges its positions as the trust bench does: per profile, the positions, those
 /// wrong and clean, the merged ECE and the positions wrong at confidence 0.99 or more. Decoding is by far the slow part
 /// of the trust bench, and the merge reads nothing but the saved readings, so a change to the merge is tried on many
-/// tapes in seconds. With --dump, every position is written as a row (profile, seed, status, confidence, right, key);
+/// tapes in seconds. A second table counts the written blocks: those with a right position, the positions beyond one per
+/// written block (missing ones counted: a place the merge could not join to its block's readings), and the exact images
+/// as the trust bench counts them. With --dump, every position is written as a row (profile, seed, status, confidence,
+/// right, agreeing captures, sources, key, and the index of the written block it is, or -1);
 /// --trials-after-hit N bounds the repair search's patterns after one that holds (MergeOptions.TrialsAfterHit).
 /// </summary>
 public static class MergeReplay
@@ -46,6 +49,7 @@ public static class MergeReplay
             .OrderBy(g => g.Key.Profile, StringComparer.Ordinal).ThenBy(g => g.Key.Seed)
             .ToList();
         var rows = new List<(string Profile, int Seed, RecoveryStatus Status, double Confidence, bool Right)>();
+        var tapes = new List<(string Profile, int Written, int Found, int Positions, bool Exact)>();
         var lines = new List<string>();
         var watch = System.Diagnostics.Stopwatch.StartNew();
         var cpu = System.Diagnostics.Process.GetCurrentProcess().TotalProcessorTime;
@@ -57,14 +61,32 @@ public static class MergeReplay
                 s.Candidates,
                 "replay")).ToList();
             var written = tape.First().Written.Select(Convert.FromHexString).ToList();
-            var judge = Trust.Judge(profile, [], written, out _);
+            var truth = RecoveryCorpus.WrittenIndex(profile, written);
             var image = TapeMerger.Merge(passes, profile, options);
-            foreach (var block in image.Blocks.Where(b => b.Status != RecoveryStatus.Missing))
+            var found = new HashSet<int>();
+            bool exact = image.Blocks.Length == written.Count;
+            foreach (var block in image.Blocks)
             {
-                bool right = judge(block.Header.AsSpan(), block.Payload.AsSpan());
+                int index = truth.GetValueOrDefault(RecoveryCorpus.HeaderAndPayload(block.Header.AsSpan(), block.Payload.AsSpan()), -1);
+                bool right = block.Status != RecoveryStatus.Missing && index >= 0;
+
+                // Exact as the trust bench counts it: every position clean, right and read alike by two captures or more.
+                exact &= right && block.Status == RecoveryStatus.Clean && block.AgreeingCaptures >= 2;
+                if (block.Status == RecoveryStatus.Missing)
+                {
+                    continue;
+                }
+
+                if (right)
+                {
+                    found.Add(index);
+                }
+
                 rows.Add((profile.Id, tape.Key.Seed, block.Status, block.Confidence, right));
-                lines.Add(string.Join('\t', profile.Id, tape.Key.Seed, block.Status, block.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0, block.AgreeingCaptures, block.Sources.Length, block.Key));
+                lines.Add(string.Join('\t', profile.Id, tape.Key.Seed, block.Status, block.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0, block.AgreeingCaptures, block.Sources.Length, block.Key, right ? index : -1));
             }
+
+            tapes.Add((profile.Id, written.Count, found.Count, image.Blocks.Length, exact && found.Count == written.Count));
         }
 
         if (dump is not null)
@@ -88,6 +110,23 @@ public static class MergeReplay
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"{group.Key,-18} {items.Select(r => r.Seed).Distinct().Count(),5} {items.Count,9} {items.Count(r => !r.Right && r.Status == RecoveryStatus.Clean),11} " +
                 $"{Calibration.EqualBinEce([.. items.Select(r => (r.Confidence, r.Right))]),10:0.0000} {items.Count(r => !r.Right && r.Confidence >= Trust.StreamConfidentWrong),13}  {statuses}"));
+        }
+
+        Console.WriteLine();
+        Console.WriteLine("Written blocks: with a right position and without; positions (missing ones too) beyond one per written block,");
+        Console.WriteLine("summed over tapes, and the tapes with any; exact images (every position clean, right, read alike by two captures).");
+        Console.WriteLine($"{"profile",-18} {"tapes",5} {"written",7} {"found",6} {"not found",9} {"extra positions",15} {"on tapes",8} {"exact",5}");
+        foreach (var group in tapes.GroupBy(t => t.Profile).Append(tapes.GroupBy(_ => "all").FirstOrDefault()))
+        {
+            if (group is null)
+            {
+                continue;
+            }
+
+            var items = group.ToList();
+            Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
+                $"{group.Key,-18} {items.Count,5} {items.Sum(t => t.Written),7} {items.Sum(t => t.Found),6} {items.Sum(t => t.Written - t.Found),9} " +
+                $"{items.Sum(t => Math.Max(0, t.Positions - t.Written)),15} {items.Count(t => t.Positions > t.Written),8} {items.Count(t => t.Exact),5}"));
         }
 
         Console.WriteLine($"{saved.Count} tapes merged in {watch.Elapsed.TotalSeconds:0.0} s wall, {(System.Diagnostics.Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:0.0} s processor time (load {MachineLoad.Averages()})");

@@ -105,6 +105,15 @@ internal sealed class BlockMerge
 
         /// <summary>The key of <see cref="Identity"/>.</summary>
         public string Key => Identity.Key;
+
+        /// <summary>How many of the entry's readings carry <see cref="Identity"/> (a clean one counts for all).</summary>
+        public required int Support { get; init; }
+
+        /// <summary>
+        /// The block numbers the entry names: its clean reading's; with none, its identity's and each number that as
+        /// many of its readings carry as any other (a tie names each); empty where no reading carries one.
+        /// </summary>
+        public required IReadOnlySet<long> Numbers { get; init; }
     }
 
     private sealed class Group(Entry first)
@@ -116,6 +125,9 @@ internal sealed class BlockMerge
         public double End { get; set; } = first.End;
 
         public string? TrustedKey { get; } = first.TrustedKey;
+
+        /// <summary>The identity key of the group's first entry: its clean reading's, or for a group of entries with none, its strongest entry's.</summary>
+        public string Key { get; } = first.TrustedKey ?? first.Key;
 
         public bool Has(int pass) => Entries.Exists(e => e.Pass == pass);
 
@@ -145,8 +157,9 @@ internal sealed class BlockMerge
 
     /// <summary>
     /// Positions across passes. Entries with a clean reading go first: they join a group of the same identity whose
-    /// stretch of tape they overlap; the rest join the group they overlap most (an equal identity counting for more),
-    /// or start a group of their own, which will be resolved by vote or left missing.
+    /// stretch of tape they overlap. The rest go strongest first (see <see cref="Best"/>) and join the group they overlap
+    /// most (an equal identity counting for more), or start a group of their own, which will be resolved by vote or
+    /// left missing.
     /// </summary>
     private List<Group> GroupEntries()
     {
@@ -158,9 +171,18 @@ internal sealed class BlockMerge
             {
                 var readings = position.ToList();
                 var trusted = readings.Where(c => c.Status == BlockStatus.Clean).MaxBy(c => c.Confidence);
-                var identity = trusted?.Identity
-                    ?? readings.Where(c => !c.Header.IsEmpty).GroupBy(c => c.Identity.Key).MaxBy(g => g.Count())?.First().Identity
-                    ?? readings[0].Identity;
+                // With no clean reading, the identity most of its readings carry; of those alike in number, one read to
+                // the length most readings have (a header whose length field was misread runs on over the next blocks),
+                // then the one whose header's bytes the reading was surest of: never merely the first (a misframed
+                // reading carries a header no other setting read).
+                int usualLength = readings.GroupBy(c => c.Payload.Length).OrderByDescending(g => g.Count()).ThenBy(g => g.Key).First().Key;
+                var carried = readings.Where(c => !c.Header.IsEmpty).GroupBy(c => c.Identity.Key)
+                    .OrderByDescending(g => g.Count())
+                    .ThenByDescending(g => g.Any(c => c.Payload.Length == usualLength))
+                    .ThenBy(g => g.Min(HeaderError))
+                    .ThenBy(g => g.Key, StringComparer.Ordinal)
+                    .FirstOrDefault();
+                var identity = trusted?.Identity ?? carried?.First().Identity ?? readings[0].Identity;
                 // The position's stretch of tape is what its clean readings and those that agree with its identity
                 // prove: a reading with another header (a stray one that joined the stretch it follows, a misread that
                 // ran on) would stretch it over the next block and draw other passes' readings of that block in.
@@ -184,6 +206,10 @@ internal sealed class BlockMerge
                     TrustedKey = trusted?.Identity.Key,
                     TrustedContent = trusted is null ? null : Convert.ToHexString(trusted.Header.AsSpan()) + trusted.PayloadHex,
                     Identity = identity,
+                    Support = trusted is not null ? readings.Count : carried?.Count() ?? 0,
+                    Numbers = trusted is not null
+                        ? trusted.Identity.BlockNumber is long n ? new HashSet<long> { n } : []
+                        : [.. LeadingNumbers(readings), .. identity.BlockNumber is long m ? [m] : Array.Empty<long>()],
                 });
             }
         }
@@ -218,55 +244,79 @@ internal sealed class BlockMerge
             }
         }
 
-        foreach (var entry in entries.Where(e => e.TrustedKey is null).OrderBy(e => e.Start))
+        // Then the entries with no clean reading, strongest evidence first: those whose identity most of their readings
+        // carry (a reading garbled alone names a block no other reading does), then in tape order. Each joins a group
+        // judged by the stretch of tape the group had when it was made (its clean readings', or its first entry's), so
+        // what an entry joins depends on its own readings and the groups' evidence, not on the entries that joined
+        // before it; what joins none is a group of its own.
+        var stretches = groups.Select(g => (Group: g, g.Start, g.End)).ToList();
+        foreach (var entry in entries.Where(e => e.TrustedKey is null).OrderByDescending(e => e.Support).ThenBy(e => e.Start).ThenBy(e => e.Pass))
         {
-            Group? best = null;
-            double bestScore = double.NegativeInfinity;
-            foreach (var g in groups)
+            if (Best(stretches, entry) is { } g)
             {
-                // Readings of one block in different passes share most of its stretch of tape; the gap to the next
-                // block can be shorter than the slack that identities are allowed. A group's stretch is that of all its
-                // entries, and a pass whose timeline drifts lies over the next block: an entry whose readings carry
-                // another block number is that block, not this one.
-                if (!g.Shares(entry) || !SameNumber(g.Entries[0].Identity, entry.Identity))
-                {
-                    continue;
-                }
-
-                double score = g.Overlap(entry) + (g.Entries[0].Key == entry.Key ? 10 : 0);
-                if (score > bestScore)
-                {
-                    best = g;
-                    bestScore = score;
-                }
-            }
-
-            // A format that writes each block more than once: a reading of one copy may lie beside a position
-            // whose readings are of the other copy; it joins it when it carries the same identity, and only an
-            // identity that names a file tells which block it is: one without (a header read without its name, a
-            // block of a later kind read without the block that names it) is every file's block of that kind, and
-            // would chain the neighbouring files' blocks into one position.
-            if (best is null && Layout.Copies > 1 && NamesFile(entry.Identity))
-            {
-                double reach = (entry.End - entry.Start) + 0.5;
-                best = groups
-                    .Where(g => (g.TrustedKey ?? g.Entries[0].Key) == entry.Key && g.Overlap(entry) > -reach)
-                    .MaxBy(g => g.Overlap(entry));
-            }
-
-            if (best is null)
-            {
-                groups.Add(new Group(entry));
+                g.Add(entry);
             }
             else
             {
-                best.Add(entry);
+                var group = new Group(entry);
+                groups.Add(group);
+                stretches.Add((group, entry.Start, entry.End));
             }
         }
 
         // Tape order by the median start of a group's entries: one entry that spans two blocks (a pass whose
         // readings ran together) must not pull its group ahead of the block before it.
         return [.. groups.OrderBy(g => Median(g.Entries.Select(e => e.Start)))];
+    }
+
+    /// <summary>
+    /// The group an entry with no clean reading joins, of <paramref name="groups"/> judged by the stretch of tape each
+    /// had before such entries joined: readings of one block in different passes share most of its stretch; the gap to
+    /// the next block can be shorter than the slack that identities are allowed. A pass whose timeline drifts lies over
+    /// the next block: an entry whose readings mostly carry another block number is that block, not this one. Of
+    /// those it may join, the one it overlaps most, an equal identity counting for more; null for none.
+    /// </summary>
+    private Group? Best(List<(Group Group, double Start, double End)> groups, Entry entry)
+    {
+        Group? best = null;
+        double bestScore = double.NegativeInfinity;
+        foreach (var (g, start, end) in groups)
+        {
+            double overlap = Math.Min(end, entry.End) - Math.Max(start, entry.Start);
+            if (overlap <= 0.25 * Math.Min(entry.End - entry.Start, end - start) || !SameNumber(g.Entries[0], entry))
+            {
+                continue;
+            }
+
+            double score = overlap + (g.Key == entry.Key ? 10 : 0);
+            if (score > bestScore)
+            {
+                best = g;
+                bestScore = score;
+            }
+        }
+
+        // A format that writes each block more than once: a reading of one copy may lie beside a position
+        // whose readings are of the other copy; it joins it when it carries the same identity, and only an
+        // identity that names a file tells which block it is: one without (a header read without its name, a
+        // block of a later kind read without the block that names it) is every file's block of that kind, and
+        // would chain the neighbouring files' blocks into one position.
+        if (best is null && Layout.Copies > 1 && NamesFile(entry.Identity))
+        {
+            double reach = (entry.End - entry.Start) + 0.5;
+            double most = -reach;
+            foreach (var (g, start, end) in groups)
+            {
+                double overlap = Math.Min(end, entry.End) - Math.Max(start, entry.Start);
+                if (g.Key == entry.Key && overlap > most)
+                {
+                    best = g;
+                    most = overlap;
+                }
+            }
+        }
+
+        return best;
     }
 
     /// <summary>
@@ -287,11 +337,28 @@ internal sealed class BlockMerge
         return group.Overlap(entry) > -OverlapSlack || entry.Start <= group.End + reach;
     }
 
+    /// <summary>The block numbers that as many readings with a header carry as any other number does (empty where none carries one).</summary>
+    private static HashSet<long> LeadingNumbers(List<BlockCandidate> readings)
+    {
+        var counts = readings.Where(c => !c.Header.IsEmpty && c.Identity.BlockNumber is not null)
+            .GroupBy(c => c.Identity.BlockNumber!.Value)
+            .Select(g => (Number: g.Key, Count: g.Count()))
+            .ToList();
+        int most = counts.Count == 0 ? 0 : counts.Max(c => c.Count);
+        return [.. counts.Where(c => c.Count == most).Select(c => c.Number)];
+    }
+
+    /// <summary>A reading's mean header byte error odds (1 with none kept).</summary>
+    private static double HeaderError(BlockCandidate c) => c.HeaderErrorOdds.IsEmpty ? 1 : c.HeaderErrorOdds.Average();
+
     /// <summary>Whether an identity names its file (by name or id): one that does not is alike in every file.</summary>
     private static bool NamesFile(BlockIdentity identity) => identity.FileName is not null || identity.FileId is not null;
 
-    /// <summary>Whether two identities may be one block by their block numbers: not when both carry one and they differ.</summary>
-    private static bool SameNumber(BlockIdentity a, BlockIdentity b) => a.BlockNumber is null || b.BlockNumber is null || a.BlockNumber == b.BlockNumber;
+    /// <summary>
+    /// Whether two entries may be one block by their block numbers: not when each names numbers (<see cref="Entry.Numbers"/>)
+    /// and none is named by both.
+    /// </summary>
+    private static bool SameNumber(Entry a, Entry b) => a.Numbers.Count == 0 || b.Numbers.Count == 0 || a.Numbers.Overlaps(b.Numbers);
 
     /// <summary>An identity key with neither file name nor file id (a block of a later kind read without its header).</summary>
     private static bool Unnamed(string key) => key.StartsWith(':');

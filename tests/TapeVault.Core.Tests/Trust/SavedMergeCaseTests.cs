@@ -33,13 +33,7 @@ public sealed class SavedMergeCaseTests
         // 0) it stretched the position over the next block, whose clean readings in the other passes then joined it:
         // two contents each read clean by two captures, merged at 0.5 although both were right, and one written block
         // fewer in the image (before: 5 of 8 clean positions held two written blocks).
-        var tape = Load("biphase-1200-short-blocks-three-passes.json");
-        var profile = ProfileCatalog.BuiltIn.Get(tape.Profile);
-        var written = tape.Written.Select(Convert.FromHexString).ToList();
-        var passes = tape.Passes.Select((p, i) => Readings.Pass(i, [.. p.Candidates])).ToList();
-        var readClean = written.Where(w => passes.Any(p => p.Candidates.Any(c => c.Status == BlockStatus.Clean && IsBlock(profile, c, w)))).ToList();
-
-        var image = TapeMerger.Merge(passes, profile);
+        var (_, profile, written, readClean, image) = Merged("biphase-1200-short-blocks-three-passes.json");
 
         var clean = image.Blocks.Where(b => b.Status == RecoveryStatus.Clean).ToList();
         Assert.All(clean, b => Assert.False(b.Conflict, $"position {b.Position} holds two clean contents"));
@@ -59,12 +53,7 @@ public sealed class SavedMergeCaseTests
         // position of its identity up to half a second away, so the readings of four files' headers in all three passes
         // chained into one position, whose vote held the 8-bit XOR with a header that was never written (before: voted
         // at 0.994 from 105 readings).
-        var tape = Load("three-class-pairs-neighbouring-headers-three-passes.json");
-        var profile = ProfileCatalog.BuiltIn.Get(tape.Profile);
-        var written = tape.Written.Select(Convert.FromHexString).ToList();
-        var passes = tape.Passes.Select((p, i) => Readings.Pass(i, [.. p.Candidates])).ToList();
-
-        var image = TapeMerger.Merge(passes, profile);
+        var (tape, profile, written, _, image) = Merged("three-class-pairs-neighbouring-headers-three-passes.json");
 
         // Ground truth: the blocks the synthesiser wrote. A position the merge is sure of is one of them.
         var sure = image.Blocks.Where(b => b.Status != RecoveryStatus.Missing && b.Confidence >= 0.99).ToList();
@@ -90,6 +79,26 @@ public sealed class SavedMergeCaseTests
         }
     }
 
+    [Fact]
+    public void A_pass_that_read_no_block_clean_joins_the_position_its_readings_mostly_name()
+    {
+        // one-cycle-bits, seed 126335: ten one-block files. The third pass read every block but one clean; the SoX pass
+        // read none. Its position over the second block holds four garbled readings with four identities, two of them
+        // block number 0 (the block's) and two misframed ones carrying 64 and 20; the first of them, number 64, was
+        // taken for the position's identity, which kept it from the second block's position, and its one reading whose
+        // 16-bit sum holds (two header bytes and the stored sum's high byte misread alike) stood alone as a voted block
+        // at 0.994 that was never written.
+        var (_, profile, written, readClean, image) = Merged("one-cycle-bits-garbled-headers-three-passes.json");
+
+        // Ground truth: the blocks the synthesiser wrote. A position the merge is sure of is one of them, and every
+        // written block some pass read clean is a clean position of its own.
+        var sure = image.Blocks.Where(b => b.Status != RecoveryStatus.Missing && b.Confidence >= 0.99).ToList();
+        Assert.All(sure, b => Assert.True(written.Exists(w => IsBlock(profile, b.Header, b.Payload, w)), $"position {b.Position} ({b.Key}, {b.Status} at {b.Confidence}) was never written"));
+        var clean = image.Blocks.Where(b => b.Status == RecoveryStatus.Clean).ToList();
+        Assert.Equal(readClean.Count, clean.Count);
+        Assert.All(readClean, w => Assert.Contains(clean, b => IsBlock(profile, b.Header, b.Payload, w)));
+    }
+
     /// <summary>The written copy of the pass whose sync a reading that starts at <paramref name="start"/> starts at (within 30 ms), or null.</summary>
     private static WrittenSpan? WrittenAt(SavedPass pass, double start) =>
         pass.Copies!.Cast<WrittenSpan?>().FirstOrDefault(w => Math.Abs(w!.Value.DataSeconds - start) <= 0.03);
@@ -105,6 +114,20 @@ public sealed class SavedMergeCaseTests
         && written.AsSpan(0, header.Length).SequenceEqual(header.AsSpan())
         && written.AsSpan(header.Length, payload.Length).SequenceEqual(payload.AsSpan())
         && profile.BlockKinds.Any(k => k.HeaderBytes == header.Length && BlockLayoutCodec.For(k).CheckBytes == written.Length - header.Length - payload.Length);
+
+    /// <summary>
+    /// A saved case merged as it was saved: the tape, its profile, the blocks written, those some pass read clean, and
+    /// the image.
+    /// </summary>
+    private static (SavedTape Tape, FormatProfile Profile, List<byte[]> Written, List<byte[]> ReadClean, TapeImage Image) Merged(string name)
+    {
+        var tape = Load(name);
+        var profile = ProfileCatalog.BuiltIn.Get(tape.Profile);
+        var written = tape.Written.Select(Convert.FromHexString).ToList();
+        var passes = tape.Passes.Select((p, i) => Readings.Pass(i, [.. p.Candidates])).ToList();
+        var readClean = written.Where(w => passes.Any(p => p.Candidates.Any(c => c.Status == BlockStatus.Clean && IsBlock(profile, c, w)))).ToList();
+        return (tape, profile, written, readClean, TapeMerger.Merge(passes, profile));
+    }
 
     private static SavedTape Load(string name)
     {
