@@ -131,12 +131,16 @@ internal static class CommonSections
 
         // Bytes before the check's coverage that every block holds alike (or that a search proved the sync, see
         // LayoutFinding.Sync) are a sync field (sync characters the check leaves out); a field's name goes into the
-        // coverage when it starts inside it.
+        // coverage when it starts inside it. Bytes no sync may expect (one value repeated: the end of a leader of
+        // characters read into the block) stay a plain field outside the check, as read.
         var covered = new JsonArray();
-        byte[]? sync = layout.Sync
-            ?? (layout.CoverageStart > 0 && layout.Blocks.Count >= 2 && layout.Blocks.All(b => b.Length > layout.CoverageStart && b.AsSpan(0, layout.CoverageStart).SequenceEqual(layout.Blocks[0].AsSpan(0, layout.CoverageStart)))
-                ? layout.Blocks[0][..layout.CoverageStart]
-                : null);
+        byte[]? sync = layout.Sync ?? AlikeBeforeCoverage(layout);
+        if (sync is not null && ProfileLoader.SyncProblem(sync) is not null)
+        {
+            proposal.Notes.Add($"The {sync.Length} byte(s) before the check's coverage read {Convert.ToHexString(sync)} in every block, which no sync may expect; drafted as a field outside the check.");
+            sync = null;
+        }
+
         if (sync is not null && !layout.Fields.Any(f => f.Offset < layout.CoverageStart))
         {
             header.Add(new JsonObject
@@ -279,6 +283,12 @@ internal static class CommonSections
             proposal.Findings[at] = f with { Guessed = true, Confidence = 0.5, Evidence = f.Evidence + "; but the bit order is not told, and the checksum goes with it" };
         }
     }
+
+    /// <summary>The bytes before the check's coverage where every block (two or more) holds them alike; else null.</summary>
+    public static byte[]? AlikeBeforeCoverage(LayoutFinding layout) =>
+        layout.CoverageStart > 0 && layout.Blocks.Count >= 2 && layout.Blocks.All(b => b.Length > layout.CoverageStart && b.AsSpan(0, layout.CoverageStart).SequenceEqual(layout.Blocks[0].AsSpan(0, layout.CoverageStart)))
+            ? layout.Blocks[0][..layout.CoverageStart]
+            : null;
 
     private static JsonObject Other(int offset, int bytes) => new() { ["name"] = $"field-{offset}", ["bytes"] = Math.Min(64, bytes), ["role"] = "other" };
 

@@ -296,8 +296,10 @@ public sealed class FskDrafter : IFamilyDrafter
 
         // A leader of repeated characters before each block (rather than mark tone): the blocks read as a stream
         // begin with a long run of one character, and what follows it holds a check value after sync characters.
+        // Searched too where a check holds but the bytes before its coverage are one value repeated (no sync may
+        // expect them): the end of such a leader read into each block.
         CharacterLeaderFinding? leader = null;
-        if (!layout.HasChecksum)
+        if (!layout.HasChecksum || (AlikeBeforeCoverage(layout) is { } before && ProfileLoader.SyncProblem(before) is not null))
         {
             foreach (bool reverse in new[] { msb, !msb })
             {

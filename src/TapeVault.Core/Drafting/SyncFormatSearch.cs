@@ -224,6 +224,12 @@ public static class SyncFormatSearch
         int size = framing.BitsPerByte;
         foreach (var block in blocks)
         {
+            // A block that ends inside the sync holds no byte after it (a longer sync tried on short blocks).
+            if (block.Length < sync)
+            {
+                continue;
+            }
+
             int n = (block.Length - sync) / size;
 
             // The last frame may run into the next lead-in; it is left out.
@@ -287,6 +293,12 @@ public static class SyncFormatSearch
         var result = new List<DraftBlock>();
         foreach (var block in blocks)
         {
+            // A block that ends inside the sync holds no byte after it (a longer sync tried on short blocks).
+            if (block.Length < sync)
+            {
+                continue;
+            }
+
             int n = (block.Length - sync) / size;
             var bytes = new byte[n + 2];
             for (int f = 0; f < n + 2; f++)

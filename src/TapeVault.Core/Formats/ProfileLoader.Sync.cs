@@ -8,6 +8,20 @@ public static partial class ProfileLoader
     /// <summary>The longest sync field: no format we know writes more sync bytes before a block.</summary>
     public const int MaximumSyncBytes = 16;
 
+    /// <summary>
+    /// Why a sync field may not expect <paramref name="value"/>, or null where it may: a run of one value (or a lone
+    /// byte of all zeros or all ones) is what a stuck line or a lead-in reads as, so it proves no block start.
+    /// </summary>
+    public static string? SyncProblem(ReadOnlySpan<byte> value)
+    {
+        if (value.Length > 1 && value.IndexOfAnyExcept(value[0]) < 0)
+        {
+            return "must not be one byte value repeated: a lead-in or a stuck line reads as such a run";
+        }
+
+        return value is [0x00] or [0xFF] ? "must not be a byte of all zeros or all ones: a lead-in or a stuck line reads as such a run" : null;
+    }
+
     private sealed partial class Validator
     {
         // A sync field's expected bytes, one entry per copy or one for all; other roles take none.
@@ -44,15 +58,9 @@ public static partial class ProfileLoader
                     Fail(itemPath, $"holds {value.Length} bytes; the field has {bytes}");
                 }
 
-                // A run of one value is what a stuck line or a lead-in reads as: it proves no block start.
-                if (value.Length > 1 && value.AsSpan().IndexOfAnyExcept(value[0]) < 0)
+                if (SyncProblem(value.AsSpan()) is { } problem)
                 {
-                    Fail(itemPath, "must not be one byte value repeated: a lead-in or a stuck line reads as such a run");
-                }
-
-                if (value is [0x00] or [0xFF])
-                {
-                    Fail(itemPath, "must not be a byte of all zeros or all ones: a lead-in or a stuck line reads as such a run");
+                    Fail(itemPath, problem);
                 }
 
                 result.Add(value);
