@@ -145,15 +145,20 @@ internal sealed class BlockMerge
             End = Math.Max(End, entry.End);
         }
 
-        public double Overlap(Entry e) => Math.Min(End, e.End) - Math.Max(Start, e.Start);
+        public double Overlap(Entry e) => Overlapping(Start, End, e);
 
-        /// <summary>
-        /// Whether the entry shares most of the group's stretch of tape, as readings of one block in different passes
-        /// do: more than a quarter of the shorter stretch (the gap to the next block can be shorter than the slack that
-        /// same bytes are allowed, and a short block's stretch shorter than that gap).
-        /// </summary>
-        public bool Shares(Entry e) => Overlap(e) > 0.25 * Math.Min(e.End - e.Start, End - Start);
+        public bool Shares(Entry e) => SharesStretch(Start, End, e);
     }
+
+    /// <summary>How far an entry's stretch of tape overlaps the stretch from start to end (negative: the gap between them).</summary>
+    private static double Overlapping(double start, double end, Entry e) => Math.Min(end, e.End) - Math.Max(start, e.Start);
+
+    /// <summary>
+    /// Whether the entry shares most of the stretch of tape from start to end, as readings of one block in different
+    /// passes do: more than a quarter of the shorter stretch (the gap to the next block can be shorter than the slack
+    /// that same bytes are allowed, and a short block's stretch shorter than that gap).
+    /// </summary>
+    private static bool SharesStretch(double start, double end, Entry e) => Overlapping(start, end, e) > 0.25 * Math.Min(e.End - e.Start, end - start);
 
     /// <summary>
     /// Positions across passes. Entries with a clean reading go first: they join a group of the same identity whose
@@ -282,13 +287,12 @@ internal sealed class BlockMerge
         double bestScore = double.NegativeInfinity;
         foreach (var (g, start, end) in groups)
         {
-            double overlap = Math.Min(end, entry.End) - Math.Max(start, entry.Start);
-            if (overlap <= 0.25 * Math.Min(entry.End - entry.Start, end - start) || !SameNumber(g.Entries[0], entry))
+            if (!SharesStretch(start, end, entry) || !SameNumber(g.Entries[0], entry))
             {
                 continue;
             }
 
-            double score = overlap + (g.Key == entry.Key ? 10 : 0);
+            double score = Overlapping(start, end, entry) + (g.Key == entry.Key ? 10 : 0);
             if (score > bestScore)
             {
                 best = g;
@@ -307,7 +311,7 @@ internal sealed class BlockMerge
             double most = -reach;
             foreach (var (g, start, end) in groups)
             {
-                double overlap = Math.Min(end, entry.End) - Math.Max(start, entry.Start);
+                double overlap = Overlapping(start, end, entry);
                 if (g.Key == entry.Key && overlap > most)
                 {
                     best = g;
