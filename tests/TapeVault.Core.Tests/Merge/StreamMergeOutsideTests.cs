@@ -38,15 +38,9 @@ public sealed class StreamMergeOutsideTests(OutsideTempFolder temp, ITestOutputH
         OutsideTool.Sox(secondTones, before, "trim", "0", "0.6");
         OutsideTool.Sox(secondTones, after, "trim", "0.63");
         OutsideTool.Sox(before, Silence("dropout", 0.03), after, secondA);
-        string a = temp.File("capture-a.wav");
-        string b = temp.File("capture-b.wav");
-        OutsideTool.Sox(LeadIn(), firstTones, Silence("gap-a", 0.7), LeadIn(), secondA, Silence("end-a", 0.3), a);
-        OutsideTool.Sox(LeadIn(), firstTones, Silence("gap-b", 1.6), LeadIn(), secondTones, Silence("end-b", 0.3), b);
-
-        var profile = ProfileCatalog.BuiltIn.Get("kcs-1200");
-        var results = new[] { CaptureDecoder.Decode(a, profile), CaptureDecoder.Decode(b, profile) };
-        var image = TapeMerger.Merge(results, ["capture-a.wav", "capture-b.wav"]);
-        output.WriteLine(string.Join("\n", image.Blocks.Select(x => $"{x.Key} {x.Status} {x.Confidence:0.0000} agree {x.AgreeingCaptures}: {System.Text.Encoding.ASCII.GetString(x.Payload.AsSpan())}")));
+        var image = Merged(
+            Capture("capture-a", firstTones, 0.7, secondA),
+            Capture("capture-b", firstTones, 1.6, secondTones));
 
         // Outside reference: the two files minimodem was given, each whole, in order, nothing missing. Capture A's
         // dropout is filled from capture B, and both captures read the rest alike.
@@ -67,19 +61,34 @@ public sealed class StreamMergeOutsideTests(OutsideTempFolder temp, ITestOutputH
         string secondTones = Tones("fill-second", second);
 
         // Capture A: 0.7 s of silence between the files; capture B: 0.8 s.
-        string a = temp.File("fill-capture-a.wav");
-        string b = temp.File("fill-capture-b.wav");
-        OutsideTool.Sox(LeadIn(), firstTones, Silence("fill-gap-a", 0.7), LeadIn(), secondTones, Silence("fill-end-a", 0.3), a);
-        OutsideTool.Sox(LeadIn(), firstTones, Silence("fill-gap-b", 0.8), LeadIn(), secondTones, Silence("fill-end-b", 0.3), b);
-
-        var profile = ProfileCatalog.BuiltIn.Get("kcs-1200");
-        var results = new[] { CaptureDecoder.Decode(a, profile), CaptureDecoder.Decode(b, profile) };
-        var image = TapeMerger.Merge(results, ["fill-capture-a.wav", "fill-capture-b.wav"]);
-        output.WriteLine(string.Join("\n", image.Blocks.Select(x => $"{x.Key} {x.Status} {x.Confidence:0.0000} agree {x.AgreeingCaptures}: {KcsCaptures.Hex(x.Payload.AsSpan())}")));
+        var image = Merged(
+            Capture("fill-capture-a", firstTones, 0.7, secondTones),
+            Capture("fill-capture-b", firstTones, 0.8, secondTones));
 
         // Outside reference: the two files minimodem was given, each whole and no longer, read alike by both captures.
         Assert.Equal([KcsCaptures.Hex(first), KcsCaptures.Hex(second)], image.Blocks.Select(x => KcsCaptures.Hex(x.Payload.AsSpan())));
         Assert.All(image.Blocks, x => Assert.Equal(2, x.AgreeingCaptures));
+    }
+
+    /// <summary>
+    /// A capture of two files made by SoX: a lead-in, the first file's tones, <paramref name="gap"/> seconds of silence,
+    /// a lead-in, the second file's tones and 0.3 s of silence.
+    /// </summary>
+    private string Capture(string name, string firstTones, double gap, string secondTones)
+    {
+        string path = temp.File($"{name}.wav");
+        OutsideTool.Sox(LeadIn(), firstTones, Silence($"{name}-gap", gap), LeadIn(), secondTones, Silence($"{name}-end", 0.3), path);
+        return path;
+    }
+
+    /// <summary>Two captures decoded with the kcs-1200 profile and merged; the image's positions written to the test output.</summary>
+    private TapeImage Merged(string a, string b)
+    {
+        var profile = ProfileCatalog.BuiltIn.Get("kcs-1200");
+        var results = new[] { CaptureDecoder.Decode(a, profile), CaptureDecoder.Decode(b, profile) };
+        var image = TapeMerger.Merge(results, [Path.GetFileName(a), Path.GetFileName(b)]);
+        output.WriteLine(string.Join("\n", image.Blocks.Select(x => $"{x.Key} {x.Status} {x.Confidence:0.0000} agree {x.AgreeingCaptures}: {KcsCaptures.Hex(x.Payload.AsSpan())}")));
+        return image;
     }
 
     /// <summary>minimodem's Kansas City tones of <paramref name="text"/>, checked by minimodem's own receiver.</summary>
