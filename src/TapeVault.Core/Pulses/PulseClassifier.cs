@@ -15,8 +15,6 @@ public sealed class PulseClassifier
 {
     private readonly double[] _logNominal;
     private readonly double[] _logBoundary;
-    private readonly double[] _logLower;
-    private readonly double[] _logUpper;
     private readonly double _logLowest;
     private readonly double _logHighest;
     private readonly double[] _boundary;
@@ -43,15 +41,6 @@ public sealed class PulseClassifier
         for (int i = 0; i < _logBoundary.Length; i++)
         {
             _logBoundary[i] = 0.5 * (_logNominal[i] + _logNominal[i + 1]);
-        }
-
-        // Each class's bounds in log units: the boundaries beside it, or infinity beyond the outermost classes.
-        _logLower = new double[_logNominal.Length];
-        _logUpper = new double[_logNominal.Length];
-        for (int i = 0; i < _logNominal.Length; i++)
-        {
-            _logLower[i] = i > 0 ? _logBoundary[i - 1] : double.NegativeInfinity;
-            _logUpper[i] = i < _logBoundary.Length ? _logBoundary[i] : double.PositiveInfinity;
         }
 
         double outer = Math.Log(outerRatio);
@@ -83,11 +72,10 @@ public sealed class PulseClassifier
             return -1;
         }
 
-        // The count of boundaries below, as in Classify.
         int c = 0;
-        foreach (double boundary in _boundary)
+        while (c < _boundary.Length && x > _boundary[c])
         {
-            c += x > boundary ? 1 : 0;
+            c++;
         }
 
         return c;
@@ -110,20 +98,18 @@ public sealed class PulseClassifier
             return new PulseDecision(-1, 0, 0, 1);
         }
 
-        // The class is the count of boundaries below (they ascend), counted without a branch that depends on the pulse;
-        // the outermost classes' open sides are infinitely far, which the bounds' infinities give with no test.
         int c = 0;
-        foreach (double boundary in _logBoundary)
+        while (c < _logBoundary.Length && x > _logBoundary[c])
         {
-            c += x > boundary ? 1 : 0;
+            c++;
         }
 
-        double lower = _logLower[c];
-        double upper = _logUpper[c];
-        double below = x - lower;
-        double above = upper - x;
+        double below = c > 0 ? x - _logBoundary[c - 1] : double.PositiveInfinity;
+        double above = c < _logBoundary.Length ? _logBoundary[c] - x : double.PositiveInfinity;
         double distance = Math.Min(below, above);
-        double scale = below < above ? _logNominal[c] - lower : upper - _logNominal[c];
+        double scaleBelow = c > 0 ? _logNominal[c] - _logBoundary[c - 1] : double.PositiveInfinity;
+        double scaleAbove = c < _logBoundary.Length ? _logBoundary[c] - _logNominal[c] : double.PositiveInfinity;
+        double scale = below < above ? scaleBelow : scaleAbove;
         return new PulseDecision(c, (float)distance, (float)(x - _logNominal[c]), (float)scale);
     }
 }
