@@ -43,6 +43,11 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private readonly bool _pairHalves;
     private readonly bool _inert;
 
+    // An interval between edges (at nominal speed) shorter than this is a glitch carried into the next, longer than
+    // that a gap with no edges at all: the shortest accepted pulse, and twice the longest (halved where halves are paired).
+    private readonly double _shortestInterval;
+    private readonly double _longestInterval;
+
     // The blocks being read: one, and where gaps and syncs are searched inside a block's data and the sink can read a
     // second block alongside, two. A lane is reading while its sink is in a block.
     private readonly Lane[] _lanes;
@@ -114,6 +119,9 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         // edges; a setting that counts one direction sees only sums of two pulses and reads nothing.
         _pairHalves = countsBothEdges && !_encoding.HalfCycles;
         _inert = _encoding.HalfCycles && !countsBothEdges;
+        double unit = _pairHalves ? 0.5 : 1.0;
+        _shortestInterval = _classifier.ShortestAcceptedSeconds * unit;
+        _longestInterval = _classifier.LongestAcceptedSeconds * unit * 2;
         ArgumentNullException.ThrowIfNull(blocks);
         _leadInClass = IndexOf(_encoding.LeadInClass);
         _leadIn = LeadInFinder.ForClass(_classifier, _leadInClass, _encoding.ShortestRun);
@@ -206,17 +214,17 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
             double seconds = (edge.Sample - _lastEdge) / _sampleRate + _glitchCarry;
             _lastEdge = edge.Sample;
-            double unit = _pairHalves ? 0.5 : 1.0;
+            double scaled = seconds * _speed.Speed;
 
             // Noise between samples can split a cycle: carry a glitch into the next interval instead of deciding on it.
-            if (seconds * _speed.Speed < _classifier.ShortestAcceptedSeconds * unit)
+            if (scaled < _shortestInterval)
             {
                 _glitchCarry = seconds;
                 continue;
             }
 
             _glitchCarry = 0;
-            if (seconds * _speed.Speed > _classifier.LongestAcceptedSeconds * unit * 2)
+            if (scaled > _longestInterval)
             {
                 // A gap with no edges at all: a dropout or the end of a recording.
                 LoseSignal(edge.Sample - seconds * _sampleRate);
@@ -394,18 +402,6 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     {
         lane.Base = _decisions - lane.Blocks.DecisionCount;
         lane.Begun = ++_begins;
-    }
-
-    private void AddDecision(PulseDecision d)
-    {
-        _decisions++;
-        foreach (var lane in _lanes)
-        {
-            if (lane.Blocks.InBlock)
-            {
-                lane.Blocks.AddDecision(d.Distance, d.Residual, d.Scale);
-            }
-        }
     }
 
     private void AddGuessedDecision()
@@ -590,16 +586,7 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     /// <summary>A pulse of a block's data: classified (data pulses alone need the distances, a logarithm each), its shared edge checked, decided.</summary>
     private void DataPulse(double seconds, double endSample, float level)
     {
-        foreach (var lane in _lanes)
-        {
-            if (lane.Blocks.InBlock)
-            {
-                lane.Blocks.NoteLevel(level);
-            }
-        }
-
         var decision = _classifier.Classify(seconds, _speed.Speed);
-        double moved = _previousClass >= 0 ? (_previousSeconds * _speed.Speed) - _classifier.NominalSeconds(_previousClass) : 0;
 
         // Only the block's first pulse, after the sync's (or the lead-in's) last: that edge follows the longest or the
         // most regular stretch, which a band-limited chain moves most; inside the data the pulses keep to their classes.
@@ -607,8 +594,17 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 
         // A pulse whose first edge moved is remembered as it would have read without the move, so that the edge it
         // shares with the next pulse is judged on its own.
-        Remember(shifted ? seconds + (moved / _speed.Speed) : seconds, decision.Class);
-        OnDataPulse(decision, seconds, endSample, trackSpeed: !shifted);
+        if (shifted)
+        {
+            double moved = _previousClass >= 0 ? (_previousSeconds * _speed.Speed) - _classifier.NominalSeconds(_previousClass) : 0;
+            Remember(seconds + (moved / _speed.Speed), decision.Class);
+        }
+        else
+        {
+            Remember(seconds, decision.Class);
+        }
+
+        OnDataPulse(decision, seconds, endSample, level, trackSpeed: !shifted);
     }
 
     /// <summary>
@@ -665,16 +661,31 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         return true;
     }
 
-    private void OnDataPulse(PulseDecision decision, double seconds, double endSample, bool trackSpeed = true)
+    /// <summary>
+    /// A data pulse decided: each lane reading a block is handed the pulse in one visit (its level, then its decision,
+    /// read or guessed, then the speed it was read at), the order in which every sink sees a pulse.
+    /// </summary>
+    private void OnDataPulse(PulseDecision decision, double seconds, double endSample, float level, bool trackSpeed)
     {
         if (_patternLength == 0)
         {
             _patternFirstDecision = _decisions;
         }
 
+        _decisions++;
+        var lanes = _lanes;
         if (!decision.IsValid)
         {
-            AddGuessedDecision();
+            for (int i = 0; i < lanes.Length; i++)
+            {
+                var sink = lanes[i].Blocks;
+                if (sink.InBlock)
+                {
+                    sink.NoteLevel(level);
+                    sink.AddGuessedDecision();
+                }
+            }
+
             if (++_recentInvalid >= InvalidPulsesToLoseBlock)
             {
                 LoseSignal(endSample);
@@ -686,7 +697,6 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         }
 
         _recentInvalid = Math.Max(0, _recentInvalid - 1);
-        AddDecision(decision);
         if (_gapSyncBits.Length > 0)
         {
             RecordPulse(decision);
@@ -697,11 +707,15 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
             _speed.Track(seconds, _classifier.NominalSeconds(decision.Class));
         }
 
-        foreach (var lane in _lanes)
+        double speed = _speed.Speed;
+        for (int i = 0; i < lanes.Length; i++)
         {
-            if (lane.Blocks.InBlock)
+            var sink = lanes[i].Blocks;
+            if (sink.InBlock)
             {
-                lane.Blocks.NoteSpeed(_speed.Speed);
+                sink.NoteLevel(level);
+                sink.AddDecision(decision.Distance, decision.Residual, decision.Scale);
+                sink.NoteSpeed(speed);
             }
         }
 
