@@ -27,7 +27,10 @@ public static class PositionReplay
     /// from its sync, to its end), from the damage's speed and margin and SoX's speed; wow and flutter move it by a few
     /// milliseconds at most. Null in older saves and for minimodem's passes.
     /// </summary>
-    internal sealed record Saved(string Profile, int Seed, int Pass, string Source, string[] Written, List<BlockCandidate> Candidates, List<WrittenSpan>? Copies = null);
+    /// <paramref name="Damage"/> is the pass's damage in words and <paramref name="Dropouts"/> the channel's dropouts moved
+    /// onto the capture's time as the copies are (null in older saves and for minimodem's passes): with them, a block no
+    /// setting read can be told from one the damage took.
+    internal sealed record Saved(string Profile, int Seed, int Pass, string Source, string[] Written, List<BlockCandidate> Candidates, List<WrittenSpan>? Copies = null, string? Damage = null, List<Dropout>? Dropouts = null);
 
     public static void Save(FormatProfile profile, int seed, int pass, string source, List<byte[]> written, IReadOnlyList<BlockCandidate> candidates, (ChannelDamage Damage, string Description)? damage)
     {
@@ -38,11 +41,14 @@ public static class PositionReplay
 
         Directory.CreateDirectory(s_folder);
         List<WrittenSpan>? copies = null;
+        List<Dropout>? dropouts = null;
         if (damage is { } d)
         {
             var spans = new List<WrittenSpan>();
-            foreach (double _ in FluxWriter.Reversals(profile, written, spans))
+            double tapeSeconds = 0;
+            foreach (double reversal in FluxWriter.Reversals(profile, written, spans))
             {
+                tapeSeconds = reversal;
             }
 
             // SoX's speed effect, where its chain (after our channel's description, which gives the channel's own speed) has one.
@@ -50,9 +56,12 @@ public static class PositionReplay
             double sox = chain >= 0 && Regex.Match(d.Description[chain..], @"\bspeed ([0-9.]+)") is { Success: true } m ? double.Parse(m.Groups[1].Value, CultureInfo.InvariantCulture) : 1;
             double Capture(double tape) => (d.Damage.MarginSeconds + (tape / d.Damage.Speed)) / sox;
             copies = [.. spans.Select(s => s with { StartSeconds = Capture(s.StartSeconds), DataSeconds = Capture(s.DataSeconds), EndSeconds = Capture(s.EndSeconds) })];
+
+            // The channel draws its dropouts from the damage's seed over the capture's length (margins included), in capture time.
+            dropouts = [.. new ChannelModel([], d.Damage, tapeSeconds).Dropouts.Select(x => x with { StartSeconds = x.StartSeconds / sox, DurationSeconds = x.DurationSeconds / sox })];
         }
 
-        var saved = new Saved(profile.Id, seed, pass, source, [.. written.Select(Convert.ToHexString)], [.. candidates], copies);
+        var saved = new Saved(profile.Id, seed, pass, source, [.. written.Select(Convert.ToHexString)], [.. candidates], copies, damage?.Description, dropouts);
         File.WriteAllText(Path.Combine(s_folder, $"{profile.Id}-{seed}-{pass}.json"), JsonSerializer.Serialize(saved, Json));
     }
 
@@ -111,6 +120,8 @@ public static class PositionReplay
             var tally = copies is not null ? Tally(placed, copies) : null;
             if (tally is not null)
             {
+                var unread = Unread(placed, copies!, saved.Dropouts).ToList();
+                tally = tally with { Unread = unread.Count, UnreadUndamaged = unread.Count(u => u.Where == "none") };
                 layoutRows.Add((saved.Profile, tally));
             }
 
@@ -121,7 +132,11 @@ public static class PositionReplay
                     // Every reading, with the written blocks whose header it carries.
                     if (tally is not null)
                     {
-                        Console.WriteLine($"  layout: blocks read {tally.BlocksRead}, positions of none {tally.NoBlock}, split {tally.Split}, joined {tally.Joined}");
+                        Console.WriteLine($"  layout: blocks read {tally.BlocksRead}, positions of none {tally.NoBlock}, split {tally.Split}, joined {tally.Joined}; {saved.Damage}");
+                        foreach (var (block, where) in Unread(placed, copies!, saved.Dropouts))
+                        {
+                            Console.WriteLine($"  unread {block.Block}.{block.Copy} {block.StartSeconds:0.000}/{block.DataSeconds:0.000}-{block.EndSeconds:0.000}: {where}");
+                        }
                     }
 
                     foreach (var c in placed)
@@ -156,12 +171,13 @@ public static class PositionReplay
             Console.WriteLine("belongs to the written block whose copy's sync it starts at (within 50 ms), or whose copy it starts inside; blocks read: blocks");
             Console.WriteLine("with a reading; positions of none: positions with no reading of a block; split: positions more than blocks read, over");
             Console.WriteLine("the blocks read in two positions or more; joined: positions holding readings of two blocks or more (one per block over one).");
-            Console.WriteLine($"{"profile",-18} {"captures",8} {"written",8} {"read",6} {"positions",9} {"of none",7} {"split",6} {"joined",6}");
+            Console.WriteLine("Unread: written copies no reading starts at or inside; no dropout: of them, those no dropout of the channel lies over.");
+            Console.WriteLine($"{"profile",-18} {"captures",8} {"written",8} {"read",6} {"positions",9} {"of none",7} {"split",6} {"joined",6} {"unread",6} {"no dropout",10}");
             foreach (var group in layoutRows.GroupBy(r => r.Profile).OrderBy(g => g.Key, StringComparer.Ordinal))
             {
                 var t = group.Select(r => r.Tally).ToList();
                 Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                    $"{group.Key,-18} {t.Count,8} {t.Sum(x => x.Written),8} {t.Sum(x => x.BlocksRead),6} {t.Sum(x => x.Positions),9} {t.Sum(x => x.NoBlock),7} {t.Sum(x => x.Split),6} {t.Sum(x => x.Joined),6}"));
+                    $"{group.Key,-18} {t.Count,8} {t.Sum(x => x.Written),8} {t.Sum(x => x.BlocksRead),6} {t.Sum(x => x.Positions),9} {t.Sum(x => x.NoBlock),7} {t.Sum(x => x.Split),6} {t.Sum(x => x.Joined),6} {t.Sum(x => x.Unread),6} {t.Sum(x => x.UnreadUndamaged),10}"));
             }
         }
 
@@ -211,8 +227,39 @@ public static class PositionReplay
         return spans;
     }
 
+    /// <summary>
+    /// The written copies no reading starts at or inside, each with the dropouts over it: "lead-in" where one lies
+    /// between the copy's start and 50 ms after its sync, "data" where one lies after that, "none" else.
+    /// </summary>
+    private static IEnumerable<(WrittenSpan Block, string Where)> Unread(List<BlockCandidate> placed, List<WrittenSpan> layout, List<Dropout>? dropouts)
+    {
+        var read = new HashSet<(int, int)>();
+        foreach (var c in placed)
+        {
+            if (StartsAt(c, layout) is { } w)
+            {
+                read.Add((w.Block, w.Copy));
+            }
+        }
+
+        foreach (var s in layout)
+        {
+            if (read.Contains((s.Block, s.Copy)))
+            {
+                continue;
+            }
+
+            var over = (dropouts ?? []).Where(d => d.StartSeconds < s.EndSeconds && d.StartSeconds + d.DurationSeconds > s.StartSeconds).ToList();
+            string where = dropouts is null ? "dropouts unknown"
+                : over.Count == 0 ? "none"
+                : string.Join(", ", over.Select(d => string.Create(CultureInfo.InvariantCulture,
+                    $"{(d.StartSeconds < s.DataSeconds + 0.05 ? "lead-in" : "data")} {d.StartSeconds:0.000}+{d.DurationSeconds * 1000:0}ms {20 * Math.Log10(1 - d.Depth):0}dB")));
+            yield return (s, where);
+        }
+    }
+
     /// <summary>One capture against its written layout (see the table <see cref="Run"/> prints).</summary>
-    private sealed record LayoutTally(int Written, int BlocksRead, int Positions, int NoBlock, int Split, int Joined);
+    private sealed record LayoutTally(int Written, int BlocksRead, int Positions, int NoBlock, int Split, int Joined, int Unread = 0, int UnreadUndamaged = 0);
 
     private static LayoutTally Tally(List<BlockCandidate> placed, List<WrittenSpan> layout)
     {

@@ -26,17 +26,15 @@ public static partial class BlockPositioner
 
         // Syncs: readings (in order of start) that start within SyncSeconds of the first of them. Stray readings are no
         // block and say nothing of the copy.
-        var groups = new List<SyncPlace>();
-        var groupOf = new int[keyed.Count];
+        var groupOf = Syncs(keyed, out int count);
+        var groups = new List<SyncPlace>(count);
         for (int i = 0; i < keyed.Count; i++)
         {
-            var c = keyed[i].Candidate;
-            if (groups.Count == 0 || c.StartSeconds - groups[^1].Start > SyncSeconds)
+            if (groups.Count == groupOf[i])
             {
-                groups.Add(new SyncPlace(i, c.StartSeconds));
+                groups.Add(new SyncPlace(i, keyed[i].Candidate.StartSeconds));
             }
 
-            groupOf[i] = groups.Count - 1;
             groups[^1].Readings.Add(i);
         }
 

@@ -760,10 +760,24 @@ public static partial class BlockPositioner
         var vouchedSync = new bool[keyed.Count];
         var starts = new double[keyed.Count];
         var byEnd = new int[keyed.Count];
+        var syncOf = Syncs(keyed, out int syncCount);
+
+        // Whether more than one setting read each sync (a sync's readings follow one another in order of start).
+        var severalSettings = new bool[syncCount];
+        for (int i = 1, first = 0; i < keyed.Count; i++)
+        {
+            if (syncOf[i] != syncOf[first])
+            {
+                first = i;
+            }
+
+            severalSettings[syncOf[i]] |= keyed[i].Candidate.SettingIndex != keyed[first].Candidate.SettingIndex;
+        }
+
         for (int i = 0; i < keyed.Count; i++)
         {
             vouched[i] = keyed[i].Key.Length > 0;
-            vouchedSync[i] = vouched[i] || SettingsAtSync(keyed, i) > 1;
+            vouchedSync[i] = vouched[i] || severalSettings[syncOf[i]];
             starts[i] = keyed[i].Candidate.StartSeconds;
             byEnd[i] = i;
         }
@@ -784,24 +798,16 @@ public static partial class BlockPositioner
             support[own] = support.GetValueOrDefault(own) + 1;
         }
 
-        // How many syncs of the capture each identity is read at (readings are in order of start).
+        // How many syncs of the capture each identity is read at.
         var placesOfKey = new Dictionary<string, int>(StringComparer.Ordinal);
         {
             var lastSyncOf = new Dictionary<string, int>(StringComparer.Ordinal);
-            double syncStart = double.NegativeInfinity;
-            int syncIndex = -1;
-            foreach (var (candidate, _) in keyed)
+            for (int i = 0; i < keyed.Count; i++)
             {
-                if (candidate.StartSeconds - syncStart > SyncSeconds)
+                string own = keyed[i].Candidate.Identity.Key;
+                if (lastSyncOf.GetValueOrDefault(own, -1) != syncOf[i])
                 {
-                    syncIndex++;
-                    syncStart = candidate.StartSeconds;
-                }
-
-                string own = candidate.Identity.Key;
-                if (lastSyncOf.GetValueOrDefault(own, -1) != syncIndex)
-                {
-                    lastSyncOf[own] = syncIndex;
+                    lastSyncOf[own] = syncOf[i];
                     placesOfKey[own] = placesOfKey.GetValueOrDefault(own) + 1;
                 }
             }
@@ -1446,22 +1452,28 @@ public static partial class BlockPositioner
         return best;
     }
 
-    /// <summary>How many settings' readings start at the sync of reading <paramref name="index"/> (readings in order of start).</summary>
-    private static int SettingsAtSync(List<(BlockCandidate Candidate, string Key)> keyed, int index)
+    /// <summary>
+    /// Each reading's sync, numbered in order (readings in order of start): readings that start within
+    /// <see cref="SyncSeconds"/> of the first of them read one sync, whatever setting read them.
+    /// </summary>
+    private static int[] Syncs(List<(BlockCandidate Candidate, string Key)> keyed, out int count)
     {
-        double start = keyed[index].Candidate.StartSeconds;
-        var settings = new HashSet<int>();
-        for (int i = index; i >= 0 && keyed[i].Candidate.StartSeconds >= start - SyncSeconds; i--)
+        var syncOf = new int[keyed.Count];
+        double first = double.NegativeInfinity;
+        count = 0;
+        for (int i = 0; i < keyed.Count; i++)
         {
-            settings.Add(keyed[i].Candidate.SettingIndex);
+            double start = keyed[i].Candidate.StartSeconds;
+            if (start - first > SyncSeconds)
+            {
+                count++;
+                first = start;
+            }
+
+            syncOf[i] = count - 1;
         }
 
-        for (int i = index + 1; i < keyed.Count && keyed[i].Candidate.StartSeconds <= start + SyncSeconds; i++)
-        {
-            settings.Add(keyed[i].Candidate.SettingIndex);
-        }
-
-        return settings.Count;
+        return syncOf;
     }
 
     private static bool Overlaps(double aStart, double aEnd, double bStart, double bEnd) =>

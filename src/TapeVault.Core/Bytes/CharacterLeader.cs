@@ -34,6 +34,7 @@ public struct CharacterLeader
     private readonly int _character;
     private readonly byte[] _syncFirstBytes;
     private readonly double _sampleRate;
+    private readonly double _breakSeconds;
     private LeaderHunt _hunt;
     private LeadInFinder _run;
     private double _lastStart;
@@ -52,6 +53,10 @@ public struct CharacterLeader
         // The leader's characters follow one another a frame apart: a run of near-equal intervals, whose mean is the
         // frame as the tape plays, within the speeds any lead-in may be found at.
         double frame = framing.BitsPerByte / baud;
+
+        // A dropout in the leader breaks it; the leader heard on both sides of a break shorter than the minimum leader
+        // is one leader (a block of its own in the break would need that much leader before it), so its run goes on.
+        _breakSeconds = leader.MinimumCount * frame;
         _run = new LeadInFinder(
             frame,
             Math.Max(2, leader.MinimumCount - 1),
@@ -80,10 +85,20 @@ public struct CharacterLeader
             return false;
         }
 
+        // The run so far goes on where the leader is found again soon after it broke off (the frames between are not
+        // one interval of it, so none is added, and half the minimum must follow); else this is a new leader.
+        if (_run.Count == 0 || (_hunt.FoundStart - _lastStart) / _sampleRate > _breakSeconds)
+        {
+            _run.Reset();
+        }
+        else
+        {
+            _run.Bridge();
+        }
+
         InLeader = true;
         _lastStart = _hunt.FoundStart;
         _misses = 0;
-        _run.Reset();
         return true;
     }
 

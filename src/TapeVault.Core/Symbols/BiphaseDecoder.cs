@@ -84,11 +84,14 @@ public sealed class BiphaseDecoder : ISymbolDecoder
         _framer = new SyncByteFramer(profile.Framing, blocks);
 
         // A lead-in of equal bits has a transition every half cell, one of alternating bits every whole cell: either
-        // way a run of near-equal intervals, found at any speed in range.
+        // way a run of near-equal intervals, found at any speed in range. A dropout in it breaks the run; what is heard
+        // on both sides of a break shorter than the minimum lead-in is one lead-in (a block of its own in the break
+        // would need that much lead-in before it), so the run is taken up again after such a break, its count whole.
         _leadInBits = _encoding.LeadInBits;
+        double leadInBreak = _encoding.LeadInMinimumBits * _encoding.CellSeconds;
         _leadIn = BitPatterns.IsWholeCellRun(_leadInBits)
-            ? LeadInFinder.ForClass(_classifier, Whole, _encoding.LeadInMinimumBits)
-            : LeadInFinder.ForClass(_classifier, Half, 2 * _encoding.LeadInMinimumBits);
+            ? LeadInFinder.ForClass(_classifier, Whole, _encoding.LeadInMinimumBits, leadInBreak)
+            : LeadInFinder.ForClass(_classifier, Half, 2 * _encoding.LeadInMinimumBits, leadInBreak);
         foreach (char c in _encoding.SyncBits)
         {
             _syncPattern = (_syncPattern << 1) | (c == '1' ? 1u : 0u);
@@ -197,8 +200,17 @@ public sealed class BiphaseDecoder : ISymbolDecoder
             _blocks.End(sample);
         }
 
+        // Lost while waiting for the sync, the lead-in may go on after the break; lost in a block, it is over.
+        if (_mode == Mode.Sync)
+        {
+            _leadIn.Interrupt();
+        }
+        else
+        {
+            _leadIn.Reset();
+        }
+
         _mode = Mode.Hunting;
-        _leadIn.Reset();
         _bridging = false;
         _clock.Stop();
     }

@@ -94,4 +94,41 @@ public sealed class LeadInFinderTests
         Assert.False(finder.Found);
         Assert.Equal(1, finder.Count);
     }
+
+    /// <summary>
+    /// <paramref name="before"/> lead-in pulses, then a stretch of pulses of no class for <paramref name="noiseSeconds"/>
+    /// (or a loss of signal the decoder reports), then <paramref name="after"/> more, against a minimum of 200. The run
+    /// goes on over a break no longer than the one the finder allows (20 ms here), and only then; and it is a lead-in
+    /// only with half the minimum after the break.
+    /// </summary>
+    [Theory]
+    [InlineData(120, 100, 0.010, 0.020, false, true)]
+    [InlineData(120, 100, 0.030, 0.020, false, false)]
+    [InlineData(120, 100, 0.010, 0.0, false, false)]
+    [InlineData(120, 100, 0.0, 0.020, true, true)]
+    [InlineData(120, 100, 0.0, 0.0, true, false)]
+    [InlineData(180, 30, 0.010, 0.020, false, false)]
+    public void A_run_broken_by_a_short_break_goes_on_with_its_count_whole(int before, int after, double noiseSeconds, double breakSeconds, bool lost, bool found)
+    {
+        var finder = LeadInFinder.ForClass(Classes, 1, minimumCount: 200, breakSeconds);
+        Feed(ref finder, 390e-6, 1.0, before, jitter: 0.02, seed: 6);
+        if (lost)
+        {
+            finder.Interrupt();
+        }
+
+        double spent = 0;
+        for (int i = 0; spent < noiseSeconds; i++)
+        {
+            double pulse = i % 2 == 0 ? 100e-6 : 900e-6;
+            finder.Add(pulse);
+            spent += pulse;
+        }
+
+        Feed(ref finder, 390e-6, 1.0, after, jitter: 0.02, seed: 7);
+
+        Assert.Equal(found, finder.Found);
+        bool goesOn = breakSeconds > 0 && noiseSeconds <= breakSeconds;
+        Assert.Equal(goesOn ? before + after : after, finder.Count);
+    }
 }
