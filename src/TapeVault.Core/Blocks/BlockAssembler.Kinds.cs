@@ -171,14 +171,25 @@ public sealed partial class BlockAssembler
         /// </summary>
         public BlockIdentity Identity(ReadOnlySpan<byte> header, int ordinal)
         {
-            var own = ReadIdentity(_layouts[_current], header, ordinal);
+            var own = KindIdentity(_layouts[_current], _current, header, ordinal);
             if (own.FileName is not null || own.FileId is not null || _current == 0 || _lastHeld[0] is not { } first)
             {
-                return own with { BlockNumber = own.BlockNumber ?? _current };
+                return own;
             }
 
             var file = ReadIdentity(_layouts[0], first.AsSpan(0, _codecs[0].HeaderBytes), ordinal);
-            return own with { FileName = file.FileName, FileId = file.FileId, BlockNumber = own.BlockNumber ?? _current };
+            return own with { FileName = file.FileName, FileId = file.FileId };
         }
+    }
+
+    /// <summary>
+    /// The identity a header of block kind <paramref name="kind"/> (of a profile with several kinds) gives by its own
+    /// fields: where it carries no block number, the kind is numbered by its place in the file, as the assembler
+    /// numbers it, so that a header read again from its bytes (a merge's vote) keeps the key its readings carry.
+    /// </summary>
+    public static BlockIdentity KindIdentity(BlockLayout layout, int kind, ReadOnlySpan<byte> header, int ordinal)
+    {
+        var own = ReadIdentity(layout, header, ordinal);
+        return own with { BlockNumber = own.BlockNumber ?? kind };
     }
 }

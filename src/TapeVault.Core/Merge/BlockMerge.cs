@@ -47,8 +47,8 @@ internal sealed class BlockMerge
     public static List<(long Feature, double Time)> Anchors(MergePass pass, double speed)
     {
         // One anchor per copy on tape: the settings that read one copy agree on its start; a format that writes each
-        // block twice has two anchors per block, and the pairs of first with first and second with second outvote
-        // the crossed ones.
+        // block twice has two anchors per block, told apart by the copy's sync where the copies' syncs differ; where
+        // they do not, the pairs of first with first and second with second outvote the crossed ones.
         var anchors = new List<(long Feature, double Time)>();
         foreach (var c in pass.Candidates)
         {
@@ -57,7 +57,10 @@ internal sealed class BlockMerge
                 continue;
             }
 
-            long feature = StableHash(Convert.ToHexString(c.Header.AsSpan()) + c.PayloadHex);
+            // The header keeps the first copy's sync whatever copy was read (BlockCandidate.SyncCopy), so the copy read
+            // is part of the feature: a pass that read only one copy of a block clean would otherwise pair it with
+            // either copy of the others, and the crossed pair lines it up a block off.
+            long feature = StableHash(Convert.ToHexString(c.Header.AsSpan()) + c.PayloadHex + (c.SyncCopy is { } copy ? $"#{copy}" : string.Empty));
             double time = speed * c.StartSeconds;
             if (!anchors.Exists(a => a.Feature == feature && Math.Abs(a.Time - time) < 0.05))
             {
@@ -67,6 +70,14 @@ internal sealed class BlockMerge
 
         return anchors;
     }
+
+    /// <summary>
+    /// The places of a pass for lining it up by the rhythm of its blocks, where it has no anchor in common with the
+    /// others: the start of each of its positions (its earliest reading's, where a block's readings start at its sync),
+    /// in nominal tape seconds (what is read there may be garbled; where it lies is not).
+    /// </summary>
+    public static List<double> Places(MergePass pass, double speed) =>
+        [.. pass.Candidates.GroupBy(c => c.Position).Select(g => speed * g.Min(c => c.StartSeconds))];
 
     public List<ImageBlock> Resolve()
     {
@@ -636,7 +647,10 @@ internal sealed class BlockMerge
 
         var header = outcome.Bytes.AsSpan(0, Layout.HeaderBytes).ToArray();
         var payload = outcome.Bytes.AsSpan(Layout.HeaderBytes, payloadLength).ToArray();
-        var identity = BlockAssembler.ReadIdentity(Layout, header, fallbackIdentity.Ordinal);
+        // The vote reads blocks of the first kind only (Layout); with several kinds, it is numbered as its readings are.
+        var identity = _profile.BlockKinds.Count > 1
+            ? BlockAssembler.KindIdentity(Layout, 0, header, fallbackIdentity.Ordinal)
+            : BlockAssembler.ReadIdentity(Layout, header, fallbackIdentity.Ordinal);
         return Block([.. header], [.. payload], status, outcome.Confidence, sources, 0, identity);
 
         // The check value holds and the length field agrees (BlockLayoutCodec.CheckHolds).

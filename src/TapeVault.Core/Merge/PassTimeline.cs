@@ -82,8 +82,91 @@ public readonly record struct PassTimeline(double Speed, double Scale, double Of
             }
         }
 
-        double offset = differences[best + (bestCount / 2)];
-        double scale = 1;
+        return Refine(pairs, 1, differences[best + (bestCount / 2)], tolerance, minimumSpread);
+    }
+
+    /// <summary>
+    /// Fits a pass to <paramref name="reference"/> by the rhythm of places alone (the starts of blocks, whatever was
+    /// read there): every scale within the bounds a speed measurement can be off, in steps that move the far end of a
+    /// long tape by less than the tolerance, and every offset two places pair for; the line that most places lie on
+    /// within <paramref name="tolerance"/> wins (at equal support, the scale nearer 1, then the offset nearer
+    /// <paramref name="fallbackOffset"/>), then is refined as <see cref="Fit"/> refines its own.
+    /// </summary>
+    public static (double Scale, double Offset, int Inliers) FitRhythm(
+        IReadOnlyList<double> reference,
+        IReadOnlyList<double> pass,
+        double tolerance,
+        double fallbackOffset,
+        double minimumSpread = 2)
+    {
+        ArgumentNullException.ThrowIfNull(reference);
+        ArgumentNullException.ThrowIfNull(pass);
+        if (reference.Count == 0 || pass.Count == 0)
+        {
+            return (1, fallbackOffset, 0);
+        }
+
+        var differences = new double[reference.Count * pass.Count];
+        (double Scale, double Offset, int Count) best = (1, fallbackOffset, 0);
+        for (int step = 0; step <= 2 * RhythmSteps; step++)
+        {
+            // 1, then alternately above and below it, so that equal support keeps the scale nearer 1.
+            double scale = 1 + ((step % 2 == 0 ? 1 : -1) * ((step + 1) / 2) * (MostScaleError / RhythmSteps));
+            int n = 0;
+            foreach (double x in pass)
+            {
+                foreach (double r in reference)
+                {
+                    differences[n++] = r - (scale * x);
+                }
+            }
+
+            Array.Sort(differences);
+            for (int lo = 0, hi = 0; lo < differences.Length; lo++)
+            {
+                while (hi < differences.Length && differences[hi] - differences[lo] <= 2 * tolerance)
+                {
+                    hi++;
+                }
+
+                double offset = differences[lo + ((hi - lo) / 2)];
+                if (hi - lo > best.Count || (hi - lo == best.Count && scale == best.Scale && Math.Abs(offset - fallbackOffset) < Math.Abs(best.Offset - fallbackOffset)))
+                {
+                    best = (scale, offset, hi - lo);
+                }
+            }
+        }
+
+        if (best.Count == 0)
+        {
+            return (1, fallbackOffset, 0);
+        }
+
+        var pairs = new List<(double Pass, double Reference)>(differences.Length);
+        foreach (double x in pass)
+        {
+            foreach (double r in reference)
+            {
+                pairs.Add((x, r));
+            }
+        }
+
+        return Refine(pairs, best.Scale, best.Offset, tolerance, minimumSpread);
+    }
+
+    /// <summary>How far a pass's scale may be from 1 after its speed was measured: a few per cent.</summary>
+    private const double MostScaleError = 0.03;
+
+    /// <summary>The scales <see cref="FitRhythm"/> tries on either side of 1 (0.001 apart: 30 ms over 30 s of tape).</summary>
+    private const int RhythmSteps = 30;
+
+    /// <summary>
+    /// Least squares on the pairs within <paramref name="tolerance"/> of the line, twice (then on those near the refined
+    /// line); the scale is fitted only where they span more than <paramref name="minimumSpread"/> seconds.
+    /// </summary>
+    private static (double Scale, double Offset, int Inliers) Refine(List<(double Pass, double Reference)> pairs, double scale, double offset, double tolerance, double minimumSpread)
+    {
+        int bestCount = 0;
 
         // Twice: least squares on the pairs near the current line, then again on those near the refined one.
         for (int round = 0; round < 2; round++)
@@ -116,7 +199,7 @@ public readonly record struct PassTimeline(double Speed, double Scale, double Of
             if (sw >= 3 && maxX - minX > minimumSpread && variance > 0)
             {
                 double slope = ((sxy / sw) - ((sx / sw) * (sy / sw))) / variance;
-                scale = Math.Clamp(slope, 0.97, 1.03);
+                scale = Math.Clamp(slope, 1 - MostScaleError, 1 + MostScaleError);
             }
 
             offset = (sy / sw) - (scale * (sx / sw));

@@ -62,7 +62,9 @@ public static class TapeMerger
     /// Each pass's timeline. The pass with most anchors is the reference. The others join one at a time, the one with
     /// most anchors in common first, each fitted to the anchors of every pass placed before it (mapped onto the
     /// common timeline): two passes that share no clean block may each share one with a third. A pass with no anchor
-    /// in common with any keeps its own start lined up with the reference's.
+    /// in common with any is lined up by the rhythm of its blocks: the starts of its places (its positions, read clean
+    /// or not) against those of the passes placed before it, where enough of them line up at one offset (the passes
+    /// read the same blocks, whose lengths and gaps differ); else it keeps its own start lined up with the reference's.
     /// </summary>
     public static PassTimeline[] Align(IReadOnlyList<MergePass> passes, FormatProfile profile)
     {
@@ -92,6 +94,8 @@ public static class TapeMerger
         double tolerance = stream ? 1.5 * character : 0.3;
         timelines[reference] = new PassTimeline(speeds[reference], 1, 0);
         var placed = new List<(long Feature, double Time)>(anchors[reference]);
+        var places = passes.Select((p, i) => stream ? [] : BlockMerge.Places(p, speeds[i])).ToArray();
+        var placedPlaces = new List<double>(places[reference]);
         while (Array.IndexOf(timelines, null) >= 0)
         {
             int next = -1;
@@ -111,15 +115,39 @@ public static class TapeMerger
                 }
             }
 
+            if (bestFit.Inliers == 0 && !stream)
+            {
+                // No anchor in common: the blocks' rhythm, where at least RhythmInliers of the pass's places line up.
+                var fit = PassTimeline.FitRhythm(placedPlaces, places[next], RhythmTolerance, Start(reference) - Start(next));
+                if (fit.Inliers >= RhythmInliers)
+                {
+                    bestFit = fit;
+                }
+            }
+
             var timeline = new PassTimeline(speeds[next], bestFit.Scale, bestFit.Offset);
             timelines[next] = timeline;
 
             // Anchors are in the pass's nominal seconds (its capture time scaled by its speed); the fit maps those on.
             placed.AddRange(anchors[next].Select(a => (a.Feature, (timeline.Scale * a.Time) + timeline.Offset)));
+            placedPlaces.AddRange(places[next].Select(t => (timeline.Scale * t) + timeline.Offset));
         }
 
         return [.. timelines.Select(t => t!.Value)];
     }
+
+    /// <summary>
+    /// How near the starts of two passes' places must come, in nominal seconds, to count as one place when a pass is
+    /// lined up by the rhythm of its blocks: a sync is found to a few milliseconds, the speed each pass measured
+    /// leaves some tens of milliseconds over a tape, and blocks of a file lie a block gap (0.15 s and more) apart.
+    /// </summary>
+    private const double RhythmTolerance = 0.04;
+
+    /// <summary>
+    /// The places that must line up before the rhythm of a pass's blocks stands for its start: two could be any pair of
+    /// gaps of equal length (common practice for a vote of offsets).
+    /// </summary>
+    private const int RhythmInliers = 3;
 
     private static double MedianSpeed(MergePass pass)
     {

@@ -99,6 +99,80 @@ public sealed class SavedMergeCaseTests
         Assert.All(readClean, w => Assert.Contains(clean, b => IsBlock(profile, b.Header, b.Payload, w)));
     }
 
+    [Fact]
+    public void A_pass_that_read_one_copy_of_a_block_clean_is_lined_up_at_that_copy()
+    {
+        // three-class-pairs, seed 134211: every block written twice, each copy after a sync of its own (89 down to 81,
+        // then 09 down to 01). The second pass read one block clean, its first copy; the first pass read both copies of
+        // it clean. A header keeps the first copy's sync whatever copy was read, so the one anchor paired alike with
+        // both copies, and the tie went to the pair nearer the captures' starts lined up: the second copy, a block
+        // (0.34 s) off, and that pass's readings of seven blocks made positions of their own. Only the clean readings
+        // are kept in this case: they are what passes are lined up on.
+        var tape = Load("three-class-pairs-one-copy-read-clean-three-passes.json");
+        var profile = ProfileCatalog.BuiltIn.Get(tape.Profile);
+        var passes = tape.Passes.Select((p, i) => Readings.Pass(i, [.. p.Candidates])).ToList();
+
+        AssertLinedUp(tape, TapeMerger.Align(passes, profile));
+    }
+
+    [Fact]
+    public void A_pass_that_read_no_block_clean_is_lined_up_by_the_rhythm_of_its_blocks()
+    {
+        // orrin-80, seed 134573: ten blocks. No pass read any of them clean (the third read nothing at all), so the
+        // passes had no anchor in common and the second was lined up at its first reading's start, which lies in its
+        // lead-in, 1.06 s before its first block's sync, where the first pass's first reading starts: every reading of
+        // the second pass lay over another block than its own. Where the readings start (each block's sync) still lies
+        // at the same gaps in both passes.
+        var tape = Load("orrin-80-pass-read-nothing-clean-three-passes.json");
+        var profile = ProfileCatalog.BuiltIn.Get(tape.Profile);
+        var passes = tape.Passes.Select((p, i) => Readings.Pass(i, [.. p.Candidates])).ToList();
+        Assert.All(passes, p => Assert.DoesNotContain(p.Candidates, c => c.Status == BlockStatus.Clean));
+
+        AssertLinedUp(tape, TapeMerger.Align(passes, profile));
+    }
+
+    [Fact]
+    public void A_voted_header_block_keeps_the_number_its_kind_has_in_the_file()
+    {
+        // three-class-pairs, seed 134183, the readings of the eleventh header block's two copies only. A header carries
+        // no block number; the assembler numbers each kind by its place in the file (header 0, data 1), and every
+        // reading of this header is keyed F1835:0. The readings of the third pass held the 8-bit XOR only by vote, and
+        // the voted header was keyed by its fields alone, F1835: with no number: another key than its readings'.
+        var (_, profile, written, _, image) = Merged("three-class-pairs-voted-header-three-passes.json");
+
+        var voted = image.Blocks.Where(b => b.Status is RecoveryStatus.Voted or RecoveryStatus.Repaired).ToList();
+        Assert.NotEmpty(voted);
+
+        // Ground truth: the header block the synthesiser wrote, its name field as the profile lays it out.
+        Assert.All(image.Blocks.Where(b => b.Status != RecoveryStatus.Missing), b => Assert.Contains(written, w => IsBlock(profile, b.Header, b.Payload, w)));
+        Assert.All(voted, b => Assert.Equal("F1835:0", b.Key));
+    }
+
+    /// <summary>
+    /// Each pass that read anything lies on the common timeline where its copies were written: the same written
+    /// copy (where the synthesiser wrote it, in each capture's time) maps to within 0.1 s in every pass, far less than a
+    /// block (a copy of a three-class-pairs header is about 0.3 s of tape, an orrin-80 block more).
+    /// </summary>
+    private static void AssertLinedUp(SavedTape tape, PassTimeline[] timelines)
+    {
+        var reference = Enumerable.Range(0, tape.Passes.Count).First(i => tape.Passes[i].Candidates.Count > 0);
+        for (int p = 0; p < tape.Passes.Count; p++)
+        {
+            if (tape.Passes[p].Candidates.Count == 0)
+            {
+                continue;
+            }
+
+            var copies = tape.Passes[p].Copies!;
+            var referenceCopies = tape.Passes[reference].Copies!;
+            for (int k = 0; k < copies.Count; k++)
+            {
+                double error = timelines[p].Map(copies[k].DataSeconds) - timelines[reference].Map(referenceCopies[k].DataSeconds);
+                Assert.True(Math.Abs(error) <= 0.1, $"pass {p}: block {copies[k].Block} copy {copies[k].Copy} lies {error:0.000} s from pass {reference}'s");
+            }
+        }
+    }
+
     /// <summary>The written copy of the pass whose sync a reading that starts at <paramref name="start"/> starts at (within 30 ms), or null.</summary>
     private static WrittenSpan? WrittenAt(SavedPass pass, double start) =>
         pass.Copies!.Cast<WrittenSpan?>().FirstOrDefault(w => Math.Abs(w!.Value.DataSeconds - start) <= 0.03);
