@@ -33,6 +33,7 @@ public static class Throughput
     {
         Console.WriteLine($"Read-path throughput: 44.1 kHz 16-bit mono, {minutes} min captures, whole processes, median of {Runs}");
         Console.WriteLine($"Load at start: {Load()}");
+        Console.WriteLine($"Build: {BuildKind()}");
         string kcs = Path.Combine(work, $"minimodem-kcs300-{minutes}min.wav");
         EnsureMinimodemCapture(kcs, minutes);
 
@@ -236,6 +237,20 @@ public static class Throughput
 
         Array.Sort(runs, (a, b) => a.Seconds.CompareTo(b.Seconds));
         return runs[runs.Length / 2];
+    }
+
+    /// <summary>
+    /// Whether the decoder the children run was compiled ahead (ReadyToRun, as a publish for one runtime makes it) or is
+    /// compiled by the JIT as it runs (a build, <c>dotnet run</c>): a ReadyToRun image carries a managed native header in
+    /// its CLI header (ECMA-335 II.25.3.3), which <see cref="System.Reflection.PortableExecutable.PEReader"/> reads.
+    /// </summary>
+    internal static string BuildKind()
+    {
+        using var stream = File.OpenRead(typeof(CaptureDecoder).Assembly.Location);
+        using var pe = new System.Reflection.PortableExecutable.PEReader(stream);
+        return pe.PEHeaders.CorHeader?.ManagedNativeHeaderDirectory.Size > 0
+            ? "ReadyToRun (a publish for one runtime: dotnet publish -r linux-x64)"
+            : "JIT only (a build; publish for one runtime for the ReadyToRun figures)";
     }
 
     /// <summary>A benchmark child process: the whole process is timed, start-up included.</summary>
