@@ -7,21 +7,38 @@ namespace TapeVault.Core.Bytes;
 /// it was. Characters sent back to back form a bit stream that repeats every frame (start, data, parity, stop bits);
 /// the same stream read from a start bit k bits later is another framing, and while it too has space where its start
 /// bit would be and mark where its stop bits would be, the decisions cannot tell the two apart (lower-case text, whose
-/// bits 5 and 6 are mark and bit 7 space, frames as well three bits early). Each confident decision that breaks one of
-/// those other framings rules it out; once all are ruled out, the framing in use is the only one the stream allows.
-/// The framing in use itself is never tested: if it is wrong, the true one is among the others and survives, so the
-/// run stays unconfirmed.
+/// bits 5 and 6 are mark and bit 7 space, frames as well three bits early). A run of one byte repeated is the worst
+/// case: most byte values frame as another byte at some other phase of their own bit stream (0xE3, sent over and over
+/// with two stop bits, frames as 0x7C three bits later), and nothing in the run tells the two apart. So one confident
+/// decision that breaks another framing does not rule it out (a noise hit or a dropout's click breaks the true framing
+/// as readily, where the framing in use is the false one): a framing is ruled out once characters break it in at least
+/// <see cref="RuledOutBreaks"/> more characters than they break the framing in use, and in at least one character of
+/// <see cref="RuledOutShare"/>. Once every other framing is ruled out, the framing in use is the only one the stream
+/// allows; while one is not, the characters stand on a grid that another phase frames as well, and carry its doubt.
 /// </summary>
 public struct FrameAlignment
 {
     /// <summary>|D| at or above this counts as a confident decision that may rule a framing out.</summary>
     private const float ConfidentLevel = 0.3f;
 
+    /// <summary>How many more characters must break another framing than break the framing in use to rule it out.</summary>
+    private const int RuledOutBreaks = 2;
+
+    /// <summary>
+    /// Another framing is ruled out only if at least one character in this many broke it: a false phase of distinct
+    /// characters breaks in most of them, the true phase under a false one only where damage hit a start or stop bit.
+    /// </summary>
+    private const int RuledOutShare = 4;
+
     private readonly ByteFraming _framing;
     private readonly int _period;
 
     // Two frames of the stream: the previous character's bits, then this one's; 1 mark, 0 space, −1 not decided.
     private readonly sbyte[] _stream;
+
+    // How many back-to-back characters broke each framing, the framing in use at 0; and how many were checked.
+    private readonly int[] _breaks;
+    private int _checked;
     private uint _alive;
     private bool _hasPrevious;
     private double _previousStart;
@@ -31,6 +48,7 @@ public struct FrameAlignment
         _framing = framing ?? throw new ArgumentNullException(nameof(framing));
         _period = framing.BitsPerByte;
         _stream = new sbyte[2 * _period];
+        _breaks = new int[_period];
         Reset();
     }
 
@@ -42,6 +60,8 @@ public struct FrameAlignment
     {
         _alive = (_period >= 32 ? uint.MaxValue : (1u << _period) - 1) & ~1u;
         _hasPrevious = false;
+        Array.Clear(_breaks);
+        _checked = 0;
     }
 
     /// <summary>
@@ -58,9 +78,18 @@ public struct FrameAlignment
 
         if (backToBack)
         {
+            _checked++;
+            for (int shift = 0; shift < _period; shift++)
+            {
+                if (Breaks(shift))
+                {
+                    _breaks[shift]++;
+                }
+            }
+
             for (int shift = 1; shift < _period; shift++)
             {
-                if ((_alive & (1u << shift)) != 0 && Breaks(shift))
+                if ((_alive & (1u << shift)) != 0 && _breaks[shift] >= _breaks[0] + RuledOutBreaks && RuledOutShare * _breaks[shift] >= _checked)
                 {
                     _alive &= ~(1u << shift);
                 }

@@ -22,7 +22,7 @@ namespace TapeVault.Core.Merge;
 /// Elsewhere, independent captures that read a character alike are all wrong
 /// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
 /// never lowers it, and a segment claims what its ends allow, and beside bytes no capture kept no more than pieces of
-/// its length were right, however many captures read it alike (<see cref="LonePieceGenuine"/>).
+/// its length, or the reading that carried it, were right, however many captures read it alike (<see cref="PieceGenuine"/>).
 /// </para>
 /// </summary>
 internal sealed class StreamMerge
@@ -76,30 +76,59 @@ internal sealed class StreamMerge
     public const double SharedStretchEndError = 0.01;
 
     /// <summary>
-    /// The chance that a piece of <paramref name="characters"/> characters that one capture alone carried beside bytes no
+    /// The chance, from its length alone, that a piece of <paramref name="characters"/> characters carried beside bytes no
     /// capture kept is a run of the written characters at all, rather than a false frame whose characters happened to pass
-    /// the vote: L³ / (L³ + <see cref="LonePieceHalfLength"/>³). A reading framed on the true characters goes on for as
+    /// the vote: L² / (L² + <see cref="LonePieceHalfLength"/>²). A reading framed on the true characters goes on for as
     /// long as its signal lasts; where the characters a capture read on either side of a piece were voted out, the piece
-    /// is mostly what its framing invented in damage that every capture met. Measured on the merged segments of the trust
-    /// benchmark's kcs-300 and kcs-1200 tapes of tuning seeds 3000–3031 and 5000–5025 (segments one capture carried beside
-    /// a hole, judged right only where they are the written bytes at the place their key says): pieces of one character
-    /// were right 4 of 115 times, of two or three 3 of 74, of four to seven 18 of 47, of eight to fifteen 5 of 13, of
-    /// sixteen or more 39 of 55, against a confidence from their characters' own odds of 0.64, 0.45, 0.28, 0.30 and 0.71.
-    /// Half-length and power fitted by maximum likelihood over those segments with <see cref="GapEndError"/> as it was
-    /// (log-likelihood −269 before, −135.5 after; refitting the end doubt too gave 0.15 and −134.6, no better).
-    /// It holds for a piece that several captures read alike too: the damage that made the hole is the tape's, and the
-    /// false characters framed in it are the same on each capture. Of the pieces of one to three characters that two
-    /// captures read alike beside a hole, on the merged segments of tuning seeds 16000–16088 and 17000–19079 (kcs-1200),
-    /// 1 of 26 was the written characters, where the vote of the two had put them at 0.86 and 0.77 on average.
+    /// is mostly what its framing invented in damage that every capture met. It holds for a piece that several captures
+    /// read alike too: the damage that made the hole is the tape's, and the false characters framed in it are the same on
+    /// each capture. A piece carried by a reading of four characters or more is as likely genuine as that reading is
+    /// right as a whole (<see cref="PieceGenuine"/>).
+    /// <para>
+    /// Before, the length alone was L³ / (L³ + 3³), fitted jointly over pieces of every length: pieces of one character
+    /// came out at 0.036 and of three at 0.5, while on the merged segments of the trust benchmark's kcs-1200 tapes of
+    /// tuning seeds 10000–10087 one capture's pieces of one character were right 9 of 140 times and of two or three 4 of
+    /// 108 (merged at 0.023 and 0.136), and what told the right ones apart was the reading that carried them: pieces of
+    /// one to three characters from readings at 0.5 or more were right 6 of 13 times, from readings below 0.1 6 of 200.
+    /// Half-length and power refitted with the reading's confidence counted, by the log-likelihood of right and wrong
+    /// over those tapes' merged positions (kcs-1200 −151.9 before, −128.7 after; a half-length from 8 to 16 and a power
+    /// of 1 to 3 all within two of that).
+    /// </para>
     /// </summary>
     public static double LonePieceGenuine(int characters)
     {
-        double cube = Math.Pow(Math.Max(0, characters), 3);
-        return cube / (cube + Math.Pow(LonePieceHalfLength, 3));
+        double square = Math.Pow(Math.Max(0, characters), 2);
+        return square / (square + (LonePieceHalfLength * LonePieceHalfLength));
     }
 
     /// <summary>The length in characters at which a lone piece beside a hole is as likely true as invented (<see cref="LonePieceGenuine"/>).</summary>
-    public const double LonePieceHalfLength = 3;
+    public const double LonePieceHalfLength = 8;
+
+    /// <summary>
+    /// The chance that a piece beside bytes no capture kept is a run of the written characters: at least what its length
+    /// says (<see cref="LonePieceGenuine"/>), and at least the confidence of a reading of four characters or more that
+    /// carried it (if that reading is right as a whole, so is the piece; its confidence is the block stage's calibrated
+    /// judgement of all its characters and of where it began and ended, where a piece's odds in the vote say only how
+    /// cleanly each character was framed). A reading of fewer characters is what a false frame in damage makes: a start
+    /// bit read in the noise and a character or two before the signal breaks off again.
+    /// </summary>
+    private double PieceGenuine(List<Slot> slots)
+    {
+        double carried = 0;
+        foreach (var slot in slots)
+        {
+            foreach (var b in slot.Bytes)
+            {
+                var reading = _passes[b.Pass].Candidates[b.Candidate];
+                if (b.Value == slot.Value && reading.Payload.Length >= 4)
+                {
+                    carried = Math.Max(carried, reading.Confidence);
+                }
+            }
+        }
+
+        return Math.Max(LonePieceGenuine(slots.Count), carried);
+    }
 
     private readonly IReadOnlyList<MergePass> _passes;
     private readonly PassTimeline[] _timelines;
@@ -556,7 +585,7 @@ internal sealed class StreamMerge
 
         // A piece beside bytes no capture kept may be a false frame's invention as a whole, whether one capture carried
         // it or several: the damage that made the hole is on the tape, and captures frame the same false characters in it.
-        double genuine = afterGap || beforeGap ? LonePieceGenuine(slots.Count) : 1;
+        double genuine = afterGap || beforeGap ? PieceGenuine(slots) : 1;
 
         // Provenance: per capture, the reading that gave most of the winning bytes; the capture that gave most first.
         var winning = slots.SelectMany(s => s.Bytes.Where(b => b.Value == s.Value)).ToList();

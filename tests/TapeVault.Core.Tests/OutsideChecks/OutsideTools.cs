@@ -60,6 +60,10 @@ internal static class OutsideTool
             RedirectStandardOutput = true,
             RedirectStandardError = true,
             UseShellExecute = false,
+
+            // One character a byte: what minimodem's receiver prints is the bytes it read, not UTF-8 text (as UTF-8, a
+            // byte of 0x80 or more that starts no valid sequence came back as U+FFFD, and Latin-1 made that "?", 0x3F).
+            StandardOutputEncoding = Encoding.Latin1,
         };
         foreach (string argument in arguments)
         {
