@@ -65,14 +65,7 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
     [Fact]
     public void Low_passed_minimodem_stream_is_drafted_as_fsk()
     {
-        var random = new Random(7);
-        var blocks = new List<byte[]>();
-        for (int n = 0; n < 12; n++)
-        {
-            var block = new byte[100];
-            random.NextBytes(block);
-            blocks.Add(block);
-        }
+        var blocks = RandomBlocks(7, 12, 100);
 
         var (_, profile) = DraftOfLowPassedTones(blocks, "fsk-300-stream", withCrc: false);
 
@@ -90,14 +83,7 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
     [Fact]
     public void A_slow_stream_of_tones_one_baud_apart_is_still_loadable_once_its_guesses_are_confirmed()
     {
-        var random = new Random(11);
-        var blocks = new List<byte[]>();
-        for (int n = 0; n < 8; n++)
-        {
-            var block = new byte[120];
-            random.NextBytes(block);
-            blocks.Add(block);
-        }
+        var blocks = RandomBlocks(11, 8, 120);
 
         string tones = folder.File("fsk-800-slow.minimodem.wav");
         MinimodemWrite(blocks, tones, withCrc: false, 800, 2000, 1200);
@@ -121,6 +107,21 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
         string read = string.Concat(result.Candidates.Select(c => Convert.ToHexString([.. c.Header, .. c.Payload])));
         int found = blocks.Count(b => read.Contains(Convert.ToHexString(b), StringComparison.Ordinal));
         Assert.True(found >= blocks.Count - 1, $"{found} of {blocks.Count} blocks read back by the confirmed draft");
+    }
+
+    /// <summary><paramref name="count"/> blocks of <paramref name="length"/> random bytes, drawn from <paramref name="seed"/>.</summary>
+    private static List<byte[]> RandomBlocks(int seed, int count, int length)
+    {
+        var random = new Random(seed);
+        var blocks = new List<byte[]>();
+        for (int n = 0; n < count; n++)
+        {
+            var block = new byte[length];
+            random.NextBytes(block);
+            blocks.Add(block);
+        }
+
+        return blocks;
     }
 
     /// <summary>The draft is FSK at minimodem's tones and rate (outside reference: its arguments --tx 300 --mark 2400 --space 1200).</summary>
