@@ -337,18 +337,23 @@ public sealed class FskDrafter : IFamilyDrafter
         }
 
         proposal.Sections["fsk"] = fskSection;
-        string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays";
-        proposal.Measured("fsk.markHz", F(markHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
-        proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), spectrumAgrees ? 0.9 : 0.8, toneEvidence);
-        if (fromRuns && baud == bauds[0])
-        {
-            proposal.Measured("fsk.baud", F(baud, "0.00"), 0.9, $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower");
-        }
-        else
-        {
-            proposal.Measured("fsk.baud", F(baud, "0.00"), layout.HasChecksum ? 0.85 : 0.6,
-                $"the tones' runs make no one bit time that frames (runs of {survey.Runs[high].Granularity} and {survey.Runs[low].Granularity} half cycles); of the bauds {string.Join(", ", tried.Select(t => F(t.Baud, "0")))} the trial decodes read most characters at this one" + (layout.HasChecksum ? ", and a check value holds on the blocks read at it" : string.Empty));
-        }
+        // The baud: from the tones' runs; else the one of the bauds tried that read most, measured where a check value
+        // holds on the blocks read at it or where its characters frame cleanly (a baud a few percent off misplaces
+        // the last bits of a character and breaks its stop bits: common practice for serial lines).
+        double baudConfidence = fromRuns && baud == bauds[0] ? 0.9 : layout.HasChecksum ? 0.85 : proposal.FramingHolds ? DraftFinding.MeasuredThreshold : 0.6;
+        string baudEvidence = fromRuns && baud == bauds[0]
+            ? $"a bit is {survey.Runs[high].Granularity / 2.0} cycles of the higher tone and {survey.Runs[low].Granularity / 2.0} of the lower"
+            : $"the tones' runs make no one bit time that frames (runs of {survey.Runs[high].Granularity} and {survey.Runs[low].Granularity} half cycles); of the bauds {string.Join(", ", tried.Select(t => F(t.Baud, "0")))} the trial decodes read most characters at this one"
+                + (layout.HasChecksum ? ", and a check value holds on the blocks read at it" : proposal.FramingHolds ? $", framing {F(100 * (1 - chosen.ErrorShare), "0.#")} % of {chosen.Blocks.Sum(b => b.Payload.Length)} characters cleanly" : string.Empty);
+
+        // The tones and the baud are one measurement at the tape's speed: where the baud is a guess, so are the tones,
+        // so that confirming the baud alone never sets a nominal baud beside tones measured off speed.
+        double toneConfidence = Math.Min(spectrumAgrees ? 0.9 : 0.8, baudConfidence);
+        string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays"
+            + (baudConfidence < DraftFinding.MeasuredThreshold ? "; a guess with the baud, since both are as the tape plays" : string.Empty);
+        proposal.Measured("fsk.markHz", F(markHz, "0.0"), toneConfidence, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
+        proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), toneConfidence, toneEvidence);
+        proposal.Measured("fsk.baud", F(baud, "0.00"), baudConfidence, baudEvidence);
 
         if (leader is null)
         {

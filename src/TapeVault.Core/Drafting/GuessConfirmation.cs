@@ -121,7 +121,11 @@ public static class GuessConfirmation
             return;
         }
 
-        int? coverageStart = CoverageStart(layout);
+        // A check the draft wrote as covering its payload (its header no more than a sync, say) covers from the end
+        // of that header on: the same byte, named now by the reference's fields there.
+        int? coverageStart = layout["checksum"]?["covers"] is JsonValue covers && covers.GetValue<string>() == "payload"
+            ? CoverageStart(layout, bySection: true)
+            : CoverageStart(layout);
 
         // A sync the draft measured and wrote as the header's first field (a sync of whole bytes) is the sync's, not
         // the header's: where the reference writes its sync elsewhere (as pulse classes, say), it stays.

@@ -50,6 +50,8 @@ public sealed class StretchSurvey
     /// A survey through every setting that counts both edges, the one whose intervals group best first (the first of
     /// equals in the bank's order). Filtering and equalisation treat the settings differently, so a family whose
     /// structure one setting blurs (a tone's half cycles falling out of their group) may show through another.
+    /// A survey of fewer than two groups comes after every other: no family is one length of interval, and a setting
+    /// that hears only mains hum under a faint recording groups its long half cycles best of all.
     /// </summary>
     public static IReadOnlyList<StretchSurvey> TakeEach(CaptureStretch stretch, CancellationToken cancellation = default)
     {
@@ -64,7 +66,7 @@ public sealed class StretchSurvey
             surveys.Add(new StretchSurvey(stretch, setting, edges, intervals, clusters, classes));
         }
 
-        return [.. surveys.Select((s, i) => (Survey: s, Index: i)).OrderByDescending(x => x.Survey.GroupedShare).ThenBy(x => x.Index).Select(x => x.Survey)];
+        return [.. surveys.Select((s, i) => (Survey: s, Index: i)).OrderByDescending(x => x.Survey.Clusters.Count >= 2).ThenByDescending(x => x.Survey.GroupedShare).ThenBy(x => x.Index).Select(x => x.Survey)];
     }
 
     /// <summary>The share of intervals that fall in a group.</summary>

@@ -163,6 +163,18 @@ public sealed class FamilyChoiceTests(OutsideTempFolder folder, ITestOutputHelpe
     }
 
     /// <summary>
+    /// Tuning seed 16007 (an odd seed: no SoX chain): fsk-sync from a head amplifier at a level of 0.065 with 50 Hz hum
+    /// of 0.025, 88.2 kHz. The setting whose intervals grouped best heard the hum alone (one group of long half
+    /// cycles), and the draft stopped there: "hold no groups of interval lengths", none of the truth's 9.
+    /// </summary>
+    [Fact]
+    public void A_faint_capture_under_hum_is_drafted_through_a_setting_that_hears_the_tones()
+    {
+        var result = DraftTrials.Run("fsk-sync", 16007, folder.Root);
+        AssertDraftedAs(result, "fsk", truthAtLeast: 8);
+    }
+
+    /// <summary>
     /// The truth profile read at least <paramref name="truthAtLeast"/> blocks (else the damage, not the draft, is
     /// tested), the draft is of <paramref name="family"/>, and once confirmed it reads 90 % of the truth's blocks.
     /// </summary>

@@ -65,19 +65,63 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
     [Fact]
     public void Low_passed_minimodem_stream_is_drafted_as_fsk()
     {
-        var random = new Random(7);
-        var blocks = new List<byte[]>();
-        for (int n = 0; n < 12; n++)
-        {
-            var block = new byte[100];
-            random.NextBytes(block);
-            blocks.Add(block);
-        }
+        var blocks = RandomBlocks(7, 12, 100);
 
         var (_, profile) = DraftOfLowPassedTones(blocks, "fsk-300-stream", withCrc: false);
 
         AssertMinimodemTones(profile);
         Assert.Equal(Parity.Odd, profile.Framing.Parity);
+    }
+
+    /// <summary>
+    /// A stream whose tones are 1.5 and 2.5 cycles a bit, one baud apart (minimodem --tx 800 --mark 2000 --space 1200),
+    /// with no check value, played 3 % slow (SoX's speed effect, sox(1)). The tones' runs step by odd counts of half
+    /// cycles and make no one bit time; the baud is the one whose trial decode frames cleanly. Before: that baud was a
+    /// guess and the tones measured as the tape plays were not, so confirming the guesses set minimodem's 800 baud
+    /// beside tones 776 Hz apart, and the confirmed draft did not load ("fsk.spaceHz must be at least one baud away").
+    /// </summary>
+    [Fact]
+    public void A_slow_stream_of_tones_one_baud_apart_is_still_loadable_once_its_guesses_are_confirmed()
+    {
+        var blocks = RandomBlocks(11, 8, 120);
+
+        string tones = folder.File("fsk-800-slow.minimodem.wav");
+        MinimodemWrite(blocks, tones, withCrc: false, 800, 2000, 1200);
+        string capture = folder.File("fsk-800-slow.sox.wav");
+        OutsideTool.Sox(tones, capture, "speed", "0.97");
+        var draft = ProfileDrafter.Draft(capture);
+        output.WriteLine(draft.Json);
+        output.WriteLine(draft.SideListJson());
+
+        // The reference: minimodem's arguments (--tx 800 --mark 2000 --space 1200) and the framing written here (8O1,
+        // least significant bit first), a stream with no check value.
+        const string reference = """
+            {"id": "minimodem-800", "name": "minimodem at 800 baud", "family": "fsk",
+             "fsk": {"markHz": 2000, "spaceHz": 1200, "baud": 800, "leadInMinimumSeconds": 0.1},
+             "framing": {"dataBits": 8, "bitOrder": "lsb-first", "startBits": "0", "stopBits": "1", "parity": "odd"},
+             "layout": {}}
+            """;
+        var confirmed = ProfileLoader.Parse(GuessConfirmation.Confirm(draft.Json, reference, draft.GuessedPaths), "confirmed");
+
+        using var result = CaptureDecoder.Decode(capture, confirmed);
+        string read = string.Concat(result.Candidates.Select(c => Convert.ToHexString([.. c.Header, .. c.Payload])));
+        int found = blocks.Count(b => read.Contains(Convert.ToHexString(b), StringComparison.Ordinal));
+        Assert.True(found >= blocks.Count - 1, $"{found} of {blocks.Count} blocks read back by the confirmed draft");
+    }
+
+    /// <summary><paramref name="count"/> blocks of <paramref name="length"/> random bytes, drawn from <paramref name="seed"/>.</summary>
+    private static List<byte[]> RandomBlocks(int seed, int count, int length)
+    {
+        var random = new Random(seed);
+        var blocks = new List<byte[]>();
+        for (int n = 0; n < count; n++)
+        {
+            var block = new byte[length];
+            random.NextBytes(block);
+            blocks.Add(block);
+        }
+
+        return blocks;
     }
 
     /// <summary>The draft is FSK at minimodem's tones and rate (outside reference: its arguments --tx 300 --mark 2400 --space 1200).</summary>
@@ -111,12 +155,14 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
     /// significant first): half a second of mark before each block and after the last, each character framed 8O1, each
     /// block followed by its CRC-16/XMODEM when <paramref name="withCrc"/>.
     /// </summary>
-    private static void MinimodemWrite(List<byte[]> blocks, string path, bool withCrc)
+    private static void MinimodemWrite(List<byte[]> blocks, string path, bool withCrc) => MinimodemWrite(blocks, path, withCrc, Baud, 2400, 1200);
+
+    private static void MinimodemWrite(List<byte[]> blocks, string path, bool withCrc, int baud, int markHz, int spaceHz)
     {
         var bits = new StringBuilder();
         foreach (var block in blocks)
         {
-            bits.Append('1', Baud / 2);
+            bits.Append('1', baud / 2);
             ushort crc = CrcXmodem(block);
             foreach (byte c in withCrc ? block.Append((byte)(crc >> 8)).Append(unchecked((byte)crc)) : block)
             {
@@ -135,12 +181,12 @@ public sealed class FskDraftOutsideTests(OutsideTempFolder folder, ITestOutputHe
             }
         }
 
-        bits.Append('1', Baud / 2);
+        bits.Append('1', baud / 2);
         var packed = MinimodemRawBits.Pack(bits);
 
         OutsideTool.Run(
             OutsideTool.MinimodemPath,
-            ["--tx", Baud.ToString(CultureInfo.InvariantCulture), "--mark", "2400", "--space", "1200", "--startbits", "0", "--stopbits", "0",
+            ["--tx", baud.ToString(CultureInfo.InvariantCulture), "--mark", markHz.ToString(CultureInfo.InvariantCulture), "--space", spaceHz.ToString(CultureInfo.InvariantCulture), "--startbits", "0", "--stopbits", "0",
              "--volume", "0.5", "-R", "44100", "-f", path],
             packed);
         Assert.Equal(44_100, OutsideTool.SoxSampleRate(path));

@@ -86,6 +86,28 @@ public sealed class GuessConfirmationTests
     }
 
     [Fact]
+    public void A_guessed_header_behind_a_check_of_the_payload_keeps_the_check_from_the_end_of_the_drafted_header()
+    {
+        string truth = RandomFormats.Draw("fsk-sync", new Random(13));
+        var reference = JsonNode.Parse(truth)!.AsObject();
+
+        // The draft read every block at one length: its header the sync alone, the reference's name, block number and
+        // length inside a fixed payload, and the check holding from the end of the sync on (covering its "payload").
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        draft["layout"]!["header"] = new JsonArray(reference["layout"]!["header"]![0]!.DeepClone());
+        draft["layout"]!["checksum"]!["covers"] = "payload";
+        ((JsonObject)draft["layout"]!).Remove("maximumPayloadBytes");
+        draft["layout"]!["payloadBytes"] = 139;
+
+        var confirmed = JsonNode.Parse(GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["layout.header", "layout.payloadBytes"]))!;
+
+        // Before: the coverage stayed "payload", the bytes after the reference's header alone, and no block's check held.
+        // The reference's own coverage (RandomFormats writes the fsk-sync check over name, block, length and payload).
+        Assert.Equal(reference["layout"]!["checksum"]!["covers"]!.ToJsonString(), confirmed["layout"]!["checksum"]!["covers"]!.ToJsonString());
+        ProfileLoader.Parse(confirmed.ToJsonString(), "confirmed");
+    }
+
+    [Fact]
     public void A_guessed_header_keeps_the_sync_field_the_draft_measured_where_the_reference_writes_its_sync_as_pulses()
     {
         // The reference writes its sync as pulse classes; the draft measured the same sync as whole bytes (the lead-in's
