@@ -20,12 +20,13 @@ public sealed class ConcurrencyTests(ITestOutputHelper output)
         using var viewer = await app.SignedInAsync(ArchiveAppFactory.ViewerName);
         var (collectionId, itemId) = await curator.NewItemAsync("BUSY-1");
 
-        // Two minutes of tone each (different bytes, so two captures), both uploaded before either decode is asked
-        // for: otherwise the first decode can be over before the second upload has arrived.
+        // Six minutes of tone each (different bytes, so two captures), both uploaded before either decode is asked
+        // for: otherwise the first decode can be over before the second upload has arrived. Two minutes were too short
+        // once the read path got faster: a decode could end before the runner had taken up the second job.
         var captures = new List<int>();
         for (int seed = 1; seed <= 2; seed++)
         {
-            using var upload = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 22_050 * 120, seed: seed), $"busy{seed}.wav");
+            using var upload = await curator.UploadRawAsync(itemId, WavBytes.Pcm16(frames: 22_050 * 360, seed: seed), $"busy{seed}.wav");
             await ApiClient.EnsureAsync(upload, HttpStatusCode.Created);
             captures.Add((await upload.Content.ReadFromJsonAsync<UploadResult>(ApiClient.Json))!.Capture.Id);
         }
