@@ -76,20 +76,23 @@ public struct FrameAlignment
             _stream[_period + i] = i < levels.Length && Math.Abs(levels[i]) >= ConfidentLevel ? (sbyte)(levels[i] > 0 ? 1 : 0) : (sbyte)-1;
         }
 
-        if (backToBack)
+        // Only the framing in use and those not yet ruled out are counted: a framing ruled out stays so until Reset.
+        if (backToBack && _alive != 0)
         {
             _checked++;
-            for (int shift = 0; shift < _period; shift++)
+            if (Breaks(0))
             {
-                if (Breaks(shift))
-                {
-                    _breaks[shift]++;
-                }
+                _breaks[0]++;
             }
 
             for (int shift = 1; shift < _period; shift++)
             {
-                if ((_alive & (1u << shift)) != 0 && _breaks[shift] >= _breaks[0] + RuledOutBreaks && RuledOutShare * _breaks[shift] >= _checked)
+                if ((_alive & (1u << shift)) == 0 || !Breaks(shift))
+                {
+                    continue;
+                }
+
+                if (++_breaks[shift] >= _breaks[0] + RuledOutBreaks && RuledOutShare * _breaks[shift] >= _checked)
                 {
                     _alive &= ~(1u << shift);
                 }
