@@ -33,7 +33,7 @@ public static class Throughput
     {
         Console.WriteLine($"Read-path throughput: 44.1 kHz 16-bit mono, {minutes} min captures, whole processes, median of {Runs}");
         Console.WriteLine($"Load at start: {Load()}");
-        Console.WriteLine($"Build: {BuildKind()}");
+        Console.WriteLine($"Build: {BuildKind()}; {RuntimeSettings()}");
         string kcs = Path.Combine(work, $"minimodem-kcs300-{minutes}min.wav");
         EnsureMinimodemCapture(kcs, minutes);
 
@@ -251,6 +251,17 @@ public static class Throughput
         return pe.PEHeaders.CorHeader?.ManagedNativeHeaderDirectory.Size > 0
             ? "ReadyToRun (a publish for one runtime: dotnet publish -r linux-x64)"
             : "JIT only (a build; publish for one runtime for the ReadyToRun figures)";
+    }
+
+    /// <summary>
+    /// The tiered-compilation settings the children run with, as the runtime was given them (the runtime configuration
+    /// the build wrote, or the environment's <c>DOTNET_TieredPGO</c>, which overrides it): the command ships with tiered PGO off.
+    /// </summary>
+    internal static string RuntimeSettings()
+    {
+        string? variable = Environment.GetEnvironmentVariable("DOTNET_TieredPGO");
+        bool pgo = variable is not null ? variable != "0" : AppContext.GetData("System.Runtime.TieredPGO") is not string configured || !bool.TryParse(configured, out bool on) || on;
+        return pgo ? "tiered PGO on (the command ships with it off)" : "tiered PGO off (as the command ships)";
     }
 
     /// <summary>A benchmark child process: the whole process is timed, start-up included.</summary>
