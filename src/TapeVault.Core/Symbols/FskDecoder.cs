@@ -116,6 +116,10 @@ public sealed class FskDecoder : ISymbolDecoder
     // Whether the block in progress is still finding out from its own characters where they may be framed.
     private bool _checkingAlignment;
 
+    // The last reading at which the run of mark before a start bit broke: no carrier, or a start bit that read mark at
+    // its centre (see StartIsConfirmed).
+    private double _markBrokenAt = double.NegativeInfinity;
+
     /// <param name="readingStride">Every how many samples the tone bank reads a window (<see cref="ToneBank.Stride"/>); 1 by default.</param>
     public FskDecoder(FormatProfile profile, bool countsBothEdges, double sampleRate, IBlockSink blocks, int readingStride = 1)
     {
@@ -381,6 +385,11 @@ public sealed class FskDecoder : ISymbolDecoder
         // Half a bit without carrier is a loss of signal; a shorter fade (deep noise can null a one-bit window for
         // a moment) is not.
         _noCarrierRun = _tones.Carrier ? 0 : _noCarrierRun + 1;
+        if (_noCarrierRun > 0 && !inChar)
+        {
+            _markBrokenAt = n;
+        }
+
         if (_noCarrierRun >= 0.5 * BitSamples && (inChar || _inBlock || _held.Count > 0 || InLeader))
         {
             LoseSignal();
@@ -391,6 +400,7 @@ public sealed class FskDecoder : ISymbolDecoder
             {
                 case CharacterStep.FalseStart:
                     _mark.FalseStart(n - _framer.Start);
+                    _markBrokenAt = _framer.Start;
                     break;
                 case CharacterStep.Complete:
                     CompleteCharacter(n);
@@ -507,10 +517,21 @@ public sealed class FskDecoder : ISymbolDecoder
     /// Whether a start bit at <paramref name="crossing"/> is confirmed: the first after a lead-in, an idle line or a
     /// whole character of mark is; inside a block, or resumed on the grid kept over a loss of signal, it is as sure as
     /// that grid; resumed with no grid to hold it, or taken with no lead-in, it is not.
+    /// <para>
+    /// In a stream, neither is a fall less than a character after the mark tone before it broke: a loss of carrier
+    /// (outside a block it does not end a lead-in, so that a short dropout in the lead-in does not lose the block) or a
+    /// start bit that read mark at its centre (a dip in the lead-in is no character). Either may as well have hidden
+    /// the start bit of the first character, and the fall then is a data bit of that character. In text that is a
+    /// misframed character or two before a framing error sets it right; in a run of one byte repeated nothing ever does
+    /// (0x9B sent over and over with two stop bits, framed from its third bit, reads 0x73 with every decision clean). A
+    /// checked layout's checksum judges such a frame; a stream has only its own characters (<see
+    /// cref="FrameAlignment"/>).
+    /// </para>
     /// </summary>
     private bool StartIsConfirmed(double crossing, BlockStart evidence)
     {
-        if (evidence is BlockStart.LeadIn or BlockStart.IdleLine or BlockStart.Leader || _mark.Samples >= FrameSamples)
+        bool markWhole = !_isStream || evidence == BlockStart.Leader || crossing - _markBrokenAt >= FrameSamples;
+        if ((evidence is BlockStart.LeadIn or BlockStart.IdleLine or BlockStart.Leader || _mark.Samples >= FrameSamples) && markWhole)
         {
             return true;
         }
@@ -652,8 +673,8 @@ public sealed class FskDecoder : ISymbolDecoder
         }
 
         // A block with no lead-in whose first start bit nothing confirmed finds out from its own characters whether
-        // they can be framed anywhere else.
-        _checkingAlignment = evidence == BlockStart.WithoutLeadIn && !confirmed;
+        // they can be framed anywhere else; so does a stream whose lead-in broke less than a character before it.
+        _checkingAlignment = !confirmed && (evidence == BlockStart.WithoutLeadIn || (_isStream && evidence is BlockStart.LeadIn or BlockStart.IdleLine));
         if (_checkingAlignment)
         {
             _grid.Confirmed = false;

@@ -188,6 +188,22 @@ internal static class KcsCaptures
     }
 
     /// <summary>
+    /// Writes <paramref name="path"/>: minimodem alone sending <paramref name="written"/> at <paramref name="baud"/> with
+    /// two stop bits, no lead-in added. Outside reference: minimodem's own receiver, told of the two stop bits, reads the
+    /// bytes it was given back from the file it wrote.
+    /// </summary>
+    public static void WriteRun(string path, int baud, int sampleRate, byte[] written)
+    {
+        string bits = baud.ToString(CultureInfo.InvariantCulture);
+        OutsideTool.Run(
+            OutsideTool.MinimodemPath,
+            ["--tx", bits, "--mark", "2400", "--space", "1200", "--stopbits", "2", "-R", sampleRate.ToString(CultureInfo.InvariantCulture), "-f", path],
+            written);
+        var received = OutsideTool.Run(OutsideTool.MinimodemPath, ["--rx", bits, "--mark", "2400", "--space", "1200", "--stopbits", "2", "--quiet", "-f", path]);
+        Assert.Equal(Hex(written), Hex(Encoding.Latin1.GetBytes(received.StandardOutput)));
+    }
+
+    /// <summary>
     /// Writes what minimodem alone sends for the text, with no lead-in added: <paramref name="name"/>.minimodem.wav,
     /// checked as <see cref="Write"/> describes.
     /// </summary>
