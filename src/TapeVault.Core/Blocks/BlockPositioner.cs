@@ -77,7 +77,7 @@ public static partial class BlockPositioner
             }
             else
             {
-                var overlapping = FindOverlapping(trusted, c);
+                var overlapping = FindOverlapping(trusted, c, AlikeAtSync(named, c));
                 if (overlapping is not null)
                 {
                     anchors.Add((keyed.Count, overlapping));
@@ -88,7 +88,7 @@ public static partial class BlockPositioner
                 // name, the next block number). Nor does a reading that names nothing where two other settings'
                 // readings from the same sync name one block alike: it is a reading of that place, whatever is clean
                 // nearby.
-                bool placeNamed = !NamesItself(c) && NamedAtSync(named, c);
+                bool placeNamed = !NamesItself(c) && AlikeAtSync(named, c) is not null;
                 key = overlapping?.Identity.Key
                     ?? (copies > 1 ? FindCopyOfPartial(trusted, c, copies, copyGap)?.Identity.Key : null)
                     ?? (copies > 1 && !placeNamed && !(NamesItself(c) && ReadAlikeElsewhere(c, headersRead)) ? FindNeighbouringCopy(trusted, c, copies, copyGap)?.Identity.Key : null)
@@ -341,41 +341,41 @@ public static partial class BlockPositioner
         return found;
     }
 
-    /// <summary>The starts, settings and identities of the readings that name a block, in order of start.</summary>
-    private static List<(double Start, int Setting, string Key)> NamedStarts(IReadOnlyList<BlockCandidate> candidates)
+    /// <summary>The readings that name a block, in order of start.</summary>
+    private static List<BlockCandidate> NamedStarts(IReadOnlyList<BlockCandidate> candidates)
     {
-        var named = new List<(double Start, int Setting, string Key)>();
+        var named = new List<BlockCandidate>();
         foreach (var c in candidates)
         {
             if (NamesItself(c))
             {
-                named.Add((c.StartSeconds, c.SettingIndex, c.Identity.Key));
+                named.Add(c);
             }
         }
 
-        named.Sort((a, b) => a.Start.CompareTo(b.Start));
+        named.Sort((a, b) => a.StartSeconds.CompareTo(b.StartSeconds));
         return named;
     }
 
     /// <summary>
-    /// Whether two settings' readings that start at the sync of <paramref name="c"/> name one block alike (one setting's
-    /// garbled header names nothing that anyone can vouch for).
+    /// A reading that starts at the sync of <paramref name="c"/> and names a block as another setting's reading from
+    /// there names it, where there is one (one setting's garbled header names nothing that anyone can vouch for).
     /// </summary>
-    private static bool NamedAtSync(List<(double Start, int Setting, string Key)> named, BlockCandidate c)
+    private static BlockCandidate? AlikeAtSync(List<BlockCandidate> named, BlockCandidate c)
     {
-        int from = LowerBound(named.Count, i => named[i].Start >= c.StartSeconds - SyncSeconds);
-        for (int i = from; i < named.Count && named[i].Start <= c.StartSeconds + SyncSeconds; i++)
+        int from = LowerBound(named.Count, i => named[i].StartSeconds >= c.StartSeconds - SyncSeconds);
+        for (int i = from; i < named.Count && named[i].StartSeconds <= c.StartSeconds + SyncSeconds; i++)
         {
-            for (int j = i + 1; j < named.Count && named[j].Start <= c.StartSeconds + SyncSeconds; j++)
+            for (int j = i + 1; j < named.Count && named[j].StartSeconds <= c.StartSeconds + SyncSeconds; j++)
             {
-                if (named[j].Setting != named[i].Setting && named[j].Key == named[i].Key)
+                if (named[j].SettingIndex != named[i].SettingIndex && named[j].Identity.Key == named[i].Identity.Key)
                 {
-                    return true;
+                    return named[i];
                 }
             }
         }
 
-        return false;
+        return null;
     }
 
     /// <summary>Starts closer than this are one sync, read by several settings (blocks and copies are whole lead-ins apart).</summary>
@@ -888,7 +888,9 @@ public static partial class BlockPositioner
         for (int p = 0; p < places.Count; p++)
         {
             string key = placeKey[p];
-            string? overlapped = OverlappedKey(keyed, index, near, p, placeOf, placeKey, placeSupport, places[p][0], out bool anchored);
+            int alikeAt = places[p].FindIndex(i => NamesItself(keyed[i].Candidate) && ReadAlikeAtPlace(i));
+            var alike = alikeAt >= 0 ? keyed[places[p][alikeAt]].Candidate : null;
+            string? overlapped = OverlappedKey(keyed, index, near, p, placeOf, placeKey, placeSupport, places[p][0], alike, out bool anchored);
             if (anchored)
             {
                 // A stretch of tape that an anchored reading covers is that block's place: readings of other settings
@@ -1107,14 +1109,7 @@ public static partial class BlockPositioner
             return false;
         }
 
-        int shared = Math.Min(other.Header.Length, c.Header.Length);
-        int agree = 0;
-        for (int b = 0; b < shared; b++)
-        {
-            agree += other.Header[b] == c.Header[b] ? 1 : 0;
-        }
-
-        return shared > 0 && 2 * agree >= shared;
+        return HeadersAgreeMostly(c, other);
     }
 
     /// <summary>
@@ -1127,7 +1122,7 @@ public static partial class BlockPositioner
     /// </summary>
     private static string? OverlappedKey(
         List<(BlockCandidate Candidate, string Key)> keyed, ReadingIndex readings, List<int> near, int place, int[] placeOf, string[] placeKey, int[] placeSupport,
-        int first, out bool anchored)
+        int first, BlockCandidate? alike, out bool anchored)
     {
         var c = keyed[first].Candidate;
         string? best = null;
@@ -1153,6 +1148,11 @@ public static partial class BlockPositioner
             }
             else if (other.Status == BlockStatus.Clean)
             {
+                if (!MayClaim(other, c, alike))
+                {
+                    continue;
+                }
+
                 otherSupport = int.MaxValue;
             }
             else if (SameSync(c, other))
@@ -1193,6 +1193,32 @@ public static partial class BlockPositioner
     private static bool OtherBlock(BlockCandidate a, BlockCandidate b) =>
         !Overlaps(a.StartSeconds, a.EndSeconds, b.StartSeconds, b.EndSeconds)
         && !(a.Header.AsSpan().SequenceEqual(b.Header.AsSpan()) && a.Payload.AsSpan().SequenceEqual(b.Payload.AsSpan()));
+
+    /// <summary>
+    /// Whether the clean reading <paramref name="clean"/> may claim <paramref name="c"/>, a failed reading that overlaps
+    /// it. It may where <paramref name="c"/> was read from its sync or from within it (a resync after a loss of signal).
+    /// A reading from an earlier sync that runs over it does so on a length nobody proved; where two settings read the
+    /// header at that sync alike (<paramref name="alike"/>) as another block of the clean block's file (a header that
+    /// agrees with the clean one over half its bytes or more, not in all: the block before, or its other copy), that
+    /// sync is that block's place, and the reading is of it. A header read alike that resembles no neighbour (payload
+    /// read as a header after a resync) vouches for no place, and the reading goes where it overlaps most.
+    /// </summary>
+    private static bool MayClaim(BlockCandidate clean, BlockCandidate c, BlockCandidate? alike) =>
+        SameSync(clean, c) || c.StartSeconds >= clean.StartSeconds || alike is null
+        || alike.Identity.Key == clean.Identity.Key || !HeadersAgreeMostly(alike, clean);
+
+    /// <summary>Whether two headers agree over at least half the bytes both have.</summary>
+    private static bool HeadersAgreeMostly(BlockCandidate a, BlockCandidate b)
+    {
+        int shared = Math.Min(a.Header.Length, b.Header.Length);
+        int agree = 0;
+        for (int i = 0; i < shared; i++)
+        {
+            agree += a.Header[i] == b.Header[i] ? 1 : 0;
+        }
+
+        return shared > 0 && 2 * agree >= shared;
+    }
 
     /// <summary>Whether the two readings overlap over at least half of the shorter one.</summary>
     private static bool MostlyOverlaps(BlockCandidate a, BlockCandidate b)
@@ -1260,8 +1286,11 @@ public static partial class BlockPositioner
         return a.Confidence > b.Confidence || (a.Confidence == b.Confidence && a.Payload.Length > b.Payload.Length);
     }
 
-    /// <summary>A trusted candidate (sorted by start) overlapping <paramref name="c"/> in time, by binary search.</summary>
-    private static BlockCandidate? FindOverlapping(List<BlockCandidate> trusted, BlockCandidate c)
+    /// <summary>
+    /// A trusted candidate (sorted by start) overlapping <paramref name="c"/> in time, by binary search, that may claim
+    /// it (<see cref="MayClaim"/>, with <paramref name="alike"/> the header two settings read alike at its sync, if any).
+    /// </summary>
+    private static BlockCandidate? FindOverlapping(List<BlockCandidate> trusted, BlockCandidate c, BlockCandidate? alike)
     {
         int lo = 0, hi = trusted.Count;
         while (lo < hi)
@@ -1285,7 +1314,7 @@ public static partial class BlockPositioner
         bool bestAtSync = false;
         for (int i = lo - 1; i >= 0 && i >= lo - 64; i--)
         {
-            if (Overlaps(trusted[i].StartSeconds, trusted[i].EndSeconds, c.StartSeconds, c.EndSeconds))
+            if (Overlaps(trusted[i].StartSeconds, trusted[i].EndSeconds, c.StartSeconds, c.EndSeconds) && MayClaim(trusted[i], c, alike))
             {
                 bool atSync = SameSync(trusted[i], c);
                 double overlap = Math.Min(trusted[i].EndSeconds, c.EndSeconds) - Math.Max(trusted[i].StartSeconds, c.StartSeconds);

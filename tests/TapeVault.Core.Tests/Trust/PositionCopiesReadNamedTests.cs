@@ -34,6 +34,19 @@ public sealed class PositionCopiesReadNamedTests
         AssertOnePositionPerBlock("orrin-80-copy-cut-after-file-name-one-pass.json", block: 10);
     }
 
+    [Fact]
+    public void A_reading_that_runs_on_over_the_next_block_stays_with_the_copy_it_was_read_from()
+    {
+        // orrin-80, seed 138003, pass 1 (our channel model), the readings that start from block 9 to block 10's second
+        // copy. At block 9's second copy two settings read its header alike (not clean) and a third reads on, on a
+        // misread length, over block 10's first copy, which is read clean. Before, that run-on took block 10's identity
+        // and carried the whole place (the two settings' readings too) into block 10's position; block 10's second copy,
+        // read clean, then made a position of its own (3 positions for 2 blocks, block 9 in two, block 10 in two). The
+        // reference is where the synthesiser wrote each copy; readings of one sync are one copy (common practice: every
+        // setting reads the same capture).
+        AssertOnePositionPerBlock("orrin-80-run-on-over-next-block-one-pass.json", block: 9);
+    }
+
     /// <summary>
     /// Placed again, the case's readings of each written block (where the synthesiser wrote its copies) lie in one
     /// position, no two blocks share one, and <paramref name="block"/> is among those read.
