@@ -92,7 +92,103 @@ internal sealed class BlockMerge
             }
         }
 
-        return FillNumberGaps(blocks);
+        // With several block kinds, a voted block is read in the first kind's layout and numbered by kind, so its
+        // identity need not be its header's fields: right voted positions of such a format break their proven
+        // neighbours' identities far more often than the proven ones break each other's (WeighByNeighbours).
+        var filled = FillNumberGaps(blocks);
+        return _profile.BlockKinds.Count > 1 ? filled : WeighByNeighbours(filled);
+    }
+
+    /// <summary>
+    /// A position no check proved is as sure as its readings, whose confidence is how often such readings are right,
+    /// header and payload, over many tapes; where it lies says more of its header. Between two proven positions, the
+    /// identity of a block that is there fits theirs as the tape's proven identities fit each other: at every
+    /// character where the names before and after it agree (a file's name, or the stem of numbered files' names) its
+    /// name agrees too, and within one file its block number lies between theirs (or is one of theirs: a second position of a block is no
+    /// misread header). A misread header breaks that at the
+    /// character it misread. How often a block that is there breaks it anyway is the tape's own share of proven
+    /// positions that break their proven neighbours' (with one that does and one that does not added, so that a tape of
+    /// few proven positions says little), against at most always for a misread one: by Bayes, the odds of a position
+    /// that breaks it are multiplied by that share.
+    /// </summary>
+    private static List<ImageBlock> WeighByNeighbours(List<ImageBlock> blocks)
+    {
+        var proven = new List<int>();
+        for (int i = 0; i < blocks.Count; i++)
+        {
+            if (blocks[i].Status == RecoveryStatus.Clean)
+            {
+                proven.Add(i);
+            }
+        }
+
+        int between = 0;
+        int breaking = 0;
+        for (int k = 1; k + 1 < proven.Count; k++)
+        {
+            between++;
+            if (!FitsBetween(blocks[proven[k - 1]], blocks[proven[k]], blocks[proven[k + 1]]))
+            {
+                breaking++;
+            }
+        }
+
+        double share = (breaking + 1.0) / (between + 2.0);
+        var weighed = new List<ImageBlock>(blocks.Count);
+        int before = -1;
+        for (int i = 0; i < blocks.Count; i++)
+        {
+            var block = blocks[i];
+            if (block.Status == RecoveryStatus.Clean)
+            {
+                before = i;
+            }
+            else if (block.Status != RecoveryStatus.Missing && before >= 0
+                && blocks.FindIndex(i + 1, b => b.Status == RecoveryStatus.Clean) is int after and >= 0
+                && !FitsBetween(blocks[before], block, blocks[after]))
+            {
+                double right = block.Confidence * share;
+                block = block with { Confidence = right / (right + (1 - block.Confidence)) };
+            }
+
+            weighed.Add(block);
+        }
+
+        return weighed;
+    }
+
+    /// <summary>
+    /// Whether a position's identity fits between those of the positions before and after it: its name agrees with
+    /// theirs at every character where theirs agree (names padded with spaces, as the field holds them), its file id is
+    /// theirs where they share one, and within one file its block number lies between theirs or is one of them. What one of the three
+    /// does not carry is not judged.
+    /// </summary>
+    private static bool FitsBetween(ImageBlock before, ImageBlock block, ImageBlock after)
+    {
+        if (before.FileName is { } a && block.FileName is { } m && after.FileName is { } z)
+        {
+            int length = Math.Max(a.Length, Math.Max(m.Length, z.Length));
+            for (int i = 0; i < length; i++)
+            {
+                char x = At(a, i);
+                if (x == At(z, i) && At(m, i) != x)
+                {
+                    return false;
+                }
+            }
+        }
+
+        if (before.FileId is { } id && after.FileId == id && block.FileId is { } own && own != id)
+        {
+            return false;
+        }
+
+        bool oneFile = before.FileName == after.FileName && before.FileId == after.FileId
+            && block.FileName == before.FileName && block.FileId == before.FileId;
+        return !(oneFile && before.BlockNumber is long first && after.BlockNumber is long last && last > first
+            && block.BlockNumber is long n && (n < first || n > last));
+
+        static char At(string name, int i) => i < name.Length ? name[i] : ' ';
     }
 
     private sealed class Entry(int pass, List<BlockCandidate> readings, double start, double end)
