@@ -730,15 +730,16 @@ internal sealed class BlockMerge
                 Math.Min(outcome.Confidence, AnyRight(CaptureWitnesses(alike).Select(w => w.Candidate.Confidence)).Right),
                 alike.Select(r => r.Pass),
                 odds);
-            return chance < MinimumRepairConfidence
-                ? Missing(fallbackIdentity, sources)
-                : ResolveClean(alike, status) with { Confidence = chance };
+            return chance >= MinimumRepairConfidence
+                ? ResolveClean(alike, status) with { Confidence = chance }
+                : IsEvidence(used) ? Missing(fallbackIdentity, sources) : null;
         }
 
-        // A pattern that holds is still more likely a false match than the block: keeping it would be filling in.
+        // A pattern that holds is still more likely a false match than the block: keeping it would be filling in. Its
+        // readings then show no more than readings for which no pattern holds, and are a position only as those are.
         if (outcome.Confidence < MinimumRepairConfidence)
         {
-            return Missing(fallbackIdentity, sources);
+            return IsEvidence(used) ? Missing(fallbackIdentity, sources) : null;
         }
 
         var header = outcome.Bytes.AsSpan(0, Layout.HeaderBytes).ToArray();
@@ -834,7 +835,10 @@ internal sealed class BlockMerge
 
     /// <summary>
     /// Block numbers that a file's positions skip (and the first blocks of a file whose start was not read) are
-    /// positions no pass saw at all: they are listed as missing, never closed up.
+    /// positions no pass saw at all: they are listed as missing, never closed up. Only a position read whole gives a
+    /// number to count from or to: a missing one carries the identity most of its failed readings carry, which no check
+    /// vouches for (a garbled name and number would make the first blocks of a file that was never written), and stands
+    /// for its own number only, which a gap around it leaves out.
     /// </summary>
     private List<ImageBlock> FillNumberGaps(List<ImageBlock> blocks)
     {
@@ -846,28 +850,38 @@ internal sealed class BlockMerge
         const int MaximumGap = 64;
         var filled = new List<ImageBlock>(blocks.Count);
         ImageBlock? previous = null;
+        var missingSince = new List<ImageBlock>();
         foreach (var block in blocks)
         {
-            if (block.BlockNumber is long number)
+            if (block.Status == RecoveryStatus.Missing)
             {
-                bool sameFile = previous is not null && previous.FileName == block.FileName && previous.FileId == block.FileId && previous.BlockNumber is long p && number > p;
+                missingSince.Add(block);
+            }
+            else if (block.BlockNumber is long number)
+            {
+                bool sameFile = previous is not null && SameFile(previous, block) && previous.BlockNumber is long p && number > p;
                 long from = sameFile ? previous!.BlockNumber!.Value + 1 : 0;
                 if (number - from is > 0 and <= MaximumGap)
                 {
                     for (long n = from; n < number; n++)
                     {
-                        var identity = new BlockIdentity(block.FileName, block.FileId, n, 0);
-                        filled.Add(Missing(identity, []));
+                        if (!missingSince.Exists(m => SameFile(m, block) && m.BlockNumber == n))
+                        {
+                            filled.Add(Missing(new BlockIdentity(block.FileName, block.FileId, n, 0), []));
+                        }
                     }
                 }
 
                 previous = block;
+                missingSince.Clear();
             }
 
             filled.Add(block);
         }
 
         return filled;
+
+        static bool SameFile(ImageBlock a, ImageBlock b) => a.FileName == b.FileName && a.FileId == b.FileId;
     }
 
     private ImageBlock Missing(BlockIdentity identity, ImmutableArray<BlockProvenance> sources) =>

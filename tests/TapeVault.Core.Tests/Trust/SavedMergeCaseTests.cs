@@ -119,6 +119,40 @@ public sealed class SavedMergeCaseTests
     }
 
     [Fact]
+    public void Blocks_no_pass_saw_are_counted_only_from_numbers_read_whole()
+    {
+        // one-cycle-bits, seed 138141: nineteen one-block files, every one read clean. One setting of the second pass
+        // read four bytes ahead of the first block as a block named " ?? ?  ?", number 8, failed. Its position was missing, and
+        // its garbled number stood for the eighth block of a file whose first eight blocks no pass saw: eight more
+        // missing positions of a file that was never written (before: 28 positions for 19 blocks).
+        var (_, profile, written, _, image) = Merged("one-cycle-bits-garbled-missing-header-three-passes.json");
+
+        // Ground truth: the blocks the synthesiser wrote, each a file of its own. A position no pass saw at all is a
+        // block of a file that a position read whole names.
+        var read = image.Blocks.Where(b => b.Status != RecoveryStatus.Missing).ToList();
+        Assert.All(read, b => Assert.True(written.Exists(w => IsBlock(profile, b.Header, b.Payload, w)), $"position {b.Position} ({b.Key}) was never written"));
+        Assert.All(
+            image.Blocks.Where(b => b.Status == RecoveryStatus.Missing && b.Sources.IsEmpty),
+            b => Assert.True(read.Exists(r => r.FileName == b.FileName && r.FileId == b.FileId), $"position {b.Position} ({b.Key}) is a block of a file no block read names"));
+        Assert.Equal(written.Count, read.Count);
+    }
+
+    [Fact]
+    public void Readings_of_one_capture_whose_repair_is_likelier_a_false_match_are_no_position()
+    {
+        // orrin-80, seed 138009: ten blocks, every one read clean by two captures or three. One setting of the second
+        // pass read the first block with its name and number garbled (F0090  !, number 45355, failed), which kept it
+        // from that block's position; the repair search found a pattern its CRC holds, likelier a false match than a
+        // block, and the reading stood as a missing position of its own: an eleventh position on a tape of ten
+        // blocks, which failed readings make only from two captures (one capture's for which no pattern holds make none).
+        var (_, profile, written, _, image) = Merged("orrin-80-one-capture-false-match-three-passes.json");
+
+        // Ground truth: the ten blocks the synthesiser wrote, each a position of its own and nothing else.
+        Assert.All(image.Blocks, b => Assert.True(written.Exists(w => IsBlock(profile, b.Header, b.Payload, w)), $"position {b.Position} ({b.Key}, {b.Status}) is no written block"));
+        Assert.Equal(written.Count, image.Blocks.Length);
+    }
+
+    [Fact]
     public void A_pass_that_read_one_copy_of_a_block_clean_is_lined_up_at_that_copy()
     {
         // three-class-pairs, seed 134211: every block written twice, each copy after a sync of its own (89 down to 81,
