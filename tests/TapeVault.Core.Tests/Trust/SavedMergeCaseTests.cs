@@ -92,10 +92,7 @@ public sealed class SavedMergeCaseTests
 
         // Ground truth: the blocks the synthesiser wrote. A position the merge is sure of is one of them, and every
         // written block some pass read clean is a clean position of its own.
-        var sure = image.Blocks.Where(b => b.Status != RecoveryStatus.Missing && b.Confidence >= 0.99).ToList();
-        Assert.All(sure, b => Assert.True(written.Exists(w => IsBlock(profile, b.Header, b.Payload, w)), $"position {b.Position} ({b.Key}, {b.Status} at {b.Confidence}) was never written"));
-        var clean = image.Blocks.Where(b => b.Status == RecoveryStatus.Clean).ToList();
-        Assert.Equal(readClean.Count, clean.Count);
+        var clean = AssertSureAreWrittenAndCleanAreRead(profile, written, readClean, image);
         Assert.All(readClean, w => Assert.Contains(clean, b => IsBlock(profile, b.Header, b.Payload, w)));
     }
 
@@ -111,10 +108,7 @@ public sealed class SavedMergeCaseTests
 
         // Ground truth: the blocks the synthesiser wrote. A position the merge is sure of is one of them, and every
         // written block some pass read clean is a clean position of its own, as sure as its readings are.
-        var sure = image.Blocks.Where(b => b.Status != RecoveryStatus.Missing && b.Confidence >= 0.99).ToList();
-        Assert.All(sure, b => Assert.True(written.Exists(w => IsBlock(profile, b.Header, b.Payload, w)), $"position {b.Position} ({b.Key}, {b.Status} at {b.Confidence}) was never written"));
-        var clean = image.Blocks.Where(b => b.Status == RecoveryStatus.Clean).ToList();
-        Assert.Equal(readClean.Count, clean.Count);
+        var clean = AssertSureAreWrittenAndCleanAreRead(profile, written, readClean, image);
         Assert.All(clean, b => Assert.True(b.Confidence >= 0.99, $"position {b.Position} right at {b.Confidence}"));
     }
 
@@ -199,6 +193,19 @@ public sealed class SavedMergeCaseTests
         // Ground truth: the header block the synthesiser wrote, its name field as the profile lays it out.
         Assert.All(image.Blocks.Where(b => b.Status != RecoveryStatus.Missing), b => Assert.Contains(written, w => IsBlock(profile, b.Header, b.Payload, w)));
         Assert.All(voted, b => Assert.Equal("F1835:0", b.Key));
+    }
+
+    /// <summary>
+    /// Every position at confidence 0.99 or more is a written block, and there are as many clean positions as written
+    /// blocks some pass read clean; the clean positions.
+    /// </summary>
+    private static List<ImageBlock> AssertSureAreWrittenAndCleanAreRead(FormatProfile profile, List<byte[]> written, List<byte[]> readClean, TapeImage image)
+    {
+        var sure = image.Blocks.Where(b => b.Status != RecoveryStatus.Missing && b.Confidence >= 0.99).ToList();
+        Assert.All(sure, b => Assert.True(written.Exists(w => IsBlock(profile, b.Header, b.Payload, w)), $"position {b.Position} ({b.Key}, {b.Status} at {b.Confidence}) was never written"));
+        var clean = image.Blocks.Where(b => b.Status == RecoveryStatus.Clean).ToList();
+        Assert.Equal(readClean.Count, clean.Count);
+        return clean;
     }
 
     /// <summary>
