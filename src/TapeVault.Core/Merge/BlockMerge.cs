@@ -92,7 +92,103 @@ internal sealed class BlockMerge
             }
         }
 
-        return FillNumberGaps(blocks);
+        // With several block kinds, a voted block is read in the first kind's layout and numbered by kind, so its
+        // identity need not be its header's fields: right voted positions of such a format break their proven
+        // neighbours' identities far more often than the proven ones break each other's (WeighByNeighbours).
+        var filled = FillNumberGaps(blocks);
+        return _profile.BlockKinds.Count > 1 ? filled : WeighByNeighbours(filled);
+    }
+
+    /// <summary>
+    /// A position no check proved is as sure as its readings, whose confidence is how often such readings are right,
+    /// header and payload, over many tapes; where it lies says more of its header. Between two proven positions, the
+    /// identity of a block that is there fits theirs as the tape's proven identities fit each other: at every
+    /// character where the names before and after it agree (a file's name, or the stem of numbered files' names) its
+    /// name agrees too, and within one file its block number lies between theirs (or is one of theirs: a second position of a block is no
+    /// misread header). A misread header breaks that at the
+    /// character it misread. How often a block that is there breaks it anyway is the tape's own share of proven
+    /// positions that break their proven neighbours' (with one that does and one that does not added, so that a tape of
+    /// few proven positions says little), against at most always for a misread one: by Bayes, the odds of a position
+    /// that breaks it are multiplied by that share.
+    /// </summary>
+    private static List<ImageBlock> WeighByNeighbours(List<ImageBlock> blocks)
+    {
+        var proven = new List<int>();
+        for (int i = 0; i < blocks.Count; i++)
+        {
+            if (blocks[i].Status == RecoveryStatus.Clean)
+            {
+                proven.Add(i);
+            }
+        }
+
+        int between = 0;
+        int breaking = 0;
+        for (int k = 1; k + 1 < proven.Count; k++)
+        {
+            between++;
+            if (!FitsBetween(blocks[proven[k - 1]], blocks[proven[k]], blocks[proven[k + 1]]))
+            {
+                breaking++;
+            }
+        }
+
+        double share = (breaking + 1.0) / (between + 2.0);
+        var weighed = new List<ImageBlock>(blocks.Count);
+        int before = -1;
+        for (int i = 0; i < blocks.Count; i++)
+        {
+            var block = blocks[i];
+            if (block.Status == RecoveryStatus.Clean)
+            {
+                before = i;
+            }
+            else if (block.Status != RecoveryStatus.Missing && before >= 0
+                && blocks.FindIndex(i + 1, b => b.Status == RecoveryStatus.Clean) is int after and >= 0
+                && !FitsBetween(blocks[before], block, blocks[after]))
+            {
+                double right = block.Confidence * share;
+                block = block with { Confidence = right / (right + (1 - block.Confidence)) };
+            }
+
+            weighed.Add(block);
+        }
+
+        return weighed;
+    }
+
+    /// <summary>
+    /// Whether a position's identity fits between those of the positions before and after it: its name agrees with
+    /// theirs at every character where theirs agree (names padded with spaces, as the field holds them), its file id is
+    /// theirs where they share one, and within one file its block number lies between theirs or is one of them. What one of the three
+    /// does not carry is not judged.
+    /// </summary>
+    private static bool FitsBetween(ImageBlock before, ImageBlock block, ImageBlock after)
+    {
+        if (before.FileName is { } a && block.FileName is { } m && after.FileName is { } z)
+        {
+            int length = Math.Max(a.Length, Math.Max(m.Length, z.Length));
+            for (int i = 0; i < length; i++)
+            {
+                char x = At(a, i);
+                if (x == At(z, i) && At(m, i) != x)
+                {
+                    return false;
+                }
+            }
+        }
+
+        if (before.FileId is { } id && after.FileId == id && block.FileId is { } own && own != id)
+        {
+            return false;
+        }
+
+        bool oneFile = before.FileName == after.FileName && before.FileId == after.FileId
+            && block.FileName == before.FileName && block.FileId == before.FileId;
+        return !(oneFile && before.BlockNumber is long first && after.BlockNumber is long last && last > first
+            && block.BlockNumber is long n && (n < first || n > last));
+
+        static char At(string name, int i) => i < name.Length ? name[i] : ' ';
     }
 
     private sealed class Entry(int pass, List<BlockCandidate> readings, double start, double end)
@@ -634,15 +730,16 @@ internal sealed class BlockMerge
                 Math.Min(outcome.Confidence, AnyRight(CaptureWitnesses(alike).Select(w => w.Candidate.Confidence)).Right),
                 alike.Select(r => r.Pass),
                 odds);
-            return chance < MinimumRepairConfidence
-                ? Missing(fallbackIdentity, sources)
-                : ResolveClean(alike, status) with { Confidence = chance };
+            return chance >= MinimumRepairConfidence
+                ? ResolveClean(alike, status) with { Confidence = chance }
+                : IsEvidence(used) ? Missing(fallbackIdentity, sources) : null;
         }
 
-        // A pattern that holds is still more likely a false match than the block: keeping it would be filling in.
+        // A pattern that holds is still more likely a false match than the block: keeping it would be filling in. Its
+        // readings then show no more than readings for which no pattern holds, and are a position only as those are.
         if (outcome.Confidence < MinimumRepairConfidence)
         {
-            return Missing(fallbackIdentity, sources);
+            return IsEvidence(used) ? Missing(fallbackIdentity, sources) : null;
         }
 
         var header = outcome.Bytes.AsSpan(0, Layout.HeaderBytes).ToArray();
@@ -738,7 +835,10 @@ internal sealed class BlockMerge
 
     /// <summary>
     /// Block numbers that a file's positions skip (and the first blocks of a file whose start was not read) are
-    /// positions no pass saw at all: they are listed as missing, never closed up.
+    /// positions no pass saw at all: they are listed as missing, never closed up. Only a position read whole gives a
+    /// number to count from or to: a missing one carries the identity most of its failed readings carry, which no check
+    /// vouches for (a garbled name and number would make the first blocks of a file that was never written), and stands
+    /// for its own number only, which a gap around it leaves out.
     /// </summary>
     private List<ImageBlock> FillNumberGaps(List<ImageBlock> blocks)
     {
@@ -750,28 +850,38 @@ internal sealed class BlockMerge
         const int MaximumGap = 64;
         var filled = new List<ImageBlock>(blocks.Count);
         ImageBlock? previous = null;
+        var missingSince = new List<ImageBlock>();
         foreach (var block in blocks)
         {
-            if (block.BlockNumber is long number)
+            if (block.Status == RecoveryStatus.Missing)
             {
-                bool sameFile = previous is not null && previous.FileName == block.FileName && previous.FileId == block.FileId && previous.BlockNumber is long p && number > p;
+                missingSince.Add(block);
+            }
+            else if (block.BlockNumber is long number)
+            {
+                bool sameFile = previous is not null && SameFile(previous, block) && previous.BlockNumber is long p && number > p;
                 long from = sameFile ? previous!.BlockNumber!.Value + 1 : 0;
                 if (number - from is > 0 and <= MaximumGap)
                 {
                     for (long n = from; n < number; n++)
                     {
-                        var identity = new BlockIdentity(block.FileName, block.FileId, n, 0);
-                        filled.Add(Missing(identity, []));
+                        if (!missingSince.Exists(m => SameFile(m, block) && m.BlockNumber == n))
+                        {
+                            filled.Add(Missing(new BlockIdentity(block.FileName, block.FileId, n, 0), []));
+                        }
                     }
                 }
 
                 previous = block;
+                missingSince.Clear();
             }
 
             filled.Add(block);
         }
 
         return filled;
+
+        static bool SameFile(ImageBlock a, ImageBlock b) => a.FileName == b.FileName && a.FileId == b.FileId;
     }
 
     private ImageBlock Missing(BlockIdentity identity, ImmutableArray<BlockProvenance> sources) =>
