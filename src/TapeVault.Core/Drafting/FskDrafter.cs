@@ -72,8 +72,7 @@ public sealed class FskDrafter : IFamilyDrafter
                 .MinBy(p => Math.Abs(Math.Log(p.A / p.B)));
             if (bitA > 0 && Math.Abs(Math.Log(bitA / bitB)) <= 0.12)
             {
-                double measured = 1 / Math.Sqrt(bitA * bitB);
-                candidates.Add((b, a, Bauds(survey, a, b, [measured], measured), true));
+                candidates.Add((b, a, Bauds(survey, a, b, [], 1 / Math.Sqrt(bitA * bitB)), true));
             }
         }
 
@@ -124,11 +123,10 @@ public sealed class FskDrafter : IFamilyDrafter
 
     /// <summary>
     /// The bauds <paramref name="first"/> gives, then those of <see cref="LowerToneCycles"/>, each kept within what the
-    /// tones allow and once (within 5 %). A baud the tones' runs measure (<paramref name="measured"/>) that the tones
-    /// do not allow comes first as it is, before them all: it is timed over whole bits of both tones, where the tones'
-    /// groups of half cycles are pulled toward each other by the half cycles at every change of tone, so that tones a
-    /// baud apart may measure nearer than that; the trial decodes and the draft then take the tones at it
-    /// (<see cref="TonesAt"/>), and the baud cut to what the tones allow is still tried after it.
+    /// tones allow and once (within 5 %). A baud the tones' runs measure (<paramref name="measured"/>) comes first as
+    /// it is: it is timed over whole bits of both tones, where the tones' groups of half cycles are pulled toward each
+    /// other by the half cycles at every change of tone, so that tones a baud apart may measure nearer than that; the
+    /// trial decodes and the draft then take the tones at it (<see cref="TonesAt"/>).
     /// </summary>
     private static List<double> Bauds(StretchSurvey survey, int high, int low, IEnumerable<double> first, double? measured = null)
     {
@@ -139,18 +137,13 @@ public sealed class FskDrafter : IFamilyDrafter
         // Nor may it pass the tones' distance (a profile needs them a baud apart): tones of one and two cycles a bit
         // measure a little under 2 : 1 now and then, and a baud a hair too high would make every trial profile void.
         double Fit(double baud) => Math.Min(baud, Math.Min(lowHz, highHz - lowHz));
-        var bauds = new List<double>();
+        var bauds = measured is { } m ? new List<double> { m } : [];
         foreach (double baud in first.Concat(LowerToneCycles.Select(c => lowHz / c)).Select(Fit))
         {
             if (bauds.All(x => Math.Abs(Math.Log(x / baud)) > 0.05))
             {
                 bauds.Add(baud);
             }
-        }
-
-        if (measured is { } m && Fit(m) < m)
-        {
-            bauds.Insert(0, m);
         }
 
         return bauds;
