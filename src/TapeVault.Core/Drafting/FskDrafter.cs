@@ -72,7 +72,7 @@ public sealed class FskDrafter : IFamilyDrafter
                 .MinBy(p => Math.Abs(Math.Log(p.A / p.B)));
             if (bitA > 0 && Math.Abs(Math.Log(bitA / bitB)) <= 0.12)
             {
-                candidates.Add((b, a, Bauds(survey, a, b, [1 / Math.Sqrt(bitA * bitB)]), true));
+                candidates.Add((b, a, Bauds(survey, a, b, [], 1 / Math.Sqrt(bitA * bitB)), true));
             }
         }
 
@@ -123,9 +123,12 @@ public sealed class FskDrafter : IFamilyDrafter
 
     /// <summary>
     /// The bauds <paramref name="first"/> gives, then those of <see cref="LowerToneCycles"/>, each kept within what the
-    /// tones allow and once (within 5 %).
+    /// tones allow and once (within 5 %). A baud the tones' runs measure (<paramref name="measured"/>) comes first as
+    /// it is: it is timed over whole bits of both tones, where the tones' groups of half cycles are pulled toward each
+    /// other by the half cycles at every change of tone, so that tones a baud apart may measure nearer than that; the
+    /// trial decodes and the draft then take the tones at it (<see cref="TonesAt"/>).
     /// </summary>
-    private static List<double> Bauds(StretchSurvey survey, int high, int low, IEnumerable<double> first)
+    private static List<double> Bauds(StretchSurvey survey, int high, int low, IEnumerable<double> first, double? measured = null)
     {
         double highHz = 0.5 / survey.Clusters[high].Seconds;
         double lowHz = 0.5 / survey.Clusters[low].Seconds;
@@ -134,7 +137,7 @@ public sealed class FskDrafter : IFamilyDrafter
         // Nor may it pass the tones' distance (a profile needs them a baud apart): tones of one and two cycles a bit
         // measure a little under 2 : 1 now and then, and a baud a hair too high would make every trial profile void.
         double Fit(double baud) => Math.Min(baud, Math.Min(lowHz, highHz - lowHz));
-        var bauds = new List<double>();
+        var bauds = measured is { } m ? new List<double> { m } : [];
         foreach (double baud in first.Concat(LowerToneCycles.Select(c => lowHz / c)).Select(Fit))
         {
             if (bauds.All(x => Math.Abs(Math.Log(x / baud)) > 0.05))
@@ -144,6 +147,24 @@ public sealed class FskDrafter : IFamilyDrafter
         }
 
         return bauds;
+    }
+
+    /// <summary>
+    /// The tones a profile at <paramref name="baud"/> takes: as measured where they are a baud apart and the lower holds
+    /// a whole cycle a bit (what a profile needs); else each tone the whole cycles a bit nearest to it at that baud (an
+    /// FSK tape format's tones hold whole cycles a bit: common practice; the Kansas City Standard's 4 and 8 at 300 baud,
+    /// BYTE, February 1976), the higher at least a cycle above the lower.
+    /// </summary>
+    internal static (double Low, double High) TonesAt(double lowHz, double highHz, double baud)
+    {
+        if (highHz - lowHz >= baud && lowHz >= baud)
+        {
+            return (lowHz, highHz);
+        }
+
+        int lowCycles = Math.Max(1, (int)Math.Round(lowHz / baud));
+        int highCycles = Math.Max(lowCycles + 1, (int)Math.Round(highHz / baud));
+        return (lowCycles * baud, highCycles * baud);
     }
 
     /// <summary>Whether the spectrum has a peak of at least a tenth of the strongest (−10 dB) within 8 % of a frequency.</summary>
@@ -186,10 +207,9 @@ public sealed class FskDrafter : IFamilyDrafter
         foreach (var (lowGroup, highGroup, candidateBauds, candidateFromRuns) in candidates)
         {
             var pairTried = new List<(double Baud, TrialResult High, TrialResult Low)>();
-            double higherHz = 0.5 / survey.Clusters[highGroup].Seconds;
-            double lowerHz = 0.5 / survey.Clusters[lowGroup].Seconds;
             foreach (double candidate in candidateBauds)
             {
+                var (lowerHz, higherHz) = TonesAt(0.5 / survey.Clusters[lowGroup].Seconds, 0.5 / survey.Clusters[highGroup].Seconds, candidate);
                 var t = (Baud: candidate, High: Selection(survey.Stretch, higherHz, lowerHz, candidate, cancellation), Low: Selection(survey.Stretch, lowerHz, higherHz, candidate, cancellation));
                 pairTried.Add(t);
                 if (t.High.Clean || t.Low.Clean)
@@ -212,8 +232,7 @@ public sealed class FskDrafter : IFamilyDrafter
         }
 
         var (low, high, bauds, fromRuns, baud, asHigh, asLow) = best!.Value;
-        double highHz = 0.5 / survey.Clusters[high].Seconds;
-        double lowHz = 0.5 / survey.Clusters[low].Seconds;
+        var (lowHz, highHz) = TonesAt(0.5 / survey.Clusters[low].Seconds, 0.5 / survey.Clusters[high].Seconds, baud);
         bool highIsMark = asHigh.Score >= asLow.Score;
         int markGroup = highIsMark ? high : low;
         double markHz = highIsMark ? highHz : lowHz;
@@ -349,7 +368,9 @@ public sealed class FskDrafter : IFamilyDrafter
         // The tones and the baud are one measurement at the tape's speed: where the baud is a guess, so are the tones,
         // so that confirming the baud alone never sets a nominal baud beside tones measured off speed.
         double toneConfidence = Math.Min(spectrumAgrees ? 0.9 : 0.8, baudConfidence);
+        bool tonesAtBaud = TonesAt(0.5 / survey.Clusters[low].Seconds, 0.5 / survey.Clusters[high].Seconds, baud) != (0.5 / survey.Clusters[low].Seconds, 0.5 / survey.Clusters[high].Seconds);
         string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays"
+            + (tonesAtBaud ? $"; their groups of half cycles ({F(0.5 / survey.Clusters[high].Seconds, "0")} Hz and {F(0.5 / survey.Clusters[low].Seconds, "0")} Hz) lie nearer than the baud, so each is taken as the whole cycles a bit nearest to it" : string.Empty)
             + (baudConfidence < DraftFinding.MeasuredThreshold ? "; a guess with the baud, since both are as the tape plays" : string.Empty);
         proposal.Measured("fsk.markHz", F(markHz, "0.0"), toneConfidence, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
         proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), toneConfidence, toneEvidence);

@@ -175,6 +175,22 @@ public sealed class FamilyChoiceTests(OutsideTempFolder folder, ITestOutputHelpe
     }
 
     /// <summary>
+    /// Tuning seed 18004: fsk-sync at 801 baud (a mark of two cycles a bit, a space of one), 8E2 after a leader of 0xAA
+    /// characters, a line-output capture 3.6 % fast, then the draft figure's SoX chain for that seed (a band-pass, a
+    /// gain, 96 kHz, dithered: sox(1), a general-purpose audio tool that shares no code with TapeVault). The tones'
+    /// groups of half cycles measure 1632 Hz and 851 Hz, 782 Hz apart, while the runs time the bit at 833 baud; the
+    /// baud was cut to the tones' distance, 6 % slow, so that characters of twelve bits spaced like eleven and one stop
+    /// bit was drafted as measured: confirmed, the draft read none of the truth's 12 blocks.
+    /// </summary>
+    [Fact]
+    public void Tones_measured_nearer_than_the_baud_the_runs_time_keep_that_baud_and_the_stop_bits_it_spaces()
+    {
+        var result = DraftTrials.Run("fsk-sync", 18004, folder.Root, DraftFromCaptureSox.Printed("sinc", "308.3968-7416.904", "gain", "-4.5009", "rate", "96000", "dither", "-s"));
+        AssertDraftedAs(result, "fsk", truthAtLeast: 10);
+        Assert.DoesNotContain("framing.stopBits", result.Guessed);
+    }
+
+    /// <summary>
     /// The truth profile read at least <paramref name="truthAtLeast"/> blocks (else the damage, not the draft, is
     /// tested), the draft is of <paramref name="family"/>, and once confirmed it reads 90 % of the truth's blocks.
     /// </summary>
