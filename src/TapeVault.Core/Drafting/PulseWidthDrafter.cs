@@ -108,26 +108,20 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             }
         }
 
-        // Every reading tried is drafted: a check of one byte holds through a setting that reads the sync pulse and
-        // the bit after it as two cycles of their mean length as well as through one that times them truly, and the
-        // first such reading would give a sync the read path never sees. Of the readings a check proves, the one
-        // whose cycles lie closest to their classes is drafted.
         FamilyProposal? first = null;
-        FamilyProposal? proven = null;
-        double provenClose = double.NegativeInfinity;
         foreach (int i in order.Take(3))
         {
             var lengths = Uncrowded(fits[i].Clusters, fits.Select(f => f.Clusters));
             var proposal = DraftThrough(fits[i].Setting, fits[i].Clusters, lengths, fits[i].Cycles, fits[i].Symbols, fits[i].Grouped, cancellation);
-            if (proposal is not null && Proven(proposal) && fits[i].Close > provenClose)
+            if (proposal is not null && Proven(proposal))
             {
-                (proven, provenClose) = (proposal, fits[i].Close);
+                return proposal;
             }
 
             first ??= proposal;
         }
 
-        return proven ?? first;
+        return first;
     }
 
     /// <summary>
