@@ -37,8 +37,15 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
     /// <summary>How far (as a log ratio, about 8 %) a cycle may lie from its class's centre to count as close to it.</summary>
     private const double CloseRatio = 0.077;
 
-    /// <summary>What each class costs a setting's fit (see <see cref="Draft"/>).</summary>
+    /// <summary>What each main class costs a setting's fit (see <see cref="Draft"/>).</summary>
     private const double ClassCost = 0.03;
+
+    /// <summary>
+    /// The share of cycles a class holds to cost a setting's fit: a rare group (a sync pulse once a block, a few
+    /// noise or dropout edges) is no sign of a setting that measures between the classes, and a setting that times
+    /// the format's edges sees more such groups, not fewer, since it resolves the sync pulse and the noise apart.
+    /// </summary>
+    private const double MainClassShare = 0.01;
 
     public string Family => "pulse-width";
 
@@ -86,7 +93,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             }
 
             double grouped = (double)symbols.Count(x => x >= 0) / Math.Max(1, symbols.Length);
-            fits.Add((setting, clusters, cycles, symbols, grouped, ((double)close / Math.Max(1, symbols.Length)) - (ClassCost * clusters.Count)));
+            fits.Add((setting, clusters, cycles, symbols, grouped, Fit(close, symbols.Length, clusters)));
         }
 
         var order = new List<int>();
@@ -116,6 +123,13 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
 
         return first;
     }
+
+    /// <summary>
+    /// How closely a setting's cycles keep to their classes: the share within <see cref="CloseRatio"/> of their
+    /// class's centre, less <see cref="ClassCost"/> for each main class (<see cref="MainClassShare"/>).
+    /// </summary>
+    internal static double Fit(int close, int cycles, IReadOnlyList<IntervalCluster> clusters) =>
+        ((double)close / Math.Max(1, cycles)) - (ClassCost * clusters.Count(c => c.Share >= MainClassShare));
 
     /// <summary>A reading a check value proves (its checksum measured, not guessed).</summary>
     private static bool Proven(FamilyProposal proposal) => proposal.Findings.Any(f => f.Path == "layout.checksum" && !f.Guessed);
