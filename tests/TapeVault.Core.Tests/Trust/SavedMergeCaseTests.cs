@@ -197,7 +197,7 @@ public sealed class SavedMergeCaseTests
 
     /// <summary>
     /// Every position at confidence 0.99 or more is a written block, and there are as many clean positions as written
-    /// blocks some pass read clean; the clean positions.
+    /// blocks some pass read clean. Returns the clean positions.
     /// </summary>
     private static List<ImageBlock> AssertSureAreWrittenAndCleanAreRead(FormatProfile profile, List<byte[]> written, List<byte[]> readClean, TapeImage image)
     {
