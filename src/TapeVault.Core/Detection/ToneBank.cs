@@ -103,6 +103,20 @@ public sealed class ToneBank
 
         public void Process(ReadOnlySpan<Vector256<float>> conditioned, bool upper, int firstRead, Span<Vector256<double>> output, Span<int> gates, int outputOffset)
         {
+            // The half is chosen once a slice: each form of the loop widens only its own four lanes.
+            if (upper)
+            {
+                Process<UpperHalf>(conditioned, firstRead, output, gates, outputOffset);
+            }
+            else
+            {
+                Process<LowerHalf>(conditioned, firstRead, output, gates, outputOffset);
+            }
+        }
+
+        private void Process<THalf>(ReadOnlySpan<Vector256<float>> conditioned, int firstRead, Span<Vector256<double>> output, Span<int> gates, int outputOffset)
+            where THalf : struct, IHalf
+        {
             var (silence, gain) = _gate;
             var reference = _reference;
             var oscillator = _oscillator;
@@ -130,8 +144,7 @@ public sealed class ToneBank
                 for (int n = 0; n < conditioned.Length; n++)
                 {
                     // Widening single to double is exact: the same x as the scalar correlator's.
-                    var (lower, higher) = Vector256.Widen(conditioned[n]);
-                    var x = upper ? higher : lower;
+                    var x = THalf.Widen(conditioned[n]);
 
                     // Both tones' correlators: the operator's vector form (ToneCorrelator.Slide, in its two halves), the
                     // oscillators shared.
@@ -168,6 +181,26 @@ public sealed class ToneBank
         }
 
         public void EndChunk() => _oscillator.Renormalise();
+    }
+
+    /// <summary>Which four of the bank's eight lanes a <see cref="Quad"/> takes: a type, so that each form of its loop is compiled on its own.</summary>
+    private interface IHalf
+    {
+        static abstract Vector256<double> Widen(Vector256<float> lanes);
+    }
+
+    /// <summary>Lanes 0–3 of a lane group.</summary>
+    private readonly struct LowerHalf : IHalf
+    {
+        [MethodImpl(MethodImplOptions.AggressiveInlining)]
+        public static Vector256<double> Widen(Vector256<float> lanes) => Vector256.WidenLower(lanes);
+    }
+
+    /// <summary>Lanes 4–7 of a lane group.</summary>
+    private readonly struct UpperHalf : IHalf
+    {
+        [MethodImpl(MethodImplOptions.AggressiveInlining)]
+        public static Vector256<double> Widen(Vector256<float> lanes) => Vector256.WidenUpper(lanes);
     }
 }
 
@@ -232,16 +265,48 @@ public readonly ref struct ToneLane
     public int Length { get; }
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public double Mark(int n) => _all[unchecked((2 * ToneBank.LanesPerQuad * n) + _lane)];
+    public double Mark(int n) => _all[MarkAt(n, _lane)];
 
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
-    public double Space(int n) => _all[unchecked((2 * ToneBank.LanesPerQuad * n) + ToneBank.LanesPerQuad + _lane)];
+    public double Space(int n) => _all[SpaceAt(n, _lane)];
 
     /// <summary>The gate's answer for reading <paramref name="n"/> of the chunk: <see cref="ToneGate.Carrier"/>, <see cref="ToneGate.PureMark"/> and <see cref="ToneGate.PureSpace"/> bits.</summary>
     [MethodImpl(MethodImplOptions.AggressiveInlining)]
     public int Gate(int n)
     {
-        int word = _gates[n] >> _lane;
-        return (word & 1) | ((word >> (ToneBank.LanesPerQuad - 1)) & 2) | ((word >> ((2 * ToneBank.LanesPerQuad) - 2)) & 4);
+        int word = _gates[n];
+        return ((word & CarrierBit) != 0 ? ToneGate.Carrier : 0)
+            | ((word & PureMarkBit) != 0 ? ToneGate.PureMark : 0)
+            | ((word & PureSpaceBit) != 0 ? ToneGate.PureSpace : 0);
     }
+
+    /// <summary>
+    /// The readings' gate words as the bank wrote them, every lane's answers in one word a reading (see
+    /// <see cref="CarrierBit"/>, <see cref="PureMarkBit"/>, <see cref="PureSpaceBit"/>): a loop over many readings tests
+    /// this lane's bits in them directly rather than through <see cref="Gate"/>.
+    /// </summary>
+    internal ReadOnlySpan<int> GateWords => _gates;
+
+    /// <summary>Every lane's energies, reading by reading: this lane's at <see cref="MarkAt"/> and <see cref="SpaceAt"/>.</summary>
+    internal ReadOnlySpan<double> Energies => _all;
+
+    /// <summary>This lane's carrier bit in a gate word (lane i's carrier is bit i).</summary>
+    internal int CarrierBit => 1 << _lane;
+
+    /// <summary>This lane's pure-mark bit in a gate word (bit 4 + i).</summary>
+    internal int PureMarkBit => 1 << (ToneBank.LanesPerQuad + _lane);
+
+    /// <summary>This lane's pure-space bit in a gate word (bit 8 + i).</summary>
+    internal int PureSpaceBit => 1 << ((2 * ToneBank.LanesPerQuad) + _lane);
+
+    /// <summary>This lane's index among the four of its group.</summary>
+    internal int LaneIndex => _lane;
+
+    /// <summary>Where lane <paramref name="lane"/>'s mark energy of reading <paramref name="n"/> is in <see cref="Energies"/>: two vectors a reading, mark then space.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    internal static int MarkAt(int n, int lane) => unchecked((2 * ToneBank.LanesPerQuad * n) + lane);
+
+    /// <summary>Where lane <paramref name="lane"/>'s space energy of reading <paramref name="n"/> is in <see cref="Energies"/>.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    internal static int SpaceAt(int n, int lane) => unchecked(MarkAt(n, lane) + ToneBank.LanesPerQuad);
 }

@@ -165,120 +165,198 @@ public struct ToneDetector
     /// </summary>
     public bool UntilToneChanges(ToneLane tones, ref int i, int end, ref float previousD, out float d)
     {
-        double markLevel = _markLevel;
-        double spaceLevel = _spaceLevel;
-        double markSamples = _markLevelSamples;
-        double spaceSamples = _spaceLevelSamples;
-        double levelGain = _levelGain;
-        double settled = _settledSamples;
         bool previousNegative = previousD < 0;
-        bool taughtAny = false;
 
-        // The levels before the reading at n (after the one before it), for D of that one if n is the reading stopped at.
-        double markBefore = markLevel, spaceBefore = spaceLevel;
+        // The lane's gate bits tested in the bank's words and its energies read from the chunk's, without the bit
+        // shuffle of ToneLane.Gate and with the words' bounds checked once, by the slice to the end.
+        var lane = new LaneReadings(tones, end);
+        var run = new LevelRun
+        {
+            MarkLevel = _markLevel,
+            SpaceLevel = _spaceLevel,
+            MarkSamples = _markLevelSamples,
+            SpaceSamples = _spaceLevelSamples,
+            MarkBefore = _markLevel,
+            SpaceBefore = _spaceLevel,
+        };
+
         int n = i;
         bool changed = false;
         d = 0;
-        unchecked
+        while (n < lane.Words.Length)
         {
-            while (n < end)
+            // The readings whose sign is beyond doubt, in a loop that calls nothing (a call would make the JIT keep the
+            // levels on the stack across it); a doubt or a stop comes back here.
+            var stop = SureReadings(lane, _settledSamples, _levelGain, previousNegative, ref n, ref run);
+            if (stop == RunStop.Doubt)
             {
-                // The readings whose sign is beyond doubt run here, with nothing called; a doubt or a stop leaves the loop.
-                bool doubt = false;
-                double mark = 0, space = 0;
-                bool taught = false;
-                for (; n < end; n++)
+                // D near zero (or not a number): its sign from D itself.
+                float exact = Decision(run.Mark, run.Space, run.MarkLevel, run.SpaceLevel, run.Taught);
+                if ((exact < 0) != previousNegative)
                 {
-                    int gate = tones.Gate(n);
-                    if ((gate & ToneGate.Carrier) == 0)
-                    {
-                        break;
-                    }
-
-                    mark = tones.Mark(n);
-                    space = tones.Space(n);
-                    markBefore = markLevel;
-                    spaceBefore = spaceLevel;
-                    taught = (gate & (ToneGate.PureMark | ToneGate.PureSpace)) != 0;
-                    if ((gate & ToneGate.PureMark) != 0)
-                    {
-                        markSamples += 1;
-                        markLevel += (mark - markLevel) * LevelStep(markSamples, settled, levelGain);
-                    }
-                    else if (taught)
-                    {
-                        spaceSamples += 1;
-                        spaceLevel += (space - spaceLevel) * LevelStep(spaceSamples, settled, levelGain);
-                    }
-
-                    taughtAny |= taught;
-
-                    // D's numerator and denominator for the balance the levels give, bounded (Weights).
-                    // The energies are sums of squares, so the denominator is not negative.
-                    var weights = Weights(markLevel, spaceLevel);
-                    double markWeighted = mark * weights.Mark;
-                    double spaceWeighted = space * weights.Space;
-                    double numerator = markWeighted - spaceWeighted;
-                    double denominator = markWeighted + spaceWeighted;
-
-                    if (!(Math.Abs(numerator) > denominator * SignMargin))
-                    {
-                        doubt = true;
-                        break;
-                    }
-
-                    if ((numerator < 0) != previousNegative)
-                    {
-                        changed = true;
-                        break;
-                    }
+                    d = exact;
+                    changed = true;
+                    break;
                 }
 
-                if (doubt)
-                {
-                    // D near zero (or not a number): its sign from D itself.
-                    float exact = Decision(mark, space, markLevel, spaceLevel, taught);
-                    if ((exact < 0) != previousNegative)
-                    {
-                        d = exact;
-                        changed = true;
-                        break;
-                    }
-
-                    n++;
-                    continue;
-                }
-
-                if (changed)
-                {
-                    d = Decision(mark, space, markLevel, spaceLevel, taught);
-                }
-
-                break;
+                n = unchecked(n + 1);
+                continue;
             }
+
+            if (stop == RunStop.Changed)
+            {
+                changed = true;
+                d = Decision(run.Mark, run.Space, run.MarkLevel, run.SpaceLevel, run.Taught);
+            }
+
+            break;
         }
 
         if (n > i)
         {
             // D of the last reading taken before the stop, from the levels after it.
             int last = n - 1;
-            double lastMarkLevel = changed ? markBefore : markLevel;
-            double lastSpaceLevel = changed ? spaceBefore : spaceLevel;
+            double lastMarkLevel = changed ? run.MarkBefore : run.MarkLevel;
+            double lastSpaceLevel = changed ? run.SpaceBefore : run.SpaceLevel;
             bool lastTaught = (tones.Gate(last) & (ToneGate.PureMark | ToneGate.PureSpace)) != 0;
             previousD = Decision(tones.Mark(last), tones.Space(last), lastMarkLevel, lastSpaceLevel, lastTaught);
         }
 
         Carrier |= n > i || changed;
-        _markLevel = markLevel;
-        _spaceLevel = spaceLevel;
-        _markLevelSamples = markSamples;
-        _spaceLevelSamples = spaceSamples;
+        _markLevel = run.MarkLevel;
+        _spaceLevel = run.SpaceLevel;
+        _markLevelSamples = run.MarkSamples;
+        _spaceLevelSamples = run.SpaceSamples;
 
         // The balance kept is worked out again from the levels where a window next needs it (Decide), as if each
         // reading here had gone through Next: it is the levels' own whenever they have not moved since it was.
-        _balanceStale |= taughtAny;
+        _balanceStale |= run.TaughtAny;
         i = n;
         return changed;
+    }
+
+    /// <summary>Why <see cref="SureReadings"/> stopped.</summary>
+    private enum RunStop
+    {
+        /// <summary>At the end, or before a reading without carrier.</summary>
+        Stopped,
+
+        /// <summary>At a reading whose sign of D its numerator alone cannot tell (<see cref="SignMargin"/>).</summary>
+        Doubt,
+
+        /// <summary>At a reading whose D is of the other sign.</summary>
+        Changed,
+    }
+
+    /// <summary>
+    /// The levels and their counts in <see cref="UntilToneChanges"/>, with the levels before the last reading taken
+    /// (for D of that one if it is the reading stopped at) and that reading's energies and whether it taught a level.
+    /// </summary>
+    private struct LevelRun
+    {
+        public double MarkLevel, SpaceLevel, MarkSamples, SpaceSamples, MarkBefore, SpaceBefore, Mark, Space;
+        public bool Taught, TaughtAny;
+    }
+
+    /// <summary>One lane's gate words (up to the end of a run) and energies, and its bits in the words.</summary>
+    private readonly ref struct LaneReadings(ToneLane tones, int end)
+    {
+        public readonly ReadOnlySpan<int> Words = tones.GateWords[..end];
+        public readonly ReadOnlySpan<double> Energies = tones.Energies;
+        public readonly int Lane = tones.LaneIndex;
+        public readonly int CarrierBit = tones.CarrierBit;
+        public readonly int PureMarkBit = tones.PureMarkBit;
+        public readonly int PureBits = tones.PureMarkBit | tones.PureSpaceBit;
+    }
+
+    /// <summary>
+    /// The loop of <see cref="UntilToneChanges"/> over the readings from <paramref name="n"/> whose sign of D is beyond
+    /// doubt: each moves the levels as <see cref="Next"/> does, operation for operation; stops at the end, before a
+    /// reading without carrier, or at a reading of doubt or of a change of sign (<paramref name="n"/> left at it, its
+    /// energies and whether it taught in <paramref name="run"/>). Calls nothing, so the levels stay in registers.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.NoInlining)]
+    private static RunStop SureReadings(in LaneReadings lane, double settled, double levelGain, bool previousNegative, ref int n, ref LevelRun run)
+    {
+        var words = lane.Words;
+        var energies = lane.Energies;
+        int laneIndex = lane.Lane;
+        int carrierBit = lane.CarrierBit;
+        int pureMarkBit = lane.PureMarkBit;
+        int pureBits = lane.PureBits;
+        double markLevel = run.MarkLevel;
+        double spaceLevel = run.SpaceLevel;
+        double markSamples = run.MarkSamples;
+        double spaceSamples = run.SpaceSamples;
+        double markBefore = run.MarkBefore;
+        double spaceBefore = run.SpaceBefore;
+        bool taughtAny = run.TaughtAny;
+        double mark = 0, space = 0;
+        bool taught = false;
+        var stop = RunStop.Stopped;
+        int k = n;
+        unchecked
+        {
+            for (; k < words.Length; k++)
+            {
+                int word = words[k];
+                if ((word & carrierBit) == 0)
+                {
+                    break;
+                }
+
+                mark = energies[ToneLane.MarkAt(k, laneIndex)];
+                space = energies[ToneLane.SpaceAt(k, laneIndex)];
+                markBefore = markLevel;
+                spaceBefore = spaceLevel;
+                taught = (word & pureBits) != 0;
+                if ((word & pureMarkBit) != 0)
+                {
+                    markSamples += 1;
+                    markLevel += (mark - markLevel) * LevelStep(markSamples, settled, levelGain);
+                }
+                else if (taught)
+                {
+                    spaceSamples += 1;
+                    spaceLevel += (space - spaceLevel) * LevelStep(spaceSamples, settled, levelGain);
+                }
+
+                taughtAny |= taught;
+
+                // D's numerator and denominator for the balance the levels give, bounded (Weights).
+                // The energies are sums of squares, so the denominator is not negative.
+                var weights = Weights(markLevel, spaceLevel);
+                double markWeighted = mark * weights.Mark;
+                double spaceWeighted = space * weights.Space;
+                double numerator = markWeighted - spaceWeighted;
+                double denominator = markWeighted + spaceWeighted;
+
+                if (!(Math.Abs(numerator) > denominator * SignMargin))
+                {
+                    stop = RunStop.Doubt;
+                    break;
+                }
+
+                if ((numerator < 0) != previousNegative)
+                {
+                    stop = RunStop.Changed;
+                    break;
+                }
+            }
+        }
+
+        n = k;
+        run.MarkLevel = markLevel;
+        run.SpaceLevel = spaceLevel;
+        run.MarkSamples = markSamples;
+        run.SpaceSamples = spaceSamples;
+        run.MarkBefore = markBefore;
+        run.SpaceBefore = spaceBefore;
+        run.Mark = mark;
+        run.Space = space;
+        run.Taught = taught;
+        run.TaughtAny = taughtAny;
+        return stop;
     }
 
     /// <summary>D of one window as <see cref="Next"/> gives it, from the levels after it and whether it taught one; the balance worked out afresh.</summary>
