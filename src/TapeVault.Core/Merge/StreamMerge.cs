@@ -76,6 +76,27 @@ internal sealed class StreamMerge
     public const double SharedStretchEndError = 0.01;
 
     /// <summary>
+    /// The baud at which the end doubts above hold (<see cref="EdgeCharacterError"/>, <see cref="GapEndError"/>,
+    /// <see cref="StretchEndError"/>, <see cref="SharedGapEndError"/>, <see cref="SharedStretchEndError"/>). They were
+    /// fitted on kcs-300 and kcs-1200 tapes together, where most segment ends beside holes, and most false characters at a
+    /// stretch's edge, were kcs-1200's. A false character at an edge is framed on a transient (the fade of a dropout, the
+    /// click where the tone stops), which lasts a fixed time on tape whatever the baud (<see cref="Bytes.CharacterEdge"/>):
+    /// the faster the characters, the more bits it fills and can turn. So each doubt's odds scale with the baud, as the
+    /// block stage's edge doubt does (<see cref="AtBaud"/>).
+    /// </summary>
+    public const double EndDoubtBaud = 1200;
+
+    /// <summary>
+    /// An end doubt that holds at <see cref="EndDoubtBaud"/> (<paramref name="error"/>), at <paramref name="baud"/>: its
+    /// odds times baud / <see cref="EndDoubtBaud"/>, the transient's length in bits against its length there.
+    /// </summary>
+    public static double AtBaud(double error, double? baud)
+    {
+        double odds = error / (1 - error) * ((baud ?? EndDoubtBaud) / EndDoubtBaud);
+        return odds / (1 + odds);
+    }
+
+    /// <summary>
     /// The chance, from its length alone, that a piece of <paramref name="characters"/> characters carried beside bytes no
     /// capture kept is a run of the written characters at all, rather than a false frame whose characters happened to pass
     /// the vote: L² / (L² + <see cref="LonePieceHalfLength"/>²). A reading framed on the true characters goes on for as
@@ -136,12 +157,25 @@ internal sealed class StreamMerge
     private readonly int _bitsPerCharacter;
     private readonly MergeOptions _options;
 
-    public StreamMerge(IReadOnlyList<MergePass> passes, PassTimeline[] timelines, int bitsPerCharacter, MergeOptions options)
+    /// <summary>The end doubts at this format's baud (<see cref="AtBaud"/>).</summary>
+    private readonly double _edgeError, _gapEndError, _stretchEndError, _sharedGapEndError, _sharedStretchEndError;
+
+    /// <param name="passes">Every capture's readings.</param>
+    /// <param name="timelines">Each pass's line onto the common timeline.</param>
+    /// <param name="bitsPerCharacter">The bits of one character's frame.</param>
+    /// <param name="baud">The format's baud (null: not known, the doubts as at <see cref="EndDoubtBaud"/>).</param>
+    /// <param name="options">The merge's options.</param>
+    public StreamMerge(IReadOnlyList<MergePass> passes, PassTimeline[] timelines, int bitsPerCharacter, double? baud, MergeOptions options)
     {
         _options = options;
         _passes = passes;
         _timelines = timelines;
         _bitsPerCharacter = Math.Max(1, bitsPerCharacter);
+        _edgeError = AtBaud(EdgeCharacterError, baud);
+        _gapEndError = AtBaud(GapEndError, baud);
+        _stretchEndError = AtBaud(StretchEndError, baud);
+        _sharedGapEndError = AtBaud(SharedGapEndError, baud);
+        _sharedStretchEndError = AtBaud(SharedStretchEndError, baud);
     }
 
     private readonly record struct StreamByte(double Time, byte Value, float Error, int Pass, int Reader, int Candidate, int Index, bool Edge);
@@ -301,7 +335,7 @@ internal sealed class StreamMerge
         {
             int covering = spans.Where(s => s.Start <= slot.Centre && slot.Centre <= s.End).Select(s => s.Pass).Distinct().Count();
             int supporting = slot.Bytes.Select(x => x.Pass).Distinct().Count();
-            (slot.Value, slot.Probability) = Vote(slot, edges: false);
+            (slot.Value, slot.Probability) = Vote(slot, edgeError: null);
             slot.Unanimous = slot.Bytes.TrueForAll(x => x.Value == slot.Value);
 
             // Each capture that read the value may be wrong in a way no margin shows; they are all wrong alike only if
@@ -309,10 +343,10 @@ internal sealed class StreamMerge
             int alike = slot.Bytes.Where(x => x.Value == slot.Value).Select(x => x.Pass).Distinct().Count();
             double floor = Math.Pow(_options.StreamByteErrorFloor, Math.Max(1, alike));
             slot.Probability = Math.Min(slot.Probability, 1 - floor);
-            slot.Confidence = Math.Min(Vote(slot, edges: true, of: slot.Value).Probability, slot.Probability);
+            slot.Confidence = Math.Min(Vote(slot, _edgeError, of: slot.Value).Probability, slot.Probability);
             // At a segment's end part of the doubt is the tape's own, the same for every capture: agreement cannot outvote it.
-            slot.GapEndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, endError: GapEndError).Probability, slot.Probability) * (1 - SharedGapEndError);
-            slot.StretchEndConfidence = Math.Min(Vote(slot, edges: true, of: slot.Value, endError: StretchEndError).Probability, slot.Probability) * (1 - SharedStretchEndError);
+            slot.GapEndConfidence = Math.Min(Vote(slot, _edgeError, of: slot.Value, endError: _gapEndError).Probability, slot.Probability) * (1 - _sharedGapEndError);
+            slot.StretchEndConfidence = Math.Min(Vote(slot, _edgeError, of: slot.Value, endError: _stretchEndError).Probability, slot.Probability) * (1 - _sharedStretchEndError);
 
             // A byte that other captures reading this stretch did not see must be a confident one.
             if (slot.Probability > (supporting < covering ? LoneByteProbability : 0.5))
@@ -371,7 +405,7 @@ internal sealed class StreamMerge
         int reference = Math.Max(0, Array.FindIndex(_timelines, t => t.Scale == 1 && t.Offset == 0));
         var order = Enumerable.Range(0, _passes.Count).OrderBy(p => p == reference ? 0 : 1).ThenByDescending(p => features[p].Sum(f => f.Count)).ToList();
         var placed = new List<(long Feature, double Time)>(features[reference].SelectMany(f => f));
-        var placedEnds = new List<(long Feature, double Time)>(_passes[reference].Candidates.SelectMany(c => ReadingEnds(c, _timelines[reference])));
+        var placedEnds = new List<(long Feature, double Time)>(_passes[reference].Candidates.SelectMany(c => ReadingEnds(c, _passes[reference].Candidates, _timelines[reference], character)));
         foreach (int p in order.Skip(1))
         {
             var candidates = _passes[p].Candidates;
@@ -382,7 +416,7 @@ internal sealed class StreamMerge
                 {
                     // Too few runs of its own to place it (a file of one byte repeated, a short reading): it lies where
                     // other readings that begin or end with its characters begin and end.
-                    (scale, offset, inliers) = PassTimeline.Fit(placedEnds, [.. ReadingEnds(candidates[ci], _timelines[p])], character, 0, minimumSpread: 40 * character);
+                    (scale, offset, inliers) = PassTimeline.Fit(placedEnds, [.. ReadingEnds(candidates[ci], candidates, _timelines[p], character)], character, 0, minimumSpread: 40 * character);
                 }
 
                 if (inliers >= MinimumReadingPairs)
@@ -395,7 +429,7 @@ internal sealed class StreamMerge
             {
                 var (scale, offset) = lines[p][ci];
                 placed.AddRange(features[p][ci].Select(f => (f.Feature, (scale * f.Time) + offset)));
-                placedEnds.AddRange(ReadingEnds(candidates[ci], _timelines[p]).Select(f => (f.Feature, (scale * f.Time) + offset)));
+                placedEnds.AddRange(ReadingEnds(candidates[ci], candidates, _timelines[p], character).Select(f => (f.Feature, (scale * f.Time) + offset)));
             }
         }
 
@@ -410,17 +444,49 @@ internal sealed class StreamMerge
     /// repeated has no run that says where along it a reading lies, and its pass's line, fitted on the other files, is
     /// off by as much as the silences between files differ: the run then reads longer than it was written, its extra
     /// characters one capture's alone.
+    /// <para>
+    /// Only where the reading's own setting read no other reading of the capture just before it (within the silence that
+    /// parts stretches, <see cref="StretchGap"/>) is its start the stretch's start, and likewise its end: a reading that
+    /// resumed after a dropout inside a file of one byte repeated begins with the same four characters as the file does,
+    /// and, taken for the file's start, laid its characters over those the others read at the start, its own place in
+    /// the run left to one capture's characters alone.
+    /// </para>
     /// </summary>
-    private static IEnumerable<(long Feature, double Time)> ReadingEnds(BlockCandidate c, PassTimeline timeline)
+    private static IEnumerable<(long Feature, double Time)> ReadingEnds(BlockCandidate c, IReadOnlyList<BlockCandidate> pass, PassTimeline timeline, double character)
     {
         if (c.Payload.Length < 4)
         {
             yield break;
         }
 
-        yield return (Feature(c.Payload.AsSpan(0, 4)) | ReadingStartMark, timeline.Map(c.ByteSeconds[0]));
-        yield return (Feature(c.Payload.AsSpan(c.Payload.Length - 4, 4)) | ReadingEndMark, timeline.Map(c.ByteSeconds[^4]));
+        double gap = StretchGap(character);
+        double first = timeline.Map(c.ByteSeconds[0]), last = timeline.Map(c.ByteSeconds[^1]);
+        bool resumed = false, broken = false;
+        foreach (var other in pass)
+        {
+            if (ReferenceEquals(other, c) || other.SettingIndex != c.SettingIndex || other.ByteSeconds.Length == 0)
+            {
+                continue;
+            }
+
+            double otherLast = timeline.Map(other.ByteSeconds[^1]), otherFirst = timeline.Map(other.ByteSeconds[0]);
+            resumed |= otherLast < first && first - otherLast < gap;
+            broken |= otherFirst > last && otherFirst - last < gap;
+        }
+
+        if (!resumed)
+        {
+            yield return (Feature(c.Payload.AsSpan(0, 4)) | ReadingStartMark, timeline.Map(c.ByteSeconds[0]));
+        }
+
+        if (!broken)
+        {
+            yield return (Feature(c.Payload.AsSpan(c.Payload.Length - 4, 4)) | ReadingEndMark, timeline.Map(c.ByteSeconds[^4]));
+        }
     }
+
+    /// <summary>The least silence, in nominal seconds, that parts two stretches of tone (two files) rather than a dropout inside one.</summary>
+    private static double StretchGap(double character) => Math.Max(12 * character, 0.5);
 
     /// <summary>Marks a feature as a reading's first four characters (features are four bytes: bits 0–31).</summary>
     private const long ReadingStartMark = 1L << 40;
@@ -464,11 +530,11 @@ internal sealed class StreamMerge
     /// <summary>
     /// P(value | readings) with a uniform prior over the 256 values: each capture's likelihood of a value is the mean
     /// over its settings of (1 − e) where the setting read that value and e / 255 where it read another. With
-    /// <paramref name="edges"/>, a reading's first and last character count as no surer than <see cref="EdgeCharacterError"/>,
-    /// or, with <paramref name="endError"/>, every reading's character as no surer than that (a segment's end).
+    /// <paramref name="edgeError"/>, a reading's first and last character count as no surer than that (<see cref="EdgeCharacterError"/>
+    /// at the format's baud), or, with <paramref name="endError"/>, every reading's character as no surer than that (a segment's end).
     /// Returns the likeliest value and its probability, or <paramref name="of"/>'s probability where given.
     /// </summary>
-    private static (byte Value, double Probability) Vote(Slot slot, bool edges, byte? of = null, double? endError = null)
+    private static (byte Value, double Probability) Vote(Slot slot, double? edgeError, byte? of = null, double? endError = null)
     {
         var values = slot.Bytes.Select(b => b.Value).Distinct().ToArray();
         var logLikelihood = new double[values.Length + 1];
@@ -480,7 +546,7 @@ internal sealed class StreamMerge
                 double sum = 0;
                 foreach (var r in readings)
                 {
-                    double error = !edges ? r.Error : endError is { } end ? Math.Max(r.Error, end) : r.Edge ? Math.Max(r.Error, EdgeCharacterError) : r.Error;
+                    double error = edgeError is not { } edge ? r.Error : endError is { } end ? Math.Max(r.Error, end) : r.Edge ? Math.Max(r.Error, edge) : r.Error;
                     sum += v < values.Length && r.Value == values[v] ? 1 - error : error / 255.0;
                 }
 
@@ -511,7 +577,7 @@ internal sealed class StreamMerge
     private List<ImageBlock> Segments(List<Slot> slots, double character)
     {
         var blocks = new List<ImageBlock>();
-        double stretchGap = Math.Max(12 * character, 0.5);
+        double stretchGap = StretchGap(character);
         int stretch = -1;
         int offset = 0;
         var segment = new List<Slot>();

@@ -278,6 +278,58 @@ public sealed class StreamMergeTests
         Assert.InRange(first.Confidence, (1 - StreamMerge.SharedGapEndError) * (1 - StreamMerge.SharedStretchEndError) * 0.995, 1 - StreamMerge.SharedGapEndError);
     }
 
+    [Fact]
+    public void Stream_AFileOfOneByteRepeatedReadInPiecesByEveryCapture_IsPlacedByTheEndsOfItsStretch_NotByWhereAPieceResumed()
+    {
+        // Text, then a second of idle tone, then sixty characters of one byte (four of them are the same four wherever
+        // along the run they stand). Each capture lost three characters of the fill to a dropout, at different places,
+        // and read the rest in two pieces, every one of its four detector settings alike. The second capture was
+        // recorded with thirty characters more idle tone between the files: its pass's line, which only the text can
+        // fit, puts its fill thirty characters late, and its pieces are placed by their first and last characters.
+        var fill = Enumerable.Repeat((byte)0xFC, 60).ToArray();
+        var text = Text();
+        string[] settings = ["s0", "s1", "s2", "s3"];
+        MergePass Capture(int capture, double pause, int lostFrom) => Readings.Pass(
+            capture,
+            [.. settings.SelectMany(setting => new[]
+            {
+                Readings.Stream(text, 0, text.Length, 1.0, Character, setting),
+                Readings.Stream(fill, 0, lostFrom, 1.0 + (text.Length * Character) + pause, Character, setting, position: 1),
+                Readings.Stream(fill, lostFrom + 3, fill.Length, 1.0 + (text.Length * Character) + pause, Character, setting, position: 2),
+            })]);
+
+        var image = TapeMerger.Merge([Capture(0, 1.0, 45), Capture(1, 1.0 + (30 * Character), 15)], Kcs);
+
+        // Each file as written (the bytes the readings were built from, KCS framing as above). Before, every piece was
+        // also placed by a start or end that was only a dropout's edge (the pieces that resumed begin with the fill's
+        // four characters, as the fill does), whichever match lay nearest its pass's line: the fill came out as two
+        // segments with bytes missing between them, though one capture or the other read every character.
+        Assert.Equal([Hex(text), Hex(fill)], image.Blocks.Select(b => Hex(b.Payload)));
+    }
+
+    [Fact]
+    public void Stream_TheEndDoubtsOfASegment_ScaleWithTheBitsATransientFills_SoASlowerFormatDoubtsItsEndsLess()
+    {
+        // Two captures of one kcs-300 and one kcs-1200 tape (the Kansas City Standard's two rates, BYTE, February 1976),
+        // each read whole and alike: the segment's ends are the stretch's start and end, where a false character framed
+        // on the transient of the tone starting or stopping is the same on every capture. A transient lasts a fixed time
+        // on tape (Bytes.CharacterEdge), so at 300 baud it fills a quarter of the bits it fills at 1200: the odds of a
+        // false end character are a quarter. Before, both were shown at (1 - 0.01)² whatever the baud.
+        var text = Text();
+        double Merged(string profile, double character)
+        {
+            MergePass Pass(int n) => Readings.Pass(n, Readings.Stream(text, 0, text.Length, 1.0 + (0.3 * n), character));
+            return Assert.Single(TapeMerger.Merge([Pass(0), Pass(1)], ProfileCatalog.BuiltIn.Get(profile)).Blocks).Confidence;
+        }
+
+        double fast = Merged("kcs-1200", Character), slow = Merged("kcs-300", 11.0 / 300);
+        double sharedOdds = StreamMerge.SharedStretchEndError / (1 - StreamMerge.SharedStretchEndError);
+        double sharedSlow = sharedOdds * 300 / 1200 / (1 + (sharedOdds * 300 / 1200));
+        Assert.InRange(fast, Math.Pow(1 - StreamMerge.SharedStretchEndError, 2) * 0.99, Math.Pow(1 - StreamMerge.SharedStretchEndError, 2));
+        Assert.InRange(slow, Math.Pow(1 - sharedSlow, 2) * 0.99, Math.Pow(1 - sharedSlow, 2));
+        Assert.True(slow > Math.Pow(1 - StreamMerge.SharedStretchEndError, 2), $"{slow} at 300 baud");
+    }
+
     private static string Hex(System.Collections.Immutable.ImmutableArray<byte> bytes) => Convert.ToHexStringLower(bytes.AsSpan());
 
     private static string Hex(byte[] bytes) => Convert.ToHexStringLower(bytes);
