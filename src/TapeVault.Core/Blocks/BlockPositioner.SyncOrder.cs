@@ -165,14 +165,15 @@ public static partial class BlockPositioner
                 readBetween = groups[gi].Copy is not null;
             }
 
-            double? length = first.CleanLength ?? next.CleanLength ?? groups[first.LastKnown].ShortestWhole;
-            if (readBetween || length is not { } l)
+            if (readBetween)
             {
                 continue;
             }
 
-            double spacing = l + (1.25 * (copyGap ?? l)) + SyncSeconds;
-            if (groups[next.FirstKnown].Start - groups[first.LastKnown].Start > ((later - earlier) * spacing) + SyncSeconds)
+            double? length = first.CleanLength ?? next.CleanLength ?? groups[first.LastKnown].ShortestWhole;
+            double apart = groups[next.FirstKnown].Start - groups[first.LastKnown].Start;
+            bool near = length is { } l && apart <= ((later - earlier) * (l + (1.25 * (copyGap ?? l)) + SyncSeconds)) + SyncSeconds;
+            if (!near && !SpacedAsCopies(groups, first.LastKnown, next.FirstKnown, earlier, later, copies))
             {
                 continue;
             }
@@ -219,6 +220,32 @@ public static partial class BlockPositioner
 
             positionOf[i] = n;
         }
+    }
+
+    /// <summary>
+    /// Whether the syncs of groups <paramref name="a"/> (copy <paramref name="earlier"/>) and <paramref name="b"/> (copy
+    /// <paramref name="later"/>) lie as far apart as copies that many apart, by the capture's own timing where no length
+    /// tells the spacing (no clean reading, and failed readings end where their misread length or a lost marker says):
+    /// the copies of a block are one length and each follows the one before after the same lead-in, so the span from one
+    /// copy's sync to the next copy's (or, from the block's last copy, to the next block's first) is the same for every
+    /// copy. The span from <paramref name="b"/> to the next sync read, which reads the copy after <paramref name="later"/>,
+    /// is one such step.
+    /// </summary>
+    private static bool SpacedAsCopies(List<SyncPlace> groups, int a, int b, int earlier, int later, int copies)
+    {
+        for (int gi = b + 1; gi < groups.Count; gi++)
+        {
+            var g = groups[gi];
+            if (g.Position < 0)
+            {
+                continue;
+            }
+
+            double step = g.Start - groups[b].Start;
+            return g.Copy == (later + 1) % copies && SyncSpansAlike(groups[b].Start - groups[a].Start, (later - earlier) * step);
+        }
+
+        return false;
     }
 
     /// <summary>The readings of one sync: the copy they read, the position they take, and how far the copy is proven to reach.</summary>

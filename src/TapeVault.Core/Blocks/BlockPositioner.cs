@@ -368,7 +368,7 @@ public static partial class BlockPositioner
         {
             for (int j = i + 1; j < named.Count && named[j].StartSeconds <= c.StartSeconds + SyncSeconds; j++)
             {
-                if (named[j].SettingIndex != named[i].SettingIndex && named[j].Identity.Key == named[i].Identity.Key)
+                if (named[j].SettingIndex != named[i].SettingIndex && ReadAlike(named[j], named[i]))
                 {
                     return named[i];
                 }
@@ -595,7 +595,7 @@ public static partial class BlockPositioner
         var settingsOf = new Dictionary<string, HashSet<int>>(StringComparer.Ordinal);
         foreach (var (candidate, _) in keyed)
         {
-            string key = candidate.Identity.Key;
+            string key = AlikeKey(candidate);
             if (!settingsOf.TryGetValue(key, out var settings))
             {
                 settingsOf[key] = settings = [];
@@ -690,15 +690,16 @@ public static partial class BlockPositioner
             return true;
         }
 
-        // Whether the spans from the syncs of units a and b to the next unit's sync are alike: within 1 % (wow and
-        // flutter, common practice) and 10 ms (where settings' readings of one sync start).
-        bool Alike(int a, int b)
-        {
-            double x = syncStart[units[a + 1].Sync] - syncStart[units[a].Sync];
-            double y = syncStart[units[b + 1].Sync] - syncStart[units[b].Sync];
-            return Math.Abs(x - y) <= (0.01 * Math.Max(x, y)) + 0.01;
-        }
+        // Whether the spans from the syncs of units a and b to the next unit's sync are alike.
+        bool Alike(int a, int b) =>
+            SyncSpansAlike(syncStart[units[a + 1].Sync] - syncStart[units[a].Sync], syncStart[units[b + 1].Sync] - syncStart[units[b].Sync]);
     }
+
+    /// <summary>
+    /// Whether two spans between syncs are alike: within 1 % (wow and flutter, common practice) and 10 ms (where
+    /// settings' readings of one sync start).
+    /// </summary>
+    private static bool SyncSpansAlike(double x, double y) => Math.Abs(x - y) <= (0.01 * Math.Max(x, y)) + 0.01;
 
     /// <summary>
     /// Whether two places that would be taken for copies of one block hold readings that name different blocks and are
@@ -720,7 +721,7 @@ public static partial class BlockPositioner
                         {
                             var x = keyed[i].Candidate;
                             var y = keyed[j].Candidate;
-                            if (NamesItself(x) && NamesItself(y) && x.Identity.Key != y.Identity.Key && support[x.Identity.Key] > 1 && support[y.Identity.Key] > 1)
+                            if (Believed(x) && Believed(y) && x.Identity.Key != y.Identity.Key)
                             {
                                 return true;
                             }
@@ -731,6 +732,10 @@ public static partial class BlockPositioner
         }
 
         return false;
+
+        // A name with a byte it cannot print ('?') was garbled there, however many settings garbled it alike (settings
+        // that read the same edges misread alike).
+        bool Believed(BlockCandidate c) => NamesItself(c) && support[AlikeKey(c)] > 1 && c.Identity.FileName?.Contains('?', StringComparison.Ordinal) != true;
     }
 
     /// <summary>
@@ -882,7 +887,7 @@ public static partial class BlockPositioner
         bool ReadAlikeAtPlace(int i)
         {
             var c = keyed[i].Candidate;
-            return places[placeOf[i]].Exists(j => keyed[j].Candidate.SettingIndex != c.SettingIndex && keyed[j].Candidate.Identity.Key == c.Identity.Key);
+            return places[placeOf[i]].Exists(j => keyed[j].Candidate.SettingIndex != c.SettingIndex && ReadAlike(keyed[j].Candidate, c));
         }
 
         for (int p = 0; p < places.Count; p++)
@@ -1455,6 +1460,19 @@ public static partial class BlockPositioner
 
         return renamed ?? candidates;
     }
+
+    /// <summary>
+    /// Whether two readings name one block alike, byte for byte: an identity's file name shows every byte it cannot print
+    /// as '?', so two settings that garble one byte of a name differently show the same name, and vouch for nothing.
+    /// </summary>
+    private static bool ReadAlike(BlockCandidate a, BlockCandidate b) => AlikeKey(a) == AlikeKey(b);
+
+    /// <summary>
+    /// A reading's identity as <see cref="ReadAlike"/> compares it: its key, and where its file name holds a byte shown as
+    /// '?', its header's bytes too.
+    /// </summary>
+    private static string AlikeKey(BlockCandidate c) =>
+        c.Identity.FileName is { } name && name.Contains('?', StringComparison.Ordinal) ? $"{c.Identity.Key}/{Convert.ToHexString(c.Header.AsSpan())}" : c.Identity.Key;
 
     /// <summary>Whether a reading's header was read far enough to give a field of its identity: then it keeps that identity rather than a neighbour's.</summary>
     private static bool NamesItself(BlockCandidate c) => c.Identity.BlockNumber is not null || c.Identity.FileId is not null || c.Identity.FileName is not null;
