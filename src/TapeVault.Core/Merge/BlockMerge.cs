@@ -136,16 +136,23 @@ internal sealed class BlockMerge
         double share = (breaking + 1.0) / (between + 2.0);
         var weighed = new List<ImageBlock>(blocks.Count);
         int before = -1;
+        int next = 0;
         for (int i = 0; i < blocks.Count; i++)
         {
             var block = blocks[i];
+
+            // The proven position after this one: the first of the proven indices beyond it, found in one pass over both.
+            while (next < proven.Count && proven[next] <= i)
+            {
+                next++;
+            }
+
             if (block.Status == RecoveryStatus.Clean)
             {
                 before = i;
             }
-            else if (block.Status != RecoveryStatus.Missing && before >= 0
-                && blocks.FindIndex(i + 1, b => b.Status == RecoveryStatus.Clean) is int after and >= 0
-                && !FitsBetween(blocks[before], block, blocks[after]))
+            else if (block.Status != RecoveryStatus.Missing && before >= 0 && next < proven.Count
+                && !FitsBetween(blocks[before], block, blocks[proven[next]]))
             {
                 double right = block.Confidence * share;
                 block = block with { Confidence = right / (right + (1 - block.Confidence)) };
