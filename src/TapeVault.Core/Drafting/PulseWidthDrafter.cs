@@ -218,10 +218,19 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             cuts = leadRuns;
         }
 
+        // A run inside a block's header (zero bits in a row) is no gap: GapCuts keeps the runs that begin blocks.
+        var judged = gapped ? GapCuts.Judge(sym, cuts, threshold) : [.. cuts.Select(c => (Run: c, Begins: true))];
+        cuts = [.. judged.Select(j => j.Run)];
+
         // Each block: from the end of a lead-in (or gap) to the next one or a loss of signal (four unclassified cycles).
         var blocks = new List<int[]>();
         for (int k = 0; k < cuts.Count; k++)
         {
+            if (!judged[k].Begins)
+            {
+                continue;
+            }
+
             int from = cuts[k].Start + cuts[k].Length;
             int limit = k + 1 < cuts.Count ? cuts[k + 1].Start : sym.Length;
             int to = from;
