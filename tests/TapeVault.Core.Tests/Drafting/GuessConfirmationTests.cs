@@ -129,6 +129,30 @@ public sealed class GuessConfirmationTests
     }
 
     [Fact]
+    public void A_guessed_sync_written_as_a_sync_field_goes_when_the_reference_s_pulse_sync_is_confirmed_in_its_place()
+    {
+        // As drafted from seed 148004 of the draft figure: the reference writes its sync as pulse classes; the draft
+        // measured the same pulses (with the lead-in's last bits) as whole bytes, wrote them as the header's first
+        // field, and marked that sync a guess. Confirmed, the reference's class sequence stands for that sync; the
+        // draft's sync field kept after it was looked for a second time, and the confirmed draft read none of the
+        // truth's 14 blocks (the draft itself, unconfirmed, read all 15 it found with its check holding).
+        string truth = RandomFormats.Draw("pulse-width", new Random(14));
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        ((JsonObject)draft["pulseWidth"]!).Remove("sync");
+        var header = (JsonArray)draft["layout"]!["header"]!;
+        header.Insert(0, new JsonObject { ["name"] = "sync", ["bytes"] = 1, ["role"] = "sync", ["expect"] = new JsonArray("A5") });
+
+        string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["pulseWidth.sync", "layout.header"]);
+
+        // The reference is the outside reference here: the confirmed header and sync are its own (RandomFormats).
+        var node = JsonNode.Parse(confirmed)!;
+        var reference = JsonNode.Parse(truth)!;
+        Assert.Equal(reference["pulseWidth"]!["sync"]!.ToJsonString(), node["pulseWidth"]!["sync"]!.ToJsonString());
+        Assert.Equal(reference["layout"]!["header"]!.ToJsonString(), node["layout"]!["header"]!.ToJsonString());
+        ProfileLoader.Parse(confirmed, "confirmed");
+    }
+
+    [Fact]
     public void A_guessed_header_of_a_format_whose_header_block_gives_the_data_length_is_the_references_block_kinds()
     {
         // The reference: a header block whose start and end addresses give the length of the data block after it.
