@@ -113,11 +113,8 @@ public sealed class GuessConfirmationTests
         // The reference writes its sync as pulse classes; the draft measured the same sync as whole bytes (the lead-in's
         // bits before it) and wrote it as the header's first field, with no class sequence.
         string truth = RandomFormats.Draw("pulse-width", new Random(14));
-        var draft = JsonNode.Parse(truth)!.AsObject();
-        ((JsonObject)draft["pulseWidth"]!).Remove("sync");
-        var header = (JsonArray)draft["layout"]!["header"]!;
-        var names = new JsonArray([.. header.Select(f => (JsonNode)JsonValue.Create(f!["name"]!.GetValue<string>())!), JsonValue.Create("payload")]);
-        header.Insert(0, new JsonObject { ["name"] = "sync", ["bytes"] = 1, ["role"] = "sync", ["expect"] = new JsonArray("A5") });
+        var names = new JsonArray([.. JsonNode.Parse(truth)!["layout"]!["header"]!.AsArray().Select(f => (JsonNode)JsonValue.Create(f!["name"]!.GetValue<string>())!), JsonValue.Create("payload")]);
+        var draft = WithSyncField(truth);
         draft["layout"]!["checksum"]!["covers"] = names;
 
         string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["layout.header"]);
@@ -137,10 +134,7 @@ public sealed class GuessConfirmationTests
         // draft's sync field kept after it was looked for a second time, and the confirmed draft read none of the
         // truth's 14 blocks (the draft itself, unconfirmed, read all 15 it found with its check holding).
         string truth = RandomFormats.Draw("pulse-width", new Random(14));
-        var draft = JsonNode.Parse(truth)!.AsObject();
-        ((JsonObject)draft["pulseWidth"]!).Remove("sync");
-        var header = (JsonArray)draft["layout"]!["header"]!;
-        header.Insert(0, new JsonObject { ["name"] = "sync", ["bytes"] = 1, ["role"] = "sync", ["expect"] = new JsonArray("A5") });
+        var draft = WithSyncField(truth);
 
         string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["pulseWidth.sync", "layout.header"]);
 
@@ -190,5 +184,14 @@ public sealed class GuessConfirmationTests
         Assert.Equal(2, profile.Layout.Copies);
         Assert.Null(node["header"]);
         Assert.Null(node["payloadBytes"]);
+    }
+
+    /// <summary>The reference as a draft that measured its pulse sync as whole bytes: no class sequence, a sync field first in the header.</summary>
+    private static JsonObject WithSyncField(string truth)
+    {
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        ((JsonObject)draft["pulseWidth"]!).Remove("sync");
+        ((JsonArray)draft["layout"]!["header"]!).Insert(0, new JsonObject { ["name"] = "sync", ["bytes"] = 1, ["role"] = "sync", ["expect"] = new JsonArray("A5") });
+        return draft;
     }
 }
