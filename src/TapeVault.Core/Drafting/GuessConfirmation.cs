@@ -78,7 +78,7 @@ public static class GuessConfirmation
 
                     break;
                 case "layout.header":
-                    ConfirmHeader(draft, reference, checksumGuessed: paths.Contains("layout.checksum"));
+                    ConfirmHeader(draft, reference, checksumGuessed: paths.Contains("layout.checksum"), syncConfirmed: paths.Contains("pulseWidth.sync") && reference["pulseWidth"]?["sync"] is not null);
                     break;
                 case "layout.payloadBytes" when rule == ConfirmationRule.GuessedFieldsOnly:
                     foreach (string part in PayloadLength)
@@ -107,7 +107,7 @@ public static class GuessConfirmation
     /// Where the reference's blocks are of several kinds (a header block that gives the next block's length), its
     /// kinds are the confirmed header (see <see cref="ConfirmKinds"/>).
     /// </summary>
-    private static void ConfirmHeader(JsonObject draft, JsonObject reference, bool checksumGuessed)
+    private static void ConfirmHeader(JsonObject draft, JsonObject reference, bool checksumGuessed, bool syncConfirmed)
     {
         if (draft["layout"] is JsonObject drafted && drafted["kinds"] is null && reference["layout"]?["kinds"] is JsonArray kinds)
         {
@@ -128,9 +128,11 @@ public static class GuessConfirmation
             : CoverageStart(layout);
 
         // A sync the draft measured and wrote as the header's first field (a sync of whole bytes) is the sync's, not
-        // the header's: where the reference writes its sync elsewhere (as pulse classes, say), it stays.
+        // the header's: where the reference writes its sync elsewhere (as pulse classes, say), it stays. Unless that
+        // sync was the guess confirmed too: the draft's sync field is its reading of the same pulses (the lead-in's last
+        // bits and the sync's, as bytes), and kept after the reference's class sequence it would be looked for twice.
         var header = (JsonArray)confirmed.DeepClone();
-        if (layout["header"] is JsonArray own && own.Count > 0 && own[0]?["role"]?.GetValue<string>() == "sync"
+        if (!syncConfirmed && layout["header"] is JsonArray own && own.Count > 0 && own[0]?["role"]?.GetValue<string>() == "sync"
             && !header.Any(f => f?["role"]?.GetValue<string>() == "sync"))
         {
             header.Insert(0, own[0]!.DeepClone());

@@ -113,11 +113,8 @@ public sealed class GuessConfirmationTests
         // The reference writes its sync as pulse classes; the draft measured the same sync as whole bytes (the lead-in's
         // bits before it) and wrote it as the header's first field, with no class sequence.
         string truth = RandomFormats.Draw("pulse-width", new Random(14));
-        var draft = JsonNode.Parse(truth)!.AsObject();
-        ((JsonObject)draft["pulseWidth"]!).Remove("sync");
-        var header = (JsonArray)draft["layout"]!["header"]!;
-        var names = new JsonArray([.. header.Select(f => (JsonNode)JsonValue.Create(f!["name"]!.GetValue<string>())!), JsonValue.Create("payload")]);
-        header.Insert(0, new JsonObject { ["name"] = "sync", ["bytes"] = 1, ["role"] = "sync", ["expect"] = new JsonArray("A5") });
+        var names = new JsonArray([.. JsonNode.Parse(truth)!["layout"]!["header"]!.AsArray().Select(f => (JsonNode)JsonValue.Create(f!["name"]!.GetValue<string>())!), JsonValue.Create("payload")]);
+        var draft = WithSyncField(truth);
         draft["layout"]!["checksum"]!["covers"] = names;
 
         string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["layout.header"]);
@@ -125,6 +122,27 @@ public sealed class GuessConfirmationTests
         var node = JsonNode.Parse(confirmed)!;
         Assert.Equal("sync", node["layout"]!["header"]![0]!["role"]!.GetValue<string>());
         Assert.DoesNotContain("\"sync\"", node["layout"]!["checksum"]!["covers"]!.ToJsonString(), StringComparison.Ordinal);
+        ProfileLoader.Parse(confirmed, "confirmed");
+    }
+
+    [Fact]
+    public void A_guessed_sync_written_as_a_sync_field_goes_when_the_reference_s_pulse_sync_is_confirmed_in_its_place()
+    {
+        // As drafted from seed 148004 of the draft figure: the reference writes its sync as pulse classes; the draft
+        // measured the same pulses (with the lead-in's last bits) as whole bytes, wrote them as the header's first
+        // field, and marked that sync a guess. Confirmed, the reference's class sequence stands for that sync; the
+        // draft's sync field kept after it was looked for a second time, and the confirmed draft read none of the
+        // truth's 14 blocks (the draft itself, unconfirmed, read all 15 it found with its check holding).
+        string truth = RandomFormats.Draw("pulse-width", new Random(14));
+        var draft = WithSyncField(truth);
+
+        string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["pulseWidth.sync", "layout.header"]);
+
+        // The reference is the outside reference here: the confirmed header and sync are its own (RandomFormats).
+        var node = JsonNode.Parse(confirmed)!;
+        var reference = JsonNode.Parse(truth)!;
+        Assert.Equal(reference["pulseWidth"]!["sync"]!.ToJsonString(), node["pulseWidth"]!["sync"]!.ToJsonString());
+        Assert.Equal(reference["layout"]!["header"]!.ToJsonString(), node["layout"]!["header"]!.ToJsonString());
         ProfileLoader.Parse(confirmed, "confirmed");
     }
 
@@ -166,5 +184,14 @@ public sealed class GuessConfirmationTests
         Assert.Equal(2, profile.Layout.Copies);
         Assert.Null(node["header"]);
         Assert.Null(node["payloadBytes"]);
+    }
+
+    /// <summary>The reference as a draft that measured its pulse sync as whole bytes: no class sequence, a sync field first in the header.</summary>
+    private static JsonObject WithSyncField(string truth)
+    {
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        ((JsonObject)draft["pulseWidth"]!).Remove("sync");
+        ((JsonArray)draft["layout"]!["header"]!).Insert(0, new JsonObject { ["name"] = "sync", ["bytes"] = 1, ["role"] = "sync", ["expect"] = new JsonArray("A5") });
+        return draft;
     }
 }
