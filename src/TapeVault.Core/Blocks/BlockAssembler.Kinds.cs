@@ -12,7 +12,10 @@ public sealed partial class BlockAssembler
     /// the next block is expected to be the next copy, or the next kind after the last copy; the copy read is told by
     /// its sync where the copies' syncs differ. A block whose length its format marks (an end marker) is taken for the
     /// kind its length fits. The last block of each kind read with a holding check gives the lengths that later
-    /// kinds take from it, and its identity (a data block has the file name of its header block).
+    /// kinds take from it. The file a later kind belongs to (a data block has the file name of its header block) is
+    /// taken only from a block of the first kind read clean: a check that holds over a misread name (a weak check, two
+    /// errors that cancel) on a block that fails on other evidence proves no name, and a data block named by it would
+    /// stand apart from the readings of its own file.
     /// </summary>
     private sealed class KindSequence
     {
@@ -20,6 +23,12 @@ public sealed partial class BlockAssembler
         private readonly BlockScorer[] _scorers;
         private readonly BlockLayoutCodec[] _codecs;
         private readonly byte[]?[] _lastHeld;
+
+        // The block of the first kind that names the blocks of later kinds after it: the last one read clean, until
+        // the first copy of the next is read and is not.
+        private byte[]? _naming;
+        private byte[]? _read;
+        private int _readCopy;
         private readonly int _copies;
         private int _current;
         private int _next;
@@ -143,6 +152,8 @@ public sealed partial class BlockAssembler
                 copy = _current == _next ? _nextCopy : 0;
             }
 
+            _read = bytes;
+            _readCopy = copy;
             if (held)
             {
                 _lastHeld[_current] = bytes;
@@ -166,13 +177,34 @@ public sealed partial class BlockAssembler
         }
 
         /// <summary>
+        /// The block just read (<see cref="Read"/>) was judged: one of the first kind read clean names the blocks of
+        /// later kinds after it; a first copy that is not clean begins a file whose name nothing proves.
+        /// </summary>
+        public void Judged(bool clean)
+        {
+            if (_current != 0)
+            {
+                return;
+            }
+
+            if (clean)
+            {
+                _naming = _read;
+            }
+            else if (_readCopy == 0)
+            {
+                _naming = null;
+            }
+        }
+
+        /// <summary>
         /// The identity of a block of the current kind: its own fields where it has them; a kind without any takes
-        /// the file of the last block of the first kind read whole, and every kind is numbered by its place in the file.
+        /// the file of the last block of the first kind read clean, and every kind is numbered by its place in the file.
         /// </summary>
         public BlockIdentity Identity(ReadOnlySpan<byte> header, int ordinal)
         {
             var own = KindIdentity(_layouts[_current], _current, header, ordinal);
-            if (own.FileName is not null || own.FileId is not null || _current == 0 || _lastHeld[0] is not { } first)
+            if (own.FileName is not null || own.FileId is not null || _current == 0 || _naming is not { } first)
             {
                 return own;
             }

@@ -337,6 +337,11 @@ public sealed partial class BlockAssembler : IBlockSink
         }
 
         var score = _scorer.Score(all, CollectionsMarshal.AsSpan(_byteFirstDecision), CollectionsMarshal.AsSpan(_byteFramingDoubt), Decisions, framingErrors, _guessedDecisions, evidence, truncated, end, CollectionsMarshal.AsSpan(_byteSample));
+        if (_kinds.Many)
+        {
+            _kinds.Judged(score.Status == BlockStatus.Clean);
+        }
+
         int headerBytes = score.HeaderBytes;
         int payloadEnd = score.PayloadEnd;
         var header = all.AsSpan(0, headerBytes);
