@@ -22,8 +22,7 @@ namespace TapeVault.Core.Merge;
 /// Elsewhere, independent captures that read a character alike are all wrong
 /// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
 /// never lowers it, and a segment claims what its ends allow, and beside bytes no capture kept no more than pieces of
-/// its length, or the reading that carried it, were right, however many captures read it alike (<see cref="PieceGenuine"/>);
-/// and a piece beside such bytes that is one reading whole is at least as likely right as that reading (<see cref="WholeReading"/>).
+/// its length, or the reading that carried it, were right, however many captures read it alike (<see cref="PieceGenuine"/>).
 /// </para>
 /// </summary>
 internal sealed class StreamMerge
@@ -150,40 +149,6 @@ internal sealed class StreamMerge
         }
 
         return Math.Max(LonePieceGenuine(slots.Count), carried);
-    }
-
-    /// <summary>
-    /// The confidence of the surest reading of four characters or more that is the piece, character for character: every
-    /// character it read is one of the piece's, where the merge kept it, and it read every character of the piece. If that
-    /// reading is right as a whole, so is the piece, so the piece is at least as likely right; its confidence is the block
-    /// stage's calibrated judgement of all its characters and of where it began and ended, which the end doubts beside a
-    /// hole count again (<see cref="GapEndError"/>, <see cref="SharedGapEndError"/>). 0 where no reading is the piece.
-    /// </summary>
-    private double WholeReading(List<Slot> slots)
-    {
-        var counts = new Dictionary<(int Pass, int Candidate), int>();
-        foreach (var slot in slots)
-        {
-            foreach (var b in slot.Bytes)
-            {
-                if (b.Value == slot.Value)
-                {
-                    counts[(b.Pass, b.Candidate)] = counts.GetValueOrDefault((b.Pass, b.Candidate)) + 1;
-                }
-            }
-        }
-
-        double whole = 0;
-        foreach (var ((pass, candidate), count) in counts)
-        {
-            var reading = _passes[pass].Candidates[candidate];
-            if (count == slots.Count && reading.Payload.Length == count && count >= 4)
-            {
-                whole = Math.Max(whole, reading.Confidence);
-            }
-        }
-
-        return whole;
     }
 
     private readonly IReadOnlyList<MergePass> _passes;
@@ -687,7 +652,6 @@ internal sealed class StreamMerge
         // A piece beside bytes no capture kept may be a false frame's invention as a whole, whether one capture carried
         // it or several: the damage that made the hole is on the tape, and captures frame the same false characters in it.
         double genuine = afterGap || beforeGap ? PieceGenuine(slots) : 1;
-        double whole = afterGap || beforeGap ? WholeReading(slots) : 0;
 
         // Provenance: per capture, the reading that gave most of the winning bytes; the capture that gave most first.
         var winning = slots.SelectMany(s => s.Bytes.Where(b => b.Value == s.Value)).ToList();
@@ -712,7 +676,7 @@ internal sealed class StreamMerge
             // same characters on the same false start bit): a stream is voted, never clean; its confidence and
             // agreeing captures say how far to trust it.
             Status = RecoveryStatus.Voted,
-            Confidence = Math.Max(Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1) * genuine, whole),
+            Confidence = Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1) * genuine,
             Header = [],
             Payload = payload,
             Sources = sources,
