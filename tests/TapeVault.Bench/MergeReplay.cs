@@ -18,6 +18,9 @@ namespace TapeVault.Bench;
 /// as the trust bench counts them. With --dump, every position is written as a row (profile, seed, status, confidence,
 /// right, agreeing captures, sources, key, and the index of the written block it is, or -1);
 /// --trials-after-hit N bounds the repair search's patterns after one that holds (MergeOptions.TrialsAfterHit).
+/// With --weak-shares, it also counts the readings whose weak check held unproven (TapeMerger.WeakReadings), right and
+/// wrong by the written blocks, and of each those read by one detector setting only, per check strength and per profile:
+/// the counts BlockMerge's shares for such readings are taken from.
 /// </summary>
 public static class MergeReplay
 {
@@ -25,6 +28,7 @@ public static class MergeReplay
     {
         string? folder = null;
         string? dump = null;
+        bool weakShares = false;
         var options = new MergeOptions { CreatedUtc = DateTimeOffset.UnixEpoch };
         for (int i = 0; i < args.Length; i++)
         {
@@ -32,8 +36,9 @@ public static class MergeReplay
             {
                 case "--candidates": folder = args[++i]; break;
                 case "--dump": dump = args[++i]; break;
+                case "--weak-shares": weakShares = true; break;
                 case "--trials-after-hit": options = options with { TrialsAfterHit = int.Parse(args[++i], CultureInfo.InvariantCulture) }; break;
-                default: throw new ArgumentException($"Unknown option {args[i]}; merge-replay takes --candidates FOLDER [--dump FILE] [--trials-after-hit N].");
+                default: throw new ArgumentException($"Unknown option {args[i]}; merge-replay takes --candidates FOLDER [--dump FILE] [--trials-after-hit N] [--weak-shares].");
             }
         }
 
@@ -51,6 +56,7 @@ public static class MergeReplay
         var rows = new List<(string Profile, int Seed, RecoveryStatus Status, double Confidence, bool Right)>();
         var tapes = new List<(string Profile, int Written, int Found, int Positions, bool Exact)>();
         var lines = new List<string>();
+        var weak = new List<(string Profile, WeakReading Reading, bool Right)>();
         var watch = System.Diagnostics.Stopwatch.StartNew();
         var cpu = System.Diagnostics.Process.GetCurrentProcess().TotalProcessorTime;
         foreach (var tape in saved)
@@ -63,6 +69,12 @@ public static class MergeReplay
             var written = tape.First().Written.Select(Convert.FromHexString).ToList();
             var truth = RecoveryCorpus.WrittenIndex(profile, written);
             var image = TapeMerger.Merge(passes, profile, options);
+            if (weakShares)
+            {
+                weak.AddRange(TapeMerger.WeakReadings(passes, profile, options)
+                    .Select(w => (profile.Id, w, truth.ContainsKey(RecoveryCorpus.HeaderAndPayload(w.Header.AsSpan(), w.Payload.AsSpan())))));
+            }
+
             var found = new HashSet<int>();
             bool exact = image.Blocks.Length == written.Count;
             foreach (var block in image.Blocks)
@@ -129,8 +141,43 @@ public static class MergeReplay
                 $"{items.Sum(t => Math.Max(0, t.Positions - t.Written)),15} {items.Count(t => t.Positions > t.Written),8} {items.Count(t => t.Exact),5}"));
         }
 
+        if (weakShares)
+        {
+            PrintWeakShares(weak);
+        }
+
         Console.WriteLine($"{saved.Count} tapes merged in {watch.Elapsed.TotalSeconds:0.0} s wall, {(System.Diagnostics.Process.GetCurrentProcess().TotalProcessorTime - cpu).TotalSeconds:0.0} s processor time (load {MachineLoad.Averages()})");
         return 0;
+    }
+
+    /// <summary>
+    /// Readings whose weak check held unproven, per check strength and per profile: right ones, and of them those read by one
+    /// setting only; the same of wrong ones; then the same at places no check proved (where the merge weighs them).
+    /// </summary>
+    private static void PrintWeakShares(List<(string Profile, WeakReading Reading, bool Right)> weak)
+    {
+        Console.WriteLine();
+        Console.WriteLine("Readings whose weak check held unproven (all places | places no check proved): right, right read by one setting only,");
+        Console.WriteLine("wrong, wrong read by one setting only.");
+        Console.WriteLine($"{"check / profile",-24} {"right",7} {"alone",6} {"wrong",6} {"alone",6} | {"right",6} {"alone",6} {"wrong",6} {"alone",6}");
+        var keys = weak.GroupBy(w => w.Reading.CheckStrength).OrderBy(g => g.Key, StringComparer.Ordinal)
+            .SelectMany(g => g.GroupBy(w => w.Profile).OrderBy(p => p.Key, StringComparer.Ordinal)
+                .Select(p => ($"  {p.Key}", p.ToList()))
+                .Prepend((g.Key, g.ToList())));
+        foreach (var (key, items) in keys)
+        {
+            var unproven = items.Where(w => !w.Reading.AtProvenPlace).ToList();
+            Console.WriteLine($"{key,-24} {Counts(items, 7)} | {Counts(unproven, 6)}");
+        }
+
+        static string Counts(List<(string Profile, WeakReading Reading, bool Right)> items, int width) =>
+            string.Join(' ', new[]
+            {
+                items.Count(w => w.Right).ToString(CultureInfo.InvariantCulture).PadLeft(width),
+                items.Count(w => w.Right && w.Reading.ByOneSettingOnly).ToString(CultureInfo.InvariantCulture).PadLeft(6),
+                items.Count(w => !w.Right).ToString(CultureInfo.InvariantCulture).PadLeft(6),
+                items.Count(w => !w.Right && w.Reading.ByOneSettingOnly).ToString(CultureInfo.InvariantCulture).PadLeft(6),
+            });
     }
 
     private static string Sha256(string text) => Convert.ToHexStringLower(SHA256.HashData(Encoding.UTF8.GetBytes(text)));

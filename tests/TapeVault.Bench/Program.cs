@@ -65,7 +65,7 @@ if (section == "positions")
 
 if (section == "merge-replay")
 {
-    // merge-replay --candidates FOLDER [--dump FILE]: merges again the block tapes a trust run saved (TAPEVAULT_TRUST_CANDIDATES) and judges the positions.
+    // merge-replay --candidates FOLDER [--dump FILE] [--weak-shares]: merges again the block tapes a trust run saved (TAPEVAULT_TRUST_CANDIDATES) and judges the positions.
     return MergeReplay.Run(args[1..]);
 }
 

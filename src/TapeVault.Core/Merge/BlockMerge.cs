@@ -561,7 +561,28 @@ internal sealed class BlockMerge
         return right + wrong <= 0 ? 0 : right / (right + wrong);
     }
 
-    private ImageBlock? ResolvePosition(Group group, PassOdds odds)
+    /// <summary>
+    /// Every reading whose weak check held unproven, at its place: whether it was read by one setting only (<see
+    /// cref="ReadByOneSettingOnly"/>) and whether a check proved the place. What <see cref="AloneShares"/> is counted from.
+    /// </summary>
+    public List<WeakReading> WeakReadings()
+    {
+        var weak = new List<WeakReading>();
+        foreach (var group in GroupEntries())
+        {
+            var readings = Readings(group);
+            bool proven = Proven(readings).Count > 0;
+            foreach (var r in readings.Where(r => IsOnlyUncorroborated(r.Candidate)))
+            {
+                weak.Add(new WeakReading(CheckStrength(_checksum), r.Candidate.Header, r.Candidate.Payload, ReadByOneSettingOnly(r, readings), proven));
+            }
+        }
+
+        return weak;
+    }
+
+    /// <summary>The readings of every pass at one position, each with its pass.</summary>
+    private static List<(BlockCandidate Candidate, int Pass)> Readings(Group group)
     {
         var readings = new List<(BlockCandidate Candidate, int Pass)>();
         foreach (var e in group.Entries)
@@ -572,11 +593,19 @@ internal sealed class BlockMerge
             }
         }
 
+        return readings;
+    }
+
+    /// <summary>
+    /// The readings a check proves: the clean ones; where there are none, those whose weak check holds and that two
+    /// captures read alike (their damage is independent, so both passing the check with the same wrong bytes is far
+    /// beyond its false-match odds).
+    /// </summary>
+    private List<(BlockCandidate Candidate, int Pass)> Proven(List<(BlockCandidate Candidate, int Pass)> readings)
+    {
         var valid = readings.Where(r => r.Candidate.Status == BlockStatus.Clean).ToList();
         if (valid.Count == 0)
         {
-            // A weak check that holds proves a block once two captures read the same bytes: their damage is
-            // independent, so both passing the check with the same wrong bytes is far beyond its false-match odds.
             valid = readings
                 .Where(r => IsOnlyUncorroborated(r.Candidate))
                 .GroupBy(r => Convert.ToHexString(r.Candidate.Header.AsSpan()) + ":" + r.Candidate.PayloadHex)
@@ -585,6 +614,13 @@ internal sealed class BlockMerge
                 .ToList();
         }
 
+        return valid;
+    }
+
+    private ImageBlock? ResolvePosition(Group group, PassOdds odds)
+    {
+        var readings = Readings(group);
+        var valid = Proven(readings);
         if (valid.Count > 0)
         {
             return ResolveClean(valid, RecoveryStatus.Clean);
@@ -601,42 +637,81 @@ internal sealed class BlockMerge
 
         var kept = ResolveClean(weak, RecoveryStatus.Voted);
         var witnesses = weak.Where(r => r.Candidate.Header.SequenceEqual(kept.Header) && r.Candidate.Payload.SequenceEqual(kept.Payload)).ToList();
-        double confidence = ReadByOneSettingOnly(kept.Confidence, witnesses, readings);
+        double confidence = witnesses.Count == 1 && ReadByOneSettingOnly(witnesses[0], readings) ? AloneAmongSettings(kept.Confidence) : kept.Confidence;
         return kept with { Confidence = Unconfirmed(confidence, witnesses.Select(r => r.Pass), odds) };
     }
 
     /// <summary>
-    /// P(a weak reading right | it was read so), by Bayes over how the other detector settings of its capture read the
-    /// same place: of the readings of one-cycle-bits and three-class-pairs whose weak check held unproven (trust
-    /// benchmark, seeds 144000–144625, saved readings), every one of the 21 wrong ones lay where other settings of its
-    /// capture read the place and none read its bytes, against 1110 of the 31 003 right ones; where another setting
-    /// read the same bytes, 29 760 were right and none wrong. The settings of one capture saw one signal, so their
-    /// agreement proves nothing (it does not raise the odds); a reading no other setting could repeat from that signal
-    /// is one whose decisions a small change in the detector turns, and its odds are multiplied by
-    /// <see cref="AloneAmongSettingsRightShare"/> over <see cref="AloneAmongSettingsWrongShare"/>. Where no other
-    /// setting of the capture read the place, nothing is known and the odds stand.
+    /// Whether <paramref name="reading"/> was read by one detector setting only: no other reading of its place has its
+    /// bytes, and another setting of its capture read the place. The settings of one capture saw one signal, so their
+    /// agreement proves nothing; a reading no other setting could repeat from that signal is one whose decisions a
+    /// small change in the detector turns. Where no other setting of the capture read the place, nothing is known.
     /// </summary>
-    private double ReadByOneSettingOnly(double confidence, List<(BlockCandidate Candidate, int Pass)> witnesses, List<(BlockCandidate Candidate, int Pass)> readings)
+    private bool ReadByOneSettingOnly((BlockCandidate Candidate, int Pass) reading, List<(BlockCandidate Candidate, int Pass)> readings)
     {
-        var captures = witnesses.Select(w => _passes[w.Pass].Capture.CaptureSha256).ToHashSet(StringComparer.Ordinal);
-        var own = readings.Where(r => captures.Contains(_passes[r.Pass].Capture.CaptureSha256)).ToList();
-        bool othersRead = own.Count > witnesses.Count;
-        if (witnesses.Count != 1 || !othersRead)
+        string capture = _passes[reading.Pass].Capture.CaptureSha256;
+        bool othersRead = false;
+        foreach (var r in readings)
         {
-            return confidence;
+            if (r.Pass == reading.Pass && ReferenceEquals(r.Candidate, reading.Candidate))
+            {
+                continue;
+            }
+
+            if (r.Candidate.Header.SequenceEqual(reading.Candidate.Header) && r.Candidate.Payload.SequenceEqual(reading.Candidate.Payload))
+            {
+                return false;
+            }
+
+            othersRead |= string.Equals(_passes[r.Pass].Capture.CaptureSha256, capture, StringComparison.Ordinal);
         }
 
-        double c = Math.Clamp(confidence, 0, 1);
-        double right = c * AloneAmongSettingsRightShare;
-        double wrong = (1 - c) * AloneAmongSettingsWrongShare;
-        return right + wrong <= 0 ? 0 : right / (right + wrong);
+        return othersRead;
     }
 
-    /// <summary>Of weak readings that were right, the share read where other settings of the capture read other bytes: (1110 + 1) / (31 003 + 2) (see <see cref="ReadByOneSettingOnly"/>).</summary>
-    private const double AloneAmongSettingsRightShare = (1110 + 1.0) / (31_003 + 2.0);
+    /// <summary>
+    /// P(a weak reading right | it was read by one setting only, <see cref="ReadByOneSettingOnly"/>), by Bayes: its
+    /// odds multiplied by the share of right weak readings of this check's strength that were read so over the share of
+    /// wrong ones (<see cref="AloneShares"/>).
+    /// </summary>
+    private double AloneAmongSettings(double confidence)
+    {
+        var (right, wrong) = AloneShares(CheckStrength(_checksum));
+        double c = Math.Clamp(confidence, 0, 1);
+        double r = c * right;
+        double w = (1 - c) * wrong;
+        return r + w <= 0 ? 0 : r / (r + w);
+    }
 
-    /// <summary>Of weak readings that were wrong, the same share: (21 + 1) / (21 + 2), Laplace's rule over few cases.</summary>
-    private const double AloneAmongSettingsWrongShare = (21 + 1.0) / (21 + 2.0);
+    /// <summary>
+    /// The strength of a block check, by which a weak reading's shares are counted: weak where its false-match odds
+    /// make a holding check prove a block only beside decisions that vouch for it (<see cref="BlockScorer.WeakCheckFalseMatch"/>:
+    /// an additive sum or an xor), else strong (a CRC, whose readings are weak only across a framing error).
+    /// </summary>
+    private static string CheckStrength(IBlockChecksum? checksum) =>
+        checksum is null ? "none" : checksum.FalseMatchProbability > BlockScorer.WeakCheckFalseMatch ? "weak" : "strong";
+
+    /// <summary>
+    /// Of the weak readings of a check's strength that were right, and of those that were wrong, the shares read by one
+    /// setting only, each with one case of either added (Laplace's rule: few wrong readings say little, none nothing).
+    /// The right ones are counted where no check proved the place, the readings this weighs: where one did, the signal
+    /// was good enough for most settings to read it alike, and right readings stand alone far less often there. The
+    /// wrong ones are counted at every place: a weak check holds over a misread only by a chance cancellation that one
+    /// setting's decisions make, which the others, reading the same signal, do not repeat wherever the place lies.
+    /// Counted by <c>merge-replay --candidates DIR --weak-shares</c> on the trust benchmark's saved readings of tuning
+    /// seeds 10000–10031 and 11000–11016 (one-cycle-bits, a 16-bit sum; three-class-pairs, an xor; orrin-80, a CRC):
+    /// weak checks, 5 of the 52 right readings at unproven places and all 5 wrong ones; the sum's and the xor's apart
+    /// (3 of 14 and 4 of 4; 2 of 38 and 1 of 1) are too few to tell them apart. Strong checks: no such reading, and the
+    /// odds stand.
+    /// </summary>
+    private static (double Right, double Wrong) AloneShares(string checkStrength) => checkStrength switch
+    {
+        "weak" => (Laplace(5, 52), Laplace(5, 5)),
+        _ => (Laplace(0, 0), Laplace(0, 0)),
+    };
+
+    /// <summary>A share of <paramref name="count"/> in <paramref name="of"/>, with one case of either added.</summary>
+    private static double Laplace(int count, int of) => (count + 1.0) / (of + 2.0);
 
     /// <summary>A reading whose weak check holds and that nothing but a want of corroboration keeps from being clean.</summary>
     private static bool IsOnlyUncorroborated(BlockCandidate c) =>

@@ -59,6 +59,22 @@ public static class TapeMerger
     }
 
     /// <summary>
+    /// The readings whose weak check held unproven, at the places the merge of <paramref name="passes"/> gives them
+    /// (none for a stream): what the shares that weigh a position kept from one of them are counted from.
+    /// </summary>
+    public static IReadOnlyList<WeakReading> WeakReadings(IReadOnlyList<MergePass> passes, FormatProfile profile, MergeOptions? options = null)
+    {
+        ArgumentNullException.ThrowIfNull(passes);
+        ArgumentNullException.ThrowIfNull(profile);
+        if (passes.Count == 0 || profile.Layout.IsStream)
+        {
+            return [];
+        }
+
+        return new BlockMerge(profile, passes, Align(passes, profile), options ?? new MergeOptions()).WeakReadings();
+    }
+
+    /// <summary>
     /// Each pass's timeline. The pass with most anchors is the reference. The others join one at a time, the one with
     /// most anchors in common first, each fitted to the anchors of every pass placed before it (mapped onto the
     /// common timeline): two passes that share no clean block may each share one with a third. A pass with no anchor
