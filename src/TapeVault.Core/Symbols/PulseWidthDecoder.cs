@@ -24,10 +24,6 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
 {
     private const int InvalidPulsesToLoseBlock = 4;
 
-    // The most pulses of the shortest class one interval may have lost in a row: a bit of a pair format reaches two
-    // (one ends with the class and the next begins with it); more would be a run the lead-in is made of.
-    private const int MostShortestLost = 2;
-
     // How far (a fraction of its nominal) a pulse must read off before the edge it shares with the next one counts as
     // moved. Band-limited playback (a high-pass after a long pulse, for one) moves the crossing between two pulses:
     // one reads short by what the other reads long, and only their sum keeps its length. Our choice, above the
@@ -591,10 +587,6 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
     private void DataPulse(double seconds, double endSample, float level)
     {
         var decision = _classifier.Classify(seconds, _speed.Speed);
-        if (_dataPulses > 0 && !_pairHalves && !(decision.IsValid && Continues(decision.Class)) && SplitLostShortest(seconds, endSample, level))
-        {
-            return;
-        }
 
         // Only the block's first pulse, after the sync's (or the lead-in's) last: that edge follows the longest or the
         // most regular stretch, which a band-limited chain moves most; inside the data the pulses keep to their classes.
@@ -613,87 +605,6 @@ public sealed class PulseWidthDecoder : ISymbolDecoder
         }
 
         OnDataPulse(decision, seconds, endSample, level, trackSpeed: !shifted);
-    }
-
-    /// <summary>
-    /// A pulse the format cannot have here (or none at all), read as the shortest class lost before a pulse of another
-    /// class: where the band (a head's azimuth loss, a deck's low-pass) leaves the shortest pulses far weaker than the
-    /// rest, a trigger whose band follows the envelope of the strong ones misses their edges, and each interval then
-    /// holds one or two of them and the next pulse. The interval is taken for the sum (at nominal speed) that it lies
-    /// nearest to in ratio among one class alone and one or two of the shortest before a longer one, and split only
-    /// where that sum holds shortest pulses and the first of them goes on with the pattern being read. Every pulse of
-    /// the split is decided on that one sum: its margin is the sum's distance from the boundary (the geometric mean)
-    /// between it and the nearest other sum, as a shifted edge is decided. Returns whether it split the interval.
-    /// </summary>
-    private bool SplitLostShortest(double seconds, double endSample, float level)
-    {
-        double x = Math.Log(seconds * _speed.Speed);
-        double shortest = _classifier.NominalSeconds(0);
-        if (EndsWithShortest() && seconds * _speed.Speed > _classifier.ClassRange(0).High)
-        {
-            // The end marker's last pulse, the shortest, lost with the gap's first pulses after it: the block ends
-            // there, on a decision with no margin.
-            OnDataPulse(new PulseDecision(0, 0, (float)(x - Math.Log(shortest)), (float)(0.5 * Math.Log(_classifier.NominalSeconds(1) / shortest))), seconds, endSample, level, trackSpeed: false);
-            return true;
-        }
-
-        double best = double.NaN, second = double.NaN;
-        int bestShortest = 0, bestClass = -1;
-        for (int lost = 0; lost <= MostShortestLost; lost++)
-        {
-            for (int c = lost == 0 ? 0 : 1; c < _encoding.Classes.Count; c++)
-            {
-                double sum = Math.Log((lost * shortest) + _classifier.NominalSeconds(c));
-                if (double.IsNaN(best) || Math.Abs(x - sum) < Math.Abs(x - best))
-                {
-                    second = best;
-                    best = sum;
-                    bestShortest = lost;
-                    bestClass = c;
-                }
-                else if (double.IsNaN(second) || Math.Abs(x - sum) < Math.Abs(x - second))
-                {
-                    second = sum;
-                }
-            }
-        }
-
-        // The boundary between the nearest sum and the next lies at their geometric mean; the interval is split only
-        // where the nearest holds shortest pulses and the first of them goes on with the pattern.
-        double boundary = 0.5 * (best + second);
-        double scale = Math.Abs(best - boundary);
-        if (bestShortest == 0 || !Continues(0))
-        {
-            return false;
-        }
-
-        var split = new PulseDecision(0, (float)Math.Abs(x - boundary), (float)(x - best), (float)scale);
-        Remember(seconds, bestClass);
-        for (int i = 0; i <= bestShortest && _mode == Mode.Data; i++)
-        {
-            _dataPulses++;
-            OnDataPulse(i < bestShortest ? split : split with { Class = bestClass }, seconds, endSample, level, trackSpeed: false);
-        }
-
-        return true;
-    }
-
-    /// <summary>Whether the end marker's pulses but its last have been read at a boundary and that last is the shortest class.</summary>
-    private bool EndsWithShortest() =>
-        _phase == Phase.Boundary && _end.Length > 1 && _end[^1] == 0 && _patternLength == _end.Length - 1 && IsPrefixOf(_end);
-
-    /// <summary>Whether a pulse of class <paramref name="pulseClass"/> goes on with the pattern the block's data stands at.</summary>
-    private bool Continues(int pulseClass)
-    {
-        _pattern[_patternLength++] = pulseClass;
-        bool goesOn = _phase switch
-        {
-            Phase.Bits => IsPrefixOf(_zero) || IsPrefixOf(_one),
-            Phase.After => IsPrefixOf(_after),
-            _ => IsPrefixOf(_end) || (_before.Length > 0 ? IsPrefixOf(_before) : IsPrefixOf(_zero) || IsPrefixOf(_one)),
-        };
-        _patternLength--;
-        return goesOn;
     }
 
     /// <summary>

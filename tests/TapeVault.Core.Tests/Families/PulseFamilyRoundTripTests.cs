@@ -52,25 +52,6 @@ public sealed class PulseFamilyRoundTripTests(RoundTripFolder folder) : IClassFi
         AssertExact(profile, blocks, result);
     }
 
-    /// <summary>
-    /// At 0.54° the azimuth loss's first null lies at 3.4 kHz on a 1.5 mm track at 4.76 cm/s (sin x / x, x = π·w·tan θ / λ;
-    /// Mee and Daniel), next to the short class's 3.6 kHz: its cycles come back far weaker than the medium and long
-    /// ones, under the band of a trigger that follows their envelope, and each interval then holds the lost short
-    /// pulses and the next. Every block must still come back clean with the
-    /// bytes the writer was given.
-    /// </summary>
-    [Fact]
-    public void Three_class_pairs_comes_back_clean_with_the_short_class_near_the_azimuth_null()
-    {
-        var profile = FamilyProfiles.Get("three-class-pairs");
-        var files = Files();
-        var blocks = BlockWriter.Blocks(profile, files);
-
-        var (_, result) = RoundTrips.SynthAndDecode(folder, profile, files, new ChannelDamage { AzimuthDegrees = 0.54, SnrDb = 30, Seed = 46 });
-
-        AssertExact(profile, blocks, result);
-    }
-
     public static TheoryData<string, string> SoxCases()
     {
         var data = new TheoryData<string, string>();
