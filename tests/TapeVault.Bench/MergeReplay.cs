@@ -160,7 +160,7 @@ public static class MergeReplay
         Console.WriteLine("Readings whose weak check held unproven (all places | places no check proved): right, right read by one setting only,");
         Console.WriteLine("wrong, wrong read by one setting only.");
         Console.WriteLine($"{"check / profile",-24} {"right",7} {"alone",6} {"wrong",6} {"alone",6} | {"right",6} {"alone",6} {"wrong",6} {"alone",6}");
-        var keys = weak.GroupBy(w => w.Reading.CheckStrength).OrderBy(g => g.Key, StringComparer.Ordinal)
+        var keys = weak.GroupBy(w => w.Reading.CheckStrength.ToString().ToLowerInvariant()).OrderBy(g => g.Key, StringComparer.Ordinal)
             .SelectMany(g => g.GroupBy(w => w.Profile).OrderBy(p => p.Key, StringComparer.Ordinal)
                 .Select(p => ($"  {p.Key}", p.ToList()))
                 .Prepend((g.Key, g.ToList())));

@@ -574,7 +574,7 @@ internal sealed class BlockMerge
             bool proven = Proven(readings).Count > 0;
             foreach (var r in readings.Where(r => IsOnlyUncorroborated(r.Candidate)))
             {
-                weak.Add(new WeakReading(CheckStrength(_checksum), r.Candidate.Header, r.Candidate.Payload, ReadByOneSettingOnly(r, readings), proven));
+                weak.Add(new WeakReading(StrengthOf(_checksum), r.Candidate.Header, r.Candidate.Payload, ReadByOneSettingOnly(r, readings), proven));
             }
         }
 
@@ -676,7 +676,7 @@ internal sealed class BlockMerge
     /// </summary>
     private double AloneAmongSettings(double confidence)
     {
-        var (right, wrong) = AloneShares(CheckStrength(_checksum));
+        var (right, wrong) = AloneShares(StrengthOf(_checksum));
         double c = Math.Clamp(confidence, 0, 1);
         double r = c * right;
         double w = (1 - c) * wrong;
@@ -688,8 +688,8 @@ internal sealed class BlockMerge
     /// make a holding check prove a block only beside decisions that vouch for it (<see cref="BlockScorer.WeakCheckFalseMatch"/>:
     /// an additive sum or an xor), else strong (a CRC, whose readings are weak only across a framing error).
     /// </summary>
-    private static string CheckStrength(IBlockChecksum? checksum) =>
-        checksum is null ? "none" : checksum.FalseMatchProbability > BlockScorer.WeakCheckFalseMatch ? "weak" : "strong";
+    private static CheckStrength StrengthOf(IBlockChecksum? checksum) =>
+        checksum is null ? CheckStrength.None : checksum.FalseMatchProbability > BlockScorer.WeakCheckFalseMatch ? CheckStrength.Weak : CheckStrength.Strong;
 
     /// <summary>
     /// Of the weak readings of a check's strength that were right, and of those that were wrong, the shares read by one
@@ -704,9 +704,9 @@ internal sealed class BlockMerge
     /// (3 of 14 and 4 of 4; 2 of 38 and 1 of 1) are too few to tell them apart. Strong checks: no such reading, and the
     /// odds stand.
     /// </summary>
-    private static (double Right, double Wrong) AloneShares(string checkStrength) => checkStrength switch
+    private static (double Right, double Wrong) AloneShares(CheckStrength checkStrength) => checkStrength switch
     {
-        "weak" => (Laplace(5, 52), Laplace(5, 5)),
+        CheckStrength.Weak => (Laplace(5, 52), Laplace(5, 5)),
         _ => (Laplace(0, 0), Laplace(0, 0)),
     };
 

@@ -11,9 +11,13 @@ namespace TapeVault.Core.Merge;
 /// </summary>
 public sealed record WeakReading
 {
-    public WeakReading(string checkStrength, ImmutableArray<byte> header, ImmutableArray<byte> payload, bool byOneSettingOnly, bool atProvenPlace)
+    public WeakReading(CheckStrength checkStrength, ImmutableArray<byte> header, ImmutableArray<byte> payload, bool byOneSettingOnly, bool atProvenPlace)
     {
-        ArgumentException.ThrowIfNullOrWhiteSpace(checkStrength);
+        if (!Enum.IsDefined(checkStrength))
+        {
+            throw new ArgumentOutOfRangeException(nameof(checkStrength), checkStrength, "A check is weak, strong or absent.");
+        }
+
         CheckStrength = checkStrength;
         Header = header.IsDefault ? throw new ArgumentException("A reading has a header, if empty.", nameof(header)) : header;
         Payload = payload.IsDefault ? throw new ArgumentException("A reading has a payload, if empty.", nameof(payload)) : payload;
@@ -21,7 +25,7 @@ public sealed record WeakReading
         AtProvenPlace = atProvenPlace;
     }
 
-    public string CheckStrength { get; }
+    public CheckStrength CheckStrength { get; }
 
     public ImmutableArray<byte> Header { get; }
 
@@ -30,4 +34,17 @@ public sealed record WeakReading
     public bool ByOneSettingOnly { get; }
 
     public bool AtProvenPlace { get; }
+}
+
+/// <summary>How far a holding block check proves a block, by its false-match odds (<see cref="Blocks.BlockScorer.WeakCheckFalseMatch"/>).</summary>
+public enum CheckStrength
+{
+    /// <summary>The format has no block check.</summary>
+    None,
+
+    /// <summary>An additive sum or an xor: a holding check proves a block only beside decisions that vouch for it.</summary>
+    Weak,
+
+    /// <summary>A CRC, whose readings are weak only across a framing error.</summary>
+    Strong,
 }
