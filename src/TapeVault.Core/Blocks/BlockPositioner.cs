@@ -610,6 +610,7 @@ public static partial class BlockPositioner
             support[key] = settings.Count;
         }
 
+        double? oneCopyBound = null;
         for (int u = 0; u < units.Count;)
         {
             if (units[u].Kind != Lone)
@@ -733,7 +734,26 @@ public static partial class BlockPositioner
                 }
             }
 
-            return SyncSpansAlike(Span(last), Span(first) + Span(rest));
+            return Span(first) <= OneCopyBound() && Span(rest) <= OneCopyBound() && SyncSpansAlike(Span(last), Span(first) + Span(rest));
+        }
+
+        // The longest span from a sync to the next that is taken for one copy's: half again the median of all such
+        // spans read (most are one copy's). A span over several unread copies may add up with another by chance.
+        double OneCopyBound()
+        {
+            if (oneCopyBound is null)
+            {
+                var spans = new double[Math.Max(0, units.Count - 1)];
+                for (int a = 0; a < spans.Length; a++)
+                {
+                    spans[a] = Span(a);
+                }
+
+                Array.Sort(spans);
+                oneCopyBound = spans.Length == 0 ? 0 : 1.5 * spans[spans.Length / 2];
+            }
+
+            return oneCopyBound.Value;
         }
 
         double Span(int a) => syncStart[units[a + 1].Sync] - syncStart[units[a].Sync];
