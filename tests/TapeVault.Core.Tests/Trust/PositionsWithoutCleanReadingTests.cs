@@ -82,7 +82,7 @@ public sealed class PositionsWithoutCleanReadingTests
     public void Copies_before_a_block_whose_first_copy_nobody_read_are_one_position()
     {
         // Six blocks, each written twice, every header garbled its own way by two settings, and block 3's first copy
-        // read by neither (a dropout in its lead-in); a seventh block read clean ends the run. Block 2's second copy
+        // read by neither; a seventh block read clean ends the run. Block 2's second copy
         // then spans to block 3's second copy's sync, twice its first copy's span. Seen on the Orrin format at random
         // damage: block 2's copies stood in two positions, and from there on each block's second copy was paired with
         // the next block's first.
