@@ -117,6 +117,30 @@ public sealed class PositionsWithoutCleanReadingTests
     }
 
     [Fact]
+    public void Spans_over_several_unread_copies_that_add_up_by_chance_do_not_make_two_blocks_one()
+    {
+        // Blocks 0 and 1 read only at their first and second copies, then nothing until block 3's second copy: the span
+        // from block 0's copy (1.5 s, over two unread copies) and that of block 3's (0.5 s) add up to block 1's (2 s,
+        // over three), as a last copy's span and the next block's do where one copy between them was not read. Seen on
+        // the three-class-pairs format at random damage: two blocks in one position.
+        var readings = new List<BlockCandidate>();
+        foreach (var (block, copy) in new[] { (0, 0), (1, 1), (3, 1), (4, 0), (4, 1), (5, 0), (5, 1), (6, 0), (6, 1) })
+        {
+            readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
+            readings.Add(Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)));
+        }
+
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 7), Sync(7, 0), 0, "s1"));
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 7), Sync(7, 1), 0, "s1"));
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        var first = placed.Where(c => c.StartSeconds < Sync(1, 0)).Select(c => c.Position).Distinct().ToList();
+        var second = placed.Where(c => c.StartSeconds >= Sync(1, 0) && c.StartSeconds < Sync(2, 0)).Select(c => c.Position).Distinct().ToList();
+        Assert.Empty(first.Intersect(second));
+    }
+
+    [Fact]
     public void Readings_cut_short_at_a_sync_join_the_block_read_there_even_when_their_ordinals_agree()
     {
         // Two blocks, each written twice. One setting misreads both copies of each block alike (a header that two
