@@ -610,6 +610,7 @@ public static partial class BlockPositioner
             support[key] = settings.Count;
         }
 
+        double? oneCopyBound = null;
         for (int u = 0; u < units.Count;)
         {
             if (units[u].Kind != Lone)
@@ -650,6 +651,9 @@ public static partial class BlockPositioner
             // first place, k places whose spans are alike are one block's copies; a place whose span is not that of the
             // places after it stands alone. Where the place before has that span too and is not known to end a block
             // (consecutive blocks of one length), the place may as well be its block's last copy: it stands alone.
+            // Where the next block's first copy was not read, the last copy's span runs on over it to that block's
+            // second copy: it is the copies' span and the next block's together, and the places after that block's
+            // first copy are its other copies.
             for (int first = u, groupEnd = u; first + copies <= end;)
             {
                 bool startsBlock = first == groupEnd || units[first - 1].Kind == Whole || !Alike(first - 1, first);
@@ -657,6 +661,18 @@ public static partial class BlockPositioner
                 {
                     JoinCopies(first);
                     first += copies;
+                    groupEnd = first;
+                }
+                else if (startsBlock && NextFirstCopyUnread(first, end) && !AnyNamesTwoBlocks(keyed, readingsOf, units, first, first + copies, copies, support))
+                {
+                    JoinCopies(first);
+                    int rest = first + copies;
+                    for (int other = rest + 1; other < rest + copies - 1; other++)
+                    {
+                        join(root(units[rest].Root), root(units[other].Root));
+                    }
+
+                    first = rest + copies - 1;
                     groupEnd = first;
                 }
                 else
@@ -690,9 +706,60 @@ public static partial class BlockPositioner
             return true;
         }
 
+        // Whether units first..first+k-1 are one block's copies and the next block's first copy was not read: the
+        // copies but the last span alike, the last one's span is the first's and the next unit's together (the next
+        // block's copy read after the unread one, whose span is that block's), and the next block's other k-1 copies
+        // lie in the run, with spans alike but the last.
+        bool NextFirstCopyUnread(int first, int end)
+        {
+            int last = first + copies - 1, rest = first + copies, restLast = rest + copies - 2;
+            if (restLast >= end || restLast + 1 >= units.Count)
+            {
+                return false;
+            }
+
+            for (int u = first + 1; u < last; u++)
+            {
+                if (!Alike(first, u))
+                {
+                    return false;
+                }
+            }
+
+            for (int u = rest + 1; u < restLast; u++)
+            {
+                if (!Alike(rest, u))
+                {
+                    return false;
+                }
+            }
+
+            return Span(first) <= OneCopyBound() && Span(rest) <= OneCopyBound() && SyncSpansAlike(Span(last), Span(first) + Span(rest));
+        }
+
+        // The longest span from a sync to the next that is taken for one copy's: half again the median of all such
+        // spans read (most are one copy's). A span over several unread copies may add up with another by chance.
+        double OneCopyBound()
+        {
+            if (oneCopyBound is null)
+            {
+                var spans = new double[Math.Max(0, units.Count - 1)];
+                for (int a = 0; a < spans.Length; a++)
+                {
+                    spans[a] = Span(a);
+                }
+
+                Array.Sort(spans);
+                oneCopyBound = spans.Length == 0 ? 0 : 1.5 * spans[spans.Length / 2];
+            }
+
+            return oneCopyBound.Value;
+        }
+
+        double Span(int a) => syncStart[units[a + 1].Sync] - syncStart[units[a].Sync];
+
         // Whether the spans from the syncs of units a and b to the next unit's sync are alike.
-        bool Alike(int a, int b) =>
-            SyncSpansAlike(syncStart[units[a + 1].Sync] - syncStart[units[a].Sync], syncStart[units[b + 1].Sync] - syncStart[units[b].Sync]);
+        bool Alike(int a, int b) => SyncSpansAlike(Span(a), Span(b));
     }
 
     /// <summary>

@@ -79,6 +79,68 @@ public sealed class PositionsWithoutCleanReadingTests
     }
 
     [Fact]
+    public void Copies_before_a_block_whose_first_copy_nobody_read_are_one_position()
+    {
+        // Six blocks, each written twice, every header garbled its own way by two settings, and block 3's first copy
+        // read by neither; a seventh block read clean ends the run. Block 2's second copy
+        // then spans to block 3's second copy's sync, twice its first copy's span. Seen on the Orrin format at random
+        // damage: block 2's copies stood in two positions, and from there on each block's second copy was paired with
+        // the next block's first.
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < 6; block++)
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                if (block == 3 && copy == 0)
+                {
+                    continue;
+                }
+
+                readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
+                readings.Add(Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)));
+            }
+        }
+
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 6), Sync(6, 0), 0, "s1"));
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 6), Sync(6, 1), 0, "s1"));
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        Assert.Equal(7, placed.Select(c => c.Position).Distinct().Count());
+        for (int block = 0; block < 7; block++)
+        {
+            // Every reading of one block's copies shares a position, and no other block's reading is there.
+            var there = placed.Where(c => c.StartSeconds >= Sync(block, 0) && c.StartSeconds < Sync(block + 1, 0)).Select(c => c.Position).Distinct().ToList();
+            Assert.True(there.Count == 1, $"block {block}'s copies are at positions {string.Join(", ", there)}");
+            Assert.All(placed.Where(c => c.Position == there[0]), c => Assert.InRange(c.StartSeconds, Sync(block, 0), Sync(block + 1, 0)));
+        }
+    }
+
+    [Fact]
+    public void Spans_over_several_unread_copies_that_add_up_by_chance_do_not_make_two_blocks_one()
+    {
+        // Blocks 0 and 1 read only at their first and second copies, then nothing until block 3's second copy: the span
+        // from block 0's copy (1.5 s, over two unread copies) and that of block 3's (0.5 s) add up to block 1's (2 s,
+        // over three), as a last copy's span and the next block's do where one copy between them was not read. Seen on
+        // the three-class-pairs format at random damage: two blocks in one position.
+        var readings = new List<BlockCandidate>();
+        foreach (var (block, copy) in new[] { (0, 0), (1, 1), (3, 1), (4, 0), (4, 1), (5, 0), (5, 1), (6, 0), (6, 1) })
+        {
+            readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
+            readings.Add(Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)));
+        }
+
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 7), Sync(7, 0), 0, "s1"));
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 7), Sync(7, 1), 0, "s1"));
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        var first = placed.Where(c => c.StartSeconds < Sync(1, 0)).Select(c => c.Position).Distinct().ToList();
+        var second = placed.Where(c => c.StartSeconds >= Sync(1, 0) && c.StartSeconds < Sync(2, 0)).Select(c => c.Position).Distinct().ToList();
+        Assert.Empty(first.Intersect(second));
+    }
+
+    [Fact]
     public void Readings_cut_short_at_a_sync_join_the_block_read_there_even_when_their_ordinals_agree()
     {
         // Two blocks, each written twice. One setting misreads both copies of each block alike (a header that two
