@@ -81,6 +81,37 @@ public sealed class StreamMergeTests
     }
 
     [Fact]
+    public void Stream_APieceOneCaptureAloneReadBesideHolesThatIsOneReadingWhole_ClaimsAtLeastWhatThatReadingClaims()
+    {
+        var text = Text();
+
+        // Damage on the tape that both captures met: characters 40 to 59 are lost in both, but capture 0 read characters
+        // 44 to 55 between two dropouts, with two of its settings alike, each a reading of its own that the block stage
+        // judged right as a whole at 0.95 and 0.9. Capture 1 read nothing there.
+        const double Judged = 0.95;
+        var pass0 = Readings.Pass(
+            0,
+            Readings.Stream(text, 0, 40, 1.0, Character),
+            Readings.Stream(text, 44, 56, 1.0, Character, position: 1) with { Confidence = Judged },
+            Readings.Stream(text, 44, 56, 1.0, Character, "s1", position: 1) with { Confidence = 0.9 },
+            Readings.Stream(text, 60, 120, 1.0, Character, position: 2));
+        var pass1 = Readings.Pass(1, Readings.Stream(text, 0, 40, 1.3, Character), Readings.Stream(text, 60, 120, 1.3, Character, position: 1));
+
+        var image = TapeMerger.Merge([pass0, pass1], Kcs);
+
+        // Each piece as written (the bytes the readings were built from, in the Kansas City Standard's framing, BYTE,
+        // February 1976).
+        var read = image.Blocks.Where(b => b.Status != RecoveryStatus.Missing).ToList();
+        Assert.Equal([Hex(text[..40]), Hex(text[44..56]), Hex(text[60..])], read.Select(b => Hex(b.Payload)));
+
+        // The piece is each reading, character for character: if the surer reading is right as a whole, so is the piece,
+        // so it is at least as likely right as that reading. Before, the doubts at its two ends beside the holes were
+        // counted again on top of the reading's own judgement of where it began and ended, and the piece claimed at most
+        // ((1 − GapEndError)(1 − SharedGapEndError))² of its characters' vote at 1200 baud, about 0.69.
+        Assert.InRange(read[1].Confidence, Judged, 1);
+    }
+
+    [Fact]
     public void Stream_APieceOfThreeCharactersOneShortReadingFramedInsideAHoleEveryCaptureHas_ClaimsLittle()
     {
         var text = Text();
