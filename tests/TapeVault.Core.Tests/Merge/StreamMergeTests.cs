@@ -112,6 +112,34 @@ public sealed class StreamMergeTests
     }
 
     [Fact]
+    public void Stream_APieceOneSettingAloneReadBesideHolesThatIsOneReadingWhole_KeepsTheDoubtOfItsEnds()
+    {
+        var text = Text();
+
+        // As above, but one setting of capture 0 alone read characters 44 to 55, a reading judged 0.95: a frame one bit off
+        // on a run of one repeated character passes every check of a frame, and the capture's other settings would not
+        // have read it so.
+        const double Judged = 0.95;
+        var pass0 = Readings.Pass(
+            0,
+            Readings.Stream(text, 0, 40, 1.0, Character),
+            Readings.Stream(text, 44, 56, 1.0, Character, position: 1) with { Confidence = Judged },
+            Readings.Stream(text, 60, 120, 1.0, Character, position: 2));
+        var pass1 = Readings.Pass(1, Readings.Stream(text, 0, 40, 1.3, Character), Readings.Stream(text, 60, 120, 1.3, Character, position: 1));
+
+        var image = TapeMerger.Merge([pass0, pass1], Kcs);
+
+        // The bytes as written (KCS framing as above).
+        var read = image.Blocks.Where(b => b.Status != RecoveryStatus.Missing).ToList();
+        Assert.Equal(Hex(text[44..56]), Hex(read[1].Payload));
+
+        // The reading's confidence is no floor here: the doubts at the piece's two ends beside the holes still count, at
+        // most ((1 − GapEndError)(1 − SharedGapEndError))² of what the reading claims at 1200 baud. With the bound for any
+        // piece one capture alone read, it claimed the reading's 0.95.
+        Assert.InRange(read[1].Confidence, 0, Judged * Math.Pow((1 - StreamMerge.GapEndError) * (1 - StreamMerge.SharedGapEndError), 2));
+    }
+
+    [Fact]
     public void Stream_APieceOfThreeCharactersOneShortReadingFramedInsideAHoleEveryCaptureHas_ClaimsLittle()
     {
         var text = Text();
