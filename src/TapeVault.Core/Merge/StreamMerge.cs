@@ -22,7 +22,9 @@ namespace TapeVault.Core.Merge;
 /// Elsewhere, independent captures that read a character alike are all wrong
 /// alike only if each is, and then only by the chance that their wrong values agree: agreement raises the confidence,
 /// never lowers it, and a segment claims what its ends allow, and beside bytes no capture kept no more than pieces of
-/// its length, or the reading that carried it, were right, however many captures read it alike (<see cref="PieceGenuine"/>).
+/// its length, or the reading that carried it, were right, however many captures read it alike (<see cref="PieceGenuine"/>);
+/// and a piece beside such bytes that one capture alone read, with two settings or more alike, and that is one of its
+/// readings whole is at least as likely right as that reading (<see cref="LoneWholeReading"/>).
 /// </para>
 /// </summary>
 internal sealed class StreamMerge
@@ -149,6 +151,58 @@ internal sealed class StreamMerge
         }
 
         return Math.Max(LonePieceGenuine(slots.Count), carried);
+    }
+
+    /// <summary>
+    /// The confidence of the surest reading of four characters or more that is the piece, character for character (every
+    /// character it read is one of the piece's, where the merge kept it, and it read every character of the piece), where
+    /// one capture alone read the piece's slots and two of its settings or more read each of them alike, with no other
+    /// character there; 0 otherwise. If that reading is right as a whole, so is the piece, so the piece is at least as
+    /// likely right. Its confidence is the block stage's calibrated judgement of all its characters and of where it began
+    /// and ended (<see cref="Bytes.CharacterEdge"/>), which the end doubts beside a hole (<see cref="GapEndError"/>,
+    /// <see cref="SharedGapEndError"/>) count again. Not where several captures read the piece: that they broke off at the
+    /// same place is the tape's damage, which may frame the same false character in each at the hole's edge, a doubt that
+    /// no one reading's confidence holds (<see cref="SharedGapEndError"/>). Not where one setting alone read a slot: a
+    /// frame one bit off on a run of one repeated character passes every check of a frame (0x00 read as 0x80 in the
+    /// stop bit's place) while the capture's other settings read the run where it was.
+    /// </summary>
+    private double LoneWholeReading(List<Slot> slots)
+    {
+        int pass = -1;
+        var counts = new Dictionary<int, int>();
+        foreach (var slot in slots)
+        {
+            if (slot.Bytes.Count < 2 || !slot.Unanimous)
+            {
+                return 0;
+            }
+
+            foreach (var b in slot.Bytes)
+            {
+                if (pass >= 0 && b.Pass != pass)
+                {
+                    return 0;
+                }
+
+                pass = b.Pass;
+                if (b.Value == slot.Value)
+                {
+                    counts[b.Candidate] = counts.GetValueOrDefault(b.Candidate) + 1;
+                }
+            }
+        }
+
+        double whole = 0;
+        foreach (var (candidate, count) in counts)
+        {
+            var reading = _passes[pass].Candidates[candidate];
+            if (count == slots.Count && reading.Payload.Length == count && count >= 4)
+            {
+                whole = Math.Max(whole, reading.Confidence);
+            }
+        }
+
+        return whole;
     }
 
     private readonly IReadOnlyList<MergePass> _passes;
@@ -652,6 +706,7 @@ internal sealed class StreamMerge
         // A piece beside bytes no capture kept may be a false frame's invention as a whole, whether one capture carried
         // it or several: the damage that made the hole is on the tape, and captures frame the same false characters in it.
         double genuine = afterGap || beforeGap ? PieceGenuine(slots) : 1;
+        double whole = afterGap || beforeGap ? LoneWholeReading(slots) : 0;
 
         // Provenance: per capture, the reading that gave most of the winning bytes; the capture that gave most first.
         var winning = slots.SelectMany(s => s.Bytes.Where(b => b.Value == s.Value)).ToList();
@@ -676,7 +731,7 @@ internal sealed class StreamMerge
             // same characters on the same false start bit): a stream is voted, never clean; its confidence and
             // agreeing captures say how far to trust it.
             Status = RecoveryStatus.Voted,
-            Confidence = Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1) * genuine,
+            Confidence = Math.Max(Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1) * genuine, whole),
             Header = [],
             Payload = payload,
             Sources = sources,

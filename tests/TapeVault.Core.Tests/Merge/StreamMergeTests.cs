@@ -80,6 +80,63 @@ public sealed class StreamMergeTests
         Assert.InRange(read[2].Confidence, Math.Pow((1 - StreamMerge.GapEndError) * (1 - StreamMerge.SharedGapEndError), 2) * 0.97, 1);
     }
 
+    /// <summary>
+    /// Damage on the tape that both captures met: characters 40 to 59 are lost in both, but capture 0 read characters 44
+    /// to 55 between two dropouts, with each setting given (a reading of its own that the block stage judged right as a
+    /// whole at the confidence given). Capture 1 read nothing there. The segments the merge kept.
+    /// </summary>
+    private static List<ImageBlock> PieceBetweenHoles(byte[] text, params (string Setting, double Judged)[] readings)
+    {
+        var pass0 = Readings.Pass(
+            0,
+            [
+                Readings.Stream(text, 0, 40, 1.0, Character),
+                .. readings.Select(r => Readings.Stream(text, 44, 56, 1.0, Character, r.Setting, position: 1) with { Confidence = r.Judged }),
+                Readings.Stream(text, 60, 120, 1.0, Character, position: 2),
+            ]);
+        var pass1 = Readings.Pass(1, Readings.Stream(text, 0, 40, 1.3, Character), Readings.Stream(text, 60, 120, 1.3, Character, position: 1));
+        return TapeMerger.Merge([pass0, pass1], Kcs).Blocks.Where(b => b.Status != RecoveryStatus.Missing).ToList();
+    }
+
+    [Fact]
+    public void Stream_APieceOneCaptureAloneReadBesideHolesThatIsOneReadingWhole_ClaimsAtLeastWhatThatReadingClaims()
+    {
+        var text = Text();
+
+        // Two settings of capture 0 read the piece alike, judged 0.95 and 0.9.
+        const double Judged = 0.95;
+        var read = PieceBetweenHoles(text, ("s0", Judged), ("s1", 0.9));
+
+        // Each piece as written (the bytes the readings were built from, in the Kansas City Standard's framing, BYTE,
+        // February 1976).
+        Assert.Equal([Hex(text[..40]), Hex(text[44..56]), Hex(text[60..])], read.Select(b => Hex(b.Payload)));
+
+        // The piece is each reading, character for character: if the surer reading is right as a whole, so is the piece,
+        // so it is at least as likely right as that reading. Before, the doubts at its two ends beside the holes were
+        // counted again on top of the reading's own judgement of where it began and ended, and the piece claimed at most
+        // ((1 − GapEndError)(1 − SharedGapEndError))² of its characters' vote at 1200 baud, about 0.69.
+        Assert.InRange(read[1].Confidence, Judged, 1);
+    }
+
+    [Fact]
+    public void Stream_APieceOneSettingAloneReadBesideHolesThatIsOneReadingWhole_KeepsTheDoubtOfItsEnds()
+    {
+        var text = Text();
+
+        // One setting of capture 0 alone read the piece, judged 0.95: a frame one bit off on a run of one repeated
+        // character passes every check of a frame, and the capture's other settings would not have read it so.
+        const double Judged = 0.95;
+        var read = PieceBetweenHoles(text, ("s0", Judged));
+
+        // The bytes as written (KCS framing as above).
+        Assert.Equal(Hex(text[44..56]), Hex(read[1].Payload));
+
+        // The reading's confidence is no floor here: the doubts at the piece's two ends beside the holes still count, at
+        // most ((1 − GapEndError)(1 − SharedGapEndError))² of what the reading claims at 1200 baud. With the bound for any
+        // piece one capture alone read, it claimed the reading's 0.95.
+        Assert.InRange(read[1].Confidence, 0, Judged * Math.Pow((1 - StreamMerge.GapEndError) * (1 - StreamMerge.SharedGapEndError), 2));
+    }
+
     [Fact]
     public void Stream_APieceOfThreeCharactersOneShortReadingFramedInsideAHoleEveryCaptureHas_ClaimsLittle()
     {
