@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using System.Text.Json.Nodes;
 using TapeVault.Core.Edges;
 using TapeVault.Core.Formats;
@@ -24,16 +25,63 @@ public sealed class BiphaseDrafter : IFamilyDrafter
     public FamilyScore Score(StretchSurvey survey)
     {
         ArgumentNullException.ThrowIfNull(survey);
+        survey = Evened(survey);
         if (Pair(survey) is not var (half, whole))
         {
             return new FamilyScore(Family, 0, "no two main groups of intervals one twice the other");
         }
 
-        var h = survey.Runs[half];
-        var w = survey.Runs[whole];
-        bool fits = h.Granularity == 2 && h.OddShare < 0.25 && w.OddShare >= 0.35 && BlockRunMean(survey, whole) < 3;
+        // Runs counted through the draft's own halves and wholes (not the survey's groups, where an interval left
+        // in a small group of its own breaks a run of halves in two odd ones), and by their oddness alone: halves
+        // come in pairs, in runs of 2, 4, 6..., whose commonest length a count that weighs neighbouring lengths
+        // together takes for 3.
+        var kind = Kinds(survey, half, whole);
+        var (halfOdd, wholeOdd) = (OddShare(kind, 0), OddShare(kind, 1));
+        bool fits = halfOdd < 0.25 && wholeOdd >= 0.35 && BlockRunMean(survey, whole) < 3;
         double score = fits ? 0.9 * survey.GroupedShare : 0.1;
-        return new FamilyScore(Family, score, $"halves at {Us(survey.Clusters[half].Seconds)} µs come in runs of {h.Granularity} most often; wholes at {Us(survey.Clusters[whole].Seconds)} µs come alone most often, in odd runs in {F(100 * w.OddShare, "0")} % of runs");
+        return new FamilyScore(Family, score, $"halves at {Us(survey.Clusters[half].Seconds)} µs come in odd runs in {F(100 * halfOdd, "0")} % of runs; wholes at {Us(survey.Clusters[whole].Seconds)} µs in {F(100 * wholeOdd, "0")} %");
+    }
+
+    /// <summary>Each interval as the read path's classifier takes it: a half (0), a whole (1), or neither (−1), with its acceptance limits.</summary>
+    private static int[] Kinds(StretchSurvey survey, int half, int whole)
+    {
+        var classifier = new PulseClassifier([Cell(survey, half, whole) / 2, Cell(survey, half, whole)], outerRatio: 1.45);
+        var intervals = survey.Intervals;
+        var kind = new int[intervals.Length];
+        for (int i = 0; i < kind.Length; i++)
+        {
+            kind[i] = classifier.ClassOf(intervals[i], 1);
+        }
+
+        return kind;
+    }
+
+    /// <summary>The cell: the geometric mean of two halves and a whole.</summary>
+    private static double Cell(StretchSurvey survey, int half, int whole) => Math.Sqrt(2 * survey.Clusters[half].Seconds * survey.Clusters[whole].Seconds);
+
+    /// <summary>The share of odd runs of a kind among its runs between two classified intervals of the other kind, lead-ins left out.</summary>
+    private static double OddShare(int[] kind, int of)
+    {
+        int runs = 0;
+        int odd = 0;
+        for (int i = 0; i < kind.Length;)
+        {
+            int j = i;
+            while (j < kind.Length && kind[j] == kind[i])
+            {
+                j++;
+            }
+
+            if (kind[i] == of && i > 0 && j < kind.Length && kind[i - 1] == 1 - of && kind[j] == 1 - of && j - i < LeastLeadInHalves / 2)
+            {
+                runs++;
+                odd += (j - i) % 2;
+            }
+
+            i = j;
+        }
+
+        return runs == 0 ? 0 : (double)odd / runs;
     }
 
     /// <summary>
@@ -60,21 +108,14 @@ public sealed class BiphaseDrafter : IFamilyDrafter
     public FamilyProposal? Draft(StretchSurvey survey, CancellationToken cancellation)
     {
         ArgumentNullException.ThrowIfNull(survey);
+        survey = Evened(survey);
         if (Pair(survey) is not var (halfGroup, wholeGroup))
         {
             return null;
         }
 
-        double cell = Math.Sqrt(2 * survey.Clusters[halfGroup].Seconds * survey.Clusters[wholeGroup].Seconds);
-
-        // The read path's classifier for halves (0) and wholes (1), with its acceptance limits.
-        var classifier = new PulseClassifier([cell / 2, cell], outerRatio: 1.45);
-        var intervals = survey.Intervals;
-        var kind = new int[intervals.Length];
-        for (int i = 0; i < kind.Length; i++)
-        {
-            kind[i] = classifier.ClassOf(intervals[i], 1);
-        }
+        double cell = Cell(survey, halfGroup, wholeGroup);
+        var kind = Kinds(survey, halfGroup, wholeGroup);
 
         // A lead-in of equal bits is a long run of halves; a preamble of alternating bits a long run of wholes.
         var halfRuns = LongRuns(kind, 0, LeastLeadInHalves);
@@ -190,6 +231,76 @@ public sealed class BiphaseDrafter : IFamilyDrafter
         AbsorbedSync(proposal, reading, "biphase.syncBits");
         proposal.Notes.Add($"Read through detector setting {survey.Setting.Name}: {blocks.Count} blocks after {(alternating ? "alternating preambles" : "lead-ins of equal bits")}; {reading.Candidates} readings of sync and framing held.");
         return proposal;
+    }
+
+    /// <summary>The survey of each stretch's edges through their evened intervals, made once for its score and its draft.</summary>
+    private static readonly ConditionalWeakTable<StretchSurvey, StretchSurvey> EvenedSurveys = [];
+
+    /// <summary>The survey through <see cref="EvenIntervals"/>: halves and wholes each one group again where the edges lean.</summary>
+    internal static StretchSurvey Evened(StretchSurvey survey) =>
+        EvenedSurveys.GetValue(survey, s => s.WithIntervals(EvenIntervals(s.Edges, s.Intervals)));
+
+    /// <summary>Neighbouring pairs of intervals of one kind (lengths within this ratio) each side of an interval that measure its lean.</summary>
+    private const int LeanReach = 4;
+
+    /// <summary>Two intervals nearer than this ratio are taken as one kind (a half and a whole are 2 apart, a lean of a fifth of a half makes 1.5).</summary>
+    private const double SameKindRatio = 1.5;
+
+    /// <summary>
+    /// The intervals with the edges' lean taken out. An offset on the signal (mains hum, a read chain's wander, a
+    /// detector's threshold) moves every rising crossing one way and every falling one the other, so that an interval
+    /// from a rising edge to a falling one is shortened by as much as the next is lengthened: a lead-in of halves reads
+    /// as two lengths a quarter apart, which the survey groups apart, and the pair of groups one twice the other is
+    /// lost. The lean is measured where it is, from the neighbouring pairs of intervals of one kind (two halves or two
+    /// wholes, whose lengths differ by twice the lean): hum moves it within a block. The sum of two intervals in a row
+    /// keeps its length, so the lean taken out moves no cell.
+    /// </summary>
+    internal static double[] EvenIntervals(IReadOnlyList<Edge> edges, double[] intervals)
+    {
+        ArgumentNullException.ThrowIfNull(edges);
+        ArgumentNullException.ThrowIfNull(intervals);
+        int n = intervals.Length;
+
+        // The lean measured at each pair (i, i + 1) of one kind: how much later than its place a rising edge falls.
+        var lean = new double[n];
+        var measured = new bool[n];
+        for (int i = 0; i + 1 < n; i++)
+        {
+            double a = intervals[i];
+            double b = intervals[i + 1];
+            if (a > 0 && b > 0 && Math.Max(a, b) < SameKindRatio * Math.Min(a, b))
+            {
+                lean[i] = (edges[i].Rising ? 1 : -1) * (b - a) / 2;
+                measured[i] = true;
+            }
+        }
+
+        var result = new double[n];
+        Span<double> near = stackalloc double[(2 * LeanReach) + 1];
+        for (int i = 0; i < n; i++)
+        {
+            int count = 0;
+            for (int j = Math.Max(0, i - LeanReach); j <= Math.Min(n - 1, i + LeanReach); j++)
+            {
+                if (measured[j])
+                {
+                    near[count++] = lean[j];
+                }
+            }
+
+            double shift = 0;
+            if (count > 0)
+            {
+                var found = near[..count];
+                found.Sort();
+                shift = found[count / 2];
+            }
+
+            // An interval from a rising edge ends on a falling one: both moved shorten it by the lean.
+            result[i] = Math.Max(intervals[i] + ((edges[i].Rising ? 1 : -1) * shift), intervals[i] / 2);
+        }
+
+        return result;
     }
 
     /// <summary>How far, in cells, a mid-cell transition may stray from the walk's cell clock and still keep time.</summary>

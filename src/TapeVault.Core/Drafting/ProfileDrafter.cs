@@ -51,7 +51,10 @@ public static class ProfileDrafter
             // sees the family otherwise (other groups or runs), then the next family. A reading no check value
             // proves gives way to the next survey's too (a setting that loses some of a preamble's edges reads its
             // blocks with no check holding, where one that keeps them finds the check): the first proven reading
-            // is drafted, else the first reading.
+            // is drafted, else the reading through the survey the family fits best. The first survey groups its
+            // intervals best, but may still blur the family's runs (an interval group between the halves and the
+            // wholes breaks the halves' pairs), while the next survey shows them: taking the first reading there
+            // weighed the family by the blurred survey's fit, below a family that fits neither.
             FamilyProposal? proposal = null;
             FamilyScore score = scores[rank].Score;
             var seen = new HashSet<string>();
@@ -73,7 +76,7 @@ public static class ProfileDrafter
                     refusals.Add(e.Message);
                 }
 
-                if (reading is not null && (proposal is null || CheckMeasured(reading)))
+                if (reading is not null && (proposal is null || CheckMeasured(reading) || (!CheckMeasured(proposal) && fit.Score > score.Score)))
                 {
                     (proposal, score) = (reading, fit);
                 }

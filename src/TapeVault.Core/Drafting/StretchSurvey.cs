@@ -69,6 +69,19 @@ public sealed class StretchSurvey
         return [.. surveys.Select((s, i) => (Survey: s, Index: i)).OrderByDescending(x => x.Survey.Clusters.Count >= 2).ThenByDescending(x => x.Survey.GroupedShare).ThenBy(x => x.Index).Select(x => x.Survey)];
     }
 
+    /// <summary>The same edges surveyed through other intervals (one for each of <see cref="Edges"/>' gaps, evened out, say): their groups and runs found anew.</summary>
+    internal StretchSurvey WithIntervals(double[] intervals)
+    {
+        ArgumentNullException.ThrowIfNull(intervals);
+        if (intervals.Length != Intervals.Length)
+        {
+            throw new ArgumentException($"{intervals.Length} intervals for {Intervals.Length} gaps between edges.", nameof(intervals));
+        }
+
+        var clusters = IntervalClusters.Find(intervals);
+        return new StretchSurvey(Stretch, Setting, Edges, intervals, clusters, IntervalClusters.Classify(intervals, clusters));
+    }
+
     /// <summary>The share of intervals that fall in a group.</summary>
     public double GroupedShare => Classes.Length == 0 ? 0 : (double)Classes.Count(c => c >= 0) / Classes.Length;
 
