@@ -382,6 +382,13 @@ public static partial class BlockPositioner
     private const double SyncSeconds = 0.03;
 
     /// <summary>
+    /// The longest span from a sync to the next that is taken for one copy's, over the median of all such spans of a
+    /// capture (most are one copy's): half again. Our choice, from one capture where two spans over several unread
+    /// copies added up by chance to a third.
+    /// </summary>
+    private const double MostOneCopySpan = 1.5;
+
+    /// <summary>
     /// Joins stretches that are one block on the tape, where identities could not say so (garbled headers, no clean
     /// reading to vouch for the place). A sync is a place where readings start: readings of different settings that
     /// start at one sync are one copy of one block, so stretches that share a sync are one position, as long as that
@@ -750,7 +757,7 @@ public static partial class BlockPositioner
                 }
 
                 Array.Sort(spans);
-                oneCopyBound = spans.Length == 0 ? 0 : 1.5 * spans[spans.Length / 2];
+                oneCopyBound = spans.Length == 0 ? 0 : MostOneCopySpan * spans[spans.Length / 2];
             }
 
             return oneCopyBound.Value;
