@@ -991,10 +991,12 @@ public static partial class BlockPositioner
                 // A header read at a sync of its own that resembles its neighbours' (the file's name, a block number
                 // near theirs) names a block that a failed reading from another sync ran over on a misread length:
                 // it keeps its identity. Where the format writes each block more than once, such a header is as
-                // likely the other copy of the block run over, and takes its identity.
+                // likely the other copy of the block run over as the next block's first copy: it keeps its place, and
+                // the syncs' timing tells whose copy it is (JoinPlacesOfOneBlock). A place that claims nothing is no
+                // copy of either, and goes with the reading that runs over it.
                 bool ownBlock = copies <= 1 && !claimsNothing
                     && places[p].Exists(i => NamesItself(keyed[i].Candidate) && ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: false));
-                key = ownBlock ? key : overlapped ?? key;
+                key = ownBlock || (copies > 1 && !claimsNothing) ? key : overlapped ?? key;
                 if (overlapped is null && BetweenVouchedBlocks(keyed, claimsNothing ? vouchedSync : vouched, starts, byEnd, places[p], atStartToo: claimsNothing) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: claimsNothing)))
                 {
                     foreach (int i in places[p])

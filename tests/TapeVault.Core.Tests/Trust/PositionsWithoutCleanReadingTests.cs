@@ -117,6 +117,47 @@ public sealed class PositionsWithoutCleanReadingTests
     }
 
     [Fact]
+    public void A_last_copy_read_on_over_the_next_blocks_first_copy_does_not_take_that_copy()
+    {
+        // Five blocks, each written twice, every header garbled its own way by two settings; a third setting misread both
+        // copies of block 1 alike (so its header is read at two places), the second on a misread length that runs on over the whole of block 2's first copy. A length nobody
+        // proved says nothing of where a block ends: the place it runs over may be the next block's first copy as well
+        // as its own block's other copy, and the syncs' timing tells which. Seen on the Orrin format at random damage:
+        // block 1's second copy and block 2's first stood in one position, block 1's first and block 2's second alone.
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < 5; block++)
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                if (block == 2 && copy == 0)
+                {
+                    // Block 2's first copy: one setting's reading, cut short after its garbled header.
+                    var cut = Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy));
+                    readings.Add(cut with { Truncated = true, Payload = [], StoredChecksum = null, EndSeconds = cut.StartSeconds + 0.1 });
+                    continue;
+                }
+
+                readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
+                readings.Add(Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)));
+            }
+        }
+
+        readings.Add(Garbled(1, 0, "s2", 0x70));
+        readings.Add(Garbled(1, 1, "s2", 0x70) with { EndSeconds = Garbled(2, 0, "s2", 0x70).EndSeconds });
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        Assert.Equal(5, placed.Select(c => c.Position).Distinct().Count());
+        for (int block = 0; block < 5; block++)
+        {
+            // Every reading of one block's copies shares a position, and no other block's reading is there.
+            var there = placed.Where(c => c.StartSeconds >= Sync(block, 0) && c.StartSeconds < Sync(block + 1, 0)).Select(c => c.Position).Distinct().ToList();
+            Assert.True(there.Count == 1, $"block {block}'s copies are at positions {string.Join(", ", there)}");
+            Assert.All(placed.Where(c => c.Position == there[0]), c => Assert.InRange(c.StartSeconds, Sync(block, 0), Sync(block + 1, 0)));
+        }
+    }
+
+    [Fact]
     public void Spans_over_several_unread_copies_that_add_up_by_chance_do_not_make_two_blocks_one()
     {
         // Blocks 0 and 1 read only at their first and second copies, then nothing until block 3's second copy: the span
