@@ -106,14 +106,7 @@ public sealed class PositionsWithoutCleanReadingTests
 
         var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
 
-        Assert.Equal(7, placed.Select(c => c.Position).Distinct().Count());
-        for (int block = 0; block < 7; block++)
-        {
-            // Every reading of one block's copies shares a position, and no other block's reading is there.
-            var there = placed.Where(c => c.StartSeconds >= Sync(block, 0) && c.StartSeconds < Sync(block + 1, 0)).Select(c => c.Position).Distinct().ToList();
-            Assert.True(there.Count == 1, $"block {block}'s copies are at positions {string.Join(", ", there)}");
-            Assert.All(placed.Where(c => c.Position == there[0]), c => Assert.InRange(c.StartSeconds, Sync(block, 0), Sync(block + 1, 0)));
-        }
+        AssertEachBlockOnePosition(placed, 7);
     }
 
     [Fact]
@@ -147,10 +140,15 @@ public sealed class PositionsWithoutCleanReadingTests
 
         var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
 
-        Assert.Equal(5, placed.Select(c => c.Position).Distinct().Count());
-        for (int block = 0; block < 5; block++)
+        AssertEachBlockOnePosition(placed, 5);
+    }
+
+    /// <summary>As many positions as blocks; every reading of one block's copies shares a position, and no other block's reading is there.</summary>
+    private static void AssertEachBlockOnePosition(IReadOnlyList<BlockCandidate> placed, int blocks)
+    {
+        Assert.Equal(blocks, placed.Select(c => c.Position).Distinct().Count());
+        for (int block = 0; block < blocks; block++)
         {
-            // Every reading of one block's copies shares a position, and no other block's reading is there.
             var there = placed.Where(c => c.StartSeconds >= Sync(block, 0) && c.StartSeconds < Sync(block + 1, 0)).Select(c => c.Position).Distinct().ToList();
             Assert.True(there.Count == 1, $"block {block}'s copies are at positions {string.Join(", ", there)}");
             Assert.All(placed.Where(c => c.Position == there[0]), c => Assert.InRange(c.StartSeconds, Sync(block, 0), Sync(block + 1, 0)));
