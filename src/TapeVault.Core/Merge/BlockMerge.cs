@@ -636,7 +636,7 @@ internal sealed class BlockMerge
         }
 
         var kept = ResolveClean(weak, RecoveryStatus.Voted);
-        var witnesses = weak.Where(r => r.Candidate.Header.SequenceEqual(kept.Header) && r.Candidate.Payload.SequenceEqual(kept.Payload)).ToList();
+        var witnesses = weak.Where(r => SameBytes(r.Candidate, kept.Header, kept.Payload)).ToList();
         double confidence = witnesses.Count == 1 && ReadByOneSettingOnly(witnesses[0], readings) ? AloneAmongSettings(kept.Confidence) : kept.Confidence;
         return kept with { Confidence = Unconfirmed(confidence, witnesses.Select(r => r.Pass), odds) };
     }
@@ -658,7 +658,7 @@ internal sealed class BlockMerge
                 continue;
             }
 
-            if (r.Candidate.Header.SequenceEqual(reading.Candidate.Header) && r.Candidate.Payload.SequenceEqual(reading.Candidate.Payload))
+            if (SameBytes(r.Candidate, reading.Candidate.Header, reading.Candidate.Payload))
             {
                 return false;
             }
@@ -712,6 +712,10 @@ internal sealed class BlockMerge
 
     /// <summary>A share of <paramref name="count"/> in <paramref name="of"/>, with one case of either added.</summary>
     private static double Laplace(int count, int of) => (count + 1.0) / (of + 2.0);
+
+    /// <summary>Whether <paramref name="reading"/> read these header and payload bytes.</summary>
+    private static bool SameBytes(BlockCandidate reading, ImmutableArray<byte> header, ImmutableArray<byte> payload) =>
+        reading.Header.AsSpan().SequenceEqual(header.AsSpan()) && reading.Payload.AsSpan().SequenceEqual(payload.AsSpan());
 
     /// <summary>A reading whose weak check holds and that nothing but a want of corroboration keeps from being clean.</summary>
     private static bool IsOnlyUncorroborated(BlockCandidate c) =>

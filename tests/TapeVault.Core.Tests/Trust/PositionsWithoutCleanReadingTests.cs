@@ -37,6 +37,13 @@ public sealed class PositionsWithoutCleanReadingTests
         return Readings.Of(Profile, written, Sync(block, copy) + 0.001, 0, setting, changedPayload: new Dictionary<int, byte> { [0] = (byte)(payloadByte ^ 0x21) });
     }
 
+    /// <summary>Copy <paramref name="copy"/> of block <paramref name="block"/> read by settings s0 and s1, each garbling every header its own way.</summary>
+    private static BlockCandidate[] GarbledByTwoSettings(int block, int copy) =>
+    [
+        Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)),
+        Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)),
+    ];
+
     /// <summary>A reading cut short after one byte of its header: no field of an identity, nothing of the payload.</summary>
     private static BlockCandidate CutInHeader(int block, int copy, string setting, int ordinal)
     {
@@ -62,8 +69,7 @@ public sealed class PositionsWithoutCleanReadingTests
         {
             for (int copy = 0; copy < 2; copy++)
             {
-                readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
-                readings.Add(Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)));
+                readings.AddRange(GarbledByTwoSettings(block, copy));
             }
         }
 
@@ -96,8 +102,7 @@ public sealed class PositionsWithoutCleanReadingTests
                     continue;
                 }
 
-                readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
-                readings.Add(Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)));
+                readings.AddRange(GarbledByTwoSettings(block, copy));
             }
         }
 
@@ -125,13 +130,12 @@ public sealed class PositionsWithoutCleanReadingTests
                 if (block == 2 && copy == 0)
                 {
                     // Block 2's first copy: one setting's reading, cut short after its garbled header.
-                    var cut = Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy));
+                    var cut = GarbledByTwoSettings(block, copy)[0];
                     readings.Add(cut with { Truncated = true, Payload = [], StoredChecksum = null, EndSeconds = cut.StartSeconds + 0.1 });
                     continue;
                 }
 
-                readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
-                readings.Add(Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)));
+                readings.AddRange(GarbledByTwoSettings(block, copy));
             }
         }
 
@@ -165,8 +169,7 @@ public sealed class PositionsWithoutCleanReadingTests
         var readings = new List<BlockCandidate>();
         foreach (var (block, copy) in new[] { (0, 0), (1, 1), (3, 1), (4, 0), (4, 1), (5, 0), (5, 1), (6, 0), (6, 1) })
         {
-            readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
-            readings.Add(Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)));
+            readings.AddRange(GarbledByTwoSettings(block, copy));
         }
 
         readings.Add(Readings.Of(Profile, Readings.Written(Profile, 7), Sync(7, 0), 0, "s1"));
@@ -230,7 +233,7 @@ public sealed class PositionsWithoutCleanReadingTests
         {
             for (int copy = 0; copy < 2; copy++)
             {
-                readings.Add(Garbled(block, copy, "s0", (byte)(0x90 + (block * 2) + copy)));
+                readings.Add(GarbledByTwoSettings(block, copy)[0]);
             }
         }
 
