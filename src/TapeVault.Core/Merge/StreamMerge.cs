@@ -437,7 +437,8 @@ internal sealed class StreamMerge
     /// each reading is fitted onto the others by its runs of four confident characters (<see cref="Anchors"/>), as a
     /// pass is (<see cref="PassTimeline.Fit"/>): the passes are taken reference first, and a reading is fitted to the
     /// readings of the passes placed before it where at least <see cref="MinimumReadingPairs"/> of its runs agree. A
-    /// reading with fewer keeps its pass's line.
+    /// reading with fewer lies where its capture's other settings' reading of the same time was placed
+    /// (<see cref="PlaceWithItsCapture"/>), or, with none placed, keeps its pass's line.
     /// </summary>
     private (double Scale, double Offset)[][] ReadingLines(double character)
     {
@@ -463,6 +464,7 @@ internal sealed class StreamMerge
         foreach (int p in order.Skip(1))
         {
             var candidates = _passes[p].Candidates;
+            var placedByOwn = new bool[candidates.Count];
             for (int ci = 0; ci < features[p].Length; ci++)
             {
                 var (scale, offset, inliers) = PassTimeline.Fit(placed, features[p][ci], character, 0, minimumSpread: 40 * character);
@@ -476,8 +478,11 @@ internal sealed class StreamMerge
                 if (inliers >= MinimumReadingPairs)
                 {
                     lines[p][ci] = (scale, offset);
+                    placedByOwn[ci] = true;
                 }
             }
+
+            PlaceWithItsCapture(candidates, lines[p], placedByOwn);
 
             for (int ci = 0; ci < features[p].Length; ci++)
             {
@@ -488,6 +493,48 @@ internal sealed class StreamMerge
         }
 
         return lines;
+    }
+
+    /// <summary>
+    /// Places each reading of one capture that could not be placed by its own characters (<paramref name="placedByOwn"/>
+    /// false) on the line of the reading of another of the capture's settings that overlaps it most in the capture's time
+    /// and was placed by its own; with none, it keeps its pass's line. The capture's settings heard one signal, so
+    /// readings of theirs at the same capture seconds lie at the same place on tape. The pass's line is one line over the
+    /// whole capture, and where the silence before a stretch of tone differed on this recording it is off there by that
+    /// difference (a second and more: a hundred characters at 1200 baud), while a reading too garbled to have runs of
+    /// its own (a setting that misread a damaged stretch, or framed a file of one repeated byte a bit late: every zero
+    /// read as 0x80) kept it. It then lay alone in the silence beside the file, where no other capture read, and its
+    /// characters became pieces of their own: its misread characters survived the vote there, and a reading framed late
+    /// was kept whole where, beside its capture's other settings, the readers of the written characters outvote it.
+    /// </summary>
+    private static void PlaceWithItsCapture(IReadOnlyList<BlockCandidate> candidates, (double Scale, double Offset)[] lines, bool[] placedByOwn)
+    {
+        for (int ci = 0; ci < candidates.Count; ci++)
+        {
+            var seconds = candidates[ci].ByteSeconds;
+            if (placedByOwn[ci] || seconds.Length == 0)
+            {
+                continue;
+            }
+
+            double most = double.NegativeInfinity;
+            for (int other = 0; other < candidates.Count; other++)
+            {
+                var its = candidates[other].ByteSeconds;
+                if (!placedByOwn[other] || its.Length == 0)
+                {
+                    continue;
+                }
+
+                // Overlap in the capture's seconds: 0 where a one-character reading lies inside the other, below 0 apart.
+                double overlap = Math.Min(seconds[^1], its[^1]) - Math.Max(seconds[0], its[0]);
+                if (overlap >= 0 && overlap > most)
+                {
+                    most = overlap;
+                    lines[ci] = lines[other];
+                }
+            }
+        }
     }
 
     /// <summary>

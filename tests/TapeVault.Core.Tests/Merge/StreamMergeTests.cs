@@ -224,6 +224,44 @@ public sealed class StreamMergeTests
     }
 
     [Fact]
+    public void Stream_ASettingThatFramedAFileOfOneByteABitLate_LiesWhereItsCaptureOtherSettingsReadIt_AndIsOutvotedThere()
+    {
+        // Two files: sixty characters of 0x00 (no run of four of them says where along the run a reading lies), then
+        // text. The second capture was recorded with a second more idle tone between the files than the first (about
+        // 109 characters at 1200 baud), so its pass's line, which only the text fits, is a second off on the run. Three
+        // of its settings read the run as written and are placed by its ends; the fourth framed it one bit late: the first stop
+        // bit in bit 7's place, every character 0x80 and every frame passing (common practice of an asynchronous frame,
+        // start bit, eight data bits least significant first, stop bits: a run of zero characters framed one bit late
+        // reads 0x80). Its ends are no ends of anything the others read, so before it kept its pass's line, a second
+        // away from the run, where it alone read a stretch of 0x80 that no file holds.
+        var zeros = new byte[60];
+        var late = Enumerable.Repeat((byte)0x80, zeros.Length).ToArray();
+        var text = Text();
+        const double Bit = Character / 11;
+        MergePass Capture(int capture, double start, double pause, bool lateSetting)
+        {
+            // Four settings each; the first capture is the one the others are placed on (no fewer runs than the second).
+            var readings = new List<TapeVault.Core.Blocks.BlockCandidate>();
+            foreach (string setting in new[] { "s0", "s1", "s2", "s3" })
+            {
+                readings.Add(lateSetting && setting == "s2"
+                    ? Readings.Stream(late, 0, late.Length, start + Bit, Character, setting)
+                    : Readings.Stream(zeros, 0, zeros.Length, start, Character, setting));
+                readings.Add(Readings.Stream(text, 0, text.Length, start + (zeros.Length * Character) + pause, Character, setting, position: 1));
+            }
+
+            return Readings.Pass(capture, [.. readings]);
+        }
+
+        var image = TapeMerger.Merge([Capture(0, 1.0, 1.0, lateSetting: false), Capture(1, 1.3, 2.0, lateSetting: true)], Kcs);
+
+        // Each file as written (the bytes the readings were built from), read by both captures: the late frame lies on
+        // the run beside its capture's other settings, where the run's readers outvote it.
+        Assert.Equal([Hex(zeros), Hex(text)], image.Blocks.Select(b => Hex(b.Payload)));
+        Assert.All(image.Blocks, b => Assert.Equal(2, b.AgreeingCaptures));
+    }
+
+    [Fact]
     public void Stream_ADropoutInEveryPass_LeavesAMissingGap_NeverClosedUp()
     {
         var text = Text();
