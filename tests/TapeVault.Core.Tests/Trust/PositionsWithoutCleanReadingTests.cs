@@ -147,6 +147,58 @@ public sealed class PositionsWithoutCleanReadingTests
         AssertEachBlockOnePosition(placed, 5);
     }
 
+    [Fact]
+    public void A_captures_last_block_read_only_garbled_is_one_position()
+    {
+        // Five blocks, each written twice, every header garbled its own way by two settings; block 1's second copy read
+        // by neither, so the places do not pair off from the capture's start and each block's copies are told by the
+        // spans between syncs. The last block's second copy has no sync after it to give its span. Seen on the
+        // three-class-pairs and Orrin formats at random damage: the capture's last block in two positions.
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < 5; block++)
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                if (block != 1 || copy != 1)
+                {
+                    readings.AddRange(GarbledByTwoSettings(block, copy));
+                }
+            }
+        }
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        AssertEachBlockOnePosition(placed, 5);
+    }
+
+    [Fact]
+    public void A_number_that_every_block_of_a_kind_carries_names_no_place()
+    {
+        // Four blocks, each written twice, read only garbled by two settings, whose headers give nothing but the number a
+        // format of several kinds gives every block of one kind (each kind numbered by its place in the file), alike at
+        // every copy; block 1's first copy read by neither; a fifth block read clean ends the run. Such a number is read
+        // at every place: it tells no block from the next. Seen on the three-class-pairs format at random damage: one
+        // block's second copy and the next block's first in one position, the copies of the blocks around alone.
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < 4; block++)
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                if (block != 1 || copy != 0)
+                {
+                    readings.AddRange(GarbledByTwoSettings(block, copy).Select(c => c with { Identity = new BlockIdentity(null, null, 1, c.Identity.Ordinal) }));
+                }
+            }
+        }
+
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 4), Sync(4, 0), 0, "s1"));
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 4), Sync(4, 1), 0, "s1"));
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        AssertEachBlockOnePosition(placed, 5);
+    }
+
     /// <summary>As many positions as blocks; every reading of one block's copies shares a position, and no other block's reading is there.</summary>
     private static void AssertEachBlockOnePosition(IReadOnlyList<BlockCandidate> placed, int blocks)
     {
