@@ -660,11 +660,19 @@ public static partial class BlockPositioner
             // (consecutive blocks of one length), the place may as well be its block's last copy: it stands alone.
             // Where the next block's first copy was not read, the last copy's span runs on over it to that block's
             // second copy: it is the copies' span and the next block's together, and the places after that block's
-            // first copy are its other copies.
+            // first copy are its other copies. The capture's last k places, where a block ended just before them, have
+            // no sync after the last to give its span: they are the last block's copies where the spans between them are
+            // alike and each is one copy's.
             for (int first = u, groupEnd = u; first + copies <= end;)
             {
                 bool startsBlock = first == groupEnd || units[first - 1].Kind == Whole || !Alike(first - 1, first);
                 if (first + copies < units.Count && startsBlock && SpansAlike(first) && !AnyNamesTwoBlocks(keyed, readingsOf, units, first, first + copies, copies, support))
+                {
+                    JoinCopies(first);
+                    first += copies;
+                    groupEnd = first;
+                }
+                else if (startsBlock && first == groupEnd && first + copies == end && end == units.Count && LastCopiesAlike(first) && !AnyNamesTwoBlocks(keyed, readingsOf, units, first, end, copies, support))
                 {
                     JoinCopies(first);
                     first += copies;
@@ -697,6 +705,20 @@ public static partial class BlockPositioner
             {
                 join(root(units[first].Root), root(units[other].Root));
             }
+        }
+
+        // The capture's last k places: the spans between them alike and each no longer than one copy's.
+        bool LastCopiesAlike(int first)
+        {
+            for (int u = first; u < first + copies - 1; u++)
+            {
+                if (Span(u) > OneCopyBound() || !Alike(first, u))
+                {
+                    return false;
+                }
+            }
+
+            return true;
         }
 
         // Whether the spans from the syncs of units first..first+k-1 to each next unit's sync are alike.
@@ -822,7 +844,8 @@ public static partial class BlockPositioner
     /// place is named by an identity only where that identity is read at no more syncs of the capture than the format
     /// writes copies, or another setting read it alike there: an identity read all along the capture (a kind's number
     /// with no file, one setting's garble of every header) names no one place, and would carry the place into the
-    /// position of another block.
+    /// position of another block. Where the format writes each block more than once, a block number with no file read at
+    /// more syncs than that names no place even where settings read it alike (<c>NumberOfEveryPlace</c>).
     /// </summary>
     /// <returns>
     /// Per reading, whether it is no block at all: a place that only failed readings of identities nobody else read
@@ -949,12 +972,20 @@ public static partial class BlockPositioner
             }
 
             var named = keyed[best].Candidate;
-            bool namesThisPlace = placesOfKey[named.Identity.Key] <= Math.Max(1, copies) || ReadAlikeAtPlace(best);
+            bool namesThisPlace = placesOfKey[named.Identity.Key] <= Math.Max(1, copies) || (ReadAlikeAtPlace(best) && !NumberOfEveryPlace(named));
             placeKey[p] = NamesItself(named) && namesThisPlace ? named.Identity.Key : $"place {p}";
             placeSupport[p] = NamesItself(named) ? Support(named) : places[p].Count;
         }
 
         int Support(BlockCandidate c) => NamesItself(c) ? support[c.Identity.Key] : 0;
+
+        // Whether a reading's identity is a block number alone (no file) that the capture reads at more syncs than the
+        // format writes copies, where it writes more than one: a format of several kinds numbers each block by its
+        // kind's place in the file, so every block of one kind carries that number, and settings that read the kind
+        // alike read it alike at every place. Read alike at a place, it still tells that block from none of its
+        // neighbours: it names no place, and the place keeps its own identity.
+        bool NumberOfEveryPlace(BlockCandidate c) =>
+            copies > 1 && c.Identity is { FileName: null, FileId: null, BlockNumber: not null } && placesOfKey[c.Identity.Key] > copies;
 
         // Whether another setting read reading i's header alike at its place: a setting misreads every block alike (an
         // inverted level, a slipped bit), so only another setting's reading there vouches for it.
@@ -1014,7 +1045,7 @@ public static partial class BlockPositioner
                 var c = keyed[i].Candidate;
                 string own = c.Identity.Key;
                 bool nothingRead = c.Truncated && c.Payload.IsEmpty;
-                keyed[i] = (c, ReadAlikeAtPlace(i) && !nothingRead ? own : key);
+                keyed[i] = (c, ReadAlikeAtPlace(i) && !nothingRead && !NumberOfEveryPlace(c) ? own : key);
             }
         }
 

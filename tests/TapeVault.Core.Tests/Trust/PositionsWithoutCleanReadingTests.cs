@@ -44,6 +44,24 @@ public sealed class PositionsWithoutCleanReadingTests
         Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)),
     ];
 
+    /// <summary>Blocks 0 to <paramref name="blocks"/> − 1, each copy read by two settings as <see cref="GarbledByTwoSettings"/>, but one copy that neither read.</summary>
+    private static List<BlockCandidate> GarbledButOneCopy(int blocks, int unreadBlock, int unreadCopy)
+    {
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < blocks; block++)
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                if (block != unreadBlock || copy != unreadCopy)
+                {
+                    readings.AddRange(GarbledByTwoSettings(block, copy));
+                }
+            }
+        }
+
+        return readings;
+    }
+
     /// <summary>A reading cut short after one byte of its header: no field of an identity, nothing of the payload.</summary>
     private static BlockCandidate CutInHeader(int block, int copy, string setting, int ordinal)
     {
@@ -92,20 +110,7 @@ public sealed class PositionsWithoutCleanReadingTests
         // then spans to block 3's second copy's sync, twice its first copy's span. Seen on the Orrin format at random
         // damage: block 2's copies stood in two positions, and from there on each block's second copy was paired with
         // the next block's first.
-        var readings = new List<BlockCandidate>();
-        for (int block = 0; block < 6; block++)
-        {
-            for (int copy = 0; copy < 2; copy++)
-            {
-                if (block == 3 && copy == 0)
-                {
-                    continue;
-                }
-
-                readings.AddRange(GarbledByTwoSettings(block, copy));
-            }
-        }
-
+        var readings = GarbledButOneCopy(6, 3, 0);
         readings.Add(Readings.Of(Profile, Readings.Written(Profile, 6), Sync(6, 0), 0, "s1"));
         readings.Add(Readings.Of(Profile, Readings.Written(Profile, 6), Sync(6, 1), 0, "s1"));
 
@@ -141,6 +146,37 @@ public sealed class PositionsWithoutCleanReadingTests
 
         readings.Add(Garbled(1, 0, "s2", 0x70));
         readings.Add(Garbled(1, 1, "s2", 0x70) with { EndSeconds = Garbled(2, 0, "s2", 0x70).EndSeconds });
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        AssertEachBlockOnePosition(placed, 5);
+    }
+
+    [Fact]
+    public void A_captures_last_block_read_only_garbled_is_one_position()
+    {
+        // Five blocks, each written twice, every header garbled its own way by two settings; block 1's second copy read
+        // by neither, so the places do not pair off from the capture's start and each block's copies are told by the
+        // spans between syncs. The last block's second copy has no sync after it to give its span. Seen on the
+        // three-class-pairs and Orrin formats at random damage: the capture's last block in two positions.
+        var readings = GarbledButOneCopy(5, 1, 1);
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        AssertEachBlockOnePosition(placed, 5);
+    }
+
+    [Fact]
+    public void A_number_that_every_block_of_a_kind_carries_names_no_place()
+    {
+        // Four blocks, each written twice, read only garbled by two settings, whose headers give nothing but the number a
+        // format of several kinds gives every block of one kind (each kind numbered by its place in the file), alike at
+        // every copy; block 1's first copy read by neither; a fifth block read clean ends the run. Such a number is read
+        // at every place: it tells no block from the next. Seen on the three-class-pairs format at random damage: one
+        // block's second copy and the next block's first in one position, the copies of the blocks around alone.
+        var readings = GarbledButOneCopy(4, 1, 0).ConvertAll(c => c with { Identity = new BlockIdentity(null, null, 1, c.Identity.Ordinal) });
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 4), Sync(4, 0), 0, "s1"));
+        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 4), Sync(4, 1), 0, "s1"));
 
         var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
 
