@@ -33,6 +33,9 @@ public sealed partial class BlockAssembler : IBlockSink
     private int _expectedTotal;
     private double _startSample;
     private BlockStartEvidence _evidence;
+
+    /// <summary>The block being ended ends because the signal was lost (<see cref="End"/>), not at an idle line.</summary>
+    private bool _signalLost;
     private double _levelSum;
     private int _levelCount;
     private double _speedSum;
@@ -227,8 +230,8 @@ public sealed partial class BlockAssembler : IBlockSink
         return false;
     }
 
-    /// <summary>The signal was lost: a stream block ends here; a fixed block ends short and fails.</summary>
-    public void End(double sample)
+    /// <summary>The block ends where its bytes stopped: a stream block ends here; a fixed block ends short and fails.</summary>
+    public void End(double sample, bool signalLost = false)
     {
         if (!InBlock)
         {
@@ -241,7 +244,9 @@ public sealed partial class BlockAssembler : IBlockSink
             return;
         }
 
+        _signalLost = signalLost;
         Emit(sample, truncated: !_layout.IsStream);
+        _signalLost = false;
     }
 
     /// <param name="atMarker">The block ended at the end marker its format writes.</param>
@@ -304,7 +309,7 @@ public sealed partial class BlockAssembler : IBlockSink
         var all = _bytes.ToArray();
         var evidence = _evidence;
         int framingErrors = _framingErrors;
-        var end = BlockEndEvidence.OwnBytes;
+        var end = _signalLost && _layout.IsStream ? BlockEndEvidence.SignalLost : BlockEndEvidence.OwnBytes;
         if (_kinds.Many && !truncated && _layout.LengthRule is not null)
         {
             long? given = _kinds.PayloadFromRule();

@@ -36,6 +36,12 @@ public enum BlockEndEvidence
     /// neither of them this block's bytes, that agree.
     /// </summary>
     MarkerAtGivenLength,
+
+    /// <summary>
+    /// Nothing: the signal was lost there (a dropout), and a stream's block ended with it. Its last character stands
+    /// before a break, not before an idle line (<see cref="Bytes.CharacterEdgeKind"/>).
+    /// </summary>
+    SignalLost,
 }
 
 /// <summary>Why a block is not clean, or what lowers the trust in it; several may hold at once.</summary>

@@ -60,8 +60,12 @@ public interface IBlockSink
     /// </summary>
     bool AddByte(byte value, int firstDecision, bool framingOk, double sample, float framingDoubt = 0);
 
-    /// <summary>The signal was lost at <paramref name="sample"/>: a stream block ends here; a fixed block ends short and fails.</summary>
-    void End(double sample);
+    /// <summary>
+    /// The block ends at <paramref name="sample"/> where its bytes stopped: a stream block ends here; a fixed block ends
+    /// short and fails. <paramref name="signalLost"/>: because the signal was lost (a dropout), not because the line went
+    /// idle or the capture ended.
+    /// </summary>
+    void End(double sample, bool signalLost = false);
 
     /// <summary>
     /// The format's end-of-block marker followed the bytes read so far; <paramref name="asWritten"/> is false where the

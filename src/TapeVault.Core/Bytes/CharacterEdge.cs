@@ -7,10 +7,10 @@ namespace TapeVault.Core.Bytes;
 /// as likely the mark of a transient (the fade of a dropout, the click where the tone stops or changes phase) on
 /// which a start bit was framed, and the character is then invented or framed off.
 /// <para>
-/// A transient lasts a fixed time on tape, about <see cref="TransientSeconds"/>, whatever the baud: the faster the
+/// A transient lasts a fixed time on tape, a few milliseconds, whatever the baud: the faster the
 /// characters, the more of a bit it fills, the deeper the dip it makes in a one-bit correlator window, and the more
 /// bits it can turn. The odds that an edge character is not the written one are therefore the transient's length in
-/// bits, baud · <see cref="TransientSeconds"/>, falling by e for every 1 / <see cref="DistanceScale"/> of the
+/// bits, baud · <see cref="EdgePrice.TransientSeconds"/>, falling by e for every 1 / <see cref="EdgePrice.DistanceScale"/> of the
 /// character's least decision distance (the soft decision D signed toward a start or stop bit's value, |D| for data
 /// bits; 1 = certain). Measured on the trust benchmark's kcs-300 and kcs-1200 readings of tuning seeds 1400–1547
 /// (our channel with random dropouts, SoX chains, minimodem's own FSK), last character of a reading by its least
@@ -18,7 +18,8 @@ namespace TapeVault.Core.Bytes;
 /// below 0.2 and none of 4 723 above. The same bins inside readings are wrong 10 %, 1.3 %, 0.2 %, 0.04 %: a decision
 /// model for inner characters cannot price an edge. How the reading ended matters too (at 1200 baud a weak last
 /// character before a file's end was wrong about half the time, before a dropout one time in twenty); this formula
-/// does not tell them apart yet, and is right on their mix (docs/performance.md).
+/// priced them alike (2.5 ms, e per 1/8.5) and was right only on their mix; each <see cref="CharacterEdgeKind"/> now has
+/// its own measured price (<see cref="EdgePrice.Of"/>).
 /// </para>
 /// <para>
 /// An edge character's frame is decided on less evidence than its decisions show: inside a stream characters follow
@@ -39,11 +40,25 @@ namespace TapeVault.Core.Bytes;
 /// </summary>
 public static class CharacterEdge
 {
-    /// <summary>The time a transient at a break in the signal fills (the 2 ms fade of a dropout's edge, a click), in seconds: fitted, 2.5 ms.</summary>
-    public const double TransientSeconds = 0.0025;
+    /// <summary>
+    /// The chance that an edge character of <paramref name="kind"/> is not the written one, given its least decision
+    /// distance and baud: as <see cref="Error(double, double)"/>, with the transient's length and the fall of the doubt
+    /// with the distance measured for that kind of edge (<see cref="EdgePrice.Of"/>).
+    /// </summary>
+    public static double Error(double leastDistance, double baud, CharacterEdgeKind kind)
+    {
+        var price = EdgePrice.Of(kind);
+        double odds = baud * price.TransientSeconds * Math.Exp(-price.DistanceScale * Math.Clamp(leastDistance, -1, 1));
+        return odds / (1 + odds);
+    }
 
-    /// <summary>How fast the doubt falls with the character's least decision distance: e per 1/8.5 of it (fitted).</summary>
-    public const double DistanceScale = 8.5;
+    /// <summary>
+    /// As <see cref="Error(double, double, CharacterEdgeKind)"/> where the character's start also lies
+    /// <paramref name="offsetBits"/> off the grid of its neighbours.
+    /// </summary>
+    public static double Error(double leastDistance, double baud, double offsetBits, CharacterEdgeKind kind) =>
+        1 - ((1 - Error(leastDistance, baud, kind)) * (1 - OffGridError(offsetBits)));
+
 
     /// <summary>The offset from its neighbour's grid, in bits, at which an edge character is as likely framed wrong as not (fitted: 0.75).</summary>
     public const double OffGridHalfBits = 0.75;
@@ -53,23 +68,6 @@ public static class CharacterEdge
 
     /// <summary>The spacings next to an edge character's own whose median is the frame its neighbours keep.</summary>
     public const int GridSpacings = 15;
-
-    /// <summary>
-    /// The chance that a character at an edge of what was read is not the written one, given the least decision
-    /// distance of its bits (<paramref name="leastDistance"/>, −1..1) and the <paramref name="baud"/> it was read at.
-    /// </summary>
-    public static double Error(double leastDistance, double baud)
-    {
-        double odds = baud * TransientSeconds * Math.Exp(-DistanceScale * Math.Clamp(leastDistance, -1, 1));
-        return odds / (1 + odds);
-    }
-
-    /// <summary>
-    /// The same where the character's start also lies <paramref name="offsetBits"/> off the grid of its neighbours
-    /// (<see cref="OffsetBits"/>): it is the written one only if neither the transient nor the frame misled.
-    /// </summary>
-    public static double Error(double leastDistance, double baud, double offsetBits) =>
-        1 - ((1 - Error(leastDistance, baud)) * (1 - OffGridError(offsetBits)));
 
     /// <summary>
     /// The chance that an edge character whose start lies <paramref name="offsetBits"/> (either way) off the grid of
@@ -115,4 +113,53 @@ public static class CharacterEdge
         double own = first ? starts[1] - starts[0] : starts[last] - starts[last - 1];
         return ((own / frame) - 1) * frameBits;
     }
+}
+
+/// <summary>
+/// Where an edge character stands, as the decoder knows it: what began before the first character of a reading, or
+/// ended after its last. The kinds are not alike: a weak first character after a lead-in of mark tone is framed on the
+/// tone's onset and is as often false as its decisions and the transient say, while a weak last character before a
+/// loss of signal is most often a real character whose last bits the fade of the dropout dimmed.
+/// </summary>
+public enum CharacterEdgeKind
+{
+    /// <summary>The first character after a lead-in, an idle line or a leader (the block began on the format's own mark).</summary>
+    FirstAfterLeadIn,
+
+    /// <summary>The first character after the signal came back, or of a stream taken up with no lead-in.</summary>
+    FirstAfterBreak,
+
+    /// <summary>The last character before the line went idle or the capture ended.</summary>
+    LastBeforeIdle,
+
+    /// <summary>The last character before the signal was lost (a dropout).</summary>
+    LastBeforeBreak,
+}
+
+/// <summary>
+/// The price of one <see cref="CharacterEdgeKind"/>: the odds that such an edge character is false are
+/// baud · <see cref="TransientSeconds"/> · e^(−<see cref="DistanceScale"/> · least distance).
+/// </summary>
+public readonly record struct EdgePrice(double TransientSeconds, double DistanceScale)
+{
+    /// <summary>
+    /// The measured price of each kind: transient length and fall fitted by maximum likelihood (with the off-grid doubt,
+    /// <see cref="CharacterEdge.OffGridError"/>, as it was) over the edge characters of the trust benchmark's kcs-300 and
+    /// kcs-1200 readings of tuning seeds 16200–16248 (97 tapes, 2 695 readings of eight characters or more whose inner
+    /// characters are the written ones), each edge's kind taken from where it lies in the written file (the first
+    /// character of a file: after its lead-in; the last: before the idle line after it; else after or before a break).
+    /// Wrong / expected under the fitted price / under the one price every kind had before (odds 2.5 ms · baud ·
+    /// e^(−8.5 d)): first after a lead-in 49 / 50.5 / 52.9; first after a break 13 / 13.7 / 17.2; last before an idle
+    /// line 29 / 28.4 / 34.8; last before a break 12 / 11.8 / 48.9. The one price was right for the first character
+    /// after a lead-in and four times too high for the last before a dropout, whose weak last character is mostly a
+    /// real one dimmed by the fade (at 1200 baud, least distance below 0.2: 8 wrong of 38, where it said 28).
+    /// </summary>
+    public static EdgePrice Of(CharacterEdgeKind kind) => kind switch
+    {
+        CharacterEdgeKind.FirstAfterLeadIn => new(0.0020, 8.5),
+        CharacterEdgeKind.FirstAfterBreak => new(0.0013, 10),
+        CharacterEdgeKind.LastBeforeIdle => new(0.013, 30),
+        CharacterEdgeKind.LastBeforeBreak => new(0.00013, 5),
+        _ => throw new ArgumentOutOfRangeException(nameof(kind)),
+    };
 }

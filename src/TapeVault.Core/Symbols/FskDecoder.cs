@@ -560,7 +560,7 @@ public sealed class FskDecoder : ISymbolDecoder
 
         if (_inBlock)
         {
-            _blocks.End(ToSample(_lastCharEnd));
+            _blocks.End(ToSample(_lastCharEnd), signalLost: true);
             _inBlock = false;
             _resuming = _isStream;
         }

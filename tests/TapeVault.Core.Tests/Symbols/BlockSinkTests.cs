@@ -130,7 +130,7 @@ public sealed class BlockSinkTests : IClassFixture<OutsideTempFolder>
             return false;
         }
 
-        public void End(double sample)
+        public void End(double sample, bool signalLost = false)
         {
             if (InBlock)
             {
