@@ -1,4 +1,5 @@
 using System.Text.Json.Nodes;
+using TapeVault.Core.Formats;
 
 namespace TapeVault.Core.Drafting;
 
@@ -43,7 +44,9 @@ public static class GuessConfirmation
         var paths = guessedPaths.ToList();
 
         // Measured before the sync is confirmed: how many whole bytes of the reference's header the draft's sync took.
-        int absorbed = paths.Contains("pulseWidth.sync") ? AbsorbedFrames(draft, reference) : 0;
+        int absorbed = paths.Contains("pulseWidth.sync") ? AbsorbedFrames(draft, reference)
+            : paths.Contains("biphase.syncBits") ? AbsorbedBitFrames(draft, reference)
+            : 0;
 
         // The family first: with the whole-section rule the other guesses are then taken into the reference's section.
         if (paths.Contains("family"))
@@ -195,17 +198,17 @@ public static class GuessConfirmation
     }
 
     /// <summary>
-    /// How many whole frames (bytes as written, with their start, parity and stop bits) the draft's
-    /// pulse sync holds after the reference's sync: a drafter that finds the blocks begin alike past the sync (the
-    /// first header byte never changed in the capture, a block number's high byte say) takes those bytes into the sync
-    /// and counts its header from after them, so the check's coverage it measured starts that many bytes later in the
-    /// reference's header. Zero unless the draft's sync is the reference's (its classes renamed to the draft's nearest)
-    /// followed by whole frames of bit pulses, and where bytes have markers (whose pulses are no bits).
+    /// How many whole frames (bytes as written, with their start, parity and stop bits) the draft's pulse sync holds
+    /// after the reference's sync: a drafter that finds the blocks begin alike past the sync (the first header byte
+    /// never changed in the capture, a block number's high byte say) takes those bytes into the sync and counts its
+    /// header from after them, so the check's coverage it measured starts that many bytes later in the reference's
+    /// header. Zero unless the draft's sync is the reference's (its classes renamed to the draft's nearest) followed by
+    /// whole frames of bit pulses, and where bytes have markers (whose pulses are no bits).
     /// </summary>
     private static int AbsorbedFrames(JsonObject draft, JsonObject reference)
     {
         if (draft["pulseWidth"] is not JsonObject pulses || pulses["sync"] is not JsonArray drafted || reference["pulseWidth"]?["sync"] is not JsonArray confirmed
-            || pulses["zero"] is not JsonArray zero || pulses["one"] is not JsonArray one || zero.Count != one.Count || zero.Count == 0 || draft["framing"] is not JsonObject framing
+            || pulses["zero"] is not JsonArray zero || pulses["one"] is not JsonArray one || zero.Count != one.Count || zero.Count == 0
             || pulses["markers"] is not null)
         {
             return 0;
@@ -213,19 +216,40 @@ public static class GuessConfirmation
 
         var draftClasses = Classes(draft);
         var referenceClasses = Classes(reference);
-        var own = drafted.Select(n => n!.GetValue<string>()).ToList();
-        var theirs = confirmed.Select(n => NearestClass(draftClasses, referenceClasses, n!.GetValue<string>())).ToList();
-        if (theirs.Count == 0 || own.Count <= theirs.Count || !own.Take(theirs.Count).SequenceEqual(theirs, StringComparer.Ordinal))
+        var bitClasses = zero.Concat(one).Select(n => n!.GetValue<string>()).ToHashSet(StringComparer.Ordinal);
+        return WholeFrames(
+            [.. drafted.Select(n => n!.GetValue<string>())],
+            [.. confirmed.Select(n => NearestClass(draftClasses, referenceClasses, n!.GetValue<string>()))],
+            FrameBits(draft) * zero.Count,
+            bitClasses.Contains);
+    }
+
+    /// <summary>As <see cref="AbsorbedFrames"/> for a sync written as bits (biphase): the reference's sync bits, then whole frames.</summary>
+    private static int AbsorbedBitFrames(JsonObject draft, JsonObject reference) =>
+        draft["biphase"]?["syncBits"]?.GetValue<string>() is { } own && reference["biphase"]?["syncBits"]?.GetValue<string>() is { } theirs
+            ? WholeFrames([.. own.Select(c => c.ToString())], [.. theirs.Select(c => c.ToString())], FrameBits(draft), _ => true)
+            : 0;
+
+    /// <summary>The frames after <paramref name="theirs"/> that make up the rest of <paramref name="own"/>, each <paramref name="frame"/> symbols of bits; zero where it is not so.</summary>
+    private static int WholeFrames(List<string> own, List<string> theirs, int frame, Func<string, bool> isBit)
+    {
+        int extra = own.Count - theirs.Count;
+        return frame > 0 && theirs.Count > 0 && extra > 0 && extra % frame == 0 && own.Take(theirs.Count).SequenceEqual(theirs, StringComparer.Ordinal) && own.Skip(theirs.Count).All(isBit)
+            ? extra / frame
+            : 0;
+    }
+
+    /// <summary>The bits of one frame as the draft's framing writes a byte (<see cref="ByteFraming.BitsPerByte"/>); zero where the draft does not load.</summary>
+    private static int FrameBits(JsonObject draft)
+    {
+        try
+        {
+            return ProfileLoader.Parse(draft.ToJsonString(), "draft").Framing.BitsPerByte;
+        }
+        catch (ProfileException)
         {
             return 0;
         }
-
-        int Text(string name) => framing[name]?.GetValue<string>()?.Length ?? 0;
-        bool parity = framing["parity"]?.GetValue<string>() is { } p && p != "none";
-        int frame = (Text("startBits") + (framing["dataBits"]?.GetValue<int>() ?? 8) + (parity ? 1 : 0) + Text("stopBits")) * zero.Count;
-        int extra = own.Count - theirs.Count;
-        var bitClasses = zero.Concat(one).Select(n => n!.GetValue<string>()).ToHashSet(StringComparer.Ordinal);
-        return extra % frame == 0 && own.Skip(theirs.Count).All(bitClasses.Contains) ? extra / frame : 0;
     }
 
     /// <summary>

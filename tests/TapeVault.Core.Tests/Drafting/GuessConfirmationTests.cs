@@ -232,6 +232,38 @@ public sealed class GuessConfirmationTests
         Assert.Equal("[\"length\",\"payload\"]", JsonNode.Parse(confirmed)!["layout"]!["checksum"]!["covers"]!.ToJsonString());
     }
 
+    [Fact]
+    public void A_confirmed_biphase_sync_gives_back_the_header_byte_the_draft_s_sync_bits_took()
+    {
+        // As drafted from seed 158001 of the draft figure (biphase). The reference (RandomFormats' draw for that seed,
+        // as the figure prints it): sync bits 110011111111, then a two-byte block number and a length, the check over
+        // the payload alone. The block number's first byte (00, framed 0 00000000 0 1: start, data, even parity, stop)
+        // began every block alike, so the draft's sync bits went on through it and its header counted from after it.
+        const string Truth = """
+            {"id":"random-biphase","name":"Random biphase","family":"biphase",
+             "biphase":{"cellMicroseconds":1004.9,"oneIs":"falling","leadInMinimumBits":34,"syncBits":"110011111111"},
+             "framing":{"dataBits":8,"bitOrder":"msb-first","startBits":"0","stopBits":"1","parity":"even"},
+             "layout":{"header":[{"name":"block","bytes":2,"role":"block-number","endian":"big"},{"name":"length","bytes":1,"role":"payload-length"}],
+               "maximumPayloadBytes":78,"checksum":{"algorithm":"CRC-16/ARC","covers":"payload","endian":"little"},"copies":2}}
+            """;
+        var draft = JsonNode.Parse(Truth)!.AsObject();
+        draft["biphase"] = JsonNode.Parse("""{"cellMicroseconds":1053.12,"oneIs":"rising","syncBits":"11001111111100000000001","leadInMinimumBits":32}""");
+        draft["layout"] = JsonNode.Parse("""
+            {"header":[{"name":"block","bytes":1,"role":"block-number"},{"name":"length","bytes":1,"role":"payload-length"}],"maximumPayloadBytes":255,
+             "checksum":{"algorithm":"CRC-16/ARC","covers":"payload","endian":"little"},"copies":1}
+            """);
+
+        string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), Truth, ["biphase.oneIs", "biphase.syncBits", "layout.header"]);
+
+        // Before: the check was taken to start at byte 2 of the reference's header (the draft's header length), over
+        // the length byte too, and the confirmed draft read none of the truth's 24 blocks. The reference's coverage
+        // (the payload alone, as RandomFormats wrote it) is the outside reference.
+        var node = JsonNode.Parse(confirmed)!;
+        Assert.Equal("110011111111", node["biphase"]!["syncBits"]!.GetValue<string>());
+        Assert.Equal("[\"payload\"]", node["layout"]!["checksum"]!["covers"]!.ToJsonString());
+        ProfileLoader.Parse(confirmed, "confirmed");
+    }
+
     /// <summary>RandomFormats' draw for seed 162014 of the draft figure, as the figure prints it.</summary>
     private const string Seed162014Truth = """
         {"id":"random-pulse-width","name":"Random pulse-width","family":"pulse-width",
