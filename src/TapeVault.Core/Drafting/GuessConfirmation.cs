@@ -1,4 +1,5 @@
 using System.Text.Json.Nodes;
+using TapeVault.Core.Formats;
 
 namespace TapeVault.Core.Drafting;
 
@@ -42,6 +43,11 @@ public static class GuessConfirmation
         var reference = JsonNode.Parse(referenceJson)!.AsObject();
         var paths = guessedPaths.ToList();
 
+        // Measured before the sync is confirmed: how many whole bytes of the reference's header the draft's sync took.
+        int absorbed = paths.Contains("pulseWidth.sync") ? AbsorbedFrames(draft, reference)
+            : paths.Contains("biphase.syncBits") ? AbsorbedBitFrames(draft, reference)
+            : 0;
+
         // The family first: with the whole-section rule the other guesses are then taken into the reference's section.
         if (paths.Contains("family"))
         {
@@ -78,7 +84,7 @@ public static class GuessConfirmation
 
                     break;
                 case "layout.header":
-                    ConfirmHeader(draft, reference, checksumGuessed: paths.Contains("layout.checksum"), syncConfirmed: paths.Contains("pulseWidth.sync") && reference["pulseWidth"]?["sync"] is not null);
+                    ConfirmHeader(draft, reference, checksumGuessed: paths.Contains("layout.checksum"), syncConfirmed: paths.Contains("pulseWidth.sync") && reference["pulseWidth"]?["sync"] is not null, absorbed);
                     break;
                 case "layout.payloadBytes" when rule == ConfirmationRule.GuessedFieldsOnly:
                     foreach (string part in PayloadLength)
@@ -107,11 +113,11 @@ public static class GuessConfirmation
     /// Where the reference's blocks are of several kinds (a header block that gives the next block's length), its
     /// kinds are the confirmed header (see <see cref="ConfirmKinds"/>).
     /// </summary>
-    private static void ConfirmHeader(JsonObject draft, JsonObject reference, bool checksumGuessed, bool syncConfirmed)
+    private static void ConfirmHeader(JsonObject draft, JsonObject reference, bool checksumGuessed, bool syncConfirmed, int absorbed)
     {
         if (draft["layout"] is JsonObject drafted && drafted["kinds"] is null && reference["layout"]?["kinds"] is JsonArray kinds)
         {
-            ConfirmKinds(drafted, kinds, checksumGuessed);
+            ConfirmKinds(drafted, kinds, checksumGuessed, absorbed);
             return;
         }
 
@@ -123,9 +129,10 @@ public static class GuessConfirmation
 
         // A check the draft wrote as covering its payload (its header no more than a sync, say) covers from the end
         // of that header on: the same byte, named now by the reference's fields there.
-        int? coverageStart = layout["checksum"]?["covers"] is JsonValue covers && covers.GetValue<string>() == "payload"
+        // A draft whose sync took the header's first bytes counts its header from after them.
+        int? coverageStart = (layout["checksum"]?["covers"] is JsonValue covers && covers.GetValue<string>() == "payload"
             ? CoverageStart(layout, bySection: true)
-            : CoverageStart(layout);
+            : CoverageStart(layout)) + absorbed;
 
         // A sync the draft measured and wrote as the header's first field (a sync of whole bytes) is the sync's, not
         // the header's: where the reference writes its sync elsewhere (as pulse classes, say), it stays. Unless that
@@ -162,9 +169,9 @@ public static class GuessConfirmation
     /// kind (its algorithm and byte order, its coverage from the same byte on), and so do its copies; a guessed check
     /// is each kind's as the reference writes it.
     /// </summary>
-    private static void ConfirmKinds(JsonObject layout, JsonArray referenceKinds, bool checksumGuessed)
+    private static void ConfirmKinds(JsonObject layout, JsonArray referenceKinds, bool checksumGuessed, int absorbed)
     {
-        int? coverageStart = CoverageStart(layout, bySection: true);
+        int? coverageStart = CoverageStart(layout, bySection: true) + absorbed;
         var measured = checksumGuessed ? null : layout["checksum"] as JsonObject;
         var kinds = (JsonArray)referenceKinds.DeepClone();
         if (measured is not null)
@@ -188,6 +195,61 @@ public static class GuessConfirmation
         }
 
         layout["kinds"] = kinds;
+    }
+
+    /// <summary>
+    /// How many whole frames (bytes as written, with their start, parity and stop bits) the draft's pulse sync holds
+    /// after the reference's sync: a drafter that finds the blocks begin alike past the sync (the first header byte
+    /// never changed in the capture, a block number's high byte say) takes those bytes into the sync and counts its
+    /// header from after them, so the check's coverage it measured starts that many bytes later in the reference's
+    /// header. Zero unless the draft's sync is the reference's (its classes renamed to the draft's nearest) followed by
+    /// whole frames of bit pulses, and where bytes have markers (whose pulses are no bits).
+    /// </summary>
+    private static int AbsorbedFrames(JsonObject draft, JsonObject reference)
+    {
+        if (draft["pulseWidth"] is not JsonObject pulses || pulses["sync"] is not JsonArray drafted || reference["pulseWidth"]?["sync"] is not JsonArray confirmed
+            || pulses["zero"] is not JsonArray zero || pulses["one"] is not JsonArray one || zero.Count != one.Count || zero.Count == 0
+            || pulses["markers"] is not null)
+        {
+            return 0;
+        }
+
+        var draftClasses = Classes(draft);
+        var referenceClasses = Classes(reference);
+        var bitClasses = zero.Concat(one).Select(n => n!.GetValue<string>()).ToHashSet(StringComparer.Ordinal);
+        return WholeFrames(
+            [.. drafted.Select(n => n!.GetValue<string>())],
+            [.. confirmed.Select(n => NearestClass(draftClasses, referenceClasses, n!.GetValue<string>()))],
+            FrameBits(draft) * zero.Count,
+            bitClasses.Contains);
+    }
+
+    /// <summary>As <see cref="AbsorbedFrames"/> for a sync written as bits (biphase): the reference's sync bits, then whole frames.</summary>
+    private static int AbsorbedBitFrames(JsonObject draft, JsonObject reference) =>
+        draft["biphase"]?["syncBits"]?.GetValue<string>() is { } own && reference["biphase"]?["syncBits"]?.GetValue<string>() is { } theirs
+            ? WholeFrames([.. own.Select(c => c.ToString())], [.. theirs.Select(c => c.ToString())], FrameBits(draft), _ => true)
+            : 0;
+
+    /// <summary>The frames after <paramref name="theirs"/> that make up the rest of <paramref name="own"/>, each <paramref name="frame"/> symbols of bits; zero where it is not so.</summary>
+    private static int WholeFrames(List<string> own, List<string> theirs, int frame, Func<string, bool> isBit)
+    {
+        int extra = own.Count - theirs.Count;
+        return frame > 0 && theirs.Count > 0 && extra > 0 && extra % frame == 0 && own.Take(theirs.Count).SequenceEqual(theirs, StringComparer.Ordinal) && own.Skip(theirs.Count).All(isBit)
+            ? extra / frame
+            : 0;
+    }
+
+    /// <summary>The bits of one frame as the draft's framing writes a byte (<see cref="ByteFraming.BitsPerByte"/>); zero where the draft does not load.</summary>
+    private static int FrameBits(JsonObject draft)
+    {
+        try
+        {
+            return ProfileLoader.Parse(draft.ToJsonString(), "draft").Framing.BitsPerByte;
+        }
+        catch (ProfileException)
+        {
+            return 0;
+        }
     }
 
     /// <summary>
@@ -276,15 +338,7 @@ public static class GuessConfirmation
     {
         var draftClasses = Classes(draft);
         var referenceClasses = Classes(reference);
-        string Nearest(string name)
-        {
-            if (!referenceClasses.TryGetValue(name, out double length) || draftClasses.Count == 0)
-            {
-                return name;
-            }
-
-            return draftClasses.MinBy(c => Math.Abs(Math.Log(c.Value / length))).Key;
-        }
+        string Nearest(string name) => NearestClass(draftClasses, referenceClasses, name);
 
         var parts = path.Split('.');
         JsonNode? node = draft;
@@ -312,6 +366,12 @@ public static class GuessConfirmation
                 break;
         }
     }
+
+    /// <summary>The draft's class nearest in length to a class the reference names (the name itself where the reference has no such class).</summary>
+    private static string NearestClass(Dictionary<string, double> draftClasses, Dictionary<string, double> referenceClasses, string name) =>
+        referenceClasses.TryGetValue(name, out double length) && draftClasses.Count > 0
+            ? draftClasses.MinBy(c => Math.Abs(Math.Log(c.Value / length))).Key
+            : name;
 
     private static Dictionary<string, double> Classes(JsonObject profile)
     {

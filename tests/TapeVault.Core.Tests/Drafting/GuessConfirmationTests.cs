@@ -186,6 +186,94 @@ public sealed class GuessConfirmationTests
         Assert.Null(node["payloadBytes"]);
     }
 
+    [Fact]
+    public void A_confirmed_pulse_sync_gives_back_the_header_byte_the_draft_s_sync_took_and_the_check_still_covers_the_payload_only()
+    {
+        // As drafted from seed 162014 of the draft figure. The reference (RandomFormats' draw for that seed, as the
+        // figure prints it): sync `m`, then a two-byte block number and a one-byte length, the check over the payload
+        // alone. Every block's number was below 256, so its first byte (00: eight `s`, then `l` for odd parity) began
+        // every block alike: the draft took it into its sync (`long`, eight `short`, `medium`), counted its two-byte
+        // header from after it, measured the check over the payload, and marked sync, header and payload length guesses.
+        var draft = JsonNode.Parse(Seed162014Truth)!.AsObject();
+        draft["pulseWidth"] = JsonNode.Parse("""
+            {"classes":[{"name":"short","microseconds":603.4},{"name":"medium","microseconds":1308.3},{"name":"long","microseconds":2216.1}],
+             "zero":["short"],"one":["medium"],"leadIn":{"class":"short","minimumCount":97},
+             "sync":["long","short","short","short","short","short","short","short","short","medium"]}
+            """);
+        draft["layout"] = JsonNode.Parse("""
+            {"header":[{"name":"block","bytes":2,"role":"block-number","endian":"little"}],"payloadBytes":90,
+             "checksum":{"algorithm":"crc16-ccitt-false","covers":"payload","endian":"big"},"copies":2}
+            """);
+
+        string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), Seed162014Truth, ["pulseWidth.sync", "layout.header", "layout.payloadBytes"]);
+
+        // Before: the check was taken to start two bytes into the reference's header (the draft's header length),
+        // so it covered the length byte too and held on none of the truth's 24 blocks. The reference's own coverage
+        // (the payload alone) is the outside reference, as RandomFormats wrote it.
+        var node = JsonNode.Parse(confirmed)!;
+        Assert.Equal("[\"long\"]", node["pulseWidth"]!["sync"]!.ToJsonString());
+        Assert.Equal("[\"payload\"]", node["layout"]!["checksum"]!["covers"]!.ToJsonString());
+        Assert.Equal(90, node["layout"]!["maximumPayloadBytes"]!.GetValue<int>());
+        ProfileLoader.Parse(confirmed, "confirmed");
+    }
+
+    [Fact]
+    public void A_confirmed_pulse_sync_that_differs_from_the_draft_s_by_no_whole_byte_moves_no_check()
+    {
+        // The same draft with its sync one bit pulse short of a whole byte after the reference's: nothing of the
+        // header was taken, and the check keeps its place as the draft's header puts it.
+        var draft = JsonNode.Parse(Seed162014Truth)!.AsObject();
+        draft["pulseWidth"]!["sync"] = new JsonArray("m", "s", "s", "s", "s", "s", "s", "s", "s");
+        draft["layout"]!["header"] = new JsonArray(new JsonObject { ["name"] = "block", ["bytes"] = 2, ["role"] = "block-number", ["endian"] = "little" });
+
+        string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), Seed162014Truth, ["pulseWidth.sync", "layout.header"]);
+
+        // Two bytes of the draft's header before the payload: the check from byte 2 of the reference's header on.
+        Assert.Equal("[\"length\",\"payload\"]", JsonNode.Parse(confirmed)!["layout"]!["checksum"]!["covers"]!.ToJsonString());
+    }
+
+    [Fact]
+    public void A_confirmed_biphase_sync_gives_back_the_header_byte_the_draft_s_sync_bits_took()
+    {
+        // As drafted from seed 158001 of the draft figure (biphase). The reference (RandomFormats' draw for that seed,
+        // as the figure prints it): sync bits 110011111111, then a two-byte block number and a length, the check over
+        // the payload alone. The block number's first byte (00, framed 0 00000000 0 1: start, data, even parity, stop)
+        // began every block alike, so the draft's sync bits went on through it and its header counted from after it.
+        const string Truth = """
+            {"id":"random-biphase","name":"Random biphase","family":"biphase",
+             "biphase":{"cellMicroseconds":1004.9,"oneIs":"falling","leadInMinimumBits":34,"syncBits":"110011111111"},
+             "framing":{"dataBits":8,"bitOrder":"msb-first","startBits":"0","stopBits":"1","parity":"even"},
+             "layout":{"header":[{"name":"block","bytes":2,"role":"block-number","endian":"big"},{"name":"length","bytes":1,"role":"payload-length"}],
+               "maximumPayloadBytes":78,"checksum":{"algorithm":"CRC-16/ARC","covers":"payload","endian":"little"},"copies":2}}
+            """;
+        var draft = JsonNode.Parse(Truth)!.AsObject();
+        draft["biphase"] = JsonNode.Parse("""{"cellMicroseconds":1053.12,"oneIs":"rising","syncBits":"11001111111100000000001","leadInMinimumBits":32}""");
+        draft["layout"] = JsonNode.Parse("""
+            {"header":[{"name":"block","bytes":1,"role":"block-number"},{"name":"length","bytes":1,"role":"payload-length"}],"maximumPayloadBytes":255,
+             "checksum":{"algorithm":"CRC-16/ARC","covers":"payload","endian":"little"},"copies":1}
+            """);
+
+        string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), Truth, ["biphase.oneIs", "biphase.syncBits", "layout.header"]);
+
+        // Before: the check was taken to start at byte 2 of the reference's header (the draft's header length), over
+        // the length byte too, and the confirmed draft read none of the truth's 24 blocks. The reference's coverage
+        // (the payload alone, as RandomFormats wrote it) is the outside reference.
+        var node = JsonNode.Parse(confirmed)!;
+        Assert.Equal("110011111111", node["biphase"]!["syncBits"]!.GetValue<string>());
+        Assert.Equal("[\"payload\"]", node["layout"]!["checksum"]!["covers"]!.ToJsonString());
+        ProfileLoader.Parse(confirmed, "confirmed");
+    }
+
+    /// <summary>RandomFormats' draw for seed 162014 of the draft figure, as the figure prints it.</summary>
+    private const string Seed162014Truth = """
+        {"id":"random-pulse-width","name":"Random pulse-width","family":"pulse-width",
+         "pulseWidth":{"classes":[{"name":"s","microseconds":576.4},{"name":"l","microseconds":1249.2},{"name":"m","microseconds":2137.1}],
+           "zero":["s"],"one":["l"],"leadIn":{"class":"s","minimumCount":72},"sync":["m"]},
+         "framing":{"dataBits":8,"bitOrder":"lsb-first","startBits":"","stopBits":"","parity":"odd"},
+         "layout":{"header":[{"name":"block","bytes":2,"role":"block-number","endian":"big"},{"name":"length","bytes":1,"role":"payload-length"}],
+           "maximumPayloadBytes":90,"checksum":{"algorithm":"crc16-ccitt-false","covers":"payload","endian":"big"},"copies":2}}
+        """;
+
     /// <summary>The reference as a draft that measured its pulse sync as whole bytes: no class sequence, a sync field first in the header.</summary>
     private static JsonObject WithSyncField(string truth)
     {
