@@ -48,9 +48,9 @@ public sealed class FskDrafter : IFamilyDrafter
     /// which a one-cycle bit's neighbours pull between the tones) can hold more intervals than the lower tone, and the
     /// pair it makes with the higher tone is then the likeliest.
     /// </summary>
-    private static List<(int Low, int High, IReadOnlyList<double> Bauds, bool FromRuns)> Tones(StretchSurvey survey)
+    private static List<ToneCandidate> Tones(StretchSurvey survey)
     {
-        var candidates = new List<(int Low, int High, IReadOnlyList<double> Bauds, bool FromRuns)>();
+        var candidates = new List<ToneCandidate>();
         var top = survey.Dominant.Take(2).ToList();
         if (top.Count < 2 || survey.Clusters[top[1]].Share < 0.05)
         {
@@ -72,7 +72,7 @@ public sealed class FskDrafter : IFamilyDrafter
                 .MinBy(p => Math.Abs(Math.Log(p.A / p.B)));
             if (bitA > 0 && Math.Abs(Math.Log(bitA / bitB)) <= 0.12)
             {
-                candidates.Add((b, a, Bauds(survey, a, b, [], 1 / Math.Sqrt(bitA * bitB)), true));
+                candidates.Add(new(b, a, 0.5 / survey.Clusters[b].Seconds, 0.5 / survey.Clusters[a].Seconds, Bauds(0.5 / survey.Clusters[a].Seconds, 0.5 / survey.Clusters[b].Seconds, [], 1 / Math.Sqrt(bitA * bitB)), true));
             }
         }
 
@@ -95,13 +95,19 @@ public sealed class FskDrafter : IFamilyDrafter
             if (ratio is >= 1.15 and <= 3.5 && SpectrumShows(spectrum, 0.5 / survey.Clusters[low].Seconds) && SpectrumShows(spectrum, 0.5 / survey.Clusters[high].Seconds)
                 && !candidates.Exists(c => c.Low == low && c.High == high))
             {
-                var fromSteps = new List<double> { 0.5 / survey.Clusters[low].Seconds };
+                // Tones taken from the spectrum are measured there too: where a tone's half cycles are smeared (a lone
+                // cycle of the lower tone between the higher's, through a head amplifier or a filter, splits into a
+                // short and a long half of no one length), its group's centre lies off the tone, often by a fifth or
+                // more, while the tone's power still peaks at its frequency.
+                double lowHz = SpectrumPeak(spectrum, 0.5 / survey.Clusters[low].Seconds, 0.5 / survey.Clusters[high].Seconds);
+                double highHz = SpectrumPeak(spectrum, 0.5 / survey.Clusters[high].Seconds, 0.5 / survey.Clusters[low].Seconds);
+                var fromSteps = new List<double> { lowHz };
                 foreach (int g in new[] { high, low })
                 {
                     fromSteps.AddRange(Even(survey.Runs[g].Granularity).Select(cycles => 1 / (cycles * survey.Clusters[g].Seconds)));
                 }
 
-                candidates.Add((low, high, Bauds(survey, high, low, fromSteps), false));
+                candidates.Add(new(low, high, lowHz, highHz, Bauds(highHz, lowHz, fromSteps), false));
             }
         }
 
@@ -128,11 +134,8 @@ public sealed class FskDrafter : IFamilyDrafter
     /// other by the half cycles at every change of tone, so that tones a baud apart may measure nearer than that; the
     /// trial decodes and the draft then take the tones at it (<see cref="TonesAt"/>).
     /// </summary>
-    private static List<double> Bauds(StretchSurvey survey, int high, int low, IEnumerable<double> first, double? measured = null)
+    private static List<double> Bauds(double highHz, double lowHz, IEnumerable<double> first, double? measured = null)
     {
-        double highHz = 0.5 / survey.Clusters[high].Seconds;
-        double lowHz = 0.5 / survey.Clusters[low].Seconds;
-
         // One cycle a bit is the least a tone can hold: measured just above the lower tone, the baud is that tone.
         // Nor may it pass the tones' distance (a profile needs them a baud apart): tones of one and two cycles a bit
         // measure a little under 2 : 1 now and then, and a baud a hair too high would make every trial profile void.
@@ -167,6 +170,45 @@ public sealed class FskDrafter : IFamilyDrafter
         return (lowCycles * baud, highCycles * baud);
     }
 
+    /// <summary>Two groups of half cycles taken as the tones, the tones' frequencies and the bauds to try, likeliest first.</summary>
+    private sealed record ToneCandidate(int Low, int High, double LowHz, double HighHz, IReadOnlyList<double> Bauds, bool FromRuns);
+
+    /// <summary>How far (in ratio) from a group's tone the spectrum's peak of that tone is looked for.</summary>
+    public const double SpectrumPeakReach = 0.25;
+
+    /// <summary>
+    /// The frequency of the spectrum's strongest peak (at least a tenth of the strongest, −10 dB) within
+    /// <see cref="SpectrumPeakReach"/> of <paramref name="hz"/> and nearer to it than to <paramref name="otherHz"/> (the
+    /// other tone), placed between its points by a parabola through the peak and its neighbours in log frequency (the
+    /// usual interpolation of a spectral peak, common practice); <paramref name="hz"/> itself where there is none.
+    /// </summary>
+    internal static double SpectrumPeak(IReadOnlyList<(double Hz, double Power)> spectrum, double hz, double otherHz)
+    {
+        ArgumentNullException.ThrowIfNull(spectrum);
+        int best = -1;
+        for (int i = 1; i < spectrum.Count - 1; i++)
+        {
+            var p = spectrum[i];
+            bool peak = p.Power >= spectrum[i - 1].Power && p.Power > spectrum[i + 1].Power && p.Power >= 0.1;
+            bool near = Math.Abs(Math.Log(p.Hz / hz)) <= Math.Log(1 + SpectrumPeakReach) && Math.Abs(Math.Log(p.Hz / hz)) < Math.Abs(Math.Log(p.Hz / otherHz));
+            if (peak && near && (best < 0 || p.Power > spectrum[best].Power))
+            {
+                best = i;
+            }
+        }
+
+        if (best < 0)
+        {
+            return hz;
+        }
+
+        double left = spectrum[best - 1].Power, centre = spectrum[best].Power, right = spectrum[best + 1].Power;
+        double curve = left - (2 * centre) + right;
+        double offset = curve < 0 ? Math.Clamp(0.5 * (left - right) / curve, -0.5, 0.5) : 0;
+        double step = offset >= 0 ? Math.Log(spectrum[best + 1].Hz / spectrum[best].Hz) : Math.Log(spectrum[best].Hz / spectrum[best - 1].Hz);
+        return spectrum[best].Hz * Math.Exp(offset * step);
+    }
+
     /// <summary>Whether the spectrum has a peak of at least a tenth of the strongest (−10 dB) within 8 % of a frequency.</summary>
     private static bool SpectrumShows(IReadOnlyList<(double Hz, double Power)> spectrum, double hz) =>
         spectrum.Any(p => Math.Abs(Math.Log(p.Hz / hz)) < 0.08 && p.Power >= 0.1);
@@ -182,8 +224,9 @@ public sealed class FskDrafter : IFamilyDrafter
                 + (top.Count < 2 ? string.Empty : $" ({string.Join(", ", top.Select(g => $"{F(0.5 / survey.Clusters[g].Seconds, "0")} Hz, {F(100 * survey.Clusters[g].Share, "0")} % of intervals, runs of {survey.Runs[g].Granularity}"))})"));
         }
 
-        var (low, high, bauds, fromRuns) = candidates[0];
-        string tones = $"half cycles of {F(0.5 / survey.Clusters[high].Seconds, "0")} Hz come in runs of {survey.Runs[high].Granularity} and of {F(0.5 / survey.Clusters[low].Seconds, "0")} Hz in runs of {survey.Runs[low].Granularity}";
+        var (low, high, lowHz, highHz, bauds, fromRuns) = candidates[0];
+        string tones = $"half cycles of {F(0.5 / survey.Clusters[high].Seconds, "0")} Hz come in runs of {survey.Runs[high].Granularity} and of {F(0.5 / survey.Clusters[low].Seconds, "0")} Hz in runs of {survey.Runs[low].Granularity}"
+            + (fromRuns ? string.Empty : $" (the spectrum's peaks: {F(highHz, "0")} Hz and {F(lowHz, "0")} Hz)");
         return fromRuns
             ? new FamilyScore(Family, 0.9 * survey.GroupedShare, $"{tones}: one bit time of {Us(1 / bauds[0])} µs either way")
             : new FamilyScore(Family, UnprovenToneShare * survey.GroupedShare, $"{tones}, which make no one bit time, but the spectrum shows both tones: bauds {string.Join(", ", bauds.Select(x => F(x, "0")))} tried");
@@ -203,13 +246,13 @@ public sealed class FskDrafter : IFamilyDrafter
         // baud is tried so in turn, likeliest first, until one frames cleanly, and the one that reads most is kept.
         // Where no baud of the likeliest tones frames cleanly, the next pair of tones is tried so too.
         var tried = new List<(double Baud, TrialResult High, TrialResult Low)>();
-        (int Low, int High, IReadOnlyList<double> Bauds, bool FromRuns, double Baud, TrialResult AsHigh, TrialResult AsLow)? best = null;
-        foreach (var (lowGroup, highGroup, candidateBauds, candidateFromRuns) in candidates)
+        (ToneCandidate Tones, double Baud, TrialResult AsHigh, TrialResult AsLow)? best = null;
+        foreach (var pair in candidates)
         {
             var pairTried = new List<(double Baud, TrialResult High, TrialResult Low)>();
-            foreach (double candidate in candidateBauds)
+            foreach (double candidate in pair.Bauds)
             {
-                var (lowerHz, higherHz) = TonesAt(0.5 / survey.Clusters[lowGroup].Seconds, 0.5 / survey.Clusters[highGroup].Seconds, candidate);
+                var (lowerHz, higherHz) = TonesAt(pair.LowHz, pair.HighHz, candidate);
                 var t = (Baud: candidate, High: Selection(survey.Stretch, higherHz, lowerHz, candidate, cancellation), Low: Selection(survey.Stretch, lowerHz, higherHz, candidate, cancellation));
                 pairTried.Add(t);
                 if (t.High.Clean || t.Low.Clean)
@@ -221,7 +264,7 @@ public sealed class FskDrafter : IFamilyDrafter
             var top = pairTried.MaxBy(t => Math.Max(t.High.Score, t.Low.Score));
             if (best is null || Math.Max(top.High.Score, top.Low.Score) > Math.Max(best.Value.AsHigh.Score, best.Value.AsLow.Score))
             {
-                best = (lowGroup, highGroup, candidateBauds, candidateFromRuns, top.Baud, top.High, top.Low);
+                best = (pair, top.Baud, top.High, top.Low);
                 tried = pairTried;
             }
 
@@ -231,8 +274,9 @@ public sealed class FskDrafter : IFamilyDrafter
             }
         }
 
-        var (low, high, bauds, fromRuns, baud, asHigh, asLow) = best!.Value;
-        var (lowHz, highHz) = TonesAt(0.5 / survey.Clusters[low].Seconds, 0.5 / survey.Clusters[high].Seconds, baud);
+        var (tones, baud, asHigh, asLow) = best!.Value;
+        var (low, high, measuredLowHz, measuredHighHz, bauds, fromRuns) = tones;
+        var (lowHz, highHz) = TonesAt(measuredLowHz, measuredHighHz, baud);
         bool highIsMark = asHigh.Score >= asLow.Score;
         int markGroup = highIsMark ? high : low;
         double markHz = highIsMark ? highHz : lowHz;
@@ -368,9 +412,9 @@ public sealed class FskDrafter : IFamilyDrafter
         // The tones and the baud are one measurement at the tape's speed: where the baud is a guess, so are the tones,
         // so that confirming the baud alone never sets a nominal baud beside tones measured off speed.
         double toneConfidence = Math.Min(spectrumAgrees ? 0.9 : 0.8, baudConfidence);
-        bool tonesAtBaud = TonesAt(0.5 / survey.Clusters[low].Seconds, 0.5 / survey.Clusters[high].Seconds, baud) != (0.5 / survey.Clusters[low].Seconds, 0.5 / survey.Clusters[high].Seconds);
+        bool tonesAtBaud = (lowHz, highHz) != (measuredLowHz, measuredHighHz);
         string toneEvidence = $"half cycles through setting {survey.Setting.Name}; {Peak(markHz)}, {Peak(spaceHz)}; as the tape plays"
-            + (tonesAtBaud ? $"; their groups of half cycles ({F(0.5 / survey.Clusters[high].Seconds, "0")} Hz and {F(0.5 / survey.Clusters[low].Seconds, "0")} Hz) lie nearer than the baud, so each is taken as the whole cycles a bit nearest to it" : string.Empty)
+            + (tonesAtBaud ? $"; their groups of half cycles ({F(measuredHighHz, "0")} Hz and {F(measuredLowHz, "0")} Hz) lie nearer than the baud, so each is taken as the whole cycles a bit nearest to it" : string.Empty)
             + (baudConfidence < DraftFinding.MeasuredThreshold ? "; a guess with the baud, since both are as the tape plays" : string.Empty);
         proposal.Measured("fsk.markHz", F(markHz, "0.0"), toneConfidence, $"{toneEvidence}; the mark (the idle line's tone) read {asHigh.Characters} characters as the higher tone and {asLow.Characters} as the lower, with {F(100 * asHigh.ErrorShare, "0.#")} % and {F(100 * asLow.ErrorShare, "0.#")} % framing errors");
         proposal.Measured("fsk.spaceHz", F(spaceHz, "0.0"), toneConfidence, toneEvidence);
@@ -405,8 +449,7 @@ public sealed class FskDrafter : IFamilyDrafter
         Layout(proposal, layout);
         if (candidates[0].Low != low || candidates[0].High != high)
         {
-            var (firstLow, firstHigh, _, _) = candidates[0];
-            proposal.Notes.Add($"The likeliest pair of tones, {F(0.5 / survey.Clusters[firstHigh].Seconds, "0")} Hz and {F(0.5 / survey.Clusters[firstLow].Seconds, "0")} Hz, framed no character cleanly at any baud tried; "
+            proposal.Notes.Add($"The likeliest pair of tones, {F(candidates[0].HighHz, "0")} Hz and {F(candidates[0].LowHz, "0")} Hz, framed no character cleanly at any baud tried; "
                 + $"{F(highHz, "0")} Hz and {F(lowHz, "0")} Hz, among the next {candidates.Count - 1} pair(s) of main groups the spectrum shows, read most.");
         }
 
