@@ -437,7 +437,8 @@ internal sealed class StreamMerge
     /// each reading is fitted onto the others by its runs of four confident characters (<see cref="Anchors"/>), as a
     /// pass is (<see cref="PassTimeline.Fit"/>): the passes are taken reference first, and a reading is fitted to the
     /// readings of the passes placed before it where at least <see cref="MinimumReadingPairs"/> of its runs agree. A
-    /// reading with fewer lies where its capture's other settings' reading of the same time was placed
+    /// whole stretch of fewer than four characters lies where other captures read the same characters whole
+    /// (<see cref="PlaceShortStretches"/>). A reading with fewer lies where its capture's other settings' reading of the same time was placed
     /// (<see cref="PlaceWithItsCapture"/>), or, with none placed, keeps its pass's line.
     /// </summary>
     private (double Scale, double Offset)[][] ReadingLines(double character)
@@ -461,6 +462,7 @@ internal sealed class StreamMerge
         var order = Enumerable.Range(0, _passes.Count).OrderBy(p => p == reference ? 0 : 1).ThenByDescending(p => features[p].Sum(f => f.Count)).ToList();
         var placed = new List<(long Feature, double Time)>(features[reference].SelectMany(f => f));
         var placedEnds = new List<(long Feature, double Time)>(_passes[reference].Candidates.SelectMany(c => ReadingEnds(c, _passes[reference].Candidates, _timelines[reference], character)));
+        var placedShort = new List<(long Feature, double Time)>(_passes[reference].Candidates.SelectMany(c => ShortStretch(c, _passes[reference].Candidates, _timelines[reference], character)));
         foreach (int p in order.Skip(1))
         {
             var candidates = _passes[p].Candidates;
@@ -482,6 +484,7 @@ internal sealed class StreamMerge
                 }
             }
 
+            PlaceShortStretches(candidates, _timelines[p], character, placedShort, lines[p], placedByOwn);
             PlaceWithItsCapture(candidates, lines[p], placedByOwn);
 
             for (int ci = 0; ci < features[p].Length; ci++)
@@ -489,6 +492,7 @@ internal sealed class StreamMerge
                 var (scale, offset) = lines[p][ci];
                 placed.AddRange(features[p][ci].Select(f => (f.Feature, (scale * f.Time) + offset)));
                 placedEnds.AddRange(ReadingEnds(candidates[ci], candidates, _timelines[p], character).Select(f => (f.Feature, (scale * f.Time) + offset)));
+                placedShort.AddRange(ShortStretch(candidates[ci], candidates, _timelines[p], character).Select(f => (f.Feature, (scale * f.Time) + offset)));
             }
         }
 
@@ -560,6 +564,24 @@ internal sealed class StreamMerge
             yield break;
         }
 
+        var (resumed, broken) = Neighbours(c, pass, timeline, character);
+        if (!resumed)
+        {
+            yield return (Feature(c.Payload.AsSpan(0, 4)) | ReadingStartMark, timeline.Map(c.ByteSeconds[0]));
+        }
+
+        if (!broken)
+        {
+            yield return (Feature(c.Payload.AsSpan(c.Payload.Length - 4, 4)) | ReadingEndMark, timeline.Map(c.ByteSeconds[^4]));
+        }
+    }
+
+    /// <summary>
+    /// Whether the reading's own setting read another reading of the capture just before it (<c>Resumed</c>: within the
+    /// silence that parts stretches, <see cref="StretchGap"/>) or just after it (<c>Broken</c>).
+    /// </summary>
+    private static (bool Resumed, bool Broken) Neighbours(BlockCandidate c, IReadOnlyList<BlockCandidate> pass, PassTimeline timeline, double character)
+    {
         double gap = StretchGap(character);
         double first = timeline.Map(c.ByteSeconds[0]), last = timeline.Map(c.ByteSeconds[^1]);
         bool resumed = false, broken = false;
@@ -575,15 +597,87 @@ internal sealed class StreamMerge
             broken |= otherFirst > last && otherFirst - last < gap;
         }
 
-        if (!resumed)
+        return (resumed, broken);
+    }
+
+    /// <summary>
+    /// A reading of fewer than four characters that is a whole stretch of tone (its setting read nothing of the capture
+    /// just before or after it, <see cref="Neighbours"/>): its characters and their count as one feature, marked as such
+    /// (<see cref="ShortStretchMark"/>), at the time of its first on its pass's line. None otherwise.
+    /// </summary>
+    private static IEnumerable<(long Feature, double Time)> ShortStretch(BlockCandidate c, IReadOnlyList<BlockCandidate> pass, PassTimeline timeline, double character)
+    {
+        if (c.Payload.IsEmpty || c.Payload.Length >= 4 || c.ByteSeconds.Length == 0 || Neighbours(c, pass, timeline, character) != (false, false))
         {
-            yield return (Feature(c.Payload.AsSpan(0, 4)) | ReadingStartMark, timeline.Map(c.ByteSeconds[0]));
+            yield break;
         }
 
-        if (!broken)
+        Span<byte> four = stackalloc byte[4];
+        c.Payload.AsSpan().CopyTo(four);
+        yield return (Feature(four) | ((long)c.Payload.Length << 32) | ShortStretchMark, timeline.Map(c.ByteSeconds[0]));
+    }
+
+    /// <summary>
+    /// Places each reading of one capture that is a whole short stretch of tone (a file of fewer than four characters,
+    /// <see cref="ShortStretch"/>) and could not be placed by its own characters, where the nearest whole reading of the
+    /// same characters by a capture placed before lies, unless another reading of its capture lies between the two (its
+    /// capture's order of stretches holds). Such a file has no run of four characters and no four at its ends to be placed
+    /// by (<see cref="ReadingEnds"/>), and, with no longer reading of its capture at that time, it kept its pass's line,
+    /// off by as much as the silence before it differed on this recording (a second and more): its characters then lay
+    /// alone, a stretch of their own, so that the image held the file twice, the copy that several captures read alike
+    /// voted near certain, and every file after it keyed one stretch later than it lies.
+    /// </summary>
+    private static void PlaceShortStretches(IReadOnlyList<BlockCandidate> candidates, PassTimeline timeline, double character, List<(long Feature, double Time)> placedShort, (double Scale, double Offset)[] lines, bool[] placedByOwn)
+    {
+        for (int ci = 0; ci < candidates.Count; ci++)
         {
-            yield return (Feature(c.Payload.AsSpan(c.Payload.Length - 4, 4)) | ReadingEndMark, timeline.Map(c.ByteSeconds[^4]));
+            if (placedByOwn[ci])
+            {
+                continue;
+            }
+
+            foreach (var (feature, time) in ShortStretch(candidates[ci], candidates, timeline, character))
+            {
+                double nearest = double.NaN;
+                foreach (var (placedFeature, placedTime) in placedShort)
+                {
+                    if (placedFeature == feature && !(Math.Abs(placedTime - time) >= Math.Abs(nearest - time)))
+                    {
+                        nearest = placedTime;
+                    }
+                }
+
+                if (!double.IsNaN(nearest) && !ReadingBetween(candidates, ci, timeline, Math.Min(time, nearest), Math.Max(time, nearest)))
+                {
+                    lines[ci] = (1, nearest - time);
+                    placedByOwn[ci] = true;
+                }
+            }
         }
+    }
+
+    /// <summary>
+    /// Whether a reading of the capture other than those of the same stretch as reading <paramref name="of"/> (which
+    /// overlap it in the capture's seconds) lies, on its pass's line, between <paramref name="from"/> and <paramref name="to"/>.
+    /// </summary>
+    private static bool ReadingBetween(IReadOnlyList<BlockCandidate> candidates, int of, PassTimeline timeline, double from, double to)
+    {
+        var seconds = candidates[of].ByteSeconds;
+        foreach (var other in candidates)
+        {
+            var its = other.ByteSeconds;
+            if (its.Length == 0 || Math.Min(seconds[^1], its[^1]) >= Math.Max(seconds[0], its[0]))
+            {
+                continue;
+            }
+
+            if (timeline.Map(its[^1]) > from && timeline.Map(its[0]) < to)
+            {
+                return true;
+            }
+        }
+
+        return false;
     }
 
     /// <summary>The least silence, in nominal seconds, that parts two stretches of tone (two files) rather than a dropout inside one.</summary>
@@ -594,6 +688,9 @@ internal sealed class StreamMerge
 
     /// <summary>Marks a feature as a reading's last four characters.</summary>
     private const long ReadingEndMark = 1L << 41;
+
+    /// <summary>Marks a feature as a whole short reading's characters and their count (bits 0–34, <see cref="ShortStretch"/>).</summary>
+    private const long ShortStretchMark = 1L << 42;
 
     /// <summary>Four characters as one feature.</summary>
     private static long Feature(ReadOnlySpan<byte> four) => (uint)four[0] | ((uint)four[1] << 8) | ((uint)four[2] << 16) | ((uint)four[3] << 24);

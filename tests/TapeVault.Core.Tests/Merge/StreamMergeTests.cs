@@ -196,6 +196,18 @@ public sealed class StreamMergeTests
         Assert.InRange(read[1].Confidence, 0, StreamMerge.LonePieceGenuine(2));
     }
 
+    /// <summary>
+    /// One capture of two files, <paramref name="first"/> from <paramref name="start"/> seconds and <paramref name="second"/>
+    /// after <paramref name="pause"/> seconds of idle tone, each read alike by two detector settings.
+    /// </summary>
+    private static MergePass TwoFiles(int capture, byte[] first, byte[] second, double start, double pause) => Readings.Pass(
+        capture,
+        [.. new[] { "s0", "s1" }.SelectMany(setting => new[]
+        {
+            Readings.Stream(first, 0, first.Length, start, Character, setting),
+            Readings.Stream(second, 0, second.Length, start + (first.Length * Character) + pause, Character, setting, position: 1),
+        })]);
+
     [Fact]
     public void Stream_AFileOfOneByteRepeated_IsPlacedByItsEnds_WhereTheSilenceBeforeTheNextFileDiffers()
     {
@@ -205,21 +217,30 @@ public sealed class StreamMergeTests
         // at 1200 baud): its pass's line, which only the text can fit, puts its reading of the fill eleven characters late.
         var fill = Enumerable.Repeat((byte)0xFC, 60).ToArray();
         var text = Text();
-        // Each capture is read by two detector settings alike.
-        MergePass Capture(int capture, double start, double pause) => Readings.Pass(
-            capture,
-            [.. new[] { "s0", "s1" }.SelectMany(setting => new[]
-            {
-                Readings.Stream(fill, 0, fill.Length, start, Character, setting),
-                Readings.Stream(text, 0, text.Length, start + (fill.Length * Character) + pause, Character, setting, position: 1),
-            })]);
-
-        var image = TapeMerger.Merge([Capture(0, 1.0, 1.0), Capture(1, 1.3, 1.1)], Kcs);
+        var image = TapeMerger.Merge([TwoFiles(0, fill, text, 1.0, 1.0), TwoFiles(1, fill, text, 1.3, 1.1)], Kcs);
 
         // Each file as written (the bytes the readings were built from, KCS framing as above): the fill is read whole and
         // no longer, by both captures (before, the run read longer than written: the second capture's reading of it lay
         // where its pass's line put it, eleven characters late).
         Assert.Equal([Hex(fill), Hex(text)], image.Blocks.Select(b => Hex(b.Payload)));
+        Assert.All(image.Blocks, b => Assert.Equal(2, b.AgreeingCaptures));
+    }
+
+    [Fact]
+    public void Stream_AFileOfThreeCharacters_IsPlacedWhereTheOtherCapturesReadItWhole_WhereTheSilenceBeforeItDiffers()
+    {
+        // Two files: three characters, then text. The second capture was recorded with a second more idle tone between
+        // the files than the first (about 109 characters at 1200 baud), so its pass's line, which only the text fits,
+        // puts its reading of the short file a second early. Three characters have no run of four to place them by, and
+        // no other reading of the capture lies at that time: before, it kept its pass's line and lay alone, a stretch of
+        // its own, so the image held the short file twice and every file after it one place later than written.
+        byte[] shortFile = [0x33, 0x30, 0x70];
+        var text = Text();
+        var image = TapeMerger.Merge([TwoFiles(0, shortFile, text, 1.0, 1.0), TwoFiles(1, shortFile, text, 1.3, 2.0)], Kcs);
+
+        // Each file as written (the bytes the readings were built from), once, in the order written, read by both captures.
+        Assert.Equal([Hex(shortFile), Hex(text)], image.Blocks.Select(b => Hex(b.Payload)));
+        Assert.Equal(["#0", "#1"], image.Blocks.Select(b => b.Key));
         Assert.All(image.Blocks, b => Assert.Equal(2, b.AgreeingCaptures));
     }
 
