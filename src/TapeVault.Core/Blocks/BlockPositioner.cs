@@ -382,6 +382,13 @@ public static partial class BlockPositioner
     private const double SyncSeconds = 0.03;
 
     /// <summary>
+    /// The latest a setting's reading may start after the others' at one sync and still be of it, where it starts inside
+    /// theirs. Our choice: settings with fixed thresholds were seen locking on 30 to 60 ms late; copies are written back
+    /// to back with a lead-in before each, several times this apart, so a reading this late is not the next copy's.
+    /// </summary>
+    private const double LateSyncSeconds = 0.07;
+
+    /// <summary>
     /// The longest span from a sync to the next that is taken for one copy's, over the median of all such spans of a
     /// capture (most are one copy's): half again. Our choice, from one capture where two spans over several unread
     /// copies added up by chance to a third.
@@ -416,16 +423,22 @@ public static partial class BlockPositioner
             cleanList.Add(false);
         }
 
+        // A setting that locks on the sync later than the others (a fixed threshold needs more of the sync's pulses)
+        // starts inside the copy they read from it: a reading that starts inside a reading of the sync before, within
+        // LateSyncSeconds of it, read that sync too.
         int sync = -1;
-        double syncStart = double.NegativeInfinity;
+        double syncStart = double.NegativeInfinity, syncEnd = double.NegativeInfinity;
         for (int i = 0; i < keyed.Count; i++)
         {
             var c = keyed[i].Candidate;
-            if (c.StartSeconds - syncStart > SyncSeconds)
+            if (c.StartSeconds - syncStart > SyncSeconds && !(c.StartSeconds - syncStart <= LateSyncSeconds && c.StartSeconds < syncEnd))
             {
                 sync++;
                 syncStart = c.StartSeconds;
+                syncEnd = double.NegativeInfinity;
             }
+
+            syncEnd = Math.Max(syncEnd, c.EndSeconds);
 
             syncOf[i] = sync;
             if (!stray[i])
