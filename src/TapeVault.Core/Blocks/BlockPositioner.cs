@@ -424,21 +424,26 @@ public static partial class BlockPositioner
         }
 
         // A setting that locks on the sync later than the others (a fixed threshold needs more of the sync's pulses)
-        // starts inside the copy they read from it: a reading that starts inside a reading of the sync before, within
-        // LateSyncSeconds of it, read that sync too.
+        // starts inside the copy they read from it: a reading that starts within LateSyncSeconds of the sync, and
+        // within a quarter of the longest whole reading from it (blocks may be shorter than the lead-ins of others),
+        // read that sync too.
         int sync = -1;
-        double syncStart = double.NegativeInfinity, syncEnd = double.NegativeInfinity;
+        double syncStart = double.NegativeInfinity, syncWhole = 0;
         for (int i = 0; i < keyed.Count; i++)
         {
             var c = keyed[i].Candidate;
-            if (c.StartSeconds - syncStart > SyncSeconds && !(c.StartSeconds - syncStart <= LateSyncSeconds && c.StartSeconds < syncEnd))
+            double late = c.StartSeconds - syncStart;
+            if (late > SyncSeconds && !(late <= Math.Min(LateSyncSeconds, 0.25 * syncWhole)))
             {
                 sync++;
                 syncStart = c.StartSeconds;
-                syncEnd = double.NegativeInfinity;
+                syncWhole = 0;
             }
 
-            syncEnd = Math.Max(syncEnd, c.EndSeconds);
+            if (!c.Truncated && c.StartSeconds - syncStart <= SyncSeconds)
+            {
+                syncWhole = Math.Max(syncWhole, c.EndSeconds - c.StartSeconds);
+            }
 
             syncOf[i] = sync;
             if (!stray[i])
