@@ -382,6 +382,13 @@ public static partial class BlockPositioner
     private const double SyncSeconds = 0.03;
 
     /// <summary>
+    /// The latest a setting's reading may start after the others' at one sync and still be of it, where it starts inside
+    /// theirs. Our choice: settings with fixed thresholds were seen locking on 30 to 60 ms late; copies are written back
+    /// to back with a lead-in before each, several times this apart, so a reading this late is not the next copy's.
+    /// </summary>
+    private const double LateSyncSeconds = 0.07;
+
+    /// <summary>
     /// The longest span from a sync to the next that is taken for one copy's, over the median of all such spans of a
     /// capture (most are one copy's): half again. Our choice, from one capture where two spans over several unread
     /// copies added up by chance to a third.
@@ -416,15 +423,26 @@ public static partial class BlockPositioner
             cleanList.Add(false);
         }
 
+        // A setting that locks on the sync later than the others (a fixed threshold needs more of the sync's pulses)
+        // starts inside the copy they read from it: a reading that starts within LateSyncSeconds of the sync, and
+        // within a quarter of the longest whole reading from it (blocks may be shorter than the lead-ins of others),
+        // read that sync too.
         int sync = -1;
-        double syncStart = double.NegativeInfinity;
+        double syncStart = double.NegativeInfinity, syncWhole = 0;
         for (int i = 0; i < keyed.Count; i++)
         {
             var c = keyed[i].Candidate;
-            if (c.StartSeconds - syncStart > SyncSeconds)
+            double late = c.StartSeconds - syncStart;
+            if (late > SyncSeconds && !(late <= Math.Min(LateSyncSeconds, 0.25 * syncWhole)))
             {
                 sync++;
                 syncStart = c.StartSeconds;
+                syncWhole = 0;
+            }
+
+            if (!c.Truncated && c.StartSeconds - syncStart <= SyncSeconds)
+            {
+                syncWhole = Math.Max(syncWhole, c.EndSeconds - c.StartSeconds);
             }
 
             syncOf[i] = sync;

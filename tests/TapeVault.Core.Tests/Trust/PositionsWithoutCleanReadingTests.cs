@@ -27,14 +27,14 @@ public sealed class PositionsWithoutCleanReadingTests
     private static double Sync(int block, int copy) => 1.5 + block + (0.5 * copy);
 
     /// <summary>A whole reading whose header (all three bytes) a setting garbled from <paramref name="header"/> and whose payload is wrong too (so it fails).</summary>
-    private static BlockCandidate Garbled(int block, int copy, string setting, byte header)
+    private static BlockCandidate Garbled(int block, int copy, string setting, byte header, double late = 0)
     {
         var written = Readings.Written(Profile, block);
         written[0] = header;
         written[1] = (byte)(header ^ 0x5A);
         written[2] = (byte)(header ^ 0x33);
         var payloadByte = written[Profile.Layout.HeaderBytes];
-        return Readings.Of(Profile, written, Sync(block, copy) + 0.001, 0, setting, changedPayload: new Dictionary<int, byte> { [0] = (byte)(payloadByte ^ 0x21) });
+        return Readings.Of(Profile, written, Sync(block, copy) + 0.001 + late, 0, setting, changedPayload: new Dictionary<int, byte> { [0] = (byte)(payloadByte ^ 0x21) });
     }
 
     /// <summary>Copy <paramref name="copy"/> of block <paramref name="block"/> read by settings s0 and s1, each garbling every header its own way.</summary>
@@ -181,6 +181,30 @@ public sealed class PositionsWithoutCleanReadingTests
         var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
 
         AssertEachBlockOnePosition(placed, 5);
+    }
+
+    [Fact]
+    public void A_setting_that_locks_on_the_sync_late_reads_the_copy_the_others_read_there()
+    {
+        // Three blocks, each written twice and read only garbled: at every copy one setting stops after one byte of the
+        // header, another reads the copy whole, and a third locks on the sync 45 ms after them (a fixed threshold needs
+        // more of the sync's pulses), so its reading starts inside theirs. Copies lie half a second apart, so a reading
+        // that starts inside another setting's, that soon after its sync, can be of no other copy. Seen on the
+        // three-class-pairs format at random damage: the late setting's readings in positions of their own.
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < 3; block++)
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                readings.Add(CutInHeader(block, copy, "s0", (block * 2) + copy));
+                readings.Add(Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy)));
+                readings.Add(Garbled(block, copy, "s2", (byte)(0x90 + (block * 2) + copy), late: 0.045));
+            }
+        }
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        AssertEachBlockOnePosition(placed, 3);
     }
 
     /// <summary>As many positions as blocks; every reading of one block's copies shares a position, and no other block's reading is there.</summary>
