@@ -123,30 +123,34 @@ public static class SyncFormatSearch
             // nothing does, the mapping and the sync are marked as not told.
             var mapping = candidate.Mapping;
             bool mappingAmbiguous = false;
+            var framing = candidate.Framing;
             foreach (var other in mappings.Where(m => m != candidate.Mapping))
             {
-                for (int alternative = Math.Max(1, candidate.Sync - 1); alternative < candidate.Sync + candidate.Framing.BitsPerByte && alternative <= Math.Min(prefix, MaximumSync) && searches < MaximumLayoutSearches; alternative++)
+                foreach (var otherFraming in new[] { candidate.Framing, Complemented(candidate.Framing) }.Distinct())
                 {
-                    if (FramingShare(usable, alternative, other, candidate.Framing) < FramingHolds && candidate.Constraints > 0)
+                    for (int alternative = Math.Max(1, candidate.Sync - 1); alternative < candidate.Sync + otherFraming.BitsPerByte && alternative <= Math.Min(prefix, MaximumSync) && searches < MaximumLayoutSearches; alternative++)
                     {
-                        continue;
-                    }
+                        if (candidate.Constraints > 0 && FramingShare(usable, alternative, other, otherFraming) < FramingHolds)
+                        {
+                            continue;
+                        }
 
-                    var more = Readings(alternative, candidate.Framing, other);
-                    if (more.Count == 0)
-                    {
-                        continue;
-                    }
+                        var more = Readings(alternative, otherFraming, other);
+                        if (more.Count == 0)
+                        {
+                            continue;
+                        }
 
-                    int compared = Score(more).CompareTo(Score(found));
-                    if (compared > 0)
-                    {
-                        (sync, found, mapping) = (alternative, more, other);
-                        mappingAmbiguous = false;
-                    }
-                    else if (compared == 0 && mapping != other)
-                    {
-                        mappingAmbiguous = true;
+                        int compared = Score(more).CompareTo(Score(found));
+                        if (compared > 0)
+                        {
+                            (sync, found, mapping, framing) = (alternative, more, other, otherFraming);
+                            mappingAmbiguous = false;
+                        }
+                        else if (compared == 0 && mapping != other)
+                        {
+                            mappingAmbiguous = true;
+                        }
                     }
                 }
             }
@@ -155,7 +159,8 @@ public static class SyncFormatSearch
             bool ambiguous = found.Count == 2
                 && found[0].Layout.Fields.Count == found[1].Layout.Fields.Count
                 && Math.Abs(CommonSections.PrintableShare(found[0].Layout.Blocks) - CommonSections.PrintableShare(found[1].Layout.Blocks)) < 0.3;
-            return Absorb(usable, sync, mapping, best.Framing, candidate.Share, best.Layout, prefix, ordered.Count, leadInSymbol, ambiguous) with { MappingAmbiguous = mappingAmbiguous };
+            double share = framing == candidate.Framing ? candidate.Share : FramingShare(usable, sync, mapping, framing);
+            return Absorb(usable, sync, mapping, best.Framing, share, best.Layout, prefix, ordered.Count, leadInSymbol, ambiguous) with { MappingAmbiguous = mappingAmbiguous };
 
             // Both bit orders: a reflected CRC over bit-reversed bytes can hold as well as the plain one over the
             // bytes as written, so a check holding in one order proves the order only when it fails in the other.
@@ -185,6 +190,17 @@ public static class SyncFormatSearch
 
         var plain = LayoutSearch.Search(Blocks(usable, f.Sync, f.Mapping, f.Framing, leadInSymbol));
         return new SyncReading(Majority(usable, f.Sync), f.Mapping, f.Framing, f.Share, plain, prefix, ordered.Count, OrderAmbiguous: true);
+    }
+
+    /// <summary>
+    /// The framing that reads the same frames with every bit complemented: start and stop bits flipped, and the parity
+    /// the other way where data and parity bits together are an odd count.
+    /// </summary>
+    internal static ByteFraming Complemented(ByteFraming framing)
+    {
+        static string Flip(string bits) => new([.. bits.Select(c => c == '0' ? '1' : '0')]);
+        var parity = framing.Parity == Parity.None || (framing.DataBits + 1) % 2 == 0 ? framing.Parity : framing.Parity == Parity.Odd ? Parity.Even : Parity.Odd;
+        return framing with { StartBits = Flip(framing.StartBits), StopBits = Flip(framing.StopBits), Parity = parity };
     }
 
     /// <summary>How well the readings of one sync length hold: blocks the check holds on, then header fields, then text.</summary>
