@@ -368,12 +368,39 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         Layout(proposal, reading.Layout);
         AmbiguousOrder(proposal, reading);
         AbsorbedSync(proposal, reading, "pulseWidth.sync");
+        AmbiguousMapping(proposal, reading);
         if (gapped || reading.Sync.Length >= 5)
         {
             SyncAsBytes(proposal, reading, leadIn);
         }
         proposal.Notes.Add($"Read through detector setting {setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync, mapping and framing held.");
         return proposal;
+    }
+
+    /// <summary>
+    /// Where a reading with the bits the other way round (and its own sync) holds its check as well as the one drafted,
+    /// with as many header fields and as much text (<see cref="SyncReading.MappingAmbiguous"/>), the check does not
+    /// tell which class is 0 nor where the sync ends: the mapping and the sync are guesses for the curator to confirm.
+    /// </summary>
+    private static void AmbiguousMapping(FamilyProposal proposal, SyncReading reading)
+    {
+        if (!reading.Layout.HasChecksum || !reading.MappingAmbiguous)
+        {
+            return;
+        }
+
+        const string why = "the check holds as well with the bits the other way round (a one-byte XOR over an even count of bytes holds on every byte complemented, and on bits shifted by one where bytes have no start or stop bits), and neither reading has more header fields or more text";
+        foreach (string path in new[] { "pulseWidth.zero", "pulseWidth.one", "pulseWidth.sync" })
+        {
+            int at = proposal.Findings.FindIndex(f => f.Path == path);
+            if (at >= 0)
+            {
+                var f = proposal.Findings[at];
+                proposal.Findings[at] = f with { Guessed = true, Confidence = Math.Min(f.Confidence, 0.5), Evidence = f.Evidence + "; but " + why };
+            }
+        }
+
+        proposal.Notes.Add("Which class is 0 and where the sync ends are not told by the check: " + why + ".");
     }
 
     /// <summary>

@@ -18,7 +18,16 @@ public sealed record SyncReading(
     int CommonPrefix,
     int Candidates,
     bool OrderAmbiguous,
-    int AbsorbedBytes = 0);
+    int AbsorbedBytes = 0)
+{
+    /// <summary>
+    /// Whether a reading with the other mapping of symbols to bits (and its own sync length) holds as well as this one,
+    /// with as many header fields and as much text: a check such as a one-byte XOR still holds on every byte
+    /// complemented (an even number of bytes in its coverage) and on the bits shifted by one where bytes have no start
+    /// or stop bits, so the check alone tells neither the mapping nor where the sync ends.
+    /// </summary>
+    public bool MappingAmbiguous { get; init; }
+}
 
 /// <summary>
 /// For formats whose bytes follow a sync back to back (pulse-width and biphase): every block's symbols after its
@@ -107,15 +116,55 @@ public static class SyncFormatSearch
                 }
             }
 
+            // The other mappings, at the syncs from this one up to a byte longer: a check invariant under complement
+            // (a one-byte XOR over an even count of bytes) holds with the bits the other way round, and where bytes
+            // have no start or stop bits a one-bit shift (a sync one pulse shorter or longer) may hold too. Other
+            // evidence decides (blocks holding, then header fields such as a counter that counts up, then text); where
+            // nothing does, the mapping and the sync are marked as not told.
+            var mapping = candidate.Mapping;
+            bool mappingAmbiguous = false;
+            var framing = candidate.Framing;
+            foreach (var other in mappings.Where(m => m != candidate.Mapping))
+            {
+                foreach (var otherFraming in new[] { candidate.Framing, Complemented(candidate.Framing) }.Distinct())
+                {
+                    for (int alternative = Math.Max(1, candidate.Sync - 1); alternative < candidate.Sync + otherFraming.BitsPerByte && alternative <= Math.Min(prefix, MaximumSync) && searches < MaximumLayoutSearches; alternative++)
+                    {
+                        if (candidate.Constraints > 0 && FramingShare(usable, alternative, other, otherFraming) < FramingHolds)
+                        {
+                            continue;
+                        }
+
+                        var more = Readings(alternative, otherFraming, other);
+                        if (more.Count == 0)
+                        {
+                            continue;
+                        }
+
+                        int compared = Score(more).CompareTo(Score(found));
+                        if (compared > 0)
+                        {
+                            (sync, found, mapping, framing) = (alternative, more, other, otherFraming);
+                            mappingAmbiguous = false;
+                        }
+                        else if (compared == 0 && mapping != other)
+                        {
+                            mappingAmbiguous = true;
+                        }
+                    }
+                }
+            }
+
             var best = found.OrderByDescending(f => f.Layout.Fields.Count).ThenByDescending(f => CommonSections.PrintableShare(f.Layout.Blocks)).First();
             bool ambiguous = found.Count == 2
                 && found[0].Layout.Fields.Count == found[1].Layout.Fields.Count
                 && Math.Abs(CommonSections.PrintableShare(found[0].Layout.Blocks) - CommonSections.PrintableShare(found[1].Layout.Blocks)) < 0.3;
-            return Absorb(usable, sync, candidate.Mapping, best.Framing, candidate.Share, best.Layout, prefix, ordered.Count, leadInSymbol, ambiguous);
+            double share = framing == candidate.Framing ? candidate.Share : FramingShare(usable, sync, mapping, framing);
+            return Absorb(usable, sync, mapping, best.Framing, share, best.Layout, prefix, ordered.Count, leadInSymbol, ambiguous) with { MappingAmbiguous = mappingAmbiguous };
 
             // Both bit orders: a reflected CRC over bit-reversed bytes can hold as well as the plain one over the
             // bytes as written, so a check holding in one order proves the order only when it fails in the other.
-            List<(ByteFraming Framing, LayoutFinding Layout)> Readings(int syncLength, ByteFraming framing)
+            List<(ByteFraming Framing, LayoutFinding Layout)> Readings(int syncLength, ByteFraming framing, BitMapping? with = null)
             {
                 var readings = new List<(ByteFraming Framing, LayoutFinding Layout)>();
                 foreach (var order in new[] { BitOrder.LsbFirst, BitOrder.MsbFirst })
@@ -123,7 +172,7 @@ public static class SyncFormatSearch
                     searches++;
                     cancellation.ThrowIfCancellationRequested();
                     var framed = framing with { BitOrder = order };
-                    var layout = LayoutSearch.Search(Blocks(usable, syncLength, candidate.Mapping, framed, leadInSymbol));
+                    var layout = LayoutSearch.Search(Blocks(usable, syncLength, with ?? candidate.Mapping, framed, leadInSymbol));
                     if (layout.HasChecksum)
                     {
                         readings.Add((framed, layout));
@@ -141,6 +190,17 @@ public static class SyncFormatSearch
 
         var plain = LayoutSearch.Search(Blocks(usable, f.Sync, f.Mapping, f.Framing, leadInSymbol));
         return new SyncReading(Majority(usable, f.Sync), f.Mapping, f.Framing, f.Share, plain, prefix, ordered.Count, OrderAmbiguous: true);
+    }
+
+    /// <summary>
+    /// The framing that reads the same frames with every bit complemented: start and stop bits flipped, and the parity
+    /// the other way where data and parity bits together are an odd count.
+    /// </summary>
+    internal static ByteFraming Complemented(ByteFraming framing)
+    {
+        static string Flip(string bits) => new([.. bits.Select(c => c == '0' ? '1' : '0')]);
+        var parity = framing.Parity == Parity.None || (framing.DataBits + 1) % 2 == 0 ? framing.Parity : framing.Parity == Parity.Odd ? Parity.Even : Parity.Odd;
+        return framing with { StartBits = Flip(framing.StartBits), StopBits = Flip(framing.StopBits), Parity = parity };
     }
 
     /// <summary>How well the readings of one sync length hold: blocks the check holds on, then header fields, then text.</summary>
