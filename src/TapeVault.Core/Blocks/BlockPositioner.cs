@@ -424,9 +424,9 @@ public static partial class BlockPositioner
         }
 
         // A setting that locks on the sync later than the others (a fixed threshold needs more of the sync's pulses)
-        // starts inside the copy they read from it: a reading that starts within LateSyncSeconds of the sync, and
-        // within a quarter of the longest whole reading from it (blocks may be shorter than the lead-ins of others),
-        // read that sync too.
+        // starts a little after them, inside the copy they read from it. Bounded by time only (the overlap is not
+        // checked): a reading that starts within LateSyncSeconds of the sync, and within a quarter of the longest whole
+        // reading from it (blocks may be shorter than the lead-ins of others), read that sync too.
         int sync = -1;
         double syncStart = double.NegativeInfinity, syncWhole = 0;
         for (int i = 0; i < keyed.Count; i++)

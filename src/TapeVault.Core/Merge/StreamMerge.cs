@@ -641,7 +641,7 @@ internal sealed class StreamMerge
                 double nearest = double.NaN;
                 foreach (var (placedFeature, placedTime) in placedShort)
                 {
-                    if (placedFeature == feature && !(Math.Abs(placedTime - time) >= Math.Abs(nearest - time)))
+                    if (placedFeature == feature && (double.IsNaN(nearest) || Math.Abs(placedTime - time) < Math.Abs(nearest - time)))
                     {
                         nearest = placedTime;
                     }

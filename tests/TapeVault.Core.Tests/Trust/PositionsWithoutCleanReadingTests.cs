@@ -62,6 +62,13 @@ public sealed class PositionsWithoutCleanReadingTests
         return readings;
     }
 
+    /// <summary>Both copies of <paramref name="block"/> read clean by setting s1.</summary>
+    private static BlockCandidate[] ReadCleanBySetting1(int block) =>
+    [
+        Readings.Of(Profile, Readings.Written(Profile, block), Sync(block, 0), 0, "s1"),
+        Readings.Of(Profile, Readings.Written(Profile, block), Sync(block, 1), 0, "s1"),
+    ];
+
     /// <summary>A reading cut short after one byte of its header: no field of an identity, nothing of the payload.</summary>
     private static BlockCandidate CutInHeader(int block, int copy, string setting, int ordinal)
     {
@@ -111,8 +118,7 @@ public sealed class PositionsWithoutCleanReadingTests
         // damage: block 2's copies stood in two positions, and from there on each block's second copy was paired with
         // the next block's first.
         var readings = GarbledButOneCopy(6, 3, 0);
-        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 6), Sync(6, 0), 0, "s1"));
-        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 6), Sync(6, 1), 0, "s1"));
+        readings.AddRange(ReadCleanBySetting1(6));
 
         var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
 
@@ -175,8 +181,7 @@ public sealed class PositionsWithoutCleanReadingTests
         // at every place: it tells no block from the next. Seen on the three-class-pairs format at random damage: one
         // block's second copy and the next block's first in one position, the copies of the blocks around alone.
         var readings = GarbledButOneCopy(4, 1, 0).ConvertAll(c => c with { Identity = new BlockIdentity(null, null, 1, c.Identity.Ordinal) });
-        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 4), Sync(4, 0), 0, "s1"));
-        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 4), Sync(4, 1), 0, "s1"));
+        readings.AddRange(ReadCleanBySetting1(4));
 
         var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
 
@@ -232,8 +237,7 @@ public sealed class PositionsWithoutCleanReadingTests
             readings.AddRange(GarbledByTwoSettings(block, copy));
         }
 
-        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 7), Sync(7, 0), 0, "s1"));
-        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 7), Sync(7, 1), 0, "s1"));
+        readings.AddRange(ReadCleanBySetting1(7));
 
         var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
 
@@ -297,8 +301,7 @@ public sealed class PositionsWithoutCleanReadingTests
             }
         }
 
-        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 1), Sync(1, 0), 0, "s1"));
-        readings.Add(Readings.Of(Profile, Readings.Written(Profile, 1), Sync(1, 1), 0, "s1"));
+        readings.AddRange(ReadCleanBySetting1(1));
 
         var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
 
