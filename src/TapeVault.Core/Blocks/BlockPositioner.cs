@@ -147,7 +147,7 @@ public static partial class BlockPositioner
             // same setting, after as many as the format writes, is another block whose header was misread alike. And
             // a clean reading is another block than a clean reading of other bytes that it does not overlap on the
             // tape, whichever setting read them: headers that carry only a block number repeat from file to file.
-            int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnds[ofKey[^1]].End + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds, key != candidate.Identity.Key)
+            int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnds[ofKey[^1]].End + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds, !KeyReadAtSync(i))
                 && (candidate.Truncated || wholeBySetting.GetValueOrDefault((ofKey[^1], candidate.SettingIndex)) < Math.Max(1, copies))
                 && !(candidate.Status == BlockStatus.Clean && cleanOf.TryGetValue(ofKey[^1], out var cleanThere) && cleanThere.Exists(t => OtherBlock(t, candidate)))
                 ? ofKey[^1]
@@ -184,10 +184,34 @@ public static partial class BlockPositioner
             lastStretch = found;
         }
 
+        // Whether a reading at reading i's sync (its own or another setting's) reads i's key in its own header: else
+        // i took the key from a neighbour, which may be the block before.
+        bool KeyReadAtSync(int i)
+        {
+            double start = keyed[i].Candidate.StartSeconds;
+            for (int j = i; j >= 0 && start - keyed[j].Candidate.StartSeconds <= SyncSeconds; j--)
+            {
+                if (keyed[j].Candidate.Identity.Key == keyed[i].Key)
+                {
+                    return true;
+                }
+            }
+
+            for (int j = i + 1; j < keyed.Count && keyed[j].Candidate.StartSeconds - start <= SyncSeconds; j++)
+            {
+                if (keyed[j].Candidate.Identity.Key == keyed[i].Key)
+                {
+                    return true;
+                }
+            }
+
+            return false;
+        }
+
         // Whether a block of another stretch was read wholly after stretch s ended and before `start` (only the last
-        // few readings can have begun after s ended). For a reading that took its key from a neighbour (not from its own
-        // header), a lead-in read after s ended counts too: the reading starts a copy of its own there, and the
-        // neighbour's header may be the block's before it.
+        // few readings can have begun after s ended). For a reading whose key no reading at its sync reads in its own
+        // header (it took the key from a neighbour), a lead-in read after s ended counts too: the reading starts a copy
+        // of its own there, and the neighbour's header may be the block's before it.
         bool ReadInBetween(int s, double start, bool keyedByNeighbour)
         {
             for (int r = readings.Count - 1; r >= 0 && readings[r].Start > stretchEnds[s].End; r--)
