@@ -141,9 +141,12 @@ public static class PositionReplay
 
                     foreach (var c in placed)
                     {
-                        string at = copies is not null && StartsAt(c, copies) is { } w ? $"{w.Block}.{w.Copy}{(w.Inside ? " in" : string.Empty)}" : "-";
+                        string at = copies is null ? "-"
+                            : StartsAt(c, copies) is { } w ? $"{w.Block}.{w.Copy}{(w.Inside ? " in" : string.Empty)}"
+                            : Before(c, copies) is { } b ? string.Create(CultureInfo.InvariantCulture, $"<{b.Block}.{b.Copy}-{(b.DataSeconds - c.StartSeconds) * 1000:0}")
+                            : "-";
                         Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                            $"  pos {c.Position,3} {c.StartSeconds,9:0.000}-{c.EndSeconds,9:0.000} {at,-7} {c.SettingName,-4} {c.Status,-9} {(c.Truncated ? "cut" : "   ")} key {c.Identity.Key,-24} header of {string.Join(",", HeaderOf(profile, written, c))}"));
+                            $"  pos {c.Position,3} {c.StartSeconds,9:0.000}-{c.EndSeconds,9:0.000} {at,-7} {c.SettingName,-4} {c.Status,-9} {(c.Truncated ? "cut" : "   ")} pay {c.Payload.Length,3} key {c.Identity.Key,-24} header of {string.Join(",", HeaderOf(profile, written, c))}"));
                     }
                 }
             }
@@ -309,6 +312,20 @@ public static class PositionReplay
             if (c.StartSeconds > s.DataSeconds && c.StartSeconds < s.EndSeconds)
             {
                 return (s.Block, s.Copy, true);
+            }
+        }
+
+        return null;
+    }
+
+    /// <summary>The written copy in whose lead-in (or the gap before it) the reading starts, where it starts before no sync's 50 ms.</summary>
+    private static WrittenSpan? Before(BlockCandidate c, List<WrittenSpan> layout)
+    {
+        foreach (var s in layout)
+        {
+            if (c.StartSeconds < s.DataSeconds)
+            {
+                return s;
             }
         }
 

@@ -104,7 +104,7 @@ public static partial class BlockPositioner
             KeyCopiesMisreadAlike(keyed, anchors, copies, copyGap);
         }
 
-        var stray = KeyUnanchoredReadings(keyed, copies);
+        var stray = KeyUnanchoredReadings(keyed, copies, out var inLeadIn);
 
         // A position is one identity over one stretch of tape: copies and other settings' readings overlap or follow
         // closely; the same identity much later (a block number reused by the next file) is a new position. Copies
@@ -127,6 +127,12 @@ public static partial class BlockPositioner
                 // No block: it joins the stretch it follows (before the first, the first, which the next reading that
                 // is a block makes: stretch 0), and neither ends that stretch nor stands between its copies.
                 positionOf[i] = Math.Max(lastStretch, 0);
+                if (inLeadIn[i])
+                {
+                    // A lead-in lies here: a reading after it keyed by a neighbour is of a copy of its own (ReadInBetween).
+                    readings.Add((candidate.StartSeconds, candidate.EndSeconds, -1));
+                }
+
                 continue;
             }
 
@@ -141,7 +147,7 @@ public static partial class BlockPositioner
             // same setting, after as many as the format writes, is another block whose header was misread alike. And
             // a clean reading is another block than a clean reading of other bytes that it does not overlap on the
             // tape, whichever setting read them: headers that carry only a block number repeat from file to file.
-            int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnds[ofKey[^1]].End + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds)
+            int found = ofKey.Count > 0 && candidate.StartSeconds < stretchEnds[ofKey[^1]].End + reach && !ReadInBetween(ofKey[^1], candidate.StartSeconds, !KeyReadAtSync(i))
                 && (candidate.Truncated || wholeBySetting.GetValueOrDefault((ofKey[^1], candidate.SettingIndex)) < Math.Max(1, copies))
                 && !(candidate.Status == BlockStatus.Clean && cleanOf.TryGetValue(ofKey[^1], out var cleanThere) && cleanThere.Exists(t => OtherBlock(t, candidate)))
                 ? ofKey[^1]
@@ -178,13 +184,39 @@ public static partial class BlockPositioner
             lastStretch = found;
         }
 
+        // Whether a reading at reading i's sync (its own or another setting's) reads i's key in its own header: else
+        // i took the key from a neighbour, which may be the block before.
+        bool KeyReadAtSync(int i)
+        {
+            double start = keyed[i].Candidate.StartSeconds;
+            for (int j = i; j >= 0 && start - keyed[j].Candidate.StartSeconds <= SyncSeconds; j--)
+            {
+                if (keyed[j].Candidate.Identity.Key == keyed[i].Key)
+                {
+                    return true;
+                }
+            }
+
+            for (int j = i + 1; j < keyed.Count && keyed[j].Candidate.StartSeconds - start <= SyncSeconds; j++)
+            {
+                if (keyed[j].Candidate.Identity.Key == keyed[i].Key)
+                {
+                    return true;
+                }
+            }
+
+            return false;
+        }
+
         // Whether a block of another stretch was read wholly after stretch s ended and before `start` (only the last
-        // few readings can have begun after s ended).
-        bool ReadInBetween(int s, double start)
+        // few readings can have begun after s ended). For a reading whose key no reading at its sync reads in its own
+        // header (it took the key from a neighbour), a lead-in read after s ended counts too: the reading starts a copy
+        // of its own there, and the neighbour's header may be the block's before it.
+        bool ReadInBetween(int s, double start, bool keyedByNeighbour)
         {
             for (int r = readings.Count - 1; r >= 0 && readings[r].Start > stretchEnds[s].End; r--)
             {
-                if (readings[r].Stretch != s && readings[r].End <= start)
+                if (readings[r].Stretch != s && readings[r].End <= start && (readings[r].Stretch >= 0 || keyedByNeighbour))
                 {
                     return true;
                 }
@@ -873,9 +905,11 @@ public static partial class BlockPositioner
     /// claims nothing (whole failed readings with no payload: the lead-in's run read as an empty header) may also lie
     /// between places where two settings or more read a sync, vouched for or not: no block reads as nothing alone.
     /// </returns>
-    private static bool[] KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed, int copies)
+    /// <param name="inLeadIn">Per reading, whether it is no block because it lies in the lead-in of the sync read next (<see cref="InLeadInOfNextSync"/>).</param>
+    private static bool[] KeyUnanchoredReadings(List<(BlockCandidate Candidate, string Key)> keyed, int copies, out bool[] inLeadIn)
     {
         var stray = new bool[keyed.Count];
+        inLeadIn = new bool[keyed.Count];
         var vouched = new bool[keyed.Count];
         var vouchedSync = new bool[keyed.Count];
         var starts = new double[keyed.Count];
@@ -911,6 +945,7 @@ public static partial class BlockPositioner
 
         var index = new ReadingIndex(keyed);
         var near = new List<int>();
+        double? leadIn = LeadInBeforeSync(keyed, starts);
         var support = new Dictionary<string, int>(StringComparer.Ordinal);
         foreach (var (candidate, key) in keyed)
         {
@@ -1046,11 +1081,13 @@ public static partial class BlockPositioner
                 bool ownBlock = copies <= 1 && !claimsNothing
                     && places[p].Exists(i => NamesItself(keyed[i].Candidate) && ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: false));
                 key = ownBlock || (copies > 1 && !claimsNothing) ? key : overlapped ?? key;
-                if (overlapped is null && BetweenVouchedBlocks(keyed, claimsNothing ? vouchedSync : vouched, starts, byEnd, places[p], atStartToo: claimsNothing) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: claimsNothing)))
+                bool leadInRead = claimsNothing && InLeadInOfNextSync(keyed, starts, places[p], leadIn);
+                if (leadInRead || (overlapped is null && BetweenVouchedBlocks(keyed, claimsNothing ? vouchedSync : vouched, starts, byEnd, places[p], atStartToo: claimsNothing) && places[p].TrueForAll(i => !ResemblesANeighbour(keyed, index, near, i, placeOf, onlyClaims: claimsNothing))))
                 {
                     foreach (int i in places[p])
                     {
                         stray[i] = true;
+                        inLeadIn[i] = leadInRead;
                     }
                 }
             }
@@ -1068,6 +1105,79 @@ public static partial class BlockPositioner
         }
 
         return stray;
+    }
+
+    /// <summary>
+    /// The lead-in a sync follows, as this capture shows it: the median time from the end of a whole reading that offers
+    /// bytes to the next reading's start (a copy read whole ends where its lead-in to the next copy begins; a length
+    /// misread short ends earlier, one misread long runs over the next sync and is not counted). Null where fewer than
+    /// three readings show it.
+    /// </summary>
+    private static double? LeadInBeforeSync(List<(BlockCandidate Candidate, string Key)> keyed, double[] starts)
+    {
+        var spans = new List<double>();
+        for (int i = 0; i < keyed.Count; i++)
+        {
+            var c = keyed[i].Candidate;
+            if (c.Truncated || !ClaimsBytes(c))
+            {
+                continue;
+            }
+
+            int after = LowerBound(starts.Length, j => starts[j] >= c.EndSeconds);
+            if (after < starts.Length)
+            {
+                spans.Add(starts[after] - c.EndSeconds);
+            }
+        }
+
+        if (spans.Count < 3)
+        {
+            return null;
+        }
+
+        spans.Sort();
+        return spans[spans.Count / 2];
+    }
+
+    /// <summary>
+    /// Whether a place of whole readings that claim nothing lies in the lead-in of the sync read next: a reading that
+    /// offers bytes starts after the place ends, sooner than half the lead-in a sync follows (<paramref name="leadIn"/>),
+    /// and later than a setting that locks late on one sync starts (<see cref="LateSyncSeconds"/>). A copy read whole,
+    /// or with its length misread short, is followed by the whole lead-in of the next copy; a false mark in that lead-in
+    /// and the lead-in's run read after it as an empty block's header end inside it. Such a place is no block, whatever
+    /// its neighbours are.
+    /// </summary>
+    private static bool InLeadInOfNextSync(List<(BlockCandidate Candidate, string Key)> keyed, double[] starts, List<int> place, double? leadIn)
+    {
+        if (leadIn is not { } lead)
+        {
+            return false;
+        }
+
+        double start = keyed[place[0]].Candidate.StartSeconds;
+        double end = double.NegativeInfinity;
+        foreach (int i in place)
+        {
+            end = Math.Max(end, keyed[i].Candidate.EndSeconds);
+        }
+
+        int after = LowerBound(starts.Length, i => starts[i] >= end);
+        if (after >= starts.Length || starts[after] - end >= 0.5 * lead || starts[after] - start <= LateSyncSeconds)
+        {
+            return false;
+        }
+
+        // The sync read next offers bytes: some reading from it does.
+        for (int i = after; i < starts.Length && starts[i] - starts[after] <= SyncSeconds; i++)
+        {
+            if (ClaimsBytes(keyed[i].Candidate))
+            {
+                return true;
+            }
+        }
+
+        return false;
     }
 
     /// <summary>

@@ -309,4 +309,76 @@ public sealed class PositionsWithoutCleanReadingTests
         var clean = placed.Where(c => c.Status == BlockStatus.Clean).Select(c => c.Position).Distinct().Single();
         Assert.All(placed.Where(c => c.Position == clean), c => Assert.Equal(BlockStatus.Clean, c.Status));
     }
+
+    /// <summary>
+    /// A false mark in a lead-in taken for the sync by <paramref name="setting"/>, and the lead-in's run after it read as an
+    /// empty block's header: all zero bits (the lead-in's; common practice for such formats), length 0, the check failed,
+    /// 45 ms long.
+    /// </summary>
+    private static BlockCandidate EmptyHeader(double start, string setting)
+    {
+        var zeros = new byte[Profile.Layout.HeaderBytes];
+        var reading = Readings.Of(Profile, Readings.Written(Profile, 0), start, 0, setting);
+        return reading with
+        {
+            Identity = BlockAssembler.ReadIdentity(Profile.Layout, zeros, 0),
+            Header = [.. zeros],
+            Payload = [],
+            Status = BlockStatus.Failed,
+            Confidence = 0,
+            ByteMargins = [],
+            ByteErrorOdds = [],
+            ByteSeconds = [],
+            EndSeconds = start + 0.045,
+        };
+    }
+
+    /// <summary>
+    /// Blocks 0 to <paramref name="blocks"/> − 1, every copy read garbled by setting s1 alone, each copy 0.25 s long and
+    /// the lead-in before the next as long (copies 0.5 s apart as <see cref="Sync"/> places them).
+    /// </summary>
+    private static List<BlockCandidate> GarbledByOneSetting(int blocks)
+    {
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < blocks; block++)
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                var reading = Garbled(block, copy, "s1", (byte)(0xC0 + (block * 2) + copy));
+                readings.Add(reading with { EndSeconds = reading.StartSeconds + 0.25 });
+            }
+        }
+
+        return readings;
+    }
+
+    [Fact]
+    public void A_lead_in_read_as_an_empty_header_before_a_sync_is_no_position()
+    {
+        // Four blocks, each written twice, every copy read garbled by one setting alone; in the lead-in before block 2's
+        // first copy another setting takes a false mark for the sync and reads the lead-in after it as an empty header,
+        // ending 55 ms before the sync. A copy read whole is followed by the whole lead-in of the next, so a reading that
+        // ends that far inside it is no copy. Seen on the Orrin format at random damage: such readings stood in
+        // positions of their own and broke the run of lone copies that the syncs' timing pairs.
+        var readings = GarbledByOneSetting(4);
+        readings.Add(EmptyHeader(Sync(2, 0) - 0.1, "s2"));
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        AssertEachBlockOnePosition(placed, 4);
+    }
+
+    [Fact]
+    public void A_copy_read_as_an_empty_header_at_its_own_sync_keeps_its_place()
+    {
+        // The same empty header read at block 2's first copy's own sync by the only setting that read it: the next sync
+        // follows after the copy's whole length and lead-in, so it is that copy, and pairs with block 2's second copy.
+        var readings = GarbledByOneSetting(4);
+        readings.RemoveAll(c => Math.Abs(c.StartSeconds - Sync(2, 0)) < 0.01);
+        readings.Add(EmptyHeader(Sync(2, 0), "s2"));
+
+        var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
+
+        AssertEachBlockOnePosition(placed, 4);
+    }
 }
