@@ -783,7 +783,7 @@ internal sealed class StreamMerge
     /// it heard room for one (<see cref="KeyConfidences"/>). A stretch whose file is shorter than any reading (one
     /// character: the block stage makes no reading of fewer than two) leaves nothing in any capture's readings, and every
     /// stretch after it is keyed a place early, its bytes right. Counted on the stream tapes the trust benchmark saved
-    /// (kcs-300 and kcs-1200, seeds 138000–170000 and tuning seeds 16200–16336, 1 895 tapes; diagnosis only, the counts
+    /// (kcs-300 and kcs-1200, seeds 138000–170000 and tuning seeds 16200–16336, 1 839 tapes; diagnosis only, the counts
     /// read off by hand): of 26 such silences where a capture heard room, 4 held a first file of one character that no
     /// capture read; of about 1 850 others, none.
     /// </summary>
