@@ -44,7 +44,7 @@ public static class TapeMerger
         options ??= new MergeOptions();
         var timelines = Align(passes, profile);
         var blocks = profile.Layout.IsStream
-            ? new StreamMerge(passes, timelines, profile.Framing.BitsPerByte, profile.Fsk?.Baud, options).Resolve()
+            ? new StreamMerge(passes, timelines, profile.Framing.BitsPerByte, profile.Fsk?.Baud, profile.Recording, options).Resolve()
             : new BlockMerge(profile, passes, timelines, options).Resolve();
         var ordered = blocks.Select((b, i) => b with { Position = i }).ToImmutableArray();
         return new TapeImage

@@ -446,6 +446,56 @@ public sealed class StreamMergeTests
         Assert.True(slow > Math.Pow(1 - StreamMerge.SharedStretchEndError, 2), $"{slow} at 300 baud");
     }
 
+    [Fact]
+    public void Stream_AFileReadAfterSilenceRoomyEnoughForAFileNoCaptureRead_DoesNotClaimItsKeyNearCertain()
+    {
+        // A kcs-300 tape (the Kansas City Standard at 300 baud, BYTE, February 1976) whose first file is one character,
+        // which no reading holds (the block stage makes no reading of fewer than two characters), then text. Both
+        // captures read the text whole and alike, after the format's declared lead-in (2 s), the one character and a
+        // declared gap (1 s): the text is keyed #0, the first stretch, while it is the tape's second file. Before, that
+        // key was claimed at the vote's 0.995, as sure as where the text follows the lead-in alone.
+        var kcs300 = ProfileCatalog.BuiltIn.Get("kcs-300");
+        const double Slow = 11.0 / 300;
+        var text = Text();
+        ImageBlock Merged(double first) => Assert.Single(TapeMerger.Merge(
+            [Readings.Pass(0, Readings.Stream(text, 0, text.Length, first, Slow)), Readings.Pass(1, Readings.Stream(text, 0, text.Length, first + 0.3, Slow))],
+            kcs300).Blocks);
+
+        var afterLeadIn = Merged(2.2);
+        var afterRoomForAFile = Merged(2.2 + Slow + 1.0);
+
+        Assert.Equal(Hex(text), Hex(afterRoomForAFile.Payload));
+        Assert.Equal("#0", afterRoomForAFile.Key);
+        Assert.True(afterLeadIn.Confidence >= 0.99, $"{afterLeadIn.Confidence} after the lead-in alone");
+        Assert.True(afterRoomForAFile.Confidence < 0.99, $"{afterRoomForAFile.Confidence} where a file may lie unread before");
+        Assert.Equal(afterLeadIn.Confidence * (1 - StreamMerge.UnreadStretchAtStart), afterRoomForAFile.Confidence, 12);
+    }
+
+    [Fact]
+    public void Stream_AFileAfterASilenceOfTwoGapsThatEveryCaptureHeard_DoubtsItsKey_WhereOneGapDoesNot()
+    {
+        // Two files of text on a kcs-1200 tape (the Kansas City Standard at 1200 baud, BYTE, February 1976), read whole
+        // by two captures. Between them both captures heard two of the format's declared gaps (1 s) and a character:
+        // room for a file of one character that no reading holds, so the second text may be the third stretch, not #1.
+        // Where both heard one gap, there is no room for one, and its key is as sure as its bytes.
+        var text = Text();
+        var second = text.Reverse().ToArray();
+        ImageBlock[] Merged(double silence) => [.. TapeMerger.Merge(
+            [.. Enumerable.Range(0, 2).Select(n => Readings.Pass(
+                n,
+                Readings.Stream(text, 0, text.Length, 1.0 + (0.3 * n), Character),
+                Readings.Stream(second, 0, second.Length, 1.0 + (0.3 * n) + (text.Length * Character) + silence, Character, position: 1)))],
+            Kcs).Blocks];
+
+        var oneGap = Merged(1.0);
+        var roomForAFile = Merged(2.0 + Character);
+
+        Assert.Equal([Hex(text), Hex(second)], roomForAFile.Select(b => Hex(b.Payload)));
+        Assert.Equal(["#0", "#1"], roomForAFile.Select(b => b.Key));
+        Assert.Equal(oneGap[0].Confidence, roomForAFile[0].Confidence, 12);
+        Assert.Equal(oneGap[1].Confidence * (1 - StreamMerge.UnreadStretchBetween), roomForAFile[1].Confidence, 12);
+    }
+
     private static string Hex(System.Collections.Immutable.ImmutableArray<byte> bytes) => Convert.ToHexStringLower(bytes.AsSpan());
 
     private static string Hex(byte[] bytes) => Convert.ToHexStringLower(bytes);
