@@ -50,6 +50,15 @@ public sealed class FamilyProposal
     /// </summary>
     public bool FramingHolds { get; set; }
 
+    /// <summary>
+    /// Whether the reading's framing holds far above chance: start, stop or parity bits right on
+    /// <see cref="CommonSections.FramedAboveChance"/> of the bytes or more. A byte of random bits fits one decided stop
+    /// or parity bit half the time, so a reading that frames this well has found the signal's characters, even where
+    /// damage breaks too many of them for <see cref="FramingHolds"/> and for every block's check value; a reading whose
+    /// framing holds nothing (plain bytes, all guessed) has found nothing of its own. Set where the framing is written.
+    /// </summary>
+    public bool FramingAboveChance { get; set; }
+
     public void Measured(string path, string value, double confidence, string evidence) =>
         Findings.Add(new DraftFinding(path, value, confidence < DraftFinding.MeasuredThreshold, confidence, evidence));
 
@@ -65,6 +74,12 @@ internal static class CommonSections
     /// or bits, so that a lead-in shortened by a dropout still counts (a data run that long before a sync is rare).
     /// </summary>
     public const int MostLeadIn = 128;
+
+    /// <summary>
+    /// The least share of bytes whose start, stop and parity bits hold for a framing to stand above chance: a share a
+    /// framing of one decided bit reaches by chance (a half) with a probability near 1e-7 over 50 bytes (binomial tail: 43 or more of 50 at a half).
+    /// </summary>
+    public const double FramedAboveChance = 0.85;
 
     public static string Us(double seconds) => (seconds * 1e6).ToString("0.#", CultureInfo.InvariantCulture);
 
@@ -82,6 +97,7 @@ internal static class CommonSections
         };
         string proof = checkHolds ? "the blocks' check value holds with this framing" : null!;
         bool constrained = framing.BitsPerByte > framing.DataBits;
+        proposal.FramingAboveChance = constrained && framingShare >= FramedAboveChance;
         string share = $"{F(100 * framingShare, "0.0")} % of bytes have their start, stop and parity bits right";
         if (checkHolds)
         {

@@ -433,6 +433,7 @@ public sealed class FskDrafter : IFamilyDrafter
         var others = string.Join(", ", trials.Select(t => $"{t.Data}{t.Parity.ToString()[0]}{t.Stop.Length}: {F(100 * t.ErrorShare, "0.#")} %"));
         double framingConfidence = relaxed && !layout.HasChecksum ? 0.6 : holding.Count == 1 ? 0.9 : 0.8;
         Framing(proposal, framing, layout.HasChecksum, 1 - chosen.ErrorShare, orderMeasured, orderEvidence);
+        proposal.FramingAboveChance &= chosen.Blocks.Sum(b => b.Payload.Length) >= 50;
         proposal.Findings.RemoveAll(f => f.Path is "framing.startBits" or "framing.stopBits" or "framing.parity" or "framing.dataBits");
         proposal.Measured("framing.startBits", "'0'", 0.9, "a fall from the idle mark tone starts each character");
         if (spacing.Told)

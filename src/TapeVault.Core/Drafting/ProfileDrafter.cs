@@ -126,7 +126,16 @@ public static class ProfileDrafter
         // A reading whose serial framing holds comes before one proven only by a narrower check: a pair of tones at one
         // and two cycles a bit read as biphase is every FSK bit doubled, bytes of 16 values, on which a one-byte check
         // holds on one block in sixteen, and an FSK stream has no check value to answer with.
-        var chosen = drafts.OrderByDescending(d => d.Proven && d.Proposal.StronglyProven).ThenByDescending(d => d.Proposal.FramingHolds).ThenByDescending(d => d.Reading).ThenByDescending(d => d.Score.Score).ThenBy(d => d.Rank).First();
+        // A one-byte check measured in one bit order and holding on three blocks or more, three in four of those
+        // checked, is beyond chance too (one block in sixteen by chance, as above): it comes before framing, which a
+        // format of constant bit time with a marker before each byte and a parity bit after (three pulse classes in
+        // pairs) shows to an FSK reading as start, parity and stop bits that hold.
+        // Where no check holds beyond chance and none frames cleanly, a reading whose framing still holds far above
+        // chance (a capture whose damage breaks a character in ten) comes before one whose framing holds nothing:
+        // the intervals' fit cannot tell a tone pair of two and four cycles a bit, whose runs the survey breaks, from
+        // pulse classes, where the characters the FSK reading frames can.
+        var chosen = drafts.OrderByDescending(d => d.CheckBeyondChance).ThenByDescending(d => d.Proposal.FramingHolds).ThenByDescending(d => d.Reading)
+            .ThenByDescending(d => d.Proposal.FramingAboveChance).ThenByDescending(d => d.Score.Score).ThenBy(d => d.Rank).First();
         var rivals = drafts.Where(d => d != chosen).ToList();
         string weighed = string.Join("; ", drafts.Select(d => $"{d.Drafter.Family}: {d.Check.Positions} block(s), the check holds on {d.Check.Clean}, {d.Check.CleanBytes} different bytes"));
         double familyConfidence;
@@ -177,6 +186,13 @@ public static class ProfileDrafter
     {
         /// <summary>The draft found a check value (not a stream), and the check holds on blocks of the stretch.</summary>
         public bool Proven => Reading > 0;
+
+        /// <summary>
+        /// The check proves the reading beyond chance: strongly (<see cref="FamilyProposal.StronglyProven"/>), or a
+        /// check measured in one bit order holding on three blocks or more and on three in four of those checked.
+        /// </summary>
+        public bool CheckBeyondChance => Proven && (Proposal.StronglyProven
+            || (CheckMeasured(Proposal) && Check.Clean >= 3 && 4 * Check.Clean >= 3 * (Check.Clean + Check.Failed)));
 
         /// <summary>What the draft reads with its check holding (<see cref="ProfileCheckReport.CheckedReading"/>): two clean blocks at least, a quarter of those checked.</summary>
         public double Reading => Proposal.Findings.Any(f => f.Path == "layout.checksum") && Check.Clean >= 2 && Check.Clean * 4 >= Check.Clean + Check.Failed ? Check.CheckedReading : 0;
