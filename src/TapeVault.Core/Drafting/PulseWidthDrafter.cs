@@ -108,21 +108,36 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             }
         }
 
+        // A proven reading whose check fails on some blocks may come from a setting that reads the sync's neighbours
+        // unevenly (the lead-in's last cycle before a long sync pulse read now as a bit, now as the lead-in): the
+        // next settings are drafted too, and the proven reading whose check holds on the most of its blocks wins.
         FamilyProposal? first = null;
+        FamilyProposal? proven = null;
         foreach (int i in order.Take(3))
         {
             var lengths = Uncrowded(fits[i].Clusters, fits.Select(f => f.Clusters));
             var proposal = DraftThrough(fits[i].Setting, fits[i].Clusters, lengths, fits[i].Cycles, fits[i].Symbols, fits[i].Grouped, cancellation);
-            if (proposal is not null && Proven(proposal))
+            if (proposal is not null && Proven(proposal) && HoldingShare(proposal) > HoldingShare(proven))
             {
-                return proposal;
+                proven = proposal;
+                if (HoldingShare(proven) >= WholeHolding)
+                {
+                    return proven;
+                }
             }
 
             first ??= proposal;
         }
 
-        return first;
+        return proven ?? first;
     }
+
+    /// <summary>The share of a proven reading's blocks its check holds on below which the next settings are drafted too.</summary>
+    private const double WholeHolding = 0.9;
+
+    /// <summary>The share of the blocks read that a proposal's check holds on (zero where there is none).</summary>
+    private static double HoldingShare(FamilyProposal? proposal) =>
+        proposal?.Layout is { HasChecksum: true, BlocksTried: > 0 } layout ? (double)layout.BlocksHolding / layout.BlocksTried : 0;
 
     /// <summary>
     /// How closely a setting's cycles keep to their classes: the share within <see cref="CloseRatio"/> of their
@@ -191,7 +206,7 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         return [.. found.Select((c, i) => c with { Seconds = best[i] })];
     }
 
-    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> classesFound, List<IntervalCluster> lengths, double[] cycles, int[] sym, double grouped, CancellationToken cancellation, bool syncClassAdded = false)
+    private static FamilyProposal? DraftThrough(DetectorSetting setting, List<IntervalCluster> classesFound, List<IntervalCluster> lengths, double[] cycles, int[] sym, double grouped, CancellationToken cancellation, bool syncClassAdded = false, bool narrowed = false)
     {
         // The lead-in: the class of the long runs.
         var longRuns = Runs(sym).Where(r => r.Class >= 0 && r.Length >= LeastLeadInCycles).ToList();
@@ -261,13 +276,13 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             var withSync = classesFound.Append(syncClass).OrderBy(c => c.Seconds).ToList();
             var lengthsWithSync = lengths.Append(syncClass).OrderBy(c => c.Seconds).ToList();
             var resymbolled = IntervalClusters.Classify(cycles, withSync);
-            var withClass = DraftThrough(setting, withSync, lengthsWithSync, cycles, resymbolled, grouped, cancellation, syncClassAdded: true);
+            var withClass = DraftThrough(setting, withSync, lengthsWithSync, cycles, resymbolled, grouped, cancellation, syncClassAdded: true, narrowed);
             if (withClass is not null && Proven(withClass))
             {
                 return withClass;
             }
 
-            var without = DraftThrough(setting, classesFound, lengths, cycles, sym, grouped, cancellation, syncClassAdded: true);
+            var without = DraftThrough(setting, classesFound, lengths, cycles, sym, grouped, cancellation, syncClassAdded: true, narrowed);
             return without is not null && Proven(without) ? without : withClass ?? without;
         }
 
@@ -308,6 +323,16 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
             : $"; the {Us(classesFound[reading.Sync[0]].Seconds)} µs cycle every block begins with is the lead-in's last cycle ({Us(classesFound[leadIn].Seconds)} µs) lengthened by the sync pulse after it (no class lies between them, no bit uses it): left out of the sync";
         reading = reading with { Sync = reading.Sync[stretched..] };
 
+        // Likewise a bit right after a long sync pulse reads longer, as a rare class of its own that only the sync
+        // uses: it is that bit's class, so that the sync's bits after the pulse are bits (and a header byte the sync
+        // took is whole frames of them) and the read path, which times it as the bit, finds the sync.
+        var unstretched = BitsReadLongInSync(reading.Sync, reading.Mapping, classesFound);
+        if (reading.Layout.HasChecksum && !unstretched.SequenceEqual(reading.Sync))
+        {
+            stretchedEvidence += $"; a {string.Join(", ", reading.Sync.Where((c, i) => unstretched[i] != c).Select(c => $"{Us(classesFound[c].Seconds)} µs"))} cycle after the sync's longer pulse is the bit class just below it read long (no bit uses it): drafted as that bit";
+            reading = reading with { Sync = unstretched };
+        }
+
         // Only the classes the reading uses (bits, lead-in, sync) go into the profile: a rare group of noise or
         // dropout edges written as a class would take pulses from the classes beside it when the profile reads.
         // Where no check proves the reading, every class stays: the curator's bit mapping may need the others.
@@ -328,6 +353,26 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         }
 
         var dropped = Enumerable.Range(0, classesFound.Count).Where(i => !used.Contains(i)).Select(i => classesFound[i]).ToList();
+
+        // The read path reads with the classes the profile writes, its boundaries at the geometric means of neighbours
+        // (PulseClassifier): a class left out moves its neighbour's boundary. A rare group far above the others (the
+        // mains hum's cycles in the silence between blocks, 16.7 ms) stretches the longest class's reach to their
+        // geometric mean, so a sync pulse twice a bit's length reads as a bit class here and as no class on the read
+        // path, which then finds no sync. Where the classes kept read any cycle otherwise, the cycles are read again
+        // with those classes alone, and that reading is drafted where a check proves it.
+        if (!narrowed && dropped.Count > 0)
+        {
+            var keptClasses = kept.Select(i => classesFound[i]).ToList();
+            var again = IntervalClusters.Classify(cycles, keptClasses);
+            if (ReadsOtherwise(sym, again, kept))
+            {
+                var reread = DraftThrough(setting, keptClasses, [.. kept.Select(i => lengths[i])], cycles, again, grouped, cancellation, syncClassAdded: false, narrowed: true);
+                if (reread is not null && Proven(reread))
+                {
+                    return reread;
+                }
+            }
+        }
         var proposal = new FamilyProposal();
         bool proven = reading.Layout.HasChecksum;
         int shortestLeadIn = leadRuns.Min(r => r.Length);
@@ -375,6 +420,33 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         }
         proposal.Notes.Add($"Read through detector setting {setting.Name}: {blocks.Count} blocks after lead-ins; {reading.Candidates} readings of sync, mapping and framing held.");
         return proposal;
+    }
+
+    /// <summary>
+    /// Whether the classes kept (<paramref name="kept"/>, indices into the classes <paramref name="before"/> was read
+    /// with) read any cycle otherwise than <paramref name="before"/> did: a cycle of a kept class in another class or
+    /// in none, or a cycle of a class left out (or of none) in a kept class.
+    /// </summary>
+    internal static bool ReadsOtherwise(int[] before, int[] after, IReadOnlyList<int> kept)
+    {
+        ArgumentNullException.ThrowIfNull(before);
+        ArgumentNullException.ThrowIfNull(after);
+        ArgumentNullException.ThrowIfNull(kept);
+        var to = new Dictionary<int, int>();
+        for (int k = 0; k < kept.Count; k++)
+        {
+            to[kept[k]] = k;
+        }
+
+        for (int i = 0; i < before.Length; i++)
+        {
+            if (after[i] != to.GetValueOrDefault(before[i], -1))
+            {
+                return true;
+            }
+        }
+
+        return false;
     }
 
     /// <summary>
@@ -432,6 +504,39 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         }
 
         return n;
+    }
+
+    /// <summary>
+    /// The sync with each cycle that is a bit read long after a longer pulse given its bit's class: a cycle after a long
+    /// pulse reads longer (neighbouring transitions crowd one another's read-back pulses; from memory: Mee and Daniel,
+    /// <i>Magnetic Recording Technology</i>), so a setting may time a sync's first bit after its long pulse as a group
+    /// of its own just above the bit's class. Such a cycle is that class's where its class is no bit and no lead-in,
+    /// comes once in the sync, follows a longer cycle of the sync, and lies within <see cref="StretchedLeadIn"/> of the
+    /// bit class next below it.
+    /// </summary>
+    internal static int[] BitsReadLongInSync(IReadOnlyList<int> sync, BitMapping mapping, IReadOnlyList<IntervalCluster> classes)
+    {
+        ArgumentNullException.ThrowIfNull(sync);
+        ArgumentNullException.ThrowIfNull(mapping);
+        ArgumentNullException.ThrowIfNull(classes);
+        var result = sync.ToArray();
+        for (int p = 1; p < result.Length; p++)
+        {
+            int c = sync[p];
+            if (c <= 0 || mapping.Bit(c) >= 0 || sync.Count(x => x == c) != 1 || sync[p - 1] < 0 || classes[sync[p - 1]].Seconds <= classes[c].Seconds)
+            {
+                continue;
+            }
+
+            // Classes are shortest first: the one next below is the bit the cycle would be.
+            int below = c - 1;
+            if (mapping.Bit(below) >= 0 && classes[c].Seconds <= StretchedLeadIn * classes[below].Seconds)
+            {
+                result[p] = below;
+            }
+        }
+
+        return result;
     }
 
     /// <summary>How much longer than a lead-in cycle (as a ratio) its last one may read before a long sync pulse.</summary>

@@ -106,13 +106,24 @@ public static class SyncFormatSearch
             // leading data bits (leading zeros leave it unchanged, and the 0 bit after a block ends its check): the
             // longer syncs the blocks share, up to a byte more, are weighed too, and the one whose reading has the
             // most header fields, then the most text, wins; on a tie the shorter.
+            // A longer sync is read with a framing that holds there: with start and stop bits a sync a pulse short
+            // holds the complemented framing (the stop bit before each byte read as its start, and a data bit that is
+            // 0 in every byte, such as text's top bit, as its stop), and a sync a pulse longer reads the right bytes
+            // whatever the framing says of the bits around them, so a framing taken over unchecked would be drafted
+            // with bytes the read path never frames.
             int sync = candidate.Sync;
+            var framing = candidate.Framing;
             for (int longer = candidate.Sync + 1; longer < candidate.Sync + candidate.Framing.BitsPerByte && longer <= Math.Min(prefix, MaximumSync) && searches < MaximumLayoutSearches; longer++)
             {
-                var more = Readings(longer, candidate.Framing);
-                if (more.Count > 0 && Score(more).CompareTo(Score(found)) > 0)
+                var framingsThere = candidate.Constraints == 0 ? [candidate.Framing]
+                    : holding.Where(h => h.Sync == longer && h.Mapping == candidate.Mapping && h.Constraints == candidate.Constraints).Select(h => h.Framing).ToList();
+                foreach (var longerFraming in framingsThere)
                 {
-                    (sync, found) = (longer, more);
+                    var more = Readings(longer, longerFraming);
+                    if (more.Count > 0 && Score(more).CompareTo(Score(found)) > 0)
+                    {
+                        (sync, found, framing) = (longer, more, longerFraming);
+                    }
                 }
             }
 
@@ -123,10 +134,10 @@ public static class SyncFormatSearch
             // nothing does, the mapping and the sync are marked as not told.
             var mapping = candidate.Mapping;
             bool mappingAmbiguous = false;
-            var framing = candidate.Framing;
+            var framingFound = framing;
             foreach (var other in mappings.Where(m => m != candidate.Mapping))
             {
-                foreach (var otherFraming in new[] { candidate.Framing, Complemented(candidate.Framing) }.Distinct())
+                foreach (var otherFraming in new[] { framingFound, Complemented(framingFound) }.Distinct())
                 {
                     for (int alternative = Math.Max(1, candidate.Sync - 1); alternative < candidate.Sync + otherFraming.BitsPerByte && alternative <= Math.Min(prefix, MaximumSync) && searches < MaximumLayoutSearches; alternative++)
                     {
@@ -159,7 +170,7 @@ public static class SyncFormatSearch
             bool ambiguous = found.Count == 2
                 && found[0].Layout.Fields.Count == found[1].Layout.Fields.Count
                 && Math.Abs(CommonSections.PrintableShare(found[0].Layout.Blocks) - CommonSections.PrintableShare(found[1].Layout.Blocks)) < 0.3;
-            double share = framing == candidate.Framing ? candidate.Share : FramingShare(usable, sync, mapping, framing);
+            double share = framing == candidate.Framing && sync == candidate.Sync ? candidate.Share : FramingShare(usable, sync, mapping, framing);
             return Absorb(usable, sync, mapping, best.Framing, share, best.Layout, prefix, ordered.Count, leadInSymbol, ambiguous) with { MappingAmbiguous = mappingAmbiguous };
 
             // Both bit orders: a reflected CRC over bit-reversed bytes can hold as well as the plain one over the
