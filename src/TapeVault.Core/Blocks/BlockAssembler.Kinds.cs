@@ -38,7 +38,7 @@ public sealed partial class BlockAssembler
         {
             var kinds = profile.BlockKinds;
             _layouts = [.. kinds];
-            _scorers = [.. kinds.Select(k => new BlockScorer(k, profile.Family, profileId: profile.Id, characterBaud: profile.Fsk?.Baud, characterBits: profile.Framing.BitsPerByte))];
+            _scorers = [.. kinds.Select(k => new BlockScorer(k, profile.Family, profileId: profile.Id, characterBaud: profile.Fsk?.Baud, characterBits: profile.Framing.BitsPerByte, characterFraming: profile.Framing))];
             _codecs = [.. kinds.Select(BlockLayoutCodec.For)];
             _lastHeld = new byte[]?[kinds.Count];
             _copies = profile.Layout.Copies;

@@ -72,7 +72,7 @@ public sealed partial class BlockAssembler : IBlockSink
         _profile = profile;
         _ordinal = new StrongBox<int>();
         _layout = profile.Layout;
-        _scorer = new BlockScorer(_layout, profile.Family, profileId: profile.Id, characterBaud: profile.Fsk?.Baud, characterBits: profile.Framing.BitsPerByte);
+        _scorer = new BlockScorer(_layout, profile.Family, profileId: profile.Id, characterBaud: profile.Fsk?.Baud, characterBits: profile.Framing.BitsPerByte, characterFraming: profile.Framing);
         _codec = BlockLayoutCodec.For(_layout);
         _kinds = new KindSequence(profile);
         _settingIndex = settingIndex;

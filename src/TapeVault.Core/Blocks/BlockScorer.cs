@@ -129,6 +129,7 @@ public sealed class BlockScorer
     private readonly string? _profileId;
     private readonly double? _characterBaud;
     private readonly int _characterBits;
+    private readonly ByteFraming? _characterFraming;
 
     /// <summary>
     /// A scorer for blocks of <paramref name="layout"/> in a format of <paramref name="family"/>, calibrated by
@@ -136,9 +137,10 @@ public sealed class BlockScorer
     /// <paramref name="profileId"/> where the map has them. <paramref name="characterBaud"/>: the baud of the
     /// asynchronous characters a layout without a checksum is read in, <paramref name="characterBits"/> the bits of
     /// their frame; the first and last character of such a block carry the doubt of a character at an edge of what was
-    /// read (<see cref="CharacterEdge"/>).
+    /// read (<see cref="CharacterEdge"/>). <paramref name="characterFraming"/>: their frame, by which a reading whose bits
+    /// another framing also holds is doubted (<see cref="FramingAmbiguity"/>).
     /// </summary>
-    public BlockScorer(BlockLayout layout, FormatFamily family, ConfidenceMap? map = null, string? profileId = null, double? characterBaud = null, int characterBits = 0)
+    public BlockScorer(BlockLayout layout, FormatFamily family, ConfidenceMap? map = null, string? profileId = null, double? characterBaud = null, int characterBits = 0, ByteFraming? characterFraming = null)
     {
         ArgumentNullException.ThrowIfNull(layout);
         _layout = layout;
@@ -146,6 +148,7 @@ public sealed class BlockScorer
         _profileId = profileId;
         _characterBaud = characterBaud;
         _characterBits = characterBits;
+        _characterFraming = characterFraming;
         _map = map ?? ConfidenceMap.Default;
         _codec = BlockLayoutCodec.For(layout);
         _checksum = _codec.Checksum;
@@ -397,6 +400,17 @@ public sealed class BlockScorer
         if (status == BlockStatus.Unchecked)
         {
             confidence = Math.Min(confidence, edgesRight);
+
+            // Nor surer than its framing: where another bit offset gives valid start and stop bits on every character
+            // (a run of 0x00 framed a bit late reads 0x80), each character is decided clearly at the wrong offset too
+            // and its decisions cannot tell. Unless they are all very clear, such a reading is priced at the rate it was
+            // measured framed wrong; before, runs of 0x80 and 0xFF read where the tape held 0x00 and text stood at 0.993.
+            double meanDistance = decisions.Count > 0 ? marginSum / decisions.Count : 0;
+            if (_characterFraming is { } framing && _characterBaud is { } characterBaud && meanDistance < FramingAmbiguity.ClearMeanDistance
+                && FramingAmbiguity.Unpinned(bytes, byteSamples, framing))
+            {
+                confidence = Math.Min(confidence, 1 - FramingAmbiguity.UnpinnedError(characterBaud));
+            }
         }
 
         // A reading nothing vouches for stays at 0 whatever the map says: the map's lowest step is a rate over readings
