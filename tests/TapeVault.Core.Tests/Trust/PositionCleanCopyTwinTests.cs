@@ -63,6 +63,28 @@ public sealed class PositionCleanCopyTwinTests
         Garbled(block, copy, "s2", (byte)(0xC0 + (block * 2) + copy)),
     ];
 
+    /// <summary>Both copies of blocks 0 to 4: those in <paramref name="clean"/> read clean by s1, none of <paramref name="unread"/>, the rest as <see cref="OnlyFailed"/>.</summary>
+    private static List<BlockCandidate> ReadAs((int Block, int Copy)[] clean, (int Block, int Copy)[] unread)
+    {
+        var readings = new List<BlockCandidate>();
+        for (int block = 0; block < 5; block++)
+        {
+            for (int copy = 0; copy < 2; copy++)
+            {
+                if (clean.Contains((block, copy)))
+                {
+                    readings.Add(Clean(block, copy, "s1"));
+                }
+                else if (!unread.Contains((block, copy)))
+                {
+                    readings.AddRange(OnlyFailed(block, copy));
+                }
+            }
+        }
+
+        return readings;
+    }
+
     /// <summary>As many positions as blocks; every reading of one block's copies shares a position, and no other block's reading is there.</summary>
     private static void AssertEachBlockOnePosition(IReadOnlyList<BlockCandidate> placed, int blocks)
     {
@@ -83,17 +105,7 @@ public sealed class PositionCleanCopyTwinTests
         // every header its own way. Block 1's second copy follows its clean first by the copy's length and the gap
         // (0.4 s), and block 2's first copy precedes its clean second by as much (0.55 s); the block before and after
         // lie otherwise. Seen on the Orrin format at random damage: the failed copy stood alone beside the clean one.
-        var readings = new List<BlockCandidate>
-        {
-            Clean(0, 0, "s1"), Clean(0, 1, "s1"),
-            Clean(1, 0, "s1"),
-            Clean(2, 1, "s1"),
-            Clean(4, 0, "s1"), Clean(4, 1, "s1"),
-        };
-        readings.AddRange(OnlyFailed(1, 1));
-        readings.AddRange(OnlyFailed(2, 0));
-        readings.AddRange(OnlyFailed(3, 0));
-        readings.AddRange(OnlyFailed(3, 1));
+        var readings = ReadAs(clean: [(0, 0), (0, 1), (1, 0), (2, 1), (4, 0), (4, 1)], unread: []);
 
         var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
 
@@ -106,16 +118,7 @@ public sealed class PositionCleanCopyTwinTests
         // Block 1's first copy read by no one, its second read clean; block 2's copies only failed. The sync after the
         // clean copy follows it by its length and the gap, as any copy's next sync does, but block 2's first copy spans
         // its own length (0.55 s) to the next, not block 1's (0.4 s): it is no copy of block 1, and stays apart.
-        var readings = new List<BlockCandidate>
-        {
-            Clean(0, 0, "s1"), Clean(0, 1, "s1"),
-            Clean(1, 1, "s1"),
-            Clean(4, 0, "s1"), Clean(4, 1, "s1"),
-        };
-        readings.AddRange(OnlyFailed(2, 0));
-        readings.AddRange(OnlyFailed(2, 1));
-        readings.AddRange(OnlyFailed(3, 0));
-        readings.AddRange(OnlyFailed(3, 1));
+        var readings = ReadAs(clean: [(0, 0), (0, 1), (1, 1), (4, 0), (4, 1)], unread: [(1, 0)]);
 
         var placed = BlockPositioner.Place(readings, Profile.Layout.Copies);
 
