@@ -225,7 +225,7 @@ public static partial class BlockPositioner
             return false;
         }
 
-        JoinPlacesOfOneBlock(keyed, positionOf, stray, stretchEnds.Count, copies);
+        JoinPlacesOfOneBlock(keyed, positionOf, stray, stretchEnds.Count, copies, copyGap);
         OrderCopiesBySync(keyed, positionOf, stray, copies, copyGap);
 
         var placed = new (int Reading, int Position, double Start)[keyed.Count];
@@ -437,7 +437,7 @@ public static partial class BlockPositioner
     /// unless two of the places that would be joined hold headers that two settings or more read alike and that name
     /// different blocks.
     /// </summary>
-    private static void JoinPlacesOfOneBlock(List<(BlockCandidate Candidate, string Key)> keyed, int[] positionOf, bool[] stray, int stretches, int copies)
+    private static void JoinPlacesOfOneBlock(List<(BlockCandidate Candidate, string Key)> keyed, int[] positionOf, bool[] stray, int stretches, int copies, double? copyGap)
     {
         if (keyed.Count < 2)
         {
@@ -559,7 +559,7 @@ public static partial class BlockPositioner
 
         if (copies > 1)
         {
-            PairLoneCopies(keyed, positionOf, stray, syncOf, syncs, clean, Root, Join, copies);
+            PairLoneCopies(keyed, positionOf, stray, syncOf, syncs, clean, Root, Join, copies, copyGap);
         }
 
         // Positions in tape order of their first reading (readings are in order of start).
@@ -585,7 +585,7 @@ public static partial class BlockPositioner
     /// </summary>
     private static void PairLoneCopies(
         List<(BlockCandidate Candidate, string Key)> keyed, int[] positionOf, bool[] stray, int[] syncOf, List<int>[] syncs, bool[] clean,
-        Func<int, int> root, Action<int, int> join, int copies)
+        Func<int, int> root, Action<int, int> join, int copies, double? copyGap)
     {
         int syncCount = keyed.Count == 0 ? 0 : syncOf[^1] + 1;
 
@@ -749,6 +749,143 @@ public static partial class BlockPositioner
             u = end;
         }
 
+        PairCleanCopiesWithTwins();
+
+        // A block whose copies were read at one sync each, one clean and the other only failed: the clean copy's place
+        // stands alone and is no lone place, so the runs above leave its twin alone too. Copies are written back to
+        // back, each one length long with the capture's gap between copies after it, so the twin of a clean copy spans
+        // the clean copy's length and that gap to the sync after it: the sync just before the clean copy's, or the sync
+        // after it where that one follows the clean copy by the same span. A lone place there is the twin, where the
+        // timing points to one side only (blocks of one length in a row point to both), no other clean copy claims it,
+        // and none of its readings names another block: a header two settings read alike, or one a clean reading of the
+        // capture carries.
+        void PairCleanCopiesWithTwins()
+        {
+            double? gap = copyGap ?? GapAfterCleanReadings();
+            if (gap is null)
+            {
+                return;
+            }
+
+            var cleanKeys = new HashSet<string>(StringComparer.Ordinal);
+            foreach (var (candidate, _) in keyed)
+            {
+                if (candidate.Status == BlockStatus.Clean)
+                {
+                    cleanKeys.Add(candidate.Identity.Key);
+                }
+            }
+
+            var twinOf = new Dictionary<int, int>();
+            var claimed = new Dictionary<int, int>();
+            for (int c = 0; c < units.Count; c++)
+            {
+                if (units[c].Root < 0 || !clean[root(units[c].Root)] || syncs[root(units[c].Root)].Count >= copies || CleanCopy(units[c].Root) is not { } copy)
+                {
+                    continue;
+                }
+
+                double spacing = copy.Length + gap.Value;
+                int before = c - 1, after = c + 1;
+                // A copy's span to the sync read after it is its length and the gap after it, whether its twin or the next
+                // block follows. So the twin is the neighbour that spans the clean copy's length and gap itself: the sync
+                // before where it spans up to this one, the sync after where it spans up to the one after it (which
+                // follows this one by that span too). Both spans are measured, or neither side is taken.
+                int k = units[c].Sync;
+                if (k < 1 || k + 2 >= syncCount)
+                {
+                    continue;
+                }
+
+                bool fitsBefore = SyncSpansNear(syncStart[k] - syncStart[k - 1], spacing);
+                bool fitsAfter = SyncSpansNear(syncStart[k + 1] - syncStart[k], spacing) && SyncSpansNear(syncStart[k + 2] - syncStart[k + 1], spacing);
+                int previous = k - 1, next = k + 1;
+                int twin = fitsBefore ? before : after;
+                if (fitsBefore == fitsAfter || twin < 0 || twin >= units.Count || units[twin].Sync != (fitsBefore ? previous : next) || !IsLone(twin) || NamesAnotherBlock(units[twin].Root, copy.Key))
+                {
+                    continue;
+                }
+
+                twinOf[c] = twin;
+                claimed[twin] = claimed.GetValueOrDefault(twin) + 1;
+            }
+
+            foreach (var (c, twin) in twinOf)
+            {
+                if (claimed[twin] == 1)
+                {
+                    join(root(units[c].Root), root(units[twin].Root));
+                }
+            }
+
+            bool IsLone(int n) => units[n].Kind == Lone && syncs[root(units[n].Root)].Count == 1 && !clean[root(units[n].Root)];
+
+            // The key the clean readings of a place agree on and their median length; null where they disagree.
+            (string Key, double Length)? CleanCopy(int r)
+            {
+                string? key = null;
+                var lengths = new List<double>();
+                foreach (int i in readingsOf[r])
+                {
+                    var x = keyed[i].Candidate;
+                    if (x.Status != BlockStatus.Clean)
+                    {
+                        continue;
+                    }
+
+                    if (key is not null && key != x.Identity.Key)
+                    {
+                        return null;
+                    }
+
+                    key = x.Identity.Key;
+                    lengths.Add(x.EndSeconds - x.StartSeconds);
+                }
+
+                lengths.Sort();
+                return key is null ? null : (key, lengths[lengths.Count / 2]);
+            }
+
+            bool NamesAnotherBlock(int r, string key)
+            {
+                foreach (int i in readingsOf[r])
+                {
+                    var x = keyed[i].Candidate;
+                    bool other = (NamesItself(x) && x.Identity.Key != key && (cleanKeys.Contains(x.Identity.Key) || (support[AlikeKey(x)] > 1 && x.Identity.FileName?.Contains('?', StringComparison.Ordinal) != true)))
+                        || (keyed[i].Key.Length > 0 && keyed[i].Key != key && cleanKeys.Contains(keyed[i].Key));
+                    if (other)
+                    {
+                        return true;
+                    }
+                }
+
+                return false;
+            }
+        }
+
+        // Where no setting read two copies of a block clean: the median from a clean whole reading's end to the next sync read after it.
+        double? GapAfterCleanReadings()
+        {
+            var gaps = new List<double>();
+            foreach (var (candidate, _) in keyed)
+            {
+                if (candidate.Status != BlockStatus.Clean || candidate.Truncated)
+                {
+                    continue;
+                }
+
+                int next = Array.BinarySearch(syncStart, candidate.EndSeconds);
+                next = next < 0 ? ~next : next + 1;
+                if (next < syncStart.Length)
+                {
+                    gaps.Add(syncStart[next] - candidate.EndSeconds);
+                }
+            }
+
+            gaps.Sort();
+            return gaps.Count == 0 ? null : gaps[gaps.Count / 2];
+        }
+
         void JoinCopies(int first)
         {
             for (int other = first + 1; other < first + copies; other++)
@@ -846,6 +983,13 @@ public static partial class BlockPositioner
     /// settings' readings of one sync start).
     /// </summary>
     private static bool SyncSpansAlike(double x, double y) => Math.Abs(x - y) <= (0.01 * Math.Max(x, y)) + 0.01;
+
+    /// <summary>
+    /// Whether a span between syncs is near the one a copy's length and the gap after it foretell: within 1 % (wow and
+    /// flutter, common practice) and <see cref="SyncSeconds"/> (a length and a gap each measured from readings whose
+    /// starts and ends settings place a few milliseconds apart).
+    /// </summary>
+    private static bool SyncSpansNear(double span, double foretold) => Math.Abs(span - foretold) <= (0.01 * Math.Max(span, foretold)) + SyncSeconds;
 
     /// <summary>
     /// Whether two places that would be taken for copies of one block hold readings that name different blocks and are
