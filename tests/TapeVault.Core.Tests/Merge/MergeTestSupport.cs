@@ -17,6 +17,27 @@ internal static class Readings
         return profile with { Layout = profile.Layout with { Checksum = profile.Layout.Checksum! with { Algorithm = checksum } } };
     }
 
+    /// <summary>The biphase reference profile (block number, length, CRC-16/XMODEM) with every block written twice in a row.</summary>
+    public static FormatProfile WrittenTwice()
+    {
+        var profile = ProfileCatalog.BuiltIn.Get("biphase-1200");
+        return profile with { Layout = profile.Layout with { Copies = 2 } };
+    }
+
+    /// <summary>
+    /// A whole reading of block <paramref name="block"/> starting at <paramref name="start"/> whose header (its first three
+    /// bytes) a setting garbled from <paramref name="header"/> and whose first payload byte is wrong too, so it fails.
+    /// </summary>
+    public static BlockCandidate Garbled(FormatProfile profile, int block, double start, string setting, byte header)
+    {
+        var written = Written(profile, block);
+        written[0] = header;
+        written[1] = (byte)(header ^ 0x5A);
+        written[2] = (byte)(header ^ 0x33);
+        var payloadByte = written[profile.Layout.HeaderBytes];
+        return Of(profile, written, start, 0, setting, changedPayload: new Dictionary<int, byte> { [0] = (byte)(payloadByte ^ 0x21) });
+    }
+
     /// <summary>A block of 64 random bytes (seeded by its number and <paramref name="seed"/>) as <see cref="BlockWriter.Build"/> lays it out.</summary>
     public static byte[] Written(FormatProfile profile, int blockNumber, int seed = 0)
     {

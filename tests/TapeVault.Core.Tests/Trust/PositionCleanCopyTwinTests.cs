@@ -14,17 +14,11 @@ namespace TapeVault.Core.Tests.Trust;
 /// </summary>
 public sealed class PositionCleanCopyTwinTests
 {
-    private static readonly FormatProfile Profile = WrittenTwice();
+    private static readonly FormatProfile Profile = Readings.WrittenTwice();
 
     /// <summary>Each block's copies' length (seconds), each block its own (block 5, read by no one, only bounds block 4), and the lead-in after every copy.</summary>
     private static readonly double[] Lengths = [0.30, 0.20, 0.35, 0.25, 0.28, 0.30];
     private const double Gap = 0.2;
-
-    private static FormatProfile WrittenTwice()
-    {
-        var profile = ProfileCatalog.BuiltIn.Get("biphase-1200");
-        return profile with { Layout = profile.Layout with { Copies = 2 } };
-    }
 
     /// <summary>Where copy <paramref name="copy"/> of block <paramref name="block"/> starts: every copy after the one before, its length and the gap later.</summary>
     private static double Sync(int block, int copy)
@@ -47,12 +41,7 @@ public sealed class PositionCleanCopyTwinTests
     /// <summary>A whole reading whose header (all three bytes) a setting garbled from <paramref name="header"/> and whose payload is wrong too (so it fails).</summary>
     private static BlockCandidate Garbled(int block, int copy, string setting, byte header)
     {
-        var written = Readings.Written(Profile, block);
-        written[0] = header;
-        written[1] = (byte)(header ^ 0x5A);
-        written[2] = (byte)(header ^ 0x33);
-        var payloadByte = written[Profile.Layout.HeaderBytes];
-        var reading = Readings.Of(Profile, written, Sync(block, copy) + 0.001, 0, setting, changedPayload: new Dictionary<int, byte> { [0] = (byte)(payloadByte ^ 0x21) });
+        var reading = Readings.Garbled(Profile, block, Sync(block, copy) + 0.001, setting, header);
         return reading with { EndSeconds = reading.StartSeconds + Lengths[block] };
     }
 

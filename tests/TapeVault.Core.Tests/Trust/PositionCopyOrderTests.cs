@@ -14,13 +14,7 @@ namespace TapeVault.Core.Tests.Trust;
 /// </summary>
 public sealed class PositionCopyOrderTests
 {
-    private static readonly FormatProfile Profile = WrittenTwice();
-
-    private static FormatProfile WrittenTwice()
-    {
-        var profile = ProfileCatalog.BuiltIn.Get("biphase-1200");
-        return profile with { Layout = profile.Layout with { Copies = 2 } };
-    }
+    private static readonly FormatProfile Profile = Readings.WrittenTwice();
 
     /// <summary>The length of a reading of 64 payload bytes as <see cref="Readings.Of"/> times it, and the gap after it.</summary>
     private static readonly double Spacing = Readings.Of(Profile, Readings.Written(Profile, 0), 0, 0).EndSeconds + 0.2;

@@ -15,27 +15,14 @@ namespace TapeVault.Core.Tests.Trust;
 /// </summary>
 public sealed class PositionsWithoutCleanReadingTests
 {
-    private static readonly FormatProfile Profile = WrittenTwice();
-
-    private static FormatProfile WrittenTwice()
-    {
-        var profile = ProfileCatalog.BuiltIn.Get("biphase-1200");
-        return profile with { Layout = profile.Layout with { Copies = 2 } };
-    }
+    private static readonly FormatProfile Profile = Readings.WrittenTwice();
 
     /// <summary>Where copy <paramref name="copy"/> of block <paramref name="block"/> starts: copies 0.5 s apart, blocks 1 s apart.</summary>
     private static double Sync(int block, int copy) => 1.5 + block + (0.5 * copy);
 
     /// <summary>A whole reading whose header (all three bytes) a setting garbled from <paramref name="header"/> and whose payload is wrong too (so it fails).</summary>
     private static BlockCandidate Garbled(int block, int copy, string setting, byte header, double late = 0)
-    {
-        var written = Readings.Written(Profile, block);
-        written[0] = header;
-        written[1] = (byte)(header ^ 0x5A);
-        written[2] = (byte)(header ^ 0x33);
-        var payloadByte = written[Profile.Layout.HeaderBytes];
-        return Readings.Of(Profile, written, Sync(block, copy) + 0.001 + late, 0, setting, changedPayload: new Dictionary<int, byte> { [0] = (byte)(payloadByte ^ 0x21) });
-    }
+        => Readings.Garbled(Profile, block, Sync(block, copy) + 0.001 + late, setting, header);
 
     /// <summary>Copy <paramref name="copy"/> of block <paramref name="block"/> read by settings s0 and s1, each garbling every header its own way.</summary>
     private static BlockCandidate[] GarbledByTwoSettings(int block, int copy) =>
