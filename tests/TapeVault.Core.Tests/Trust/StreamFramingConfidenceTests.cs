@@ -54,6 +54,38 @@ public sealed class StreamFramingConfidenceTests(OutsideTempFolder temp, ITestOu
         Assert.Equal(20, FramingAmbiguity.LongestOtherFraming(lateRun, starts, profile.Framing));
     }
 
+    [Theory]
+    [InlineData(1200)]
+    [InlineData(300)]
+    public void The_price_of_an_unpinned_framing_is_the_rate_such_readings_were_measured_wrong(int baud)
+    {
+        // Trust benchmark, kcs-1200 and kcs-300 stream readings of tuning seeds 16200–16259 and 16300–16399 priced at
+        // 0.9 or more before the price, whose framing another offset held over every character, decided below
+        // FramingAmbiguity.ClearMeanDistance: (baud, readings, wrong).
+        (double Baud, int Readings, int Wrong)[] told = [(1200, 125, 13), (300, 213, 7)];
+
+        // Maximum likelihood of odds k · baud/1200 over those readings (a binomial likelihood, common practice): the
+        // log-likelihood is concave in log k, so its derivative, Σ wrong − readings · e, is found zero by bisection.
+        double Slope(double logOdds) => told.Sum(t =>
+        {
+            double odds = Math.Exp(logOdds) * t.Baud / 1200;
+            return t.Wrong - (t.Readings * odds / (1 + odds));
+        });
+        double lo = -10, hi = 5;
+        for (int i = 0; i < 100; i++)
+        {
+            double mid = (lo + hi) / 2;
+            (lo, hi) = Slope(mid) > 0 ? (mid, hi) : (lo, mid);
+        }
+
+        double fitted = Math.Exp(lo);
+        double fittedOdds = fitted * baud / 1200;
+        output.WriteLine($"odds at 1200 baud fitted {fitted:0.0000}, used {FramingAmbiguity.UnpinnedOddsAt1200}");
+
+        // The price used is that fit, to the three places it is written with.
+        Assert.Equal(fittedOdds / (1 + fittedOdds), FramingAmbiguity.UnpinnedError(baud), 0.0005 * baud / 1200);
+    }
+
     [Fact]
     public void An_unchecked_reading_whose_framing_another_offset_holds_is_no_surer_than_such_readings_were_right()
     {
