@@ -84,6 +84,7 @@ public static class FramingAmbiguity
         }
 
         Span<sbyte> pair = stackalloc sbyte[2 * frameBits];
+        Span<bool> framed = stackalloc bool[frameBits];
         int best = 0;
         for (int offset = 1; offset < frameBits; offset++)
         {
@@ -94,8 +95,8 @@ public static class FramingAmbiguity
                 bool holds = false;
                 if (contiguous)
                 {
-                    FrameBits(bytes[j], framing, pair[..frameBits]);
-                    FrameBits(bytes[j + 1], framing, pair[frameBits..]);
+                    FrameBits(bytes[j], framing, framed, pair[..frameBits]);
+                    FrameBits(bytes[j + 1], framing, framed, pair[frameBits..]);
                     holds = FrameHolds(pair.Slice(offset, frameBits), framing);
                 }
 
@@ -114,31 +115,17 @@ public static class FramingAmbiguity
     public static bool Unpinned(ReadOnlySpan<byte> bytes, ReadOnlySpan<double> starts, ByteFraming framing) =>
         bytes.Length >= LeastCharacters && LongestOtherFraming(bytes, starts, framing) >= bytes.Length;
 
-    /// <summary>The bits of one character as the framer read them: 0 or 1 where decided, −1 where never looked at (stop bits after the first).</summary>
-    private static void FrameBits(byte value, ByteFraming framing, Span<sbyte> bits)
+    /// <summary>
+    /// The bits of one character as the framer read them (<see cref="BitPatterns.Frame"/> writes the frame, into
+    /// <paramref name="framed"/>): 0 or 1 where decided, −1 where never looked at (stop bits after the first).
+    /// </summary>
+    private static void FrameBits(byte value, ByteFraming framing, Span<bool> framed, Span<sbyte> bits)
     {
-        int i = 0;
-        foreach (char c in framing.StartBits)
+        BitPatterns.Frame(framing, value, framed);
+        int undecidedFrom = framing.BitsPerByte - framing.StopBits.Length + 1;
+        for (int i = 0; i < framed.Length; i++)
         {
-            bits[i++] = (sbyte)(c == '1' ? 1 : 0);
-        }
-
-        int ones = 0;
-        for (int b = 0; b < framing.DataBits; b++)
-        {
-            int bit = (value >> framing.DataBitShift(b)) & 1;
-            ones += bit;
-            bits[i++] = (sbyte)bit;
-        }
-
-        if (framing.Parity != Parity.None)
-        {
-            bits[i++] = (sbyte)(framing.ParityBit(ones) ? 1 : 0);
-        }
-
-        for (int s = 0; s < framing.StopBits.Length; s++)
-        {
-            bits[i++] = s == 0 ? (sbyte)(framing.StopBits[s] == '1' ? 1 : 0) : (sbyte)-1;
+            bits[i] = i >= undecidedFrom ? (sbyte)-1 : (sbyte)(framed[i] ? 1 : 0);
         }
     }
 
