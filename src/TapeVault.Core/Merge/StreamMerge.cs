@@ -843,26 +843,45 @@ internal sealed class StreamMerge
         int stretches = spans.Count;
         var first = new double[stretches, _passes.Count];
         var before = new double[stretches, _passes.Count];
+
+        // Each pass's kept readings of four characters or more: where each ends on its pass's line, mapped once.
+        var keptEnds = new List<double>[_passes.Count];
+        for (int p = 0; p < _passes.Count; p++)
+        {
+            keptEnds[p] = [];
+            for (int ci = 0; ci < _passes[p].Candidates.Count; ci++)
+            {
+                var seconds = _passes[p].Candidates[ci].ByteSeconds;
+                if (seconds.Length >= 4 && kept.Contains((p, ci)))
+                {
+                    keptEnds[p].Add(_timelines[p].Map(seconds[^1]));
+                }
+            }
+        }
+
         for (int s = 0; s < stretches; s++)
         {
             for (int p = 0; p < _passes.Count; p++)
             {
                 first[s, p] = double.PositiveInfinity;
-                foreach (var (pass, candidate, start, end) in placed)
-                {
-                    if (pass == p && start <= spans[s].End + character && end >= spans[s].Start - character)
-                    {
-                        first[s, p] = Math.Min(first[s, p], _timelines[p].Map(_passes[p].Candidates[candidate].ByteSeconds[0]));
-                    }
-                }
-
                 before[s, p] = double.NegativeInfinity;
-                for (int ci = 0; ci < _passes[p].Candidates.Count; ci++)
+            }
+
+            foreach (var (pass, candidate, start, end) in placed)
+            {
+                if (start <= spans[s].End + character && end >= spans[s].Start - character)
                 {
-                    var seconds = _passes[p].Candidates[ci].ByteSeconds;
-                    if (seconds.Length >= 4 && kept.Contains((p, ci)) && _timelines[p].Map(seconds[^1]) < first[s, p])
+                    first[s, pass] = Math.Min(first[s, pass], _timelines[pass].Map(_passes[pass].Candidates[candidate].ByteSeconds[0]));
+                }
+            }
+
+            for (int p = 0; p < _passes.Count; p++)
+            {
+                foreach (double ending in keptEnds[p])
+                {
+                    if (ending < first[s, p])
                     {
-                        before[s, p] = Math.Max(before[s, p], _timelines[p].Map(seconds[^1]));
+                        before[s, p] = Math.Max(before[s, p], ending);
                     }
                 }
             }
