@@ -3,9 +3,9 @@ using System.Text.Json.Serialization;
 
 namespace TapeVault.Core.Image;
 
-// The JSON shape of a container's manifest, version 1 (docs/image-format.md). Every property is nullable so that the
-// reader can say which field is missing instead of failing inside the serializer; the writer fills every one.
-// Property order here is the order in the file.
+// The JSON shape of a container's manifest, versions 1 and 2 (docs/image-format.md). Every property is nullable so that
+// the reader can say which field is missing instead of failing inside the serializer; the writer fills every one of
+// the version it writes. Property order here is the order in the file.
 internal sealed class ManifestDocument
 {
     public string? Format { get; set; }
@@ -36,6 +36,12 @@ internal sealed class BlockDocument
     public long? BlockNumber { get; set; }
     public string? Status { get; set; }
     public double? Confidence { get; set; }
+
+    // Version 2 only: absent from a version 1 manifest (the writer of version 1 never wrote it; a reader of version 1
+    // refuses it present), so it is left out when null.
+    [JsonIgnore(Condition = JsonIgnoreCondition.WhenWritingNull)]
+    public double? KeyConfidence { get; set; }
+
     public int? AgreeingCaptures { get; set; }
     public long? Offset { get; set; }
     public long? HeaderLength { get; set; }

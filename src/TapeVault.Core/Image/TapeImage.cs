@@ -43,8 +43,32 @@ public sealed record ImageBlock
 
     public required RecoveryStatus Status { get; init; }
 
-    /// <summary>Calibrated probability that <see cref="Payload"/> is right, 0..1 (0 for missing).</summary>
+    /// <summary>
+    /// Calibrated probability that the whole position is right, 0..1 (0 for missing): its <see cref="Payload"/>, and its
+    /// place, which <see cref="KeyConfidence"/> doubts apart. Where nothing doubts the key it is the payload's.
+    /// </summary>
     public required double Confidence { get; init; }
+
+    /// <summary>
+    /// Probability that <see cref="Key"/> names the position's place on the tape, 0..1; 1 where nothing doubts it (a key
+    /// read from a block header, and a stream's key where no silence before its stretch had room for a file no capture
+    /// read). <see cref="Confidence"/> already holds it (never more than it): the payload's own confidence is
+    /// <see cref="PayloadConfidence"/>. Doubts of keys are nested: a stream's key #s counts the stretches read before it,
+    /// so its doubt holds every doubt of an earlier key (see <see cref="TapeImage.OverallConfidence"/>).
+    /// </summary>
+    public double KeyConfidence
+    {
+        get => _keyConfidence;
+        init => _keyConfidence = value is >= 0 and <= 1 ? value : throw new ArgumentOutOfRangeException(nameof(KeyConfidence), value, "A key's confidence is a probability from 0 to 1.");
+    }
+
+    private readonly double _keyConfidence = 1;
+
+    /// <summary>
+    /// Probability that <see cref="Payload"/> is right whatever its place: <see cref="Confidence"/> without the key's doubt
+    /// (0 where the key is surely wrong, as nothing then says how far the bytes are right).
+    /// </summary>
+    public double PayloadConfidence => KeyConfidence > 0 ? Math.Min(1, Confidence / KeyConfidence) : 0;
 
     public required ImmutableArray<byte> Header { get; init; }
 
@@ -92,9 +116,30 @@ public sealed record TapeImage
     public int Count(RecoveryStatus status) => Blocks.Count(b => b.Status == status);
 
     /// <summary>
-    /// Probability that every recovered (non-missing) position is right: the product of their confidences, positions
-    /// being read independently (summed in logs, so that thousands of near-certain positions do not lose precision).
+    /// Probability that every recovered (non-missing) position is right, bytes and place: the product of their payloads'
+    /// confidences, times the least of their keys' confidences. Payloads are read independently, so their chances
+    /// multiply (summed in logs, so that thousands of near-certain positions do not lose precision). Keys are not: the
+    /// doubt of a key is that a file before it went unread, and a later stream key's doubt holds every earlier one's (it
+    /// is the chance that no silence before its stretch hid a file), so every key is right exactly when the most doubted
+    /// one is: one doubted silence counts once, not once for each position after it. Where no key is doubted (every
+    /// block image, and an image read from a version 1 container) this is the product of the positions' confidences.
     /// Missing positions hold no bytes to be right or wrong; <see cref="Count"/> says how many there are.
     /// </summary>
-    public double OverallConfidence => Math.Exp(Blocks.Where(b => b.Status != RecoveryStatus.Missing).Sum(b => Math.Log(b.Confidence)));
+    public double OverallConfidence
+    {
+        get
+        {
+            double logPayloads = 0, leastKey = 1;
+            foreach (var block in Blocks)
+            {
+                if (block.Status != RecoveryStatus.Missing)
+                {
+                    logPayloads += Math.Log(block.PayloadConfidence);
+                    leastKey = Math.Min(leastKey, block.KeyConfidence);
+                }
+            }
+
+            return Math.Exp(logPayloads) * leastKey;
+        }
+    }
 }

@@ -38,7 +38,11 @@ public static class TapeImageContainer
     /// <summary>The usual file extension.</summary>
     public const string Extension = ".tvimg";
 
-    public const int CurrentVersion = 1;
+    /// <summary>The version written: 2, which keeps each position's key confidence apart (docs/image-format.md).</summary>
+    public const int CurrentVersion = 2;
+
+    /// <summary>The oldest version read. Version 1 has no key confidence: its positions read with key confidence 1.</summary>
+    public const int OldestReadVersion = 1;
 
     /// <summary>Magic, version, flags, manifest length, data length.</summary>
     public const int HeaderBytes = 24;
@@ -105,6 +109,7 @@ public static class TapeImageContainer
                 BlockNumber = block.BlockNumber,
                 Status = StatusName(block.Status),
                 Confidence = block.Confidence,
+                KeyConfidence = block.KeyConfidence,
                 AgreeingCaptures = block.AgreeingCaptures,
                 Offset = offset,
                 HeaderLength = header.Length,
@@ -257,7 +262,8 @@ public static class TapeImageContainer
 
     private static TapeImage Parse(byte[] file)
     {
-        // The magic and the version sit at fixed offsets in every version; everything after them is version 1's.
+        // The magic and the version sit at fixed offsets in every version; everything after them is laid out alike in
+        // versions 1 and 2 (they differ only in a manifest field).
         if (file.Length < Magic.Length || !file.AsSpan(0, Magic.Length).SequenceEqual(Magic))
         {
             throw new ImageFormatException("The file is not a TapeVault image: it does not begin with the image magic bytes.");
@@ -269,9 +275,9 @@ public static class TapeImageContainer
         }
 
         int version = BinaryPrimitives.ReadUInt16LittleEndian(file.AsSpan(8));
-        if (version != CurrentVersion)
+        if (version is < OldestReadVersion or > CurrentVersion)
         {
-            throw new ImageFormatException($"The image is in container format version {version}, which this reader does not know (it reads version {CurrentVersion}).");
+            throw new ImageFormatException($"The image is in container format version {version}, which this reader does not know (it reads versions {OldestReadVersion} to {CurrentVersion}).");
         }
 
         if (file.Length < HeaderBytes + TrailerBytes)
@@ -317,7 +323,7 @@ public static class TapeImageContainer
         catch (JsonException e)
         {
             string where = e.Path is { Length: > 1 } p ? $" at {p.TrimStart('$', '.')}" : string.Empty;
-            throw new ImageFormatException(Messages.OneLine($"The image's manifest is not valid JSON of format version {CurrentVersion}{where}."), e);
+            throw new ImageFormatException(Messages.OneLine($"The image's manifest is not valid JSON of format version {version}{where}."), e);
         }
         catch (ArgumentException e)
         {
@@ -330,17 +336,19 @@ public static class TapeImageContainer
             throw new ImageFormatException("The image's manifest holds no object.");
         }
 
-        return new ManifestReader(data.Span).Build(document, version);
+        return new ManifestReader(data.Span, version).Build(document);
     }
 
     /// <summary>Turns a parsed manifest into the model, checking every field and every byte range on the way.</summary>
-    private ref struct ManifestReader(ReadOnlySpan<byte> data)
+    private ref struct ManifestReader(ReadOnlySpan<byte> data, int version)
     {
         private readonly ReadOnlySpan<byte> _data = data;
+        private readonly int _version = version;
         private long _next;
 
-        public TapeImage Build(ManifestDocument d, int headerVersion)
+        public TapeImage Build(ManifestDocument d)
         {
+            int headerVersion = _version;
             if (d.Format != FormatName)
             {
                 throw Bad($"its manifest's format is '{d.Format}', not '{FormatName}'");
@@ -423,6 +431,16 @@ public static class TapeImageContainer
 
             var status = ParseStatus(b.Status, at);
             double confidence = Probability(b.Confidence, at + ".confidence");
+
+            // Version 1 kept no key confidence: its confidence stands for the whole position, key and all, as stored.
+            double keyConfidence = _version == 1
+                ? b.KeyConfidence is null ? 1 : throw Bad($"{at} has a keyConfidence, which version 1 does not have")
+                : Probability(b.KeyConfidence, at + ".keyConfidence");
+            if (confidence > keyConfidence)
+            {
+                throw Bad($"{at} has confidence {confidence.ToString(CultureInfo.InvariantCulture)} above its key's {keyConfidence.ToString(CultureInfo.InvariantCulture)}: a position is never surer than its place");
+            }
+
             long offset = b.Offset ?? throw Missing(at + ".offset");
             long headerLength = NonNegative(b.HeaderLength, at + ".headerLength");
             long payloadLength = NonNegative(b.PayloadLength, at + ".payloadLength");
@@ -464,6 +482,7 @@ public static class TapeImageContainer
                 BlockNumber = b.BlockNumber,
                 Status = status,
                 Confidence = confidence,
+                KeyConfidence = keyConfidence,
                 Header = [.. stored[..(int)headerLength]],
                 Payload = [.. stored[(int)headerLength..]],
                 Sources = sources.ToImmutable(),
@@ -491,14 +510,14 @@ public static class TapeImageContainer
             return span;
         }
 
-        private static BlockProvenance Provenance(SourceDocument s, string at) => new(
+        private readonly BlockProvenance Provenance(SourceDocument s, string at) => new(
             Required(s.CaptureSha256, at + ".captureSha256"),
             Required(s.Setting, at + ".setting"),
             Required(s.CodeVersion, at + ".codeVersion"),
             Finite(s.StartSeconds, at + ".startSeconds"),
             Probability(s.Confidence, at + ".confidence"));
 
-        private static void CheckHash(ReadOnlySpan<byte> bytes, string? recorded, string at)
+        private readonly void CheckHash(ReadOnlySpan<byte> bytes, string? recorded, string at)
         {
             if (!string.Equals(Sha256Hex(bytes), Required(recorded, at), StringComparison.Ordinal))
             {
@@ -506,7 +525,7 @@ public static class TapeImageContainer
             }
         }
 
-        private static RecoveryStatus ParseStatus(string? text, string at) => Required(text, at + ".status") switch
+        private readonly RecoveryStatus ParseStatus(string? text, string at) => Required(text, at + ".status") switch
         {
             "clean" => RecoveryStatus.Clean,
             "voted" => RecoveryStatus.Voted,
@@ -515,30 +534,30 @@ public static class TapeImageContainer
             _ => throw Bad($"{at}.status is '{text}', not clean, voted, repaired or missing"),
         };
 
-        private static T Required<T>(T? value, string at)
+        private readonly T Required<T>(T? value, string at)
             where T : class => value ?? throw Missing(at);
 
-        private static int Positive(int? value, string at) =>
+        private readonly int Positive(int? value, string at) =>
             value is { } v ? (v > 0 ? v : throw Bad($"{at} is {v}, not a positive number")) : throw Missing(at);
 
-        private static int NonNegative(int? value, string at) =>
+        private readonly int NonNegative(int? value, string at) =>
             value is { } v ? (v >= 0 ? v : throw Bad($"{at} is {v}, a negative number")) : throw Missing(at);
 
-        private static long NonNegative(long? value, string at) =>
+        private readonly long NonNegative(long? value, string at) =>
             value is { } v ? (v >= 0 ? v : throw Bad($"{at} is {v}, a negative number")) : throw Missing(at);
 
-        private static double Finite(double? value, string at) =>
+        private readonly double Finite(double? value, string at) =>
             value is { } v ? (double.IsFinite(v) ? v : throw Bad($"{at} is not a finite number")) : throw Missing(at);
 
-        private static double NonNegativeFinite(double? value, string at) =>
+        private readonly double NonNegativeFinite(double? value, string at) =>
             Finite(value, at) is var v && v >= 0 ? v : throw Bad($"{at} is negative");
 
-        private static double Probability(double? value, string at) =>
+        private readonly double Probability(double? value, string at) =>
             Finite(value, at) is var v && v is >= 0 and <= 1 ? v : throw Bad($"{at} is {v.ToString(CultureInfo.InvariantCulture)}, not a probability from 0 to 1");
 
-        private static ImageFormatException Missing(string at) => Bad($"its manifest lacks {at}");
+        private readonly ImageFormatException Missing(string at) => Bad($"its manifest lacks {at}");
 
-        private static ImageFormatException Bad(string what) => new(Messages.OneLine($"The image is not a valid version {CurrentVersion} container: {what}."));
+        private readonly ImageFormatException Bad(string what) => new(Messages.OneLine($"The image is not a valid version {_version} container: {what}."));
     }
 
     /// <summary>Refuses, before a byte is written, an image no reader would accept.</summary>
@@ -554,6 +573,7 @@ public static class TapeImageContainer
             Check(block.Position == i, $"{at} has position {block.Position}; positions must count up from 0.");
             Check(Enum.IsDefined(block.Status), $"{at} has an unknown status {(int)block.Status}.");
             Check(block.Confidence is >= 0 and <= 1, $"{at} has confidence {block.Confidence}, not a probability.");
+            Check(block.Confidence <= block.KeyConfidence, $"{at} has confidence {block.Confidence} above its key's {block.KeyConfidence}: a position is never surer than its place.");
             Check(block.AgreeingCaptures >= 0, $"{at} has a negative count of agreeing captures.");
             Check(
                 block.Status != RecoveryStatus.Missing || (block.Payload.IsDefaultOrEmpty && block.Confidence == 0),

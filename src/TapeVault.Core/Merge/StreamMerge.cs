@@ -944,7 +944,7 @@ internal sealed class StreamMerge
                 if (lost > 0)
                 {
                     split = true;
-                    stretchBlocks.Add(MissingBytes(stretch, offset));
+                    stretchBlocks.Add(MissingBytes(stretch, offset, keyed[stretch]));
                     offset += lost;
                 }
             }
@@ -1026,8 +1026,10 @@ internal sealed class StreamMerge
             // same characters on the same false start bit): a stream is voted, never clean; its confidence and
             // agreeing captures say how far to trust it.
             Status = RecoveryStatus.Voted,
-            // The position is the key's too: #s is the s-th stretch only if every stretch before it was read.
+            // The position is the key's too: #s is the s-th stretch only if every stretch before it was read. The key's
+            // doubt is kept apart as well, as the image counts it once (TapeImage.OverallConfidence).
             Confidence = Math.Max(Math.Exp(logConfidence) * (offset > 0 ? _options.StreamAfterGapFactor : 1) * genuine, whole) * keyed,
+            KeyConfidence = keyed,
             Header = [],
             Payload = payload,
             Sources = sources,
@@ -1035,12 +1037,14 @@ internal sealed class StreamMerge
         };
     }
 
-    private static ImageBlock MissingBytes(int stretch, int offset) => new()
+    /// <param name="keyed">Its key's confidence: the place of bytes no capture kept is doubted as its stretch's is.</param>
+    private static ImageBlock MissingBytes(int stretch, int offset, double keyed) => new()
     {
         Position = -1,
         Key = $"#{stretch}+{offset}",
         Status = RecoveryStatus.Missing,
         Confidence = 0,
+        KeyConfidence = keyed,
         Header = [],
         Payload = [],
         Sources = [],

@@ -26,7 +26,7 @@ public sealed class ImageCommandTests : IDisposable
 
         Assert.True(run.ExitCode == 0, run.ToString());
         Assert.Equal(string.Empty, run.Error);
-        Assert.Contains("container version 1", run.Output, StringComparison.Ordinal);
+        Assert.Contains("container version 2", run.Output, StringComparison.Ordinal);
         Assert.Contains("9: 6 clean, 1 voted, 1 repaired, 1 missing", run.Output, StringComparison.Ordinal);
         Assert.Contains("4: 3 complete, 1 incomplete", run.Output, StringComparison.Ordinal);
 

@@ -88,7 +88,7 @@ public sealed class ContainerRejectionTests
 
     [Theory]
     [InlineData(0)]
-    [InlineData(2)]
+    [InlineData(3)]
     [InlineData(65535)]
     public void UnknownVersion_IsRejectedAndNamed_EvenWithTheWholeHashRecomputed(int version)
     {
@@ -105,9 +105,37 @@ public sealed class ContainerRejectionTests
     [Fact]
     public void ManifestVersionThatDisagreesWithTheHeader_IsRejected()
     {
-        byte[] other = EditManifest(Good, m => m.Replace("\"formatVersion\": 1", "\"formatVersion\": 2", StringComparison.Ordinal));
+        byte[] other = EditManifest(Good, m => m.Replace("\"formatVersion\": 2", "\"formatVersion\": 1", StringComparison.Ordinal));
 
         Assert.Contains("version", Rejects(other).Message, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void AVersionTwoBlockWithoutKeyConfidence_IsRejected_AndAVersionOneBlockWithOne()
+    {
+        // Version 2 names keyConfidence for every block; version 1 has none (docs/image-format.md).
+        byte[] lacking = EditManifest(Good, m => m.Replace("\"keyConfidence\": 1,", string.Empty, StringComparison.Ordinal));
+        byte[] v1 = ImageSamples.VersionOneContainer(ImageSamples.Standard());
+        byte[] v1WithKey = EditManifest(v1, m => ReplaceFirst(m, "\"agreeingCaptures\"", "\"keyConfidence\": 1, \"agreeingCaptures\""));
+
+        Assert.Contains("keyConfidence", Rejects(lacking).Message, StringComparison.Ordinal);
+        Assert.Contains("keyConfidence", Rejects(v1WithKey).Message, StringComparison.Ordinal);
+        Assert.Contains("version 1", Rejects(v1WithKey).Message, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public void APositionSurerThanItsKey_IsRejected_EvenWithTheWholeHashRecomputed()
+    {
+        byte[] hostile = EditManifest(Good, m => ReplaceFirst(m, "\"keyConfidence\": 1,", "\"keyConfidence\": 0.5,"));
+
+        Assert.Contains("key", Rejects(hostile).Message, StringComparison.Ordinal);
+    }
+
+    private static string ReplaceFirst(string text, string what, string with)
+    {
+        int at = text.IndexOf(what, StringComparison.Ordinal);
+        Assert.True(at >= 0, what);
+        return string.Concat(text.AsSpan(0, at), with, text.AsSpan(at + what.Length));
     }
 
     [Theory]

@@ -29,6 +29,52 @@ public sealed class ContainerRoundTripTests : IDisposable
     }
 
     [Fact]
+    public void Read_GivesBackEachPositionsKeyConfidence_AndAnOverallConfidenceThatCountsTheLeastKeyOnce()
+    {
+        var image = ImageSamples.Keyed();
+
+        byte[] container = ImageSamples.Container(image);
+        var read = ImageSamples.Read(container);
+
+        ImageSamples.AssertSame(image, read);
+
+        // In the manifest as docs/image-format.md version 2 names it, read here by hand rather than through the reader.
+        using var document = JsonDocument.Parse(container.AsMemory(24, (int)BinaryPrimitives.ReadUInt32LittleEndian(container.AsSpan(12))));
+        Assert.Equal(
+            image.Blocks.Select(b => b.KeyConfidence),
+            document.RootElement.GetProperty("blocks").EnumerateArray().Select(b => b.GetProperty("keyConfidence").GetDouble()));
+
+        // The image is right when every recovered payload is and every key is; the keys' doubts are nested, so all keys
+        // are right with the least key's chance (the product rule for nested events, common practice): the payloads'
+        // confidences as built (Standard's), times 0.85 · 0.9 once.
+        double payloads = ImageSamples.Standard().Blocks.Where(b => b.Status != RecoveryStatus.Missing).Aggregate(1.0, (p, b) => p * b.Confidence);
+        Assert.Equal(payloads * 0.85 * 0.9, read.OverallConfidence, 12);
+    }
+
+    [Fact]
+    public void Read_AVersionOneContainer_GivesEachPositionItsConfidenceAsStored_AndItsKeyUndoubted()
+    {
+        // A version 1 container built by hand from the layout docs/image-format.md gave version 1 (ImageSamples).
+        var image = ImageSamples.Standard();
+        byte[] container = ImageSamples.VersionOneContainer(image);
+
+        var read = ImageSamples.Read(container);
+        using var stream = new MemoryStream(container, writable: false);
+        var verification = TapeImageContainer.Verify(stream);
+
+        ImageSamples.AssertSame(image, read);
+        Assert.All(read.Blocks, b => Assert.Equal(1, b.KeyConfidence));
+        Assert.True(verification.Ok, verification.FailureReason);
+        Assert.Equal(1, verification.FormatVersion);
+
+        // Version 1 kept one confidence, the whole position's as stored: the overall is their product, as it was.
+        Assert.Equal(read.Blocks.Where(b => b.Status != RecoveryStatus.Missing).Aggregate(1.0, (p, b) => p * b.Confidence), read.OverallConfidence, 12);
+
+        // Written again, it is version 2, and reads back the same.
+        ImageSamples.AssertSame(image, ImageSamples.Read(ImageSamples.Container(read)));
+    }
+
+    [Fact]
     public void Read_GivesBackAnImageWithNoBlocksAndAnOffsetClock()
     {
         var image = new TapeImage
@@ -79,7 +125,7 @@ public sealed class ContainerRoundTripTests : IDisposable
 
         Assert.True(verification.Ok, verification.FailureReason);
         Assert.Null(verification.FailureReason);
-        Assert.Equal(1, verification.FormatVersion);
+        Assert.Equal(2, verification.FormatVersion);
         Assert.Equal(new FileInfo(path).Length, verification.Length);
 
         // Outside reference: GNU coreutils' sha256sum of the file on disk.
@@ -107,14 +153,14 @@ public sealed class ContainerRoundTripTests : IDisposable
 
         // The layout of docs/image-format.md, read here by hand rather than through the reader.
         Assert.Equal("TVIMG\r\n\u001a"u8.ToArray(), container[..8]);
-        Assert.Equal(1, BinaryPrimitives.ReadUInt16LittleEndian(container.AsSpan(8)));
+        Assert.Equal(2, BinaryPrimitives.ReadUInt16LittleEndian(container.AsSpan(8)));
         Assert.Equal(0, BinaryPrimitives.ReadUInt16LittleEndian(container.AsSpan(10)));
         long manifest = BinaryPrimitives.ReadUInt32LittleEndian(container.AsSpan(12));
         long data = (long)BinaryPrimitives.ReadUInt64LittleEndian(container.AsSpan(16));
         Assert.Equal(container.Length, 24 + manifest + data + 32);
         using var document = JsonDocument.Parse(container.AsMemory(24, (int)manifest));
         Assert.Equal("tapevault-image", document.RootElement.GetProperty("format").GetString());
-        Assert.Equal(1, document.RootElement.GetProperty("formatVersion").GetInt32());
+        Assert.Equal(2, document.RootElement.GetProperty("formatVersion").GetInt32());
     }
 
     [Fact]
@@ -178,6 +224,28 @@ public sealed class ContainerRoundTripTests : IDisposable
 
         Assert.Contains("missing", error.Message, StringComparison.Ordinal);
         Assert.Equal(0, stream.Length);
+    }
+
+    [Fact]
+    public void Write_RefusesAPositionSurerThanItsKey()
+    {
+        var image = ImageSamples.Standard();
+        var bad = image with { Blocks = image.Blocks.SetItem(0, image.Blocks[0] with { KeyConfidence = 0.5 }) };
+        using var stream = new MemoryStream();
+
+        var error = Assert.Throws<ArgumentException>(() => TapeImageContainer.Write(stream, bad));
+
+        Assert.Contains("key", error.Message, StringComparison.Ordinal);
+        Assert.Equal(0, stream.Length);
+    }
+
+    [Theory]
+    [InlineData(-0.1)]
+    [InlineData(1.5)]
+    [InlineData(double.NaN)]
+    public void ImageBlock_RefusesAKeyConfidenceThatIsNoProbability(double key)
+    {
+        Assert.Throws<ArgumentOutOfRangeException>(() => ImageSamples.Standard().Blocks[0] with { KeyConfidence = key });
     }
 
     [Fact]

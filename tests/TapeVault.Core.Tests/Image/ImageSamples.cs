@@ -1,5 +1,10 @@
+using System.Buffers.Binary;
 using System.Collections.Immutable;
+using System.Security.Cryptography;
 using System.Text;
+using System.Text.Encodings.Web;
+using System.Text.Json;
+using System.Text.Json.Nodes;
 using TapeVault.Core.Image;
 using Xunit;
 
@@ -89,6 +94,125 @@ internal static class ImageSamples
         };
     }
 
+    /// <summary>
+    /// <see cref="Standard"/> with its keys doubted as a stream merge doubts them, nested (each later key's doubt holds
+    /// every earlier one): 1 for positions 0 to 2, 0.85 from 3, 0.85 · 0.9 from 6; each position's confidence is its
+    /// payload's times its key's.
+    /// </summary>
+    public static TapeImage Keyed()
+    {
+        var image = Standard();
+        return image with
+        {
+            Blocks = [.. image.Blocks.Select(b =>
+            {
+                double key = b.Position < 3 ? 1 : b.Position < 6 ? 0.85 : 0.85 * 0.9;
+                return b with { Confidence = b.Confidence * key, KeyConfidence = key };
+            })],
+        };
+    }
+
+    /// <summary>
+    /// A container of format version 1 as docs/image-format.md lays it out, built here field by field, apart from the
+    /// product's writer (which writes version 2 only): the header (magic, version 1, flags 0, the two lengths, little-
+    /// endian), the manifest's properties in the documented order (two-space indentation, LF, '+' and letters
+    /// unescaped), each block's header and payload then its conflicts' payloads, and the SHA-256 of all of it
+    /// (System.Security.Cryptography, FIPS 180-4). A version 1 block has no key confidence: it is refused if the image
+    /// has one below 1. When version 2 came, these bytes were checked to be, byte for byte, what the version 1 writer
+    /// wrote (the container's code as it was, built beside it) for <see cref="Standard"/> and two other samples.
+    /// </summary>
+    public static byte[] VersionOneContainer(TapeImage image)
+    {
+        using var data = new MemoryStream();
+        var blocks = new JsonArray();
+        static string Sha(ReadOnlySpan<byte> bytes) => Convert.ToHexStringLower(SHA256.HashData(bytes));
+        static JsonObject Source(BlockProvenance p) => new()
+        {
+            ["captureSha256"] = p.CaptureSha256,
+            ["setting"] = p.SettingName,
+            ["codeVersion"] = p.CodeVersion,
+            ["startSeconds"] = p.StartSeconds,
+            ["confidence"] = p.Confidence,
+        };
+        foreach (var b in image.Blocks)
+        {
+            Assert.Equal(1, b.KeyConfidence);
+            long offset = data.Length;
+            byte[] stored = [.. b.Header, .. b.Payload];
+            data.Write(stored);
+            var conflicts = new JsonArray();
+            foreach (var c in b.ConflictingPayloads)
+            {
+                conflicts.Add(new JsonObject
+                {
+                    ["offset"] = data.Length,
+                    ["length"] = c.Payload.Length,
+                    ["sha256"] = Sha(c.Payload.AsSpan()),
+                    ["agreeingCaptures"] = c.AgreeingCaptures,
+                    ["source"] = Source(c.Source),
+                });
+                data.Write(c.Payload.AsSpan());
+            }
+
+            blocks.Add(new JsonObject
+            {
+                ["position"] = b.Position,
+                ["key"] = b.Key,
+                ["fileName"] = b.FileName,
+                ["fileId"] = b.FileId,
+                ["blockNumber"] = b.BlockNumber,
+                ["status"] = b.Status.ToString().ToLowerInvariant(),
+                ["confidence"] = b.Confidence,
+                ["agreeingCaptures"] = b.AgreeingCaptures,
+                ["offset"] = offset,
+                ["headerLength"] = b.Header.Length,
+                ["payloadLength"] = b.Payload.Length,
+                ["sha256"] = Sha(stored),
+                ["sources"] = new JsonArray([.. b.Sources.Select(s => (JsonNode)Source(s))]),
+                ["conflicts"] = conflicts,
+            });
+        }
+
+        var manifest = new JsonObject
+        {
+            ["format"] = "tapevault-image",
+            ["formatVersion"] = 1,
+            ["profileId"] = image.ProfileId,
+            ["codeVersion"] = image.CodeVersion,
+            ["createdUtc"] = image.CreatedUtc,
+            ["captures"] = new JsonArray([.. image.Captures.Select(c => (JsonNode)new JsonObject
+            {
+                ["sha256"] = c.CaptureSha256,
+                ["fileName"] = c.FileName,
+                ["sampleRate"] = c.SampleRate,
+                ["channels"] = c.Channels,
+                ["durationSeconds"] = c.DurationSeconds,
+            })]),
+            ["blocks"] = blocks,
+            ["files"] = new JsonArray([.. image.Files.Select(f => (JsonNode)new JsonObject
+            {
+                ["name"] = f.Name,
+                ["length"] = f.Length,
+                ["firstPosition"] = f.FirstPosition,
+                ["blockCount"] = f.BlockCount,
+                ["complete"] = f.Complete,
+            })]),
+        };
+        using var json = new MemoryStream();
+        using (var writer = new Utf8JsonWriter(json, new JsonWriterOptions { Indented = true, NewLine = "\n", Encoder = JavaScriptEncoder.UnsafeRelaxedJsonEscaping }))
+        {
+            manifest.WriteTo(writer);
+        }
+
+        byte[] head = new byte[24];
+        "TVIMG\r\n\u001a"u8.CopyTo(head);
+        BinaryPrimitives.WriteUInt16LittleEndian(head.AsSpan(8), 1);
+        BinaryPrimitives.WriteUInt32LittleEndian(head.AsSpan(12), (uint)json.Length);
+        BinaryPrimitives.WriteUInt64LittleEndian(head.AsSpan(16), (ulong)data.Length);
+        byte[] body = [.. head, .. json.ToArray(), .. data.ToArray()];
+        return [.. body, .. SHA256.HashData(body)];
+    }
+
     /// <summary>The container's bytes for an image.</summary>
     public static byte[] Container(TapeImage image)
     {
@@ -124,6 +248,7 @@ internal static class ImageSamples
             Assert.Equal(e.BlockNumber, a.BlockNumber);
             Assert.Equal(e.Status, a.Status);
             Assert.Equal(e.Confidence, a.Confidence);
+            Assert.Equal(e.KeyConfidence, a.KeyConfidence);
             Assert.Equal(e.Header.ToArray(), a.Header.ToArray());
             Assert.Equal(e.Payload.ToArray(), a.Payload.ToArray());
             Assert.Equal(e.Sources.ToArray(), a.Sources.ToArray());

@@ -496,6 +496,75 @@ public sealed class StreamMergeTests
         Assert.Equal(oneGap[1].Confidence * (1 - StreamMerge.UnreadStretchBetween), roomForAFile[1].Confidence, 12);
     }
 
+    [Fact]
+    public void Stream_AnImageOfFourFilesAfterOneSilenceRoomyEnoughForAFile_CountsThatDoubtOnce_NotOncePerPosition()
+    {
+        // Four files of text on a kcs-1200 tape (the Kansas City Standard at 1200 baud, BYTE, February 1976; declared
+        // lead-in 2 s, gaps 1 s), read whole and alike by two captures, each file after one declared gap. Before the
+        // first, the captures heard either the lead-in alone or room for a file of one character that no reading holds:
+        // then every key may lie a place early, the whole image with it: one event, whose chance the last key's doubt
+        // already is (the events "no file hid before stretch s" are nested, and the chance that all of them hold is the
+        // least of theirs: the product rule for nested events, common practice). Before, the image multiplied the
+        // doubt into every position: 0.85⁴ where 0.85 is the chance.
+        var texts = Enumerable.Range(0, 4).Select(f => f % 2 == 0 ? Text() : Text().Reverse().ToArray()).ToArray();
+        for (int f = 2; f < 4; f++)
+        {
+            texts[f][0] ^= (byte)f;
+        }
+
+        TapeImage Merged(double first) => TapeMerger.Merge(
+            [.. Enumerable.Range(0, 2).Select(n => Readings.Pass(
+                n,
+                [.. texts.Select((text, f) => Readings.Stream(text, 0, text.Length, first + (0.3 * n) + (f * ((text.Length * Character) + 1.0)), Character, position: f))]))],
+            Kcs);
+
+        var afterLeadIn = Merged(2.2);
+        var afterRoomForAFile = Merged(2.2 + Character + 1.0);
+
+        Assert.Equal(texts.Select(Hex), afterRoomForAFile.Blocks.Select(b => Hex(b.Payload)));
+        Assert.Equal(["#0", "#1", "#2", "#3"], afterRoomForAFile.Blocks.Select(b => b.Key));
+        Assert.All(afterLeadIn.Blocks, b => Assert.Equal(1, b.KeyConfidence));
+        for (int i = 0; i < 4; i++)
+        {
+            // Each position alone: its bytes as sure as after the lead-in alone, its place doubted by the one silence.
+            Assert.Equal(1 - StreamMerge.UnreadStretchAtStart, afterRoomForAFile.Blocks[i].KeyConfidence, 12);
+            Assert.Equal(afterLeadIn.Blocks[i].Confidence, afterRoomForAFile.Blocks[i].PayloadConfidence, 12);
+            Assert.Equal(afterLeadIn.Blocks[i].Confidence * (1 - StreamMerge.UnreadStretchAtStart), afterRoomForAFile.Blocks[i].Confidence, 12);
+        }
+
+        // The image: every payload right, and no file hid in the one silence.
+        double payloads = afterLeadIn.Blocks.Aggregate(1.0, (product, b) => product * b.Confidence);
+        Assert.Equal(payloads, afterLeadIn.OverallConfidence, 12);
+        Assert.Equal(payloads * (1 - StreamMerge.UnreadStretchAtStart), afterRoomForAFile.OverallConfidence, 12);
+    }
+
+    [Fact]
+    public void Stream_AnImageWithASilenceRoomyEnoughForAFileBeforeItsFirstStretchAndAnotherBetween_CountsEachSilenceOnce()
+    {
+        // Three files as above (kcs-1200, the Kansas City Standard, BYTE, February 1976): room for an unread file before
+        // the first (after the lead-in, one character and a gap) and between the second and the third (two gaps and a
+        // character, which both captures heard). Keys #0 and #1 share the first doubt, #2 has both; the image is right
+        // when its payloads are and neither silence hid a file: the two chances multiply once (common practice: the
+        // silences are counted as apart), however many positions follow them.
+        var texts = Enumerable.Range(0, 3).Select(f => f % 2 == 0 ? Text() : Text().Reverse().ToArray()).ToArray();
+        texts[2][0] ^= 0x5a;
+        double[] silenceBefore = [0, 1.0, 2.0 + Character];
+        TapeImage Merged(double first, double[] silences) => TapeMerger.Merge(
+            [.. Enumerable.Range(0, 2).Select(n => Readings.Pass(
+                n,
+                [.. texts.Select((text, f) => Readings.Stream(
+                    text, 0, text.Length, first + (0.3 * n) + texts.Take(f).Sum(t => t.Length * Character) + silences.Take(f + 1).Sum(), Character, position: f))]))],
+            Kcs);
+
+        var plain = Merged(2.2, [0, 1.0, 1.0]);
+        var doubted = Merged(2.2 + Character + 1.0, silenceBefore);
+
+        Assert.Equal(texts.Select(Hex), doubted.Blocks.Select(b => Hex(b.Payload)));
+        double start = 1 - StreamMerge.UnreadStretchAtStart, between = 1 - StreamMerge.UnreadStretchBetween;
+        Assert.Equal([start, start, start * between], doubted.Blocks.Select(b => Math.Round(b.KeyConfidence, 12)), (a, b) => Math.Abs(a - b) < 1e-9);
+        Assert.Equal(plain.OverallConfidence * start * between, doubted.OverallConfidence, 12);
+    }
+
     private static string Hex(System.Collections.Immutable.ImmutableArray<byte> bytes) => Convert.ToHexStringLower(bytes.AsSpan());
 
     private static string Hex(byte[] bytes) => Convert.ToHexStringLower(bytes);
