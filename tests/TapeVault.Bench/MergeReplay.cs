@@ -54,7 +54,7 @@ public static class MergeReplay
             .OrderBy(g => g.Key.Profile, StringComparer.Ordinal).ThenBy(g => g.Key.Seed)
             .ToList();
         var rows = new List<(string Profile, int Seed, RecoveryStatus Status, double Confidence, bool Right)>();
-        var tapes = new List<(string Profile, int Written, int Found, int Positions, bool Exact)>();
+        var tapes = new List<(string Profile, int Written, int Found, int Positions, bool Exact, double Overall, double Product, int DoubtedKeys)>();
         var lines = new List<string>();
         var weak = new List<(string Profile, WeakReading Reading, bool Right)>();
         var watch = System.Diagnostics.Stopwatch.StartNew();
@@ -98,7 +98,11 @@ public static class MergeReplay
                 lines.Add(string.Join('\t', profile.Id, tape.Key.Seed, block.Status, block.Confidence.ToString("R", CultureInfo.InvariantCulture), right ? 1 : 0, block.AgreeingCaptures, block.Sources.Length, block.Key, right ? index : -1));
             }
 
-            tapes.Add((profile.Id, written.Count, found.Count, image.Blocks.Length, exact && found.Count == written.Count));
+            // The image's overall confidence, and the product of its recovered positions' confidences (what it was before
+            // keys' doubts were counted once): the same wherever no key is doubted, as a block format's never is.
+            double product = image.Blocks.Where(b => b.Status != RecoveryStatus.Missing).Aggregate(1.0, (p, b) => p * b.Confidence);
+            tapes.Add((profile.Id, written.Count, found.Count, image.Blocks.Length, exact && found.Count == written.Count,
+                image.OverallConfidence, product, image.Blocks.Count(b => b.KeyConfidence < 1)));
         }
 
         if (dump is not null)
@@ -127,7 +131,9 @@ public static class MergeReplay
         Console.WriteLine();
         Console.WriteLine("Written blocks: with a right position and without; positions (missing ones too) beyond one per written block,");
         Console.WriteLine("summed over tapes, and the tapes with any; exact images (every position clean, right, read alike by two captures).");
-        Console.WriteLine($"{"profile",-18} {"tapes",5} {"written",7} {"found",6} {"not found",9} {"extra positions",15} {"on tapes",8} {"exact",5}");
+        Console.WriteLine("Least exact: the least overall confidence of the exact images; doubted keys: positions whose key confidence is below 1;");
+        Console.WriteLine("overall ≠ product: images whose overall confidence differs by more than 1e-12 from the product of their positions' confidences.");
+        Console.WriteLine($"{"profile",-18} {"tapes",5} {"written",7} {"found",6} {"not found",9} {"extra positions",15} {"on tapes",8} {"exact",5} {"least exact",11} {"doubted keys",12} {"overall ≠ product",17}");
         foreach (var group in tapes.GroupBy(t => t.Profile).Append(tapes.GroupBy(_ => "all").FirstOrDefault()))
         {
             if (group is null)
@@ -138,7 +144,8 @@ public static class MergeReplay
             var items = group.ToList();
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"{group.Key,-18} {items.Count,5} {items.Sum(t => t.Written),7} {items.Sum(t => t.Found),6} {items.Sum(t => t.Written - t.Found),9} " +
-                $"{items.Sum(t => Math.Max(0, t.Positions - t.Written)),15} {items.Count(t => t.Positions > t.Written),8} {items.Count(t => t.Exact),5}"));
+                $"{items.Sum(t => Math.Max(0, t.Positions - t.Written)),15} {items.Count(t => t.Positions > t.Written),8} {items.Count(t => t.Exact),5} " +
+                $"{items.Where(t => t.Exact).Select(t => t.Overall).DefaultIfEmpty(double.NaN).Min(),11:0.0000} {items.Sum(t => t.DoubtedKeys),12} {items.Count(t => Math.Abs(t.Overall - t.Product) > 1e-12),17}"));
         }
 
         if (weakShares)

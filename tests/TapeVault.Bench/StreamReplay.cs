@@ -101,7 +101,7 @@ public static class StreamReplay
         var rows = new List<(string Profile, int Seed, double Confidence, bool Right, bool Anywhere)>();
         var singles = new List<(string Profile, double Confidence, bool Right, bool Anywhere, bool Unplaced)>();
         var readRows = new List<string>();
-        var exactTapes = new Dictionary<string, (int Tapes, int Exact, double Least)>();
+        var exactTapes = new Dictionary<string, (int Tapes, int Exact, double Least, int Doubted)>();
         var lines = new List<string>();
         var watch = System.Diagnostics.Stopwatch.StartNew();
         foreach (string file in Directory.GetFiles(folder, "*.json").Order(StringComparer.Ordinal))
@@ -159,21 +159,24 @@ public static class StreamReplay
                     right ? "-" : Trust.StreamErrorWhere(block.Payload.AsSpan(), files), anywhere ? 1 : 0, Convert.ToHexString(block.Payload.AsSpan())));
             }
 
-            var t = exactTapes.GetValueOrDefault(saved.Profile, (Tapes: 0, Exact: 0, Least: 1.0));
-            exactTapes[saved.Profile] = (t.Tapes + 1, t.Exact + (exact ? 1 : 0), exact ? Math.Min(t.Least, image.OverallConfidence) : t.Least);
+            var t = exactTapes.GetValueOrDefault(saved.Profile, (Tapes: 0, Exact: 0, Least: 1.0, Doubted: 0));
+            exactTapes[saved.Profile] = (t.Tapes + 1, t.Exact + (exact ? 1 : 0), exact ? Math.Min(t.Least, image.OverallConfidence) : t.Least,
+                t.Doubted + (exact && image.Blocks.Any(b => b.KeyConfidence < 1) ? 1 : 0));
         }
 
         Console.WriteLine("Right: lined up with the written bytes, a segment of fewer than four bytes where its key puts it (Trust.ShortSegmentInPlace);");
         Console.WriteLine("ECE anywhere: short segments lined up anywhere in the files, as the trust bench judged them before that rule.");
-        Console.WriteLine($"{"profile",-10} {"tapes",5} {"positions",9} {"wrong ≥0.99",11} {"ECE merged",10} {"ECE anywhere",12} {"exact",5} {"least exact",11}");
+        Console.WriteLine("exact: images of one right position per file, each agreed by two captures; least exact: their least overall confidence;");
+        Console.WriteLine("keyed: exact images with a key doubted (a silence before a stretch with room for a file no capture read).");
+        Console.WriteLine($"{"profile",-10} {"tapes",5} {"positions",9} {"wrong ≥0.99",11} {"ECE merged",10} {"ECE anywhere",12} {"exact",5} {"least exact",11} {"keyed",5}");
         foreach (var group in rows.GroupBy(r => r.Profile).OrderBy(g => g.Key, StringComparer.Ordinal))
         {
             var items = group.Select(r => (r.Confidence, r.Right)).ToList();
-            var (tapes, exact, least) = exactTapes[group.Key];
+            var (tapes, exact, least, doubted) = exactTapes[group.Key];
             double logLikelihood = items.Sum(i => Math.Log(Math.Clamp(i.Right ? i.Confidence : 1 - i.Confidence, 1e-9, 1)));
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{group.Key}: log-likelihood of right and wrong {logLikelihood:0.0}"));
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
-                $"{group.Key,-10} {tapes,5} {items.Count,9} {items.Count(i => !i.Right && i.Confidence >= Trust.StreamConfidentWrong),11} {Calibration.EqualBinEce(items),10:0.0000} {Calibration.EqualBinEce([.. group.Select(r => (r.Confidence, r.Anywhere))]),12:0.0000} {exact,5} {least,11:0.0000}"));
+                $"{group.Key,-10} {tapes,5} {items.Count,9} {items.Count(i => !i.Right && i.Confidence >= Trust.StreamConfidentWrong),11} {Calibration.EqualBinEce(items),10:0.0000} {Calibration.EqualBinEce([.. group.Select(r => (r.Confidence, r.Anywhere))]),12:0.0000} {exact,5} {least,11:0.0000} {doubted,5}"));
             var (floor, low, high) = EceSpread([.. group.Select(r => (r.Seed, r.Confidence, r.Right))]);
             Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
                 $"{group.Key}: ECE a calibrated merge would show on these positions {floor:0.0000}; tapes drawn again, 10–90 % {low:0.0000}–{high:0.0000}"));
