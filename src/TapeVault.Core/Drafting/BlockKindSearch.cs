@@ -80,7 +80,7 @@ public static class BlockKindSearch
             // The blocks whose bodies the check held on, in their order (each check computed once, in the search).
             var held = chosen.ToHashSet(ReferenceEqualityComparer.Instance);
             var holding = synced.Where((_, i) => held.Contains(bodies[i])).ToList();
-            var (copies, share, perCopy) = Copies(holding, sync);
+            var (copies, share, perCopy) = Copies(holding, sync, values);
             var distinct = LayoutSearch.WithoutRepeats(holding.Select(b => b[sync..]));
             var kinds = Kinds(distinct, checksum.Width);
             bool approximate = false;
@@ -178,12 +178,12 @@ public static class BlockKindSearch
     /// How many copies of a block are written (runs of equal bodies), the share of blocks in runs of that length,
     /// and the sync before each copy where the copies' syncs differ (null where every copy has the same).
     /// </summary>
-    private static (int Copies, double Share, List<byte[]>? PerCopy) Copies(List<byte[]> holding, int sync)
+    private static (int Copies, double Share, List<byte[]>? PerCopy) Copies(List<byte[]> holding, int sync, List<byte[]> values)
     {
         var (copies, share, runs) = LayoutSearch.Copies([.. holding.Select(b => b[sync..])]);
         if (copies == 1)
         {
-            return (1, share, null);
+            return CopiesBySync(holding, sync, values, runs) is { } bySync ? bySync : (1, share, null);
         }
 
         // The sync of each copy: the value most full runs have in that place.
@@ -195,6 +195,47 @@ public static class BlockKindSearch
         }
 
         return (copies, share, perCopy.Skip(1).All(p => p.AsSpan().SequenceEqual(perCopy[0])) ? null : perCopy);
+    }
+
+    /// <summary>
+    /// Copies that differ in their sync, where damage left most blocks without their twin: the runs of alike blocks
+    /// then count more lone blocks than pairs, yet a lone copy still says which copy it is by its sync. Where the first
+    /// bytes take two values or more and every run of two alike blocks or more holds a different value in each place
+    /// (the same order in every run), the copies are the longest such run, each copy's sync the value runs hold in its
+    /// place, and the share the blocks whose syncs stand in that order (a lone block of any copy's sync counts).
+    /// Null where no run of alike blocks shows it (a sync that differs between block kinds, written once each).
+    /// </summary>
+    private static (int Copies, double Share, List<byte[]> PerCopy)? CopiesBySync(List<byte[]> holding, int sync, List<byte[]> values, List<(int Start, int Length)> runs)
+    {
+        var repeated = runs.Where(r => r.Length >= 2).ToList();
+        if (values.Count < 2 || repeated.Count == 0)
+        {
+            return null;
+        }
+
+        string Sync(int i) => Convert.ToHexString(holding[i], 0, sync);
+        int copies = Math.Min(values.Count, repeated.Max(r => r.Length));
+        var perCopy = new List<string>();
+        for (int k = 0; k < copies; k++)
+        {
+            var inPlace = repeated.Where(r => r.Length > k).Select(r => Sync(r.Start + k)).Distinct().ToList();
+            if (inPlace.Count != 1 || perCopy.Contains(inPlace[0]))
+            {
+                return null;
+            }
+
+            perCopy.Add(inPlace[0]);
+        }
+
+        // A run in order: its syncs are the per-copy values from some copy on, one after another.
+        bool InOrder((int Start, int Length) run)
+        {
+            int first = perCopy.IndexOf(Sync(run.Start));
+            return first >= 0 && first + run.Length <= copies && Enumerable.Range(0, run.Length).All(j => Sync(run.Start + j) == perCopy[first + j]);
+        }
+
+        double share = (double)runs.Where(InOrder).Sum(r => r.Length) / holding.Count;
+        return (copies, share, [.. perCopy.Select(Convert.FromHexString)]);
     }
 
     /// <summary>

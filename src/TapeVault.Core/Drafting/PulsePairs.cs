@@ -164,9 +164,14 @@ public static class PulsePairs
             return null;
         }
 
+        // Which pair is 0 and the bit order, tried all four ways: an XOR over an even count of bytes holds on every
+        // block complemented and on its bits reversed, so the check alone rarely tells them. A header field giving the
+        // next block's length exactly (BlockKindSearch) does: complemented or bit-reversed, the length or addresses
+        // read as other numbers, and the search finds the kinds only within a few bytes of damaged blocks, if at all.
+        // Then the printable text (names), which a few header bytes among a capture's data bytes move only a little.
         PairReading? best = null;
-        double bestPrintable = -1;
-        double runnerUp = -1;
+        (int Holding, bool Exact, double Printable) bestScore = (-1, false, -1);
+        (int Holding, bool Exact, double Printable) runnerUp = (-1, false, -1);
         foreach (var (zero, one) in new[] { (a, b), (b, a) })
         {
             var (parity, parityShare) = ParityOf(framed, zero, one);
@@ -186,24 +191,29 @@ public static class PulsePairs
                     continue;
                 }
 
-                double printable = CommonSections.PrintableShare(bytes);
-                double score = kinds.BlocksHolding + printable;
-                if (score > bestPrintable)
+                var score = (kinds.BlocksHolding, !kinds.LengthApproximate, CommonSections.PrintableShare(bytes));
+                if (Better(score, bestScore))
                 {
-                    runnerUp = bestPrintable;
-                    bestPrintable = score;
+                    runnerUp = bestScore;
+                    bestScore = score;
                     best = new PairReading(marker, second, end, zero, one, pairsPerFrame, dataBits, parity, parityShare, order, true, markerShare, pairShare, frames, kinds);
                 }
-                else if (score > runnerUp)
+                else if (Better(score, runnerUp))
                 {
                     runnerUp = score;
                 }
             }
         }
 
-        // The mapping and order are told only where the winner's text stands out from every other reading's.
-        return best is null ? null : best with { Told = bestPrintable - runnerUp >= 0.1 };
+        // The mapping and order are told only where the winner holds on more blocks, or gives the next block's length
+        // exactly where no other reading does, or its text stands out from every other reading's.
+        bool told = bestScore.Holding > runnerUp.Holding || (bestScore.Exact && !runnerUp.Exact) || bestScore.Printable - runnerUp.Printable >= 0.1;
+        return best is null ? null : best with { Told = told };
     }
+
+    /// <summary>More blocks holding, then the next block's length given exactly, then more printable text.</summary>
+    private static bool Better((int Holding, bool Exact, double Printable) a, (int Holding, bool Exact, double Printable) b) =>
+        a.Holding != b.Holding ? a.Holding > b.Holding : a.Exact != b.Exact ? a.Exact : a.Printable > b.Printable;
 
     /// <summary>Where each frame begins (its marker) in a block: frame after frame at the marker's spacing, from the first marker.</summary>
     public static IEnumerable<int> FrameStarts(int[] block, int marker, int second, int spacing)

@@ -755,7 +755,8 @@ public sealed class PulseWidthDrafter : IFamilyDrafter
         proposal.Measured("layout.checksum", $"{k.Checksum.Name}, {endian}-endian, over what follows the sync", 0.97, held);
         proposal.Measured("layout.header", $"sync {k.SyncBytes} bytes ({string.Join(" / ", k.SyncPerCopy.Select(BlockKindSearch.Hex))})", 0.9,
             $"every block begins with these bytes{(k.SyncPerCopy.Count > 1 ? ", one value for each copy" : string.Empty)}, and the check holds on what follows");
-        proposal.Measured("layout.copies", F(k.Copies), k.CopiesShare >= 0.6 ? 0.9 : 0.6, $"{F(100 * k.CopiesShare, "0")} % of the blocks read come in runs of {k.Copies} alike after the sync");
+        proposal.Measured("layout.copies", F(k.Copies), k.CopiesShare >= 0.6 ? 0.9 : 0.6, $"{F(100 * k.CopiesShare, "0")} % of the blocks read come in runs of {k.Copies} alike after the sync"
+            + (k.SyncPerCopy.Count > 1 ? " or in part of such a run, each copy with its own sync" : string.Empty));
         proposal.Findings.Add(new DraftFinding("layout.kinds", $"header ({k.HeaderBodyBytes} bytes after the sync), data", k.LengthApproximate, k.LengthApproximate ? 0.5 : 0.85,
             (k.LengthApproximate ? "no data block read held its check, so the length its header gives is matched only to within a few bytes of the damaged blocks read (which field, and whether the end is inclusive, are guesses): " : string.Empty) +
             $"{k.Files} times a block of {k.HeaderBodyBytes + k.Checksum.Width} bytes after the sync is followed by one of another length, which "

@@ -51,6 +51,40 @@ public sealed class BlockKindSearchTests
         Assert.Equal(blocks.Count, found.Layout.Blocks.Count);
     }
 
+    /// <summary>
+    /// Damage lost one copy of most blocks (12 written, 7 read: one whole pair, five lone copies of either copy): runs
+    /// of alike blocks count more lone blocks than pairs, yet each copy still carries its own countdown, as the
+    /// format's description says (a countdown sync that differs between the first and second copy, each block recorded
+    /// twice). Before, the copies were drafted as 1 with the first copy's sync alone, so every second copy was lost.
+    /// </summary>
+    [Fact]
+    public void Copies_told_by_their_syncs_where_damage_left_most_blocks_without_their_twin()
+    {
+        var blocks = DraftBlockSamples.Blocks(Xmodem(), false, 4);
+        List<byte[]> read = [blocks[1], blocks[2], blocks[4], blocks[5], blocks[7], blocks[8], blocks[11]];
+
+        var found = BlockKindSearch.Search(read);
+
+        Assert.NotNull(found);
+        Assert.Equal(2, found.Copies);
+        Assert.Equal([DraftBlockSamples.FirstCopySync, DraftBlockSamples.SecondCopySync], found.SyncPerCopy);
+        Assert.Equal(1.0, found.CopiesShare);
+        Assert.Equal(new LengthSource(8, 2, false, 10, false), found.Length);
+    }
+
+    /// <summary>A sync that differs between the two block kinds, each block written once, tells no copies.</summary>
+    [Fact]
+    public void Syncs_that_differ_with_the_block_kind_alone_tell_no_copies()
+    {
+        var bodies = DraftBlockSamples.Bodies(Xmodem(), false, 5);
+        var read = bodies.Select((b, i) => (byte[])[.. i % 2 == 0 ? DraftBlockSamples.FirstCopySync : DraftBlockSamples.SecondCopySync, .. b]).ToList();
+
+        var found = BlockKindSearch.Search(read);
+
+        Assert.NotNull(found);
+        Assert.Equal(1, found.Copies);
+    }
+
     [Fact]
     public void A_block_whose_check_fails_is_left_out_and_the_rest_still_tell_the_kinds()
     {

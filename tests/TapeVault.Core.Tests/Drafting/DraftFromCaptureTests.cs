@@ -95,10 +95,13 @@ internal static class DraftFromCaptureSox
     }
 
     /// <summary>A fixed chain (a seed's chain as the draft figure printed it), written at 16 bits as the figure writes it.</summary>
-    public static Func<string, Random, (string Path, string Description)> Printed(params string[] effects) => (path, _) =>
+    public static Func<string, Random, (string Path, string Description)> Printed(params string[] effects) => PrintedAt(16, effects);
+
+    /// <summary>A fixed chain as the draft figure printed it, written at the bits it printed after the chain (`-> 24-bit`).</summary>
+    public static Func<string, Random, (string Path, string Description)> PrintedAt(int bits, params string[] effects) => (path, _) =>
     {
         string output = Path.ChangeExtension(path, ".sox.wav");
-        OutsideTool.Sox(["-V1", path, "-b", "16", output, .. effects]);
+        OutsideTool.Sox(["-V1", path, "-b", bits.ToString(CultureInfo.InvariantCulture), output, .. effects]);
         return (output, "sox " + string.Join(' ', effects));
     };
 }
