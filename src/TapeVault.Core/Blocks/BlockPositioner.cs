@@ -1038,8 +1038,9 @@ public static partial class BlockPositioner
     /// place is named by an identity only where that identity is read at no more syncs of the capture than the format
     /// writes copies, or another setting read it alike there: an identity read all along the capture (a kind's number
     /// with no file, one setting's garble of every header) names no one place, and would carry the place into the
-    /// position of another block. Where the format writes each block more than once, a block number with no file read at
-    /// more syncs than that names no place even where settings read it alike (<c>NumberOfEveryPlace</c>).
+    /// position of another block. Where the format writes each block more than once, a block number with no file, or a
+    /// name with a byte it cannot print, read at more syncs than that names no place even where settings read it alike
+    /// (<c>NumberOfEveryPlace</c>).
     /// </summary>
     /// <returns>
     /// Per reading, whether it is no block at all: a place that only failed readings of identities nobody else read
@@ -1176,13 +1177,15 @@ public static partial class BlockPositioner
 
         int Support(BlockCandidate c) => NamesItself(c) ? support[c.Identity.Key] : 0;
 
-        // Whether a reading's identity is a block number alone (no file) that the capture reads at more syncs than the
-        // format writes copies, where it writes more than one: a format of several kinds numbers each block by its
-        // kind's place in the file, so every block of one kind carries that number, and settings that read the kind
-        // alike read it alike at every place. Read alike at a place, it still tells that block from none of its
-        // neighbours: it names no place, and the place keeps its own identity.
+        // Whether a reading's identity is a block number alone (no file), or a name with a byte it cannot print, that the
+        // capture reads at more syncs than the format writes copies, where it writes more than one: a format of several
+        // kinds numbers each block by its kind's place in the file, so every block of one kind carries that number, and
+        // settings that read the kind alike read it alike at every place; two settings that read the same edges garble
+        // every block's header alike, so one garbled name stands at every place they read. Read alike at a place, it
+        // still tells that block from none of its neighbours: it names no place, and the place keeps its own identity.
         bool NumberOfEveryPlace(BlockCandidate c) =>
-            copies > 1 && c.Identity is { FileName: null, FileId: null, BlockNumber: not null } && placesOfKey[c.Identity.Key] > copies;
+            copies > 1 && (c.Identity is { FileName: null, FileId: null, BlockNumber: not null } || c.Identity.FileName?.Contains('?', StringComparison.Ordinal) == true)
+            && placesOfKey[c.Identity.Key] > copies;
 
         // Whether another setting read reading i's header alike at its place: a setting misreads every block alike (an
         // inverted level, a slipped bit), so only another setting's reading there vouches for it.

@@ -45,4 +45,17 @@ public sealed class PositionCopiesApartTests
         // the copies of blocks 0 and 2 in two positions each (6 positions for 4 blocks).
         PositionCopiesReadNamedTests.AssertOnePositionPerBlock("orrin-80-garbled-names-read-alike-never-clean-one-pass.json", block: 2);
     }
+
+    [Fact]
+    public void A_garbled_name_two_settings_read_at_every_place_joins_no_blocks()
+    {
+        // orrin-80, seed 180039, pass 1, the readings from block 0 to block 3; no setting reads any block clean. Two
+        // settings that read the same edges (line-both and line-fixed) garble every header to the same bytes, the name
+        // "????????" and one block number, at every place they read, and a third (line-rise) reads each block's copies
+        // alike. Before, that one garble, "read alike by two settings" at each place, was taken for an identity: the first
+        // copies of blocks 1 and 2 and one reading of block 3's first were one position, and the rest of each block
+        // another (5 positions for 4 blocks).
+        // The reference is where the synthesiser wrote each copy.
+        PositionCopiesReadNamedTests.AssertOnePositionPerBlock("orrin-80-one-garble-of-every-name-never-clean-one-pass.json", block: 2);
+    }
 }
