@@ -740,6 +740,12 @@ public static partial class BlockPositioner
                     first = rest + copies - 1;
                     groupEnd = first;
                 }
+                else if (startsBlock && FirstCopiesUnreadAfter(first, end) is int closing && !AnyNamesTwoBlocks(keyed, readingsOf, units, first, first + copies, copies, support))
+                {
+                    JoinCopies(first);
+                    first = closing + 1;
+                    groupEnd = first;
+                }
                 else
                 {
                     first++;
@@ -951,6 +957,48 @@ public static partial class BlockPositioner
             }
 
             return Span(first) <= OneCopyBound() && Span(rest) <= OneCopyBound() && SyncSpansAlike(Span(last), Span(first) + Span(rest));
+        }
+
+        // Where the format writes each block twice: whether units first and first+1 are one block's copies and the first
+        // copies of the blocks after it, one or more in a row, were not read. Each block's copies span one length and the
+        // gap, so from its second copy's sync the next sync read lies its own span and the next block's later; the next
+        // block's span is what is left over, and so on along the second copies read, until one's span to the next sync is
+        // its block's own (the next block's first copy was read): the closing unit, or null. The spans left over must each
+        // be one copy's (no longer than OneCopyBound, no shorter than half the median span). Two second copies in a row
+        // whose spans are alike are as likely one block's two copies: the chain is not followed through them (blocks of
+        // like lengths make leftovers match by chance).
+        int? FirstCopiesUnreadAfter(int first, int end)
+        {
+            if (copies != 2 || first + 2 >= end)
+            {
+                return null;
+            }
+
+            double least = OneCopyBound() / MostOneCopySpan / 2;
+            double span = Span(first);
+            if (span > OneCopyBound() || span < least)
+            {
+                return null;
+            }
+
+            // Unit first+1 is the block's second copy; each unit after it in the run is a second copy whose first was not read.
+            for (int u = first + 1; u < end && u + 2 < units.Count; u++)
+            {
+                double next = Span(u) - span;
+                if (next > OneCopyBound() || next < least || (u > first + 1 && Alike(u, u + 1)))
+                {
+                    return null;
+                }
+
+                if (u + 1 < end && SyncSpansAlike(Span(u + 1), next))
+                {
+                    return u + 1;
+                }
+
+                span = next;
+            }
+
+            return null;
         }
 
         // The longest span from a sync to the next that is taken for one copy's: half again the median of all such
