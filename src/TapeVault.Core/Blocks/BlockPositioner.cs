@@ -740,6 +740,12 @@ public static partial class BlockPositioner
                     first = rest + copies - 1;
                     groupEnd = first;
                 }
+                else if (startsBlock && FirstCopiesUnreadAfter(first, end) is int closing && !AnyNamesTwoBlocks(keyed, readingsOf, units, first, first + copies, copies, support))
+                {
+                    JoinCopies(first);
+                    first = closing + 1;
+                    groupEnd = first;
+                }
                 else
                 {
                     first++;
@@ -953,6 +959,48 @@ public static partial class BlockPositioner
             return Span(first) <= OneCopyBound() && Span(rest) <= OneCopyBound() && SyncSpansAlike(Span(last), Span(first) + Span(rest));
         }
 
+        // Where the format writes each block twice: whether units first and first+1 are one block's copies and the first
+        // copies of the blocks after it, one or more in a row, were not read. Each block's copies span one length and the
+        // gap, so from its second copy's sync the next sync read lies its own span and the next block's later; the next
+        // block's span is what is left over, and so on along the second copies read, until one's span to the next sync is
+        // its block's own (the next block's first copy was read): the closing unit, or null. The spans left over must each
+        // be one copy's (no longer than OneCopyBound, no shorter than half the median span). Two second copies in a row
+        // whose spans are alike are as likely one block's two copies: the chain is not followed through them (blocks of
+        // like lengths make leftovers match by chance).
+        int? FirstCopiesUnreadAfter(int first, int end)
+        {
+            if (copies != 2 || first + 2 >= end)
+            {
+                return null;
+            }
+
+            double least = OneCopyBound() / MostOneCopySpan / 2;
+            double span = Span(first);
+            if (span > OneCopyBound() || span < least)
+            {
+                return null;
+            }
+
+            // Unit first+1 is the block's second copy; each unit after it in the run is a second copy whose first was not read.
+            for (int u = first + 1; u < end && u + 2 < units.Count; u++)
+            {
+                double next = Span(u) - span;
+                if (next > OneCopyBound() || next < least || (u > first + 1 && Alike(u, u + 1)))
+                {
+                    return null;
+                }
+
+                if (u + 1 < end && SyncSpansAlike(Span(u + 1), next))
+                {
+                    return u + 1;
+                }
+
+                span = next;
+            }
+
+            return null;
+        }
+
         // The longest span from a sync to the next that is taken for one copy's: half again the median of all such
         // spans read (most are one copy's). A span over several unread copies may add up with another by chance.
         double OneCopyBound()
@@ -1038,8 +1086,9 @@ public static partial class BlockPositioner
     /// place is named by an identity only where that identity is read at no more syncs of the capture than the format
     /// writes copies, or another setting read it alike there: an identity read all along the capture (a kind's number
     /// with no file, one setting's garble of every header) names no one place, and would carry the place into the
-    /// position of another block. Where the format writes each block more than once, a block number with no file read at
-    /// more syncs than that names no place even where settings read it alike (<c>NumberOfEveryPlace</c>).
+    /// position of another block. Where the format writes each block more than once, a block number with no file, or a
+    /// name with a byte it cannot print, read at more syncs than that names no place even where settings read it alike
+    /// (<c>NumberOfEveryPlace</c>).
     /// </summary>
     /// <returns>
     /// Per reading, whether it is no block at all: a place that only failed readings of identities nobody else read
@@ -1176,13 +1225,15 @@ public static partial class BlockPositioner
 
         int Support(BlockCandidate c) => NamesItself(c) ? support[c.Identity.Key] : 0;
 
-        // Whether a reading's identity is a block number alone (no file) that the capture reads at more syncs than the
-        // format writes copies, where it writes more than one: a format of several kinds numbers each block by its
-        // kind's place in the file, so every block of one kind carries that number, and settings that read the kind
-        // alike read it alike at every place. Read alike at a place, it still tells that block from none of its
-        // neighbours: it names no place, and the place keeps its own identity.
+        // Whether a reading's identity is a block number alone (no file), or a name with a byte it cannot print, that the
+        // capture reads at more syncs than the format writes copies, where it writes more than one: a format of several
+        // kinds numbers each block by its kind's place in the file, so every block of one kind carries that number, and
+        // settings that read the kind alike read it alike at every place; two settings that read the same edges garble
+        // every block's header alike, so one garbled name stands at every place they read. Read alike at a place, it
+        // still tells that block from none of its neighbours: it names no place, and the place keeps its own identity.
         bool NumberOfEveryPlace(BlockCandidate c) =>
-            copies > 1 && c.Identity is { FileName: null, FileId: null, BlockNumber: not null } && placesOfKey[c.Identity.Key] > copies;
+            copies > 1 && (c.Identity is { FileName: null, FileId: null, BlockNumber: not null } || c.Identity.FileName?.Contains('?', StringComparison.Ordinal) == true)
+            && placesOfKey[c.Identity.Key] > copies;
 
         // Whether another setting read reading i's header alike at its place: a setting misreads every block alike (an
         // inverted level, a slipped bit), so only another setting's reading there vouches for it.

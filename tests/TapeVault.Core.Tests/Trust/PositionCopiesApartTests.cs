@@ -45,4 +45,29 @@ public sealed class PositionCopiesApartTests
         // the copies of blocks 0 and 2 in two positions each (6 positions for 4 blocks).
         PositionCopiesReadNamedTests.AssertOnePositionPerBlock("orrin-80-garbled-names-read-alike-never-clean-one-pass.json", block: 2);
     }
+
+    [Fact]
+    public void A_garbled_name_two_settings_read_at_every_place_joins_no_blocks()
+    {
+        // orrin-80, seed 180039, pass 1, the readings from block 0 to block 3; no setting reads any block clean. Two
+        // settings that read the same edges (line-both and line-fixed) garble every header to the same bytes, the name
+        // "????????" and one block number, at every place they read, and a third (line-rise) reads each block's copies
+        // alike. Before, that one garble, "read alike by two settings" at each place, was taken for an identity: the first
+        // copies of blocks 1 and 2 and one reading of block 3's first were one position, and the rest of each block
+        // another (5 positions for 4 blocks).
+        // The reference is where the synthesiser wrote each copy.
+        PositionCopiesReadNamedTests.AssertOnePositionPerBlock("orrin-80-one-garble-of-every-name-never-clean-one-pass.json", block: 2);
+    }
+
+    [Fact]
+    public void A_blocks_copies_before_two_unread_first_copies_in_a_row_are_one_position()
+    {
+        // orrin-80, seed 170004, pass 2, the readings from block 2 to block 7; no setting reads any block clean. Block 4's
+        // copies are read at 4.409 s and 4.700 s (0.291 s apart, one length and the gap), then the first copies of blocks 5
+        // and 6 are unread: from block 4's second copy the next sync read is block 5's second, 0.616 s on (block 4's span
+        // and block 5's, 0.325 s), and from there block 6's second, 0.635 s on (block 5's and block 6's, 0.310 s), which
+        // spans 0.309 s to block 7's first copy. Before, only one unread first copy in a row was followed, and block 4's
+        // copies were two positions. The reference is where the synthesiser wrote each copy.
+        PositionCopiesReadNamedTests.AssertOnePositionPerBlock("orrin-80-first-copies-unread-in-a-row-never-clean-one-pass.json", block: 4);
+    }
 }
