@@ -103,12 +103,6 @@ public static class OutsideDamage
         Run(SoxPath, ["-R", "-V1", "-m", "-v", "1", signal, "-v", "1", noise, output]);
 
     /// <summary>
-    /// An FSK capture written by minimodem (outside reference: Debian's software FSK modem). Each block goes through
-    /// <c>minimodem --tx</c> on its own, with the profile's tones and baud and its stop bits, and SoX puts mark tone
-    /// before each (a lead-in of <paramref name="leadInSeconds"/>, then the profile's block gap) and after the last,
-    /// as a tape writer would; minimodem's own phase restarts at each block. For a stream the "blocks" are the files.
-    /// </summary>
-    /// <summary>
     /// Whether minimodem writes the profile's captures: any FSK profile of one copy a block. Characters of one start bit
     /// 0, eight data bits LSB first and no parity, after a lead-in of mark tone, are minimodem's own framing; any other
     /// framing, or a lead-in of repeated characters, minimodem writes from raw bits (<see cref="FramedBits"/>).
@@ -151,6 +145,13 @@ public static class OutsideDamage
         bits.Append(framing.StopBits);
     }
 
+    /// <summary>
+    /// An FSK capture written by minimodem (outside reference: Debian's software FSK modem). Each block goes through
+    /// <c>minimodem --tx</c> on its own, with the profile's tones and baud and its stop bits, and SoX puts mark tone
+    /// before each (a lead-in of <paramref name="leadInSeconds"/>, then the profile's block gap) and after the last,
+    /// as a tape writer would (the same gap between every two blocks); minimodem's own phase restarts at each block. For a
+    /// stream the "blocks" are the files.
+    /// </summary>
     public static void MinimodemCapture(string path, FormatProfile profile, IReadOnlyList<byte[]> blocks, int sampleRate, double leadInSeconds, double volume)
     {
         var fsk = profile.Fsk ?? throw new ArgumentException("minimodem writes FSK profiles only.", nameof(profile));
@@ -167,7 +168,6 @@ public static class OutsideDamage
         {
             string tone = Path.Combine(folder, $"{stem}.{name}.wav");
             Run(SoxPath, ["-R", "-V1", "-n", "-r", r, "-b", "16", "-c", "1", tone, "synth", F(seconds), "sine", F(fsk.MarkHz), "vol", F(volume)]);
-            parts.Add(tone);
             return tone;
         }
 
@@ -178,7 +178,7 @@ public static class OutsideDamage
             {
                 if (leadInSeconds > 0)
                 {
-                    Tone("lead-in", leadInSeconds);
+                    parts.Add(Tone("lead-in", leadInSeconds));
                 }
             }
             else
@@ -217,7 +217,7 @@ public static class OutsideDamage
             parts.Add(tones);
         }
 
-        Tone("trailer", profile.Recording.TrailerSeconds);
+        parts.Add(Tone("trailer", profile.Recording.TrailerSeconds));
         Run(SoxPath, ["-V1", .. parts, path]);
         foreach (string part in parts.Distinct())
         {
