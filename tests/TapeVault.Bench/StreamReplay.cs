@@ -76,6 +76,38 @@ public static class StreamReplay
 
     private const int SpreadDraws = 200;
 
+    /// <summary>
+    /// Each silence before a stretch of the image whose place is known: whether the merge doubted its key there (the key's
+    /// doubt falls from the stretch before) and whether a file no capture read lies there (the files the stretch's first
+    /// right segment of four bytes or more lines up with, less its key, grew since the stretch before). Counts for
+    /// <see cref="StreamMerge.UnreadStretchAtStart"/> and <see cref="StreamMerge.UnreadStretchBetween"/>.
+    /// </summary>
+    private static void CountSilences(TapeImage image, List<TapeFile> files, string profile, Dictionary<(string, bool, bool, bool), int> silences)
+    {
+        int lastStretch = -1, lastShift = 0;
+        double lastKey = 1;
+        foreach (var block in image.Blocks)
+        {
+            if (block.Status == RecoveryStatus.Missing || block.Payload.Length < 4 || !block.Key.StartsWith('#'))
+            {
+                continue;
+            }
+
+            int stretch = int.Parse(block.Key.TrimStart('#').Split('+')[0], CultureInfo.InvariantCulture);
+            var (file, offset, count) = Trust.BestAlignment(block.Payload.AsSpan(), files);
+            if (stretch <= lastStretch || count != block.Payload.Length || offset < 0)
+            {
+                continue;
+            }
+
+            int shift = file - stretch;
+            bool doubted = block.KeyConfidence < lastKey, hid = shift > lastShift;
+            var key = (profile, lastStretch < 0, doubted, hid);
+            silences[key] = silences.GetValueOrDefault(key) + 1;
+            (lastStretch, lastShift, lastKey) = (stretch, shift, block.KeyConfidence);
+        }
+    }
+
     public static int Run(string[] args)
     {
         string? folder = null, dump = null, reads = null;
@@ -103,6 +135,7 @@ public static class StreamReplay
         var readRows = new List<string>();
         var exactTapes = new Dictionary<string, (int Tapes, int Exact, double Least, int Doubted)>();
         var lines = new List<string>();
+        var silences = new Dictionary<(string Profile, bool First, bool Room, bool Hid), int>();
         var watch = System.Diagnostics.Stopwatch.StartNew();
         foreach (string file in Directory.GetFiles(folder, "*.json").Order(StringComparer.Ordinal))
         {
@@ -159,6 +192,7 @@ public static class StreamReplay
                     right ? "-" : Trust.StreamErrorWhere(block.Payload.AsSpan(), files), anywhere ? 1 : 0, Convert.ToHexString(block.Payload.AsSpan())));
             }
 
+            CountSilences(image, files, saved.Profile, silences);
             var t = exactTapes.GetValueOrDefault(saved.Profile, (Tapes: 0, Exact: 0, Least: 1.0, Doubted: 0));
             exactTapes[saved.Profile] = (t.Tapes + 1, t.Exact + (exact ? 1 : 0), exact ? Math.Min(t.Least, image.OverallConfidence) : t.Least,
                 t.Doubted + (exact && image.Blocks.Any(b => b.KeyConfidence < 1) ? 1 : 0));
@@ -185,6 +219,17 @@ public static class StreamReplay
                 Console.WriteLine(string.Create(CultureInfo.InvariantCulture,
                     $"    [{bin.Key / 10.0:0.0}, {(bin.Key + 1) / 10.0:0.0}): {bin.Count(),4} positions, mean confidence {bin.Average(i => i.Confidence):0.000}, right {bin.Count(i => i.Right) / (double)bin.Count():0.000}"));
             }
+        }
+
+        Console.WriteLine();
+        Console.WriteLine("Silences before a stretch whose key is known (its first segment of four bytes or more right): doubted (room for a file no");
+        Console.WriteLine("capture read) or not, against whether a file no capture read lies there (the key of the stretch after it is a place early).");
+        Console.WriteLine($"{"profile",-10} {"before the first: room",22} {"hid",4} {"none",5} {"hid",4} {"between: room",14} {"hid",4} {"none",5} {"hid",4}");
+        foreach (string profile in silences.Keys.Select(k => k.Profile).Distinct().Order(StringComparer.Ordinal))
+        {
+            int Count(bool first, bool room, bool hid) => silences.GetValueOrDefault((profile, first, room, hid));
+            Console.WriteLine($"{profile,-10} {Count(true, true, false) + Count(true, true, true),22} {Count(true, true, true),4} {Count(true, false, false) + Count(true, false, true),5} {Count(true, false, true),4} " +
+                $"{Count(false, true, false) + Count(false, true, true),14} {Count(false, true, true),4} {Count(false, false, false) + Count(false, false, true),5} {Count(false, false, true),4}");
         }
 
         Console.WriteLine();

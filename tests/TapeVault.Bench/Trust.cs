@@ -536,7 +536,7 @@ public static class Trust
     }
 
     /// <summary>The written file and offset a stream segment lines up with best, and how many of its characters agree there.</summary>
-    private static (int File, int Offset, int Count) BestAlignment(ReadOnlySpan<byte> run, List<TapeFile> files)
+    internal static (int File, int Offset, int Count) BestAlignment(ReadOnlySpan<byte> run, List<TapeFile> files)
     {
         var (file, offset, count, _) = StreamPlaces.Alignments(run, files);
         return (file, offset, count);

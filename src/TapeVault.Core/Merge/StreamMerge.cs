@@ -782,19 +782,18 @@ internal sealed class StreamMerge
     /// The chance that a stretch no capture read lies before a stretch read where only captures that read nothing before
     /// it heard room for one (<see cref="KeyConfidences"/>). A stretch whose file is shorter than any reading (one
     /// character: the block stage makes no reading of fewer than two) leaves nothing in any capture's readings, and every
-    /// stretch after it is keyed a place early, its bytes right. Counted on the stream tapes the trust benchmark saved
-    /// (kcs-300 and kcs-1200, seeds 138000–170000 and tuning seeds 16200–16336, 1 839 tapes; diagnosis only, the counts
-    /// read off by hand): of 26 such silences where a capture heard room, 4 held a first file of one character that no
-    /// capture read; of about 1 850 others, none.
+    /// stretch after it is keyed a place early, its bytes right. Counted by the benchmark's stream-merge (its silence
+    /// counts) on the stream tapes the trust benchmark saved (kcs-300 and kcs-1200, seeds 138000–180000, 2 155 tapes;
+    /// diagnosis only): of 41 such silences where a capture heard room, 5 held a file that no capture read.
     /// </summary>
-    public const double UnreadStretchAtStart = 0.15;
+    public const double UnreadStretchAtStart = 0.12;
 
     /// <summary>
     /// The same where a capture read a stretch before (every such capture heard the whole silence and each heard room
-    /// for one). Counted on the same tapes: of 60 such silences, 6 held a file of one character that no capture read;
-    /// of about 1 740 others, none.
+    /// for one by its writer's own gap, <see cref="HabitualGap"/>). Counted on the same tapes: of 71 such silences, 6
+    /// held a file that no capture read.
     /// </summary>
-    public const double UnreadStretchBetween = 0.10;
+    public const double UnreadStretchBetween = 0.085;
 
     /// <summary>
     /// For each stretch of tone (slots parted by more than <paramref name="stretchGap"/>), the chance that its key is its
@@ -887,13 +886,25 @@ internal sealed class StreamMerge
             }
         }
 
+        // The silence each capture heard between a stretch it read something before and the end of that something.
+        var heard = new double[stretches, _passes.Count];
+        for (int s = 0; s < stretches; s++)
+        {
+            for (int p = 0; p < _passes.Count; p++)
+            {
+                heard[s, p] = double.IsPositiveInfinity(first[s, p]) || double.IsNegativeInfinity(before[s, p]) ? double.NaN : first[s, p] - before[s, p];
+            }
+        }
+
         var keyed = new double[stretches];
         double chance = 1;
         for (int s = 0; s < stretches; s++)
         {
             // A capture that read nothing before the stretch heard the silence from its start (it may have begun late:
-            // the longest such silence counts); one that read something heard all of the silence since (the shortest counts).
-            double longest = double.NegativeInfinity, shortest = double.PositiveInfinity;
+            // the longest such silence counts); one that read something heard all of the silence since, and each such
+            // capture must have heard room for a file by its writer's own gap (HabitualGap).
+            double longest = double.NegativeInfinity;
+            bool between = false, room = true;
             for (int p = 0; p < _passes.Count; p++)
             {
                 if (double.IsPositiveInfinity(first[s, p]))
@@ -907,12 +918,13 @@ internal sealed class StreamMerge
                 }
                 else
                 {
-                    shortest = Math.Min(shortest, first[s, p] - before[s, p]);
+                    between = true;
+                    room &= heard[s, p] >= 1.5 * HabitualGap(heard, s, p);
                 }
             }
 
-            chance *= !double.IsPositiveInfinity(shortest)
-                ? shortest >= 1.5 * _recording.BlockGapSeconds ? 1 - UnreadStretchBetween : 1
+            chance *= between
+                ? room ? 1 - UnreadStretchBetween : 1
                 : longest >= _recording.LeadInSeconds + (0.75 * _recording.BlockGapSeconds) ? 1 - UnreadStretchAtStart : 1;
             keyed[s] = chance;
         }
@@ -979,6 +991,28 @@ internal sealed class StreamMerge
         }
 
         return blocks;
+    }
+
+    /// <summary>
+    /// The gap a capture's writer leaves between files, as this capture heard it on this tape: the shortest silence it
+    /// heard between two stretches it read, other than before stretch <paramref name="stretch"/>, and never less than the
+    /// format's declared gap. A writer that leaves two seconds where the format declares one does so between every two
+    /// files it writes (common practice: a writer's pause is one setting, not drawn per file), and a silence no longer
+    /// than that has no room for a file; one that hides a file is two of the writer's gaps and the file long.
+    /// </summary>
+    /// <param name="heard">Each stretch's silence as each capture heard it since the end of what it read before (NaN where it read nothing before or not the stretch).</param>
+    private double HabitualGap(double[,] heard, int stretch, int pass)
+    {
+        double least = double.PositiveInfinity;
+        for (int s = 0; s < heard.GetLength(0); s++)
+        {
+            if (s != stretch && !double.IsNaN(heard[s, pass]))
+            {
+                least = Math.Min(least, heard[s, pass]);
+            }
+        }
+
+        return double.IsPositiveInfinity(least) ? _recording.BlockGapSeconds : Math.Max(least, _recording.BlockGapSeconds);
     }
 
     /// <param name="keyed">The chance that no stretch of tone before this one went unread (<see cref="KeyConfidences"/>): its key's.</param>

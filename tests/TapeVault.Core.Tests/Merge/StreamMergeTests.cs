@@ -565,6 +565,36 @@ public sealed class StreamMergeTests
         Assert.Equal(plain.OverallConfidence * start * between, doubted.OverallConfidence, 12);
     }
 
+    [Fact]
+    public void Stream_FilesAfterTheWritersOwnLongerGapEveryTime_KeepTheirKeys_WhereASilenceOfTwoSuchGapsHidesAFile()
+    {
+        // Three files of text on a kcs-1200 tape (the Kansas City Standard at 1200 baud, BYTE, February 1976; declared
+        // gap 1 s), read whole and alike by two captures of one writer that puts two seconds of mark tone between every
+        // two files (SoX's synth writes a gap of the length it is given, as the trust benchmark's captures are put
+        // together: outside reference SoX). Each silence is one and a half declared gaps and more, but no longer than
+        // the other silence on the same tape: the writer's own gap, with no room for a file. Before, every key after
+        // the first was doubted as if a file might lie unread in each silence (1 − UnreadStretchBetween, and its square). Where the second silence
+        // is two of the writer's gaps and a character, a file of one character may lie there: its key stays doubted.
+        var texts = Enumerable.Range(0, 3).Select(f => f % 2 == 0 ? Text() : Text().Reverse().ToArray()).ToArray();
+        texts[2][0] ^= 0x5a;
+        const double WritersGap = 2.0;
+        TapeImage Merged(double[] silences) => TapeMerger.Merge(
+            [.. Enumerable.Range(0, 2).Select(n => Readings.Pass(
+                n,
+                [.. texts.Select((text, f) => Readings.Stream(
+                    text, 0, text.Length, 2.2 + (0.3 * n) + texts.Take(f).Sum(t => t.Length * Character) + silences.Take(f + 1).Sum(), Character, position: f))]))],
+            Kcs);
+
+        var habit = Merged([0, WritersGap, WritersGap]);
+        var hidden = Merged([0, WritersGap, WritersGap + Character + WritersGap]);
+
+        Assert.Equal(texts.Select(Hex), habit.Blocks.Select(b => Hex(b.Payload)));
+        Assert.Equal(["#0", "#1", "#2"], habit.Blocks.Select(b => b.Key));
+        Assert.All(habit.Blocks, b => Assert.Equal(1, b.KeyConfidence));
+        Assert.Equal(habit.Blocks.Aggregate(1.0, (product, b) => product * b.PayloadConfidence), habit.OverallConfidence, 12);
+        Assert.Equal([1, 1, 1 - StreamMerge.UnreadStretchBetween], hidden.Blocks.Select(b => b.KeyConfidence), (a, b) => Math.Abs(a - b) < 1e-12);
+    }
+
     private static string Hex(System.Collections.Immutable.ImmutableArray<byte> bytes) => Convert.ToHexStringLower(bytes.AsSpan());
 
     private static string Hex(byte[] bytes) => Convert.ToHexStringLower(bytes);
