@@ -65,11 +65,18 @@ public static class GuessConfirmation
             }
         }
 
+        // The classes before the fields that name them: each class the draft names elsewhere becomes the reference's
+        // class nearest it in length, and the guessed names confirmed after them are the reference's own.
+        if (paths.Contains("pulseWidth.classes"))
+        {
+            ConfirmClasses(draft, reference);
+        }
+
         foreach (string path in paths)
         {
             switch (path)
             {
-                case "family":
+                case "family" or "pulseWidth.classes":
                     break;
                 case "layout.header" when rule == ConfirmationRule.Earlier:
                     foreach (string part in new[] { "header", "payloadBytes", "maximumPayloadBytes" })
@@ -332,6 +339,40 @@ public static class GuessConfirmation
             target.Remove(last);
         }
     }
+
+    /// <summary>
+    /// The reference's pulse classes in place of the draft's. Every name of a draft class in the pulse section
+    /// (bits, lead-in, sync, markers) becomes the name of the reference's class nearest to it in length, so that what
+    /// the draft measured with its classes (a lead-in class, say) is kept, read with the confirmed classes.
+    /// </summary>
+    private static void ConfirmClasses(JsonObject draft, JsonObject reference)
+    {
+        var draftClasses = Classes(draft);
+        var referenceClasses = Classes(reference);
+        Replace(draft, reference, "pulseWidth.classes");
+        if (draftClasses.Count == 0 || referenceClasses.Count == 0 || draft["pulseWidth"] is not JsonObject pulses)
+        {
+            return;
+        }
+
+        var renamed = draftClasses.ToDictionary(c => c.Key, c => referenceClasses.MinBy(r => Math.Abs(Math.Log(r.Value / c.Value))).Key, StringComparer.Ordinal);
+        foreach (var (key, node) in pulses.ToList())
+        {
+            if (key != "classes")
+            {
+                pulses[key] = RenameClasses(node, renamed);
+            }
+        }
+    }
+
+    /// <summary>A copy of a node with every string that names a renamed class replaced by its new name.</summary>
+    private static JsonNode? RenameClasses(JsonNode? node, Dictionary<string, string> renamed) => node switch
+    {
+        JsonArray array => new JsonArray([.. array.Select(n => RenameClasses(n, renamed))]),
+        JsonObject obj => new JsonObject(obj.Select(p => KeyValuePair.Create(p.Key, RenameClasses(p.Value, renamed)))),
+        JsonValue value when value.TryGetValue(out string? name) && renamed.TryGetValue(name, out string? other) => JsonValue.Create(other),
+        _ => node?.DeepClone(),
+    };
 
     /// <summary>Class names taken from the reference, renamed to the draft's class nearest in length.</summary>
     private static void Rename(JsonObject draft, JsonObject reference, string path)

@@ -1,3 +1,4 @@
+using System.Text.Json.Nodes;
 using TapeVault.Core.Drafting;
 using TapeVault.Core.Synthesis;
 using TapeVault.Core.Tests.OutsideChecks;
@@ -54,6 +55,29 @@ public sealed class DraftReadPathAgreementTests(OutsideTempFolder folder, ITestO
     }
 
     /// <summary>
+    /// Seed 184006 of the draft figure: short 247.4 and long 505.6 µs, a line capture at 48 kHz played 2.3 % slow, then
+    /// the figure's SoX chain for that seed (a 287 Hz high-pass, an 8.6 dB dip at 514 Hz, 2.8 % slower again, 24 bits:
+    /// sox(1), a general-purpose audio tool that shares no code with TapeVault). No check held inside the drafter, so
+    /// every class was kept: beside noise's groups, the long pulses crowded by their neighbours made a group of their
+    /// own at 414 µs, between the short (260) and the long (527) as the tape plays. The classes were marked measured,
+    /// so confirming the guesses (bits, sync, framing, layout) kept that group, which took most long pulses from the
+    /// long class on the read path: 4 of the truth's 21. Classes no check proves are a guess; confirmed, they are the
+    /// format's own (the truth profile's two), and the lead-in class the draft measured is the confirmed class nearest it.
+    /// </summary>
+    [Fact]
+    public void Classes_no_check_proves_are_a_guess_that_confirming_replaces()
+    {
+        var result = AssertDraftReadsWhatTheTruthReads(184006, leastTruth: 18,
+            DraftFromCaptureSox.PrintedAt(24, "highpass", "286.7", "equalizer", "513.8331", "0.7626q", "-8.5659", "speed", "0.9716", "gain", "-0.6272"));
+
+        // Source: the truth profile the capture was written with (RandomFormats). Classes marked measured must be as
+        // many as the format's; a draft that grouped otherwise marks them a guess.
+        int truthClasses = JsonNode.Parse(result.TruthJson)!["pulseWidth"]!["classes"]!.AsArray().Count;
+        int drafted = JsonNode.Parse(result.DraftProfileJson!)!["pulseWidth"]!["classes"]!.AsArray().Count;
+        Assert.True(drafted == truthClasses || result.Guessed.Contains("pulseWidth.classes"), $"{drafted} classes marked measured where the format has {truthClasses}");
+    }
+
+    /// <summary>
     /// Classes kept 0 and 2 of three: a cycle of class 1 (left out) now in class 0 reads otherwise, and so does a
     /// cycle of class 2 now in none; cycles of no class, or of class 1, now in none, read alike.
     /// </summary>
@@ -82,9 +106,9 @@ public sealed class DraftReadPathAgreementTests(OutsideTempFolder folder, ITestO
         Assert.Equal([3, 1, 0, 0, 2], PulseWidthDrafter.BitsReadLongInSync([3, 1, 0, 0, 2], mapping, farther));
     }
 
-    private void AssertDraftReadsWhatTheTruthReads(int seed, int leastTruth)
+    private DraftTrialResult AssertDraftReadsWhatTheTruthReads(int seed, int leastTruth, Func<string, Random, (string Path, string Description)>? sox = null)
     {
-        var result = DraftTrials.Run("pulse-width", seed, folder.Root);
+        var result = DraftTrials.Run("pulse-width", seed, folder.Root, sox);
         output.WriteLine($"{result.Family} seed {result.Seed}: drafted {result.DraftedFamily}, {result.RecoveredByBoth} of the truth's {result.RecoveredByTruth} ({result.Written} written); guessed {string.Join(", ", result.Guessed)}; {result.Damage}; {result.Failure}");
         output.WriteLine(result.DraftJson);
         Assert.True(result.RecoveredByTruth >= leastTruth, $"the truth read {result.RecoveredByTruth}: the damage is beyond the read path, not a test of the draft");
@@ -93,5 +117,6 @@ public sealed class DraftReadPathAgreementTests(OutsideTempFolder folder, ITestO
         // The blocks as written are the outside reference (RandomFormats.RecoveredBlocks compares the bytes read with
         // the bytes written): the confirmed draft reads at least 95 % of what the truth reads (the figure's goal).
         Assert.True(result.RecoveredByBoth >= 0.95 * result.RecoveredByTruth, $"the confirmed draft read {result.RecoveredByBoth} of the truth's {result.RecoveredByTruth} blocks");
+        return result;
     }
 }

@@ -33,6 +33,46 @@ public sealed class GuessConfirmationTests
         Assert.Equal(baud, confirmed.Fsk.Baud, 6);
     }
 
+    /// <summary>
+    /// Guessed classes take the reference's; the lead-in class the draft measured (not a guess) is kept as the
+    /// confirmed class nearest to it in length, so that it still names a class of the confirmed profile.
+    /// </summary>
+    [Fact]
+    public void Guessed_classes_are_the_references_and_a_measured_lead_in_class_names_the_nearest_of_them()
+    {
+        string truth = RandomFormats.Draw("pulse-width", new Random(5));
+        var reference = JsonNode.Parse(truth)!.AsObject();
+        var classes = reference["pulseWidth"]!["classes"]!.AsArray();
+        string leadIn = reference["pulseWidth"]!["leadIn"]!["class"]!.GetValue<string>();
+        double leadInLength = classes.Single(c => c!["name"]!.GetValue<string>() == leadIn)!["microseconds"]!.GetValue<double>();
+
+        // The draft: the reference's classes as the tape plays 3 % slow and named otherwise, and a group of its own
+        // between every two of them (crowded pulses), its lead-in class the one nearest the reference's.
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        var grouped = new JsonArray();
+        for (int i = 0; i < classes.Count; i++)
+        {
+            double us = classes[i]!["microseconds"]!.GetValue<double>() / 0.97;
+            grouped.Add(new JsonObject { ["name"] = $"class-{(2 * i) + 1}", ["microseconds"] = us });
+            grouped.Add(new JsonObject { ["name"] = $"class-{(2 * i) + 2}", ["microseconds"] = us * 1.3 });
+        }
+
+        draft["pulseWidth"]!["classes"] = grouped;
+        draft["pulseWidth"]!["leadIn"]!["class"] = $"class-{(2 * classes.IndexOf(classes.Single(c => c!["microseconds"]!.GetValue<double>() == leadInLength))) + 1}";
+
+        var confirmed = JsonNode.Parse(GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["pulseWidth.classes", "pulseWidth.zero", "pulseWidth.one", "pulseWidth.sync"]))!;
+
+        // Source: the reference profile the draft's guesses are confirmed from.
+        Assert.Equal(classes.ToJsonString(), confirmed["pulseWidth"]!["classes"]!.ToJsonString());
+        Assert.Equal(leadIn, confirmed["pulseWidth"]!["leadIn"]!["class"]!.GetValue<string>());
+        foreach (string field in new[] { "zero", "one", "sync" })
+        {
+            Assert.Equal(reference["pulseWidth"]![field]!.ToJsonString(), confirmed["pulseWidth"]![field]!.ToJsonString());
+        }
+
+        ProfileLoader.Parse(confirmed.ToJsonString(), "confirmed");
+    }
+
     [Fact]
     public void A_guessed_family_that_was_wrong_leaves_a_draft_with_no_section_for_the_right_family()
     {
