@@ -348,15 +348,14 @@ public static class TapeImageContainer
 
         public TapeImage Build(ManifestDocument d)
         {
-            int headerVersion = _version;
             if (d.Format != FormatName)
             {
                 throw Bad($"its manifest's format is '{d.Format}', not '{FormatName}'");
             }
 
-            if (d.FormatVersion != headerVersion)
+            if (d.FormatVersion != _version)
             {
-                throw Bad($"its manifest says format version {d.FormatVersion?.ToString(CultureInfo.InvariantCulture) ?? "(none)"} but its header says {headerVersion}");
+                throw Bad($"its manifest says format version {d.FormatVersion?.ToString(CultureInfo.InvariantCulture) ?? "(none)"} but its header says {_version}");
             }
 
             string profileId = Required(d.ProfileId, "profileId");
