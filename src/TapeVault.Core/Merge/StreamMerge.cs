@@ -689,6 +689,59 @@ internal sealed class StreamMerge
     /// <summary>The least silence, in nominal seconds, that parts two stretches of tone (two files) rather than a dropout inside one.</summary>
     private static double StretchGap(double character) => Math.Max(12 * character, 0.5);
 
+    /// <summary>
+    /// Whether each slot begins a stretch of tone: it lies more than <paramref name="stretchGap"/> after the slot before
+    /// it. A slot in a silence that two captures or more heard (each read on both sides of it, and nothing across more than
+    /// <paramref name="stretchGap"/> of it) and that only doubtful readings hold (each under <see cref="DoubtfulReading"/>)
+    /// is a false frame one capture read in the silence: it begins no stretch, and the silence still parts the two
+    /// stretches it lies between (on the saved stream tapes of seeds 142000–146000, such characters glued two files into
+    /// one stretch and keyed every later file a place early at 0.91–0.98, kcs-1200 144004 and 144082). It stays with the
+    /// stretch before as a position of its own, claiming what its reading claims.
+    /// </summary>
+    private bool[] StretchStarts(List<Slot> slots, double stretchGap, List<(int Pass, int Candidate, double Start, double End)> placed)
+    {
+        // The silences each capture heard: between the stretches of the common line its readings cover.
+        var silences = new List<(double From, double To, int Pass)>();
+        foreach (var group in placed.GroupBy(r => r.Pass))
+        {
+            double covered = double.NaN;
+            foreach (var (_, _, start, end) in group.OrderBy(r => r.Start))
+            {
+                if (start - covered > stretchGap)
+                {
+                    silences.Add((covered, start, group.Key));
+                }
+
+                covered = double.IsNaN(covered) ? end : Math.Max(covered, end);
+            }
+        }
+
+        bool FalseFrame(Slot slot) =>
+            slot.Bytes.TrueForAll(b => _passes[b.Pass].Candidates[b.Candidate].Confidence < DoubtfulReading)
+            && silences.Where(q => q.From < slot.Centre && slot.Centre < q.To && !slot.Bytes.Exists(b => b.Pass == q.Pass)).Select(q => q.Pass).Distinct().Count() >= 2;
+
+        var starts = new bool[slots.Count];
+        double last = double.NaN;
+        for (int k = 0; k < slots.Count; k++)
+        {
+            if (k > 0 && FalseFrame(slots[k]))
+            {
+                continue;
+            }
+
+            starts[k] = k == 0 || slots[k].Centre - (double.IsNaN(last) ? slots[k - 1].Centre : last) > stretchGap;
+            last = slots[k].Centre;
+        }
+
+        return starts;
+    }
+
+    /// <summary>
+    /// A reading no surer than this that lies alone in a silence other captures heard is taken for a false frame there
+    /// (<see cref="StretchStarts"/>): an even chance, common practice for "more likely wrong than right".
+    /// </summary>
+    private const double DoubtfulReading = 0.5;
+
     /// <summary>Marks a feature as a reading's first four characters (features are four bytes: bits 0–31).</summary>
     private const long ReadingStartMark = 1L << 40;
 
@@ -796,7 +849,7 @@ internal sealed class StreamMerge
     public const double UnreadStretchBetween = 0.085;
 
     /// <summary>
-    /// For each stretch of tone (slots parted by more than <paramref name="stretchGap"/>), the chance that its key is its
+    /// For each stretch of tone (from each slot <paramref name="starts"/> marks, <see cref="StretchStarts"/>), the chance that its key is its
     /// place: that no stretch went unread before it, by any capture. Its number counts the stretches read before it, and a
     /// stretch nobody read (a file of one character, which no reading holds) shifts it and every later one a place early,
     /// whatever the votes on their bytes say. Such a stretch needs room: before the first stretch read, the lead-in, the
@@ -809,13 +862,13 @@ internal sealed class StreamMerge
     /// Where a silence has room, a stretch lies unread in it with the chance counted (<see cref="UnreadStretchAtStart"/>,
     /// <see cref="UnreadStretchBetween"/>), and every key after it shares that doubt.
     /// </summary>
-    private double[] KeyConfidences(List<Slot> slots, double stretchGap, double character, List<(int Pass, int Candidate, double Start, double End)> placed)
+    private double[] KeyConfidences(List<Slot> slots, bool[] starts, double character, List<(int Pass, int Candidate, double Start, double End)> placed)
     {
         // The stretches: each one's first and last slot on the common line.
         var spans = new List<(double Start, double End)>();
         for (int k = 0; k < slots.Count; k++)
         {
-            if (k == 0 || slots[k].Centre - slots[k - 1].Centre > stretchGap)
+            if (starts[k])
             {
                 spans.Add((slots[k].Centre, slots[k].Centre));
             }
@@ -937,7 +990,8 @@ internal sealed class StreamMerge
     {
         var blocks = new List<ImageBlock>();
         double stretchGap = StretchGap(character);
-        var keyed = KeyConfidences(slots, stretchGap, character, placed);
+        var starts = StretchStarts(slots, stretchGap, placed);
+        var keyed = KeyConfidences(slots, starts, character, placed);
         int stretch = -1;
         int offset = 0;
         var segment = new List<Slot>();
@@ -948,7 +1002,7 @@ internal sealed class StreamMerge
         for (int k = 0; k <= slots.Count; k++)
         {
             double gap = k == 0 || k == slots.Count ? double.PositiveInfinity : slots[k].Centre - slots[k - 1].Centre;
-            int lost = gap > stretchGap ? -1 : Math.Max(0, (int)Math.Round(gap / character) - 1);
+            int lost = k == slots.Count || starts[k] ? -1 : Math.Max(0, (int)Math.Round(gap / character) - 1);
             if (k > 0 && lost != 0)
             {
                 stretchBlocks.Add(Segment(segment, stretch, segmentOffset, afterGap, beforeGap: lost > 0, keyed[stretch]));

@@ -1,3 +1,4 @@
+using TapeVault.Core.Blocks;
 using TapeVault.Core.Formats;
 using TapeVault.Core.Image;
 using TapeVault.Core.Merge;
@@ -593,6 +594,49 @@ public sealed class StreamMergeTests
         Assert.All(habit.Blocks, b => Assert.Equal(1, b.KeyConfidence));
         Assert.Equal(habit.Blocks.Aggregate(1.0, (product, b) => product * b.PayloadConfidence), habit.OverallConfidence, 12);
         Assert.Equal([1, 1, 1 - StreamMerge.UnreadStretchBetween], hidden.Blocks.Select(b => b.KeyConfidence), (a, b) => Math.Abs(a - b) < 1e-12);
+    }
+
+    [Fact]
+    public void Stream_FalseCharactersOneCaptureReadInASilenceTheOthersHeard_DoNotGlueTwoFilesIntoOneStretch()
+    {
+        // Three files of text on a kcs-1200 tape (the Kansas City Standard at 1200 baud, BYTE, February 1976), each after a
+        // second of idle tone, read whole by three captures. The third capture also framed two short false readings in the
+        // first silence (noise on a worn stretch: doubtful characters, each reading under an even chance), 0.3 s apart, so
+        // no two characters on the common line lie as far apart as a silence between files. The other two captures read
+        // on both sides and heard the silence: the second file is the second stretch (#1), the third #2 (before, the false
+        // characters glued the first two files into one stretch and the third file was keyed #1 as if it were the second).
+        var first = Text();
+        var second = first.Reverse().ToArray();
+        var third = first.Select(b => (byte)(b ^ 0x5A)).ToArray();
+        var noise = new byte[] { 0x13, 0xE7, 0x4C, 0x91, 0x2B };
+        var doubtful = Enumerable.Range(0, noise.Length).ToDictionary(i => i, _ => 0.3f);
+        double Start(int file, double origin) => origin + (file * ((first.Length * Character) + 1.0));
+        MergePass Capture(int n, bool falseFrames)
+        {
+            double origin = 1.0 + (0.2 * n);
+            var readings = new List<BlockCandidate>
+            {
+                Readings.Stream(first, 0, first.Length, Start(0, origin), Character),
+                Readings.Stream(second, 0, second.Length, Start(1, origin), Character, position: 1),
+                Readings.Stream(third, 0, third.Length, Start(2, origin), Character, position: 2),
+            };
+            if (falseFrames)
+            {
+                double silence = Start(0, origin) + (first.Length * Character);
+                readings.Insert(1, Readings.Stream(noise, 0, 2, silence + 0.3, Character, position: 1, errors: doubtful));
+                readings.Insert(2, Readings.Stream(noise, 2, 5, silence + 0.6 - (2 * Character), Character, position: 2, errors: doubtful));
+            }
+
+            return Readings.Pass(n, [.. readings]);
+        }
+
+        var blocks = TapeMerger.Merge([Capture(0, false), Capture(1, false), Capture(2, true)], Kcs).Blocks;
+
+        var byFile = new[] { first, second, third }.Select(f => blocks.Single(b => Hex(b.Payload) == Hex(f))).ToArray();
+        Assert.StartsWith("#0", byFile[0].Key, StringComparison.Ordinal);
+        Assert.Equal("#1", byFile[1].Key);
+        Assert.Equal("#2", byFile[2].Key);
+        Assert.All(byFile, b => Assert.Equal(3, b.AgreeingCaptures));
     }
 
     private static string Hex(System.Collections.Immutable.ImmutableArray<byte> bytes) => Convert.ToHexStringLower(bytes.AsSpan());
