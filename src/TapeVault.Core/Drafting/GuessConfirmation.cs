@@ -153,6 +153,7 @@ public static class GuessConfirmation
         }
 
         confirmed = header;
+        FitSyncsToCopies(header, Copies(layout));
         layout["header"] = header;
         if (coverageStart is { } start && layout["checksum"] is JsonObject checksum)
         {
@@ -181,6 +182,14 @@ public static class GuessConfirmation
         int? coverageStart = CoverageStart(layout, bySection: true) + absorbed;
         var measured = checksumGuessed ? null : layout["checksum"] as JsonObject;
         var kinds = (JsonArray)referenceKinds.DeepClone();
+        foreach (var kind in kinds.OfType<JsonObject>())
+        {
+            if (kind["header"] is JsonArray header)
+            {
+                FitSyncsToCopies(header, Copies(layout));
+            }
+        }
+
         if (measured is not null)
         {
             foreach (var kind in kinds.OfType<JsonObject>())
@@ -202,6 +211,31 @@ public static class GuessConfirmation
         }
 
         layout["kinds"] = kinds;
+    }
+
+    /// <summary>The copies of each block the draft's layout says (one where it says none).</summary>
+    private static int Copies(JsonObject layout) => layout["copies"]?.GetValue<int>() ?? 1;
+
+    /// <summary>
+    /// A confirmed sync field that expects one value per copy (a countdown that differs between the first and second
+    /// copy), fitted to the copies the draft measured, which confirming keeps: a draft that read each block once
+    /// expects the first copy's value, one that read fewer copies than the reference writes the first copies' values.
+    /// A field with one value for all copies, or one per copy as the draft counts them, is left as it is; so is one
+    /// whose values are fewer than the draft's copies (the first value then stands for all), since the language reads
+    /// one value for all copies or exactly one per copy and a confirmed draft must load.
+    /// </summary>
+    private static void FitSyncsToCopies(JsonArray header, int copies)
+    {
+        foreach (var field in header.OfType<JsonObject>())
+        {
+            if (field["role"]?.GetValue<string>() != "sync" || field["expect"] is not JsonArray expect || expect.Count <= 1 || expect.Count == copies)
+            {
+                continue;
+            }
+
+            int kept = copies < expect.Count ? Math.Max(1, copies) : 1;
+            field["expect"] = new JsonArray([.. expect.Take(kept).Select(v => v!.DeepClone())]);
+        }
     }
 
     /// <summary>

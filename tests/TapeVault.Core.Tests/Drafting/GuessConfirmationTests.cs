@@ -226,6 +226,39 @@ public sealed class GuessConfirmationTests
         Assert.Null(node["payloadBytes"]);
     }
 
+    /// <summary>
+    /// Seed 186008 of the draft figure (three-class-pairs, read as one kind of block each written once): the guessed
+    /// header confirmed as the reference's kinds brought a countdown sync with one value per copy (two) beside the one
+    /// copy the draft measured, and the confirmed draft did not load ("layout.header[0].expect gives 2 values").
+    /// </summary>
+    [Fact]
+    public void A_guessed_header_whose_sync_differs_per_copy_is_fitted_to_the_copies_the_draft_measured_and_loads()
+    {
+        // Source: the benchmark writer's truth profile (RandomFormats), whose two copies carry different countdowns.
+        string truth = RandomFormats.Draw("three-class-pairs", new Random(15));
+        var reference = JsonNode.Parse(truth)!.AsObject();
+        var countdowns = reference["layout"]!["kinds"]![0]!["header"]![0]!["expect"]!.AsArray();
+        Assert.Equal(2, countdowns.Count);
+        var draft = JsonNode.Parse(truth)!.AsObject();
+        draft["layout"] = new JsonObject
+        {
+            ["header"] = new JsonArray(new JsonObject { ["name"] = "field-0", ["bytes"] = 9, ["role"] = "other" }),
+            ["payloadBytes"] = 30,
+            ["checksum"] = new JsonObject { ["algorithm"] = "xor8", ["covers"] = "payload", ["endian"] = "big" },
+            ["copies"] = 1,
+        };
+
+        string confirmed = GuessConfirmation.Confirm(draft.ToJsonString(), truth, ["layout.header", "layout.payloadBytes"]);
+
+        // It loads, keeps the one copy the draft measured, and each kind expects the first copy's countdown.
+        var profile = ProfileLoader.Parse(confirmed, "confirmed");
+        Assert.Equal(1, profile.Layout.Copies);
+        foreach (var kind in JsonNode.Parse(confirmed)!["layout"]!["kinds"]!.AsArray())
+        {
+            Assert.Equal($"[{countdowns[0]!.ToJsonString()}]", kind!["header"]![0]!["expect"]!.ToJsonString());
+        }
+    }
+
     [Fact]
     public void A_confirmed_pulse_sync_gives_back_the_header_byte_the_draft_s_sync_took_and_the_check_still_covers_the_payload_only()
     {
