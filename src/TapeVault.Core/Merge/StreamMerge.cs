@@ -265,9 +265,6 @@ internal sealed class StreamMerge
 
         /// <summary>Its weight in a clash with a slot closer than a character (<see cref="ClashSupport"/>).</summary>
         public double Support { get; set; }
-
-        /// <summary>The greatest <see cref="Support"/> of a slot it clashed with and outweighed; −∞ with none.</summary>
-        public double Rival { get; set; } = double.NegativeInfinity;
     }
 
     /// <summary>The time of one character on tape, in nominal seconds: the median spacing of consecutive bytes.</summary>
@@ -426,40 +423,16 @@ internal sealed class StreamMerge
 
         // Slots closer than a character cannot both be characters: the one with the stronger support stays (the
         // expected number of captures that read it right, each reader's framing around the clash counted, ClashSupport).
-        // A slot that beat a rival claims no more than its share of the two supports (ClashShare).
         var kept = new List<Slot>(voted.Count);
         foreach (var slot in voted.OrderByDescending(s => s.Support))
         {
             int at = kept.BinarySearch(slot, CentreOrder.Instance);
             int index = at >= 0 ? at : ~at;
-            bool after = index < kept.Count && kept[index].Centre - slot.Centre < 0.75 * character;
-            bool before = index > 0 && slot.Centre - kept[index - 1].Centre < 0.75 * character;
-            // A rival of the same value is the same character placed twice, no contest over what it is.
-            if (after && kept[index].Value != slot.Value)
-            {
-                kept[index].Rival = Math.Max(kept[index].Rival, slot.Support);
-            }
-
-            if (before && kept[index - 1].Value != slot.Value)
-            {
-                kept[index - 1].Rival = Math.Max(kept[index - 1].Rival, slot.Support);
-            }
-
-            if (!after && !before)
+            bool clash = (index < kept.Count && kept[index].Centre - slot.Centre < 0.75 * character)
+                || (index > 0 && slot.Centre - kept[index - 1].Centre < 0.75 * character);
+            if (!clash)
             {
                 kept.Insert(index, slot);
-            }
-        }
-
-        foreach (var slot in kept)
-        {
-            if (!double.IsNegativeInfinity(slot.Rival))
-            {
-                double share = ClashShare(slot.Support, slot.Rival);
-                slot.Probability = Math.Min(slot.Probability, share);
-                slot.Confidence = Math.Min(slot.Confidence, share);
-                slot.GapEndConfidence = Math.Min(slot.GapEndConfidence, share);
-                slot.StretchEndConfidence = Math.Min(slot.StretchEndConfidence, share);
             }
         }
 
@@ -790,20 +763,6 @@ internal sealed class StreamMerge
 
         return share;
     }
-
-    /// <summary>
-    /// The most a slot that outweighed a clashing one can claim: the logistic of the difference of their supports
-    /// (<see cref="ClashSupport"/>, log odds) times <see cref="ClashScale"/>. Equal supports are a tie: a half, whatever
-    /// the vote on the winner's own readings says; a clear winner keeps what its vote gave it.
-    /// </summary>
-    internal static double ClashShare(double support, double rival) => 1 / (1 + Math.Exp(-ClashScale * (support - rival)));
-
-    /// <summary>
-    /// The scale of a support difference in <see cref="ClashShare"/>: 2, chosen by the merged ECE of the stream-merge
-    /// replays of the trust benchmark's kcs-300 and kcs-1200 tapes of tuning seeds 12000 and 14000 onwards (1, 2 and
-    /// 1000 tried; 0.5 was worse on seeds 12000).
-    /// </summary>
-    public const double ClashScale = 2;
 
     private sealed class CentreOrder : IComparer<Slot>
     {

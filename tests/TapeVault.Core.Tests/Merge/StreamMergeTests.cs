@@ -664,18 +664,6 @@ public sealed class StreamMergeTests
         Assert.Equal(Hex(text), Hex(block.Payload));
     }
 
-    [Fact]
-    public void Stream_AClashOfEqualSupport_LeavesItsWinnerNoSurerThanATie()
-    {
-        // The same, but the false frame never breaks near the clash and both read equally cleanly: nothing tells the two
-        // apart. Whichever the merge keeps, the stretch is a tie, about a half each; before, the winner kept its own
-        // vote's 0.999 and more at each of the twelve characters.
-        var (_, _, image) = ClashInAHole(trueError: 1e-4f, breaksAtRunEnds: false);
-
-        Assert.All(image.Blocks.Where(b => b.Status != RecoveryStatus.Missing && b.Payload.Length > 60), b => Assert.InRange(b.Confidence, 0, 0.5 + 1e-9));
-        Assert.Contains(image.Blocks, b => b.Payload.Length > 60);
-    }
-
     private static string Hex(System.Collections.Immutable.ImmutableArray<byte> bytes) => Convert.ToHexStringLower(bytes.AsSpan());
 
     private static string Hex(byte[] bytes) => Convert.ToHexStringLower(bytes);
