@@ -236,7 +236,8 @@ internal sealed class StreamMerge
         _sharedStretchEndError = AtBaud(SharedStretchEndError, baud);
     }
 
-    private readonly record struct StreamByte(double Time, byte Value, float Error, int Pass, int Reader, int Candidate, int Index, bool Edge);
+    /// <param name="Framing">The share of its reading's characters within <see cref="ClashWindow"/> of it that broke their frame (<see cref="LocalFraming"/>).</param>
+    private readonly record struct StreamByte(double Time, byte Value, float Error, int Pass, int Reader, int Candidate, int Index, bool Edge, float Framing);
 
     private sealed class Slot
     {
@@ -261,6 +262,9 @@ internal sealed class StreamMerge
         public double StretchEndConfidence { get; set; }
 
         public bool Unanimous { get; set; }
+
+        /// <summary>Its weight in a clash with a slot closer than a character (<see cref="ClashSupport"/>).</summary>
+        public double Support { get; set; }
     }
 
     /// <summary>The time of one character on tape, in nominal seconds: the median spacing of consecutive bytes.</summary>
@@ -349,6 +353,7 @@ internal sealed class StreamMerge
 
                 // A reading's first characters carry their own doubt where nothing marked its start (the block
                 // scorer gives it to a reading begun on no evidence, and it is kept with the byte odds).
+                var framing = LocalFraming(c.ByteErrorOdds.AsSpan());
                 int sinceBroken = int.MaxValue;
                 for (int i = 0; i < c.Payload.Length; i++)
                 {
@@ -361,7 +366,7 @@ internal sealed class StreamMerge
                     }
 
                     sinceBroken = c.ByteErrorOdds[i] >= 0.5f ? 0 : sinceBroken == int.MaxValue ? int.MaxValue : sinceBroken + 1;
-                    bytes.Add(new StreamByte(On(p, ci, c.ByteSeconds[i]), c.Payload[i], error, p, r, ci, i, i == 0 || i == c.Payload.Length - 1));
+                    bytes.Add(new StreamByte(On(p, ci, c.ByteSeconds[i]), c.Payload[i], error, p, r, ci, i, i == 0 || i == c.Payload.Length - 1, framing[i]));
                 }
 
                 // A capture counts as reading the tape a little beyond its first and last characters: a byte just past
@@ -411,14 +416,15 @@ internal sealed class StreamMerge
             // A byte that other captures reading this stretch did not see must be a confident one.
             if (slot.Probability > (supporting < covering ? LoneByteProbability : 0.5))
             {
+                slot.Support = ClashSupport(slot);
                 voted.Add(slot);
             }
         }
 
         // Slots closer than a character cannot both be characters: the one with the stronger support stays (the
-        // expected number of captures that read it right).
+        // expected number of captures that read it right, each reader's framing around the clash counted, ClashSupport).
         var kept = new List<Slot>(voted.Count);
-        foreach (var slot in voted.OrderByDescending(Support))
+        foreach (var slot in voted.OrderByDescending(s => s.Support))
         {
             int at = kept.BinarySearch(slot, CentreOrder.Instance);
             int index = at >= 0 ? at : ~at;
@@ -768,14 +774,48 @@ internal sealed class StreamMerge
     /// <summary>
     /// The weight of evidence for a slot against a clashing one: the log odds, summed over the captures that read its
     /// value, that each read a true character there. Two captures that each may well have framed on a false start
-    /// bit weigh less than one that read cleanly, where a count of captures would let them outvote it.
+    /// bit weigh less than one that read cleanly, where a count of captures would let them outvote it. A capture's
+    /// chance of a false character there is at least the share of its readers' characters around it that broke their
+    /// frame (<see cref="LocalFraming"/>): a reading framed whole bits off the written characters reads a run of one
+    /// repeated character as cleanly as the true frame does (0xD3 read three bits late is 0x7A with valid stop bits), and
+    /// breaks its frame where the run ends, while the true frame reads on. This is the evidence at the clash itself; a
+    /// reading's confidence as a whole falls with its length as well, and ranked a long true reading below a short false one.
     /// </summary>
-    private static double Support(Slot slot) =>
+    private static double ClashSupport(Slot slot) =>
         slot.Bytes.Where(b => b.Value == slot.Value).GroupBy(b => b.Pass).Sum(g =>
         {
-            double error = Math.Clamp(g.Average(b => b.Error), 1e-6, 0.999);
+            double error = Math.Clamp(Math.Max(g.Average(b => b.Error), g.Average(b => b.Framing)), 1e-6, 0.999);
             return Math.Log((1 - error) / error);
         }) + Math.Log(slot.Probability / Math.Max(1 - slot.Probability, 1e-12));
+
+    /// <summary>
+    /// The characters on either side of a character over which its reading's broken frames count as doubt of a false
+    /// frame there (<see cref="LocalFraming"/>): 16, about half a run of one repeated character of the length that a false
+    /// frame reads cleanly on the tuning tapes (not fitted; only this value was tried).
+    /// </summary>
+    public const int ClashWindow = 16;
+
+    /// <summary>
+    /// For each character of a reading, the share of the reading's characters within <see cref="ClashWindow"/> of it (itself
+    /// counted, the reading's ends cut the window) that broke their frame (byte error odds of 0.5 or more).
+    /// </summary>
+    internal static float[] LocalFraming(ReadOnlySpan<float> errorOdds)
+    {
+        var broken = new int[errorOdds.Length + 1];
+        for (int i = 0; i < errorOdds.Length; i++)
+        {
+            broken[i + 1] = broken[i] + (errorOdds[i] >= 0.5f ? 1 : 0);
+        }
+
+        var share = new float[errorOdds.Length];
+        for (int i = 0; i < errorOdds.Length; i++)
+        {
+            int from = Math.Max(0, i - ClashWindow), to = Math.Min(errorOdds.Length, i + ClashWindow + 1);
+            share[i] = (float)(broken[to] - broken[from]) / (to - from);
+        }
+
+        return share;
+    }
 
     private sealed class CentreOrder : IComparer<Slot>
     {
