@@ -687,8 +687,8 @@ internal sealed class StreamMerge
     }
 
     /// <summary>
-    /// A stretch of fewer characters may be a false frame's, not a file: every key after it is doubted by its bytes'
-    /// confidence (<see cref="Segments"/>). Four, as a reading of four characters or more is no false frame in a silence
+    /// A stretch of fewer characters may be a false frame's, not a file: every key after it is doubted by the
+    /// confidence of its likeliest character (<see cref="Segments"/>). Four, as a reading of four characters or more is no false frame in a silence
     /// (<see cref="KeyConfidences"/>) and the benchmark judges a shorter segment by its key.
     /// </summary>
     private const int FalseStretchLength = 4;
@@ -1002,7 +1002,10 @@ internal sealed class StreamMerge
 
         // The chance that every stretch before the current one is a file: a stretch of fewer than four characters may be
         // a false frame's (a character framed on noise in the lead-in or a silence), and it takes a number all the same.
+        // It is a file if any of its characters was written: at least as likely as its likeliest character read right,
+        // each doubted as a stretch's end is (a false frame's stretch is all ends).
         double filesBefore = 1;
+        double likeliestCharacter = 0;
         int stretch = -1;
         int offset = 0;
         var segment = new List<Slot>();
@@ -1035,12 +1038,13 @@ internal sealed class StreamMerge
                 }
 
                 // Every key after a stretch of fewer than four characters shares the doubt that it is a file at all: if
-                // it is a false frame's, each later stretch lies a place before its number. Its chance of being a file
-                // is its bytes' (its most confident segment's, less its own key's doubt).
+                // it is a false frame's, each later stretch lies a place before its number.
                 if (stretch >= 0 && offset < FalseStretchLength)
                 {
-                    filesBefore *= stretchBlocks.Max(b => b.PayloadConfidence);
+                    filesBefore *= likeliestCharacter;
                 }
+
+                likeliestCharacter = 0;
 
                 stretchBlocks.Clear();
                 split = false;
@@ -1060,6 +1064,7 @@ internal sealed class StreamMerge
             }
 
             segment.Add(slots[k]);
+            likeliestCharacter = Math.Max(likeliestCharacter, slots[k].StretchEndConfidence);
             offset++;
         }
 
