@@ -692,6 +692,13 @@ internal sealed class StreamMerge
         return false;
     }
 
+    /// <summary>
+    /// A stretch of fewer characters may be a false frame's, not a file: every key after it is doubted by the
+    /// confidence of its likeliest character (<see cref="Segments"/>). Four, as a reading of four characters or more is no false frame in a silence
+    /// (<see cref="KeyConfidences"/>) and the benchmark judges a shorter segment by its key.
+    /// </summary>
+    private const int FalseStretchLength = 4;
+
     /// <summary>The least silence, in nominal seconds, that parts two stretches of tone (two files) rather than a dropout inside one.</summary>
     private static double StretchGap(double character) => Math.Max(12 * character, 0.5);
 
@@ -1032,6 +1039,13 @@ internal sealed class StreamMerge
         double stretchGap = StretchGap(character);
         var starts = StretchStarts(slots, stretchGap, placed);
         var keyed = KeyConfidences(slots, starts, character, placed);
+
+        // The chance that every stretch before the current one is a file: a stretch of fewer than four characters may be
+        // a false frame's (a character framed on noise in the lead-in or a silence), and it takes a number all the same.
+        // It is a file if any of its characters was written: at least as likely as its likeliest character read right,
+        // each doubted as a stretch's end is (a false frame's stretch is all ends).
+        double filesBefore = 1;
+        double likeliestCharacter = 0;
         int stretch = -1;
         int offset = 0;
         var segment = new List<Slot>();
@@ -1045,12 +1059,12 @@ internal sealed class StreamMerge
             int lost = k == slots.Count || starts[k] ? -1 : Math.Max(0, (int)Math.Round(gap / character) - 1);
             if (k > 0 && lost != 0)
             {
-                stretchBlocks.Add(Segment(segment, stretch, segmentOffset, afterGap, beforeGap: lost > 0, keyed[stretch]));
+                stretchBlocks.Add(Segment(segment, stretch, segmentOffset, afterGap, beforeGap: lost > 0, keyed[stretch] * filesBefore));
                 segment.Clear();
                 if (lost > 0)
                 {
                     split = true;
-                    stretchBlocks.Add(MissingBytes(stretch, offset, keyed[stretch]));
+                    stretchBlocks.Add(MissingBytes(stretch, offset, keyed[stretch] * filesBefore));
                     offset += lost;
                 }
             }
@@ -1062,6 +1076,15 @@ internal sealed class StreamMerge
                 {
                     blocks.Add(split ? b : b with { Key = $"#{stretch}" });
                 }
+
+                // Every key after a stretch of fewer than four characters shares the doubt that it is a file at all: if
+                // it is a false frame's, each later stretch lies a place before its number.
+                if (stretch >= 0 && offset < FalseStretchLength)
+                {
+                    filesBefore *= likeliestCharacter;
+                }
+
+                likeliestCharacter = 0;
 
                 stretchBlocks.Clear();
                 split = false;
@@ -1081,6 +1104,7 @@ internal sealed class StreamMerge
             }
 
             segment.Add(slots[k]);
+            likeliestCharacter = Math.Max(likeliestCharacter, slots[k].StretchEndConfidence);
             offset++;
         }
 
@@ -1109,7 +1133,7 @@ internal sealed class StreamMerge
         return double.IsPositiveInfinity(least) ? _recording.BlockGapSeconds : Math.Max(least, _recording.BlockGapSeconds);
     }
 
-    /// <param name="keyed">The chance that no stretch of tone before this one went unread (<see cref="KeyConfidences"/>): its key's.</param>
+    /// <param name="keyed">The chance that no stretch of tone before this one went unread (<see cref="KeyConfidences"/>) and that every short one before it is a file (<see cref="FalseStretchLength"/>): its key's.</param>
     private ImageBlock Segment(List<Slot> slots, int stretch, int offset, bool afterGap, bool beforeGap, double keyed)
     {
         var payload = slots.Select(s => s.Value).ToImmutableArray();
