@@ -220,9 +220,9 @@ public static class GuessConfirmation
     /// A confirmed sync field that expects one value per copy (a countdown that differs between the first and second
     /// copy), fitted to the copies the draft measured, which confirming keeps: a draft that read each block once
     /// expects the first copy's value, one that read fewer copies than the reference writes the first copies' values.
-    /// A field with one value for all copies, or one per copy as the draft counts them, is left as it is; so is one
-    /// whose values are fewer than the draft's copies (the first value then stands for all), since the language reads
-    /// one value for all copies or exactly one per copy and a confirmed draft must load.
+    /// A field with one value for all copies, or one per copy as the draft counts them, is left as it is; one whose
+    /// values are fewer than the draft's copies keeps its first value for all, since the language reads one value for
+    /// all copies or exactly one per copy and a confirmed draft must load.
     /// </summary>
     private static void FitSyncsToCopies(JsonArray header, int copies)
     {

@@ -693,9 +693,9 @@ internal sealed class StreamMerge
     }
 
     /// <summary>
-    /// A stretch of fewer characters may be a false frame's, not a file: every key after it is doubted by the
-    /// confidence of its likeliest character (<see cref="Segments"/>). Four, as a reading of four characters or more is no false frame in a silence
-    /// (<see cref="KeyConfidences"/>) and the benchmark judges a shorter segment by its key.
+    /// A stretch of fewer characters than this may be a false frame's, not a file: every key after it is doubted by the
+    /// confidence of its likeliest character (<see cref="Segments"/>). Four, as a reading of four characters or more is
+    /// no false frame in a silence (<see cref="KeyConfidences"/>) and the benchmark judges a shorter segment by its key.
     /// </summary>
     private const int FalseStretchLength = 4;
 
@@ -1040,7 +1040,7 @@ internal sealed class StreamMerge
         var starts = StretchStarts(slots, stretchGap, placed);
         var keyed = KeyConfidences(slots, starts, character, placed);
 
-        // The chance that every stretch before the current one is a file: a stretch of fewer than four characters may be
+        // The chance that every stretch before the current one is a file: a stretch shorter than FalseStretchLength may be
         // a false frame's (a character framed on noise in the lead-in or a silence), and it takes a number all the same.
         // It is a file if any of its characters was written: at least as likely as its likeliest character read right,
         // each doubted as a stretch's end is (a false frame's stretch is all ends).
@@ -1077,7 +1077,7 @@ internal sealed class StreamMerge
                     blocks.Add(split ? b : b with { Key = $"#{stretch}" });
                 }
 
-                // Every key after a stretch of fewer than four characters shares the doubt that it is a file at all: if
+                // Every key after a stretch shorter than FalseStretchLength shares the doubt that it is a file at all: if
                 // it is a false frame's, each later stretch lies a place before its number.
                 if (stretch >= 0 && offset < FalseStretchLength)
                 {
